@@ -1,0 +1,120 @@
+import { ELEMENTS, type ElementData, type IsotopeData, mostAbundantIsotope } from '../constants/atomic-masses.js';
+import { ScienceError } from '../errors.js';
+
+/** One atom of a molecule: its element and the isotope meant. */
+export interface Atom {
+  readonly element: ElementData;
+  readonly isotope: IsotopeData;
+  /** True when the species string named the mass number (or used D); false when the default was taken. */
+  readonly explicitIsotope: boolean;
+}
+
+export interface Isotopologue {
+  /** Normalised form: mass numbers always written, atoms joined by '-', e.g. "1H-35Cl". */
+  readonly formula: string;
+  readonly atoms: readonly [Atom, Atom];
+}
+
+/** Longest accepted species string; protects the tokenizer from absurd input. */
+const MAX_SPECIES_LENGTH = 40;
+const TOKEN = /^(\d{1,3})?-?([A-Z][a-z]?)/;
+
+/**
+ * Parse a species string of the contract: element symbols in order, each optionally preceded by its mass number
+ * ("12C16O", "13C-16O", "H35Cl", "D35Cl", "1H-79Br"). A bare symbol means the most abundant isotope; "D" is ²H.
+ * Only diatomic molecules are accepted so far.
+ */
+export function parseSpecies(input: string): Isotopologue {
+  const text = input.trim();
+  if (text.length === 0 || text.length > MAX_SPECIES_LENGTH) {
+    throw new ScienceError('SPECIES_INVALID', `species "${input.slice(0, MAX_SPECIES_LENGTH)}" is empty or too long`, {
+      species: input.slice(0, MAX_SPECIES_LENGTH),
+    });
+  }
+  const atoms: Atom[] = [];
+  let rest = text;
+  while (rest.length > 0) {
+    if (rest.startsWith('-') && atoms.length > 0) rest = rest.slice(1);
+    const m = TOKEN.exec(rest);
+    if (!m) {
+      throw new ScienceError(
+        'SPECIES_INVALID',
+        `species "${text}" cannot be read at "${rest}": expected an element symbol, optionally preceded by a mass number`,
+        { species: text, at: rest },
+      );
+    }
+    const [whole, massText, symbolText] = m as unknown as [string, string | undefined, string];
+    atoms.push(resolveAtom(symbolText, massText, text));
+    rest = rest.slice(whole.length);
+  }
+  if (atoms.length !== 2) {
+    throw new ScienceError(
+      'SPECIES_NOT_DIATOMIC',
+      `species "${text}" has ${atoms.length} atom(s); only diatomic molecules are supported`,
+      { species: text, atoms: atoms.length },
+    );
+  }
+  const pair = atoms as [Atom, Atom];
+  return { formula: formatFormula(pair), atoms: pair };
+}
+
+function resolveAtom(symbol: string, massText: string | undefined, species: string): Atom {
+  if (symbol === 'D' || symbol === 'T') {
+    const massNumber = symbol === 'D' ? 2 : 3;
+    if (massText !== undefined && Number(massText) !== massNumber) {
+      throw new ScienceError('SPECIES_INVALID', `"${massText}${symbol}" in "${species}" contradicts itself`, {
+        species,
+        atom: `${massText}${symbol}`,
+      });
+    }
+    return resolveAtom('H', String(massNumber), species);
+  }
+  const element = ELEMENTS[symbol];
+  if (!element) {
+    throw new ScienceError('SPECIES_UNKNOWN_ELEMENT', `element "${symbol}" in "${species}" is not in the mass table`, {
+      species,
+      element: symbol,
+      known: Object.keys(ELEMENTS),
+    });
+  }
+  if (massText === undefined) {
+    return { element, isotope: mostAbundantIsotope(element), explicitIsotope: false };
+  }
+  const massNumber = Number(massText);
+  const isotope = element.isotopes.find((i) => i.massNumber === massNumber);
+  if (!isotope) {
+    throw new ScienceError(
+      'SPECIES_UNKNOWN_ISOTOPE',
+      `isotope ${massNumber}${symbol} in "${species}" is not in the mass table (known: ${element.isotopes
+        .map((i) => `${i.massNumber}${symbol}`)
+        .join(', ')})`,
+      { species, isotope: `${massNumber}${symbol}` },
+    );
+  }
+  return { element, isotope, explicitIsotope: true };
+}
+
+export function formatFormula(atoms: readonly Atom[]): string {
+  return atoms.map((a) => `${a.isotope.massNumber}${a.element.symbol}`).join('-');
+}
+
+/** Every isotopologue of the same elements, built from the isotopes in the mass table. */
+export function isotopologuesOf(species: Isotopologue): Isotopologue[] {
+  const [a, b] = species.atoms;
+  const out: Isotopologue[] = [];
+  for (const ia of a.element.isotopes) {
+    for (const ib of b.element.isotopes) {
+      const atoms: [Atom, Atom] = [
+        { element: a.element, isotope: ia, explicitIsotope: true },
+        { element: b.element, isotope: ib, explicitIsotope: true },
+      ];
+      out.push({ formula: formatFormula(atoms), atoms });
+    }
+  }
+  return out;
+}
+
+/** Natural abundance of the isotopologue: the product of its atoms' isotopic amount fractions. */
+export function naturalAbundance(species: Isotopologue): number {
+  return species.atoms[0].isotope.abundance * species.atoms[1].isotope.abundance;
+}
