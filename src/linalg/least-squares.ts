@@ -295,7 +295,8 @@ function dependentGroups(r: Float64Array, p: number, rank: number, perm: Int32Ar
     let zmax = 0;
     for (let i = 0; i < rank; i++) zmax = Math.max(zmax, Math.abs(z[i] as number));
     const group = [perm[c] as number];
-    for (let i = 0; i < rank; i++) if (Math.abs(z[i] as number) > 1e-6 * Math.max(zmax, 1e-300)) group.push(perm[i] as number);
+    for (let i = 0; i < rank; i++)
+      if (Math.abs(z[i] as number) > 1e-6 * Math.max(zmax, 1e-300)) group.push(perm[i] as number);
     groups.push(group);
   }
   return groups;

@@ -1,14 +1,7 @@
 import { Matrix, QrDecomposition } from 'ml-matrix';
 import { describe, expect, it } from 'vitest';
 import { solveLeastSquares } from '../../src/linalg/least-squares.js';
-import {
-  FILIP,
-  LONGLEY,
-  NORRIS,
-  PONTIUS,
-  type StrdDataset,
-  WAMPLER,
-} from '../fixtures/nist-strd/datasets.js';
+import { FILIP, LONGLEY, NORRIS, PONTIUS, type StrdDataset, WAMPLER } from '../fixtures/nist-strd/datasets.js';
 
 /** Design matrix of a StRD dataset: intercept plus polynomial powers of x[0], or plain columns. */
 function designOf(d: StrdDataset): { rows: number; cols: number; design: Float64Array } {
@@ -22,7 +15,9 @@ function designOf(d: StrdDataset): { rows: number; cols: number; design: Float64
   }
   const cols = columns.length;
   const design = new Float64Array(n * cols);
-  columns.forEach((c, j) => design.set(c, j * n));
+  columns.forEach((c, j) => {
+    design.set(c, j * n);
+  });
   return { rows: n, cols, design };
 }
 

@@ -1,0 +1,150 @@
+import { type Quantity, quantity } from '../derive/quantity.js';
+import { solveLeastSquares } from '../linalg/least-squares.js';
+import type { Observation } from '../models/linear-model.js';
+import type { UncertaintyMode } from './engine.js';
+
+/**
+ * Combination differences (Herzberg, Spectra of Diatomic Molecules, §III.2): lines sharing an upper level give
+ * Δ₂F″(J) = R(J−1) − P(J+1) = F″(J+1) − F″(J−1); lines sharing a lower level give Δ₂F′(J) = R(J) − P(J) =
+ * F′(J+1) − F′(J−1). Each depends on one level's rotational constants only, not on the band origin or the other
+ * level, so fitting them is a model-independent check of an assignment and of B″ and B′.
+ */
+
+export interface CombinationPoint {
+  readonly j: number;
+  readonly value: number;
+  readonly uncertainty: number;
+  readonly residual: number;
+}
+
+export interface CombinationDifferenceFit {
+  readonly species: string;
+  readonly band: string;
+  /** "lower": Δ₂F″, the lower level's constants; "upper": Δ₂F′. */
+  readonly kind: 'lower' | 'upper';
+  readonly v: number;
+  readonly points: readonly CombinationPoint[];
+  readonly B: Quantity;
+  readonly D?: Quantity;
+  readonly H?: Quantity;
+  readonly rms: number;
+  readonly degreesOfFreedom: number;
+}
+
+interface Mean {
+  value: number;
+  variance: number;
+}
+
+/** Weighted mean of repeated measurements of one line (variance 1/Σw). */
+function mean(obs: readonly Observation[]): Mean {
+  let sw = 0;
+  let swx = 0;
+  for (const o of obs) {
+    sw += o.weight;
+    swx += o.weight * o.position;
+  }
+  return { value: swx / sw, variance: 1 / sw };
+}
+
+const SIGN = [1, -1, 1];
+
+export function fitCombinationDifferences(
+  observations: readonly Observation[],
+  orderOf: (species: string, v: number) => number,
+  mode: UncertaintyMode,
+): CombinationDifferenceFit[] {
+  const groups = new Map<
+    string,
+    { species: string; upper: number; lower: number; r: Map<number, Observation[]>; p: Map<number, Observation[]> }
+  >();
+  for (const o of observations) {
+    if (o.upperV === o.lowerV) continue;
+    const key = `${o.species}|${o.upperV}-${o.lowerV}`;
+    let g = groups.get(key);
+    if (!g) {
+      g = { species: o.species, upper: o.upperV, lower: o.lowerV, r: new Map(), p: new Map() };
+      groups.set(key, g);
+    }
+    const branch = o.upperJ === o.lowerJ + 1 ? g.r : g.p;
+    const list = branch.get(o.lowerJ) ?? [];
+    list.push(o);
+    branch.set(o.lowerJ, list);
+  }
+  const out: CombinationDifferenceFit[] = [];
+  for (const g of groups.values()) {
+    const band = `${g.upper}-${g.lower}`;
+    const lowerPts: { j: number; m: Mean }[] = [];
+    const upperPts: { j: number; m: Mean }[] = [];
+    const js = new Set<number>([...g.r.keys(), ...g.p.keys()].flatMap((j) => [j - 1, j, j + 1]));
+    for (const j of [...js].sort((a, b) => a - b)) {
+      if (j < 1) continue;
+      const rPrev = g.r.get(j - 1);
+      const pNext = g.p.get(j + 1);
+      if (rPrev && pNext) {
+        const a = mean(rPrev);
+        const b = mean(pNext);
+        lowerPts.push({ j, m: { value: a.value - b.value, variance: a.variance + b.variance } });
+      }
+      const rj = g.r.get(j);
+      const pj = g.p.get(j);
+      if (rj && pj) {
+        const a = mean(rj);
+        const b = mean(pj);
+        upperPts.push({ j, m: { value: a.value - b.value, variance: a.variance + b.variance } });
+      }
+    }
+    for (const [kind, pts, v] of [
+      ['lower', lowerPts, g.lower],
+      ['upper', upperPts, g.upper],
+    ] as const) {
+      const fit = fitDifferences(pts, Math.min(orderOf(g.species, v), 3), mode);
+      if (fit) out.push({ species: g.species, band, kind, v, ...fit });
+    }
+  }
+  return out;
+}
+
+function fitDifferences(
+  pts: readonly { j: number; m: Mean }[],
+  wantedOrder: number,
+  mode: UncertaintyMode,
+): Omit<CombinationDifferenceFit, 'species' | 'band' | 'kind' | 'v'> | undefined {
+  const n = pts.length;
+  // Keep at least two degrees of freedom, so that the check can say something.
+  const order = Math.min(wantedOrder, n - 2);
+  if (order < 1) return undefined;
+  const design = new Float64Array(n * order);
+  pts.forEach((pt, i) => {
+    const xu = (pt.j + 1) * (pt.j + 2);
+    const xl = (pt.j - 1) * pt.j;
+    for (let l = 1; l <= order; l++) design[(l - 1) * n + i] = (SIGN[l - 1] as number) * (xu ** l - xl ** l);
+  });
+  const r = solveLeastSquares({
+    rows: n,
+    cols: order,
+    design,
+    observations: Float64Array.from(pts, (p) => p.m.value),
+    weights: Float64Array.from(pts, (p) => 1 / p.m.variance),
+  });
+  if (r.rankDeficient) return undefined;
+  const dof = n - order;
+  const s2 = mode === 'absolute' ? 1 : r.chiSquare / dof;
+  const q = (l: number) =>
+    quantity(r.coefficients[l] as number, Math.sqrt(s2 * (r.covariance[l * order + l] as number)), 'cm-1');
+  let ss = 0;
+  for (const e of r.residuals) ss += e * e;
+  return {
+    points: pts.map((p, i) => ({
+      j: p.j,
+      value: p.m.value,
+      uncertainty: Math.sqrt(p.m.variance * s2),
+      residual: r.residuals[i] as number,
+    })),
+    B: q(0),
+    ...(order >= 2 ? { D: q(1) } : {}),
+    ...(order >= 3 ? { H: q(2) } : {}),
+    rms: Math.sqrt(ss / n),
+    degreesOfFreedom: dof,
+  };
+}

@@ -1,0 +1,147 @@
+import { solveLeastSquares } from '../linalg/least-squares.js';
+import { buildDesign, type LinearModel, type Observation, type Parameter } from '../models/linear-model.js';
+import { fDistributionSurvival } from '../stats/distributions.js';
+
+/**
+ * How the covariance is scaled: by s² = χ²/(n−p) (a-posteriori, the usual default when line uncertainties are
+ * relative or unknown) or by 1 when the caller vouches for its uncertainties as absolute.
+ */
+export type UncertaintyMode = 'a-posteriori' | 'absolute';
+
+export interface SolvedModel {
+  readonly model: LinearModel;
+  readonly observations: readonly Observation[];
+  readonly values: Float64Array;
+  /** Covariance of the values, scaled according to the mode (row-major p × p). */
+  readonly covariance: Float64Array;
+  readonly residuals: Float64Array;
+  readonly leverages: Float64Array;
+  readonly chiSquare: number;
+  readonly degreesOfFreedom: number;
+  readonly conditionNumber: number;
+}
+
+export interface RankDeficiency {
+  readonly rankDeficient: true;
+  /** Groups of parameters the data cannot tell apart. */
+  readonly groups: readonly (readonly Parameter[])[];
+}
+
+export function solveModel(
+  model: LinearModel,
+  observations: readonly Observation[],
+  mode: UncertaintyMode,
+): SolvedModel | RankDeficiency {
+  const n = observations.length;
+  const p = model.parameters.length;
+  if (p === 0) {
+    const residuals = Float64Array.from(observations, (o) => o.position);
+    let chi = 0;
+    observations.forEach((o, i) => {
+      chi += o.weight * (residuals[i] as number) ** 2;
+    });
+    return {
+      model,
+      observations,
+      values: new Float64Array(0),
+      covariance: new Float64Array(0),
+      residuals,
+      leverages: new Float64Array(n),
+      chiSquare: chi,
+      degreesOfFreedom: n,
+      conditionNumber: 1,
+    };
+  }
+  if (n < p) {
+    return { rankDeficient: true, groups: [model.parameters.slice()] };
+  }
+  const r = solveLeastSquares({
+    rows: n,
+    cols: p,
+    design: buildDesign(model, observations),
+    observations: Float64Array.from(observations, (o) => o.position),
+    weights: Float64Array.from(observations, (o) => o.weight),
+    leverage: true,
+  });
+  if (r.rankDeficient) {
+    return {
+      rankDeficient: true,
+      groups: r.dependencies.map((g) => g.map((j) => model.parameters[j] as Parameter)),
+    };
+  }
+  const dof = n - p;
+  const s2 = mode === 'absolute' ? 1 : dof > 0 ? r.chiSquare / dof : Number.NaN;
+  const covariance = r.covariance.map((c) => c * s2);
+  return {
+    model,
+    observations,
+    values: r.coefficients,
+    covariance,
+    residuals: r.residuals,
+    leverages: r.leverages as Float64Array,
+    chiSquare: r.chiSquare,
+    degreesOfFreedom: dof,
+    conditionNumber: r.conditionNumber,
+  };
+}
+
+export function isRankDeficient(x: SolvedModel | RankDeficiency): x is RankDeficiency {
+  return (x as RankDeficiency).rankDeficient === true;
+}
+
+/**
+ * Externally studentised residuals tᵢ = eᵢ√wᵢ / (s₍ᵢ₎ √(1 − hᵢᵢ)), with s₍ᵢ₎ the scale of the fit without line i
+ * (Belsley, Kuh & Welsch, Regression Diagnostics, 1980, §2.1). Deleting the line from its own scale estimate keeps
+ * one gross error from masking itself.
+ */
+export function studentisedResiduals(fit: SolvedModel): Float64Array {
+  const n = fit.observations.length;
+  const out = new Float64Array(n);
+  const dof = fit.degreesOfFreedom;
+  if (dof < 2) return out.fill(0);
+  for (let i = 0; i < n; i++) {
+    const w = (fit.observations[i] as Observation).weight;
+    const e2 = w * (fit.residuals[i] as number) ** 2;
+    const h = Math.min(fit.leverages[i] as number, 1 - 1e-12);
+    const s2i = Math.max((fit.chiSquare - e2 / (1 - h)) / (dof - 1), 1e-300);
+    out[i] = ((fit.residuals[i] as number) * Math.sqrt(w)) / Math.sqrt(s2i * (1 - h));
+  }
+  return out;
+}
+
+/**
+ * Nested-model F test for q added parameters: F = ((χ²_small − χ²_big)/q) / (χ²_big/ν_big). Returns the p-value;
+ * a small value says the data support the extra parameters.
+ */
+export function nestedFTest(small: SolvedModel, big: SolvedModel): number {
+  const q = small.degreesOfFreedom - big.degreesOfFreedom;
+  if (q <= 0 || big.degreesOfFreedom <= 0) return 1;
+  const num = (small.chiSquare - big.chiSquare) / q;
+  const den = big.chiSquare / big.degreesOfFreedom;
+  if (!(den > 0)) return num > 0 ? 0 : 1;
+  return fDistributionSurvival(num / den, q, big.degreesOfFreedom);
+}
+
+export function reducedChiSquare(fit: SolvedModel): number {
+  return fit.degreesOfFreedom > 0 ? fit.chiSquare / fit.degreesOfFreedom : Number.NaN;
+}
+
+export function rmsResidual(fit: SolvedModel): number {
+  const n = fit.residuals.length;
+  if (n === 0) return 0;
+  let s = 0;
+  for (const r of fit.residuals) s += r * r;
+  return Math.sqrt(s / n);
+}
+
+/** Row-major p × p correlation matrix from a covariance. */
+export function correlationOf(cov: Float64Array, p: number): Float64Array {
+  const out = new Float64Array(p * p);
+  for (let i = 0; i < p; i++) {
+    for (let j = 0; j < p; j++) {
+      const d = Math.sqrt((cov[i * p + i] as number) * (cov[j * p + j] as number));
+      out[i * p + j] = d > 0 ? (cov[i * p + j] as number) / d : i === j ? 1 : 0;
+    }
+  }
+  return out;
+}

@@ -1,0 +1,80 @@
+import type { LinearModel, Observation, Parameter } from './linear-model.js';
+
+/**
+ * The Dunham expansion E(v, J) = Σ_kl Y_kl (v+½)^k [J(J+1)]^l (J. L. Dunham, Phys. Rev. 41, 721 (1932)), and its
+ * mass-reduced form Y_kl(i) = U_kl μᵢ^−(k/2+l) for several isotopologues in one fit (Born–Oppenheimer scaling;
+ * J. K. G. Watson, J. Mol. Spectrosc. 80, 411 (1980)). Y00 cancels in every transition and is never fitted.
+ */
+
+export interface DunhamTerm {
+  readonly k: number;
+  readonly l: number;
+}
+
+export function dunhamName(prefix: 'Y' | 'U', t: DunhamTerm): string {
+  return `${prefix}${t.k}${t.l}`;
+}
+
+/** Unit of U_kl: cm⁻¹ u^(k/2+l). */
+export function massReducedUnit(t: DunhamTerm): string {
+  const e = t.k / 2 + t.l;
+  return `cm-1 u^${Number.isInteger(e) ? e : e.toFixed(1)}`;
+}
+
+export function dunhamParameters(species: string, terms: readonly DunhamTerm[], multi: boolean): Parameter[] {
+  return terms.map((t) => ({
+    key: `${species}|Y|${t.k},${t.l}`,
+    name: `${dunhamName('Y', t)}${multi ? `(${species})` : ''}`,
+    unit: 'cm-1',
+    species,
+    k: t.k,
+    l: t.l,
+    kind: 'Y' as const,
+  }));
+}
+
+export function massReducedParameters(terms: readonly DunhamTerm[]): Parameter[] {
+  return terms.map((t) => ({
+    key: `U|${t.k},${t.l}`,
+    name: dunhamName('U', t),
+    unit: massReducedUnit(t),
+    k: t.k,
+    l: t.l,
+    kind: 'U' as const,
+  }));
+}
+
+/** (v+½)^k x^l for one level. */
+export function dunhamBasis(k: number, l: number, v: number, j: number): number {
+  return (v + 0.5) ** k * (j * (j + 1)) ** l;
+}
+
+export function dunhamModel(parameters: readonly Parameter[], reducedMass?: ReadonlyMap<string, number>): LinearModel {
+  return {
+    parameters,
+    coefficient(p: Parameter, o: Observation): number {
+      const k = p.k as number;
+      const l = p.l as number;
+      if (p.kind === 'Y' && p.species !== o.species) return 0;
+      const c = dunhamBasis(k, l, o.upperV, o.upperJ) - dunhamBasis(k, l, o.lowerV, o.lowerJ);
+      if (p.kind === 'U') {
+        const mu = reducedMass?.get(o.species);
+        if (mu === undefined) throw new Error(`no reduced mass for ${o.species}`);
+        return c * mu ** -(k / 2 + l);
+      }
+      return c;
+    },
+  };
+}
+
+/** Term energy E(v, J) from Dunham coefficients (for prediction). */
+export function dunhamEnergy(y: ReadonlyMap<string, number>, v: number, j: number): number {
+  let e = 0;
+  for (const [key, value] of y) {
+    const [k, l] = key.split(',').map(Number) as [number, number];
+    e += value * dunhamBasis(k, l, v, j);
+  }
+  return e;
+}
+
+export const dunhamKey = (k: number, l: number): string => `${k},${l}`;

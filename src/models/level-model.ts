@@ -1,0 +1,121 @@
+import type { LinearModel, Observation, Parameter } from './linear-model.js';
+
+/**
+ * The band-by-band level model: E_v(J) = T_v + B_v x − D_v x² + H_v x³ + L_v x⁴, x = J(J+1)
+ * (Herzberg, Spectra of Diatomic Molecules, ch. III). Only differences of T are observable: within each set of
+ * levels connected by vibrational bands, the lowest level is the reference (T = 0) and the others carry
+ * T_v − T_ref. A line's position is E_v′(J′) − E_v″(J″).
+ */
+
+/** Centrifugal order: 1 = B only, 2 = B, D; 3 = B, D, H; 4 = B, D, H, L. */
+export type CentrifugalOrder = 1 | 2 | 3 | 4;
+export const ROTATIONAL_KINDS = ['B', 'D', 'H', 'L'] as const;
+/** Sign of each power of x in the term formula (+B x − D x² + H x³ + L x⁴). */
+const SIGN = [1, -1, 1, 1];
+
+export interface LevelStructure {
+  /** Species in order of first appearance. */
+  readonly species: readonly string[];
+  /** Vibrational levels seen per species, ascending. */
+  readonly levels: ReadonlyMap<string, readonly number[]>;
+  /** Reference level of each level's connected set, per species. */
+  readonly reference: ReadonlyMap<string, ReadonlyMap<number, number>>;
+}
+
+export function levelStructure(obs: readonly Observation[]): LevelStructure {
+  const species: string[] = [];
+  const levelSets = new Map<string, Set<number>>();
+  const parent = new Map<string, Map<number, number>>();
+  const find = (m: Map<number, number>, v: number): number => {
+    let r = v;
+    while (m.get(r) !== r) r = m.get(r) as number;
+    return r;
+  };
+  for (const o of obs) {
+    if (!levelSets.has(o.species)) {
+      species.push(o.species);
+      levelSets.set(o.species, new Set());
+      parent.set(o.species, new Map());
+    }
+    const set = levelSets.get(o.species) as Set<number>;
+    const uf = parent.get(o.species) as Map<number, number>;
+    for (const v of [o.upperV, o.lowerV]) {
+      set.add(v);
+      if (!uf.has(v)) uf.set(v, v);
+    }
+    const a = find(uf, o.upperV);
+    const b = find(uf, o.lowerV);
+    if (a !== b) uf.set(Math.max(a, b), Math.min(a, b));
+  }
+  const levels = new Map<string, number[]>();
+  const reference = new Map<string, Map<number, number>>();
+  for (const s of species) {
+    const vs = [...(levelSets.get(s) as Set<number>)].sort((x, y) => x - y);
+    levels.set(s, vs);
+    const uf = parent.get(s) as Map<number, number>;
+    const ref = new Map<number, number>();
+    // Union by smaller root keeps the lowest level as the root of each set.
+    for (const v of vs) ref.set(v, find(uf, v));
+    reference.set(s, ref);
+  }
+  return { species, levels, reference };
+}
+
+function suffix(species: string, multi: boolean): string {
+  return multi ? `(${species})` : '';
+}
+
+export function levelParameters(structure: LevelStructure, order: ReadonlyMap<string, number> | number): Parameter[] {
+  const multi = structure.species.length > 1;
+  const out: Parameter[] = [];
+  for (const s of structure.species) {
+    const vs = structure.levels.get(s) as readonly number[];
+    const ref = structure.reference.get(s) as ReadonlyMap<number, number>;
+    for (const v of vs) {
+      const r = ref.get(v) as number;
+      if (r !== v)
+        out.push({
+          key: `${s}|T|${v}`,
+          name: `T_${v}-T_${r}${suffix(s, multi)}`,
+          unit: 'cm-1',
+          species: s,
+          v,
+          kind: 'T',
+        });
+    }
+    for (const v of vs) {
+      const ord = typeof order === 'number' ? order : (order.get(`${s}|${v}`) ?? 1);
+      for (let l = 1; l <= ord; l++) {
+        const kind = ROTATIONAL_KINDS[l - 1] as (typeof ROTATIONAL_KINDS)[number];
+        out.push({
+          key: `${s}|${kind}|${v}`,
+          name: `${kind}_${v}${suffix(s, multi)}`,
+          unit: 'cm-1',
+          species: s,
+          v,
+          kind,
+        });
+      }
+    }
+  }
+  return out;
+}
+
+const POWER: Record<string, number> = { B: 1, D: 2, H: 3, L: 4 };
+
+export function levelModel(parameters: readonly Parameter[]): LinearModel {
+  return {
+    parameters,
+    coefficient(p: Parameter, o: Observation): number {
+      if (p.species !== o.species) return 0;
+      const up = o.upperV === p.v ? 1 : 0;
+      const lo = o.lowerV === p.v ? 1 : 0;
+      if (up === 0 && lo === 0) return 0;
+      if (p.kind === 'T') return up - lo;
+      const l = POWER[p.kind] as number;
+      const xu = o.upperJ * (o.upperJ + 1);
+      const xl = o.lowerJ * (o.lowerJ + 1);
+      return (SIGN[l - 1] as number) * (up * xu ** l - lo * xl ** l);
+    },
+  };
+}

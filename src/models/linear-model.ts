@@ -1,0 +1,61 @@
+/**
+ * A linear spectroscopic model: named parameters and, for each line, the coefficient of every parameter in the
+ * line's predicted position. Level, Dunham and mass-reduced Dunham models all take this shape, so one design
+ * builder, one solver and one term-selection procedure serve them all.
+ */
+
+export interface Parameter {
+  /** Unique key inside a model, e.g. "1H-35Cl|B|0" or "1H-35Cl|Y|0,1". */
+  readonly key: string;
+  /** Display name, e.g. "B_0", "Y01", "T_1-T_0". Unique within one fit. */
+  readonly name: string;
+  readonly unit: string;
+  readonly species?: string;
+  /** Vibrational level for level-model parameters. */
+  readonly v?: number;
+  /** Dunham indices for Y_kl / U_kl. */
+  readonly k?: number;
+  readonly l?: number;
+  /** What the parameter is: term value, rotational or centrifugal constant, Dunham or mass-reduced coefficient. */
+  readonly kind: 'T' | 'B' | 'D' | 'H' | 'L' | 'Y' | 'U';
+}
+
+export interface Observation {
+  /** Index of the line in the caller's list. */
+  readonly index: number;
+  readonly species: string;
+  readonly upperV: number;
+  readonly lowerV: number;
+  readonly upperJ: number;
+  readonly lowerJ: number;
+  /** Position in cm⁻¹. */
+  readonly position: number;
+  /** Weight 1/σ² in cm². */
+  readonly weight: number;
+}
+
+export interface LinearModel {
+  readonly parameters: readonly Parameter[];
+  /** Coefficient of parameter `p` in the position of observation `o`. */
+  coefficient(p: Parameter, o: Observation): number;
+}
+
+/** Column-major design matrix of a model over observations. */
+export function buildDesign(model: LinearModel, obs: readonly Observation[]): Float64Array {
+  const n = obs.length;
+  const params = model.parameters;
+  const a = new Float64Array(n * params.length);
+  params.forEach((p, j) => {
+    const off = j * n;
+    for (let i = 0; i < n; i++) a[off + i] = model.coefficient(p, obs[i] as Observation);
+  });
+  return a;
+}
+
+export function predictPosition(model: LinearModel, values: ArrayLike<number>, o: Observation): number {
+  let s = 0;
+  model.parameters.forEach((p, j) => {
+    s += model.coefficient(p, o) * (values[j] as number);
+  });
+  return s;
+}

@@ -1,0 +1,257 @@
+import { type Isotopologue, parseSpecies } from './parse.js';
+import { reducedMass } from './reduced-mass.js';
+
+/**
+ * The built-in reference library: ground-state (X ¹Σ⁺) constants of the diatomics labs most often record, each
+ * value with its source and how it was obtained. Values from Huber & Herzberg are recalled and, where marked,
+ * corroborated by a secondary copy of the NIST Chemistry WebBook tables; their last digits deserve care.
+ * Isotopologue entries not tabulated here are derived by Born–Oppenheimer mass scaling from a parent and say so.
+ */
+
+export type Provenance = 'published' | 'derived' | 'low-confidence';
+
+export interface LibraryValue {
+  readonly value: number;
+  readonly unit: 'cm-1' | 'angstrom';
+  readonly source: string;
+  readonly provenance: Provenance;
+  readonly note?: string;
+}
+
+export type ConstantName = 'omega_e' | 'omega_e_x_e' | 'omega_e_y_e' | 'B_e' | 'alpha_e' | 'D_e' | 'r_e';
+
+export interface LibraryEntry {
+  /** Normalised formula, e.g. "1H-35Cl". */
+  readonly formula: string;
+  readonly name: string;
+  readonly state: string;
+  readonly constants: Readonly<Partial<Record<ConstantName, LibraryValue>>>;
+  /** For derived entries: the parent the constants were scaled from. */
+  readonly derivedFrom?: string;
+  readonly hazard: string;
+}
+
+const HH =
+  'K. P. Huber and G. Herzberg, Molecular Spectra and Molecular Structure IV: Constants of Diatomic Molecules (1979), as tabulated in the NIST Chemistry WebBook';
+const HH_MEM = `${HH}; recalled, not read from the primary table`;
+const HH_MEM2 = `${HH}; recalled and corroborated by a secondary copy of the table`;
+
+const v = (
+  value: number,
+  source: string,
+  provenance: Provenance = 'published',
+  note?: string,
+  unit: 'cm-1' | 'angstrom' = 'cm-1',
+): LibraryValue => ({
+  value,
+  unit,
+  source,
+  provenance,
+  ...(note ? { note } : {}),
+});
+
+const HAZARD_CO = 'carbon monoxide is toxic';
+const HAZARD_HX = 'corrosive and toxic';
+
+const PARENTS: LibraryEntry[] = [
+  {
+    formula: '12C-16O',
+    name: 'carbon monoxide',
+    state: 'X 1Σ+',
+    hazard: HAZARD_CO,
+    constants: {
+      omega_e: v(2169.81358, HH_MEM2),
+      omega_e_x_e: v(13.28831, HH_MEM2),
+      omega_e_y_e: v(0.010511, HH_MEM),
+      B_e: v(1.93128087, HH_MEM2),
+      alpha_e: v(0.01750441, HH_MEM2),
+      D_e: v(6.12147e-6, HH_MEM2),
+      r_e: v(1.128323, HH_MEM2, 'published', undefined, 'angstrom'),
+    },
+  },
+  {
+    formula: '1H-35Cl',
+    name: 'hydrogen chloride',
+    state: 'X 1Σ+',
+    hazard: `hydrogen chloride is ${HAZARD_HX}`,
+    constants: {
+      omega_e: v(2990.9463, HH_MEM2),
+      omega_e_x_e: v(52.8186, HH_MEM2),
+      omega_e_y_e: v(0.2243, HH_MEM),
+      B_e: v(10.593416, HH_MEM2),
+      alpha_e: v(0.307181, HH_MEM2),
+      D_e: v(5.3194e-4, HH_MEM2),
+      r_e: v(1.27455, HH_MEM, 'published', undefined, 'angstrom'),
+    },
+  },
+  {
+    formula: '2H-35Cl',
+    name: 'deuterium chloride',
+    state: 'X 1Σ+',
+    hazard: `deuterium chloride is ${HAZARD_HX}`,
+    constants: {
+      omega_e: v(2145.163, HH_MEM2),
+      omega_e_x_e: v(27.1825, HH_MEM2),
+      omega_e_y_e: v(0.08649, HH_MEM, 'low-confidence'),
+      B_e: v(5.448794, HH_MEM2),
+      alpha_e: v(0.113291, HH_MEM2),
+      D_e: v(1.3976e-4, HH_MEM, 'low-confidence'),
+      r_e: v(1.27458, HH_MEM, 'published', undefined, 'angstrom'),
+    },
+  },
+  {
+    formula: '1H-79Br',
+    name: 'hydrogen bromide',
+    state: 'X 1Σ+',
+    hazard: `hydrogen bromide is ${HAZARD_HX}`,
+    constants: {
+      omega_e: v(2648.975, HH_MEM2),
+      omega_e_x_e: v(45.2175, HH_MEM2),
+      omega_e_y_e: v(-0.0029, HH_MEM, 'low-confidence'),
+      B_e: v(
+        8.46488,
+        HH_MEM2,
+        'low-confidence',
+        'as recalled, B_e and r_e are consistent only with the reduced mass of 1H-81Br; the pairing is unverified at the 3e-4 level',
+      ),
+      alpha_e: v(0.23328, HH_MEM2),
+      D_e: v(3.4584e-4, HH_MEM),
+      r_e: v(1.41444, HH_MEM2, 'low-confidence', 'see the note on B_e', 'angstrom'),
+    },
+  },
+  {
+    formula: '1H-19F',
+    name: 'hydrogen fluoride',
+    state: 'X 1Σ+',
+    hazard: `hydrogen fluoride is ${HAZARD_HX} and acutely dangerous`,
+    constants: {
+      omega_e: v(4138.32, HH_MEM2),
+      omega_e_x_e: v(89.88, HH_MEM2),
+      omega_e_y_e: v(0.9, HH_MEM, 'low-confidence'),
+      B_e: v(20.9557, HH_MEM2),
+      alpha_e: v(0.798, HH_MEM2),
+      D_e: v(2.151e-3, HH_MEM),
+      r_e: v(0.916808, HH_MEM2, 'published', undefined, 'angstrom'),
+    },
+  },
+  {
+    formula: '2H-19F',
+    name: 'deuterium fluoride',
+    state: 'X 1Σ+',
+    hazard: `deuterium fluoride is ${HAZARD_HX} and acutely dangerous`,
+    constants: {
+      omega_e: v(2998.192, HH_MEM, 'low-confidence'),
+      omega_e_x_e: v(45.761, HH_MEM, 'low-confidence'),
+      B_e: v(11.00985, HH_MEM, 'low-confidence'),
+      alpha_e: v(0.2931, HH_MEM, 'low-confidence'),
+      D_e: v(5.94e-4, HH_MEM, 'low-confidence'),
+      r_e: v(0.91694, HH_MEM, 'low-confidence', undefined, 'angstrom'),
+    },
+  },
+  {
+    formula: '1H-127I',
+    name: 'hydrogen iodide',
+    state: 'X 1Σ+',
+    hazard: `hydrogen iodide is ${HAZARD_HX}`,
+    constants: {
+      omega_e: v(2309.014, HH_MEM, 'low-confidence'),
+      omega_e_x_e: v(39.6435, HH_MEM, 'low-confidence'),
+      B_e: v(
+        6.511,
+        'derived here from r_e = 1.60916 Å (Huber & Herzberg, recalled) through B_e = K/(μ r_e²), CODATA 2018 and AME2020',
+        'derived',
+        'the recalled tabulated B_e, 6.4263 cm-1, is inconsistent with r_e and D_e and matches B_0 instead',
+      ),
+      alpha_e: v(0.1689, HH_MEM, 'low-confidence'),
+      D_e: v(2.069e-4, HH_MEM, 'low-confidence'),
+      r_e: v(1.60916, HH_MEM2, 'published', undefined, 'angstrom'),
+    },
+  },
+];
+
+/** Isotopologues derived by mass scaling: [formula, parent]. */
+const DERIVED: [string, string][] = [
+  ['13C-16O', '12C-16O'],
+  ['12C-18O', '12C-16O'],
+  ['1H-37Cl', '1H-35Cl'],
+  ['1H-81Br', '1H-79Br'],
+];
+
+/** Power of ρ = √(μ_parent/μ) each constant scales with (first-order Born–Oppenheimer; Dunham's Y_kl ∝ μ^−(k/2+l)). */
+const SCALING: Record<ConstantName, number> = {
+  omega_e: 1,
+  omega_e_x_e: 2,
+  omega_e_y_e: 3,
+  B_e: 2,
+  alpha_e: 3,
+  D_e: 4,
+  r_e: 0,
+};
+
+function derive(formula: string, parent: LibraryEntry): LibraryEntry {
+  const iso = parseSpecies(formula);
+  const rho = Math.sqrt(reducedMass(parseSpecies(parent.formula)).value / reducedMass(iso).value);
+  const constants: Partial<Record<ConstantName, LibraryValue>> = {};
+  for (const [name, c] of Object.entries(parent.constants) as [ConstantName, LibraryValue][]) {
+    constants[name] = {
+      value: c.value * rho ** SCALING[name],
+      unit: c.unit,
+      source: `derived here from ${parent.formula} by Born–Oppenheimer mass scaling (ρ = ${rho.toFixed(9)}); parent value: ${c.source}`,
+      provenance: 'derived',
+      ...(c.note ? { note: c.note } : {}),
+    };
+  }
+  return {
+    formula: iso.formula,
+    name: parent.name,
+    state: parent.state,
+    constants,
+    derivedFrom: parent.formula,
+    hazard: parent.hazard,
+  };
+}
+
+const BY_FORMULA = new Map<string, LibraryEntry>();
+for (const e of PARENTS) BY_FORMULA.set(e.formula, e);
+for (const [f, parent] of DERIVED)
+  BY_FORMULA.set(parseSpecies(f).formula, derive(f, BY_FORMULA.get(parent) as LibraryEntry));
+
+export function libraryEntries(): LibraryEntry[] {
+  return [...BY_FORMULA.values()];
+}
+
+export function libraryEntry(species: Isotopologue | string): LibraryEntry | undefined {
+  const formula = typeof species === 'string' ? parseSpecies(species).formula : species.formula;
+  return BY_FORMULA.get(formula);
+}
+
+/**
+ * Constants of any isotopologue of a library molecule: the entry itself, or a mass-scaled copy of the entry of
+ * an isotopologue of the same elements (the most abundant one first).
+ */
+export function constantsFor(species: Isotopologue): LibraryEntry | undefined {
+  const direct = BY_FORMULA.get(species.formula);
+  if (direct) return direct;
+  const [a, b] = species.atoms;
+  const parent = PARENTS.find((e) => {
+    const p = parseSpecies(e.formula);
+    return p.atoms[0].element.symbol === a.element.symbol && p.atoms[1].element.symbol === b.element.symbol;
+  });
+  return parent ? derive(species.formula, parent) : undefined;
+}
+
+/** Dunham coefficients ("k,l" → Y_kl) from an entry's customary constants. */
+export function dunhamFromEntry(e: LibraryEntry): Map<string, number> {
+  const c = e.constants;
+  const y = new Map<string, number>();
+  const put = (k: number, l: number, x: LibraryValue | undefined, sign: number) => {
+    if (x) y.set(`${k},${l}`, sign * x.value);
+  };
+  put(1, 0, c.omega_e, 1);
+  put(2, 0, c.omega_e_x_e, -1);
+  put(3, 0, c.omega_e_y_e, 1);
+  put(0, 1, c.B_e, 1);
+  put(1, 1, c.alpha_e, -1);
+  put(0, 2, c.D_e, -1);
+  return y;
+}
