@@ -7,7 +7,9 @@ import { type Quantity, quantity } from './quantity.js';
  * r = √(K/(μB)). From B_e this is r_e; from B_v it is the effective, vibrationally averaged r_v. The relative
  * uncertainty is half the quadrature sum of those of B, μ and K.
  */
-export function bondLength(b: Quantity, mu: MassValue): Quantity {
+export function bondLength(b: Quantity, mu: MassValue): Quantity | undefined {
+  // A non-positive rotational constant (nonsense data or a wrong assignment) has no bond length.
+  if (!(b.value > 0)) return undefined;
   const r = Math.sqrt(ROTATIONAL_FACTOR / (mu.value * b.value));
   const rel =
     0.5 *

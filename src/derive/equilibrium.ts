@@ -52,7 +52,8 @@ export function equilibriumFromDunham(set: DunhamSet, mu: MassValue): Equilibriu
     if (has(0, 2)) out.D_e = get(0, 2, -1);
     if (has(1, 2)) out.beta_e = get(1, 2, -1);
     if (has(0, 3)) out.H_e = get(0, 3, 1);
-    out.r_e = bondLength(out.B_e as Quantity, mu);
+    const r = bondLength(out.B_e as Quantity, mu);
+    if (r) out.r_e = r;
   }
   return out;
 }
@@ -144,5 +145,6 @@ export function crossChecks(set: DunhamSet, eq: EquilibriumConstants, mu: MassVa
       approximation: true,
     });
   }
-  return out;
+  // An approximation that does not apply to these numbers (a square root of a negative) is left out.
+  return out.filter((c) => Number.isFinite(c.value.value) && Number.isFinite(c.value.uncertainty));
 }

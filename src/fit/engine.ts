@@ -122,8 +122,9 @@ export function nestedFTest(small: SolvedModel, big: SolvedModel): number {
   return fDistributionSurvival(num / den, q, big.degreesOfFreedom);
 }
 
-export function reducedChiSquare(fit: SolvedModel): number {
-  return fit.degreesOfFreedom > 0 ? fit.chiSquare / fit.degreesOfFreedom : Number.NaN;
+/** χ²/(n−p), or null when no degrees of freedom are left. */
+export function reducedChiSquare(fit: SolvedModel): number | null {
+  return fit.degreesOfFreedom > 0 ? fit.chiSquare / fit.degreesOfFreedom : null;
 }
 
 export function rmsResidual(fit: SolvedModel): number {

@@ -98,7 +98,7 @@ export interface Statistics {
   readonly parameters: number;
   readonly degreesOfFreedom: number;
   readonly rms: number;
-  readonly reducedChiSquare: number;
+  readonly reducedChiSquare: number | null;
   readonly conditionNumber: number;
   readonly uncertaintyMode: UncertaintyMode;
 }
@@ -107,7 +107,11 @@ export interface DunhamFit {
   readonly species: string;
   readonly parameters: readonly NamedQuantity[];
   readonly covariance: { readonly parameters: readonly string[]; readonly matrix: readonly (readonly number[])[] };
-  readonly statistics: { readonly degreesOfFreedom: number; readonly rms: number; readonly reducedChiSquare: number };
+  readonly statistics: {
+    readonly degreesOfFreedom: number;
+    readonly rms: number;
+    readonly reducedChiSquare: number | null;
+  };
   readonly terms: readonly string[];
 }
 
@@ -129,7 +133,7 @@ export interface FitResult {
     readonly D?: Quantity;
     readonly H?: Quantity;
     readonly L?: Quantity;
-    readonly r: Quantity;
+    readonly r?: Quantity;
   }[];
   readonly equilibrium: readonly ({ readonly species: string } & EquilibriumConstants)[];
   readonly parameters: readonly NamedQuantity[];
@@ -269,7 +273,7 @@ export function fitLineList(
     }
     // Re-admit rejected lines that the final model predicts within the threshold (guards against swamping).
     if (rejected.size > 0) {
-      const s2 = reducedChiSquare(level.fit);
+      const s2 = reducedChiSquare(level.fit) ?? 1;
       const back: Observation[] = [];
       for (const o of observations) {
         if (!rejected.has(o.index)) continue;
@@ -292,6 +296,23 @@ export function fitLineList(
         lines: [...rejected.keys()].sort((a, b) => a - b),
       });
     }
+  }
+  if (level.fit.degreesOfFreedom === 0 && mode === 'a-posteriori') {
+    // No residual degrees of freedom: the scatter cannot be estimated from the data themselves.
+    if (given.length === 0) {
+      throw new ScienceError(
+        'FIT_TOO_FEW_LINES',
+        `${level.fit.observations.length} line(s) exactly determine the ${level.fit.model.parameters.length} parameters, leaving nothing to estimate their uncertainties: add lines or give line uncertainties with uncertaintyMode "absolute"`,
+        { lines: level.fit.observations.length, parameters: level.fit.model.parameters.length },
+      );
+    }
+    mode = 'absolute';
+    warnings.push({
+      code: 'UNCERTAINTY_MODE_CHANGED',
+      message:
+        'no degrees of freedom are left to scale the covariance a posteriori: the line uncertainties are taken as absolute',
+    });
+    level = selectLevelModel(kept, maxOrder, mode, opt.termSignificance);
   }
   const fit = level.fit;
   const params = fit.model.parameters;
@@ -387,14 +408,21 @@ export function fitLineList(
         }
       }
       levelTerms.push({ species: s, v, terms });
+      const r = bondLength(B, mu);
       levels.push({
         species: s,
         v,
         ...(T ? { term: { ...T, relativeTo: ref } } : {}),
         B,
         ...extra,
-        r: bondLength(B, mu),
+        ...(r ? { r } : {}),
       });
+      if (!r) {
+        warnings.push({
+          code: 'NON_PHYSICAL_CONSTANT',
+          message: `${s}: B_${v} = ${B.value} cm-1 is not positive; check the assignment or the unit`,
+        });
+      }
     }
   }
 
@@ -698,6 +726,13 @@ function fitDunhamForSpecies(
     dunhamModel(dunhamParameters(species, terms, false)),
   );
   if (!sel) return undefined;
+  if (sel.fit.degreesOfFreedom === 0 && mode === 'a-posteriori') {
+    warnings.push({
+      code: 'EQUILIBRIUM_UNDETERMINED',
+      message: `${species}: the Dunham fit has no degrees of freedom left, so its uncertainties cannot be estimated; equilibrium constants are omitted`,
+    });
+    return undefined;
+  }
   const has = (k: number, l: number) => sel.terms.some((t) => t.k === k && t.l === l);
   if (plan.nVib < 2) {
     warnings.push({
@@ -757,6 +792,13 @@ function fitMassReduced(
     });
     return undefined;
   }
+  if (sel.fit.degreesOfFreedom === 0 && mode === 'a-posteriori') {
+    warnings.push({
+      code: 'MASS_REDUCED_INDETERMINATE',
+      message: 'the mass-reduced Dunham fit has no degrees of freedom left',
+    });
+    return undefined;
+  }
   return { ...reportOf('all', sel.fit), species: 'all' };
 }
 
@@ -770,7 +812,7 @@ function checkRepeats(fit: SolvedModel, uncertaintiesGiven: boolean, warnings: W
     groups.set(key, g);
   }
   // Against the caller's uncertainties when there are any; otherwise against the scatter of the whole fit.
-  const s2 = uncertaintiesGiven || fit.degreesOfFreedom <= 0 ? 1 : Math.max(reducedChiSquare(fit), 1e-300);
+  const s2 = uncertaintiesGiven || fit.degreesOfFreedom <= 0 ? 1 : Math.max(reducedChiSquare(fit) ?? 1, 1e-300);
   for (const g of groups.values()) {
     if (g.length < 2) continue;
     let sw = 0;

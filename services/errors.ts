@@ -1,0 +1,133 @@
+import type { FastifyError, FastifyReply, FastifyRequest } from 'fastify';
+import { hasZodFastifySchemaValidationErrors } from 'fastify-type-provider-zod';
+import { ScienceError, type ScienceErrorCode } from '../src/errors.js';
+
+/**
+ * One place that turns every failure into RFC 9457 problem details. Science errors map by their stable code;
+ * fastify's own errors (bad JSON, media type, size, prototype poisoning) keep their 4xx status; anything else is a
+ * 500 whose message is never shown.
+ */
+
+export interface Problem {
+  type: string;
+  title: string;
+  status: number;
+  detail: string;
+  instance?: string;
+  code: string;
+  errors?: { path: string; message: string }[];
+  [extension: string]: unknown;
+}
+
+const SCIENCE_STATUS: Record<ScienceErrorCode, { status: number; title: string }> = {
+  SPECIES_INVALID: { status: 422, title: 'Species string not understood' },
+  SPECIES_UNKNOWN_ELEMENT: { status: 422, title: 'Unknown element' },
+  SPECIES_UNKNOWN_ISOTOPE: { status: 422, title: 'Unknown isotope' },
+  SPECIES_NOT_DIATOMIC: { status: 422, title: 'Only diatomic species are supported' },
+  SPECIES_NOT_IN_LIBRARY: { status: 404, title: 'Species not in the reference library' },
+  SPECIES_UNIDENTIFIED: { status: 422, title: 'Species could not be identified' },
+  ASSIGNMENT_INVALID: { status: 422, title: 'Impossible assignment' },
+  UNIT_INVALID: { status: 400, title: 'Unknown unit' },
+  FIT_TOO_FEW_LINES: { status: 422, title: 'Too few lines for the parameters' },
+  FIT_RANK_DEFICIENT: { status: 422, title: 'Parameters not determined by the data' },
+  FIT_NO_ASSIGNED_LINES: { status: 422, title: 'No assigned lines' },
+  INPUT_INVALID: { status: 422, title: 'Invalid input value' },
+};
+
+/** Problem type URI of a code: a page on this service describing it. */
+export const problemType = (code: string): string => `/problems/${code.toLowerCase().replaceAll('_', '-')}`;
+
+export function scienceProblem(e: ScienceError, instance?: string): Problem {
+  const m = SCIENCE_STATUS[e.code];
+  return {
+    ...e.details,
+    type: problemType(e.code),
+    title: m.title,
+    status: m.status,
+    detail: e.message,
+    ...(instance ? { instance } : {}),
+    code: e.code,
+  };
+}
+
+const FASTIFY_CODES: Record<string, { status: number; code: string; title: string }> = {
+  FST_ERR_CTP_INVALID_MEDIA_TYPE: { status: 415, code: 'UNSUPPORTED_MEDIA_TYPE', title: 'Unsupported media type' },
+  FST_ERR_CTP_BODY_TOO_LARGE: { status: 413, code: 'BODY_TOO_LARGE', title: 'Request body too large' },
+  FST_ERR_CTP_EMPTY_JSON_BODY: { status: 400, code: 'BODY_EMPTY', title: 'Empty JSON body' },
+  FST_ERR_CTP_INVALID_CONTENT_LENGTH: { status: 400, code: 'BAD_CONTENT_LENGTH', title: 'Invalid content length' },
+  FST_ERR_CTP_INVALID_JSON_BODY: { status: 400, code: 'INVALID_JSON', title: 'Body is not valid JSON' },
+};
+
+export function toProblem(error: unknown, request: FastifyRequest): Problem {
+  const instance = request.url;
+  if (error instanceof ScienceError) return scienceProblem(error, instance);
+  if (hasZodFastifySchemaValidationErrors(error)) {
+    const errors = error.validation.map((v) => ({
+      path: (v.instancePath || '/').replace(/^\//, '') || '(body)',
+      message: v.message ?? 'invalid',
+    }));
+    return {
+      type: problemType('VALIDATION_FAILED'),
+      title: 'Request does not match the schema',
+      status: 400,
+      detail: errors
+        .slice(0, 5)
+        .map((e) => `${e.path}: ${e.message}`)
+        .join('; '),
+      instance,
+      code: 'VALIDATION_FAILED',
+      errors,
+    };
+  }
+  const fe = error as Partial<FastifyError> & { status?: number };
+  const known = fe.code ? FASTIFY_CODES[fe.code] : undefined;
+  if (known) {
+    return {
+      type: problemType(known.code),
+      title: known.title,
+      status: known.status,
+      detail: fe.message ?? known.title,
+      instance,
+      code: known.code,
+    };
+  }
+  const status = fe.statusCode ?? fe.status;
+  if (error instanceof SyntaxError || (typeof status === 'number' && status >= 400 && status < 500)) {
+    const s = typeof status === 'number' && status >= 400 && status < 500 ? status : 400;
+    const message = fe.message ?? 'bad request';
+    return {
+      type: problemType('BAD_REQUEST'),
+      title: 'Bad request',
+      status: s,
+      detail: message,
+      instance,
+      code: /prototype|constructor/i.test(message) ? 'FORBIDDEN_PROPERTY' : 'BAD_REQUEST',
+    };
+  }
+  return {
+    type: problemType('INTERNAL'),
+    title: 'Internal error',
+    status: 500,
+    detail: 'the service failed to handle this request; it has been logged',
+    instance,
+    code: 'INTERNAL',
+  };
+}
+
+export function sendProblem(reply: FastifyReply, p: Problem): FastifyReply {
+  return reply.status(p.status).type('application/problem+json').send(p);
+}
+
+/** Human-readable descriptions behind each problem type URI. */
+export const PROBLEM_DESCRIPTIONS: Record<string, string> = {
+  'validation-failed': 'The body does not match the request schema; `errors` lists each offending path.',
+  'invalid-json': 'The body is not valid JSON.',
+  'unsupported-media-type': 'The Content-Type is not one this endpoint accepts.',
+  'body-too-large': 'The body exceeds the configured limit (BODY_LIMIT).',
+  'bad-request': 'The request is malformed.',
+  'not-found': 'No such route.',
+  internal: 'An unexpected failure on the server side.',
+  ...Object.fromEntries(
+    Object.entries(SCIENCE_STATUS).map(([code, m]) => [code.toLowerCase().replaceAll('_', '-'), m.title]),
+  ),
+};

@@ -1,0 +1,63 @@
+import { GraphQLScalarType } from 'graphql';
+import mercurius from 'mercurius';
+import type { z } from 'zod';
+import { ScienceError } from '../../src/errors.js';
+import type { Config } from '../config.js';
+import { scienceProblem } from '../errors.js';
+import { fitRequestSchema } from '../schemas/fit.js';
+import { runFit } from '../usecases/fit.js';
+import { getSpecies, listSpecies } from '../usecases/species.js';
+
+const JSONScalar = new GraphQLScalarType({
+  name: 'JSON',
+  serialize: (v) => v,
+  parseValue: (v) => v,
+});
+
+/** GraphQL sends absent optional fields as null; zod expects them absent (so that defaults apply). */
+function dropNulls(v: unknown): unknown {
+  if (Array.isArray(v)) return v.map(dropNulls);
+  if (v && typeof v === 'object') {
+    return Object.fromEntries(
+      Object.entries(v as Record<string, unknown>)
+        .filter(([, x]) => x !== null && x !== undefined)
+        .map(([k, x]) => [k, dropNulls(x)]),
+    );
+  }
+  return v;
+}
+
+function badInput(error: z.ZodError): never {
+  const errors = error.issues.map((i) => ({ path: i.path.join('/') || '(input)', message: i.message }));
+  throw new mercurius.ErrorWithProps('input does not match the schema', { code: 'VALIDATION_FAILED', errors }, 200);
+}
+
+/** Run a use case, turning science errors into GraphQL errors with the REST problem's code and fields. */
+function guarded<T>(f: () => T): T {
+  try {
+    return f();
+  } catch (e) {
+    if (e instanceof ScienceError) {
+      const p = scienceProblem(e);
+      const { detail, ...rest } = p;
+      throw new mercurius.ErrorWithProps(detail, rest, 200);
+    }
+    throw e;
+  }
+}
+
+export function resolvers(config: Config) {
+  const schema = fitRequestSchema(config.maxLines);
+  return {
+    JSON: JSONScalar,
+    Query: {
+      fit: (_: unknown, args: { input: unknown }) => {
+        const parsed = schema.safeParse(dropNulls(args.input));
+        if (!parsed.success) badInput(parsed.error);
+        return guarded(() => runFit(parsed.data));
+      },
+      species: (_: unknown, args: { formula?: string | null }) =>
+        guarded(() => (args.formula ? [getSpecies(args.formula)] : listSpecies().species)),
+    },
+  };
+}

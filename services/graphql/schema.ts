@@ -1,0 +1,186 @@
+/**
+ * GraphQL face: the same operations and field names as REST. Deep, rarely queried parts of a fit (Dunham
+ * details, combination differences, cross-checks, model terms) travel as the JSON scalar with the REST shapes.
+ */
+export const typeDefs = /* GraphQL */ `
+  "Any JSON value, with the same shape as the REST field of the same name."
+  scalar JSON
+
+  enum Branch {
+    P
+    Q
+    R
+  }
+
+  input AssignmentInput {
+    band: String!
+    branch: Branch!
+    j: Int!
+    species: String
+  }
+
+  input LineInput {
+    position: Float!
+    uncertainty: Float
+    intensity: Float
+    assignment: AssignmentInput
+  }
+
+  input FitOptionsInput {
+    uncertaintyMode: String
+    rejectionThreshold: Float
+    maxRejectedFraction: Float
+    termSignificance: Float
+    maxCentrifugalOrder: Int
+    massReducedDunham: Boolean
+  }
+
+  input FitInput {
+    species: String
+    "cm-1 (default), MHz, GHz, THz, um, nm"
+    unit: String
+    lines: [LineInput!]!
+    options: FitOptionsInput
+  }
+
+  type Quantity {
+    value: Float!
+    uncertainty: Float!
+    unit: String!
+  }
+
+  type TermQuantity {
+    value: Float!
+    uncertainty: Float!
+    unit: String!
+    relativeTo: Int!
+  }
+
+  type NamedQuantity {
+    name: String!
+    value: Float!
+    uncertainty: Float!
+    unit: String!
+    species: String
+  }
+
+  type SpeciesMass {
+    formula: String!
+    reducedMass: Quantity!
+  }
+
+  type LineAssignment {
+    band: String!
+    branch: Branch!
+    j: Int!
+    species: String!
+    source: String!
+  }
+
+  type LineOutcome {
+    index: Int!
+    position: Float!
+    assignment: LineAssignment
+    calculated: Float
+    residual: Float
+    studentisedResidual: Float
+    status: String!
+    reason: String
+  }
+
+  type BandResult {
+    species: String!
+    band: String!
+    origin: Quantity
+    lines: Int!
+    jRange: [Int!]!
+  }
+
+  type Level {
+    species: String!
+    v: Int!
+    term: TermQuantity
+    B: Quantity!
+    D: Quantity
+    H: Quantity
+    L: Quantity
+    r: Quantity
+  }
+
+  type Equilibrium {
+    species: String!
+    omega_e: Quantity
+    omega_e_x_e: Quantity
+    omega_e_y_e: Quantity
+    B_e: Quantity
+    alpha_e: Quantity
+    gamma_e: Quantity
+    D_e: Quantity
+    beta_e: Quantity
+    H_e: Quantity
+    r_e: Quantity
+  }
+
+  type Matrix {
+    parameters: [String!]!
+    matrix: [[Float!]!]!
+  }
+
+  type Statistics {
+    lines: Int!
+    assigned: Int!
+    fitted: Int!
+    rejected: Int!
+    unassigned: Int!
+    parameters: Int!
+    degreesOfFreedom: Int!
+    rms: Float!
+    reducedChiSquare: Float
+    conditionNumber: Float
+    uncertaintyMode: String!
+  }
+
+  type Warning {
+    code: String!
+    message: String!
+    lines: [Int!]
+  }
+
+  type FitResult {
+    species: [SpeciesMass!]!
+    lines: [LineOutcome!]!
+    bands: [BandResult!]!
+    levels: [Level!]!
+    equilibrium: [Equilibrium!]!
+    parameters: [NamedQuantity!]!
+    covariance: Matrix!
+    correlation: Matrix!
+    statistics: Statistics!
+    model: JSON!
+    dunham: JSON!
+    massReducedDunham: JSON
+    combinationDifferences: JSON!
+    crossChecks: JSON!
+    warnings: [Warning!]!
+    notice: String!
+  }
+
+  type SpeciesEntry {
+    formula: String!
+    name: String!
+    state: String!
+    reducedMass: Quantity!
+    naturalAbundance: Float!
+    derivedFrom: String
+    hazard: String!
+    "constant name → { value, unit, source, provenance, note }"
+    constants: JSON!
+  }
+
+  type Query {
+    "Fit an assigned line list (the same use case as POST /v1/fits)."
+    fit(input: FitInput!): FitResult!
+    "The reference library, or one entry of it (GET /v1/species, GET /v1/species/{formula})."
+    species(formula: String): [SpeciesEntry!]!
+  }
+`;

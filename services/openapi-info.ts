@@ -1,0 +1,17 @@
+import { SAFETY_NOTICE } from './notice.js';
+
+/** The document-level part of the OpenAPI 3.1 description. */
+export const openapiInfo = {
+  openapi: '3.1.0',
+  info: {
+    title: 'branchwise',
+    version: '1.0.0',
+    description: `Molecular constants from vibration–rotation and pure-rotation line lists of diatomic gases. ${SAFETY_NOTICE}`,
+    license: { name: 'MIT', identifier: 'MIT' },
+  },
+  servers: [{ url: 'http://127.0.0.1:8080' }],
+  tags: [
+    { name: 'fits', description: 'Fit line lists to molecular constants' },
+    { name: 'species', description: 'The reference library' },
+  ],
+};

@@ -1,0 +1,208 @@
+import { z } from 'zod';
+import { POSITION_UNITS } from '../../src/units.js';
+import { MatrixSchema, QuantitySchema, WarningSchema } from './common.js';
+
+/** Zod schemas of POST /v1/fits: the single source of the wire format, of its validation and of the OpenAPI. */
+
+export const SpeciesStringSchema = z
+  .string()
+  .min(1)
+  .max(40)
+  .describe('element symbols in order, each optionally preceded by its mass number: "12C16O", "H35Cl", "1H-79Br"');
+
+export const AssignmentSchema = z
+  .strictObject({
+    band: z
+      .string()
+      .regex(/^\d{1,2}-\d{1,2}$/, 'band must be "v\'-v\'\'" (upper-lower), e.g. "1-0"')
+      .describe('v\'-v\'\' (upper-lower), e.g. "1-0", "2-0", "0-0" for pure rotation'),
+    branch: z.enum(['P', 'Q', 'R']),
+    j: z.number().int().min(0).max(400).describe("lower-state J (J'')"),
+    species: SpeciesStringSchema.optional().describe('needed only when lines of several isotopologues are mixed'),
+  })
+  .meta({ id: 'Assignment' });
+
+export const LineSchema = z
+  .strictObject({
+    position: z.number().positive().describe('line position in the request unit'),
+    uncertainty: z.number().positive().optional().describe('standard uncertainty in the request unit'),
+    intensity: z.number().min(0).optional().describe('any linear scale'),
+    assignment: AssignmentSchema.optional(),
+  })
+  .meta({ id: 'Line' });
+
+export const FitOptionsSchema = z
+  .strictObject({
+    uncertaintyMode: z
+      .enum(['a-posteriori', 'absolute'])
+      .optional()
+      .describe('a-posteriori (default): covariance scaled by χ²/(n−p); absolute: line uncertainties taken as given'),
+    rejectionThreshold: z
+      .number()
+      .min(0)
+      .max(1000)
+      .optional()
+      .describe('studentised-residual threshold for rejecting a line (default 4; 0 turns rejection off)'),
+    maxRejectedFraction: z.number().min(0).max(0.5).optional().describe('default 0.2'),
+    termSignificance: z
+      .number()
+      .gt(0)
+      .lt(0.5)
+      .optional()
+      .describe('F-test p-value below which an added term is kept (default 0.01)'),
+    maxCentrifugalOrder: z.number().int().min(1).max(4).optional().describe('1 = B, 2 = D, 3 = H, 4 = L (default 4)'),
+    massReducedDunham: z.boolean().optional().describe('also fit U_kl across isotopologues (default false)'),
+  })
+  .meta({ id: 'FitOptions' });
+
+export function fitRequestSchema(maxLines: number) {
+  return z
+    .strictObject({
+      species: SpeciesStringSchema.optional(),
+      unit: z.enum(POSITION_UNITS).optional().describe('unit of positions and uncertainties (default cm-1)'),
+      lines: z.array(LineSchema).min(1).max(maxLines),
+      options: FitOptionsSchema.optional(),
+    })
+    .meta({ id: 'FitRequest' });
+}
+export type FitRequest = z.output<ReturnType<typeof fitRequestSchema>>;
+
+const Q = QuantitySchema;
+
+export const LineOutcomeSchema = z.object({
+  index: z.number().int(),
+  position: z.number().describe('cm-1'),
+  assignment: z
+    .object({
+      band: z.string(),
+      branch: z.enum(['P', 'Q', 'R']),
+      j: z.number().int(),
+      species: z.string(),
+      source: z.enum(['given', 'auto']),
+    })
+    .optional(),
+  calculated: z.number().optional(),
+  residual: z.number().optional().describe('observed − calculated, cm-1'),
+  studentisedResidual: z.number().optional(),
+  status: z.enum(['fitted', 'rejected', 'unassigned']),
+  reason: z.string().optional(),
+});
+
+export const EquilibriumSchema = z
+  .object({
+    species: z.string(),
+    omega_e: Q.optional(),
+    omega_e_x_e: Q.optional(),
+    omega_e_y_e: Q.optional(),
+    B_e: Q.optional(),
+    alpha_e: Q.optional(),
+    gamma_e: Q.optional(),
+    D_e: Q.optional(),
+    beta_e: Q.optional(),
+    H_e: Q.optional(),
+    r_e: Q.optional(),
+  })
+  .meta({ id: 'EquilibriumConstants' });
+
+const NamedQuantity = z.object({
+  name: z.string(),
+  value: z.number(),
+  uncertainty: z.number(),
+  unit: z.string(),
+  species: z.string().optional(),
+});
+
+const DunhamFitSchema = z.object({
+  species: z.string(),
+  parameters: z.array(NamedQuantity),
+  covariance: MatrixSchema,
+  statistics: z.object({
+    degreesOfFreedom: z.number().int(),
+    rms: z.number(),
+    reducedChiSquare: z.number().nullable(),
+  }),
+  terms: z.array(z.string()),
+});
+
+export const FitResponseSchema = z
+  .object({
+    species: z.array(z.object({ formula: z.string(), reducedMass: Q })),
+    lines: z.array(LineOutcomeSchema),
+    bands: z.array(
+      z.object({
+        species: z.string(),
+        band: z.string(),
+        origin: Q.optional(),
+        lines: z.number().int(),
+        jRange: z.array(z.number().int()),
+      }),
+    ),
+    levels: z.array(
+      z.object({
+        species: z.string(),
+        v: z.number().int(),
+        term: Q.extend({ relativeTo: z.number().int() }).optional(),
+        B: Q,
+        D: Q.optional(),
+        H: Q.optional(),
+        L: Q.optional(),
+        r: Q.optional().describe('effective bond length from B_v (absent when B_v is not positive)'),
+      }),
+    ),
+    equilibrium: z.array(EquilibriumSchema),
+    parameters: z.array(NamedQuantity),
+    covariance: MatrixSchema,
+    correlation: MatrixSchema,
+    statistics: z.object({
+      lines: z.number().int(),
+      assigned: z.number().int(),
+      fitted: z.number().int(),
+      rejected: z.number().int(),
+      unassigned: z.number().int(),
+      parameters: z.number().int(),
+      degreesOfFreedom: z.number().int(),
+      rms: z.number(),
+      reducedChiSquare: z.number().nullable(),
+      conditionNumber: z.number().nullable(),
+      uncertaintyMode: z.enum(['a-posteriori', 'absolute']),
+    }),
+    model: z.object({
+      levelTerms: z.array(z.object({ species: z.string(), v: z.number().int(), terms: z.array(z.string()) })),
+      selection: z.string(),
+    }),
+    dunham: z.array(DunhamFitSchema),
+    massReducedDunham: DunhamFitSchema.optional(),
+    combinationDifferences: z.array(
+      z.object({
+        species: z.string(),
+        band: z.string(),
+        kind: z.enum(['lower', 'upper']),
+        v: z.number().int(),
+        points: z.array(
+          z.object({ j: z.number().int(), value: z.number(), uncertainty: z.number(), residual: z.number() }),
+        ),
+        B: Q,
+        D: Q.optional(),
+        H: Q.optional(),
+        rms: z.number(),
+        degreesOfFreedom: z.number().int(),
+        fitted: Q.describe('B of the same level from the full fit'),
+        deviation: z.number().describe('|B_cd − B_fit| in combined standard uncertainties'),
+      }),
+    ),
+    crossChecks: z.array(
+      z.object({
+        species: z.string(),
+        id: z.string(),
+        description: z.string(),
+        formula: z.string(),
+        value: Q,
+        fitted: Q.optional(),
+        approximation: z.literal(true),
+      }),
+    ),
+    warnings: z.array(WarningSchema),
+    notice: z.string().describe('safety caution: the service certifies nothing about a gas'),
+  })
+  .meta({ id: 'FitResponse' });
+export type FitResponse = z.input<typeof FitResponseSchema>;

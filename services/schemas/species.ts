@@ -1,0 +1,27 @@
+import { z } from 'zod';
+
+const LibraryValueSchema = z.object({
+  value: z.number(),
+  unit: z.string(),
+  source: z.string(),
+  provenance: z.enum(['published', 'derived', 'low-confidence']),
+  note: z.string().optional(),
+});
+
+export const SpeciesEntrySchema = z
+  .object({
+    formula: z.string(),
+    name: z.string(),
+    state: z.string(),
+    reducedMass: z.object({ value: z.number(), uncertainty: z.number(), unit: z.literal('u') }),
+    naturalAbundance: z.number().describe('product of the isotopic amount fractions (IUPAC/CIAAW via NIST)'),
+    derivedFrom: z.string().optional(),
+    hazard: z.string(),
+    constants: z.record(z.string(), LibraryValueSchema),
+  })
+  .meta({ id: 'SpeciesEntry' });
+
+export const SpeciesListSchema = z
+  .object({ species: z.array(SpeciesEntrySchema), notice: z.string() })
+  .meta({ id: 'SpeciesList' });
+export const SpeciesParamsSchema = z.object({ formula: z.string().min(1).max(40) });

@@ -1,0 +1,31 @@
+import { buildApp } from './app.js';
+import { loadConfig } from './config.js';
+
+/**
+ * Listen, and close gracefully on SIGINT/SIGTERM: readiness turns false first, in-flight requests finish, then
+ * the process exits. A second signal, or 10 s without closing, forces the exit.
+ */
+const config = loadConfig();
+const app = await buildApp({
+  config,
+  logger: {
+    level: config.logLevel,
+    redact: { paths: ['req.headers.authorization', 'req.headers.cookie', 'req.headers["x-api-key"]'], remove: true },
+  },
+});
+
+let closing = false;
+async function shutdown(signal: string): Promise<void> {
+  if (closing) process.exit(1);
+  closing = true;
+  app.appState.ready = false;
+  app.log.info({ signal }, 'shutting down');
+  const timer = setTimeout(() => process.exit(1), 10_000);
+  timer.unref();
+  await app.close();
+  process.exit(0);
+}
+process.on('SIGINT', () => void shutdown('SIGINT'));
+process.on('SIGTERM', () => void shutdown('SIGTERM'));
+
+await app.listen({ host: config.host, port: config.port });

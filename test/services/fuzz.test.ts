@@ -1,0 +1,113 @@
+import fc from 'fast-check';
+import { describe, expect, it } from 'vitest';
+import { useApp } from '../helpers/app.js';
+import { assignedFitBody } from '../helpers/requests.js';
+
+/**
+ * Property-based fuzzing (fast-check, seeded): arbitrary JSON and mutated valid bodies never produce a 5xx, and
+ * every error is problem+json. 1 000 cases per endpoint.
+ */
+const app = useApp();
+const valid = assignedFitBody('HCl', ['1-0'], 6, 0.002, 3);
+
+const anyJson = fc.jsonValue({ maxDepth: 5 });
+const numberish = fc.oneof(
+  fc.double({ noNaN: false }),
+  fc.integer(),
+  fc.constantFrom(0, -1, 1e308, -1e308, 5e-324),
+  fc.string(),
+  fc.constant(null),
+);
+const mutatedLine = fc.record(
+  {
+    position: numberish,
+    uncertainty: numberish,
+    intensity: numberish,
+    assignment: fc.record(
+      {
+        band: fc.oneof(fc.constantFrom('1-0', '2-0', '0-0', '2-1', '0-1', '99-0', ''), fc.string()),
+        branch: fc.oneof(fc.constantFrom('P', 'Q', 'R'), fc.string()),
+        j: fc.oneof(fc.integer({ min: -5, max: 500 }), numberish),
+        species: fc.oneof(fc.constantFrom('H35Cl', 'H37Cl', 'CO', 'D35Cl', 'Xx', ''), fc.string()),
+      },
+      { requiredKeys: [] },
+    ),
+  },
+  { requiredKeys: [] },
+);
+const mutatedBody = fc.record(
+  {
+    species: fc.oneof(fc.constantFrom('HCl', 'CO', 'HBr', 'H2', '13C-16O', ''), fc.string({ maxLength: 50 })),
+    unit: fc.oneof(fc.constantFrom('cm-1', 'MHz', 'GHz', 'THz', 'um', 'nm'), fc.string()),
+    lines: fc.oneof(
+      fc.array(mutatedLine, { maxLength: 30 }),
+      fc.constant(valid.lines),
+      fc.shuffledSubarray(valid.lines),
+      fc.array(fc.constantFrom(...valid.lines), { maxLength: 40 }),
+    ),
+    options: fc.record(
+      {
+        uncertaintyMode: fc.constantFrom('a-posteriori', 'absolute', 'other'),
+        rejectionThreshold: numberish,
+        maxCentrifugalOrder: fc.integer({ min: -1, max: 6 }),
+        massReducedDunham: fc.boolean(),
+        termSignificance: numberish,
+      },
+      { requiredKeys: [] },
+    ),
+  },
+  { requiredKeys: [] },
+);
+
+async function check(method: 'GET' | 'POST', url: string, payload?: string) {
+  const r = await app().inject({
+    method,
+    url,
+    ...(payload !== undefined ? { payload, headers: { 'content-type': 'application/json' } } : {}),
+  });
+  expect(r.statusCode, r.body.slice(0, 300)).toBeLessThan(500);
+  if (r.statusCode >= 400 && !url.startsWith('/graphql'))
+    expect(r.headers['content-type']).toMatch(/^application\/problem\+json/);
+  return r;
+}
+
+describe('fuzzing', () => {
+  it('POST /v1/fits with arbitrary JSON', async () => {
+    await fc.assert(
+      fc.asyncProperty(anyJson, async (v) => void (await check('POST', '/v1/fits', JSON.stringify(v)))),
+      {
+        numRuns: 1000,
+        seed: 42,
+      },
+    );
+  });
+  it('POST /v1/fits with mutated valid bodies', async () => {
+    await fc.assert(
+      fc.asyncProperty(mutatedBody, async (v) => void (await check('POST', '/v1/fits', JSON.stringify(v)))),
+      {
+        numRuns: 1000,
+        seed: 43,
+      },
+    );
+  });
+  it('GET /v1/species/{formula} with arbitrary strings', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.string({ maxLength: 60 }),
+        async (s) => void (await check('GET', `/v1/species/${encodeURIComponent(s)}`)),
+      ),
+      { numRuns: 1000, seed: 44 },
+    );
+  });
+  it('POST /graphql fit with mutated inputs answers 200 or 400 with errors, never 5xx', async () => {
+    const q = 'query F($input: FitInput!) { fit(input: $input) { statistics { fitted } } }';
+    await fc.assert(
+      fc.asyncProperty(mutatedBody, async (v) => {
+        const r = await check('POST', '/graphql', JSON.stringify({ query: q, variables: { input: v } }));
+        const j = r.json();
+        expect(j.data?.fit !== undefined || Array.isArray(j.errors)).toBe(true);
+      }),
+      { numRuns: 1000, seed: 45 },
+    );
+  });
+});
