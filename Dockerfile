@@ -1,0 +1,26 @@
+# syntax=docker/dockerfile:1
+# Multi-stage build: compile with the dev dependencies, run with production ones only, as a non-root user, under
+# tini so that signals reach node and zombies are reaped.
+
+FROM node:20.20-bookworm-slim AS build
+WORKDIR /app
+COPY package.json package-lock.json ./
+RUN npm ci --no-audit --no-fund
+COPY tsconfig.json tsconfig.build.json ./
+COPY src ./src
+COPY services ./services
+RUN npm run build
+
+FROM node:20.20-bookworm-slim AS runtime
+RUN apt-get update && apt-get install -y --no-install-recommends tini && rm -rf /var/lib/apt/lists/*
+WORKDIR /app
+ENV NODE_ENV=production HOST=0.0.0.0 PORT=8080
+COPY package.json package-lock.json ./
+RUN npm ci --omit=dev --no-audit --no-fund && npm cache clean --force
+COPY --from=build /app/dist ./dist
+USER node
+EXPOSE 8080
+HEALTHCHECK --interval=10s --timeout=2s --retries=3 \
+  CMD node -e "fetch('http://127.0.0.1:'+(process.env.PORT||8080)+'/healthz').then(r=>process.exit(r.ok?0:1)).catch(()=>process.exit(1))"
+ENTRYPOINT ["/usr/bin/tini", "--"]
+CMD ["node", "dist/services/server.js"]
