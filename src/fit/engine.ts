@@ -15,6 +15,7 @@ export interface SolvedModel {
   /** Covariance of the values, scaled according to the mode (row-major p × p). */
   readonly covariance: Float64Array;
   readonly residuals: Float64Array;
+  /** Diagonal of the hat matrix; empty when the fit was solved without it. */
   readonly leverages: Float64Array;
   readonly chiSquare: number;
   readonly degreesOfFreedom: number;
@@ -31,6 +32,8 @@ export function solveModel(
   model: LinearModel,
   observations: readonly Observation[],
   mode: UncertaintyMode,
+  /** Compute the leverages (needed for studentised residuals only). Default true. */
+  withLeverage = true,
 ): SolvedModel | RankDeficiency {
   const n = observations.length;
   const p = model.parameters.length;
@@ -61,7 +64,7 @@ export function solveModel(
     design: buildDesign(model, observations),
     observations: Float64Array.from(observations, (o) => o.position),
     weights: Float64Array.from(observations, (o) => o.weight),
-    leverage: true,
+    leverage: withLeverage,
   });
   if (r.rankDeficient) {
     return {
@@ -78,7 +81,7 @@ export function solveModel(
     values: r.coefficients,
     covariance,
     residuals: r.residuals,
-    leverages: r.leverages as Float64Array,
+    leverages: r.leverages ?? new Float64Array(0),
     chiSquare: r.chiSquare,
     degreesOfFreedom: dof,
     conditionNumber: r.conditionNumber,
@@ -98,7 +101,7 @@ export function studentisedResiduals(fit: SolvedModel): Float64Array {
   const n = fit.observations.length;
   const out = new Float64Array(n);
   const dof = fit.degreesOfFreedom;
-  if (dof < 2) return out.fill(0);
+  if (dof < 2 || fit.leverages.length !== n) return out.fill(0);
   for (let i = 0; i < n; i++) {
     const w = (fit.observations[i] as Observation).weight;
     const e2 = w * (fit.residuals[i] as number) ** 2;

@@ -327,22 +327,33 @@ export function fitLineList(
   // Per-line outcome.
   const t = studentisedResiduals(fit);
   const keptPos = new Map(fit.observations.map((o, i) => [o.index, i]));
+  const byIndex = new Map(observations.map((o) => [o.index, o]));
   const lines: LineOutcome[] = input.map((l, index) => {
     const a = transitions.get(index);
     if (!a) return { index, position: l.position, status: 'unassigned' as const };
     const assignment = { band: formatBand(a.band), branch: a.branch, j: a.j, species: a.species, source: a.source };
-    const o = observations.find((x) => x.index === index) as Observation;
-    const pred = predictWithVariance(fit, o);
-    const calculated = pred?.value;
-    const base = {
+    const ki = keptPos.get(index);
+    if (ki !== undefined) {
+      const residual = fit.residuals[ki] as number;
+      return {
+        index,
+        position: l.position,
+        assignment,
+        calculated: l.position - residual,
+        residual,
+        studentisedResidual: t[ki] as number,
+        status: 'fitted' as const,
+      };
+    }
+    const calculated = predictWithVariance(fit, byIndex.get(index) as Observation)?.value;
+    const out: LineOutcome = {
       index,
       position: l.position,
       assignment,
-      ...(calculated !== undefined ? { calculated, residual: l.position - calculated } : {}),
+      status: 'rejected' as const,
+      reason: rejected.get(index) ?? 'rejected',
     };
-    const ki = keptPos.get(index);
-    if (ki !== undefined) return { ...base, studentisedResidual: t[ki] as number, status: 'fitted' as const };
-    return { ...base, status: 'rejected' as const, reason: rejected.get(index) ?? 'rejected' };
+    return calculated === undefined ? out : { ...out, calculated, residual: l.position - calculated };
   });
 
   // Bands, levels.
@@ -571,7 +582,7 @@ function selectLevelModel(
       { lines: obs.length, parameters: baseParams.length },
     );
   }
-  const first = solveModel(levelModel(baseParams), obs, mode);
+  const first = solveModel(levelModel(baseParams), obs, mode, false);
   if (isRankDeficient(first)) throw rankError(first, 'level model');
   let current: SolvedModel = first;
   const nj = distinctJ(obs);
@@ -582,13 +593,15 @@ function selectLevelModel(
     for (const k of eligible) trial.set(k, next);
     const params = levelParameters(structure, trial);
     if (params.length >= obs.length) break;
-    const t = solveModel(levelModel(params), obs, mode);
+    const t = solveModel(levelModel(params), obs, mode, false);
     if (isRankDeficient(t)) break;
     if (nestedFTest(current, t) >= alpha) break;
     current = t;
     for (const k of eligible) orders.set(k, next);
   }
-  return { fit: current, orders };
+  // The chosen model once more, with leverages for the studentised residuals.
+  const final = solveModel(current.model, obs, mode, true);
+  return { fit: isRankDeficient(final) ? current : final, orders };
 }
 
 function predictWithVariance(fit: SolvedModel, o: Observation): { value: number; variance: number } | undefined {
@@ -655,11 +668,11 @@ function selectDunham(
   build: (terms: readonly DunhamTerm[]) => LinearModel,
 ): { fit: SolvedModel; terms: DunhamTerm[] } | undefined {
   let terms = [...base];
-  let fit = solveModel(build(terms), obs, mode);
+  let fit = solveModel(build(terms), obs, mode, false);
   // Should the base be indeterminate (a structure the plan did not foresee), drop its highest terms until it is not.
   while (isRankDeficient(fit) && terms.length > 1) {
     terms = terms.slice(0, -1);
-    fit = solveModel(build(terms), obs, mode);
+    fit = solveModel(build(terms), obs, mode, false);
   }
   if (isRankDeficient(fit)) return undefined;
   let current = fit;
@@ -672,7 +685,7 @@ function selectDunham(
     for (const c of ready) {
       const trial = [...terms, c];
       if (trial.length >= obs.length) continue;
-      const f = solveModel(build(trial), obs, mode);
+      const f = solveModel(build(trial), obs, mode, false);
       if (isRankDeficient(f)) continue;
       const pv = nestedFTest(current, f);
       if (!best || pv < best.p) best = { term: c, fit: f, p: pv };

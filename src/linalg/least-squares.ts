@@ -91,10 +91,8 @@ export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult 
   const colNormRef = new Float64Array(p);
   for (let j = 0; j < p; j++) {
     perm[j] = j;
-    let ss = 0;
-    const off = j * n;
-    for (let i = 0; i < n; i++) ss += (a[off + i] as number) ** 2;
-    colNorm[j] = Math.sqrt(ss);
+    // Columns were just scaled to unit norm (or are all zero).
+    colNorm[j] = scale[j] === 1 && !hasNonZero(a, j * n, n) ? 0 : 1;
     colNormRef[j] = colNorm[j] as number;
   }
   const rdiag = new Float64Array(p);
@@ -115,7 +113,10 @@ export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult 
     }
     const off = k * n;
     let ss = 0;
-    for (let i = k; i < n; i++) ss += (a[off + i] as number) ** 2;
+    for (let i = k; i < n; i++) {
+      const v = a[off + i] as number;
+      ss += v * v;
+    }
     let alpha = Math.sqrt(ss);
     if (alpha === 0) {
       rdiag[k] = 0;
@@ -141,7 +142,10 @@ export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult 
         const ratio = cn / (colNormRef[j] as number);
         if (t * ratio * ratio <= Math.sqrt(EPS)) {
           let s2 = 0;
-          for (let i = k + 1; i < n; i++) s2 += (a[oj + i] as number) ** 2;
+          for (let i = k + 1; i < n; i++) {
+            const v = a[oj + i] as number;
+            s2 += v * v;
+          }
           colNorm[j] = Math.sqrt(s2);
           colNormRef[j] = colNorm[j] as number;
         } else {
@@ -212,33 +216,36 @@ export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult 
     }
   }
 
-  const residuals = new Float64Array(n);
+  // Residuals column by column (contiguous access in the column-major design).
+  const residuals = Float64Array.from(observations);
+  for (let j = 0; j < p; j++) {
+    const off = j * n;
+    const c = coefficients[j] as number;
+    for (let i = 0; i < n; i++) residuals[i] = (residuals[i] as number) - (design[off + i] as number) * c;
+  }
   let chiSquare = 0;
   for (let i = 0; i < n; i++) {
-    let fit = 0;
-    for (let j = 0; j < p; j++) fit += (design[j * n + i] as number) * (coefficients[j] as number);
-    const res = (observations[i] as number) - fit;
-    residuals[i] = res;
-    chiSquare += (res * (sw[i] as number)) ** 2;
+    const v = (residuals[i] as number) * (sw[i] as number);
+    chiSquare += v * v;
   }
 
   let leverages: Float64Array | undefined;
   if (input.leverage) {
-    // hᵢᵢ = ‖ãᵢ R⁻¹‖² with ãᵢ the i-th row of the weighted, scaled, permuted design.
+    // hᵢᵢ = ‖row i of Ã R⁻¹‖², Ã the weighted, scaled, permuted design; built one column of Ã R⁻¹ at a time.
     leverages = new Float64Array(n);
-    const row = new Float64Array(p);
-    for (let i = 0; i < n; i++) {
-      for (let k = 0; k < p; k++) {
-        const j = perm[k] as number;
-        row[k] = ((design[j * n + i] as number) * (sw[i] as number)) / (scale[j] as number);
+    const q = new Float64Array(n);
+    for (let c = 0; c < p; c++) {
+      q.fill(0);
+      for (let k = 0; k <= c; k++) {
+        const f = (rinv[k * p + c] as number) / (scale[perm[k] as number] as number);
+        if (f === 0) continue;
+        const off = (perm[k] as number) * n;
+        for (let i = 0; i < n; i++) q[i] = (q[i] as number) + (design[off + i] as number) * f;
       }
-      let h = 0;
-      for (let c = 0; c < p; c++) {
-        let s = 0;
-        for (let k = 0; k <= c; k++) s += (row[k] as number) * (rinv[k * p + c] as number);
-        h += s * s;
+      for (let i = 0; i < n; i++) {
+        const v = (q[i] as number) * (sw[i] as number);
+        leverages[i] = (leverages[i] as number) + v * v;
       }
-      leverages[i] = h;
     }
   }
 
@@ -253,6 +260,11 @@ export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult 
     conditionNumber,
     ...(leverages ? { leverages } : {}),
   };
+}
+
+function hasNonZero(a: Float64Array, off: number, n: number): boolean {
+  for (let i = 0; i < n; i++) if (a[off + i] !== 0) return true;
+  return false;
 }
 
 function swap(arr: Int32Array, i: number, j: number): void {
