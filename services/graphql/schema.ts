@@ -33,6 +33,9 @@ export const typeDefs = /* GraphQL */ `
     termSignificance: Float
     maxCentrifugalOrder: Int
     massReducedDunham: Boolean
+    temperature: Float
+    maxOffset: Float
+    structureBand: String
   }
 
   input FitInput {
@@ -146,6 +149,45 @@ export const typeDefs = /* GraphQL */ `
     lines: [Int!]
   }
 
+  type Calibration {
+    offset: Quantity!
+    scale: Quantity
+    centre: Float!
+    lines: Int!
+    reference: String!
+  }
+
+  type BandSummary {
+    species: String!
+    band: String!
+    predicted: Int!
+    matched: Int!
+  }
+
+  type UnexplainedLine {
+    index: Int!
+    position: Float!
+    intensity: Float
+  }
+
+  type IdentificationCandidate {
+    species: String!
+    name: String!
+    score: Float!
+    matched: Int!
+    predicted: Int!
+    offset: Float!
+  }
+
+  type AssignmentReport {
+    method: String!
+    species: [String!]!
+    identification: [IdentificationCandidate!]
+    calibration: Calibration
+    bands: [BandSummary!]!
+    unexplained: [UnexplainedLine!]!
+  }
+
   type FitResult {
     species: [SpeciesMass!]!
     lines: [LineOutcome!]!
@@ -161,6 +203,7 @@ export const typeDefs = /* GraphQL */ `
     massReducedDunham: JSON
     combinationDifferences: JSON!
     crossChecks: JSON!
+    assignment: AssignmentReport!
     warnings: [Warning!]!
     notice: String!
   }

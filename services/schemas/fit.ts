@@ -52,6 +52,25 @@ export const FitOptionsSchema = z
       .describe('F-test p-value below which an added term is kept (default 0.01)'),
     maxCentrifugalOrder: z.number().int().min(1).max(4).optional().describe('1 = B, 2 = D, 3 = H, 4 = L (default 4)'),
     massReducedDunham: z.boolean().optional().describe('also fit U_kl across isotopologues (default false)'),
+    temperature: z
+      .number()
+      .min(10)
+      .max(6000)
+      .optional()
+      .describe('gas temperature in K for the Boltzmann weights of automatic assignment (default 296)'),
+    maxOffset: z
+      .number()
+      .min(0)
+      .max(5)
+      .optional()
+      .describe('largest instrument wavenumber offset searched by automatic assignment, cm-1 (default 0.5)'),
+    structureBand: z
+      .string()
+      .regex(/^\d{1,2}-\d{1,2}$/)
+      .optional()
+      .describe(
+        'band to number when a species without reference constants is assigned from its structure (default 1-0)',
+      ),
   })
   .meta({ id: 'FitOptions' });
 
@@ -123,6 +142,41 @@ const DunhamFitSchema = z.object({
   }),
   terms: z.array(z.string()),
 });
+
+const CalibrationSchema = z.object({
+  offset: Q.describe('observed − reference at the centre of the matched lines'),
+  scale: Q.optional().describe('relative scale error in ppm, when the lines span at least 1 % of the centre'),
+  centre: z.number(),
+  lines: z.number().int(),
+  reference: z.string(),
+});
+
+export const AssignmentReportSchema = z
+  .object({
+    method: z.enum(['given', 'reference', 'structure']),
+    species: z.array(z.string()).describe('isotopologues assigned against'),
+    identification: z
+      .array(
+        z.object({
+          species: z.string(),
+          name: z.string(),
+          score: z.number(),
+          matched: z.number().int(),
+          predicted: z.number().int(),
+          offset: z.number(),
+        }),
+      )
+      .optional()
+      .describe('library molecules ranked by how well they explain the lines, when no species was declared'),
+    calibration: CalibrationSchema.optional(),
+    bands: z.array(
+      z.object({ species: z.string(), band: z.string(), predicted: z.number().int(), matched: z.number().int() }),
+    ),
+    unexplained: z
+      .array(z.object({ index: z.number().int(), position: z.number(), intensity: z.number().optional() }))
+      .describe('lines that no band explains: possible impurities or noise; never fitted'),
+  })
+  .meta({ id: 'AssignmentReport' });
 
 export const FitResponseSchema = z
   .object({
@@ -201,6 +255,7 @@ export const FitResponseSchema = z
         approximation: z.literal(true),
       }),
     ),
+    assignment: AssignmentReportSchema,
     warnings: z.array(WarningSchema),
     notice: z.string().describe('safety caution: the service certifies nothing about a gas'),
   })

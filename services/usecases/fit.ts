@@ -1,8 +1,8 @@
+import { analyseLineList } from '../../src/assign/analyse.js';
+import type { PeakInput } from '../../src/assign/assign-lines.js';
 import { ScienceError } from '../../src/errors.js';
-import { fitLineList, type LineInput } from '../../src/fit/fit-lines.js';
 import { parseBand } from '../../src/models/transitions.js';
 import { type Isotopologue, parseSpecies } from '../../src/species/parse.js';
-import { type MassValue, reducedMass } from '../../src/species/reduced-mass.js';
 import { toWavenumber } from '../../src/units.js';
 import { SAFETY_NOTICE } from '../notice.js';
 import type { FitRequest, FitResponse } from '../schemas/fit.js';
@@ -15,7 +15,6 @@ import type { DeepReadonly } from './types.js';
 export function runFit(req: FitRequest): FitResponse {
   const unit = req.unit ?? 'cm-1';
   const declared = req.species !== undefined ? parseSpecies(req.species) : undefined;
-  const masses = new Map<string, MassValue>();
   const resolve = (s: string | undefined, index: number): Isotopologue => {
     if (s !== undefined) return parseSpecies(s);
     if (declared) return declared;
@@ -25,7 +24,7 @@ export function runFit(req: FitRequest): FitResponse {
       { line: index },
     );
   };
-  const lines: LineInput[] = req.lines.map((l, index) => {
+  const peaks: PeakInput[] = req.lines.map((l, index) => {
     const c = toWavenumber(l.position, unit, l.uncertainty);
     const base = {
       position: c.value,
@@ -34,28 +33,51 @@ export function runFit(req: FitRequest): FitResponse {
     };
     if (!l.assignment) return base;
     const iso = resolve(l.assignment.species, index);
-    if (!masses.has(iso.formula)) masses.set(iso.formula, reducedMass(iso));
-    let band: ReturnType<typeof parseBand>;
-    try {
-      band = parseBand(l.assignment.band);
-    } catch (e) {
-      if (e instanceof ScienceError)
-        throw new ScienceError(e.code, `line ${index}: ${e.message}`, { ...e.details, line: index });
-      throw e;
-    }
     return {
       ...base,
       assignment: {
         species: iso.formula,
-        band,
+        band: withLine(index, () => parseBand(l.assignment?.band as string)),
         branch: l.assignment.branch,
         j: l.assignment.j,
         source: 'given' as const,
       },
     };
   });
-  const result = fitLineList(lines, masses, req.options ?? {});
-  // The science result must match the wire schema (checked here by the compiler, up to readonly-ness).
-  const response: DeepReadonly<FitResponse> = { ...result, notice: SAFETY_NOTICE };
+  const o = req.options ?? {};
+  const { temperature, maxOffset, structureBand, ...fitOptions } = o;
+  const analysis = analyseLineList(peaks, declared, {
+    fit: fitOptions,
+    ...(temperature !== undefined ? { temperature } : {}),
+    ...(maxOffset !== undefined ? { maxOffset } : {}),
+    ...(structureBand !== undefined ? { structureBand: parseBand(structureBand) } : {}),
+  });
+  const { result, assignment, notes } = analysis;
+  const lines = result.lines.map((l) => {
+    const note = notes.get(l.index);
+    return note && !l.reason ? { ...l, reason: note } : l;
+  });
+  const response: DeepReadonly<FitResponse> = {
+    ...result,
+    lines,
+    assignment: {
+      ...assignment,
+      unexplained: assignment.unexplained.map((i) => {
+        const p = peaks[i] as PeakInput;
+        return { index: i, position: p.position, ...(p.intensity !== undefined ? { intensity: p.intensity } : {}) };
+      }),
+    },
+    notice: SAFETY_NOTICE,
+  };
   return response as FitResponse;
+}
+
+function withLine<T>(index: number, f: () => T): T {
+  try {
+    return f();
+  } catch (e) {
+    if (e instanceof ScienceError)
+      throw new ScienceError(e.code, `line ${index}: ${e.message}`, { ...e.details, line: index });
+    throw e;
+  }
 }

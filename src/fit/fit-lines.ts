@@ -173,6 +173,26 @@ export function fitLineList(
   masses: ReadonlyMap<string, MassValue>,
   options: FitOptions = {},
 ): FitResult {
+  return fitLineListDetailed(input, masses, options).result;
+}
+
+/** What the automatic assignment needs besides the result: predictions of the fitted level model. */
+export interface DetailedFit {
+  readonly result: FitResult;
+  /**
+   * Position and variance of a transition predicted by the fitted level model, when both its levels were fitted
+   * (and, for a vibrational band, lie in one connected set of levels); otherwise undefined.
+   */
+  predict(t: Transition): { value: number; variance: number } | undefined;
+  /** s² = χ²/(n−p) of the level fit (1 when undefined). */
+  readonly scale: number;
+}
+
+export function fitLineListDetailed(
+  input: readonly LineInput[],
+  masses: ReadonlyMap<string, MassValue>,
+  options: FitOptions = {},
+): DetailedFit {
   const opt = { ...DEFAULTS, ...options };
   const warnings: Warning[] = [];
   let mode = opt.uncertaintyMode;
@@ -506,7 +526,7 @@ export function fitLineList(
     uncertaintyMode: mode,
   };
 
-  return {
+  const result: FitResult = {
     species: [...masses.entries()]
       .filter(([f]) => structure.species.includes(f))
       .map(([formula, m]) => ({ formula, reducedMass: quantity(m.value, m.uncertainty, 'u') })),
@@ -527,6 +547,27 @@ export function fitLineList(
     combinationDifferences: cds,
     crossChecks: checks,
     warnings,
+  };
+  const ref = structure.reference;
+  return {
+    result,
+    scale: reducedChiSquare(fit) ?? 1,
+    predict(tr: Transition) {
+      const r = ref.get(tr.species);
+      const ru = r?.get(tr.band.upper);
+      const rl = r?.get(tr.band.lower);
+      if (ru === undefined || rl === undefined || ru !== rl) return undefined;
+      return predictWithVariance(fit, {
+        index: -1,
+        species: tr.species,
+        upperV: tr.band.upper,
+        lowerV: tr.band.lower,
+        upperJ: upperJ(tr),
+        lowerJ: tr.j,
+        position: 0,
+        weight: 1,
+      });
+    },
   };
 }
 

@@ -18,7 +18,15 @@ export interface LibraryValue {
   readonly note?: string;
 }
 
-export type ConstantName = 'omega_e' | 'omega_e_x_e' | 'omega_e_y_e' | 'B_e' | 'alpha_e' | 'D_e' | 'r_e';
+export type ConstantName =
+  | 'omega_e'
+  | 'omega_e_x_e'
+  | 'omega_e_y_e'
+  | 'omega_e_z_e'
+  | 'B_e'
+  | 'alpha_e'
+  | 'D_e'
+  | 'r_e';
 
 export interface LibraryEntry {
   /** Normalised formula, e.g. "1H-35Cl". */
@@ -78,6 +86,12 @@ const PARENTS: LibraryEntry[] = [
       omega_e: v(2990.9463, HH_MEM2),
       omega_e_x_e: v(52.8186, HH_MEM2),
       omega_e_y_e: v(0.2243, HH_MEM),
+      omega_e_z_e: v(
+        -0.0122,
+        HH_MEM,
+        'low-confidence',
+        'with it G(1) − G(0) = 2885.977 cm-1, the measured band origin (recalled); without it 2886.038',
+      ),
       B_e: v(10.593416, HH_MEM2),
       alpha_e: v(0.307181, HH_MEM2),
       D_e: v(5.3194e-4, HH_MEM2),
@@ -182,6 +196,7 @@ const SCALING: Record<ConstantName, number> = {
   omega_e: 1,
   omega_e_x_e: 2,
   omega_e_y_e: 3,
+  omega_e_z_e: 4,
   B_e: 2,
   alpha_e: 3,
   D_e: 4,
@@ -250,6 +265,7 @@ export function dunhamFromEntry(e: LibraryEntry): Map<string, number> {
   put(1, 0, c.omega_e, 1);
   put(2, 0, c.omega_e_x_e, -1);
   put(3, 0, c.omega_e_y_e, 1);
+  put(4, 0, c.omega_e_z_e, 1);
   put(0, 1, c.B_e, 1);
   put(1, 1, c.alpha_e, -1);
   put(0, 2, c.D_e, -1);

@@ -37,7 +37,7 @@ describe('uncertainty calibration over 240 seeded synthetic fits', () => {
           : { species: 'HCl', bands: [{ upper: 1, lower: 0 }], jMax: 10, sigma: 0.003, seed },
       );
       const Y = (k: number, l: number) => y.get(`${k},${l}`) ?? 0;
-      const G = (v: number) => Y(1, 0) * (v + 0.5) + Y(2, 0) * (v + 0.5) ** 2 + Y(3, 0) * (v + 0.5) ** 3;
+      const G = (v: number) => [1, 2, 3, 4].reduce((s, k) => s + Y(k, 0) * (v + 0.5) ** k, 0);
       const r = fitLineList(lines, masses);
       for (const lv of r.levels) {
         tally(lv.B.value, lv.B.uncertainty, Y(0, 1) + Y(1, 1) * (lv.v + 0.5));

@@ -1,0 +1,97 @@
+import { SECOND_RADIATION_CM_K } from '../constants/codata-2018.js';
+import { dunhamEnergy } from '../models/dunham.js';
+import { predictBand } from '../models/predict.js';
+import type { Band, Branch } from '../models/transitions.js';
+import { constantsFor, dunhamFromEntry } from '../species/library.js';
+import { type Isotopologue, isotopologuesOf, naturalAbundance } from '../species/parse.js';
+import { bandStrengthGuess, relativeIntensity } from './intensity.js';
+
+/** A line the reference constants predict, with a rough relative intensity for ranking. */
+export interface CandidateLine {
+  readonly species: string;
+  readonly band: Band;
+  readonly branch: Branch;
+  readonly j: number;
+  readonly position: number;
+  readonly lowerEnergy: number;
+  /** Relative intensity across all candidates (abundance × band strength guess × Boltzmann × Hönl–London). */
+  readonly intensity: number;
+}
+
+export interface CandidateOptions {
+  /** Temperature of the gas in K, for Boltzmann weights of hot bands and high J. Default 296. */
+  readonly temperature?: number;
+  /** Lowest isotopologue abundance considered. Default 1e-3. */
+  readonly minAbundance?: number;
+  /** Lines weaker than this fraction of the strongest candidate in the window are not predicted. Default 1e-4. */
+  readonly minRelativeIntensity?: number;
+  /** Highest lower level of a hot band. Default 4. */
+  readonly maxLowerV?: number;
+  /** Highest Δv of an overtone. Default 4. */
+  readonly maxDeltaV?: number;
+  /** Highest J″ predicted. Default 80. */
+  readonly maxJ?: number;
+}
+
+/**
+ * The isotopologues a declared species stands for: the one named when a mass number is given, otherwise the
+ * natural mixture (every isotopologue above minAbundance).
+ */
+export function isotopologuesMeant(
+  species: Isotopologue,
+  minAbundance: number,
+): { iso: Isotopologue; abundance: number }[] {
+  if (species.atoms.some((a) => a.explicitIsotope)) return [{ iso: species, abundance: 1 }];
+  return isotopologuesOf(species)
+    .map((iso) => ({ iso, abundance: naturalAbundance(iso) }))
+    .filter((x) => x.abundance >= minAbundance)
+    .sort((a, b) => b.abundance - a.abundance);
+}
+
+/**
+ * Every line of every plausible band (fundamental, overtones, hot bands weighted by the Boltzmann population of
+ * their lower level) and isotopologue that falls in [lo, hi], predicted from the reference library.
+ */
+export function candidateLines(
+  species: readonly { iso: Isotopologue; abundance: number }[],
+  lo: number,
+  hi: number,
+  options: CandidateOptions = {},
+): CandidateLine[] {
+  const T = options.temperature ?? 296;
+  const maxJ = options.maxJ ?? 80;
+  const out: CandidateLine[] = [];
+  for (const { iso, abundance } of species) {
+    const entry = constantsFor(iso);
+    if (!entry) continue;
+    const y = dunhamFromEntry(entry);
+    const e00 = dunhamEnergy(y, 0, 0);
+    for (let lower = 0; lower <= (options.maxLowerV ?? 4); lower++) {
+      const population = Math.exp((-SECOND_RADIATION_CM_K / T) * (dunhamEnergy(y, lower, 0) - e00));
+      if (population < 1e-6) break;
+      for (let dv = 0; dv <= (options.maxDeltaV ?? 4); dv++) {
+        const band = { upper: lower + dv, lower };
+        const strength = bandStrengthGuess(band) * abundance;
+        for (const p of predictBand(y, band, maxJ)) {
+          if (p.position < lo || p.position > hi) continue;
+          const intensity = strength * relativeIntensity(p.position, p.branch, p.j, p.lowerEnergy, T);
+          out.push({
+            species: iso.formula,
+            band,
+            branch: p.branch,
+            j: p.j,
+            position: p.position,
+            lowerEnergy: p.lowerEnergy,
+            intensity,
+          });
+        }
+      }
+    }
+  }
+  let max = 0;
+  for (const c of out) max = Math.max(max, c.intensity);
+  const floor = (options.minRelativeIntensity ?? 1e-4) * max;
+  return out
+    .filter((c) => c.intensity >= floor && c.intensity > 0)
+    .map((c) => ({ ...c, intensity: c.intensity / max }));
+}
