@@ -170,6 +170,13 @@ export function analyseLineList(
       lines: unexplained,
     });
   }
+  if (!free.every((x) => x.p.intensity !== undefined)) {
+    warnings.push({
+      code: 'NUMBERING_UNCERTAIN',
+      message:
+        'without intensities, a numbering that starts from a missing line fits the positions as well as the true one; the choice rests on the Kratzer relation alone: send intensities, or anchor a few lines with given assignments',
+    });
+  }
   return {
     result: { ...fit.result, warnings: [...warnings, ...fit.result.warnings] },
     assignment: {

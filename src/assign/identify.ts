@@ -32,11 +32,13 @@ export function identifySpecies(
     .map((p, index) => ({ index, position: p.position, intensity: p.intensity ?? 1 }))
     .sort((a, b) => b.intensity - a.intensity)
     .slice(0, withIntensity ? Math.max(10, Math.ceil(peaks.length / 2)) : peaks.length);
-  const parents = libraryEntries().filter((e) => !e.derivedFrom);
-  const out: IdentificationCandidate[] = [];
-  for (const e of parents) {
+  // Each pair of elements once as its natural mixture; a parent that is not the most abundant isotopologue of its
+  // elements (DCl, DF) as itself, for isotopically enriched samples.
+  const seen = new Set<string>();
+  const tests: { formula: string; name: string; mixture: ReturnType<typeof isotopologuesMeant> }[] = [];
+  for (const e of libraryEntries().filter((x) => !x.derivedFrom)) {
     const iso = parseSpecies(e.formula);
-    const mixture = isotopologuesMeant(
+    const natural = isotopologuesMeant(
       {
         ...iso,
         atoms: [
@@ -46,6 +48,18 @@ export function identifySpecies(
       },
       options.minAbundance ?? 1e-3,
     );
+    if (natural[0]?.iso.formula === e.formula) {
+      const elements = `${iso.atoms[0].element.symbol}-${iso.atoms[1].element.symbol}`;
+      if (seen.has(elements)) continue;
+      seen.add(elements);
+      tests.push({ formula: e.formula, name: e.name, mixture: natural });
+    } else {
+      tests.push({ formula: e.formula, name: e.name, mixture: [{ iso, abundance: 1 }] });
+    }
+  }
+  const out: IdentificationCandidate[] = [];
+  for (const { formula, name, mixture } of tests) {
+    const e = { formula, name };
     const cands = candidateLines(mixture, lo, hi, options)
       .filter((c) => c.j <= 12)
       .sort((a, b) => b.intensity - a.intensity)

@@ -14,7 +14,8 @@ import { seededNormal, seededRandom } from './random.js';
  * Gaussian position noise, a fraction of lines lost, and spurious peaks at random positions and intensities.
  */
 export interface ScanSpec {
-  readonly isotopologues: readonly { species: string; abundance: number }[];
+  /** `y` overrides the library's Dunham coefficients (for species the library lacks). */
+  readonly isotopologues: readonly { species: string; abundance: number; y?: ReadonlyMap<string, number> }[];
   readonly bands: readonly (Band & { strength: number })[];
   readonly temperature: number;
   readonly offset: number;
@@ -26,6 +27,8 @@ export interface ScanSpec {
   readonly detection: number;
   readonly seed: number;
   readonly jMax?: number;
+  /** Use the library constants unperturbed (a reference-quality gas). */
+  readonly exactReference?: boolean;
 }
 
 export interface TrueLine {
@@ -45,14 +48,15 @@ export function syntheticScan(spec: ScanSpec): Scan {
   const rnd = seededRandom(spec.seed);
   const gauss = seededNormal(spec.seed + 1000);
   const lines: { position: number; intensity: number; truth: TrueLine }[] = [];
-  for (const { species, abundance } of spec.isotopologues) {
+  for (const { species, abundance, y: given } of spec.isotopologues) {
     const iso = parseSpecies(species);
-    const y = new Map(dunhamFromEntry(constantsFor(iso) ?? (undefined as never)));
-    const mu =
-      (iso.atoms[0].isotope.mass * iso.atoms[1].isotope.mass) / (iso.atoms[0].isotope.mass + iso.atoms[1].isotope.mass);
-    y.set('0,1', (y.get('0,1') as number) * 1.0002);
-    y.set('1,0', (y.get('1,0') as number) + 0.05);
-    y.set('0,3', (4 * (y.get('0,1') as number) ** 5) / (y.get('1,0') as number) ** 4 / mu ** 0); // order of H_e
+    const y = new Map(given ?? dunhamFromEntry(constantsFor(iso) ?? (undefined as never)));
+    if (!spec.exactReference) {
+      y.set('0,1', (y.get('0,1') as number) * 1.0002);
+      y.set('1,0', (y.get('1,0') as number) + 0.05);
+      // An H_e of the size the Kratzer-type estimate 4B_e⁵/ω_e⁴ suggests (order of magnitude only).
+      y.set('0,3', (4 * (y.get('0,1') as number) ** 5) / (y.get('1,0') as number) ** 4);
+    }
     const e00 = dunhamEnergy(y, 0, 0);
     const c2T = SECOND_RADIATION_CM_K / spec.temperature;
     for (const b of spec.bands) {
