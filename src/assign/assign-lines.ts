@@ -162,7 +162,7 @@ export function assignAndFit(
       let position: number;
       let tolerance: number;
       if (fitted && r !== undefined) {
-        if (c.j > r + GROWTH_J) continue;
+        if (c.j > r + Math.max(GROWTH_J, Math.floor(r / 4))) continue;
         position = fitted.value;
         tolerance = 5 * Math.sqrt(fitted.variance + (detailed?.scale ?? 1) * typicalSigma * typicalSigma) + 1e-4;
       } else {
@@ -217,7 +217,7 @@ export function assignAndFit(
 
   function tryFit(lines: LineInput[]): DetailedFit | undefined {
     try {
-      return fitLineListDetailed(lines, masses, options.fit ?? {});
+      return fitLineListDetailed(lines, masses, { ...(options.fit ?? {}), levelsOnly: true });
     } catch (e) {
       if (
         e instanceof ScienceError &&
@@ -231,7 +231,8 @@ export function assignAndFit(
 
   function finish(autoMap: ReadonlyMap<number, CandidateLine>, fitted?: DetailedFit): AssignResult {
     const lines = lineInputs(autoMap);
-    const fit = fitted ?? fitLineListDetailed(lines, masses, options.fit ?? {});
+    void fitted;
+    const fit = fitLineListDetailed(lines, masses, options.fit ?? {});
     const unexplained = peaks.flatMap((p, i) => (p.assignment || autoMap.has(i) ? [] : [i]));
     if (unexplained.length > 0) {
       warnings.push({

@@ -1,5 +1,5 @@
 import { SECOND_RADIATION_CM_K } from '../constants/codata-2018.js';
-import { dunhamEnergy } from '../models/dunham.js';
+import { compileDunham } from '../models/dunham.js';
 import { predictBand } from '../models/predict.js';
 import type { Band, Branch } from '../models/transitions.js';
 import { constantsFor, dunhamFromEntry } from '../species/library.js';
@@ -65,9 +65,10 @@ export function candidateLines(
     const entry = constantsFor(iso);
     if (!entry) continue;
     const y = dunhamFromEntry(entry);
-    const e00 = dunhamEnergy(y, 0, 0);
+    const energy = compileDunham(y);
+    const e00 = energy(0, 0);
     for (let lower = 0; lower <= (options.maxLowerV ?? 4); lower++) {
-      const population = Math.exp((-SECOND_RADIATION_CM_K / T) * (dunhamEnergy(y, lower, 0) - e00));
+      const population = Math.exp((-SECOND_RADIATION_CM_K / T) * (energy(lower, 0) - e00));
       if (population < 1e-6) break;
       for (let dv = 0; dv <= (options.maxDeltaV ?? 4); dv++) {
         const band = { upper: lower + dv, lower };

@@ -85,7 +85,8 @@ export function identifySpecies(
       (s, m) => s + Math.sqrt((cands[Number(m.prediction.key)] as { intensity: number }).intensity),
       0,
     );
-    const observedShare = matches.length / strongObserved.length;
+    // Share of the strong observed lines explained, out of as many as the predictions could explain at most.
+    const observedShare = matches.length / Math.min(strongObserved.length, cands.length);
     out.push({
       species: e.formula,
       name: e.name,

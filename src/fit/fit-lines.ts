@@ -57,6 +57,11 @@ export interface FitOptions {
   readonly maxCentrifugalOrder?: number;
   /** Also fit one mass-reduced Dunham model (U_kl) across isotopologues. Default false. */
   readonly massReducedDunham?: boolean;
+  /**
+   * Fit the level model only, skipping Dunham, combination differences and cross-checks (for the inner loop of
+   * automatic assignment). Default false.
+   */
+  readonly levelsOnly?: boolean;
 }
 
 export interface Warning {
@@ -161,6 +166,7 @@ const DEFAULTS = {
   termSignificance: 0.01,
   maxCentrifugalOrder: 4,
   massReducedDunham: false,
+  levelsOnly: false,
 };
 
 /**
@@ -472,7 +478,7 @@ export function fitLineListDetailed(
   const equilibrium: ({ species: string } & EquilibriumConstants)[] = [];
   const dunham: DunhamFit[] = [];
   const checks: ({ species: string } & CrossCheck)[] = [];
-  for (const s of structure.species) {
+  for (const s of opt.levelsOnly ? [] : structure.species) {
     const obs = fit.observations.filter((o) => o.species === s);
     const d = fitDunhamForSpecies(s, obs, mode, opt.termSignificance, level.orders, warnings);
     if (!d) continue;
@@ -484,7 +490,7 @@ export function fitLineListDetailed(
   }
 
   let massReducedDunham: FitResult['massReducedDunham'];
-  if (opt.massReducedDunham) {
+  if (opt.massReducedDunham && !opt.levelsOnly) {
     if (structure.species.length < 2) {
       warnings.push({
         code: 'MASS_REDUCED_NEEDS_ISOTOPOLOGUES',
@@ -497,7 +503,7 @@ export function fitLineListDetailed(
 
   // Combination differences against the level fit.
   const orderOf = (s: string, v: number) => level.orders.get(`${s}|${v}`) ?? 1;
-  const cds = fitCombinationDifferences(fit.observations, orderOf, mode).map((cd) => {
+  const cds = (opt.levelsOnly ? [] : fitCombinationDifferences(fit.observations, orderOf, mode)).map((cd) => {
     const fitted = q(`${cd.species}|B|${cd.v}`) as Quantity;
     const deviation = Math.abs(cd.B.value - fitted.value) / Math.hypot(cd.B.uncertainty, fitted.uncertainty);
     if (deviation > 3) {

@@ -67,14 +67,28 @@ export function dunhamModel(parameters: readonly Parameter[], reducedMass?: Read
   };
 }
 
-/** Term energy E(v, J) from Dunham coefficients (for prediction). */
+/** Term energy E(v, J) from Dunham coefficients ("k,l" → Y_kl), for prediction. */
 export function dunhamEnergy(y: ReadonlyMap<string, number>, v: number, j: number): number {
-  let e = 0;
-  for (const [key, value] of y) {
+  return compileDunham(y)(v, j);
+}
+
+/**
+ * E(v, J) as a function of a snapshot of the coefficients, with their keys parsed once (prediction loops call it
+ * thousands of times).
+ */
+export function compileDunham(y: ReadonlyMap<string, number>): (v: number, j: number) => number {
+  const terms = [...y].map(([key, value]) => {
     const [k, l] = key.split(',').map(Number) as [number, number];
-    e += value * dunhamBasis(k, l, v, j);
-  }
-  return e;
+    return { k, l, value };
+  });
+  const f = (v: number, j: number) => {
+    const a = v + 0.5;
+    const x = j * (j + 1);
+    let e = 0;
+    for (const t of terms) e += t.value * a ** t.k * x ** t.l;
+    return e;
+  };
+  return f;
 }
 
 export const dunhamKey = (k: number, l: number): string => `${k},${l}`;

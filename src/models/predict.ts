@@ -1,4 +1,4 @@
-import { dunhamEnergy } from './dunham.js';
+import { compileDunham } from './dunham.js';
 import { type Band, type Branch, upperJ } from './transitions.js';
 
 export interface PredictedLine {
@@ -17,13 +17,14 @@ export interface PredictedLine {
  */
 export function predictBand(y: ReadonlyMap<string, number>, band: Band, jMax: number): PredictedLine[] {
   const out: PredictedLine[] = [];
-  const e00 = dunhamEnergy(y, 0, 0);
+  const energy = compileDunham(y);
+  const e00 = energy(0, 0);
   const branches: Branch[] = band.upper === band.lower ? ['R'] : ['P', 'R'];
   for (const branch of branches) {
     for (let j = branch === 'P' ? 1 : 0; j <= jMax; j++) {
       const ju = upperJ({ branch, j });
-      const el = dunhamEnergy(y, band.lower, j);
-      out.push({ band, branch, j, position: dunhamEnergy(y, band.upper, ju) - el, lowerEnergy: el - e00 });
+      const el = energy(band.lower, j);
+      out.push({ band, branch, j, position: energy(band.upper, ju) - el, lowerEnergy: el - e00 });
     }
   }
   return out;
