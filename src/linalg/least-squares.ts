@@ -127,12 +127,11 @@ export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult 
     a[off + k] = (a[off + k] as number) - alpha;
     // 2 / vᵀv with vᵀv = −2α·v₁ (v₁ = x₁ − α), which avoids cancellation.
     const beta = -1 / (alpha * (a[off + k] as number));
+    const vk = a.subarray(off, off + n);
     for (let j = k + 1; j < p; j++) {
       const oj = j * n;
-      let dot = 0;
-      for (let i = k; i < n; i++) dot += (a[off + i] as number) * (a[oj + i] as number);
-      const f = dot * beta;
-      for (let i = k; i < n; i++) a[oj + i] = (a[oj + i] as number) - f * (a[off + i] as number);
+      const cj = a.subarray(oj, oj + n);
+      axpy(cj, vk, -dot(vk, cj, k) * beta, k);
       // Norm downdate of the remaining part of column j (LAPACK xGEQP3 style, with recomputation on loss).
       const rkj = a[oj + k] as number;
       const cn = colNorm[j] as number;
@@ -153,12 +152,7 @@ export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult 
         }
       }
     }
-    {
-      let dot = 0;
-      for (let i = k; i < n; i++) dot += (a[off + i] as number) * (b[i] as number);
-      const f = dot * beta;
-      for (let i = k; i < n; i++) b[i] = (b[i] as number) - f * (a[off + i] as number);
-    }
+    axpy(b, vk, -dot(vk, b, k) * beta, k);
     rdiag[k] = alpha;
   }
 
@@ -260,6 +254,30 @@ export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult 
     conditionNumber,
     ...(leverages ? { leverages } : {}),
   };
+}
+
+/** Σ x[i] y[i] for i ≥ from, with four accumulators (kept small so that V8 inlines it). */
+function dot(x: Float64Array, y: Float64Array, from: number): number {
+  const n = x.length;
+  let s0 = 0;
+  let s1 = 0;
+  let s2 = 0;
+  let s3 = 0;
+  let i = from;
+  for (; i + 3 < n; i += 4) {
+    s0 += (x[i] as number) * (y[i] as number);
+    s1 += (x[i + 1] as number) * (y[i + 1] as number);
+    s2 += (x[i + 2] as number) * (y[i + 2] as number);
+    s3 += (x[i + 3] as number) * (y[i + 3] as number);
+  }
+  for (; i < n; i++) s0 += (x[i] as number) * (y[i] as number);
+  return s0 + s1 + s2 + s3;
+}
+
+/** y[i] += f x[i] for i ≥ from. */
+function axpy(y: Float64Array, x: Float64Array, f: number, from: number): void {
+  const n = x.length;
+  for (let i = from; i < n; i++) y[i] = (y[i] as number) + f * (x[i] as number);
 }
 
 function hasNonZero(a: Float64Array, off: number, n: number): boolean {
