@@ -13,6 +13,7 @@ import { PROBLEM_DESCRIPTIONS, problemType, sendProblem, toProblem } from './err
 import { resolvers } from './graphql/resolvers.js';
 import { typeDefs } from './graphql/schema.js';
 import { openapiInfo } from './openapi-info.js';
+import { checkRoutes } from './rest/checks.js';
 import { fitRoutes } from './rest/fits.js';
 import { speciesRoutes } from './rest/species.js';
 
@@ -137,6 +138,7 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
       scope.setValidatorCompiler(validatorCompiler);
       scope.setSerializerCompiler(serializerCompiler);
       await scope.register(fitRoutes(config));
+      await scope.register(checkRoutes(config));
       await scope.register(speciesRoutes);
     },
     { prefix: '/v1' },

@@ -12,6 +12,7 @@ export const openapiInfo = {
   servers: [{ url: 'http://127.0.0.1:8080' }],
   tags: [
     { name: 'fits', description: 'Fit line lists to molecular constants' },
+    { name: 'checks', description: 'QA verdicts and line predictions' },
     { name: 'species', description: 'The reference library' },
   ],
 };

@@ -4,8 +4,12 @@ import type { z } from 'zod';
 import { ScienceError } from '../../src/errors.js';
 import type { Config } from '../config.js';
 import { scienceProblem } from '../errors.js';
+import { checkRequestSchema } from '../schemas/checks.js';
 import { fitRequestSchema } from '../schemas/fit.js';
+import { PredictionRequestSchema } from '../schemas/predictions.js';
+import { runCheck } from '../usecases/check.js';
 import { runFit } from '../usecases/fit.js';
+import { runPrediction } from '../usecases/predict.js';
 import { getSpecies, listSpecies } from '../usecases/species.js';
 
 const JSONScalar = new GraphQLScalarType({
@@ -48,6 +52,7 @@ function guarded<T>(f: () => T): T {
 
 export function resolvers(config: Config) {
   const schema = fitRequestSchema(config.maxLines);
+  const checkSchema = checkRequestSchema(config.maxLines);
   return {
     JSON: JSONScalar,
     Query: {
@@ -55,6 +60,20 @@ export function resolvers(config: Config) {
         const parsed = schema.safeParse(dropNulls(args.input));
         if (!parsed.success) badInput(parsed.error);
         return guarded(() => runFit(parsed.data));
+      },
+      check: (_: unknown, args: { input: unknown; tolerances?: unknown }) => {
+        const body = dropNulls({
+          ...(args.input as object),
+          ...(args.tolerances != null ? { tolerances: args.tolerances } : {}),
+        });
+        const parsed = checkSchema.safeParse(body);
+        if (!parsed.success) badInput(parsed.error);
+        return guarded(() => runCheck(parsed.data));
+      },
+      predict: (_: unknown, args: { input: unknown }) => {
+        const parsed = PredictionRequestSchema.safeParse(dropNulls(args.input));
+        if (!parsed.success) badInput(parsed.error);
+        return guarded(() => runPrediction(parsed.data));
       },
       species: (_: unknown, args: { formula?: string | null }) =>
         guarded(() => (args.formula ? [getSpecies(args.formula)] : listSpecies().species)),

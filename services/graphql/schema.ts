@@ -220,7 +220,61 @@ export const typeDefs = /* GraphQL */ `
     constants: JSON!
   }
 
+  type CheckEntry {
+    id: String!
+    status: String!
+    measured: JSON!
+    limit: JSON!
+    message: String!
+  }
+
+  type CheckResult {
+    verdict: String!
+    checks: [CheckEntry!]!
+    tolerances: JSON!
+    fit: FitResult
+    notice: String!
+  }
+
+  input PredictionInput {
+    species: String!
+    "{ values: { omega_e: { value, uncertainty }, … }, covariance: { names, matrix } }"
+    constants: JSON
+    bands: [String!]
+    jMax: Int
+    temperature: Float
+    unit: String
+  }
+
+  type ConstantValue {
+    name: String!
+    value: Float!
+    uncertainty: Float!
+  }
+
+  type PredictedLine {
+    band: String!
+    branch: Branch!
+    j: Int!
+    position: Quantity!
+    wavenumber: Quantity!
+    relativeIntensity: Float!
+    lowerEnergy: Float!
+  }
+
+  type PredictionResult {
+    species: String!
+    source: String!
+    constants: [ConstantValue!]!
+    lines: [PredictedLine!]!
+    notice: String!
+  }
+
   type Query {
+    "QA checks of a line list against a tolerance profile (the same use case as POST /v1/checks)."
+    check(input: FitInput!, tolerances: JSON): CheckResult!
+    "Predicted lines with propagated uncertainties (POST /v1/predictions)."
+    predict(input: PredictionInput!): PredictionResult!
     "Fit an assigned line list (the same use case as POST /v1/fits)."
     fit(input: FitInput!): FitResult!
     "The reference library, or one entry of it (GET /v1/species, GET /v1/species/{formula})."

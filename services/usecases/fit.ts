@@ -1,4 +1,4 @@
-import { analyseLineList } from '../../src/assign/analyse.js';
+import { type Analysis, analyseLineList } from '../../src/assign/analyse.js';
 import type { PeakInput } from '../../src/assign/assign-lines.js';
 import { ScienceError } from '../../src/errors.js';
 import { parseBand } from '../../src/models/transitions.js';
@@ -13,6 +13,21 @@ import type { DeepReadonly } from './types.js';
  * this function, so they cannot drift.
  */
 export function runFit(req: FitRequest): FitResponse {
+  return presentFit(analyseRequest(prepareFit(req)));
+}
+
+export interface PreparedFit {
+  readonly peaks: PeakInput[];
+  readonly declared: Isotopologue | undefined;
+  readonly options: FitRequest['options'];
+}
+
+export interface AnalysedFit extends PreparedFit {
+  readonly analysis: Analysis;
+}
+
+/** Units converted to cm⁻¹, species parsed, given assignments checked. */
+export function prepareFit(req: FitRequest): PreparedFit {
   const unit = req.unit ?? 'cm-1';
   const declared = req.species !== undefined ? parseSpecies(req.species) : undefined;
   const resolve = (s: string | undefined, index: number): Isotopologue => {
@@ -44,15 +59,23 @@ export function runFit(req: FitRequest): FitResponse {
       },
     };
   });
-  const o = req.options ?? {};
-  const { temperature, maxOffset, structureBand, ...fitOptions } = o;
-  const analysis = analyseLineList(peaks, declared, {
+  return { peaks, declared, options: req.options };
+}
+
+export function analyseRequest(p: PreparedFit): AnalysedFit {
+  const { temperature, maxOffset, structureBand, ...fitOptions } = p.options ?? {};
+  const analysis = analyseLineList(p.peaks, p.declared, {
     fit: fitOptions,
     ...(temperature !== undefined ? { temperature } : {}),
     ...(maxOffset !== undefined ? { maxOffset } : {}),
     ...(structureBand !== undefined ? { structureBand: parseBand(structureBand) } : {}),
   });
-  const { result, assignment, notes } = analysis;
+  return { ...p, analysis };
+}
+
+export function presentFit(a: AnalysedFit): FitResponse {
+  const { peaks } = a;
+  const { result, assignment, notes } = a.analysis;
   const lines = result.lines.map((l) => {
     const note = notes.get(l.index);
     return note && !l.reason ? { ...l, reason: note } : l;

@@ -293,32 +293,47 @@ function intensityScales(auto: ReadonlyMap<number, CandidateLine>, peaks: readon
   return out;
 }
 
-/**
- * Offset and scale of the wavenumber axis against the reference positions of the main species: a weighted linear
- * regression of observed − reference on (reference − centre). The offset is reported at the centre of the matched
- * lines, where it is least correlated with the scale; the scale only when the lines span at least 1 % of the centre.
- */
 function estimateCalibration(
   auto: ReadonlyMap<number, CandidateLine>,
   peaks: readonly PeakInput[],
   mainSpecies: string | undefined,
 ): Calibration | undefined {
-  const pts: { x: number; d: number; w: number }[] = [];
+  const pts: CalibrationPoint[] = [];
   for (const [i, c] of auto) {
     if (c.species !== mainSpecies || c.j > 20) continue;
     const p = peaks[i] as PeakInput;
-    const s = p.uncertainty ?? 1;
-    pts.push({ x: c.position, d: p.position - c.position, w: 1 / (s * s) });
+    pts.push({
+      reference: c.position,
+      observed: p.position,
+      ...(p.uncertainty !== undefined ? { uncertainty: p.uncertainty } : {}),
+    });
   }
+  return calibrationFromPoints(pts, `reference-library positions of ${mainSpecies}`);
+}
+
+export interface CalibrationPoint {
+  readonly reference: number;
+  readonly observed: number;
+  readonly uncertainty?: number;
+}
+
+/**
+ * Offset and scale of the wavenumber axis against reference positions: a weighted linear regression of
+ * observed − reference on (reference − centre), covariance scaled a posteriori. The offset is reported at the
+ * centre of the lines, where it is least correlated with the scale; the scale only when the lines span at least
+ * 1 % of the centre (otherwise the two cannot be told apart).
+ */
+export function calibrationFromPoints(pts: readonly CalibrationPoint[], reference: string): Calibration | undefined {
   if (pts.length < 3) return undefined;
+  const w = pts.map((p) => 1 / (p.uncertainty ?? 1) ** 2);
   let sw = 0;
   let swx = 0;
-  for (const p of pts) {
-    sw += p.w;
-    swx += p.w * p.x;
-  }
+  pts.forEach((p, i) => {
+    sw += w[i] as number;
+    swx += (w[i] as number) * p.reference;
+  });
   const centre = swx / sw;
-  const xs = pts.map((p) => p.x);
+  const xs = pts.map((p) => p.reference);
   const span = Math.max(...xs) - Math.min(...xs);
   const withScale = span >= 0.01 * centre && pts.length >= 4;
   const n = pts.length;
@@ -326,14 +341,14 @@ function estimateCalibration(
   const design = new Float64Array(n * cols);
   pts.forEach((p, i) => {
     design[i] = 1;
-    if (withScale) design[n + i] = p.x - centre;
+    if (withScale) design[n + i] = p.reference - centre;
   });
   const r = solveLeastSquares({
     rows: n,
     cols,
     design,
-    observations: Float64Array.from(pts, (p) => p.d),
-    weights: Float64Array.from(pts, (p) => p.w),
+    observations: Float64Array.from(pts, (p) => p.observed - p.reference),
+    weights: Float64Array.from(w),
   });
   if (r.rankDeficient) return undefined;
   const s2 = n > cols ? r.chiSquare / (n - cols) : 1;
@@ -343,6 +358,6 @@ function estimateCalibration(
     ...(withScale ? { scale: quantity((r.coefficients[1] as number) * 1e6, sd(1) * 1e6, 'ppm') } : {}),
     centre,
     lines: n,
-    reference: `reference-library positions of ${mainSpecies}`,
+    reference,
   };
 }

@@ -90,6 +90,63 @@ describe('fuzzing', () => {
       },
     );
   });
+  it('POST /v1/checks with mutated bodies and tolerance profiles', async () => {
+    const tolerances = fc.record(
+      {
+        calibrationOffset: numberish,
+        unexplainedFraction: numberish,
+        temperature: fc.record({ expected: numberish, tolerance: numberish }),
+        minCompleteness: numberish,
+      },
+      { requiredKeys: [] },
+    );
+    await fc.assert(
+      fc.asyncProperty(
+        mutatedBody,
+        tolerances,
+        async (v, t) => void (await check('POST', '/v1/checks', JSON.stringify({ ...v, tolerances: t }))),
+      ),
+      { numRuns: 1000, seed: 46 },
+    );
+  });
+  it('POST /v1/predictions with arbitrary constants, bands and units', async () => {
+    const body = fc.record(
+      {
+        species: fc.oneof(fc.constantFrom('CO', 'HCl', 'HBr', '13C16O', 'DF', '12C32S', 'Xx'), fc.string()),
+        bands: fc.oneof(
+          fc.array(fc.constantFrom('1-0', '2-0', '0-0', '3-1', '0-1', '99-98'), { maxLength: 5 }),
+          anyJson,
+        ),
+        jMax: numberish,
+        temperature: numberish,
+        unit: fc.constantFrom('cm-1', 'MHz', 'GHz', 'THz', 'um', 'nm', 'x'),
+        constants: fc.record(
+          {
+            values: fc.dictionary(
+              fc.constantFrom('omega_e', 'B_e', 'alpha_e', 'D_e', 'bogus'),
+              fc.record({ value: numberish, uncertainty: numberish }, { requiredKeys: [] }),
+            ),
+            covariance: fc.record(
+              {
+                names: fc.array(fc.constantFrom('omega_e', 'B_e', 'D_e'), { maxLength: 4 }),
+                matrix: fc.array(fc.array(numberish, { maxLength: 4 }), { maxLength: 4 }),
+              },
+              { requiredKeys: [] },
+            ),
+          },
+          { requiredKeys: [] },
+        ),
+      },
+      { requiredKeys: [] },
+    );
+    await fc.assert(
+      fc.asyncProperty(body, async (v) => void (await check('POST', '/v1/predictions', JSON.stringify(v)))),
+      {
+        numRuns: 1000,
+        seed: 47,
+      },
+    );
+  });
   it('GET /v1/species/{formula} with arbitrary strings', async () => {
     await fc.assert(
       fc.asyncProperty(

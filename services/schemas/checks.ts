@@ -1,0 +1,50 @@
+import { z } from 'zod';
+import { FitResponseSchema, fitRequestSchema } from './fit.js';
+
+export const TolerancesSchema = z
+  .strictObject({
+    identityOrigin: z.number().positive().optional().describe('cm-1; default 0.5'),
+    identityB: z.number().positive().optional().describe('relative; default 1e-3'),
+    calibrationOffset: z.number().positive().optional().describe('cm-1; default 0.05'),
+    calibrationScalePpm: z.number().positive().optional().describe('ppm; default 20'),
+    unexplainedFraction: z.number().min(0).max(1).optional().describe('default 0.05 (fail above, warn above half)'),
+    isotopeRatio: z
+      .number()
+      .positive()
+      .optional()
+      .describe('relative deviation from natural; default 0.15 (warn above)'),
+    temperature: z
+      .strictObject({ expected: z.number().positive().max(10000), tolerance: z.number().positive() })
+      .optional()
+      .describe('expected rotational temperature and tolerance, K; default none (reported only)'),
+    maxReducedChiSquare: z.number().positive().optional().describe('default 3 (only with line uncertainties)'),
+    maxRejectedFraction: z.number().min(0).max(1).optional().describe('default 0.05'),
+    minCompleteness: z.number().min(0).max(1).optional().describe('default 0.9'),
+  })
+  .meta({ id: 'Tolerances', description: 'A tolerance profile; every field overrides one documented default.' });
+
+export function checkRequestSchema(maxLines: number) {
+  return fitRequestSchema(maxLines).extend({ tolerances: TolerancesSchema.optional() }).meta({ id: 'CheckRequest' });
+}
+export type CheckRequest = z.output<ReturnType<typeof checkRequestSchema>>;
+
+const StatusSchema = z.enum(['pass', 'warn', 'fail', 'not-evaluated']);
+
+export const CheckResponseSchema = z
+  .object({
+    verdict: z.enum(['pass', 'warn', 'fail']).describe('the worst status of the evaluated checks'),
+    checks: z.array(
+      z.object({
+        id: z.enum(['identity', 'calibration', 'unexplained-lines', 'isotope-ratio', 'temperature', 'fit-quality']),
+        status: StatusSchema,
+        measured: z.record(z.string(), z.unknown()),
+        limit: z.record(z.string(), z.unknown()),
+        message: z.string(),
+      }),
+    ),
+    tolerances: z.record(z.string(), z.unknown()).describe('the profile applied, defaults filled in'),
+    fit: FitResponseSchema.nullable().describe('null when no fit could be made (identity then says why)'),
+    notice: z.string(),
+  })
+  .meta({ id: 'CheckResponse' });
+export type CheckResponse = z.input<typeof CheckResponseSchema>;

@@ -1,0 +1,522 @@
+import type { Analysis } from '../assign/analyse.js';
+import { calibrationFromPoints, type PeakInput } from '../assign/assign-lines.js';
+import { candidateLines, isotopologuesMeant } from '../assign/candidates.js';
+import { type IdentificationCandidate, identifySpecies } from '../assign/identify.js';
+import { relativeIntensity } from '../assign/intensity.js';
+import { compileDunham } from '../models/dunham.js';
+import type { Branch } from '../models/transitions.js';
+import { constantsFor, dunhamFromEntry } from '../species/library.js';
+import { type Isotopologue, parseSpecies } from '../species/parse.js';
+import { boltzmannTemperature } from './temperature.js';
+
+export type CheckStatus = 'pass' | 'warn' | 'fail' | 'not-evaluated';
+export type CheckId =
+  | 'identity'
+  | 'calibration'
+  | 'unexplained-lines'
+  | 'isotope-ratio'
+  | 'temperature'
+  | 'fit-quality';
+
+export interface Check {
+  readonly id: CheckId;
+  readonly status: CheckStatus;
+  readonly measured: Readonly<Record<string, unknown>>;
+  readonly limit: Readonly<Record<string, unknown>>;
+  readonly message: string;
+}
+
+/**
+ * Tolerance profile of a QA check. The defaults are starting points, not standards: each lab sends its own.
+ * Every default says where it comes from.
+ */
+export interface Tolerances {
+  /** Fitted band origin against the reference, cm⁻¹. Default 0.5: reference constants of the library reproduce
+   * measured origins to a few hundredths, and instrument offsets up to a few tenths are the calibration check's
+   * business (common practice). */
+  readonly identityOrigin: number;
+  /** Fitted B″ against the reference, relative. Default 1e-3: B from Huber & Herzberg is good to 1e-5, and a scale
+   * error of tens of ppm moves B by as much; a wrong molecule is off by far more (common practice). */
+  readonly identityB: number;
+  /** |offset| at the band centre, cm⁻¹. Default 0.05, a typical FTIR wavenumber-accuracy figure at 0.5 cm⁻¹
+   * resolution (common practice). */
+  readonly calibrationOffset: number;
+  /** |scale error|, ppm. Default 20 (common practice for FTIR and laser wavemeters). */
+  readonly calibrationScalePpm: number;
+  /** Share of intensity (or of lines, without intensities) no band explains: fail above this, warn above half of
+   * it. Default 0.05 (common practice: a few per cent of noise peaks is normal in a peak list). */
+  readonly unexplainedFraction: number;
+  /** |measured/natural − 1| of minor-isotopologue intensity ratios: warn above. Default 0.15 (natural variation is
+   * a few per cent; line intensities of a peak list are rarely better than 5–10 %, common practice). */
+  readonly isotopeRatio: number;
+  /** Expected rotational temperature and its tolerance, K. Default none: the temperature is reported only. */
+  readonly temperature?: { readonly expected: number; readonly tolerance: number };
+  /** Largest reduced χ² when line uncertainties are given. Default 3 (common practice). */
+  readonly maxReducedChiSquare: number;
+  /** Largest share of lines rejected as outliers. Default 0.05 (common practice). */
+  readonly maxRejectedFraction: number;
+  /** Smallest share of the predicted strong lines (≥ 10 % of the strongest) that must be found. Default 0.9. */
+  readonly minCompleteness: number;
+}
+
+export const DEFAULT_TOLERANCES: Tolerances = {
+  identityOrigin: 0.5,
+  identityB: 1e-3,
+  calibrationOffset: 0.05,
+  calibrationScalePpm: 20,
+  unexplainedFraction: 0.05,
+  isotopeRatio: 0.15,
+  maxReducedChiSquare: 3,
+  maxRejectedFraction: 0.05,
+  minCompleteness: 0.9,
+};
+
+export interface CheckReport {
+  readonly verdict: 'pass' | 'warn' | 'fail';
+  readonly checks: readonly Check[];
+}
+
+const RANK: Record<CheckStatus, number> = { 'not-evaluated': 0, pass: 1, warn: 2, fail: 3 };
+
+export function verdictOf(checks: readonly Check[]): 'pass' | 'warn' | 'fail' {
+  let worst: CheckStatus = 'pass';
+  for (const c of checks) if (RANK[c.status] > RANK[worst]) worst = c.status;
+  return worst === 'not-evaluated' ? 'pass' : worst;
+}
+
+/** A molecule key: elements, with the hydrogen isotope kept (DCl is not HCl). */
+function moleculeKey(iso: Isotopologue): string {
+  return iso.atoms.map((a) => (a.element.symbol === 'H' ? `${a.isotope.massNumber}H` : a.element.symbol)).join('-');
+}
+
+const notEvaluated = (id: CheckId, message: string): Check => ({
+  id,
+  status: 'not-evaluated',
+  measured: {},
+  limit: {},
+  message,
+});
+
+/** When the fit itself could not be made: identity says why, with the best library matches; the rest cannot be evaluated. */
+export function checksWithoutFit(
+  peaks: readonly PeakInput[],
+  declared: Isotopologue | undefined,
+  reason: string,
+): CheckReport {
+  const ranking = identifySpecies(peaks);
+  const best = ranking[0];
+  const identity: Check = {
+    id: 'identity',
+    status: 'fail',
+    measured: {
+      declared: declared?.formula ?? null,
+      bestMatch: best?.species ?? null,
+      bestScore: best?.score ?? 0,
+      runnerUp: ranking[1]?.species ?? null,
+      runnerUpScore: ranking[1]?.score ?? 0,
+    },
+    limit: {},
+    message: `no fit could be made (${reason})${best && best.score >= 0.5 ? `; the lines match ${best.name} (score ${best.score.toFixed(2)})` : ''}`,
+  };
+  const others: CheckId[] = ['calibration', 'unexplained-lines', 'isotope-ratio', 'temperature', 'fit-quality'];
+  const checks = [identity, ...others.map((id) => notEvaluated(id, 'not evaluated: there is no fit'))];
+  return { verdict: verdictOf(checks), checks };
+}
+
+export function runChecks(
+  peaks: readonly PeakInput[],
+  declared: Isotopologue | undefined,
+  analysis: Analysis,
+  tolerances: Partial<Tolerances> = {},
+): CheckReport {
+  const tol = { ...DEFAULT_TOLERANCES, ...tolerances };
+  const r = analysis.result;
+  const main = analysis.assignment.species[0] ?? r.species[0]?.formula;
+  const temperature = temperatureCheck(peaks, analysis, main, tol);
+  const T = (temperature.measured.temperature as { value: number } | undefined)?.value ?? 296;
+  const checks = [
+    identityCheck(peaks, declared, analysis, main, tol),
+    calibrationCheck(analysis, main, tol),
+    unexplainedCheck(peaks, analysis, tol),
+    isotopeCheck(peaks, analysis, T, tol),
+    temperature,
+    fitQualityCheck(peaks, analysis, T, tol),
+  ];
+  return { verdict: verdictOf(checks), checks };
+}
+
+function mainBand(analysis: Analysis, species: string | undefined) {
+  return analysis.result.bands.filter((b) => b.species === species && b.origin).sort((a, b) => b.lines - a.lines)[0];
+}
+
+function identityCheck(
+  peaks: readonly PeakInput[],
+  declared: Isotopologue | undefined,
+  analysis: Analysis,
+  main: string | undefined,
+  tol: Tolerances,
+): Check {
+  const ranking: readonly IdentificationCandidate[] = analysis.assignment.identification ?? identifySpecies(peaks);
+  const best = ranking[0];
+  const runnerUp = ranking[1];
+  const limit = { origin: tol.identityOrigin, relativeB: tol.identityB };
+  if (!main) return notEvaluated('identity', 'no species was fitted');
+  const iso = parseSpecies(main);
+  const entry = constantsFor(iso);
+  const measured: Record<string, unknown> = {
+    declared: declared?.formula ?? null,
+    fitted: main,
+    bestMatch: best?.species ?? null,
+    bestScore: best?.score ?? 0,
+    runnerUp: runnerUp?.species ?? null,
+    runnerUpScore: runnerUp?.score ?? 0,
+  };
+  const problems: string[] = [];
+  let worst: CheckStatus = 'pass';
+  const raise = (s: CheckStatus) => {
+    if (RANK[s] > RANK[worst]) worst = s;
+  };
+  if (best && best.score >= 0.5 && moleculeKey(parseSpecies(best.species)) !== moleculeKey(iso)) {
+    problems.push(`the lines match ${best.name} (score ${best.score.toFixed(2)}) better than the declared ${main}`);
+    raise('fail');
+  }
+  const band = mainBand(analysis, main);
+  const level = analysis.result.levels.find(
+    (l) => l.species === main && l.v === (band ? Number(band.band.split('-')[1]) : 0),
+  );
+  if (entry && band?.origin && level) {
+    const y = dunhamFromEntry(entry);
+    const e = compileDunham(y);
+    const [u, l] = band.band.split('-').map(Number) as [number, number];
+    const refOrigin = e(u, 0) - e(l, 0);
+    const refB = (y.get('0,1') ?? 0) + (y.get('1,1') ?? 0) * (l + 0.5);
+    const dOrigin = band.origin.value - refOrigin;
+    const dB = level.B.value / refB - 1;
+    measured.band = band.band;
+    measured.originDeviation = dOrigin;
+    measured.relativeBDeviation = dB;
+    if (Math.abs(dOrigin) > 3 * tol.identityOrigin || Math.abs(dB) > 3 * tol.identityB) {
+      raise('fail');
+      problems.push(
+        `band origin off by ${dOrigin.toFixed(3)} cm-1 and B″ by ${(dB * 1e6).toFixed(0)} ppm from the reference`,
+      );
+    } else if (Math.abs(dOrigin) > tol.identityOrigin || Math.abs(dB) > tol.identityB) {
+      raise('warn');
+      problems.push(
+        `band origin off by ${dOrigin.toFixed(3)} cm-1 and B″ by ${(dB * 1e6).toFixed(0)} ppm from the reference`,
+      );
+    }
+  } else if (!entry) {
+    raise('warn');
+    problems.push(`${main} has no reference constants: identity rests on the band structure only`);
+  }
+  return {
+    id: 'identity',
+    status: worst,
+    measured,
+    limit,
+    message:
+      problems.length === 0
+        ? `${main} agrees with the reference library${runnerUp ? `; runner-up ${runnerUp.species} (score ${runnerUp.score.toFixed(2)})` : ''}`
+        : problems.join('; '),
+  };
+}
+
+function calibrationCheck(analysis: Analysis, main: string | undefined, tol: Tolerances): Check {
+  const limit = { offset: tol.calibrationOffset, scalePpm: tol.calibrationScalePpm };
+  if (!main) return notEvaluated('calibration', 'no species was fitted');
+  const entry = constantsFor(parseSpecies(main));
+  if (!entry) return notEvaluated('calibration', `${main} has no reference positions to calibrate against`);
+  const e = compileDunham(dunhamFromEntry(entry));
+  const pts = analysis.result.lines.flatMap((l) => {
+    const a = l.assignment;
+    if (l.status !== 'fitted' || !a || a.species !== main || a.j > 20) return [];
+    const [u, lo] = a.band.split('-').map(Number) as [number, number];
+    const ju = a.branch === 'R' ? a.j + 1 : a.j - 1;
+    return [{ reference: e(u, ju) - e(lo, a.j), observed: l.position }];
+  });
+  const c = calibrationFromPoints(pts, `reference-library positions of ${main}`);
+  if (!c) return notEvaluated('calibration', 'fewer than three fitted lines of the main species with J″ ≤ 20');
+  const off = Math.abs(c.offset.value);
+  const sc = c.scale ? Math.abs(c.scale.value) : 0;
+  let status: CheckStatus = 'pass';
+  if (off > tol.calibrationOffset || sc > tol.calibrationScalePpm) status = 'fail';
+  else if (
+    off + 2 * c.offset.uncertainty > tol.calibrationOffset ||
+    (c.scale && sc + 2 * c.scale.uncertainty > tol.calibrationScalePpm)
+  )
+    status = 'warn';
+  return {
+    id: 'calibration',
+    status,
+    measured: {
+      offset: c.offset,
+      ...(c.scale ? { scale: c.scale } : {}),
+      centre: c.centre,
+      lines: c.lines,
+      reference: c.reference,
+    },
+    limit,
+    message:
+      status === 'pass'
+        ? `offset ${c.offset.value.toFixed(4)} ± ${c.offset.uncertainty.toFixed(4)} cm-1${c.scale ? `, scale ${c.scale.value.toFixed(1)} ± ${c.scale.uncertainty.toFixed(1)} ppm` : ''}: within limits`
+        : `offset ${c.offset.value.toFixed(4)} ± ${c.offset.uncertainty.toFixed(4)} cm-1${c.scale ? `, scale ${c.scale.value.toFixed(1)} ± ${c.scale.uncertainty.toFixed(1)} ppm` : ''} against limits ${tol.calibrationOffset} cm-1 and ${tol.calibrationScalePpm} ppm${status === 'warn' ? ' (within, but not by two standard uncertainties)' : ''}`,
+  };
+}
+
+function unexplainedCheck(peaks: readonly PeakInput[], analysis: Analysis, tol: Tolerances): Check {
+  const idx = analysis.result.lines.filter((l) => l.status === 'unassigned').map((l) => l.index);
+  const withI = peaks.every((p) => p.intensity !== undefined && p.intensity >= 0);
+  const total = withI ? peaks.reduce((s, p) => s + (p.intensity as number), 0) : peaks.length;
+  const part = withI ? idx.reduce((s, i) => s + (peaks[i]?.intensity as number), 0) : idx.length;
+  const fraction = total > 0 ? part / total : 0;
+  const explainedBy =
+    idx.length >= 5
+      ? identifySpecies(idx.map((i) => peaks[i] as PeakInput))
+          .filter((c) => c.score >= 0.3)
+          .map((c) => ({ species: c.species, name: c.name, score: c.score }))
+      : [];
+  const status: CheckStatus =
+    fraction > tol.unexplainedFraction ? 'fail' : fraction > tol.unexplainedFraction / 2 ? 'warn' : 'pass';
+  return {
+    id: 'unexplained-lines',
+    status,
+    measured: {
+      count: idx.length,
+      fraction,
+      basis: withI ? 'intensity' : 'line count',
+      positions: idx.map((i) => (peaks[i] as PeakInput).position),
+      explainedBy,
+    },
+    limit: { fraction: tol.unexplainedFraction },
+    message: `${idx.length} line(s), ${(fraction * 100).toFixed(1)} % of the ${withI ? 'intensity' : 'lines'}, are explained by no band${explainedBy.length ? `; they would fit ${explainedBy.map((c) => c.name).join(', ')} (a possible impurity)` : ''}`,
+  };
+}
+
+function isotopeCheck(peaks: readonly PeakInput[], analysis: Analysis, T: number, tol: Tolerances): Check {
+  const limit = { relative: tol.isotopeRatio };
+  const species = analysis.assignment.species;
+  if (species.length < 2) return notEvaluated('isotope-ratio', 'only one isotopologue was assigned against');
+  if (!peaks.every((p) => p.intensity !== undefined))
+    return notEvaluated('isotope-ratio', 'the lines carry no intensities');
+  const main = species[0] as string;
+  const mainIso = parseSpecies(main);
+  const natural = new Map(
+    isotopologuesMeant(
+      {
+        ...mainIso,
+        atoms: [
+          { ...mainIso.atoms[0], explicitIsotope: false },
+          { ...mainIso.atoms[1], explicitIsotope: false },
+        ],
+      },
+      0,
+    ).map((x) => [x.iso.formula, x.abundance]),
+  );
+  const byTransition = new Map<
+    string,
+    { species: string; intensity: number; position: number; branch: Branch; j: number; band: string }[]
+  >();
+  for (const l of analysis.result.lines) {
+    const a = l.assignment;
+    if (l.status !== 'fitted' || !a) continue;
+    const key = `${a.band}|${a.branch}|${a.j}`;
+    const list = byTransition.get(key) ?? [];
+    list.push({
+      species: a.species,
+      intensity: peaks[l.index]?.intensity as number,
+      position: l.position,
+      branch: a.branch,
+      j: a.j,
+      band: a.band,
+    });
+    byTransition.set(key, list);
+  }
+  const energyOf = (s: string) => {
+    const e = compileDunham(dunhamFromEntry(constantsFor(parseSpecies(s)) ?? (undefined as never)));
+    return (v: number, j: number) => e(v, j) - e(0, 0);
+  };
+  const ratios: { species: string; measured: number; uncertainty: number; pairs: number; expected: number }[] = [];
+  for (const minor of species.slice(1)) {
+    const logs: number[] = [];
+    const eMain = energyOf(main);
+    const eMinor = energyOf(minor);
+    for (const list of byTransition.values()) {
+      const a = list.find((x) => x.species === main);
+      const b = list.find((x) => x.species === minor);
+      if (!a || !b || !(a.intensity > 0) || !(b.intensity > 0)) continue;
+      const lo = Number(a.band.split('-')[1]);
+      const predA = (natural.get(main) ?? 1) * relativeIntensity(a.position, a.branch, a.j, eMain(lo, a.j), T);
+      const predB = (natural.get(minor) ?? 0) * relativeIntensity(b.position, b.branch, b.j, eMinor(lo, b.j), T);
+      if (!(predA > 0 && predB > 0)) continue;
+      logs.push(Math.log(b.intensity / a.intensity / (predB / predA)));
+    }
+    if (logs.length < 3) continue;
+    const mean = logs.reduce((s, x) => s + x, 0) / logs.length;
+    const sd = Math.sqrt(logs.reduce((s, x) => s + (x - mean) ** 2, 0) / (logs.length - 1));
+    const factor = Math.exp(mean);
+    ratios.push({
+      species: minor,
+      measured: factor,
+      uncertainty: (factor * sd) / Math.sqrt(logs.length),
+      pairs: logs.length,
+      expected: 1,
+    });
+  }
+  if (ratios.length === 0)
+    return notEvaluated('isotope-ratio', 'fewer than three transitions were assigned in both isotopologues');
+  const worst = Math.max(...ratios.map((x) => Math.abs(x.measured - 1)));
+  const status: CheckStatus = worst > tol.isotopeRatio ? 'warn' : 'pass';
+  return {
+    id: 'isotope-ratio',
+    status,
+    measured: {
+      ratios: ratios.map((x) => ({
+        species: x.species,
+        relativeToNatural: { value: x.measured, uncertainty: x.uncertainty, unit: '1' },
+        naturalAbundance: natural.get(x.species) ?? null,
+        pairs: x.pairs,
+      })),
+    },
+    limit,
+    message: ratios
+      .map(
+        (x) =>
+          `${x.species}: ${x.measured.toFixed(3)} ± ${x.uncertainty.toFixed(3)} of the natural abundance ratio (${x.pairs} line pairs)`,
+      )
+      .join('; ')
+      .concat(status === 'warn' ? ' — isotopic composition differs from natural (enriched or depleted sample?)' : ''),
+  };
+}
+
+function temperatureCheck(
+  peaks: readonly PeakInput[],
+  analysis: Analysis,
+  main: string | undefined,
+  tol: Tolerances,
+): Check {
+  const limit = tol.temperature ? { expected: tol.temperature.expected, tolerance: tol.temperature.tolerance } : {};
+  if (!peaks.every((p) => p.intensity !== undefined))
+    return notEvaluated('temperature', 'the lines carry no intensities');
+  const band = mainBand(analysis, main);
+  if (!band) return notEvaluated('temperature', 'no vibrational band of the main species was fitted');
+  const lowerV = Number(band.band.split('-')[1]);
+  const level = analysis.result.levels.find((l) => l.species === main && l.v === lowerV);
+  if (!level) return notEvaluated('temperature', 'the lower level was not fitted');
+  const energy = (j: number) => {
+    const x = j * (j + 1);
+    return level.B.value * x - (level.D?.value ?? 0) * x * x + (level.H?.value ?? 0) * x ** 3;
+  };
+  const pts = analysis.result.lines.flatMap((l) => {
+    const a = l.assignment;
+    if (l.status !== 'fitted' || !a || a.species !== main || a.band !== band.band) return [];
+    return [
+      {
+        position: l.position,
+        intensity: peaks[l.index]?.intensity as number,
+        branch: a.branch,
+        j: a.j,
+        lowerEnergy: energy(a.j),
+      },
+    ];
+  });
+  const plot = boltzmannTemperature(pts);
+  if (!plot)
+    return notEvaluated(
+      'temperature',
+      'the Boltzmann plot could not be made (too few lines, or intensities that do not fall with E″)',
+    );
+  const t = plot.temperature;
+  let status: CheckStatus = 'pass';
+  let message = `rotational temperature ${t.value.toFixed(1)} ± ${t.uncertainty.toFixed(1)} K from ${pts.length} lines of band ${band.band} (Boltzmann plot; Herman–Wallis effects neglected)`;
+  if (tol.temperature) {
+    const d = Math.abs(t.value - tol.temperature.expected);
+    status =
+      d > tol.temperature.tolerance ? 'fail' : d + 2 * t.uncertainty > tol.temperature.tolerance ? 'warn' : 'pass';
+    message += `, expected ${tol.temperature.expected} ± ${tol.temperature.tolerance} K`;
+  }
+  return {
+    id: 'temperature',
+    status,
+    measured: { temperature: t, band: band.band, lines: pts.length, points: plot.points },
+    limit,
+    message,
+  };
+}
+
+function fitQualityCheck(peaks: readonly PeakInput[], analysis: Analysis, T: number, tol: Tolerances): Check {
+  const r = analysis.result;
+  const st = r.statistics;
+  const uncertaintiesGiven = peaks.some((p) => p.uncertainty !== undefined);
+  const rejectedFraction = st.assigned > 0 ? st.rejected / st.assigned : 0;
+  const problems: string[] = [];
+  let status: CheckStatus = 'pass';
+  if (uncertaintiesGiven && st.reducedChiSquare !== null && st.reducedChiSquare > tol.maxReducedChiSquare) {
+    status = 'fail';
+    problems.push(`reduced χ² ${st.reducedChiSquare.toFixed(2)} exceeds ${tol.maxReducedChiSquare}`);
+  }
+  if (rejectedFraction > tol.maxRejectedFraction) {
+    status = 'fail';
+    problems.push(`${st.rejected} of ${st.assigned} lines rejected as outliers`);
+  }
+  // Completeness: the strong lines the reference predicts in the window, and which of them were found.
+  let completeness: number | null = null;
+  const missing: { species: string; band: string; branch: Branch; j: number; position: number }[] = [];
+  const species = analysis.assignment.species;
+  if (analysis.assignment.method === 'reference' && species.length > 0) {
+    const positions = peaks.map((p) => p.position);
+    const mixture = species.map((s) => ({ iso: parseSpecies(s), abundance: 1 }));
+    const mainIso = parseSpecies(species[0] as string);
+    const natural = new Map(
+      isotopologuesMeant(
+        {
+          ...mainIso,
+          atoms: [
+            { ...mainIso.atoms[0], explicitIsotope: false },
+            { ...mainIso.atoms[1], explicitIsotope: false },
+          ],
+        },
+        0,
+      ).map((x) => [x.iso.formula, x.abundance]),
+    );
+    const weighted = mixture.map((m) => ({ iso: m.iso, abundance: natural.get(m.iso.formula) ?? 1 }));
+    const strong = candidateLines(weighted, Math.min(...positions), Math.max(...positions), { temperature: T }).filter(
+      (c) => c.intensity >= 0.1,
+    );
+    const found = new Set(
+      r.lines
+        .filter((l) => l.assignment)
+        .map((l) => `${l.assignment?.species}|${l.assignment?.band}|${l.assignment?.branch}|${l.assignment?.j}`),
+    );
+    for (const c of strong) {
+      const band = `${c.band.upper}-${c.band.lower}`;
+      if (!found.has(`${c.species}|${band}|${c.branch}|${c.j}`))
+        missing.push({ species: c.species, band, branch: c.branch, j: c.j, position: c.position });
+    }
+    completeness = strong.length > 0 ? 1 - missing.length / strong.length : null;
+    if (completeness !== null && completeness < tol.minCompleteness) {
+      if (status === 'pass') status = 'warn';
+      problems.push(`${missing.length} of ${strong.length} predicted strong lines are missing`);
+    }
+  }
+  return {
+    id: 'fit-quality',
+    status,
+    measured: {
+      reducedChiSquare: st.reducedChiSquare,
+      rms: st.rms,
+      rejected: st.rejected,
+      rejectedFraction,
+      completeness,
+      missingStrongLines: missing,
+    },
+    limit: {
+      maxReducedChiSquare: tol.maxReducedChiSquare,
+      maxRejectedFraction: tol.maxRejectedFraction,
+      minCompleteness: tol.minCompleteness,
+    },
+    message: problems.length
+      ? problems.join('; ')
+      : `rms ${st.rms.toExponential(2)} cm-1${st.reducedChiSquare !== null ? `, reduced χ² ${st.reducedChiSquare.toFixed(2)}` : ''}, ${st.rejected} outlier(s)${completeness !== null ? `, ${(completeness * 100).toFixed(0)} % of the strong lines found` : ''}`,
+  };
+}

@@ -1,0 +1,167 @@
+import { bandStrengthGuess, relativeIntensity } from '../assign/intensity.js';
+import { type Quantity, quantity } from '../derive/quantity.js';
+import { ScienceError } from '../errors.js';
+import { dunhamBasis } from '../models/dunham.js';
+import { type Band, type Branch, upperJ } from '../models/transitions.js';
+import { constantsFor } from '../species/library.js';
+import type { Isotopologue } from '../species/parse.js';
+
+/** Customary constants and the Dunham coefficient each one is, with its sign (Y10 = ω_e, Y20 = −ω_e x_e, …). */
+export const CONSTANT_TO_DUNHAM = {
+  omega_e: { k: 1, l: 0, sign: 1 },
+  omega_e_x_e: { k: 2, l: 0, sign: -1 },
+  omega_e_y_e: { k: 3, l: 0, sign: 1 },
+  omega_e_z_e: { k: 4, l: 0, sign: 1 },
+  B_e: { k: 0, l: 1, sign: 1 },
+  alpha_e: { k: 1, l: 1, sign: -1 },
+  gamma_e: { k: 2, l: 1, sign: 1 },
+  D_e: { k: 0, l: 2, sign: -1 },
+  beta_e: { k: 1, l: 2, sign: -1 },
+  H_e: { k: 0, l: 3, sign: 1 },
+} as const;
+export type PredictionConstant = keyof typeof CONSTANT_TO_DUNHAM;
+
+export interface ConstantsInput {
+  readonly values: Readonly<Partial<Record<PredictionConstant, { value: number; uncertainty?: number }>>>;
+  /** Full covariance of the constants, in the order of `names`; overrides the separate uncertainties. */
+  readonly covariance?: {
+    readonly names: readonly PredictionConstant[];
+    readonly matrix: readonly (readonly number[])[];
+  };
+}
+
+export interface PredictionOptions {
+  readonly bands: readonly Band[];
+  /** Highest J″. Default 30. */
+  readonly jMax?: number;
+  /** K, for relative intensities. Default 296. */
+  readonly temperature?: number;
+}
+
+export interface PredictedTransition {
+  readonly band: string;
+  readonly branch: Branch;
+  readonly j: number;
+  /** Wavenumber with its standard uncertainty propagated from the constants' covariance. */
+  readonly wavenumber: Quantity;
+  /** Relative intensity (1 = strongest line predicted); across bands only an order-of-magnitude guide. */
+  readonly relativeIntensity: number;
+  /** E″ above v = 0, J = 0, cm⁻¹. */
+  readonly lowerEnergy: number;
+}
+
+export interface PredictionResult {
+  readonly source: 'library' | 'caller';
+  readonly constants: readonly { name: PredictionConstant; value: number; uncertainty: number }[];
+  readonly lines: readonly PredictedTransition[];
+}
+
+/**
+ * Line positions of chosen bands from equilibrium constants, with uncertainties σ² = gᵀ Σ g where g holds the
+ * derivatives of the position with respect to each constant (the position is linear in the Dunham coefficients),
+ * and relative intensities at a temperature (Hönl–London, Boltzmann; SCIENCE.md §5).
+ */
+export function predictLines(
+  species: Isotopologue,
+  constants: ConstantsInput | undefined,
+  options: PredictionOptions,
+): PredictionResult {
+  let source: PredictionResult['source'] = 'caller';
+  let input = constants;
+  if (!input) {
+    const entry = constantsFor(species);
+    if (!entry) {
+      throw new ScienceError(
+        'SPECIES_NOT_IN_LIBRARY',
+        `${species.formula} is not in the reference library: send its constants`,
+        {
+          species: species.formula,
+        },
+      );
+    }
+    source = 'library';
+    const values: Partial<Record<PredictionConstant, { value: number }>> = {};
+    for (const name of Object.keys(CONSTANT_TO_DUNHAM) as PredictionConstant[]) {
+      const c = entry.constants[name as keyof typeof entry.constants];
+      if (c) values[name] = { value: c.value };
+    }
+    input = { values };
+  }
+  const names = (Object.keys(CONSTANT_TO_DUNHAM) as PredictionConstant[]).filter((n) => input?.values[n] !== undefined);
+  if (!names.includes('B_e') || !names.includes('omega_e')) {
+    throw new ScienceError('INPUT_INVALID', 'constants need at least omega_e and B_e', { given: names });
+  }
+  const p = names.length;
+  const x = names.map((n) => input?.values[n]?.value as number);
+  const cov = new Float64Array(p * p);
+  if (input.covariance) {
+    const idx = input.covariance.names.map((n) => names.indexOf(n));
+    if (idx.some((i) => i < 0) || input.covariance.matrix.length !== idx.length) {
+      throw new ScienceError(
+        'INPUT_INVALID',
+        'the covariance names must be constants that are given, one row per name',
+        {
+          names: input.covariance.names,
+        },
+      );
+    }
+    input.covariance.matrix.forEach((row, a) => {
+      if (row.length !== idx.length)
+        throw new ScienceError('INPUT_INVALID', 'the covariance matrix must be square', {});
+      row.forEach((v, b) => {
+        cov[(idx[a] as number) * p + (idx[b] as number)] = v;
+      });
+    });
+  } else {
+    names.forEach((n, i) => {
+      const u = input?.values[n]?.uncertainty ?? 0;
+      cov[i * p + i] = u * u;
+    });
+  }
+  const energy = (v: number, j: number) =>
+    names.reduce((s, n, i) => {
+      const d = CONSTANT_TO_DUNHAM[n];
+      return s + d.sign * (x[i] as number) * dunhamBasis(d.k, d.l, v, j);
+    }, 0);
+  const T = options.temperature ?? 296;
+  const jMax = options.jMax ?? 30;
+  const e00 = energy(0, 0);
+  const raw: (PredictedTransition & { strength: number })[] = [];
+  for (const band of options.bands) {
+    const branches: Branch[] = band.upper === band.lower ? ['R'] : ['P', 'R'];
+    for (const branch of branches) {
+      for (let j = branch === 'P' ? 1 : 0; j <= jMax; j++) {
+        const ju = upperJ({ branch, j });
+        const el = energy(band.lower, j);
+        const nu = energy(band.upper, ju) - el;
+        const g = names.map((n) => {
+          const d = CONSTANT_TO_DUNHAM[n];
+          return d.sign * (dunhamBasis(d.k, d.l, band.upper, ju) - dunhamBasis(d.k, d.l, band.lower, j));
+        });
+        let variance = 0;
+        for (let a = 0; a < p; a++)
+          for (let b = 0; b < p; b++) variance += (g[a] as number) * (cov[a * p + b] as number) * (g[b] as number);
+        const strength = nu > 0 ? bandStrengthGuess(band) * relativeIntensity(nu, branch, j, el - e00, T) : 0;
+        raw.push({
+          band: `${band.upper}-${band.lower}`,
+          branch,
+          j,
+          wavenumber: quantity(nu, Math.sqrt(Math.max(variance, 0)), 'cm-1'),
+          relativeIntensity: 0,
+          lowerEnergy: el - e00,
+          strength,
+        });
+      }
+    }
+  }
+  const max = Math.max(...raw.map((r) => r.strength), 0);
+  return {
+    source,
+    constants: names.map((n, i) => ({
+      name: n,
+      value: x[i] as number,
+      uncertainty: Math.sqrt(cov[i * p + i] as number),
+    })),
+    lines: raw.map(({ strength, ...l }) => ({ ...l, relativeIntensity: max > 0 ? strength / max : 0 })),
+  };
+}
