@@ -26,7 +26,11 @@ const clean: ScanSpec = {
   exactReference: true,
 };
 const check = (body: unknown) => runCheck(schema.parse(body));
-const byId = (r: ReturnType<typeof check>, id: string) => r.checks.find((c) => c.id === id);
+const byId = (r: ReturnType<typeof check>, id: string) => {
+  const c = r.checks.find((x) => x.id === id);
+  if (!c) throw new Error(`no check ${id}`);
+  return c;
+};
 
 describe('QA checks', () => {
   it('a clean HCl scan passes every check, and carries the safety caution', () => {
@@ -50,8 +54,8 @@ describe('QA checks', () => {
   it('a scan shifted by 0.2 cm⁻¹ fails calibration, with the measured offset within ±0.01 cm⁻¹', () => {
     const r = check({ species: 'HCl', lines: syntheticScan({ ...clean, offset: 0.2 }).peaks });
     const c = byId(r, 'calibration');
-    expect(c?.status).toBe('fail');
-    const off = (c?.measured.offset as { value: number }).value;
+    expect(c.status).toBe('fail');
+    const off = (c.measured.offset as { value: number }).value;
     expect(Math.abs(off - 0.2)).toBeLessThan(0.01);
     expect(r.verdict).toBe('fail');
   });
@@ -66,8 +70,8 @@ describe('QA checks', () => {
     });
     const r = check({ species: 'HCl', lines: hbr.peaks });
     const c = byId(r, 'identity');
-    expect(c?.status).toBe('fail');
-    expect(c?.measured.bestMatch).toBe('1H-79Br');
+    expect(c.status).toBe('fail');
+    expect(c.measured.bestMatch).toBe('1H-79Br');
     expect(r.verdict).toBe('fail');
   });
 
@@ -79,10 +83,10 @@ describe('QA checks', () => {
     const lines = [...hcl.peaks, ...co.peaks.map((p) => ({ ...p, intensity: p.intensity * k }))];
     const r = check({ species: 'HCl', lines });
     const c = byId(r, 'unexplained-lines');
-    expect(c?.status).toBe('fail');
-    expect(Math.abs((c?.measured.fraction as number) - 0.3)).toBeLessThan(0.02);
-    expect((c?.measured.positions as number[]).length).toBe(co.peaks.length);
-    expect((c?.measured.explainedBy as { species: string }[])[0]?.species).toBe('12C-16O');
+    expect(c.status).toBe('fail');
+    expect(Math.abs((c.measured.fraction as number) - 0.3)).toBeLessThan(0.02);
+    expect((c.measured.positions as number[]).length).toBe(co.peaks.length);
+    expect((c.measured.explainedBy as { species: string }[])[0]?.species).toBe('12C-16O');
   });
 
   it('a ¹³C-enriched CO scan (10 % ¹³C against 1.07 % natural, CIAAW) warns on the isotope ratio', () => {
@@ -96,8 +100,8 @@ describe('QA checks', () => {
     });
     const r = check({ species: 'CO', lines: enriched.peaks });
     const c = byId(r, 'isotope-ratio');
-    expect(c?.status).toBe('warn');
-    const ratio = (c?.measured.ratios as { species: string; relativeToNatural: { value: number } }[]).find(
+    expect(c.status).toBe('warn');
+    const ratio = (c.measured.ratios as { species: string; relativeToNatural: { value: number } }[]).find(
       (x) => x.species === '13C-16O',
     );
     // Expected (0.1/0.9) / (0.0107/0.9893) = 10.3 times natural, within 15 % (intensity noise 10 % per line).
@@ -115,7 +119,7 @@ describe('QA checks', () => {
       detection: 1e-2,
     });
     const r = check({ species: 'CO', lines: scan.peaks, options: { temperature: T } });
-    const t = (byId(r, 'temperature')?.measured.temperature as { value: number }).value;
+    const t = (byId(r, 'temperature').measured.temperature as { value: number }).value;
     expect(Math.abs(t / T - 1)).toBeLessThan(0.05);
   });
 
@@ -123,8 +127,8 @@ describe('QA checks', () => {
     const bare = syntheticScan(clean).peaks.map((p) => ({ position: p.position, uncertainty: p.uncertainty }));
     const r = check({ species: 'HCl', lines: bare });
     const t = byId(r, 'temperature');
-    expect(t?.status).toBe('not-evaluated');
-    expect(t?.message).toMatch(/intensities/);
+    expect(t.status).toBe('not-evaluated');
+    expect(t.message).toMatch(/intensities/);
   });
 
   it('tolerances override the defaults and are echoed', () => {
@@ -133,7 +137,7 @@ describe('QA checks', () => {
       lines: syntheticScan({ ...clean, offset: 0.2 }).peaks,
       tolerances: { calibrationOffset: 0.5 },
     });
-    expect(byId(r, 'calibration')?.status).toBe('pass');
+    expect(byId(r, 'calibration').status).toBe('pass');
     expect(r.tolerances.calibrationOffset).toBe(0.5);
     expect(r.tolerances.calibrationScalePpm).toBe(20);
   });
