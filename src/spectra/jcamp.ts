@@ -1,0 +1,301 @@
+import { ScienceError } from '../errors.js';
+
+/**
+ * A JCAMP-DX reader for infrared spectra (R. S. McDonald and P. A. Wilks, Appl. Spectrosc. 42, 151 (1988); ASDF
+ * compression as specified there): ##XYDATA=(X++(Y..Y)) in AFFN, PAC, SQZ, DIF and DUP forms with the DIF
+ * Y-value check, ##XYPOINTS=(XY..XY), ##PEAK TABLE=(XY..XY), XFACTOR and YFACTOR, increasing or decreasing X.
+ * Labels are matched the way the standard asks: case, spaces, dashes, slashes and underscores do not count.
+ * Errors name the line.
+ */
+
+export interface JcampSpectrum {
+  readonly kind: 'spectrum';
+  readonly x: Float64Array;
+  readonly y: Float64Array;
+  readonly xUnits: string;
+  readonly yUnits: string;
+  readonly title: string;
+  readonly labels: ReadonlyMap<string, string>;
+}
+
+export interface JcampPeakTable {
+  readonly kind: 'peaks';
+  readonly peaks: readonly { x: number; y?: number }[];
+  readonly xUnits: string;
+  readonly yUnits: string;
+  readonly title: string;
+  readonly labels: ReadonlyMap<string, string>;
+}
+
+export type JcampData = JcampSpectrum | JcampPeakTable;
+
+const normaliseLabel = (l: string) => l.replace(/[\s\-/_]/g, '').toUpperCase();
+
+function fail(line: number, message: string): never {
+  throw new ScienceError('INPUT_INVALID', `JCAMP-DX line ${line}: ${message}`, { line });
+}
+
+const SQZ: Record<string, number> = {
+  '@': 0,
+  A: 1,
+  B: 2,
+  C: 3,
+  D: 4,
+  E: 5,
+  F: 6,
+  G: 7,
+  H: 8,
+  I: 9,
+  a: -1,
+  b: -2,
+  c: -3,
+  d: -4,
+  e: -5,
+  f: -6,
+  g: -7,
+  h: -8,
+  i: -9,
+};
+const DIF: Record<string, number> = {
+  '%': 0,
+  J: 1,
+  K: 2,
+  L: 3,
+  M: 4,
+  N: 5,
+  O: 6,
+  P: 7,
+  Q: 8,
+  R: 9,
+  j: -1,
+  k: -2,
+  l: -3,
+  m: -4,
+  n: -5,
+  o: -6,
+  p: -7,
+  q: -8,
+  r: -9,
+};
+const DUP: Record<string, number> = { S: 1, T: 2, U: 3, V: 4, W: 5, X: 6, Y: 7, Z: 8, s: 9 };
+
+type Token = { kind: 'abs' | 'dif' | 'dup'; value: number };
+
+/** Split one data line into tokens: absolute values (AFFN, PAC, SQZ), differences (DIF) and repeat counts (DUP). */
+export function tokenizeAsdf(text: string, lineNo: number): Token[] {
+  const out: Token[] = [];
+  let i = 0;
+  const n = text.length;
+  // E and e are the SQZ digits 5 and −5 unless the line is plain AFFN and they introduce a short exponent that
+  // ends a number (exponents belong to AFFN only).
+  const compressed = /[@%A-DF-Za-df-z]/.test(text.replace(/\$\$.*$/, ''));
+  while (i < n) {
+    const ch = text[i] as string;
+    if (ch === ' ' || ch === '\t' || ch === ',' || ch === ';') {
+      i++;
+      continue;
+    }
+    let kind: Token['kind'];
+    let lead: number | undefined;
+    let sign = 1;
+    let digits = '';
+    if (ch in SQZ) {
+      kind = 'abs';
+      lead = SQZ[ch] as number;
+    } else if (ch in DIF) {
+      kind = 'dif';
+      lead = DIF[ch] as number;
+    } else if (ch in DUP) {
+      kind = 'dup';
+      lead = DUP[ch] as number;
+    } else if (ch === '+' || ch === '-' || ch === '.' || (ch >= '0' && ch <= '9')) {
+      kind = 'abs';
+      if (ch === '+' || ch === '-') {
+        sign = ch === '-' ? -1 : 1;
+        i++;
+      }
+    } else if (ch === '?') {
+      // A missing value: kept as NaN so that the X grid stays aligned.
+      out.push({ kind: 'abs', value: Number.NaN });
+      i++;
+      continue;
+    } else if (ch === '$' && text[i + 1] === '$') {
+      break; // a comment runs to the end of the line
+    } else {
+      fail(lineNo, `unexpected character "${ch}" in the data`);
+    }
+    if (lead !== undefined) {
+      i++;
+      // The lead character's digit is the first digit; its sign is the value's sign.
+      sign = lead < 0 ? -1 : 1;
+      digits = String(Math.abs(lead));
+    }
+    const start = i;
+    while (i < n) {
+      const c = text[i] as string;
+      if ((c >= '0' && c <= '9') || c === '.') i++;
+      else if (
+        (c === 'E' || c === 'e') &&
+        kind === 'abs' &&
+        lead === undefined &&
+        !compressed &&
+        /^[Ee][+-]?\d{1,3}(?=[\s,;]|$)/.test(text.slice(i))
+      ) {
+        i += text[i + 1] === '+' || text[i + 1] === '-' ? 2 : 1;
+      } else break;
+    }
+    digits += text.slice(start, i);
+    if (digits === '' || digits === '.') fail(lineNo, 'a number was expected');
+    const v = Number(digits);
+    if (!Number.isFinite(v)) fail(lineNo, `"${digits}" is not a number`);
+    out.push({ kind, value: kind === 'dup' ? v : sign * v });
+  }
+  return out;
+}
+
+/** Expand tokens into Y values: DIF adds to the last value, DUP repeats the last token n − 1 more times. */
+function expand(tokens: Token[], lineNo: number): { values: number[]; endsWithDif: boolean } {
+  const values: number[] = [];
+  let last: Token | undefined;
+  for (const t of tokens) {
+    if (t.kind === 'dup') {
+      if (!last) fail(lineNo, 'a DUP count with nothing to repeat');
+      if (!Number.isInteger(t.value) || t.value < 1) fail(lineNo, `DUP count ${t.value} is not a whole number ≥ 1`);
+      for (let k = 1; k < t.value; k++) apply(last);
+      continue;
+    }
+    apply(t);
+    last = t;
+  }
+  return { values, endsWithDif: last?.kind === 'dif' };
+  function apply(t: Token) {
+    if (t.kind === 'abs') values.push(t.value);
+    else {
+      if (values.length === 0) fail(lineNo, 'a DIF value with no value before it');
+      values.push((values[values.length - 1] as number) + t.value);
+    }
+  }
+}
+
+export function parseJcamp(text: string): JcampData {
+  const lines = text.split(/\r\n|\r|\n/);
+  const labels = new Map<string, string>();
+  let dataLabel: string | undefined;
+  let dataForm = '';
+  let dataStart = -1;
+  let dataEnd = lines.length;
+  for (let i = 0; i < lines.length; i++) {
+    const raw = (lines[i] as string).replace(/\$\$.*$/, '');
+    const m = /^\s*##([^=]*)=(.*)$/.exec(raw);
+    if (!m) continue;
+    const label = normaliseLabel(m[1] as string);
+    const value = (m[2] as string).trim();
+    if (dataLabel !== undefined && dataEnd === lines.length) dataEnd = i;
+    if (label === 'XYDATA' || label === 'XYPOINTS' || label === 'PEAKTABLE') {
+      if (dataLabel !== undefined) break; // a second data block (a link or a second spectrum) is not read
+      dataLabel = label;
+      dataForm = value.replace(/\s/g, '').toUpperCase();
+      dataStart = i + 1;
+      dataEnd = lines.length;
+      continue;
+    }
+    if (label === 'END') {
+      if (dataLabel !== undefined && dataEnd === lines.length) dataEnd = i;
+      break;
+    }
+    if (!labels.has(label)) labels.set(label, value);
+  }
+  if (!labels.has('TITLE')) fail(1, 'the file does not start with ##TITLE= (is it JCAMP-DX?)');
+  if (dataLabel === undefined) fail(lines.length, 'no ##XYDATA=, ##XYPOINTS= or ##PEAK TABLE= block');
+  const num = (label: string, fallback?: number): number => {
+    const v = labels.get(label);
+    if (v === undefined || v === '') {
+      if (fallback !== undefined) return fallback;
+      fail(1, `##${label}= is required`);
+    }
+    const x = Number(v);
+    if (!Number.isFinite(x)) fail(1, `##${label}=${v} is not a number`);
+    return x;
+  };
+  const xFactor = num('XFACTOR', 1);
+  const yFactor = num('YFACTOR', 1);
+  const xUnits = labels.get('XUNITS') ?? '1/CM';
+  const yUnits = labels.get('YUNITS') ?? 'ABSORBANCE';
+  const title = labels.get('TITLE') ?? '';
+
+  if (dataLabel === 'XYPOINTS' || dataLabel === 'PEAKTABLE') {
+    const pairs: { x: number; y?: number }[] = [];
+    for (let i = dataStart; i < dataEnd; i++) {
+      const t = (lines[i] as string)
+        .replace(/\$\$.*$/, '')
+        .replace(/\s*,\s*/g, ',')
+        .trim();
+      if (t === '') continue;
+      for (const group of t.split(/[;\s]+/).filter((g) => g !== '')) {
+        const parts = group.split(',').filter((g) => g !== '');
+        const x = Number(parts[0]);
+        const y = parts[1] !== undefined ? Number(parts[1]) : undefined;
+        if (!Number.isFinite(x) || (y !== undefined && !Number.isFinite(y)))
+          fail(i + 1, `"${group}" is not an X,Y pair`);
+        pairs.push({ x: x * xFactor, ...(y !== undefined ? { y: y * yFactor } : {}) });
+      }
+    }
+    if (pairs.length === 0) fail(dataStart, 'the data block is empty');
+    if (dataLabel === 'PEAKTABLE') return { kind: 'peaks', peaks: pairs, xUnits, yUnits, title, labels };
+    return {
+      kind: 'spectrum',
+      x: Float64Array.from(pairs, (p) => p.x),
+      y: Float64Array.from(pairs, (p) => p.y ?? Number.NaN),
+      xUnits,
+      yUnits,
+      title,
+      labels,
+    };
+  }
+
+  if (!dataForm.startsWith('(X++(Y..Y))')) fail(dataStart, `##XYDATA=${dataForm} is not supported (only (X++(Y..Y)))`);
+  const firstX = num('FIRSTX');
+  const lastX = num('LASTX');
+  const nPoints = num('NPOINTS');
+  if (!Number.isInteger(nPoints) || nPoints < 2) fail(1, `##NPOINTS=${nPoints} must be a whole number ≥ 2`);
+  const deltaX = (lastX - firstX) / (nPoints - 1);
+  const ys = new Float64Array(nPoints);
+  let count = 0;
+  let pendingCheck: number | undefined;
+  for (let i = dataStart; i < dataEnd; i++) {
+    const text = (lines[i] as string).replace(/\$\$.*$/, '');
+    if (text.trim() === '') continue;
+    const tokens = tokenizeAsdf(text, i + 1);
+    const first = tokens[0];
+    if (!first || first.kind !== 'abs') fail(i + 1, 'a data line must start with its X value');
+    const x = first.value * xFactor;
+    const { values, endsWithDif } = expand(tokens.slice(1), i + 1);
+    let vs = values;
+    const checked = pendingCheck;
+    if (pendingCheck !== undefined) {
+      // DIF form: this line's first Y repeats the last Y of the line before (the Y-value check).
+      if (vs.length === 0 || Math.abs((vs[0] as number) - pendingCheck) > 1e-9 * Math.max(1, Math.abs(pendingCheck))) {
+        fail(
+          i + 1,
+          `DIF Y-value check failed: the line starts with ${vs[0]} but the line before ended with ${pendingCheck}`,
+        );
+      }
+      vs = vs.slice(1);
+    }
+    // X of the line must match the point it starts at (within half a step); after a Y-value check, that point is
+    // the last one of the line before.
+    const expectedX = firstX + (checked !== undefined ? count - 1 : count) * deltaX;
+    if (Math.abs(x - expectedX) > Math.abs(deltaX) * 0.5 + 1e-9 * Math.abs(expectedX)) {
+      fail(i + 1, `X = ${x} does not continue the data (expected ${expectedX.toPrecision(10)} for point ${count + 1})`);
+    }
+    for (const v of vs) {
+      if (count >= nPoints) fail(i + 1, `more Y values than ##NPOINTS=${nPoints}`);
+      ys[count++] = v * yFactor;
+    }
+    // The last Y of a DIF line is a data point here and is repeated, as a check, at the start of the next line.
+    pendingCheck = endsWithDif ? (values[values.length - 1] as number) : undefined;
+  }
+  if (count !== nPoints) fail(dataEnd, `${count} Y values read, ##NPOINTS= says ${nPoints}`);
+  const x = Float64Array.from({ length: nPoints }, (_, k) => firstX + k * deltaX);
+  return { kind: 'spectrum', x, y: ys, xUnits, yUnits, title, labels };
+}
