@@ -15,7 +15,9 @@ import { typeDefs } from './graphql/schema.js';
 import { openapiInfo } from './openapi-info.js';
 import { checkRoutes } from './rest/checks.js';
 import { fitRoutes } from './rest/fits.js';
+import { peakRoutes } from './rest/peaks.js';
 import { speciesRoutes } from './rest/species.js';
+import { CSV_TYPES, JCAMP_TYPES, textBodyToJson } from './text-bodies.js';
 
 /** Deepest JSON nesting accepted; the contract's bodies need 4 levels. */
 export const MAX_JSON_DEPTH = 32;
@@ -79,6 +81,18 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
     });
   });
 
+  // JCAMP-DX and CSV bodies become the JSON body of the same endpoint (query string: species, temperature).
+  app.addContentTypeParser([...JCAMP_TYPES, ...CSV_TYPES], { parseAs: 'string' }, (req, body, done) => {
+    try {
+      done(
+        null,
+        textBodyToJson(String(req.headers['content-type'] ?? ''), body as string, req.query as Record<string, unknown>),
+      );
+    } catch (e) {
+      done(e as Error, undefined);
+    }
+  });
+
   app.addHook('onSend', async (request, reply) => {
     reply.header('x-request-id', request.id);
   });
@@ -139,6 +153,7 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
       scope.setSerializerCompiler(serializerCompiler);
       await scope.register(fitRoutes(config));
       await scope.register(checkRoutes(config));
+      await scope.register(peakRoutes);
       await scope.register(speciesRoutes);
     },
     { prefix: '/v1' },

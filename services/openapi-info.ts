@@ -13,6 +13,7 @@ export const openapiInfo = {
   tags: [
     { name: 'fits', description: 'Fit line lists to molecular constants' },
     { name: 'checks', description: 'QA verdicts and line predictions' },
+    { name: 'spectra', description: 'Spectra to peak lists' },
     { name: 'species', description: 'The reference library' },
   ],
 };

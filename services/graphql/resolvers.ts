@@ -6,9 +6,11 @@ import type { Config } from '../config.js';
 import { scienceProblem } from '../errors.js';
 import { checkRequestSchema } from '../schemas/checks.js';
 import { fitRequestSchema } from '../schemas/fit.js';
+import { PeaksRequestSchema } from '../schemas/peaks.js';
 import { PredictionRequestSchema } from '../schemas/predictions.js';
 import { runCheck } from '../usecases/check.js';
 import { runFit } from '../usecases/fit.js';
+import { runPeaks } from '../usecases/peaks.js';
 import { runPrediction } from '../usecases/predict.js';
 import { getSpecies, listSpecies } from '../usecases/species.js';
 
@@ -69,6 +71,13 @@ export function resolvers(config: Config) {
         const parsed = checkSchema.safeParse(body);
         if (!parsed.success) badInput(parsed.error);
         return guarded(() => runCheck(parsed.data));
+      },
+      peaks: (_: unknown, args: { spectrum: unknown; peakOptions?: unknown }) => {
+        const parsed = PeaksRequestSchema.safeParse(
+          dropNulls({ spectrum: args.spectrum, peakOptions: args.peakOptions }),
+        );
+        if (!parsed.success) badInput(parsed.error);
+        return guarded(() => runPeaks(parsed.data));
       },
       predict: (_: unknown, args: { input: unknown }) => {
         const parsed = PredictionRequestSchema.safeParse(dropNulls(args.input));

@@ -38,12 +38,54 @@ export const typeDefs = /* GraphQL */ `
     structureBand: String
   }
 
+  input SpectrumInput {
+    x: [Float!]!
+    y: [Float!]!
+    "absorbance (default) or transmittance"
+    yUnit: String
+    "cm-1 (default), um, nm"
+    xUnit: String
+  }
+
+  input PeakOptionsInput {
+    threshold: Float
+    "gaussian, lorentzian or voigt (default)"
+    shape: String
+  }
+
   input FitInput {
     species: String
     "cm-1 (default), MHz, GHz, THz, um, nm"
     unit: String
-    lines: [LineInput!]!
+    "lines or spectrum, exactly one"
+    lines: [LineInput!]
+    spectrum: SpectrumInput
+    peakOptions: PeakOptionsInput
     options: FitOptionsInput
+  }
+
+  type PeakOut {
+    position: Float!
+    uncertainty: Float!
+    intensity: Float!
+    width: Float!
+    height: Float!
+    lorentzianFraction: Float!
+  }
+
+  type PeaksResult {
+    peaks: [PeakOut!]!
+    points: Int!
+    noise: Float!
+    step: Float!
+    notice: String!
+  }
+
+  type SpectrumSummary {
+    points: Int!
+    peaks: Int!
+    noise: Float!
+    step: Float!
   }
 
   type Quantity {
@@ -204,6 +246,7 @@ export const typeDefs = /* GraphQL */ `
     combinationDifferences: JSON!
     crossChecks: JSON!
     assignment: AssignmentReport!
+    spectrum: SpectrumSummary
     warnings: [Warning!]!
     notice: String!
   }
@@ -273,6 +316,8 @@ export const typeDefs = /* GraphQL */ `
   type Query {
     "QA checks of a line list against a tolerance profile (the same use case as POST /v1/checks)."
     check(input: FitInput!, tolerances: JSON): CheckResult!
+    "Peaks of a spectrum (POST /v1/peaks)."
+    peaks(spectrum: SpectrumInput!, peakOptions: PeakOptionsInput): PeaksResult!
     "Predicted lines with propagated uncertainties (POST /v1/predictions)."
     predict(input: PredictionInput!): PredictionResult!
     "Fit an assigned line list (the same use case as POST /v1/fits)."

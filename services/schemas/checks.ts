@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { FitResponseSchema, fitRequestSchema } from './fit.js';
+import { exactlyOne, exactlyOneMessage, FitResponseSchema, fitRequestFields } from './fit.js';
 
 export const TolerancesSchema = z
   .strictObject({
@@ -24,7 +24,10 @@ export const TolerancesSchema = z
   .meta({ id: 'Tolerances', description: 'A tolerance profile; every field overrides one documented default.' });
 
 export function checkRequestSchema(maxLines: number) {
-  return fitRequestSchema(maxLines).extend({ tolerances: TolerancesSchema.optional() }).meta({ id: 'CheckRequest' });
+  return z
+    .strictObject({ ...fitRequestFields(maxLines), tolerances: TolerancesSchema.optional() })
+    .refine(exactlyOne, exactlyOneMessage)
+    .meta({ id: 'CheckRequest' });
 }
 export type CheckRequest = z.output<ReturnType<typeof checkRequestSchema>>;
 

@@ -74,17 +74,60 @@ export const FitOptionsSchema = z
   })
   .meta({ id: 'FitOptions' });
 
+/** Most points of a spectrum in one request. */
+export const MAX_SPECTRUM_POINTS = 5_000_000;
+
+export const SpectrumSchema = z
+  .strictObject({
+    x: z.array(z.number()).min(7).max(MAX_SPECTRUM_POINTS).describe('abscissa, increasing or decreasing'),
+    y: z.array(z.number()).min(7).max(MAX_SPECTRUM_POINTS),
+    yUnit: z
+      .enum(['absorbance', 'transmittance'])
+      .default('absorbance')
+      .describe('transmittance as a fraction or in per cent'),
+    xUnit: z.enum(['cm-1', 'um', 'nm']).default('cm-1').describe('wavenumber, or vacuum wavelength'),
+  })
+  .refine((s) => s.x.length === s.y.length, { message: 'x and y must have the same number of points', path: ['y'] })
+  .meta({ id: 'Spectrum' });
+
+export const PeakOptionsSchema = z
+  .strictObject({
+    threshold: z
+      .number()
+      .min(2)
+      .max(1000)
+      .optional()
+      .describe('detection threshold in noise standard deviations (default 6)'),
+    shape: z
+      .enum(['gaussian', 'lorentzian', 'voigt'])
+      .optional()
+      .describe('line shape fitted (default voigt: pseudo-Voigt)'),
+  })
+  .meta({ id: 'PeakOptions' });
+
+/** The fields of a fit request; `lines` or `spectrum`, exactly one (checked by fitRequestSchema). */
+export function fitRequestFields(maxLines: number) {
+  return {
+    species: SpeciesStringSchema.optional(),
+    unit: z.enum(POSITION_UNITS).optional().describe('unit of line positions and uncertainties (default cm-1)'),
+    lines: z.array(LineSchema).min(1).max(maxLines).optional(),
+    spectrum: SpectrumSchema.optional().describe(
+      'a spectrum instead of lines: peaks are found, then assigned and fitted',
+    ),
+    peakOptions: PeakOptionsSchema.optional(),
+    options: FitOptionsSchema.optional(),
+  };
+}
+
+const exactlyOne = (b: { lines?: unknown; spectrum?: unknown }) =>
+  (b.lines === undefined) !== (b.spectrum === undefined);
+const exactlyOneMessage = { message: 'give either "lines" or "spectrum", not both and not neither', path: ['lines'] };
+
 export function fitRequestSchema(maxLines: number) {
-  return z
-    .strictObject({
-      species: SpeciesStringSchema.optional(),
-      unit: z.enum(POSITION_UNITS).optional().describe('unit of positions and uncertainties (default cm-1)'),
-      lines: z.array(LineSchema).min(1).max(maxLines),
-      options: FitOptionsSchema.optional(),
-    })
-    .meta({ id: 'FitRequest' });
+  return z.strictObject(fitRequestFields(maxLines)).refine(exactlyOne, exactlyOneMessage).meta({ id: 'FitRequest' });
 }
 export type FitRequest = z.output<ReturnType<typeof fitRequestSchema>>;
+export { exactlyOne, exactlyOneMessage };
 
 const Q = QuantitySchema;
 
@@ -256,6 +299,10 @@ export const FitResponseSchema = z
       }),
     ),
     assignment: AssignmentReportSchema,
+    spectrum: z
+      .object({ points: z.number().int(), peaks: z.number().int(), noise: z.number(), step: z.number() })
+      .optional()
+      .describe('when a spectrum was sent: how many points, how many peaks found, the absorbance noise and the step'),
     warnings: z.array(WarningSchema),
     notice: z.string().describe('safety caution: the service certifies nothing about a gas'),
   })

@@ -6,6 +6,7 @@ import { type Isotopologue, parseSpecies } from '../../src/species/parse.js';
 import { toWavenumber } from '../../src/units.js';
 import { SAFETY_NOTICE } from '../notice.js';
 import type { FitRequest, FitResponse } from '../schemas/fit.js';
+import { peaksOf } from './peaks.js';
 import type { DeepReadonly } from './types.js';
 
 /**
@@ -20,6 +21,8 @@ export interface PreparedFit {
   readonly peaks: PeakInput[];
   readonly declared: Isotopologue | undefined;
   readonly options: FitRequest['options'];
+  /** When the request sent a spectrum: what the peak finder saw. */
+  readonly spectrum?: { points: number; peaks: number; noise: number; step: number };
 }
 
 export interface AnalysedFit extends PreparedFit {
@@ -39,7 +42,26 @@ export function prepareFit(req: FitRequest): PreparedFit {
       { line: index },
     );
   };
-  const peaks: PeakInput[] = req.lines.map((l, index) => {
+  if (req.spectrum) {
+    const found = peaksOf(req.spectrum, req.peakOptions);
+    if (found.peaks.length === 0) {
+      throw new ScienceError(
+        'FIT_NO_ASSIGNED_LINES',
+        `no peak stands above the detection threshold in the ${found.points}-point spectrum`,
+        {
+          points: found.points,
+          noise: found.noise,
+        },
+      );
+    }
+    return {
+      peaks: found.peaks.map((p) => ({ position: p.position, uncertainty: p.uncertainty, intensity: p.intensity })),
+      declared,
+      options: req.options,
+      spectrum: { points: found.points, peaks: found.peaks.length, noise: found.noise, step: found.step },
+    };
+  }
+  const peaks: PeakInput[] = (req.lines ?? []).map((l, index) => {
     const c = toWavenumber(l.position, unit, l.uncertainty);
     const base = {
       position: c.value,
@@ -90,6 +112,7 @@ export function presentFit(a: AnalysedFit): FitResponse {
         return { index: i, position: p.position, ...(p.intensity !== undefined ? { intensity: p.intensity } : {}) };
       }),
     },
+    ...(a.spectrum ? { spectrum: a.spectrum } : {}),
     notice: SAFETY_NOTICE,
   };
   return response as FitResponse;

@@ -1,0 +1,23 @@
+import { findPeaks, type PeakResult } from '../../src/spectra/peaks.js';
+import { toWavenumber } from '../../src/units.js';
+import { SAFETY_NOTICE } from '../notice.js';
+import type { FitRequest } from '../schemas/fit.js';
+import type { PeaksRequest, PeaksResponse } from '../schemas/peaks.js';
+
+type Spectrum = NonNullable<FitRequest['spectrum']>;
+
+/** Peaks of a spectrum given in any supported x unit; x is converted to cm⁻¹ first. */
+export function peaksOf(spectrum: Spectrum, options: FitRequest['peakOptions'] = {}): PeakResult {
+  const x = spectrum.xUnit === 'cm-1' ? spectrum.x : spectrum.x.map((v) => toWavenumber(v, spectrum.xUnit).value);
+  return findPeaks(x, spectrum.y, {
+    yUnit: spectrum.yUnit,
+    ...(options.threshold !== undefined ? { threshold: options.threshold } : {}),
+    ...(options.shape !== undefined ? { shape: options.shape } : {}),
+  });
+}
+
+/** POST /v1/peaks. */
+export function runPeaks(req: PeaksRequest): PeaksResponse {
+  const r = peaksOf(req.spectrum, req.peakOptions);
+  return { peaks: r.peaks, points: r.points, noise: r.noise, step: r.step, notice: SAFETY_NOTICE };
+}
