@@ -60,9 +60,9 @@ describe('spectra through the service', () => {
     ).json();
     expect(b.peaks.length).toBe(a.peaks.length);
     // The JCAMP file rounds absorbance to 1e-5: positions agree within their uncertainty.
-    b.peaks.forEach((p: { position: number; uncertainty: number }, i: number) =>
-      expect(Math.abs(p.position - a.peaks[i].position)).toBeLessThan(p.uncertainty),
-    );
+    b.peaks.forEach((p: { position: number; uncertainty: number }, i: number) => {
+      expect(Math.abs(p.position - a.peaks[i].position)).toBeLessThan(p.uncertainty);
+    });
   });
 
   it('POST /v1/fits?species=HCl with a JCAMP-DX body chains peaks → assignment → fit: B_e within 4σ of Huber & Herzberg', async () => {
