@@ -10,6 +10,8 @@ import { execFileSync } from 'node:child_process';
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { performance } from 'node:perf_hooks';
 import { buildApp } from '../services/app.js';
+import { checkRequestSchema } from '../services/schemas/checks.js';
+import { runCheck } from '../services/usecases/check.js';
 import { analyseLineList } from '../src/assign/analyse.js';
 import { fitLineList, type LineInput } from '../src/fit/fit-lines.js';
 import { solveLeastSquares } from '../src/linalg/least-squares.js';
@@ -19,7 +21,9 @@ import { predictBand } from '../src/models/predict.js';
 import { constantsFor, dunhamFromEntry } from '../src/species/library.js';
 import { parseSpecies } from '../src/species/parse.js';
 import { reducedMass } from '../src/species/reduced-mass.js';
+import { findPeaks } from '../src/spectra/peaks.js';
 import { syntheticScan } from '../test/helpers/scans.js';
+import { syntheticSpectrum } from '../test/helpers/spectra.js';
 
 const iso = parseSpecies('CO');
 const y = dunhamFromEntry(constantsFor(iso) ?? (undefined as never));
@@ -149,6 +153,47 @@ for (const r of rows) {
   console.log(`| CO at 1500 K, 1-0 + 2-1 + 3-2, 25 % spurious, 10 % lost | ${scan.peaks.length} | ${fmt(t)} |`);
   const t2 = time(() => void analyseLineList(scan.peaks, undefined, { temperature: 1500 }), 2000);
   console.log(`| the same with the species identified from the library | ${scan.peaks.length} | ${fmt(t2)} |`);
+}
+
+// Spectra: peaks of a 1 000 000-point spectrum, and a spectrum all the way to a QA verdict.
+{
+  const co = predictBand(y, { upper: 1, lower: 0 }, 30).map((p) => ({
+    position: p.position,
+    strength: 0.5 * ((p.branch === 'R' ? p.j + 1 : p.j) / 8) * Math.exp((-1.4388 * p.lowerEnergy) / 296) + 0.01,
+  }));
+  const big = syntheticSpectrum({
+    lines: co,
+    from: 2000,
+    to: 2300,
+    step: 0.0003,
+    gaussianFwhm: 0.006,
+    lorentzianFwhm: 0.003,
+    noise: 0.0005,
+    baseline: [0.02, 1e-5],
+    seed: 1,
+  });
+  const tPeaks = time(() => void findPeaks(big.x, big.y), 3000);
+  const small = syntheticSpectrum({
+    lines: co,
+    from: 2000,
+    to: 2300,
+    step: 0.05,
+    gaussianFwhm: 0.2,
+    lorentzianFwhm: 0.1,
+    noise: 0.0005,
+    baseline: [0.02, 1e-5],
+    seed: 2,
+  });
+  const body = checkRequestSchema(100_000).parse({
+    species: 'CO',
+    spectrum: { x: Array.from(small.x), y: Array.from(small.y) },
+  });
+  const tVerdict = time(() => void runCheck(body), 2000);
+  console.log('\nSpectra');
+  console.log('| task | points | time |');
+  console.log('| --- | ---: | ---: |');
+  console.log(`| peaks of a CO fundamental (baseline, noise, pseudo-Voigt fits) | ${big.x.length} | ${fmt(tPeaks)} |`);
+  console.log(`| spectrum → peaks → assignment → fit → QA verdict | ${small.x.length} | ${fmt(tVerdict)} |`);
 }
 
 // HTTP round trip of a 60-line fit on loopback.

@@ -25,6 +25,8 @@ export interface LeastSquaresInput {
    * Default max(rows, cols) · ε, the convention of LAPACK-based solvers such as numpy's lstsq.
    */
   readonly rankTolerance?: number;
+  /** Compute the condition number (one small SVD). Default true; inner loops of nonlinear fits skip it. */
+  readonly conditionNumber?: boolean;
 }
 
 export interface LeastSquaresResult {
@@ -167,7 +169,12 @@ export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult 
     r[i * p + i] = rdiag[i] as number;
     for (let j = i + 1; j < p; j++) r[i * p + j] = a[j * n + i] as number;
   }
-  const conditionNumber = rank < p ? Number.POSITIVE_INFINITY : triangularConditionNumber(r, p);
+  const conditionNumber =
+    rank < p
+      ? Number.POSITIVE_INFINITY
+      : input.conditionNumber === false
+        ? Number.NaN
+        : triangularConditionNumber(r, p);
 
   if (rank < p) {
     return {
