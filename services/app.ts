@@ -13,9 +13,11 @@ import { PROBLEM_DESCRIPTIONS, problemType, sendProblem, toProblem } from './err
 import { resolvers } from './graphql/resolvers.js';
 import { typeDefs } from './graphql/schema.js';
 import { openapiInfo } from './openapi-info.js';
+import { PAGE } from './page/index.js';
 import { checkRoutes } from './rest/checks.js';
 import { fitRoutes } from './rest/fits.js';
 import { peakRoutes } from './rest/peaks.js';
+import { reportRoutes } from './rest/reports.js';
 import { speciesRoutes } from './rest/species.js';
 import { CSV_TYPES, JCAMP_TYPES, textBodyToJson } from './text-bodies.js';
 
@@ -134,6 +136,7 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
     transformObject: jsonSchemaTransformObject,
   });
 
+  app.get('/', { schema: { hide: true } }, async (_req, reply) => reply.type('text/html; charset=utf-8').send(PAGE));
   app.get('/healthz', { schema: { hide: true } }, async () => ({ status: 'ok' }));
   app.get('/readyz', { schema: { hide: true } }, async (_req, reply) => {
     if (!app.appState.ready) return reply.status(503).send({ status: 'shutting down' });
@@ -154,6 +157,7 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
       await scope.register(fitRoutes(config));
       await scope.register(checkRoutes(config));
       await scope.register(peakRoutes);
+      await scope.register(reportRoutes(config));
       await scope.register(speciesRoutes);
     },
     { prefix: '/v1' },

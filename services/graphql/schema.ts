@@ -125,6 +125,7 @@ export const typeDefs = /* GraphQL */ `
   type LineOutcome {
     index: Int!
     position: Float!
+    intensity: Float
     assignment: LineAssignment
     calculated: Float
     residual: Float

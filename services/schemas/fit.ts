@@ -134,6 +134,7 @@ const Q = QuantitySchema;
 export const LineOutcomeSchema = z.object({
   index: z.number().int(),
   position: z.number().describe('cm-1'),
+  intensity: z.number().optional().describe('as sent'),
   assignment: z
     .object({
       band: z.string(),

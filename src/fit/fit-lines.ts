@@ -75,6 +75,8 @@ export type LineStatus = 'fitted' | 'rejected' | 'unassigned';
 export interface LineOutcome {
   readonly index: number;
   readonly position: number;
+  /** The intensity sent with the line, echoed. */
+  readonly intensity?: number;
   readonly assignment?: {
     readonly band: string;
     readonly branch: Branch;
@@ -356,7 +358,8 @@ export function fitLineListDetailed(
   const byIndex = new Map(observations.map((o) => [o.index, o]));
   const lines: LineOutcome[] = input.map((l, index) => {
     const a = transitions.get(index);
-    if (!a) return { index, position: l.position, status: 'unassigned' as const };
+    const echo = l.intensity !== undefined ? { intensity: l.intensity } : {};
+    if (!a) return { index, position: l.position, ...echo, status: 'unassigned' as const };
     const assignment = { band: formatBand(a.band), branch: a.branch, j: a.j, species: a.species, source: a.source };
     const ki = keptPos.get(index);
     if (ki !== undefined) {
@@ -364,6 +367,7 @@ export function fitLineListDetailed(
       return {
         index,
         position: l.position,
+        ...echo,
         assignment,
         calculated: l.position - residual,
         residual,
@@ -375,6 +379,7 @@ export function fitLineListDetailed(
     const out: LineOutcome = {
       index,
       position: l.position,
+      ...echo,
       assignment,
       status: 'rejected' as const,
       reason: rejected.get(index) ?? 'rejected',

@@ -1,0 +1,29 @@
+import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
+import { z } from 'zod';
+import type { Config } from '../config.js';
+import { checkRequestSchema } from '../schemas/checks.js';
+import { problemResponses } from '../schemas/common.js';
+import { runReport } from '../usecases/report.js';
+
+/** POST /v1/reports. */
+export const reportRoutes =
+  (config: Config): FastifyPluginAsyncZod =>
+  async (app) => {
+    app.post(
+      '/reports',
+      {
+        schema: {
+          tags: ['checks'],
+          summary: 'A readable QA report',
+          description:
+            'The body of /v1/checks (JSON, JCAMP-DX or CSV) → one self-contained HTML document: verdict, checks, constants, stick spectrum, residuals, combination differences, Boltzmann plot, Fortrat diagram, unexplained lines and the cautions.',
+          body: checkRequestSchema(config.maxLines),
+          response: {
+            200: { description: 'the report', content: { 'text/html': { schema: z.string() } } },
+            ...problemResponses,
+          },
+        },
+      },
+      async (req, reply) => reply.type('text/html; charset=utf-8').send(runReport(req.body)),
+    );
+  };
