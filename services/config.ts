@@ -1,3 +1,6 @@
+import { readFileSync } from 'node:fs';
+import { availableParallelism } from 'node:os';
+
 /**
  * Service configuration from the environment, read once at start-up. Every setting has a documented default;
  * see .env.example.
@@ -9,10 +12,28 @@ export interface Config {
   readonly port: number;
   /** pino log level. Default "info". */
   readonly logLevel: string;
-  /** Largest accepted request body in bytes. Default 8 MiB. */
+  /** Largest accepted request body in bytes on the line-list and spectrum routes. Default 32 MiB. */
   readonly bodyLimit: number;
+  /** Largest body on the small routes (predictions, GraphQL). Default 1 MiB. */
+  readonly smallBodyLimit: number;
   /** Most lines in one fit request. Default 100 000. */
   readonly maxLines: number;
+  /** Bearer API keys; empty: no authentication. From API_KEYS (comma-separated) and/or API_KEYS_FILE (one a line). */
+  readonly apiKeys: readonly string[];
+  /** Origins allowed by CORS; empty (the default): CORS closed. CORS_ORIGINS, comma-separated. */
+  readonly corsOrigins: readonly string[];
+  /** Requests per minute per API key (or per address without keys); 0 turns rate limiting off. Default 600. */
+  readonly rateLimitPerMinute: number;
+  /** Worker threads for large fits; 0 runs everything on the event loop. Default: cores − 1 (at least 1). */
+  readonly workers: number;
+  /** Requests with more lines (or spectra with more points / 100) than this go to the worker pool. Default 2 000. */
+  readonly workerThreshold: number;
+  /** Whole-request timeout in ms (0: none). Default 120 000. */
+  readonly requestTimeoutMs: number;
+  /** Event-loop delay in ms above which the service sheds load with 503 (0: off). Default 1 000. */
+  readonly maxEventLoopDelayMs: number;
+  /** Heap in bytes above which the service sheds load with 503 (0: off, the default). */
+  readonly maxHeapUsedBytes: number;
 }
 
 function intFrom(env: NodeJS.ProcessEnv, name: string, fallback: number, min: number, max: number): number {
@@ -25,15 +46,35 @@ function intFrom(env: NodeJS.ProcessEnv, name: string, fallback: number, min: nu
   return n;
 }
 
+const list = (raw: string | undefined) =>
+  (raw ?? '')
+    .split(/[,\n]/)
+    .map((s) => s.trim())
+    .filter((s) => s !== '' && !s.startsWith('#'));
+
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
+  const keys = [...list(env.API_KEYS), ...(env.API_KEYS_FILE ? list(readFileSync(env.API_KEYS_FILE, 'utf8')) : [])];
+  if (keys.some((k) => k.length < 16)) throw new Error('every API key must be at least 16 characters long');
   return {
     host: env.HOST || '127.0.0.1',
     port: intFrom(env, 'PORT', 8080, 0, 65535),
     logLevel: env.LOG_LEVEL || 'info',
-    bodyLimit: intFrom(env, 'BODY_LIMIT', 8 * 1024 * 1024, 1024, 512 * 1024 * 1024),
+    bodyLimit: intFrom(env, 'BODY_LIMIT', 32 * 1024 * 1024, 1024, 512 * 1024 * 1024),
+    smallBodyLimit: intFrom(env, 'SMALL_BODY_LIMIT', 1024 * 1024, 1024, 64 * 1024 * 1024),
     maxLines: intFrom(env, 'MAX_LINES', 100_000, 1, 10_000_000),
+    apiKeys: keys,
+    corsOrigins: list(env.CORS_ORIGINS),
+    rateLimitPerMinute: intFrom(env, 'RATE_LIMIT_PER_MINUTE', 600, 0, 10_000_000),
+    workers: intFrom(env, 'WORKERS', Math.max(1, availableParallelism() - 1), 0, 256),
+    workerThreshold: intFrom(env, 'WORKER_THRESHOLD', 2000, 1, 100_000_000),
+    requestTimeoutMs: intFrom(env, 'REQUEST_TIMEOUT_MS', 120_000, 0, 3_600_000),
+    maxEventLoopDelayMs: intFrom(env, 'MAX_EVENT_LOOP_DELAY_MS', 1000, 0, 600_000),
+    maxHeapUsedBytes: intFrom(env, 'MAX_HEAP_USED_BYTES', 0, 0, Number.MAX_SAFE_INTEGER),
   };
 }
 
-/** Defaults for tests and tools that build the app without an environment. */
-export const DEFAULT_CONFIG: Config = loadConfig({});
+/**
+ * Defaults for tests and tools that build the app without an environment: no workers, no rate limit, no load
+ * shedding (tests that exercise those set them).
+ */
+export const DEFAULT_CONFIG: Config = { ...loadConfig({}), workers: 0, rateLimitPerMinute: 0, maxEventLoopDelayMs: 0 };

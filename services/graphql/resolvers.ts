@@ -1,9 +1,11 @@
+import type { FastifyInstance } from 'fastify';
 import { GraphQLScalarType } from 'graphql';
 import mercurius from 'mercurius';
 import type { z } from 'zod';
 import { ScienceError } from '../../src/errors.js';
 import type { Config } from '../config.js';
 import { scienceProblem } from '../errors.js';
+import { jobSize } from '../pool.js';
 import { checkRequestSchema } from '../schemas/checks.js';
 import { fitRequestSchema } from '../schemas/fit.js';
 import { PeaksRequestSchema } from '../schemas/peaks.js';
@@ -39,9 +41,9 @@ function badInput(error: z.ZodError): never {
 }
 
 /** Run a use case, turning science errors into GraphQL errors with the REST problem's code and fields. */
-function guarded<T>(f: () => T): T {
+async function guarded<T>(f: () => T | Promise<T>): Promise<T> {
   try {
-    return f();
+    return await f();
   } catch (e) {
     if (e instanceof ScienceError) {
       const p = scienceProblem(e);
@@ -52,7 +54,7 @@ function guarded<T>(f: () => T): T {
   }
 }
 
-export function resolvers(config: Config) {
+export function resolvers(config: Config, app?: FastifyInstance) {
   const schema = fitRequestSchema(config.maxLines);
   const checkSchema = checkRequestSchema(config.maxLines);
   return {
@@ -61,16 +63,18 @@ export function resolvers(config: Config) {
       fit: (_: unknown, args: { input: unknown }) => {
         const parsed = schema.safeParse(dropNulls(args.input));
         if (!parsed.success) badInput(parsed.error);
-        return guarded(() => runFit(parsed.data));
+        const body = parsed.data;
+        return guarded(() => (app ? app.pool.run({ kind: 'fit', body }, jobSize(body)) : runFit(body)));
       },
       check: (_: unknown, args: { input: unknown; tolerances?: unknown }) => {
-        const body = dropNulls({
+        const raw = dropNulls({
           ...(args.input as object),
           ...(args.tolerances != null ? { tolerances: args.tolerances } : {}),
         });
-        const parsed = checkSchema.safeParse(body);
+        const parsed = checkSchema.safeParse(raw);
         if (!parsed.success) badInput(parsed.error);
-        return guarded(() => runCheck(parsed.data));
+        const body = parsed.data;
+        return guarded(() => (app ? app.pool.run({ kind: 'check', body }, jobSize(body)) : runCheck(body)));
       },
       peaks: (_: unknown, args: { spectrum: unknown; peakOptions?: unknown }) => {
         const parsed = PeaksRequestSchema.safeParse(

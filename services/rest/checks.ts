@@ -1,10 +1,12 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import type { Config } from '../config.js';
-import { CheckResponseSchema, checkRequestSchema } from '../schemas/checks.js';
+import { jobSize } from '../pool.js';
+import { type CheckResponse, CheckResponseSchema, checkRequestSchema } from '../schemas/checks.js';
 import { problemResponses } from '../schemas/common.js';
 import { PredictionRequestSchema, PredictionResponseSchema } from '../schemas/predictions.js';
-import { runCheck } from '../usecases/check.js';
+import { SpeciesQuerySchema } from '../schemas/query.js';
 import { runPrediction } from '../usecases/predict.js';
+import { timed } from './timed.js';
 
 /** POST /v1/checks and POST /v1/predictions. */
 export const checkRoutes =
@@ -13,20 +15,29 @@ export const checkRoutes =
     app.post(
       '/checks',
       {
+        bodyLimit: config.bodyLimit,
         schema: {
           tags: ['checks'],
-          summary: 'QA verdict on a line list',
+          summary: 'QA verdict on a line list or spectrum',
           description:
             'Fits the lines (assigning them if needed) and checks identity, wavenumber calibration, unexplained lines, isotope ratio, rotational temperature and fit quality against a tolerance profile. Not a safety or purity certification.',
+          querystring: SpeciesQuerySchema,
           body: checkRequestSchema(config.maxLines),
           response: { 200: CheckResponseSchema, ...problemResponses },
         },
       },
-      async (req) => runCheck(req.body),
+      async (req) => {
+        const r = await timed(app, 'check', jobSize(req.body), () =>
+          app.pool.run<CheckResponse>({ kind: 'check', body: req.body }, jobSize(req.body)),
+        );
+        app.metrics.verdicts.labels(r.verdict).inc();
+        return r;
+      },
     );
     app.post(
       '/predictions',
       {
+        bodyLimit: config.smallBodyLimit,
         schema: {
           tags: ['checks'],
           summary: 'Predicted lines with propagated uncertainties',

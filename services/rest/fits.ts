@@ -1,8 +1,11 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import type { Config } from '../config.js';
+import { jobSize } from '../pool.js';
 import { problemResponses } from '../schemas/common.js';
+import type { FitResponse } from '../schemas/fit.js';
 import { FitResponseSchema, fitRequestSchema } from '../schemas/fit.js';
-import { runFit } from '../usecases/fit.js';
+import { SpeciesQuerySchema } from '../schemas/query.js';
+import { timed } from './timed.js';
 
 /** POST /v1/fits. */
 export const fitRoutes =
@@ -11,15 +14,20 @@ export const fitRoutes =
     app.post(
       '/fits',
       {
+        bodyLimit: config.bodyLimit,
         schema: {
           tags: ['fits'],
-          summary: 'Fit an assigned line list',
+          summary: 'Fit a line list or a spectrum',
           description:
-            'Fits band origins, per-level rotational and centrifugal constants and, across bands, Dunham coefficients and equilibrium constants, with full covariance. Lines come back in request order with their status.',
+            'Fits band origins, per-level rotational and centrifugal constants and, across bands, Dunham coefficients and equilibrium constants, with full covariance. Unassigned lines are assigned first; a spectrum (JSON, JCAMP-DX or CSV) is turned into peaks first. Lines come back in request order with their status.',
+          querystring: SpeciesQuerySchema,
           body: fitRequestSchema(config.maxLines),
           response: { 200: FitResponseSchema, ...problemResponses },
         },
       },
-      async (req) => runFit(req.body),
+      async (req) =>
+        timed(app, 'fit', jobSize(req.body), () =>
+          app.pool.run<FitResponse>({ kind: 'fit', body: req.body }, jobSize(req.body)),
+        ),
     );
   };

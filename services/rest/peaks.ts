@@ -1,22 +1,30 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
+import type { Config } from '../config.js';
+import { jobSize } from '../pool.js';
 import { problemResponses } from '../schemas/common.js';
-import { PeaksRequestSchema, PeaksResponseSchema } from '../schemas/peaks.js';
-import { runPeaks } from '../usecases/peaks.js';
+import { PeaksRequestSchema, type PeaksResponse, PeaksResponseSchema } from '../schemas/peaks.js';
+import { timed } from './timed.js';
 
 /** POST /v1/peaks. */
-export const peakRoutes: FastifyPluginAsyncZod = async (app) => {
-  app.post(
-    '/peaks',
-    {
-      schema: {
-        tags: ['spectra'],
-        summary: 'Peaks of a spectrum',
-        description:
-          'Baseline, noise, and pseudo-Voigt line-shape fits (blends fitted together) give each peak position with its standard uncertainty, integrated intensity and width. The body is JSON, a JCAMP-DX file (chemical/x-jcamp-dx) or CSV (text/csv).',
-        body: PeaksRequestSchema,
-        response: { 200: PeaksResponseSchema, ...problemResponses },
+export const peakRoutes =
+  (config: Config): FastifyPluginAsyncZod =>
+  async (app) => {
+    app.post(
+      '/peaks',
+      {
+        bodyLimit: config.bodyLimit,
+        schema: {
+          tags: ['spectra'],
+          summary: 'Peaks of a spectrum',
+          description:
+            'Baseline, noise, and pseudo-Voigt line-shape fits (blends fitted together) give each peak position with its standard uncertainty, integrated intensity and width. The body is JSON, a JCAMP-DX file (chemical/x-jcamp-dx) or CSV (text/csv).',
+          body: PeaksRequestSchema,
+          response: { 200: PeaksResponseSchema, ...problemResponses },
+        },
       },
-    },
-    async (req) => runPeaks(req.body),
-  );
-};
+      async (req) =>
+        timed(app, 'peaks', jobSize(req.body), () =>
+          app.pool.run<PeaksResponse>({ kind: 'peaks', body: req.body }, jobSize(req.body)),
+        ),
+    );
+  };

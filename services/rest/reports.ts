@@ -1,9 +1,11 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import type { Config } from '../config.js';
+import { jobSize } from '../pool.js';
 import { checkRequestSchema } from '../schemas/checks.js';
 import { problemResponses } from '../schemas/common.js';
-import { runReport } from '../usecases/report.js';
+import { SpeciesQuerySchema } from '../schemas/query.js';
+import { timed } from './timed.js';
 
 /** POST /v1/reports. */
 export const reportRoutes =
@@ -12,11 +14,13 @@ export const reportRoutes =
     app.post(
       '/reports',
       {
+        bodyLimit: config.bodyLimit,
         schema: {
           tags: ['checks'],
           summary: 'A readable QA report',
           description:
             'The body of /v1/checks (JSON, JCAMP-DX or CSV) → one self-contained HTML document: verdict, checks, constants, stick spectrum, residuals, combination differences, Boltzmann plot, Fortrat diagram, unexplained lines and the cautions.',
+          querystring: SpeciesQuerySchema,
           body: checkRequestSchema(config.maxLines),
           response: {
             200: { description: 'the report', content: { 'text/html': { schema: z.string() } } },
@@ -24,6 +28,11 @@ export const reportRoutes =
           },
         },
       },
-      async (req, reply) => reply.type('text/html; charset=utf-8').send(runReport(req.body)),
+      async (req, reply) => {
+        const html = await timed(app, 'report', jobSize(req.body), () =>
+          app.pool.run<string>({ kind: 'report', body: req.body }, jobSize(req.body)),
+        );
+        return reply.type('text/html; charset=utf-8').send(html);
+      },
     );
   };
