@@ -25,6 +25,7 @@ import { createMetrics, type Metrics } from './metrics.js';
 import { openapiInfo } from './openapi-info.js';
 import { PAGE } from './page/index.js';
 import { createPool, type Pool } from './pool.js';
+import { batchRoutes, NDJSON } from './rest/batch.js';
 import { checkRoutes } from './rest/checks.js';
 import { fitRoutes } from './rest/fits.js';
 import { peakRoutes } from './rest/peaks.js';
@@ -212,6 +213,9 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
     }
   });
 
+  // NDJSON batches are read as a stream by their route, line by line.
+  app.addContentTypeParser(NDJSON, (_req, payload, done) => done(null, payload));
+
   app.addHook('onSend', async (request, reply) => {
     reply.header('x-request-id', request.id);
   });
@@ -278,6 +282,7 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
       await scope.register(checkRoutes(config));
       await scope.register(peakRoutes(config));
       await scope.register(reportRoutes(config));
+      await scope.register(batchRoutes(config));
       await scope.register(speciesRoutes);
     },
     { prefix: '/v1' },

@@ -14,6 +14,7 @@ export const openapiInfo = {
     { name: 'fits', description: 'Fit line lists to molecular constants' },
     { name: 'checks', description: 'QA verdicts and line predictions' },
     { name: 'spectra', description: 'Spectra to peak lists' },
+    { name: 'batch', description: 'Archives as NDJSON streams' },
     { name: 'species', description: 'The reference library' },
   ],
 };

@@ -336,6 +336,10 @@ function fitGroup(
   let current = chi(p);
   const freeIdx = free.flatMap((f, j) => (f ? [j] : []));
   const q = freeIdx.length;
+  if (npts <= q) {
+    // Too few points in the window to fit these profiles: nothing comes of it.
+    return { profiles: [], rss: 0, dof: 0, model: () => 0 };
+  }
   let jac = new Float64Array(0);
   for (let iter = 0; iter < 60; iter++) {
     // Analytic Jacobian of the pseudo-Voigt sum and the baseline, column-major over the free parameters.

@@ -147,6 +147,66 @@ describe('fuzzing', () => {
       },
     );
   });
+  it('POST /v1/peaks with arbitrary spectra', async () => {
+    const spectrum = fc.record(
+      {
+        x: fc.oneof(
+          fc.array(numberish, { maxLength: 40 }),
+          fc.constant(Array.from({ length: 30 }, (_, i) => 2000 + i * 0.1)),
+        ),
+        y: fc.oneof(
+          fc.array(numberish, { maxLength: 40 }),
+          fc.array(fc.double({ min: -1, max: 2, noNaN: true }), { minLength: 30, maxLength: 30 }),
+        ),
+        yUnit: fc.constantFrom('absorbance', 'transmittance', 'other'),
+        xUnit: fc.constantFrom('cm-1', 'um', 'nm', 'furlong'),
+      },
+      { requiredKeys: [] },
+    );
+    await fc.assert(
+      fc.asyncProperty(
+        spectrum,
+        fc.record({ threshold: numberish, shape: fc.constantFrom('gaussian', 'voigt', 'x') }, { requiredKeys: [] }),
+        async (sp, po) => void (await check('POST', '/v1/peaks', JSON.stringify({ spectrum: sp, peakOptions: po }))),
+      ),
+      { numRuns: 1000, seed: 48 },
+    );
+  });
+  it('POST /v1/reports with mutated bodies', async () => {
+    await fc.assert(
+      fc.asyncProperty(mutatedBody, async (v) => void (await check('POST', '/v1/reports', JSON.stringify(v)))),
+      {
+        numRuns: 1000,
+        seed: 49,
+      },
+    );
+  });
+  it('POST /v1/batch/fits with arbitrary NDJSON answers 200 with one line per request, never a 5xx line', async () => {
+    const line = fc.oneof(
+      mutatedBody.map((b) => JSON.stringify(b)),
+      fc.string({ maxLength: 40 }),
+      anyJson.map((j) => JSON.stringify(j)),
+    );
+    await fc.assert(
+      fc.asyncProperty(fc.array(line, { maxLength: 5 }), async (lines) => {
+        const payload = lines.map((l) => l.replace(/\n/g, ' ')).join('\n');
+        const r = await app().inject({
+          method: 'POST',
+          url: '/v1/batch/fits',
+          payload,
+          headers: { 'content-type': 'application/x-ndjson' },
+        });
+        expect(r.statusCode).toBe(200);
+        const out = r.body
+          .split('\n')
+          .filter((l) => l.trim() !== '')
+          .map((l) => JSON.parse(l) as { status: number });
+        expect(out.length).toBe(lines.filter((l) => l.replace(/\n/g, ' ').trim() !== '').length);
+        for (const o of out) expect(o.status).toBeLessThan(500);
+      }),
+      { numRuns: 300, seed: 50 },
+    );
+  });
   it('GET /v1/species/{formula} with arbitrary strings', async () => {
     await fc.assert(
       fc.asyncProperty(

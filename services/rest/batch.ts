@@ -1,0 +1,97 @@
+import { createInterface } from 'node:readline';
+import { PassThrough, type Readable } from 'node:stream';
+import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
+import { z } from 'zod';
+import type { Config } from '../config.js';
+import { toProblem } from '../errors.js';
+import { jobSize } from '../pool.js';
+import { checkRequestSchema } from '../schemas/checks.js';
+import { fitRequestSchema } from '../schemas/fit.js';
+import { timed } from './timed.js';
+
+export const NDJSON = 'application/x-ndjson';
+
+/**
+ * POST /v1/batch/fits and /v1/batch/checks: NDJSON in (one request body a line), NDJSON out (one result a line,
+ * in the same order), processed one at a time as the lines arrive, so that memory stays bounded however long
+ * the archive. A line that fails carries its problem; the stream goes on.
+ */
+export const batchRoutes =
+  (config: Config): FastifyPluginAsyncZod =>
+  async (app) => {
+    const kinds = {
+      fits: { kind: 'fit', schema: fitRequestSchema(config.maxLines) },
+      checks: { kind: 'check', schema: checkRequestSchema(config.maxLines) },
+    } as const;
+    for (const [path, { kind, schema }] of Object.entries(kinds)) {
+      app.post(
+        `/batch/${path}`,
+        {
+          schema: {
+            tags: ['batch'],
+            summary: `Many ${path} as NDJSON`,
+            description: `Send ${NDJSON}: one /v1/${path} request body a line. The answer streams one line per request, in order: {"index", "status", "result"} or {"index", "status", "problem"}. Each line may be at most BODY_LIMIT bytes.`,
+            response: {
+              200: { description: 'one result a line', content: { [NDJSON]: { schema: z.string() } } },
+            },
+          },
+        },
+        async (req, reply) => {
+          const input = req.body as Readable;
+          const out = new PassThrough();
+          reply.type(NDJSON);
+          const write = async (obj: unknown) => {
+            if (!out.write(`${JSON.stringify(obj)}\n`)) await new Promise((r) => out.once('drain', r));
+          };
+          (async () => {
+            const lines = createInterface({ input, crlfDelay: Number.POSITIVE_INFINITY });
+            let index = 0;
+            for await (const line of lines) {
+              if (line.trim() === '') continue;
+              const i = index++;
+              try {
+                if (line.length > config.bodyLimit)
+                  throw Object.assign(new Error(`line ${i} is longer than ${config.bodyLimit} bytes`), {
+                    statusCode: 413,
+                    code: 'FST_ERR_CTP_BODY_TOO_LARGE',
+                  });
+                const parsed = schema.safeParse(JSON.parse(line));
+                if (!parsed.success) {
+                  await write({
+                    index: i,
+                    status: 400,
+                    problem: {
+                      type: '/problems/validation-failed',
+                      title: 'Request does not match the schema',
+                      status: 400,
+                      code: 'VALIDATION_FAILED',
+                      detail: parsed.error.issues
+                        .slice(0, 3)
+                        .map((x) => `${x.path.join('/') || '(body)'}: ${x.message}`)
+                        .join('; '),
+                      errors: parsed.error.issues.map((x) => ({ path: x.path.join('/'), message: x.message })),
+                    },
+                  });
+                  continue;
+                }
+                const body = parsed.data;
+                const result = await timed(app, kind, jobSize(body), () =>
+                  app.pool.run({ kind, body } as never, jobSize(body)),
+                );
+                await write({ index: i, status: 200, result });
+              } catch (e) {
+                const p = toProblem(e instanceof SyntaxError ? Object.assign(e, { statusCode: 400 }) : e, req);
+                if (p.status >= 500) req.log.error({ err: e, index: i }, 'batch line failed');
+                await write({ index: i, status: p.status, problem: p });
+              }
+            }
+            out.end();
+          })().catch((e) => {
+            req.log.error({ err: e }, 'batch stream failed');
+            out.destroy(e as Error);
+          });
+          return reply.send(out as never);
+        },
+      );
+    }
+  };
