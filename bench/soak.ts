@@ -2,38 +2,18 @@
  * Memory over 100 000 requests (bounded): the server in its own process; resident memory and heap read from
  * /metrics after a warm-up and at the end. `npm run soak`. Prints the growth; asserts nothing.
  */
-import { spawn } from 'node:child_process';
 import autocannon from 'autocannon';
+import { startServer } from './server-process.js';
 
 const port = 18091;
 const total = Number(process.env.SOAK_REQUESTS ?? 100_000);
-const server = spawn('npx', ['tsx', 'services/server.ts'], {
-  env: {
-    ...process.env,
-    PORT: String(port),
-    HOST: '127.0.0.1',
-    LOG_LEVEL: 'warn',
-    RATE_LIMIT_PER_MINUTE: '0',
-    WORKERS: '0',
-    MAX_EVENT_LOOP_DELAY_MS: '0',
-  },
-  stdio: 'ignore',
-  detached: true,
-});
+const server = await startServer(port);
 const memory = async () => {
   const m = await (await fetch(`http://127.0.0.1:${port}/metrics`)).text();
   const get = (name: string) => Number(new RegExp(`^${name} (\\S+)`, 'm').exec(m)?.[1] ?? Number.NaN);
   return { rss: get('branchwise_process_resident_memory_bytes'), heap: get('branchwise_nodejs_heap_size_used_bytes') };
 };
 try {
-  for (let i = 0; i < 100; i++) {
-    try {
-      if ((await fetch(`http://127.0.0.1:${port}/readyz`)).ok) break;
-    } catch {
-      // not up yet
-    }
-    await new Promise((r) => setTimeout(r, 200));
-  }
   const body = JSON.stringify({
     species: 'HCl',
     lines: [0, 1, 2, 3, 4, 5].flatMap((j) => [
@@ -59,5 +39,5 @@ try {
     `resident memory ${(before.rss / 2 ** 20).toFixed(1)} → ${(after.rss / 2 ** 20).toFixed(1)} MiB; heap used ${(before.heap / 2 ** 20).toFixed(1)} → ${(after.heap / 2 ** 20).toFixed(1)} MiB`,
   );
 } finally {
-  if (server.pid) process.kill(-server.pid, 'SIGTERM');
+  server.stop();
 }

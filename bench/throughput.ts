@@ -2,32 +2,12 @@
  * Throughput of 60-line fits against a bare route (/healthz) on the same server, as a ratio from one run. The
  * server runs in its own process (from the TypeScript sources), the load generator (autocannon) in this one.
  */
-import { spawn } from 'node:child_process';
 import autocannon from 'autocannon';
+import { startServer } from './server-process.js';
 
 const port = 18090;
-const server = spawn('npx', ['tsx', 'services/server.ts'], {
-  env: {
-    ...process.env,
-    PORT: String(port),
-    HOST: '127.0.0.1',
-    LOG_LEVEL: 'warn',
-    RATE_LIMIT_PER_MINUTE: '0',
-    WORKERS: '0',
-    MAX_EVENT_LOOP_DELAY_MS: '0',
-  },
-  stdio: 'ignore',
-  detached: true,
-});
+const server = await startServer(port);
 try {
-  for (let i = 0; i < 100; i++) {
-    try {
-      if ((await fetch(`http://127.0.0.1:${port}/readyz`)).ok) break;
-    } catch {
-      // not up yet
-    }
-    await new Promise((r) => setTimeout(r, 200));
-  }
   const lines = [];
   for (let j = 0; j < 30; j++) {
     const x = (J: number) => J * (J + 1);
@@ -55,5 +35,5 @@ try {
     `| POST /v1/fits, 60 assigned lines | ${fit.requests.average.toFixed(0)} | ${fit.latency.p99} ms | ${(fit.requests.average / bare.requests.average).toFixed(2)} |`,
   );
 } finally {
-  if (server.pid) process.kill(-server.pid, 'SIGTERM');
+  server.stop();
 }

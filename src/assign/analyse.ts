@@ -2,7 +2,7 @@ import { ScienceError } from '../errors.js';
 import { type FitOptions, type FitResult, fitLineListDetailed, type Warning } from '../fit/fit-lines.js';
 import type { Band } from '../models/transitions.js';
 import { constantsFor } from '../species/library.js';
-import { type Isotopologue, parseSpecies } from '../species/parse.js';
+import { elementsOnly, type Isotopologue, parseSpecies } from '../species/parse.js';
 import { type MassValue, reducedMass } from '../species/reduced-mass.js';
 import { assignAndFit, type BandSummary, type Calibration, type PeakInput } from './assign-lines.js';
 import { isotopologuesMeant } from './candidates.js';
@@ -96,13 +96,7 @@ export function analyseLineList(
     }
     const iso = parseSpecies(best.species);
     // The natural mixture of the identified molecule.
-    species = {
-      ...iso,
-      atoms: [
-        { ...iso.atoms[0], explicitIsotope: false },
-        { ...iso.atoms[1], explicitIsotope: false },
-      ],
-    };
+    species = elementsOnly(iso);
   }
 
   const mixture = isotopologuesMeant(species, 1e-3);

@@ -3,7 +3,7 @@ import { compileDunham } from '../models/dunham.js';
 import { predictBand } from '../models/predict.js';
 import type { Band, Branch } from '../models/transitions.js';
 import { constantsFor, dunhamFromEntry } from '../species/library.js';
-import { type Isotopologue, isotopologuesOf, naturalAbundance } from '../species/parse.js';
+import { elementsOnly, type Isotopologue, isotopologuesOf, naturalAbundance, parseSpecies } from '../species/parse.js';
 import { bandStrengthGuess, relativeIntensity } from './intensity.js';
 
 /** A line the reference constants predict, with a rough relative intensity for ranking. */
@@ -95,4 +95,9 @@ export function candidateLines(
   return out
     .filter((c) => c.intensity >= floor && c.intensity > 0)
     .map((c) => ({ ...c, intensity: c.intensity / max }));
+}
+
+/** Natural abundance of every isotopologue of the molecule a formula belongs to, by normalised formula. */
+export function naturalAbundances(formula: string): Map<string, number> {
+  return new Map(isotopologuesMeant(elementsOnly(parseSpecies(formula)), 0).map((x) => [x.iso.formula, x.abundance]));
 }

@@ -1,5 +1,5 @@
 import { libraryEntries } from '../species/library.js';
-import { parseSpecies } from '../species/parse.js';
+import { elementsOnly, parseSpecies } from '../species/parse.js';
 import { type CandidateOptions, candidateLines, isotopologuesMeant } from './candidates.js';
 import { matchLines } from './match.js';
 import { estimateOffset } from './offset.js';
@@ -38,16 +38,7 @@ export function identifySpecies(
   const tests: { formula: string; name: string; mixture: ReturnType<typeof isotopologuesMeant> }[] = [];
   for (const e of libraryEntries().filter((x) => !x.derivedFrom)) {
     const iso = parseSpecies(e.formula);
-    const natural = isotopologuesMeant(
-      {
-        ...iso,
-        atoms: [
-          { ...iso.atoms[0], explicitIsotope: false },
-          { ...iso.atoms[1], explicitIsotope: false },
-        ],
-      },
-      options.minAbundance ?? 1e-3,
-    );
+    const natural = isotopologuesMeant(elementsOnly(iso), options.minAbundance ?? 1e-3);
     if (natural[0]?.iso.formula === e.formula) {
       const elements = `${iso.atoms[0].element.symbol}-${iso.atoms[1].element.symbol}`;
       if (seen.has(elements)) continue;

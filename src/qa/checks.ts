@@ -1,6 +1,6 @@
 import type { Analysis } from '../assign/analyse.js';
 import { calibrationFromPoints, type PeakInput } from '../assign/assign-lines.js';
-import { candidateLines, isotopologuesMeant } from '../assign/candidates.js';
+import { candidateLines, naturalAbundances } from '../assign/candidates.js';
 import { type IdentificationCandidate, identifySpecies } from '../assign/identify.js';
 import { relativeIntensity } from '../assign/intensity.js';
 import { compileDunham } from '../models/dunham.js';
@@ -300,19 +300,7 @@ function isotopeCheck(peaks: readonly PeakInput[], analysis: Analysis, T: number
   if (!peaks.every((p) => p.intensity !== undefined))
     return notEvaluated('isotope-ratio', 'the lines carry no intensities');
   const main = species[0] as string;
-  const mainIso = parseSpecies(main);
-  const natural = new Map(
-    isotopologuesMeant(
-      {
-        ...mainIso,
-        atoms: [
-          { ...mainIso.atoms[0], explicitIsotope: false },
-          { ...mainIso.atoms[1], explicitIsotope: false },
-        ],
-      },
-      0,
-    ).map((x) => [x.iso.formula, x.abundance]),
-  );
+  const natural = naturalAbundances(main);
   const byTransition = new Map<
     string,
     { species: string; intensity: number; position: number; branch: Branch; j: number; band: string }[]
@@ -466,19 +454,7 @@ function fitQualityCheck(peaks: readonly PeakInput[], analysis: Analysis, T: num
   if (analysis.assignment.method === 'reference' && species.length > 0) {
     const positions = peaks.map((p) => p.position);
     const mixture = species.map((s) => ({ iso: parseSpecies(s), abundance: 1 }));
-    const mainIso = parseSpecies(species[0] as string);
-    const natural = new Map(
-      isotopologuesMeant(
-        {
-          ...mainIso,
-          atoms: [
-            { ...mainIso.atoms[0], explicitIsotope: false },
-            { ...mainIso.atoms[1], explicitIsotope: false },
-          ],
-        },
-        0,
-      ).map((x) => [x.iso.formula, x.abundance]),
-    );
+    const natural = naturalAbundances(species[0] as string);
     const weighted = mixture.map((m) => ({ iso: m.iso, abundance: natural.get(m.iso.formula) ?? 1 }));
     const strong = candidateLines(weighted, Math.min(...positions), Math.max(...positions), { temperature: T }).filter(
       (c) => c.intensity >= 0.1,

@@ -118,3 +118,14 @@ export function isotopologuesOf(species: Isotopologue): Isotopologue[] {
 export function naturalAbundance(species: Isotopologue): number {
   return species.atoms[0].isotope.abundance * species.atoms[1].isotope.abundance;
 }
+
+/** The same molecule with no isotope named: what "HCl" means as opposed to "H35Cl" (the natural mixture). */
+export function elementsOnly(species: Isotopologue): Isotopologue {
+  return {
+    ...species,
+    atoms: [
+      { ...species.atoms[0], explicitIsotope: false },
+      { ...species.atoms[1], explicitIsotope: false },
+    ],
+  };
+}

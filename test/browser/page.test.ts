@@ -7,7 +7,7 @@ import { type Browser, chromium } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { buildApp } from '../../services/app.js';
 import { writeJcamp } from '../helpers/jcamp-writer.js';
-import { syntheticScan } from '../helpers/scans.js';
+import { hclScan } from '../helpers/scans.js';
 import { syntheticSpectrum } from '../helpers/spectra.js';
 
 /**
@@ -43,22 +43,7 @@ describe.skipIf(!existsSync(CHROMIUM))('in Chromium', () => {
     await app?.close();
   });
 
-  const scan = syntheticScan({
-    isotopologues: [
-      { species: 'H35Cl', abundance: 0.7576 },
-      { species: 'H37Cl', abundance: 0.2424 },
-    ],
-    bands: [{ upper: 1, lower: 0, strength: 1 }],
-    temperature: 296,
-    offset: 0.02,
-    scalePpm: 0,
-    sigma: 0.002,
-    missing: 0.05,
-    spurious: 0.1,
-    detection: 1e-3,
-    seed: 5,
-    exactReference: true,
-  });
+  const scan = hclScan({ offset: 0.02, exactReference: true });
 
   async function reportFrame(page: import('playwright-core').Page) {
     await page.waitForFunction(() => document.getElementById('status')?.textContent === 'report ready', null, {

@@ -132,3 +132,26 @@ export function scoreAssignment(
   });
   return { correct, trueLines, spuriousTaken, spurious, wrong };
 }
+
+/** Natural-mixture HCl, chlorine isotopes by CIAAW abundance (IUPAC via NIST). */
+export const HCL_NATURAL = [
+  { species: 'H35Cl', abundance: 0.7576 },
+  { species: 'H37Cl', abundance: 0.2424 },
+] as const;
+
+/** A 296 K scan of the HCl fundamental with the usual defaults, overridable field by field. */
+export function hclScan(over: Partial<ScanSpec> = {}): Scan {
+  return syntheticScan({
+    isotopologues: HCL_NATURAL,
+    bands: [{ upper: 1, lower: 0, strength: 1 }],
+    temperature: 296,
+    offset: 0,
+    scalePpm: 0,
+    sigma: 0.002,
+    missing: 0.05,
+    spurious: 0.1,
+    detection: 1e-3,
+    seed: 5,
+    ...over,
+  });
+}

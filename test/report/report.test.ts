@@ -1,24 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import { useApp } from '../helpers/app.js';
-import { syntheticScan } from '../helpers/scans.js';
+import { hclScan } from '../helpers/scans.js';
 
 const app = useApp();
-const scan = syntheticScan({
-  isotopologues: [
-    { species: 'H35Cl', abundance: 0.7576 },
-    { species: 'H37Cl', abundance: 0.2424 },
-  ],
-  bands: [{ upper: 1, lower: 0, strength: 1 }],
-  temperature: 296,
-  offset: 0,
-  scalePpm: 0,
-  sigma: 0.002,
-  missing: 0.05,
-  spurious: 0.1,
-  detection: 1e-3,
-  seed: 5,
-  exactReference: true,
-});
+const scan = hclScan({ exactReference: true });
 
 describe('POST /v1/reports', () => {
   it('returns one self-contained HTML document with every plot, the verdict and the caution', async () => {

@@ -1,23 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import { useApp } from '../helpers/app.js';
-import { syntheticScan } from '../helpers/scans.js';
+import { hclScan } from '../helpers/scans.js';
 
 const app = useApp();
-const scan = syntheticScan({
-  isotopologues: [
-    { species: 'H35Cl', abundance: 0.7576 },
-    { species: 'H37Cl', abundance: 0.2424 },
-  ],
-  bands: [{ upper: 1, lower: 0, strength: 1 }],
-  temperature: 296,
-  offset: 0.1,
-  scalePpm: 0,
-  sigma: 0.003,
-  missing: 0.1,
-  spurious: 0.25,
-  detection: 1e-3,
-  seed: 31,
-});
+const scan = hclScan({ offset: 0.1, sigma: 0.003, missing: 0.1, spurious: 0.25, seed: 31 });
 
 describe('POST /v1/fits with a bare line list', () => {
   it('assigns the lines (source "auto"), keeps spurious ones unassigned and lists them', async () => {

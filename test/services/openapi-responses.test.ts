@@ -3,7 +3,7 @@ import { Ajv2020 } from 'ajv/dist/2020.js';
 import { describe, expect, it } from 'vitest';
 import { useApp } from '../helpers/app.js';
 import { assignedFitBody } from '../helpers/requests.js';
-import { syntheticScan } from '../helpers/scans.js';
+import { hclScan } from '../helpers/scans.js';
 import { syntheticSpectrum } from '../helpers/spectra.js';
 
 /** Real responses validated against the committed OpenAPI document (JSON Schema 2020-12 via Ajv). */
@@ -19,21 +19,7 @@ const validate = (component: string, data: unknown) => {
 const app = useApp();
 
 describe('responses match the OpenAPI document', () => {
-  const scan = syntheticScan({
-    isotopologues: [
-      { species: 'H35Cl', abundance: 0.7576 },
-      { species: 'H37Cl', abundance: 0.2424 },
-    ],
-    bands: [{ upper: 1, lower: 0, strength: 1 }],
-    temperature: 296,
-    offset: 0.1,
-    scalePpm: 0,
-    sigma: 0.002,
-    missing: 0.1,
-    spurious: 0.2,
-    detection: 1e-3,
-    seed: 77,
-  });
+  const scan = hclScan({ offset: 0.1, missing: 0.1, spurious: 0.2, seed: 77 });
   it.each([
     ['assigned lines', assignedFitBody('CO', ['1-0', '2-0'], 10, 0.001, 1)],
     ['a bare scan', { species: 'HCl', lines: scan.peaks }],
