@@ -65,6 +65,8 @@ export function solveModel(
     observations: Float64Array.from(observations, (o) => o.position),
     weights: Float64Array.from(observations, (o) => o.weight),
     leverage: withLeverage,
+    // Trial fits of term selection need neither leverages nor the condition number.
+    conditionNumber: withLeverage,
   });
   if (r.rankDeficient) {
     return {

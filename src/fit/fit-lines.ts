@@ -106,7 +106,7 @@ export interface Statistics {
   readonly degreesOfFreedom: number;
   readonly rms: number;
   readonly reducedChiSquare: number | null;
-  readonly conditionNumber: number;
+  readonly conditionNumber: number | null;
   readonly uncertaintyMode: UncertaintyMode;
 }
 
@@ -533,7 +533,7 @@ export function fitLineListDetailed(
     degreesOfFreedom: fit.degreesOfFreedom,
     rms: rmsResidual(fit),
     reducedChiSquare: reducedChiSquare(fit),
-    conditionNumber: fit.conditionNumber,
+    conditionNumber: Number.isFinite(fit.conditionNumber) ? fit.conditionNumber : null,
     uncertaintyMode: mode,
   };
 
