@@ -5,10 +5,12 @@
 FROM node:20.20-bookworm-slim AS build
 WORKDIR /app
 COPY package.json package-lock.json ./
-RUN npm ci --no-audit --no-fund
+# The sources are not here yet, so the "prepare" build is skipped and run explicitly below.
+RUN npm ci --no-audit --no-fund --ignore-scripts
 COPY tsconfig.json tsconfig.build.json ./
 COPY src ./src
 COPY services ./services
+COPY cli ./cli
 RUN npm run build
 
 FROM node:20.20-bookworm-slim AS runtime
@@ -16,7 +18,7 @@ RUN apt-get update && apt-get install -y --no-install-recommends tini && rm -rf 
 WORKDIR /app
 ENV NODE_ENV=production HOST=0.0.0.0 PORT=8080
 COPY package.json package-lock.json ./
-RUN npm ci --omit=dev --no-audit --no-fund && npm cache clean --force
+RUN npm ci --omit=dev --no-audit --no-fund --ignore-scripts && npm cache clean --force
 COPY --from=build /app/dist ./dist
 USER node
 EXPOSE 8080

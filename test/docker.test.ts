@@ -13,7 +13,10 @@ describe('deployment files', () => {
     expect(d).toMatch(/^USER node$/m);
     expect(d).toMatch(/ENTRYPOINT \["\/usr\/bin\/tini", "--"\]/);
     expect(d).toMatch(/HEALTHCHECK .*\n.*\/healthz/);
-    expect(d).toMatch(/npm ci --omit=dev/);
+    expect(d).toMatch(/npm ci --omit=dev[^\n]*--ignore-scripts/);
+    // The build stage copies every source tree that tsconfig.build.json includes.
+    const build = JSON.parse(readFileSync('tsconfig.build.json', 'utf8')) as { include: string[] };
+    for (const dir of build.include) expect(d).toContain(`COPY ${dir} ./${dir}`);
   });
   it('Kubernetes: probes on /healthz and /readyz, resources, HPA, PDB and an Indexed Job', () => {
     const files = readdirSync('docker/k8s')
