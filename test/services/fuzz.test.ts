@@ -204,7 +204,7 @@ describe('fuzzing', () => {
         expect(out.length).toBe(lines.filter((l) => l.replace(/\n/g, ' ').trim() !== '').length);
         for (const o of out) expect(o.status).toBeLessThan(500);
       }),
-      { numRuns: 300, seed: 50 },
+      { numRuns: 1000, seed: 50 },
     );
   });
   it('GET /v1/species/{formula} with arbitrary strings', async () => {
