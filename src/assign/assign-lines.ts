@@ -72,7 +72,7 @@ const bandKey = (c: { species: string; band: { upper: number; lower: number } })
   `${c.species}|${formatBand(c.band)}`;
 /** Lines the reference constants predict reliably enough to start from, before any fit (J″ ≤ this). */
 const START_J = 12;
-/** How far past the highest matched J a fitted band may reach in one step. */
+/** How far past the highest matched J a fitted band may reach in one step (at least; half the reach beyond). */
 const GROWTH_J = 3;
 
 export function assignAndFit(
@@ -162,7 +162,7 @@ export function assignAndFit(
       let position: number;
       let tolerance: number;
       if (fitted && r !== undefined) {
-        if (c.j > r + Math.max(GROWTH_J, Math.floor(r / 4))) continue;
+        if (c.j > r + Math.max(GROWTH_J, Math.floor(r / 2))) continue;
         position = fitted.value;
         tolerance = 5 * Math.sqrt(fitted.variance + (detailed?.scale ?? 1) * typicalSigma * typicalSigma) + 1e-4;
       } else {
