@@ -6,10 +6,10 @@ const [url, seconds = '10', connections = '10'] = process.argv.slice(2);
 const lines = [];
 for (let j = 0; j < 30; j++) {
   const x = (J) => J * (J + 1);
-  const nu = (v1, J1, v0, J0) =>
+  const nu = (v1, J1, J0) =>
     2143.27 + (1.9225 - 0.0175 * v1) * x(J1) - 1.9225 * x(J0) - 6.1e-6 * (x(J1) ** 2 - x(J0) ** 2);
-  lines.push({ position: nu(1, j + 1, 0, j), uncertainty: 0.001, assignment: { band: '1-0', branch: 'R', j } });
-  lines.push({ position: nu(1, j, 0, j + 1), uncertainty: 0.001, assignment: { band: '1-0', branch: 'P', j: j + 1 } });
+  lines.push({ position: nu(1, j + 1, j), uncertainty: 0.001, assignment: { band: '1-0', branch: 'R', j } });
+  lines.push({ position: nu(1, j, j + 1), uncertainty: 0.001, assignment: { band: '1-0', branch: 'P', j: j + 1 } });
 }
 const body = JSON.stringify({ species: 'CO', lines });
 const result = await autocannon({
