@@ -34,6 +34,46 @@ export interface Config {
   readonly maxEventLoopDelayMs: number;
   /** Heap in bytes above which the service sheds load with 503 (0: off, the default). */
   readonly maxHeapUsedBytes: number;
+  /** Resident set in bytes above which the service sheds load with 503 (0: off, the default). MAX_RSS_BYTES. */
+  readonly maxRssBytes: number;
+  /** Jobs waiting for a worker beyond which new work is refused with 503 + Retry-After (0: no bound). Default 16. */
+  readonly maxQueue: number;
+  /**
+   * Sum of the estimated sizes (lines; a spectrum counts a hundredth of its points) of the jobs admitted at once,
+   * running or queued; beyond it new work is refused with 503 + Retry-After. Default 250 000 (two 100 000-line
+   * fits and change). MAX_ACTIVE_LINES.
+   */
+  readonly maxActiveLines: number;
+  /** Time a request's work may take once admitted, in ms; then it is stopped and answered 503 (0: none). Default 60 000. */
+  readonly processingDeadlineMs: number;
+  /** Largest point or row count of a JCAMP-DX or CSV body (checked before allocating). Default 5 000 000. */
+  readonly maxPoints: number;
+  /**
+   * Which proxy hops to believe for the client address (rate limits, logs): "false" (default: the socket's
+   * address), "true" (the left-most X-Forwarded-For), a hop count, or comma-separated addresses/CIDRs. TRUST_PROXY.
+   * @see https://fastify.dev/docs/latest/Reference/Server/#trustproxy
+   */
+  readonly trustProxy: boolean | number | string[];
+  /** Time given to in-flight work after SIGTERM before the process exits, in ms. Default 30 000. SHUTDOWN_GRACE_MS. */
+  readonly shutdownGraceMs: number;
+  /** Whether /metrics shows the Node.js version (nodejs_version_info). Default false. METRICS_RUNTIME_VERSION. */
+  readonly metricsRuntimeVersion: boolean;
+}
+
+function trustProxyFrom(raw: string | undefined): boolean | number | string[] {
+  const v = (raw ?? '').trim();
+  if (v === '' || v === 'false') return false;
+  if (v === 'true') return true;
+  if (/^\d+$/.test(v)) return Number(v);
+  return list(v);
+}
+
+function boolFrom(env: NodeJS.ProcessEnv, name: string, fallback: boolean): boolean {
+  const raw = env[name];
+  if (raw === undefined || raw === '') return fallback;
+  if (raw === 'true' || raw === '1') return true;
+  if (raw === 'false' || raw === '0') return false;
+  throw new Error(`environment variable ${name}=${raw} must be true or false`);
 }
 
 function intFrom(env: NodeJS.ProcessEnv, name: string, fallback: number, min: number, max: number): number {
@@ -70,11 +110,19 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     requestTimeoutMs: intFrom(env, 'REQUEST_TIMEOUT_MS', 120_000, 0, 3_600_000),
     maxEventLoopDelayMs: intFrom(env, 'MAX_EVENT_LOOP_DELAY_MS', 1000, 0, 600_000),
     maxHeapUsedBytes: intFrom(env, 'MAX_HEAP_USED_BYTES', 0, 0, Number.MAX_SAFE_INTEGER),
+    maxRssBytes: intFrom(env, 'MAX_RSS_BYTES', 0, 0, Number.MAX_SAFE_INTEGER),
+    maxQueue: intFrom(env, 'MAX_QUEUE', 16, 0, 100_000),
+    maxActiveLines: intFrom(env, 'MAX_ACTIVE_LINES', 250_000, 1, 1_000_000_000),
+    processingDeadlineMs: intFrom(env, 'PROCESSING_DEADLINE_MS', 60_000, 0, 3_600_000),
+    maxPoints: intFrom(env, 'MAX_POINTS', 5_000_000, 8, 100_000_000),
+    trustProxy: trustProxyFrom(env.TRUST_PROXY),
+    shutdownGraceMs: intFrom(env, 'SHUTDOWN_GRACE_MS', 30_000, 0, 3_600_000),
+    metricsRuntimeVersion: boolFrom(env, 'METRICS_RUNTIME_VERSION', false),
   };
 }
 
 /**
- * Defaults for tests and tools that build the app without an environment: no workers, no rate limit, no load
- * shedding (tests that exercise those set them).
+ * The defaults of `npm start` (an empty environment): what tests and tools get when they build the app without a
+ * configuration. Protections stay on: rate limit, load shedding, worker pool, deadlines.
  */
-export const DEFAULT_CONFIG: Config = { ...loadConfig({}), workers: 0, rateLimitPerMinute: 0, maxEventLoopDelayMs: 0 };
+export const DEFAULT_CONFIG: Config = loadConfig({});

@@ -56,10 +56,48 @@ const FASTIFY_CODES: Record<string, { status: number; code: string; title: strin
   FST_ERR_CTP_EMPTY_JSON_BODY: { status: 400, code: 'BODY_EMPTY', title: 'Empty JSON body' },
   FST_ERR_CTP_INVALID_CONTENT_LENGTH: { status: 400, code: 'BAD_CONTENT_LENGTH', title: 'Invalid content length' },
   FST_ERR_CTP_INVALID_JSON_BODY: { status: 400, code: 'INVALID_JSON', title: 'Body is not valid JSON' },
+  FST_ERR_CTP_INVALID_TYPE: { status: 415, code: 'UNSUPPORTED_MEDIA_TYPE', title: 'Unsupported media type' },
+  FST_ERR_CTP_INVALID_HEADER: { status: 400, code: 'BAD_REQUEST', title: 'Bad request' },
 };
 
+/**
+ * A problem raised by the service itself (rate limit, shedding, admission, deadlines): it travels as an error and
+ * is sent as it is.
+ */
+export class HttpProblem extends Error {
+  readonly problem: Problem;
+  readonly statusCode: number;
+  readonly headers: Readonly<Record<string, string>>;
+  constructor(code: string, status: number, title: string, detail: string, headers: Record<string, string> = {}) {
+    super(detail);
+    this.problem = { type: problemType(code), title, status, detail, code };
+    this.statusCode = status;
+    this.headers = headers;
+  }
+}
+
+/** Longest error detail sent back; details may quote the input, which must not be echoed at length. */
+export const MAX_DETAIL_CHARS = 300;
+export const truncate = (s: string, max = MAX_DETAIL_CHARS): string =>
+  s.length <= max ? s : `${s.slice(0, max - 1)}…`;
+
+/** Request path without the query string, shortened: a problem's `instance`. */
+export const instanceOf = (request: FastifyRequest): string => truncate(request.url.split('?')[0] ?? '', 200);
+
 export function toProblem(error: unknown, request: FastifyRequest): Problem {
-  const instance = request.url;
+  const p = toProblemUntruncated(error, request);
+  return {
+    ...p,
+    detail: truncate(p.detail),
+    ...(p.errors
+      ? { errors: p.errors.slice(0, 50).map((e) => ({ path: truncate(e.path, 100), message: truncate(e.message) })) }
+      : {}),
+  };
+}
+
+function toProblemUntruncated(error: unknown, request: FastifyRequest): Problem {
+  const instance = instanceOf(request);
+  if (error instanceof HttpProblem) return { ...error.problem, instance };
   if (error instanceof ScienceError) return scienceProblem(error, instance);
   if (hasZodFastifySchemaValidationErrors(error)) {
     const errors = error.validation.map((v) => ({
@@ -118,6 +156,11 @@ export function sendProblem(reply: FastifyReply, p: Problem): FastifyReply {
   return reply.status(p.status).type('application/problem+json').send(p);
 }
 
+/** A problem answer of the service's own (401, 404, 405, 429, 503 …). */
+export function problem(code: string, status: number, title: string, detail: string, request: FastifyRequest): Problem {
+  return { type: problemType(code), title, status, detail: truncate(detail), instance: instanceOf(request), code };
+}
+
 /** Human-readable descriptions behind each problem type URI. */
 export const PROBLEM_DESCRIPTIONS: Record<string, string> = {
   'validation-failed': 'The body does not match the request schema; `errors` lists each offending path.',
@@ -126,6 +169,15 @@ export const PROBLEM_DESCRIPTIONS: Record<string, string> = {
   'body-too-large': 'The body exceeds the configured limit (BODY_LIMIT).',
   'bad-request': 'The request is malformed.',
   'not-found': 'No such route.',
+  'method-not-allowed': 'The route exists, but not with this method; the Allow header lists the methods it takes.',
+  unauthorized: 'The route needs an API key: send "Authorization: Bearer <key>".',
+  'rate-limited': 'Too many requests from this client (API key, or address without a key) in the time window.',
+  overloaded: 'The service is shedding load (event-loop delay, memory or a full work queue); retry after Retry-After.',
+  'deadline-exceeded': 'The work took longer than the processing deadline (PROCESSING_DEADLINE_MS) and was stopped.',
+  'request-timeout': 'The request was not received completely within the time allowed.',
+  'result-not-finite':
+    'The input is accepted, but a computed quantity came out infinite or undefined; the problem names it.',
+  'graphql-refused': 'The GraphQL request is refused before it runs (batching, size, aliases or cost).',
   internal: 'An unexpected failure on the server side.',
   ...Object.fromEntries(
     Object.entries(SCIENCE_STATUS).map(([code, m]) => [code.toLowerCase().replaceAll('_', '-'), m.title]),

@@ -1,4 +1,5 @@
 import client from 'prom-client';
+import type { Config } from './config.js';
 
 /**
  * Prometheus metrics with bounded labels: routes are the route templates (or "unmatched"), status as its class
@@ -13,9 +14,11 @@ export interface Metrics {
   readonly verdicts: client.Counter<'verdict'>;
 }
 
-export function createMetrics(): Metrics {
+export function createMetrics(config?: Pick<Config, 'metricsRuntimeVersion'>): Metrics {
   const registry = new client.Registry();
   client.collectDefaultMetrics({ register: registry, prefix: 'branchwise_' });
+  // The runtime version helps an attacker more than an operator: shown only when configured.
+  if (!config?.metricsRuntimeVersion) registry.removeSingleMetric('branchwise_nodejs_version_info');
   return {
     registry,
     requestDuration: new client.Histogram({

@@ -1,18 +1,39 @@
 import { Piscina } from 'piscina';
 import { ScienceError, type ScienceErrorCode } from '../src/errors.js';
 import type { Config } from './config.js';
+import { HttpProblem } from './errors.js';
+import { RETRY_AFTER_S } from './plugins/shedding.js';
 import { type Job, type JobResult, runJob } from './worker.js';
 
 /**
- * Large fits run in worker threads (piscina) so that the event loop, and with it /healthz and small requests, stays
- * responsive; small ones run inline, where a thread hop would cost more than the fit.
+ * Large jobs run in worker threads (piscina) so that the event loop, and with it /healthz and small requests,
+ * stays responsive; small ones run inline, where a thread hop would cost more than the work.
+ *
+ * Admission control: a job is refused with 503 + Retry-After when MAX_QUEUE jobs already wait for a thread, or
+ * when the estimated sizes of the admitted jobs would exceed MAX_ACTIVE_LINES (memory grows with the lines; one
+ * job is always admitted when nothing else runs). Deadlines: an admitted job is stopped (its worker thread torn
+ * down) when PROCESSING_DEADLINE_MS passes or when the caller's signal aborts (the client went away).
  * @see https://github.com/piscinajs/piscina
  */
+export interface RunOptions {
+  /** Aborts the job (e.g. the client closed the connection). */
+  readonly signal?: AbortSignal;
+}
+
 export interface Pool {
-  run<T>(job: Job, size: number): Promise<T>;
+  run<T>(job: Job, size: number, options?: RunOptions): Promise<T>;
   close(): Promise<void>;
   readonly threads: number;
+  /** Jobs waiting for a thread. */
+  readonly queued: number;
+  /** Estimated size (lines) of the jobs admitted and not yet finished. */
+  readonly activeLines: number;
 }
+
+const overloaded = (detail: string) =>
+  new HttpProblem('OVERLOADED', 503, 'Service overloaded', `${detail}; retry in ${RETRY_AFTER_S} s`, {
+    'retry-after': String(RETRY_AFTER_S),
+  });
 
 export function createPool(config: Config): Pool {
   const threads = config.workers;
@@ -21,22 +42,54 @@ export function createPool(config: Config): Pool {
     threads > 0
       ? new Piscina({
           filename: new URL(isTs ? './worker.ts' : './worker.js', import.meta.url).href,
-          minThreads: 1,
+          minThreads: 0,
           maxThreads: threads,
           // From the TypeScript sources (tests, npm run dev) the worker needs the same loader as the main thread.
           ...(isTs ? { execArgv: ['--import', 'tsx'] } : {}),
           idleTimeout: 60_000,
         })
       : undefined;
+  let activeLines = 0;
   const unwrap = <T>(r: JobResult): T => {
     if (r.ok) return r.value as T;
     throw new ScienceError(r.error.code as ScienceErrorCode, r.error.message, r.error.details);
   };
   return {
     threads,
-    async run<T>(job: Job, size: number): Promise<T> {
+    get queued() {
+      return piscina?.queueSize ?? 0;
+    },
+    get activeLines() {
+      return activeLines;
+    },
+    async run<T>(job: Job, size: number, options: RunOptions = {}): Promise<T> {
       if (!piscina || size < config.workerThreshold) return unwrap<T>(runJob(job));
-      return unwrap<T>((await piscina.run(job)) as JobResult);
+      if (config.maxQueue > 0 && piscina.queueSize >= config.maxQueue)
+        throw overloaded(`${piscina.queueSize} jobs are waiting for a worker (MAX_QUEUE ${config.maxQueue})`);
+      if (activeLines > 0 && activeLines + size > config.maxActiveLines)
+        throw overloaded(
+          `${activeLines} lines are being processed and this request adds ${size} (MAX_ACTIVE_LINES ${config.maxActiveLines})`,
+        );
+      const deadline = config.processingDeadlineMs > 0 ? AbortSignal.timeout(config.processingDeadlineMs) : undefined;
+      const signals = [deadline, options.signal].filter((s): s is AbortSignal => s !== undefined);
+      const signal = signals.length > 0 ? AbortSignal.any(signals) : undefined;
+      activeLines += size;
+      try {
+        return unwrap<T>((await piscina.run(job, signal ? { signal } : {})) as JobResult);
+      } catch (e) {
+        if (deadline?.aborted)
+          throw new HttpProblem(
+            'DEADLINE_EXCEEDED',
+            503,
+            'Processing deadline exceeded',
+            `the work took longer than ${config.processingDeadlineMs} ms (PROCESSING_DEADLINE_MS) and was stopped`,
+          );
+        if (options.signal?.aborted)
+          throw new HttpProblem('CLIENT_CLOSED', 499, 'Client closed the request', 'the work was stopped');
+        throw e;
+      } finally {
+        activeLines -= size;
+      }
     },
     async close() {
       await piscina?.destroy();

@@ -33,6 +33,7 @@ export function textBodyToJson(
   contentType: string,
   text: string,
   query: Record<string, unknown>,
+  limits: { readonly maxPoints: number; readonly maxLines: number } = { maxPoints: 5_000_000, maxLines: 100_000 },
 ): Record<string, unknown> {
   const extra: Record<string, unknown> = {};
   if (typeof query.species === 'string' && query.species !== '') extra.species = query.species;
@@ -43,7 +44,7 @@ export function textBodyToJson(
     extra.options = { temperature: t };
   }
   if ((JCAMP_TYPES as readonly string[]).some((t) => contentType.startsWith(t))) {
-    const d = parseJcamp(text);
+    const d = parseJcamp(text, { maxPoints: limits.maxPoints, maxPeaks: limits.maxLines });
     if (d.kind === 'peaks') {
       const xUnit = xUnitOf(d.xUnits);
       return {
@@ -57,7 +58,7 @@ export function textBodyToJson(
       spectrum: { x: Array.from(d.x), y: Array.from(d.y), xUnit: xUnitOf(d.xUnits), yUnit: yUnitOf(d.yUnits) },
     };
   }
-  const c = parseCsv(text);
+  const c = parseCsv(text, { maxRows: limits.maxPoints, maxLines: limits.maxLines });
   if (c.kind === 'lines') return { ...extra, lines: c.lines.map((l) => ({ ...l })) };
   return { ...extra, spectrum: { x: Array.from(c.x), y: Array.from(c.y), ...(c.yUnit ? { yUnit: c.yUnit } : {}) } };
 }

@@ -1,4 +1,3 @@
-import { createInterface } from 'node:readline';
 import { PassThrough, type Readable } from 'node:stream';
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
@@ -7,6 +6,7 @@ import { toProblem } from '../errors.js';
 import { jobSize } from '../pool.js';
 import { checkRequestSchema } from '../schemas/checks.js';
 import { fitRequestSchema } from '../schemas/fit.js';
+import { ndjsonLines } from './ndjson-lines.js';
 import { timed } from './timed.js';
 
 export const NDJSON = 'application/x-ndjson';
@@ -44,14 +44,14 @@ export const batchRoutes =
             if (!out.write(`${JSON.stringify(obj)}\n`)) await new Promise((r) => out.once('drain', r));
           };
           (async () => {
-            const lines = createInterface({ input, crlfDelay: Number.POSITIVE_INFINITY });
             let index = 0;
-            for await (const line of lines) {
-              if (line.trim() === '') continue;
+            for await (const piece of ndjsonLines(input, config.bodyLimit)) {
+              const line = 'text' in piece ? piece.text.replace(/\r$/, '') : '';
+              if ('text' in piece && line.trim() === '') continue;
               const i = index++;
               try {
-                if (line.length > config.bodyLimit)
-                  throw Object.assign(new Error(`line ${i} is longer than ${config.bodyLimit} bytes`), {
+                if ('tooLong' in piece)
+                  throw Object.assign(new Error(`line ${i} is longer than ${config.bodyLimit} bytes (BODY_LIMIT)`), {
                     statusCode: 413,
                     code: 'FST_ERR_CTP_BODY_TOO_LARGE',
                   });

@@ -18,7 +18,16 @@ export type CsvData =
  * line list, one naming "absorbance" or "transmittance" a spectrum; without a header, many evenly spaced x values
  * mean a spectrum. Errors name the line.
  */
-export function parseCsv(text: string): CsvData {
+export interface CsvLimits {
+  /** Most rows of a spectrum. Default 5 000 000. */
+  readonly maxRows?: number;
+  /** Most rows of a line list (a header naming positions, or one column). Default: maxRows. */
+  readonly maxLines?: number;
+}
+
+export function parseCsv(text: string, limits: CsvLimits = {}): CsvData {
+  const maxRows = limits.maxRows ?? 5_000_000;
+  const maxLines = limits.maxLines ?? maxRows;
   const rows = text.split(/\r\n|\r|\n/);
   let header: string[] | undefined;
   const data: { line: number; cells: number[] }[] = [];
@@ -38,6 +47,14 @@ export function parseCsv(text: string): CsvData {
         line: i + 1,
       });
     }
+    // Counted while reading, so that an oversized body is refused at its first row too many.
+    const lineList = /position|line/.test(header?.join(' ') ?? '') || nums.length === 1;
+    const limit = lineList ? maxLines : maxRows;
+    if (data.length >= limit)
+      throw new ScienceError('INPUT_INVALID', `CSV line ${i + 1}: more than ${limit} rows of numbers`, {
+        line: i + 1,
+        limit,
+      });
     data.push({ line: i + 1, cells: nums });
   }
   if (data.length === 0) throw new ScienceError('INPUT_INVALID', 'the CSV holds no rows of numbers', {});

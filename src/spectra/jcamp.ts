@@ -153,17 +153,23 @@ export function tokenizeAsdf(text: string, lineNo: number): Token[] {
   return out;
 }
 
-/** Expand tokens into Y values: DIF adds to the last value, DUP repeats the last token n − 1 more times. */
-function expand(tokens: Token[], lineNo: number): { values: number[]; endsWithDif: boolean } {
+/**
+ * Expand tokens into Y values: DIF adds to the last value, DUP repeats the last token n − 1 more times. At most
+ * `budget` values are produced: a repeat count is checked against it before anything is repeated.
+ */
+function expand(tokens: Token[], lineNo: number, budget: number): { values: number[]; endsWithDif: boolean } {
   const values: number[] = [];
   let last: Token | undefined;
   for (const t of tokens) {
     if (t.kind === 'dup') {
       if (!last) fail(lineNo, 'a DUP count with nothing to repeat');
       if (!Number.isInteger(t.value) || t.value < 1) fail(lineNo, `DUP count ${t.value} is not a whole number ≥ 1`);
+      if (values.length + t.value - 1 > budget)
+        fail(lineNo, `DUP count ${t.value} gives more Y values than ##NPOINTS= leaves for this line (${budget})`);
       for (let k = 1; k < t.value; k++) apply(last);
       continue;
     }
+    if (values.length >= budget) fail(lineNo, `more Y values than ##NPOINTS= leaves for this line (${budget})`);
     apply(t);
     last = t;
   }
@@ -177,7 +183,16 @@ function expand(tokens: Token[], lineNo: number): { values: number[]; endsWithDi
   }
 }
 
-export function parseJcamp(text: string): JcampData {
+/** Bounds checked while reading, before anything is allocated for them. */
+export interface JcampLimits {
+  /** Most points of a spectrum (##NPOINTS, or the pairs of ##XYPOINTS). Default 5 000 000. */
+  readonly maxPoints?: number;
+  /** Most peaks of a ##PEAK TABLE. Default: maxPoints. */
+  readonly maxPeaks?: number;
+}
+
+export function parseJcamp(text: string, limits: JcampLimits = {}): JcampData {
+  const maxPoints = limits.maxPoints ?? 5_000_000;
   const lines = text.split(/\r\n|\r|\n/);
   const labels = new Map<string, string>();
   let dataLabel: string | undefined;
@@ -225,6 +240,7 @@ export function parseJcamp(text: string): JcampData {
 
   if (dataLabel === 'XYPOINTS' || dataLabel === 'PEAKTABLE') {
     const pairs: { x: number; y?: number }[] = [];
+    const maxPairs = dataLabel === 'PEAKTABLE' ? (limits.maxPeaks ?? maxPoints) : maxPoints;
     for (let i = dataStart; i < dataEnd; i++) {
       const t = (lines[i] as string)
         .replace(/\$\$.*$/, '')
@@ -237,6 +253,8 @@ export function parseJcamp(text: string): JcampData {
         const y = parts[1] !== undefined ? Number(parts[1]) : undefined;
         if (!Number.isFinite(x) || (y !== undefined && !Number.isFinite(y)))
           fail(i + 1, `"${group}" is not an X,Y pair`);
+        if (pairs.length >= maxPairs)
+          fail(i + 1, `more than ${maxPairs} ${dataLabel === 'PEAKTABLE' ? 'peaks' : 'points'}`);
         pairs.push({ x: x * xFactor, ...(y !== undefined ? { y: y * yFactor } : {}) });
       }
     }
@@ -258,6 +276,7 @@ export function parseJcamp(text: string): JcampData {
   const lastX = num('LASTX');
   const nPoints = num('NPOINTS');
   if (!Number.isInteger(nPoints) || nPoints < 2) fail(1, `##NPOINTS=${nPoints} must be a whole number ≥ 2`);
+  if (nPoints > maxPoints) fail(1, `##NPOINTS=${nPoints} is more than the ${maxPoints} points accepted`);
   const deltaX = (lastX - firstX) / (nPoints - 1);
   const ys = new Float64Array(nPoints);
   let count = 0;
@@ -269,7 +288,9 @@ export function parseJcamp(text: string): JcampData {
     const first = tokens[0];
     if (!first || first.kind !== 'abs') fail(i + 1, 'a data line must start with its X value');
     const x = first.value * xFactor;
-    const { values, endsWithDif } = expand(tokens.slice(1), i + 1);
+    // This line may hold the points still missing, plus the repeated Y of a DIF check.
+    const budget = nPoints - count + (pendingCheck !== undefined ? 1 : 0);
+    const { values, endsWithDif } = expand(tokens.slice(1), i + 1, budget);
     let vs = values;
     const checked = pendingCheck;
     if (pendingCheck !== undefined) {

@@ -1,6 +1,7 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { useApp } from '../helpers/app.js';
+import { nextClient } from '../helpers/clients.js';
 import { assignedFitBody } from '../helpers/requests.js';
 
 /**
@@ -63,9 +64,11 @@ async function check(method: 'GET' | 'POST', url: string, payload?: string) {
   const r = await app().inject({
     method,
     url,
+    remoteAddress: nextClient(),
     ...(payload !== undefined ? { payload, headers: { 'content-type': 'application/json' } } : {}),
   });
   expect(r.statusCode, r.body.slice(0, 300)).toBeLessThan(500);
+  expect(r.statusCode, 'each case is its own client, under its quota').not.toBe(429);
   if (r.statusCode >= 400 && !url.startsWith('/graphql'))
     expect(r.headers['content-type']).toMatch(/^application\/problem\+json/);
   return r;
@@ -193,6 +196,7 @@ describe('fuzzing', () => {
         const r = await app().inject({
           method: 'POST',
           url: '/v1/batch/fits',
+          remoteAddress: nextClient(),
           payload,
           headers: { 'content-type': 'application/x-ndjson' },
         });
