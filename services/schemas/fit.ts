@@ -27,6 +27,14 @@ export const LineSchema = z
     position: z.number().positive().describe('line position in the request unit'),
     uncertainty: z.number().positive().optional().describe('standard uncertainty in the request unit'),
     intensity: z.number().min(0).optional().describe('any linear scale'),
+    source: z
+      .string()
+      .min(1)
+      .max(100)
+      .optional()
+      .describe(
+        'label of the instrument or file the line came from: lines without an uncertainty get σ from the scatter of their source',
+      ),
     assignment: AssignmentSchema.optional(),
   })
   .meta({ id: 'Line' });
@@ -288,6 +296,17 @@ export const FitResponseSchema = z
         deviation: z.number().describe('|B_cd − B_fit| in combined standard uncertainties'),
       }),
     ),
+    scatter: z
+      .array(
+        z.object({
+          group: z.string(),
+          by: z.enum(['source', 'band', 'pooled']),
+          lines: z.number().int(),
+          sigma: z.number().describe('cm-1'),
+        }),
+      )
+      .optional()
+      .describe('σ estimated from the residual scatter (robust) for the lines sent without an uncertainty'),
     crossChecks: z.array(
       z.object({
         species: z.string(),

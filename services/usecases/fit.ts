@@ -67,6 +67,7 @@ export function prepareFit(req: FitRequest): PreparedFit {
       position: c.value,
       ...(c.uncertainty !== undefined ? { uncertainty: c.uncertainty } : {}),
       ...(l.intensity !== undefined ? { intensity: l.intensity } : {}),
+      ...(l.source !== undefined ? { source: l.source } : {}),
     };
     if (!l.assignment) return base;
     const iso = resolve(l.assignment.species, index);

@@ -151,3 +151,8 @@ export function correlationOf(cov: Float64Array, p: number): Float64Array {
   }
   return out;
 }
+
+/** A row-major p × p matrix as rows (for reports). */
+export function toRows(m: Float64Array, p: number): number[][] {
+  return Array.from({ length: p }, (_, i) => Array.from(m.subarray(i * p, i * p + p)));
+}

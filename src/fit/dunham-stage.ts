@@ -1,0 +1,202 @@
+import { type DunhamTerm, dunhamModel, dunhamParameters, massReducedParameters } from '../models/dunham.js';
+import { levelStructure } from '../models/level-model.js';
+import type { LinearModel, Observation } from '../models/linear-model.js';
+import type { MassValue } from '../species/reduced-mass.js';
+import {
+  isRankDeficient,
+  reducedChiSquare,
+  rmsResidual,
+  type SolvedModel,
+  solveModel,
+  toRows,
+  type UncertaintyMode,
+} from './engine.js';
+import { termTest } from './term-test.js';
+import type { DunhamFit, Warning } from './types.js';
+
+/* Stage 5: Dunham fits of the kept lines, per isotopologue (and optionally one mass-reduced fit across them). */
+
+/** Dunham terms the level structure can determine, and the candidates the term test may add. */
+export function dunhamTermPlan(obs: readonly Observation[], orders: ReadonlyMap<string, number>, species: string) {
+  const structure = levelStructure(obs);
+  const vs = structure.levels.get(species) ?? [];
+  const ref = structure.reference.get(species) as ReadonlyMap<number, number>;
+  const nLevels = vs.length;
+  const components = new Set(vs.map((v) => ref.get(v))).size;
+  const nVib = nLevels - components;
+  let maxOrder = 1;
+  for (const v of vs) maxOrder = Math.max(maxOrder, orders.get(`${species}|${v}`) ?? 1);
+  const base: DunhamTerm[] = [];
+  for (let k = 1; k <= Math.min(nVib, 4); k++) base.push({ k, l: 0 });
+  base.push({ k: 0, l: 1 });
+  if (nLevels >= 2) base.push({ k: 1, l: 1 });
+  if (maxOrder >= 2) base.push({ k: 0, l: 2 });
+  const candidates: DunhamTerm[] = [];
+  for (let l = 1; l <= Math.min(maxOrder, 4); l++) {
+    for (let k = 0; k <= Math.min(nLevels - 1, 3); k++) {
+      if (base.some((b) => b.k === k && b.l === l)) continue;
+      candidates.push({ k, l });
+    }
+  }
+  return { base, candidates, nLevels, nVib };
+}
+
+/**
+ * Forward selection of Dunham terms: at each step, among the candidates whose lower-order neighbours are already
+ * in (Y_{k−1,l} for k > 0, Y_{0,l−1} for k = 0), add the one with the smallest term-test p-value while p < alpha.
+ */
+function selectDunham(
+  obs: readonly Observation[],
+  base: DunhamTerm[],
+  candidates: DunhamTerm[],
+  mode: UncertaintyMode,
+  alpha: number,
+  build: (terms: readonly DunhamTerm[]) => LinearModel,
+): { fit: SolvedModel; terms: DunhamTerm[] } | undefined {
+  let terms = [...base];
+  let fit = solveModel(build(terms), obs, mode, false);
+  // Should the base be indeterminate (a structure the plan did not foresee), drop its highest terms until it is not.
+  while (isRankDeficient(fit) && terms.length > 1) {
+    terms = terms.slice(0, -1);
+    fit = solveModel(build(terms), obs, mode, false);
+  }
+  if (isRankDeficient(fit)) return undefined;
+  let current = fit;
+  let pool = [...candidates];
+  for (;;) {
+    const ready = pool.filter((c) =>
+      c.k > 0 ? terms.some((t) => t.k === c.k - 1 && t.l === c.l) : terms.some((t) => t.k === 0 && t.l === c.l - 1),
+    );
+    let best: { term: DunhamTerm; fit: SolvedModel; p: number } | undefined;
+    for (const c of ready) {
+      const trial = [...terms, c];
+      if (trial.length >= obs.length) continue;
+      const f = solveModel(build(trial), obs, mode, false);
+      if (isRankDeficient(f)) continue;
+      const pv = termTest(current, f, mode);
+      if (!best || pv < best.p) best = { term: c, fit: f, p: pv };
+    }
+    if (!best || best.p >= alpha) break;
+    terms = [...terms, best.term];
+    current = best.fit;
+    pool = pool.filter((c) => c !== best.term);
+  }
+  return { fit: current, terms };
+}
+
+function reportOf(species: string, fit: SolvedModel): DunhamFit {
+  const p = fit.model.parameters.length;
+  return {
+    species,
+    parameters: fit.model.parameters.map((par, i) => ({
+      name: par.name,
+      value: fit.values[i] as number,
+      uncertainty: Math.sqrt(fit.covariance[i * p + i] as number),
+      unit: par.unit,
+      ...(par.species ? { species: par.species } : {}),
+    })),
+    covariance: { parameters: fit.model.parameters.map((x) => x.name), matrix: toRows(fit.covariance, p) },
+    statistics: {
+      degreesOfFreedom: fit.degreesOfFreedom,
+      rms: rmsResidual(fit),
+      reducedChiSquare: reducedChiSquare(fit),
+    },
+    terms: fit.model.parameters.map((x) => x.name),
+  };
+}
+
+export function fitDunhamForSpecies(
+  species: string,
+  obs: readonly Observation[],
+  mode: UncertaintyMode,
+  alpha: number,
+  orders: ReadonlyMap<string, number>,
+  warnings: Warning[],
+) {
+  const plan = dunhamTermPlan(obs, orders, species);
+  if (plan.nLevels < 2) {
+    warnings.push({
+      code: 'EQUILIBRIUM_NEEDS_TWO_LEVELS',
+      message: `${species}: lines of one vibrational level give B_v, D_v of that level only; B_e and α_e need two or more levels`,
+    });
+    return undefined;
+  }
+  const sel = selectDunham(obs, plan.base, plan.candidates, mode, alpha, (terms) =>
+    dunhamModel(dunhamParameters(species, terms, false)),
+  );
+  if (!sel) return undefined;
+  if (sel.fit.degreesOfFreedom === 0 && mode === 'a-posteriori') {
+    warnings.push({
+      code: 'EQUILIBRIUM_UNDETERMINED',
+      message: `${species}: the Dunham fit has no degrees of freedom left, so its uncertainties cannot be estimated; equilibrium constants are omitted`,
+    });
+    return undefined;
+  }
+  const has = (k: number, l: number) => sel.terms.some((t) => t.k === k && t.l === l);
+  if (plan.nVib < 2) {
+    warnings.push({
+      code: 'VIBRATION_NEEDS_TWO_INTERVALS',
+      message: `${species}: ω_e and ω_e x_e need two or more vibrational intervals (e.g. a fundamental and an overtone); only the band origin is determined`,
+    });
+  } else if (!has(3, 0)) {
+    warnings.push({
+      code: 'HIGHER_TERMS_NEGLECTED',
+      message: `${species}: ω_e and ω_e x_e from two vibrational intervals neglect ω_e y_e`,
+    });
+  }
+  if (plan.nLevels === 2) {
+    warnings.push({
+      code: 'HIGHER_TERMS_NEGLECTED',
+      message: `${species}: B_e and α_e from two vibrational levels (B_e = B_0 + α_e/2) neglect γ_e and higher terms`,
+    });
+  }
+  if (has(0, 2) && !has(1, 2)) {
+    warnings.push({
+      code: 'HIGHER_TERMS_NEGLECTED',
+      message: `${species}: D_e is taken as the same in every level (β_e not determined)`,
+    });
+  }
+  const report = reportOf(species, sel.fit);
+  const set = {
+    keys: sel.terms.map((t) => `${t.k},${t.l}`),
+    values: Array.from(sel.fit.values),
+    covariance: sel.fit.covariance,
+  };
+  return { report, set };
+}
+
+export function fitMassReduced(
+  obs: readonly Observation[],
+  masses: ReadonlyMap<string, MassValue>,
+  mode: UncertaintyMode,
+  alpha: number,
+  orders: ReadonlyMap<string, number>,
+  warnings: Warning[],
+): (DunhamFit & { species: 'all' }) | undefined {
+  // The richest isotopologue sets the plan; the F test decides the rest.
+  const structure = levelStructure(obs);
+  let best = structure.species[0] as string;
+  for (const s of structure.species) {
+    if ((structure.levels.get(s)?.length ?? 0) > (structure.levels.get(best)?.length ?? 0)) best = s;
+  }
+  const plan = dunhamTermPlan(obs, orders, best);
+  const mu = new Map([...masses].map(([k, v]) => [k, v.value]));
+  const sel = selectDunham(obs, plan.base, plan.candidates, mode, alpha, (terms) =>
+    dunhamModel(massReducedParameters(terms), mu),
+  );
+  if (!sel) {
+    warnings.push({
+      code: 'MASS_REDUCED_INDETERMINATE',
+      message: 'the mass-reduced Dunham model could not be determined from these lines',
+    });
+    return undefined;
+  }
+  if (sel.fit.degreesOfFreedom === 0 && mode === 'a-posteriori') {
+    warnings.push({
+      code: 'MASS_REDUCED_INDETERMINATE',
+      message: 'the mass-reduced Dunham fit has no degrees of freedom left',
+    });
+    return undefined;
+  }
+  return { ...reportOf('all', sel.fit), species: 'all' };
+}

@@ -1,0 +1,180 @@
+import { bondLength } from '../derive/bond-length.js';
+import { type Quantity, quantity } from '../derive/quantity.js';
+import { levelStructure } from '../models/level-model.js';
+import type { Observation } from '../models/linear-model.js';
+import { formatBand, type Transition } from '../models/transitions.js';
+import type { MassValue } from '../species/reduced-mass.js';
+import { correlationOf, type SolvedModel, studentisedResiduals, toRows } from './engine.js';
+import { predictWithVariance } from './level-selection.js';
+import type { FitResult, LineInput, LineOutcome, NamedQuantity, Warning } from './types.js';
+
+export interface LevelReport {
+  readonly lines: LineOutcome[];
+  readonly bands: FitResult['bands'][number][];
+  readonly levels: FitResult['levels'][number][];
+  readonly levelTerms: { species: string; v: number; terms: string[] }[];
+  readonly parameters: NamedQuantity[];
+  readonly names: string[];
+  readonly covariance: number[][];
+  readonly correlation: number[][];
+  /** The level-model quantity of a parameter key ("species|B|v"), when fitted. */
+  quantityOf(key: string): Quantity | undefined;
+  readonly warnings: Warning[];
+}
+
+/**
+ * Stage 4: what the level fit says, line by line (fitted, rejected with its reason, unassigned), band by band
+ * (origin ν₀ = T_v′ − T_v″ with the covariance of the two term values) and level by level (B_v, D_v, … and the
+ * effective bond length r_v), with the parameters, their covariance and correlation.
+ */
+export function reportLevels(
+  input: readonly LineInput[],
+  observations: readonly Observation[],
+  transitions: ReadonlyMap<number, Transition & { readonly source: 'given' | 'auto' }>,
+  rejected: ReadonlyMap<number, string>,
+  fit: SolvedModel,
+  masses: ReadonlyMap<string, MassValue>,
+): LevelReport {
+  const warnings: Warning[] = [];
+  const params = fit.model.parameters;
+  const p = params.length;
+  const paramIndex = new Map(params.map((q, i) => [q.key, i]));
+  const sigmaOf = (i: number) => Math.sqrt(fit.covariance[i * p + i] as number);
+  const quantityOf = (key: string): Quantity | undefined => {
+    const i = paramIndex.get(key);
+    return i === undefined ? undefined : quantity(fit.values[i] as number, sigmaOf(i), 'cm-1');
+  };
+
+  const t = studentisedResiduals(fit);
+  const keptPos = new Map(fit.observations.map((o, i) => [o.index, i]));
+  const byIndex = new Map(observations.map((o) => [o.index, o]));
+  const lines: LineOutcome[] = input.map((l, index) => {
+    const a = transitions.get(index);
+    const echo = l.intensity !== undefined ? { intensity: l.intensity } : {};
+    if (!a) return { index, position: l.position, ...echo, status: 'unassigned' as const };
+    const assignment = { band: formatBand(a.band), branch: a.branch, j: a.j, species: a.species, source: a.source };
+    const ki = keptPos.get(index);
+    if (ki !== undefined) {
+      const residual = fit.residuals[ki] as number;
+      return {
+        index,
+        position: l.position,
+        ...echo,
+        assignment,
+        calculated: l.position - residual,
+        residual,
+        studentisedResidual: t[ki] as number,
+        status: 'fitted' as const,
+      };
+    }
+    const calculated = predictWithVariance(fit, byIndex.get(index) as Observation)?.value;
+    const out: LineOutcome = {
+      index,
+      position: l.position,
+      ...echo,
+      assignment,
+      status: 'rejected' as const,
+      reason: rejected.get(index) ?? 'rejected',
+    };
+    return calculated === undefined ? out : { ...out, calculated, residual: l.position - calculated };
+  });
+
+  const structure = levelStructure(fit.observations);
+  const bandStats = new Map<
+    string,
+    { species: string; band: string; upper: number; lower: number; n: number; jmin: number; jmax: number }
+  >();
+  for (const o of fit.observations) {
+    const key = `${o.species}|${o.upperV}-${o.lowerV}`;
+    const b = bandStats.get(key) ?? {
+      species: o.species,
+      band: `${o.upperV}-${o.lowerV}`,
+      upper: o.upperV,
+      lower: o.lowerV,
+      n: 0,
+      jmin: o.lowerJ,
+      jmax: o.lowerJ,
+    };
+    b.n++;
+    b.jmin = Math.min(b.jmin, o.lowerJ);
+    b.jmax = Math.max(b.jmax, o.lowerJ);
+    bandStats.set(key, b);
+  }
+  const bands = [...bandStats.values()].map((b) => {
+    let origin: Quantity | undefined;
+    if (b.upper !== b.lower) {
+      const iu = paramIndex.get(`${b.species}|T|${b.upper}`);
+      const il = paramIndex.get(`${b.species}|T|${b.lower}`);
+      const vu = iu === undefined ? 0 : (fit.values[iu] as number);
+      const vl = il === undefined ? 0 : (fit.values[il] as number);
+      let varSum = 0;
+      if (iu !== undefined) varSum += fit.covariance[iu * p + iu] as number;
+      if (il !== undefined) varSum += fit.covariance[il * p + il] as number;
+      if (iu !== undefined && il !== undefined) varSum -= 2 * (fit.covariance[iu * p + il] as number);
+      origin = quantity(vu - vl, Math.sqrt(Math.max(varSum, 0)), 'cm-1');
+    }
+    return {
+      species: b.species,
+      band: b.band,
+      ...(origin ? { origin } : {}),
+      lines: b.n,
+      jRange: [b.jmin, b.jmax] as [number, number],
+    };
+  });
+
+  const levels: FitResult['levels'][number][] = [];
+  const levelTerms: { species: string; v: number; terms: string[] }[] = [];
+  for (const s of structure.species) {
+    const mu = masses.get(s) as MassValue;
+    for (const v of structure.levels.get(s) as readonly number[]) {
+      const B = quantityOf(`${s}|B|${v}`) as Quantity;
+      const ref = structure.reference.get(s)?.get(v) as number;
+      const T = quantityOf(`${s}|T|${v}`);
+      const extra: Record<string, Quantity> = {};
+      const terms: string[] = ['B'];
+      for (const kind of ['D', 'H', 'L'] as const) {
+        const x = quantityOf(`${s}|${kind}|${v}`);
+        if (x) {
+          extra[kind] = x;
+          terms.push(kind);
+        }
+      }
+      levelTerms.push({ species: s, v, terms });
+      const r = bondLength(B, mu);
+      levels.push({
+        species: s,
+        v,
+        ...(T ? { term: { ...T, relativeTo: ref } } : {}),
+        B,
+        ...extra,
+        ...(r ? { r } : {}),
+      });
+      if (!r) {
+        warnings.push({
+          code: 'NON_PHYSICAL_CONSTANT',
+          message: `${s}: B_${v} = ${B.value} cm-1 is not positive; check the assignment or the unit`,
+        });
+      }
+    }
+  }
+
+  const parameters: NamedQuantity[] = params.map((par, i) => ({
+    name: par.name,
+    value: fit.values[i] as number,
+    uncertainty: sigmaOf(i),
+    unit: par.unit,
+    ...(par.species ? { species: par.species } : {}),
+  }));
+  return {
+    lines,
+    bands,
+    levels,
+    levelTerms,
+    parameters,
+    names: params.map((x) => x.name),
+    covariance: toRows(fit.covariance, p),
+    correlation: toRows(correlationOf(fit.covariance, p), p),
+    quantityOf,
+    warnings,
+  };
+}

@@ -1,0 +1,98 @@
+import { ScienceError } from '../errors.js';
+import { levelModel, levelParameters, levelStructure } from '../models/level-model.js';
+import type { Observation } from '../models/linear-model.js';
+import { isRankDeficient, type RankDeficiency, type SolvedModel, solveModel, type UncertaintyMode } from './engine.js';
+import { termTest } from './term-test.js';
+
+/** The chosen level model, solved with leverages, and the centrifugal order of each level ("species|v"). */
+export interface LevelSelection {
+  readonly fit: SolvedModel;
+  readonly orders: Map<string, number>;
+}
+
+export function rankError(def: RankDeficiency, what: string): ScienceError {
+  const groups = def.groups.map((g) => g.map((x) => x.name));
+  return new ScienceError(
+    'FIT_RANK_DEFICIENT',
+    `the ${what} cannot be determined from these lines: ${groups.map((g) => g.join(' / ')).join('; ')} cannot be told apart`,
+    { parameters: [...new Set(groups.flat())], groups },
+  );
+}
+
+/** Distinct J values that touch each level, which bound the rotational terms the level can support. */
+function distinctJ(obs: readonly Observation[]): Map<string, number> {
+  const sets = new Map<string, Set<number>>();
+  const add = (s: string, v: number, j: number) => {
+    const k = `${s}|${v}`;
+    const set = sets.get(k) ?? new Set<number>();
+    set.add(j);
+    sets.set(k, set);
+  };
+  for (const o of obs) {
+    add(o.species, o.upperV, o.upperJ);
+    add(o.species, o.lowerV, o.lowerJ);
+  }
+  return new Map([...sets].map(([k, v]) => [k, v.size]));
+}
+
+/**
+ * Stage 2 (and again after each round of outlier rejection): start from T and B for every level; add D, then H,
+ * then L to the levels with enough distinct J while the term test (`termTest`: the nested F test, or the χ²
+ * difference when the uncertainties are absolute) finds the added group significant.
+ */
+export function selectLevelModel(
+  obs: readonly Observation[],
+  maxOrder: number,
+  mode: UncertaintyMode,
+  alpha: number,
+): LevelSelection {
+  const structure = levelStructure(obs);
+  const orders = new Map<string, number>();
+  for (const s of structure.species)
+    for (const v of structure.levels.get(s) as readonly number[]) orders.set(`${s}|${v}`, 1);
+  const baseParams = levelParameters(structure, orders);
+  if (obs.length < baseParams.length) {
+    throw new ScienceError(
+      'FIT_TOO_FEW_LINES',
+      `${obs.length} assigned line(s) cannot determine the ${baseParams.length} parameters the bands need at the least (${baseParams.map((x) => x.name).join(', ')})`,
+      { lines: obs.length, parameters: baseParams.length },
+    );
+  }
+  const first = solveModel(levelModel(baseParams), obs, mode, false);
+  if (isRankDeficient(first)) throw rankError(first, 'level model');
+  let current: SolvedModel = first;
+  const nj = distinctJ(obs);
+  for (let next = 2; next <= maxOrder; next++) {
+    const eligible = [...orders].filter(([k, o]) => o === next - 1 && (nj.get(k) ?? 0) >= next + 2).map(([k]) => k);
+    if (eligible.length === 0) break;
+    const trial = new Map(orders);
+    for (const k of eligible) trial.set(k, next);
+    const params = levelParameters(structure, trial);
+    if (params.length >= obs.length) break;
+    const t = solveModel(levelModel(params), obs, mode, false);
+    if (isRankDeficient(t)) break;
+    if (termTest(current, t, mode) >= alpha) break;
+    current = t;
+    for (const k of eligible) orders.set(k, next);
+  }
+  // The chosen model once more, with leverages for the studentised residuals.
+  const final = solveModel(current.model, obs, mode, true);
+  return { fit: isRankDeficient(final) ? current : final, orders };
+}
+
+/** Position and variance (from the covariance) of an observation predicted by a solved model. */
+export function predictWithVariance(fit: SolvedModel, o: Observation): { value: number; variance: number } | undefined {
+  const params = fit.model.parameters;
+  const p = params.length;
+  const g = params.map((par) => fit.model.coefficient(par, o));
+  // A line of a level the fit no longer holds (all its lines rejected) has no prediction.
+  const touches = g.some((c) => c !== 0);
+  if (!touches && p > 0) return undefined;
+  let value = 0;
+  let variance = 0;
+  for (let i = 0; i < p; i++) {
+    value += (g[i] as number) * (fit.values[i] as number);
+    for (let j = 0; j < p; j++) variance += (g[i] as number) * (fit.covariance[i * p + j] as number) * (g[j] as number);
+  }
+  return { value, variance: Math.max(variance, 0) };
+}

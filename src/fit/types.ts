@@ -1,0 +1,159 @@
+import type { CrossCheck, EquilibriumConstants } from '../derive/equilibrium.js';
+import type { Quantity } from '../derive/quantity.js';
+import type { Branch, Transition } from '../models/transitions.js';
+import type { CombinationDifferenceFit } from './combination-differences.js';
+import type { UncertaintyMode } from './engine.js';
+import type { ScatterGroup } from './weights.js';
+
+/** The types a line-list fit takes and returns (the stages in src/fit/ each fill a part of FitResult). */
+
+export interface LineInput {
+  /** Position in cm⁻¹. */
+  readonly position: number;
+  /** Standard uncertainty in cm⁻¹. */
+  readonly uncertainty?: number;
+  readonly intensity?: number;
+  /** A label of the instrument or file the line came from; scatter is estimated per source. */
+  readonly source?: string;
+  readonly assignment?: Transition & { readonly source: 'given' | 'auto' };
+}
+
+export interface FitOptions {
+  /** Default 'a-posteriori'. */
+  readonly uncertaintyMode?: UncertaintyMode;
+  /** Studentised-residual threshold for rejecting a line; 0 turns rejection off. Default 4. */
+  readonly rejectionThreshold?: number;
+  /** Most lines that may be rejected, as a fraction of the assigned lines. Default 0.2. */
+  readonly maxRejectedFraction?: number;
+  /** p-value below which an added term counts as supported by the data (F test). Default 0.01. */
+  readonly termSignificance?: number;
+  /** Highest centrifugal term of the level model: 1 = B, 2 = D, 3 = H, 4 = L. Default 4. */
+  readonly maxCentrifugalOrder?: number;
+  /** Also fit one mass-reduced Dunham model (U_kl) across isotopologues. Default false. */
+  readonly massReducedDunham?: boolean;
+  /**
+   * Fit the level model only, skipping Dunham, combination differences and cross-checks (for the inner loop of
+   * automatic assignment). Default false.
+   */
+  readonly levelsOnly?: boolean;
+}
+
+export interface Warning {
+  readonly code: string;
+  readonly message: string;
+  readonly lines?: readonly number[];
+}
+
+export type LineStatus = 'fitted' | 'rejected' | 'unassigned';
+
+export interface LineOutcome {
+  readonly index: number;
+  readonly position: number;
+  /** The intensity sent with the line, echoed. */
+  readonly intensity?: number;
+  readonly assignment?: {
+    readonly band: string;
+    readonly branch: Branch;
+    readonly j: number;
+    readonly species: string;
+    readonly source: 'given' | 'auto';
+  };
+  readonly calculated?: number;
+  readonly residual?: number;
+  readonly studentisedResidual?: number;
+  readonly status: LineStatus;
+  readonly reason?: string;
+}
+
+export interface NamedQuantity extends Quantity {
+  readonly name: string;
+  readonly species?: string;
+}
+
+export interface Statistics {
+  readonly lines: number;
+  readonly assigned: number;
+  readonly fitted: number;
+  readonly rejected: number;
+  readonly unassigned: number;
+  readonly parameters: number;
+  readonly degreesOfFreedom: number;
+  readonly rms: number;
+  readonly reducedChiSquare: number | null;
+  readonly conditionNumber: number | null;
+  readonly uncertaintyMode: UncertaintyMode;
+}
+
+export interface DunhamFit {
+  readonly species: string;
+  readonly parameters: readonly NamedQuantity[];
+  readonly covariance: { readonly parameters: readonly string[]; readonly matrix: readonly (readonly number[])[] };
+  readonly statistics: {
+    readonly degreesOfFreedom: number;
+    readonly rms: number;
+    readonly reducedChiSquare: number | null;
+  };
+  readonly terms: readonly string[];
+}
+
+export interface FitResult {
+  readonly species: readonly { readonly formula: string; readonly reducedMass: Quantity }[];
+  readonly lines: readonly LineOutcome[];
+  readonly bands: readonly {
+    readonly species: string;
+    readonly band: string;
+    readonly origin?: Quantity;
+    readonly lines: number;
+    readonly jRange: readonly [number, number];
+  }[];
+  readonly levels: readonly {
+    readonly species: string;
+    readonly v: number;
+    readonly term?: Quantity & { readonly relativeTo: number };
+    readonly B: Quantity;
+    readonly D?: Quantity;
+    readonly H?: Quantity;
+    readonly L?: Quantity;
+    readonly r?: Quantity;
+  }[];
+  readonly equilibrium: readonly ({ readonly species: string } & EquilibriumConstants)[];
+  readonly parameters: readonly NamedQuantity[];
+  readonly covariance: { readonly parameters: readonly string[]; readonly matrix: readonly (readonly number[])[] };
+  readonly correlation: { readonly parameters: readonly string[]; readonly matrix: readonly (readonly number[])[] };
+  readonly statistics: Statistics;
+  readonly model: {
+    readonly levelTerms: readonly { readonly species: string; readonly v: number; readonly terms: readonly string[] }[];
+    readonly selection: string;
+  };
+  readonly dunham: readonly DunhamFit[];
+  readonly massReducedDunham?: DunhamFit & { readonly species: 'all' };
+  readonly combinationDifferences: readonly (CombinationDifferenceFit & {
+    readonly fitted: Quantity;
+    readonly deviation: number;
+  })[];
+  readonly crossChecks: readonly ({ readonly species: string } & CrossCheck)[];
+  /**
+   * Line uncertainties estimated from the scatter of the residuals, per band or per source, for the lines sent
+   * without one (absent when every line came with its uncertainty).
+   */
+  readonly scatter?: readonly ScatterGroup[];
+  readonly warnings: readonly Warning[];
+}
+
+/** What the automatic assignment needs besides the result: predictions of the fitted level model. */
+export interface DetailedFit {
+  readonly result: FitResult;
+  /**
+   * Position and variance of a transition predicted by the fitted level model, when both its levels were fitted
+   * (and, for a vibrational band, lie in one connected set of levels); otherwise undefined.
+   */
+  predict(t: Transition): { value: number; variance: number } | undefined;
+  /** s² = χ²/(n−p) of the level fit (1 when undefined). */
+  readonly scale: number;
+  /**
+   * Standard uncertainty (cm⁻¹) a line of this transition would carry in the fit: its own σ when it has one,
+   * otherwise the scatter estimated for its source, its band, or all lines without σ; in every case scaled by √s²
+   * (a-posteriori mode). Use it with `predict(t).variance` for tolerances: |obs − pred| ≤ k √(σ² + var).
+   */
+  lineSigma(t: Transition, own?: { readonly uncertainty?: number; readonly source?: string }): number;
+}

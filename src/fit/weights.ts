@@ -1,0 +1,186 @@
+import type { Observation } from '../models/linear-model.js';
+import { formatBand } from '../models/transitions.js';
+import { median, robustSigma } from '../stats/robust.js';
+import { selectLevelModel } from './level-selection.js';
+import type { LineInput, Warning } from './types.js';
+
+/** The scatter estimated for one group of lines sent without an uncertainty. */
+export interface ScatterGroup {
+  /** The source label, or "species band" (e.g. "12C-16O 1-0"), or "all lines without an uncertainty". */
+  readonly group: string;
+  readonly by: 'source' | 'band' | 'pooled';
+  /** Lines of the group that had no uncertainty (and took this estimate). */
+  readonly lines: number;
+  /** Robust standard deviation of the lines, cm⁻¹. */
+  readonly sigma: number;
+}
+
+export interface WeightedLines {
+  /** The assigned lines with weights 1/σ² from the given or the estimated uncertainties. */
+  readonly observations: readonly Observation[];
+  readonly groups: readonly ScatterGroup[];
+  /** σ for a line without an uncertainty: by source, by band ("species|upper-lower"), or pooled. */
+  sigmaFor(species: string, band: string, source?: string): number;
+  readonly warnings: readonly Warning[];
+}
+
+/** Groups smaller than this take the pooled estimate: the MAD of fewer lines is itself uncertain by > 35 %. */
+export const MIN_SCATTER_GROUP = 10;
+/** Reweighting rounds: the estimate moves the fit, which moves the residuals; two rounds settle it. */
+const ROUNDS = 2;
+
+const bandKeyOf = (o: Observation) => `${o.species}|${o.upperV}-${o.lowerV}`;
+
+/**
+ * Stage 1b, weights. Lines with an uncertainty weigh 1/σ². Lines without one (the usual peak list) get σ estimated
+ * from the data: a first level fit, then per group (the line's source when it names one, else its band) the
+ * normal-consistent MAD of the leverage-corrected residuals eᵢ/√(1 − hᵢᵢ) (SCIENCE.md §9; Rousseeuw & Croux 1993),
+ * which a few wrong lines do not inflate, refined by the clipped rms (`scatterOf`), and a refit with the new
+ * weights. Groups with fewer than
+ * MIN_SCATTER_GROUP such lines take the estimate pooled over all lines without σ, or, when some lines do carry
+ * uncertainties and too few lack one, the median of the given ones (as before).
+ */
+export function weighLines(
+  input: readonly LineInput[],
+  observations: readonly Observation[],
+  fit: { readonly maxOrder: number; readonly termSignificance: number },
+): WeightedLines {
+  const given = input.filter((l) => l.uncertainty !== undefined).map((l) => l.uncertainty as number);
+  const fallback = given.length > 0 ? median(given) : 1;
+  const missing = observations.filter((o) => input[o.index]?.uncertainty === undefined);
+  const groupOf = (o: Observation) => {
+    const source = input[o.index]?.source;
+    return source !== undefined ? `source|${source}` : `band|${bandKeyOf(o)}`;
+  };
+  const warnings: Warning[] = [];
+  const fixed = (sigma: number): WeightedLines => ({
+    observations: observations.map((o) =>
+      input[o.index]?.uncertainty === undefined ? { ...o, weight: 1 / (sigma * sigma) } : o,
+    ),
+    groups: [],
+    sigmaFor: () => sigma,
+    warnings,
+  });
+  if (given.length === input.length) return fixed(fallback);
+  if (given.length > 0 && missing.length < MIN_SCATTER_GROUP) {
+    warnings.push({
+      code: 'UNCERTAINTY_FILLED',
+      message: `${input.length - given.length} line(s) had no uncertainty and were given the median of the others, ${fallback} cm-1`,
+    });
+    return fixed(fallback);
+  }
+  if (missing.length === 0) return fixed(fallback);
+
+  let obs = observations.map((o) =>
+    input[o.index]?.uncertainty === undefined ? { ...o, weight: 1 / fallback ** 2 } : o,
+  );
+  let sigmas = new Map<string, number>();
+  let pooled = fallback;
+  let counts = new Map<string, number>();
+  // Lines far outside their group's scatter stay out of the next estimating fit (not out of the main fit: stage 3
+  // judges them), so that one gross error does not bend the fit whose residuals measure the scatter.
+  let gross = new Set<number>();
+  for (let round = 0; round < ROUNDS; round++) {
+    let level: ReturnType<typeof selectLevelModel>;
+    try {
+      const sample = gross.size > 0 ? obs.filter((o) => !gross.has(o.index)) : obs;
+      level = selectLevelModel(sample, fit.maxOrder, 'a-posteriori', fit.termSignificance);
+    } catch {
+      // Too few lines or an indeterminate model: the main fit will say so; keep the provisional weights.
+      break;
+    }
+    const f = level.fit;
+    if (f.degreesOfFreedom < 2 || f.leverages.length !== f.observations.length) break;
+    const byGroup = new Map<string, number[]>();
+    const all: number[] = [];
+    f.observations.forEach((o, i) => {
+      if (input[o.index]?.uncertainty !== undefined) return;
+      const h = Math.min(f.leverages[i] as number, 1 - 1e-9);
+      const e = (f.residuals[i] as number) / Math.sqrt(1 - h);
+      all.push(e);
+      const k = groupOf(o);
+      const list = byGroup.get(k) ?? [];
+      list.push(e);
+      byGroup.set(k, list);
+    });
+    if (all.length < 3) break;
+    pooled = scatterOf(all);
+    sigmas = new Map();
+    if (round === 0) counts = new Map([...byGroup].map(([k, v]) => [k, v.length]));
+    for (const [k, e] of byGroup) if (e.length >= MIN_SCATTER_GROUP) sigmas.set(k, scatterOf(e));
+    const sigmaOf = (o: Observation) => sigmas.get(groupOf(o)) ?? pooled;
+    gross = new Set();
+    f.observations.forEach((o, i) => {
+      if (input[o.index]?.uncertainty !== undefined) return;
+      if (Math.abs(f.residuals[i] as number) > GROSS * sigmaOf(o)) gross.add(o.index);
+    });
+    obs = observations.map((o) =>
+      input[o.index]?.uncertainty === undefined ? { ...o, weight: 1 / sigmaOf(o) ** 2 } : o,
+    );
+  }
+  const groups: ScatterGroup[] = [];
+  let pooledLines = 0;
+  for (const [k, n] of counts) {
+    const s = sigmas.get(k);
+    if (s === undefined) {
+      pooledLines += n;
+      continue;
+    }
+    const [kind, rest] = k.split(/\|(.*)/s) as [string, string];
+    const label = kind === 'source' ? rest : bandLabel(rest);
+    groups.push({ group: label, by: kind === 'source' ? 'source' : 'band', lines: n, sigma: s });
+  }
+  if (pooledLines > 0)
+    groups.push({ group: 'all lines without an uncertainty', by: 'pooled', lines: pooledLines, sigma: pooled });
+  if (groups.length > 0) {
+    warnings.push({
+      code: 'UNCERTAINTY_ESTIMATED',
+      message: `${missing.length} line(s) had no uncertainty: σ was estimated from the scatter of the residuals (1.4826 × median absolute deviation, per ${groups.some((g) => g.by === 'source') ? 'source' : 'band'}) and used for the weights and the covariance: ${groups.map((g) => `${g.group} ${g.sigma.toPrecision(2)} cm-1 (${g.lines} lines)`).join(', ')}`,
+    });
+  }
+  const finalPooled = groups.length > 0 ? pooled : fallback;
+  return {
+    observations: obs,
+    groups,
+    sigmaFor(species, band, source) {
+      if (source !== undefined) {
+        const s = sigmas.get(`source|${source}`);
+        if (s !== undefined) return s;
+      }
+      return sigmas.get(`band|${species}|${band}`) ?? finalPooled;
+    },
+    warnings,
+  };
+}
+
+function bandLabel(key: string): string {
+  const [species, band] = key.split('|') as [string, string];
+  const [u, l] = band.split('-').map(Number) as [number, number];
+  return `${species} ${formatBand({ upper: u, lower: l })}`;
+}
+
+/** Residuals beyond this many σ stay out of the next estimating fit. */
+const GROSS = 5;
+/** Clipping of the refined estimate, in units of the MAD estimate. */
+const CLIP = 3;
+/** E[z² | |z| < 3] for a standard normal z: 1 − 6φ(3)/(2Φ(3) − 1) = 0.97334. */
+const CLIPPED_VARIANCE = 0.97334;
+
+/**
+ * Scatter of leverage-corrected residuals: the normal-consistent MAD (robust, but only 37 % efficient: ±18 % for
+ * 40 lines), then the rms of the residuals within 3 MAD-σ, corrected for the clipping — a one-step refinement
+ * that keeps the robustness and recovers most of the efficiency of a standard deviation (common practice, e.g.
+ * the clipped estimators of Huber, Robust Statistics, 1981, ch. 5). When more than half the residuals vanish
+ * (rounded or computed positions) the MAD is 0 and the plain rms is used.
+ */
+function scatterOf(e: readonly number[]): number {
+  const mad = robustSigma(e);
+  const rms = (xs: readonly number[]) => Math.sqrt(xs.reduce((a, x) => a + x * x, 0) / Math.max(xs.length, 1));
+  if (!(mad > 0 && Number.isFinite(mad))) {
+    const r = rms(e);
+    return r > 0 ? r : 1e-9;
+  }
+  const inside = e.filter((x) => Math.abs(x) <= CLIP * mad);
+  if (inside.length < 3) return mad;
+  return rms(inside) / Math.sqrt(CLIPPED_VARIANCE);
+}

@@ -1,0 +1,47 @@
+/** Pulls z = (value − truth)/σ of reported quantities, and their summary: coverage at 1σ and 2σ, mean, SD. */
+export interface PullSummary {
+  readonly n: number;
+  readonly within1: number;
+  readonly within2: number;
+  readonly mean: number;
+  readonly sd: number;
+}
+
+export function pullSummary(pulls: readonly number[]): PullSummary {
+  const n = pulls.length;
+  const mean = pulls.reduce((s, z) => s + z, 0) / n;
+  const sd = Math.sqrt(pulls.reduce((s, z) => s + (z - mean) ** 2, 0) / (n - 1));
+  return {
+    n,
+    within1: pulls.filter((z) => Math.abs(z) <= 1).length / n,
+    within2: pulls.filter((z) => Math.abs(z) <= 2).length / n,
+    mean,
+    sd,
+  };
+}
+
+/** Collects pulls by name. */
+export class PullTally {
+  readonly byName = new Map<string, number[]>();
+  add(name: string, q: { readonly value: number; readonly uncertainty: number } | undefined, truth: number): void {
+    if (!q) return;
+    const list = this.byName.get(name) ?? [];
+    list.push((q.value - truth) / q.uncertainty);
+    this.byName.set(name, list);
+  }
+  all(): number[] {
+    return [...this.byName.values()].flat();
+  }
+  summary(name?: string): PullSummary {
+    return pullSummary(name === undefined ? this.all() : (this.byName.get(name) ?? []));
+  }
+  /** One line per quantity, for a test's log and the closing notes. */
+  table(): string {
+    return [...this.byName.keys()]
+      .map((k) => {
+        const s = this.summary(k);
+        return `${k}: n ${s.n}, 1σ ${s.within1.toFixed(3)}, 2σ ${s.within2.toFixed(3)}, mean ${s.mean.toFixed(2)}, SD ${s.sd.toFixed(2)}`;
+      })
+      .join('\n');
+  }
+}
