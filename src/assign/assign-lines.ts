@@ -11,8 +11,9 @@ import { solveLeastSquares } from '../linalg/least-squares.js';
 import { formatBand, type Transition, transitionKey, transitionLabel } from '../models/transitions.js';
 import type { Isotopologue } from '../species/parse.js';
 import type { MassValue } from '../species/reduced-mass.js';
+import { median as robustMedian, robustSigma } from '../stats/robust.js';
 import { type CandidateLine, type CandidateOptions, candidateLines } from './candidates.js';
-import { type Competition, matchLines, type ObservedPeak, type Prediction } from './match.js';
+import { type Competition, lowerBound, matchLines, type ObservedPeak, type Prediction } from './match.js';
 import { estimateOffset, median } from './offset.js';
 
 /**
@@ -28,6 +29,8 @@ export interface PeakInput {
   readonly position: number;
   readonly uncertainty?: number;
   readonly intensity?: number;
+  /** Label of the instrument or file the line came from; offsets are then found per source. */
+  readonly source?: string;
   /** A given assignment anchors the automatic ones. */
   readonly assignment?: Transition & { readonly source: 'given' | 'auto' };
 }
@@ -55,6 +58,10 @@ export interface BandSummary {
   readonly band: string;
   readonly predicted: number;
   readonly matched: number;
+  /** Offset (observed − reference, cm⁻¹) the band was first matched with, per source when lines carry one. */
+  readonly offsets?: readonly { readonly source?: string; readonly offset: number; readonly own: boolean }[];
+  /** For a band with strong predictions but too few matches: the best offset its own vote found, and its votes. */
+  readonly bestOffset?: { readonly offset: number; readonly matches: number };
 }
 
 export interface AssignResult {
@@ -74,6 +81,12 @@ const bandKey = (c: { species: string; band: { upper: number; lower: number } })
 const START_J = 12;
 /** How far past the highest matched J a fitted band may reach in one step (at least; half the reach beyond). */
 const GROWTH_J = 3;
+/** Highest J″ a fitted band may grow to. */
+const MAX_J = 150;
+/** Half-width of a tolerance for a fitted band, in standard deviations of (prediction − observation). */
+const K_FITTED = 5;
+/** Lines of a band below which its scatter is pooled with all bands. */
+const MIN_FOR_OWN_SCATTER = 8;
 
 export function assignAndFit(
   peaks: readonly PeakInput[],
@@ -86,16 +99,31 @@ export function assignAndFit(
   const positions = peaks.map((p) => p.position);
   const lo = Math.min(...positions) - 1;
   const hi = Math.max(...positions) + 1;
-  const cands = candidateLines(species, lo, hi, options);
+  // Every line of every plausible band, down to any intensity: bands are seeded from their strong lines only, but a
+  // fitted band grows for as long as the data carry it.
+  const cands = candidateLines(species, lo, hi, {
+    ...options,
+    minRelativeIntensity: 0,
+    maxJ: options.maxJ ?? MAX_J,
+  });
+  const seedable = seedFilter(cands, options.minRelativeIntensity ?? 1e-4);
   const given = peaks.flatMap((p, index) => (p.assignment ? [{ index, t: p.assignment }] : []));
   const givenKeys = new Set(given.map((g) => transitionKey(g.t)));
   const free: ObservedPeak[] = peaks.flatMap((p, index) =>
     p.assignment
       ? []
-      : [{ index, position: p.position, ...(p.intensity !== undefined ? { intensity: p.intensity } : {}) }],
+      : [
+          {
+            index,
+            position: p.position,
+            ...(p.intensity !== undefined ? { intensity: p.intensity } : {}),
+            ...(p.uncertainty !== undefined ? { sigma: p.uncertainty } : {}),
+          },
+        ],
   );
-  const sigmas = peaks.filter((p) => p.uncertainty !== undefined).map((p) => p.uncertainty as number);
-  const typicalSigma = sigmas.length > 0 ? median(sigmas) : 0.005;
+  const sourceOf = (i: number) => peaks[i]?.source ?? '';
+  const sources = [...new Set(free.map((p) => sourceOf(p.index)))];
+  const freeBySource = new Map(sources.map((s) => [s, free.filter((p) => sourceOf(p.index) === s)]));
 
   const lineInputs = (auto: ReadonlyMap<number, CandidateLine>): LineInput[] =>
     peaks.map((p, index) => {
@@ -121,76 +149,102 @@ export function assignAndFit(
     return finish(new Map());
   }
 
-  // Offset by voting of the strongest predictions against the free peaks.
-  const strong = [...cands]
-    .sort((a, b) => b.intensity - a.intensity)
-    .filter((c) => c.j <= START_J)
-    .slice(0, 80);
   const maxOffset = options.maxOffset ?? 0.5;
-  const est = estimateOffset(
-    strong,
-    free.map((p) => p.position),
+  const offsets = voteOffsets(
+    cands.filter((c, i) => seedable[i] && c.j <= START_J),
+    freeBySource,
     maxOffset,
-    0.06,
+    options.minLinesPerBand ?? 4,
   );
-  const offset = est?.offset ?? 0;
-  const tolRef = Math.min(Math.max(4 * (est?.spread ?? 0.05), 0.03), 0.3);
-  if (est && est.runnerUpVotes > 0.7 * est.votes) {
-    warnings.push({
-      code: 'OFFSET_AMBIGUOUS',
-      message: `the instrument offset is ambiguous: a second value explains nearly as many lines as ${offset.toFixed(3)} cm-1`,
-    });
+  for (const [s, o] of offsets.bySource) {
+    if (o.ambiguous)
+      warnings.push({
+        code: 'OFFSET_AMBIGUOUS',
+        message: `the instrument offset${s ? ` of source "${s}"` : ''} is ambiguous: a second value explains nearly as many lines as ${o.offset.toFixed(3)} cm-1`,
+      });
   }
 
-  const banned = new Set<string>();
+  // Withdrawn pairs: tried again once the band has grown (a line off an early, short fit may suit the final one),
+  // but never a third time.
+  const banned = new Map<string, { at: number; count: number }>();
+  const isBanned = (k: string, iter: number) => {
+    const b = banned.get(k);
+    return b !== undefined && (b.count >= 2 || iter - b.at < 4);
+  };
   let auto = new Map<number, CandidateLine>();
   let detailed: DetailedFit | undefined;
   let competitions: Competition[] = [];
-  for (let iter = 0; iter < 40; iter++) {
+  for (let iter = 0; iter < 60; iter++) {
     const reach = new Map<string, number>();
     for (const c of auto.values()) reach.set(bandKey(c), Math.max(reach.get(bandKey(c)) ?? 0, c.j));
     for (const g of given) reach.set(bandKey(g.t), Math.max(reach.get(bandKey(g.t)) ?? 0, g.t.j));
     const scale = intensityScales(auto, peaks);
-    const preds: Prediction[] = [];
+    const residuals = detailed ? residualStatistics(detailed, auto, sourceOf, (i) => peaks[i]?.uncertainty) : undefined;
     const byKey = new Map<string, CandidateLine>();
-    for (const c of cands) {
-      const key = transitionKey(c);
-      if (givenKeys.has(key)) continue;
-      const bk = bandKey(c);
-      const r = reach.get(bk);
-      const fitted = detailed?.predict(c);
-      let position: number;
-      let tolerance: number;
-      if (fitted && r !== undefined) {
-        if (c.j > r + Math.max(GROWTH_J, Math.floor(r / 2))) continue;
-        position = fitted.value;
-        tolerance = 5 * Math.sqrt(fitted.variance + (detailed?.scale ?? 1) * typicalSigma * typicalSigma) + 1e-4;
-      } else {
-        if (c.j > (r ?? START_J) + GROWTH_J) continue;
-        position = c.position + offset;
-        tolerance = tolRef * (1 + (c.j / 20) ** 2);
-      }
-      const k = scale.get(bk);
-      byKey.set(key, c);
-      preds.push({ key, position, tolerance, ...(k !== undefined ? { intensity: k * c.intensity } : {}) });
-    }
-    const m = matchLines(preds, free);
     const next = new Map<number, CandidateLine>();
-    for (const x of m.matches) {
-      if (banned.has(`${x.peak.index}|${x.prediction.key}`)) continue;
-      next.set(x.peak.index, byKey.get(x.prediction.key) as CandidateLine);
+    competitions = [];
+    for (const src of sources) {
+      const preds: Prediction[] = [];
+      cands.forEach((c, ci) => {
+        const key = transitionKey(c);
+        if (givenKeys.has(key)) return;
+        const bk = bandKey(c);
+        // A band whose two levels are both fitted (through other bands) is predicted by the fit, matched or not.
+        const fitted = detailed?.predict(c);
+        const r = reach.get(bk) ?? (fitted ? START_J : undefined);
+        let prediction: Omit<Prediction, 'key'>;
+        if (fitted && r !== undefined && residuals) {
+          if (c.j > r + Math.max(GROWTH_J, Math.floor(r / 2))) return;
+          const st = residuals.of(bk, src);
+          const model = K_FITTED * Math.sqrt(fitted.variance) + 1e-6;
+          prediction = {
+            position: fitted.value + st.shift,
+            tolerance: Math.hypot(model, K_FITTED * st.scatter),
+            withSigma: { model, perSigma: K_FITTED * st.sigmaFactor },
+          };
+        } else {
+          if (!seedable[ci] || c.j > (r ?? START_J) + GROWTH_J) return;
+          const o = offsets.of(bk, src);
+          prediction = { position: c.position + o.offset, tolerance: o.tolerance * (1 + (c.j / 20) ** 2), tier: 1 };
+        }
+        const own = scale.get(bk);
+        const k = own ?? classScale(scale, c);
+        byKey.set(key, c);
+        preds.push({
+          key,
+          ...prediction,
+          ...(k !== undefined ? { intensity: k * c.intensity } : {}),
+          ...(own === undefined && k !== undefined ? { intensityRatioLimit: BAND_RATIO_LIMIT } : {}),
+        });
+      });
+      const m = matchLines(preds, freeBySource.get(src) ?? []);
+      for (const x of m.matches) {
+        if (isBanned(`${x.peak.index}|${x.prediction.key}`, iter)) continue;
+        next.set(x.peak.index, byKey.get(x.prediction.key) as CandidateLine);
+      }
+      competitions.push(...m.competitions);
     }
-    competitions = m.competitions;
     pruneThinBands(next, options.minLinesPerBand ?? 4);
+    pruneImplausibleBands(next, peaks);
     if (next.size === 0 && given.length === 0) break;
-    const fit = tryFit(lineInputs(next));
+    let fit = tryFit(lineInputs(next));
+    // A fit that cannot be made (too few lines or rank deficient for some band): drop the thinnest band and retry.
+    while (!fit && next.size > 0) {
+      const thinnest = thinnestBand(next);
+      for (const [i, c] of next) if (bandKey(c) === thinnest) next.delete(i);
+      fit = tryFit(lineInputs(next));
+    }
     if (!fit) break;
     // Auto-assigned lines the fit rejects are withdrawn for good (a chance coincidence or a blend).
+    // Judged against the band's own robust scatter and the line's σ, not the fit's pooled scale: a line a correct
+    // model explains stays, however noisy its band.
     let withdrawn = 0;
+    const stats = residualStatistics(fit, next, sourceOf, (i) => peaks[i]?.uncertainty);
     for (const l of fit.result.lines) {
       const c = next.get(l.index);
-      if (c && l.status === 'rejected') {
-        banned.add(`${l.index}|${transitionKey(c)}`);
+      if (c && l.status === 'rejected' && !explained(fit, stats, c, l)) {
+        const bk = `${l.index}|${transitionKey(c)}`;
+        banned.set(bk, { at: iter, count: (banned.get(bk)?.count ?? 0) + 1 });
         next.delete(l.index);
         notes.set(
           l.index,
@@ -214,6 +268,24 @@ export function assignAndFit(
       );
   }
   return finish(auto, detailed);
+
+  function explained(
+    fit: DetailedFit,
+    stats: ReturnType<typeof residualStatistics>,
+    c: CandidateLine,
+    l: { index: number; residual?: number },
+  ): boolean {
+    const p = fit.predict(c);
+    if (!p || l.residual === undefined) return false;
+    const st = stats.of(bandKey(c), sourceOf(l.index));
+    const model = K_FITTED * Math.sqrt(p.variance);
+    const sigma = peaks[l.index]?.uncertainty;
+    const tol =
+      sigma !== undefined
+        ? Math.hypot(model, K_FITTED * st.sigmaFactor * sigma)
+        : Math.hypot(model, K_FITTED * st.scatter);
+    return Math.abs(l.residual - st.shift) <= tol;
+  }
 
   function tryFit(lines: LineInput[]): DetailedFit | undefined {
     try {
@@ -241,15 +313,50 @@ export function assignAndFit(
         lines: unexplained,
       });
     }
-    const counts = new Map<string, BandSummary>();
-    for (const c of cands) {
+    const counts = new Map<string, BandSummary & { seeds: CandidateLine[] }>();
+    cands.forEach((c, ci) => {
       const k = bandKey(c);
-      const b = counts.get(k) ?? { species: c.species, band: formatBand(c.band), predicted: 0, matched: 0 };
-      counts.set(k, { ...b, predicted: b.predicted + 1 });
-    }
+      const b = counts.get(k) ?? {
+        species: c.species,
+        band: formatBand(c.band),
+        predicted: 0,
+        matched: 0,
+        seeds: [],
+      };
+      if (seedable[ci]) b.seeds.push(c);
+      counts.set(k, { ...b, predicted: b.predicted + (seedable[ci] ? 1 : 0) });
+    });
     for (const c of autoMap.values()) {
       const b = counts.get(bandKey(c));
       if (b) counts.set(bandKey(c), { ...b, matched: b.matched + 1 });
+    }
+    for (const g of given) {
+      const b = counts.get(bandKey(g.t));
+      if (b) counts.set(bandKey(g.t), { ...b, matched: b.matched + 1 });
+    }
+    const bands: BandSummary[] = [];
+    for (const [k, { seeds, ...b }] of counts) {
+      const strong = seeds.filter((c) => c.j <= START_J);
+      if (b.matched === 0 && b.predicted < 3) continue;
+      const used = sources.flatMap((s) => {
+        const o = offsets.perBand.get(`${k}#${s}`);
+        return o ? [{ ...(s ? { source: s } : {}), offset: round(o.offset), own: o.own }] : [];
+      });
+      let summary: BandSummary = { ...b, ...(b.matched > 0 && used.length > 0 ? { offsets: used } : {}) };
+      const min = options.minLinesPerBand ?? 4;
+      if (b.matched < min && strong.length >= 2 * min) {
+        const best = bestBandOffset(strong, free, maxOffset);
+        summary = { ...summary, ...(best ? { bestOffset: best } : {}) };
+        warnings.push({
+          code: 'BAND_NOT_FOUND',
+          message: `${b.species} band ${b.band}: ${strong.length} strong lines are predicted in the window but ${b.matched === 0 ? 'none was' : `only ${b.matched} were`} matched${
+            best
+              ? `; its best offset within ±${maxOffset} cm-1 is ${best.offset >= 0 ? '+' : ''}${best.offset.toFixed(3)} cm-1 and matches ${best.matches} line(s)`
+              : ''
+          } (a larger calibration offset would need "maxOffset", or the band is absent or too weak)`,
+        });
+      }
+      bands.push(summary);
     }
     const calibration = estimateCalibration(autoMap, peaks, species[0]?.iso.formula);
     return {
@@ -257,17 +364,224 @@ export function assignAndFit(
       lines,
       notes,
       ...(calibration ? { calibration } : {}),
-      bands: [...counts.values()].filter((b) => b.matched > 0 || b.predicted >= 3),
+      bands,
       unexplained,
       warnings,
     };
   }
 }
 
+const round = (x: number) => Math.round(x * 1e5) / 1e5;
+
+/**
+ * Which candidates may seed a band: lines at least `floor` of the strongest line of their class. Pure rotation
+ * (Δv = 0) is its own class: its strength comes from the permanent dipole, not from the vibrational transition
+ * moment, so it cannot be ranked against infrared bands.
+ */
+function seedFilter(cands: readonly CandidateLine[], floor: number): boolean[] {
+  let maxIr = 0;
+  let maxRot = 0;
+  for (const c of cands) {
+    if (c.band.upper === c.band.lower) maxRot = Math.max(maxRot, c.intensity);
+    else maxIr = Math.max(maxIr, c.intensity);
+  }
+  return cands.map((c) => c.intensity >= floor * (c.band.upper === c.band.lower ? maxRot : maxIr));
+}
+
+interface OffsetChoice {
+  readonly offset: number;
+  readonly tolerance: number;
+  /** Found by the band's own vote, not the source's. */
+  readonly own: boolean;
+}
+
+/**
+ * Offsets by voting, per source of lines: first one for the whole source from its strongest predictions; then each
+ * band votes alone, and keeps its own offset when that explains clearly more of its strong lines than the
+ * source's (a band measured on another instrument, or against another calibration).
+ */
+function voteOffsets(
+  seeds: readonly CandidateLine[],
+  freeBySource: ReadonlyMap<string, readonly ObservedPeak[]>,
+  maxOffset: number,
+  minLines: number,
+): {
+  bySource: Map<string, OffsetChoice & { ambiguous: boolean }>;
+  perBand: Map<string, OffsetChoice>;
+  of(band: string, source: string): OffsetChoice;
+} {
+  const bySource = new Map<string, OffsetChoice & { ambiguous: boolean }>();
+  const perBand = new Map<string, OffsetChoice>();
+  const bands = new Map<string, CandidateLine[]>();
+  for (const c of seeds) {
+    const list = bands.get(bandKey(c)) ?? [];
+    list.push(c);
+    bands.set(bandKey(c), list);
+  }
+  for (const [src, peaks] of freeBySource) {
+    const observed = peaks.map((p) => p.position);
+    const strong = [...seeds].sort((a, b) => b.intensity - a.intensity).slice(0, 80);
+    const est = estimateOffset(strong, observed, maxOffset, 0.06);
+    const choice = {
+      offset: est?.offset ?? 0,
+      tolerance: Math.min(Math.max(4 * (est?.spread ?? 0.05), 0.03), 0.3),
+      own: false,
+      ambiguous: est !== undefined && est.runnerUpVotes > 0.7 * est.votes,
+    };
+    bySource.set(src, choice);
+    const sorted = Float64Array.from(observed).sort();
+    for (const [bk, list] of bands) {
+      const top = [...list].sort((a, b) => b.intensity - a.intensity).slice(0, 30);
+      let use: OffsetChoice = choice;
+      if (top.length >= minLines) {
+        const withSource = countNear(top, sorted, choice.offset, choice.tolerance);
+        const own = estimateOffset(top, observed, maxOffset, 0.06);
+        if (own) {
+          const tol = Math.min(Math.max(4 * own.spread, 0.03), 0.3);
+          const n = countNear(top, sorted, own.offset, tol);
+          if (n >= minLines && n >= withSource + 3 && n >= 2 * withSource)
+            use = { offset: own.offset, tolerance: tol, own: true };
+        }
+      }
+      perBand.set(`${bk}#${src}`, use);
+    }
+  }
+  return {
+    bySource,
+    perBand,
+    of: (band, source) =>
+      perBand.get(`${band}#${source}`) ??
+      bySource.get(source) ?? { offset: 0, tolerance: 0.1, own: false, ambiguous: false },
+  };
+}
+
+/** How many predictions, shifted by the offset, have a peak within the tolerance. */
+function countNear(preds: readonly { position: number }[], sorted: Float64Array, offset: number, tol: number): number {
+  let n = 0;
+  for (const p of preds) {
+    const i = lowerBound(sorted, p.position + offset - tol);
+    if (i < sorted.length && (sorted[i] as number) <= p.position + offset + tol) n++;
+  }
+  return n;
+}
+
+/** The best offset a band's own strong predictions find among the free peaks, and how many they then match. */
+function bestBandOffset(
+  strong: readonly CandidateLine[],
+  free: readonly ObservedPeak[],
+  maxOffset: number,
+): { offset: number; matches: number } | undefined {
+  const observed = free.map((p) => p.position);
+  const est = estimateOffset(strong, observed, maxOffset, 0.06);
+  if (!est) return undefined;
+  const tol = Math.min(Math.max(4 * est.spread, 0.03), 0.3);
+  return {
+    offset: round(est.offset),
+    matches: countNear(strong, Float64Array.from(observed).sort(), est.offset, tol),
+  };
+}
+
+/**
+ * From the fitted assignment, per band and source: the median residual (a source's calibration relative to the
+ * fit) and the robust scatter about it, in cm⁻¹ for lines without σ and as a multiple of σ for lines with one.
+ * Bands with few lines take the pooled values. The tolerances built from these judge every line by what a correct
+ * model leaves, so that matching keeps the noisy lines too (it must not shrink the variance).
+ */
+function residualStatistics(
+  fit: DetailedFit,
+  auto: ReadonlyMap<number, CandidateLine>,
+  sourceOf: (i: number) => string,
+  sigmaOf: (i: number) => number | undefined,
+): { of(band: string, source: string): { shift: number; scatter: number; sigmaFactor: number } } {
+  const groups = new Map<string, { r: number[]; z: number[] }>();
+  const add = (k: string, r: number, sigma: number | undefined) => {
+    const g = groups.get(k) ?? { r: [], z: [] };
+    if (sigma === undefined) g.r.push(r);
+    else g.z.push(r / sigma);
+    groups.set(k, g);
+  };
+  const bandOf = new Map<number, string>();
+  for (const l of fit.result.lines) {
+    const c = auto.get(l.index);
+    if (!c || l.status !== 'fitted' || l.residual === undefined) continue;
+    bandOf.set(l.index, bandKey(c));
+  }
+  const shiftOf = new Map<string, number>();
+  // Per band and source: the median residual.
+  const bySrc = new Map<string, number[]>();
+  for (const l of fit.result.lines) {
+    const bk = bandOf.get(l.index);
+    if (!bk || l.residual === undefined) continue;
+    const k = `${bk}#${sourceOf(l.index)}`;
+    const list = bySrc.get(k) ?? [];
+    list.push(l.residual);
+    bySrc.set(k, list);
+  }
+  for (const [k, list] of bySrc) shiftOf.set(k, list.length >= 3 ? robustMedian(list) : 0);
+  for (const l of fit.result.lines) {
+    const bk = bandOf.get(l.index);
+    if (!bk || l.residual === undefined) continue;
+    const src = sourceOf(l.index);
+    const r = l.residual - (shiftOf.get(`${bk}#${src}`) ?? 0);
+    const sigma = sigmaOf(l.index);
+    add(`${bk}#${src}`, r, sigma);
+    add('*', r, sigma);
+  }
+  const pooled = groups.get('*') ?? { r: [], z: [] };
+  const scatterOf = (g: { r: number[] } | undefined) =>
+    g && g.r.length >= MIN_FOR_OWN_SCATTER ? robustSigma(g.r) : pooled.r.length >= 3 ? robustSigma(pooled.r) : 0.01;
+  const factorOf = (g: { z: number[] } | undefined) =>
+    Math.max(
+      1,
+      g && g.z.length >= MIN_FOR_OWN_SCATTER ? robustSigma(g.z) : pooled.z.length >= 3 ? robustSigma(pooled.z) : 1,
+    );
+  return {
+    of(band, source) {
+      const k = `${band}#${source}`;
+      const g = groups.get(k);
+      return { shift: shiftOf.get(k) ?? 0, scatter: scatterOf(g), sigmaFactor: factorOf(g) };
+    },
+  };
+}
+
 function sameAssignments(a: ReadonlyMap<number, CandidateLine>, b: ReadonlyMap<number, CandidateLine>): boolean {
   if (a.size !== b.size) return false;
   for (const [k, v] of a) if (b.get(k) !== v) return false;
   return true;
+}
+
+/**
+ * How far a band's observed/predicted intensity ratio may stray from that of the best-established band of its
+ * class before the band is taken for a coincidence (the band-strength guesses are good to a few times; common
+ * practice, generous).
+ */
+const BAND_RATIO_LIMIT = 20;
+
+const bandClass = (c: CandidateLine) => (c.band.upper === c.band.lower ? 'rot' : 'ir');
+
+/** The intensity scale of the band with the most matched lines of the candidate's class (same units). */
+function classScale(scale: ReadonlyMap<string, number>, c: CandidateLine): number | undefined {
+  return scale.get(`#${bandClass(c)}`);
+}
+
+/** Bands whose matched lines are far stronger or weaker than their predictions relative to the main band. */
+function pruneImplausibleBands(auto: Map<number, CandidateLine>, peaks: readonly PeakInput[]): void {
+  const scale = intensityScales(auto, peaks);
+  const bad = new Set<string>();
+  for (const c of auto.values()) {
+    const own = scale.get(bandKey(c));
+    const ref = classScale(scale, c);
+    if (own !== undefined && ref !== undefined && Math.abs(Math.log(own / ref)) > Math.log(BAND_RATIO_LIMIT))
+      bad.add(bandKey(c));
+  }
+  for (const [i, c] of auto) if (bad.has(bandKey(c))) auto.delete(i);
+}
+
+/** The band with the fewest automatically assigned lines. */
+function thinnestBand(auto: ReadonlyMap<number, CandidateLine>): string {
+  const count = new Map<string, number>();
+  for (const c of auto.values()) count.set(bandKey(c), (count.get(bandKey(c)) ?? 0) + 1);
+  return [...count].sort((a, b) => a[1] - b[1])[0]?.[0] ?? '';
 }
 
 /** Bands with fewer automatically assigned lines than the minimum are more likely coincidences than bands. */
@@ -280,16 +594,27 @@ function pruneThinBands(auto: Map<number, CandidateLine>, min: number): void {
 /** Per band, the median ratio of observed to predicted intensity over the matched lines (three or more). */
 function intensityScales(auto: ReadonlyMap<number, CandidateLine>, peaks: readonly PeakInput[]): Map<string, number> {
   const ratios = new Map<string, number[]>();
+  const classOf = new Map<string, string>();
   for (const [i, c] of auto) {
     const obs = peaks[i]?.intensity;
     if (obs === undefined || !(obs > 0)) continue;
     const k = bandKey(c);
+    classOf.set(k, bandClass(c));
     const list = ratios.get(k) ?? [];
     list.push(obs / c.intensity);
     ratios.set(k, list);
   }
   const out = new Map<string, number>();
-  for (const [k, r] of ratios) if (r.length >= 3) out.set(k, median(r));
+  const best = new Map<string, number>();
+  for (const [k, r] of ratios) {
+    if (r.length < 3) continue;
+    out.set(k, median(r));
+    const cls = classOf.get(k) as string;
+    if (r.length > (best.get(cls) ?? 0)) {
+      best.set(cls, r.length);
+      out.set(`#${cls}`, median(r));
+    }
+  }
   return out;
 }
 

@@ -11,12 +11,23 @@ export interface Prediction {
   readonly tolerance: number;
   /** Expected intensity on the observed scale, when known. */
   readonly intensity?: number;
+  /** Largest tolerated ratio of observed to expected intensity (either way). Default 8. */
+  readonly intensityRatioLimit?: number;
+  /**
+   * For peaks that carry their own σ: the tolerance is then √(model² + (perSigma·σ)²) instead of `tolerance`
+   * (which holds the scatter estimated for peaks without σ).
+   */
+  readonly withSigma?: { readonly model: number; readonly perSigma: number };
+  /** 0 (default) is matched before 1: a fitted model's prediction takes a peak before a reference prediction. */
+  readonly tier?: number;
 }
 
 export interface ObservedPeak {
   readonly index: number;
   readonly position: number;
   readonly intensity?: number;
+  /** The peak's own standard uncertainty, when sent. */
+  readonly sigma?: number;
 }
 
 export interface Match {
@@ -43,16 +54,23 @@ export function matchLines(
   const sorted = [...peaks].sort((a, b) => a.position - b.position);
   const pos = Float64Array.from(sorted, (p) => p.position);
   const pairs: { cost: number; pi: number; ki: number }[] = [];
+  let maxSigma = 0;
+  for (const p of peaks) if (p.sigma !== undefined && p.sigma > maxSigma) maxSigma = p.sigma;
   predictions.forEach((pr, ki) => {
-    const lo = lowerBound(pos, pr.position - pr.tolerance);
-    for (let i = lo; i < pos.length && (pos[i] as number) <= pr.position + pr.tolerance; i++) {
+    const reach = pr.withSigma
+      ? Math.max(pr.tolerance, Math.hypot(pr.withSigma.model, pr.withSigma.perSigma * maxSigma))
+      : pr.tolerance;
+    const lo = lowerBound(pos, pr.position - reach);
+    for (let i = lo; i < pos.length && (pos[i] as number) <= pr.position + reach; i++) {
       const pk = sorted[i] as ObservedPeak;
-      const r = (pk.position - pr.position) / pr.tolerance;
-      let cost = r * r;
+      const tol = toleranceFor(pr, pk);
+      const r = (pk.position - pr.position) / tol;
+      if (Math.abs(r) > 1) continue;
+      let cost = r * r + 100 * (pr.tier ?? 0);
       if (pr.intensity !== undefined && pk.intensity !== undefined && pr.intensity > 0) {
         if (!(pk.intensity > 0)) continue;
         const lr = Math.log(pk.intensity / pr.intensity);
-        if (Math.abs(lr) > Math.log(INTENSITY_RATIO_LIMIT)) continue;
+        if (Math.abs(lr) > Math.log(pr.intensityRatioLimit ?? INTENSITY_RATIO_LIMIT)) continue;
         cost += 0.5 * lr * lr;
       }
       pairs.push({ cost, pi: i, ki });
@@ -79,6 +97,13 @@ export function matchLines(
   // A competition whose loser was matched elsewhere is no competition worth reporting.
   const matchedPeaks = new Set(matches.map((m) => m.peak.index));
   return { matches, competitions: competitions.filter((c) => !matchedPeaks.has(c.peak)) };
+}
+
+/** The tolerance of one prediction for one peak: the peak's own σ counts when both carry the information. */
+export function toleranceFor(pr: Prediction, pk: ObservedPeak): number {
+  return pr.withSigma && pk.sigma !== undefined
+    ? Math.hypot(pr.withSigma.model, pr.withSigma.perSigma * pk.sigma)
+    : pr.tolerance;
 }
 
 export function lowerBound(a: Float64Array, x: number): number {
