@@ -32,6 +32,10 @@ const SCIENCE_STATUS: Record<ScienceErrorCode, { status: number; title: string }
   FIT_RANK_DEFICIENT: { status: 422, title: 'Parameters not determined by the data' },
   FIT_NO_ASSIGNED_LINES: { status: 422, title: 'No assigned lines' },
   INPUT_INVALID: { status: 422, title: 'Invalid input value' },
+  POTENTIAL_UNDETERMINED: { status: 422, title: 'Constants do not determine a potential' },
+  POTENTIAL_LEVELS_NOT_INCREASING: { status: 422, title: 'Vibrational energies stop increasing below vMax' },
+  POTENTIAL_CONSTANTS_INVALID: { status: 422, title: 'Constants give no turning points' },
+  POTENTIAL_EXTRAPOLATION_TOO_FAR: { status: 422, title: 'vMax far beyond the levels the data reached' },
 };
 
 /** Problem type URI of a code: a page on this service describing it. */

@@ -15,7 +15,11 @@ export type ScienceErrorCode =
   | 'FIT_TOO_FEW_LINES'
   | 'FIT_RANK_DEFICIENT'
   | 'FIT_NO_ASSIGNED_LINES'
-  | 'INPUT_INVALID';
+  | 'INPUT_INVALID'
+  | 'POTENTIAL_UNDETERMINED'
+  | 'POTENTIAL_LEVELS_NOT_INCREASING'
+  | 'POTENTIAL_CONSTANTS_INVALID'
+  | 'POTENTIAL_EXTRAPOLATION_TOO_FAR';
 
 export class ScienceError extends Error {
   readonly code: ScienceErrorCode;

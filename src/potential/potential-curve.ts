@@ -1,0 +1,351 @@
+import { ROTATIONAL_FACTOR } from '../constants/codata-2018.js';
+import { propagate, type Quantity, quantity, subCovariance } from '../derive/quantity.js';
+import { ScienceError } from '../errors.js';
+import type { MassValue } from '../species/reduced-mass.js';
+import { morseEnergy, morseFromConstants } from './morse.js';
+import { solveRadialLevels } from './numerov.js';
+import { rkrTurningPoints, type TurningPoints } from './rkr.js';
+import { rkrCurveModel } from './rkr-curve.js';
+import {
+  rotationalConstant,
+  type VibrationalSeries,
+  vibrationalEnergy,
+  vibrationalSlope,
+} from './vibrational-terms.js';
+
+/** One Dunham coefficient Y_kl (cm⁻¹); only l = 0 (vibration) and l = 1 (rotation) enter the potential. */
+export interface DunhamCoefficient {
+  readonly k: number;
+  readonly l: number;
+  readonly value: number;
+}
+
+export interface PotentialInput {
+  readonly coefficients: readonly DunhamCoefficient[];
+  /** Row-major covariance of `coefficients` (cm⁻²); zeros when the constants carry no uncertainty. */
+  readonly covariance: ArrayLike<number>;
+  readonly reducedMass: MassValue;
+  /** Highest level to give turning points for. */
+  readonly vMax: number;
+  /** Highest vibrational level the data behind the constants reached, when known. */
+  readonly vData?: number;
+  /** Solve the radial equation on the RKR curve and compare. Default true. */
+  readonly verify?: boolean;
+}
+
+export interface PotentialLevel {
+  readonly v: number;
+  readonly energy: Quantity;
+  readonly rMin: Quantity;
+  readonly rMax: Quantity;
+  readonly B: Quantity;
+}
+
+export interface CurvePoint {
+  readonly r: number;
+  readonly energy: number;
+}
+
+export interface NumerovCheck {
+  /** Highest v of the RKR points the radial equation was solved on. */
+  readonly vTop: number;
+  readonly grid: { readonly from: number; readonly to: number; readonly step: number; readonly points: number };
+  /** E_0(Numerov) − G(0): the v-independent shift first-order RKR leaves out (≈ Dunham's Y00). */
+  readonly zeroPointShift: number;
+  readonly levels: readonly {
+    readonly v: number;
+    /** Numerov eigenvalue above the minimum, cm⁻¹. */
+    readonly energy: number;
+    /** (E_v − E_0) − (G_v − G_0), cm⁻¹. */
+    readonly intervalError: number;
+    /** C⟨1/r²⟩, cm⁻¹. */
+    readonly B: number;
+    /** (B_v(Numerov) − B_v)/B_v. */
+    readonly rotationalRelativeError: number;
+  }[];
+  readonly worstIntervalError: number;
+  readonly worstRotationalRelativeError: number;
+}
+
+export interface PotentialWarning {
+  readonly code: string;
+  readonly message: string;
+}
+
+export interface PotentialResult {
+  readonly hbar2Over2mu: number;
+  readonly levels: readonly PotentialLevel[];
+  readonly morse?: { readonly D_e: Quantity; readonly a: Quantity; readonly r_e: Quantity };
+  readonly curves: { readonly rkr: readonly CurvePoint[]; readonly morse: readonly CurvePoint[] };
+  readonly verification?: NumerovCheck;
+  readonly warnings: readonly PotentialWarning[];
+}
+
+/** How far beyond the data the expansion may be used (a project rule): vMax ≤ 2·vData + 3. */
+export const extrapolationLimit = (vData: number): number => 2 * vData + 3;
+
+/** Levels of RKR points above vMax used by the Numerov check when G(v) allows. */
+export const CHECK_MARGIN = 3;
+
+/** Largest vMax accepted by the science (the service's schema may say less). */
+export const MAX_V = 100;
+
+function seriesOf(coefficients: readonly DunhamCoefficient[], values: readonly number[]): VibrationalSeries {
+  const g: number[] = [];
+  const b: number[] = [];
+  coefficients.forEach((c, i) => {
+    const val = values[i] as number;
+    if (c.l === 0 && c.k >= 1) {
+      while (g.length < c.k) g.push(0);
+      g[c.k - 1] = val;
+    } else if (c.l === 1) {
+      while (b.length <= c.k) b.push(0);
+      b[c.k] = val;
+    }
+  });
+  return { g, b };
+}
+
+/**
+ * Where G(v) stops increasing or B(v) stops being positive on v ∈ [−½, vTop], scanned on a fine grid (the
+ * polynomials are of low degree, so 4000 samples cannot step over a sign change of interest).
+ */
+function firstInvalid(series: VibrationalSeries, vTop: number): { v: number; what: 'slope' | 'rotation' } | undefined {
+  const steps = 4000;
+  for (let i = 0; i <= steps; i++) {
+    const x = ((vTop + 0.5) * i) / steps;
+    if (!(vibrationalSlope(series, x) > 0)) return { v: x - 0.5, what: 'slope' };
+    if (!(rotationalConstant(series, x) > 0)) return { v: x - 0.5, what: 'rotation' };
+  }
+  return undefined;
+}
+
+/**
+ * RKR turning points with uncertainties, the Morse curve from the same constants, curve points for plotting and a
+ * Numerov check of the RKR curve. Refuses (ScienceError) what first-order RKR cannot honestly give: G(v) not
+ * increasing or B(v) not positive up to vMax, or vMax far beyond the levels the data reached.
+ */
+export function potentialCurves(input: PotentialInput): PotentialResult {
+  const { coefficients, vMax } = input;
+  const p = coefficients.length;
+  const values = coefficients.map((c) => c.value);
+  const has = (k: number, l: number) => coefficients.some((c) => c.k === k && c.l === l);
+  if (!has(1, 0) || !has(0, 1)) {
+    throw new ScienceError('POTENTIAL_UNDETERMINED', 'turning points need at least omega_e (Y10) and B_e (Y01)', {
+      given: coefficients.map((c) => `Y${c.k}${c.l}`),
+    });
+  }
+  if (!Number.isInteger(vMax) || vMax < 0 || vMax > MAX_V) {
+    throw new ScienceError('INPUT_INVALID', `vMax must be an integer from 0 to ${MAX_V}`, { vMax });
+  }
+  const warnings: PotentialWarning[] = [];
+  if (input.vData !== undefined) {
+    const limit = extrapolationLimit(input.vData);
+    if (vMax > limit) {
+      throw new ScienceError(
+        'POTENTIAL_EXTRAPOLATION_TOO_FAR',
+        `vMax = ${vMax} is far beyond the highest level the data reached (v = ${input.vData}); at most ${limit} is accepted`,
+        { vMax, vData: input.vData, limit },
+      );
+    }
+    if (vMax > input.vData) {
+      warnings.push({
+        code: 'POTENTIAL_EXTRAPOLATED',
+        message: `levels above v = ${input.vData} (up to ${vMax}) use the expansion beyond the levels the data reached`,
+      });
+    }
+  } else {
+    warnings.push({
+      code: 'POTENTIAL_RANGE_UNKNOWN',
+      message: 'the levels the constants were fitted to are not known: turning points above them are extrapolated',
+    });
+  }
+  const series = seriesOf(coefficients, values);
+  const bad = firstInvalid(series, vMax);
+  if (bad) {
+    const code = bad.what === 'slope' ? 'POTENTIAL_LEVELS_NOT_INCREASING' : 'POTENTIAL_CONSTANTS_INVALID';
+    const what = bad.what === 'slope' ? 'G(v) stops increasing' : 'B(v) is no longer positive';
+    throw new ScienceError(code, `${what} near v = ${bad.v.toFixed(2)}, below vMax = ${vMax}`, {
+      vMax,
+      v: Number(bad.v.toFixed(3)),
+      vLimit: Math.max(Math.floor(bad.v) - 1, -1),
+    });
+  }
+  if (!has(2, 0)) {
+    warnings.push({
+      code: 'POTENTIAL_HARMONIC',
+      message: 'without omega_e_x_e the levels are harmonic; no Morse curve',
+    });
+  }
+  if (!has(1, 1)) {
+    warnings.push({ code: 'POTENTIAL_RIGID', message: 'without alpha_e, B(v) is taken as B_e at every level' });
+  }
+
+  // ħ²/2μ in cm⁻¹ Å²: B μ r² = h/(8π²c m_u). The mass uncertainty (AME2020, ≲1e-9 relative) is neglected.
+  const C = ROTATIONAL_FACTOR / input.reducedMass.value;
+  const at = (vals: readonly number[], v: number): TurningPoints =>
+    rkrTurningPoints({ series: seriesOf(coefficients, vals), hbar2Over2mu: C }, v);
+  const cov = input.covariance;
+
+  const levels: PotentialLevel[] = [];
+  for (let v = 0; v <= vMax; v++) {
+    const tp = at(values, v);
+    if (!(tp.rMin > 0) || !Number.isFinite(tp.rMax)) {
+      throw new ScienceError('POTENTIAL_CONSTANTS_INVALID', `the RKR integrals give no turning points at v = ${v}`, {
+        v,
+      });
+    }
+    const x = v + 0.5;
+    levels.push({
+      v,
+      energy: quantity(
+        tp.energy,
+        propagate((y) => vibrationalEnergy(seriesOf(coefficients, y), x), values, cov),
+        'cm-1',
+      ),
+      rMin: quantity(
+        tp.rMin,
+        propagate((y) => at(y, v).rMin, values, cov),
+        'angstrom',
+      ),
+      rMax: quantity(
+        tp.rMax,
+        propagate((y) => at(y, v).rMax, values, cov),
+        'angstrom',
+      ),
+      B: quantity(
+        rotationalConstant(series, x),
+        propagate((y) => rotationalConstant(seriesOf(coefficients, y), x), values, cov),
+        'cm-1',
+      ),
+    });
+  }
+
+  let morse: PotentialResult['morse'];
+  const iw = coefficients.findIndex((c) => c.k === 1 && c.l === 0);
+  const ix = coefficients.findIndex((c) => c.k === 2 && c.l === 0);
+  const ib = coefficients.findIndex((c) => c.k === 0 && c.l === 1);
+  if (ix >= 0 && (values[ix] as number) < 0) {
+    const idx = [iw, ix, ib];
+    const x3 = idx.map((i) => values[i] as number);
+    const c3 = subCovariance(cov, p, idx);
+    // Y20 = −ω_e x_e.
+    const params = (y: readonly number[]) => morseFromConstants(y[0] as number, -(y[1] as number), y[2] as number, C);
+    const m = params(x3);
+    morse = {
+      D_e: quantity(
+        m.depth,
+        propagate((y) => params(y).depth, x3, c3),
+        'cm-1',
+      ),
+      a: quantity(
+        m.range,
+        propagate((y) => params(y).range, x3, c3),
+        'angstrom-1',
+      ),
+      r_e: quantity(
+        m.equilibrium,
+        propagate((y) => params(y).equilibrium, x3, c3),
+        'angstrom',
+      ),
+    };
+  } else if (ix >= 0) {
+    warnings.push({ code: 'POTENTIAL_NO_MORSE', message: 'omega_e_x_e is not positive: no Morse curve' });
+  }
+
+  const rkr = rkrCurve(at, values, vMax);
+  const morseCurve = morse ? morsePoints(morse, rkr) : [];
+  let verification: NumerovCheck | undefined;
+  if (input.verify !== false) {
+    // The curve is carried a little above vMax so that the tunnelling tails of the top levels see RKR points,
+    // not the continuation (a check of the curve only: the turning points reported stop at vMax).
+    let vTop = vMax + CHECK_MARGIN;
+    while (vTop > vMax && firstInvalid(series, vTop)) vTop -= 0.5;
+    verification = numerovCheck(series, C, vMax, vTop);
+    if (!verification) {
+      warnings.push({
+        code: 'POTENTIAL_NOT_VERIFIED',
+        message: 'the RKR curve is not single-valued on each side of the minimum; the Numerov check was skipped',
+      });
+    }
+  }
+  return {
+    hbar2Over2mu: C,
+    levels,
+    ...(morse ? { morse } : {}),
+    curves: { rkr, morse: morseCurve },
+    ...(verification ? { verification } : {}),
+    warnings,
+  };
+}
+
+/** Turning points every quarter level from the minimum to vMax, in order of r, for plotting. */
+function rkrCurve(at: (vals: readonly number[], v: number) => TurningPoints, values: number[], vMax: number) {
+  const pts: TurningPoints[] = [];
+  for (let q = 0; q <= 4 * vMax; q++) pts.push(at(values, q / 4));
+  const re = at(values, -0.5).rMin;
+  return [
+    ...pts.map((t) => ({ r: t.rMin, energy: t.energy })).reverse(),
+    { r: re, energy: 0 },
+    ...pts.map((t) => ({ r: t.rMax, energy: t.energy })),
+  ];
+}
+
+function morsePoints(m: NonNullable<PotentialResult['morse']>, rkr: readonly CurvePoint[]): CurvePoint[] {
+  const rs = rkr.map((c) => c.r);
+  const top = Math.max(...rkr.map((c) => c.energy), 1);
+  const lo = Math.min(...rs);
+  const hi = Math.max(...rs);
+  const span = hi - lo;
+  const params = { depth: m.D_e.value, range: m.a.value, equilibrium: m.r_e.value };
+  const out: CurvePoint[] = [];
+  const n = 160;
+  for (let i = 0; i <= n; i++) {
+    const r = lo - 0.05 * span + (1.4 * span * i) / n;
+    const energy = morseEnergy(params, r);
+    if (energy <= 1.5 * top) out.push({ r, energy });
+  }
+  return out;
+}
+
+/**
+ * The Numerov check: the RKR curve as V(r) (see rkr-curve.ts) and the radial equation solved on a uniform grid of
+ * 6000 points reaching a quarter of the well's width inside and half of it outside the outermost turning points.
+ */
+export function numerovCheck(
+  series: VibrationalSeries,
+  C: number,
+  vMax: number,
+  vTop: number,
+): NumerovCheck | undefined {
+  const model = rkrCurveModel(series, C, vTop);
+  if (!model) return undefined;
+  const width = model.outer - model.inner;
+  const from = Math.max(model.inner - 0.25 * width, 0.2 * model.inner);
+  const to = model.outer + 0.5 * width;
+  const points = 6000;
+  const step = (to - from) / (points - 1);
+  const solved = solveRadialLevels(model.potential, C, { from, to, step }, vMax + 1);
+  if (solved.length === 0) return undefined;
+  const e0 = (solved[0] as (typeof solved)[number]).energy;
+  const g0 = vibrationalEnergy(series, 0.5);
+  const levels = solved.map((s) => {
+    const x = s.v + 0.5;
+    const b = rotationalConstant(series, x);
+    return {
+      v: s.v,
+      energy: s.energy,
+      intervalError: s.energy - e0 - (vibrationalEnergy(series, x) - g0),
+      B: s.rotational,
+      rotationalRelativeError: (s.rotational - b) / b,
+    };
+  });
+  return {
+    vTop,
+    grid: { from, to, step, points },
+    zeroPointShift: e0 - g0,
+    levels,
+    worstIntervalError: Math.max(...levels.map((l) => Math.abs(l.intervalError))),
+    worstRotationalRelativeError: Math.max(...levels.map((l) => Math.abs(l.rotationalRelativeError))),
+  };
+}
