@@ -1,4 +1,12 @@
-import { ELEMENTS, type ElementData, type IsotopeData, mostAbundantIsotope } from '../constants/atomic-masses.js';
+import {
+  ELEMENTS,
+  type ElementData,
+  elementBySymbol,
+  fractionInMixture,
+  type IsotopeData,
+  isotopicMixture,
+  mostAbundantIsotope,
+} from '../constants/atomic-masses.js';
 import { ScienceError } from '../errors.js';
 
 /** One atom of a molecule: its element and the isotope meant. */
@@ -21,8 +29,11 @@ const TOKEN = /^(\d{1,3})?-?([A-Z][a-z]?)/;
 
 /**
  * Parse a species string of the contract: element symbols in order, each optionally preceded by its mass number
- * ("12C16O", "13C-16O", "H35Cl", "D35Cl", "1H-79Br"). A bare symbol means the most abundant isotope; "D" is ²H.
- * Only diatomic molecules are accepted so far.
+ * ("12C16O", "13C-16O", "H35Cl", "D35Cl", "1H-79Br", "7Li1H", "23Na35Cl"). Symbols are case-sensitive, so a capital
+ * letter always starts a new atom and a lower-case letter belongs to the capital before it: "NaCl" is Na + Cl,
+ * "CO" is C + O while "Co" is cobalt, "HF" is H + F while "Hf" is hafnium. Digits before a symbol are its mass
+ * number, never a count of atoms. A bare symbol means the most abundant isotope (CIAAW 2013); "D" is ²H and "T" is
+ * ³H. Only diatomic molecules are accepted so far.
  */
 export function parseSpecies(input: string): Isotopologue {
   const text = input.trim();
@@ -39,7 +50,7 @@ export function parseSpecies(input: string): Isotopologue {
     if (!m) {
       throw new ScienceError(
         'SPECIES_INVALID',
-        `species "${text}" cannot be read at "${rest}": expected an element symbol, optionally preceded by a mass number`,
+        `species "${text}" cannot be read at "${rest}": expected an element symbol, optionally preceded by a mass number${caseHint(text)}`,
         { species: text, at: rest },
       );
     }
@@ -69,13 +80,13 @@ function resolveAtom(symbol: string, massText: string | undefined, species: stri
     }
     return resolveAtom('H', String(massNumber), species);
   }
-  const element = ELEMENTS[symbol];
+  const element = elementBySymbol(symbol);
   if (!element) {
-    throw new ScienceError('SPECIES_UNKNOWN_ELEMENT', `element "${symbol}" in "${species}" is not in the mass table`, {
-      species,
-      element: symbol,
-      known: Object.keys(ELEMENTS),
-    });
+    throw new ScienceError(
+      'SPECIES_UNKNOWN_ELEMENT',
+      `element "${symbol}" in "${species}" is not in the mass table${caseHint(species)}`,
+      { species, element: symbol, known: Object.keys(ELEMENTS) },
+    );
   }
   if (massText === undefined) {
     return { element, isotope: mostAbundantIsotope(element), explicitIsotope: false };
@@ -94,16 +105,28 @@ function resolveAtom(symbol: string, massText: string | undefined, species: stri
   return { element, isotope, explicitIsotope: true };
 }
 
+/** A hint for species written in one case ("NACL", "nacl"), whose symbols cannot be read. */
+function caseHint(species: string): string {
+  const letters = species.replace(/[^A-Za-z]/g, '');
+  if (letters.length > 1 && (letters === letters.toUpperCase() || letters === letters.toLowerCase())) {
+    return ' (element symbols are case-sensitive: write "NaCl", "SiO", "CS", not "NACL")';
+  }
+  return '';
+}
+
 export function formatFormula(atoms: readonly Atom[]): string {
   return atoms.map((a) => `${a.isotope.massNumber}${a.element.symbol}`).join('-');
 }
 
-/** Every isotopologue of the same elements, built from the isotopes in the mass table. */
+/**
+ * Every isotopologue of the same elements in a natural sample: the isotopes of each element's natural composition
+ * (for an element without one, the isotope its bare symbol means).
+ */
 export function isotopologuesOf(species: Isotopologue): Isotopologue[] {
   const [a, b] = species.atoms;
   const out: Isotopologue[] = [];
-  for (const ia of a.element.isotopes) {
-    for (const ib of b.element.isotopes) {
+  for (const { isotope: ia } of isotopicMixture(a.element)) {
+    for (const { isotope: ib } of isotopicMixture(b.element)) {
       const atoms: [Atom, Atom] = [
         { element: a.element, isotope: ia, explicitIsotope: true },
         { element: b.element, isotope: ib, explicitIsotope: true },
@@ -114,9 +137,10 @@ export function isotopologuesOf(species: Isotopologue): Isotopologue[] {
   return out;
 }
 
-/** Natural abundance of the isotopologue: the product of its atoms' isotopic amount fractions. */
+/** Natural abundance of the isotopologue: the product of its atoms' isotopic amount fractions (CIAAW 2013). */
 export function naturalAbundance(species: Isotopologue): number {
-  return species.atoms[0].isotope.abundance * species.atoms[1].isotope.abundance;
+  const [a, b] = species.atoms;
+  return fractionInMixture(a.element, a.isotope) * fractionInMixture(b.element, b.isotope);
 }
 
 /** The same molecule with no isotope named: what "HCl" means as opposed to "H35Cl" (the natural mixture). */

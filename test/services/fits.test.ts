@@ -92,8 +92,10 @@ describe('GET /v1/species', () => {
     expect(r.json().formula).toBe('1H-35Cl');
     const m = await app().inject({ method: 'GET', url: '/v1/species/H2' });
     expect(m.statusCode).toBe(422);
+    // NaCl is a valid species (every element is in the mass table) without reference constants: 404, not 422.
     const n = await app().inject({ method: 'GET', url: '/v1/species/NaCl' });
-    expect(n.statusCode).toBe(422);
+    expect(n.statusCode).toBe(404);
+    expect(n.json().detail).toMatch(/23Na-35Cl/);
     const o = await app().inject({ method: 'GET', url: '/v1/species/14N-16O' });
     expect(o.statusCode).toBe(404);
     expect(o.headers['content-type']).toMatch(/application\/problem\+json/);

@@ -39,10 +39,10 @@ describe('species strings', () => {
     }
   });
 
-  it('lists both chlorine isotopologues of HCl with abundances summing to that of ¹H (CIAAW via NIST)', () => {
+  it('lists both chlorine isotopologues of HCl with abundances summing to that of ¹H (CIAAW 2013, 0.99984426)', () => {
     const all = isotopologuesOf(parseSpecies('HCl')).filter((i) => i.atoms[0].isotope.massNumber === 1);
     const sum = all.reduce((s, i) => s + naturalAbundance(i), 0);
-    expect(sum).toBeCloseTo(0.999885, 9);
+    expect(sum).toBeCloseTo(0.99984426, 9);
   });
 });
 
@@ -64,6 +64,120 @@ describe('reduced masses from AME2020', () => {
     const m = reducedMass(parseSpecies(s));
     expect(Math.abs(m.value - mu)).toBeLessThan(1e-9);
     expect(m.uncertainty).toBeGreaterThanOrEqual(0);
+    expect(m.uncertainty).toBeLessThan(1e-6);
+  });
+});
+
+describe('any diatomic can be named (every element in the mass table)', () => {
+  it.each([
+    ['7Li1H', '7Li-1H'],
+    ['LiH', '7Li-1H'],
+    ['6LiH', '6Li-1H'],
+    ['NaCl', '23Na-35Cl'],
+    ['23Na35Cl', '23Na-35Cl'],
+    ['Na37Cl', '23Na-37Cl'],
+    ['SiO', '28Si-16O'],
+    ['KBr', '39K-79Br'],
+    ['40K35Cl', '40K-35Cl'],
+    ['CS', '12C-32S'],
+    ['AlF', '27Al-19F'],
+    ['D35Cl', '2H-35Cl'],
+    ['2H35Cl', '2H-35Cl'],
+    ['HT', '1H-3H'],
+    ['CO', '12C-16O'],
+    ['14C16O', '14C-16O'],
+    ['HCl', '1H-35Cl'],
+    ['87RbH', '87Rb-1H'],
+    ['232Th16O', '232Th-16O'],
+    ['UO', '238U-16O'],
+    ['TcO', '99Tc-16O'],
+    ['BiH', '209Bi-1H'],
+  ])('%s normalises to %s', (input, formula) => {
+    expect(parseSpecies(input).formula).toBe(formula);
+  });
+
+  // Symbols are case-sensitive: a capital starts an atom, a lower-case letter belongs to the capital before it.
+  it.each([
+    ['CO', ['C', 'O']],
+    ['CoH', ['Co', 'H']],
+    ['HF', ['H', 'F']],
+    ['HfO', ['Hf', 'O']],
+    ['CS', ['C', 'S']],
+    ['CsI', ['Cs', 'I']],
+    ['NaCl', ['Na', 'Cl']],
+    ['BrCl', ['Br', 'Cl']],
+    ['BCl', ['B', 'Cl']],
+    ['SiO', ['Si', 'O']],
+    ['ScO', ['Sc', 'O']],
+    ['SnO', ['Sn', 'O']],
+    ['NO', ['N', 'O']],
+    ['NiO', ['Ni', 'O']],
+    ['AlF', ['Al', 'F']],
+    ['DyO', ['Dy', 'O']],
+    ['TlH', ['Tl', 'H']],
+  ])('%s reads as %j', (input, symbols) => {
+    expect(parseSpecies(input).atoms.map((a) => a.element.symbol)).toEqual(symbols);
+  });
+
+  it.each([
+    ['Cs', 'SPECIES_NOT_DIATOMIC'],
+    ['SIO', 'SPECIES_NOT_DIATOMIC'],
+    ['NACL', 'SPECIES_UNKNOWN_ELEMENT'],
+    ['nacl', 'SPECIES_INVALID'],
+    ['8Li1H', 'SPECIES_UNKNOWN_ISOTOPE'],
+    ['12O16O', 'SPECIES_UNKNOWN_ISOTOPE'],
+    ['AtH', 'SPECIES_UNKNOWN_ELEMENT'],
+    ['2T35Cl', 'SPECIES_INVALID'],
+  ])('%s is refused with %s', (input, code) => {
+    expect(() => parseSpecies(input)).toThrow(ScienceError);
+    try {
+      parseSpecies(input);
+    } catch (e) {
+      expect((e as ScienceError).code).toBe(code);
+    }
+  });
+
+  it('one-case input is refused with a hint that symbols are case-sensitive', () => {
+    expect(() => parseSpecies('NACL')).toThrow(/case-sensitive/);
+    expect(() => parseSpecies('nacl')).toThrow(/case-sensitive/);
+    expect(() => parseSpecies('8Li1H')).toThrow(/6Li, 7Li/);
+  });
+
+  it('natural isotopologues of KBr: 39K/40K/41K × 79Br/81Br, abundances from CIAAW 2013 summing to 1', () => {
+    const all = isotopologuesOf(parseSpecies('KBr'));
+    expect(all.map((i) => i.formula).sort()).toEqual(
+      ['39K-79Br', '39K-81Br', '40K-79Br', '40K-81Br', '41K-79Br', '41K-81Br'].sort(),
+    );
+    const sum = all.reduce((s, i) => s + naturalAbundance(i), 0);
+    // K sums to 0.9999997, Br to 1 exactly in Meija et al. 2016 Table 1; tolerance 1e-6.
+    expect(Math.abs(sum - 1)).toBeLessThan(1e-6);
+    const main = all.find((i) => i.formula === '39K-79Br') as (typeof all)[number];
+    expect(naturalAbundance(main)).toBeCloseTo(0.932581 * 0.50686, 12);
+  });
+
+  it('radioactive nuclides without a natural composition are named but have no natural abundance (3H, 14C)', () => {
+    expect(naturalAbundance(parseSpecies('HT'))).toBe(0);
+    expect(naturalAbundance(parseSpecies('14C16O'))).toBe(0);
+    expect(isotopologuesOf(parseSpecies('CO')).map((i) => i.formula)).not.toContain('14C-16O');
+  });
+});
+
+// Reduced masses μ = m₁m₂/(m₁+m₂) computed by hand (Python, 40-digit decimals) from AME2020 atomic masses
+// (mass_1.mas20): 7Li 7.01600343426, 1H 1.007825031898, 23Na 22.98976928195, 35Cl 34.968852694, 32S 31.97207117354,
+// 28Si 27.97692653442, 16O 15.99491461926, 39K 38.96370648482, 79Br 78.918337574, 27Al 26.981538408,
+// 19F 18.99840316207 u. Tolerance 1e-9 u.
+describe('reduced masses of species outside the reference library, from AME2020', () => {
+  it.each([
+    ['7Li1H', 0.881238166388],
+    ['23Na35Cl', 13.870686156464],
+    ['12C32S', 8.725194057117],
+    ['28Si16O', 10.176707171833],
+    ['39K79Br', 26.084981525846],
+    ['27Al19F', 11.148473162518],
+  ])('μ(%s) = %f u', (s, mu) => {
+    const m = reducedMass(parseSpecies(s));
+    expect(Math.abs(m.value - mu)).toBeLessThan(1e-9);
+    expect(m.uncertainty).toBeGreaterThan(0);
     expect(m.uncertainty).toBeLessThan(1e-6);
   });
 });
