@@ -14,7 +14,7 @@ export const SpeciesEntrySchema = z
     name: z.string(),
     state: z.string(),
     reducedMass: z.object({ value: z.number(), uncertainty: z.number(), unit: z.literal('u') }),
-    naturalAbundance: z.number().describe('product of the isotopic amount fractions (CIAAW 2013, Meija et al., Pure Appl. Chem. 88, 293 (2016))'),
+    naturalAbundance: z.number().describe('product of the isotopic amount fractions (CIAAW 2013, Meija et al. 2016)'),
     derivedFrom: z.string().optional(),
     hazard: z.string(),
     constants: z.record(z.string(), LibraryValueSchema),
