@@ -10,6 +10,7 @@ import {
 import { type Config, DEFAULT_CONFIG } from './config.js';
 import { createMetrics, type Metrics } from './metrics.js';
 import { openapiInfo } from './openapi-info.js';
+import { pageRoute } from './page/route.js';
 import { keyRing, requireApiKey } from './plugins/api-keys.js';
 import { parseBodies } from './plugins/body-parsers.js';
 import { graphqlRoutes } from './plugins/graphql.js';
@@ -19,6 +20,7 @@ import { limitRate } from './plugins/rate-limit.js';
 import { secureHeaders } from './plugins/security.js';
 import { shedLoad, watchEventLoop } from './plugins/shedding.js';
 import { createPool, type Pool } from './pool.js';
+import { hashRequestBodies } from './provenance.js';
 import { batchRoutes } from './rest/batch.js';
 import { checkRoutes } from './rest/checks.js';
 import { fitRoutes } from './rest/fits.js';
@@ -95,6 +97,8 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
   });
 
   parseBodies(app, config);
+  // The SHA-256 of every body as received, for the provenance of each response.
+  hashRequestBodies(app);
 
   await app.register(swagger, {
     openapi: openapiInfo,
@@ -117,6 +121,7 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
   });
 
   openRoutes(app);
+  pageRoute(app, config);
 
   // The protected scope: rate limit first (so that wrong keys are counted), then keys, then shedding.
   const keys = keyRing(config);

@@ -43,6 +43,12 @@ export function textBodyToJson(
       throw new ScienceError('INPUT_INVALID', `temperature=${query.temperature} is not a number`, {});
     extra.options = { temperature: t };
   }
+  const sample: Record<string, string> = {};
+  for (const k of ['id', 'description', 'instrument', 'operator', 'measuredAt', 'notes']) {
+    const v = query[`sample.${k}`];
+    if (typeof v === 'string' && v !== '') sample[k] = v;
+  }
+  if (Object.keys(sample).length > 0) extra.sample = sample;
   if ((JCAMP_TYPES as readonly string[]).some((t) => contentType.startsWith(t))) {
     const d = parseJcamp(text, { maxPoints: limits.maxPoints, maxPeaks: limits.maxLines });
     if (d.kind === 'peaks') {

@@ -1,4 +1,5 @@
 import { ScienceError } from '../src/errors.js';
+import type { Provenance } from './provenance.js';
 import type { CheckRequest } from './schemas/checks.js';
 import type { FitRequest } from './schemas/fit.js';
 import type { PeaksRequest } from './schemas/peaks.js';
@@ -11,7 +12,7 @@ import { runReport } from './usecases/report.js';
 export type Job =
   | { kind: 'fit'; body: FitRequest }
   | { kind: 'check'; body: CheckRequest }
-  | { kind: 'report'; body: CheckRequest }
+  | { kind: 'report'; body: CheckRequest; provenance?: Provenance }
   | { kind: 'peaks'; body: PeaksRequest };
 
 export type JobResult =
@@ -26,7 +27,7 @@ export function runJob(job: Job): JobResult {
       case 'check':
         return { ok: true, value: runCheck(job.body) };
       case 'report':
-        return { ok: true, value: runReport(job.body) };
+        return { ok: true, value: runReport(job.body, { ...(job.provenance ? { provenance: job.provenance } : {}) }) };
       case 'peaks':
         return { ok: true, value: runPeaks(job.body) };
     }

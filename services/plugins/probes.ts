@@ -1,13 +1,11 @@
 import type { FastifyInstance } from 'fastify';
 import { PROBLEM_DESCRIPTIONS } from '../errors.js';
-import { PAGE } from '../page/index.js';
 
 /**
- * The open routes: the page, liveness and readiness probes, the OpenAPI document, metrics and the problem-type
+ * The open routes (the page is services/page/route.ts): liveness and readiness probes, the OpenAPI document, metrics and the problem-type
  * pages. None of them needs a key, none is rate limited or shed: a busy instance must still say it is alive.
  */
 export function openRoutes(app: FastifyInstance): void {
-  app.get('/', { schema: { hide: true } }, async (_req, reply) => reply.type('text/html; charset=utf-8').send(PAGE));
   app.get('/healthz', { schema: { hide: true } }, async () => ({ status: 'ok' }));
   app.get('/readyz', { schema: { hide: true } }, async (_req, reply) => {
     if (!app.appState.ready) return reply.status(503).send({ status: 'shutting down' });

@@ -19,7 +19,8 @@ export const MARKERS: readonly Marker[] = ['circle', 'square', 'triangle', 'diam
 
 export interface Series {
   readonly label: string;
-  readonly points: readonly { x: number; y: number }[];
+  /** `err`: a standard uncertainty of y, drawn as a ±σ bar. */
+  readonly points: readonly { x: number; y: number; err?: number }[];
   readonly colour: string;
   readonly marker?: Marker;
   /** Draw as a polyline through the points (sorted by x). */
@@ -79,10 +80,32 @@ function marker(m: Marker, x: number, y: number, colour: string): string {
 export function plot(spec: PlotSpec): string {
   const W = spec.width ?? 640;
   const H = spec.height ?? 300;
-  // The legend sits in the top margin, three entries a row, so that it never hides data.
-  const legendRows = Math.ceil(spec.series.filter((x) => x.points.length > 0).length / 3);
-  const m = { l: 72, r: 16, t: 14 + 16 * legendRows, b: 46 };
-  const all = spec.series.flatMap((s) => s.points).filter((p) => Number.isFinite(p.x) && Number.isFinite(p.y));
+  // The legend sits in the top margin, entries laid out left to right and wrapped, so that it never hides data.
+  const m = { l: 72, r: 16, t: 0, b: 46 };
+  const legendAt: { x: number; y: number }[] = [];
+  {
+    let x = m.l + 10;
+    let row = 0;
+    for (const s of spec.series.filter((x) => x.points.length > 0)) {
+      const w = 26 + 6.3 * s.label.length;
+      if (x + w > W - m.r && x > m.l + 10) {
+        row++;
+        x = m.l + 10;
+      }
+      legendAt.push({ x, y: 14 + row * 16 });
+      x += w + 8;
+    }
+    m.t = 14 + 16 * (row + 1);
+  }
+  const all = spec.series
+    .flatMap((s) =>
+      s.points.flatMap((p) =>
+        p.err !== undefined && p.err > 0 && Number.isFinite(p.err)
+          ? [p, { x: p.x, y: p.y - p.err }, { x: p.x, y: p.y + p.err }]
+          : [p],
+      ),
+    )
+    .filter((p) => Number.isFinite(p.x) && Number.isFinite(p.y));
   if (all.length === 0) {
     return `<figure class="plot" id="${esc(spec.id)}"><figcaption>${esc(spec.title)}</figcaption><p class="empty">No data for this plot.</p></figure>`;
   }
@@ -139,14 +162,25 @@ export function plot(spec: PlotSpec): string {
         `<path d="${d}" stroke="${s.colour}" stroke-width="1.6" fill="none" class="series" data-series="${esc(s.label)}"${s.dashed ? ' stroke-dasharray="5 3"' : ''}/>`,
       );
     }
+    const bars = pts.filter((p) => p.err !== undefined && p.err > 0 && Number.isFinite(p.err));
+    if (bars.length > 0) {
+      const d = bars
+        .map((p) => {
+          const x = sx(p.x).toFixed(1);
+          const lo = sy(p.y - (p.err as number)).toFixed(1);
+          const hi = sy(p.y + (p.err as number)).toFixed(1);
+          return `M${x} ${lo}V${hi}M${(sx(p.x) - 2.5).toFixed(1)} ${lo}h5M${(sx(p.x) - 2.5).toFixed(1)} ${hi}h5`;
+        })
+        .join('');
+      parts.push(`<path d="${d}" stroke="${s.colour}" stroke-width="1" fill="none" class="errorbars"/>`);
+    }
     if (s.marker) {
       parts.push(
         `<g class="series" data-series="${esc(s.label)}">${pts.map((p) => marker(s.marker as Marker, sx(p.x), sy(p.y), s.colour)).join('')}</g>`,
       );
     }
     // Legend.
-    const lx = m.l + 10 + (k % 3) * 190;
-    const ly = 14 + Math.floor(k / 3) * 16;
+    const { x: lx, y: ly } = legendAt[k] as { x: number; y: number };
     parts.push(
       `<g class="legend">${s.marker ? marker(s.marker, lx, ly - 4, s.colour) : `<line x1="${lx - 6}" x2="${lx + 6}" y1="${ly - 4}" y2="${ly - 4}" stroke="${s.colour}" stroke-width="2"${s.dashed ? ' stroke-dasharray="4 2"' : ''}/>`}<text x="${lx + 10}" y="${ly}" class="lg">${esc(s.label)}</text></g>`,
     );

@@ -1,6 +1,7 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import type { Config } from '../config.js';
 import { jobSize } from '../pool.js';
+import { stamped } from '../provenance.js';
 import { type CheckResponse, CheckResponseSchema, checkRequestSchema } from '../schemas/checks.js';
 import { problemResponses } from '../schemas/common.js';
 import { PredictionRequestSchema, PredictionResponseSchema } from '../schemas/predictions.js';
@@ -31,7 +32,7 @@ export const checkRoutes =
           app.pool.run<CheckResponse>({ kind: 'check', body: req.body }, jobSize(req.body)),
         );
         app.metrics.verdicts.labels(r.verdict).inc();
-        return r;
+        return stamped(req, r, req.body.sample);
       },
     );
     app.post(
@@ -47,6 +48,6 @@ export const checkRoutes =
           response: { 200: PredictionResponseSchema, ...problemResponses },
         },
       },
-      async (req) => runPrediction(req.body),
+      async (req) => stamped(req, runPrediction(req.body), req.body.sample),
     );
   };

@@ -1,6 +1,7 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import type { Config } from '../config.js';
 import { jobSize } from '../pool.js';
+import { stamped } from '../provenance.js';
 import { problemResponses } from '../schemas/common.js';
 import type { FitResponse } from '../schemas/fit.js';
 import { FitResponseSchema, fitRequestSchema } from '../schemas/fit.js';
@@ -25,9 +26,11 @@ export const fitRoutes =
           response: { 200: FitResponseSchema, ...problemResponses },
         },
       },
-      async (req) =>
-        timed(app, 'fit', jobSize(req.body), () =>
+      async (req) => {
+        const r = await timed(app, 'fit', jobSize(req.body), () =>
           app.pool.run<FitResponse>({ kind: 'fit', body: req.body }, jobSize(req.body)),
-        ),
+        );
+        return stamped(req, r, req.body.sample);
+      },
     );
   };

@@ -1,6 +1,7 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import type { Config } from '../config.js';
 import { jobSize } from '../pool.js';
+import { stamped } from '../provenance.js';
 import { problemResponses } from '../schemas/common.js';
 import { PeaksRequestSchema, type PeaksResponse, PeaksResponseSchema } from '../schemas/peaks.js';
 import { timed } from './timed.js';
@@ -22,9 +23,11 @@ export const peakRoutes =
           response: { 200: PeaksResponseSchema, ...problemResponses },
         },
       },
-      async (req) =>
-        timed(app, 'peaks', jobSize(req.body), () =>
+      async (req) => {
+        const r = await timed(app, 'peaks', jobSize(req.body), () =>
           app.pool.run<PeaksResponse>({ kind: 'peaks', body: req.body }, jobSize(req.body)),
-        ),
+        );
+        return stamped(req, r, req.body.sample);
+      },
     );
   };

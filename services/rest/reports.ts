@@ -2,6 +2,7 @@ import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import type { Config } from '../config.js';
 import { jobSize } from '../pool.js';
+import { provenanceOf } from '../provenance.js';
 import { checkRequestSchema } from '../schemas/checks.js';
 import { problemResponses } from '../schemas/common.js';
 import { SpeciesQuerySchema } from '../schemas/query.js';
@@ -30,7 +31,7 @@ export const reportRoutes =
       },
       async (req, reply) => {
         const html = await timed(app, 'report', jobSize(req.body), () =>
-          app.pool.run<string>({ kind: 'report', body: req.body }, jobSize(req.body)),
+          app.pool.run<string>({ kind: 'report', body: req.body, provenance: provenanceOf(req) }, jobSize(req.body)),
         );
         return reply.type('text/html; charset=utf-8').send(html);
       },

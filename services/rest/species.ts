@@ -1,6 +1,7 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
+import { stamped } from '../provenance.js';
 import { problemResponses } from '../schemas/common.js';
-import { SpeciesEntrySchema, SpeciesListSchema, SpeciesParamsSchema } from '../schemas/species.js';
+import { SpeciesEntryResponseSchema, SpeciesListSchema, SpeciesParamsSchema } from '../schemas/species.js';
 import { getSpecies, listSpecies } from '../usecases/species.js';
 
 /** GET /v1/species and GET /v1/species/{formula}. */
@@ -15,7 +16,7 @@ export const speciesRoutes: FastifyPluginAsyncZod = async (app) => {
         response: { 200: SpeciesListSchema },
       },
     },
-    async () => listSpecies(),
+    async (req) => stamped(req, listSpecies()),
   );
   app.get(
     '/species/:formula',
@@ -25,12 +26,12 @@ export const speciesRoutes: FastifyPluginAsyncZod = async (app) => {
         summary: 'One entry of the reference library',
         params: SpeciesParamsSchema,
         response: {
-          200: SpeciesEntrySchema,
+          200: SpeciesEntryResponseSchema,
           404: { ...problemResponses[422], description: 'not in the reference library' },
           422: problemResponses[422],
         },
       },
     },
-    async (req) => getSpecies(req.params.formula),
+    async (req) => stamped(req, getSpecies(req.params.formula)),
   );
 };

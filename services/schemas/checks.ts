@@ -1,5 +1,6 @@
 import { z } from 'zod';
-import { exactlyOne, exactlyOneMessage, FitResponseSchema, fitRequestFields } from './fit.js';
+import { exactlyOne, exactlyOneMessage, FitSchema, fitRequestFields } from './fit.js';
+import { provenanceAndSampleFields } from './provenance.js';
 
 export const TolerancesSchema = z
   .strictObject({
@@ -46,8 +47,11 @@ export const CheckResponseSchema = z
       }),
     ),
     tolerances: z.record(z.string(), z.unknown()).describe('the profile applied, defaults filled in'),
-    fit: FitResponseSchema.nullable().describe('null when no fit could be made (identity then says why)'),
+    fit: FitSchema.nullable().describe('null when no fit could be made (identity then says why)'),
     notice: z.string(),
+    ...provenanceAndSampleFields,
   })
   .meta({ id: 'CheckResponse' });
-export type CheckResponse = z.input<typeof CheckResponseSchema>;
+export type CheckResponseWithProvenance = z.input<typeof CheckResponseSchema>;
+/** What the check use case computes; the route adds provenance and the sample. */
+export type CheckResponse = Omit<CheckResponseWithProvenance, 'software' | 'input' | 'sample'>;

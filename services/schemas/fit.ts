@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { POSITION_UNITS } from '../../src/units.js';
 import { MatrixSchema, QuantitySchema, WarningSchema } from './common.js';
+import { provenanceAndSampleFields, SampleSchema } from './provenance.js';
 
 /** Zod schemas of POST /v1/fits: the single source of the wire format, of its validation and of the OpenAPI. */
 
@@ -22,8 +23,14 @@ export const AssignmentSchema = z
   })
   .meta({ id: 'Assignment' });
 
+/** A caller's name for a line, echoed in the response and printed in the report's line table. */
+export const LineIdSchema = z
+  .union([z.string().min(1).max(100), z.number().int()])
+  .describe("the caller's identifier of the line (echoed); the report numbers lines from 1 without it");
+
 export const LineSchema = z
   .strictObject({
+    id: LineIdSchema.optional(),
     position: z.number().positive().describe('line position in the request unit'),
     uncertainty: z.number().positive().optional().describe('standard uncertainty in the request unit'),
     intensity: z.number().min(0).optional().describe('any linear scale'),
@@ -124,6 +131,7 @@ export function fitRequestFields(maxLines: number) {
     ),
     peakOptions: PeakOptionsSchema.optional(),
     options: FitOptionsSchema.optional(),
+    sample: SampleSchema.optional(),
   };
 }
 
@@ -141,7 +149,12 @@ const Q = QuantitySchema;
 
 export const LineOutcomeSchema = z.object({
   index: z.number().int(),
+  id: LineIdSchema.optional(),
   position: z.number().describe('cm-1'),
+  uncertainty: z
+    .number()
+    .optional()
+    .describe('standard uncertainty of the position, cm-1: as sent, or from the peak fit; absent when none was given'),
   intensity: z.number().optional().describe('as sent'),
   assignment: z
     .object({
@@ -225,106 +238,118 @@ export const AssignmentReportSchema = z
       z.object({ species: z.string(), band: z.string(), predicted: z.number().int(), matched: z.number().int() }),
     ),
     unexplained: z
-      .array(z.object({ index: z.number().int(), position: z.number(), intensity: z.number().optional() }))
+      .array(
+        z.object({
+          index: z.number().int(),
+          id: LineIdSchema.optional(),
+          position: z.number(),
+          intensity: z.number().optional(),
+        }),
+      )
       .describe('lines that no band explains: possible impurities or noise; never fitted'),
   })
   .meta({ id: 'AssignmentReport' });
 
-export const FitResponseSchema = z
-  .object({
-    species: z.array(z.object({ formula: z.string(), reducedMass: Q })),
-    lines: z.array(LineOutcomeSchema),
-    bands: z.array(
-      z.object({
-        species: z.string(),
-        band: z.string(),
-        origin: Q.optional(),
-        lines: z.number().int(),
-        jRange: z.array(z.number().int()),
-      }),
-    ),
-    levels: z.array(
-      z.object({
-        species: z.string(),
-        v: z.number().int(),
-        term: Q.extend({ relativeTo: z.number().int() }).optional(),
-        B: Q,
-        D: Q.optional(),
-        H: Q.optional(),
-        L: Q.optional(),
-        r: Q.optional().describe('effective bond length from B_v (absent when B_v is not positive)'),
-      }),
-    ),
-    equilibrium: z.array(EquilibriumSchema),
-    parameters: z.array(NamedQuantity),
-    covariance: MatrixSchema,
-    correlation: MatrixSchema,
-    statistics: z.object({
+/** The fit itself: the body of a /v1/fits response, and `fit` in a /v1/checks response. */
+const fitFields = {
+  species: z.array(z.object({ formula: z.string(), reducedMass: Q })),
+  lines: z.array(LineOutcomeSchema),
+  bands: z.array(
+    z.object({
+      species: z.string(),
+      band: z.string(),
+      origin: Q.optional(),
       lines: z.number().int(),
-      assigned: z.number().int(),
-      fitted: z.number().int(),
-      rejected: z.number().int(),
-      unassigned: z.number().int(),
-      parameters: z.number().int(),
-      degreesOfFreedom: z.number().int(),
+      jRange: z.array(z.number().int()),
+    }),
+  ),
+  levels: z.array(
+    z.object({
+      species: z.string(),
+      v: z.number().int(),
+      term: Q.extend({ relativeTo: z.number().int() }).optional(),
+      B: Q,
+      D: Q.optional(),
+      H: Q.optional(),
+      L: Q.optional(),
+      r: Q.optional().describe('effective bond length from B_v (absent when B_v is not positive)'),
+    }),
+  ),
+  equilibrium: z.array(EquilibriumSchema),
+  parameters: z.array(NamedQuantity),
+  covariance: MatrixSchema,
+  correlation: MatrixSchema,
+  statistics: z.object({
+    lines: z.number().int(),
+    assigned: z.number().int(),
+    fitted: z.number().int(),
+    rejected: z.number().int(),
+    unassigned: z.number().int(),
+    parameters: z.number().int(),
+    degreesOfFreedom: z.number().int(),
+    rms: z.number(),
+    reducedChiSquare: z.number().nullable(),
+    conditionNumber: z.number().nullable(),
+    uncertaintyMode: z.enum(['a-posteriori', 'absolute']),
+  }),
+  model: z.object({
+    levelTerms: z.array(z.object({ species: z.string(), v: z.number().int(), terms: z.array(z.string()) })),
+    selection: z.string(),
+  }),
+  dunham: z.array(DunhamFitSchema),
+  massReducedDunham: DunhamFitSchema.optional(),
+  combinationDifferences: z.array(
+    z.object({
+      species: z.string(),
+      band: z.string(),
+      kind: z.enum(['lower', 'upper']),
+      v: z.number().int(),
+      points: z.array(
+        z.object({ j: z.number().int(), value: z.number(), uncertainty: z.number(), residual: z.number() }),
+      ),
+      B: Q,
+      D: Q.optional(),
+      H: Q.optional(),
       rms: z.number(),
-      reducedChiSquare: z.number().nullable(),
-      conditionNumber: z.number().nullable(),
-      uncertaintyMode: z.enum(['a-posteriori', 'absolute']),
+      degreesOfFreedom: z.number().int(),
+      fitted: Q.describe('B of the same level from the full fit'),
+      deviation: z.number().describe('|B_cd − B_fit| in combined standard uncertainties'),
     }),
-    model: z.object({
-      levelTerms: z.array(z.object({ species: z.string(), v: z.number().int(), terms: z.array(z.string()) })),
-      selection: z.string(),
+  ),
+  scatter: z
+    .array(
+      z.object({
+        group: z.string(),
+        by: z.enum(['source', 'band', 'pooled']),
+        lines: z.number().int(),
+        sigma: z.number().describe('cm-1'),
+      }),
+    )
+    .optional()
+    .describe('σ estimated from the residual scatter (robust) for the lines sent without an uncertainty'),
+  crossChecks: z.array(
+    z.object({
+      species: z.string(),
+      id: z.string(),
+      description: z.string(),
+      formula: z.string(),
+      value: Q,
+      fitted: Q.optional(),
+      approximation: z.literal(true),
     }),
-    dunham: z.array(DunhamFitSchema),
-    massReducedDunham: DunhamFitSchema.optional(),
-    combinationDifferences: z.array(
-      z.object({
-        species: z.string(),
-        band: z.string(),
-        kind: z.enum(['lower', 'upper']),
-        v: z.number().int(),
-        points: z.array(
-          z.object({ j: z.number().int(), value: z.number(), uncertainty: z.number(), residual: z.number() }),
-        ),
-        B: Q,
-        D: Q.optional(),
-        H: Q.optional(),
-        rms: z.number(),
-        degreesOfFreedom: z.number().int(),
-        fitted: Q.describe('B of the same level from the full fit'),
-        deviation: z.number().describe('|B_cd − B_fit| in combined standard uncertainties'),
-      }),
-    ),
-    scatter: z
-      .array(
-        z.object({
-          group: z.string(),
-          by: z.enum(['source', 'band', 'pooled']),
-          lines: z.number().int(),
-          sigma: z.number().describe('cm-1'),
-        }),
-      )
-      .optional()
-      .describe('σ estimated from the residual scatter (robust) for the lines sent without an uncertainty'),
-    crossChecks: z.array(
-      z.object({
-        species: z.string(),
-        id: z.string(),
-        description: z.string(),
-        formula: z.string(),
-        value: Q,
-        fitted: Q.optional(),
-        approximation: z.literal(true),
-      }),
-    ),
-    assignment: AssignmentReportSchema,
-    spectrum: z
-      .object({ points: z.number().int(), peaks: z.number().int(), noise: z.number(), step: z.number() })
-      .optional()
-      .describe('when a spectrum was sent: how many points, how many peaks found, the absorbance noise and the step'),
-    warnings: z.array(WarningSchema),
-    notice: z.string().describe('safety caution: the service certifies nothing about a gas'),
-  })
-  .meta({ id: 'FitResponse' });
-export type FitResponse = z.input<typeof FitResponseSchema>;
+  ),
+  assignment: AssignmentReportSchema,
+  spectrum: z
+    .object({ points: z.number().int(), peaks: z.number().int(), noise: z.number(), step: z.number() })
+    .optional()
+    .describe('when a spectrum was sent: how many points, how many peaks found, the absorbance noise and the step'),
+  warnings: z.array(WarningSchema),
+  notice: z.string().describe('safety caution: the service certifies nothing about a gas'),
+};
+
+export const FitSchema = z.object(fitFields).meta({ id: 'Fit' });
+/** The fit without provenance (what the use cases compute; nested in check responses). */
+export type FitResponse = z.input<typeof FitSchema>;
+
+export const FitResponseSchema = z.object({ ...fitFields, ...provenanceAndSampleFields }).meta({ id: 'FitResponse' });
+export type FitResponseWithProvenance = z.input<typeof FitResponseSchema>;

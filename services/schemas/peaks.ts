@@ -1,8 +1,13 @@
 import { z } from 'zod';
 import { PeakOptionsSchema, SpectrumSchema } from './fit.js';
+import { provenanceAndSampleFields, SampleSchema } from './provenance.js';
 
 export const PeaksRequestSchema = z
-  .strictObject({ spectrum: SpectrumSchema, peakOptions: PeakOptionsSchema.optional() })
+  .strictObject({
+    spectrum: SpectrumSchema,
+    peakOptions: PeakOptionsSchema.optional(),
+    sample: SampleSchema.optional(),
+  })
   .meta({ id: 'PeaksRequest' });
 export type PeaksRequest = z.output<typeof PeaksRequestSchema>;
 
@@ -22,6 +27,7 @@ export const PeaksResponseSchema = z
     noise: z.number().describe('absorbance noise (standard deviation)'),
     step: z.number().describe('median sampling step, cm-1'),
     notice: z.string(),
+    ...provenanceAndSampleFields,
   })
   .meta({ id: 'PeaksResponse' });
-export type PeaksResponse = z.input<typeof PeaksResponseSchema>;
+export type PeaksResponse = Omit<z.input<typeof PeaksResponseSchema>, 'software' | 'input' | 'sample'>;

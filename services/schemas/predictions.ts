@@ -2,6 +2,7 @@ import { z } from 'zod';
 import { POSITION_UNITS } from '../../src/units.js';
 import { QuantitySchema } from './common.js';
 import { SpeciesStringSchema } from './fit.js';
+import { provenanceAndSampleFields, SampleSchema } from './provenance.js';
 
 const CONSTANTS = [
   'omega_e',
@@ -41,6 +42,7 @@ export const PredictionRequestSchema = z
     jMax: z.number().int().min(0).max(200).default(30),
     temperature: z.number().min(10).max(6000).default(296).describe('K, for relative intensities'),
     unit: z.enum(POSITION_UNITS).default('cm-1'),
+    sample: SampleSchema.optional(),
   })
   .meta({ id: 'PredictionRequest' });
 export type PredictionRequest = z.output<typeof PredictionRequestSchema>;
@@ -62,6 +64,7 @@ export const PredictionResponseSchema = z
       }),
     ),
     notice: z.string(),
+    ...provenanceAndSampleFields,
   })
   .meta({ id: 'PredictionResponse' });
-export type PredictionResponse = z.input<typeof PredictionResponseSchema>;
+export type PredictionResponse = Omit<z.input<typeof PredictionResponseSchema>, 'software' | 'input' | 'sample'>;

@@ -8,4 +8,11 @@ export const SpeciesQuerySchema = z.strictObject({
     .regex(/^\d+(\.\d+)?$/)
     .optional()
     .describe('gas temperature in K, for JCAMP-DX and CSV bodies'),
+  // The sample of a JCAMP-DX or CSV body, field by field (JSON bodies carry a `sample` object instead).
+  'sample.id': z.string().max(200).optional().describe('sample.id, for JCAMP-DX and CSV bodies'),
+  'sample.description': z.string().max(2000).optional(),
+  'sample.instrument': z.string().max(200).optional(),
+  'sample.operator': z.string().max(200).optional(),
+  'sample.measuredAt': z.string().max(40).optional().describe('ISO 8601; checked as in the JSON `sample`'),
+  'sample.notes': z.string().max(10_000).optional(),
 });

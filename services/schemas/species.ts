@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { provenanceFields } from './provenance.js';
 
 const LibraryValueSchema = z.object({
   value: z.number(),
@@ -20,8 +21,10 @@ export const SpeciesEntrySchema = z
     constants: z.record(z.string(), LibraryValueSchema),
   })
   .meta({ id: 'SpeciesEntry' });
+const SpeciesEntryResponseSchema = SpeciesEntrySchema.extend(provenanceFields).meta({ id: 'SpeciesEntryResponse' });
 
 export const SpeciesListSchema = z
-  .object({ species: z.array(SpeciesEntrySchema), notice: z.string() })
+  .object({ species: z.array(SpeciesEntrySchema), notice: z.string(), ...provenanceFields })
   .meta({ id: 'SpeciesList' });
+export { SpeciesEntryResponseSchema };
 export const SpeciesParamsSchema = z.object({ formula: z.string().min(1).max(40) });

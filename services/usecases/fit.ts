@@ -23,6 +23,8 @@ export interface PreparedFit {
   readonly options: FitRequest['options'];
   /** When the request sent a spectrum: what the peak finder saw. */
   readonly spectrum?: { points: number; peaks: number; noise: number; step: number };
+  /** The caller's line identifiers, by input index (sparse when only some lines carry one). */
+  readonly lineIds?: readonly (string | number | undefined)[];
 }
 
 export interface AnalysedFit extends PreparedFit {
@@ -82,7 +84,8 @@ export function prepareFit(req: FitRequest): PreparedFit {
       },
     };
   });
-  return { peaks, declared, options: req.options };
+  const lineIds = req.lines?.some((l) => l.id !== undefined) ? req.lines.map((l) => l.id) : undefined;
+  return { peaks, declared, options: req.options, ...(lineIds ? { lineIds } : {}) };
 }
 
 export function analyseRequest(p: PreparedFit): AnalysedFit {
@@ -99,9 +102,15 @@ export function analyseRequest(p: PreparedFit): AnalysedFit {
 export function presentFit(a: AnalysedFit): FitResponse {
   const { peaks } = a;
   const { result, assignment, notes } = a.analysis;
+  const idOf = (i: number) => {
+    const id = a.lineIds?.[i];
+    return id !== undefined ? { id } : {};
+  };
   const lines = result.lines.map((l) => {
     const note = notes.get(l.index);
-    return note && !l.reason ? { ...l, reason: note } : l;
+    const sigma = peaks[l.index]?.uncertainty;
+    const withId = { ...l, ...idOf(l.index), ...(sigma !== undefined ? { uncertainty: sigma } : {}) };
+    return note && !l.reason ? { ...withId, reason: note } : withId;
   });
   const response: DeepReadonly<FitResponse> = {
     ...result,
@@ -110,7 +119,12 @@ export function presentFit(a: AnalysedFit): FitResponse {
       ...assignment,
       unexplained: assignment.unexplained.map((i) => {
         const p = peaks[i] as PeakInput;
-        return { index: i, position: p.position, ...(p.intensity !== undefined ? { intensity: p.intensity } : {}) };
+        return {
+          index: i,
+          ...idOf(i),
+          position: p.position,
+          ...(p.intensity !== undefined ? { intensity: p.intensity } : {}),
+        };
       }),
     },
     ...(a.spectrum ? { spectrum: a.spectrum } : {}),

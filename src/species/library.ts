@@ -10,6 +10,12 @@ import { reducedMass } from './reduced-mass.js';
 
 export type Provenance = 'published' | 'derived' | 'low-confidence';
 
+/**
+ * Edition of the library's values and sources; change it with any value. Responses report it together with a digest
+ * of the whole library (services/provenance.ts), so that an edit is visible even if this is forgotten.
+ */
+export const LIBRARY_EDITION = '2026.12.1';
+
 export interface LibraryValue {
   readonly value: number;
   readonly unit: 'cm-1' | 'angstrom';

@@ -70,9 +70,9 @@ describe('responses match the OpenAPI document', () => {
   });
   it('GET /v1/species → SpeciesList, /v1/species/HCl → SpeciesEntry; problems → Problem', async () => {
     expect(validate('SpeciesList', (await app().inject({ method: 'GET', url: '/v1/species' })).json())).toEqual([]);
-    expect(validate('SpeciesEntry', (await app().inject({ method: 'GET', url: '/v1/species/HCl' })).json())).toEqual(
-      [],
-    );
+    expect(
+      validate('SpeciesEntryResponse', (await app().inject({ method: 'GET', url: '/v1/species/HCl' })).json()),
+    ).toEqual([]);
     const bad = await app().inject({ method: 'POST', url: '/v1/fits', payload: { lines: [{ position: -1 }] } });
     expect(validate('Problem', bad.json())).toEqual([]);
     const sci = await app().inject({
