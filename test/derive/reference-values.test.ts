@@ -70,7 +70,7 @@ describe('cross-checks against hand values (Huber & Herzberg constants, from mem
     // name, ω_e, ω_e x_e, B_e, α_e, μ; Kratzer 4B³/ω², Pekeris, Morse well ω²/(4ωx), Morse a = √(k_e/(2D_e)),
     // k_e = μ(2πcω_e)², all DER (double precision, CODATA 2018)
     ['HCl', 2990.9463, 52.8186, 10.593416, 0.307181, HCL, 5.3155822e-4, 0.27755796, 42341.901193, 1.75193476],
-    ['CO', 2169.81358, 13.28831, 1.93128087, 0.01750441, CO, 6.1200006e-6, 0.01674020, 88575.804071, 2.32476276],
+    ['CO', 2169.81358, 13.28831, 1.93128087, 0.01750441, CO, 6.1200006e-6, 0.0167402, 88575.804071, 2.32476276],
   ] as const;
 
   it.each(cases)('%s: Kratzer D_e, Pekeris α_e, Morse D_e and a, each to 1e-7 relative', (...c) => {
