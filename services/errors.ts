@@ -31,6 +31,7 @@ const SCIENCE_STATUS: Record<ScienceErrorCode, { status: number; title: string }
   FIT_TOO_FEW_LINES: { status: 422, title: 'Too few lines for the parameters' },
   FIT_RANK_DEFICIENT: { status: 422, title: 'Parameters not determined by the data' },
   FIT_NO_ASSIGNED_LINES: { status: 422, title: 'No assigned lines' },
+  NUMBERING_AMBIGUOUS: { status: 422, title: 'Band numbering ambiguous' },
   INPUT_INVALID: { status: 422, title: 'Invalid input value' },
   POTENTIAL_UNDETERMINED: { status: 422, title: 'Constants do not determine a potential' },
   POTENTIAL_LEVELS_NOT_INCREASING: { status: 422, title: 'Vibrational energies stop increasing below vMax' },

@@ -216,6 +216,33 @@ const CalibrationSchema = z.object({
   reference: z.string(),
 });
 
+const NumberingEvidenceSchema = z
+  .object({
+    label: z.string(),
+    originSlot: z.number().int(),
+    alignment: z.number().int(),
+    lines: z.number().int(),
+    origin: z.number().optional(),
+    lowerB: z.number().optional(),
+    reducedChiSquare: z.number(),
+    differenceIntercept: z
+      .object({ value: z.number(), uncertainty: z.number() })
+      .optional()
+      .describe('Δ₂F″ extrapolated to J = −½, cm-1 (zero for a right numbering)'),
+    lineAtOrigin: z.boolean().describe('a line lies where this numbering puts the band origin'),
+    boltzmannScatter: z.number().optional().describe('rms of ln(I/(S·ν)) about one line in E″, both branches'),
+    kratzerRatio: z.number().optional().describe('D″ / (4B_e³/ω_e²)'),
+    score: z.number().describe('evidence against, χ²-like units; lower is better'),
+    parts: z.object({
+      positions: z.number(),
+      differences: z.number(),
+      origin: z.number(),
+      intensities: z.number(),
+      kratzer: z.number(),
+    }),
+  })
+  .meta({ id: 'NumberingEvidence' });
+
 export const AssignmentReportSchema = z
   .object({
     method: z.enum(['given', 'reference', 'structure']),
@@ -235,8 +262,31 @@ export const AssignmentReportSchema = z
       .describe('library molecules ranked by how well they explain the lines, when no species was declared'),
     calibration: CalibrationSchema.optional(),
     bands: z.array(
-      z.object({ species: z.string(), band: z.string(), predicted: z.number().int(), matched: z.number().int() }),
+      z.object({
+        species: z.string(),
+        band: z.string(),
+        predicted: z.number().int().describe('lines strong enough to start the band from, in the window'),
+        matched: z.number().int(),
+        offsets: z
+          .array(z.object({ source: z.string().optional(), offset: z.number(), own: z.boolean() }))
+          .optional()
+          .describe(
+            "offset (observed − reference, cm-1) the band was first matched with, per source; own: found by the band's own vote rather than its source's",
+          ),
+        bestOffset: z
+          .object({ offset: z.number(), matches: z.number().int() })
+          .optional()
+          .describe('for a band predicted but not found: the best offset its own lines find, and how many they match'),
+      }),
     ),
+    numbering: z
+      .object({
+        chosen: NumberingEvidenceSchema,
+        runnersUp: z.array(NumberingEvidenceSchema),
+        margin: z.number().nullable().describe('runner-up score minus chosen score; at least 9 to be reported'),
+      })
+      .optional()
+      .describe('method structure: the evidence for the chosen numbering of the band and against the runners-up'),
     unexplained: z
       .array(
         z.object({

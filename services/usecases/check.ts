@@ -6,7 +6,13 @@ import { analyseRequest, prepareFit, presentFit } from './fit.js';
 import type { DeepReadonly } from './types.js';
 
 /** Errors that mean "no fit could be made", which a QA check reports as a failed identity, not as a 422. */
-const NO_FIT = new Set(['FIT_NO_ASSIGNED_LINES', 'FIT_TOO_FEW_LINES', 'FIT_RANK_DEFICIENT', 'SPECIES_UNIDENTIFIED']);
+const NO_FIT = new Set([
+  'FIT_NO_ASSIGNED_LINES',
+  'NUMBERING_AMBIGUOUS',
+  'FIT_TOO_FEW_LINES',
+  'FIT_RANK_DEFICIENT',
+  'SPECIES_UNIDENTIFIED',
+]);
 
 /** POST /v1/checks and GraphQL `check`. */
 export function runCheck(req: CheckRequest): CheckResponse {

@@ -7,7 +7,25 @@ import { type MassValue, reducedMass } from '../species/reduced-mass.js';
 import { assignAndFit, type BandSummary, type Calibration, type PeakInput } from './assign-lines.js';
 import { isotopologuesMeant } from './candidates.js';
 import { type IdentificationCandidate, identifySpecies } from './identify.js';
-import { assignByStructure } from './structure.js';
+import { assignByStructure, extendByFit, MIN_MARGIN, type NumberingEvidence } from './structure.js';
+
+/** One numbering in words: its shifts, origin, B″ and what counted against it. */
+export function describeEvidence(e: NumberingEvidence): string {
+  const parts = [
+    e.label,
+    e.origin !== undefined ? `origin ${e.origin.toFixed(4)} cm-1` : undefined,
+    e.lowerB !== undefined ? `B″ ${e.lowerB.toFixed(6)} cm-1` : undefined,
+    `reduced χ² ${e.reducedChiSquare.toPrecision(3)}`,
+    e.differenceIntercept
+      ? `Δ₂F″ at J = −½ ${e.differenceIntercept.value.toExponential(2)} ± ${e.differenceIntercept.uncertainty.toExponential(1)}`
+      : undefined,
+    e.lineAtOrigin ? 'a line lies at its origin' : 'no line at its origin',
+    e.boltzmannScatter !== undefined ? `Boltzmann-plot rms ${e.boltzmannScatter.toFixed(3)}` : undefined,
+    e.kratzerRatio !== undefined ? `D″/Kratzer ${e.kratzerRatio.toFixed(3)}` : undefined,
+    `score ${e.score.toFixed(1)}`,
+  ];
+  return parts.filter((x) => x !== undefined).join(', ');
+}
 
 export interface AnalyseOptions {
   readonly fit?: FitOptions;
@@ -29,6 +47,12 @@ export interface AssignmentReport {
   readonly calibration?: Calibration;
   readonly bands: readonly BandSummary[];
   readonly unexplained: readonly number[];
+  /** For method 'structure': the evidence for the numbering chosen and against the runners-up. */
+  readonly numbering?: {
+    readonly chosen: NumberingEvidence;
+    readonly runnersUp: readonly NumberingEvidence[];
+    readonly margin: number | null;
+  };
 }
 
 export interface Analysis {
@@ -135,13 +159,29 @@ export function analyseLineList(
   if (!s) {
     throw new ScienceError(
       'FIT_NO_ASSIGNED_LINES',
-      `${species.formula} has no reference constants, and no P/R band structure could be found in these lines`,
+      `${species.formula} has no reference constants, and no P/R band structure (a gap with two progressions of at least six lines in all) could be found in these lines`,
       { species: species.formula },
     );
   }
+  const chosen = s.evidence[0] as NumberingEvidence;
+  const runnerUp = s.evidence[1];
+  if (!s.decisive) {
+    throw new ScienceError(
+      'NUMBERING_AMBIGUOUS',
+      `${species.formula} is not in the reference library and its band could not be numbered from its structure: the best numbering (${describeEvidence(chosen)}) is not clearly better than the next (${runnerUp ? describeEvidence(runnerUp) : '–'}; evidence margin ${s.margin.toFixed(1)}, needed ${MIN_MARGIN}). Send intensities, lines near the band origin, or a few given assignments`,
+      { species: species.formula, margin: s.margin, numberings: s.evidence.slice(0, 4) },
+    );
+  }
+  const extended = extendByFit(
+    free.map((x) => x.p),
+    s.assigned,
+    species.formula,
+    reducedMass(species),
+    band,
+  );
   const lines: PeakInput[] = peaks.map((p) => p);
   free.forEach((x, k) => {
-    const t = s.assigned.get(k);
+    const t = extended.get(k);
     if (t)
       lines[x.index] = {
         ...x.p,
@@ -154,7 +194,7 @@ export function analyseLineList(
   const warnings: Warning[] = [
     {
       code: 'ASSIGNED_FROM_STRUCTURE',
-      message: `${species.formula} is not in the reference library: lines were numbered from the band gap and the P/R progressions alone, as band ${band.upper}-${band.lower}; the numbering chosen fits with reduced χ² ${s.reducedChiSquare.toPrecision(3)}, the next best with ${s.alternatives[0]?.reducedChiSquare.toPrecision(3) ?? '–'}`,
+      message: `${species.formula} is not in the reference library: lines were numbered from the band structure alone, as band ${band.upper}-${band.lower}. Chosen numbering: ${describeEvidence(chosen)}; runner-up: ${runnerUp ? describeEvidence(runnerUp) : 'none'}; evidence margin ${Number.isFinite(s.margin) ? s.margin.toFixed(1) : '∞'} (at least ${MIN_MARGIN} needed)`,
     },
   ];
   if (unexplained.length > 0) {
@@ -164,11 +204,11 @@ export function analyseLineList(
       lines: unexplained,
     });
   }
-  if (!free.every((x) => x.p.intensity !== undefined)) {
+  if (!free.every((x) => x.p.intensity !== undefined) && runnerUp && runnerUp.parts.origin === 0) {
     warnings.push({
       code: 'NUMBERING_UNCERTAIN',
       message:
-        'without intensities, a numbering that starts from a missing line fits the positions as well as the true one; the choice rests on the Kratzer relation alone: send intensities, or anchor a few lines with given assignments',
+        "without intensities, and with no line at the runner-up numbering's band origin to rule it out, the choice rests on the combination differences and the Kratzer relation: send intensities, or anchor a few lines with given assignments",
     });
   }
   return {
@@ -176,10 +216,9 @@ export function analyseLineList(
     assignment: {
       method: 'structure',
       species: [species.formula],
-      bands: [
-        { species: species.formula, band: `${band.upper}-${band.lower}`, predicted: 0, matched: s.assigned.size },
-      ],
+      bands: [{ species: species.formula, band: `${band.upper}-${band.lower}`, predicted: 0, matched: extended.size }],
       unexplained,
+      numbering: { chosen, runnersUp: s.evidence.slice(1), margin: Number.isFinite(s.margin) ? s.margin : null },
     },
     notes: new Map(),
   };

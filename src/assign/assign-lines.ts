@@ -131,6 +131,7 @@ export function assignAndFit(
         position: p.position,
         ...(p.uncertainty !== undefined ? { uncertainty: p.uncertainty } : {}),
         ...(p.intensity !== undefined ? { intensity: p.intensity } : {}),
+        ...(p.source !== undefined ? { source: p.source } : {}),
       };
       if (p.assignment) return { ...base, assignment: p.assignment };
       const c = auto.get(index);

@@ -1,30 +1,82 @@
 import { ScienceError } from '../errors.js';
-import { type FitResult, fitLineList, type LineInput } from '../fit/fit-lines.js';
+import { type FitResult, fitLineListDetailed, type LineInput } from '../fit/fit-lines.js';
 import { solveLeastSquares } from '../linalg/least-squares.js';
 import type { Band, Branch } from '../models/transitions.js';
 import type { MassValue } from '../species/reduced-mass.js';
-import { lowerBound } from './match.js';
+import { median, robustSigma as robustSigmaOf } from '../stats/robust.js';
+import { lowerBound, matchLines, type Prediction } from './match.js';
 
 /**
- * Assignment from the band structure alone, for a species the library cannot predict (SCIENCE.md §6): take a
- * pair of neighbouring strong lines as P(1) and R(0) across the band gap, grow both branches outwards along the
- * Fortrat parabola ν(m) = ν₀ + (B′+B″)m + (B′−B″)m² + …, and keep the numbering (the gap and its shifts by ±1, ±2)
- * that the level model fits best, which is the numbering under which the combination differences vanish at J = −½.
+ * Assignment from the band structure alone, for a species the library cannot predict (SCIENCE.md §6).
+ *
+ * 1. Progressions: a pair of neighbouring lines across a gap is taken as the innermost P and R lines, and both
+ *    branches are grown outwards along the Fortrat polynomial ν(m) = ν₀ + (B′+B″)m + (B′−B″)m² + … .
+ * 2. Numberings: the lines of a progression keep their order; what is open is where m = 0 (the band origin, where
+ *    no line can be) sits in the gap, and whether the two sides are aligned. Every placement of the origin in the
+ *    gap, and misalignments by one, are numberings to judge.
+ * 3. Evidence against each numbering, in χ²-like units (lower is better):
+ *    - positions: the level model's χ² relative to the best numbering's scatter (a misaligned branch cannot fit);
+ *    - combination differences: Δ₂F″(J) = R(J−1) − P(J+1) = F″(J+1) − F″(J−1) vanishes at J = −½; its
+ *      intercept there, in units of its standard uncertainty, squared;
+ *    - the missing line at the origin: a line lying where the numbering puts ν₀ costs 25 (a 5σ argument);
+ *    - intensities, when given: ln(I/(S·ν)) against E″ must be one straight line for both branches (Boltzmann
+ *      plot with Hönl–London factors S = J″+1 for R, J″ for P): n·ln(RSS/RSS_best);
+ *    - Kratzer's relation D_e = 4B_e³/ω_e² with B_e and ω_e from the numbering's own constants (ω_e x_e from
+ *      Pekeris's relation α_e = 6B_e²/ω_e·(√(ω_e x_e/B_e) − B_e/ω_e)) as a prior good to 5 % (1σ; common practice
+ *      for ¹Σ ground states, where it holds to a few per cent).
+ *    A positions-only fit cannot tell a shift of the whole numbering (a Fortrat polynomial renumbered is another
+ *    Fortrat polynomial with other B′, B″): only the origin line, the intensities and the priors can.
+ * 4. The numbering with the least total is chosen when the runner-up's total is at least MIN_MARGIN more;
+ *    otherwise there is no numbering to report, and the caller refuses.
  */
+
+export interface NumberingEvidence {
+  /** Where the numbering puts the origin in the progression, and any realignment of its two sides. */
+  readonly label: string;
+  /** The empty slot of the progression taken as the origin (0: the first after the seed gap's P-side line). */
+  readonly originSlot: number;
+  /** The R side moved against the P side by this many lines (0 as the spacing across the gap says). */
+  readonly alignment: number;
+  readonly lines: number;
+  readonly origin?: number;
+  readonly lowerB?: number;
+  readonly reducedChiSquare: number;
+  /** Δ₂F″ extrapolated to J = −½ (zero for a right numbering), cm⁻¹, with its standard uncertainty. */
+  readonly differenceIntercept?: { readonly value: number; readonly uncertainty: number };
+  readonly lineAtOrigin: boolean;
+  /** rms of the Boltzmann plot (natural log units), when intensities were sent. */
+  readonly boltzmannScatter?: number;
+  /** D″ / (4B_e³/ω_e²). */
+  readonly kratzerRatio?: number;
+  /** Total evidence against, χ²-like units; the chosen numbering has the least. */
+  readonly score: number;
+  readonly parts: {
+    readonly positions: number;
+    readonly differences: number;
+    readonly origin: number;
+    readonly intensities: number;
+    readonly kratzer: number;
+  };
+}
 
 export interface StructureAssignment {
   /** Index of the peak → transition (lower J and branch) in the given band. */
   readonly assigned: ReadonlyMap<number, { branch: Branch; j: number }>;
   readonly reducedChiSquare: number;
-  /** Boltzmann-plot scatter (with intensities) or Kratzer mismatch (without); smaller is more plausible. */
-  readonly implausibility: number;
-  /** Other numberings tried: shift = 10 × (R shift) + (P shift). */
-  readonly alternatives: readonly { shift: number; reducedChiSquare: number }[];
+  /** The chosen numbering first, then the runners-up by score. */
+  readonly evidence: readonly NumberingEvidence[];
+  /** Score of the runner-up minus that of the chosen numbering. */
+  readonly margin: number;
+  /** True when the margin reaches MIN_MARGIN. */
+  readonly decisive: boolean;
 }
 
-const SHIFTS: readonly (readonly [number, number])[] = [0, -1, 1, 2].flatMap((r) =>
-  [0, -1, 1, 2].map((p) => [r, p] as const),
-);
+/** Least score margin for a numbering to be reported (χ²-like units: odds of about e^{−9/2} ≈ 1 : 90). */
+export const MIN_MARGIN = 9;
+/** Relative 1σ of Kratzer's relation taken as a prior. */
+const KRATZER_SIGMA = 0.05;
+/** Cost of a line lying at a numbering's band origin. */
+const ORIGIN_LINE_COST = 25;
 
 interface Point {
   m: number;
@@ -32,8 +84,10 @@ interface Point {
   position: number;
 }
 
+type Peak = { position: number; uncertainty?: number; intensity?: number };
+
 export function assignByStructure(
-  peaks: readonly { position: number; uncertainty?: number; intensity?: number }[],
+  peaks: readonly Peak[],
   species: string,
   mass: MassValue,
   band: Band,
@@ -42,11 +96,10 @@ export function assignByStructure(
     .map((p, index) => ({ index, position: p.position, intensity: p.intensity ?? 1 }))
     .sort((a, b) => a.position - b.position);
   const pos = Float64Array.from(order, (p) => p.position);
-  // Candidate gaps: neighbouring strong lines a, b whose distance d is about twice the local spacing, i.e. with a
-  // line near a − d/2 (P(2)) or b + d/2 (R(1)).
   const chains: Point[][] = [];
-  // Every neighbouring pair is a candidate: P(1) and R(0) are among the weakest lines of a band.
-  // A spurious peak may sit inside the gap: b may also be the second or third peak after a.
+  const inChain = new Set<number>();
+  // Every neighbouring pair across a gap is a candidate (P(1) and R(0) are among the weakest lines of a band), and a
+  // spurious peak may sit inside the gap: b may also be the second or third peak after a.
   for (let i = 0; i + 1 < order.length; i++)
     for (let skip = 1; skip <= 3 && i + skip < order.length; skip++) {
       const a = order[i] as { index: number; position: number };
@@ -57,122 +110,333 @@ export function assignByStructure(
       const below = ia > 0 ? a.position - (pos[ia - 1] as number) : Number.POSITIVE_INFINITY;
       const above = ib + 1 < pos.length ? (pos[ib + 1] as number) - b.position : Number.POSITIVE_INFINITY;
       if (!(d >= 1.6 * Math.min(below, above))) continue;
+      // A pair inside a progression already grown is a line missing from it, not a new band: its numberings are
+      // judged through that progression's empty slots.
+      if (inChain.has(a.index) && inChain.has(b.index)) continue;
       const points = grow(a, b, pos, order);
-      if (points.length >= 6) chains.push(points);
+      if (points.length >= 6) {
+        chains.push(points);
+        for (const p of points) inChain.add(p.index);
+      }
     }
   if (chains.length === 0) return undefined;
   chains.sort((x, y) => y.length - x.length);
   const longest = (chains[0] as Point[]).length;
-  // The longest chains, first judged by the level model under their own numbering, then the best three with every
-  // numbering shift.
-  const contenders = chains.filter((c) => c.length >= 0.5 * longest).slice(0, 16);
-  const judged = contenders.flatMap((c) => {
-    const r = numberChain(c, [[0, 0]]);
-    return r ? [{ c, r }] : [];
-  });
-  if (judged.length === 0) return undefined;
-  // A Fortrat quartic can be renumbered from any missing line and still fit the positions (the m-shift is
-  // absorbed by B′ and B″). Among the chains that fit, physics decides: the Boltzmann plot of the intensities must
-  // be one straight line for both branches, or, without intensities, D must agree with Kratzer's 4B³/ν₀². The
-  // chosen chain's numbering near its gap is then settled by the positions (shifts of ±1, ±2 fit far worse).
-  const minChi = Math.min(...judged.map((x) => x.r.reducedChiSquare));
-  const fitting = judged.filter((x) => x.r.reducedChiSquare <= 2 * minChi + 0.5);
-  fitting.sort((a, b) => a.r.implausibility - b.r.implausibility);
-  return numberChain((fitting[0] as (typeof fitting)[number]).c, SHIFTS);
-
-  function numberChain(
-    chain: Point[],
-    _shifts: readonly (readonly [number, number])[],
-  ): StructureAssignment | undefined {
-    const best = { points: chain };
-    // Numbering: the gap found, and each branch numbered up to two further out or one further in (a line missing
-    // at the gap makes it look wider on that side only).
-    const trials: {
-      shift: number;
-      chi: number;
-      map: Map<number, { branch: Branch; j: number }>;
-      implausibility: number;
-    }[] = [];
-    for (const shiftR of [0, -1, 1, 2])
-      for (const shiftP of [0, -1, 1, 2]) {
-        const shift = shiftR * 10 + shiftP;
-        const map = new Map<number, { branch: Branch; j: number }>();
-        let valid = true;
-        for (const p of best.points) {
-          const m = p.m > 0 ? p.m + shiftR : p.m - shiftP;
-          if (m === 0 || Math.sign(m) !== Math.sign(p.m)) {
-            valid = false;
-            break;
-          }
-          map.set(p.index, m > 0 ? { branch: 'R', j: m - 1 } : { branch: 'P', j: -m });
-        }
-        if (!valid) continue;
-        const lines: LineInput[] = peaks.map((pk, index) => {
-          const t = map.get(index);
-          const base = {
-            position: pk.position,
-            ...(pk.uncertainty !== undefined ? { uncertainty: pk.uncertainty } : {}),
-          };
-          return t
-            ? { ...base, assignment: { species, band, branch: t.branch, j: t.j, source: 'auto' as const } }
-            : base;
-        });
-        try {
-          // B and D only: higher terms could absorb a wrong numbering, which is what this comparison must expose.
-          const r = fitLineList(lines, new Map([[species, mass]]), { maxCentrifugalOrder: 2 });
-          trials.push({
-            shift,
-            chi: r.statistics.reducedChiSquare ?? Number.POSITIVE_INFINITY,
-            map,
-            implausibility: implausibility(r, map, peaks),
-          });
-        } catch (e) {
-          if (!(e instanceof ScienceError)) throw e;
-        }
+  // The longest progressions: several gap pairs usually grow the same one.
+  const seen = new Set<string>();
+  const contenders: Point[][] = [];
+  for (const c of chains) {
+    if (c.length < 0.9 * longest) break;
+    const base = Math.min(...c.map((p) => p.m));
+    const sig = c
+      .map((p) => `${p.index}@${p.m - base}`)
+      .sort()
+      .join(',');
+    if (seen.has(sig)) continue;
+    seen.add(sig);
+    contenders.push(c);
+    if (contenders.length >= 4) break;
+  }
+  const masses = new Map([[species, mass]]);
+  const trials: Trial[] = [];
+  const tried = new Set<string>();
+  for (const chain of contenders) {
+    for (const { q, delta } of numberingsOf(chain)) {
+      const map = numbered(chain, q, delta);
+      if (!map) continue;
+      const sig = [...map]
+        .map(([i, t]) => `${i}${t.branch}${t.j}`)
+        .sort()
+        .join(',');
+      if (tried.has(sig)) continue;
+      tried.add(sig);
+      const t = judge(map, q, delta);
+      if (t) trials.push(t);
+    }
+  }
+  if (trials.length === 0) return undefined;
+  // The nearest rivals of the best numbering are always judged: the whole numbering moved by up to three lines,
+  // and the R side moved by one against the P side (a line lying at a rival's origin then counts against it).
+  const first = score(trials)[0] as Trial;
+  for (let shift = -3; shift <= 3; shift++)
+    for (const delta of [-1, 0, 1]) {
+      if (shift === 0 && delta === 0) continue;
+      const map = new Map<number, { branch: Branch; j: number }>();
+      for (const [i, t] of first.map) {
+        const m0 = t.branch === 'R' ? t.j + 1 : -t.j;
+        const m = m0 + shift + (m0 > 0 ? delta : 0);
+        if (m !== 0) map.set(i, m > 0 ? { branch: 'R', j: m - 1 } : { branch: 'P', j: -m });
       }
-    if (trials.length === 0) return undefined;
-    trials.sort((a, b) => a.chi - b.chi);
-    const win = trials[0] as (typeof trials)[number];
-    return {
-      assigned: win.map,
-      reducedChiSquare: win.chi,
-      implausibility: win.implausibility,
-      alternatives: trials.slice(1).map((t) => ({ shift: t.shift, reducedChiSquare: t.chi })),
-    };
+      const sig = [...map]
+        .map(([i, t]) => `${i}${t.branch}${t.j}`)
+        .sort()
+        .join(',');
+      if (tried.has(sig)) continue;
+      tried.add(sig);
+      const t = judge(map, first.q - shift, delta);
+      if (t) trials.push(t);
+    }
+  // Different progressions (one with a stray line more, say) give the same numbering: one entry per band origin
+  // (within a quarter of the line spacing), the best scored.
+  const scored = score(trials);
+  const spacing = localSpacing(scored[0]?.map ?? new Map(), peaks);
+  const evidence: typeof scored = [];
+  for (const t of scored) {
+    if (
+      evidence.some(
+        (e) => e.origin !== undefined && t.origin !== undefined && Math.abs(e.origin - t.origin) < 0.25 * spacing,
+      )
+    )
+      continue;
+    evidence.push(t);
+  }
+  const best = evidence[0] as Trial & { evidence: NumberingEvidence };
+  const runnerUp = evidence[1];
+  const margin = runnerUp ? runnerUp.evidence.score - best.evidence.score : Number.POSITIVE_INFINITY;
+  return {
+    assigned: best.map,
+    reducedChiSquare: best.reducedChiSquare,
+    evidence: evidence.slice(0, 6).map((e) => e.evidence),
+    margin,
+    decisive: margin >= MIN_MARGIN,
+  };
+
+  function judge(map: Map<number, { branch: Branch; j: number }>, q: number, delta: number): Trial | undefined {
+    const lines: LineInput[] = peaks.map((pk, index) => {
+      const t = map.get(index);
+      const base = { position: pk.position, ...(pk.uncertainty !== undefined ? { uncertainty: pk.uncertainty } : {}) };
+      return t ? { ...base, assignment: { species, band, branch: t.branch, j: t.j, source: 'auto' as const } } : base;
+    });
+    try {
+      const d = fitLineListDetailed(lines, masses, { levelsOnly: true, rejectionThreshold: 0 });
+      const r = d.result;
+      const origin = r.bands[0]?.origin?.value;
+      const spacing = localSpacing(map, peaks);
+      const rms = r.statistics.rms;
+      const sigmas = peaks.flatMap((p) => (p.uncertainty !== undefined ? [p.uncertainty] : []));
+      const tol = Math.min(Math.max(4 * rms, 4 * (sigmas.length > 0 ? median(sigmas) : 0)), 0.1 * spacing);
+      let lineAtOrigin = false;
+      if (origin !== undefined) {
+        const k = lowerBound(pos, origin - tol);
+        lineAtOrigin = k < pos.length && (pos[k] as number) <= origin + tol;
+      }
+      return {
+        map,
+        q,
+        delta,
+        result: r,
+        chiSquare: (r.statistics.reducedChiSquare ?? 1) * Math.max(1, r.statistics.degreesOfFreedom),
+        dof: Math.max(1, r.statistics.degreesOfFreedom),
+        reducedChiSquare: r.statistics.reducedChiSquare ?? Number.POSITIVE_INFINITY,
+        ...(origin !== undefined ? { origin } : {}),
+        lineAtOrigin,
+        intercept: differenceIntercept(map, peaks),
+        boltzmann: boltzmannResiduals(map, peaks, r),
+        kratzer: kratzerRatio(r, band),
+      };
+    } catch (e) {
+      if (e instanceof ScienceError) return undefined;
+      throw e;
+    }
   }
 }
 
+interface Trial {
+  map: Map<number, { branch: Branch; j: number }>;
+  q: number;
+  delta: number;
+  result: FitResult;
+  chiSquare: number;
+  dof: number;
+  reducedChiSquare: number;
+  origin?: number;
+  lineAtOrigin: boolean;
+  intercept: { value: number; uncertainty: number } | undefined;
+  boltzmann: { rss: number; n: number } | undefined;
+  kratzer: number | undefined;
+}
+
+/** Evidence totals of every trial, best first. */
+function score(trials: readonly Trial[]): (Trial & { evidence: NumberingEvidence })[] {
+  const minRed = Math.max(1e-300, Math.min(...trials.map((t) => t.reducedChiSquare)));
+  const rssMin = Math.min(...trials.flatMap((t) => (t.boltzmann ? [t.boltzmann.rss / t.boltzmann.n] : [])));
+  const out = trials.map((t) => {
+    const positions = Math.max(0, t.dof * (t.reducedChiSquare / minRed - 1));
+    const differences = t.intercept ? Math.min(1e6, (t.intercept.value / t.intercept.uncertainty) ** 2) : 0;
+    const origin = t.lineAtOrigin ? ORIGIN_LINE_COST : 0;
+    const intensities =
+      t.boltzmann && Number.isFinite(rssMin) && rssMin > 0
+        ? Math.max(0, t.boltzmann.n * Math.log(t.boltzmann.rss / t.boltzmann.n / rssMin))
+        : 0;
+    const kratzer = t.kratzer !== undefined && t.kratzer > 0 ? (Math.log(t.kratzer) / KRATZER_SIGMA) ** 2 : 0;
+    const total = positions + differences + origin + intensities + kratzer;
+    const lower = t.result.levels.find((l) => l.v === Math.min(...t.result.levels.map((x) => x.v)));
+    const evidence: NumberingEvidence = {
+      label: describeShift(t.q, t.delta),
+      originSlot: t.q,
+      alignment: t.delta,
+      lines: t.map.size,
+      ...(t.origin !== undefined ? { origin: t.origin } : {}),
+      ...(lower ? { lowerB: lower.B.value } : {}),
+      reducedChiSquare: t.reducedChiSquare,
+      ...(t.intercept ? { differenceIntercept: t.intercept } : {}),
+      lineAtOrigin: t.lineAtOrigin,
+      ...(t.boltzmann ? { boltzmannScatter: Math.sqrt(t.boltzmann.rss / t.boltzmann.n) } : {}),
+      ...(t.kratzer !== undefined ? { kratzerRatio: t.kratzer } : {}),
+      score: total,
+      parts: { positions, differences, origin, intensities, kratzer },
+    };
+    return { ...t, evidence };
+  });
+  return out.sort((a, b) => a.evidence.score - b.evidence.score);
+}
+
+function describeShift(q: number, delta: number): string {
+  const f = (x: number) => (x > 0 ? `+${x}` : `${x}`);
+  return `origin at slot ${q} of the progression${delta !== 0 ? `, R side moved ${f(delta)} against the P side` : ''}`;
+}
+
 /**
- * How implausible a numbering is physically. With intensities: the rms scatter of ln(I/(Sν)) about one straight
- * line in E″ (a Boltzmann plot, SCIENCE.md §5) over both branches. Without: |ln(D″ / (4B″³/ν₀²))| (Kratzer).
+ * The numberings worth judging for a progression, whose lines carry consecutive indices m (the seed gap's P-side
+ * line at m = −1, its R-side line at m = slots − 1, as the spacing either side puts it): the origin at any empty
+ * slot q (those nearest the seed gap first, at most 16), and the R side of the seed gap moved by δ = −1, 0, +1
+ * against the P side (in case the gap was misjudged by a line).
  */
-function implausibility(
-  r: FitResult,
-  map: ReadonlyMap<number, { branch: Branch; j: number }>,
-  peaks: readonly { position: number; intensity?: number }[],
-): number {
-  const lower = r.levels.find((l) => l.v === Math.min(...r.levels.map((x) => x.v)));
-  if (!lower) return Number.POSITIVE_INFINITY;
-  const withI = [...map].filter(([i]) => (peaks[i]?.intensity ?? 0) > 0);
-  if (withI.length >= 6) {
-    const n = withI.length;
-    const design = new Float64Array(n * 2);
-    const obs = new Float64Array(n);
-    withI.forEach(([i, t], k) => {
-      const p = peaks[i] as { position: number; intensity: number };
-      const S = t.branch === 'R' ? t.j + 1 : t.j;
-      design[k] = 1;
-      design[n + k] = lower.B.value * t.j * (t.j + 1);
-      obs[k] = Math.log(p.intensity / (S * p.position));
-    });
-    const f = solveLeastSquares({ rows: n, cols: 2, design, observations: obs });
-    if (f.rankDeficient) return Number.POSITIVE_INFINITY;
-    return Math.sqrt(f.chiSquare / (n - 2));
+function numberingsOf(chain: readonly Point[]): { q: number; delta: number }[] {
+  const ms = new Set(chain.map((p) => p.m));
+  const lo = Math.min(...ms);
+  const hi = Math.max(...ms);
+  const empty: number[] = [];
+  for (let m = lo - 1; m <= hi + 1; m++) if (!ms.has(m)) empty.push(m);
+  empty.sort((a, b) => Math.abs(a) - Math.abs(b));
+  const out: { q: number; delta: number }[] = [];
+  for (const q of empty.slice(0, 16)) for (const delta of [0, -1, 1]) out.push({ q, delta });
+  return out;
+}
+
+/**
+ * The chain numbered with the origin at slot q and the R side of the seed gap (m ≥ 0) moved by δ: index m − q
+ * (after the move) is the running number, R(J) at J + 1, P(J) at −J. Undefined when a line would sit at the origin.
+ */
+function numbered(
+  chain: readonly Point[],
+  q: number,
+  delta: number,
+): Map<number, { branch: Branch; j: number }> | undefined {
+  const map = new Map<number, { branch: Branch; j: number }>();
+  for (const p of chain) {
+    const m = p.m + (p.m >= 0 ? delta : 0) - q;
+    if (m === 0) return undefined;
+    map.set(p.index, m > 0 ? { branch: 'R', j: m - 1 } : { branch: 'P', j: -m });
   }
+  return map;
+}
+
+function localSpacing(map: ReadonlyMap<number, { branch: Branch; j: number }>, peaks: readonly Peak[]): number {
+  const byM = [...map]
+    .map(([i, t]) => ({ m: t.branch === 'R' ? t.j + 1 : -t.j, x: (peaks[i] as Peak).position }))
+    .sort((a, b) => a.m - b.m);
+  const d: number[] = [];
+  for (let k = 1; k < byM.length; k++) {
+    const a = byM[k - 1] as { m: number; x: number };
+    const b = byM[k] as { m: number; x: number };
+    if (b.m - a.m === 1) d.push(b.x - a.x);
+  }
+  return d.length > 0 ? median(d) : 1;
+}
+
+/**
+ * Δ₂F″(J) = R(J−1) − P(J+1) fitted as a(J+½) + b(J+½)³ + c(J+½)⁵ plus an intercept; the intercept (Δ₂F″ at
+ * J = −½) is zero for a right numbering whatever the constants. Weighted by the lines' σ when given.
+ */
+function differenceIntercept(
+  map: ReadonlyMap<number, { branch: Branch; j: number }>,
+  peaks: readonly Peak[],
+): { value: number; uncertainty: number } | undefined {
+  const R = new Map<number, Peak>();
+  const P = new Map<number, Peak>();
+  for (const [i, t] of map) (t.branch === 'R' ? R : P).set(t.j, peaks[i] as Peak);
+  const xs: number[] = [];
+  const ys: number[] = [];
+  const ws: number[] = [];
+  for (const [j, r] of R) {
+    const p = P.get(j + 2);
+    if (!p) continue;
+    xs.push(j + 1.5);
+    ys.push(r.position - p.position);
+    const s2 = (r.uncertainty ?? 1) ** 2 + (p.uncertainty ?? 1) ** 2;
+    ws.push(1 / s2);
+  }
+  const n = xs.length;
+  const cols = n >= 12 ? 4 : n >= 7 ? 3 : 2;
+  if (n < cols + 2) return undefined;
+  const design = new Float64Array(n * cols);
+  xs.forEach((x, k) => {
+    design[k] = 1;
+    for (let c = 1; c < cols; c++) design[c * n + k] = x ** (2 * c - 1);
+  });
+  const f = solveLeastSquares({
+    rows: n,
+    cols,
+    design,
+    observations: Float64Array.from(ys),
+    weights: Float64Array.from(ws),
+  });
+  if (f.rankDeficient) return undefined;
+  const s2 = Math.max(f.chiSquare / (n - cols), 1e-30);
+  return { value: f.coefficients[0] as number, uncertainty: Math.sqrt(s2 * (f.covariance[0] as number)) };
+}
+
+/** Residual sum of squares of the Boltzmann plot ln(I/(S·ν)) = a − b·E″ over both branches (six lines or more). */
+function boltzmannResiduals(
+  map: ReadonlyMap<number, { branch: Branch; j: number }>,
+  peaks: readonly Peak[],
+  r: FitResult,
+): { rss: number; n: number } | undefined {
+  const lower = r.levels.find((l) => l.v === Math.min(...r.levels.map((x) => x.v)));
+  if (!lower) return undefined;
+  const withI = [...map].filter(([i, t]) => (peaks[i]?.intensity ?? 0) > 0 && (t.branch === 'R' || t.j > 0));
+  if (withI.length < 6) return undefined;
+  const n = withI.length;
+  const design = new Float64Array(n * 2);
+  const obs = new Float64Array(n);
+  const B = lower.B.value;
+  const D = lower.D?.value ?? 0;
+  withI.forEach(([i, t], k) => {
+    const p = peaks[i] as { position: number; intensity: number };
+    const S = t.branch === 'R' ? t.j + 1 : t.j;
+    const x = t.j * (t.j + 1);
+    design[k] = 1;
+    design[n + k] = B * x - D * x * x;
+    obs[k] = Math.log(p.intensity / (S * p.position));
+  });
+  const f = solveLeastSquares({ rows: n, cols: 2, design, observations: obs });
+  if (f.rankDeficient) return undefined;
+  return { rss: Math.max(f.chiSquare, 1e-12), n };
+}
+
+/**
+ * D″ over Kratzer's 4B_e³/ω_e², with B_e = B″ + α_e(v″+½), α_e = (B″ − B′)/(v′ − v″), and ω_e from the band origin
+ * ν₀ = ω_e Δv − ω_e x_e Δv(v′+v″+1) with ω_e x_e from Pekeris's relation (iterated). Undefined without D″ or for
+ * pure rotation.
+ */
+export function kratzerRatio(r: FitResult, band: Band): number | undefined {
+  const dv = band.upper - band.lower;
+  if (dv <= 0) return undefined;
+  const lo = r.levels.find((l) => l.v === band.lower);
+  const up = r.levels.find((l) => l.v === band.upper);
   const origin = r.bands[0]?.origin?.value;
-  const d = lower.D?.value;
-  if (origin === undefined || d === undefined || !(d > 0)) return Number.POSITIVE_INFINITY;
-  return Math.abs(Math.log(d / ((4 * lower.B.value ** 3) / origin ** 2)));
+  const D = lo?.D?.value;
+  if (!lo || !up || origin === undefined || D === undefined || !(D > 0)) return undefined;
+  const alpha = (lo.B.value - up.B.value) / dv;
+  const Be = lo.B.value + alpha * (band.lower + 0.5);
+  if (!(alpha > 0) || !(Be > 0)) return undefined;
+  let we = origin / dv;
+  for (let k = 0; k < 20; k++) {
+    const wexe = Be * ((alpha * we) / (6 * Be * Be) + Be / we) ** 2;
+    we = (origin + wexe * dv * (band.upper + band.lower + 1)) / dv;
+  }
+  return D / ((4 * Be ** 3) / we ** 2);
 }
 
 /** Grow R (m = 1, 2, …) and P (m = −1, −2, …) from a candidate P(1), R(0) pair along a fitted Fortrat polynomial. */
@@ -182,21 +446,33 @@ export function grow(
   pos: Float64Array,
   order: readonly { index: number; position: number }[],
 ): Point[] {
+  // The local spacing from the neighbours outside the gap; the gap then spans `slots` spacings.
+  const ia = lowerBound(pos, p1.position);
+  const ib = lowerBound(pos, r0.position);
+  const near: number[] = [];
+  if (ia > 0) near.push(p1.position - (pos[ia - 1] as number));
+  if (ib + 1 < pos.length) near.push((pos[ib + 1] as number) - r0.position);
+  const gap = r0.position - p1.position;
+  const local = near.length > 0 ? Math.min(...near) : gap / 2;
+  const slots = Math.max(2, Math.min(30, Math.round(gap / local)));
+  const spacing0 = gap / slots;
   const points: Point[] = [
     { m: -1, index: p1.index, position: p1.position },
-    { m: 1, index: r0.index, position: r0.position },
+    { m: slots - 1, index: r0.index, position: r0.position },
   ];
   const used = new Set([p1.index, r0.index]);
-  const spacing0 = (r0.position - p1.position) / 2;
   if (!(spacing0 > 0)) return points;
   const misses = { R: 0, P: 0 };
-  let next = { R: 2, P: -2 };
+  let next = { R: slots, P: -2 };
   for (let step = 0; step < 400 && (misses.R < 3 || misses.P < 3); step++) {
     for (const side of ['R', 'P'] as const) {
       if (misses[side] >= 3) continue;
       const m = next[side];
-      const predicted = fortrat(points, m, spacing0);
-      const spacing = Math.abs(fortrat(points, m, spacing0) - fortrat(points, m - Math.sign(m), spacing0));
+      // A local polynomial: the twelve lines nearest in m to the one sought.
+      const local =
+        points.length <= 12 ? points : [...points].sort((x, y) => Math.abs(x.m - m) - Math.abs(y.m - m)).slice(0, 12);
+      const predicted = fortrat(local, m, spacing0);
+      const spacing = Math.abs(predicted - fortrat(local, m - Math.sign(m), spacing0));
       const tol = 0.2 * Math.max(spacing, 1e-6);
       const lo = lowerBound(pos, predicted - tol);
       let bestI = -1;
@@ -241,4 +517,78 @@ function fortrat(points: readonly Point[], m: number, spacing0: number): number 
   let v = 0;
   for (let k = 0; k < cols; k++) v += (r.coefficients[k] as number) * m ** k;
   return v;
+}
+
+/**
+ * Once numbered, the band grows along its own fitted level model (like a library band): every P and R line up to
+ * half again the highest J found is predicted with its variance, and peaks within 5σ of (prediction − observation),
+ * the scatter taken robustly from the lines already assigned and each peak's own σ, are taken one-to-one.
+ */
+export function extendByFit(
+  peaks: readonly Peak[],
+  assigned: ReadonlyMap<number, { branch: Branch; j: number }>,
+  species: string,
+  mass: MassValue,
+  band: Band,
+): Map<number, { branch: Branch; j: number }> {
+  const masses = new Map([[species, mass]]);
+  let map = new Map(assigned);
+  for (let iter = 0; iter < 12; iter++) {
+    const lines: LineInput[] = peaks.map((pk, index) => {
+      const t = map.get(index);
+      const base = { position: pk.position, ...(pk.uncertainty !== undefined ? { uncertainty: pk.uncertainty } : {}) };
+      return t ? { ...base, assignment: { species, band, branch: t.branch, j: t.j, source: 'auto' as const } } : base;
+    });
+    let fit: ReturnType<typeof fitLineListDetailed>;
+    try {
+      fit = fitLineListDetailed(lines, masses, { levelsOnly: true });
+    } catch (e) {
+      if (e instanceof ScienceError) return map;
+      throw e;
+    }
+    const res: number[] = [];
+    const z: number[] = [];
+    for (const l of fit.result.lines) {
+      if (l.status !== 'fitted' || l.residual === undefined) continue;
+      const s = peaks[l.index]?.uncertainty;
+      if (s === undefined) res.push(l.residual);
+      else z.push(l.residual / s);
+    }
+    const scatter = res.length >= 3 ? robustSigmaOf(res) : 0;
+    const factor = Math.max(1, z.length >= 3 ? robustSigmaOf(z) : 1);
+    const jTop = Math.max(...[...map.values()].map((t) => t.j));
+    const taken = new Map<string, number>();
+    for (const [i, t] of map) taken.set(`${t.branch}${t.j}`, i);
+    const preds: Prediction[] = [];
+    const jMax = jTop + Math.max(3, Math.floor(jTop / 2));
+    for (const branch of ['P', 'R'] as const)
+      for (let j = branch === 'P' ? 1 : 0; j <= jMax; j++) {
+        if (taken.has(`${branch}${j}`)) continue;
+        const p = fit.predict({ species, band, branch, j });
+        if (!p) continue;
+        const model = 5 * Math.sqrt(p.variance) + 1e-6;
+        preds.push({
+          key: `${branch}${j}`,
+          position: p.value,
+          tolerance: Math.hypot(model, 5 * scatter),
+          withSigma: { model, perSigma: 5 * factor },
+        });
+      }
+    const free = peaks.flatMap((pk, index) =>
+      map.has(index)
+        ? []
+        : [{ index, position: pk.position, ...(pk.uncertainty !== undefined ? { sigma: pk.uncertainty } : {}) }],
+    );
+    const m = matchLines(preds, free);
+    const next = new Map(map);
+    // Lines the fit rejects are dropped (they were taken by the progression, not by the model).
+    for (const l of fit.result.lines) if (l.status === 'rejected') next.delete(l.index);
+    for (const x of m.matches) {
+      const key = x.prediction.key;
+      next.set(x.peak.index, { branch: key[0] as Branch, j: Number(key.slice(1)) });
+    }
+    if (next.size === map.size && [...next].every(([i, t]) => map.get(i) === t)) return next;
+    map = next;
+  }
+  return map;
 }
