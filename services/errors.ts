@@ -1,6 +1,7 @@
 import type { FastifyError, FastifyReply, FastifyRequest } from 'fastify';
 import { hasZodFastifySchemaValidationErrors } from 'fastify-type-provider-zod';
 import { ScienceError, type ScienceErrorCode } from '../src/errors.js';
+import { NonFiniteResult } from './usecases/finite.js';
 
 /**
  * One place that turns every failure into RFC 9457 problem details. Science errors map by their stable code;
@@ -55,6 +56,18 @@ export function scienceProblem(e: ScienceError, instance?: string): Problem {
   };
 }
 
+export function nonFiniteProblem(e: NonFiniteResult, instance?: string): Problem {
+  return {
+    type: problemType('RESULT_NOT_FINITE'),
+    title: 'A computed quantity is not finite',
+    status: 422,
+    detail: e.message,
+    ...(instance ? { instance } : {}),
+    code: 'RESULT_NOT_FINITE',
+    quantity: e.quantity,
+  };
+}
+
 const FASTIFY_CODES: Record<string, { status: number; code: string; title: string }> = {
   FST_ERR_CTP_INVALID_MEDIA_TYPE: { status: 415, code: 'UNSUPPORTED_MEDIA_TYPE', title: 'Unsupported media type' },
   FST_ERR_CTP_BODY_TOO_LARGE: { status: 413, code: 'BODY_TOO_LARGE', title: 'Request body too large' },
@@ -104,6 +117,7 @@ function toProblemUntruncated(error: unknown, request: FastifyRequest): Problem 
   const instance = instanceOf(request);
   if (error instanceof HttpProblem) return { ...error.problem, instance };
   if (error instanceof ScienceError) return scienceProblem(error, instance);
+  if (error instanceof NonFiniteResult) return nonFiniteProblem(error, instance);
   if (hasZodFastifySchemaValidationErrors(error)) {
     const errors = error.validation.map((v) => ({
       path: (v.instancePath || '/').replace(/^\//, '') || '(body)',

@@ -3,6 +3,7 @@ import { ScienceError, type ScienceErrorCode } from '../src/errors.js';
 import type { Config } from './config.js';
 import { HttpProblem } from './errors.js';
 import { RETRY_AFTER_S } from './plugins/shedding.js';
+import { NonFiniteResult } from './usecases/finite.js';
 import { type Job, type JobResult, runJob } from './worker.js';
 
 /**
@@ -52,6 +53,7 @@ export function createPool(config: Config): Pool {
   let activeLines = 0;
   const unwrap = <T>(r: JobResult): T => {
     if (r.ok) return r.value as T;
+    if ('nonFinite' in r) throw new NonFiniteResult(r.nonFinite.quantity, r.nonFinite.value);
     throw new ScienceError(r.error.code as ScienceErrorCode, r.error.message, r.error.details);
   };
   return {

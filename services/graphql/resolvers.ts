@@ -4,16 +4,13 @@ import mercurius from 'mercurius';
 import type { z } from 'zod';
 import { ScienceError } from '../../src/errors.js';
 import type { Config } from '../config.js';
-import { scienceProblem } from '../errors.js';
+import { HttpProblem, nonFiniteProblem, scienceProblem } from '../errors.js';
 import { jobSize } from '../pool.js';
 import { checkRequestSchema } from '../schemas/checks.js';
 import { fitRequestSchema } from '../schemas/fit.js';
 import { PeaksRequestSchema } from '../schemas/peaks.js';
 import { PredictionRequestSchema } from '../schemas/predictions.js';
-import { runCheck } from '../usecases/check.js';
-import { runFit } from '../usecases/fit.js';
-import { runPeaks } from '../usecases/peaks.js';
-import { runPrediction } from '../usecases/predict.js';
+import { NonFiniteResult } from '../usecases/finite.js';
 import { getSpecies, listSpecies } from '../usecases/species.js';
 
 const JSONScalar = new GraphQLScalarType({
@@ -45,16 +42,21 @@ async function guarded<T>(f: () => T | Promise<T>): Promise<T> {
   try {
     return await f();
   } catch (e) {
-    if (e instanceof ScienceError) {
-      const p = scienceProblem(e);
-      const { detail, ...rest } = p;
-      throw new mercurius.ErrorWithProps(detail, rest, 200);
-    }
-    throw e;
+    const p =
+      e instanceof ScienceError
+        ? scienceProblem(e)
+        : e instanceof NonFiniteResult
+          ? nonFiniteProblem(e)
+          : e instanceof HttpProblem
+            ? e.problem
+            : undefined;
+    if (!p) throw e;
+    const { detail, ...rest } = p;
+    throw new mercurius.ErrorWithProps(detail, rest, 200);
   }
 }
 
-export function resolvers(config: Config, app?: FastifyInstance) {
+export function resolvers(config: Config, app: FastifyInstance) {
   const schema = fitRequestSchema(config.maxLines);
   const checkSchema = checkRequestSchema(config.maxLines);
   return {
@@ -64,7 +66,7 @@ export function resolvers(config: Config, app?: FastifyInstance) {
         const parsed = schema.safeParse(dropNulls(args.input));
         if (!parsed.success) badInput(parsed.error);
         const body = parsed.data;
-        return guarded(() => (app ? app.pool.run({ kind: 'fit', body }, jobSize(body)) : runFit(body)));
+        return guarded(() => app.pool.run({ kind: 'fit', body }, jobSize(body)));
       },
       check: (_: unknown, args: { input: unknown; tolerances?: unknown }) => {
         const raw = dropNulls({
@@ -74,19 +76,21 @@ export function resolvers(config: Config, app?: FastifyInstance) {
         const parsed = checkSchema.safeParse(raw);
         if (!parsed.success) badInput(parsed.error);
         const body = parsed.data;
-        return guarded(() => (app ? app.pool.run({ kind: 'check', body }, jobSize(body)) : runCheck(body)));
+        return guarded(() => app.pool.run({ kind: 'check', body }, jobSize(body)));
       },
       peaks: (_: unknown, args: { spectrum: unknown; peakOptions?: unknown }) => {
         const parsed = PeaksRequestSchema.safeParse(
           dropNulls({ spectrum: args.spectrum, peakOptions: args.peakOptions }),
         );
         if (!parsed.success) badInput(parsed.error);
-        return guarded(() => runPeaks(parsed.data));
+        const body = parsed.data;
+        return guarded(() => app.pool.run({ kind: 'peaks', body }, jobSize(body)));
       },
       predict: (_: unknown, args: { input: unknown }) => {
         const parsed = PredictionRequestSchema.safeParse(dropNulls(args.input));
         if (!parsed.success) badInput(parsed.error);
-        return guarded(() => runPrediction(parsed.data));
+        const body = parsed.data;
+        return guarded(() => app.pool.run({ kind: 'predict', body }, 1));
       },
       species: (_: unknown, args: { formula?: string | null }) =>
         guarded(() => (args.formula ? [getSpecies(args.formula)] : listSpecies().species)),

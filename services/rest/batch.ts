@@ -2,7 +2,7 @@ import { PassThrough, type Readable } from 'node:stream';
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import type { Config } from '../config.js';
-import { toProblem } from '../errors.js';
+import { problem, sendProblem, toProblem } from '../errors.js';
 import { jobSize } from '../pool.js';
 import { checkRequestSchema } from '../schemas/checks.js';
 import { fitRequestSchema } from '../schemas/fit.js';
@@ -27,6 +27,26 @@ export const batchRoutes =
       app.post(
         `/batch/${path}`,
         {
+          // Only NDJSON: refused before any body is read (a JSON or text body would otherwise be parsed whole).
+          onRequest: async (req, reply) => {
+            if (
+              String(req.headers['content-type'] ?? '')
+                .split(';')[0]
+                ?.trim()
+                .toLowerCase() === NDJSON
+            )
+              return;
+            return sendProblem(
+              reply,
+              problem(
+                'UNSUPPORTED_MEDIA_TYPE',
+                415,
+                'Unsupported media type',
+                `send ${NDJSON}, one request a line`,
+                req,
+              ),
+            );
+          },
           schema: {
             tags: ['batch'],
             summary: `Many ${path} as NDJSON`,

@@ -4,9 +4,8 @@ import { jobSize } from '../pool.js';
 import { stamped } from '../provenance.js';
 import { type CheckResponse, CheckResponseSchema, checkRequestSchema } from '../schemas/checks.js';
 import { problemResponses } from '../schemas/common.js';
-import { PredictionRequestSchema, PredictionResponseSchema } from '../schemas/predictions.js';
+import { PredictionRequestSchema, type PredictionResponse, PredictionResponseSchema } from '../schemas/predictions.js';
 import { SpeciesQuerySchema } from '../schemas/query.js';
-import { runPrediction } from '../usecases/predict.js';
 import { timed } from './timed.js';
 
 /** POST /v1/checks and POST /v1/predictions. */
@@ -48,6 +47,7 @@ export const checkRoutes =
           response: { 200: PredictionResponseSchema, ...problemResponses },
         },
       },
-      async (req) => stamped(req, runPrediction(req.body), req.body.sample),
+      async (req) =>
+        stamped(req, await app.pool.run<PredictionResponse>({ kind: 'predict', body: req.body }, 1), req.body.sample),
     );
   };

@@ -28,12 +28,23 @@ export const LineIdSchema = z
   .union([z.string().min(1).max(100), z.number().int()])
   .describe("the caller's identifier of the line (echoed); the report numbers lines from 1 without it");
 
+/**
+ * Largest magnitude of a position, uncertainty, intensity or spectrum value: far beyond any real one (30 000 cm⁻¹
+ * is 9·10⁸ MHz), and small enough that sums of squares over the largest request stay finite.
+ */
+export const MAX_MAGNITUDE = 1e12;
+
 export const LineSchema = z
   .strictObject({
     id: LineIdSchema.optional(),
-    position: z.number().positive().describe('line position in the request unit'),
-    uncertainty: z.number().positive().optional().describe('standard uncertainty in the request unit'),
-    intensity: z.number().min(0).optional().describe('any linear scale'),
+    position: z.number().positive().max(MAX_MAGNITUDE).describe('line position in the request unit'),
+    uncertainty: z
+      .number()
+      .positive()
+      .max(MAX_MAGNITUDE)
+      .optional()
+      .describe('standard uncertainty in the request unit'),
+    intensity: z.number().min(0).max(MAX_MAGNITUDE).optional().describe('any linear scale'),
     source: z
       .string()
       .min(1)
@@ -94,8 +105,12 @@ export const MAX_SPECTRUM_POINTS = 5_000_000;
 
 export const SpectrumSchema = z
   .strictObject({
-    x: z.array(z.number()).min(7).max(MAX_SPECTRUM_POINTS).describe('abscissa, increasing or decreasing'),
-    y: z.array(z.number()).min(7).max(MAX_SPECTRUM_POINTS),
+    x: z
+      .array(z.number().min(-MAX_MAGNITUDE).max(MAX_MAGNITUDE))
+      .min(7)
+      .max(MAX_SPECTRUM_POINTS)
+      .describe('abscissa, increasing or decreasing'),
+    y: z.array(z.number().min(-MAX_MAGNITUDE).max(MAX_MAGNITUDE)).min(7).max(MAX_SPECTRUM_POINTS),
     yUnit: z
       .enum(['absorbance', 'transmittance'])
       .default('absorbance')

@@ -130,10 +130,18 @@ export function predictLines(
   for (const band of options.bands) {
     const branches: Branch[] = band.upper === band.lower ? ['R'] : ['P', 'R'];
     for (const branch of branches) {
+      // A power series in J(J+1) holds only while the term values it gives still rise with J: past the first J
+      // where the lower or upper level's energy stops rising (the centrifugal terms take over), the branch ends.
+      let lastLower = Number.NEGATIVE_INFINITY;
+      let lastUpper = Number.NEGATIVE_INFINITY;
       for (let j = branch === 'P' ? 1 : 0; j <= jMax; j++) {
         const ju = upperJ({ branch, j });
         const el = energy(band.lower, j);
-        const nu = energy(band.upper, ju) - el;
+        const eu = energy(band.upper, ju);
+        if (!(el > lastLower && eu > lastUpper)) break;
+        lastLower = el;
+        lastUpper = eu;
+        const nu = eu - el;
         const g = names.map((n) => {
           const d = CONSTANT_TO_DUNHAM[n];
           return d.sign * (dunhamBasis(d.k, d.l, band.upper, ju) - dunhamBasis(d.k, d.l, band.lower, j));
@@ -141,7 +149,10 @@ export function predictLines(
         let variance = 0;
         for (let a = 0; a < p; a++)
           for (let b = 0; b < p; b++) variance += (g[a] as number) * (cov[a * p + b] as number) * (g[b] as number);
-        const strength = nu > 0 ? bandStrengthGuess(band) * relativeIntensity(nu, branch, j, el - e00, T) : 0;
+        const s = nu > 0 ? bandStrengthGuess(band) * relativeIntensity(nu, branch, j, el - e00, T) : 0;
+        // A Boltzmann factor that overflows (a term value below the ground level) has no meaning: the branch ends.
+        if (!Number.isFinite(s) || !Number.isFinite(variance)) break;
+        const strength = s;
         raw.push({
           band: `${band.upper}-${band.lower}`,
           branch,

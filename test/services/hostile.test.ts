@@ -108,3 +108,75 @@ describe('hostile bodies are refused, not expanded', () => {
     expect(out[0]?.problem?.code).toBe('BODY_TOO_LARGE');
   });
 });
+
+describe('input the schema accepts never gets a 500', () => {
+  it('predictions to jMax 200 stop each branch where the term values stop rising; every number is finite', async () => {
+    for (const temperature of [10, 296, 6000]) {
+      const r = await app().inject({
+        method: 'POST',
+        url: '/v1/predictions',
+        payload: { species: 'HCl', jMax: 200, temperature },
+      });
+      expect(r.statusCode, r.body.slice(0, 200)).toBe(200);
+      const lines = r.json().lines as { branch: string; j: number; lowerEnergy: number; relativeIntensity: number }[];
+      expect(lines.length).toBeGreaterThan(60);
+      for (const l of lines) {
+        expect(Number.isFinite(l.relativeIntensity)).toBe(true);
+        expect(l.relativeIntensity).toBeGreaterThanOrEqual(0);
+        expect(l.relativeIntensity).toBeLessThanOrEqual(1);
+      }
+      // Within a branch the lower-state energy rises with J (the series is cut before it turns over).
+      for (const b of ['P', 'R']) {
+        const e = lines.filter((l) => l.branch === b).map((l) => l.lowerEnergy);
+        for (let i = 1; i < e.length; i++) expect(e[i] as number).toBeGreaterThan(e[i - 1] as number);
+      }
+    }
+  });
+
+  it('GraphQL predict to jMax 200 answers data, not "cannot represent NaN"', async () => {
+    const r = await app().inject({
+      method: 'POST',
+      url: '/graphql',
+      payload: { query: '{ predict(input: {species: "HCl", jMax: 200}) { lines { j relativeIntensity } } }' },
+    });
+    expect(r.statusCode).toBe(200);
+    expect(r.json().errors).toBeUndefined();
+    expect(r.json().data.predict.lines.length).toBeGreaterThan(60);
+  });
+
+  it.each([
+    ['a position of 1e308', '/v1/fits', { species: 'HCl', lines: [{ position: 1e308 }, { position: 2906 }] }],
+    [
+      'a position of 5e-324 µm (infinite in cm⁻¹)',
+      '/v1/fits',
+      { species: 'HCl', unit: 'um', lines: [{ position: 5e-324 }, { position: 3.44 }] },
+    ],
+    [
+      'a spectrum with one y of 1e300',
+      '/v1/peaks',
+      { spectrum: { x: [1, 2, 3, 4, 5, 6, 7, 8, 9, 10], y: [0, 0, 0, 1e300, 0, 0, 0, 0, 0, 0] } },
+    ],
+    [
+      'a spectrum at the magnitude limit',
+      '/v1/peaks',
+      { spectrum: { x: [1, 2, 3, 4, 5, 6, 7, 8, 9, 10], y: [0, 0, 0, 1e12, -1e12, 1e12, 0, 0, 0, 0] } },
+    ],
+  ])('%s: a 4xx or a finite 200, never a 5xx', async (_name, url, payload) => {
+    const r = await app().inject({ method: 'POST', url, payload });
+    expect(r.statusCode, r.body.slice(0, 300)).toBeLessThan(500);
+    if (r.statusCode >= 400) expect(String(r.headers['content-type'])).toMatch(/problem\+json/);
+    else expect(r.body).not.toMatch(/NaN|Infinity/);
+  });
+
+  it('/v1/batch/* without the NDJSON content type is a 415 before any body is read', async () => {
+    for (const [type, payload] of [
+      ['application/json', '{"species":"HCl","lines":[]}'],
+      ['text/plain', 'x'],
+      ['text/csv', 'position\n2906'],
+    ] as const) {
+      const r = await post('/v1/batch/fits', type, payload);
+      expect(r.statusCode).toBe(415);
+      expect(r.json().code).toBe('UNSUPPORTED_MEDIA_TYPE');
+    }
+  });
+});

@@ -1,0 +1,30 @@
+/**
+ * Every number a use case returns must be finite: JSON has no NaN or Infinity, and a client must never read one as
+ * a result. Input inside the schema's bounds can still overflow somewhere in the arithmetic; then the request is
+ * answered 422 naming the quantity (its path in the response), never 500.
+ */
+export class NonFiniteResult extends Error {
+  constructor(
+    readonly quantity: string,
+    readonly value: string,
+  ) {
+    super(`the computed ${quantity} is ${value}: the input is accepted, but it drives this quantity out of range`);
+    this.name = 'NonFiniteResult';
+  }
+}
+
+/** Throws NonFiniteResult at the first non-finite number (depth-first, iterative); returns the value otherwise. */
+export function assertFinite<T>(value: T): T {
+  const stack: [unknown, string][] = [[value, '']];
+  while (stack.length > 0) {
+    const [v, path] = stack.pop() as [unknown, string];
+    if (typeof v === 'number') {
+      if (!Number.isFinite(v)) throw new NonFiniteResult(path || '(result)', String(v));
+    } else if (Array.isArray(v)) {
+      for (let i = v.length - 1; i >= 0; i--) stack.push([v[i], path ? `${path}/${i}` : String(i)]);
+    } else if (v !== null && typeof v === 'object') {
+      for (const [k, x] of Object.entries(v as Record<string, unknown>)) stack.push([x, path ? `${path}/${k}` : k]);
+    }
+  }
+  return value;
+}
