@@ -5,7 +5,7 @@ import { ScienceError } from '../errors.js';
  * compression as specified there): ##XYDATA=(X++(Y..Y)) in AFFN, PAC, SQZ, DIF and DUP forms with the DIF
  * Y-value check, ##XYPOINTS=(XY..XY), ##PEAK TABLE=(XY..XY), XFACTOR and YFACTOR, increasing or decreasing X.
  * Labels are matched the way the standard asks: case, spaces, dashes, slashes and underscores do not count.
- * Errors name the line.
+ * Tables may separate X and Y by a comma or, as many instruments write them, by spaces only. Errors name the line.
  */
 
 export interface JcampSpectrum {
@@ -183,6 +183,49 @@ function expand(tokens: Token[], lineNo: number, budget: number): { values: numb
   }
 }
 
+/** Values in one tuple of a table form: (XY..XY) 2, (XYW..XYW) or (XYM..XYM) 3. */
+function tupleWidth(form: string): number {
+  const m = /^\(([A-Z]+)\.\./.exec(form);
+  return m ? Math.max(2, (m[1] as string).length) : 2;
+}
+
+/**
+ * The tuples of one line of a table: "x,y x,y", "x, y; x, y" (commas inside a tuple, spaces or semicolons between),
+ * or, as many instruments write peak tables, "x y" with only spaces: then consecutive values are grouped by the
+ * width of the form.
+ */
+function tuplesOfLine(line: string, width: number, lineNo: number): string[][] {
+  const t = line.replace(/\$\$.*$/, '').trim();
+  if (t === '') return [];
+  if (t.includes(',')) {
+    return t
+      .replace(/\s*,\s*/g, ',')
+      .split(/[;\s]+/)
+      .filter((g) => g !== '')
+      .map((g) => g.split(','));
+  }
+  const groups = t.includes(';') ? t.split(';').map((g) => g.trim()) : [t];
+  const out: string[][] = [];
+  for (const g of groups.filter((x) => x !== '')) {
+    const values = g.split(/\s+/);
+    if (groups.length > 1 || values.length <= width) {
+      out.push(values);
+      continue;
+    }
+    if (values.length % width !== 0)
+      fail(lineNo, `${values.length} values cannot be read as ${width}-value tuples separated by spaces`);
+    for (let k = 0; k < values.length; k += width) out.push(values.slice(k, k + width));
+  }
+  return out;
+}
+
+/** One unit of the last decimal place of the X value that starts a data line ("4394" → 1, "4394.2" → 0.1). */
+function writtenResolution(line: string): number {
+  const m = /^\s*[+-]?\d*(?:\.(\d*))?/.exec(line);
+  const decimals = m?.[1]?.length ?? 0;
+  return 10 ** -decimals;
+}
+
 /** Bounds checked while reading, before anything is allocated for them. */
 export interface JcampLimits {
   /** Most points of a spectrum (##NPOINTS, or the pairs of ##XYPOINTS). Default 5 000 000. */
@@ -201,7 +244,8 @@ export function parseJcamp(text: string, limits: JcampLimits = {}): JcampData {
   let dataEnd = lines.length;
   for (let i = 0; i < lines.length; i++) {
     const raw = (lines[i] as string).replace(/\$\$.*$/, '');
-    const m = /^\s*##([^=]*)=(.*)$/.exec(raw);
+    // Every labelled data record is "##LABEL=value"; real files also end with a bare "##END".
+    const m = /^\s*##([^=]*)=(.*)$/.exec(raw) ?? (/^\s*##\s*END\s*$/i.test(raw) ? ['', 'END', ''] : null);
     if (!m) continue;
     const label = normaliseLabel(m[1] as string);
     const value = (m[2] as string).trim();
@@ -241,18 +285,13 @@ export function parseJcamp(text: string, limits: JcampLimits = {}): JcampData {
   if (dataLabel === 'XYPOINTS' || dataLabel === 'PEAKTABLE') {
     const pairs: { x: number; y?: number }[] = [];
     const maxPairs = dataLabel === 'PEAKTABLE' ? (limits.maxPeaks ?? maxPoints) : maxPoints;
+    const width = tupleWidth(dataForm);
     for (let i = dataStart; i < dataEnd; i++) {
-      const t = (lines[i] as string)
-        .replace(/\$\$.*$/, '')
-        .replace(/\s*,\s*/g, ',')
-        .trim();
-      if (t === '') continue;
-      for (const group of t.split(/[;\s]+/).filter((g) => g !== '')) {
-        const parts = group.split(',').filter((g) => g !== '');
-        const x = Number(parts[0]);
-        const y = parts[1] !== undefined ? Number(parts[1]) : undefined;
+      for (const fields of tuplesOfLine(lines[i] as string, width, i + 1)) {
+        const x = Number(fields[0]);
+        const y = fields[1] !== undefined && fields[1] !== '?' ? Number(fields[1]) : undefined;
         if (!Number.isFinite(x) || (y !== undefined && !Number.isFinite(y)))
-          fail(i + 1, `"${group}" is not an X,Y pair`);
+          fail(i + 1, `"${fields.join(',')}" is not an X,Y pair`);
         if (pairs.length >= maxPairs)
           fail(i + 1, `more than ${maxPairs} ${dataLabel === 'PEAKTABLE' ? 'peaks' : 'points'}`);
         pairs.push({ x: x * xFactor, ...(y !== undefined ? { y: y * yFactor } : {}) });
@@ -271,7 +310,9 @@ export function parseJcamp(text: string, limits: JcampLimits = {}): JcampData {
     };
   }
 
-  if (!dataForm.startsWith('(X++(Y..Y))')) fail(dataStart, `##XYDATA=${dataForm} is not supported (only (X++(Y..Y)))`);
+  // Some writers drop the closing parenthesis: "(X++(Y..Y)".
+  if (!/^\(X\+\+\(Y\.\.Y\)\)?$/.test(dataForm))
+    fail(dataStart, `##XYDATA=${dataForm} is not supported (only (X++(Y..Y)))`);
   const firstX = num('FIRSTX');
   const lastX = num('LASTX');
   const nPoints = num('NPOINTS');
@@ -306,7 +347,10 @@ export function parseJcamp(text: string, limits: JcampLimits = {}): JcampData {
     // X of the line must match the point it starts at (within half a step); after a Y-value check, that point is
     // the last one of the line before.
     const expectedX = firstX + (checked !== undefined ? count - 1 : count) * deltaX;
-    if (Math.abs(x - expectedX) > Math.abs(deltaX) * 0.5 + 1e-9 * Math.abs(expectedX)) {
+    // Writers round or truncate the X that starts a line to the digits they print, so the check allows half a
+    // step plus one unit of the last digit written (truncation errs by up to one unit).
+    const tolerance = Math.abs(deltaX) * 0.5 + writtenResolution(text) * Math.abs(xFactor) + 1e-9 * Math.abs(expectedX);
+    if (Math.abs(x - expectedX) > tolerance) {
       fail(i + 1, `X = ${x} does not continue the data (expected ${expectedX.toPrecision(10)} for point ${count + 1})`);
     }
     for (const v of vs) {
