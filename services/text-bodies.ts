@@ -65,6 +65,7 @@ export function textBodyToJson(
     };
   }
   const c = parseCsv(text, { maxRows: limits.maxPoints, maxLines: limits.maxLines });
-  if (c.kind === 'lines') return { ...extra, lines: c.lines.map((l) => ({ ...l })) };
+  if (c.kind === 'lines')
+    return { ...extra, ...(c.unit ? { unit: c.unit } : {}), lines: c.lines.map((l) => ({ ...l })) };
   return { ...extra, spectrum: { x: Array.from(c.x), y: Array.from(c.y), ...(c.yUnit ? { yUnit: c.yUnit } : {}) } };
 }

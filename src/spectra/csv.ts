@@ -1,4 +1,12 @@
 import { ScienceError } from '../errors.js';
+import type { PositionUnit } from '../units.js';
+
+export interface CsvLine {
+  readonly position: number;
+  readonly uncertainty?: number;
+  readonly intensity?: number;
+  readonly assignment?: { band: string; branch: 'P' | 'Q' | 'R'; j: number };
+}
 
 export type CsvData =
   | {
@@ -9,94 +17,283 @@ export type CsvData =
     }
   | {
       readonly kind: 'lines';
-      readonly lines: readonly { position: number; intensity?: number; uncertainty?: number }[];
+      readonly lines: readonly CsvLine[];
+      /** The unit of positions and uncertainties, when the header or a units row names it. */
+      readonly unit?: PositionUnit;
     };
 
-/**
- * CSV of a spectrum (x, y) or of a line list (position[, intensity[, uncertainty]]): comma, semicolon, tab or
- * white-space separated, an optional header row, "#" comment lines. A header naming "position" (or "line") means a
- * line list, one naming "absorbance" or "transmittance" a spectrum; without a header, many evenly spaced x values
- * mean a spectrum. Errors name the line.
- */
+/** Bounds checked while reading, so that an oversized body is refused at its first row too many. */
 export interface CsvLimits {
   /** Most rows of a spectrum. Default 5 000 000. */
   readonly maxRows?: number;
-  /** Most rows of a line list (a header naming positions, or one column). Default: maxRows. */
+  /** Most rows of a line list. Default: maxRows. */
   readonly maxLines?: number;
 }
 
+type Column = 'position' | 'uncertainty' | 'intensity' | 'band' | 'branch' | 'j' | 'x' | 'absorbance' | 'transmittance';
+
+/**
+ * Column names a header may use, compared after lower-casing and removing spaces, dots, underscores, dashes,
+ * quotes and a trailing unit ("position (cm-1)", "position / cm-1", "position [MHz]"). The first name is the
+ * documented one; the others are accepted synonyms.
+ */
+export const CSV_COLUMN_NAMES: Readonly<Record<Column, readonly string[]>> = {
+  position: [
+    'position',
+    'line',
+    'peak',
+    'centre',
+    'center',
+    'wavenumberline',
+    'linecenter',
+    'linecentre',
+    'nu',
+    'frequency',
+    'freq',
+  ],
+  uncertainty: ['uncertainty', 'unc', 'u', 'sigma', 'σ', 'stdev', 'sd', 'std', 'error', 'err', 'positionuncertainty'],
+  intensity: ['intensity', 'int', 'strength', 'area', 'height', 'integratedintensity'],
+  band: ['band', 'vibrationalband', 'transition', 'vv'],
+  branch: ['branch'],
+  j: ['j', 'jlower', 'jlow', "j''", 'j"', 'lowerj'],
+  x: ['wavenumber', 'wavenumbers', 'x', 'wavelength', 'xvalue'],
+  absorbance: ['absorbance', 'abs', 'y', 'signal'],
+  transmittance: ['transmittance', 'transmission', '%t'],
+};
+
+const LOOKUP = new Map<string, Column>(
+  Object.entries(CSV_COLUMN_NAMES).flatMap(([col, names]) => names.map((n) => [n, col as Column] as const)),
+);
+
+const UNIT_IN_HEADER = /\s*(?:\(([^)]*)\)|\[([^\]]*)\]|\/\s*(\S+))\s*$/;
+
+function unitOf(raw: string): PositionUnit | undefined {
+  const u = raw.trim().toLowerCase().replace(/\s/g, '').replace('µ', 'u').replace('−', '-');
+  if (u === '') return undefined;
+  if (['cm-1', 'cm^-1', '1/cm', 'cm**-1', 'wavenumbers', 'cm⁻¹'].includes(u)) return 'cm-1';
+  if (u === 'mhz') return 'MHz';
+  if (u === 'ghz') return 'GHz';
+  if (u === 'thz') return 'THz';
+  if (u === 'um' || u === 'micrometers' || u === 'microns' || u === 'micron') return 'um';
+  if (u === 'nm' || u === 'nanometers') return 'nm';
+  return undefined;
+}
+
+/** A header cell → its column (or undefined) and the unit written beside it. */
+function readHeaderCell(cell: string): { column?: Column; unit?: string } {
+  const m = UNIT_IN_HEADER.exec(cell);
+  const unit = m ? (m[1] ?? m[2] ?? m[3]) : undefined;
+  const name = (m ? cell.slice(0, m.index) : cell).toLowerCase().replace(/[\s._\-"`]/g, '');
+  const column = LOOKUP.get(name) ?? LOOKUP.get(cell.toLowerCase().replace(/\s/g, ''));
+  return { ...(column ? { column } : {}), ...(unit !== undefined ? { unit } : {}) };
+}
+
+function fail(line: number, message: string, details: Record<string, unknown> = {}): never {
+  throw new ScienceError('INPUT_INVALID', `CSV line ${line}: ${message}`, { line, ...details });
+}
+
+/** Split a row on the delimiter, honouring double-quoted cells; trailing empty cells (a trailing delimiter) go. */
+function splitRow(raw: string, delimiter: string): string[] {
+  const cells: string[] = [];
+  if (delimiter === ' ') cells.push(...raw.split(/\s+/));
+  else {
+    let cur = '';
+    let quoted = false;
+    for (let i = 0; i < raw.length; i++) {
+      const ch = raw[i] as string;
+      if (ch === '"') {
+        if (quoted && raw[i + 1] === '"') {
+          cur += '"';
+          i++;
+        } else quoted = !quoted;
+      } else if (ch === delimiter && !quoted) {
+        cells.push(cur.trim());
+        cur = '';
+      } else cur += ch;
+    }
+    cells.push(cur.trim());
+  }
+  while (cells.length > 1 && cells[cells.length - 1] === '') cells.pop();
+  return cells;
+}
+
+/** A number cell; with ";" or tab delimiters a decimal comma is read as a decimal point ("2143,27"). */
+function numberOf(cell: string, decimalComma: boolean): number {
+  const c = decimalComma && /^[+-]?\d*,\d+(?:[eE][+-]?\d+)?$/.test(cell) ? cell.replace(',', '.') : cell;
+  if (c === '') return Number.NaN;
+  return Number(c);
+}
+
+/**
+ * CSV of a line list or of a spectrum.
+ *
+ * A line list is read by the names in its header row, in any order: `position`, `uncertainty`, `intensity`,
+ * `band`, `branch`, `j` (synonyms in CSV_COLUMN_NAMES; a unit may follow the name: "position (MHz)"). A row of
+ * units may follow the header. `band`, `branch` and `j` together give the line's assignment. Without a header the
+ * columns are position[, intensity[, uncertainty]].
+ *
+ * A spectrum has two columns, x and y, with a header naming absorbance or transmittance, or without a header many
+ * evenly spaced x values.
+ *
+ * Delimiters: ";", tab, "," or spaces, chosen from the first row; with ";" or tab, decimal commas are accepted.
+ * Trailing delimiters, blank lines and "#" comment lines are ignored. Errors name the line.
+ */
 export function parseCsv(text: string, limits: CsvLimits = {}): CsvData {
   const maxRows = limits.maxRows ?? 5_000_000;
   const maxLines = limits.maxLines ?? maxRows;
   const rows = text.split(/\r\n|\r|\n/);
-  let header: string[] | undefined;
-  const data: { line: number; cells: number[] }[] = [];
-  let delimiter: RegExp | undefined;
+  let delimiter: string | undefined;
+  let header: { line: number; cells: string[] } | undefined;
+  let unitsRow: string[] | undefined;
+  const data: { line: number; cells: string[] }[] = [];
+  let limit = maxRows;
   for (let i = 0; i < rows.length; i++) {
     const raw = (rows[i] as string).trim();
     if (raw === '' || raw.startsWith('#')) continue;
-    delimiter ??= raw.includes(';') ? /;/ : raw.includes(',') ? /,/ : raw.includes('\t') ? /\t/ : /\s+/;
-    const cells = raw.split(delimiter).map((c) => c.trim().replace(/^"|"$/g, ''));
-    const nums = cells.map((c) => (c === '' ? Number.NaN : Number(c)));
-    if (nums.some((v) => !Number.isFinite(v))) {
-      if (data.length === 0 && header === undefined) {
-        header = cells.map((c) => c.toLowerCase());
+    delimiter ??= raw.includes(';') ? ';' : raw.includes('\t') ? '\t' : raw.includes(',') ? ',' : ' ';
+    const cells = splitRow(raw, delimiter);
+    const decimalComma = delimiter !== ',';
+    const numeric = cells.filter((c) => c !== '' && Number.isFinite(numberOf(c, decimalComma))).length;
+    if (data.length === 0 && numeric === 0) {
+      if (header === undefined) {
+        header = { line: i + 1, cells };
+        if (isLineListHeader(cells)) limit = maxLines;
         continue;
       }
-      throw new ScienceError('INPUT_INVALID', `CSV line ${i + 1}: "${raw.slice(0, 60)}" is not a row of numbers`, {
-        line: i + 1,
+      if (unitsRow === undefined) {
+        unitsRow = cells;
+        continue;
+      }
+    }
+    if (header === undefined && data.length === 0 && cells.length === 1) limit = maxLines;
+    if (data.length >= limit) fail(i + 1, `more than ${limit} rows`, { limit });
+    data.push({ line: i + 1, cells });
+  }
+  if (data.length === 0) throw new ScienceError('INPUT_INVALID', 'the CSV holds no rows of data', {});
+  const decimalComma = delimiter !== ',';
+
+  const columns = header?.cells.map(readHeaderCell);
+  const has = (c: Column) => columns?.some((x) => x.column === c) ?? false;
+  const firstColumn = () => data.map((r) => numberOf(r.cells[0] ?? '', decimalComma));
+  const lineList =
+    header !== undefined && isLineListHeader(header.cells)
+      ? true
+      : has('absorbance') || has('transmittance')
+        ? false
+        : (data[0]?.cells.length ?? 0) === 1 || !looksUniform(firstColumn());
+  if (!lineList) {
+    const yUnit = has('transmittance') ? 'transmittance' : has('absorbance') ? 'absorbance' : undefined;
+    return readSpectrum(data, decimalComma, yUnit);
+  }
+  return readLineList(data, decimalComma, header?.line ?? 1, columns, unitsRow);
+}
+
+function isLineListHeader(cells: readonly string[]): boolean {
+  const cols = cells.map((c) => readHeaderCell(c).column);
+  return cols.some(
+    (c) => c === 'position' || c === 'uncertainty' || c === 'intensity' || c === 'band' || c === 'branch' || c === 'j',
+  );
+}
+
+/** Many evenly spaced x values (within 5 % of the mean step): a spectrum rather than a line list. */
+function looksUniform(xs: readonly number[]): boolean {
+  if (xs.length < 20) return false;
+  const d = xs.slice(1).map((x, i) => x - (xs[i] as number));
+  const mean = d.reduce((s, v) => s + v, 0) / d.length;
+  return mean !== 0 && d.every((v) => Math.abs(v - mean) <= 0.05 * Math.abs(mean));
+}
+
+function readSpectrum(
+  data: readonly { line: number; cells: string[] }[],
+  decimalComma: boolean,
+  yUnit: 'absorbance' | 'transmittance' | undefined,
+): CsvData {
+  const x = new Float64Array(data.length);
+  const y = new Float64Array(data.length);
+  data.forEach((r, k) => {
+    if (r.cells.length < 2) fail(r.line, 'a spectrum needs two columns, x and y');
+    const a = numberOf(r.cells[0] as string, decimalComma);
+    const b = numberOf(r.cells[1] as string, decimalComma);
+    if (!Number.isFinite(a) || !Number.isFinite(b))
+      fail(r.line, `"${r.cells.join(',').slice(0, 60)}" is not a row of numbers`);
+    x[k] = a;
+    y[k] = b;
+  });
+  return { kind: 'spectrum', x, y, ...(yUnit ? { yUnit } : {}) };
+}
+
+function readLineList(
+  data: readonly { line: number; cells: string[] }[],
+  decimalComma: boolean,
+  headerLine: number,
+  columns: readonly { column?: Column; unit?: string }[] | undefined,
+  unitsRow: readonly string[] | undefined,
+): CsvData {
+  // Where each field is: by header name, or position[, intensity[, uncertainty]] without a header.
+  const at: Partial<Record<Column, number>> = {};
+  if (columns) {
+    columns.forEach((c, k) => {
+      const col = c.column === 'x' ? 'position' : c.column;
+      if (col === undefined || col === 'absorbance' || col === 'transmittance') return;
+      if (at[col] !== undefined) fail(headerLine, `two columns are named as "${col}"`);
+      at[col] = k;
+    });
+    if (at.position === undefined) {
+      throw new ScienceError('INPUT_INVALID', 'the CSV header names no position column (position, line, peak, …)', {
+        header: columns.map((c) => c.column ?? null),
       });
     }
-    // Counted while reading, so that an oversized body is refused at its first row too many.
-    const lineList = /position|line/.test(header?.join(' ') ?? '') || nums.length === 1;
-    const limit = lineList ? maxLines : maxRows;
-    if (data.length >= limit)
-      throw new ScienceError('INPUT_INVALID', `CSV line ${i + 1}: more than ${limit} rows of numbers`, {
-        line: i + 1,
-        limit,
-      });
-    data.push({ line: i + 1, cells: nums });
+  } else {
+    at.position = 0;
+    at.intensity = 1;
+    at.uncertainty = 2;
   }
-  if (data.length === 0) throw new ScienceError('INPUT_INVALID', 'the CSV holds no rows of numbers', {});
-  const width = (data[0] as { cells: number[] }).cells.length;
-  for (const r of data) {
-    if (r.cells.length !== width) {
-      throw new ScienceError(
-        'INPUT_INVALID',
-        `CSV line ${r.line}: ${r.cells.length} columns where the first row has ${width}`,
-        { line: r.line },
-      );
-    }
+  const p = at.position as number;
+  const rawUnit = columns?.[p]?.unit ?? unitsRow?.[p];
+  const unit = rawUnit !== undefined && rawUnit.trim() !== '' ? unitOf(rawUnit) : undefined;
+  if (rawUnit !== undefined && rawUnit.trim() !== '' && unit === undefined) {
+    throw new ScienceError('UNIT_INVALID', `the position unit "${rawUnit}" is not one of cm-1, MHz, GHz, THz, um, nm`, {
+      unit: rawUnit,
+    });
   }
-  const h = header?.join(' ') ?? '';
-  const xs = data.map((r) => r.cells[0] as number);
-  const looksLikeLines = /position|line|wavenumber_line/.test(h) || width === 1;
-  const looksLikeSpectrum = /absorb|transm|signal|intensity_spectrum/.test(h);
-  const uniform = (() => {
-    if (xs.length < 20) return false;
-    const d = xs.slice(1).map((x, i) => x - (xs[i] as number));
-    const mean = d.reduce((s, v) => s + v, 0) / d.length;
-    return mean !== 0 && d.every((v) => Math.abs(v - mean) <= 0.05 * Math.abs(mean));
-  })();
-  if (!looksLikeLines && (looksLikeSpectrum || uniform)) {
-    if (width < 2) throw new ScienceError('INPUT_INVALID', 'a spectrum needs two columns, x and y', {});
-    return {
-      kind: 'spectrum',
-      x: Float64Array.from(xs),
-      y: Float64Array.from(data, (r) => r.cells[1] as number),
-      ...(/transm/.test(h)
-        ? { yUnit: 'transmittance' as const }
-        : /absorb/.test(h)
-          ? { yUnit: 'absorbance' as const }
-          : {}),
+  const assigned = at.band !== undefined || at.branch !== undefined || at.j !== undefined;
+  if (assigned && (at.band === undefined || at.branch === undefined || at.j === undefined))
+    throw new ScienceError('INPUT_INVALID', 'an assignment needs all three columns: band, branch and j', {});
+
+  const lines = data.map((r): CsvLine => {
+    const cell = (k: number | undefined) => (k === undefined ? '' : (r.cells[k] ?? ''));
+    const num = (name: Column, required: boolean): number | undefined => {
+      const c = cell(at[name]);
+      if (c === '') {
+        if (required) fail(r.line, `the ${name} is missing`);
+        return undefined;
+      }
+      const v = numberOf(c, decimalComma);
+      if (!Number.isFinite(v)) fail(r.line, `${name} "${c.slice(0, 30)}" is not a number`);
+      return v;
     };
-  }
-  return {
-    kind: 'lines',
-    lines: data.map((r) => ({
-      position: r.cells[0] as number,
-      ...(width >= 2 ? { intensity: r.cells[1] as number } : {}),
-      ...(width >= 3 ? { uncertainty: r.cells[2] as number } : {}),
-    })),
-  };
+    const position = num('position', true) as number;
+    const uncertainty = num('uncertainty', false);
+    const intensity = num('intensity', false);
+    let assignment: CsvLine['assignment'];
+    if (assigned) {
+      const band = cell(at.band).replace(/[–−]/g, '-');
+      const branch = cell(at.branch).toUpperCase();
+      const j = cell(at.j);
+      if (band !== '' || branch !== '' || j !== '') {
+        if (!/^\d{1,2}-\d{1,2}$/.test(band)) fail(r.line, `band "${band}" is not "v'-v''" (e.g. 1-0)`);
+        if (branch !== 'P' && branch !== 'Q' && branch !== 'R') fail(r.line, `branch "${branch}" is not P, Q or R`);
+        const jv = Number(j);
+        if (!Number.isInteger(jv) || jv < 0) fail(r.line, `j "${j}" is not a whole number ≥ 0`);
+        assignment = { band, branch, j: jv };
+      }
+    }
+    return {
+      position,
+      ...(uncertainty !== undefined ? { uncertainty } : {}),
+      ...(intensity !== undefined ? { intensity } : {}),
+      ...(assignment ? { assignment } : {}),
+    };
+  });
+  return { kind: 'lines', lines, ...(unit ? { unit } : {}) };
 }
