@@ -9,12 +9,14 @@ import {
 } from 'fastify-type-provider-zod';
 import { type Config, DEFAULT_CONFIG } from './config.js';
 import { createMetrics, type Metrics } from './metrics.js';
-import { openapiInfo } from './openapi-info.js';
+import { finishDocument } from './openapi/finish.js';
+import { openapiInfo, PACKAGE_VERSION } from './openapi-info.js';
 import { pageRoute } from './page/route.js';
 import { keyRing, requireApiKey } from './plugins/api-keys.js';
 import { parseBodies } from './plugins/body-parsers.js';
 import { graphqlRoutes } from './plugins/graphql.js';
 import { openRoutes } from './plugins/probes.js';
+import { docsPage } from './plugins/docs.js';
 import { answerWithProblems } from './plugins/problems.js';
 import { limitRate } from './plugins/rate-limit.js';
 import { secureHeaders } from './plugins/security.js';
@@ -117,9 +119,11 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
       }
       return jsonSchemaTransform(d);
     },
-    transformObject: jsonSchemaTransformObject,
+    // What the zod schemas cannot say (text bodies, protections, probes, examples): services/openapi/finish.ts.
+    transformObject: (d) => finishDocument(jsonSchemaTransformObject(d), PACKAGE_VERSION),
   });
 
+  await docsPage(app);
   openRoutes(app);
   pageRoute(app, config);
 

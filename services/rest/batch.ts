@@ -48,6 +48,7 @@ export const batchRoutes =
             );
           },
           schema: {
+            operationId: path === 'fits' ? 'fitBatch' : 'checkBatch',
             tags: ['batch'],
             summary: `Many ${path} as NDJSON`,
             description: `Send ${NDJSON}: one /v1/${path} request body a line. The answer streams one line per request, in order: {"index", "status", "result"} or {"index", "status", "problem"}. Each line may be at most BODY_LIMIT bytes.`,

@@ -17,6 +17,7 @@ export const checkRoutes =
       {
         bodyLimit: config.bodyLimit,
         schema: {
+          operationId: 'checkLines',
           tags: ['checks'],
           summary: 'QA verdict on a line list or spectrum',
           description:
@@ -39,6 +40,7 @@ export const checkRoutes =
       {
         bodyLimit: config.smallBodyLimit,
         schema: {
+          operationId: 'predictLines',
           tags: ['checks'],
           summary: 'Predicted lines with propagated uncertainties',
           description:

@@ -17,6 +17,7 @@ export const fitRoutes =
       {
         bodyLimit: config.bodyLimit,
         schema: {
+          operationId: 'fitLines',
           tags: ['fits'],
           summary: 'Fit a line list or a spectrum',
           description:

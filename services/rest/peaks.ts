@@ -15,6 +15,7 @@ export const peakRoutes =
       {
         bodyLimit: config.bodyLimit,
         schema: {
+          operationId: 'findPeaks',
           tags: ['spectra'],
           summary: 'Peaks of a spectrum',
           description:

@@ -17,6 +17,7 @@ export const reportRoutes =
       {
         bodyLimit: config.bodyLimit,
         schema: {
+          operationId: 'renderReport',
           tags: ['checks'],
           summary: 'A readable QA report',
           description:

@@ -10,6 +10,7 @@ export const speciesRoutes: FastifyPluginAsyncZod = async (app) => {
     '/species',
     {
       schema: {
+        operationId: 'listSpecies',
         tags: ['species'],
         summary: 'The reference library',
         description: 'Each species with its constants, each constant with its published source and provenance.',
@@ -22,6 +23,7 @@ export const speciesRoutes: FastifyPluginAsyncZod = async (app) => {
     '/species/:formula',
     {
       schema: {
+        operationId: 'getSpecies',
         tags: ['species'],
         summary: 'One entry of the reference library',
         params: SpeciesParamsSchema,

@@ -1,7 +1,12 @@
 import { mkdirSync, writeFileSync } from 'node:fs';
-import { openapiDocument } from './openapi-document.js';
+import { openapiDocument, openapiTypes } from './openapi-document.js';
 
-/** npm run openapi: regenerate openapi/openapi.json from the zod schemas. */
+/**
+ * npm run openapi: regenerate openapi/openapi.json from the zod schemas, and openapi/types.d.ts (TypeScript types
+ * of every path, for typed clients such as openapi-fetch) from that document.
+ */
 mkdirSync('openapi', { recursive: true });
-writeFileSync('openapi/openapi.json', await openapiDocument());
-console.log('wrote openapi/openapi.json');
+const doc = await openapiDocument();
+writeFileSync('openapi/openapi.json', doc);
+writeFileSync('openapi/types.d.ts', await openapiTypes(JSON.parse(doc)));
+console.log('wrote openapi/openapi.json and openapi/types.d.ts');

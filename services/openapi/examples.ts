@@ -1,0 +1,70 @@
+/**
+ * Request examples of the OpenAPI document. The lines are the first lines of the invented "Fernhollow" CO scan
+ * (examples/fernhollow-co-cylinder-0192.json, generated from Huber & Herzberg constants with seeded noise; not a
+ * measurement). A test posts every example to the running service and expects it to be accepted.
+ */
+
+const CO_LINES = [
+  ['P', 1, 2139.4218],
+  ['P', 2, 2135.5475],
+  ['P', 3, 2131.6311],
+  ['P', 4, 2127.6854],
+  ['R', 0, 2147.0807],
+  ['R', 1, 2150.8536],
+  ['R', 2, 2154.597],
+  ['R', 3, 2158.2982],
+  ['R', 4, 2161.9697],
+] as const;
+
+export const fitExample = {
+  species: '12C16O',
+  unit: 'cm-1',
+  lines: CO_LINES.map(([branch, j, position]) => ({
+    position,
+    uncertainty: 0.002,
+    assignment: { band: '1-0', branch, j },
+  })),
+};
+
+/** The same lines without assignments: the service assigns them against the reference constants. */
+export const unassignedExample = {
+  species: '12C16O',
+  lines: CO_LINES.map(([, , position]) => ({ position, uncertainty: 0.002 })),
+};
+
+export const checkExample = { ...unassignedExample, tolerances: { calibrationOffset: 0.02 } };
+
+export const predictionExample = { species: 'H35Cl', bands: ['1-0'], jMax: 5, temperature: 296 };
+
+/** A synthetic absorbance spectrum: one Lorentzian line at 2143.0 cm-1 (FWHM 0.3) on a flat baseline, with a fixed ripple. */
+export const peaksExample = (() => {
+  const x: number[] = [];
+  const y: number[] = [];
+  for (let i = 0; i <= 80; i++) {
+    const xi = 2141 + i * 0.05;
+    const d = (xi - 2143) / 0.15;
+    x.push(Number(xi.toFixed(2)));
+    y.push(Number((0.01 + 0.5 / (1 + d * d) + 0.0005 * Math.sin(i * 2.7)).toFixed(5)));
+  }
+  return { spectrum: { x, y, xUnit: 'cm-1', yUnit: 'absorbance' } };
+})();
+
+/** The fit example as a CSV line list (read by header name). */
+export const csvExample = `position,uncertainty,band,branch,j\n${CO_LINES.map(([b, j, p]) => `${p},0.002,1-0,${b},${j}`).join('\n')}\n`;
+
+/** The fit example as a JCAMP-DX peak table (x y pairs), species given in the query string. */
+export const jcampExample = [
+  '##TITLE=Fernhollow CO cylinder 0192, 1-0 band (invented example)',
+  '##JCAMP-DX=4.24',
+  '##DATA TYPE=INFRARED PEAK TABLE',
+  '##XUNITS=1/CM',
+  '##YUNITS=ABSORBANCE',
+  `##NPOINTS=${CO_LINES.length}`,
+  '##PEAK TABLE=(XY..XY)',
+  ...CO_LINES.map(([, , p]) => `${p} 0.5`),
+  '##END=',
+  '',
+].join('\n');
+
+/** Two fit requests as NDJSON (one body a line). */
+export const ndjsonExample = `${JSON.stringify(fitExample)}\n${JSON.stringify(unassignedExample)}\n`;
