@@ -695,9 +695,15 @@ export interface components {
       threshold?: number;
     };
     PeaksRequest: {
+      /** @description accepted as in /v1/fits; not used to find peaks */
+      options?: components["schemas"]["FitOptions"];
       peakOptions?: components["schemas"]["PeakOptions"];
       sample?: components["schemas"]["Sample"];
+      /** @description accepted as in /v1/fits; not used to find peaks */
+      species?: string;
       spectrum: components["schemas"]["Spectrum"];
+      /** @description accepted as in /v1/checks; not used to find peaks */
+      tolerances?: components["schemas"]["Tolerances"];
     };
     PeaksResponse: {
       input: components["schemas"]["InputDigest"];
@@ -723,6 +729,26 @@ export interface components {
       software: components["schemas"]["Software"];
       /** @description median sampling step, cm-1 */
       step: number;
+      /** @description the unit of each peak field and of step and noise (x is converted to cm-1 whatever xUnit was sent) */
+      units: {
+        /** @constant */
+        height: "absorbance";
+        /**
+         * @description absorbance integrated over wavenumber
+         * @constant
+         */
+        intensity: "cm-1";
+        /** @constant */
+        noise: "absorbance";
+        /** @constant */
+        position: "cm-1";
+        /** @constant */
+        step: "cm-1";
+        /** @constant */
+        uncertainty: "cm-1";
+        /** @constant */
+        width: "cm-1";
+      };
     };
     PredictionRequest: {
       /**
@@ -1127,9 +1153,15 @@ export interface operations {
   checkLines: {
     parameters: {
       query?: {
-        /** @description species, for JCAMP-DX and CSV bodies */
+        /**
+         * @description species, for JCAMP-DX and CSV bodies
+         * @example 12C16O
+         */
         species?: string;
-        /** @description gas temperature in K, for JCAMP-DX and CSV bodies */
+        /**
+         * @description gas temperature in K, for JCAMP-DX and CSV bodies
+         * @example 296
+         */
         temperature?: string;
         /** @description sample.id, for JCAMP-DX and CSV bodies */
         "sample.id"?: string;
@@ -1243,9 +1275,15 @@ export interface operations {
   fitLines: {
     parameters: {
       query?: {
-        /** @description species, for JCAMP-DX and CSV bodies */
+        /**
+         * @description species, for JCAMP-DX and CSV bodies
+         * @example 12C16O
+         */
         species?: string;
-        /** @description gas temperature in K, for JCAMP-DX and CSV bodies */
+        /**
+         * @description gas temperature in K, for JCAMP-DX and CSV bodies
+         * @example 296
+         */
         temperature?: string;
         /** @description sample.id, for JCAMP-DX and CSV bodies */
         "sample.id"?: string;
@@ -1361,56 +1399,136 @@ export interface operations {
       content: {
         "application/json": components["schemas"]["PeaksRequest"];
         /**
-         * @example ##TITLE=Fernhollow CO cylinder 0192, 1-0 band (invented example)
+         * @example ##TITLE=one absorption line (invented example)
          * ##JCAMP-DX=4.24
-         * ##DATA TYPE=INFRARED PEAK TABLE
+         * ##DATA TYPE=INFRARED SPECTRUM
          * ##XUNITS=1/CM
          * ##YUNITS=ABSORBANCE
-         * ##NPOINTS=9
-         * ##PEAK TABLE=(XY..XY)
-         * 2139.4218 0.5
-         * 2135.5475 0.5
-         * 2131.6311 0.5
-         * 2127.6854 0.5
-         * 2147.0807 0.5
-         * 2150.8536 0.5
-         * 2154.597 0.5
-         * 2158.2982 0.5
-         * 2161.9697 0.5
+         * ##FIRSTX=2141
+         * ##LASTX=2145
+         * ##NPOINTS=81
+         * ##XFACTOR=1
+         * ##YFACTOR=1
+         * ##XYDATA=(X++(Y..Y))
+         * 2141 0.0128 0.01315 0.01271 0.01375 0.01296 0.01405 0.01363 0.01412 0.01455 0.01427
+         * 2141.5 0.01543 0.0148 0.01609 0.01584 0.01662 0.01726 0.01734 0.01883 0.01863 0.02043
+         * 2142 0.02072 0.02224 0.02366 0.02477 0.02744 0.02873 0.03239 0.03498 0.03951 0.04473
+         * 2142.5 0.05097 0.06045 0.07114 0.08804 0.10968 0.14248 0.19009 0.25971 0.35659 0.4595
+         * 2143 0.51046 0.45966 0.3563 0.26007 0.18973 0.14278 0.1095 0.08806 0.07129 0.06017
+         * 2143.5 0.05133 0.04436 0.03982 0.03479 0.03243 0.02886 0.02718 0.02512 0.02328 0.02256
+         * 2144 0.02051 0.02049 0.01874 0.01858 0.01769 0.01689 0.01695 0.01561 0.01617 0.01489
+         * 2144.5 0.01519 0.01461 0.01417 0.01446 0.01339 0.01414 0.01303 0.01353 0.01304 0.01278
+         * 2145 0.01314
          * ##END=
          */
         "chemical/x-jcamp": string;
         /**
-         * @example ##TITLE=Fernhollow CO cylinder 0192, 1-0 band (invented example)
+         * @example ##TITLE=one absorption line (invented example)
          * ##JCAMP-DX=4.24
-         * ##DATA TYPE=INFRARED PEAK TABLE
+         * ##DATA TYPE=INFRARED SPECTRUM
          * ##XUNITS=1/CM
          * ##YUNITS=ABSORBANCE
-         * ##NPOINTS=9
-         * ##PEAK TABLE=(XY..XY)
-         * 2139.4218 0.5
-         * 2135.5475 0.5
-         * 2131.6311 0.5
-         * 2127.6854 0.5
-         * 2147.0807 0.5
-         * 2150.8536 0.5
-         * 2154.597 0.5
-         * 2158.2982 0.5
-         * 2161.9697 0.5
+         * ##FIRSTX=2141
+         * ##LASTX=2145
+         * ##NPOINTS=81
+         * ##XFACTOR=1
+         * ##YFACTOR=1
+         * ##XYDATA=(X++(Y..Y))
+         * 2141 0.0128 0.01315 0.01271 0.01375 0.01296 0.01405 0.01363 0.01412 0.01455 0.01427
+         * 2141.5 0.01543 0.0148 0.01609 0.01584 0.01662 0.01726 0.01734 0.01883 0.01863 0.02043
+         * 2142 0.02072 0.02224 0.02366 0.02477 0.02744 0.02873 0.03239 0.03498 0.03951 0.04473
+         * 2142.5 0.05097 0.06045 0.07114 0.08804 0.10968 0.14248 0.19009 0.25971 0.35659 0.4595
+         * 2143 0.51046 0.45966 0.3563 0.26007 0.18973 0.14278 0.1095 0.08806 0.07129 0.06017
+         * 2143.5 0.05133 0.04436 0.03982 0.03479 0.03243 0.02886 0.02718 0.02512 0.02328 0.02256
+         * 2144 0.02051 0.02049 0.01874 0.01858 0.01769 0.01689 0.01695 0.01561 0.01617 0.01489
+         * 2144.5 0.01519 0.01461 0.01417 0.01446 0.01339 0.01414 0.01303 0.01353 0.01304 0.01278
+         * 2145 0.01314
          * ##END=
          */
         "chemical/x-jcamp-dx": string;
         /**
-         * @example position,uncertainty,band,branch,j
-         * 2139.4218,0.002,1-0,P,1
-         * 2135.5475,0.002,1-0,P,2
-         * 2131.6311,0.002,1-0,P,3
-         * 2127.6854,0.002,1-0,P,4
-         * 2147.0807,0.002,1-0,R,0
-         * 2150.8536,0.002,1-0,R,1
-         * 2154.597,0.002,1-0,R,2
-         * 2158.2982,0.002,1-0,R,3
-         * 2161.9697,0.002,1-0,R,4
+         * @example wavenumber,absorbance
+         * 2141,0.0128
+         * 2141.05,0.01315
+         * 2141.1,0.01271
+         * 2141.15,0.01375
+         * 2141.2,0.01296
+         * 2141.25,0.01405
+         * 2141.3,0.01363
+         * 2141.35,0.01412
+         * 2141.4,0.01455
+         * 2141.45,0.01427
+         * 2141.5,0.01543
+         * 2141.55,0.0148
+         * 2141.6,0.01609
+         * 2141.65,0.01584
+         * 2141.7,0.01662
+         * 2141.75,0.01726
+         * 2141.8,0.01734
+         * 2141.85,0.01883
+         * 2141.9,0.01863
+         * 2141.95,0.02043
+         * 2142,0.02072
+         * 2142.05,0.02224
+         * 2142.1,0.02366
+         * 2142.15,0.02477
+         * 2142.2,0.02744
+         * 2142.25,0.02873
+         * 2142.3,0.03239
+         * 2142.35,0.03498
+         * 2142.4,0.03951
+         * 2142.45,0.04473
+         * 2142.5,0.05097
+         * 2142.55,0.06045
+         * 2142.6,0.07114
+         * 2142.65,0.08804
+         * 2142.7,0.10968
+         * 2142.75,0.14248
+         * 2142.8,0.19009
+         * 2142.85,0.25971
+         * 2142.9,0.35659
+         * 2142.95,0.4595
+         * 2143,0.51046
+         * 2143.05,0.45966
+         * 2143.1,0.3563
+         * 2143.15,0.26007
+         * 2143.2,0.18973
+         * 2143.25,0.14278
+         * 2143.3,0.1095
+         * 2143.35,0.08806
+         * 2143.4,0.07129
+         * 2143.45,0.06017
+         * 2143.5,0.05133
+         * 2143.55,0.04436
+         * 2143.6,0.03982
+         * 2143.65,0.03479
+         * 2143.7,0.03243
+         * 2143.75,0.02886
+         * 2143.8,0.02718
+         * 2143.85,0.02512
+         * 2143.9,0.02328
+         * 2143.95,0.02256
+         * 2144,0.02051
+         * 2144.05,0.02049
+         * 2144.1,0.01874
+         * 2144.15,0.01858
+         * 2144.2,0.01769
+         * 2144.25,0.01689
+         * 2144.3,0.01695
+         * 2144.35,0.01561
+         * 2144.4,0.01617
+         * 2144.45,0.01489
+         * 2144.5,0.01519
+         * 2144.55,0.01461
+         * 2144.6,0.01417
+         * 2144.65,0.01446
+         * 2144.7,0.01339
+         * 2144.75,0.01414
+         * 2144.8,0.01303
+         * 2144.85,0.01353
+         * 2144.9,0.01304
+         * 2144.95,0.01278
+         * 2145,0.01314
          */
         "text/csv": string;
       };
@@ -1507,9 +1625,15 @@ export interface operations {
   renderReport: {
     parameters: {
       query?: {
-        /** @description species, for JCAMP-DX and CSV bodies */
+        /**
+         * @description species, for JCAMP-DX and CSV bodies
+         * @example 12C16O
+         */
         species?: string;
-        /** @description gas temperature in K, for JCAMP-DX and CSV bodies */
+        /**
+         * @description gas temperature in K, for JCAMP-DX and CSV bodies
+         * @example 296
+         */
         temperature?: string;
         /** @description sample.id, for JCAMP-DX and CSV bodies */
         "sample.id"?: string;

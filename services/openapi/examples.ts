@@ -68,3 +68,29 @@ export const jcampExample = [
 
 /** Two fit requests as NDJSON (one body a line). */
 export const ndjsonExample = `${JSON.stringify(fitExample)}\n${JSON.stringify(unassignedExample)}\n`;
+
+/** The peaks example as a CSV spectrum (two columns, header naming the y quantity). */
+export const csvSpectrumExample = `wavenumber,absorbance\n${peaksExample.spectrum.x.map((x, i) => `${x},${peaksExample.spectrum.y[i]}`).join('\n')}\n`;
+
+/** The peaks example as a JCAMP-DX spectrum: ##XYDATA=(X++(Y..Y)) in AFFN, ten Y values a line. */
+export const jcampSpectrumExample = (() => {
+  const { x, y } = peaksExample.spectrum;
+  const rows: string[] = [];
+  for (let k = 0; k < y.length; k += 10) rows.push(`${x[k]} ${y.slice(k, k + 10).join(' ')}`);
+  return [
+    '##TITLE=one absorption line (invented example)',
+    '##JCAMP-DX=4.24',
+    '##DATA TYPE=INFRARED SPECTRUM',
+    '##XUNITS=1/CM',
+    '##YUNITS=ABSORBANCE',
+    `##FIRSTX=${x[0]}`,
+    `##LASTX=${x[x.length - 1]}`,
+    `##NPOINTS=${x.length}`,
+    '##XFACTOR=1',
+    '##YFACTOR=1',
+    '##XYDATA=(X++(Y..Y))',
+    ...rows,
+    '##END=',
+    '',
+  ].join('\n');
+})();

@@ -2,8 +2,10 @@ import { CSV_TYPES, JCAMP_TYPES } from '../text-bodies.js';
 import {
   checkExample,
   csvExample,
+  csvSpectrumExample,
   fitExample,
   jcampExample,
+  jcampSpectrumExample,
   ndjsonExample,
   peaksExample,
   predictionExample,
@@ -97,14 +99,27 @@ const BODIES: Record<string, { json?: Record<string, unknown>; text?: Record<str
   findPeaks: {
     json: { line: { summary: 'one absorption line', value: peaksExample } },
     text: {
-      ...Object.fromEntries(JCAMP_TYPES.map((t) => [t, jcampBody])),
-      ...Object.fromEntries(CSV_TYPES.map((t) => [t, csvBody])),
+      ...Object.fromEntries(
+        JCAMP_TYPES.map((t) => [t, text('a JCAMP-DX spectrum (XYDATA or XYPOINTS)', jcampSpectrumExample)]),
+      ),
+      ...Object.fromEntries(
+        CSV_TYPES.map((t) => [
+          t,
+          text(
+            'a two-column CSV spectrum, x and y, with a header naming absorbance or transmittance',
+            csvSpectrumExample,
+          ),
+        ]),
+      ),
     },
   },
   predictLines: { json: { hcl: { summary: 'H35Cl fundamental up to J = 5', value: predictionExample } } },
   fitBatch: { text: { [NDJSON]: text('one /v1/fits request body a line', ndjsonExample) } },
   checkBatch: { text: { [NDJSON]: text('one /v1/checks request body a line', ndjsonExample) } },
 };
+
+/** Examples of the query parameters that go with JCAMP-DX and CSV bodies. */
+const QUERY_EXAMPLES: Record<string, string> = { species: '12C16O', temperature: '296' };
 
 /** Operations that can answer 404 besides an unknown route (species not in the reference library). */
 const CAN_BE_NOT_FOUND = new Set(['getSpecies', 'predictLines']);
@@ -288,6 +303,10 @@ export function finishDocument<T>(generated: T, version: string): T {
         json.schema = { $ref: `${ref}${INPUT}` };
       }
       if (extra?.json) json.examples = extra.json;
+      for (const param of Array.isArray(op.parameters) ? op.parameters.filter(isObj) : []) {
+        const example = QUERY_EXAMPLES[String(param.name)];
+        if (param.in === 'query' && example !== undefined) param.example = example;
+      }
       if (extra?.text) op.requestBody = { ...body, required: true, content: { ...content, ...extra.text } };
       if (path.startsWith('/v1/')) {
         op.security = [{ bearerAuth: [] }, {}];

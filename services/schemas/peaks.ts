@@ -1,12 +1,20 @@
 import { z } from 'zod';
-import { PeakOptionsSchema, SpectrumSchema } from './fit.js';
+import { TolerancesSchema } from './checks.js';
+import { FitOptionsSchema, PeakOptionsSchema, SpeciesStringSchema, SpectrumSchema } from './fit.js';
 import { provenanceAndSampleFields, SampleSchema } from './provenance.js';
 
+/**
+ * The spectrum body of /v1/fits and /v1/checks is accepted unchanged: `species`, `options` and `tolerances` may be
+ * there and are not used to find peaks.
+ */
 export const PeaksRequestSchema = z
   .strictObject({
     spectrum: SpectrumSchema,
     peakOptions: PeakOptionsSchema.optional(),
     sample: SampleSchema.optional(),
+    species: SpeciesStringSchema.optional().describe('accepted as in /v1/fits; not used to find peaks'),
+    options: FitOptionsSchema.optional().describe('accepted as in /v1/fits; not used to find peaks'),
+    tolerances: TolerancesSchema.optional().describe('accepted as in /v1/checks; not used to find peaks'),
   })
   .meta({ id: 'PeaksRequest' });
 export type PeaksRequest = z.output<typeof PeaksRequestSchema>;
@@ -26,6 +34,17 @@ export const PeaksResponseSchema = z
     points: z.number().int(),
     noise: z.number().describe('absorbance noise (standard deviation)'),
     step: z.number().describe('median sampling step, cm-1'),
+    units: z
+      .object({
+        position: z.literal('cm-1'),
+        uncertainty: z.literal('cm-1'),
+        width: z.literal('cm-1'),
+        intensity: z.literal('cm-1').describe('absorbance integrated over wavenumber'),
+        height: z.literal('absorbance'),
+        step: z.literal('cm-1'),
+        noise: z.literal('absorbance'),
+      })
+      .describe('the unit of each peak field and of step and noise (x is converted to cm-1 whatever xUnit was sent)'),
     notice: z.string(),
     ...provenanceAndSampleFields,
   })

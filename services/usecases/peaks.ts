@@ -16,8 +16,19 @@ export function peaksOf(spectrum: Spectrum, options: FitRequest['peakOptions'] =
   });
 }
 
+/** The unit of every number of a peak list: x is always converted to cm⁻¹, y to absorbance. */
+export const PEAK_UNITS = {
+  position: 'cm-1',
+  uncertainty: 'cm-1',
+  width: 'cm-1',
+  intensity: 'cm-1',
+  height: 'absorbance',
+  step: 'cm-1',
+  noise: 'absorbance',
+} as const;
+
 /** POST /v1/peaks. */
 export function runPeaks(req: PeaksRequest): PeaksResponse {
   const r = peaksOf(req.spectrum, req.peakOptions);
-  return { peaks: r.peaks, points: r.points, noise: r.noise, step: r.step, notice: SAFETY_NOTICE };
+  return { peaks: r.peaks, points: r.points, noise: r.noise, step: r.step, units: PEAK_UNITS, notice: SAFETY_NOTICE };
 }

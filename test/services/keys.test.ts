@@ -92,9 +92,10 @@ describe('API keys hold whatever the spelling of the path', () => {
     const doc = (await app.inject({ method: 'GET', url: '/openapi.json' })).json() as {
       paths: Record<string, Record<string, unknown>>;
     };
-    const served = Object.entries(doc.paths).flatMap(([p, ops]) =>
-      Object.keys(ops).map((m) => `${m.toUpperCase()} ${p.replace('{formula}', 'HCl')}`),
-    );
+    // The probes, metrics and the document are open by design; every /v1 operation must be in the table.
+    const served = Object.entries(doc.paths)
+      .filter(([p]) => p.startsWith('/v1/'))
+      .flatMap(([p, ops]) => Object.keys(ops).map((m) => `${m.toUpperCase()} ${p.replace('{formula}', 'HCl')}`));
     const covered = new Set(ROUTES.map((r) => `${r.method} ${r.path}`));
     for (const op of served) expect(covered, op).toContain(op);
   });

@@ -32,6 +32,7 @@ afterAll(async () => {
 type Operation = {
   operationId?: string;
   security?: unknown[];
+  parameters?: { name: string; in: string; example?: unknown }[];
   responses: Record<string, unknown>;
   requestBody?: {
     content: Record<string, { schema?: unknown; example?: unknown; examples?: Record<string, { value: unknown }> }>;
@@ -122,7 +123,7 @@ describe('a typed client generated from the document, used against the running s
 
     const species = await client.GET('/v1/species/{formula}', { params: { path: { formula: 'CO' } } });
     expect(species.data?.formula).toBe('12C-16O');
-    const missing = await client.GET('/v1/species/{formula}', { params: { path: { formula: 'KCl' } } });
+    const missing = await client.GET('/v1/species/{formula}', { params: { path: { formula: 'ClF' } } });
     expect(missing.response.status).toBe(404);
     expect(missing.error).toMatchObject({ code: 'SPECIES_NOT_IN_LIBRARY' });
     expect(missing.response.headers.get('content-type')).toMatch(/application\/problem\+json/);
@@ -146,7 +147,15 @@ describe('a typed client generated from the document, used against the running s
             ? [media.example]
             : [];
         for (const v of values) {
-          const r = await fetch(`${base}${path}`, {
+          // Text bodies carry no species: the query string does, as its example in the document shows.
+          const query = new URLSearchParams(
+            type === 'application/json'
+              ? []
+              : (op.parameters ?? [])
+                  .filter((p) => p.in === 'query' && p.example !== undefined)
+                  .map((p) => [p.name, String(p.example)]),
+          );
+          const r = await fetch(`${base}${path}${query.size > 0 ? `?${query}` : ''}`, {
             method: method.toUpperCase(),
             headers: { 'content-type': type },
             body: typeof v === 'string' ? v : JSON.stringify(v),
@@ -169,6 +178,7 @@ describe('a typed client generated from the document, used against the running s
     for (const asset of [...html.matchAll(/(?:src|href)="\.\/([^"]+)"/g)].map((m) => m[1])) {
       const r = await fetch(`${base}/docs/${asset}`);
       expect(r.status, asset).toBe(200);
+      expect((await r.arrayBuffer()).byteLength, asset).toBeGreaterThan(0);
     }
     const json = await fetch(`${base}/docs/json`);
     expect((await json.json()).info.version).toBe(doc.info.version);
