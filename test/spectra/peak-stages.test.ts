@@ -1,0 +1,63 @@
+import { describe, expect, it } from 'vitest';
+import { aboveBaseline, firstNoiseEstimate, lowerQuantile, toAbsorbance } from '../../src/spectra/peak-baseline.js';
+import { findCandidates, groupCandidates } from '../../src/spectra/peak-candidates.js';
+import { seededNormal, seededRandom } from '../helpers/random.js';
+
+describe('peak finder stages', () => {
+  it('lowerQuantile by selection equals the sorted order statistic ⌊q(n−1)⌋ and leaves its input alone', () => {
+    const u = seededRandom(11);
+    for (const n of [1, 2, 7, 64, 1001]) {
+      const v = Float64Array.from({ length: n }, () => Math.round(u() * 50) / 7); // with ties
+      const before = Float64Array.from(v);
+      const sorted = Float64Array.from(v).sort();
+      for (const q of [0, 0.2, 0.25, 0.5, 0.9, 1]) {
+        const k = Math.min(n - 1, Math.floor(q * (n - 1)));
+        // Exact: a selected sample value (tolerance 0).
+        expect(lowerQuantile(v, q, new Float64Array(n))).toBe(sorted[k]);
+      }
+      expect(v).toEqual(before);
+    }
+  });
+
+  it('the first noise estimate lies between 0.7 and 1.0 of the σ of white noise on a sloping baseline', () => {
+    const g = seededNormal(5);
+    const n = 20_000;
+    const x = Float64Array.from({ length: n }, (_, i) => 1000 + 0.01 * i);
+    const y = Float64Array.from(x, (xi) => 0.1 + 1e-4 * (xi - 1000) + 0.002 * g());
+    const r = aboveBaseline(toAbsorbance(x, y, 'absorbance'));
+    // Taken at the 25th percentile of 32-point segment estimates (lines raise the others), so low for pure noise
+    // by design: about 0.8 σ here; the final noise comes from the fit residuals. Stated band 0.7–1.0.
+    const ratio = firstNoiseEstimate(r) / 0.002;
+    expect(ratio).toBeGreaterThan(0.7);
+    expect(ratio).toBeLessThan(1.0);
+  });
+
+  it('transmittance in percent becomes absorbance and x is turned to increasing order', () => {
+    const x = [7, 6, 5, 4, 3, 2, 1];
+    const t = [100, 50, 10, 100, 100, 100, 100];
+    const s = toAbsorbance(x, t, 'transmittance');
+    expect(Array.from(s.x)).toEqual([1, 2, 3, 4, 5, 6, 7]);
+    // −log10(0.5) = 0.30103 (exact to 5 digits); point x = 6 came second.
+    expect(s.absorbance[5]).toBeCloseTo(0.30103, 5);
+    expect(s.absorbance[4]).toBeCloseTo(1, 12);
+    expect(s.step).toBe(1);
+  });
+
+  it('candidates: one per line top, overlapping lines grouped, isolated lines alone', () => {
+    const n = 2000;
+    const r = new Float64Array(n);
+    const line = (c: number, w: number, h: number) => {
+      for (let i = 0; i < n; i++) r[i] = (r[i] as number) + h * Math.exp(-4 * Math.LN2 * ((i - c) / w) ** 2);
+    };
+    line(300, 10, 1);
+    line(312, 10, 0.6); // 1.2 FWHM from the first: a blend
+    line(1200, 10, 0.8);
+    const c = findCandidates(r, 0.1);
+    // The blend pulls the weaker top one sample towards the stronger line.
+    expect(c.index).toEqual([300, 311, 1200]);
+    const groups = groupCandidates(c, n);
+    expect(groups.map((g) => g.members)).toEqual([[300, 311], [1200]]);
+    // The first window stops half-way to the isolated line's candidate at the latest.
+    expect(groups[0]?.hi).toBeLessThanOrEqual(756);
+  });
+});
