@@ -13,6 +13,7 @@ import { runFit } from '../services/usecases/fit.js';
 import { runPeaks } from '../services/usecases/peaks.js';
 import { runPrediction } from '../services/usecases/predict.js';
 import { ScienceError } from '../src/errors.js';
+import { potentialCommand } from './potential.js';
 
 /**
  * The command-line face: the same use cases as the HTTP service, in-process, on local JSON, CSV and JCAMP-DX
@@ -32,6 +33,7 @@ const USAGE = `branchwise — molecular constants from line lists and spectra of
   branchwise check <file...>   [--species S] [--tolerances profile.json] [--temperature K] [--format table|json]
   branchwise peaks <file>      [--format table|json]
   branchwise predict --species S [--bands 1-0,2-0] [--jmax N] [--temperature K] [--unit U] [--format table|json]
+  branchwise potential (--species S | <file>) --vmax N [--format table|json]
 
 Files: .json (the body of the matching HTTP endpoint), .csv (a spectrum or a line list), .jdx/.dx/.jcamp (JCAMP-DX).
 Exit status: 0 pass, 1 warn, 2 fail (check); 3 bad input; 4 usage.
@@ -111,6 +113,7 @@ export function main(argv: readonly string[], io: Io): number {
         tolerances: { type: 'string' },
         bands: { type: 'string' },
         jmax: { type: 'string' },
+        vmax: { type: 'string' },
         format: { type: 'string', default: 'table' },
         help: { type: 'boolean', short: 'h' },
       },
@@ -147,6 +150,11 @@ export function main(argv: readonly string[], io: Io): number {
           `${table([['band', 'line', `position (${req.unit})`, 'uncertainty', 'rel. intensity'], ...r.lines.map((l) => [l.band, `${l.branch}(${l.j})`, fmt(l.position.value, 10), fmt(l.position.uncertainty, 2), fmt(l.relativeIntensity, 3)])])}\n`,
         );
       }
+      return EXIT.pass;
+    }
+    if (command === 'potential') {
+      const r = potentialCommand(v, files);
+      io.out(format === 'json' ? `${JSON.stringify(r.json, null, 2)}\n` : r.text);
       return EXIT.pass;
     }
     if (!['fit', 'check', 'peaks'].includes(command)) {

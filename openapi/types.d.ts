@@ -65,6 +65,13 @@ export interface paths {
      */
     post: operations["findPeaks"];
   };
+  "/v1/potentials": {
+    /**
+     * Potential curve: RKR turning points and the Morse curve
+     * @description First-order RKR turning points r₋, r₊ of each level up to vMax, with uncertainties propagated from the covariance of the constants, the Morse curve from ω_e, ω_e x_e and B_e, points of both curves for plotting, and a Numerov check of the RKR curve. The constants come from the body (as for /v1/predictions; default the reference library) or from a fit of a line list or spectrum (the body of /v1/fits). Levels where G(v) stops increasing, or far beyond the levels the data reached, are refused (422).
+     */
+    post: operations["potentialCurves"];
+  };
   "/v1/predictions": {
     /**
      * Predicted lines with propagated uncertainties
@@ -749,6 +756,113 @@ export interface components {
         /** @constant */
         width: "cm-1";
       };
+    };
+    PotentialRequest: {
+      /** @description equilibrium constants in cm-1 (default: the reference library) */
+      constants?: {
+        covariance?: {
+          matrix: number[][];
+          names: ("omega_e" | "omega_e_x_e" | "omega_e_y_e" | "omega_e_z_e" | "B_e" | "alpha_e" | "gamma_e" | "D_e" | "beta_e" | "H_e")[];
+        };
+        values: {
+          [key: string]: {
+            uncertainty?: number;
+            value: number;
+          };
+        };
+      };
+      lines?: components["schemas"]["Line"][];
+      options?: components["schemas"]["FitOptions"];
+      peakOptions?: components["schemas"]["PeakOptions"];
+      sample?: components["schemas"]["Sample"];
+      /** @description element symbols in order, each optionally preceded by its mass number: "12C16O", "H35Cl", "1H-79Br" */
+      species?: string;
+      /** @description a spectrum instead of lines: peaks are found, then assigned and fitted */
+      spectrum?: components["schemas"]["Spectrum"];
+      /**
+       * @description unit of line positions and uncertainties (default cm-1)
+       * @enum {string}
+       */
+      unit?: "cm-1" | "MHz" | "GHz" | "THz" | "um" | "nm";
+      /** @description with constants: the highest vibrational level the data behind them reached (vMax above it is warned about, above 2·vData + 3 refused) */
+      vData?: number;
+      /**
+       * @description solve the radial equation on the RKR curve (Numerov) and report the differences
+       * @default true
+       */
+      verify?: boolean;
+      /** @description highest vibrational level to give turning points for */
+      vMax: number;
+    };
+    PotentialResponse: {
+      curves: {
+        /** @description the Morse curve over the same range */
+        morse: {
+            /** @description cm-1 above the minimum */
+            energy: number;
+            /** @description Å */
+            r: number;
+          }[];
+        /** @description turning points every quarter level, in order of r */
+        rkr: {
+            /** @description cm-1 above the minimum */
+            energy: number;
+            /** @description Å */
+            r: number;
+          }[];
+      };
+      /** @description ħ²/2μ in cm-1 Å² (CODATA 2018, AME2020 masses) */
+      hbar2Over2mu: number;
+      levels: {
+          /** @description B_v from the constants, cm-1 */
+          B: components["schemas"]["Quantity"];
+          /** @description G_v above the potential minimum, cm-1 */
+          energy: components["schemas"]["Quantity"];
+          /** @description outer turning point, Å */
+          rMax: components["schemas"]["Quantity"];
+          /** @description inner turning point, Å */
+          rMin: components["schemas"]["Quantity"];
+          v: number;
+        }[];
+      morse?: {
+        /** @description range parameter √(ω_e x_e / (ħ²/2μ)), Å-1 */
+        a: components["schemas"]["Quantity"];
+        /** @description well depth ω_e²/(4ω_e x_e), cm-1 */
+        D_e: components["schemas"]["Quantity"];
+        /** @description √((ħ²/2μ)/B_e), Å */
+        r_e: components["schemas"]["Quantity"];
+      };
+      notice: string;
+      reducedMass: components["schemas"]["Quantity"];
+      /** @enum {string} */
+      source: "library" | "caller" | "fit";
+      species: string;
+      /** @description highest vibrational level the data reached, when known */
+      vData?: number;
+      verification?: {
+        grid: {
+          from: number;
+          points: number;
+          step: number;
+          to: number;
+        };
+        levels: {
+            B: number;
+            energy: number;
+            /** @description (E_v − E_0) − (G_v − G_0), cm-1 */
+            intervalError: number;
+            rotationalRelativeError: number;
+            v: number;
+          }[];
+        /** @description highest v of the RKR points the radial equation was solved on */
+        vTop: number;
+        worstIntervalError: number;
+        worstRotationalRelativeError: number;
+        /** @description E_0(Numerov) − G(0), cm-1: the constant first-order RKR leaves out */
+        zeroPointShift: number;
+      };
+      vMax: number;
+      warnings: components["schemas"]["Warning"][];
     };
     PredictionRequest: {
       /**
@@ -1547,6 +1661,59 @@ export interface operations {
         };
       };
       401: components["responses"]["Unauthorized"];
+      405: components["responses"]["MethodNotAllowed"];
+      /** @description body larger than the configured limit */
+      413: {
+        content: {
+          "application/problem+json": components["schemas"]["Problem"];
+        };
+      };
+      /** @description unsupported media type */
+      415: {
+        content: {
+          "application/problem+json": components["schemas"]["Problem"];
+        };
+      };
+      /** @description well formed, but refused by the science (impossible assignment, too few lines, rank deficiency …) */
+      422: {
+        content: {
+          "application/problem+json": components["schemas"]["Problem"];
+        };
+      };
+      429: components["responses"]["TooManyRequests"];
+      503: components["responses"]["Overloaded"];
+    };
+  };
+  /**
+   * Potential curve: RKR turning points and the Morse curve
+   * @description First-order RKR turning points r₋, r₊ of each level up to vMax, with uncertainties propagated from the covariance of the constants, the Morse curve from ω_e, ω_e x_e and B_e, points of both curves for plotting, and a Numerov check of the RKR curve. The constants come from the body (as for /v1/predictions; default the reference library) or from a fit of a line list or spectrum (the body of /v1/fits). Levels where G(v) stops increasing, or far beyond the levels the data reached, are refused (422).
+   */
+  potentialCurves: {
+    requestBody: {
+      content: {
+        "application/json": components["schemas"]["PotentialRequest"];
+      };
+    };
+    responses: {
+      /** @description the result */
+      200: {
+        content: {
+          "application/json": components["schemas"]["PotentialResponse"];
+        };
+      };
+      /** @description malformed request: invalid JSON, schema violations (with paths), forbidden properties */
+      400: {
+        content: {
+          "application/problem+json": components["schemas"]["Problem"];
+        };
+      };
+      401: components["responses"]["Unauthorized"];
+      /** @description species not in the reference library and no constants sent */
+      404: {
+        content: {
+          "application/problem+json": components["schemas"]["Problem"];
+        };
+      };
       405: components["responses"]["MethodNotAllowed"];
       /** @description body larger than the configured limit */
       413: {

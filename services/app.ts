@@ -27,6 +27,7 @@ import { batchRoutes } from './rest/batch.js';
 import { checkRoutes } from './rest/checks.js';
 import { fitRoutes } from './rest/fits.js';
 import { peakRoutes } from './rest/peaks.js';
+import { potentialRoutes } from './rest/potentials.js';
 import { reportRoutes } from './rest/reports.js';
 import { speciesRoutes } from './rest/species.js';
 
@@ -144,6 +145,7 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
         await v1.register(reportRoutes(config));
         await v1.register(batchRoutes(config));
         await v1.register(speciesRoutes);
+        await v1.register(potentialRoutes(config));
       },
       { prefix: '/v1' },
     );

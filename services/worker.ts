@@ -3,11 +3,13 @@ import type { Provenance } from './provenance.js';
 import type { CheckRequest } from './schemas/checks.js';
 import type { FitRequest } from './schemas/fit.js';
 import type { PeaksRequest } from './schemas/peaks.js';
+import type { PotentialRequest } from './schemas/potentials.js';
 import type { PredictionRequest } from './schemas/predictions.js';
 import { runCheck } from './usecases/check.js';
 import { assertFinite, NonFiniteResult } from './usecases/finite.js';
 import { runFit } from './usecases/fit.js';
 import { runPeaks } from './usecases/peaks.js';
+import { runPotential } from './usecases/potential.js';
 import { runPrediction } from './usecases/predict.js';
 import { runReport } from './usecases/report.js';
 
@@ -17,7 +19,8 @@ export type Job =
   | { kind: 'check'; body: CheckRequest }
   | { kind: 'report'; body: CheckRequest; provenance?: Provenance }
   | { kind: 'peaks'; body: PeaksRequest }
-  | { kind: 'predict'; body: PredictionRequest };
+  | { kind: 'predict'; body: PredictionRequest }
+  | { kind: 'potential'; body: PotentialRequest };
 
 export type JobResult =
   | { ok: true; value: unknown }
@@ -36,6 +39,8 @@ function run(job: Job): unknown {
       return assertFinite(runPeaks(job.body));
     case 'predict':
       return assertFinite(runPrediction(job.body));
+    case 'potential':
+      return assertFinite(runPotential(job.body));
   }
 }
 

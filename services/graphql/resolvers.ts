@@ -9,6 +9,7 @@ import { jobSize } from '../pool.js';
 import { checkRequestSchema } from '../schemas/checks.js';
 import { fitRequestSchema } from '../schemas/fit.js';
 import { PeaksRequestSchema } from '../schemas/peaks.js';
+import { potentialRequestSchema } from '../schemas/potentials.js';
 import { PredictionRequestSchema } from '../schemas/predictions.js';
 import { NonFiniteResult } from '../usecases/finite.js';
 import { getSpecies, listSpecies } from '../usecases/species.js';
@@ -58,6 +59,7 @@ async function guarded<T>(f: () => T | Promise<T>): Promise<T> {
 
 export function resolvers(config: Config, app: FastifyInstance) {
   const schema = fitRequestSchema(config.maxLines);
+  const potentialSchema = potentialRequestSchema(config.maxLines);
   const checkSchema = checkRequestSchema(config.maxLines);
   return {
     JSON: JSONScalar,
@@ -91,6 +93,12 @@ export function resolvers(config: Config, app: FastifyInstance) {
         if (!parsed.success) badInput(parsed.error);
         const body = parsed.data;
         return guarded(() => app.pool.run({ kind: 'predict', body }, 1));
+      },
+      potential: (_: unknown, args: { input: unknown }) => {
+        const parsed = potentialSchema.safeParse(dropNulls(args.input));
+        if (!parsed.success) badInput(parsed.error);
+        const body = parsed.data;
+        return guarded(() => app.pool.run({ kind: 'potential', body }, Math.max(jobSize(body), 1)));
       },
       species: (_: unknown, args: { formula?: string | null }) =>
         guarded(() => (args.formula ? [getSpecies(args.formula)] : listSpecies().species)),

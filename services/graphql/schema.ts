@@ -314,6 +314,62 @@ export const typeDefs = /* GraphQL */ `
     notice: String!
   }
 
+  input PotentialInput {
+    "with constants (or the reference library): the species; with lines or a spectrum: optional, as for fit"
+    species: String
+    "{ values: { omega_e: { value, uncertainty }, … }, covariance: { names, matrix } }, as for predict"
+    constants: JSON
+    vMax: Int!
+    "highest vibrational level the data behind the constants reached"
+    vData: Int
+    verify: Boolean
+    unit: String
+    lines: [LineInput!]
+    spectrum: SpectrumInput
+    peakOptions: PeakOptionsInput
+    options: FitOptionsInput
+  }
+
+  type PotentialLevel {
+    v: Int!
+    energy: Quantity!
+    rMin: Quantity!
+    rMax: Quantity!
+    B: Quantity!
+  }
+
+  type MorseParameters {
+    D_e: Quantity!
+    a: Quantity!
+    r_e: Quantity!
+  }
+
+  type CurvePoint {
+    r: Float!
+    energy: Float!
+  }
+
+  type PotentialCurves {
+    rkr: [CurvePoint!]!
+    morse: [CurvePoint!]!
+  }
+
+  type PotentialResult {
+    species: String!
+    source: String!
+    reducedMass: Quantity!
+    hbar2Over2mu: Float!
+    vMax: Int!
+    vData: Int
+    levels: [PotentialLevel!]!
+    morse: MorseParameters
+    curves: PotentialCurves!
+    "the Numerov check, with the REST shape"
+    verification: JSON
+    warnings: [Warning!]!
+    notice: String!
+  }
+
   type Query {
     "QA checks of a line list against a tolerance profile (the same use case as POST /v1/checks)."
     check(input: FitInput!, tolerances: JSON): CheckResult!
@@ -321,6 +377,8 @@ export const typeDefs = /* GraphQL */ `
     peaks(spectrum: SpectrumInput!, peakOptions: PeakOptionsInput): PeaksResult!
     "Predicted lines with propagated uncertainties (POST /v1/predictions)."
     predict(input: PredictionInput!): PredictionResult!
+    "RKR turning points and the Morse curve (POST /v1/potentials)."
+    potential(input: PotentialInput!): PotentialResult!
     "Fit an assigned line list (the same use case as POST /v1/fits)."
     fit(input: FitInput!): FitResult!
     "The reference library, or one entry of it (GET /v1/species, GET /v1/species/{formula})."

@@ -269,11 +269,40 @@ export function potentialCurves(input: PotentialInput): PotentialResult {
       });
     }
   }
+  const finite = (q: Quantity) => Number.isFinite(q.value) && Number.isFinite(q.uncertainty);
+  if (!levels.every((l) => finite(l.energy) && finite(l.rMin) && finite(l.rMax) && finite(l.B))) {
+    throw new ScienceError(
+      'POTENTIAL_CONSTANTS_INVALID',
+      'the constants give turning points that are not finite numbers',
+      {
+        vMax,
+      },
+    );
+  }
+  if (morse && !(finite(morse.D_e) && finite(morse.a) && finite(morse.r_e))) {
+    morse = undefined;
+    warnings.push({ code: 'POTENTIAL_NO_MORSE', message: 'the Morse parameters of these constants are not finite' });
+  }
+  const finiteCurve = (c: readonly CurvePoint[]) => c.every((p) => Number.isFinite(p.r) && Number.isFinite(p.energy));
+  if (
+    verification &&
+    !(
+      Number.isFinite(verification.worstIntervalError) &&
+      Number.isFinite(verification.worstRotationalRelativeError) &&
+      Number.isFinite(verification.zeroPointShift)
+    )
+  ) {
+    verification = undefined;
+    warnings.push({
+      code: 'POTENTIAL_NOT_VERIFIED',
+      message: 'the Numerov check gave no finite numbers for this curve',
+    });
+  }
   return {
     hbar2Over2mu: C,
     levels,
     ...(morse ? { morse } : {}),
-    curves: { rkr, morse: morseCurve },
+    curves: { rkr: finiteCurve(rkr) ? rkr : [], morse: morse && finiteCurve(morseCurve) ? morseCurve : [] },
     ...(verification ? { verification } : {}),
     warnings,
   };

@@ -1,0 +1,128 @@
+import { ScienceError } from '../../src/errors.js';
+import { dunhamFromConstants } from '../../src/potential/constants-input.js';
+import { type DunhamCoefficient, potentialCurves } from '../../src/potential/potential-curve.js';
+import type { ConstantsInput, PredictionConstant } from '../../src/qa/predictions.js';
+import { constantsFor } from '../../src/species/library.js';
+import { type Isotopologue, parseSpecies } from '../../src/species/parse.js';
+import { reducedMass } from '../../src/species/reduced-mass.js';
+import { SAFETY_NOTICE } from '../notice.js';
+import type { PotentialRequest, PotentialResponse } from '../schemas/potentials.js';
+import { analyseRequest, prepareFit } from './fit.js';
+
+interface PotentialSource {
+  readonly species: Isotopologue;
+  readonly source: 'library' | 'caller' | 'fit';
+  readonly coefficients: DunhamCoefficient[];
+  readonly covariance: ArrayLike<number>;
+  readonly vData?: number;
+  readonly warnings: { code: string; message: string }[];
+}
+
+/** POST /v1/potentials, GraphQL `potential` and `branchwise potential`. */
+export function runPotential(req: PotentialRequest): PotentialResponse {
+  const src = req.lines !== undefined || req.spectrum !== undefined ? fromFit(req) : fromConstants(req);
+  const mu = reducedMass(src.species);
+  const r = potentialCurves({
+    coefficients: src.coefficients,
+    covariance: src.covariance,
+    reducedMass: mu,
+    vMax: req.vMax,
+    ...(src.vData !== undefined ? { vData: src.vData } : {}),
+    verify: req.verify,
+  });
+  return {
+    species: src.species.formula,
+    source: src.source,
+    reducedMass: { value: mu.value, uncertainty: mu.uncertainty, unit: 'u' },
+    hbar2Over2mu: r.hbar2Over2mu,
+    vMax: req.vMax,
+    ...(src.vData !== undefined ? { vData: src.vData } : {}),
+    levels: r.levels.map((l) => ({ ...l })),
+    ...(r.morse ? { morse: { ...r.morse } } : {}),
+    curves: { rkr: [...r.curves.rkr], morse: [...r.curves.morse] },
+    ...(r.verification
+      ? { verification: { ...r.verification, levels: r.verification.levels.map((l) => ({ ...l })) } }
+      : {}),
+    warnings: [...src.warnings, ...r.warnings],
+    notice: SAFETY_NOTICE,
+  };
+}
+
+function fromConstants(req: PotentialRequest): PotentialSource {
+  const species = parseSpecies(req.species as string);
+  let input: ConstantsInput | undefined = req.constants;
+  let source: PotentialSource['source'] = 'caller';
+  const warnings: PotentialSource['warnings'] = [];
+  if (!input) {
+    const entry = constantsFor(species);
+    if (!entry) {
+      throw new ScienceError(
+        'SPECIES_NOT_IN_LIBRARY',
+        `${species.formula} is not in the reference library: send its constants`,
+        { species: species.formula },
+      );
+    }
+    const values: Partial<Record<PredictionConstant, { value: number }>> = {};
+    for (const [name, c] of Object.entries(entry.constants)) {
+      if (c && c.unit === 'cm-1') values[name as PredictionConstant] = { value: c.value };
+    }
+    input = { values };
+    source = 'library';
+    warnings.push({
+      code: 'POTENTIAL_NO_COVARIANCE',
+      message: 'library constants carry no covariance here: the turning points are given without uncertainty',
+    });
+  }
+  const d = dunhamFromConstants(input);
+  return {
+    species,
+    source,
+    coefficients: d.coefficients,
+    covariance: d.covariance,
+    ...(req.vData !== undefined ? { vData: req.vData } : {}),
+    warnings,
+  };
+}
+
+function fromFit(req: PotentialRequest): PotentialSource {
+  const { constants: _c, vMax: _v, vData: _d, verify: _f, ...fitBody } = req;
+  const { analysis, declared } = analyseRequest(prepareFit(fitBody));
+  const result = analysis.result;
+  const formula = declared?.formula ?? result.dunham[0]?.species;
+  const dunham = result.dunham.find((d) => d.species === formula);
+  if (!formula || !dunham) {
+    throw new ScienceError(
+      'POTENTIAL_UNDETERMINED',
+      'the fit determined no Dunham coefficients (lines of two or more vibrational levels are needed)',
+      { warnings: result.warnings.map((w) => w.code) },
+    );
+  }
+  const idx: number[] = [];
+  const coefficients: DunhamCoefficient[] = [];
+  dunham.parameters.forEach((p, i) => {
+    const m = /^Y(\d)(\d)$/.exec(p.name);
+    if (!m) return;
+    const k = Number(m[1]);
+    const l = Number(m[2]);
+    if (l > 1 || (l === 0 && k === 0)) return;
+    idx.push(i);
+    coefficients.push({ k, l, value: p.value });
+  });
+  const covariance = new Float64Array(idx.length * idx.length);
+  idx.forEach((a, i) => {
+    idx.forEach((b, j) => {
+      covariance[i * idx.length + j] = dunham.covariance.matrix[a]?.[b] as number;
+    });
+  });
+  const vs = result.levels.filter((l) => l.species === formula).map((l) => l.v);
+  return {
+    species: parseSpecies(formula),
+    source: 'fit',
+    coefficients,
+    covariance,
+    ...(vs.length > 0 ? { vData: Math.max(...vs) } : {}),
+    warnings: result.warnings
+      .filter((w) => w.code === 'HIGHER_TERMS_NEGLECTED' || w.code === 'VIBRATION_NEEDS_TWO_INTERVALS')
+      .map((w) => ({ code: w.code, message: w.message })),
+  };
+}
