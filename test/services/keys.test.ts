@@ -21,6 +21,7 @@ const ROUTES: { method: string; path: string; body?: { type: string; body: strin
   { method: 'POST', path: '/v1/checks', body: json(fit) },
   { method: 'POST', path: '/v1/reports', body: json(fit) },
   { method: 'POST', path: '/v1/predictions', body: json({ species: 'HCl', jMax: 5 }) },
+  { method: 'POST', path: '/v1/potentials', body: json({ species: 'HCl', vMax: 2, verify: false }) },
   {
     method: 'POST',
     path: '/v1/peaks',
