@@ -813,6 +813,7 @@ export interface components {
       };
       /** @description ħ²/2μ in cm-1 Å² (CODATA 2018, AME2020 masses) */
       hbar2Over2mu: number;
+      input: components["schemas"]["InputDigest"];
       levels: {
           /** @description B_v from the constants, cm-1 */
           B: components["schemas"]["Quantity"];
@@ -834,6 +835,9 @@ export interface components {
       };
       notice: string;
       reducedMass: components["schemas"]["Quantity"];
+      /** @description the request's sample, echoed */
+      sample?: components["schemas"]["Sample"];
+      software: components["schemas"]["Software"];
       /** @enum {string} */
       source: "library" | "caller" | "fit";
       species: string;

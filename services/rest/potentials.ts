@@ -1,6 +1,7 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import type { Config } from '../config.js';
 import { jobSize } from '../pool.js';
+import { stamped } from '../provenance.js';
 import { problemResponses } from '../schemas/common.js';
 import { type PotentialResponse, PotentialResponseSchema, potentialRequestSchema } from '../schemas/potentials.js';
 
@@ -30,6 +31,10 @@ export const potentialRoutes =
         },
       },
       async (req) =>
-        app.pool.run<PotentialResponse>({ kind: 'potential', body: req.body }, Math.max(jobSize(req.body), 1)),
+        stamped(
+          req,
+          await app.pool.run<PotentialResponse>({ kind: 'potential', body: req.body }, Math.max(jobSize(req.body), 1)),
+          req.body.sample,
+        ),
     );
   };

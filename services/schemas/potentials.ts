@@ -2,6 +2,7 @@ import { z } from 'zod';
 import { QuantitySchema, WarningSchema } from './common.js';
 import { fitRequestFields } from './fit.js';
 import { PredictionRequestSchema } from './predictions.js';
+import { provenanceAndSampleFields } from './provenance.js';
 
 /** Largest vMax the service accepts (the Numerov check solves vMax + 1 levels on 6000 points). */
 export const MAX_POTENTIAL_V = 60;
@@ -100,6 +101,7 @@ export const PotentialResponseSchema = z
       .optional(),
     warnings: z.array(WarningSchema),
     notice: z.string(),
+    ...provenanceAndSampleFields,
   })
   .meta({ id: 'PotentialResponse' });
-export type PotentialResponse = z.input<typeof PotentialResponseSchema>;
+export type PotentialResponse = Omit<z.input<typeof PotentialResponseSchema>, 'software' | 'input' | 'sample'>;

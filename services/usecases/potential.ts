@@ -85,7 +85,7 @@ function fromConstants(req: PotentialRequest): PotentialSource {
 }
 
 function fromFit(req: PotentialRequest): PotentialSource {
-  const { constants: _c, vMax: _v, vData: _d, verify: _f, ...fitBody } = req;
+  const { constants: _c, vMax: _v, vData: _d, verify: _f, sample: _s, ...fitBody } = req;
   const { analysis, declared } = analyseRequest(prepareFit(fitBody));
   const result = analysis.result;
   const formula = declared?.formula ?? result.dunham[0]?.species;

@@ -72,6 +72,8 @@ describe('POST /v1/potentials', () => {
     expect(j.verification.worstRotationalRelativeError).toBeLessThan(1e-4);
     expect(j.warnings.map((w: { code: string }) => w.code)).toContain('POTENTIAL_RANGE_UNKNOWN');
     expect(j.notice).toMatch(/certifies nothing/);
+    expect(j.software.name).toBeTruthy();
+    expect(j.input.sha256).toMatch(/^[0-9a-f]{64}$/);
   });
 
   it('propagates the covariance: σ(r_e) = r_e σ(B_e)/(2B_e) (SCIENCE.md §4) within 1 %', async () => {
