@@ -21,21 +21,25 @@ interface PotentialSource {
 /** POST /v1/potentials, GraphQL `potential` and `branchwise potential`. */
 export function runPotential(req: PotentialRequest): PotentialResponse {
   const src = req.lines !== undefined || req.spectrum !== undefined ? fromFit(req) : fromConstants(req);
+  return present(src, req.vMax, req.verify);
+}
+
+function present(src: PotentialSource, vMax: number, verify: boolean): PotentialResponse {
   const mu = reducedMass(src.species);
   const r = potentialCurves({
     coefficients: src.coefficients,
     covariance: src.covariance,
     reducedMass: mu,
-    vMax: req.vMax,
+    vMax,
     ...(src.vData !== undefined ? { vData: src.vData } : {}),
-    verify: req.verify,
+    verify,
   });
   return {
     species: src.species.formula,
     source: src.source,
     reducedMass: { value: mu.value, uncertainty: mu.uncertainty, unit: 'u' },
     hbar2Over2mu: r.hbar2Over2mu,
-    vMax: req.vMax,
+    vMax,
     ...(src.vData !== undefined ? { vData: src.vData } : {}),
     levels: r.levels.map((l) => ({ ...l })),
     ...(r.morse ? { morse: { ...r.morse } } : {}),
@@ -87,8 +91,22 @@ function fromConstants(req: PotentialRequest): PotentialSource {
 function fromFit(req: PotentialRequest): PotentialSource {
   const { constants: _c, vMax: _v, vData: _d, verify: _f, sample: _s, ...fitBody } = req;
   const { analysis, declared } = analyseRequest(prepareFit(fitBody));
-  const result = analysis.result;
-  const formula = declared?.formula ?? result.dunham[0]?.species;
+  return fromFitResult(analysis.result, declared?.formula);
+}
+
+/** The parts of a fit (FitResult or its REST shape) a potential needs. */
+export interface FitForPotential {
+  readonly dunham: readonly {
+    readonly species: string;
+    readonly parameters: readonly { readonly name: string; readonly value: number }[];
+    readonly covariance: { readonly matrix: readonly (readonly number[])[] };
+  }[];
+  readonly levels: readonly { readonly species: string; readonly v: number }[];
+  readonly warnings: readonly { readonly code: string; readonly message: string }[];
+}
+
+function fromFitResult(result: FitForPotential, declared?: string): PotentialSource {
+  const formula = declared ?? result.dunham[0]?.species;
   const dunham = result.dunham.find((d) => d.species === formula);
   if (!formula || !dunham) {
     throw new ScienceError(
@@ -125,4 +143,24 @@ function fromFit(req: PotentialRequest): PotentialSource {
       .filter((w) => w.code === 'HIGHER_TERMS_NEGLECTED' || w.code === 'VIBRATION_NEEDS_TWO_INTERVALS')
       .map((w) => ({ code: w.code, message: w.message })),
   };
+}
+
+/**
+ * The potential of a fit over the levels its data reached, for the report: only when the fit determined ω_e x_e
+ * (two or more vibrational intervals), else undefined. Refusals of the science (G not increasing …) also give
+ * undefined: the report then simply has no potential plot.
+ */
+export function potentialOfFit(fit: FitForPotential): PotentialResponse | undefined {
+  const d = fit.dunham.find(
+    (x) => x.parameters.some((p) => p.name === 'Y20') && x.parameters.some((p) => p.name === 'Y01'),
+  );
+  if (!d) return undefined;
+  try {
+    const src = fromFitResult(fit, d.species);
+    if (src.vData === undefined) return undefined;
+    return present(src, src.vData, true);
+  } catch (e) {
+    if (e instanceof ScienceError) return undefined;
+    throw e;
+  }
 }

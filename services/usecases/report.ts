@@ -1,7 +1,9 @@
 import type { Provenance } from '../provenance.js';
 import { type ReportSection, renderReport } from '../report/html.js';
+import { potentialSection } from '../report/potential-section.js';
 import type { CheckRequest } from '../schemas/checks.js';
 import { runCheck } from './check.js';
+import { potentialOfFit } from './potential.js';
 
 export interface ReportOptions {
   /** Software versions and the digest of the request body, printed in the report's header. */
@@ -14,7 +16,10 @@ export interface ReportOptions {
 /** POST /v1/reports: the checks, rendered as one self-contained HTML document. */
 export function runReport(req: CheckRequest, options: ReportOptions = {}): string {
   const now = options.now ?? new Date();
-  return renderReport(runCheck(req), {
+  const check = runCheck(req);
+  // A potential plot when the fit determined two or more vibrational intervals (ω_e x_e).
+  const potential = check.fit ? potentialOfFit(check.fit) : undefined;
+  return renderReport(check, {
     generatedAt: now
       .toISOString()
       .replace('T', ' ')
@@ -24,6 +29,6 @@ export function runReport(req: CheckRequest, options: ReportOptions = {}): strin
     ...(req.spectrum ? { spectrum: req.spectrum } : {}),
     ...(req.lines ? { inputLines: req.lines } : {}),
     ...(req.unit ? { unit: req.unit } : {}),
-    extraSections: options.extraSections ?? [],
+    extraSections: [...(options.extraSections ?? []), ...(potential ? [potentialSection(potential)] : [])],
   });
 }

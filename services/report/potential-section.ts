@@ -1,0 +1,27 @@
+import type { PotentialResponse } from '../schemas/potentials.js';
+import type { ReportSection } from './html.js';
+import { renderPotentialPlot } from './potential-plot.js';
+
+const esc = (s: string) => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;');
+const q = (x: { value: number; uncertainty: number }, digits: number) =>
+  x.uncertainty > 0 ? `${x.value.toFixed(digits)} ± ${x.uncertainty.toPrecision(2)}` : x.value.toFixed(digits);
+
+/** The report's potential-curve section: the plot and a table of the turning points. */
+export function potentialSection(p: PotentialResponse): ReportSection {
+  const check = p.verification;
+  const caption = `First-order RKR turning points from the fitted constants, for the levels the data reached (v = 0…${p.vMax}); the Morse curve from ω_e, ω_e x_e and B_e.${check ? ` Numerov check of the RKR curve: worst |Δ(G_v − G_0)| ${check.worstIntervalError.toExponential(1)} cm⁻¹, worst |ΔB_v/B_v| ${check.worstRotationalRelativeError.toExponential(1)}.` : ''}`;
+  const rows = p.levels
+    .map(
+      (l) =>
+        `<tr><td>${l.v}</td><td class="num">${esc(q(l.energy, 3))}</td><td class="num">${esc(q(l.rMin, 6))}</td><td class="num">${esc(q(l.rMax, 6))}</td></tr>`,
+    )
+    .join('');
+  const morse = p.morse
+    ? `<p id="morse">Morse: D_e = ${esc(q(p.morse.D_e, 1))} cm⁻¹, a = ${esc(q(p.morse.a, 5))} Å⁻¹, r_e = ${esc(q(p.morse.r_e, 6))} Å.</p>`
+    : '';
+  return {
+    id: 'potential-curve',
+    title: 'Potential curve',
+    html: `${renderPotentialPlot(p, caption)}${morse}<table id="turning-points"><thead><tr><th>v</th><th>G_v (cm⁻¹)</th><th>r₋ (Å)</th><th>r₊ (Å)</th></tr></thead><tbody>${rows}</tbody></table>`,
+  };
+}
