@@ -99,6 +99,11 @@ function conform(body: unknown, linesOrSpectrum: boolean): unknown {
   }
   if ('lines' in b && 'spectrum' in b) delete b.spectrum;
   if (linesOrSpectrum && !('lines' in b) && !('spectrum' in b)) b.lines = [{ position: 2906.25 }];
+  // /v1/potentials: constants (and vData) come either from the body or from a fit of lines, never both.
+  if (linesOrSpectrum && 'vMax' in b) {
+    delete b.constants;
+    delete b.vData;
+  }
   const sample = b.sample as Record<string, unknown> | undefined;
   if (sample && 'measuredAt' in sample) b.sample = { ...sample, measuredAt: '2026-12-02T09:30:00Z' };
   return b;
