@@ -89,3 +89,13 @@ export function stamped<T extends object>(
 ): T & Provenance & { sample?: object } {
   return { ...result, ...(sample ? { sample } : {}), ...provenanceOf(req) };
 }
+
+/** The same for one record of a batch: the digest of that record's bytes (its NDJSON line, without the line end). */
+export function stampedBytes<T extends object>(
+  bytes: string,
+  result: T,
+  sample?: object,
+): T & Provenance & { sample?: object } {
+  const sha256 = createHash('sha256').update(bytes).digest('hex');
+  return { ...result, ...(sample ? { sample } : {}), software: SOFTWARE, input: { sha256 } };
+}

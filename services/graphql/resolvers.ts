@@ -1,4 +1,4 @@
-import type { FastifyInstance } from 'fastify';
+import type { FastifyInstance, FastifyRequest } from 'fastify';
 import { GraphQLScalarType } from 'graphql';
 import mercurius from 'mercurius';
 import type { z } from 'zod';
@@ -6,6 +6,7 @@ import { ScienceError } from '../../src/errors.js';
 import type { Config } from '../config.js';
 import { HttpProblem, nonFiniteProblem, scienceProblem } from '../errors.js';
 import { jobSize } from '../pool.js';
+import { stamped } from '../provenance.js';
 import { checkRequestSchema } from '../schemas/checks.js';
 import { fitRequestSchema } from '../schemas/fit.js';
 import { PeaksRequestSchema } from '../schemas/peaks.js';
@@ -57,6 +58,11 @@ async function guarded<T>(f: () => T | Promise<T>): Promise<T> {
   }
 }
 
+/** The part of mercurius's context the resolvers read: the HTTP request, for its body digest. */
+interface Ctx {
+  readonly reply: { readonly request: FastifyRequest };
+}
+
 export function resolvers(config: Config, app: FastifyInstance) {
   const schema = fitRequestSchema(config.maxLines);
   const potentialSchema = potentialRequestSchema(config.maxLines);
@@ -64,13 +70,14 @@ export function resolvers(config: Config, app: FastifyInstance) {
   return {
     JSON: JSONScalar,
     Query: {
-      fit: (_: unknown, args: { input: unknown }) => {
+      fit: async (_: unknown, args: { input: unknown }, ctx: Ctx) => {
         const parsed = schema.safeParse(dropNulls(args.input));
         if (!parsed.success) badInput(parsed.error);
         const body = parsed.data;
-        return guarded(() => app.pool.run({ kind: 'fit', body }, jobSize(body)));
+        const r = await guarded(() => app.pool.run<object>({ kind: 'fit', body }, jobSize(body)));
+        return stamped(ctx.reply.request, r, body.sample);
       },
-      check: (_: unknown, args: { input: unknown; tolerances?: unknown }) => {
+      check: async (_: unknown, args: { input: unknown; tolerances?: unknown }, ctx: Ctx) => {
         const raw = dropNulls({
           ...(args.input as object),
           ...(args.tolerances != null ? { tolerances: args.tolerances } : {}),
@@ -78,7 +85,8 @@ export function resolvers(config: Config, app: FastifyInstance) {
         const parsed = checkSchema.safeParse(raw);
         if (!parsed.success) badInput(parsed.error);
         const body = parsed.data;
-        return guarded(() => app.pool.run({ kind: 'check', body }, jobSize(body)));
+        const r = await guarded(() => app.pool.run<object>({ kind: 'check', body }, jobSize(body)));
+        return stamped(ctx.reply.request, r, body.sample);
       },
       peaks: (_: unknown, args: { spectrum: unknown; peakOptions?: unknown }) => {
         const parsed = PeaksRequestSchema.safeParse(
@@ -88,11 +96,12 @@ export function resolvers(config: Config, app: FastifyInstance) {
         const body = parsed.data;
         return guarded(() => app.pool.run({ kind: 'peaks', body }, jobSize(body)));
       },
-      predict: (_: unknown, args: { input: unknown }) => {
+      predict: async (_: unknown, args: { input: unknown }, ctx: Ctx) => {
         const parsed = PredictionRequestSchema.safeParse(dropNulls(args.input));
         if (!parsed.success) badInput(parsed.error);
         const body = parsed.data;
-        return guarded(() => app.pool.run({ kind: 'predict', body }, 1));
+        const r = await guarded(() => app.pool.run<object>({ kind: 'predict', body }, 1));
+        return stamped(ctx.reply.request, r, body.sample);
       },
       potential: (_: unknown, args: { input: unknown }) => {
         const parsed = potentialSchema.safeParse(dropNulls(args.input));

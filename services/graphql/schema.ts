@@ -53,6 +53,38 @@ export const typeDefs = /* GraphQL */ `
     shape: String
   }
 
+  "Who measured what: echoed in the result and printed in reports."
+  input SampleInput {
+    id: String
+    description: String
+    instrument: String
+    operator: String
+    "ISO 8601 with a zone, or a date"
+    measuredAt: String
+    notes: String
+  }
+
+  type Sample {
+    id: String
+    description: String
+    instrument: String
+    operator: String
+    measuredAt: String
+    notes: String
+  }
+
+  "The software that computed a result (API-CONTRACT.md, additions)."
+  type Software {
+    name: String!
+    version: String!
+    libraryVersion: String!
+  }
+
+  "SHA-256 (hex) of the HTTP request body as received."
+  type InputDigest {
+    sha256: String!
+  }
+
   input FitInput {
     species: String
     "cm-1 (default), MHz, GHz, THz, um, nm"
@@ -62,6 +94,7 @@ export const typeDefs = /* GraphQL */ `
     spectrum: SpectrumInput
     peakOptions: PeakOptionsInput
     options: FitOptionsInput
+    sample: SampleInput
   }
 
   type PeakOut {
@@ -250,6 +283,10 @@ export const typeDefs = /* GraphQL */ `
     spectrum: SpectrumSummary
     warnings: [Warning!]!
     notice: String!
+    "present on the top-level result (absent on the fit nested in a check)"
+    software: Software
+    input: InputDigest
+    sample: Sample
   }
 
   type SpeciesEntry {
@@ -278,6 +315,9 @@ export const typeDefs = /* GraphQL */ `
     tolerances: JSON!
     fit: FitResult
     notice: String!
+    software: Software!
+    input: InputDigest!
+    sample: Sample
   }
 
   input PredictionInput {
@@ -288,6 +328,7 @@ export const typeDefs = /* GraphQL */ `
     jMax: Int
     temperature: Float
     unit: String
+    sample: SampleInput
   }
 
   type ConstantValue {
@@ -312,6 +353,9 @@ export const typeDefs = /* GraphQL */ `
     constants: [ConstantValue!]!
     lines: [PredictedLine!]!
     notice: String!
+    software: Software!
+    input: InputDigest!
+    sample: Sample
   }
 
   input PotentialInput {

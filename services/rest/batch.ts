@@ -4,6 +4,7 @@ import { z } from 'zod';
 import type { Config } from '../config.js';
 import { problem, sendProblem, toProblem } from '../errors.js';
 import { jobSize } from '../pool.js';
+import { stampedBytes } from '../provenance.js';
 import { checkRequestSchema } from '../schemas/checks.js';
 import { fitRequestSchema } from '../schemas/fit.js';
 import { ndjsonLines } from './ndjson-lines.js';
@@ -99,7 +100,8 @@ export const batchRoutes =
                 const result = await timed(app, kind, jobSize(body), () =>
                   app.pool.run({ kind, body } as never, jobSize(body)),
                 );
-                await write({ index: i, status: 200, result });
+                // Each result carries what a single request would: the software and the digest of its line.
+                await write({ index: i, status: 200, result: stampedBytes(line, result as object, body.sample) });
               } catch (e) {
                 const p = toProblem(e instanceof SyntaxError ? Object.assign(e, { statusCode: 400 }) : e, req);
                 if (p.status >= 500) req.log.error({ err: e, index: i }, 'batch line failed');

@@ -3,8 +3,8 @@ import { reducedMass } from './reduced-mass.js';
 
 /**
  * The built-in reference library: ground-state (X ¹Σ⁺) constants of the diatomics labs most often record, each
- * value with its source and how it was obtained. Values from Huber & Herzberg are recalled and, where marked,
- * corroborated by a secondary copy of the NIST Chemistry WebBook tables; their last digits deserve care.
+ * value with its source (table and edition) and, in words, how far it was checked against that table: checked digit
+ * for digit against a copy of the WebBook row, corroborated by a secondary copy, or recalled (low confidence).
  * Isotopologue entries not tabulated here are derived by Born–Oppenheimer mass scaling from a parent and say so.
  */
 
@@ -14,7 +14,7 @@ export type Provenance = 'published' | 'derived' | 'low-confidence';
  * Edition of the library's values and sources; change it with any value. Responses report it together with a digest
  * of the whole library (services/provenance.ts), so that an edit is visible even if this is forgotten.
  */
-export const LIBRARY_EDITION = '2026.12.1';
+export const LIBRARY_EDITION = '2026.12.2';
 
 export interface LibraryValue {
   readonly value: number;
@@ -45,10 +45,18 @@ export interface LibraryEntry {
   readonly hazard: string;
 }
 
+/**
+ * Sources. Every value below is from one table; what differs is how far this project has checked it against that
+ * table, which each source string says in words (an auditor reads the string, not this comment).
+ */
 const HH =
-  'K. P. Huber and G. Herzberg, Molecular Spectra and Molecular Structure IV: Constants of Diatomic Molecules (1979), as tabulated in the NIST Chemistry WebBook';
-const HH_MEM = `${HH}; recalled, not read from the primary table`;
-const HH_MEM2 = `${HH}; recalled and corroborated by a secondary copy of the table`;
+  'K. P. Huber and G. Herzberg, Molecular Spectra and Molecular Structure IV. Constants of Diatomic Molecules ' +
+  "(Van Nostrand Reinhold, New York, 1979), the X 1Σ+ row of the molecule's table, as reproduced in the NIST " +
+  'Chemistry WebBook (NIST Standard Reference Database 69), "Constants of diatomic molecules"';
+/** The same digits were read in a copy of the WebBook row (a data ledger of another open project, read 2026-12-02). */
+const HH_CHECKED = `${HH}. Checked digit for digit against a copy of the WebBook row`;
+const HH_MEM2 = `${HH}. Agrees with a secondary copy of the table; the primary table itself was not read`;
+const HH_MEM = `${HH}. Low confidence: no copy of the table was read for this value, which was recalled; its last digits may be wrong`;
 
 const v = (
   value: number,
@@ -74,11 +82,11 @@ const PARENTS: LibraryEntry[] = [
     state: 'X 1Σ+',
     hazard: HAZARD_CO,
     constants: {
-      omega_e: v(2169.81358, HH_MEM2),
-      omega_e_x_e: v(13.28831, HH_MEM2),
-      omega_e_y_e: v(0.010511, HH_MEM),
-      B_e: v(1.93128087, HH_MEM2),
-      alpha_e: v(0.01750441, HH_MEM2),
+      omega_e: v(2169.81358, HH_CHECKED),
+      omega_e_x_e: v(13.28831, HH_CHECKED),
+      omega_e_y_e: v(0.010511, HH_MEM, 'low-confidence'),
+      B_e: v(1.93128087, HH_CHECKED),
+      alpha_e: v(0.01750441, HH_CHECKED),
       D_e: v(6.12147e-6, HH_MEM2),
       r_e: v(1.128323, HH_MEM2, 'published', undefined, 'angstrom'),
     },
@@ -89,19 +97,25 @@ const PARENTS: LibraryEntry[] = [
     state: 'X 1Σ+',
     hazard: `hydrogen chloride is ${HAZARD_HX}`,
     constants: {
-      omega_e: v(2990.9463, HH_MEM2),
-      omega_e_x_e: v(52.8186, HH_MEM2),
-      omega_e_y_e: v(0.2243, HH_MEM),
+      omega_e: v(2990.9463, HH_CHECKED),
+      omega_e_x_e: v(52.8186, HH_CHECKED),
+      omega_e_y_e: v(0.2243, HH_MEM, 'low-confidence'),
       omega_e_z_e: v(
         -0.0122,
         HH_MEM,
         'low-confidence',
         'with it G(1) − G(0) = 2885.977 cm-1, the measured band origin (recalled); without it 2886.038',
       ),
-      B_e: v(10.593416, HH_MEM2),
-      alpha_e: v(0.307181, HH_MEM2),
-      D_e: v(5.3194e-4, HH_MEM2),
-      r_e: v(1.27455, HH_MEM, 'published', undefined, 'angstrom'),
+      B_e: v(10.593416, HH_CHECKED),
+      alpha_e: v(0.307181, HH_CHECKED),
+      D_e: v(5.3194e-4, HH_CHECKED),
+      r_e: v(
+        1.27455,
+        HH_MEM,
+        'low-confidence',
+        'consistent with B_e and the AME2020 reduced mass through B_e μ r_e² = 16.857629 u Å² cm-1 (1.274552 Å)',
+        'angstrom',
+      ),
     },
   },
   {
@@ -116,7 +130,13 @@ const PARENTS: LibraryEntry[] = [
       B_e: v(5.448794, HH_MEM2),
       alpha_e: v(0.113291, HH_MEM2),
       D_e: v(1.3976e-4, HH_MEM, 'low-confidence'),
-      r_e: v(1.27458, HH_MEM, 'published', undefined, 'angstrom'),
+      r_e: v(
+        1.27458,
+        HH_MEM,
+        'low-confidence',
+        'consistent with B_e and the AME2020 reduced mass through B_e μ r_e² = 16.857629 u Å² cm-1',
+        'angstrom',
+      ),
     },
   },
   {
@@ -135,7 +155,7 @@ const PARENTS: LibraryEntry[] = [
         'as recalled, B_e and r_e are consistent only with the reduced mass of 1H-81Br; the pairing is unverified at the 3e-4 level',
       ),
       alpha_e: v(0.23328, HH_MEM2),
-      D_e: v(3.4584e-4, HH_MEM),
+      D_e: v(3.4584e-4, HH_MEM, 'low-confidence', 'Kratzer 4B_e³/ω_e² gives 3.458e-4 cm-1, which agrees'),
       r_e: v(1.41444, HH_MEM2, 'low-confidence', 'see the note on B_e', 'angstrom'),
     },
   },
@@ -150,7 +170,7 @@ const PARENTS: LibraryEntry[] = [
       omega_e_y_e: v(0.9, HH_MEM, 'low-confidence'),
       B_e: v(20.9557, HH_MEM2),
       alpha_e: v(0.798, HH_MEM2),
-      D_e: v(2.151e-3, HH_MEM),
+      D_e: v(2.151e-3, HH_MEM, 'low-confidence', 'Kratzer 4B_e³/ω_e² gives 2.149e-3 cm-1, which agrees'),
       r_e: v(0.916808, HH_MEM2, 'published', undefined, 'angstrom'),
     },
   },
@@ -160,9 +180,14 @@ const PARENTS: LibraryEntry[] = [
     state: 'X 1Σ+',
     hazard: `deuterium fluoride is ${HAZARD_HX} and acutely dangerous`,
     constants: {
-      omega_e: v(2998.192, HH_MEM, 'low-confidence'),
+      omega_e: v(
+        2998.192,
+        HH_MEM,
+        'low-confidence',
+        'no copy of any DF value was found; mass scaling of HF gives 3000.08 cm-1 (Born–Oppenheimer, first order)',
+      ),
       omega_e_x_e: v(45.761, HH_MEM, 'low-confidence'),
-      B_e: v(11.00985, HH_MEM, 'low-confidence'),
+      B_e: v(11.00985, HH_MEM, 'low-confidence', 'mass scaling of HF gives 11.0133 cm-1'),
       alpha_e: v(0.2931, HH_MEM, 'low-confidence'),
       D_e: v(5.94e-4, HH_MEM, 'low-confidence'),
       r_e: v(0.91694, HH_MEM, 'low-confidence', undefined, 'angstrom'),
@@ -178,7 +203,7 @@ const PARENTS: LibraryEntry[] = [
       omega_e_x_e: v(39.6435, HH_MEM, 'low-confidence'),
       B_e: v(
         6.511,
-        'derived here from r_e = 1.60916 Å (Huber & Herzberg, recalled) through B_e = K/(μ r_e²), CODATA 2018 and AME2020',
+        'derived here from r_e = 1.60916 Å (Huber & Herzberg 1979, Van Nostrand Reinhold, HI table, X 1Σ+ row; recalled) through B_e = K/(μ r_e²), CODATA 2018 and AME2020',
         'derived',
         'the recalled tabulated B_e, 6.4263 cm-1, is inconsistent with r_e and D_e and matches B_0 instead',
       ),

@@ -124,3 +124,44 @@ describe('the sample of a CSV or JCAMP-DX body', () => {
     expect(bad.statusCode).toBe(400);
   });
 });
+
+describe('provenance through GraphQL and NDJSON batches', () => {
+  it('GraphQL fit and check carry the software, the digest of the HTTP body and the sample', async () => {
+    const lines = scan.peaks.map((p) => `{position: ${p.position}, uncertainty: ${p.uncertainty}}`).join(', ');
+    const query = `{ fit(input: {species: "HCl", sample: {id: "G-1", measuredAt: "2026-12-01"}, lines: [${lines}]}) { software { name version libraryVersion } input { sha256 } sample { id measuredAt } } check(input: {species: "HCl", lines: [${lines}]}) { verdict software { name } input { sha256 } fit { software { name } } } }`;
+    const payload = JSON.stringify({ query });
+    const r = await app().inject({
+      method: 'POST',
+      url: '/graphql',
+      headers: { 'content-type': 'application/json' },
+      payload,
+    });
+    expect(r.statusCode).toBe(200);
+    const d = r.json().data;
+    expect(d.fit.software.name).toBe('branchwise');
+    expect(d.fit.input.sha256).toBe(sha(payload));
+    expect(d.fit.sample).toEqual({ id: 'G-1', measuredAt: '2026-12-01' });
+    expect(d.check.input.sha256).toBe(sha(payload));
+    // The fit nested in a check carries no provenance of its own.
+    expect(d.check.fit.software).toBeNull();
+  });
+
+  it('each batch result carries the digest of its own NDJSON line', async () => {
+    const a = JSON.stringify({ species: 'HCl', sample: { id: 'B-1' }, lines: scan.peaks });
+    const b = JSON.stringify({ species: 'HCl', lines: scan.peaks.slice(0, 30) });
+    const r = await app().inject({
+      method: 'POST',
+      url: '/v1/batch/fits',
+      headers: { 'content-type': 'application/x-ndjson' },
+      payload: `${a}\n${b}\n`,
+    });
+    expect(r.statusCode).toBe(200);
+    const records = r.body
+      .trim()
+      .split('\n')
+      .map((l) => JSON.parse(l));
+    expect(records.map((x) => x.result.input.sha256)).toEqual([sha(a), sha(b)]);
+    expect(records[0].result.sample).toEqual({ id: 'B-1' });
+    expect(records[1].result.software.libraryVersion).toMatch(/\+[0-9a-f]{12}$/);
+  });
+});
