@@ -5,6 +5,12 @@
  * Rows are multiplied by √wᵢ, columns are scaled to unit Euclidean norm (equilibration: a column of x³ ≈ 10¹⁰
  * and a column of ones become comparable), then QR with pivoting reveals the numerical rank. The normal
  * equations are never formed. The covariance (AᵀWA)⁻¹ = S⁻¹P R⁻¹R⁻ᵀ PᵀS⁻¹ comes from the triangular factor.
+ *
+ * Line lists repeat their design rows (a transition measured again, by another instrument or in another scan):
+ * when at most half the rows are distinct they are merged exactly (summed weights, weighted mean observations)
+ * before the factorisation, and residuals, χ² and leverages are taken back to every row. Working copies live in
+ * one reused buffer; stages: compressRows → pivotedQR (householderStep per column) → rank → backSubstitute →
+ * covarianceFrom → residuals → leveragesOf.
  */
 
 export interface LeastSquaresInput {
@@ -60,16 +66,133 @@ export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult 
     throw new RangeError(`least squares: inconsistent sizes (rows ${n}, cols ${p}, design ${design.length})`);
   }
   if (n < p) throw new RangeError(`least squares: ${n} observations cannot determine ${p} parameters`);
+  // Repeated design rows (the same transition measured again) merge exactly into one row of summed weight.
+  const merged = compressRows(design, n, p, observations, weights);
+  const sys = merged ?? { rows: n, design, observations, weights };
+  const qr = pivotedQR(sys.rows, p, sys.design, sys.observations, sys.weights);
+  // Numerical rank.
+  const { rdiag, r, perm, scale } = qr;
+  const tol = (input.rankTolerance ?? Math.max(n, p) * EPS) * Math.abs(rdiag[0] as number);
+  let rank = 0;
+  while (rank < p && Math.abs(rdiag[rank] as number) > tol) rank++;
+  const conditionNumber =
+    rank < p
+      ? Number.POSITIVE_INFINITY
+      : input.conditionNumber === false
+        ? Number.NaN
+        : triangularConditionNumber(r, p);
+  if (rank < p) {
+    return {
+      rank,
+      rankDeficient: true,
+      dependencies: dependentGroups(r, p, rank, perm),
+      coefficients: new Float64Array(p).fill(Number.NaN),
+      covariance: new Float64Array(p * p).fill(Number.NaN),
+      residuals: new Float64Array(n).fill(Number.NaN),
+      chiSquare: Number.NaN,
+      conditionNumber,
+    };
+  }
+  const coefficients = backSubstitute(qr, p);
+  const rinv = invertUpperTriangular(r, p);
+  const covariance = covarianceFrom(rinv, perm, scale, p);
+  const residuals = Float64Array.from(observations);
+  subtractDesignTimes(residuals, design, coefficients, n, p);
+  let chiSquare = 0;
+  for (let i = 0; i < n; i++) chiSquare += (residuals[i] as number) ** 2 * (weights ? (weights[i] as number) : 1);
+  let leverages: Float64Array | undefined;
+  if (input.leverage) {
+    const h = leveragesOf(sys.rows, p, sys.design, sys.weights, rinv, perm, scale);
+    leverages = merged ? spreadLeverages(h, merged, weights, n) : h;
+  }
+  return {
+    rank,
+    rankDeficient: false,
+    dependencies: [],
+    coefficients,
+    covariance,
+    residuals,
+    chiSquare,
+    conditionNumber,
+    ...(leverages ? { leverages } : {}),
+  };
+}
 
-  // Weighted, column-scaled working copy.
-  const a = new Float64Array(n * p);
-  const b = new Float64Array(n);
-  const sw = new Float64Array(n);
+/**
+ * One grow-only buffer for the working copies of every solve (the kernel is synchronous and never re-entered, so
+ * consecutive solves share it); results are always fresh arrays.
+ */
+let pool = new Float64Array(0);
+function workspace(length: number): Float64Array {
+  if (pool.length < length) pool = new Float64Array(Math.max(length, Math.ceil(pool.length * 1.5)));
+  return pool;
+}
+
+interface Factorisation {
+  /** Householder vectors below the diagonal, R above it, column-major rows × cols (in the shared workspace). */
+  readonly a: Float64Array;
+  /** Qᵀ √W y. */
+  readonly b: Float64Array;
+  readonly rdiag: Float64Array;
+  /** R (upper triangular cols × cols, row-major) in pivoted order. */
+  readonly r: Float64Array;
+  readonly perm: Int32Array;
+  /** Euclidean norm of each weighted design column (1 for an all-zero column). */
+  readonly scale: Float64Array;
+}
+
+/** Weighted, column-scaled working copy, then Householder QR with column pivoting (norm downdates as LAPACK xGEQP3). */
+function pivotedQR(
+  n: number,
+  p: number,
+  design: Float64Array,
+  observations: Float64Array,
+  weights: Float64Array | undefined,
+): Factorisation {
+  const buf = workspace(n * p + 3 * n);
+  const a = buf.subarray(0, n * p);
+  const b = buf.subarray(n * p, n * p + n);
+  const sw = buf.subarray(n * p + n, n * p + 2 * n);
+  const tmp = buf.subarray(n * p + 2 * n, n * p + 3 * n);
   for (let i = 0; i < n; i++) {
     const s = weights ? Math.sqrt(weights[i] as number) : 1;
     sw[i] = s;
     b[i] = (observations[i] as number) * s;
   }
+  const scale = scaledCopy(a, design, sw, n, p);
+  const perm = new Int32Array(p);
+  const colNorm = new Float64Array(p);
+  const colNormRef = new Float64Array(p);
+  for (let j = 0; j < p; j++) {
+    perm[j] = j;
+    // Columns were just scaled to unit norm (or are all zero).
+    colNorm[j] = scale[j] === 1 && !hasNonZero(a, j * n, n) ? 0 : 1;
+    colNormRef[j] = colNorm[j] as number;
+  }
+  const rdiag = new Float64Array(p);
+  for (let k = 0; k < p; k++) {
+    let best = k;
+    for (let j = k + 1; j < p; j++) if ((colNorm[j] as number) > (colNorm[best] as number)) best = j;
+    if (best !== k) {
+      tmp.set(a.subarray(k * n, k * n + n));
+      a.copyWithin(k * n, best * n, best * n + n);
+      a.set(tmp, best * n);
+      swap(perm, k, best);
+      swapF(colNorm, k, best);
+      swapF(colNormRef, k, best);
+    }
+    rdiag[k] = householderStep(a, b, n, p, k, colNorm, colNormRef);
+  }
+  const r = new Float64Array(p * p);
+  for (let i = 0; i < p; i++) {
+    r[i * p + i] = rdiag[i] as number;
+    for (let j = i + 1; j < p; j++) r[i * p + j] = a[j * n + i] as number;
+  }
+  return { a, b, rdiag, r, perm, scale };
+}
+
+/** a = design · diag(√w) with unit-norm columns; returns the column norms (1 for an all-zero column). */
+function scaledCopy(a: Float64Array, design: Float64Array, sw: Float64Array, n: number, p: number): Float64Array {
   const scale = new Float64Array(p);
   for (let j = 0; j < p; j++) {
     const off = j * n;
@@ -86,110 +209,75 @@ export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult 
       for (let i = 0; i < n; i++) a[off + i] = (a[off + i] as number) * inv;
     }
   }
+  return scale;
+}
 
-  // Householder QR with column pivoting.
-  const perm = new Int32Array(p);
-  const colNorm = new Float64Array(p);
-  const colNormRef = new Float64Array(p);
-  for (let j = 0; j < p; j++) {
-    perm[j] = j;
-    // Columns were just scaled to unit norm (or are all zero).
-    colNorm[j] = scale[j] === 1 && !hasNonZero(a, j * n, n) ? 0 : 1;
-    colNormRef[j] = colNorm[j] as number;
-  }
-  const rdiag = new Float64Array(p);
-  const tmp = new Float64Array(n);
-  for (let k = 0; k < p; k++) {
-    // Pivot: the remaining column of largest norm.
-    let best = k;
-    for (let j = k + 1; j < p; j++) if ((colNorm[j] as number) > (colNorm[best] as number)) best = j;
-    if (best !== k) {
-      const ok = k * n;
-      const ob = best * n;
-      tmp.set(a.subarray(ok, ok + n));
-      a.copyWithin(ok, ob, ob + n);
-      a.set(tmp, ob);
-      swap(perm, k, best);
-      swapF(colNorm, k, best);
-      swapF(colNormRef, k, best);
-    }
-    const off = k * n;
-    let ss = 0;
-    for (let i = k; i < n; i++) {
-      const v = a[off + i] as number;
-      ss += v * v;
-    }
-    let alpha = Math.sqrt(ss);
-    if (alpha === 0) {
-      rdiag[k] = 0;
-      continue;
-    }
-    if ((a[off + k] as number) > 0) alpha = -alpha;
-    // Reflector H = I − β v vᵀ with v = x − αe₁ stored in place of the column, α = −sign(x₁)‖x‖.
-    a[off + k] = (a[off + k] as number) - alpha;
-    // 2 / vᵀv with vᵀv = −2α·v₁ (v₁ = x₁ − α), which avoids cancellation.
-    const beta = -1 / (alpha * (a[off + k] as number));
-    const vk = a.subarray(off, off + n);
-    for (let j = k + 1; j < p; j++) {
-      const oj = j * n;
-      const cj = a.subarray(oj, oj + n);
-      axpy(cj, vk, -dot(vk, cj, k) * beta, k);
-      // Norm downdate of the remaining part of column j (LAPACK xGEQP3 style, with recomputation on loss).
-      const rkj = a[oj + k] as number;
-      const cn = colNorm[j] as number;
-      if (cn > 0) {
-        let t = 1 - (rkj / cn) ** 2;
-        t = Math.max(t, 0);
-        const ratio = cn / (colNormRef[j] as number);
-        if (t * ratio * ratio <= Math.sqrt(EPS)) {
-          let s2 = 0;
-          for (let i = k + 1; i < n; i++) {
-            const v = a[oj + i] as number;
-            s2 += v * v;
-          }
-          colNorm[j] = Math.sqrt(s2);
-          colNormRef[j] = colNorm[j] as number;
-        } else {
-          colNorm[j] = cn * Math.sqrt(t);
-        }
+/**
+ * Reflector k: H = I − β v vᵀ with v = x − αe₁ stored in place of column k, α = −sign(x₁)‖x‖, applied to the
+ * columns right of k and to b; the remaining column norms are downdated. Returns α, the diagonal of R.
+ */
+function householderStep(
+  a: Float64Array,
+  b: Float64Array,
+  n: number,
+  p: number,
+  k: number,
+  colNorm: Float64Array,
+  colNormRef: Float64Array,
+): number {
+  const off = k * n;
+  let ss = 0;
+  for (let i = k; i < n; i++) ss += (a[off + i] as number) ** 2;
+  let alpha = Math.sqrt(ss);
+  if (alpha === 0) return 0;
+  if ((a[off + k] as number) > 0) alpha = -alpha;
+  a[off + k] = (a[off + k] as number) - alpha;
+  // 2 / vᵀv with vᵀv = −2α·v₁ (v₁ = x₁ − α), which avoids cancellation.
+  const beta = -1 / (alpha * (a[off + k] as number));
+  for (let j = k + 1; j < p; j++) {
+    const oj = j * n;
+    reflect(a, oj, a, off, n, k, beta);
+    // Norm downdate of the remaining part of column j, recomputed when too much has cancelled.
+    const rkj = a[oj + k] as number;
+    const cn = colNorm[j] as number;
+    if (cn > 0) {
+      const t = Math.max(1 - (rkj / cn) ** 2, 0);
+      const ratio = cn / (colNormRef[j] as number);
+      if (t * ratio * ratio <= Math.sqrt(EPS)) {
+        let s2 = 0;
+        for (let i = k + 1; i < n; i++) s2 += (a[oj + i] as number) ** 2;
+        colNorm[j] = Math.sqrt(s2);
+        colNormRef[j] = colNorm[j] as number;
+      } else {
+        colNorm[j] = cn * Math.sqrt(t);
       }
     }
-    axpy(b, vk, -dot(vk, b, k) * beta, k);
-    rdiag[k] = alpha;
   }
+  reflect(b, 0, a, off, n, k, beta);
+  return alpha;
+}
 
-  // Numerical rank.
-  const tol = (input.rankTolerance ?? Math.max(n, p) * EPS) * Math.abs(rdiag[0] as number);
-  let rank = 0;
-  while (rank < p && Math.abs(rdiag[rank] as number) > tol) rank++;
-
-  // R (upper triangular p × p, row-major) in pivoted order.
-  const r = new Float64Array(p * p);
-  for (let i = 0; i < p; i++) {
-    r[i * p + i] = rdiag[i] as number;
-    for (let j = i + 1; j < p; j++) r[i * p + j] = a[j * n + i] as number;
+/** y[oy + i] −= β (v·y) v[ov + i] for i ≥ k: one reflector applied to one column (four accumulators in the dot). */
+function reflect(y: Float64Array, oy: number, v: Float64Array, ov: number, n: number, k: number, beta: number) {
+  let s0 = 0;
+  let s1 = 0;
+  let s2 = 0;
+  let s3 = 0;
+  let i = k;
+  for (; i + 3 < n; i += 4) {
+    s0 += (v[ov + i] as number) * (y[oy + i] as number);
+    s1 += (v[ov + i + 1] as number) * (y[oy + i + 1] as number);
+    s2 += (v[ov + i + 2] as number) * (y[oy + i + 2] as number);
+    s3 += (v[ov + i + 3] as number) * (y[oy + i + 3] as number);
   }
-  const conditionNumber =
-    rank < p
-      ? Number.POSITIVE_INFINITY
-      : input.conditionNumber === false
-        ? Number.NaN
-        : triangularConditionNumber(r, p);
+  for (; i < n; i++) s0 += (v[ov + i] as number) * (y[oy + i] as number);
+  const f = -(s0 + s1 + s2 + s3) * beta;
+  for (let t = k; t < n; t++) y[oy + t] = (y[oy + t] as number) + f * (v[ov + t] as number);
+}
 
-  if (rank < p) {
-    return {
-      rank,
-      rankDeficient: true,
-      dependencies: dependentGroups(r, p, rank, perm),
-      coefficients: new Float64Array(p).fill(Number.NaN),
-      covariance: new Float64Array(p * p).fill(Number.NaN),
-      residuals: new Float64Array(n).fill(Number.NaN),
-      chiSquare: Number.NaN,
-      conditionNumber,
-    };
-  }
-
-  // Back substitution R z = (Qᵀb)[0:p].
+/** Back substitution R z = (Qᵀb)[0:p], unpermuted and unscaled. */
+function backSubstitute(qr: Factorisation, p: number): Float64Array {
+  const { r, b, perm, scale } = qr;
   const z = new Float64Array(p);
   for (let i = p - 1; i >= 0; i--) {
     let s = b[i] as number;
@@ -201,9 +289,11 @@ export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult 
     const j = perm[k] as number;
     coefficients[j] = (z[k] as number) / (scale[j] as number);
   }
+  return coefficients;
+}
 
-  // R⁻¹ (upper triangular), then (RᵀR)⁻¹ = R⁻¹R⁻ᵀ, unpermuted and unscaled.
-  const rinv = invertUpperTriangular(r, p);
+/** (AᵀWA)⁻¹ = S⁻¹P R⁻¹R⁻ᵀ PᵀS⁻¹, row-major. */
+function covarianceFrom(rinv: Float64Array, perm: Int32Array, scale: Float64Array, p: number): Float64Array {
   const covariance = new Float64Array(p * p);
   for (let i = 0; i < p; i++) {
     for (let j = i; j < p; j++) {
@@ -216,75 +306,137 @@ export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult 
       covariance[pj * p + pi] = v;
     }
   }
+  return covariance;
+}
 
-  // Residuals column by column (contiguous access in the column-major design).
-  const residuals = Float64Array.from(observations);
+/** y −= A x, column by column (contiguous access in the column-major design). */
+function subtractDesignTimes(y: Float64Array, design: Float64Array, x: Float64Array, n: number, p: number) {
   for (let j = 0; j < p; j++) {
     const off = j * n;
-    const c = coefficients[j] as number;
-    for (let i = 0; i < n; i++) residuals[i] = (residuals[i] as number) - (design[off + i] as number) * c;
+    const c = x[j] as number;
+    for (let i = 0; i < n; i++) y[i] = (y[i] as number) - (design[off + i] as number) * c;
   }
-  let chiSquare = 0;
-  for (let i = 0; i < n; i++) {
-    const v = (residuals[i] as number) * (sw[i] as number);
-    chiSquare += v * v;
-  }
+}
 
-  let leverages: Float64Array | undefined;
-  if (input.leverage) {
-    // hᵢᵢ = ‖row i of Ã R⁻¹‖², Ã the weighted, scaled, permuted design; built one column of Ã R⁻¹ at a time.
-    leverages = new Float64Array(n);
-    const q = new Float64Array(n);
-    for (let c = 0; c < p; c++) {
-      q.fill(0);
-      for (let k = 0; k <= c; k++) {
-        const f = (rinv[k * p + c] as number) / (scale[perm[k] as number] as number);
-        if (f === 0) continue;
-        const off = (perm[k] as number) * n;
-        for (let i = 0; i < n; i++) q[i] = (q[i] as number) + (design[off + i] as number) * f;
-      }
-      for (let i = 0; i < n; i++) {
-        const v = (q[i] as number) * (sw[i] as number);
-        leverages[i] = (leverages[i] as number) + v * v;
-      }
+/** hᵢᵢ = ‖row i of Ã R⁻¹‖², Ã the weighted, scaled, permuted design; built one column of Ã R⁻¹ at a time. */
+function leveragesOf(
+  n: number,
+  p: number,
+  design: Float64Array,
+  weights: Float64Array | undefined,
+  rinv: Float64Array,
+  perm: Int32Array,
+  scale: Float64Array,
+): Float64Array {
+  const leverages = new Float64Array(n);
+  const q = workspace(n).subarray(0, n);
+  for (let c = 0; c < p; c++) {
+    q.fill(0);
+    for (let k = 0; k <= c; k++) {
+      const f = (rinv[k * p + c] as number) / (scale[perm[k] as number] as number);
+      if (f === 0) continue;
+      const off = (perm[k] as number) * n;
+      for (let i = 0; i < n; i++) q[i] = (q[i] as number) + (design[off + i] as number) * f;
     }
+    for (let i = 0; i < n; i++) leverages[i] = (leverages[i] as number) + (q[i] as number) ** 2;
   }
-
-  return {
-    rank,
-    rankDeficient: false,
-    dependencies: [],
-    coefficients,
-    covariance,
-    residuals,
-    chiSquare,
-    conditionNumber,
-    ...(leverages ? { leverages } : {}),
-  };
+  if (weights) for (let i = 0; i < n; i++) leverages[i] = (leverages[i] as number) * (weights[i] as number);
+  return leverages;
 }
 
-/** Σ x[i] y[i] for i ≥ from, with four accumulators (kept small so that V8 inlines it). */
-function dot(x: Float64Array, y: Float64Array, from: number): number {
-  const n = x.length;
-  let s0 = 0;
-  let s1 = 0;
-  let s2 = 0;
-  let s3 = 0;
-  let i = from;
-  for (; i + 3 < n; i += 4) {
-    s0 += (x[i] as number) * (y[i] as number);
-    s1 += (x[i + 1] as number) * (y[i + 1] as number);
-    s2 += (x[i + 2] as number) * (y[i + 2] as number);
-    s3 += (x[i + 3] as number) * (y[i + 3] as number);
-  }
-  for (; i < n; i++) s0 += (x[i] as number) * (y[i] as number);
-  return s0 + s1 + s2 + s3;
+/** Rows merged from identical design rows: Σw and the weighted mean of y, and the merged row of each input row. */
+interface MergedRows {
+  readonly rows: number;
+  readonly design: Float64Array;
+  readonly observations: Float64Array;
+  readonly weights: Float64Array;
+  readonly group: Int32Array;
 }
 
-/** y[i] += f x[i] for i ≥ from. */
-function axpy(y: Float64Array, x: Float64Array, f: number, from: number): void {
-  const n = x.length;
-  for (let i = from; i < n; i++) y[i] = (y[i] as number) + f * (x[i] as number);
+/**
+ * Identical design rows merged exactly: Σᵢ wᵢ(yᵢ − xβ)² = W(ȳ − xβ)² + a constant, W = Σwᵢ, ȳ = Σwᵢyᵢ / W, so the
+ * coefficients, covariance and R are those of the full system. Worth it only when rows repeat (at most half the
+ * rows distinct); otherwise undefined.
+ */
+function compressRows(
+  design: Float64Array,
+  n: number,
+  p: number,
+  observations: Float64Array,
+  weights: Float64Array | undefined,
+): MergedRows | undefined {
+  if (n < 64 || n < 4 * p) return undefined;
+  let size = 1;
+  while (size < 2 * n) size <<= 1;
+  const table = new Int32Array(size).fill(-1);
+  const group = new Int32Array(n);
+  const firstRow: number[] = [];
+  for (let i = 0; i < n; i++) {
+    let slot = rowHash(design, n, p, i) & (size - 1);
+    for (;;) {
+      const g = table[slot] as number;
+      if (g < 0) {
+        table[slot] = firstRow.length;
+        group[i] = firstRow.length;
+        firstRow.push(i);
+        break;
+      }
+      if (sameRow(design, n, p, i, firstRow[g] as number)) {
+        group[i] = g;
+        break;
+      }
+      slot = (slot + 1) & (size - 1);
+    }
+    if (firstRow.length > n / 2) return undefined;
+  }
+  const m = firstRow.length;
+  const merged = new Float64Array(m * p);
+  for (let j = 0; j < p; j++)
+    for (let g = 0; g < m; g++) merged[j * m + g] = design[j * n + (firstRow[g] as number)] as number;
+  const w = new Float64Array(m);
+  const wy = new Float64Array(m);
+  for (let i = 0; i < n; i++) {
+    const g = group[i] as number;
+    const wi = weights ? (weights[i] as number) : 1;
+    w[g] = (w[g] as number) + wi;
+    wy[g] = (wy[g] as number) + wi * (observations[i] as number);
+  }
+  for (let g = 0; g < m; g++) wy[g] = (w[g] as number) > 0 ? (wy[g] as number) / (w[g] as number) : 0;
+  return { rows: m, design: merged, observations: wy, weights: w, group };
+}
+
+const hashView = new Float64Array(1);
+const hashBits = new Int32Array(hashView.buffer);
+
+function rowHash(design: Float64Array, n: number, p: number, i: number): number {
+  let h = 0x811c9dc5 | 0;
+  for (let j = 0; j < p; j++) {
+    hashView[0] = (design[j * n + i] as number) + 0; // −0 and 0 alike
+    h = Math.imul(h ^ (hashBits[0] as number), 0x01000193);
+    h = Math.imul(h ^ (hashBits[1] as number), 0x01000193);
+  }
+  return h >>> 0;
+}
+
+function sameRow(design: Float64Array, n: number, p: number, i: number, k: number): boolean {
+  for (let j = 0; j < p; j++) if (design[j * n + i] !== design[j * n + k]) return false;
+  return true;
+}
+
+/** A row's share of its merged row's leverage is its share of the merged weight: hᵢ = h_g wᵢ / W_g. */
+function spreadLeverages(
+  h: Float64Array,
+  merged: MergedRows,
+  weights: Float64Array | undefined,
+  n: number,
+): Float64Array {
+  const out = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    const g = merged.group[i] as number;
+    const wg = merged.weights[g] as number;
+    out[i] = wg > 0 ? ((h[g] as number) * (weights ? (weights[i] as number) : 1)) / wg : 0;
+  }
+  return out;
 }
 
 function hasNonZero(a: Float64Array, off: number, n: number): boolean {

@@ -2,6 +2,7 @@ import { Matrix, QrDecomposition } from 'ml-matrix';
 import { describe, expect, it } from 'vitest';
 import { solveLeastSquares } from '../../src/linalg/least-squares.js';
 import { FILIP, LONGLEY, NORRIS, PONTIUS, type StrdDataset, WAMPLER } from '../fixtures/nist-strd/datasets.js';
+import { seededRandom } from '../helpers/random.js';
 
 /** Design matrix of a StRD dataset: intercept plus polynomial powers of x[0], or plain columns. */
 function designOf(d: StrdDataset): { rows: number; cols: number; design: Float64Array } {
@@ -125,5 +126,46 @@ describe('rank and conditioning', () => {
     const design = new Float64Array([1, 1, 1, 1, 1, -1, 1, -1]);
     const r = solveLeastSquares({ rows: 4, cols: 2, design, observations: new Float64Array([1, 2, 3, 4]) });
     expect(r.conditionNumber).toBeCloseTo(1, 12);
+  });
+  it('a list that repeats its transitions (merged rows) solves as ml-matrix does on the full weighted design', () => {
+    // 400 rows from 25 distinct rows of a cubic in x (each transition measured 16 times with its own weight):
+    // the kernel merges repeated rows; ml-matrix's QR (an independent library) sees all 400 weighted rows.
+    const u = seededRandom(21);
+    const n = 400;
+    const p = 4;
+    const design = new Float64Array(n * p);
+    const y = new Float64Array(n);
+    const w = new Float64Array(n);
+    const full = new Matrix(n, p);
+    const rhs = new Matrix(n, 1);
+    for (let i = 0; i < n; i++) {
+      const x = (i % 25) - 12;
+      w[i] = 0.5 + u();
+      y[i] = 3 - 0.7 * x + 0.02 * x ** 3 + (u() - 0.5) / Math.sqrt(w[i] as number);
+      for (let j = 0; j < p; j++) {
+        design[j * n + i] = x ** j;
+        full.set(i, j, x ** j * Math.sqrt(w[i] as number));
+      }
+      rhs.set(i, 0, (y[i] as number) * Math.sqrt(w[i] as number));
+    }
+    const r = solveLeastSquares({ rows: n, cols: p, design, observations: y, weights: w, leverage: true });
+    const ref = new QrDecomposition(full).solve(rhs);
+    // 12 significant digits (stated tolerance; the condition number of the scaled design is about 10).
+    for (let j = 0; j < p; j++) {
+      const e = ref.get(j, 0);
+      expect(Math.abs((r.coefficients[j] as number) - e)).toBeLessThan(1e-12 * Math.max(1, Math.abs(e)));
+    }
+    // χ² and residuals come from every row, not the merged ones: χ² = Σ wᵢ rᵢ² recomputed here.
+    let chi = 0;
+    for (let i = 0; i < n; i++) {
+      let fit = 0;
+      for (let j = 0; j < p; j++) fit += (design[j * n + i] as number) * (ref.get(j, 0) as number);
+      chi += (w[i] as number) * ((y[i] as number) - fit) ** 2;
+    }
+    expect(r.chiSquare).toBeCloseTo(chi, 8);
+    // Leverages: trace p, and rows of one transition share it in proportion to their weights.
+    const h = r.leverages as Float64Array;
+    expect(h.reduce((s, v) => s + v, 0)).toBeCloseTo(p, 10);
+    expect((h[0] as number) / (h[25] as number)).toBeCloseTo((w[0] as number) / (w[25] as number), 12);
   });
 });
