@@ -141,6 +141,7 @@ export const PAGE_POLICY = [
 ].join('; ');
 
 const STYLE = `
+[hidden]{display:none!important}
 body{font:14px/1.45 system-ui,-apple-system,"Segoe UI",Roboto,sans-serif;color:#1d2330;max-width:1000px;margin:0 auto;padding:20px}
 h1{font-size:20px;margin:0 0 6px}p{margin:4px 0 12px;color:#5b6474}
 textarea{width:100%;height:180px;font:12px ui-monospace,Menlo,Consolas,monospace;border:1px solid #c7ccd6;border-radius:4px;padding:8px;box-sizing:border-box}

@@ -207,11 +207,17 @@ function constantsSection(fit: Fit, warnings: readonly NumberedWarning[]): strin
         `<tr><td>${esc(b.species)}</td><td>${esc(b.band)}</td><td class="num">${esc(quantity(b.origin))}</td><td class="num">${b.lines}</td><td>${b.jRange[0]}–${b.jRange[1]}</td></tr>`,
     )
     .join('');
-  const bands = `<table id="bands"><caption>Bands</caption><thead><tr><th>species</th><th>band v′–v″</th><th>origin ν<sub>0</sub></th><th>lines</th><th>J″</th></tr></thead><tbody>${bandRows}</tbody></table>`;
+  const bandWarnings = warnings.filter((w) =>
+    /^(BAND_|OFFSET_|NUMBERING_|ASSIGNED_|NO_BAND|IDENTIFICATION_|COMBINATION_)/.test(w.code),
+  );
+  const bands = `<table id="bands"><caption>Bands${marks(bandWarnings)}</caption><thead><tr><th>species</th><th>band v′–v″</th><th>origin ν<sub>0</sub></th><th>lines</th><th>J″</th></tr></thead><tbody>${bandRows}</tbody></table>${warningNote(bandWarnings, 'band-notes')}`;
 
   const st = fit.statistics;
   const statWarnings = warnings.filter((w) => /^(UNCERTAINTY_|FEW_DEGREES|LINES_REJECTED|REPEATS)/.test(w.code));
-  const stats = `<p class="stats" id="statistics">${st.fitted} of ${st.lines} lines fitted, ${st.rejected} rejected, ${st.unassigned} unassigned; ${st.parameters} parameters, ${st.degreesOfFreedom} degrees of freedom; rms of residuals ${sig(st.rms, 2)} cm⁻¹${st.reducedChiSquare !== null ? `; reduced χ² ${st.reducedChiSquare.toFixed(2)}` : ''}; uncertainties ${st.uncertaintyMode === 'absolute' ? 'as sent (absolute)' : 'scaled by the scatter of the residuals (a-posteriori)'}${st.conditionNumber !== null ? `; condition number ${sig(st.conditionNumber, 2)}` : ''}.${marks(statWarnings)}</p>${warningNote(statWarnings, 'statistics-notes')}`;
+  const scatter = (fit.scatter ?? [])
+    .map((g) => `${g.group} (${g.by}, ${g.lines} lines): σ = ${sig(g.sigma, 2)} cm⁻¹`)
+    .join('; ');
+  const stats = `<p class="stats" id="statistics">${scatter ? `Lines sent without an uncertainty were weighted by the scatter of their group: ${esc(scatter)}. ` : ''}${st.fitted} of ${st.lines} lines fitted, ${st.rejected} rejected, ${st.unassigned} unassigned; ${st.parameters} parameters, ${st.degreesOfFreedom} degrees of freedom; rms of residuals ${sig(st.rms, 2)} cm⁻¹${st.reducedChiSquare !== null ? `; reduced χ² ${st.reducedChiSquare.toFixed(2)}` : ''}; uncertainties ${st.uncertaintyMode === 'absolute' ? 'as sent (absolute)' : 'scaled by the scatter of the residuals (a-posteriori)'}${st.conditionNumber !== null ? `; condition number ${sig(st.conditionNumber, 2)}` : ''}.${marks(statWarnings)}</p>${warningNote(statWarnings, 'statistics-notes')}`;
 
   const cross = fit.crossChecks.length
     ? `<table id="cross-checks"><caption>Cross-checks (approximations, reported as such)</caption><thead><tr><th>species</th><th>relation</th><th>estimate</th><th>fitted</th></tr></thead><tbody>${fit.crossChecks
@@ -522,7 +528,7 @@ const CSS = `
 *{box-sizing:border-box}body{font:14px/1.45 system-ui,-apple-system,"Segoe UI",Roboto,sans-serif;color:var(--ink);margin:0 auto;max-width:960px;padding:24px}
 h1{font-size:20px;margin:0 0 4px}h2{font-size:16px;margin:28px 0 8px;border-bottom:2px solid var(--rule);padding-bottom:4px}
 .sub{color:var(--muted);margin:0 0 12px}.muted{color:var(--muted)}
-.head{display:grid;grid-template-columns:1fr 1fr;gap:0 24px}
+.head{display:grid;grid-template-columns:1fr 1fr;gap:0 24px;align-items:start}
 table.kv th{width:34%;font-weight:600;color:var(--muted)}td.hash{font:11px ui-monospace,Menlo,Consolas,monospace;word-break:break-all}
 .verdict{display:flex;align-items:center;gap:16px;padding:14px 18px;border-radius:6px;color:#fff;font-weight:600;font-size:18px;margin-top:8px}
 .verdict.pass{background:var(--pass)}.verdict.warn{background:var(--warn)}.verdict.fail{background:var(--fail)}

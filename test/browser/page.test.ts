@@ -104,6 +104,8 @@ describe.skipIf(!existsSync(CHROMIUM))('in Chromium, by host name over plain HTT
     const response = await page.goto(`${open.base}/`);
     expect(response?.status()).toBe(200);
     expect(page.url()).toBe(`${open.base}/`);
+    // No keys configured: no key field in the way.
+    expect(await page.isVisible('#key')).toBe(false);
     await page.fill('#input', JSON.stringify({ lines: scan.peaks }));
     await page.fill('#species', 'HCl');
     await page.click('#sample summary');

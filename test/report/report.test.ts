@@ -259,3 +259,21 @@ describe('GET /', () => {
     expect(r.body).toMatch(/id="keyrow" hidden/);
   });
 });
+
+describe('warnings about the assignment and the weights sit beside the bands and the statistics', () => {
+  it('a list without uncertainties says how its lines were weighted, beside the statistics', async () => {
+    const bare = scan.peaks.map(({ position, intensity }) => ({ position, intensity }));
+    const fit = (
+      await app().inject({ method: 'POST', url: '/v1/fits', payload: { species: 'HCl', lines: bare } })
+    ).json();
+    const html = (await app().inject({ method: 'POST', url: '/v1/reports', payload: { species: 'HCl', lines: bare } }))
+      .body;
+    const estimated = (fit.warnings as { code: string; message: string }[]).findIndex((w) =>
+      w.code.startsWith('UNCERTAINTY_'),
+    );
+    expect(estimated).toBeGreaterThanOrEqual(0);
+    const stats = html.slice(html.indexOf('id="statistics"'), html.indexOf('</ul>', html.indexOf('id="statistics"')));
+    expect(stats).toContain(`W${estimated + 1}`);
+    expect(text(stats)).toMatch(/weighted by the scatter|σ =/);
+  });
+});
