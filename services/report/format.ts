@@ -28,7 +28,13 @@ export function superscript(n: number): string {
 const UNITS: Record<string, string> = { 'cm-1': 'cm⁻¹', angstrom: 'Å', u: 'u', K: 'K', ppm: 'ppm' };
 
 export function unitText(unit: string): string {
-  return UNITS[unit] ?? unit;
+  return (
+    UNITS[unit] ??
+    unit
+      .replace(/angstrom/g, 'Å')
+      .replace(/\^?-([1-9])\b/g, (_m, d: string) => `⁻${superscript(Number(d))}`)
+      .replace(/\^([2-9])\b/g, (_m, d: string) => superscript(Number(d)))
+  );
 }
 
 /** Decimal places that show an uncertainty u to two significant figures (0 … 12). */
