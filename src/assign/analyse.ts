@@ -9,6 +9,18 @@ import { isotopologuesMeant } from './candidates.js';
 import { type IdentificationCandidate, identifySpecies } from './identify.js';
 import { assignByStructure, extendByFit, MIN_MARGIN, type NumberingEvidence } from './structure.js';
 
+/** Weakest over strongest intensity when every line carries a positive one; undefined otherwise. */
+function dynamicRange(peaks: readonly PeakInput[]): number | undefined {
+  let lo = Number.POSITIVE_INFINITY;
+  let hi = 0;
+  for (const p of peaks) {
+    if (!(p.intensity !== undefined && p.intensity > 0)) return undefined;
+    lo = Math.min(lo, p.intensity);
+    hi = Math.max(hi, p.intensity);
+  }
+  return hi > 0 ? lo / hi : undefined;
+}
+
 /** One numbering in words: its shifts, origin, B″ and what counted against it. */
 export function describeEvidence(e: NumberingEvidence): string {
   const parts = [
@@ -123,11 +135,17 @@ export function analyseLineList(
     species = elementsOnly(iso);
   }
 
-  const mixture = isotopologuesMeant(species, 1e-3);
+  // With intensities, the dynamic range of the scan says how weak an isotopologue or a line can be and still be in
+  // it: down to half the weakest line's share of the strongest (never below 1e-6 in abundance, 1e-7 in intensity).
+  const range = dynamicRange(peaks);
+  const minAbundance = range ? Math.max(1e-6, Math.min(1e-3, 0.5 * range)) : 1e-3;
+  const minRelativeIntensity = range ? Math.max(1e-7, Math.min(1e-4, 0.5 * range)) : 1e-4;
+  const mixture = isotopologuesMeant(species, minAbundance);
   for (const m of mixture) if (!masses.has(m.iso.formula)) masses.set(m.iso.formula, reducedMass(m.iso));
 
   if (constantsFor(species)) {
     const r = assignAndFit(peaks, mixture, masses, {
+      minRelativeIntensity,
       ...(options.temperature !== undefined ? { temperature: options.temperature } : {}),
       ...(options.maxOffset !== undefined ? { maxOffset: options.maxOffset } : {}),
       ...(options.fit ? { fit: options.fit } : {}),

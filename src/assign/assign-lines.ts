@@ -9,6 +9,7 @@ import {
 } from '../fit/fit-lines.js';
 import { solveLeastSquares } from '../linalg/least-squares.js';
 import { formatBand, type Transition, transitionKey, transitionLabel } from '../models/transitions.js';
+import { constantsFor, dunhamFromEntry } from '../species/library.js';
 import type { Isotopologue } from '../species/parse.js';
 import type { MassValue } from '../species/reduced-mass.js';
 import { median as robustMedian, robustSigma } from '../stats/robust.js';
@@ -78,13 +79,15 @@ export interface AssignResult {
 const bandKey = (c: { species: string; band: { upper: number; lower: number } }) =>
   `${c.species}|${formatBand(c.band)}`;
 /** Lines the reference constants predict reliably enough to start from, before any fit (J″ ≤ this). */
-const START_J = 12;
+const START_J = 4;
 /** How far past the highest matched J a fitted band may reach in one step (at least; half the reach beyond). */
 const GROWTH_J = 3;
 /** Highest J″ a fitted band may grow to. */
 const MAX_J = 150;
 /** Half-width of a tolerance for a fitted band, in standard deviations of (prediction − observation). */
 const K_FITTED = 5;
+/** Largest ratio of a fitted prediction's standard uncertainty to the scatter of the lines. */
+const MAX_MODEL_TO_NOISE = 2;
 /** Lines of a band below which its scatter is pooled with all bands. */
 const MIN_FOR_OWN_SCATTER = 8;
 
@@ -107,6 +110,7 @@ export function assignAndFit(
     maxJ: options.maxJ ?? MAX_J,
   });
   const seedable = seedFilter(cands, options.minRelativeIntensity ?? 1e-4);
+  const spacing = lineSpacings(cands);
   const given = peaks.flatMap((p, index) => (p.assignment ? [{ index, t: p.assignment }] : []));
   const givenKeys = new Set(given.map((g) => transitionKey(g.t)));
   const free: ObservedPeak[] = peaks.flatMap((p, index) =>
@@ -122,6 +126,8 @@ export function assignAndFit(
         ],
   );
   const sourceOf = (i: number) => peaks[i]?.source ?? '';
+  const given_ = peaks.flatMap((p) => (p.uncertainty !== undefined ? [p.uncertainty] : []));
+  const typicalSigma = given_.length > 0 ? robustMedian(given_) : undefined;
   const sources = [...new Set(free.map((p) => sourceOf(p.index)))];
   const freeBySource = new Map(sources.map((s) => [s, free.filter((p) => sourceOf(p.index) === s)]));
 
@@ -197,7 +203,14 @@ export function assignAndFit(
         if (fitted && r !== undefined && residuals) {
           if (c.j > r + Math.max(GROWTH_J, Math.floor(r / 2))) return;
           const st = residuals.of(bk, src);
+          // Where the model's own uncertainty exceeds the scatter of the lines (twice it), the data have run out
+          // for this model: it must not reach further until nearer lines have sharpened it.
+          // Beyond the reach, a few lines at a time; further only where the model is still as sharp as the data.
+          const noise = Math.max(st.scatter, st.sigmaFactor * (typicalSigma ?? 0));
+          if (c.j > r + GROWTH_J && noise > 0 && Math.sqrt(fitted.variance) > MAX_MODEL_TO_NOISE * noise) return;
           const model = K_FITTED * Math.sqrt(fitted.variance) + 1e-6;
+          // A tolerance wider than a quarter of the line spacing tells nothing.
+          if (model > 0.25 * (spacing.get(bk) ?? Number.POSITIVE_INFINITY)) return;
           prediction = {
             position: fitted.value + st.shift,
             tolerance: Math.hypot(model, K_FITTED * st.scatter),
@@ -225,6 +238,7 @@ export function assignAndFit(
       }
       competitions.push(...m.competitions);
     }
+    resolveDoublets(next, peaks);
     pruneThinBands(next, options.minLinesPerBand ?? 4);
     pruneImplausibleBands(next, peaks);
     if (next.size === 0 && given.length === 0) break;
@@ -250,6 +264,21 @@ export function assignAndFit(
         notes.set(
           l.index,
           `automatic assignment to ${transitionLabel(c)} withdrawn: ${l.reason ?? 'rejected by the fit'}`,
+        );
+        withdrawn++;
+      }
+    }
+    // A band whose fitted rotational constants stray from the reference ones by more than a real band can (1 %)
+    // was made of coincidences: all its automatic lines go.
+    for (const bk of strayBands(fit, next, species)) {
+      for (const [i, c] of next) {
+        if (bandKey(c) !== bk) continue;
+        const key = `${i}|${transitionKey(c)}`;
+        banned.set(key, { at: iter, count: 2 });
+        next.delete(i);
+        notes.set(
+          i,
+          `automatic assignment to ${transitionLabel(c)} withdrawn: its band's fitted constants are far from the reference ones (chance coincidences)`,
         );
         withdrawn++;
       }
@@ -346,15 +375,21 @@ export function assignAndFit(
       let summary: BandSummary = { ...b, ...(b.matched > 0 && used.length > 0 ? { offsets: used } : {}) };
       const min = options.minLinesPerBand ?? 4;
       if (b.matched < min && strong.length >= 2 * min) {
-        const best = bestBandOffset(strong, free, maxOffset);
+        // Searched wider than maxOffset (up to 4×, within half the line spacing): the answer may be to widen it.
+        const wide = Math.min(4 * maxOffset, 0.45 * (spacing.get(k) ?? 4 * maxOffset));
+        const best = bestBandOffset(strong, free, Math.max(maxOffset, wide));
         summary = { ...summary, ...(best ? { bestOffset: best } : {}) };
         warnings.push({
           code: 'BAND_NOT_FOUND',
           message: `${b.species} band ${b.band}: ${strong.length} strong lines are predicted in the window but ${b.matched === 0 ? 'none was' : `only ${b.matched} were`} matched${
             best
-              ? `; its best offset within ±${maxOffset} cm-1 is ${best.offset >= 0 ? '+' : ''}${best.offset.toFixed(3)} cm-1 and matches ${best.matches} line(s)`
+              ? `; its best offset is ${best.offset >= 0 ? '+' : ''}${best.offset.toFixed(3)} cm-1, which matches ${best.matches} of them${
+                  Math.abs(best.offset) > maxOffset && best.matches >= min
+                    ? ` (beyond the ±${maxOffset} cm-1 searched: send a larger "maxOffset")`
+                    : ''
+                }`
               : ''
-          } (a larger calibration offset would need "maxOffset", or the band is absent or too weak)`,
+          }${best && best.matches >= min ? '' : ' (the band is absent, too weak, or shifted further)'}`,
         });
       }
       bands.push(summary);
@@ -576,6 +611,117 @@ function pruneImplausibleBands(auto: Map<number, CandidateLine>, peaks: readonly
       bad.add(bandKey(c));
   }
   for (const [i, c] of auto) if (bad.has(bandKey(c))) auto.delete(i);
+}
+
+/**
+ * Isotopologues of one molecule assigned jointly: where the same transition of two isotopologues lies closer than
+ * DOUBLET_WIDTH, the reference constants predict the splitting far better than either position (their errors are
+ * common to both, through the mass scaling), and the abundance ratio predicts the intensity ratio. Each such pair
+ * of matched peaks keeps the labelling that fits the predicted splitting and, when intensities were sent, the
+ * abundance ratio (a soft constraint, ln-ratio σ 0.3), or swaps its two labels when the swap fits better.
+ */
+function resolveDoublets(auto: Map<number, CandidateLine>, peaks: readonly PeakInput[]): void {
+  const groups = new Map<string, number[]>();
+  for (const [i, c] of auto) {
+    const k = `${formatBand(c.band)}|${c.branch}|${c.j}`;
+    const list = groups.get(k) ?? [];
+    list.push(i);
+    groups.set(k, list);
+  }
+  for (const list of groups.values()) {
+    if (list.length !== 2) continue;
+    const [i, k] = list as [number, number];
+    const a = auto.get(i) as CandidateLine;
+    const b = auto.get(k) as CandidateLine;
+    if (a.species === b.species) continue;
+    const predicted = a.position - b.position;
+    if (Math.abs(predicted) > DOUBLET_WIDTH) continue;
+    const pa = peaks[i] as PeakInput;
+    const pb = peaks[k] as PeakInput;
+    const observed = pa.position - pb.position;
+    const scale = Math.max(Math.abs(predicted) * 0.05, pa.uncertainty ?? 0, pb.uncertainty ?? 0, 1e-4);
+    let keep = ((observed - predicted) / scale) ** 2;
+    let swap = ((-observed - predicted) / scale) ** 2;
+    // The candidates' relative intensities carry the abundances.
+    if (pa.intensity && pb.intensity && a.intensity > 0 && b.intensity > 0) {
+      const expected = Math.log(a.intensity / b.intensity);
+      const lr = Math.log(pa.intensity / pb.intensity);
+      keep += ((lr - expected) / 0.3) ** 2;
+      swap += ((-lr - expected) / 0.3) ** 2;
+    }
+    if (swap < keep) {
+      auto.set(i, b);
+      auto.set(k, a);
+    }
+  }
+}
+
+/** Transitions of two isotopologues closer than this (cm⁻¹) are judged as a doublet. */
+const DOUBLET_WIDTH = 1;
+
+/** Largest relative difference between a fitted B_v and the reference one for a band to be believed. */
+const MAX_B_DEVIATION = 0.01;
+
+/**
+ * Bands with automatic lines whose levels' fitted B_v differ from the reference library's by more than
+ * MAX_B_DEVIATION (relative). Reference B_v = Σ_k Y_k1 (v + ½)^k.
+ */
+function strayBands(
+  fit: DetailedFit,
+  auto: ReadonlyMap<number, CandidateLine>,
+  species: readonly { iso: Isotopologue }[],
+): Set<string> {
+  const ref = new Map<string, Map<string, number>>();
+  for (const s of species) {
+    const e = constantsFor(s.iso);
+    if (e) ref.set(s.iso.formula, dunhamFromEntry(e));
+  }
+  const referenceB = (formula: string, v: number): number | undefined => {
+    const y = ref.get(formula);
+    if (!y) return undefined;
+    let b = 0;
+    for (const [k, val] of y) {
+      const [i, l] = k.split(',').map(Number) as [number, number];
+      if (l === 1) b += val * (v + 0.5) ** i;
+    }
+    return b;
+  };
+  const stray = new Set<string>();
+  const bands = new Map<string, CandidateLine>();
+  for (const c of auto.values()) bands.set(bandKey(c), c);
+  for (const [bk, c] of bands) {
+    for (const v of [c.band.lower, c.band.upper]) {
+      const level = fit.result.levels.find((l) => l.species === c.species && l.v === v);
+      const b = referenceB(c.species, v);
+      if (!level || b === undefined) continue;
+      if (Math.abs(level.B.value / b - 1) > MAX_B_DEVIATION) stray.add(bk);
+    }
+  }
+  return stray;
+}
+
+/** Per band, the median distance between neighbouring lines of one branch (about 2B). */
+function lineSpacings(cands: readonly CandidateLine[]): Map<string, number> {
+  const byBranch = new Map<string, Map<number, number>>();
+  for (const c of cands) {
+    const k = `${bandKey(c)}#${c.branch}`;
+    const m = byBranch.get(k) ?? new Map<number, number>();
+    m.set(c.j, c.position);
+    byBranch.set(k, m);
+  }
+  const d = new Map<string, number[]>();
+  for (const [k, m] of byBranch) {
+    const bk = k.slice(0, k.lastIndexOf('#'));
+    const list = d.get(bk) ?? [];
+    for (const [j, x] of m) {
+      const y = m.get(j + 1);
+      if (y !== undefined) list.push(Math.abs(y - x));
+    }
+    d.set(bk, list);
+  }
+  const out = new Map<string, number>();
+  for (const [k, list] of d) if (list.length > 0) out.set(k, robustMedian(list));
+  return out;
 }
 
 /** The band with the fewest automatically assigned lines. */

@@ -73,7 +73,10 @@ export function candidateLines(
       for (let dv = 0; dv <= (options.maxDeltaV ?? 4); dv++) {
         const band = { upper: lower + dv, lower };
         const strength = bandStrengthGuess(band) * abundance;
-        for (const p of predictBand(y, band, maxJ)) {
+        // Beyond the J where a level's energy polynomial stops rising, its predictions are artefacts of the
+        // truncated expansion (hydrides reach it near J ≈ 100): no line is predicted past the first such J.
+        const jTop = Math.min(maxJ, risingUpTo(energy, lower), risingUpTo(energy, lower + dv) - 1);
+        for (const p of predictBand(y, band, jTop)) {
           if (p.position < lo || p.position > hi) continue;
           const intensity = strength * relativeIntensity(p.position, p.branch, p.j, p.lowerEnergy, T);
           out.push({
@@ -95,6 +98,17 @@ export function candidateLines(
   return out
     .filter((c) => c.intensity >= floor && c.intensity > 0)
     .map((c) => ({ ...c, intensity: c.intensity / max }));
+}
+
+/** The highest J up to which E(v, J) rises with J (at most 400). */
+function risingUpTo(energy: (v: number, j: number) => number, v: number): number {
+  let prev = energy(v, 0);
+  for (let j = 1; j <= 400; j++) {
+    const e = energy(v, j);
+    if (!(e > prev)) return j - 1;
+    prev = e;
+  }
+  return 400;
 }
 
 /** Natural abundance of every isotopologue of the molecule a formula belongs to, by normalised formula. */
