@@ -12,6 +12,7 @@ import { createMetrics, type Metrics } from './metrics.js';
 import { finishDocument } from './openapi/finish.js';
 import { openapiInfo, PACKAGE_VERSION } from './openapi-info.js';
 import { pageRoute } from './page/route.js';
+import { admitBySize } from './plugins/admission.js';
 import { keyRing, requireApiKey } from './plugins/api-keys.js';
 import { parseBodies } from './plugins/body-parsers.js';
 import { docsPage } from './plugins/docs.js';
@@ -23,6 +24,7 @@ import { secureHeaders } from './plugins/security.js';
 import { shedLoad, watchEventLoop } from './plugins/shedding.js';
 import { createPool, type Pool } from './pool.js';
 import { hashRequestBodies } from './provenance.js';
+import { RawBody } from './raw-body.js';
 import { batchRoutes } from './rest/batch.js';
 import { checkRoutes } from './rest/checks.js';
 import { fitRoutes } from './rest/fits.js';
@@ -134,10 +136,15 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
     await limitRate(work, config, keys);
     requireApiKey(work, keys);
     shedLoad(work, config, signals, () => app.pool.queued);
+    admitBySize(work, config, app.pool);
     // The zod-validated REST routes live in their own encapsulated scope (STACK.md G3).
     await work.register(
       async (v1) => {
-        v1.setValidatorCompiler(validatorCompiler);
+        // A large body left unparsed (RawBody) is validated by the worker that parses it.
+        v1.setValidatorCompiler((route) => {
+          const validate = validatorCompiler(route as Parameters<typeof validatorCompiler>[0]);
+          return (data: unknown) => (data instanceof RawBody ? { value: data } : validate(data));
+        });
         v1.setSerializerCompiler(serializerCompiler);
         await v1.register(fitRoutes(config));
         await v1.register(checkRoutes(config));

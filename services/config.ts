@@ -40,12 +40,18 @@ export interface Config {
   readonly maxQueue: number;
   /**
    * Sum of the estimated sizes (lines; a spectrum counts a hundredth of its points) of the jobs admitted at once,
-   * running or queued; beyond it new work is refused with 503 + Retry-After. Default 250 000 (two 100 000-line
-   * fits and change). MAX_ACTIVE_LINES.
+   * running or queued; beyond it new work is refused with 503 + Retry-After, before its body is read when its
+   * Content-Length tells (about 100 bytes a line). Default 150 000: one 100 000-line fit (≈ 700 MB at its peak)
+   * and smaller work beside it. MAX_ACTIVE_LINES.
    */
   readonly maxActiveLines: number;
   /** Time a request's work may take once admitted, in ms; then it is stopped and answered 503 (0: none). Default 60 000. */
   readonly processingDeadlineMs: number;
+  /**
+   * Bodies of at least this many bytes on the work routes are parsed, validated and answered in a worker thread
+   * (when WORKERS > 0); 0: always on the event loop. Default 262 144 (256 KiB). OFFLOAD_BYTES.
+   */
+  readonly offloadBytes: number;
   /** Largest point or row count of a JCAMP-DX or CSV body (checked before allocating). Default 5 000 000. */
   readonly maxPoints: number;
   /**
@@ -112,8 +118,9 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     maxHeapUsedBytes: intFrom(env, 'MAX_HEAP_USED_BYTES', 0, 0, Number.MAX_SAFE_INTEGER),
     maxRssBytes: intFrom(env, 'MAX_RSS_BYTES', 0, 0, Number.MAX_SAFE_INTEGER),
     maxQueue: intFrom(env, 'MAX_QUEUE', 16, 0, 100_000),
-    maxActiveLines: intFrom(env, 'MAX_ACTIVE_LINES', 250_000, 1, 1_000_000_000),
+    maxActiveLines: intFrom(env, 'MAX_ACTIVE_LINES', 150_000, 1, 1_000_000_000),
     processingDeadlineMs: intFrom(env, 'PROCESSING_DEADLINE_MS', 60_000, 0, 3_600_000),
+    offloadBytes: intFrom(env, 'OFFLOAD_BYTES', 256 * 1024, 0, 1024 * 1024 * 1024),
     maxPoints: intFrom(env, 'MAX_POINTS', 5_000_000, 8, 100_000_000),
     trustProxy: trustProxyFrom(env.TRUST_PROXY),
     shutdownGraceMs: intFrom(env, 'SHUTDOWN_GRACE_MS', 30_000, 0, 3_600_000),

@@ -86,9 +86,16 @@ export class HttpProblem extends Error {
   readonly problem: Problem;
   readonly statusCode: number;
   readonly headers: Readonly<Record<string, string>>;
-  constructor(code: string, status: number, title: string, detail: string, headers: Record<string, string> = {}) {
+  constructor(
+    code: string,
+    status: number,
+    title: string,
+    detail: string,
+    headers: Record<string, string> = {},
+    extensions: Record<string, unknown> = {},
+  ) {
     super(detail);
-    this.problem = { type: problemType(code), title, status, detail, code };
+    this.problem = { ...extensions, type: problemType(code), title, status, detail, code };
     this.statusCode = status;
     this.headers = headers;
   }

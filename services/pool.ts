@@ -19,6 +19,8 @@ import { type Job, type JobResult, runJob } from './worker.js';
 export interface RunOptions {
   /** Aborts the job (e.g. the client closed the connection). */
   readonly signal?: AbortSignal;
+  /** The request was admitted (and its size reserved) before its body was read: no second admission. */
+  readonly admitted?: boolean;
 }
 
 export interface Pool {
@@ -29,6 +31,9 @@ export interface Pool {
   readonly queued: number;
   /** Estimated size (lines) of the jobs admitted and not yet finished. */
   readonly activeLines: number;
+  /** Reserve `lines` of the admission budget (false when it would overflow); give them back with release. */
+  reserve(lines: number): boolean;
+  release(lines: number): void;
 }
 
 const overloaded = (detail: string) =>
@@ -51,9 +56,31 @@ export function createPool(config: Config): Pool {
         })
       : undefined;
   let activeLines = 0;
+  const reserve = (lines: number) => {
+    if (activeLines > 0 && activeLines + lines > config.maxActiveLines) return false;
+    activeLines += lines;
+    return true;
+  };
+  const release = (lines: number) => {
+    activeLines -= lines;
+  };
   const unwrap = <T>(r: JobResult): T => {
     if (r.ok) return r.value as T;
     if ('nonFinite' in r) throw new NonFiniteResult(r.nonFinite.quantity, r.nonFinite.value);
+    if ('validation' in r) {
+      const errors = r.validation;
+      throw new HttpProblem(
+        'VALIDATION_FAILED',
+        400,
+        'Request does not match the schema',
+        errors
+          .slice(0, 5)
+          .map((e) => `${e.path}: ${e.message}`)
+          .join('; '),
+        {},
+        { errors },
+      );
+    }
     throw new ScienceError(r.error.code as ScienceErrorCode, r.error.message, r.error.details);
   };
   return {
@@ -64,18 +91,20 @@ export function createPool(config: Config): Pool {
     get activeLines() {
       return activeLines;
     },
+    reserve,
+    release,
     async run<T>(job: Job, size: number, options: RunOptions = {}): Promise<T> {
       if (!piscina || size < config.workerThreshold) return unwrap<T>(runJob(job));
       if (config.maxQueue > 0 && piscina.queueSize >= config.maxQueue)
         throw overloaded(`${piscina.queueSize} jobs are waiting for a worker (MAX_QUEUE ${config.maxQueue})`);
-      if (activeLines > 0 && activeLines + size > config.maxActiveLines)
+      const admit = !options.admitted;
+      if (admit && !reserve(size))
         throw overloaded(
           `${activeLines} lines are being processed and this request adds ${size} (MAX_ACTIVE_LINES ${config.maxActiveLines})`,
         );
       const deadline = config.processingDeadlineMs > 0 ? AbortSignal.timeout(config.processingDeadlineMs) : undefined;
       const signals = [deadline, options.signal].filter((s): s is AbortSignal => s !== undefined);
       const signal = signals.length > 0 ? AbortSignal.any(signals) : undefined;
-      activeLines += size;
       try {
         return unwrap<T>((await piscina.run(job, signal ? { signal } : {})) as JobResult);
       } catch (e) {
@@ -90,7 +119,7 @@ export function createPool(config: Config): Pool {
           throw new HttpProblem('CLIENT_CLOSED', 499, 'Client closed the request', 'the work was stopped');
         throw e;
       } finally {
-        activeLines -= size;
+        if (admit) release(size);
       }
     },
     async close() {

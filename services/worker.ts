@@ -1,8 +1,10 @@
+import { z } from 'zod';
 import { ScienceError } from '../src/errors.js';
 import type { Provenance } from './provenance.js';
-import type { CheckRequest } from './schemas/checks.js';
-import type { FitRequest } from './schemas/fit.js';
-import type { PeaksRequest } from './schemas/peaks.js';
+import { decodeBody, type Limits } from './raw-body.js';
+import { type CheckRequest, CheckResponseSchema, checkRequestSchema } from './schemas/checks.js';
+import { type FitRequest, FitResponseSchema, fitRequestSchema } from './schemas/fit.js';
+import { type PeaksRequest, PeaksRequestSchema, PeaksResponseSchema } from './schemas/peaks.js';
 import type { PotentialRequest } from './schemas/potentials.js';
 import type { PredictionRequest } from './schemas/predictions.js';
 import { runCheck } from './usecases/check.js';
@@ -20,12 +22,78 @@ export type Job =
   | { kind: 'report'; body: CheckRequest; provenance?: Provenance }
   | { kind: 'peaks'; body: PeaksRequest }
   | { kind: 'predict'; body: PredictionRequest }
-  | { kind: 'potential'; body: PotentialRequest };
+  | { kind: 'potential'; body: PotentialRequest }
+  | RawJob;
+
+/** A large body, as received: parsed, validated, run and serialised here (services/raw-body.ts). */
+export interface RawJob {
+  readonly kind: 'raw';
+  readonly route: 'fit' | 'check' | 'report' | 'peaks';
+  readonly text: string;
+  readonly contentType: string;
+  readonly query: Record<string, unknown>;
+  readonly limits: Limits;
+  readonly provenance: Provenance;
+}
+
+/** What a raw job answers: the response body, already serialised. */
+export interface RawAnswer {
+  readonly body: string;
+  readonly type: string;
+  /** The QA verdict, for the metrics. */
+  readonly verdict?: string;
+}
 
 export type JobResult =
   | { ok: true; value: unknown }
   | { ok: false; error: { code: string; message: string; details: Record<string, unknown> } }
-  | { ok: false; nonFinite: { quantity: string; value: string } };
+  | { ok: false; nonFinite: { quantity: string; value: string } }
+  | { ok: false; validation: { path: string; message: string }[] };
+
+class ValidationFailed extends Error {
+  constructor(readonly issues: z.core.$ZodIssue[]) {
+    super('validation failed');
+  }
+}
+
+const requestSchemas = new Map<string, z.ZodType>();
+function requestSchema(route: RawJob['route'], maxLines: number): z.ZodType {
+  const key = `${route}:${maxLines}`;
+  let s = requestSchemas.get(key);
+  if (!s) {
+    s =
+      route === 'fit'
+        ? fitRequestSchema(maxLines)
+        : route === 'peaks'
+          ? PeaksRequestSchema
+          : checkRequestSchema(maxLines);
+    requestSchemas.set(key, s);
+  }
+  return s;
+}
+
+function runRaw(job: RawJob): RawAnswer {
+  const parsed = requestSchema(job.route, job.limits.maxLines).safeParse(decodeBody(job, job.limits));
+  if (!parsed.success) throw new ValidationFailed(parsed.error.issues);
+  const body = parsed.data as FitRequest & { sample?: object };
+  if (job.route === 'report')
+    return { body: runReport(body as CheckRequest, { provenance: job.provenance }), type: 'text/html; charset=utf-8' };
+  const result =
+    job.route === 'fit'
+      ? runFit(body)
+      : job.route === 'check'
+        ? runCheck(body as CheckRequest)
+        : runPeaks(body as unknown as PeaksRequest);
+  const stamped = { ...assertFinite(result), ...(body.sample ? { sample: body.sample } : {}), ...job.provenance };
+  const responseSchema: z.ZodType =
+    job.route === 'fit' ? FitResponseSchema : job.route === 'check' ? CheckResponseSchema : PeaksResponseSchema;
+  const encoded = z.encode(responseSchema, stamped);
+  return {
+    body: JSON.stringify(encoded),
+    type: 'application/json; charset=utf-8',
+    ...('verdict' in result ? { verdict: String(result.verdict) } : {}),
+  };
+}
 
 function run(job: Job): unknown {
   switch (job.kind) {
@@ -41,6 +109,8 @@ function run(job: Job): unknown {
       return assertFinite(runPrediction(job.body));
     case 'potential':
       return assertFinite(runPotential(job.body));
+    case 'raw':
+      return runRaw(job);
   }
 }
 
@@ -52,6 +122,13 @@ export function runJob(job: Job): JobResult {
     if (e instanceof ScienceError)
       return { ok: false, error: { code: e.code, message: e.message, details: { ...e.details } } };
     if (e instanceof NonFiniteResult) return { ok: false, nonFinite: { quantity: e.quantity, value: e.value } };
+    if (e instanceof ValidationFailed)
+      return {
+        ok: false,
+        validation: e.issues.map((i) => ({ path: i.path.map(String).join('/') || '(body)', message: i.message })),
+      };
+    if (e instanceof Error && (e as { statusCode?: number }).statusCode === 400)
+      return { ok: false, validation: [{ path: '(body)', message: e.message }] };
     throw e;
   }
 }

@@ -1,27 +1,10 @@
 import type { FastifyInstance } from 'fastify';
 import type { Config } from '../config.js';
+import { jsonDepth, MAX_JSON_DEPTH, RawBody, tooDeep } from '../raw-body.js';
 import { NDJSON } from '../rest/batch.js';
 import { CSV_TYPES, JCAMP_TYPES, textBodyToJson } from '../text-bodies.js';
 
-/** Deepest JSON nesting accepted; the contract's bodies need 4 levels. */
-export const MAX_JSON_DEPTH = 32;
-
-export function jsonDepth(value: unknown): number {
-  let max = 0;
-  const stack: [unknown, number][] = [[value, 1]];
-  while (stack.length > 0) {
-    const [v, d] = stack.pop() as [unknown, number];
-    if (v === null || typeof v !== 'object') continue;
-    if (d > max) max = d;
-    if (max > MAX_JSON_DEPTH) return max;
-    for (const x of Array.isArray(v) ? v : Object.values(v as object)) stack.push([x, d + 1]);
-  }
-  return max;
-}
-
-export function tooDeep(): Error {
-  return Object.assign(new Error(`JSON nested deeper than ${MAX_JSON_DEPTH} levels`), { statusCode: 400 });
-}
+export { MAX_JSON_DEPTH };
 
 /**
  * Body parsers: JSON with a nesting limit (fastify's secure parser: prototype poisoning refused), JCAMP-DX and
@@ -30,14 +13,28 @@ export function tooDeep(): Error {
  */
 export function parseBodies(app: FastifyInstance, config: Config): void {
   const defaultJson = app.getDefaultJsonParser('error', 'error');
+  // Large bodies of the work routes go to a worker unparsed (services/raw-body.ts).
+  const offload = (req: { url: string }, body: string) =>
+    config.workers > 0 && config.offloadBytes > 0 && body.length >= config.offloadBytes && req.url.includes('/v1/');
   app.addContentTypeParser('application/json', { parseAs: 'string' }, (req, body, done) => {
+    if (offload(req, body as string))
+      return done(null, new RawBody(body as string, 'application/json', req.query as Record<string, unknown>));
     defaultJson(req, body as string, (err: Error | null, parsed?: unknown) => {
       if (err) return done(err, undefined);
-      if (jsonDepth(parsed) > MAX_JSON_DEPTH) return done(tooDeep(), undefined);
+      try {
+        if (jsonDepth(parsed) > MAX_JSON_DEPTH) return done(tooDeep(), undefined);
+      } catch (e) {
+        return done(e as Error, undefined);
+      }
       done(null, parsed);
     });
   });
   app.addContentTypeParser([...JCAMP_TYPES, ...CSV_TYPES], { parseAs: 'string' }, (req, body, done) => {
+    if (offload(req, body as string))
+      return done(
+        null,
+        new RawBody(body as string, String(req.headers['content-type']), req.query as Record<string, unknown>),
+      );
     try {
       done(
         null,

@@ -6,7 +6,7 @@ import { type CheckResponse, CheckResponseSchema, checkRequestSchema } from '../
 import { problemResponses } from '../schemas/common.js';
 import { PredictionRequestSchema, type PredictionResponse, PredictionResponseSchema } from '../schemas/predictions.js';
 import { SpeciesQuerySchema } from '../schemas/query.js';
-import { timed } from './timed.js';
+import { answerRawBody, timed, workOptions } from './timed.js';
 
 /** POST /v1/checks and POST /v1/predictions. */
 export const checkRoutes =
@@ -27,9 +27,11 @@ export const checkRoutes =
           response: { 200: CheckResponseSchema, ...problemResponses },
         },
       },
-      async (req) => {
+      async (req, reply) => {
+        const raw = await answerRawBody(app, config, 'check', req, reply);
+        if (raw) return raw;
         const r = await timed(app, 'check', jobSize(req.body), () =>
-          app.pool.run<CheckResponse>({ kind: 'check', body: req.body }, jobSize(req.body)),
+          app.pool.run<CheckResponse>({ kind: 'check', body: req.body }, jobSize(req.body), workOptions(req, reply)),
         );
         app.metrics.verdicts.labels(r.verdict).inc();
         return stamped(req, r, req.body.sample);

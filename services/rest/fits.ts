@@ -6,7 +6,7 @@ import { problemResponses } from '../schemas/common.js';
 import type { FitResponse } from '../schemas/fit.js';
 import { FitResponseSchema, fitRequestSchema } from '../schemas/fit.js';
 import { SpeciesQuerySchema } from '../schemas/query.js';
-import { timed } from './timed.js';
+import { answerRawBody, timed, workOptions } from './timed.js';
 
 /** POST /v1/fits. */
 export const fitRoutes =
@@ -27,9 +27,11 @@ export const fitRoutes =
           response: { 200: FitResponseSchema, ...problemResponses },
         },
       },
-      async (req) => {
+      async (req, reply) => {
+        const raw = await answerRawBody(app, config, 'fit', req, reply);
+        if (raw) return raw;
         const r = await timed(app, 'fit', jobSize(req.body), () =>
-          app.pool.run<FitResponse>({ kind: 'fit', body: req.body }, jobSize(req.body)),
+          app.pool.run<FitResponse>({ kind: 'fit', body: req.body }, jobSize(req.body), workOptions(req, reply)),
         );
         return stamped(req, r, req.body.sample);
       },

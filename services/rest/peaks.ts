@@ -4,7 +4,7 @@ import { jobSize } from '../pool.js';
 import { stamped } from '../provenance.js';
 import { problemResponses } from '../schemas/common.js';
 import { PeaksRequestSchema, type PeaksResponse, PeaksResponseSchema } from '../schemas/peaks.js';
-import { timed } from './timed.js';
+import { answerRawBody, timed, workOptions } from './timed.js';
 
 /** POST /v1/peaks. */
 export const peakRoutes =
@@ -24,9 +24,11 @@ export const peakRoutes =
           response: { 200: PeaksResponseSchema, ...problemResponses },
         },
       },
-      async (req) => {
+      async (req, reply) => {
+        const raw = await answerRawBody(app, config, 'peaks', req, reply);
+        if (raw) return raw;
         const r = await timed(app, 'peaks', jobSize(req.body), () =>
-          app.pool.run<PeaksResponse>({ kind: 'peaks', body: req.body }, jobSize(req.body)),
+          app.pool.run<PeaksResponse>({ kind: 'peaks', body: req.body }, jobSize(req.body), workOptions(req, reply)),
         );
         return stamped(req, r, req.body.sample);
       },

@@ -6,7 +6,7 @@ import { provenanceOf } from '../provenance.js';
 import { checkRequestSchema } from '../schemas/checks.js';
 import { problemResponses } from '../schemas/common.js';
 import { SpeciesQuerySchema } from '../schemas/query.js';
-import { timed } from './timed.js';
+import { answerRawBody, timed, workOptions } from './timed.js';
 
 /** POST /v1/reports. */
 export const reportRoutes =
@@ -31,8 +31,14 @@ export const reportRoutes =
         },
       },
       async (req, reply) => {
+        const raw = await answerRawBody(app, config, 'report', req, reply);
+        if (raw) return raw;
         const html = await timed(app, 'report', jobSize(req.body), () =>
-          app.pool.run<string>({ kind: 'report', body: req.body, provenance: provenanceOf(req) }, jobSize(req.body)),
+          app.pool.run<string>(
+            { kind: 'report', body: req.body, provenance: provenanceOf(req) },
+            jobSize(req.body),
+            workOptions(req, reply),
+          ),
         );
         return reply.type('text/html; charset=utf-8').send(html);
       },

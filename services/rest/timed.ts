@@ -1,4 +1,9 @@
-import type { FastifyInstance } from 'fastify';
+import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
+import type { Config } from '../config.js';
+import type { RunOptions } from '../pool.js';
+import { provenanceOf } from '../provenance.js';
+import { RawBody } from '../raw-body.js';
+import type { RawAnswer, RawJob } from '../worker.js';
 
 /** Run a use case and record its duration and size in the metrics. */
 export async function timed<T>(app: FastifyInstance, kind: string, size: number, f: () => Promise<T>): Promise<T> {
@@ -9,4 +14,45 @@ export async function timed<T>(app: FastifyInstance, kind: string, size: number,
   } finally {
     end();
   }
+}
+
+/**
+ * Options for the pool: a signal that aborts when the client goes away before its answer is written (the work for
+ * it is stopped), and whether the request was admitted before its body was read (plugins/admission.ts).
+ */
+export function workOptions(req: FastifyRequest, reply: FastifyReply): RunOptions {
+  const c = new AbortController();
+  reply.raw.once('close', () => {
+    if (!reply.raw.writableFinished) c.abort();
+  });
+  return { signal: c.signal, admitted: req.admittedLines !== undefined };
+}
+
+/**
+ * Answer a large body (left unparsed by the body parser) from a worker that parses, validates, runs and serialises
+ * it; undefined when the body was parsed here as usual.
+ */
+export async function answerRawBody(
+  app: FastifyInstance,
+  config: Config,
+  route: RawJob['route'],
+  req: FastifyRequest,
+  reply: FastifyReply,
+): Promise<FastifyReply | undefined> {
+  if (!(req.body instanceof RawBody)) return undefined;
+  const raw = req.body;
+  const job: RawJob = {
+    kind: 'raw',
+    route,
+    text: raw.text,
+    contentType: raw.contentType,
+    query: raw.query,
+    limits: { maxLines: config.maxLines, maxPoints: config.maxPoints },
+    provenance: provenanceOf(req),
+  };
+  const a = await timed(app, route, raw.size, () =>
+    app.pool.run<RawAnswer>(job, Math.max(raw.size, config.workerThreshold), workOptions(req, reply)),
+  );
+  if (a.verdict) app.metrics.verdicts.labels(a.verdict).inc();
+  return reply.type(a.type).send(a.body);
 }

@@ -1,0 +1,118 @@
+import { describe, expect, it } from 'vitest';
+import { buildApp } from '../../services/app.js';
+import { DEFAULT_CONFIG } from '../../services/config.js';
+import { useApp } from '../helpers/app.js';
+import { nextClient } from '../helpers/clients.js';
+import { assignedFitBody } from '../helpers/requests.js';
+
+/**
+ * Large bodies (≥ OFFLOAD_BYTES, 256 KiB by default) are parsed, validated, run and serialised in a worker: the
+ * answers must be the ones the event loop would give (same numbers, same problems), and admission refuses a large
+ * request before reading its body when the budget is taken. Defaults of `npm start` unless a test says otherwise.
+ */
+const app = useApp();
+const small = assignedFitBody('HCl', ['1-0', '2-0'], 20, 0.002, 11);
+// Repeated scans of the same lines (an averaging run), past 256 KiB of JSON.
+const large = { species: 'HCl', lines: Array.from({ length: 40 }, () => small.lines).flat() };
+
+describe('large bodies off the event loop', () => {
+  it('a large body gets the answer the event loop gives (WORKERS=0 for the reference)', async () => {
+    const payload = JSON.stringify(large);
+    expect(payload.length).toBeGreaterThan(DEFAULT_CONFIG.offloadBytes);
+    const inline = await buildApp({ config: { ...DEFAULT_CONFIG, workers: 0 } });
+    const a = await inline.inject({
+      method: 'POST',
+      url: '/v1/fits',
+      payload,
+      headers: { 'content-type': 'application/json' },
+    });
+    await inline.close();
+    const b = await app().inject({
+      method: 'POST',
+      url: '/v1/fits',
+      payload,
+      headers: { 'content-type': 'application/json' },
+      remoteAddress: nextClient(),
+    });
+    expect(a.statusCode).toBe(200);
+    expect(b.statusCode).toBe(200);
+    expect(b.headers['content-type']).toMatch(/^application\/json/);
+    // Same parameters to the last digit (the same code ran, in another thread); provenance hashes the same bytes.
+    expect(b.json().parameters).toEqual(a.json().parameters);
+    expect(b.json().input.sha256).toBe(a.json().input.sha256);
+  });
+
+  it('a large body that breaks the schema gets the same 400 problem, with paths', async () => {
+    const broken = { ...large, lines: large.lines.map((l, i) => (i === 1234 ? { ...l, position: -1 } : l)) };
+    const r = await app().inject({ method: 'POST', url: '/v1/fits', payload: broken, remoteAddress: nextClient() });
+    expect(r.statusCode).toBe(400);
+    expect(r.headers['content-type']).toMatch(/^application\/problem\+json/);
+    expect(r.json().code).toBe('VALIDATION_FAILED');
+    expect(r.json().errors[0].path).toBe('lines/1234/position');
+  });
+
+  it('a large body of bad JSON, or nested too deep, is a 4xx problem', async () => {
+    const text = `${JSON.stringify(large).slice(0, -10)}`;
+    const r = await app().inject({
+      method: 'POST',
+      url: '/v1/checks',
+      payload: text,
+      headers: { 'content-type': 'application/json' },
+      remoteAddress: nextClient(),
+    });
+    expect(r.statusCode).toBeGreaterThanOrEqual(400);
+    expect(r.statusCode).toBeLessThan(500);
+    const deep = `${'['.repeat(40)}${' '.repeat(300_000)}${']'.repeat(40)}`;
+    const d = await app().inject({
+      method: 'POST',
+      url: '/v1/fits',
+      payload: deep,
+      headers: { 'content-type': 'application/json' },
+      remoteAddress: nextClient(),
+    });
+    expect(d.statusCode).toBe(400);
+  });
+
+  it('admission: a second large request while the budget is taken is a 503 with Retry-After, before its body is read', async () => {
+    const tight = await buildApp({ config: { ...DEFAULT_CONFIG, maxActiveLines: 3000 } });
+    const payload = JSON.stringify(large);
+    const first = tight.inject({
+      method: 'POST',
+      url: '/v1/fits',
+      payload,
+      headers: { 'content-type': 'application/json' },
+    });
+    // Let the first one be admitted, then send the second while it runs.
+    await new Promise((r) => setTimeout(r, 20));
+    const second = await tight.inject({
+      method: 'POST',
+      url: '/v1/fits',
+      payload,
+      headers: { 'content-type': 'application/json' },
+    });
+    expect((await first).statusCode).toBe(200);
+    expect(second.statusCode).toBe(503);
+    expect(second.headers['retry-after']).toBe('10');
+    expect(second.json().code).toBe('OVERLOADED');
+    // Once the first is answered its reservation is given back.
+    const third = await tight.inject({
+      method: 'POST',
+      url: '/v1/fits',
+      payload,
+      headers: { 'content-type': 'application/json' },
+    });
+    expect(third.statusCode).toBe(200);
+    await tight.close();
+  });
+
+  it('a processing deadline stops the work and answers 503 DEADLINE_EXCEEDED', async () => {
+    const hurried = await buildApp({ config: { ...DEFAULT_CONFIG, processingDeadlineMs: 1 } });
+    const r = await hurried.inject({ method: 'POST', url: '/v1/fits', payload: large });
+    expect(r.statusCode).toBe(503);
+    expect(r.json().code).toBe('DEADLINE_EXCEEDED');
+    // The pool is usable afterwards (the stopped worker was replaced).
+    const again = await hurried.inject({ method: 'POST', url: '/v1/fits', payload: small });
+    expect(again.statusCode).toBe(200);
+    await hurried.close();
+  });
+});
