@@ -6,7 +6,7 @@ import { runChecks } from '../../src/qa/checks.js';
 import { parseSpecies } from '../../src/species/parse.js';
 
 /**
- * Real database lines of 12C16O (../shared/fixtures/co-database-lines/: HITRAN2020, Gordon et al., JQSRT 277,
+ * Real database lines of 12C16O (test/fixtures/co-database-lines/, a copy of ../shared/fixtures/co-database-lines/: HITRAN2020, Gordon et al., JQSRT 277,
  * 107949 (2022)) sent WITHOUT their assignments: the assignment must give back the published labels. Shares are
  * counted over every line: correct (the published label), wrong (another label), unassigned.
  */
@@ -18,7 +18,7 @@ interface DbLine {
   uncertainty: number;
 }
 const fixture = JSON.parse(
-  readFileSync(new URL('../../../../shared/fixtures/co-database-lines/lines.json', import.meta.url), 'utf8'),
+  readFileSync(new URL('../fixtures/co-database-lines/lines.json', import.meta.url), 'utf8'),
 ) as { lines: DbLine[] };
 
 function shares(lines: readonly DbLine[], withUncertainty: boolean) {
