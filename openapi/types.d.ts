@@ -285,6 +285,8 @@ export interface components {
             parameters: string[];
           };
           parameters: {
+              /** @description with ?display=rounded: the value rounded to two significant digits of its uncertainty, e.g. "2143.27123 ± 0.00046" */
+              display?: string;
               name: string;
               species?: string;
               uncertainty: number;
@@ -309,6 +311,8 @@ export interface components {
           r?: components["schemas"]["Quantity"];
           species: string;
           term?: {
+            /** @description with ?display=rounded: the value rounded to two significant digits of its uncertainty, e.g. "2143.27123 ± 0.00046" */
+            display?: string;
             relativeTo: number;
             /** @description standard uncertainty, coverage factor k = 1 */
             uncertainty: number;
@@ -350,6 +354,8 @@ export interface components {
           parameters: string[];
         };
         parameters: {
+            /** @description with ?display=rounded: the value rounded to two significant digits of its uncertainty, e.g. "2143.27123 ± 0.00046" */
+            display?: string;
             name: string;
             species?: string;
             uncertainty: number;
@@ -375,6 +381,8 @@ export interface components {
       /** @description safety caution: the service certifies nothing about a gas */
       notice: string;
       parameters: {
+          /** @description with ?display=rounded: the value rounded to two significant digits of its uncertainty, e.g. "2143.27123 ± 0.00046" */
+          display?: string;
           name: string;
           species?: string;
           uncertainty: number;
@@ -510,6 +518,8 @@ export interface components {
             parameters: string[];
           };
           parameters: {
+              /** @description with ?display=rounded: the value rounded to two significant digits of its uncertainty, e.g. "2143.27123 ± 0.00046" */
+              display?: string;
               name: string;
               species?: string;
               uncertainty: number;
@@ -535,6 +545,8 @@ export interface components {
           r?: components["schemas"]["Quantity"];
           species: string;
           term?: {
+            /** @description with ?display=rounded: the value rounded to two significant digits of its uncertainty, e.g. "2143.27123 ± 0.00046" */
+            display?: string;
             relativeTo: number;
             /** @description standard uncertainty, coverage factor k = 1 */
             uncertainty: number;
@@ -576,6 +588,8 @@ export interface components {
           parameters: string[];
         };
         parameters: {
+            /** @description with ?display=rounded: the value rounded to two significant digits of its uncertainty, e.g. "2143.27123 ± 0.00046" */
+            display?: string;
             name: string;
             species?: string;
             uncertainty: number;
@@ -601,6 +615,8 @@ export interface components {
       /** @description safety caution: the service certifies nothing about a gas */
       notice: string;
       parameters: {
+          /** @description with ?display=rounded: the value rounded to two significant digits of its uncertainty, e.g. "2143.27123 ± 0.00046" */
+          display?: string;
           name: string;
           species?: string;
           uncertainty: number;
@@ -948,6 +964,8 @@ export interface components {
     };
     /** @description A fitted or derived number with its standard uncertainty and unit. */
     Quantity: {
+      /** @description with ?display=rounded: the value rounded to two significant digits of its uncertainty, e.g. "2143.27123 ± 0.00046" */
+      display?: string;
       /** @description standard uncertainty, coverage factor k = 1 */
       uncertainty: number;
       unit: string;
@@ -1289,6 +1307,10 @@ export interface operations {
         /** @description ISO 8601; checked as in the JSON `sample` */
         "sample.measuredAt"?: string;
         "sample.notes"?: string;
+        /** @description rounded: every value with an uncertainty also carries `display`, rounded to two significant digits of its uncertainty (the numbers stay full precision) */
+        display?: "rounded";
+        /** @description with Accept: text/csv, which table: lines (default), constants, or checks (/v1/checks only) */
+        table?: "lines" | "constants" | "checks";
       };
     };
     requestBody: {
@@ -1350,10 +1372,11 @@ export interface operations {
       };
     };
     responses: {
-      /** @description the result */
+      /** @description the result: JSON, or CSV when Accept prefers text/csv */
       200: {
         content: {
           "application/json": components["schemas"]["CheckResponse"];
+          "text/csv": string;
         };
       };
       /** @description malformed request: invalid JSON, schema violations (with paths), forbidden properties */
@@ -1411,6 +1434,10 @@ export interface operations {
         /** @description ISO 8601; checked as in the JSON `sample` */
         "sample.measuredAt"?: string;
         "sample.notes"?: string;
+        /** @description rounded: every value with an uncertainty also carries `display`, rounded to two significant digits of its uncertainty (the numbers stay full precision) */
+        display?: "rounded";
+        /** @description with Accept: text/csv, which table: lines (default), constants, or checks (/v1/checks only) */
+        table?: "lines" | "constants" | "checks";
       };
     };
     requestBody: {
@@ -1472,10 +1499,11 @@ export interface operations {
       };
     };
     responses: {
-      /** @description the result */
+      /** @description the result: JSON, or CSV when Accept prefers text/csv */
       200: {
         content: {
           "application/json": components["schemas"]["FitResponse"];
+          "text/csv": string;
         };
       };
       /** @description malformed request: invalid JSON, schema violations (with paths), forbidden properties */

@@ -118,6 +118,14 @@ const BODIES: Record<string, { json?: Record<string, unknown>; text?: Record<str
   checkBatch: { text: { [NDJSON]: text('one /v1/checks request body a line', ndjsonExample) } },
 };
 
+/** Operations that answer CSV when the Accept header prefers text/csv. */
+const CSV_RESULTS: Record<string, string> = {
+  fitLines:
+    'with Accept: text/csv, the per-line table (?table=lines, the default: index, id, species, band, branch, j, position (cm-1), uncertainty (cm-1), intensity, calculated (cm-1), residual (cm-1), studentised residual, status, assignment source, reason) or the constants table (?table=constants: group, species, band or level, name, value, uncertainty, unit, display)',
+  checkLines:
+    'with Accept: text/csv, the per-line table of the fit (?table=lines, the default), its constants (?table=constants) or the checks (?table=checks: check, status, message, measured, limit)',
+};
+
 /** Examples of the query parameters that go with JCAMP-DX and CSV bodies. */
 const QUERY_EXAMPLES: Record<string, string> = { species: '12C16O', temperature: '296' };
 
@@ -308,6 +316,12 @@ export function finishDocument<T>(generated: T, version: string): T {
         if (param.in === 'query' && example !== undefined) param.example = example;
       }
       if (extra?.text) op.requestBody = { ...body, required: true, content: { ...content, ...extra.text } };
+      const csvResult = CSV_RESULTS[id];
+      const ok = obj(obj(op.responses)['200']);
+      if (csvResult && isObj(ok.content)) {
+        ok.content['text/csv'] = { schema: { type: 'string', description: csvResult } };
+        ok.description = 'the result: JSON, or CSV when Accept prefers text/csv';
+      }
       if (path.startsWith('/v1/')) {
         op.security = [{ bearerAuth: [] }, {}];
         const responses = obj(op.responses);

@@ -1,11 +1,12 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import type { Config } from '../config.js';
+import { resultInForm } from '../formats/respond.js';
 import { jobSize } from '../pool.js';
 import { stamped } from '../provenance.js';
 import { type CheckResponse, CheckResponseSchema, checkRequestSchema } from '../schemas/checks.js';
 import { problemResponses } from '../schemas/common.js';
 import { PredictionRequestSchema, type PredictionResponse, PredictionResponseSchema } from '../schemas/predictions.js';
-import { SpeciesQuerySchema } from '../schemas/query.js';
+import { ResultQuerySchema } from '../schemas/query.js';
 import { answerRawBody, timed, workOptions } from './timed.js';
 
 /** POST /v1/checks and POST /v1/predictions. */
@@ -22,7 +23,7 @@ export const checkRoutes =
           summary: 'QA verdict on a line list or spectrum',
           description:
             'Fits the lines (assigning them if needed) and checks identity, wavenumber calibration, unexplained lines, isotope ratio, rotational temperature and fit quality against a tolerance profile. Not a safety or purity certification.',
-          querystring: SpeciesQuerySchema,
+          querystring: ResultQuerySchema,
           body: checkRequestSchema(config.maxLines),
           response: { 200: CheckResponseSchema, ...problemResponses },
         },
@@ -34,7 +35,7 @@ export const checkRoutes =
           app.pool.run<CheckResponse>({ kind: 'check', body: req.body }, jobSize(req.body), workOptions(req, reply)),
         );
         app.metrics.verdicts.labels(r.verdict).inc();
-        return stamped(req, r, req.body.sample);
+        return resultInForm(req, reply, 'check', stamped(req, r, req.body.sample));
       },
     );
     app.post(

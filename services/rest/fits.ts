@@ -1,11 +1,12 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import type { Config } from '../config.js';
+import { resultInForm } from '../formats/respond.js';
 import { jobSize } from '../pool.js';
 import { stamped } from '../provenance.js';
 import { problemResponses } from '../schemas/common.js';
 import type { FitResponse } from '../schemas/fit.js';
 import { FitResponseSchema, fitRequestSchema } from '../schemas/fit.js';
-import { SpeciesQuerySchema } from '../schemas/query.js';
+import { ResultQuerySchema } from '../schemas/query.js';
 import { answerRawBody, timed, workOptions } from './timed.js';
 
 /** POST /v1/fits. */
@@ -22,7 +23,7 @@ export const fitRoutes =
           summary: 'Fit a line list or a spectrum',
           description:
             'Fits band origins, per-level rotational and centrifugal constants and, across bands, Dunham coefficients and equilibrium constants, with full covariance. Unassigned lines are assigned first; a spectrum (JSON, JCAMP-DX or CSV) is turned into peaks first. Lines come back in request order with their status.',
-          querystring: SpeciesQuerySchema,
+          querystring: ResultQuerySchema,
           body: fitRequestSchema(config.maxLines),
           response: { 200: FitResponseSchema, ...problemResponses },
         },
@@ -33,7 +34,7 @@ export const fitRoutes =
         const r = await timed(app, 'fit', jobSize(req.body), () =>
           app.pool.run<FitResponse>({ kind: 'fit', body: req.body }, jobSize(req.body), workOptions(req, reply)),
         );
-        return stamped(req, r, req.body.sample);
+        return resultInForm(req, reply, 'fit', stamped(req, r, req.body.sample));
       },
     );
   };

@@ -1,10 +1,19 @@
 import { z } from 'zod';
 
+/** The rounded form of a value with its uncertainty, present only when asked for with `?display=rounded`. */
+export const DisplaySchema = z
+  .string()
+  .optional()
+  .describe(
+    'with ?display=rounded: the value rounded to two significant digits of its uncertainty, e.g. "2143.27123 ± 0.00046"',
+  );
+
 export const QuantitySchema = z
   .object({
     value: z.number(),
     uncertainty: z.number().describe('standard uncertainty, coverage factor k = 1'),
     unit: z.string(),
+    display: DisplaySchema,
   })
   .meta({ id: 'Quantity', description: 'A fitted or derived number with its standard uncertainty and unit.' });
 

@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { POSITION_UNITS } from '../../src/units.js';
-import { MatrixSchema, QuantitySchema, WarningSchema } from './common.js';
+import { DisplaySchema, MatrixSchema, QuantitySchema, WarningSchema } from './common.js';
 import { provenanceAndSampleFields, SampleSchema } from './provenance.js';
 
 /** Zod schemas of POST /v1/fits: the single source of the wire format, of its validation and of the OpenAPI. */
@@ -209,6 +209,7 @@ const NamedQuantity = z.object({
   uncertainty: z.number(),
   unit: z.string(),
   species: z.string().optional(),
+  display: DisplaySchema,
 });
 
 const DunhamFitSchema = z.object({

@@ -16,3 +16,17 @@ export const SpeciesQuerySchema = z.strictObject({
   'sample.measuredAt': z.string().max(40).optional().describe('ISO 8601; checked as in the JSON `sample`'),
   'sample.notes': z.string().max(10_000).optional(),
 });
+
+/** Query string of /v1/fits and /v1/checks: the species query plus the form of the result. */
+export const ResultQuerySchema = SpeciesQuerySchema.extend({
+  display: z
+    .enum(['rounded'])
+    .optional()
+    .describe(
+      'rounded: every value with an uncertainty also carries `display`, rounded to two significant digits of its uncertainty (the numbers stay full precision)',
+    ),
+  table: z
+    .enum(['lines', 'constants', 'checks'])
+    .optional()
+    .describe('with Accept: text/csv, which table: lines (default), constants, or checks (/v1/checks only)'),
+});

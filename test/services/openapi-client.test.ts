@@ -117,7 +117,10 @@ describe('a typed client generated from the document, used against the running s
     expect(fit.response.status).toBe(200);
     // CO 1-0 band origin 2143.27 cm-1 (Huber & Herzberg; from memory); the example lines are an invented scan
     // generated from the library constants with 0.002 cm-1 noise, so 0.01 cm-1 is ample.
-    const origin = fit.data?.bands.find((b) => b.band === '1-0')?.origin;
+    // The document declares JSON or CSV (Accept: text/csv) for this answer; without Accept it is JSON.
+    const data = fit.data;
+    if (data === undefined || typeof data === 'string') throw new Error('expected the JSON form');
+    const origin = data.bands.find((b) => b.band === '1-0')?.origin;
     expect(origin?.value).toBeCloseTo(2143.27, 1);
     expect(Math.abs((origin?.value ?? 0) - 2143.27)).toBeLessThan(0.01);
 

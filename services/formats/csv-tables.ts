@@ -1,0 +1,137 @@
+import type { CheckResponse } from '../schemas/checks.js';
+import type { FitResponse } from '../schemas/fit.js';
+import { roundedDisplay } from './round.js';
+
+/**
+ * Results as the tables labs file: the per-line table, the constants table and, for checks, the checks table, as
+ * RFC 4180 CSV (comma-separated, CRLF line ends, fields quoted when needed). Numbers keep full precision; the
+ * constants table adds the rounded display form beside each value. Units are in the column names, written so that
+ * the service's own CSV reader takes the lines table back ("position (cm-1)").
+ */
+
+type Cell = string | number | undefined | null;
+
+const cell = (v: Cell): string => {
+  if (v === undefined || v === null) return '';
+  const s = typeof v === 'number' ? (Number.isFinite(v) ? String(v) : '') : v;
+  return /[",\r\n]/.test(s) ? `"${s.replaceAll('"', '""')}"` : s;
+};
+
+export function toCsv(rows: readonly (readonly Cell[])[]): string {
+  return rows.map((r) => r.map(cell).join(',')).join('\r\n') + '\r\n';
+}
+
+export function fitLinesCsv(r: FitResponse): string {
+  return toCsv([
+    [
+      'index',
+      'id',
+      'species',
+      'band',
+      'branch',
+      'j',
+      'position (cm-1)',
+      'uncertainty (cm-1)',
+      'intensity',
+      'calculated (cm-1)',
+      'residual (cm-1)',
+      'studentised residual',
+      'status',
+      'assignment source',
+      'reason',
+    ],
+    ...r.lines.map((l) => [
+      l.index,
+      l.id === undefined ? '' : String(l.id),
+      l.assignment?.species,
+      l.assignment?.band,
+      l.assignment?.branch,
+      l.assignment?.j,
+      l.position,
+      l.uncertainty,
+      l.intensity,
+      l.calculated,
+      l.residual,
+      l.studentisedResidual,
+      l.status,
+      l.assignment?.source,
+      l.reason,
+    ]),
+  ]);
+}
+
+interface Q {
+  value: number;
+  uncertainty: number;
+  unit: string;
+}
+
+/** Band origins, level constants and equilibrium constants, one value a row. */
+export function fitConstantsCsv(r: FitResponse): string {
+  const rows: Cell[][] = [];
+  const add = (group: string, species: string, of: string, name: string, q: Q | undefined) => {
+    if (q)
+      rows.push([group, species, of, name, q.value, q.uncertainty, q.unit, roundedDisplay(q.value, q.uncertainty)]);
+  };
+  for (const b of r.bands) add('band', b.species, b.band, 'origin', b.origin);
+  for (const l of r.levels) {
+    const of = `v=${l.v}`;
+    add('level', l.species, of, 'term', l.term);
+    add('level', l.species, of, 'B', l.B);
+    add('level', l.species, of, 'D', l.D);
+    add('level', l.species, of, 'H', l.H);
+    add('level', l.species, of, 'L', l.L);
+    add('level', l.species, of, 'r', l.r);
+  }
+  for (const e of r.equilibrium) {
+    for (const [name, q] of Object.entries(e)) {
+      if (name !== 'species' && typeof q === 'object' && q !== null) add('equilibrium', e.species, '', name, q as Q);
+    }
+  }
+  return toCsv([['group', 'species', 'band or level', 'name', 'value', 'uncertainty', 'unit', 'display'], ...rows]);
+}
+
+export function checksCsv(r: CheckResponse): string {
+  return toCsv([
+    ['check', 'status', 'message', 'measured', 'limit'],
+    ...r.checks.map((c) => [c.id, c.status, c.message, JSON.stringify(c.measured), JSON.stringify(c.limit)]),
+  ]);
+}
+
+export type TableName = 'lines' | 'constants' | 'checks';
+
+/** The asked table of a fit or check result; a check without a fit has only its checks table. */
+export function resultCsv(
+  kind: 'fit' | 'check',
+  result: FitResponse | CheckResponse,
+  table: TableName = 'lines',
+): string {
+  if (kind === 'check') {
+    const c = result as CheckResponse;
+    if (table === 'checks' || !c.fit) return checksCsv(c);
+    return table === 'constants' ? fitConstantsCsv(c.fit as FitResponse) : fitLinesCsv(c.fit as FitResponse);
+  }
+  const f = result as FitResponse;
+  return table === 'constants' ? fitConstantsCsv(f) : fitLinesCsv(f);
+}
+
+/** Whether an Accept header prefers CSV over JSON (q-values honoured; JSON wins ties and absence). */
+export function prefersCsv(accept: string | undefined): boolean {
+  if (!accept) return false;
+  let csv = -1;
+  let json = -1;
+  for (const part of accept.split(',')) {
+    const [type = '', ...params] = part.trim().toLowerCase().split(';');
+    const q = Number(
+      params
+        .map((p) => p.trim())
+        .find((p) => p.startsWith('q='))
+        ?.slice(2) ?? '1',
+    );
+    const weight = Number.isFinite(q) ? q : 0;
+    if (type.trim() === 'text/csv') csv = Math.max(csv, weight);
+    if (type.trim() === 'application/json' || type.trim() === 'application/*' || type.trim() === '*/*')
+      json = Math.max(json, type.trim() === 'application/json' ? weight : weight - 0.001);
+  }
+  return csv > 0 && csv > json;
+}

@@ -1,0 +1,27 @@
+import type { FastifyReply, FastifyRequest } from 'fastify';
+import type { CheckResponse } from '../schemas/checks.js';
+import type { FitResponse } from '../schemas/fit.js';
+import { prefersCsv, resultCsv, type TableName } from './csv-tables.js';
+import { withDisplay } from './round.js';
+
+/**
+ * The result of /v1/fits or /v1/checks in the form asked for: CSV when the Accept header prefers text/csv (the
+ * table named by ?table=), otherwise JSON at full precision, with rounded `display` strings beside the numbers when
+ * ?display=rounded.
+ */
+export function resultInForm<T extends FitResponse | CheckResponse>(
+  req: FastifyRequest,
+  reply: FastifyReply,
+  kind: 'fit' | 'check',
+  result: T,
+): T | FastifyReply {
+  const q = (req.query ?? {}) as { display?: string; table?: TableName };
+  if (prefersCsv(req.headers.accept)) {
+    const table = q.table ?? 'lines';
+    return reply
+      .type('text/csv; charset=utf-8')
+      .header('content-disposition', `inline; filename="${kind}-${table}.csv"`)
+      .send(resultCsv(kind, result, table));
+  }
+  return q.display === 'rounded' ? withDisplay(result) : result;
+}
