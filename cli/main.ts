@@ -1,9 +1,12 @@
-import { readFileSync } from 'node:fs';
+import { readFileSync, writeFileSync } from 'node:fs';
 import { basename, extname } from 'node:path';
 import { parseArgs } from 'node:util';
 import type { z } from 'zod';
 import { DEFAULT_CONFIG } from '../services/config.js';
-import { checkRequestSchema } from '../services/schemas/checks.js';
+import { type Cell, resultRows, type TableName, toCsv } from '../services/formats/csv-tables.js';
+import { roundedDisplay } from '../services/formats/round.js';
+import { SOFTWARE } from '../services/provenance.js';
+import { checkRequestSchema, TolerancesSchema } from '../services/schemas/checks.js';
 import { fitRequestSchema } from '../services/schemas/fit.js';
 import { PeaksRequestSchema } from '../services/schemas/peaks.js';
 import { PredictionRequestSchema } from '../services/schemas/predictions.js';
@@ -12,6 +15,7 @@ import { runCheck } from '../services/usecases/check.js';
 import { runFit } from '../services/usecases/fit.js';
 import { runPeaks } from '../services/usecases/peaks.js';
 import { runPrediction } from '../services/usecases/predict.js';
+import { runReport } from '../services/usecases/report.js';
 import { ScienceError } from '../src/errors.js';
 import { potentialCommand } from './potential.js';
 
@@ -29,18 +33,74 @@ export const EXIT = { pass: 0, warn: 1, fail: 2, input: 3, usage: 4 } as const;
 
 const USAGE = `branchwise — molecular constants from line lists and spectra of diatomic gases
 
-  branchwise fit <file...>     [--species S] [--unit U] [--temperature K] [--format table|json]
-  branchwise check <file...>   [--species S] [--tolerances profile.json] [--temperature K] [--format table|json]
-  branchwise peaks <file>      [--format table|json]
-  branchwise predict --species S [--bands 1-0,2-0] [--jmax N] [--temperature K] [--unit U] [--format table|json]
+  branchwise fit <file...>     [--species S] [--unit U] [--temperature K] [--format table|json|csv] [--table lines|constants]
+  branchwise check <file...>   [--species S] [--tolerances profile.json] [--temperature K] [--format table|json|csv]
+                               [--table checks|lines|constants]
+  branchwise report <file>     [--species S] [--tolerances profile.json] [--temperature K] [--out report.html]
+  branchwise peaks <file...>   [--format table|json|csv]
+  branchwise predict --species S [--bands 1-0,2-0] [--jmax N] [--temperature K] [--unit U] [--format table|json|csv]
   branchwise potential (--species S | <file>) --vmax N [--format table|json]
+  branchwise --version
 
 Files: .json (the body of the matching HTTP endpoint), .csv (a spectrum or a line list), .jdx/.dx/.jcamp (JCAMP-DX).
-Exit status: 0 pass, 1 warn, 2 fail (check); 3 bad input; 4 usage.
+A file that cannot be read is reported under its name; the other files are still processed.
+Exit status: 0 pass, 1 warn, 2 fail (check, report); 3 bad input; 4 usage.
 branchwise computes constants from data; it certifies nothing about the safety or purity of a gas.`;
 
+const FORMATS = ['table', 'json', 'csv'] as const;
+type Format = (typeof FORMATS)[number];
+
+/** Errors that belong to one input file (or to the tolerance profile): reported under that file's name. */
+class FileError extends Error {
+  constructor(
+    readonly file: string,
+    readonly code: string,
+    message: string,
+  ) {
+    super(`${file}: ${message}`);
+  }
+}
+
+/** Read a file; whatever goes wrong is reported under its name with the reason in words. */
+function readText(path: string): string {
+  try {
+    return readFileSync(path, 'utf8');
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    const why =
+      code === 'ENOENT'
+        ? 'no such file'
+        : code === 'EISDIR'
+          ? 'is a directory'
+          : code === 'EACCES'
+            ? 'permission denied'
+            : (e as Error).message;
+    throw new FileError(path, 'FILE_UNREADABLE', why);
+  }
+}
+
+/** The tolerance profile of --tolerances: read, parsed and validated on its own, errors under its own name. */
+function tolerancesOf(path: string): unknown {
+  const text = readText(path);
+  let json: unknown;
+  try {
+    json = JSON.parse(text);
+  } catch (e) {
+    throw new FileError(path, 'INVALID_JSON', `not valid JSON (${(e as Error).message})`);
+  }
+  const r = TolerancesSchema.safeParse(json);
+  if (!r.success) {
+    const first = r.error.issues
+      .slice(0, 3)
+      .map((i) => `${i.path.join('/') || '(profile)'}: ${i.message}`)
+      .join('; ');
+    throw new FileError(path, 'VALIDATION_FAILED', `not a tolerance profile: ${first}`);
+  }
+  return r.data;
+}
+
 function bodyOf(path: string, extra: Record<string, unknown>): Record<string, unknown> {
-  const text = readFileSync(path, 'utf8');
+  const text = readText(path);
   const ext = extname(path).toLowerCase();
   const query = Object.fromEntries(
     Object.entries(extra)
@@ -48,17 +108,23 @@ function bodyOf(path: string, extra: Record<string, unknown>): Record<string, un
       .map(([k, v]) => [k, String(v)]),
   );
   if (ext === '.json') {
-    const body = JSON.parse(text) as Record<string, unknown>;
+    let body: Record<string, unknown>;
+    try {
+      body = JSON.parse(text) as Record<string, unknown>;
+    } catch (e) {
+      throw new FileError(path, 'INVALID_JSON', `not valid JSON (${(e as Error).message})`);
+    }
     if (extra.species !== undefined) body.species = extra.species;
     return body;
   }
-  if (ext === '.csv') return textBodyToJson(CSV_TYPES[0], text, query);
-  if (['.jdx', '.dx', '.jcamp', '.jcm'].includes(ext)) return textBodyToJson(JCAMP_TYPES[0], text, query);
-  throw new ScienceError(
-    'INPUT_INVALID',
-    `${basename(path)}: unknown file type "${ext}" (json, csv, jdx, dx, jcamp)`,
-    {},
-  );
+  try {
+    if (ext === '.csv') return textBodyToJson(CSV_TYPES[0], text, query);
+    if (['.jdx', '.dx', '.jcamp', '.jcm'].includes(ext)) return textBodyToJson(JCAMP_TYPES[0], text, query);
+  } catch (e) {
+    if (e instanceof ScienceError) throw new FileError(path, e.code, e.message);
+    throw e;
+  }
+  throw new FileError(path, 'INPUT_INVALID', `unknown file type "${ext}" (json, csv, jdx, dx, jcamp)`);
 }
 
 function parseOrThrow<T>(schema: z.ZodType<T>, body: unknown, file: string): T {
@@ -68,7 +134,7 @@ function parseOrThrow<T>(schema: z.ZodType<T>, body: unknown, file: string): T {
     .slice(0, 3)
     .map((i) => `${i.path.join('/') || '(body)'}: ${i.message}`)
     .join('; ');
-  throw new ScienceError('INPUT_INVALID', `${file}: ${first}`, {});
+  throw new FileError(file, 'VALIDATION_FAILED', first);
 }
 
 const fmt = (v: number | undefined, digits = 6) =>
@@ -77,7 +143,8 @@ const fmt = (v: number | undefined, digits = 6) =>
     : Math.abs(v) >= 1e4 || (Math.abs(v) < 1e-3 && v !== 0)
       ? v.toExponential(digits - 1)
       : v.toPrecision(digits);
-const q = (x?: { value: number; uncertainty: number }) => (x ? `${fmt(x.value, 9)} ± ${fmt(x.uncertainty, 2)}` : '');
+/** A value rounded to two significant digits of its uncertainty (the JSON and CSV forms keep full precision). */
+const q = (x?: { value: number; uncertainty: number }) => (x ? roundedDisplay(x.value, x.uncertainty) : '');
 
 function table(rows: string[][]): string {
   const widths = rows[0]?.map((_, c) => Math.max(...rows.map((r) => (r[c] ?? '').length))) ?? [];
@@ -115,6 +182,9 @@ export function main(argv: readonly string[], io: Io): number {
         jmax: { type: 'string' },
         vmax: { type: 'string' },
         format: { type: 'string', default: 'table' },
+        table: { type: 'string' },
+        out: { type: 'string', short: 'o' },
+        version: { type: 'boolean', short: 'V' },
         help: { type: 'boolean', short: 'h' },
       },
     });
@@ -124,40 +194,39 @@ export function main(argv: readonly string[], io: Io): number {
   }
   const [command, ...files] = parsed.positionals;
   const v = parsed.values as Record<string, string | boolean | undefined>;
+  if (v.version) {
+    io.out(`${SOFTWARE.name} ${SOFTWARE.version} (reference library ${SOFTWARE.libraryVersion})\n`);
+    return EXIT.pass;
+  }
   if (v.help || !command) {
     io.out(`${USAGE}\n`);
     return v.help ? EXIT.pass : EXIT.usage;
   }
-  const format = v.format === 'json' ? 'json' : 'table';
+  if (!(FORMATS as readonly string[]).includes(String(v.format))) {
+    io.err(`--format ${String(v.format)} is not one of ${FORMATS.join(', ')}\n`);
+    return EXIT.usage;
+  }
+  const format = v.format as Format;
+  const tables: Record<string, readonly TableName[]> = {
+    fit: ['lines', 'constants'],
+    check: ['checks', 'lines', 'constants'],
+  };
+  if (v.table !== undefined && !(tables[command] ?? []).includes(v.table as TableName)) {
+    io.err(`--table ${String(v.table)} is not one of ${(tables[command] ?? ['(none for this command)']).join(', ')}\n`);
+    return EXIT.usage;
+  }
   try {
-    if (command === 'predict') {
-      if (typeof v.species !== 'string') throw new ScienceError('INPUT_INVALID', 'predict needs --species', {});
-      const req = parseOrThrow(
-        PredictionRequestSchema,
-        {
-          species: v.species,
-          ...(typeof v.bands === 'string' ? { bands: v.bands.split(',') } : {}),
-          ...(typeof v.jmax === 'string' ? { jMax: Number(v.jmax) } : {}),
-          ...(typeof v.temperature === 'string' ? { temperature: Number(v.temperature) } : {}),
-          ...(typeof v.unit === 'string' ? { unit: v.unit } : {}),
-        },
-        'arguments',
-      );
-      const r = runPrediction(req);
-      if (format === 'json') io.out(`${JSON.stringify(r, null, 2)}\n`);
-      else {
-        io.out(
-          `${table([['band', 'line', `position (${req.unit})`, 'uncertainty', 'rel. intensity'], ...r.lines.map((l) => [l.band, `${l.branch}(${l.j})`, fmt(l.position.value, 10), fmt(l.position.uncertainty, 2), fmt(l.relativeIntensity, 3)])])}\n`,
-        );
-      }
-      return EXIT.pass;
-    }
+    if (command === 'predict') return predict(v, format, io);
     if (command === 'potential') {
+      if (format === 'csv') {
+        io.err('potential has no CSV form: use --format table or json\n');
+        return EXIT.usage;
+      }
       const r = potentialCommand(v, files);
       io.out(format === 'json' ? `${JSON.stringify(r.json, null, 2)}\n` : r.text);
       return EXIT.pass;
     }
-    if (!['fit', 'check', 'peaks'].includes(command)) {
+    if (!['fit', 'check', 'peaks', 'report'].includes(command)) {
       io.err(`unknown command "${command}"\n\n${USAGE}\n`);
       return EXIT.usage;
     }
@@ -165,73 +234,194 @@ export function main(argv: readonly string[], io: Io): number {
       io.err(`${command} needs at least one file\n`);
       return EXIT.usage;
     }
+    if (command === 'report' && files.length !== 1) {
+      io.err('report takes one file\n');
+      return EXIT.usage;
+    }
+    const tolerances = typeof v.tolerances === 'string' ? tolerancesOf(v.tolerances) : undefined;
+    if (command === 'report') return report(files[0] as string, v, tolerances, io);
+
     let worst: number = EXIT.pass;
     const results: unknown[] = [];
+    const csvRows: Cell[][] = [];
     files.forEach((file, k) => {
       progress(io, k, files.length, basename(file));
-      const extra = {
-        species: v.species,
-        ...(typeof v.temperature === 'string' ? { temperature: v.temperature } : {}),
-      };
-      const body = bodyOf(file, extra);
-      if (typeof v.unit === 'string' && body.lines) body.unit = v.unit;
-      if (command === 'peaks') {
-        const r = runPeaks(
-          parseOrThrow(
-            PeaksRequestSchema,
-            { spectrum: body.spectrum, ...(body.peakOptions ? { peakOptions: body.peakOptions } : {}) },
-            file,
-          ),
-        );
-        results.push({ file, ...r });
-        if (format === 'table') {
-          io.out(
-            `${file}: ${r.peaks.length} peaks, noise ${fmt(r.noise, 3)}\n${table([['position (cm-1)', 'uncertainty', 'intensity', 'width'], ...r.peaks.map((p) => [fmt(p.position, 10), fmt(p.uncertainty, 2), fmt(p.intensity, 4), fmt(p.width, 3)])])}\n`,
+      try {
+        const r = runOne(command as 'fit' | 'check' | 'peaks', file, v, tolerances, format, io);
+        results.push({ file, ...r.result });
+        worst = Math.max(worst, r.exit);
+        const rows = r.rows;
+        if (format === 'csv') {
+          // One table for all files: a leading "file" column when there are several.
+          const body = csvRows.length === 0 ? rows : rows.slice(1);
+          csvRows.push(
+            ...(files.length > 1
+              ? body.map((row, i) => [csvRows.length === 0 && i === 0 ? 'file' : file, ...row])
+              : body),
           );
         }
-      } else if (command === 'fit') {
-        const r = runFit(parseOrThrow(fitRequestSchema(DEFAULT_CONFIG.maxLines), body, file));
-        results.push({ file, ...r });
-        if (format === 'table') {
-          const eq = r.equilibrium.flatMap((e) =>
-            (['omega_e', 'omega_e_x_e', 'B_e', 'alpha_e', 'D_e', 'r_e'] as const).flatMap((k) =>
-              e[k] ? [[e.species, k, q(e[k]), e[k]?.unit ?? '']] : [],
-            ),
-          );
-          const lv = r.levels.map((l) => [l.species, `v=${l.v}`, `B ${q(l.B)}`, l.D ? `D ${q(l.D)}` : '']);
-          io.out(
-            `${file}: ${r.statistics.fitted} of ${r.statistics.lines} lines fitted, rms ${fmt(r.statistics.rms, 3)} cm-1\n${table([['species', 'level', 'B', 'D'], ...lv])}\n${eq.length ? `${table([['species', 'constant', 'value ± u', 'unit'], ...eq])}\n` : ''}${r.warnings.map((w) => `warning: ${w.message}\n`).join('')}`,
-          );
-        }
-      } else {
-        const tolerances =
-          typeof v.tolerances === 'string' ? JSON.parse(readFileSync(v.tolerances, 'utf8')) : undefined;
-        const r = runCheck(
-          parseOrThrow(
-            checkRequestSchema(DEFAULT_CONFIG.maxLines),
-            { ...body, ...(tolerances ? { tolerances } : {}) },
-            file,
-          ),
-        );
-        results.push({ file, ...r });
-        worst = Math.max(worst, EXIT[r.verdict]);
-        if (format === 'table') {
-          io.out(
-            `${file}: ${r.verdict.toUpperCase()}\n${table([['check', 'status', 'message'], ...r.checks.map((c) => [c.id, c.status, c.message])])}\n`,
-          );
-        }
+      } catch (e) {
+        if (!(e instanceof FileError || e instanceof ScienceError)) throw e;
+        const fileError = e instanceof FileError ? e : new FileError(file, e.code, e.message);
+        io.err(`error: ${fileError.message}\n`);
+        results.push({ file, error: { code: fileError.code, message: fileError.message } });
+        worst = Math.max(worst, EXIT.input);
       }
     });
     progress(io, files.length, files.length, '');
     if (format === 'json') io.out(`${JSON.stringify(files.length === 1 ? results[0] : results, null, 2)}\n`);
+    if (format === 'csv' && csvRows.length > 0) io.out(toCsv(csvRows));
     if (format === 'table')
       io.out('branchwise computes constants from data; it certifies nothing about the safety or purity of a gas.\n');
+    // A single file that could not be read prints no JSON: its error went to stderr.
+    if (format === 'json' && files.length === 1 && (results[0] as { error?: unknown }).error) return EXIT.input;
     return worst;
   } catch (e) {
-    if (e instanceof ScienceError || e instanceof SyntaxError || (e as NodeJS.ErrnoException).code === 'ENOENT') {
+    if (e instanceof FileError || e instanceof ScienceError || e instanceof SyntaxError) {
       io.err(`error: ${(e as Error).message}\n`);
       return EXIT.input;
     }
     throw e;
   }
+}
+
+function predict(v: Record<string, string | boolean | undefined>, format: Format, io: Io): number {
+  if (typeof v.species !== 'string') throw new ScienceError('INPUT_INVALID', 'predict needs --species', {});
+  const req = parseOrThrow(
+    PredictionRequestSchema,
+    {
+      species: v.species,
+      ...(typeof v.bands === 'string' ? { bands: v.bands.split(',') } : {}),
+      ...(typeof v.jmax === 'string' ? { jMax: Number(v.jmax) } : {}),
+      ...(typeof v.temperature === 'string' ? { temperature: Number(v.temperature) } : {}),
+      ...(typeof v.unit === 'string' ? { unit: v.unit } : {}),
+    },
+    'arguments',
+  );
+  const r = runPrediction(req);
+  const rows: Cell[][] = [
+    ['band', 'branch', 'j', `position (${req.unit})`, `uncertainty (${req.unit})`, 'relative intensity'],
+    ...r.lines.map((l) => [l.band, l.branch, l.j, l.position.value, l.position.uncertainty, l.relativeIntensity]),
+  ];
+  if (format === 'json') io.out(`${JSON.stringify(r, null, 2)}\n`);
+  else if (format === 'csv') io.out(toCsv(rows));
+  else
+    io.out(
+      `${table([['band', 'line', `position (${req.unit})`, 'rel. intensity'], ...r.lines.map((l) => [l.band, `${l.branch}(${l.j})`, q(l.position), fmt(l.relativeIntensity, 3)])])}\n`,
+    );
+  return EXIT.pass;
+}
+
+function report(file: string, v: Record<string, string | boolean | undefined>, tolerances: unknown, io: Io): number {
+  const body = bodyOf(file, {
+    species: v.species,
+    ...(typeof v.temperature === 'string' ? { temperature: v.temperature } : {}),
+  });
+  if (typeof v.unit === 'string' && body.lines) body.unit = v.unit;
+  const req = parseOrThrow(
+    checkRequestSchema(DEFAULT_CONFIG.maxLines),
+    { ...body, ...(tolerances ? { tolerances } : {}) },
+    file,
+  );
+  const html = runReport(req);
+  const verdict = /<div class="verdict (pass|warn|fail)" id="verdict">/.exec(html)?.[1] as
+    | keyof typeof EXIT
+    | undefined;
+  if (typeof v.out === 'string') {
+    try {
+      writeFileSync(v.out, html);
+    } catch (e) {
+      throw new FileError(v.out, 'FILE_UNWRITABLE', (e as Error).message);
+    }
+    io.err(`wrote ${v.out}\n`);
+  } else io.out(html);
+  return verdict ? EXIT[verdict] : EXIT.pass;
+}
+
+interface OneResult {
+  readonly result: Record<string, unknown>;
+  readonly rows: Cell[][];
+  readonly exit: number;
+}
+
+function runOne(
+  command: 'fit' | 'check' | 'peaks',
+  file: string,
+  v: Record<string, string | boolean | undefined>,
+  tolerances: unknown,
+  format: Format,
+  io: Io,
+): OneResult {
+  const body = bodyOf(file, {
+    species: v.species,
+    ...(typeof v.temperature === 'string' ? { temperature: v.temperature } : {}),
+  });
+  if (typeof v.unit === 'string' && body.lines) body.unit = v.unit;
+  const tableName = v.table as TableName | undefined;
+  if (command === 'peaks') {
+    const r = runPeaks(
+      parseOrThrow(
+        PeaksRequestSchema,
+        { spectrum: body.spectrum, ...(body.peakOptions ? { peakOptions: body.peakOptions } : {}) },
+        file,
+      ),
+    );
+    const rows: Cell[][] = [
+      ['position (cm-1)', 'uncertainty (cm-1)', 'intensity (cm-1)', 'width (cm-1)', 'height (absorbance)'],
+      ...r.peaks.map((p) => [p.position, p.uncertainty, p.intensity, p.width, p.height]),
+    ];
+    if (format === 'table') {
+      io.out(
+        `${file}: ${r.peaks.length} peaks, noise ${fmt(r.noise, 3)}\n${table([['position (cm-1)', 'intensity', 'width'], ...r.peaks.map((p) => [roundedDisplay(p.position, p.uncertainty), fmt(p.intensity, 4), fmt(p.width, 3)])])}\n`,
+      );
+    }
+    return { result: r as unknown as Record<string, unknown>, rows, exit: EXIT.pass };
+  }
+  if (command === 'fit') {
+    const r = runFit(parseOrThrow(fitRequestSchema(DEFAULT_CONFIG.maxLines), body, file));
+    if (format === 'table') io.out(fitTable(file, r));
+    return {
+      result: r as unknown as Record<string, unknown>,
+      rows: resultRows('fit', r, tableName ?? 'lines'),
+      exit: EXIT.pass,
+    };
+  }
+  const r = runCheck(
+    parseOrThrow(checkRequestSchema(DEFAULT_CONFIG.maxLines), { ...body, ...(tolerances ? { tolerances } : {}) }, file),
+  );
+  if (format === 'table') {
+    io.out(
+      `${file}: ${r.verdict.toUpperCase()}\n${table([['check', 'status', 'message'], ...r.checks.map((c) => [c.id, c.status, c.message])])}\n`,
+    );
+  }
+  return {
+    result: r as unknown as Record<string, unknown>,
+    rows: resultRows('check', r, tableName ?? 'checks'),
+    exit: EXIT[r.verdict],
+  };
+}
+
+/** The fit as a person reads it: band origins, level constants, equilibrium constants, each rounded to its uncertainty. */
+function fitTable(file: string, r: ReturnType<typeof runFit>): string {
+  const bands = r.bands.map((b) => [
+    b.species,
+    b.band,
+    q(b.origin),
+    String(b.lines),
+    `${b.jRange[0] ?? ''}–${b.jRange[1] ?? ''}`,
+  ]);
+  const levels = r.levels.map((l) => [l.species, `v=${l.v}`, q(l.B), q(l.D), q(l.H)]);
+  const eq = r.equilibrium.flatMap((e) =>
+    (['omega_e', 'omega_e_x_e', 'B_e', 'alpha_e', 'D_e', 'r_e'] as const).flatMap((k) =>
+      e[k] ? [[e.species, k, q(e[k]), e[k]?.unit ?? '']] : [],
+    ),
+  );
+  return [
+    `${file}: ${r.statistics.fitted} of ${r.statistics.lines} lines fitted, rms ${fmt(r.statistics.rms, 3)} cm-1`,
+    table([['species', 'band', 'origin (cm-1)', 'lines', 'J range'], ...bands]),
+    table([['species', 'level', 'B (cm-1)', 'D (cm-1)', 'H (cm-1)'], ...levels]),
+    ...(eq.length ? [table([['species', 'constant', 'value ± u', 'unit'], ...eq])] : []),
+    ...r.warnings.map((w) => `warning: ${w.message}`),
+    '',
+  ].join('\n');
 }

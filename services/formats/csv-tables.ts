@@ -9,7 +9,7 @@ import { roundedDisplay } from './round.js';
  * the service's own CSV reader takes the lines table back ("position (cm-1)").
  */
 
-type Cell = string | number | undefined | null;
+export type Cell = string | number | undefined | null;
 
 const cell = (v: Cell): string => {
   if (v === undefined || v === null) return '';
@@ -21,8 +21,8 @@ export function toCsv(rows: readonly (readonly Cell[])[]): string {
   return rows.map((r) => r.map(cell).join(',')).join('\r\n') + '\r\n';
 }
 
-export function fitLinesCsv(r: FitResponse): string {
-  return toCsv([
+export function fitLinesRows(r: FitResponse): Cell[][] {
+  return [
     [
       'index',
       'id',
@@ -57,7 +57,7 @@ export function fitLinesCsv(r: FitResponse): string {
       l.assignment?.source,
       l.reason,
     ]),
-  ]);
+  ];
 }
 
 interface Q {
@@ -67,7 +67,7 @@ interface Q {
 }
 
 /** Band origins, level constants and equilibrium constants, one value a row. */
-export function fitConstantsCsv(r: FitResponse): string {
+export function fitConstantsRows(r: FitResponse): Cell[][] {
   const rows: Cell[][] = [];
   const add = (group: string, species: string, of: string, name: string, q: Q | undefined) => {
     if (q)
@@ -88,32 +88,35 @@ export function fitConstantsCsv(r: FitResponse): string {
       if (name !== 'species' && typeof q === 'object' && q !== null) add('equilibrium', e.species, '', name, q as Q);
     }
   }
-  return toCsv([['group', 'species', 'band or level', 'name', 'value', 'uncertainty', 'unit', 'display'], ...rows]);
+  return [['group', 'species', 'band or level', 'name', 'value', 'uncertainty', 'unit', 'display'], ...rows];
 }
 
-export function checksCsv(r: CheckResponse): string {
-  return toCsv([
+export function checksRows(r: CheckResponse): Cell[][] {
+  return [
     ['check', 'status', 'message', 'measured', 'limit'],
     ...r.checks.map((c) => [c.id, c.status, c.message, JSON.stringify(c.measured), JSON.stringify(c.limit)]),
-  ]);
+  ];
 }
 
 export type TableName = 'lines' | 'constants' | 'checks';
 
 /** The asked table of a fit or check result; a check without a fit has only its checks table. */
-export function resultCsv(
+export function resultRows(
   kind: 'fit' | 'check',
   result: FitResponse | CheckResponse,
   table: TableName = 'lines',
-): string {
+): Cell[][] {
   if (kind === 'check') {
     const c = result as CheckResponse;
-    if (table === 'checks' || !c.fit) return checksCsv(c);
-    return table === 'constants' ? fitConstantsCsv(c.fit as FitResponse) : fitLinesCsv(c.fit as FitResponse);
+    if (table === 'checks' || !c.fit) return checksRows(c);
+    return table === 'constants' ? fitConstantsRows(c.fit as FitResponse) : fitLinesRows(c.fit as FitResponse);
   }
   const f = result as FitResponse;
-  return table === 'constants' ? fitConstantsCsv(f) : fitLinesCsv(f);
+  return table === 'constants' ? fitConstantsRows(f) : fitLinesRows(f);
 }
+
+export const resultCsv = (kind: 'fit' | 'check', result: FitResponse | CheckResponse, table: TableName = 'lines') =>
+  toCsv(resultRows(kind, result, table));
 
 /** Whether an Accept header prefers CSV over JSON (q-values honoured; JSON wins ties and absence). */
 export function prefersCsv(accept: string | undefined): boolean {
