@@ -33,14 +33,14 @@ export interface paths {
   "/v1/batch/checks": {
     /**
      * Many checks as NDJSON
-     * @description Send application/x-ndjson: one /v1/checks request body a line. The answer streams one line per request, in order: {"index", "status", "result"} or {"index", "status", "problem"}. Each line may be at most BODY_LIMIT bytes.
+     * @description Send application/x-ndjson: one /v1/checks request body a line. The answer streams one line per request, in order: {"index", "line", "status", "result"} or {"index", "line", "status", "problem"}, where line is the 1-based number of the input line (blank lines counted) and index = line − 1. Each line may be at most BODY_LIMIT bytes.
      */
     post: operations["checkBatch"];
   };
   "/v1/batch/fits": {
     /**
      * Many fits as NDJSON
-     * @description Send application/x-ndjson: one /v1/fits request body a line. The answer streams one line per request, in order: {"index", "status", "result"} or {"index", "status", "problem"}. Each line may be at most BODY_LIMIT bytes.
+     * @description Send application/x-ndjson: one /v1/fits request body a line. The answer streams one line per request, in order: {"index", "line", "status", "result"} or {"index", "line", "status", "problem"}, where line is the 1-based number of the input line (blank lines counted) and index = line − 1. Each line may be at most BODY_LIMIT bytes.
      */
     post: operations["fitBatch"];
   };
@@ -1230,7 +1230,7 @@ export interface operations {
   };
   /**
    * Many checks as NDJSON
-   * @description Send application/x-ndjson: one /v1/checks request body a line. The answer streams one line per request, in order: {"index", "status", "result"} or {"index", "status", "problem"}. Each line may be at most BODY_LIMIT bytes.
+   * @description Send application/x-ndjson: one /v1/checks request body a line. The answer streams one line per request, in order: {"index", "line", "status", "result"} or {"index", "line", "status", "problem"}, where line is the 1-based number of the input line (blank lines counted) and index = line − 1. Each line may be at most BODY_LIMIT bytes.
    */
   checkBatch: {
     requestBody: {
@@ -1257,7 +1257,7 @@ export interface operations {
   };
   /**
    * Many fits as NDJSON
-   * @description Send application/x-ndjson: one /v1/fits request body a line. The answer streams one line per request, in order: {"index", "status", "result"} or {"index", "status", "problem"}. Each line may be at most BODY_LIMIT bytes.
+   * @description Send application/x-ndjson: one /v1/fits request body a line. The answer streams one line per request, in order: {"index", "line", "status", "result"} or {"index", "line", "status", "problem"}, where line is the 1-based number of the input line (blank lines counted) and index = line − 1. Each line may be at most BODY_LIMIT bytes.
    */
   fitBatch: {
     requestBody: {

@@ -52,7 +52,7 @@ export const batchRoutes =
             operationId: path === 'fits' ? 'fitBatch' : 'checkBatch',
             tags: ['batch'],
             summary: `Many ${path} as NDJSON`,
-            description: `Send ${NDJSON}: one /v1/${path} request body a line. The answer streams one line per request, in order: {"index", "status", "result"} or {"index", "status", "problem"}. Each line may be at most BODY_LIMIT bytes.`,
+            description: `Send ${NDJSON}: one /v1/${path} request body a line. The answer streams one line per request, in order: {"index", "line", "status", "result"} or {"index", "line", "status", "problem"}, where line is the 1-based number of the input line (blank lines counted) and index = line − 1. Each line may be at most BODY_LIMIT bytes.`,
             response: {
               200: { description: 'one result a line', content: { [NDJSON]: { schema: z.string() } } },
             },
@@ -62,15 +62,19 @@ export const batchRoutes =
           const input = req.body as Readable;
           const out = new PassThrough();
           reply.type(NDJSON);
-          const write = async (obj: unknown) => {
+          const writeLine = async (obj: unknown) => {
             if (!out.write(`${JSON.stringify(obj)}\n`)) await new Promise((r) => out.once('drain', r));
           };
           (async () => {
-            let index = 0;
+            // index: the zero-based number of the input line, blank lines counted (so that a result points at its
+            // line in the file: line = index + 1); blank lines themselves get no answer.
+            let next = 0;
             for await (const piece of ndjsonLines(input, config.bodyLimit)) {
+              const i = next++;
               const line = 'text' in piece ? piece.text.replace(/\r$/, '') : '';
               if ('text' in piece && line.trim() === '') continue;
-              const i = index++;
+              const write = (o: { status: number; result?: unknown; problem?: unknown }) =>
+                writeLine({ index: i, line: i + 1, ...o });
               try {
                 if ('tooLong' in piece)
                   throw Object.assign(new Error(`line ${i} is longer than ${config.bodyLimit} bytes (BODY_LIMIT)`), {
@@ -80,7 +84,6 @@ export const batchRoutes =
                 const parsed = schema.safeParse(JSON.parse(line));
                 if (!parsed.success) {
                   await write({
-                    index: i,
                     status: 400,
                     problem: {
                       type: '/problems/validation-failed',
@@ -101,11 +104,17 @@ export const batchRoutes =
                   app.pool.run({ kind, body } as never, jobSize(body)),
                 );
                 // Each result carries what a single request would: the software and the digest of its line.
-                await write({ index: i, status: 200, result: stampedBytes(line, result as object, body.sample) });
+                await write({ status: 200, result: stampedBytes(line, result as object, body.sample) });
               } catch (e) {
-                const p = toProblem(e instanceof SyntaxError ? Object.assign(e, { statusCode: 400 }) : e, req);
+                // A line that is not JSON gets the code the single endpoints give a body that is not JSON.
+                const p = toProblem(
+                  e instanceof SyntaxError
+                    ? Object.assign(e, { statusCode: 400, code: 'FST_ERR_CTP_INVALID_JSON_BODY' })
+                    : e,
+                  req,
+                );
                 if (p.status >= 500) req.log.error({ err: e, index: i }, 'batch line failed');
-                await write({ index: i, status: p.status, problem: p });
+                await write({ status: p.status, problem: p });
               }
             }
             out.end();

@@ -21,15 +21,25 @@ describe('NDJSON batches', () => {
       .trim()
       .split('\n')
       .map((l) => JSON.parse(l));
-    expect(out.map((o) => [o.index, o.status])).toEqual([
-      [0, 200],
-      [1, 400],
-      [2, 400],
-      [3, 200],
+    // index is the zero-based input line, blank lines counted; line is the 1-based line number an editor shows.
+    expect(out.map((o) => [o.index, o.line, o.status])).toEqual([
+      [0, 1, 200],
+      [1, 2, 400],
+      [2, 3, 400],
+      [4, 5, 200],
     ]);
     expect(out[0].result.species[0].formula).toBe('1H-35Cl');
     expect(out[3].result.species[0].formula).toBe('12C-16O');
     expect(out[2].problem.code).toBe('VALIDATION_FAILED');
+    // The same code as a single endpoint gives a body that is not JSON.
+    const single = await app().inject({
+      method: 'POST',
+      url: '/v1/fits',
+      payload: '{not json',
+      headers: { 'content-type': 'application/json' },
+    });
+    expect(single.json().code).toBe('INVALID_JSON');
+    expect(out[1].problem).toMatchObject({ code: 'INVALID_JSON', type: single.json().type, status: 400 });
   });
   it('checks in batch give verdicts', async () => {
     const good = assignedFitBody('CO', ['1-0'], 12, 0.001, 3);
