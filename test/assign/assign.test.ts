@@ -201,9 +201,31 @@ describe('automatic assignment of generated scans', () => {
       return p;
     });
     const a = analyseLineList(peaks, parseSpecies('HCl'));
-    const given = a.result.lines.filter((l) => l.assignment?.source === 'given');
-    expect(given.length).toBeGreaterThan(3);
-    expect(a.result.lines.some((l) => l.assignment?.source === 'auto')).toBe(true);
+    const label = (x: { band: string; branch: string; j: number; species: string }) =>
+      `${x.species} ${x.band} ${x.branch}(${x.j})`;
+    // Every given assignment comes back as given and unchanged; every automatic one is the generator's truth.
+    let given = 0;
+    let auto = 0;
+    a.result.lines.forEach((l, i) => {
+      const t = scan.truth[i];
+      const sent = peaks[i]?.assignment;
+      if (sent) {
+        given++;
+        expect(l.assignment?.source, `line ${i}`).toBe('given');
+        expect(l.assignment && label(l.assignment)).toBe(t && label(t));
+      } else if (l.assignment) {
+        auto++;
+        expect(l.assignment.source).toBe('auto');
+        expect(t, `line ${i} assigned ${label(l.assignment)} is spurious`).toBeDefined();
+        expect(label(l.assignment), `line ${i}`).toBe(t && label(t));
+      }
+    });
+    expect(given).toBe(peaks.filter((p) => p.assignment).length);
+    expect(given).toBeGreaterThan(3);
+    // Recall is not asserted here: measured 2026-12-02, 18 of the 32 true lines left without a given assignment
+    // are assigned (H35Cl R(4)–R(12) and P(8)–P(12) stay unassigned, strong ones included) — see the report of
+    // the test work; the bar of the other scans (≥ 99 %) is not met with given anchors.
+    expect(auto).toBeGreaterThan(10);
   });
 
   it('noise alone with no species declared is SPECIES_UNIDENTIFIED, listing candidates and scores', () => {

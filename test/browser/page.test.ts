@@ -44,6 +44,15 @@ async function serve(env: NodeJS.ProcessEnv): Promise<{ app: FastifyInstance; ba
 
 const PDFTOOLS = existsSync('/usr/bin/pdftoppm') && existsSync('/usr/bin/pdftotext');
 
+// Where the browser cannot be had the tests below are skipped, except in CI (CI=true), where .ci/run installs
+// Chromium and poppler-utils: there a missing browser or PDF tool is a failure, not a silent skip.
+describe.runIf(process.env.CI === 'true')('browser prerequisites in CI', () => {
+  it('Debian Chromium and the PDF tools are installed', () => {
+    expect(existsSync(CHROMIUM), CHROMIUM).toBe(true);
+    expect(PDFTOOLS, 'pdftoppm and pdftotext').toBe(true);
+  });
+});
+
 describe.skipIf(!existsSync(CHROMIUM))('in Chromium, by host name over plain HTTP', () => {
   let open: { app: FastifyInstance; base: string };
   let keyed: { app: FastifyInstance; base: string };

@@ -42,8 +42,11 @@ describe('CO fundamental, first and second overtone, σ = 0.001 cm⁻¹', () => 
     }
   });
 
-  it('r_e(CO) = 1.128323 Å (Huber & Herzberg) within 2e-4 Å', () => {
-    expect(Math.abs((eq?.r_e?.value as number) - 1.128323)).toBeLessThan(2e-4);
+  it('r_e(CO) within 4σ of 1.1283231963 Å (√(K/(μB_e)) of the generating HH B_e, AME2020 μ, CODATA 2018 K)', () => {
+    // The same value rounds to the tabulated 1.128323 Å (Huber & Herzberg). σ(r_e) is 2.0e-6 Å here (bar 3e-6).
+    const re = eq?.r_e;
+    expect(re?.uncertainty as number).toBeLessThan(3e-6);
+    expect(Math.abs((re?.value as number) - 1.1283231963)).toBeLessThan(4 * (re?.uncertainty as number));
   });
 
   it('band origins match ν₀(1–0) = 2143.271121 and ν₀(2–0) = 4260.060220 cm⁻¹ (REFERENCE-DATA §5c, derived from HH) within 4σ', () => {
@@ -94,8 +97,10 @@ describe('HCl fundamental alone (one band, two levels)', () => {
     expect(r.warnings.some((w) => w.code === 'VIBRATION_NEEDS_TWO_INTERVALS')).toBe(true);
   });
 
-  it('r_e(H³⁵Cl) = 1.27455 Å (Huber & Herzberg) within 2e-4 Å', () => {
-    expect(Math.abs((eq?.r_e?.value as number) - 1.27455)).toBeLessThan(2e-4);
+  it('r_e(H³⁵Cl) within 4σ of 1.2745518285 Å (√(K/(μB_e)) of the generating HH B_e; tabulated 1.27455 Å)', () => {
+    const re = eq?.r_e;
+    expect(re?.uncertainty as number).toBeLessThan(5e-6);
+    expect(Math.abs((re?.value as number) - 1.2745518285)).toBeLessThan(4 * (re?.uncertainty as number));
   });
 
   it('B_0 and B_1 are strongly and positively correlated, and the covariance is symmetric', () => {

@@ -110,18 +110,23 @@ describe('QA checks', () => {
     );
   });
 
-  it.each([250, 296, 600, 1000, 1500])('the rotational temperature of a %i K scan is recovered within 5 %', (T) => {
-    const scan = syntheticScan({
-      ...clean,
-      temperature: T,
-      isotopologues: [{ species: 'CO', abundance: 1 }],
-      seed: 50 + T,
-      detection: 1e-2,
-    });
-    const r = check({ species: 'CO', lines: scan.peaks, options: { temperature: T } });
-    const t = (byId(r, 'temperature').measured.temperature as { value: number }).value;
-    expect(Math.abs(t / T - 1)).toBeLessThan(0.05);
-  });
+  it.each([250, 296, 600, 1000, 1500])(
+    'the rotational temperature of a %i K scan is recovered within 3σ and 2 %',
+    (T) => {
+      const scan = syntheticScan({
+        ...clean,
+        temperature: T,
+        isotopologues: [{ species: 'CO', abundance: 1 }],
+        seed: 50 + T,
+        detection: 1e-2,
+      });
+      const r = check({ species: 'CO', lines: scan.peaks, options: { temperature: T } });
+      // 10 % intensity noise per line gives σ_T ≈ 0.5–0.9 % (measured 2026-12-02: pulls −1.5…+0.7, all within 1.2 %).
+      const t = byId(r, 'temperature').measured.temperature as { value: number; uncertainty: number };
+      expect(Math.abs(t.value - T)).toBeLessThan(3 * t.uncertainty);
+      expect(Math.abs(t.value / T - 1)).toBeLessThan(0.02);
+    },
+  );
 
   it('a check the data cannot evaluate says not-evaluated and why', () => {
     const bare = syntheticScan(clean).peaks.map((p) => ({ position: p.position, uncertainty: p.uncertainty }));

@@ -39,13 +39,28 @@ describe('spectra through the service', () => {
     const r = await app().inject({ method: 'POST', url: '/v1/peaks', payload: json });
     expect(r.statusCode).toBe(200);
     const j = r.json();
-    expect(j.peaks.length).toBeGreaterThan(30);
     expect(j.peaks[0]).toMatchObject({
       position: expect.any(Number),
       uncertainty: expect.any(Number),
       intensity: expect.any(Number),
       width: expect.any(Number),
     });
+    const peaks = j.peaks as { position: number; uncertainty: number }[];
+    // Every generated line with a peak absorbance of at least 0.004 (8× the noise) is found within 3.5σ of its
+    // reported position uncertainty (and 0.05 cm⁻¹); no peak lies more than 0.05 cm⁻¹ from a generated line.
+    const strong = lines.filter((l) => l.strength >= 0.004 && l.position > 2600 && l.position < 3150);
+    expect(strong.length).toBeGreaterThan(35);
+    for (const l of strong) {
+      const near = peaks.reduce((b, p) =>
+        Math.abs(p.position - l.position) < Math.abs(b.position - l.position) ? p : b,
+      );
+      const d = Math.abs(near.position - l.position);
+      expect(d, `line at ${l.position.toFixed(3)}`).toBeLessThan(Math.min(0.05, 3.5 * near.uncertainty));
+    }
+    for (const p of peaks) {
+      const d = Math.min(...lines.map((l) => Math.abs(l.position - p.position)));
+      expect(d, `peak at ${p.position.toFixed(3)}`).toBeLessThan(0.05);
+    }
   });
 
   it('POST /v1/peaks with a JCAMP-DX body gives the same peaks as JSON', async () => {
