@@ -1,6 +1,6 @@
 /// <reference lib="dom" />
 import { execFileSync } from 'node:child_process';
-import { existsSync, mkdirSync, mkdtempSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { FastifyInstance } from 'fastify';
@@ -150,6 +150,14 @@ describe.skipIf(!existsSync(CHROMIUM))('in Chromium, by host name over plain HTT
     );
     expect(plotted.length).toBeGreaterThanOrEqual(6);
     for (const n of plotted) expect(n).toBeGreaterThan(0);
+    // "Save report" downloads the same document the frame shows.
+    const [download] = await Promise.all([page.waitForEvent('download'), page.click('#save')]);
+    expect(download.suggestedFilename()).toBe('branchwise-report.html');
+    const saved = join(profile, 'saved-report.html');
+    await download.saveAs(saved);
+    const savedHtml = readFileSync(saved, 'utf8');
+    expect(savedHtml).toContain('CYL-0042');
+    expect(savedHtml.startsWith('<!doctype html>')).toBe(true);
     await page.screenshot({ path: join(ARTIFACTS, 'page-with-report.png'), fullPage: true });
     expect(errors).toEqual([]);
     await page.close();
