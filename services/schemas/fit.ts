@@ -212,6 +212,16 @@ const NamedQuantity = z.object({
   display: DisplaySchema,
 });
 
+const TermConstraintSchema = z
+  .object({
+    parameter: z.string(),
+    species: z.string(),
+    prior: Q,
+    basis: z.string().describe('where the prior value and its uncertainty come from'),
+  })
+  .describe('a term the lines cannot determine, carried as a constrained parameter with this prior')
+  .meta({ id: 'TermConstraint' });
+
 const DunhamFitSchema = z.object({
   species: z.string(),
   parameters: z.array(NamedQuantity),
@@ -222,6 +232,7 @@ const DunhamFitSchema = z.object({
     reducedChiSquare: z.number().nullable(),
   }),
   terms: z.array(z.string()),
+  constrained: z.array(TermConstraintSchema).optional(),
 });
 
 const CalibrationSchema = z.object({
@@ -361,6 +372,9 @@ const fitFields = {
   model: z.object({
     levelTerms: z.array(z.object({ species: z.string(), v: z.number().int(), terms: z.array(z.string()) })),
     selection: z.string(),
+    constraints: z
+      .array(TermConstraintSchema)
+      .describe('terms carried with a prior because the lines cannot determine them; their σ is in the covariance'),
   }),
   dunham: z.array(DunhamFitSchema),
   massReducedDunham: DunhamFitSchema.optional(),

@@ -1,4 +1,5 @@
-import { type DunhamTerm, dunhamModel, dunhamParameters, massReducedParameters } from '../models/dunham.js';
+import { quantity, subCovariance } from '../derive/quantity.js';
+import { type DunhamTerm, dunhamModel, dunhamName, dunhamParameters, massReducedParameters } from '../models/dunham.js';
 import { levelStructure } from '../models/level-model.js';
 import type { LinearModel, Observation } from '../models/linear-model.js';
 import type { MassValue } from '../species/reduced-mass.js';
@@ -8,10 +9,12 @@ import {
   rmsResidual,
   type SolvedModel,
   solveModel,
+  solveModelWithPriors,
   toRows,
   type UncertaintyMode,
 } from './engine.js';
 import { termTest } from './term-test.js';
+import { dunhamPriors, type TermConstraint } from './truncation.js';
 import type { DunhamFit, Warning } from './types.js';
 
 /* Stage 5: Dunham fits of the kept lines, per isotopologue (and optionally one mass-reduced fit across them). */
@@ -133,34 +136,70 @@ export function fitDunhamForSpecies(
     return undefined;
   }
   const has = (k: number, l: number) => sel.terms.some((t) => t.k === k && t.l === l);
+  const values = new Map(sel.terms.map((t, i) => [`${t.k},${t.l}`, sel.fit.values[i] as number]));
+  const priors = dunhamPriors(species, sel.terms, values);
+  let fit = sel.fit;
+  let terms = sel.terms;
+  if (priors.length > 0) {
+    const wider = [...sel.terms, ...priors.map((p) => p.term)];
+    const c = solveModelWithPriors(
+      dunhamModel(dunhamParameters(species, wider, false)),
+      obs,
+      priors,
+      mode,
+      reducedChiSquare(sel.fit) ?? 1,
+    );
+    if (!isRankDeficient(c)) {
+      fit = c;
+      terms = wider;
+    }
+  }
+  const constrained = new Map((fit === sel.fit ? [] : priors).map((p) => [`${p.term.k},${p.term.l}`, p] as const));
+  const isConstrained = (k: number, l: number) => constrained.has(`${k},${l}`);
   if (plan.nVib < 2) {
     warnings.push({
       code: 'VIBRATION_NEEDS_TWO_INTERVALS',
-      message: `${species}: ω_e and ω_e x_e need two or more vibrational intervals (e.g. a fundamental and an overtone); only the band origin is determined`,
+      message: `${species}: ω_e and ω_e x_e need two or more vibrational intervals (e.g. a fundamental and an overtone); the band origin is ΔG, not ω_e`,
     });
-  } else if (!has(3, 0)) {
+  } else if (!has(3, 0) && !isConstrained(3, 0)) {
     warnings.push({
       code: 'HIGHER_TERMS_NEGLECTED',
       message: `${species}: ω_e and ω_e x_e from two vibrational intervals neglect ω_e y_e`,
     });
   }
-  if (plan.nLevels === 2) {
+  if (plan.nLevels === 2 && !isConstrained(2, 1)) {
     warnings.push({
       code: 'HIGHER_TERMS_NEGLECTED',
       message: `${species}: B_e and α_e from two vibrational levels (B_e = B_0 + α_e/2) neglect γ_e and higher terms`,
     });
   }
-  if (has(0, 2) && !has(1, 2)) {
+  if (has(0, 2) && !has(1, 2) && !isConstrained(1, 2)) {
     warnings.push({
       code: 'HIGHER_TERMS_NEGLECTED',
       message: `${species}: D_e is taken as the same in every level (β_e not determined)`,
     });
   }
-  const report = reportOf(species, sel.fit);
+  const constraints: TermConstraint[] = [...constrained.values()].map((p) => ({
+    parameter: dunhamName('Y', p.term),
+    species,
+    prior: quantity(p.value, p.sigma, 'cm-1'),
+    basis: p.basis,
+  }));
+  if (constraints.length > 0) {
+    warnings.push({
+      code: 'TERMS_CONSTRAINED',
+      message: `${species}: Dunham terms the lines cannot determine are constrained, their uncertainty carried into the covariance of the equilibrium constants: ${constraints.map((c) => `${c.parameter} = ${c.prior.value.toPrecision(3)} ± ${c.prior.uncertainty.toPrecision(2)} cm-1 (${c.basis})`).join('; ')}`,
+    });
+  }
+  const report = { ...reportOf(species, fit), ...(constraints.length > 0 ? { constrained: constraints } : {}) };
+  // Equilibrium constants are read from the determined terms only (a constrained term is the prior, not a result),
+  // with the covariance that already carries the constrained terms' uncertainty.
+  const keep = terms.flatMap((t, i) => (isConstrained(t.k, t.l) ? [] : [i]));
+  const p = terms.length;
   const set = {
-    keys: sel.terms.map((t) => `${t.k},${t.l}`),
-    values: Array.from(sel.fit.values),
-    covariance: sel.fit.covariance,
+    keys: keep.map((i) => `${(terms[i] as DunhamTerm).k},${(terms[i] as DunhamTerm).l}`),
+    values: keep.map((i) => fit.values[i] as number),
+    covariance: subCovariance(fit.covariance, p, keep),
   };
   return { report, set };
 }

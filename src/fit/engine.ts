@@ -156,3 +156,73 @@ export function correlationOf(cov: Float64Array, p: number): Float64Array {
 export function toRows(m: Float64Array, p: number): number[][] {
   return Array.from({ length: p }, (_, i) => Array.from(m.subarray(i * p, i * p + p)));
 }
+
+/** A prior on one parameter: a pseudo-observation p_k = value ± sigma. */
+export interface Prior {
+  /** Key of the parameter in the model. */
+  readonly key: string;
+  readonly value: number;
+  /** Standard uncertainty of the prior, in the parameter's unit. */
+  readonly sigma: number;
+}
+
+/**
+ * Augmented weighted least squares: the lines plus one pseudo-observation row per prior (coefficient 1 on its
+ * parameter), so that a constrained parameter's uncertainty flows into the covariance of everything it correlates
+ * with (SCIENCE.md §9 (a); e.g. Bevington & Robinson §7.2 on a priori constraints). `priorScale` is the s² the
+ * covariance will be multiplied by in a-posteriori mode (the reduced χ² of the unconstrained fit): the prior rows
+ * are weighted s²/σ², so that after scaling each prior still counts with its own σ. The result describes the
+ * lines only (observations, residuals, leverages); χ² includes the prior rows and the degrees of freedom count
+ * them, n + m − p.
+ */
+export function solveModelWithPriors(
+  model: LinearModel,
+  observations: readonly Observation[],
+  priors: readonly Prior[],
+  mode: UncertaintyMode,
+  priorScale = 1,
+): SolvedModel | RankDeficiency {
+  const n = observations.length;
+  const m = priors.length;
+  const p = model.parameters.length;
+  const rows = n + m;
+  if (rows < p) return { rankDeficient: true, groups: [model.parameters.slice()] };
+  const base = buildDesign(model, observations);
+  const design = new Float64Array(rows * p);
+  const column = new Map(model.parameters.map((q, j) => [q.key, j]));
+  for (let j = 0; j < p; j++) design.set(base.subarray(j * n, j * n + n), j * rows);
+  const y = new Float64Array(rows);
+  const w = new Float64Array(rows);
+  observations.forEach((o, i) => {
+    y[i] = o.position;
+    w[i] = o.weight;
+  });
+  const s2prior = mode === 'absolute' ? 1 : priorScale;
+  priors.forEach((pr, k) => {
+    const j = column.get(pr.key);
+    if (j === undefined) throw new Error(`prior on ${pr.key}, which the model does not hold`);
+    design[j * rows + n + k] = 1;
+    y[n + k] = pr.value;
+    w[n + k] = s2prior / (pr.sigma * pr.sigma);
+  });
+  const r = solveLeastSquares({ rows, cols: p, design, observations: y, weights: w, leverage: true });
+  if (r.rankDeficient) {
+    return {
+      rankDeficient: true,
+      groups: r.dependencies.map((g) => g.map((j) => model.parameters[j] as Parameter)),
+    };
+  }
+  const dof = rows - p;
+  const s2 = mode === 'absolute' ? 1 : dof > 0 ? r.chiSquare / dof : Number.NaN;
+  return {
+    model,
+    observations,
+    values: r.coefficients,
+    covariance: r.covariance.map((c) => c * s2),
+    residuals: r.residuals.slice(0, n),
+    leverages: (r.leverages ?? new Float64Array(rows)).slice(0, n),
+    chiSquare: r.chiSquare,
+    degreesOfFreedom: dof,
+    conditionNumber: r.conditionNumber,
+  };
+}

@@ -11,10 +11,12 @@ import { reportLevels } from './level-report.js';
 import { predictWithVariance, selectLevelModel } from './level-selection.js';
 import { readLines } from './observations.js';
 import { rejectOutliers } from './outliers.js';
+import { constrainLevelModel } from './truncation.js';
 import type { DetailedFit, DunhamFit, FitOptions, FitResult, LineInput, Statistics, Warning } from './types.js';
-import { checkRepeats, qualityWarnings } from './warnings.js';
+import { absoluteScaleWarnings, checkRepeats, qualityWarnings } from './warnings.js';
 import { weighLines } from './weights.js';
 
+export type { TermConstraint } from './truncation.js';
 export type {
   DetailedFit,
   DunhamFit,
@@ -120,6 +122,14 @@ export function fitLineListDetailed(
     });
     level = selectLevelModel(outliers.kept, maxOrder, mode, alpha);
   }
+  const truncation = constrainLevelModel(level, mode);
+  level = truncation.level;
+  if (truncation.constraints.length > 0) {
+    warnings.push({
+      code: 'TERMS_CONSTRAINED',
+      message: `centrifugal terms the lines cannot determine (term test p ≥ ${alpha}) are constrained, their uncertainty carried into the covariance: ${truncation.constraints.map((c) => `${c.parameter} = ${c.prior.value.toPrecision(3)} ± ${c.prior.uncertainty.toPrecision(2)} cm-1`).join(', ')} (${[...new Set(truncation.constraints.map((c) => c.basis.replace(/_\d+/g, '_v')))].join('; ')})`,
+    });
+  }
   const fit = level.fit;
 
   const report = reportLevels(input, observations, read.transitions, rejected, fit, masses);
@@ -158,6 +168,7 @@ export function fitLineListDetailed(
   warnings.push(...cds.warnings);
 
   checkRepeats(fit, given > 0, warnings);
+  absoluteScaleWarnings(fit, mode, warnings);
   qualityWarnings(fit, report.correlation, report.names, warnings);
 
   const statistics: Statistics = {
@@ -188,7 +199,8 @@ export function fitLineListDetailed(
     statistics,
     model: {
       levelTerms: report.levelTerms,
-      selection: `centrifugal and Dunham terms added while an F test gives p < ${alpha}`,
+      selection: `centrifugal and Dunham terms added while ${mode === 'absolute' ? 'a χ²-difference test' : 'an F test'} gives p < ${alpha}; the next term beyond them constrained by a prior`,
+      constraints: [...truncation.constraints, ...dunham.flatMap((d) => d.constrained ?? [])],
     },
     dunham,
     ...(massReducedDunham ? { massReducedDunham } : {}),

@@ -3,6 +3,7 @@ import type { Quantity } from '../derive/quantity.js';
 import type { Branch, Transition } from '../models/transitions.js';
 import type { CombinationDifferenceFit } from './combination-differences.js';
 import type { UncertaintyMode } from './engine.js';
+import type { TermConstraint } from './truncation.js';
 import type { ScatterGroup } from './weights.js';
 
 /** The types a line-list fit takes and returns (the stages in src/fit/ each fill a part of FitResult). */
@@ -94,6 +95,8 @@ export interface DunhamFit {
     readonly reducedChiSquare: number | null;
   };
   readonly terms: readonly string[];
+  /** Terms carried with a prior (not determined by the lines), when any. */
+  readonly constrained?: readonly TermConstraint[];
 }
 
 export interface FitResult {
@@ -124,6 +127,8 @@ export interface FitResult {
   readonly model: {
     readonly levelTerms: readonly { readonly species: string; readonly v: number; readonly terms: readonly string[] }[];
     readonly selection: string;
+    /** Terms the lines cannot determine, carried as constrained parameters with a prior (see truncation.ts). */
+    readonly constraints: readonly TermConstraint[];
   };
   readonly dunham: readonly DunhamFit[];
   readonly massReducedDunham?: DunhamFit & { readonly species: 'all' };

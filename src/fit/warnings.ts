@@ -77,3 +77,29 @@ export function qualityWarnings(
     }
   }
 }
+
+/** p-value below which χ² of a fit with absolute uncertainties is called inconsistent with them (either tail). */
+export const CHI_SQUARE_CONSISTENCY = 1e-3;
+
+/**
+ * With absolute uncertainties the covariance is not rescaled, so it is only as good as the caller's σ: warn when
+ * χ² is improbable for its degrees of freedom (P(χ²_ν ≥ χ²) < 0.001: uncertainties understated or the model
+ * misses something, e.g. χ²/ν = 3.5 on 62 degrees of freedom, p ≈ 1e-19; or P(χ²_ν ≤ χ²) < 0.001: overstated).
+ */
+export function absoluteScaleWarnings(fit: SolvedModel, mode: 'a-posteriori' | 'absolute', warnings: Warning[]): void {
+  const nu = fit.degreesOfFreedom;
+  if (mode !== 'absolute' || nu <= 0) return;
+  const upper = chiSquareSurvival(fit.chiSquare, nu);
+  const r = fit.chiSquare / nu;
+  if (upper < CHI_SQUARE_CONSISTENCY) {
+    warnings.push({
+      code: 'CHI_SQUARE_HIGH',
+      message: `χ²/ν = ${r.toFixed(2)} on ${nu} degrees of freedom (p = ${upper.toExponential(1)}) with absolute uncertainties: the line uncertainties understate the scatter or the model misses a term, and the reported uncertainties, which are not rescaled, are too small by about √(χ²/ν) = ${Math.sqrt(r).toFixed(2)}; consider uncertaintyMode "a-posteriori"`,
+    });
+  } else if (1 - upper < CHI_SQUARE_CONSISTENCY) {
+    warnings.push({
+      code: 'CHI_SQUARE_LOW',
+      message: `χ²/ν = ${r.toFixed(2)} on ${nu} degrees of freedom (p = ${(1 - upper).toExponential(1)} for so small a value) with absolute uncertainties: the line uncertainties look overstated, and so do the reported ones`,
+    });
+  }
+}

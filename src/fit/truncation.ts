@@ -1,0 +1,281 @@
+import { type Quantity, quantity } from '../derive/quantity.js';
+import type { DunhamTerm } from '../models/dunham.js';
+import { levelModel, levelParameters, levelStructure } from '../models/level-model.js';
+import { constantsFor } from '../species/library.js';
+import { parseSpecies } from '../species/parse.js';
+import { isRankDeficient, type Prior, reducedChiSquare, solveModelWithPriors, type UncertaintyMode } from './engine.js';
+import type { LevelSelection } from './level-selection.js';
+
+/**
+ * Honest uncertainties with an incomplete model (SCIENCE.md §9, option (a)). A term the lines cannot determine is
+ * still physically there: H_v of HCl below J ≈ 12, ω_e y_e with two vibrational intervals, γ_e with two levels.
+ * Leaving it out biases what it correlates with by more than the statistical σ. So the next term beyond the ones
+ * the term test kept is carried as a constrained parameter: a prior value ± σ from the reference library or from
+ * a Dunham relation, fitted as a pseudo-observation (`solveModelWithPriors`), its uncertainty propagated into the
+ * covariance of every fitted constant. Where the lines do carry information on the term the data dominate the
+ * prior; where they carry none the prior's σ flows into the constants it correlates with.
+ *
+ * Prior uncertainties (stated, conservative):
+ * - a relation or library value without uncertainty: ± 50 % of its value (the Kratzer and H_e relations hold to a
+ *   few per cent for CO and the hydrogen halides; the margin covers molecules where they do not);
+ * - no value at all (γ_e, β_e and ω_e y_e of most molecules): 0 ± 5 κ |Y_{k−1,l}|, κ = B_e/ω_e, Dunham's ordering
+ *   parameter (each step in k scales a coefficient by about κ; |β_e/D_e| of HCl reaches about 8κ, which this
+ *   covers at 1.6σ).
+ */
+export interface TermConstraint {
+  /** Parameter name, e.g. "H_0" or "Y30". */
+  readonly parameter: string;
+  readonly species: string;
+  readonly prior: Quantity;
+  /** Where the prior comes from. */
+  readonly basis: string;
+}
+
+/** Relative σ of a prior taken from a relation or a library value without uncertainty. */
+export const RELATION_PRIOR_FRACTION = 0.5;
+/** Width of a scale prior in units of κ |Y_{k−1,l}|. */
+export const SCALE_PRIOR_FACTOR = 5;
+
+interface Reference {
+  omega_e?: number;
+  omega_e_x_e?: number;
+  omega_e_y_e?: number;
+  B_e?: number;
+  alpha_e?: number;
+  gamma_e?: number;
+  D_e?: number;
+  beta_e?: number;
+  H_e?: number;
+}
+
+/** Customary constants of the species from the reference library (empty when it has none). */
+export function referenceOf(species: string): Reference {
+  let entry: ReturnType<typeof constantsFor>;
+  try {
+    entry = constantsFor(parseSpecies(species));
+  } catch {
+    return {};
+  }
+  const out: Reference = {};
+  const c = entry?.constants ?? {};
+  for (const k of [
+    'omega_e',
+    'omega_e_x_e',
+    'omega_e_y_e',
+    'B_e',
+    'alpha_e',
+    'gamma_e',
+    'D_e',
+    'beta_e',
+    'H_e',
+  ] as const) {
+    const x = (c as Record<string, { value: number } | undefined>)[k];
+    if (x) out[k] = x.value;
+  }
+  return out;
+}
+
+/** H_e ≈ 2 D_e (12 B_e² − α_e ω_e) / (3 ω_e²) (Dunham relation for a Morse-like potential; SCIENCE.md §9). */
+export const hFromRelation = (D: number, B: number, alpha: number, omega: number): number =>
+  (2 * D * (12 * B * B - alpha * omega)) / (3 * omega * omega);
+/** Kratzer: D_e ≈ 4 B_e³ / ω_e². */
+export const kratzerD = (B: number, omega: number): number => (4 * B ** 3) / omega ** 2;
+
+/**
+ * Stage 3b: constrain the next centrifugal term (D when only B was kept, H when D was) of every level, re-solving
+ * the kept model with the priors. Levels fitted to H or L are left alone (L's effect below the J where H is
+ * determined is negligible). Returns the selection unchanged when no prior can be formed.
+ */
+export function constrainLevelModel(
+  level: LevelSelection,
+  mode: UncertaintyMode,
+): { level: LevelSelection; constraints: TermConstraint[] } {
+  const fit = level.fit;
+  const obs = fit.observations;
+  const structure = levelStructure(obs);
+  const value = (key: string) => {
+    const i = fit.model.parameters.findIndex((p) => p.key === key);
+    return i < 0 ? undefined : (fit.values[i] as number);
+  };
+  const priors: (Prior & { name: string; species: string; basis: string })[] = [];
+  const widened = new Map(level.orders);
+  for (const s of structure.species) {
+    const ref = referenceOf(s);
+    const vs = structure.levels.get(s) as readonly number[];
+    const refLevel = structure.reference.get(s) as ReadonlyMap<number, number>;
+    // ω_e: the library's, else the smallest vibrational interval per quantum (ΔG ≈ ω_e − 2ω_e x_e: a few per
+    // cent low, well inside the prior's 50 %).
+    let omega = ref.omega_e;
+    let omegaBasis = 'ω_e from the reference library';
+    if (omega === undefined) {
+      for (const v of vs) {
+        const r = refLevel.get(v) as number;
+        const t = value(`${s}|T|${v}`);
+        if (t !== undefined && v !== r) {
+          const perQuantum = t / (v - r);
+          if (omega === undefined || perQuantum > omega) omega = perQuantum;
+        }
+      }
+      omegaBasis = 'ω_e ≈ the fitted vibrational interval';
+    }
+    for (const v of vs) {
+      const order = level.orders.get(`${s}|${v}`) ?? 1;
+      if (order >= 3) continue;
+      const B = value(`${s}|B|${v}`) as number;
+      const name = (kind: string) => `${kind}_${v}${structure.species.length > 1 ? `(${s})` : ''}`;
+      if (order === 1) {
+        const D = ref.D_e ?? (omega !== undefined ? kratzerD(B, omega) : undefined);
+        if (D === undefined || !(D > 0)) continue;
+        priors.push({
+          key: `${s}|D|${v}`,
+          value: D,
+          sigma: RELATION_PRIOR_FRACTION * D,
+          name: name('D'),
+          species: s,
+          basis:
+            ref.D_e !== undefined
+              ? 'D_e of the reference library, ± 50 %'
+              : `Kratzer D ≈ 4B³/ω_e² with B_${v} and ${omegaBasis}, ± 50 %`,
+        });
+      } else {
+        // H_v varies little with v (H_v = H_e + O(κ H_e)): one H_e for every level, from the library's
+        // equilibrium constants when it has them all, else from the lowest level with a fitted D.
+        const h = hPrior(s, ref, vs, value, omega, omegaBasis);
+        if (!h) continue;
+        priors.push({
+          key: `${s}|H|${v}`,
+          value: h.value,
+          sigma: h.sigma,
+          name: name('H'),
+          species: s,
+          basis: h.basis,
+        });
+      }
+      widened.set(`${s}|${v}`, order + 1);
+    }
+  }
+  if (priors.length === 0) return { level, constraints: [] };
+  const params = levelParameters(structure, widened);
+  const constrained = solveModelWithPriors(levelModel(params), obs, priors, mode, reducedChiSquare(fit) ?? 1);
+  if (isRankDeficient(constrained)) return { level, constraints: [] };
+  return {
+    level: { fit: constrained, orders: level.orders },
+    constraints: priors.map((p) => ({
+      parameter: p.name,
+      species: p.species,
+      prior: quantity(p.value, p.sigma, 'cm-1'),
+      basis: p.basis,
+    })),
+  };
+}
+
+function hPrior(
+  s: string,
+  ref: Reference,
+  vs: readonly number[],
+  value: (key: string) => number | undefined,
+  omega: number | undefined,
+  omegaBasis: string,
+): { value: number; sigma: number; basis: string } | undefined {
+  if (ref.H_e !== undefined)
+    return {
+      value: ref.H_e,
+      sigma: RELATION_PRIOR_FRACTION * Math.abs(ref.H_e),
+      basis: 'H_e of the reference library, ± 50 %',
+    };
+  if (ref.D_e !== undefined && ref.B_e !== undefined && ref.alpha_e !== undefined && ref.omega_e !== undefined) {
+    const H = hFromRelation(ref.D_e, ref.B_e, ref.alpha_e, ref.omega_e);
+    return {
+      value: H,
+      sigma: RELATION_PRIOR_FRACTION * Math.abs(H),
+      basis: 'H_v ≈ H_e ≈ 2D_e(12B_e² − α_e ω_e)/(3ω_e²) (Dunham relation) from the reference library, ± 50 %',
+    };
+  }
+  const v0 = vs.find((v) => (value(`${s}|D|${v}`) ?? 0) > 0);
+  if (v0 === undefined) return undefined;
+  const B = value(`${s}|B|${v0}`) as number;
+  const D = value(`${s}|D|${v0}`) as number;
+  const next = vs.find((x) => x === v0 + 1);
+  const Bn = next === undefined ? undefined : value(`${s}|B|${next}`);
+  const alpha = ref.alpha_e ?? (Bn !== undefined ? B - Bn : undefined);
+  const w = omega ?? Math.sqrt((4 * B ** 3) / D);
+  const H = hFromRelation(D, B, alpha ?? 0, w);
+  if (!Number.isFinite(H) || H === 0) return undefined;
+  const fraction = alpha === undefined ? 1 : RELATION_PRIOR_FRACTION;
+  return {
+    value: H,
+    sigma: fraction * Math.abs(H),
+    basis: `H_v ≈ H_e ≈ 2D(12B² − α_e ω_e)/(3ω_e²) (Dunham relation) with the fitted B_${v0}, D_${v0}, ${alpha === undefined ? 'α_e unknown (taken as 0, ± 100 %)' : `α_e ${ref.alpha_e !== undefined ? 'of the library' : 'from the fitted B_v'}, ± 50 %`} and ${omega !== undefined ? omegaBasis : 'ω_e from Kratzer'}`,
+  };
+}
+
+/**
+ * Priors for the Dunham terms next to the kept ones that a real molecule has: Y30 (ω_e y_e) next to Y20, Y21 (γ_e)
+ * next to Y11, Y12 (−β_e) next to Y02, Y02 (−D_e) when no level fitted D, and Y03 (H_e) next to Y02. Library values
+ * where it has them (± 50 %), the H_e relation for Y03, a scale prior 0 ± 5κ|Y_{k−1,l}| otherwise.
+ */
+export function dunhamPriors(
+  species: string,
+  terms: readonly DunhamTerm[],
+  values: ReadonlyMap<string, number>,
+): (Prior & { term: DunhamTerm; basis: string })[] {
+  const ref = referenceOf(species);
+  const has = (k: number, l: number) => terms.some((t) => t.k === k && t.l === l);
+  const y = (k: number, l: number) => values.get(`${k},${l}`);
+  const omega = y(1, 0) ?? ref.omega_e;
+  const B = y(0, 1) ?? ref.B_e;
+  const kappa = omega !== undefined && B !== undefined && omega > 0 ? B / omega : undefined;
+  const out: (Prior & { term: DunhamTerm; basis: string })[] = [];
+  const add = (k: number, l: number, libValue: number | undefined, libName: string) => {
+    if (!has(k - 1, l) || has(k, l)) return;
+    const key = `${species}|Y|${k},${l}`;
+    if (libValue !== undefined && libValue !== 0) {
+      out.push({
+        key,
+        value: libValue,
+        sigma: RELATION_PRIOR_FRACTION * Math.abs(libValue),
+        term: { k, l },
+        basis: `${libName} of the reference library, ± 50 %`,
+      });
+      return;
+    }
+    const lower = y(k - 1, l);
+    if (kappa === undefined || lower === undefined) return;
+    out.push({
+      key,
+      value: 0,
+      sigma: SCALE_PRIOR_FACTOR * kappa * Math.abs(lower),
+      term: { k, l },
+      basis: `not determined by the lines: 0 ± 5 (B_e/ω_e) |Y${k - 1}${l}| (Dunham ordering)`,
+    });
+  };
+  add(3, 0, ref.omega_e_y_e, 'ω_e y_e');
+  add(2, 1, ref.gamma_e, 'γ_e');
+  add(1, 2, ref.beta_e !== undefined ? -ref.beta_e : undefined, 'β_e');
+  if (!has(0, 2) && has(0, 1) && omega !== undefined && B !== undefined) {
+    const D = ref.D_e ?? kratzerD(B, omega);
+    out.push({
+      key: `${species}|Y|0,2`,
+      value: -D,
+      sigma: RELATION_PRIOR_FRACTION * D,
+      term: { k: 0, l: 2 },
+      basis: ref.D_e !== undefined ? 'D_e of the reference library, ± 50 %' : 'Kratzer D_e ≈ 4B_e³/ω_e², ± 50 %',
+    });
+  }
+  if (has(0, 2) && !has(0, 3)) {
+    const D = -(y(0, 2) as number);
+    const alpha = -(y(1, 1) ?? -(ref.alpha_e ?? 0));
+    if (omega !== undefined && B !== undefined && D > 0) {
+      const H = ref.H_e ?? hFromRelation(D, B, alpha, omega);
+      if (Number.isFinite(H) && H !== 0)
+        out.push({
+          key: `${species}|Y|0,3`,
+          value: H,
+          sigma: RELATION_PRIOR_FRACTION * Math.abs(H),
+          term: { k: 0, l: 3 },
+          basis: 'H_e ≈ 2D_e(12B_e² − α_e ω_e)/(3ω_e²) (Dunham relation), ± 50 %',
+        });
+    }
+  }
+  return out;
+}
