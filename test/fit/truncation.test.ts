@@ -121,10 +121,10 @@ describe('truncated models keep honest uncertainties', () => {
 describe('absolute uncertainties: χ²-difference term tests and a χ² consistency warning', () => {
   // Δχ² = 10 for one added term: p = P(χ²₁ ≥ 10) = 0.00157 (any χ² table; erfc(√5)). The nested F test on the
   // same fits (χ²_big = 3.3 on 5 degrees of freedom, F = 15.2) gives p ≈ 0.0115 and would refuse the term at 0.01.
-  const fit = (chiSquare: number, degreesOfFreedom: number) => ({ chiSquare, degreesOfFreedom }) as SolvedModel;
+  const solved = (chiSquare: number, degreesOfFreedom: number) => ({ chiSquare, degreesOfFreedom }) as SolvedModel;
   it('uses Δχ² with absolute uncertainties and the F test otherwise', () => {
-    expect(termTest(fit(13.3, 6), fit(3.3, 5), 'absolute')).toBeCloseTo(0.00157, 4);
-    const pF = termTest(fit(13.3, 6), fit(3.3, 5), 'a-posteriori');
+    expect(termTest(solved(13.3, 6), solved(3.3, 5), 'absolute')).toBeCloseTo(0.00157, 4);
+    const pF = termTest(solved(13.3, 6), solved(3.3, 5), 'a-posteriori');
     expect(pF).toBeGreaterThan(0.01);
     expect(pF).toBeLessThan(0.014);
   });
