@@ -215,6 +215,7 @@ const NamedQuantity = z.object({
 const TermConstraintSchema = z
   .object({
     parameter: z.string(),
+    key: z.string().describe('the parameter key in the model'),
     species: z.string(),
     prior: Q,
     basis: z.string().describe('where the prior value and its uncertainty come from'),

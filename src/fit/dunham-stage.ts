@@ -17,6 +17,23 @@ import { termTest } from './term-test.js';
 import { dunhamPriors, type TermConstraint } from './truncation.js';
 import type { DunhamFit, Warning } from './types.js';
 
+/** The customary constant each constrained Dunham term is, and the reported constants it moves. */
+const SYMBOL: Record<string, string> = { Y30: 'ω_e y_e', Y21: 'γ_e', Y12: '−β_e', Y02: '−D_e', Y03: 'H_e' };
+const AFFECTS: Record<string, string> = {
+  Y30: 'ω_e and ω_e x_e',
+  Y21: 'B_e and α_e',
+  Y12: 'D_e',
+  Y02: 'B_e and α_e',
+  Y03: 'D_e',
+};
+
+/** A number for a message: exponent form for the very small and the very large, three digits otherwise. */
+export function formatValue(x: number): string {
+  if (x === 0) return '0';
+  const a = Math.abs(x);
+  return a < 1e-3 || a >= 1e5 ? x.toExponential(2) : x.toPrecision(3);
+}
+
 /* Stage 5: Dunham fits of the kept lines, per isotopologue (and optionally one mass-reduced fit across them). */
 
 /** Dunham terms the level structure can determine, and the candidates the term test may add. */
@@ -181,14 +198,15 @@ export function fitDunhamForSpecies(
   }
   const constraints: TermConstraint[] = [...constrained.values()].map((p) => ({
     parameter: dunhamName('Y', p.term),
+    key: p.key,
     species,
     prior: quantity(p.value, p.sigma, 'cm-1'),
     basis: p.basis,
   }));
-  if (constraints.length > 0) {
+  for (const c of constraints) {
     warnings.push({
       code: 'TERMS_CONSTRAINED',
-      message: `${species}: Dunham terms the lines cannot determine are constrained, their uncertainty carried into the covariance of the equilibrium constants: ${constraints.map((c) => `${c.parameter} = ${c.prior.value.toPrecision(3)} ± ${c.prior.uncertainty.toPrecision(2)} cm-1 (${c.basis})`).join('; ')}`,
+      message: `${species}: the uncertainties of ${AFFECTS[c.parameter] ?? 'the equilibrium constants'} include that of ${SYMBOL[c.parameter] ?? c.parameter} (${c.parameter}), which the lines cannot determine and which is constrained to ${formatValue(c.prior.value)} ± ${formatValue(c.prior.uncertainty)} cm-1 (${c.basis})`,
     });
   }
   const report = { ...reportOf(species, fit), ...(constraints.length > 0 ? { constrained: constraints } : {}) };

@@ -5,7 +5,7 @@ import { levelStructure } from '../models/level-model.js';
 import { formatBand, type Transition, upperJ } from '../models/transitions.js';
 import type { MassValue } from '../species/reduced-mass.js';
 import { combinationChecks } from './cross-checks.js';
-import { fitDunhamForSpecies, fitMassReduced } from './dunham-stage.js';
+import { fitDunhamForSpecies, fitMassReduced, formatValue } from './dunham-stage.js';
 import { reducedChiSquare, rmsResidual, type UncertaintyMode } from './engine.js';
 import { reportLevels } from './level-report.js';
 import { predictWithVariance, selectLevelModel } from './level-selection.js';
@@ -127,12 +127,20 @@ export function fitLineListDetailed(
   if (truncation.constraints.length > 0) {
     warnings.push({
       code: 'TERMS_CONSTRAINED',
-      message: `centrifugal terms the lines cannot determine (term test p ≥ ${alpha}) are constrained, their uncertainty carried into the covariance: ${truncation.constraints.map((c) => `${c.parameter} = ${c.prior.value.toPrecision(3)} ± ${c.prior.uncertainty.toPrecision(2)} cm-1`).join(', ')} (${[...new Set(truncation.constraints.map((c) => c.basis.replace(/_\d+/g, '_v')))].join('; ')})`,
+      message: `centrifugal terms the lines cannot determine (term test p ≥ ${alpha}) are constrained, their uncertainty carried into the covariance: ${truncation.constraints.map((c) => `${c.parameter} = ${formatValue(c.prior.value)} ± ${formatValue(c.prior.uncertainty)} cm-1`).join(', ')} (${[...new Set(truncation.constraints.map((c) => c.basis.replace(/_\d+/g, '_v')))].join('; ')})`,
     });
   }
   const fit = level.fit;
 
-  const report = reportLevels(input, observations, read.transitions, rejected, fit, masses);
+  const report = reportLevels(
+    input,
+    observations,
+    read.transitions,
+    rejected,
+    fit,
+    masses,
+    new Set(truncation.constraints.map((c) => c.key)),
+  );
   warnings.push(...report.warnings);
   const structure = levelStructure(fit.observations);
 

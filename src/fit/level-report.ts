@@ -34,6 +34,8 @@ export function reportLevels(
   rejected: ReadonlyMap<number, string>,
   fit: SolvedModel,
   masses: ReadonlyMap<string, MassValue>,
+  /** Keys of constrained parameters: in the parameters and covariance, but not reported as level constants. */
+  constrained: ReadonlySet<string> = new Set(),
 ): LevelReport {
   const warnings: Warning[] = [];
   const params = fit.model.parameters;
@@ -133,6 +135,7 @@ export function reportLevels(
       const extra: Record<string, Quantity> = {};
       const terms: string[] = ['B'];
       for (const kind of ['D', 'H', 'L'] as const) {
+        if (constrained.has(`${s}|${kind}|${v}`)) continue;
         const x = quantityOf(`${s}|${kind}|${v}`);
         if (x) {
           extra[kind] = x;

@@ -25,6 +25,8 @@ import type { LevelSelection } from './level-selection.js';
 export interface TermConstraint {
   /** Parameter name, e.g. "H_0" or "Y30". */
   readonly parameter: string;
+  /** Parameter key in the model (e.g. "1H-35Cl|H|0"). */
+  readonly key: string;
   readonly species: string;
   readonly prior: Quantity;
   /** Where the prior comes from. */
@@ -162,6 +164,7 @@ export function constrainLevelModel(
     level: { fit: constrained, orders: level.orders },
     constraints: priors.map((p) => ({
       parameter: p.name,
+      key: p.key,
       species: p.species,
       prior: quantity(p.value, p.sigma, 'cm-1'),
       basis: p.basis,

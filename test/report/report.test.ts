@@ -117,16 +117,15 @@ describe('POST /v1/reports: a report a lab can file', () => {
       // The words themselves (units typeset, so compare up to the first unit).
       expect(all).toContain(w.message.split('cm-1')[0]);
     }
-    // One band of each isotopologue: B_e and α_e from two levels neglect γ_e, and the note sits under that table.
-    const neglect = (fit.warnings as { code: string; message: string }[]).findIndex((w) =>
-      w.message.includes('neglect γ_e'),
-    );
+    // One band of each isotopologue: B_e and α_e from two levels carry γ_e constrained, and the note sits under
+    // that table.
+    const neglect = (fit.warnings as { code: string; message: string }[]).findIndex((w) => w.message.includes('γ_e'));
     expect(neglect).toBeGreaterThanOrEqual(0);
     const eq = section(html, 'equilibrium');
     const bRow = [...eq.matchAll(/<tr>(.*?)<\/tr>/g)].find((r) => /B<sub>e<\/sub>/.test(r[1] as string));
     expect(bRow?.[1]).toContain(`W${neglect + 1}`);
     const notes = html.slice(html.indexOf('id="equilibrium-notes"'));
-    expect(text(notes.slice(0, notes.indexOf('</ul>')))).toContain('neglect γ_e');
+    expect(text(notes.slice(0, notes.indexOf('</ul>')))).toContain('γ_e');
   });
 
   it('draws one panel per band, in band order, with ±σ error bars on the residuals and units typeset', async () => {
