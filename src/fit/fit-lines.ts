@@ -122,6 +122,9 @@ export function fitLineListDetailed(
     });
     level = selectLevelModel(outliers.kept, maxOrder, mode, alpha);
   }
+  // The statistics describe the model the term test selected; the constrained terms change the covariance (and
+  // the values they correlate with), not the verdict on how well the lines fit.
+  const selected = level.fit;
   const truncation = constrainLevelModel(level, mode);
   level = truncation.level;
   if (truncation.constraints.length > 0) {
@@ -175,21 +178,21 @@ export function fitLineListDetailed(
     : combinationChecks(fit, level.orders, mode, report.quantityOf);
   warnings.push(...cds.warnings);
 
-  checkRepeats(fit, given > 0, warnings);
-  absoluteScaleWarnings(fit, mode, warnings);
-  qualityWarnings(fit, report.correlation, report.names, warnings);
+  checkRepeats(selected, given > 0, warnings);
+  absoluteScaleWarnings(selected, mode, warnings);
+  qualityWarnings(selected, report.correlation, report.names, warnings);
 
   const statistics: Statistics = {
     lines: input.length,
     assigned: observations.length,
-    fitted: fit.observations.length,
+    fitted: selected.observations.length,
     rejected: rejected.size,
     unassigned: input.length - observations.length,
-    parameters: fit.model.parameters.length,
-    degreesOfFreedom: fit.degreesOfFreedom,
-    rms: rmsResidual(fit),
-    reducedChiSquare: reducedChiSquare(fit),
-    conditionNumber: Number.isFinite(fit.conditionNumber) ? fit.conditionNumber : null,
+    parameters: selected.model.parameters.length,
+    degreesOfFreedom: selected.degreesOfFreedom,
+    rms: rmsResidual(selected),
+    reducedChiSquare: reducedChiSquare(selected),
+    conditionNumber: Number.isFinite(selected.conditionNumber) ? selected.conditionNumber : null,
     uncertaintyMode: mode,
   };
 
@@ -218,10 +221,10 @@ export function fitLineListDetailed(
     warnings,
   };
   const ref = structure.reference;
-  const scale = mode === 'absolute' ? 1 : (reducedChiSquare(fit) ?? 1);
+  const scale = mode === 'absolute' ? 1 : (reducedChiSquare(selected) ?? 1);
   return {
     result,
-    scale: reducedChiSquare(fit) ?? 1,
+    scale: reducedChiSquare(selected) ?? 1,
     predict(tr: Transition) {
       const r = ref.get(tr.species);
       const ru = r?.get(tr.band.upper);
