@@ -280,6 +280,7 @@ export interface components {
           value: components["schemas"]["Quantity"];
         }[];
       dunham: ({
+          constrained?: components["schemas"]["TermConstraint"][];
           covariance: {
             matrix: number[][];
             parameters: string[];
@@ -349,6 +350,7 @@ export interface components {
           uncertainty?: number;
         })[];
       massReducedDunham?: {
+        constrained?: components["schemas"]["TermConstraint"][];
         covariance: {
           matrix: number[][];
           parameters: string[];
@@ -371,6 +373,8 @@ export interface components {
         terms: string[];
       };
       model: {
+        /** @description terms carried with a prior because the lines cannot determine them; their σ is in the covariance */
+        constraints: components["schemas"]["TermConstraint"][];
         levelTerms: {
             species: string;
             terms: string[];
@@ -513,6 +517,7 @@ export interface components {
           value: components["schemas"]["Quantity"];
         }[];
       dunham: ({
+          constrained?: components["schemas"]["TermConstraint"][];
           covariance: {
             matrix: number[][];
             parameters: string[];
@@ -583,6 +588,7 @@ export interface components {
           uncertainty?: number;
         })[];
       massReducedDunham?: {
+        constrained?: components["schemas"]["TermConstraint"][];
         covariance: {
           matrix: number[][];
           parameters: string[];
@@ -605,6 +611,8 @@ export interface components {
         terms: string[];
       };
       model: {
+        /** @description terms carried with a prior because the lines cannot determine them; their σ is in the covariance */
+        constraints: components["schemas"]["TermConstraint"][];
         levelTerms: {
             species: string;
             terms: string[];
@@ -1063,6 +1071,16 @@ export interface components {
        * @enum {string}
        */
       yUnit?: "absorbance" | "transmittance";
+    };
+    /** @description a term the lines cannot determine, carried as a constrained parameter with this prior */
+    TermConstraint: {
+      /** @description where the prior value and its uncertainty come from */
+      basis: string;
+      /** @description the parameter key in the model */
+      key: string;
+      parameter: string;
+      prior: components["schemas"]["Quantity"];
+      species: string;
     };
     /** @description A tolerance profile; every field overrides one documented default. */
     Tolerances: {
