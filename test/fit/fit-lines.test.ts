@@ -98,10 +98,14 @@ describe('HCl fundamental alone (one band, two levels)', () => {
     expect(r.warnings.some((w) => w.code === 'VIBRATION_NEEDS_TWO_INTERVALS')).toBe(true);
   });
 
-  it('r_e(H³⁵Cl) within 4σ of 1.2745518285 Å (√(K/(μB_e)) of the generating HH B_e; tabulated 1.27455 Å)', () => {
+  it('r_e(H³⁵Cl) within 2σ of 1.2745518285 Å (√(K/(μB_e)) of the generating HH B_e; tabulated 1.27455 Å), with a σ that admits γ_e', () => {
+    // B_e from two levels misses γ_e by 3γ_e/4 (B_v = B_e − α_e(v+½) + γ_e(v+½)²). Real HCl has γ_e ≈ 1.7e-3 cm-1
+    // (from memory), 1.3e-3 cm-1 in B_e, 7.8e-5 Å in r_e: an honest σ(r_e) is at least half of that (2σ cover), and
+    // a constraint that knows nothing more than Dunham's ordering should not make it wider than 5e-4 Å.
     const re = eq?.r_e;
-    expect(re?.uncertainty as number).toBeLessThan(5e-6);
-    expect(Math.abs((re?.value as number) - 1.2745518285)).toBeLessThan(4 * (re?.uncertainty as number));
+    expect(re?.uncertainty as number).toBeGreaterThan(3.9e-5);
+    expect(re?.uncertainty as number).toBeLessThan(5e-4);
+    expect(Math.abs((re?.value as number) - 1.2745518285)).toBeLessThan(2 * (re?.uncertainty as number));
   });
 
   it('B_0 and B_1 are strongly and positively correlated, and the covariance is symmetric', () => {
