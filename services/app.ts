@@ -8,6 +8,7 @@ import {
   validatorCompiler,
 } from 'fastify-type-provider-zod';
 import { type Config, DEFAULT_CONFIG } from './config.js';
+import { sendProblem, toProblem } from './errors.js';
 import { createMetrics, type Metrics } from './metrics.js';
 import { finishDocument } from './openapi/finish.js';
 import { openapiInfo, PACKAGE_VERSION } from './openapi-info.js';
@@ -18,7 +19,7 @@ import { parseBodies } from './plugins/body-parsers.js';
 import { docsPage } from './plugins/docs.js';
 import { graphqlRoutes } from './plugins/graphql.js';
 import { openRoutes } from './plugins/probes.js';
-import { answerWithProblems } from './plugins/problems.js';
+import { answerWithProblems, clientErrorHandler } from './plugins/problems.js';
 import { limitRate } from './plugins/rate-limit.js';
 import { secureHeaders } from './plugins/security.js';
 import { shedLoad, watchEventLoop } from './plugins/shedding.js';
@@ -71,6 +72,11 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
     genReqId: () => randomUUID(),
     ajv: { customOptions: { strict: false } },
     requestTimeout: config.requestTimeoutMs,
+    clientErrorHandler,
+    // The router's own refusals (a malformed URL, a parameter over maxParamLength) as problems too.
+    frameworkErrors: (error, request, reply) => {
+      sendProblem(reply, toProblem(error, request));
+    },
     trustProxy:
       typeof config.trustProxy === 'number'
         ? (

@@ -2,6 +2,7 @@ import type { FastifyInstance } from 'fastify';
 import mercurius from 'mercurius';
 import type { Config } from '../config.js';
 import { problem, sendProblem } from '../errors.js';
+import { limitQueryCost } from '../graphql/limits.js';
 import { resolvers } from '../graphql/resolvers.js';
 import { typeDefs } from '../graphql/schema.js';
 
@@ -9,7 +10,7 @@ import { typeDefs } from '../graphql/schema.js';
 export const MAX_QUERY_CHARS = 20_000;
 
 /**
- * GraphQL: depth-limited, no batching, bounded query text, the small-body limit. Registered inside the protected
+ * GraphQL: no batching, bounded query text, the small-body limit, limits on depth, fields and computations. Registered inside the protected
  * scope so that keys, rate limit and shedding apply to it exactly as to /v1.
  * @see https://mercurius.dev/#/docs/api/options
  */
@@ -41,7 +42,8 @@ export async function graphqlRoutes(scope: FastifyInstance, config: Config, app:
     schema: typeDefs,
     resolvers: resolvers(config, app) as never,
     graphiql: false,
-    queryDepth: 12,
+    // Depth, field count and computations per request (introspection allowed): graphql/limits.ts.
+    validationRules: [limitQueryCost],
     allowBatchedQueries: false,
   });
 }

@@ -64,3 +64,32 @@ export function answerWithProblems(app: FastifyInstance): void {
     );
   });
 }
+
+/**
+ * Errors of the HTTP layer itself, before fastify has a request (a request that is not received in time, headers
+ * too large, a malformed request line): answered as problem+json on the socket, then the connection is closed.
+ * @see https://fastify.dev/docs/latest/Reference/Server/#clienterrorhandler
+ */
+export function clientErrorHandler(err: Error & { code?: string }, socket: import('node:net').Socket): void {
+  const [status, code, title] =
+    err.code === 'ERR_HTTP_REQUEST_TIMEOUT'
+      ? [408, 'REQUEST_TIMEOUT', 'Request Timeout']
+      : err.code === 'HPE_HEADER_OVERFLOW'
+        ? [431, 'HEADERS_TOO_LARGE', 'Request Header Fields Too Large']
+        : [400, 'BAD_REQUEST', 'Bad Request'];
+  if (err.code === 'ECONNRESET' || !socket.writable) {
+    socket.destroy();
+    return;
+  }
+  const body = JSON.stringify({
+    type: `/problems/${code.toLowerCase().replaceAll('_', '-')}`,
+    title,
+    status,
+    detail:
+      status === 408 ? 'the request was not received completely within REQUEST_TIMEOUT_MS' : 'the request is malformed',
+    code,
+  });
+  socket.end(
+    `HTTP/1.1 ${status} ${title}\r\nContent-Type: application/problem+json\r\nContent-Length: ${Buffer.byteLength(body)}\r\nConnection: close\r\n\r\n${body}`,
+  );
+}
