@@ -378,6 +378,9 @@ function runOne(
     return { result: r as unknown as Record<string, unknown>, rows, exit: EXIT.pass };
   }
   if (command === 'fit') {
+    // JSON answers for lists of more than 1 000 lines are lean (no per-line echoes) unless the file says otherwise.
+    if (format === 'json' && Array.isArray(body.lines) && body.lines.length > 1000)
+      body.options = { lean: true, ...(body.options ?? {}) };
     const r = runFit(parseOrThrow(fitRequestSchema(DEFAULT_CONFIG.maxLines), body, file));
     if (format === 'table') io.out(fitTable(file, r));
     return {

@@ -346,7 +346,7 @@ export interface components {
           /** @enum {string} */
           status: "fitted" | "rejected" | "unassigned";
           studentisedResidual?: number;
-          /** @description standard uncertainty of the position, cm-1: as sent, or from the peak fit; absent when none was given */
+          /** @description standard uncertainty of the position, cm-1: as sent, or from the peak fit; absent when none was given or in a lean answer */
           uncertainty?: number;
         })[];
       massReducedDunham?: {
@@ -430,6 +430,8 @@ export interface components {
       warnings: components["schemas"]["Warning"][];
     };
     FitOptions: {
+      /** @description true: each entry of `lines` leaves out what the request already holds (uncertainty, intensity, an assignment the caller gave), keeping index, id and position to match lines by; smaller answers for large lists (default false) */
+      lean?: boolean;
       /** @description also fit U_kl across isotopologues (default false) */
       massReducedDunham?: boolean;
       /** @description 1 = B, 2 = D, 3 = H, 4 = L (default 4) */
@@ -584,7 +586,7 @@ export interface components {
           /** @enum {string} */
           status: "fitted" | "rejected" | "unassigned";
           studentisedResidual?: number;
-          /** @description standard uncertainty of the position, cm-1: as sent, or from the peak fit; absent when none was given */
+          /** @description standard uncertainty of the position, cm-1: as sent, or from the peak fit; absent when none was given or in a lean answer */
           uncertainty?: number;
         })[];
       massReducedDunham?: {

@@ -33,6 +33,7 @@ import { peakRoutes } from './rest/peaks.js';
 import { potentialRoutes } from './rest/potentials.js';
 import { reportRoutes } from './rest/reports.js';
 import { speciesRoutes } from './rest/species.js';
+import { plainSerializer } from './serializer.js';
 
 export { MAX_JSON_DEPTH } from './plugins/body-parsers.js';
 
@@ -151,7 +152,7 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
           const validate = validatorCompiler(route as Parameters<typeof validatorCompiler>[0]);
           return (data: unknown) => (data instanceof RawBody ? { value: data } : validate(data));
         });
-        v1.setSerializerCompiler(serializerCompiler);
+        v1.setSerializerCompiler(config.validateResponses ? serializerCompiler : plainSerializer);
         await v1.register(fitRoutes(config));
         await v1.register(checkRoutes(config));
         await v1.register(peakRoutes(config));

@@ -64,6 +64,11 @@ export interface Config {
   readonly shutdownGraceMs: number;
   /** Whether /metrics shows the Node.js version (nodejs_version_info). Default false. METRICS_RUNTIME_VERSION. */
   readonly metricsRuntimeVersion: boolean;
+  /**
+   * Check every REST response against its zod schema before sending it (VALIDATE_RESPONSES). Default false: the
+   * schemas are checked by the tests, and a production request pays only for JSON.stringify.
+   */
+  readonly validateResponses: boolean;
 }
 
 function trustProxyFrom(raw: string | undefined): boolean | number | string[] {
@@ -125,6 +130,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     trustProxy: trustProxyFrom(env.TRUST_PROXY),
     shutdownGraceMs: intFrom(env, 'SHUTDOWN_GRACE_MS', 30_000, 0, 3_600_000),
     metricsRuntimeVersion: boolFrom(env, 'METRICS_RUNTIME_VERSION', false),
+    validateResponses: boolFrom(env, 'VALIDATE_RESPONSES', false),
   };
 }
 

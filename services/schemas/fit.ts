@@ -90,6 +90,12 @@ export const FitOptionsSchema = z
       .max(5)
       .optional()
       .describe('largest instrument wavenumber offset searched by automatic assignment, cm-1 (default 0.5)'),
+    lean: z
+      .boolean()
+      .optional()
+      .describe(
+        'true: each entry of `lines` leaves out what the request already holds (uncertainty, intensity, an assignment the caller gave), keeping index, id and position to match lines by; smaller answers for large lists (default false)',
+      ),
     structureBand: z
       .string()
       .regex(/^\d{1,2}-\d{1,2}$/)
@@ -169,7 +175,9 @@ export const LineOutcomeSchema = z.object({
   uncertainty: z
     .number()
     .optional()
-    .describe('standard uncertainty of the position, cm-1: as sent, or from the peak fit; absent when none was given'),
+    .describe(
+      'standard uncertainty of the position, cm-1: as sent, or from the peak fit; absent when none was given or in a lean answer',
+    ),
   intensity: z.number().optional().describe('as sent'),
   assignment: z
     .object({

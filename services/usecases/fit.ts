@@ -89,7 +89,7 @@ export function prepareFit(req: FitRequest): PreparedFit {
 }
 
 export function analyseRequest(p: PreparedFit): AnalysedFit {
-  const { temperature, maxOffset, structureBand, ...fitOptions } = p.options ?? {};
+  const { temperature, maxOffset, structureBand, lean: _lean, ...fitOptions } = p.options ?? {};
   const analysis = analyseLineList(p.peaks, p.declared, {
     fit: fitOptions,
     ...(temperature !== undefined ? { temperature } : {}),
@@ -106,10 +106,13 @@ export function presentFit(a: AnalysedFit): FitResponse {
     const id = a.lineIds?.[i];
     return id !== undefined ? { id } : {};
   };
+  const lean = a.options?.lean === true;
   const lines = result.lines.map((l) => {
     const note = notes.get(l.index);
     const sigma = peaks[l.index]?.uncertainty;
-    const withId = { ...l, ...idOf(l.index), ...(sigma !== undefined ? { uncertainty: sigma } : {}) };
+    const withId = lean
+      ? withoutEchoes({ ...l, ...idOf(l.index) })
+      : { ...l, ...idOf(l.index), ...(sigma !== undefined ? { uncertainty: sigma } : {}) };
     return note && !l.reason ? { ...withId, reason: note } : withId;
   });
   const response: DeepReadonly<FitResponse> = {
@@ -131,6 +134,14 @@ export function presentFit(a: AnalysedFit): FitResponse {
     notice: SAFETY_NOTICE,
   };
   return response as FitResponse;
+}
+
+/** A lean line outcome: what the request already holds (uncertainty, intensity, a given assignment) left out. */
+function withoutEchoes<T extends { uncertainty?: unknown; intensity?: unknown; assignment?: { source: string } }>(
+  l: T,
+) {
+  const { uncertainty: _u, intensity: _i, assignment, ...rest } = l;
+  return assignment && assignment.source !== 'given' ? { ...rest, assignment } : rest;
 }
 
 function withLine<T>(index: number, f: () => T): T {
