@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto';
 import { readFileSync, writeFileSync } from 'node:fs';
 import { basename, extname } from 'node:path';
 import { parseArgs } from 'node:util';
@@ -323,7 +324,9 @@ function report(file: string, v: Record<string, string | boolean | undefined>, t
     { ...body, ...(tolerances ? { tolerances } : {}) },
     file,
   );
-  const html = runReport(req);
+  // The report's provenance: this program's versions and the SHA-256 of the file exactly as read.
+  const sha256 = createHash('sha256').update(readFileSync(file)).digest('hex');
+  const html = runReport(req, { provenance: { software: SOFTWARE, input: { sha256 } } });
   const verdict = /<div class="verdict (pass|warn|fail)" id="verdict">/.exec(html)?.[1] as
     | keyof typeof EXIT
     | undefined;

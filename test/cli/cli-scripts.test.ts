@@ -1,4 +1,5 @@
 import { execFileSync, spawn } from 'node:child_process';
+import { createHash } from 'node:crypto';
 import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -124,6 +125,9 @@ describe('a CLI scripts can trust', () => {
     const html = readFileSync(out, 'utf8');
     expect(html).toMatch(/^<!doctype html>/i);
     expect(html).toMatch(/class="verdict fail"/);
+    // Tied to its input: the SHA-256 of the file's bytes and the software version are printed.
+    expect(html).toContain(createHash('sha256').update(readFileSync(shifted)).digest('hex'));
+    expect(html).toMatch(/Software<\/th><td>branchwise \d+\.\d+\.\d+/);
   });
 
   it('a closed pipe (`… | head`) ends quietly with the verdict status, not a crash with 1', async () => {
