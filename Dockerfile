@@ -2,18 +2,21 @@
 # Multi-stage build: compile with the dev dependencies, run with production ones only, as a non-root user, under
 # tini so that signals reach node and zombies are reaped.
 
-FROM node:20.20-bookworm-slim AS build
+# Node 24 is a maintained LTS line (Node 20 reached end of life on 2026-04-30). The package itself still runs on
+# Node >= 20.19 (package.json "engines"), which is what the development machines have.
+FROM node:24-bookworm-slim AS build
 WORKDIR /app
 COPY package.json package-lock.json ./
 # The sources are not here yet, so the "prepare" build is skipped and run explicitly below.
 RUN npm ci --no-audit --no-fund --ignore-scripts
 COPY tsconfig.json tsconfig.build.json ./
+COPY scripts/build.mjs ./scripts/build.mjs
 COPY src ./src
 COPY services ./services
 COPY cli ./cli
 RUN npm run build
 
-FROM node:20.20-bookworm-slim AS runtime
+FROM node:24-bookworm-slim AS runtime
 RUN apt-get update && apt-get install -y --no-install-recommends tini && rm -rf /var/lib/apt/lists/*
 WORKDIR /app
 ENV NODE_ENV=production HOST=0.0.0.0 PORT=8080

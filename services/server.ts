@@ -29,3 +29,18 @@ process.on('SIGINT', () => void shutdown('SIGINT'));
 process.on('SIGTERM', () => void shutdown('SIGTERM'));
 
 await app.listen({ host: config.host, port: config.port });
+{
+  // Where to go next, in one line: the service, its page and its documentation.
+  const address = app.server.address();
+  const port = typeof address === 'object' && address ? address.port : config.port;
+  const host = ['0.0.0.0', '::'].includes(config.host)
+    ? 'localhost'
+    : config.host.includes(':')
+      ? `[${config.host}]`
+      : config.host;
+  const base = `http://${host}:${port}`;
+  app.log.info(
+    { url: base, page: `${base}/`, docs: `${base}/docs/`, openapi: `${base}/openapi.json` },
+    `branchwise listening on ${base} (page ${base}/, documentation ${base}/docs/)`,
+  );
+}

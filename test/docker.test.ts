@@ -17,6 +17,21 @@ describe('deployment files', () => {
     // The build stage copies every source tree that tsconfig.build.json includes.
     const build = JSON.parse(readFileSync('tsconfig.build.json', 'utf8')) as { include: string[] };
     for (const dir of build.include) expect(d).toContain(`COPY ${dir} ./${dir}`);
+    // npm run build is scripts/build.mjs.
+    expect(JSON.parse(readFileSync('package.json', 'utf8')).scripts.build).toBe('node scripts/build.mjs');
+    expect(d).toContain('COPY scripts/build.mjs ./scripts/build.mjs');
+  });
+  it('the image runs a maintained Node LTS line that the package declares it supports', () => {
+    // Node.js release schedule (from memory): 20 ended 2026-04-30; 22 is maintained to 2027-04-30, 24 to 2028-04-30.
+    const maintained = [22, 24];
+    const d = readFileSync('Dockerfile', 'utf8');
+    const majors = [...d.matchAll(/^FROM node:(\d+)/gm)].map((m) => Number(m[1]));
+    expect(majors.length).toBeGreaterThanOrEqual(2);
+    for (const m of majors) expect(maintained).toContain(m);
+    const engines = JSON.parse(readFileSync('package.json', 'utf8')).engines.node as string;
+    const floor = /^>=(\d+)\.(\d+)\.\d+$/.exec(engines);
+    expect(floor, engines).not.toBeNull();
+    for (const m of majors) expect(m).toBeGreaterThanOrEqual(Number(floor?.[1]));
   });
   it('Kubernetes: probes on /healthz and /readyz, resources, HPA, PDB and an Indexed Job', () => {
     const files = readdirSync('docker/k8s')
