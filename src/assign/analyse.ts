@@ -1,5 +1,12 @@
 import { ScienceError } from '../errors.js';
-import { type FitOptions, type FitResult, fitLineListDetailed, type Warning } from '../fit/fit-lines.js';
+import {
+  type DetailedFit,
+  type FitOptions,
+  type FitResult,
+  fitLineListDetailed,
+  type LineInput,
+  type Warning,
+} from '../fit/fit-lines.js';
 import type { Band } from '../models/transitions.js';
 import { constantsFor } from '../species/library.js';
 import { elementsOnly, type Isotopologue, parseSpecies } from '../species/parse.js';
@@ -7,7 +14,63 @@ import { type MassValue, reducedMass } from '../species/reduced-mass.js';
 import { assignAndFit, type BandSummary, type Calibration, type PeakInput } from './assign-lines.js';
 import { isotopologuesMeant } from './candidates.js';
 import { type IdentificationCandidate, identifySpecies } from './identify.js';
+import { likelyLabels } from './relabel.js';
 import { assignByStructure, extendByFit, MIN_MARGIN, type NumberingEvidence } from './structure.js';
+
+/**
+ * When nothing matches the declared species, say what the lines do match (the library's best identification, when
+ * it is another molecule and scores at least 0.5).
+ */
+function withWhatItMatches<T>(
+  peaks: readonly PeakInput[],
+  declared: Isotopologue,
+  options: AnalyseOptions,
+  f: () => T,
+): T {
+  try {
+    return f();
+  } catch (e) {
+    if (!(e instanceof ScienceError) || e.code !== 'FIT_NO_ASSIGNED_LINES' || !/nothing matches/.test(e.message))
+      throw e;
+    const ranking = identifySpecies(peaks, {
+      ...(options.temperature ? { temperature: options.temperature } : {}),
+      maxOffset: options.maxOffset ?? 0.5,
+    });
+    const best = ranking[0];
+    const same = best && elementsOnly(parseSpecies(best.species)).formula === elementsOnly(declared).formula;
+    if (!best || same || best.score < 0.5) throw e;
+    throw new ScienceError(
+      e.code,
+      `${e.message}; the lines match ${best.name} (${best.species}, score ${best.score.toFixed(2)}, offset ${best.offset.toFixed(3)} cm-1) instead: was the species declared wrongly?`,
+      { ...e.details, bestMatch: best.species, bestScore: Number(best.score.toFixed(3)) },
+    );
+  }
+}
+
+/** The fit's result with, for each rejected line that another label fits, that label in its reason and a warning. */
+function withLabelSuggestions(fit: DetailedFit, lines: readonly LineInput[]): FitResult {
+  const labels = likelyLabels(fit, lines);
+  if (labels.size === 0) return fit.result;
+  const r = fit.result;
+  return {
+    ...r,
+    lines: r.lines.map((l) => {
+      const s = labels.get(l.index);
+      return s ? { ...l, reason: `${l.reason ?? 'rejected'}; ${s}` } : l;
+    }),
+    warnings: [
+      ...r.warnings,
+      {
+        code: 'LIKELY_MISLABELLED',
+        message: `${labels.size} rejected line(s) fit another transition of the fitted bands: ${[...labels]
+          .slice(0, 6)
+          .map(([i, m]) => `line ${i}: ${m.replace(/: probably mislabelled$/, '')}`)
+          .join('; ')}`,
+        lines: [...labels.keys()],
+      },
+    ],
+  };
+}
 
 /** Weakest over strongest intensity when every line carries a positive one; undefined otherwise. */
 function dynamicRange(peaks: readonly PeakInput[]): number | undefined {
@@ -92,7 +155,7 @@ export function analyseLineList(
   if (unassigned === 0) {
     const fit = fitLineListDetailed(peaks, masses, options.fit ?? {});
     return {
-      result: fit.result,
+      result: withLabelSuggestions(fit, peaks),
       assignment: { method: 'given', species: [...masses.keys()], bands: [], unexplained: [] },
       notes: new Map(),
     };
@@ -144,13 +207,16 @@ export function analyseLineList(
   for (const m of mixture) if (!masses.has(m.iso.formula)) masses.set(m.iso.formula, reducedMass(m.iso));
 
   if (constantsFor(species)) {
-    const r = assignAndFit(peaks, mixture, masses, {
-      minRelativeIntensity,
-      ...(options.temperature !== undefined ? { temperature: options.temperature } : {}),
-      ...(options.maxOffset !== undefined ? { maxOffset: options.maxOffset } : {}),
-      ...(options.fit ? { fit: options.fit } : {}),
-    });
-    const result = { ...r.fit.result, warnings: [...extraWarnings, ...r.warnings, ...r.fit.result.warnings] };
+    const r = withWhatItMatches(peaks, species, options, () =>
+      assignAndFit(peaks, mixture, masses, {
+        minRelativeIntensity,
+        ...(options.temperature !== undefined ? { temperature: options.temperature } : {}),
+        ...(options.maxOffset !== undefined ? { maxOffset: options.maxOffset } : {}),
+        ...(options.fit ? { fit: options.fit } : {}),
+      }),
+    );
+    const suggested = withLabelSuggestions(r.fit, r.lines);
+    const result = { ...suggested, warnings: [...extraWarnings, ...r.warnings, ...suggested.warnings] };
     return {
       result,
       assignment: {
@@ -230,7 +296,10 @@ export function analyseLineList(
     });
   }
   return {
-    result: { ...fit.result, warnings: [...warnings, ...fit.result.warnings] },
+    result: (() => {
+      const suggested = withLabelSuggestions(fit, lines);
+      return { ...suggested, warnings: [...warnings, ...suggested.warnings] };
+    })(),
     assignment: {
       method: 'structure',
       species: [species.formula],

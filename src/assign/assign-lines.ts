@@ -86,6 +86,8 @@ const GROWTH_J = 3;
 const MAX_J = 150;
 /** Half-width of a tolerance for a fitted band, in standard deviations of (prediction − observation). */
 const K_FITTED = 5;
+/** Below this many assigned lines, the inner fits of the assignment stop at D. */
+const FEW_LINES = 30;
 /** Largest ratio of a fitted prediction's standard uncertainty to the scatter of the lines. */
 const MAX_MODEL_TO_NOISE = 2;
 /** Lines of a band below which its scatter is pooled with all bands. */
@@ -172,15 +174,16 @@ export function assignAndFit(
   }
 
   // Withdrawn pairs: tried again once the band has grown (a line off an early, short fit may suit the final one),
-  // but never a third time.
+  // but never a fourth time.
   const banned = new Map<string, { at: number; count: number }>();
   const isBanned = (k: string, iter: number) => {
     const b = banned.get(k);
-    return b !== undefined && (b.count >= 2 || iter - b.at < 4);
+    return b !== undefined && (b.count >= 3 || iter - b.at < 4);
   };
   let auto = new Map<number, CandidateLine>();
   let detailed: DetailedFit | undefined;
   let competitions: Competition[] = [];
+  let swept = false;
   for (let iter = 0; iter < 60; iter++) {
     const reach = new Map<string, number>();
     for (const c of auto.values()) reach.set(bandKey(c), Math.max(reach.get(bandKey(c)) ?? 0, c.j));
@@ -208,7 +211,10 @@ export function assignAndFit(
           // Beyond the reach, a few lines at a time; further only where the model is still as sharp as the data.
           const noise = Math.max(st.scatter, st.sigmaFactor * (typicalSigma ?? 0));
           if (c.j > r + GROWTH_J && noise > 0 && Math.sqrt(fitted.variance) > MAX_MODEL_TO_NOISE * noise) return;
-          const model = K_FITTED * Math.sqrt(fitted.variance) + 1e-6;
+          // The fitted model's variance ignores the terms it could not yet determine: where it extrapolates, the
+          // reference prediction (with its offset) is a second opinion, and the tolerance spans the two.
+          const second = c.j > r ? Math.abs(fitted.value + st.shift - (c.position + offsets.of(bk, src).offset)) : 0;
+          const model = Math.hypot(K_FITTED * Math.sqrt(fitted.variance), second) + 1e-6;
           // A tolerance wider than a quarter of the line spacing tells nothing.
           if (model > 0.25 * (spacing.get(bk) ?? Number.POSITIVE_INFINITY)) return;
           prediction = {
@@ -274,7 +280,7 @@ export function assignAndFit(
       for (const [i, c] of next) {
         if (bandKey(c) !== bk) continue;
         const key = `${i}|${transitionKey(c)}`;
-        banned.set(key, { at: iter, count: 2 });
+        banned.set(key, { at: iter, count: 3 });
         next.delete(i);
         notes.set(
           i,
@@ -286,7 +292,13 @@ export function assignAndFit(
     const same = withdrawn === 0 && sameAssignments(auto, next);
     auto = next;
     detailed = withdrawn > 0 ? (tryFit(lineInputs(auto)) ?? fit) : fit;
-    if (same) break;
+    if (same) {
+      // Once settled, every pair withdrawn fewer than three times gets one more chance against the final model
+      // (it may have been withdrawn by an early fit that a wrong line had bent).
+      if (swept || banned.size === 0) break;
+      swept = true;
+      for (const b of banned.values()) b.at = Number.NEGATIVE_INFINITY;
+    }
   }
   for (const c of competitions) {
     if (auto.has(c.peak)) continue;
@@ -317,9 +329,53 @@ export function assignAndFit(
     return Math.abs(l.residual - st.shift) <= tol;
   }
 
+  /** Why no line could be assigned, in the terms a caller can act on. */
+  function nothingAssigned(): ScienceError {
+    const min = options.minLinesPerBand ?? 4;
+    const names = species.map((s) => s.iso.formula).join(', ');
+    if (free.length < min) {
+      return new ScienceError(
+        'FIT_NO_ASSIGNED_LINES',
+        `${free.length} line(s) were sent without assignments: a band needs at least ${min} lines to be recognised and assigned automatically; send more lines, or assign them`,
+        { lines: free.length, minLinesPerBand: min },
+      );
+    }
+    if (cands.length === 0) {
+      return new ScienceError(
+        'FIT_NO_ASSIGNED_LINES',
+        `nothing matches the declared species: no band of ${names} is predicted between ${lo.toFixed(1)} and ${hi.toFixed(1)} cm-1, where the lines lie`,
+        { window: [lo, hi] },
+      );
+    }
+    const bestBand = [
+      ...groupBy(
+        cands.filter((c, i) => seedable[i] && c.j <= START_J),
+        bandKey,
+      ),
+    ]
+      .map(([k, list]) => ({ k, list, best: bestBandOffset(list, free, maxOffset) }))
+      .sort((a, b) => (b.best?.matches ?? 0) - (a.best?.matches ?? 0))[0];
+    return new ScienceError(
+      'FIT_NO_ASSIGNED_LINES',
+      `nothing matches the declared species ${names}: ${
+        bestBand
+          ? `its best band in the window, ${bestBand.k.replace('|', ' ')}, finds only ${bestBand.best?.matches ?? 0} of its ${bestBand.list.length} strongest predicted lines at any offset within ±${maxOffset} cm-1, and a band needs ${min}`
+          : 'none of its bands has a strong line predicted where the lines lie'
+      }`,
+      { species: names },
+    );
+  }
+
   function tryFit(lines: LineInput[]): DetailedFit | undefined {
     try {
-      return fitLineListDetailed(lines, masses, { ...(options.fit ?? {}), levelsOnly: true });
+      // Few lines: B and D only, so that extrapolation to the next lines is not led astray by terms fitted to noise.
+      const n = lines.filter((l) => l.assignment).length;
+      const order = Math.min(options.fit?.maxCentrifugalOrder ?? 4, n < FEW_LINES ? 2 : 4);
+      return fitLineListDetailed(lines, masses, {
+        ...(options.fit ?? {}),
+        levelsOnly: true,
+        maxCentrifugalOrder: order,
+      });
     } catch (e) {
       if (
         e instanceof ScienceError &&
@@ -334,6 +390,7 @@ export function assignAndFit(
   function finish(autoMap: ReadonlyMap<number, CandidateLine>, fitted?: DetailedFit): AssignResult {
     const lines = lineInputs(autoMap);
     void fitted;
+    if (!lines.some((l) => l.assignment)) throw nothingAssigned();
     const fit = fitLineListDetailed(lines, masses, options.fit ?? {});
     const unexplained = peaks.flatMap((p, i) => (p.assignment || autoMap.has(i) ? [] : [i]));
     if (unexplained.length > 0) {
@@ -721,6 +778,17 @@ function lineSpacings(cands: readonly CandidateLine[]): Map<string, number> {
   }
   const out = new Map<string, number>();
   for (const [k, list] of d) if (list.length > 0) out.set(k, robustMedian(list));
+  return out;
+}
+
+function groupBy<T>(xs: readonly T[], key: (x: T) => string): Map<string, T[]> {
+  const out = new Map<string, T[]>();
+  for (const x of xs) {
+    const k = key(x);
+    const list = out.get(k) ?? [];
+    list.push(x);
+    out.set(k, list);
+  }
   return out;
 }
 
