@@ -1,5 +1,7 @@
 import { z } from 'zod';
 import { ScienceError } from '../src/errors.js';
+import { prefersCsv, resultCsv, type TableName } from './formats/csv-tables.js';
+import { withDisplay } from './formats/round.js';
 import type { Provenance } from './provenance.js';
 import { decodeBody, type Limits } from './raw-body.js';
 import { type CheckRequest, CheckResponseSchema, checkRequestSchema } from './schemas/checks.js';
@@ -34,6 +36,8 @@ export interface RawJob {
   readonly query: Record<string, unknown>;
   readonly limits: Limits;
   readonly provenance: Provenance;
+  /** The request's Accept header: fits and checks answer CSV when it prefers text/csv (services/formats/). */
+  readonly accept?: string;
 }
 
 /** What a raw job answers: the response body, already serialised. */
@@ -87,12 +91,15 @@ function runRaw(job: RawJob): RawAnswer {
   const stamped = { ...assertFinite(result), ...(body.sample ? { sample: body.sample } : {}), ...job.provenance };
   const responseSchema: z.ZodType =
     job.route === 'fit' ? FitResponseSchema : job.route === 'check' ? CheckResponseSchema : PeaksResponseSchema;
-  const encoded = z.encode(responseSchema, stamped);
-  return {
-    body: JSON.stringify(encoded),
-    type: 'application/json; charset=utf-8',
-    ...('verdict' in result ? { verdict: String(result.verdict) } : {}),
-  };
+  const verdict = 'verdict' in result ? { verdict: String(result.verdict) } : {};
+  // The same forms as a small body gets (services/formats/respond.ts): CSV tables, or rounded display strings.
+  if (job.route !== 'peaks' && prefersCsv(job.accept)) {
+    const table = (job.query.table as TableName | undefined) ?? 'lines';
+    return { body: resultCsv(job.route, stamped as never, table), type: 'text/csv; charset=utf-8', ...verdict };
+  }
+  const shown = job.route !== 'peaks' && job.query.display === 'rounded' ? withDisplay(stamped) : stamped;
+  const encoded = z.encode(responseSchema, shown);
+  return { body: JSON.stringify(encoded), type: 'application/json; charset=utf-8', ...verdict };
 }
 
 function run(job: Job): unknown {

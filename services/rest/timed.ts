@@ -49,6 +49,7 @@ export async function answerRawBody(
     query: raw.query,
     limits: { maxLines: config.maxLines, maxPoints: config.maxPoints },
     provenance: provenanceOf(req),
+    ...(req.headers.accept ? { accept: req.headers.accept } : {}),
   };
   const a = await timed(app, route, raw.size, () =>
     app.pool.run<RawAnswer>(job, Math.max(raw.size, config.workerThreshold), workOptions(req, reply)),

@@ -152,3 +152,34 @@ describe('results as labs file them', () => {
     expect(strip(b)).toEqual(strip(a));
   });
 });
+
+describe('the same forms for bodies large enough to be handled in a worker (npm start defaults)', () => {
+  it('a 300 kB body (above OFFLOAD_BYTES) still answers CSV to Accept: text/csv and display strings to ?display=rounded', async () => {
+    const { buildApp } = await import('../../services/app.js');
+    const { loadConfig } = await import('../../services/config.js');
+    const config = loadConfig({});
+    expect(config.workers).toBeGreaterThan(0);
+    const big = await buildApp({ config });
+    try {
+      // Whitespace after the JSON makes the body large without changing it.
+      const payload = `${JSON.stringify(fitExample)}${' '.repeat(300_000)}`;
+      expect(payload.length).toBeGreaterThan(config.offloadBytes);
+      const headers = { 'content-type': 'application/json' };
+      const csv = await big.inject({
+        method: 'POST',
+        url: '/v1/fits',
+        headers: { ...headers, accept: 'text/csv' },
+        payload,
+      });
+      expect(csv.statusCode, csv.body).toBe(200);
+      expect(csv.headers['content-type']).toMatch(/^text\/csv/);
+      expect(rowsOf(csv.body)).toHaveLength(fitExample.lines.length + 1);
+      const rounded = await big.inject({ method: 'POST', url: '/v1/fits?display=rounded', headers, payload });
+      expect(rounded.statusCode, rounded.body).toBe(200);
+      const o = rounded.json().bands[0].origin;
+      expect(o.display).toBe(roundedDisplay(o.value, o.uncertainty));
+    } finally {
+      await big.close();
+    }
+  }, 60_000);
+});
