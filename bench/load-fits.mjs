@@ -24,6 +24,7 @@ console.log(
   JSON.stringify({
     requests: result.requests.total,
     non2xx: result.non2xx,
+    byStatus: Object.fromEntries(Object.entries(result.statusCodeStats ?? {}).map(([k, v]) => [k, v.count])),
     errors: result.errors,
     timeouts: result.timeouts,
     rps: result.requests.average,

@@ -60,7 +60,7 @@ export interface Config {
    * @see https://fastify.dev/docs/latest/Reference/Server/#trustproxy
    */
   readonly trustProxy: boolean | number | string[];
-  /** Time given to in-flight work after SIGTERM before the process exits, in ms. Default 30 000. SHUTDOWN_GRACE_MS. */
+  /** Time given to in-flight work after SIGTERM before the process exits, in ms. Default 25 000 (below k8s terminationGracePeriodSeconds 35 and compose stop_grace_period 35 s). SHUTDOWN_GRACE_MS. */
   readonly shutdownGraceMs: number;
   /** Whether /metrics shows the Node.js version (nodejs_version_info). Default false. METRICS_RUNTIME_VERSION. */
   readonly metricsRuntimeVersion: boolean;
@@ -128,7 +128,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     offloadBytes: intFrom(env, 'OFFLOAD_BYTES', 256 * 1024, 0, 1024 * 1024 * 1024),
     maxPoints: intFrom(env, 'MAX_POINTS', 5_000_000, 8, 100_000_000),
     trustProxy: trustProxyFrom(env.TRUST_PROXY),
-    shutdownGraceMs: intFrom(env, 'SHUTDOWN_GRACE_MS', 30_000, 0, 3_600_000),
+    shutdownGraceMs: intFrom(env, 'SHUTDOWN_GRACE_MS', 25_000, 0, 3_600_000),
     metricsRuntimeVersion: boolFrom(env, 'METRICS_RUNTIME_VERSION', false),
     validateResponses: boolFrom(env, 'VALIDATE_RESPONSES', false),
   };

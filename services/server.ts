@@ -1,9 +1,10 @@
 import { buildApp } from './app.js';
 import { loadConfig } from './config.js';
+import { shutdownOnSignals } from './shutdown.js';
 
 /**
- * Listen, and close gracefully on SIGINT/SIGTERM: readiness turns false first, in-flight requests finish, then
- * the process exits. A second signal, or 10 s without closing, forces the exit.
+ * Listen, and close gracefully on SIGINT/SIGTERM (services/shutdown.ts): readiness turns false first, in-flight
+ * requests finish, then the process exits. A second signal, or SHUTDOWN_GRACE_MS without closing, forces the exit.
  */
 const config = loadConfig();
 const app = await buildApp({
@@ -14,17 +15,7 @@ const app = await buildApp({
   },
 });
 
-let closing = false;
-async function shutdown(signal: string): Promise<void> {
-  if (closing) process.exit(1);
-  closing = true;
-  app.appState.ready = false;
-  app.log.info({ signal }, 'shutting down');
-  const timer = setTimeout(() => process.exit(1), 10_000);
-  timer.unref();
-  await app.close();
-  process.exit(0);
-}
+const shutdown = shutdownOnSignals(app, config.shutdownGraceMs);
 process.on('SIGINT', () => void shutdown('SIGINT'));
 process.on('SIGTERM', () => void shutdown('SIGTERM'));
 

@@ -1,5 +1,6 @@
 import { readdirSync, readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
+import { loadConfig } from '../services/config.js';
 
 /**
  * No Docker engine or cluster runs here: these checks read the deployment files for what must hold (probes on the
@@ -45,10 +46,33 @@ describe('deployment files', () => {
     expect(files).toMatch(/completionMode: Indexed/);
     expect(files).toMatch(/runAsNonRoot: true/);
   });
-  it('compose runs two replicas behind nginx, which retries a failed upstream once', () => {
+  it('compose runs two replicas behind nginx, which re-sends a request only when a replica cannot be reached', () => {
     const c = readFileSync('docker/compose.yaml', 'utf8');
     expect(c).toMatch(/replicas: 2/);
     const n = readFileSync('docker/nginx.conf', 'utf8');
-    expect(n).toMatch(/proxy_next_upstream error timeout http_502 http_503 non_idempotent/);
+    const retry = /proxy_next_upstream ([^;]+);/.exec(n)?.[1]?.split(/\s+/) ?? [];
+    expect(retry).toContain('error');
+    for (const slow of ['timeout', 'http_502', 'http_503', 'http_504']) expect(retry).not.toContain(slow);
+  });
+
+  it('the pieces agree: nginx body limit ≥ BODY_LIMIT, read timeout > the deadline, grace periods nest', () => {
+    const config = loadConfig({});
+    const n = readFileSync('docker/nginx.conf', 'utf8');
+    const size = /client_max_body_size (\d+)m;/.exec(n)?.[1];
+    expect(Number(size) * 1024 * 1024).toBeGreaterThanOrEqual(config.bodyLimit);
+    const readTimeout = Number(/proxy_read_timeout (\d+)s;/.exec(n)?.[1]);
+    expect(readTimeout * 1000).toBeGreaterThan(config.processingDeadlineMs);
+    const k8s = readFileSync('docker/k8s/deployment.yaml', 'utf8');
+    const k8sGrace = Number(/terminationGracePeriodSeconds: (\d+)/.exec(k8s)?.[1]);
+    const preStopMs = Number(/setTimeout\(\(\) => \{\}, (\d+)\)/.exec(k8s)?.[1] ?? 0);
+    expect(preStopMs).toBeGreaterThan(0);
+    expect(k8sGrace * 1000).toBeGreaterThan(config.shutdownGraceMs + preStopMs);
+    const compose = readFileSync('docker/compose.yaml', 'utf8');
+    const composeGrace = Number(/stop_grace_period: (\d+)s/.exec(compose)?.[1]);
+    expect(composeGrace * 1000).toBeGreaterThan(config.shutdownGraceMs);
+    // The loopback check runs the production defaults: no protection switched off.
+    const check = readFileSync('docker/loopback-check.sh', 'utf8');
+    for (const off of ['WORKERS=0', 'RATE_LIMIT_PER_MINUTE=0', 'MAX_EVENT_LOOP_DELAY_MS=0'])
+      expect(check).not.toContain(off);
   });
 });

@@ -52,7 +52,7 @@ export const batchRoutes =
             operationId: path === 'fits' ? 'fitBatch' : 'checkBatch',
             tags: ['batch'],
             summary: `Many ${path} as NDJSON`,
-            description: `Send ${NDJSON}: one /v1/${path} request body a line. The answer streams one line per request, in order: {"index", "line", "status", "result"} or {"index", "line", "status", "problem"}, where line is the 1-based number of the input line (blank lines counted) and index = line − 1. Each line may be at most BODY_LIMIT bytes.`,
+            description: `Send ${NDJSON}: one /v1/${path} request body a line. The answer streams one line per request, in order: {"index", "line", "status", "result"} or {"index", "line", "status", "problem"}, where line is the 1-based number of the input line (blank lines counted) and index = line − 1. Each line may be at most BODY_LIMIT bytes. When the service shuts down mid-batch it finishes the line in hand and ends with {"incomplete": true, "reason", "resumeFromLine", "resumeFromIndex"}: send the lines from there again.`,
             response: {
               200: { description: 'one result a line', content: { [NDJSON]: { schema: z.string() } } },
             },
@@ -73,6 +73,16 @@ export const batchRoutes =
               const i = next++;
               const line = 'text' in piece ? piece.text.replace(/\r$/, '') : '';
               if ('text' in piece && line.trim() === '') continue;
+              if (!app.appState.ready) {
+                // Shutting down: no new line is started; the closing record says where to resume.
+                await writeLine({
+                  incomplete: true,
+                  reason: 'the service is shutting down',
+                  resumeFromLine: i + 1,
+                  resumeFromIndex: i,
+                });
+                break;
+              }
               const write = (o: { status: number; result?: unknown; problem?: unknown }) =>
                 writeLine({ index: i, line: i + 1, ...o });
               try {
