@@ -33,14 +33,14 @@ export interface paths {
   "/v1/batch/checks": {
     /**
      * Many checks as NDJSON
-     * @description Send application/x-ndjson: one /v1/checks request body a line. The answer streams one line per request, in order: {"index", "line", "status", "result"} or {"index", "line", "status", "problem"}, where line is the 1-based number of the input line (blank lines counted) and index = line − 1. Each line may be at most BODY_LIMIT bytes.
+     * @description Send application/x-ndjson: one /v1/checks request body a line. The answer streams one line per request, in order: {"index", "line", "status", "result"} or {"index", "line", "status", "problem"}, where line is the 1-based number of the input line (blank lines counted) and index = line − 1. Each line may be at most BODY_LIMIT bytes. When the service shuts down mid-batch it finishes the line in hand and ends with {"incomplete": true, "reason", "resumeFromLine", "resumeFromIndex"}: send the lines from there again.
      */
     post: operations["checkBatch"];
   };
   "/v1/batch/fits": {
     /**
      * Many fits as NDJSON
-     * @description Send application/x-ndjson: one /v1/fits request body a line. The answer streams one line per request, in order: {"index", "line", "status", "result"} or {"index", "line", "status", "problem"}, where line is the 1-based number of the input line (blank lines counted) and index = line − 1. Each line may be at most BODY_LIMIT bytes.
+     * @description Send application/x-ndjson: one /v1/fits request body a line. The answer streams one line per request, in order: {"index", "line", "status", "result"} or {"index", "line", "status", "problem"}, where line is the 1-based number of the input line (blank lines counted) and index = line − 1. Each line may be at most BODY_LIMIT bytes. When the service shuts down mid-batch it finishes the line in hand and ends with {"incomplete": true, "reason", "resumeFromLine", "resumeFromIndex"}: send the lines from there again.
      */
     post: operations["fitBatch"];
   };
@@ -1250,7 +1250,7 @@ export interface operations {
   };
   /**
    * Many checks as NDJSON
-   * @description Send application/x-ndjson: one /v1/checks request body a line. The answer streams one line per request, in order: {"index", "line", "status", "result"} or {"index", "line", "status", "problem"}, where line is the 1-based number of the input line (blank lines counted) and index = line − 1. Each line may be at most BODY_LIMIT bytes.
+   * @description Send application/x-ndjson: one /v1/checks request body a line. The answer streams one line per request, in order: {"index", "line", "status", "result"} or {"index", "line", "status", "problem"}, where line is the 1-based number of the input line (blank lines counted) and index = line − 1. Each line may be at most BODY_LIMIT bytes. When the service shuts down mid-batch it finishes the line in hand and ends with {"incomplete": true, "reason", "resumeFromLine", "resumeFromIndex"}: send the lines from there again.
    */
   checkBatch: {
     requestBody: {
@@ -1277,7 +1277,7 @@ export interface operations {
   };
   /**
    * Many fits as NDJSON
-   * @description Send application/x-ndjson: one /v1/fits request body a line. The answer streams one line per request, in order: {"index", "line", "status", "result"} or {"index", "line", "status", "problem"}, where line is the 1-based number of the input line (blank lines counted) and index = line − 1. Each line may be at most BODY_LIMIT bytes.
+   * @description Send application/x-ndjson: one /v1/fits request body a line. The answer streams one line per request, in order: {"index", "line", "status", "result"} or {"index", "line", "status", "problem"}, where line is the 1-based number of the input line (blank lines counted) and index = line − 1. Each line may be at most BODY_LIMIT bytes. When the service shuts down mid-batch it finishes the line in hand and ends with {"incomplete": true, "reason", "resumeFromLine", "resumeFromIndex"}: send the lines from there again.
    */
   fitBatch: {
     requestBody: {
