@@ -1,10 +1,15 @@
 import { type ChildProcess, spawn } from 'node:child_process';
 
 /** The service in its own process from the TypeScript sources, for load scripts; resolves when it is ready. */
-export async function startServer(port: number): Promise<{ stop: () => void; child: ChildProcess }> {
-  const child = spawn('npx', ['tsx', 'services/server.ts'], {
+export async function startServer(
+  port: number,
+  entry = 'services/server.ts',
+  extraEnv: Record<string, string> = {},
+): Promise<{ stop: () => void; child: ChildProcess }> {
+  const child = spawn('npx', ['tsx', entry], {
     env: {
       ...process.env,
+      ...extraEnv,
       PORT: String(port),
       HOST: '127.0.0.1',
       LOG_LEVEL: 'warn',
@@ -20,7 +25,8 @@ export async function startServer(port: number): Promise<{ stop: () => void; chi
   };
   for (let i = 0; i < 100; i++) {
     try {
-      if ((await fetch(`http://127.0.0.1:${port}/readyz`)).ok) return { stop, child };
+      if ((await fetch(`http://127.0.0.1:${port}${entry === 'services/server.ts' ? '/readyz' : '/healthz'}`)).ok)
+        return { stop, child };
     } catch {
       // not up yet
     }

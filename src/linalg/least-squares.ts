@@ -60,7 +60,11 @@ export interface LeastSquaresResult {
 
 const EPS = 2.220446049250313e-16;
 
+/** Solves since the process started: read by `npm run bench` to price a whole fit in solves. */
+export const solveCount = { value: 0 };
+
 export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult {
+  solveCount.value++;
   const { rows: n, cols: p, design, observations, weights } = input;
   if (design.length !== n * p || observations.length !== n || (weights && weights.length !== n)) {
     throw new RangeError(`least squares: inconsistent sizes (rows ${n}, cols ${p}, design ${design.length})`);
