@@ -184,121 +184,141 @@ export function assignAndFit(
   let detailed: DetailedFit | undefined;
   let competitions: Competition[] = [];
   let swept = false;
-  for (let iter = 0; iter < 60; iter++) {
-    const reach = new Map<string, number>();
-    for (const c of auto.values()) reach.set(bandKey(c), Math.max(reach.get(bandKey(c)) ?? 0, c.j));
-    for (const g of given) reach.set(bandKey(g.t), Math.max(reach.get(bandKey(g.t)) ?? 0, g.t.j));
-    const scale = intensityScales(auto, peaks);
-    const residuals = detailed ? residualStatistics(detailed, auto, sourceOf, (i) => peaks[i]?.uncertainty) : undefined;
-    const byKey = new Map<string, CandidateLine>();
-    const next = new Map<number, CandidateLine>();
-    competitions = [];
-    for (const src of sources) {
-      const preds: Prediction[] = [];
-      cands.forEach((c, ci) => {
-        const key = transitionKey(c);
-        if (givenKeys.has(key)) return;
-        const bk = bandKey(c);
-        // A band whose two levels are both fitted (through other bands) is predicted by the fit, matched or not.
-        const fitted = detailed?.predict(c);
-        const r = reach.get(bk) ?? (fitted ? START_J : undefined);
-        let prediction: Omit<Prediction, 'key'>;
-        if (fitted && r !== undefined && residuals) {
-          if (c.j > r + Math.max(GROWTH_J, Math.floor(r / 2))) return;
-          const st = residuals.of(bk, src);
-          // Where the model's own uncertainty exceeds the scatter of the lines (twice it), the data have run out
-          // for this model: it must not reach further until nearer lines have sharpened it.
-          // Beyond the reach, a few lines at a time; further only where the model is still as sharp as the data.
-          const noise = Math.max(st.scatter, st.sigmaFactor * (typicalSigma ?? 0));
-          if (c.j > r + GROWTH_J && noise > 0 && Math.sqrt(fitted.variance) > MAX_MODEL_TO_NOISE * noise) return;
-          // The fitted model's variance ignores the terms it could not yet determine: where it extrapolates, the
-          // reference prediction (with its offset) is a second opinion, and the tolerance spans the two.
-          const second = c.j > r ? Math.abs(fitted.value + st.shift - (c.position + offsets.of(bk, src).offset)) : 0;
-          const model = Math.hypot(K_FITTED * Math.sqrt(fitted.variance), second) + 1e-6;
-          // A tolerance wider than a quarter of the line spacing tells nothing.
-          if (model > 0.25 * (spacing.get(bk) ?? Number.POSITIVE_INFINITY)) return;
-          prediction = {
-            position: fitted.value + st.shift,
-            tolerance: Math.hypot(model, K_FITTED * st.scatter),
-            withSigma: { model, perSigma: K_FITTED * st.sigmaFactor },
-          };
-        } else {
-          if (!seedable[ci] || c.j > (r ?? START_J) + GROWTH_J) return;
-          const o = offsets.of(bk, src);
-          prediction = { position: c.position + o.offset, tolerance: o.tolerance * (1 + (c.j / 20) ** 2), tier: 1 };
-        }
-        const own = scale.get(bk);
-        const k = own ?? classScale(scale, c);
-        byKey.set(key, c);
-        preds.push({
-          key,
-          ...prediction,
-          ...(k !== undefined ? { intensity: k * c.intensity } : {}),
-          ...(own === undefined && k !== undefined ? { intensityRatioLimit: BAND_RATIO_LIMIT } : {}),
+  for (let pass = 0; pass < 2; pass++) {
+    for (let iter = 0; iter < 60; iter++) {
+      const reach = new Map<string, number>();
+      for (const c of auto.values()) reach.set(bandKey(c), Math.max(reach.get(bandKey(c)) ?? 0, c.j));
+      for (const g of given) reach.set(bandKey(g.t), Math.max(reach.get(bandKey(g.t)) ?? 0, g.t.j));
+      const scale = intensityScales(auto, peaks);
+      const residuals = detailed
+        ? residualStatistics(detailed, auto, sourceOf, (i) => peaks[i]?.uncertainty)
+        : undefined;
+      const byKey = new Map<string, CandidateLine>();
+      const next = new Map<number, CandidateLine>();
+      competitions = [];
+      for (const src of sources) {
+        const preds: Prediction[] = [];
+        cands.forEach((c, ci) => {
+          const key = transitionKey(c);
+          if (givenKeys.has(key)) return;
+          const bk = bandKey(c);
+          // A band whose two levels are both fitted (through other bands) is predicted by the fit, matched or not.
+          const fitted = detailed?.predict(c);
+          const r = reach.get(bk) ?? (fitted ? START_J : undefined);
+          let prediction: Omit<Prediction, 'key'>;
+          if (fitted && r !== undefined && residuals) {
+            if (c.j > r + Math.max(GROWTH_J, Math.floor(r / 2))) return;
+            const st = residuals.of(bk, src);
+            // Where the model's own uncertainty exceeds the scatter of the lines (twice it), the data have run out
+            // for this model: it must not reach further until nearer lines have sharpened it.
+            // Beyond the reach, a few lines at a time; further only where the model is still as sharp as the data.
+            const noise = Math.max(st.scatter, st.sigmaFactor * (typicalSigma ?? 0));
+            if (c.j > r + GROWTH_J && noise > 0 && Math.sqrt(fitted.variance) > MAX_MODEL_TO_NOISE * noise) return;
+            // The fitted model's variance ignores the terms it could not yet determine: where it extrapolates, the
+            // reference prediction (with its offset) is a second opinion, and the tolerance spans the two.
+            const second = c.j > r ? Math.abs(fitted.value + st.shift - (c.position + offsets.of(bk, src).offset)) : 0;
+            const model = Math.hypot(K_FITTED * Math.sqrt(fitted.variance), second) + 1e-6;
+            // A tolerance wider than a quarter of the line spacing tells nothing.
+            if (model > 0.25 * (spacing.get(bk) ?? Number.POSITIVE_INFINITY)) return;
+            prediction = {
+              position: fitted.value + st.shift,
+              tolerance: Math.hypot(model, K_FITTED * st.scatter),
+              withSigma: { model, perSigma: K_FITTED * st.sigmaFactor },
+            };
+          } else {
+            if (!seedable[ci] || c.j > (r ?? START_J) + GROWTH_J) return;
+            const o = offsets.of(bk, src);
+            prediction = { position: c.position + o.offset, tolerance: o.tolerance * (1 + (c.j / 20) ** 2), tier: 1 };
+          }
+          const own = scale.get(bk);
+          const k = own ?? classScale(scale, c);
+          byKey.set(key, c);
+          preds.push({
+            key,
+            ...prediction,
+            ...(k !== undefined ? { intensity: k * c.intensity } : {}),
+            ...(own === undefined && k !== undefined ? { intensityRatioLimit: BAND_RATIO_LIMIT } : {}),
+          });
         });
-      });
-      const m = matchLines(preds, freeBySource.get(src) ?? []);
-      for (const x of m.matches) {
-        if (isBanned(`${x.peak.index}|${x.prediction.key}`, iter)) continue;
-        next.set(x.peak.index, byKey.get(x.prediction.key) as CandidateLine);
+        const m = matchLines(preds, freeBySource.get(src) ?? []);
+        for (const x of m.matches) {
+          if (isBanned(`${x.peak.index}|${x.prediction.key}`, iter)) continue;
+          next.set(x.peak.index, byKey.get(x.prediction.key) as CandidateLine);
+        }
+        competitions.push(...m.competitions);
       }
-      competitions.push(...m.competitions);
-    }
-    resolveDoublets(next, peaks);
-    pruneThinBands(next, options.minLinesPerBand ?? 4);
-    pruneImplausibleBands(next, peaks);
-    if (next.size === 0 && given.length === 0) break;
-    let fit = tryFit(lineInputs(next));
-    // A fit that cannot be made (too few lines or rank deficient for some band): drop the thinnest band and retry.
-    while (!fit && next.size > 0) {
-      const thinnest = thinnestBand(next);
-      for (const [i, c] of next) if (bandKey(c) === thinnest) next.delete(i);
-      fit = tryFit(lineInputs(next));
-    }
-    if (!fit) break;
-    // Auto-assigned lines the fit rejects are withdrawn for good (a chance coincidence or a blend).
-    // Judged against the band's own robust scatter and the line's σ, not the fit's pooled scale: a line a correct
-    // model explains stays, however noisy its band.
-    let withdrawn = 0;
-    const stats = residualStatistics(fit, next, sourceOf, (i) => peaks[i]?.uncertainty);
-    for (const l of fit.result.lines) {
-      const c = next.get(l.index);
-      if (c && l.status === 'rejected' && !explained(fit, stats, c, l)) {
-        const bk = `${l.index}|${transitionKey(c)}`;
-        banned.set(bk, { at: iter, count: (banned.get(bk)?.count ?? 0) + 1 });
-        next.delete(l.index);
-        notes.set(
-          l.index,
-          `automatic assignment to ${transitionLabel(c)} withdrawn: ${l.reason ?? 'rejected by the fit'}`,
-        );
-        withdrawn++;
+      resolveDoublets(next, peaks);
+      pruneThinBands(next, options.minLinesPerBand ?? 4);
+      pruneImplausibleBands(next, peaks);
+      if (next.size === 0 && given.length === 0) break;
+      let fit = tryFit(lineInputs(next));
+      // A fit that cannot be made (too few lines or rank deficient for some band): drop the thinnest band and retry.
+      while (!fit && next.size > 0) {
+        const thinnest = thinnestBand(next);
+        for (const [i, c] of next) if (bandKey(c) === thinnest) next.delete(i);
+        fit = tryFit(lineInputs(next));
+      }
+      if (!fit) break;
+      // Auto-assigned lines the fit rejects are withdrawn for good (a chance coincidence or a blend).
+      // Judged against the band's own robust scatter and the line's σ, not the fit's pooled scale: a line a correct
+      // model explains stays, however noisy its band.
+      let withdrawn = 0;
+      const stats = residualStatistics(fit, next, sourceOf, (i) => peaks[i]?.uncertainty);
+      for (const l of fit.result.lines) {
+        const c = next.get(l.index);
+        if (c && l.status === 'rejected' && !explained(fit, stats, c, l)) {
+          const bk = `${l.index}|${transitionKey(c)}`;
+          banned.set(bk, { at: iter, count: (banned.get(bk)?.count ?? 0) + 1 });
+          next.delete(l.index);
+          notes.set(
+            l.index,
+            `automatic assignment to ${transitionLabel(c)} withdrawn: ${l.reason ?? 'rejected by the fit'}`,
+          );
+          withdrawn++;
+        }
+      }
+      // A band whose fitted rotational constants stray from the reference ones by more than a real band can (1 %)
+      // was made of coincidences: all its automatic lines go.
+      for (const bk of strayBands(fit, next, species)) {
+        for (const [i, c] of next) {
+          if (bandKey(c) !== bk) continue;
+          const key = `${i}|${transitionKey(c)}`;
+          banned.set(key, { at: iter, count: 3 });
+          next.delete(i);
+          notes.set(
+            i,
+            `automatic assignment to ${transitionLabel(c)} withdrawn: its band's fitted constants are far from the reference ones (chance coincidences)`,
+          );
+          withdrawn++;
+        }
+      }
+      const same = withdrawn === 0 && sameAssignments(auto, next);
+      auto = next;
+      detailed = withdrawn > 0 ? (tryFit(lineInputs(auto)) ?? fit) : fit;
+      if (same) {
+        // Once settled, every pair withdrawn fewer than three times gets one more chance against the final model
+        // (it may have been withdrawn by an early fit that a wrong line had bent).
+        if (swept || banned.size === 0) break;
+        swept = true;
+        for (const b of banned.values()) b.at = Number.NEGATIVE_INFINITY;
       }
     }
-    // A band whose fitted rotational constants stray from the reference ones by more than a real band can (1 %)
-    // was made of coincidences: all its automatic lines go.
-    for (const bk of strayBands(fit, next, species)) {
-      for (const [i, c] of next) {
-        if (bandKey(c) !== bk) continue;
-        const key = `${i}|${transitionKey(c)}`;
-        banned.set(key, { at: iter, count: 3 });
-        next.delete(i);
-        notes.set(
-          i,
-          `automatic assignment to ${transitionLabel(c)} withdrawn: its band's fitted constants are far from the reference ones (chance coincidences)`,
-        );
-        withdrawn++;
+    // Second pass, when many lines are left: weaker bands that share a level with a fitted band may seed too (a hot
+    // band whose lower level the fundamental fixed); their fitted B_v must still agree with the reference.
+    if (pass > 0 || !detailed) break;
+    const left = free.filter((p) => !auto.has(p.index)).length;
+    if (left < 8) break;
+    const fittedLevels = new Set(detailed.result.levels.map((l) => `${l.species}|${l.v}`));
+    let widened = 0;
+    cands.forEach((c, i) => {
+      if (seedable[i] || c.intensity < 1e-9) return;
+      if (fittedLevels.has(`${c.species}|${c.band.lower}`) || fittedLevels.has(`${c.species}|${c.band.upper}`)) {
+        seedable[i] = true;
+        widened++;
       }
-    }
-    const same = withdrawn === 0 && sameAssignments(auto, next);
-    auto = next;
-    detailed = withdrawn > 0 ? (tryFit(lineInputs(auto)) ?? fit) : fit;
-    if (same) {
-      // Once settled, every pair withdrawn fewer than three times gets one more chance against the final model
-      // (it may have been withdrawn by an early fit that a wrong line had bent).
-      if (swept || banned.size === 0) break;
-      swept = true;
-      for (const b of banned.values()) b.at = Number.NEGATIVE_INFINITY;
-    }
+    });
+    if (widened === 0) break;
+    swept = false;
   }
   for (const c of competitions) {
     if (auto.has(c.peak)) continue;

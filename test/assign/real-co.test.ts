@@ -56,6 +56,14 @@ describe('real CO database lines sent without assignments', () => {
     expect(unexplained?.status).toBe('pass');
   });
 
+  it('the fundamental with the 2-1 hot band (below the seed floor at 296 K, its lower level fixed by 1-0): every line as published, QA passes', () => {
+    const lines = fixture.lines.filter((l) => l.band === '1-0' || l.band === '2-1');
+    const s = shares(lines, true);
+    expect(s.correct, s.misses.join('; ')).toBe(s.n);
+    const report = runChecks(s.peaks, parseSpecies('12C16O'), s.a);
+    expect(report.verdict).toBe('pass');
+  });
+
   it('the same fundamental without uncertainties: every line comes back as published', () => {
     const s = shares(
       fixture.lines.filter((l) => l.band === '1-0'),
