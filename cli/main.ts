@@ -308,7 +308,7 @@ function predict(v: Record<string, string | boolean | undefined>, format: Format
   else if (format === 'csv') io.out(toCsv(rows));
   else
     io.out(
-      `${table([['band', 'line', `position (${req.unit})`, 'rel. intensity'], ...r.lines.map((l) => [l.band, `${l.branch}(${l.j})`, q(l.position), fmt(l.relativeIntensity, 3)])])}\n`,
+      `${table([['band', 'line', `position (${req.unit})`, 'rel. intensity'], ...r.lines.map((l) => [l.band, `${l.branch}(${l.j})`, l.position.uncertainty === null ? fmt(l.position.value, 6) : q({ value: l.position.value, uncertainty: l.position.uncertainty }), fmt(l.relativeIntensity, 3)])])}\n`,
     );
   return EXIT.pass;
 }

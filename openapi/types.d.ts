@@ -251,6 +251,7 @@ export interface components {
           H?: components["schemas"]["Quantity"];
           /** @enum {string} */
           kind: "lower" | "upper";
+          L?: components["schemas"]["Quantity"];
           points: {
               j: number;
               residual: number;
@@ -490,6 +491,7 @@ export interface components {
           H?: components["schemas"]["Quantity"];
           /** @enum {string} */
           kind: "lower" | "upper";
+          L?: components["schemas"]["Quantity"];
           points: {
               j: number;
               residual: number;
@@ -894,6 +896,12 @@ export interface components {
       vMax: number;
       warnings: components["schemas"]["Warning"][];
     };
+    PredictedQuantity: {
+      /** @description standard uncertainty (k = 1); null when a constant it rests on has no published uncertainty */
+      uncertainty: number | null;
+      unit: string;
+      value: number;
+    };
     PredictionRequest: {
       /**
        * @description bands "v'-v''"; "0-0" for pure rotation
@@ -932,11 +940,12 @@ export interface components {
       unit?: "cm-1" | "MHz" | "GHz" | "THz" | "um" | "nm";
     };
     PredictionResponse: {
-      constants: {
+      constants: ({
           name: string;
-          uncertainty: number;
+          /** @description null when the value has no published uncertainty (never 0) */
+          uncertainty: number | null;
           value: number;
-        }[];
+        })[];
       input: components["schemas"]["InputDigest"];
       lines: ({
           band: string;
@@ -945,9 +954,9 @@ export interface components {
           j: number;
           lowerEnergy: number;
           /** @description in the requested unit */
-          position: components["schemas"]["Quantity"];
+          position: components["schemas"]["PredictedQuantity"];
           relativeIntensity: number;
-          wavenumber: components["schemas"]["Quantity"];
+          wavenumber: components["schemas"]["PredictedQuantity"];
         })[];
       notice: string;
       /** @description the request's sample, echoed */

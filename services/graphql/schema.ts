@@ -334,15 +334,22 @@ export const typeDefs = /* GraphQL */ `
   type ConstantValue {
     name: String!
     value: Float!
-    uncertainty: Float!
+    uncertainty: Float
+  }
+
+  "A predicted position: uncertainty is null when a constant it rests on has no published uncertainty."
+  type PredictedQuantity {
+    value: Float!
+    uncertainty: Float
+    unit: String!
   }
 
   type PredictedLine {
     band: String!
     branch: Branch!
     j: Int!
-    position: Quantity!
-    wavenumber: Quantity!
+    position: PredictedQuantity!
+    wavenumber: PredictedQuantity!
     relativeIntensity: Float!
     lowerEnergy: Float!
   }

@@ -399,6 +399,7 @@ const fitFields = {
       B: Q,
       D: Q.optional(),
       H: Q.optional(),
+      L: Q.optional(),
       rms: z.number(),
       degreesOfFreedom: z.number().int(),
       fitted: Q.describe('B of the same level from the full fit'),

@@ -1,6 +1,5 @@
 import { z } from 'zod';
 import { POSITION_UNITS } from '../../src/units.js';
-import { QuantitySchema } from './common.js';
 import { SpeciesStringSchema } from './fit.js';
 import { provenanceAndSampleFields, SampleSchema } from './provenance.js';
 
@@ -47,18 +46,36 @@ export const PredictionRequestSchema = z
   .meta({ id: 'PredictionRequest' });
 export type PredictionRequest = z.output<typeof PredictionRequestSchema>;
 
+/** A predicted position: its uncertainty is null when a constant it rests on has none (library values). */
+const PredictedQuantitySchema = z
+  .object({
+    value: z.number(),
+    uncertainty: z
+      .number()
+      .nullable()
+      .describe('standard uncertainty (k = 1); null when a constant it rests on has no published uncertainty'),
+    unit: z.string(),
+  })
+  .meta({ id: 'PredictedQuantity' });
+
 export const PredictionResponseSchema = z
   .object({
     species: z.string(),
     source: z.enum(['library', 'caller']),
-    constants: z.array(z.object({ name: z.string(), value: z.number(), uncertainty: z.number() })),
+    constants: z.array(
+      z.object({
+        name: z.string(),
+        value: z.number(),
+        uncertainty: z.number().nullable().describe('null when the value has no published uncertainty (never 0)'),
+      }),
+    ),
     lines: z.array(
       z.object({
         band: z.string(),
         branch: z.enum(['P', 'Q', 'R']),
         j: z.number().int(),
-        position: QuantitySchema.describe('in the requested unit'),
-        wavenumber: QuantitySchema,
+        position: PredictedQuantitySchema.describe('in the requested unit'),
+        wavenumber: PredictedQuantitySchema,
         relativeIntensity: z.number(),
         lowerEnergy: z.number(),
       }),

@@ -23,11 +23,11 @@ export function runPrediction(req: PredictionRequest): PredictionResponse {
     source: r.source,
     constants: [...r.constants],
     lines: r.lines.map((l) => {
-      const c = fromWavenumber(l.wavenumber.value, req.unit, l.wavenumber.uncertainty);
+      const c = fromWavenumber(l.wavenumber.value, req.unit, l.wavenumber.uncertainty ?? undefined);
       return {
         ...l,
         wavenumber: { ...l.wavenumber },
-        position: { value: c.value, uncertainty: c.uncertainty ?? 0, unit: req.unit },
+        position: { value: c.value, uncertainty: c.uncertainty ?? null, unit: req.unit },
       };
     }),
     notice: SAFETY_NOTICE,

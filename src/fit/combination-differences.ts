@@ -27,6 +27,7 @@ export interface CombinationDifferenceFit {
   readonly B: Quantity;
   readonly D?: Quantity;
   readonly H?: Quantity;
+  readonly L?: Quantity;
   readonly rms: number;
   readonly degreesOfFreedom: number;
 }
@@ -47,7 +48,8 @@ function mean(obs: readonly Observation[]): Mean {
   return { value: swx / sw, variance: 1 / sw };
 }
 
-const SIGN = [1, -1, 1];
+/** Sign of each power of x in the term formula (+B x − D x² + H x³ + L x⁴), as in the level model. */
+const SIGN = [1, -1, 1, 1];
 
 export function fitCombinationDifferences(
   observations: readonly Observation[],
@@ -98,7 +100,7 @@ export function fitCombinationDifferences(
       ['lower', lowerPts, g.lower],
       ['upper', upperPts, g.upper],
     ] as const) {
-      const fit = fitDifferences(pts, Math.min(orderOf(g.species, v), 3), mode);
+      const fit = fitDifferences(pts, Math.min(orderOf(g.species, v), 4), mode);
       if (fit) out.push({ species: g.species, band, kind, v, ...fit });
     }
   }
@@ -144,6 +146,7 @@ function fitDifferences(
     B: q(0),
     ...(order >= 2 ? { D: q(1) } : {}),
     ...(order >= 3 ? { H: q(2) } : {}),
+    ...(order >= 4 ? { L: q(3) } : {}),
     rms: Math.sqrt(ss / n),
     degreesOfFreedom: dof,
   };

@@ -58,7 +58,7 @@ export function dunhamTermPlan(obs: readonly Observation[], orders: ReadonlyMap<
       candidates.push({ k, l });
     }
   }
-  return { base, candidates, nLevels, nVib };
+  return { base, candidates, nLevels, nVib, levels: vs };
 }
 
 /**
@@ -104,25 +104,36 @@ function selectDunham(
   return { fit: current, terms };
 }
 
-function reportOf(species: string, fit: SolvedModel): DunhamFit {
+function reportOf(species: string, fit: SolvedModel, rename: ReadonlyMap<string, string> = new Map()): DunhamFit {
   const p = fit.model.parameters.length;
+  const nameOf = (x: { name: string }) => rename.get(x.name) ?? x.name;
   return {
     species,
     parameters: fit.model.parameters.map((par, i) => ({
-      name: par.name,
+      name: nameOf(par),
       value: fit.values[i] as number,
       uncertainty: Math.sqrt(fit.covariance[i * p + i] as number),
       unit: par.unit,
       ...(par.species ? { species: par.species } : {}),
     })),
-    covariance: { parameters: fit.model.parameters.map((x) => x.name), matrix: toRows(fit.covariance, p) },
+    covariance: { parameters: fit.model.parameters.map(nameOf), matrix: toRows(fit.covariance, p) },
     statistics: {
       degreesOfFreedom: fit.degreesOfFreedom,
       rms: rmsResidual(fit),
       reducedChiSquare: reducedChiSquare(fit),
     },
-    terms: fit.model.parameters.map((x) => x.name),
+    terms: fit.model.parameters.map(nameOf),
   };
+}
+
+/**
+ * With one vibrational interval, between levels a < b, the fitted Y10 is ΔG/(b − a), not ω_e: for adjacent levels
+ * ΔG_{a+½} = G(a+1) − G(a) = ω_e − 2ω_e x_e(a+1) + …, a few per cent below ω_e. Name it so.
+ */
+function singleIntervalLabel(levels: readonly number[]): string {
+  if (levels.length !== 2) return 'ΔG (one vibrational interval)';
+  const [a, b] = levels as [number, number];
+  return b - a === 1 ? `ΔG_${2 * a + 1}/2` : `ΔG(${a}→${b})/${b - a}`;
 }
 
 export function fitDunhamForSpecies(
@@ -209,7 +220,12 @@ export function fitDunhamForSpecies(
       message: `${species}: the uncertainties of ${AFFECTS[c.parameter] ?? 'the equilibrium constants'} include that of ${SYMBOL[c.parameter] ?? c.parameter} (${c.parameter}), which the lines cannot determine and which is constrained to ${formatValue(c.prior.value)} ± ${formatValue(c.prior.uncertainty)} cm-1 (${c.basis})`,
     });
   }
-  const report = { ...reportOf(species, fit), ...(constraints.length > 0 ? { constrained: constraints } : {}) };
+  const label = plan.nVib === 1 ? singleIntervalLabel(plan.levels) : undefined;
+  const rename = new Map(label ? [['Y10', label]] : []);
+  const report = {
+    ...reportOf(species, fit, rename),
+    ...(constraints.length > 0 ? { constrained: constraints } : {}),
+  };
   // Equilibrium constants are read from the determined terms only (a constrained term is the prior, not a result),
   // with the covariance that already carries the constrained terms' uncertainty.
   const keep = terms.flatMap((t, i) => (isConstrained(t.k, t.l) ? [] : [i]));

@@ -42,8 +42,11 @@ export interface PredictedTransition {
   readonly band: string;
   readonly branch: Branch;
   readonly j: number;
-  /** Wavenumber with its standard uncertainty propagated from the constants' covariance. */
-  readonly wavenumber: Quantity;
+  /**
+   * Wavenumber with its standard uncertainty propagated from the constants' covariance; the uncertainty is null when
+   * a constant it depends on has none (library values without a published uncertainty), never 0.
+   */
+  readonly wavenumber: { readonly value: number; readonly uncertainty: number | null; readonly unit: 'cm-1' };
   /** Relative intensity (1 = strongest line predicted); across bands only an order-of-magnitude guide. */
   readonly relativeIntensity: number;
   /** E″ above v = 0, J = 0, cm⁻¹. */
@@ -52,7 +55,8 @@ export interface PredictedTransition {
 
 export interface PredictionResult {
   readonly source: 'library' | 'caller';
-  readonly constants: readonly { name: PredictionConstant; value: number; uncertainty: number }[];
+  /** The constants used; uncertainty null when the value came without one. */
+  readonly constants: readonly { name: PredictionConstant; value: number; uncertainty: number | null }[];
   readonly lines: readonly PredictedTransition[];
 }
 
@@ -93,6 +97,8 @@ export function predictLines(
   }
   const p = names.length;
   const x = names.map((n) => input?.values[n]?.value as number);
+  // A constant without an uncertainty (and no covariance) has an unknown one, not a zero one.
+  const known = names.map((n) => input?.covariance !== undefined || input?.values[n]?.uncertainty !== undefined);
   const cov = new Float64Array(p * p);
   if (input.covariance) {
     const idx = input.covariance.names.map((n) => names.indexOf(n));
@@ -146,6 +152,7 @@ export function predictLines(
           const d = CONSTANT_TO_DUNHAM[n];
           return d.sign * (dunhamBasis(d.k, d.l, band.upper, ju) - dunhamBasis(d.k, d.l, band.lower, j));
         });
+        const unknown = g.some((ga, a) => ga !== 0 && !known[a]);
         let variance = 0;
         for (let a = 0; a < p; a++)
           for (let b = 0; b < p; b++) variance += (g[a] as number) * (cov[a * p + b] as number) * (g[b] as number);
@@ -157,7 +164,7 @@ export function predictLines(
           band: `${band.upper}-${band.lower}`,
           branch,
           j,
-          wavenumber: quantity(nu, Math.sqrt(Math.max(variance, 0)), 'cm-1'),
+          wavenumber: { value: nu, uncertainty: unknown ? null : Math.sqrt(Math.max(variance, 0)), unit: 'cm-1' },
           relativeIntensity: 0,
           lowerEnergy: el - e00,
           strength,
@@ -171,7 +178,7 @@ export function predictLines(
     constants: names.map((n, i) => ({
       name: n,
       value: x[i] as number,
-      uncertainty: Math.sqrt(cov[i * p + i] as number),
+      uncertainty: known[i] ? Math.sqrt(cov[i * p + i] as number) : null,
     })),
     lines: raw.map(({ strength, ...l }) => ({ ...l, relativeIntensity: max > 0 ? strength / max : 0 })),
   };

@@ -108,6 +108,13 @@ describe('HCl fundamental alone (one band, two levels)', () => {
     expect(Math.abs((re?.value as number) - 1.2745518285)).toBeLessThan(2 * (re?.uncertainty as number));
   });
 
+  it('labels the one vibrational interval ΔG_1/2, not Y10 (it is G(1) − G(0), a few per cent below ω_e)', () => {
+    const names = r.dunham[0]?.parameters.map((p) => p.name) ?? [];
+    expect(names).toContain('ΔG_1/2');
+    expect(names).not.toContain('Y10');
+    expect(r.dunham[0]?.covariance.parameters).toContain('ΔG_1/2');
+  });
+
   it('B_0 and B_1 are strongly and positively correlated, and the covariance is symmetric', () => {
     const i = r.covariance.parameters.indexOf('B_0');
     const j = r.covariance.parameters.indexOf('B_1');

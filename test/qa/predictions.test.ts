@@ -66,7 +66,7 @@ describe('predictions', () => {
     r.lines.forEach((l, k) => {
       const mean = (sums[k] as number) / draws;
       const mcSd = Math.sqrt((sq[k] as number) / draws - mean * mean);
-      expect(Math.abs(mcSd / l.wavenumber.uncertainty - 1)).toBeLessThan(0.05);
+      expect(Math.abs(mcSd / (l.wavenumber.uncertainty as number) - 1)).toBeLessThan(0.05);
     });
   });
 
@@ -99,5 +99,29 @@ describe('predictions', () => {
     expect(strongest?.relativeIntensity).toBe(1);
     expect(Math.abs((strongest?.j as number) - 3)).toBeLessThanOrEqual(1);
     expect(lib.source).toBe('library');
+  });
+});
+
+describe('library values without an uncertainty', () => {
+  it('give null uncertainties, never 0; a caller value with its uncertainty gives a number', () => {
+    const hcl = parseSpecies('H35Cl');
+    const lib = predictLines(hcl, undefined, { bands: [{ upper: 1, lower: 0 }], jMax: 3 });
+    expect(lib.source).toBe('library');
+    expect(lib.constants.every((c) => c.uncertainty === null)).toBe(true);
+    expect(lib.lines.every((l) => l.wavenumber.uncertainty === null)).toBe(true);
+    const caller = predictLines(
+      hcl,
+      { values: { omega_e: { value: 2990.9463, uncertainty: 0.01 }, B_e: { value: 10.59341, uncertainty: 1e-4 } } },
+      { bands: [{ upper: 1, lower: 0 }], jMax: 3 },
+    );
+    expect(caller.lines.every((l) => (l.wavenumber.uncertainty as number) > 0)).toBe(true);
+    // One constant without an uncertainty makes every line that depends on it unknown, not exact.
+    const mixed = predictLines(
+      hcl,
+      { values: { omega_e: { value: 2990.9463, uncertainty: 0.01 }, B_e: { value: 10.59341 } } },
+      { bands: [{ upper: 1, lower: 0 }], jMax: 3 },
+    );
+    expect(mixed.lines.every((l) => l.wavenumber.uncertainty === null)).toBe(true);
+    expect(mixed.constants.find((c) => c.name === 'omega_e')?.uncertainty).toBeCloseTo(0.01, 12);
   });
 });
