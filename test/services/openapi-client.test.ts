@@ -175,6 +175,10 @@ describe('a typed client generated from the document, used against the running s
   it('the documentation page is served from the service itself, with no resource from elsewhere', async () => {
     const page = await fetch(`${base}/docs/`);
     expect(page.status).toBe(200);
+    // Served over plain HTTP on a lab network, the page must not have its requests upgraded to https.
+    const csp = page.headers.get('content-security-policy') ?? '';
+    expect(csp).toMatch(/script-src 'self'/);
+    expect(csp).not.toMatch(/upgrade-insecure-requests/);
     const html = await page.text();
     const external = [...html.matchAll(/(?:src|href)="(https?:[^"]+)"/g)].map((m) => m[1]);
     expect(external).toEqual([]);
