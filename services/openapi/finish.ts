@@ -1,3 +1,4 @@
+import { CSV_COLUMN_NAMES } from '../../src/spectra/csv.js';
 import { CSV_TYPES, JCAMP_TYPES } from '../text-bodies.js';
 import {
   checkExample,
@@ -65,8 +66,11 @@ const jcampBody = text(
   'a JCAMP-DX 4.24 or 5 file: XYDATA (AFFN, PAC, SQZ, DIF, DUP), XYPOINTS or PEAK TABLE; species and temperature go in the query string',
   jcampExample,
 );
+const synonyms = (['position', 'uncertainty', 'intensity', 'band', 'branch', 'j'] as const)
+  .map((c) => `${c} (${CSV_COLUMN_NAMES[c].slice(1).join(', ') || 'no synonym'})`)
+  .join('; ');
 const csvBody = text(
-  'a CSV line list read by header name (position, uncertainty, intensity, band, branch, j; see the documentation for synonyms, decimal commas with ";" and a units row), or a two-column spectrum (x, y)',
+  `a CSV line list read by header name, in any order, with the accepted synonyms in parentheses: ${synonyms}. A unit may follow a name ("position (MHz)") or stand in a row of units under the header; band, branch and j together give the assignment. Separators ",", ";", tab or spaces; with ";" or tab, decimal commas. Or a two-column spectrum whose header names absorbance or transmittance.`,
   csvExample,
 );
 
