@@ -46,14 +46,14 @@ describe('equilibrium constants present only when their coefficients were fitted
 });
 
 describe('cross-checks: which, with what, and never a number that is not one', () => {
-  const full = set(
-    ['1,0', '2,0', '3,0', '0,1', '1,1', '0,2'],
-    [2990.9463, -52.8186, 0.2243, 10.593416, -0.307181, -5.3194e-4],
-  );
-  const eqFull = equilibriumFromDunham(full, MU);
-  const checks = crossChecks(full, eqFull, MU);
+  // Computed inside each test (not when the file is collected), so that mutation testing sees the code run.
+  const full = () =>
+    set(['1,0', '2,0', '3,0', '0,1', '1,1', '0,2'], [2990.9463, -52.8186, 0.2243, 10.593416, -0.307181, -5.3194e-4]);
+  const eqOf = () => equilibriumFromDunham(full(), MU);
+  const checksOf = () => crossChecks(full(), eqOf(), MU);
 
   it('lists Kratzer, Pekeris, Morse well depth, D_0 and a, each an approximation with a formula and a unit', () => {
+    const checks = checksOf();
     expect(checks.map((c) => c.id)).toEqual([
       'kratzer-D_e',
       'pekeris-alpha_e',
@@ -70,6 +70,8 @@ describe('cross-checks: which, with what, and never a number that is not one', (
   });
 
   it('Kratzer and Pekeris carry the fitted D_e and α_e beside them', () => {
+    const checks = checksOf();
+    const eqFull = eqOf();
     expect(checks[0]?.fitted).toEqual(eqFull.D_e);
     expect(checks[1]?.fitted).toEqual(eqFull.alpha_e);
     const noD = set(['1,0', '2,0', '0,1', '1,1'], [2990.9463, -52.8186, 10.593416, -0.307181]);
@@ -80,6 +82,7 @@ describe('cross-checks: which, with what, and never a number that is not one', (
     const we = 2990.9463;
     const wexe = 52.8186;
     const weye = 0.2243;
+    const checks = checksOf();
     const d0 = checks.find((c) => c.id === 'morse-D_0')?.value.value as number;
     expect(Math.abs(d0 / ((we * we) / (4 * wexe) - (we / 2 - wexe / 4 + weye / 8)) - 1)).toBeLessThan(1e-9);
   });
