@@ -123,6 +123,27 @@ export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult 
 }
 
 /**
+ * The least-squares problem min ‖A x − b‖ reduced to p rows: A = Q M and c = (Qᵀb)[0:p], M (p × p, column-major,
+ * in the caller's column order) from the pivoted QR. Any problem that appends rows to A (a Levenberg–Marquardt
+ * damping √λD, for every λ tried) can then be solved as [M; √λD] x = [c; 0] without factorising A again.
+ */
+export function reduceToTriangle(
+  rows: number,
+  cols: number,
+  design: Float64Array,
+  observations: Float64Array,
+): { readonly m: Float64Array; readonly c: Float64Array } {
+  const qr = pivotedQR(rows, cols, design, observations, undefined);
+  const m = new Float64Array(cols * cols);
+  for (let k = 0; k < cols; k++) {
+    const j = qr.perm[k] as number;
+    const sj = qr.scale[j] as number;
+    for (let i = 0; i <= k; i++) m[j * cols + i] = (qr.r[i * cols + k] as number) * sj;
+  }
+  return { m, c: Float64Array.from(qr.b.subarray(0, cols)) };
+}
+
+/**
  * One grow-only buffer for the working copies of every solve (the kernel is synchronous and never re-entered, so
  * consecutive solves share it); results are always fresh arrays.
  */

@@ -1,4 +1,4 @@
-import { solveLeastSquares } from '../linalg/least-squares.js';
+import { reduceToTriangle, solveLeastSquares } from '../linalg/least-squares.js';
 
 /**
  * Levenberg–Marquardt fit of m pseudo-Voigt profiles (P. Thompson, D. E. Cox and J. B. Hastings, J. Appl. Cryst.
@@ -145,23 +145,42 @@ function jacobianAt(pb: Problem, p: readonly number[], jac: Float64Array, res: F
 interface Workspace {
   readonly jac: Float64Array;
   readonly res: Float64Array;
+  /** [M; √λD] (2q × q, column-major) and [c; 0]. */
   readonly aug: Float64Array;
   readonly rhs: Float64Array;
 }
 
-/** The damped Gauss–Newton step: least squares of [J; √λ·diag(‖J_c‖)] δ = [res; 0]. */
-function dampedStep(ws: Workspace, q: number, lambda: number) {
+/** J and the residuals at one parameter point reduced to q rows (J = Q M, c = Qᵀres), with ‖J_c‖². */
+interface Linearisation {
+  readonly m: Float64Array;
+  readonly c: Float64Array;
+  readonly norms2: Float64Array;
+}
+
+function linearise(pb: Problem, p: readonly number[], ws: Workspace, q: number): Linearisation {
+  jacobianAt(pb, p, ws.jac, ws.res);
   const npts = ws.res.length;
-  const rows = npts + q;
-  ws.rhs.set(ws.res);
+  const norms2 = new Float64Array(q);
   for (let c = 0; c < q; c++) {
     let nrm = 0;
-    for (let i = 0; i < npts; i++) {
-      const v = ws.jac[c * npts + i] as number;
-      ws.aug[c * rows + i] = v;
-      nrm += v * v;
-    }
-    ws.aug[c * rows + npts + c] = Math.sqrt(lambda * Math.max(nrm, 1e-300));
+    for (let i = 0; i < npts; i++) nrm += (ws.jac[c * npts + i] as number) ** 2;
+    norms2[c] = nrm;
+  }
+  return { ...reduceToTriangle(npts, q, ws.jac, ws.res), norms2 };
+}
+
+/**
+ * The damped Gauss–Newton step: least squares of [J; √λ·diag(‖J_c‖)] δ = [res; 0] (Marquardt's scaling), solved
+ * as [M; √λ·diag(‖J_c‖)] δ = [c; 0]: a refused step costs a 2q × q solve, not a new factorisation of J.
+ */
+function dampedStep(lin: Linearisation, ws: Workspace, q: number, lambda: number) {
+  const rows = 2 * q;
+  ws.aug.fill(0);
+  ws.rhs.fill(0);
+  ws.rhs.set(lin.c);
+  for (let c = 0; c < q; c++) {
+    for (let i = 0; i < q; i++) ws.aug[c * rows + i] = lin.m[c * q + i] as number;
+    ws.aug[c * rows + q + c] = Math.sqrt(lambda * Math.max(lin.norms2[c] as number, 1e-300));
   }
   return solveLeastSquares({
     rows,
@@ -244,14 +263,15 @@ export function fitProfiles(
   const ws: Workspace = {
     jac: new Float64Array(npts * q),
     res: new Float64Array(npts),
-    aug: new Float64Array((npts + q) * q),
-    rhs: new Float64Array(npts + q),
+    aug: new Float64Array(2 * q * q),
+    rhs: new Float64Array(2 * q),
   };
   let lambda = 1e-3;
   let current = residualSumOfSquares(pb, p);
+  let lin: Linearisation | undefined;
   for (let iter = 0; iter < MAX_ITERATIONS; iter++) {
-    jacobianAt(pb, p, ws.jac, ws.res);
-    const sol = dampedStep(ws, q, lambda);
+    lin ??= linearise(pb, p, ws, q);
+    const sol = dampedStep(lin, ws, q, lambda);
     if (sol.rankDeficient) break;
     const trial = [...p];
     freeIdx.forEach((j, c) => {
@@ -262,6 +282,7 @@ export function fitProfiles(
     if (next < current) {
       const improvement = (current - next) / Math.max(current, 1e-300);
       p = trial;
+      lin = undefined;
       current = next;
       lambda = Math.max(lambda / 10, 1e-12);
       if (improvement < 1e-8 || settled) break;

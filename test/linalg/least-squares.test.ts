@@ -1,6 +1,6 @@
 import { Matrix, QrDecomposition } from 'ml-matrix';
 import { describe, expect, it } from 'vitest';
-import { solveLeastSquares } from '../../src/linalg/least-squares.js';
+import { reduceToTriangle, solveLeastSquares } from '../../src/linalg/least-squares.js';
 import { FILIP, LONGLEY, NORRIS, PONTIUS, type StrdDataset, WAMPLER } from '../fixtures/nist-strd/datasets.js';
 import { seededRandom } from '../helpers/random.js';
 
@@ -167,5 +167,36 @@ describe('rank and conditioning', () => {
     const h = r.leverages as Float64Array;
     expect(h.reduce((s, v) => s + v, 0)).toBeCloseTo(p, 10);
     expect((h[0] as number) / (h[25] as number)).toBeCloseTo((w[0] as number) / (w[25] as number), 12);
+  });
+  it('rows appended to a problem reduced to its triangle solve as if appended to the full design (damped steps)', () => {
+    // [A; √λ I] x = [b; 0] solved on all 80 + 5 rows, and as [M; √λ I] x = [c; 0] from reduceToTriangle(A, b).
+    const u = seededRandom(5);
+    const n = 80;
+    const p = 5;
+    const a = Float64Array.from({ length: n * p }, (_, k) => (k < n ? 1 : (u() - 0.5) * 10 ** (k % 3)));
+    const b = Float64Array.from({ length: n }, () => u());
+    const { m, c } = reduceToTriangle(n, p, a, b);
+    for (const lambda of [0, 1e-3, 10]) {
+      const fullA = new Float64Array((n + p) * p);
+      const smallA = new Float64Array(2 * p * p);
+      for (let j = 0; j < p; j++) {
+        fullA.set(a.subarray(j * n, j * n + n), j * (n + p));
+        fullA[j * (n + p) + n + j] = Math.sqrt(lambda);
+        smallA.set(m.subarray(j * p, j * p + p), j * 2 * p);
+        smallA[j * 2 * p + p + j] = Math.sqrt(lambda);
+      }
+      const fullB = new Float64Array(n + p);
+      fullB.set(b);
+      const smallB = new Float64Array(2 * p);
+      smallB.set(c);
+      const x = solveLeastSquares({ rows: n + p, cols: p, design: fullA, observations: fullB });
+      const y = solveLeastSquares({ rows: 2 * p, cols: p, design: smallA, observations: smallB });
+      // 11 significant digits (stated; the columns differ by up to 10² in scale).
+      for (let j = 0; j < p; j++) {
+        const e = x.coefficients[j] as number;
+        expect(Math.abs((y.coefficients[j] as number) - e)).toBeLessThan(1e-11 * Math.max(1, Math.abs(e)));
+        expect(y.covariance[j * p + j]).toBeCloseTo(x.covariance[j * p + j] as number, 10);
+      }
+    }
   });
 });
