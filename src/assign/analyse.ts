@@ -252,7 +252,7 @@ export function analyseLineList(
   if (!s.decisive) {
     throw new ScienceError(
       'NUMBERING_AMBIGUOUS',
-      `${species.formula} is not in the reference library and its band could not be numbered from its structure: the best numbering (${describeEvidence(chosen)}) is not clearly better than the next (${runnerUp ? describeEvidence(runnerUp) : '–'}; evidence margin ${s.margin.toFixed(1)}, needed ${MIN_MARGIN}). Send intensities, lines near the band origin, or a few given assignments`,
+      `${species.formula} (not in the reference library): no numbering of its band is clearly best, evidence margin ${s.margin.toFixed(1)} where ${MIN_MARGIN} is needed; send intensities, the lines near the band origin, or a few given assignments. Best: ${describeEvidence(chosen)}. Next: ${runnerUp ? describeEvidence(runnerUp) : '–'}`,
       { species: species.formula, margin: s.margin, numberings: s.evidence.slice(0, 4) },
     );
   }
