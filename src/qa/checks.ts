@@ -1,5 +1,5 @@
 import type { Analysis } from '../assign/analyse.js';
-import { calibrationFromPoints, type PeakInput } from '../assign/assign-lines.js';
+import type { PeakInput } from '../assign/assign-lines.js';
 import { candidateLines, naturalAbundances } from '../assign/candidates.js';
 import { type IdentificationCandidate, identifySpecies } from '../assign/identify.js';
 import { relativeIntensity } from '../assign/intensity.js';
@@ -7,6 +7,7 @@ import { compileDunham } from '../models/dunham.js';
 import type { Branch } from '../models/transitions.js';
 import { constantsFor, dunhamFromEntry } from '../species/library.js';
 import { type Isotopologue, parseSpecies } from '../species/parse.js';
+import { type CalibrationPoint, calibrateAgainstLibrary, guardBandedStatus } from './calibration.js';
 import { boltzmannTemperature } from './temperature.js';
 
 export type CheckStatus = 'pass' | 'warn' | 'fail' | 'not-evaluated';
@@ -39,9 +40,12 @@ export interface Tolerances {
    * error of tens of ppm moves B by as much; a wrong molecule is off by far more (common practice). */
   readonly identityB: number;
   /** |offset| at the band centre, cm⁻¹. Default 0.05, a typical FTIR wavenumber-accuracy figure at 0.5 cm⁻¹
-   * resolution (common practice). */
+   * resolution (common practice). Decision rule (guard band 2u, after JCGM 106:2012): pass |x| ≤ limit; warn when
+   * beyond it by less than 2u; fail when beyond it by more. u includes the library's prediction uncertainty. */
   readonly calibrationOffset: number;
-  /** |scale error|, ppm. Default 20 (common practice for FTIR and laser wavemeters). */
+  /** |scale error|, ppm. Default 20 (common practice for FTIR and laser wavemeters). Judged only when the lines
+   * determine the scale to a third of this limit (one band alone rarely does: the scale is then nearly degenerate
+   * with the offset); same guard-banded rule as the offset. */
   readonly calibrationScalePpm: number;
   /** Share of intensity (or of lines, without intensities) no band explains: fail above this, warn above half of
    * it. Default 0.05 (common practice: a few per cent of noise peaks is normal in a peak list). */
@@ -136,7 +140,7 @@ export function runChecks(
   const T = (temperature.measured.temperature as { value: number } | undefined)?.value ?? 296;
   const checks = [
     identityCheck(peaks, declared, analysis, main, tol),
-    calibrationCheck(analysis, main, tol),
+    calibrationCheck(peaks, analysis, main, tol),
     unexplainedCheck(peaks, analysis, tol),
     isotopeCheck(peaks, analysis, T, tol),
     temperature,
@@ -222,45 +226,72 @@ function identityCheck(
   };
 }
 
-function calibrationCheck(analysis: Analysis, main: string | undefined, tol: Tolerances): Check {
-  const limit = { offset: tol.calibrationOffset, scalePpm: tol.calibrationScalePpm };
+function calibrationCheck(
+  peaks: readonly PeakInput[],
+  analysis: Analysis,
+  main: string | undefined,
+  tol: Tolerances,
+): Check {
+  const limit = { offset: tol.calibrationOffset, scalePpm: tol.calibrationScalePpm, guardBand: '2u (k = 2)' };
   if (!main) return notEvaluated('calibration', 'no species was fitted');
   const entry = constantsFor(parseSpecies(main));
   if (!entry) return notEvaluated('calibration', `${main} has no reference positions to calibrate against`);
-  const e = compileDunham(dunhamFromEntry(entry));
-  const pts = analysis.result.lines.flatMap((l) => {
+  const r = analysis.result;
+  const st = r.statistics;
+  // Each line's σ as the fit used it: given (scaled by √(χ²/ν) when that exceeds 1 in a-posteriori mode), or the
+  // scatter estimated for its band, or the rms of the fit.
+  const inflate =
+    st.uncertaintyMode === 'a-posteriori' && st.reducedChiSquare !== null && r.scatter === undefined
+      ? Math.sqrt(Math.max(1, st.reducedChiSquare))
+      : 1;
+  const sigmaOf = (index: number, band: string) =>
+    peaks[index]?.uncertainty !== undefined
+      ? (peaks[index]?.uncertainty as number) * inflate
+      : (r.scatter?.find((g) => g.group === `${main} ${band}`)?.sigma ??
+        r.scatter?.find((g) => g.by === 'pooled')?.sigma ??
+        Math.max(st.rms, 1e-9));
+  const pts: CalibrationPoint[] = r.lines.flatMap((l) => {
     const a = l.assignment;
     if (l.status !== 'fitted' || !a || a.species !== main || a.j > 20) return [];
     const [u, lo] = a.band.split('-').map(Number) as [number, number];
-    const ju = a.branch === 'R' ? a.j + 1 : a.j - 1;
-    return [{ reference: e(u, ju) - e(lo, a.j), observed: l.position }];
+    const ju = a.branch === 'R' ? a.j + 1 : a.branch === 'P' ? a.j - 1 : a.j;
+    return [{ observed: l.position, sigma: sigmaOf(l.index, a.band), upperV: u, upperJ: ju, lowerV: lo, lowerJ: a.j }];
   });
-  const c = calibrationFromPoints(pts, `reference-library positions of ${main}`);
+  const c = calibrateAgainstLibrary(
+    pts,
+    dunhamFromEntry(entry),
+    `reference-library positions of ${main}`,
+    tol.calibrationScalePpm,
+  );
   if (!c) return notEvaluated('calibration', 'fewer than three fitted lines of the main species with J″ ≤ 20');
-  const off = Math.abs(c.offset.value);
-  const sc = c.scale ? Math.abs(c.scale.value) : 0;
-  let status: CheckStatus = 'pass';
-  if (off > tol.calibrationOffset || sc > tol.calibrationScalePpm) status = 'fail';
-  else if (
-    off + 2 * c.offset.uncertainty > tol.calibrationOffset ||
-    (c.scale && sc + 2 * c.scale.uncertainty > tol.calibrationScalePpm)
-  )
-    status = 'warn';
+  const offsetStatus = guardBandedStatus(c.offset.value, c.offset.uncertainty, tol.calibrationOffset);
+  const scaleStatus = c.scale ? guardBandedStatus(c.scale.value, c.scale.uncertainty, tol.calibrationScalePpm) : 'pass';
+  const status: CheckStatus = RANK[offsetStatus] >= RANK[scaleStatus] ? offsetStatus : scaleStatus;
+  const found = `offset ${c.offset.value.toFixed(4)} ± ${c.offset.uncertainty.toFixed(4)} cm-1${c.scale ? `, scale ${c.scale.value.toFixed(1)} ± ${c.scale.uncertainty.toFixed(1)} ppm` : ''}`;
+  const scaleNote =
+    c.scaleUndetermined !== undefined
+      ? `; the scale is not determined by these lines (σ would be ${c.scaleUndetermined.toFixed(0)} ppm, more than a third of the ${tol.calibrationScalePpm} ppm limit) and is not judged`
+      : '';
+  const library = c.nuisance.length
+    ? ` (library prediction uncertainty included: ${c.nuisance.join(', ')} missing from the library, carried with priors)`
+    : '';
   return {
     id: 'calibration',
     status,
     measured: {
       offset: c.offset,
       ...(c.scale ? { scale: c.scale } : {}),
+      ...(c.scaleUndetermined !== undefined ? { scaleUncertaintyIfFitted: c.scaleUndetermined } : {}),
       centre: c.centre,
       lines: c.lines,
       reference: c.reference,
+      libraryTermsCarried: c.nuisance,
     },
     limit,
     message:
       status === 'pass'
-        ? `offset ${c.offset.value.toFixed(4)} ± ${c.offset.uncertainty.toFixed(4)} cm-1${c.scale ? `, scale ${c.scale.value.toFixed(1)} ± ${c.scale.uncertainty.toFixed(1)} ppm` : ''}: within limits`
-        : `offset ${c.offset.value.toFixed(4)} ± ${c.offset.uncertainty.toFixed(4)} cm-1${c.scale ? `, scale ${c.scale.value.toFixed(1)} ± ${c.scale.uncertainty.toFixed(1)} ppm` : ''} against limits ${tol.calibrationOffset} cm-1 and ${tol.calibrationScalePpm} ppm${status === 'warn' ? ' (within, but not by two standard uncertainties)' : ''}`,
+        ? `${found}: within limits${library}${scaleNote}`
+        : `${found} against limits ${tol.calibrationOffset} cm-1 and ${tol.calibrationScalePpm} ppm${status === 'warn' ? ' (beyond the limit, but by less than the 2σ guard band: not significant)' : ' (beyond the limit by more than the 2σ guard band)'}${library}${scaleNote}`,
   };
 }
 

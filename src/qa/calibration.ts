@@ -1,0 +1,130 @@
+import { type Quantity, quantity } from '../derive/quantity.js';
+import { hFromRelation, SCALE_PRIOR_FACTOR } from '../fit/truncation.js';
+import { solveLeastSquares } from '../linalg/least-squares.js';
+
+/**
+ * Wavenumber calibration against reference positions predicted from the library's constants, with the library's
+ * own prediction uncertainty included. The library holds ω_e … D_e but not the higher terms real molecules have
+ * (ω_e y_e or ω_e z_e, γ_e, β_e, H_e); predicted positions miss them (γ_e alone moves HCl 1-0 R(11) by about
+ * 0.5 cm⁻¹). So the regression of observed − reference carries each missing Dunham term as a nuisance parameter
+ * with a prior (the same priors as the fit's constrained terms, src/fit/truncation.ts: 0 ± 5κ|Y_{k−1,l}|, H_e from
+ * the Dunham relation ± 50 %), and the offset and scale come out with everything they correlate with.
+ */
+export interface CalibrationPoint {
+  readonly observed: number;
+  /** Standard uncertainty of the observed position (given, or the fit's scatter estimate), cm⁻¹. */
+  readonly sigma: number;
+  readonly upperV: number;
+  readonly upperJ: number;
+  readonly lowerV: number;
+  readonly lowerJ: number;
+}
+
+export interface ReferenceCalibration {
+  readonly offset: Quantity;
+  /** Present only when the data determine it (σ ≤ limit/3). */
+  readonly scale?: Quantity;
+  /** Standard uncertainty the scale would have, ppm, when it is not reported. */
+  readonly scaleUndetermined?: number;
+  readonly centre: number;
+  readonly lines: number;
+  readonly nuisance: readonly string[];
+  readonly reference: string;
+}
+
+const basis = (k: number, l: number, v: number, j: number) => (v + 0.5) ** k * (j * (j + 1)) ** l;
+
+export function calibrateAgainstLibrary(
+  pts: readonly CalibrationPoint[],
+  y: ReadonlyMap<string, number>,
+  reference: string,
+  scaleLimitPpm: number,
+): ReferenceCalibration | undefined {
+  if (pts.length < 3) return undefined;
+  const Y = (k: number, l: number) => y.get(`${k},${l}`);
+  const energy = (v: number, j: number) => {
+    let e = 0;
+    for (const [key, val] of y) {
+      const [k, l] = key.split(',').map(Number) as [number, number];
+      e += val * basis(k, l, v, j);
+    }
+    return e;
+  };
+  const omega = Y(1, 0);
+  const B = Y(0, 1);
+  const kappa = omega && B ? B / omega : undefined;
+  // Nuisance terms: those the library lacks, next to one it has.
+  const nuisance: { k: number; l: number; mean: number; sigma: number; name: string }[] = [];
+  const scalePrior = (k: number, l: number, name: string) => {
+    const lower = Y(k - 1, l);
+    if (Y(k, l) !== undefined || lower === undefined || kappa === undefined) return;
+    nuisance.push({ k, l, mean: 0, sigma: SCALE_PRIOR_FACTOR * kappa * Math.abs(lower), name });
+  };
+  scalePrior(3, 0, 'ω_e y_e');
+  if (Y(3, 0) !== undefined) scalePrior(4, 0, 'ω_e z_e');
+  scalePrior(2, 1, 'γ_e');
+  scalePrior(1, 2, 'β_e');
+  const D = Y(0, 2);
+  const alpha = Y(1, 1);
+  if (Y(0, 3) === undefined && D !== undefined && B !== undefined && omega !== undefined) {
+    const H = hFromRelation(-D, B, -(alpha ?? 0), omega);
+    if (Number.isFinite(H) && H !== 0) nuisance.push({ k: 0, l: 3, mean: H, sigma: 0.5 * Math.abs(H), name: 'H_e' });
+  }
+  const n = pts.length;
+  const m = nuisance.length;
+  const refs = pts.map((p) => energy(p.upperV, p.upperJ) - energy(p.lowerV, p.lowerJ));
+  let sw = 0;
+  let swx = 0;
+  pts.forEach((p, i) => {
+    const w = 1 / p.sigma ** 2;
+    sw += w;
+    swx += w * (refs[i] as number);
+  });
+  const centre = swx / sw;
+  const cols = 2 + m;
+  const rows = n + m;
+  const design = new Float64Array(rows * cols);
+  const obs = new Float64Array(rows);
+  const weights = new Float64Array(rows);
+  pts.forEach((p, i) => {
+    design[i] = 1;
+    design[rows + i] = (refs[i] as number) - centre;
+    nuisance.forEach((t, a) => {
+      design[(2 + a) * rows + i] = basis(t.k, t.l, p.upperV, p.upperJ) - basis(t.k, t.l, p.lowerV, p.lowerJ);
+    });
+    obs[i] = p.observed - (refs[i] as number);
+    weights[i] = 1 / p.sigma ** 2;
+  });
+  nuisance.forEach((t, a) => {
+    design[(2 + a) * rows + n + a] = 1;
+    obs[n + a] = t.mean;
+    weights[n + a] = 1 / t.sigma ** 2;
+  });
+  const r = solveLeastSquares({ rows, cols, design, observations: obs, weights, conditionNumber: false });
+  if (r.rankDeficient) return undefined;
+  // The line σ are the fit's (given or estimated from the scatter): absolute here, not rescaled again.
+  const sd = (j: number) => Math.sqrt(Math.max(r.covariance[j * cols + j] as number, 0));
+  const scaleSigma = sd(1) * 1e6;
+  const determined = scaleSigma <= scaleLimitPpm / 3;
+  return {
+    offset: quantity(r.coefficients[0] as number, sd(0), 'cm-1'),
+    ...(determined
+      ? { scale: quantity((r.coefficients[1] as number) * 1e6, scaleSigma, 'ppm') }
+      : { scaleUndetermined: scaleSigma }),
+    centre,
+    lines: n,
+    nuisance: nuisance.map((t) => t.name),
+    reference,
+  };
+}
+
+/**
+ * Guard-banded decision (after JCGM 106:2012, §8, with a guard band w = 2u): pass when |x| ≤ L; warn when the limit
+ * is exceeded but not by more than 2u (not significant); fail when |x| > L + 2u (beyond the limit at about 98 %
+ * one-sided confidence). A clean scan passes whatever its uncertainty; only a significant excess fails.
+ */
+export function guardBandedStatus(x: number, u: number, limit: number): 'pass' | 'warn' | 'fail' {
+  const a = Math.abs(x);
+  if (a <= limit) return 'pass';
+  return a > limit + 2 * u ? 'fail' : 'warn';
+}
