@@ -92,13 +92,27 @@ const post = async (path: string, body: string, type = 'application/json') => {
   };
 };
 
+/** The server's own event-loop delay since the last scrape (prom-client resets its histogram at each scrape). */
+const loopLagMaxMs = async () => {
+  const m = await (await fetch(`${base}/metrics`)).text();
+  return Number(/^branchwise_nodejs_eventloop_lag_max_seconds (\S+)/m.exec(m)?.[1]) * 1000;
+};
+
+// Baseline: /healthz while nothing else runs (the machine's own noise).
+await loopLagMaxMs();
+const idle = await healthzWorstWhile(new Promise((r) => setTimeout(r, 3000)));
+console.log(
+  `0. idle: /healthz worst ${idle.worstMs.toFixed(0)} ms over ${idle.samples} polls; loop lag max ${(await loopLagMaxMs()).toFixed(0)} ms`,
+);
+
 const body100k = bigFit(100_000);
 console.log(
   `100 000-line body: ${(body100k.length / 1e6).toFixed(1)} MB; RSS idle ${(rss() / 2 ** 20).toFixed(0)} MiB`,
 );
+await loopLagMaxMs();
 const one = await healthzWorstWhile(post('/v1/fits', body100k));
 console.log(
-  `1. one 100 000-line fit: ${one.result.status} in ${(one.result.ms / 1000).toFixed(1)} s; /healthz worst ${one.worstMs.toFixed(0)} ms over ${one.samples} polls`,
+  `1. one 100 000-line fit: ${one.result.status} in ${(one.result.ms / 1000).toFixed(1)} s; /healthz worst ${one.worstMs.toFixed(0)} ms over ${one.samples} polls; server loop lag max ${(await loopLagMaxMs()).toFixed(0)} ms`,
 );
 
 let peak = 0;

@@ -34,6 +34,11 @@ export interface Pool {
   /** Reserve `lines` of the admission budget (false when it would overflow); give them back with release. */
   reserve(lines: number): boolean;
   release(lines: number): void;
+  /**
+   * Start the worker threads and run a tiny job in each, so that the first large request does not pay for the
+   * thread's start (module loading competes with the event loop on a small machine). server.ts calls it at start-up.
+   */
+  warm(): Promise<void>;
 }
 
 const overloaded = (detail: string) =>
@@ -48,7 +53,7 @@ export function createPool(config: Config): Pool {
     threads > 0
       ? new Piscina({
           filename: new URL(isTs ? './worker.ts' : './worker.js', import.meta.url).href,
-          minThreads: 0,
+          minThreads: 0, // started by warm() in the server; tests that build many apps start none
           maxThreads: threads,
           // From the TypeScript sources (tests, npm run dev) the worker needs the same loader as the main thread.
           ...(isTs ? { execArgv: ['--import', 'tsx'] } : {}),
@@ -93,6 +98,14 @@ export function createPool(config: Config): Pool {
     },
     reserve,
     release,
+    async warm() {
+      if (!piscina) return;
+      const tiny: Job = {
+        kind: 'predict',
+        body: { species: 'HCl', bands: ['1-0'], jMax: 1, temperature: 296, unit: 'cm-1' },
+      };
+      await Promise.all(Array.from({ length: threads }, () => piscina.run(tiny)));
+    },
     async run<T>(job: Job, size: number, options: RunOptions = {}): Promise<T> {
       if (!piscina || size < config.workerThreshold) return unwrap<T>(runJob(job));
       if (config.maxQueue > 0 && piscina.queueSize >= config.maxQueue)

@@ -19,6 +19,8 @@ const shutdown = shutdownOnSignals(app, config.shutdownGraceMs);
 process.on('SIGINT', () => void shutdown('SIGINT'));
 process.on('SIGTERM', () => void shutdown('SIGTERM'));
 
+// Worker threads start before the port opens: /readyz is true only once large work can run without delay.
+await app.pool.warm();
 await app.listen({ host: config.host, port: config.port });
 {
   // Where to go next, in one line: the service, its page and its documentation.
