@@ -34,10 +34,12 @@ export interface Check {
 export interface Tolerances {
   /** Fitted band origin against the reference, cm⁻¹. Default 0.5: reference constants of the library reproduce
    * measured origins to a few hundredths, and instrument offsets up to a few tenths are the calibration check's
-   * business (common practice). */
+   * business (common practice). Rule: warn beyond the limit, fail beyond three times it (the library's own origin
+   * uncertainty, a few hundredths, is far inside the limit, so no separate guard band). */
   readonly identityOrigin: number;
   /** Fitted B″ against the reference, relative. Default 1e-3: B from Huber & Herzberg is good to 1e-5, and a scale
-   * error of tens of ppm moves B by as much; a wrong molecule is off by far more (common practice). */
+   * error of tens of ppm moves B by as much; a wrong molecule is off by far more (common practice). Rule: as for
+   * identityOrigin (warn beyond, fail beyond three times). */
   readonly identityB: number;
   /** |offset| at the band centre, cm⁻¹. Default 0.05, a typical FTIR wavenumber-accuracy figure at 0.5 cm⁻¹
    * resolution (common practice). Decision rule (guard band 2u, after JCGM 106:2012): pass |x| ≤ limit; warn when
@@ -48,18 +50,24 @@ export interface Tolerances {
    * with the offset); same guard-banded rule as the offset. */
   readonly calibrationScalePpm: number;
   /** Share of intensity (or of lines, without intensities) no band explains: fail above this, warn above half of
-   * it. Default 0.05 (common practice: a few per cent of noise peaks is normal in a peak list). */
+   * it. Default 0.05 (common practice: a few per cent of noise peaks is normal in a peak list). A count, not an
+   * estimate: no guard band. */
   readonly unexplainedFraction: number;
   /** |measured/natural − 1| of minor-isotopologue intensity ratios: warn above. Default 0.15 (natural variation is
-   * a few per cent; line intensities of a peak list are rarely better than 5–10 %, common practice). */
+   * a few per cent; line intensities of a peak list are rarely better than 5–10 %, common practice). Never fails
+   * (an enriched sample is not a faulty one). */
   readonly isotopeRatio: number;
-  /** Expected rotational temperature and its tolerance, K. Default none: the temperature is reported only. */
+  /** Expected rotational temperature and its tolerance, K. Default none: the temperature is reported only. Rule:
+   * the guard-banded one of the calibration (pass within the tolerance, warn beyond it by less than 2u, fail beyond
+   * it by more), u the Boltzmann-plot uncertainty. */
   readonly temperature?: { readonly expected: number; readonly tolerance: number };
-  /** Largest reduced χ² when line uncertainties are given. Default 3 (common practice). */
+  /** Largest reduced χ² when line uncertainties are given. Default 3 (common practice). Judged only when the
+   * uncertainties were given (an estimated scatter makes χ²/ν ≈ 1 by construction); fail above. */
   readonly maxReducedChiSquare: number;
-  /** Largest share of lines rejected as outliers. Default 0.05 (common practice). */
+  /** Largest share of lines rejected as outliers. Default 0.05 (common practice). A count: fail above. */
   readonly maxRejectedFraction: number;
-  /** Smallest share of the predicted strong lines (≥ 10 % of the strongest) that must be found. Default 0.9. */
+  /** Smallest share of the predicted strong lines (≥ 10 % of the strongest) that must be found. Default 0.9. A
+   * count: warn below. */
   readonly minCompleteness: number;
 }
 
@@ -450,8 +458,7 @@ function temperatureCheck(
   let message = `rotational temperature ${t.value.toFixed(1)} ± ${t.uncertainty.toFixed(1)} K from ${pts.length} lines of band ${band.band} (Boltzmann plot; Herman–Wallis effects neglected)`;
   if (tol.temperature) {
     const d = Math.abs(t.value - tol.temperature.expected);
-    status =
-      d > tol.temperature.tolerance ? 'fail' : d + 2 * t.uncertainty > tol.temperature.tolerance ? 'warn' : 'pass';
+    status = guardBandedStatus(d, t.uncertainty, tol.temperature.tolerance);
     message += `, expected ${tol.temperature.expected} ± ${tol.temperature.tolerance} K`;
   }
   return {
