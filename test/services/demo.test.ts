@@ -19,4 +19,18 @@ describe('README demo scan sets', () => {
     expect(r.statusCode).toBe(200);
     expect(Math.abs(r.json().equilibrium[0].B_e.value - 1.93128087)).toBeLessThan(1e-4);
   });
+  // The README's first command checks these files: they are generated from the library's constants, so they
+  // must pass the library's own checks. A library update that is not followed by `npx tsx examples/generate-demo.ts`
+  // leaves a demo that fails calibration (it did: HCl offset 0.27 cm⁻¹, scale 149 ppm, verdict fail).
+  it.each(['examples/fernhollow-hcl-cylinder-7741.json', 'examples/fernhollow-co-cylinder-0192.json'])(
+    '%s passes /v1/checks with the default tolerances (calibration within 0.05 cm⁻¹ and 20 ppm)',
+    async (file) => {
+      const body = JSON.parse(readFileSync(file, 'utf8'));
+      const r = await app().inject({ method: 'POST', url: '/v1/checks', payload: body });
+      expect(r.statusCode).toBe(200);
+      const calibration = r.json().checks.find((c: { id: string }) => c.id === 'calibration');
+      expect(calibration.status).toBe('pass');
+      expect(r.json().verdict).toBe('pass');
+    },
+  );
 });
