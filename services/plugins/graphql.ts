@@ -20,7 +20,8 @@ export async function graphqlRoutes(scope: FastifyInstance, config: Config, app:
     if (route.url === '/graphql') route.bodyLimit = config.smallBodyLimit;
   });
   scope.addHook('preValidation', async (request, reply) => {
-    if (request.method !== 'POST') return;
+    // The hook sits on the scope shared with the REST routes: only /graphql is a GraphQL request.
+    if (request.method !== 'POST' || request.routeOptions.url !== '/graphql') return;
     const body = request.body as { query?: unknown } | unknown[] | undefined;
     const text = Array.isArray(body) ? '' : typeof body?.query === 'string' ? body.query : '';
     if (Array.isArray(body) || text.length > MAX_QUERY_CHARS) {

@@ -1,0 +1,27 @@
+import { describe, expect, it } from 'vitest';
+import { useApp } from '../helpers/app.js';
+
+/** What a newcomer meets in the first hour: answers that name the real problem. */
+const app = useApp();
+
+describe('a JSON array or a `query` field sent to a REST route', () => {
+  it('is a schema error of that route, not a refused GraphQL batch', async () => {
+    const r = await app().inject({ method: 'POST', url: '/v1/fits', payload: [] });
+    expect(r.statusCode).toBe(400);
+    expect(r.headers['content-type']).toMatch(/^application\/problem\+json/);
+    expect(r.json().code).toBe('VALIDATION_FAILED');
+    expect(r.json().detail).not.toMatch(/GraphQL|batched/i);
+  });
+  it('a long `query` string in a fit body is reported as an unknown key of the fit', async () => {
+    const body = { query: 'x'.repeat(50_000), species: 'CO', lines: [{ position: 2143.27 }] };
+    const r = await app().inject({ method: 'POST', url: '/v1/checks', payload: body });
+    expect(r.statusCode).toBe(400);
+    expect(r.json().code).toBe('VALIDATION_FAILED');
+    expect(r.json().detail).toMatch(/query/);
+  });
+  it('a batched GraphQL request is still refused on /graphql', async () => {
+    const r = await app().inject({ method: 'POST', url: '/graphql', payload: [{ query: '{ species { formula } }' }] });
+    expect(r.statusCode).toBe(400);
+    expect(r.json().code).toBe('GRAPHQL_REFUSED');
+  });
+});
