@@ -34,27 +34,46 @@ export const LineIdSchema = z
  */
 export const MAX_MAGNITUDE = 1e12;
 
+const ASSIGNMENT_KEYS = new Set(['band', 'branch', 'j', 'species']);
+
+/**
+ * The answer to an unknown key in a line: the keys a line has, and where an assignment goes when its keys were put
+ * on the line itself (as in a CSV row).
+ */
+function unknownLineKeys(issue: { code?: string; keys?: readonly PropertyKey[] }): string | undefined {
+  if (issue.code !== 'unrecognized_keys' || !issue.keys) return undefined;
+  const keys = issue.keys.map(String);
+  const listed = keys.map((k) => `"${k}"`).join(', ');
+  const hint = keys.some((k) => ASSIGNMENT_KEYS.has(k))
+    ? '; an assignment goes in its own object: "assignment": {"band": "1-0", "branch": "P", "j": 1}'
+    : '';
+  return `Unrecognized key(s) ${listed}: a line has position, uncertainty, intensity, id, source and assignment${hint}`;
+}
+
 export const LineSchema = z
-  .strictObject({
-    id: LineIdSchema.optional(),
-    position: z.number().positive().max(MAX_MAGNITUDE).describe('line position in the request unit'),
-    uncertainty: z
-      .number()
-      .positive()
-      .max(MAX_MAGNITUDE)
-      .optional()
-      .describe('standard uncertainty in the request unit'),
-    intensity: z.number().min(0).max(MAX_MAGNITUDE).optional().describe('any linear scale'),
-    source: z
-      .string()
-      .min(1)
-      .max(100)
-      .optional()
-      .describe(
-        'label of the instrument or file the line came from: lines without an uncertainty get σ from the scatter of their source',
-      ),
-    assignment: AssignmentSchema.optional(),
-  })
+  .strictObject(
+    {
+      id: LineIdSchema.optional(),
+      position: z.number().positive().max(MAX_MAGNITUDE).describe('line position in the request unit'),
+      uncertainty: z
+        .number()
+        .positive()
+        .max(MAX_MAGNITUDE)
+        .optional()
+        .describe('standard uncertainty in the request unit'),
+      intensity: z.number().min(0).max(MAX_MAGNITUDE).optional().describe('any linear scale'),
+      source: z
+        .string()
+        .min(1)
+        .max(100)
+        .optional()
+        .describe(
+          'label of the instrument or file the line came from: lines without an uncertainty get σ from the scatter of their source',
+        ),
+      assignment: AssignmentSchema.optional(),
+    },
+    { error: unknownLineKeys },
+  )
   .meta({ id: 'Line' });
 
 export const FitOptionsSchema = z

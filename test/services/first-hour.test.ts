@@ -25,3 +25,21 @@ describe('a JSON array or a `query` field sent to a REST route', () => {
     expect(r.json().code).toBe('GRAPHQL_REFUSED');
   });
 });
+
+describe('a JSON line with its assignment written as in a CSV row', () => {
+  it('is told where the assignment goes', async () => {
+    const body = { species: 'CO', lines: [{ position: 2139.4261, band: '1-0', branch: 'P', j: 1 }] };
+    const r = await app().inject({ method: 'POST', url: '/v1/fits', payload: body });
+    expect(r.statusCode).toBe(400);
+    expect(r.json().code).toBe('VALIDATION_FAILED');
+    expect(r.json().detail).toContain('"band", "branch", "j"');
+    expect(r.json().detail).toContain('"assignment": {');
+  });
+  it('an unknown key that is no assignment lists the keys a line has', async () => {
+    const body = { species: 'CO', lines: [{ wavenumber: 2139.4261 }] };
+    const r = await app().inject({ method: 'POST', url: '/v1/fits', payload: body });
+    expect(r.statusCode).toBe(400);
+    expect(r.json().detail).toMatch(/"wavenumber".*a line has position, uncertainty/);
+    expect(r.json().detail).not.toContain('"assignment": {');
+  });
+});
