@@ -40,7 +40,9 @@ export function prepareFit(req: FitRequest): PreparedFit {
     if (declared) return declared;
     throw new ScienceError(
       'SPECIES_UNIDENTIFIED',
-      `line ${index} is assigned but names no species, and the request declares none: give "species"`,
+      `line ${index} (counted from 0) is assigned but names no species and the request declares none: give ` +
+        '"species" (e.g. "CO", "H35Cl"; ?species= with a CSV or JCAMP-DX body, --species in the CLI), or send ' +
+        'the lines unassigned to have a library species identified',
       { line: index },
     );
   };
