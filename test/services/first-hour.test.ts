@@ -1,3 +1,4 @@
+import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { useApp } from '../helpers/app.js';
 
@@ -58,5 +59,22 @@ describe('an assigned CSV line list without a species', () => {
     expect(r.json().detail.endsWith('…')).toBe(false);
     const again = await app().inject({ method: 'POST', url: '/v1/fits?species=CO', headers, payload: csv });
     expect(again.statusCode).toBe(200);
+  });
+});
+
+describe('the README', () => {
+  const readme = readFileSync('README.md', 'utf8');
+  it('lists every path of the OpenAPI document in its endpoint table', async () => {
+    const doc = (await app().inject({ method: 'GET', url: '/openapi.json' })).json();
+    const table = readme.split('\n').filter((l) => l.startsWith('| `'));
+    const missing = Object.keys(doc.paths).filter((p) => !table.some((row) => row.includes(` ${p}\``)));
+    expect(missing).toEqual([]);
+  });
+  it('shows the JSON shape of a line list, and that example is accepted by /v1/fits', async () => {
+    const block = readme.match(/A line list in JSON[\s\S]*?```json\n([\s\S]*?)```/);
+    expect(block).not.toBeNull();
+    const r = await app().inject({ method: 'POST', url: '/v1/fits', payload: JSON.parse(block?.[1] ?? '') });
+    expect(r.statusCode).toBe(422); // two lines cannot determine a band: a science answer, not a schema error
+    expect(r.json().code).not.toBe('VALIDATION_FAILED');
   });
 });
