@@ -15,8 +15,8 @@ describe('.env.example', () => {
   it('lists every variable the configuration reads', () => {
     const source = readFileSync('services/config.ts', 'utf8');
     const read = new Set([
-      ...[...source.matchAll(/From\(env, '([A-Z_]+)'/g)].map((m) => m[1]),
-      ...[...source.matchAll(/env\.([A-Z_]+)/g)].map((m) => m[1]),
+      ...[...source.matchAll(/From\(env, '([A-Z_]+)'/g)].map((m) => m[1] as string),
+      ...[...source.matchAll(/env\.([A-Z_]+)/g)].map((m) => m[1] as string),
     ]);
     expect(read.size).toBeGreaterThan(20);
     expect([...read].filter((name) => !(name in shown))).toEqual([]);
