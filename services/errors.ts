@@ -191,6 +191,7 @@ export function problem(code: string, status: number, title: string, detail: str
 export const PROBLEM_DESCRIPTIONS: Record<string, string> = {
   'validation-failed': 'The body does not match the request schema; `errors` lists each offending path.',
   'invalid-json': 'The body is not valid JSON.',
+  'forbidden-property': 'The body holds a "__proto__" or "constructor.prototype" key (prototype poisoning), refused.',
   'unsupported-media-type': 'The Content-Type is not one this endpoint accepts.',
   'body-too-large': 'The body exceeds the configured limit (BODY_LIMIT).',
   'bad-request': 'The request is malformed.',

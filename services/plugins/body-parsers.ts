@@ -1,10 +1,29 @@
 import type { FastifyInstance } from 'fastify';
 import type { Config } from '../config.js';
+import { HttpProblem } from '../errors.js';
 import { jsonDepth, MAX_JSON_DEPTH, RawBody, tooDeep } from '../raw-body.js';
 import { NDJSON } from '../rest/batch.js';
 import { CSV_TYPES, JCAMP_TYPES, textBodyToJson } from '../text-bodies.js';
 
 export { MAX_JSON_DEPTH };
+
+/**
+ * fastify's parser answers a `__proto__` or `constructor.prototype` key (prototype poisoning, refused) with the same
+ * error as broken JSON; a body that plain JSON.parse reads was refused for such a key, and is told so.
+ */
+function forbiddenPropertyOr(err: Error, body: string): Error {
+  try {
+    JSON.parse(body);
+  } catch {
+    return err;
+  }
+  return new HttpProblem(
+    'FORBIDDEN_PROPERTY',
+    400,
+    'Forbidden property',
+    'the body is valid JSON but holds a "__proto__" or "constructor.prototype" key, which is refused',
+  );
+}
 
 /**
  * Body parsers: JSON with a nesting limit (fastify's secure parser: prototype poisoning refused), JCAMP-DX and
@@ -20,7 +39,7 @@ export function parseBodies(app: FastifyInstance, config: Config): void {
     if (offload(req, body as string))
       return done(null, new RawBody(body as string, 'application/json', req.query as Record<string, unknown>));
     defaultJson(req, body as string, (err: Error | null, parsed?: unknown) => {
-      if (err) return done(err, undefined);
+      if (err) return done(forbiddenPropertyOr(err, body as string), undefined);
       try {
         if (jsonDepth(parsed) > MAX_JSON_DEPTH) return done(tooDeep(), undefined);
       } catch (e) {

@@ -78,3 +78,18 @@ describe('the README', () => {
     expect(r.json().code).not.toBe('VALIDATION_FAILED');
   });
 });
+
+describe('a JSON body with a __proto__ key', () => {
+  it('is told that the key is refused, not that the JSON is broken', async () => {
+    const payload = '{"species":"CO","__proto__":{"polluted":1},"lines":[{"position":2143.27}]}';
+    const headers = { 'content-type': 'application/json' };
+    const r = await app().inject({ method: 'POST', url: '/v1/fits', headers, payload });
+    expect(r.statusCode).toBe(400);
+    expect(r.headers['content-type']).toMatch(/^application\/problem\+json/);
+    expect(r.json().code).toBe('FORBIDDEN_PROPERTY');
+    expect(r.json().detail).toContain('__proto__');
+    expect(({} as Record<string, unknown>).polluted).toBeUndefined();
+    const broken = await app().inject({ method: 'POST', url: '/v1/fits', headers, payload: '{"species":' });
+    expect(broken.json().code).toBe('INVALID_JSON');
+  });
+});
