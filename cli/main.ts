@@ -32,6 +32,11 @@ export interface Io {
 
 export const EXIT = { pass: 0, warn: 1, fail: 2, input: 3, usage: 4 } as const;
 
+/** The caution the CLI prints under its help and every table (the services' SAFETY_NOTICE, shortened). */
+export const CLI_NOTICE =
+  'branchwise computes constants from data; it certifies nothing about the safety or purity of a gas. ' +
+  'Follow local codes, the safety data sheets and licensed practice.';
+
 const USAGE = `branchwise — molecular constants from line lists and spectra of diatomic gases
 
   branchwise fit <file...>     [--species S] [--unit U] [--temperature K] [--format table|json|csv] [--table lines|constants]
@@ -46,7 +51,7 @@ const USAGE = `branchwise — molecular constants from line lists and spectra of
 Files: .json (the body of the matching HTTP endpoint), .csv (a spectrum or a line list), .jdx/.dx/.jcamp (JCAMP-DX).
 A file that cannot be read is reported under its name; the other files are still processed.
 Exit status: 0 pass, 1 warn, 2 fail (check, report); 3 bad input; 4 usage.
-branchwise computes constants from data; it certifies nothing about the safety or purity of a gas.`;
+${CLI_NOTICE}`;
 
 const FORMATS = ['table', 'json', 'csv'] as const;
 type Format = (typeof FORMATS)[number];
@@ -224,7 +229,9 @@ export function main(argv: readonly string[], io: Io): number {
         return EXIT.usage;
       }
       const r = potentialCommand(v, files);
-      io.out(format === 'json' ? `${JSON.stringify(r.json, null, 2)}\n` : r.text);
+      io.out(
+        format === 'json' ? `${JSON.stringify(r.json, null, 2)}\n` : `${r.text.replace(/\n?$/, '\n')}${CLI_NOTICE}\n`,
+      );
       return EXIT.pass;
     }
     if (!['fit', 'check', 'peaks', 'report'].includes(command)) {
@@ -272,8 +279,7 @@ export function main(argv: readonly string[], io: Io): number {
     progress(io, files.length, files.length, '');
     if (format === 'json') io.out(`${JSON.stringify(files.length === 1 ? results[0] : results, null, 2)}\n`);
     if (format === 'csv' && csvRows.length > 0) io.out(toCsv(csvRows));
-    if (format === 'table')
-      io.out('branchwise computes constants from data; it certifies nothing about the safety or purity of a gas.\n');
+    if (format === 'table') io.out(`${CLI_NOTICE}\n`);
     // A single file that could not be read prints no JSON: its error went to stderr.
     if (format === 'json' && files.length === 1 && (results[0] as { error?: unknown }).error) return EXIT.input;
     return worst;
@@ -308,7 +314,7 @@ function predict(v: Record<string, string | boolean | undefined>, format: Format
   else if (format === 'csv') io.out(toCsv(rows));
   else
     io.out(
-      `${table([['band', 'line', `position (${req.unit})`, 'rel. intensity'], ...r.lines.map((l) => [l.band, `${l.branch}(${l.j})`, l.position.uncertainty === null ? fmt(l.position.value, 6) : q({ value: l.position.value, uncertainty: l.position.uncertainty }), fmt(l.relativeIntensity, 3)])])}\n`,
+      `${table([['band', 'line', `position (${req.unit})`, 'rel. intensity'], ...r.lines.map((l) => [l.band, `${l.branch}(${l.j})`, l.position.uncertainty === null ? fmt(l.position.value, 6) : q({ value: l.position.value, uncertainty: l.position.uncertainty }), fmt(l.relativeIntensity, 3)])])}\n${CLI_NOTICE}\n`,
     );
   return EXIT.pass;
 }

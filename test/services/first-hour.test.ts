@@ -1,5 +1,6 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
+import { main } from '../../cli/main.js';
 import { useApp } from '../helpers/app.js';
 
 /** What a newcomer meets in the first hour: answers that name the real problem. */
@@ -91,5 +92,22 @@ describe('a JSON body with a __proto__ key', () => {
     expect(({} as Record<string, unknown>).polluted).toBeUndefined();
     const broken = await app().inject({ method: 'POST', url: '/v1/fits', headers, payload: '{"species":' });
     expect(broken.json().code).toBe('INVALID_JSON');
+  });
+});
+
+describe('the command line', () => {
+  it('prints under its help and its tables that it defers to local codes, safety data sheets and licensed practice', () => {
+    const runs = [
+      ['--help'],
+      ['predict', '--species', 'CO', '--jmax', '2'],
+      ['potential', '--species', 'CO', '--vmax', '2'],
+    ];
+    for (const args of runs) {
+      let out = '';
+      main(args, { out: (s) => (out += s), err: () => {}, isTty: false });
+      expect(out).toContain('certifies nothing about the safety');
+      expect(out).toContain('local codes, the safety data sheets and licensed practice');
+      expect(out.endsWith('\n')).toBe(true);
+    }
   });
 });
