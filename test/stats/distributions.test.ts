@@ -7,6 +7,7 @@ import {
   studentTTwoSided,
 } from '../../src/stats/distributions.js';
 import { normalTwoSided, normalTwoSidedQuantile } from '../../src/stats/normal.js';
+import { MAD_TO_SIGMA, robustSigma } from '../../src/stats/robust.js';
 
 // Fast reference checks of the special functions behind every significance test, against SciPy 1.17.1
 // (scipy.special.gammaln, scipy.special.betainc, scipy.stats.f/t/chi2/norm), computed for this test. Points are
@@ -62,9 +63,17 @@ describe('special functions against SciPy', () => {
     expect(rel(fDistributionSurvival(f, d1, d2), v)).toBeLessThan(1e-10);
   });
 
-  it('P(F > f) = 1 for f ≤ 0', () => {
+  it('P(F > f) = 1 for f ≤ 0, however negative', () => {
     expect(fDistributionSurvival(0, 2, 5)).toBe(1);
     expect(fDistributionSurvival(-1, 2, 5)).toBe(1);
+    expect(fDistributionSurvival(-10, 2, 5)).toBe(1);
+  });
+
+  it('robust σ = 1.4826 × median |x − median x| away from zero: [100, 101, 102, 104, 107] → MAD 2', () => {
+    // 1/Φ⁻¹(3/4) = 1/0.6744897501960817 (scipy.stats.norm.ppf(0.75)) = 1.482602218505602.
+    expect(Math.abs(MAD_TO_SIGMA - 1.482602218505602)).toBeLessThan(1e-6);
+    expect(Math.abs(robustSigma([100, 101, 102, 104, 107]) - 2 * MAD_TO_SIGMA)).toBeLessThan(1e-12);
+    expect(Math.abs(robustSigma([-50, -47, -46, -45, -40, -44]) - 1.5 * MAD_TO_SIGMA)).toBeLessThan(1e-12);
   });
 
   it.each([
