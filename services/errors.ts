@@ -126,8 +126,13 @@ function toProblemUntruncated(error: unknown, request: FastifyRequest): Problem 
   if (error instanceof ScienceError) return scienceProblem(error, instance);
   if (error instanceof NonFiniteResult) return nonFiniteProblem(error, instance);
   if (hasZodFastifySchemaValidationErrors(error)) {
+    // A query-string parameter is named as such: `(body)` sent readers of a CSV upload looking in the file.
+    const where = (error as { validationContext?: string }).validationContext === 'querystring' ? 'query' : 'body';
     const errors = error.validation.map((v) => ({
-      path: (v.instancePath || '/').replace(/^\//, '') || '(body)',
+      path:
+        where === 'query'
+          ? `(query string)${v.instancePath ? ` ${v.instancePath.replace(/^\//, '')}` : ''}`
+          : (v.instancePath || '/').replace(/^\//, '') || '(body)',
       message: v.message ?? 'invalid',
     }));
     return {
