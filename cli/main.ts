@@ -149,6 +149,11 @@ const fmt = (v: number | undefined, digits = 6) =>
     : Math.abs(v) >= 1e4 || (Math.abs(v) < 1e-3 && v !== 0)
       ? v.toExponential(digits - 1)
       : v.toPrecision(digits);
+/**
+ * A predicted position without an uncertainty, to 12 significant digits in plain notation: six digits (0.01 cm⁻¹
+ * at 2000 cm⁻¹, 1 MHz at 115 GHz) are coarser than the lines a lab compares them with.
+ */
+const exactPosition = (v: number) => String(Number(v.toPrecision(12)));
 /** A value rounded to two significant digits of its uncertainty (the JSON and CSV forms keep full precision). */
 const q = (x?: { value: number; uncertainty: number }) => (x ? roundedDisplay(x.value, x.uncertainty) : '');
 
@@ -314,7 +319,7 @@ function predict(v: Record<string, string | boolean | undefined>, format: Format
   else if (format === 'csv') io.out(toCsv(rows));
   else
     io.out(
-      `${table([['band', 'line', `position (${req.unit})`, 'rel. intensity'], ...r.lines.map((l) => [l.band, `${l.branch}(${l.j})`, l.position.uncertainty === null ? fmt(l.position.value, 6) : q({ value: l.position.value, uncertainty: l.position.uncertainty }), fmt(l.relativeIntensity, 3)])])}\n${CLI_NOTICE}\n`,
+      `${table([['band', 'line', `position (${req.unit})`, 'rel. intensity'], ...r.lines.map((l) => [l.band, `${l.branch}(${l.j})`, l.position.uncertainty === null ? exactPosition(l.position.value) : q({ value: l.position.value, uncertainty: l.position.uncertainty }), fmt(l.relativeIntensity, 3)])])}\n${CLI_NOTICE}\n`,
     );
   return EXIT.pass;
 }

@@ -123,3 +123,32 @@ describe('an unknown query parameter with a CSV body', () => {
     expect(r.json().detail).not.toContain('(body)');
   });
 });
+
+describe('predicted positions in the CLI table', () => {
+  it('keep the digits of the CSV form to 1e-5 cm⁻¹ and 1e-3 MHz (six significant digits lost 0.004 cm⁻¹)', () => {
+    const runCli = (args: string[]) => {
+      let out = '';
+      main(args, { out: (s) => (out += s), err: () => {}, isTty: false });
+      return out;
+    };
+    for (const [unit, tolerance] of [
+      ['cm-1', 1e-5],
+      ['MHz', 1e-3],
+    ] as const) {
+      const base = ['predict', '--species', 'CO', '--bands', '1-0', '--jmax', '3', '--unit', unit];
+      const csv = runCli([...base, '--format', 'csv'])
+        .trim()
+        .split(/\r?\n/)
+        .slice(1);
+      const full = new Map(csv.map((row) => row.split(',')).map((c) => [`${c[1]}(${c[2]})`, Number(c[3])]));
+      const rows = runCli(base)
+        .split('\n')
+        .filter((l) => /^1-0 /.test(l));
+      expect(rows.length).toBe(full.size);
+      for (const row of rows) {
+        const [, line, position] = row.trim().split(/\s+/);
+        expect(Math.abs(Number(position) - (full.get(line ?? '') ?? Number.NaN))).toBeLessThan(tolerance);
+      }
+    }
+  });
+});
