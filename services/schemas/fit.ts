@@ -15,7 +15,7 @@ export const AssignmentSchema = z
   .strictObject({
     band: z
       .string()
-      .regex(/^\d{1,2}-\d{1,2}$/, 'band must be "v\'-v\'\'" (upper-lower), e.g. "1-0"')
+      .regex(/^\d{1,2}-\d{1,2}$/, 'band must be "v\'-v\'\'" (upper-lower, each 0 to 99), e.g. "1-0"')
       .describe('v\'-v\'\' (upper-lower), e.g. "1-0", "2-0", "0-0" for pure rotation'),
     branch: z.enum(['P', 'Q', 'R']),
     j: z.number().int().min(0).max(400).describe("lower-state J (J'')"),

@@ -152,3 +152,12 @@ describe('predicted positions in the CLI table', () => {
     }
   });
 });
+
+describe('a band whose level is out of range', () => {
+  it('is told the range, not only the form it already has', async () => {
+    const lines = [{ position: 2143.27, assignment: { band: '100-0', branch: 'P', j: 1 } }];
+    const r = await app().inject({ method: 'POST', url: '/v1/fits', payload: { species: 'CO', lines } });
+    expect(r.statusCode).toBe(400);
+    expect(r.json().detail).toContain('0 to 99');
+  });
+});
