@@ -111,7 +111,8 @@ export function crossChecks(set: DunhamSet, eq: EquilibriumConstants, mu: MassVa
     });
   }
   const mw = pick(['1,0', '2,0']);
-  if (mw && eq.omega_e) {
+  // A Morse well exists only for ω_e x_e > 0 (Y20 < 0); with Y20 ≥ 0 the relations would give a depth ≤ 0 or ∞.
+  if (mw && eq.omega_e && (mw.x[1] as number) < 0) {
     const well = (x: readonly number[]) => (x[0] as number) ** 2 / (4 * -(x[1] as number));
     out.push({
       id: 'morse-well-depth',
