@@ -21,7 +21,7 @@ import { constantsFor, dunhamFromEntry } from '../src/species/library.js';
 import { parseSpecies } from '../src/species/parse.js';
 import { reducedMass } from '../src/species/reduced-mass.js';
 import { findPeaks } from '../src/spectra/peaks.js';
-import { syntheticScan } from '../test/helpers/scans.js';
+import { hotCoScan } from './hot-co-scan.js';
 import { largeSpectrum } from './large-spectrum.js';
 
 const iso = parseSpecies('CO');
@@ -172,22 +172,7 @@ for (const bands of [1, 3]) {
 }
 
 {
-  const scan = syntheticScan({
-    isotopologues: [{ species: 'CO', abundance: 1 }],
-    bands: [
-      { upper: 1, lower: 0, strength: 1 },
-      { upper: 2, lower: 1, strength: 2 },
-      { upper: 3, lower: 2, strength: 3 },
-    ],
-    temperature: 1500,
-    offset: 0.1,
-    scalePpm: 20,
-    sigma: 0.002,
-    missing: 0.1,
-    spurious: 0.25,
-    detection: 3e-4,
-    seed: 3,
-  });
+  const scan = hotCoScan();
   const co = parseSpecies('CO');
   const t = time(() => void analyseLineList(scan.peaks, co, { temperature: 1500 }), 2000);
   const t2 = time(() => void analyseLineList(scan.peaks, undefined, { temperature: 1500 }), 2000);

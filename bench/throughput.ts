@@ -7,7 +7,7 @@
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { performance } from 'node:perf_hooks';
 import autocannon from 'autocannon';
-import { syntheticScan } from '../test/helpers/scans.js';
+import { hotCoScan } from './hot-co-scan.js';
 import { largeSpectrumBody } from './large-spectrum.js';
 import { startServer } from './server-process.js';
 
@@ -28,22 +28,7 @@ function fitBody(): string {
 
 /** CO at 1500 K: 1-0, 2-1 and 3-2 with 25 % spurious and 10 % lost lines, offset 0.1 cm⁻¹, unassigned. */
 function scanBody(): { body: string; peaks: number } {
-  const scan = syntheticScan({
-    isotopologues: [{ species: 'CO', abundance: 1 }],
-    bands: [
-      { upper: 1, lower: 0, strength: 1 },
-      { upper: 2, lower: 1, strength: 2 },
-      { upper: 3, lower: 2, strength: 3 },
-    ],
-    temperature: 1500,
-    offset: 0.1,
-    scalePpm: 20,
-    sigma: 0.002,
-    missing: 0.1,
-    spurious: 0.25,
-    detection: 3e-4,
-    seed: 3,
-  });
+  const scan = hotCoScan();
   const lines = scan.peaks.map((p) => ({ position: p.position, intensity: p.intensity }));
   return { body: JSON.stringify({ species: 'CO', lines, options: { temperature: 1500 } }), peaks: lines.length };
 }
