@@ -93,14 +93,95 @@ const MAX_MODEL_TO_NOISE = 2;
 /** Lines of a band below which its scatter is pooled with all bands. */
 const MIN_FOR_OWN_SCATTER = 8;
 
+/**
+ * The assignment as stages, top-down: prepare (window, candidates, seeds, free lines per source) → vote the offsets →
+ * iterate (predict, match, prune, fit, withdraw) until the assignment settles → a second pass seeded through fitted
+ * levels → notes on competitions → the final fit and the band summaries.
+ */
 export function assignAndFit(
   peaks: readonly PeakInput[],
   species: readonly { iso: Isotopologue; abundance: number }[],
   masses: ReadonlyMap<string, MassValue>,
   options: AssignOptions = {},
 ): AssignResult {
-  const warnings: Warning[] = [];
-  const notes = new Map<number, string>();
+  const ctx = prepareAssignment(peaks, species, masses, options);
+  if (ctx.cands.length === 0) {
+    ctx.warnings.push({
+      code: 'NO_BAND_IN_WINDOW',
+      message: `no band of ${speciesNames(ctx)} is predicted between ${ctx.lo.toFixed(1)} and ${ctx.hi.toFixed(1)} cm-1`,
+    });
+    return finishAssignment(ctx, new Map(), undefined);
+  }
+  const offsets = voteOffsets(
+    ctx.cands.filter((c, i) => ctx.seedable[i] && c.j <= START_J),
+    ctx.freeBySource,
+    ctx.maxOffset,
+    ctx.minLines,
+  );
+  ctx.warnings.push(...ambiguousOffsetWarnings(offsets));
+  const state: LoopState = { auto: new Map(), detailed: undefined, competitions: [], swept: false, banned: new Map() };
+  for (let pass = 0; pass < 2; pass++) {
+    iterateAssignment(ctx, offsets, state);
+    // Second pass, when many lines are left: weaker bands that share a level with a fitted band may seed too (a hot
+    // band whose lower level the fundamental fixed); their fitted B_v must still agree with the reference.
+    if (pass > 0 || !state.detailed || !widenSeeds(ctx, state.auto, state.detailed)) break;
+    state.swept = false;
+  }
+  noteCompetitions(ctx, state);
+  return finishAssignment(ctx, state.auto, offsets);
+}
+
+/** What every stage of the assignment reads: the lines, their window, the candidates and the free lines per source. */
+interface AssignContext {
+  readonly peaks: readonly PeakInput[];
+  readonly species: readonly { iso: Isotopologue; abundance: number }[];
+  readonly masses: ReadonlyMap<string, MassValue>;
+  readonly options: AssignOptions;
+  /** The observed window widened by 1 cm⁻¹ each side. */
+  readonly lo: number;
+  readonly hi: number;
+  /** Every line of every plausible band in the window, down to any intensity. */
+  readonly cands: readonly CandidateLine[];
+  /** Which candidates may seed a band (strong enough); the second pass widens it. */
+  readonly seedable: boolean[];
+  /** Per band, the median distance between neighbouring lines of one branch. */
+  readonly spacing: ReadonlyMap<string, number>;
+  /** Lines sent with an assignment, and their transition keys. */
+  readonly given: readonly { readonly index: number; readonly t: Transition }[];
+  readonly givenKeys: ReadonlySet<string>;
+  /** Lines sent without one, all and per source. */
+  readonly free: readonly ObservedPeak[];
+  readonly sources: readonly string[];
+  readonly freeBySource: ReadonlyMap<string, readonly ObservedPeak[]>;
+  /** Median σ of the lines that carry one. */
+  readonly typicalSigma: number | undefined;
+  readonly maxOffset: number;
+  readonly minLines: number;
+  readonly warnings: Warning[];
+  /** Why a line is unassigned or how a competition was decided, by line index. */
+  readonly notes: Map<number, string>;
+}
+
+/** What the iterations carry from one to the next. */
+interface LoopState {
+  auto: Map<number, CandidateLine>;
+  detailed: DetailedFit | undefined;
+  competitions: Competition[];
+  /** Whether the withdrawn pairs had their last chance against a settled model. */
+  swept: boolean;
+  /**
+   * Withdrawn pairs: tried again once the band has grown (a line off an early, short fit may suit the final one),
+   * but never a fourth time.
+   */
+  readonly banned: Map<string, { at: number; count: number }>;
+}
+
+function prepareAssignment(
+  peaks: readonly PeakInput[],
+  species: readonly { iso: Isotopologue; abundance: number }[],
+  masses: ReadonlyMap<string, MassValue>,
+  options: AssignOptions,
+): AssignContext {
   const positions = peaks.map((p) => p.position);
   const lo = Math.min(...positions) - 1;
   const hi = Math.max(...positions) + 1;
@@ -111,11 +192,37 @@ export function assignAndFit(
     minRelativeIntensity: 0,
     maxJ: options.maxJ ?? MAX_J,
   });
-  const seedable = seedFilter(cands, options.minRelativeIntensity ?? 1e-4);
-  const spacing = lineSpacings(cands);
   const given = peaks.flatMap((p, index) => (p.assignment ? [{ index, t: p.assignment }] : []));
-  const givenKeys = new Set(given.map((g) => transitionKey(g.t)));
-  const free: ObservedPeak[] = peaks.flatMap((p, index) =>
+  const free = freePeaks(peaks);
+  const sourceOf = (i: number) => peaks[i]?.source ?? '';
+  const withSigma = peaks.flatMap((p) => (p.uncertainty !== undefined ? [p.uncertainty] : []));
+  const sources = [...new Set(free.map((p) => sourceOf(p.index)))];
+  return {
+    peaks,
+    species,
+    masses,
+    options,
+    lo,
+    hi,
+    cands,
+    seedable: seedFilter(cands, options.minRelativeIntensity ?? 1e-4),
+    spacing: lineSpacings(cands),
+    given,
+    givenKeys: new Set(given.map((g) => transitionKey(g.t))),
+    free,
+    sources,
+    freeBySource: new Map(sources.map((s) => [s, free.filter((p) => sourceOf(p.index) === s)])),
+    typicalSigma: withSigma.length > 0 ? robustMedian(withSigma) : undefined,
+    maxOffset: options.maxOffset ?? 0.5,
+    minLines: options.minLinesPerBand ?? 4,
+    warnings: [],
+    notes: new Map(),
+  };
+}
+
+/** The lines sent without an assignment, as the matcher takes them. */
+function freePeaks(peaks: readonly PeakInput[]): ObservedPeak[] {
+  return peaks.flatMap((p, index) =>
     p.assignment
       ? []
       : [
@@ -127,361 +234,503 @@ export function assignAndFit(
           },
         ],
   );
-  const sourceOf = (i: number) => peaks[i]?.source ?? '';
-  const given_ = peaks.flatMap((p) => (p.uncertainty !== undefined ? [p.uncertainty] : []));
-  const typicalSigma = given_.length > 0 ? robustMedian(given_) : undefined;
-  const sources = [...new Set(free.map((p) => sourceOf(p.index)))];
-  const freeBySource = new Map(sources.map((s) => [s, free.filter((p) => sourceOf(p.index) === s)]));
+}
 
-  const lineInputs = (auto: ReadonlyMap<number, CandidateLine>): LineInput[] =>
-    peaks.map((p, index) => {
-      const base = {
-        position: p.position,
-        ...(p.uncertainty !== undefined ? { uncertainty: p.uncertainty } : {}),
-        ...(p.intensity !== undefined ? { intensity: p.intensity } : {}),
-        ...(p.source !== undefined ? { source: p.source } : {}),
-      };
-      if (p.assignment) return { ...base, assignment: p.assignment };
-      const c = auto.get(index);
-      if (!c) return base;
-      return {
-        ...base,
-        assignment: { species: c.species, band: c.band, branch: c.branch, j: c.j, source: 'auto' as const },
-      };
-    });
+const sourceOf = (ctx: AssignContext, i: number) => ctx.peaks[i]?.source ?? '';
+const speciesNames = (ctx: AssignContext) => ctx.species.map((s) => s.iso.formula).join(', ');
 
-  if (cands.length === 0) {
-    warnings.push({
-      code: 'NO_BAND_IN_WINDOW',
-      message: `no band of ${species.map((s) => s.iso.formula).join(', ')} is predicted between ${lo.toFixed(1)} and ${hi.toFixed(1)} cm-1`,
-    });
-    return finish(new Map());
-  }
+/** The line list as the fit takes it: given assignments as sent, automatic ones from the map. */
+function lineInputs(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>): LineInput[] {
+  return ctx.peaks.map((p, index) => {
+    const base = {
+      position: p.position,
+      ...(p.uncertainty !== undefined ? { uncertainty: p.uncertainty } : {}),
+      ...(p.intensity !== undefined ? { intensity: p.intensity } : {}),
+      ...(p.source !== undefined ? { source: p.source } : {}),
+    };
+    if (p.assignment) return { ...base, assignment: p.assignment };
+    const c = auto.get(index);
+    if (!c) return base;
+    return {
+      ...base,
+      assignment: { species: c.species, band: c.band, branch: c.branch, j: c.j, source: 'auto' as const },
+    };
+  });
+}
 
-  const maxOffset = options.maxOffset ?? 0.5;
-  const offsets = voteOffsets(
-    cands.filter((c, i) => seedable[i] && c.j <= START_J),
-    freeBySource,
-    maxOffset,
-    options.minLinesPerBand ?? 4,
+function ambiguousOffsetWarnings(offsets: OffsetVotes): Warning[] {
+  return [...offsets.bySource].flatMap(([s, o]) =>
+    o.ambiguous
+      ? [
+          {
+            code: 'OFFSET_AMBIGUOUS',
+            message: `the instrument offset${s ? ` of source "${s}"` : ''} is ambiguous: a second value explains nearly as many lines as ${o.offset.toFixed(3)} cm-1`,
+          },
+        ]
+      : [],
   );
-  for (const [s, o] of offsets.bySource) {
-    if (o.ambiguous)
-      warnings.push({
-        code: 'OFFSET_AMBIGUOUS',
-        message: `the instrument offset${s ? ` of source "${s}"` : ''} is ambiguous: a second value explains nearly as many lines as ${o.offset.toFixed(3)} cm-1`,
-      });
-  }
+}
 
-  // Withdrawn pairs: tried again once the band has grown (a line off an early, short fit may suit the final one),
-  // but never a fourth time.
-  const banned = new Map<string, { at: number; count: number }>();
-  const isBanned = (k: string, iter: number) => {
-    const b = banned.get(k);
-    return b !== undefined && (b.count >= 3 || iter - b.at < 4);
-  };
-  let auto = new Map<number, CandidateLine>();
-  let detailed: DetailedFit | undefined;
-  let competitions: Competition[] = [];
-  let swept = false;
-  for (let pass = 0; pass < 2; pass++) {
-    for (let iter = 0; iter < 60; iter++) {
-      const reach = new Map<string, number>();
-      for (const c of auto.values()) reach.set(bandKey(c), Math.max(reach.get(bandKey(c)) ?? 0, c.j));
-      for (const g of given) reach.set(bandKey(g.t), Math.max(reach.get(bandKey(g.t)) ?? 0, g.t.j));
-      const scale = intensityScales(auto, peaks);
-      const residuals = detailed
-        ? residualStatistics(detailed, auto, sourceOf, (i) => peaks[i]?.uncertainty)
-        : undefined;
-      const byKey = new Map<string, CandidateLine>();
-      const next = new Map<number, CandidateLine>();
-      competitions = [];
-      for (const src of sources) {
-        const preds: Prediction[] = [];
-        cands.forEach((c, ci) => {
-          const key = transitionKey(c);
-          if (givenKeys.has(key)) return;
-          const bk = bandKey(c);
-          // A band whose two levels are both fitted (through other bands) is predicted by the fit, matched or not.
-          const fitted = detailed?.predict(c);
-          const r = reach.get(bk) ?? (fitted ? START_J : undefined);
-          let prediction: Omit<Prediction, 'key'>;
-          if (fitted && r !== undefined && residuals) {
-            if (c.j > r + Math.max(GROWTH_J, Math.floor(r / 2))) return;
-            const st = residuals.of(bk, src);
-            // Where the model's own uncertainty exceeds the scatter of the lines (twice it), the data have run out
-            // for this model: it must not reach further until nearer lines have sharpened it.
-            // Beyond the reach, a few lines at a time; further only where the model is still as sharp as the data.
-            const noise = Math.max(st.scatter, st.sigmaFactor * (typicalSigma ?? 0));
-            if (c.j > r + GROWTH_J && noise > 0 && Math.sqrt(fitted.variance) > MAX_MODEL_TO_NOISE * noise) return;
-            // The fitted model's variance ignores the terms it could not yet determine: where it extrapolates, the
-            // reference prediction (with its offset) is a second opinion, and the tolerance spans the two.
-            const second = c.j > r ? Math.abs(fitted.value + st.shift - (c.position + offsets.of(bk, src).offset)) : 0;
-            const model = Math.hypot(K_FITTED * Math.sqrt(fitted.variance), second) + 1e-6;
-            // A tolerance wider than a quarter of the line spacing tells nothing.
-            if (model > 0.25 * (spacing.get(bk) ?? Number.POSITIVE_INFINITY)) return;
-            prediction = {
-              position: fitted.value + st.shift,
-              tolerance: Math.hypot(model, K_FITTED * st.scatter),
-              withSigma: { model, perSigma: K_FITTED * st.sigmaFactor },
-            };
-          } else {
-            if (!seedable[ci] || c.j > (r ?? START_J) + GROWTH_J) return;
-            const o = offsets.of(bk, src);
-            prediction = { position: c.position + o.offset, tolerance: o.tolerance * (1 + (c.j / 20) ** 2), tier: 1 };
-          }
-          const own = scale.get(bk);
-          const k = own ?? classScale(scale, c);
-          byKey.set(key, c);
-          preds.push({
-            key,
-            ...prediction,
-            ...(k !== undefined ? { intensity: k * c.intensity } : {}),
-            ...(own === undefined && k !== undefined ? { intensityRatioLimit: BAND_RATIO_LIMIT } : {}),
-          });
-        });
-        const m = matchLines(preds, freeBySource.get(src) ?? []);
-        for (const x of m.matches) {
-          if (isBanned(`${x.peak.index}|${x.prediction.key}`, iter)) continue;
-          next.set(x.peak.index, byKey.get(x.prediction.key) as CandidateLine);
-        }
-        competitions.push(...m.competitions);
-      }
-      resolveDoublets(next, peaks);
-      pruneThinBands(next, options.minLinesPerBand ?? 4);
-      pruneImplausibleBands(next, peaks);
-      if (next.size === 0 && given.length === 0) break;
-      let fit = tryFit(lineInputs(next));
-      // A fit that cannot be made (too few lines or rank deficient for some band): drop the thinnest band and retry.
-      while (!fit && next.size > 0) {
-        const thinnest = thinnestBand(next);
-        for (const [i, c] of next) if (bandKey(c) === thinnest) next.delete(i);
-        fit = tryFit(lineInputs(next));
-      }
-      if (!fit) break;
-      // Auto-assigned lines the fit rejects are withdrawn for good (a chance coincidence or a blend).
-      // Judged against the band's own robust scatter and the line's σ, not the fit's pooled scale: a line a correct
-      // model explains stays, however noisy its band.
-      let withdrawn = 0;
-      const stats = residualStatistics(fit, next, sourceOf, (i) => peaks[i]?.uncertainty);
-      for (const l of fit.result.lines) {
-        const c = next.get(l.index);
-        if (c && l.status === 'rejected' && !explained(fit, stats, c, l)) {
-          const bk = `${l.index}|${transitionKey(c)}`;
-          banned.set(bk, { at: iter, count: (banned.get(bk)?.count ?? 0) + 1 });
-          next.delete(l.index);
-          notes.set(
-            l.index,
-            `automatic assignment to ${transitionLabel(c)} withdrawn: ${l.reason ?? 'rejected by the fit'}`,
-          );
-          withdrawn++;
-        }
-      }
-      // A band whose fitted rotational constants stray from the reference ones by more than a real band can (1 %)
-      // was made of coincidences: all its automatic lines go.
-      for (const bk of strayBands(fit, next, species)) {
-        for (const [i, c] of next) {
-          if (bandKey(c) !== bk) continue;
-          const key = `${i}|${transitionKey(c)}`;
-          banned.set(key, { at: iter, count: 3 });
-          next.delete(i);
-          notes.set(
-            i,
-            `automatic assignment to ${transitionLabel(c)} withdrawn: its band's fitted constants are far from the reference ones (chance coincidences)`,
-          );
-          withdrawn++;
-        }
-      }
-      const same = withdrawn === 0 && sameAssignments(auto, next);
-      auto = next;
-      detailed = withdrawn > 0 ? (tryFit(lineInputs(auto)) ?? fit) : fit;
-      if (same) {
-        // Once settled, every pair withdrawn fewer than three times gets one more chance against the final model
-        // (it may have been withdrawn by an early fit that a wrong line had bent).
-        if (swept || banned.size === 0) break;
-        swept = true;
-        for (const b of banned.values()) b.at = Number.NEGATIVE_INFINITY;
-      }
+/**
+ * Predict, match, prune, fit and withdraw until the assignment settles (at most 60 rounds). Once settled, every pair
+ * withdrawn fewer than three times gets one more chance against the final model (it may have been withdrawn by an
+ * early fit that a wrong line had bent).
+ */
+function iterateAssignment(ctx: AssignContext, offsets: OffsetVotes, state: LoopState): void {
+  for (let iter = 0; iter < 60; iter++) {
+    const round = matchRound(ctx, offsets, state, iter);
+    state.competitions = round.competitions;
+    const next = round.next;
+    resolveDoublets(next, ctx.peaks);
+    pruneThinBands(next, ctx.minLines);
+    pruneImplausibleBands(next, ctx.peaks);
+    if (next.size === 0 && ctx.given.length === 0) break;
+    const fit = fitDroppingThinBands(ctx, next);
+    if (!fit) break;
+    const rejected = withdrawRejected(ctx, fit, next, state.banned, iter);
+    const stray = withdrawStrayBands(ctx, fit, next, state.banned, iter);
+    const withdrawn = rejected + stray;
+    const same = withdrawn === 0 && sameAssignments(state.auto, next);
+    state.auto = next;
+    state.detailed = withdrawn > 0 ? (tryFit(ctx, lineInputs(ctx, next)) ?? fit) : fit;
+    if (same) {
+      if (state.swept || state.banned.size === 0) break;
+      state.swept = true;
+      for (const b of state.banned.values()) b.at = Number.NEGATIVE_INFINITY;
     }
-    // Second pass, when many lines are left: weaker bands that share a level with a fitted band may seed too (a hot
-    // band whose lower level the fundamental fixed); their fitted B_v must still agree with the reference.
-    if (pass > 0 || !detailed) break;
-    const left = free.filter((p) => !auto.has(p.index)).length;
-    if (left < 8) break;
-    const fittedLevels = new Set(detailed.result.levels.map((l) => `${l.species}|${l.v}`));
-    let widened = 0;
-    cands.forEach((c, i) => {
-      if (seedable[i] || c.intensity < 1e-9) return;
-      if (fittedLevels.has(`${c.species}|${c.band.lower}`) || fittedLevels.has(`${c.species}|${c.band.upper}`)) {
-        seedable[i] = true;
-        widened++;
-      }
-    });
-    if (widened === 0) break;
-    swept = false;
   }
-  for (const c of competitions) {
-    if (auto.has(c.peak)) continue;
-    const winner = auto.get(c.winner);
+}
+
+const isBanned = (banned: LoopState['banned'], k: string, iter: number) => {
+  const b = banned.get(k);
+  return b !== undefined && (b.count >= 3 || iter - b.at < 4);
+};
+
+/** What the predictions of one round are made from: the last fit and what it has assigned. */
+interface RoundModel {
+  /** Highest J″ assigned per band. */
+  readonly reach: ReadonlyMap<string, number>;
+  /** Observed/predicted intensity per band (and per class under '#ir' and '#rot'). */
+  readonly scale: ReadonlyMap<string, number>;
+  readonly residuals: ResidualStatistics | undefined;
+  readonly detailed: DetailedFit | undefined;
+}
+
+/** One round of predictions matched one-to-one against the free lines of each source. */
+function matchRound(
+  ctx: AssignContext,
+  offsets: OffsetVotes,
+  state: LoopState,
+  iter: number,
+): { next: Map<number, CandidateLine>; competitions: Competition[] } {
+  const model: RoundModel = {
+    reach: bandReach(ctx, state.auto),
+    scale: intensityScales(state.auto, ctx.peaks),
+    residuals: state.detailed
+      ? residualStatistics(
+          state.detailed,
+          state.auto,
+          (i) => sourceOf(ctx, i),
+          (i) => ctx.peaks[i]?.uncertainty,
+        )
+      : undefined,
+    detailed: state.detailed,
+  };
+  const next = new Map<number, CandidateLine>();
+  const competitions: Competition[] = [];
+  for (const src of ctx.sources) {
+    const byKey = new Map<string, CandidateLine>();
+    const preds: Prediction[] = [];
+    ctx.cands.forEach((c, ci) => {
+      const p = predictionOf(ctx, offsets, model, c, ci, src);
+      if (!p) return;
+      byKey.set(p.key, c);
+      preds.push(p);
+    });
+    const m = matchLines(preds, ctx.freeBySource.get(src) ?? []);
+    for (const x of m.matches) {
+      if (isBanned(state.banned, `${x.peak.index}|${x.prediction.key}`, iter)) continue;
+      next.set(x.peak.index, byKey.get(x.prediction.key) as CandidateLine);
+    }
+    competitions.push(...m.competitions);
+  }
+  return { next, competitions };
+}
+
+/** Highest J″ assigned per band, automatic or given. */
+function bandReach(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>): Map<string, number> {
+  const reach = new Map<string, number>();
+  for (const c of auto.values()) reach.set(bandKey(c), Math.max(reach.get(bandKey(c)) ?? 0, c.j));
+  for (const g of ctx.given) reach.set(bandKey(g.t), Math.max(reach.get(bandKey(g.t)) ?? 0, g.t.j));
+  return reach;
+}
+
+/**
+ * Where to look for a candidate and how wide: from the fit when its band is fitted (or both its levels are, through
+ * other bands), else from the reference positions and the voted offset. Undefined when the candidate is given, out
+ * of reach, or too uncertain to tell.
+ */
+function predictionOf(
+  ctx: AssignContext,
+  offsets: OffsetVotes,
+  model: RoundModel,
+  c: CandidateLine,
+  ci: number,
+  src: string,
+): Prediction | undefined {
+  const key = transitionKey(c);
+  if (ctx.givenKeys.has(key)) return undefined;
+  const bk = bandKey(c);
+  // A band whose two levels are both fitted (through other bands) is predicted by the fit, matched or not.
+  const fitted = model.detailed?.predict(c);
+  const r = model.reach.get(bk) ?? (fitted ? START_J : undefined);
+  const placed =
+    fitted && r !== undefined && model.residuals
+      ? fittedPrediction(ctx, offsets, model.residuals, c, fitted, r, src)
+      : referencePrediction(ctx, offsets, c, ci, r, src);
+  if (!placed) return undefined;
+  const own = model.scale.get(bk);
+  const k = own ?? classScale(model.scale, c);
+  return {
+    key,
+    ...placed,
+    ...(k !== undefined ? { intensity: k * c.intensity } : {}),
+    ...(own === undefined && k !== undefined ? { intensityRatioLimit: BAND_RATIO_LIMIT } : {}),
+  };
+}
+
+type Placement = Omit<Prediction, 'key'>;
+
+/** A fitted band's prediction, grown a few lines past its reach; undefined where the model has run out. */
+function fittedPrediction(
+  ctx: AssignContext,
+  offsets: OffsetVotes,
+  residuals: ResidualStatistics,
+  c: CandidateLine,
+  fitted: { value: number; variance: number },
+  r: number,
+  src: string,
+): Placement | undefined {
+  if (c.j > r + Math.max(GROWTH_J, Math.floor(r / 2))) return undefined;
+  const bk = bandKey(c);
+  const st = residuals.of(bk, src);
+  // Where the model's own uncertainty exceeds the scatter of the lines (twice it), the data have run out
+  // for this model: it must not reach further until nearer lines have sharpened it.
+  // Beyond the reach, a few lines at a time; further only where the model is still as sharp as the data.
+  const noise = Math.max(st.scatter, st.sigmaFactor * (ctx.typicalSigma ?? 0));
+  if (c.j > r + GROWTH_J && noise > 0 && Math.sqrt(fitted.variance) > MAX_MODEL_TO_NOISE * noise) return undefined;
+  // The fitted model's variance ignores the terms it could not yet determine: where it extrapolates, the
+  // reference prediction (with its offset) is a second opinion, and the tolerance spans the two.
+  const second = c.j > r ? Math.abs(fitted.value + st.shift - (c.position + offsets.of(bk, src).offset)) : 0;
+  const model = Math.hypot(K_FITTED * Math.sqrt(fitted.variance), second) + 1e-6;
+  // A tolerance wider than a quarter of the line spacing tells nothing.
+  if (model > 0.25 * (ctx.spacing.get(bk) ?? Number.POSITIVE_INFINITY)) return undefined;
+  return {
+    position: fitted.value + st.shift,
+    tolerance: Math.hypot(model, K_FITTED * st.scatter),
+    withSigma: { model, perSigma: K_FITTED * st.sigmaFactor },
+  };
+}
+
+/** A seedable candidate of a band not yet fitted: its reference position shifted by the voted offset. */
+function referencePrediction(
+  ctx: AssignContext,
+  offsets: OffsetVotes,
+  c: CandidateLine,
+  ci: number,
+  r: number | undefined,
+  src: string,
+): Placement | undefined {
+  if (!ctx.seedable[ci] || c.j > (r ?? START_J) + GROWTH_J) return undefined;
+  const o = offsets.of(bandKey(c), src);
+  return { position: c.position + o.offset, tolerance: o.tolerance * (1 + (c.j / 20) ** 2), tier: 1 };
+}
+
+/** The fit of a round; when it cannot be made (too few lines or rank deficient), the thinnest band goes and again. */
+function fitDroppingThinBands(ctx: AssignContext, next: Map<number, CandidateLine>): DetailedFit | undefined {
+  let fit = tryFit(ctx, lineInputs(ctx, next));
+  while (!fit && next.size > 0) {
+    const thinnest = thinnestBand(next);
+    for (const [i, c] of next) if (bandKey(c) === thinnest) next.delete(i);
+    fit = tryFit(ctx, lineInputs(ctx, next));
+  }
+  return fit;
+}
+
+/**
+ * Auto-assigned lines the fit rejects are withdrawn (a chance coincidence or a blend). Judged against the band's own
+ * robust scatter and the line's σ, not the fit's pooled scale: a line a correct model explains stays, however noisy
+ * its band. Returns how many were withdrawn.
+ */
+function withdrawRejected(
+  ctx: AssignContext,
+  fit: DetailedFit,
+  next: Map<number, CandidateLine>,
+  banned: LoopState['banned'],
+  iter: number,
+): number {
+  let withdrawn = 0;
+  const stats = residualStatistics(
+    fit,
+    next,
+    (i) => sourceOf(ctx, i),
+    (i) => ctx.peaks[i]?.uncertainty,
+  );
+  for (const l of fit.result.lines) {
+    const c = next.get(l.index);
+    if (c && l.status === 'rejected' && !explained(ctx, fit, stats, c, l)) {
+      const bk = `${l.index}|${transitionKey(c)}`;
+      banned.set(bk, { at: iter, count: (banned.get(bk)?.count ?? 0) + 1 });
+      next.delete(l.index);
+      ctx.notes.set(
+        l.index,
+        `automatic assignment to ${transitionLabel(c)} withdrawn: ${l.reason ?? 'rejected by the fit'}`,
+      );
+      withdrawn++;
+    }
+  }
+  return withdrawn;
+}
+
+/**
+ * A band whose fitted rotational constants stray from the reference ones by more than a real band can (1 %) was made
+ * of coincidences: all its automatic lines go, for good. Returns how many were withdrawn.
+ */
+function withdrawStrayBands(
+  ctx: AssignContext,
+  fit: DetailedFit,
+  next: Map<number, CandidateLine>,
+  banned: LoopState['banned'],
+  iter: number,
+): number {
+  let withdrawn = 0;
+  for (const bk of strayBands(fit, next, ctx.species)) {
+    for (const [i, c] of next) {
+      if (bandKey(c) !== bk) continue;
+      banned.set(`${i}|${transitionKey(c)}`, { at: iter, count: 3 });
+      next.delete(i);
+      ctx.notes.set(
+        i,
+        `automatic assignment to ${transitionLabel(c)} withdrawn: its band's fitted constants are far from the reference ones (chance coincidences)`,
+      );
+      withdrawn++;
+    }
+  }
+  return withdrawn;
+}
+
+/**
+ * With many lines left, candidates of weaker bands that share a level with the fit may seed too. Returns whether any
+ * was added.
+ */
+function widenSeeds(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>, detailed: DetailedFit): boolean {
+  const left = ctx.free.filter((p) => !auto.has(p.index)).length;
+  if (left < 8) return false;
+  const fittedLevels = new Set(detailed.result.levels.map((l) => `${l.species}|${l.v}`));
+  let widened = 0;
+  ctx.cands.forEach((c, i) => {
+    if (ctx.seedable[i] || c.intensity < 1e-9) return;
+    if (fittedLevels.has(`${c.species}|${c.band.lower}`) || fittedLevels.has(`${c.species}|${c.band.upper}`)) {
+      ctx.seedable[i] = true;
+      widened++;
+    }
+  });
+  return widened > 0;
+}
+
+/** A note on each unassigned line that lost a competition, naming the winner. */
+function noteCompetitions(ctx: AssignContext, state: LoopState): void {
+  for (const c of state.competitions) {
+    if (state.auto.has(c.peak)) continue;
+    const winner = state.auto.get(c.winner);
     if (winner)
-      notes.set(
+      ctx.notes.set(
         c.peak,
         `competed with line ${c.winner} for ${transitionLabel(winner)}; residual and intensity decided for line ${c.winner}`,
       );
   }
-  return finish(auto, detailed);
+}
 
-  function explained(
-    fit: DetailedFit,
-    stats: ReturnType<typeof residualStatistics>,
-    c: CandidateLine,
-    l: { index: number; residual?: number },
-  ): boolean {
-    const p = fit.predict(c);
-    if (!p || l.residual === undefined) return false;
-    const st = stats.of(bandKey(c), sourceOf(l.index));
-    const model = K_FITTED * Math.sqrt(p.variance);
-    const sigma = peaks[l.index]?.uncertainty;
-    const tol =
-      sigma !== undefined
-        ? Math.hypot(model, K_FITTED * st.sigmaFactor * sigma)
-        : Math.hypot(model, K_FITTED * st.scatter);
-    return Math.abs(l.residual - st.shift) <= tol;
-  }
+/** Whether a line the fit rejected lies within the tolerance a correct model of its band leaves. */
+function explained(
+  ctx: AssignContext,
+  fit: DetailedFit,
+  stats: ResidualStatistics,
+  c: CandidateLine,
+  l: { index: number; residual?: number },
+): boolean {
+  const p = fit.predict(c);
+  if (!p || l.residual === undefined) return false;
+  const st = stats.of(bandKey(c), sourceOf(ctx, l.index));
+  const model = K_FITTED * Math.sqrt(p.variance);
+  const sigma = ctx.peaks[l.index]?.uncertainty;
+  const tol =
+    sigma !== undefined
+      ? Math.hypot(model, K_FITTED * st.sigmaFactor * sigma)
+      : Math.hypot(model, K_FITTED * st.scatter);
+  return Math.abs(l.residual - st.shift) <= tol;
+}
 
-  /** Why no line could be assigned, in the terms a caller can act on. */
-  function nothingAssigned(): ScienceError {
-    const min = options.minLinesPerBand ?? 4;
-    const names = species.map((s) => s.iso.formula).join(', ');
-    if (free.length < min) {
-      return new ScienceError(
-        'FIT_NO_ASSIGNED_LINES',
-        `${free.length} line(s) were sent without assignments: a band needs at least ${min} lines to be recognised and assigned automatically; send more lines, or assign them`,
-        { lines: free.length, minLinesPerBand: min },
-      );
-    }
-    if (cands.length === 0) {
-      return new ScienceError(
-        'FIT_NO_ASSIGNED_LINES',
-        `nothing matches the declared species: no band of ${names} is predicted between ${lo.toFixed(1)} and ${hi.toFixed(1)} cm-1, where the lines lie`,
-        { window: [lo, hi] },
-      );
-    }
-    const bestBand = [
-      ...groupBy(
-        cands.filter((c, i) => seedable[i] && c.j <= START_J),
-        bandKey,
-      ),
-    ]
-      .map(([k, list]) => ({ k, list, best: bestBandOffset(list, free, maxOffset) }))
-      .sort((a, b) => (b.best?.matches ?? 0) - (a.best?.matches ?? 0))[0];
+/** Why no line could be assigned, in the terms a caller can act on. */
+function nothingAssigned(ctx: AssignContext): ScienceError {
+  const min = ctx.minLines;
+  const names = speciesNames(ctx);
+  if (ctx.free.length < min) {
     return new ScienceError(
       'FIT_NO_ASSIGNED_LINES',
-      `nothing matches the declared species ${names}: ${
-        bestBand
-          ? `its best band in the window, ${bestBand.k.replace('|', ' ')}, finds only ${bestBand.best?.matches ?? 0} of its ${bestBand.list.length} strongest predicted lines at any offset within ±${maxOffset} cm-1, and a band needs ${min}`
-          : 'none of its bands has a strong line predicted where the lines lie'
-      }`,
-      { species: names },
+      `${ctx.free.length} line(s) were sent without assignments: a band needs at least ${min} lines to be recognised and assigned automatically; send more lines, or assign them`,
+      { lines: ctx.free.length, minLinesPerBand: min },
     );
   }
-
-  function tryFit(lines: LineInput[]): DetailedFit | undefined {
-    try {
-      // Few lines: B and D only, so that extrapolation to the next lines is not led astray by terms fitted to noise.
-      const n = lines.filter((l) => l.assignment).length;
-      const order = Math.min(options.fit?.maxCentrifugalOrder ?? 4, n < FEW_LINES ? 2 : 4);
-      return fitLineListDetailed(lines, masses, {
-        ...(options.fit ?? {}),
-        levelsOnly: true,
-        maxCentrifugalOrder: order,
-      });
-    } catch (e) {
-      if (
-        e instanceof ScienceError &&
-        (e.code === 'FIT_TOO_FEW_LINES' || e.code === 'FIT_RANK_DEFICIENT' || e.code === 'FIT_NO_ASSIGNED_LINES')
-      ) {
-        return undefined;
-      }
-      throw e;
-    }
+  if (ctx.cands.length === 0) {
+    return new ScienceError(
+      'FIT_NO_ASSIGNED_LINES',
+      `nothing matches the declared species: no band of ${names} is predicted between ${ctx.lo.toFixed(1)} and ${ctx.hi.toFixed(1)} cm-1, where the lines lie`,
+      { window: [ctx.lo, ctx.hi] },
+    );
   }
+  const bestBand = [
+    ...groupBy(
+      ctx.cands.filter((c, i) => ctx.seedable[i] && c.j <= START_J),
+      bandKey,
+    ),
+  ]
+    .map(([k, list]) => ({ k, list, best: bestBandOffset(list, ctx.free, ctx.maxOffset) }))
+    .sort((a, b) => (b.best?.matches ?? 0) - (a.best?.matches ?? 0))[0];
+  return new ScienceError(
+    'FIT_NO_ASSIGNED_LINES',
+    `nothing matches the declared species ${names}: ${
+      bestBand
+        ? `its best band in the window, ${bestBand.k.replace('|', ' ')}, finds only ${bestBand.best?.matches ?? 0} of its ${bestBand.list.length} strongest predicted lines at any offset within ±${ctx.maxOffset} cm-1, and a band needs ${min}`
+        : 'none of its bands has a strong line predicted where the lines lie'
+    }`,
+    { species: names },
+  );
+}
 
-  function finish(autoMap: ReadonlyMap<number, CandidateLine>, fitted?: DetailedFit): AssignResult {
-    const lines = lineInputs(autoMap);
-    void fitted;
-    if (!lines.some((l) => l.assignment)) throw nothingAssigned();
-    const fit = fitLineListDetailed(lines, masses, options.fit ?? {});
-    const unexplained = peaks.flatMap((p, i) => (p.assignment || autoMap.has(i) ? [] : [i]));
-    if (unexplained.length > 0) {
-      warnings.push({
-        code: 'LINES_UNEXPLAINED',
-        message: `${unexplained.length} line(s) are explained by no band of ${species.map((s) => s.iso.formula).join(', ')}; they stay unassigned and out of the fit`,
-        lines: unexplained,
-      });
-    }
-    const counts = new Map<string, BandSummary & { seeds: CandidateLine[] }>();
-    cands.forEach((c, ci) => {
-      const k = bandKey(c);
-      const b = counts.get(k) ?? {
-        species: c.species,
-        band: formatBand(c.band),
-        predicted: 0,
-        matched: 0,
-        seeds: [],
-      };
-      if (seedable[ci]) b.seeds.push(c);
-      counts.set(k, { ...b, predicted: b.predicted + (seedable[ci] ? 1 : 0) });
+/** The level fit of a round; undefined when too few lines or a rank deficiency leave it impossible. */
+function tryFit(ctx: AssignContext, lines: LineInput[]): DetailedFit | undefined {
+  try {
+    // Few lines: B and D only, so that extrapolation to the next lines is not led astray by terms fitted to noise.
+    const n = lines.filter((l) => l.assignment).length;
+    const order = Math.min(ctx.options.fit?.maxCentrifugalOrder ?? 4, n < FEW_LINES ? 2 : 4);
+    return fitLineListDetailed(lines, ctx.masses, {
+      ...(ctx.options.fit ?? {}),
+      levelsOnly: true,
+      maxCentrifugalOrder: order,
     });
-    for (const c of autoMap.values()) {
-      const b = counts.get(bandKey(c));
-      if (b) counts.set(bandKey(c), { ...b, matched: b.matched + 1 });
+  } catch (e) {
+    if (
+      e instanceof ScienceError &&
+      (e.code === 'FIT_TOO_FEW_LINES' || e.code === 'FIT_RANK_DEFICIENT' || e.code === 'FIT_NO_ASSIGNED_LINES')
+    ) {
+      return undefined;
     }
-    for (const g of given) {
-      const b = counts.get(bandKey(g.t));
-      if (b) counts.set(bandKey(g.t), { ...b, matched: b.matched + 1 });
-    }
-    const bands: BandSummary[] = [];
-    for (const [k, { seeds, ...b }] of counts) {
-      const strong = seeds.filter((c) => c.j <= START_J);
-      if (b.matched === 0 && b.predicted < 3) continue;
-      const used = sources.flatMap((s) => {
-        const o = offsets.perBand.get(`${k}#${s}`);
-        return o ? [{ ...(s ? { source: s } : {}), offset: round(o.offset), own: o.own }] : [];
-      });
-      let summary: BandSummary = { ...b, ...(b.matched > 0 && used.length > 0 ? { offsets: used } : {}) };
-      const min = options.minLinesPerBand ?? 4;
-      if (b.matched < min && strong.length >= 2 * min) {
-        // Searched wider than maxOffset (up to 4×, within half the line spacing): the answer may be to widen it.
-        const wide = Math.min(4 * maxOffset, 0.45 * (spacing.get(k) ?? 4 * maxOffset));
-        const best = bestBandOffset(strong, free, Math.max(maxOffset, wide));
-        summary = { ...summary, ...(best ? { bestOffset: best } : {}) };
-        warnings.push({
-          code: 'BAND_NOT_FOUND',
-          message: `${b.species} band ${b.band}: ${strong.length} strong lines are predicted in the window but ${b.matched === 0 ? 'none was' : `only ${b.matched} were`} matched${
-            best
-              ? `; its best offset is ${best.offset >= 0 ? '+' : ''}${best.offset.toFixed(3)} cm-1, which matches ${best.matches} of them${
-                  Math.abs(best.offset) > maxOffset && best.matches >= min
-                    ? ` (beyond the ±${maxOffset} cm-1 searched: send a larger "maxOffset")`
-                    : ''
-                }`
-              : ''
-          }${best && best.matches >= min ? '' : ' (the band is absent, too weak, or shifted further)'}`,
-        });
-      }
-      bands.push(summary);
-    }
-    const calibration = estimateCalibration(autoMap, peaks, species[0]?.iso.formula);
-    return {
-      fit,
-      lines,
-      notes,
-      ...(calibration ? { calibration } : {}),
-      bands,
-      unexplained,
-      warnings,
-    };
+    throw e;
   }
+}
+
+/** The final fit of the settled assignment (Dunham included), the unexplained lines, the bands and the calibration. */
+function finishAssignment(
+  ctx: AssignContext,
+  auto: ReadonlyMap<number, CandidateLine>,
+  offsets: OffsetVotes | undefined,
+): AssignResult {
+  const lines = lineInputs(ctx, auto);
+  if (!lines.some((l) => l.assignment)) throw nothingAssigned(ctx);
+  const fit = fitLineListDetailed(lines, ctx.masses, ctx.options.fit ?? {});
+  const unexplained = ctx.peaks.flatMap((p, i) => (p.assignment || auto.has(i) ? [] : [i]));
+  if (unexplained.length > 0) {
+    ctx.warnings.push({
+      code: 'LINES_UNEXPLAINED',
+      message: `${unexplained.length} line(s) are explained by no band of ${speciesNames(ctx)}; they stay unassigned and out of the fit`,
+      lines: unexplained,
+    });
+  }
+  const bands = bandSummaries(ctx, auto, offsets);
+  const calibration = estimateCalibration(auto, ctx.peaks, ctx.species[0]?.iso.formula);
+  return {
+    fit,
+    lines,
+    notes: ctx.notes,
+    ...(calibration ? { calibration } : {}),
+    bands,
+    unexplained,
+    warnings: ctx.warnings,
+  };
+}
+
+type BandCount = BandSummary & { seeds: CandidateLine[] };
+
+/** Per band: lines predicted (seedable) and matched, with the strong seeds kept for the not-found search. */
+function bandCounts(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>): Map<string, BandCount> {
+  const counts = new Map<string, BandCount>();
+  ctx.cands.forEach((c, ci) => {
+    const k = bandKey(c);
+    const b = counts.get(k) ?? {
+      species: c.species,
+      band: formatBand(c.band),
+      predicted: 0,
+      matched: 0,
+      seeds: [],
+    };
+    if (ctx.seedable[ci]) b.seeds.push(c);
+    counts.set(k, { ...b, predicted: b.predicted + (ctx.seedable[ci] ? 1 : 0) });
+  });
+  for (const c of auto.values()) {
+    const b = counts.get(bandKey(c));
+    if (b) counts.set(bandKey(c), { ...b, matched: b.matched + 1 });
+  }
+  for (const g of ctx.given) {
+    const b = counts.get(bandKey(g.t));
+    if (b) counts.set(bandKey(g.t), { ...b, matched: b.matched + 1 });
+  }
+  return counts;
+}
+
+/** A summary per band worth naming, and a BAND_NOT_FOUND warning for each band with strong lines but few matches. */
+function bandSummaries(
+  ctx: AssignContext,
+  auto: ReadonlyMap<number, CandidateLine>,
+  offsets: OffsetVotes | undefined,
+): BandSummary[] {
+  const bands: BandSummary[] = [];
+  for (const [k, { seeds, ...b }] of bandCounts(ctx, auto)) {
+    const strong = seeds.filter((c) => c.j <= START_J);
+    if (b.matched === 0 && b.predicted < 3) continue;
+    const used = ctx.sources.flatMap((s) => {
+      const o = offsets?.perBand.get(`${k}#${s}`);
+      return o ? [{ ...(s ? { source: s } : {}), offset: round(o.offset), own: o.own }] : [];
+    });
+    const summary: BandSummary = { ...b, ...(b.matched > 0 && used.length > 0 ? { offsets: used } : {}) };
+    if (b.matched < ctx.minLines && strong.length >= 2 * ctx.minLines)
+      bands.push(bandNotFound(ctx, k, summary, strong));
+    else bands.push(summary);
+  }
+  return bands;
+}
+
+/**
+ * A band with strong lines predicted but too few matched: its best offset, searched wider than maxOffset (up to 4×,
+ * within half the line spacing), since the answer may be to widen it; and a warning saying so.
+ */
+function bandNotFound(ctx: AssignContext, k: string, b: BandSummary, strong: readonly CandidateLine[]): BandSummary {
+  const { maxOffset, minLines: min } = ctx;
+  const wide = Math.min(4 * maxOffset, 0.45 * (ctx.spacing.get(k) ?? 4 * maxOffset));
+  const best = bestBandOffset(strong, ctx.free, Math.max(maxOffset, wide));
+  ctx.warnings.push({
+    code: 'BAND_NOT_FOUND',
+    message: `${b.species} band ${b.band}: ${strong.length} strong lines are predicted in the window but ${b.matched === 0 ? 'none was' : `only ${b.matched} were`} matched${
+      best
+        ? `; its best offset is ${best.offset >= 0 ? '+' : ''}${best.offset.toFixed(3)} cm-1, which matches ${best.matches} of them${
+            Math.abs(best.offset) > maxOffset && best.matches >= min
+              ? ` (beyond the ±${maxOffset} cm-1 searched: send a larger "maxOffset")`
+              : ''
+          }`
+        : ''
+    }${best && best.matches >= min ? '' : ' (the band is absent, too weak, or shifted further)'}`,
+  });
+  return { ...b, ...(best ? { bestOffset: best } : {}) };
 }
 
 const round = (x: number) => Math.round(x * 1e5) / 1e5;
@@ -508,6 +757,12 @@ interface OffsetChoice {
   readonly own: boolean;
 }
 
+interface OffsetVotes {
+  readonly bySource: Map<string, OffsetChoice & { ambiguous: boolean }>;
+  readonly perBand: Map<string, OffsetChoice>;
+  of(band: string, source: string): OffsetChoice;
+}
+
 /**
  * Offsets by voting, per source of lines: first one for the whole source from its strongest predictions; then each
  * band votes alone, and keeps its own offset when that explains clearly more of its strong lines than the
@@ -518,11 +773,7 @@ function voteOffsets(
   freeBySource: ReadonlyMap<string, readonly ObservedPeak[]>,
   maxOffset: number,
   minLines: number,
-): {
-  bySource: Map<string, OffsetChoice & { ambiguous: boolean }>;
-  perBand: Map<string, OffsetChoice>;
-  of(band: string, source: string): OffsetChoice;
-} {
+): OffsetVotes {
   const bySource = new Map<string, OffsetChoice & { ambiguous: boolean }>();
   const perBand = new Map<string, OffsetChoice>();
   const bands = new Map<string, CandidateLine[]>();
@@ -594,6 +845,10 @@ function bestBandOffset(
   };
 }
 
+interface ResidualStatistics {
+  of(band: string, source: string): { shift: number; scatter: number; sigmaFactor: number };
+}
+
 /**
  * From the fitted assignment, per band and source: the median residual (a source's calibration relative to the
  * fit) and the robust scatter about it, in cm⁻¹ for lines without σ and as a multiple of σ for lines with one.
@@ -605,7 +860,7 @@ function residualStatistics(
   auto: ReadonlyMap<number, CandidateLine>,
   sourceOf: (i: number) => string,
   sigmaOf: (i: number) => number | undefined,
-): { of(band: string, source: string): { shift: number; scatter: number; sigmaFactor: number } } {
+): ResidualStatistics {
   const groups = new Map<string, { r: number[]; z: number[] }>();
   const add = (k: string, r: number, sigma: number | undefined) => {
     const g = groups.get(k) ?? { r: [], z: [] };
