@@ -1,6 +1,8 @@
 /**
  * One-to-one matching of predicted to observed lines within per-prediction tolerances: every admissible pair is
- * scored, and pairs are taken greedily by ascending cost (a close, fast approximation of the minimum-cost
+ * scored by (Δ/tol)² + 2 ln tol (the negative log-likelihood of a Gaussian of width tol, so that of two
+ * predictions that explain a peak equally well in units of their tolerances the sharper one takes it), and pairs are
+ * taken greedily by ascending cost (a close, fast approximation of the minimum-cost
  * matching when tolerances are small against the line spacing). Where two peaks compete for one prediction,
  * or two predictions for one peak, the losers are recorded so that the response can say why.
  */
@@ -66,7 +68,9 @@ export function matchLines(
       const tol = toleranceFor(pr, pk);
       const r = (pk.position - pr.position) / tol;
       if (Math.abs(r) > 1) continue;
-      let cost = r * r + 100 * (pr.tier ?? 0);
+      // The negative log-likelihood of a Gaussian: a vague prediction (a long extrapolation) must not take a peak
+      // from a sharp one that explains it as well in units of its own tolerance.
+      let cost = r * r + 2 * Math.log(tol) + 100 * (pr.tier ?? 0);
       if (pr.intensity !== undefined && pk.intensity !== undefined && pr.intensity > 0) {
         if (!(pk.intensity > 0)) continue;
         const lr = Math.log(pk.intensity / pr.intensity);
