@@ -11,6 +11,7 @@ import { reportLevels } from './level-report.js';
 import { predictWithVariance, selectLevelModel } from './level-selection.js';
 import { readLines } from './observations.js';
 import { rejectOutliers } from './outliers.js';
+import { rescaleStatedUncertainties } from './stated-scale.js';
 import { constrainLevelModel } from './truncation.js';
 import type { DetailedFit, DunhamFit, FitOptions, FitResult, LineInput, Statistics, Warning } from './types.js';
 import { absoluteScaleWarnings, checkRepeats, qualityWarnings } from './warnings.js';
@@ -58,6 +59,7 @@ export function fitLineList(
  * The fit as stages, each in its own file with a typed result:
  *   1a readLines (observations.ts)       validate, build observations
  *   1b weighLines (weights.ts)           weights from the given σ or the robust scatter per band / source
+ *   1c rescaleStatedUncertainties (stated-scale.ts)  a-posteriori: groups whose stated σ disagree get their own scale
  *   2  selectLevelModel (level-selection.ts)  centrifugal terms by the term test
  *   3  rejectOutliers (outliers.ts)      studentised residuals, re-admission
  *   4  reportLevels (level-report.ts)    lines, bands, levels, parameters, covariance
@@ -87,9 +89,17 @@ export function fitLineListDetailed(
         'absolute uncertainties were asked for but no line has an uncertainty: the covariance is scaled a posteriori',
     });
   }
-  const observations = weighted.observations;
+  const firstLevel = selectLevelModel(weighted.observations, maxOrder, mode, alpha);
+  const stated =
+    mode === 'a-posteriori'
+      ? rescaleStatedUncertainties(input, weighted.observations, { maxOrder, termSignificance: alpha }, firstLevel)
+      : undefined;
+  if (stated) warnings.push(...stated.warnings);
+  const observations = stated?.observations ?? weighted.observations;
+  const initialLevel =
+    observations === weighted.observations ? firstLevel : selectLevelModel(observations, maxOrder, mode, alpha);
 
-  const outliers = rejectOutliers(observations, selectLevelModel(observations, maxOrder, mode, alpha), {
+  const outliers = rejectOutliers(observations, initialLevel, {
     maxOrder,
     mode,
     termSignificance: alpha,
@@ -242,7 +252,11 @@ export function fitLineListDetailed(
       });
     },
     lineSigma(tr, own) {
-      const sigma = own?.uncertainty ?? weighted.sigmaFor(tr.species, formatBand(tr.band), own?.source);
+      const band = formatBand(tr.band);
+      const sigma =
+        own?.uncertainty !== undefined
+          ? own.uncertainty * (stated?.factorFor(tr.species, band, own.uncertainty, own.source) ?? 1)
+          : weighted.sigmaFor(tr.species, band, own?.source);
       return sigma * Math.sqrt(scale);
     },
   };

@@ -173,7 +173,7 @@ const CLIPPED_VARIANCE = 0.97334;
  * the clipped estimators of Huber, Robust Statistics, 1981, ch. 5). When more than half the residuals vanish
  * (rounded or computed positions) the MAD is 0 and the plain rms is used.
  */
-function scatterOf(e: readonly number[]): number {
+export function scatterOf(e: readonly number[]): number {
   const mad = robustSigma(e);
   const rms = (xs: readonly number[]) => Math.sqrt(xs.reduce((a, x) => a + x * x, 0) / Math.max(xs.length, 1));
   if (!(mad > 0 && Number.isFinite(mad))) {

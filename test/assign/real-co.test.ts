@@ -30,6 +30,7 @@ function shares(lines: readonly DbLine[], withUncertainty: boolean) {
   let correct = 0;
   let wrong = 0;
   let unassigned = 0;
+  let fitted = 0;
   const misses: string[] = [];
   a.result.lines.forEach((r, i) => {
     const l = lines[i] as DbLine;
@@ -37,13 +38,16 @@ function shares(lines: readonly DbLine[], withUncertainty: boolean) {
     if (!t) {
       unassigned++;
       misses.push(`${l.band} ${l.branch}(${l.j}) unassigned`);
-    } else if (t.band === l.band && t.branch === l.branch && t.j === l.j) correct++;
-    else {
+    } else if (t.band === l.band && t.branch === l.branch && t.j === l.j) {
+      correct++;
+      if (r.status === 'fitted') fitted++;
+      else misses.push(`${l.band} ${l.branch}(${l.j}) ${r.status}: ${r.reason ?? ''}`);
+    } else {
       wrong++;
       misses.push(`${l.band} ${l.branch}(${l.j}) as ${t.band} ${t.branch}(${t.j})`);
     }
   });
-  return { a, peaks, n: lines.length, correct, wrong, unassigned, misses };
+  return { a, peaks, n: lines.length, correct, fitted, wrong, unassigned, misses };
 }
 
 describe('real CO database lines sent without assignments', () => {
@@ -72,12 +76,16 @@ describe('real CO database lines sent without assignments', () => {
     expect(s.correct, s.misses.join('; ')).toBe(s.n);
   });
 
-  it('all 494 lines (0-0 to J = 80, 1-0, 2-0, 3-0, 2-1): ≥ 98 % as published, none wrong', () => {
-    // Measured: 482 of 494 fitted with the published label, 10 more carry it but are rejected by the final fit
-    // (3-0 lines whose database σ of 1e-5 is below the band's scatter), 2 near the 3-0 band head unassigned.
+  it('all 494 lines (0-0 to J = 80, 1-0, 2-0, 3-0, 2-1): ≥ 99 % as published and kept by the fit, none wrong', () => {
+    // Measured: 491 of 494 fitted with the published label (99.4 %); 2-0 R(19) carries it but is rejected (its
+    // residual, 2e-6 cm⁻¹ with σ 1e-6, sits where the database's 2-0 R branch bends away from any smooth model);
+    // 3-0 R(34) and R(40) stay unassigned: they lie 8e-5 and 1.3e-4 cm⁻¹ from where the band's fit puts them,
+    // 8 and 13 times their stated σ of 1e-5, while their neighbours fit to 1e-5. Before the stated σ were judged
+    // per group (src/fit/stated-scale.ts) 482 were fitted: ten 3-0 lines were rejected against the list's pooled
+    // scale, which the fundamental's hundredfold overstated σ set.
     const s = shares(fixture.lines, true);
     expect(s.wrong, s.misses.join('; ')).toBe(0);
-    expect(s.correct / s.n, s.misses.join('; ')).toBeGreaterThanOrEqual(0.98);
+    expect(s.fitted / s.n, s.misses.join('; ')).toBeGreaterThanOrEqual(0.99);
     // The pure rotational lines (band 0-0, 3.8–300 cm⁻¹) are assigned together with the infrared bands.
     const rot = s.a.result.lines.filter((l) => l.assignment?.band === '0-0').length;
     expect(rot).toBe(fixture.lines.filter((l) => l.band === '0-0').length);

@@ -1,0 +1,178 @@
+import type { Observation } from '../models/linear-model.js';
+import { formatBand } from '../models/transitions.js';
+import { fDistributionSurvival } from '../stats/distributions.js';
+import { robustSigma } from '../stats/robust.js';
+import { type LevelSelection, selectLevelModel } from './level-selection.js';
+import type { LineInput, Warning } from './types.js';
+import { MIN_SCATTER_GROUP } from './weights.js';
+
+/** A group of lines with stated uncertainties whose scatter disagrees with the rest, and the factor applied. */
+export interface StatedScaleGroup {
+  /** The source label, or "species band, σ = …" (lines of one band stating one σ: one measurement, as a rule). */
+  readonly group: string;
+  readonly lines: number;
+  /** Robust scale of residual/σ in the group (1 = the stated σ describe the scatter). */
+  readonly factor: number;
+}
+
+export interface StatedScale {
+  readonly observations: readonly Observation[];
+  readonly groups: readonly StatedScaleGroup[];
+  /** The factor by which the stated σ of a line of this group was multiplied (1 when none was). */
+  factorFor(species: string, band: string, sigma: number, source?: string): number;
+  readonly warnings: readonly Warning[];
+}
+
+/**
+ * Two-sided p below which a group's scale counts as different from the rest: a variance ratio this far out happens
+ * by chance once in a thousand groups, so lines whose stated σ do describe their scatter keep them.
+ */
+const DIFFERENT = 1e-3;
+const ROUNDS = 2;
+/** Residuals beyond this many of the group's scale stay out of the next estimating fit. */
+const GROSS = 5;
+/** Key of the pooled scale of the lines in no differing group. */
+const REST = 'rest';
+
+const groupKey = (o: Observation, line: LineInput | undefined): string =>
+  line?.source !== undefined
+    ? `source|${line.source}`
+    : `band|${o.species}|${o.upperV}-${o.lowerV}|${(line?.uncertainty ?? 0).toPrecision(3)}`;
+
+/**
+ * Stage 1c (a-posteriori mode only), stated uncertainties that disagree between groups. With one scale s² for the
+ * whole list, a list that mixes lines whose σ overstate their scatter a hundredfold with lines whose σ are right
+ * (a database list: computed positions stated to 1e-4 beside measured ones stated to 1e-5) makes the second kind
+ * look like 5–9σ outliers, and weighs them wrongly. Each group of ≥ MIN_SCATTER_GROUP lines — the line's source
+ * when it names one, else its band and stated σ — whose scale of leverage-corrected residual/σ (`differingGroups`)
+ * differs from that of the other lines with p < 0.001 (F test of the variance ratio) gets its σ multiplied by it; the
+ * remaining lines are multiplied by their pooled scale, so that s² ≈ 1 and every line is judged against its own
+ * group's scatter (variance components per group; Helmert's estimation, common practice in geodesy). Two rounds,
+ * gross errors (> 5 of the group's scale) left out of the estimating fits. Lists where every group agrees are
+ * left exactly as they were. Lines without a stated σ (already estimated per group) are not touched.
+ */
+export function rescaleStatedUncertainties(
+  input: readonly LineInput[],
+  observations: readonly Observation[],
+  fit: { readonly maxOrder: number; readonly termSignificance: number },
+  /** The level fit of `observations` as weighted (the first round reuses it: lists whose groups agree cost nothing). */
+  first: LevelSelection,
+): StatedScale {
+  const stated = (o: Observation) => input[o.index]?.uncertainty !== undefined;
+  const none: StatedScale = { observations, groups: [], factorFor: () => 1, warnings: [] };
+  if (observations.filter(stated).length < 2 * MIN_SCATTER_GROUP) return none;
+  let factors = new Map<string, number>();
+  let gross = new Set<number>();
+  let obs = observations;
+  for (let round = 0; round < ROUNDS; round++) {
+    let level = first;
+    if (round > 0)
+      try {
+        const sample = gross.size > 0 ? obs.filter((o) => !gross.has(o.index)) : obs;
+        level = selectLevelModel(sample, fit.maxOrder, 'a-posteriori', fit.termSignificance);
+      } catch {
+        break;
+      }
+    const f = level.fit;
+    if (f.degreesOfFreedom < 2 || f.leverages.length !== f.observations.length) break;
+    const byGroup = new Map<string, number[]>();
+    f.observations.forEach((o, i) => {
+      if (!stated(o)) return;
+      const h = Math.min(f.leverages[i] as number, 1 - 1e-9);
+      // Scaled by the stated σ only (the factor of this round is what is being estimated).
+      const z = (f.residuals[i] as number) / (input[o.index]?.uncertainty as number) / Math.sqrt(1 - h);
+      const k = groupKey(o, input[o.index]);
+      const list = byGroup.get(k) ?? [];
+      list.push(z);
+      byGroup.set(k, list);
+    });
+    const next = differingGroups(byGroup);
+    if (next.size === 0) break;
+    factors = next;
+    gross = grossLines(f.observations, byGroup, (o) => (stated(o) ? groupKey(o, input[o.index]) : undefined));
+    const factorOf = (o: Observation) => factors.get(groupKey(o, input[o.index])) ?? (factors.get(REST) as number);
+    obs = observations.map((o) => (stated(o) ? { ...o, weight: o.weight / factorOf(o) ** 2 } : o));
+  }
+  if (factors.size === 0) return none;
+  const groups: StatedScaleGroup[] = [];
+  for (const [k, factor] of factors) {
+    if (k === REST) continue;
+    const lines = observations.filter((o) => stated(o) && groupKey(o, input[o.index]) === k).length;
+    groups.push({ group: labelOf(k), lines, factor });
+  }
+  return {
+    observations: obs,
+    groups,
+    factorFor(species, band, sigma, source) {
+      const key = source !== undefined ? `source|${source}` : `band|${species}|${band}|${sigma.toPrecision(3)}`;
+      return factors.get(key) ?? (factors.get(REST) as number);
+    },
+    warnings: [
+      {
+        code: 'UNCERTAINTY_RESCALED',
+        message: `the stated uncertainties of some groups of lines disagree with their scatter and with the other lines (F test, p < ${DIFFERENT}); the σ of each such group were multiplied by its own scale (rms of residual/σ, gross errors out) and those of the other lines by their pooled scale ${(factors.get(REST) as number).toPrecision(2)}, so that every line is weighed and judged against the scatter of its own group: ${groups.map((g) => `${g.group} × ${g.factor.toPrecision(2)} (${g.lines} lines)`).join(', ')}`,
+      },
+    ],
+  };
+}
+
+/**
+ * The groups whose scale differs from the other lines' (p < DIFFERENT, two-sided F test of the variance ratio), each
+ * with its scale, and under REST the pooled scale of all other lines; empty when no group stands out. A group's scale is the rms of its
+ * residual/σ within GROSS robust-σ (gross errors out, heavy tails of real measurements in: judging a group against
+ * its clipped core would make its honest 3–4σ lines outliers).
+ */
+function differingGroups(byGroup: ReadonlyMap<string, readonly number[]>): Map<string, number> {
+  const core = (z: readonly number[]) => {
+    const r = robustSigma(z);
+    return r > 0 ? z.filter((x) => Math.abs(x) <= GROSS * r) : z;
+  };
+  const meanSq = (z: readonly number[]) => z.reduce((a, x) => a + x * x, 0) / Math.max(z.length, 1);
+  const cores = new Map([...byGroup].map(([k, z]) => [k, core(z)]));
+  const out = new Map<string, number>();
+  for (const [k, z] of cores) {
+    if (z.length < MIN_SCATTER_GROUP) continue;
+    const others = [...cores].filter(([g]) => g !== k).flatMap(([, x]) => x);
+    if (others.length < MIN_SCATTER_GROUP) continue;
+    const ratio = meanSq(z) / meanSq(others);
+    const p =
+      2 *
+      Math.min(
+        fDistributionSurvival(ratio, z.length, others.length),
+        fDistributionSurvival(1 / ratio, others.length, z.length),
+      );
+    if (p < DIFFERENT) out.set(k, Math.sqrt(meanSq(z)));
+  }
+  if (out.size === 0) return out;
+  const rest = [...cores].filter(([g]) => !out.has(g)).flatMap(([, x]) => x);
+  out.set(REST, rest.length > 0 && meanSq(rest) > 0 ? Math.sqrt(meanSq(rest)) : 1);
+  return out;
+}
+
+/** Lines beyond GROSS robust-σ of their own group, in the order of the fit's observations (by index). */
+function grossLines(
+  obs: readonly Observation[],
+  byGroup: ReadonlyMap<string, readonly number[]>,
+  keyOf: (o: Observation) => string | undefined,
+): Set<number> {
+  const scale = new Map([...byGroup].map(([k, z]) => [k, robustSigma(z)]));
+  const seen = new Map<string, number>();
+  const out = new Set<number>();
+  for (const o of obs) {
+    const k = keyOf(o);
+    if (k === undefined) continue;
+    const i = seen.get(k) ?? 0;
+    seen.set(k, i + 1);
+    const z = (byGroup.get(k) as readonly number[])[i] as number;
+    const r = scale.get(k) as number;
+    if (r > 0 && Math.abs(z) > GROSS * r) out.add(o.index);
+  }
+  return out;
+}
+
+function labelOf(key: string): string {
+  const [kind, a, b, c] = key.split('|') as [string, string, string?, string?];
+  if (kind === 'source') return a;
+  const [u, l] = (b as string).split('-').map(Number) as [number, number];
+  return `${a} ${formatBand({ upper: u, lower: l })}, σ = ${c} cm-1`;
+}
