@@ -282,7 +282,7 @@ function iterateAssignment(ctx: AssignContext, offsets: OffsetVotes, state: Loop
     state.competitions = round.competitions;
     const next = round.next;
     resolveDoublets(next, ctx.peaks);
-    pruneThinBands(next, ctx.minLines);
+    pruneThinBands(next, ctx.minLines, ctx.given);
     pruneImplausibleBands(next, ctx.peaks);
     if (next.size === 0 && ctx.given.length === 0) break;
     const fit = fitDroppingThinBands(ctx, next);
@@ -1074,9 +1074,18 @@ function thinnestBand(auto: ReadonlyMap<number, CandidateLine>): string {
   return [...count].sort((a, b) => a[1] - b[1])[0]?.[0] ?? '';
 }
 
-/** Bands with fewer automatically assigned lines than the minimum are more likely coincidences than bands. */
-function pruneThinBands(auto: Map<number, CandidateLine>, min: number): void {
+/**
+ * Bands with fewer lines than the minimum are more likely coincidences than bands. The caller's given assignments
+ * count: a band anchored by given lines is no coincidence, and its first automatic lines (R(4)–R(6) past given
+ * J ≤ 3) are how it grows.
+ */
+function pruneThinBands(
+  auto: Map<number, CandidateLine>,
+  min: number,
+  given: readonly { readonly t: Parameters<typeof bandKey>[0] }[],
+): void {
   const count = new Map<string, number>();
+  for (const g of given) count.set(bandKey(g.t), (count.get(bandKey(g.t)) ?? 0) + 1);
   for (const c of auto.values()) count.set(bandKey(c), (count.get(bandKey(c)) ?? 0) + 1);
   for (const [i, c] of auto) if ((count.get(bandKey(c)) ?? 0) < min) auto.delete(i);
 }
