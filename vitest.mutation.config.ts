@@ -9,7 +9,7 @@ import { defineConfig } from 'vitest/config';
 export default defineConfig({
   test: {
     include: [
-      'test/{constants,derive,species,stats,linalg,helpers}/**/*.test.ts',
+      'test/{constants,derive,species,stats,linalg,helpers,models}/**/*.test.ts',
       'test/fit/{fit-lines,higher-terms,term-level,isotopologues}.test.ts',
       'test/qa/temperature.test.ts',
     ],
