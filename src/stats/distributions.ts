@@ -77,11 +77,14 @@ export function chiSquareSurvival(x: number, k: number): number {
 
 function upperGammaRegularised(a: number, x: number): number {
   const lnFront = -x + a * Math.log(x) - logGamma(a);
+  // Near x = a both expansions need about 8.6·√a terms to reach double precision (the series' terms fall as
+  // exp(−n²/2a)): a fixed cap of 1000 left χ² tails unconverged from about 60 000 degrees of freedom on.
+  const cap = 1000 + Math.ceil(10 * Math.sqrt(a));
   if (x < a + 1) {
     // Series for P(a, x).
     let sum = 1 / a;
     let term = sum;
-    for (let n = 1; n < 1000; n++) {
+    for (let n = 1; n < cap; n++) {
       term *= x / (a + n);
       sum += term;
       if (Math.abs(term) < Math.abs(sum) * 1e-16) break;
@@ -94,7 +97,7 @@ function upperGammaRegularised(a: number, x: number): number {
   let c = 1 / tiny;
   let d = 1 / b;
   let h = d;
-  for (let i = 1; i < 1000; i++) {
+  for (let i = 1; i < cap; i++) {
     const an = -i * (i - a);
     b += 2;
     d = an * d + b;

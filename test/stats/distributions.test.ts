@@ -121,6 +121,21 @@ describe('special functions against SciPy', () => {
     expect(rel(f(), v)).toBeLessThan(1e-10);
   });
 
+  // χ² of a whole fit of a long list (up to 150 000 lines are accepted): near x = k the expansions need about
+  // 8.6·√(k/2) terms, and a fixed cap of 1000 left P(χ² > 150 000; k = 150 000) wrong in its fourth digit
+  // (0.49965 for 0.49951) and P(χ² > 2 000 000; k = 2 000 000) at 0.66 for 0.4999.
+  // SciPy 1.17.1 scipy.stats.chi2.sf; tolerance 1e-9 relative (1e-8 at two million degrees of freedom, where
+  // ln Γ(a) ≈ 2.7e7 leaves about 1e-9 of its relative precision in the exponent).
+  it.each([
+    [150000, 150000, 0.49951442288376924, 1e-9],
+    [151000, 150000, 0.034157993013351075, 1e-9],
+    [149000, 150000, 0.9662700043763771, 1e-9],
+    [1999999, 2000000, 0.5000664904042621, 1e-8],
+    [2000001, 2000000, 0.4996675481737283, 1e-8],
+  ])('P(χ² > %f; k = %i) = %f for the χ² of a long list', (x, k, v, tol) => {
+    expect(rel(chiSquareSurvival(x, k), v)).toBeLessThan(tol);
+  });
+
   it('P(χ² > x) = 1 for x ≤ 0', () => {
     expect(chiSquareSurvival(0, 3)).toBe(1);
     expect(chiSquareSurvival(-2, 3)).toBe(1);
