@@ -134,6 +134,20 @@ describe('species strings: what is written and what is said when refused', () =>
     expect(isotopologuesOf(parseSpecies('CO')).every((i) => i.atoms.every((a) => a.explicitIsotope))).toBe(true);
   });
 
+  it('spaces around the string are ignored; a mass number may be repeated on D and T; one leading hyphen at most', () => {
+    expect(parseSpecies('  CO\t').formula).toBe('12C-16O');
+    expect(parseSpecies('2D35Cl').formula).toBe('2H-35Cl');
+    expect(parseSpecies('3T-1H').formula).toBe('3H-1H');
+    expect(parseSpecies('13C-16O').formula).toBe('13C-16O');
+    expect(() => parseSpecies('--CO')).toThrow('species "--CO" cannot be read at "--CO"');
+  });
+
+  it('the case hint reads the letters only: "H-CL" is one-case', () => {
+    expect(() => parseSpecies('H-CL')).toThrow(
+      'element "L" in "H-CL" is not in the mass table (element symbols are case-sensitive: write "NaCl", "SiO", "CS", not "NACL")',
+    );
+  });
+
   it('a 40-character string is read (and here refused as not diatomic); 41 characters are too long', () => {
     const code = (s: string) => {
       try {
@@ -146,6 +160,11 @@ describe('species strings: what is written and what is said when refused', () =>
     expect(code('H'.repeat(40))).toBe('SPECIES_NOT_DIATOMIC');
     expect(code('H'.repeat(41))).toBe('SPECIES_INVALID');
     expect(() => parseSpecies('H'.repeat(41))).toThrow(`species "${'H'.repeat(40)}" is empty or too long`);
+    try {
+      parseSpecies('H'.repeat(45));
+    } catch (e) {
+      expect((e as ScienceError).details).toEqual({ species: 'H'.repeat(40) });
+    }
     expect(code('   ')).toBe('SPECIES_INVALID');
   });
 
