@@ -142,6 +142,9 @@ interface AssignContext {
   readonly hi: number;
   /** Every line of every plausible band in the window, down to any intensity. */
   readonly cands: readonly CandidateLine[];
+  /** Per candidate: its transition key and its band key, made once. */
+  readonly candKeys: readonly string[];
+  readonly candBands: readonly string[];
   /** Which candidates may seed a band (strong enough); the second pass widens it. */
   readonly seedable: boolean[];
   /** Per band, the median distance between neighbouring lines of one branch. */
@@ -205,6 +208,8 @@ function prepareAssignment(
     lo,
     hi,
     cands,
+    candKeys: cands.map(transitionKey),
+    candBands: cands.map(bandKey),
     seedable: seedFilter(cands, options.minRelativeIntensity ?? 1e-4),
     spacing: lineSpacings(cands),
     given,
@@ -378,16 +383,16 @@ function predictionOf(
   ci: number,
   src: string,
 ): Prediction | undefined {
-  const key = transitionKey(c);
+  const key = ctx.candKeys[ci] as string;
   if (ctx.givenKeys.has(key)) return undefined;
-  const bk = bandKey(c);
+  const bk = ctx.candBands[ci] as string;
   // A band whose two levels are both fitted (through other bands) is predicted by the fit, matched or not.
   const fitted = model.detailed?.predict(c);
   const r = model.reach.get(bk) ?? (fitted ? START_J : undefined);
   const placed =
     fitted && r !== undefined && model.residuals
-      ? fittedPrediction(ctx, offsets, model.residuals, c, fitted, r, src)
-      : referencePrediction(ctx, offsets, c, ci, r, src);
+      ? fittedPrediction(ctx, offsets, model.residuals, c, bk, fitted, r, src)
+      : referencePrediction(ctx, offsets, c, ci, bk, r, src);
   if (!placed) return undefined;
   const own = model.scale.get(bk);
   const k = own ?? classScale(model.scale, c);
@@ -407,12 +412,12 @@ function fittedPrediction(
   offsets: OffsetVotes,
   residuals: ResidualStatistics,
   c: CandidateLine,
+  bk: string,
   fitted: { value: number; variance: number },
   r: number,
   src: string,
 ): Placement | undefined {
   if (c.j > r + Math.max(GROWTH_J, Math.floor(r / 2))) return undefined;
-  const bk = bandKey(c);
   const st = residuals.of(bk, src);
   // Where the model's own uncertainty exceeds the scatter of the lines (twice it), the data have run out
   // for this model: it must not reach further until nearer lines have sharpened it.
@@ -438,11 +443,12 @@ function referencePrediction(
   offsets: OffsetVotes,
   c: CandidateLine,
   ci: number,
+  bk: string,
   r: number | undefined,
   src: string,
 ): Placement | undefined {
   if (!ctx.seedable[ci] || c.j > (r ?? START_J) + GROWTH_J) return undefined;
-  const o = offsets.of(bandKey(c), src);
+  const o = offsets.of(bk, src);
   return { position: c.position + o.offset, tolerance: o.tolerance * (1 + (c.j / 20) ** 2), tier: 1 };
 }
 
@@ -903,11 +909,18 @@ function residualStatistics(
       1,
       g && g.z.length >= MIN_FOR_OWN_SCATTER ? robustSigma(g.z) : pooled.z.length >= 3 ? robustSigma(pooled.z) : 1,
     );
+  // Asked once per candidate and round: each band's answer is computed once.
+  const known = new Map<string, { shift: number; scatter: number; sigmaFactor: number }>();
   return {
     of(band, source) {
       const k = `${band}#${source}`;
-      const g = groups.get(k);
-      return { shift: shiftOf.get(k) ?? 0, scatter: scatterOf(g), sigmaFactor: factorOf(g) };
+      let st = known.get(k);
+      if (!st) {
+        const g = groups.get(k);
+        st = { shift: shiftOf.get(k) ?? 0, scatter: scatterOf(g), sigmaFactor: factorOf(g) };
+        known.set(k, st);
+      }
+      return st;
     },
   };
 }

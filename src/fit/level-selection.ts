@@ -1,6 +1,6 @@
 import { ScienceError } from '../errors.js';
 import { levelModel, levelParameters, levelStructure } from '../models/level-model.js';
-import type { Observation } from '../models/linear-model.js';
+import type { Observation, Parameter } from '../models/linear-model.js';
 import { isRankDeficient, type RankDeficiency, type SolvedModel, solveModel, type UncertaintyMode } from './engine.js';
 import { termTest } from './term-test.js';
 
@@ -84,15 +84,27 @@ export function selectLevelModel(
 export function predictWithVariance(fit: SolvedModel, o: Observation): { value: number; variance: number } | undefined {
   const params = fit.model.parameters;
   const p = params.length;
-  const g = params.map((par) => fit.model.coefficient(par, o));
+  // Only the parameters of the line's two levels have a coefficient: the sums run over those, in the order of the
+  // full sums (the terms left out are zeros, so the bits are the same).
+  const nz: number[] = [];
+  const g: number[] = [];
+  for (let i = 0; i < p; i++) {
+    const c = fit.model.coefficient(params[i] as Parameter, o);
+    if (c !== 0) {
+      nz.push(i);
+      g.push(c);
+    }
+  }
   // A line of a level the fit no longer holds (all its lines rejected) has no prediction.
-  const touches = g.some((c) => c !== 0);
-  if (!touches && p > 0) return undefined;
+  if (nz.length === 0 && p > 0) return undefined;
   let value = 0;
   let variance = 0;
-  for (let i = 0; i < p; i++) {
-    value += (g[i] as number) * (fit.values[i] as number);
-    for (let j = 0; j < p; j++) variance += (g[i] as number) * (fit.covariance[i * p + j] as number) * (g[j] as number);
+  for (let a = 0; a < nz.length; a++) {
+    const i = nz[a] as number;
+    const gi = g[a] as number;
+    value += gi * (fit.values[i] as number);
+    for (let b = 0; b < nz.length; b++)
+      variance += gi * (fit.covariance[i * p + (nz[b] as number)] as number) * (g[b] as number);
   }
   return { value, variance: Math.max(variance, 0) };
 }

@@ -64,6 +64,8 @@ export function dunhamModel(parameters: readonly Parameter[], reducedMass?: Read
       }
       return c;
     },
+    // A mass-reduced column depends on the reduced masses this model was given: not shared.
+    columnKey: (p) => (p.kind === 'Y' ? `dunham|${p.key}` : undefined),
   };
 }
 
@@ -74,18 +76,33 @@ export function dunhamEnergy(y: ReadonlyMap<string, number>, v: number, j: numbe
 
 /**
  * E(v, J) as a function of a snapshot of the coefficients, with their keys parsed once (prediction loops call it
- * thousands of times).
+ * thousands of times). Y_kl (v+½)^k is kept per v and [J(J+1)]^l computed once per power, so a call costs one
+ * power per distinct l; the products and their sum are the same floating-point operations in the same order as
+ * Σ Y_kl (v+½)^k [J(J+1)]^l term by term, hence the same bits.
  */
 export function compileDunham(y: ReadonlyMap<string, number>): (v: number, j: number) => number {
   const terms = [...y].map(([key, value]) => {
     const [k, l] = key.split(',').map(Number) as [number, number];
     return { k, l, value };
   });
+  const ls = Int32Array.from(terms, (t) => t.l);
+  const xp = new Float64Array(Math.max(0, ...ls) + 1);
+  const perV = new Map<number, Float64Array>();
+  const weights = (v: number): Float64Array => {
+    let w = perV.get(v);
+    if (!w) {
+      const a = v + 0.5;
+      w = Float64Array.from(terms, (t) => t.value * a ** t.k);
+      perV.set(v, w);
+    }
+    return w;
+  };
   const f = (v: number, j: number) => {
-    const a = v + 0.5;
+    const w = weights(v);
     const x = j * (j + 1);
+    for (let l = 0; l < xp.length; l++) xp[l] = x ** l;
     let e = 0;
-    for (const t of terms) e += t.value * a ** t.k * x ** t.l;
+    for (let i = 0; i < w.length; i++) e += (w[i] as number) * (xp[ls[i] as number] as number);
     return e;
   };
   return f;

@@ -117,5 +117,6 @@ export function levelModel(parameters: readonly Parameter[]): LinearModel {
       const xl = o.lowerJ * (o.lowerJ + 1);
       return (SIGN[l - 1] as number) * (up * xu ** l - lo * xl ** l);
     },
+    columnKey: (p) => `level|${p.key}`,
   };
 }

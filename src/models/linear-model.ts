@@ -38,6 +38,26 @@ export interface LinearModel {
   readonly parameters: readonly Parameter[];
   /** Coefficient of parameter `p` in the position of observation `o`. */
   coefficient(p: Parameter, o: Observation): number;
+  /**
+   * Set when a parameter's column depends on nothing but this key and the observations' levels (not on the model
+   * instance): trial models over the same observations then share the column instead of computing it again.
+   */
+  columnKey?(p: Parameter): string | undefined;
+}
+
+/**
+ * Columns already computed, per observation array (which is never changed once built): every trial model of a
+ * term selection, and the fits with priors, share them. Held weakly, so they go with the observations.
+ */
+const columns = new WeakMap<readonly Observation[], Map<string, Float64Array>>();
+
+function columnsOf(obs: readonly Observation[]): Map<string, Float64Array> {
+  let m = columns.get(obs);
+  if (!m) {
+    m = new Map();
+    columns.set(obs, m);
+  }
+  return m;
 }
 
 /** Column-major design matrix of a model over observations. */
@@ -45,9 +65,17 @@ export function buildDesign(model: LinearModel, obs: readonly Observation[]): Fl
   const n = obs.length;
   const params = model.parameters;
   const a = new Float64Array(n * params.length);
+  const shared = model.columnKey ? columnsOf(obs) : undefined;
   params.forEach((p, j) => {
     const off = j * n;
+    const key = model.columnKey?.(p);
+    const known = key !== undefined ? shared?.get(key) : undefined;
+    if (known) {
+      a.set(known, off);
+      return;
+    }
     for (let i = 0; i < n; i++) a[off + i] = model.coefficient(p, obs[i] as Observation);
+    if (key !== undefined) shared?.set(key, a.slice(off, off + n));
   });
   return a;
 }
