@@ -100,7 +100,7 @@ export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult 
   const coefficients = backSubstitute(qr, p);
   const rinv = invertUpperTriangular(r, p);
   const covariance = covarianceFrom(rinv, perm, scale, p);
-  const residuals = Float64Array.from(observations);
+  const residuals = observations.slice();
   subtractDesignTimes(residuals, design, coefficients, n, p);
   let chiSquare = 0;
   for (let i = 0; i < n; i++) chiSquare += (residuals[i] as number) ** 2 * (weights ? (weights[i] as number) : 1);
