@@ -1,44 +1,58 @@
 /**
- * (@babel/parser comes with the dev tools already installed; TypeScript 7 has no JavaScript API.)
  * The longest functions in src/ (lines from the declaration to its closing brace, nested functions counted in their
- * parent too), longest first: `node scripts/function-lengths.mjs [count]`. Used by `npm run bench` and by readers.
+ * parent too), longest first: `npx tsx bench/function-lengths.ts [count]`. Printed by `npm run bench` too.
+ * (@babel/parser comes with the dev tools already installed; TypeScript 7 has no JavaScript API.)
  */
 import { readdirSync, readFileSync, statSync } from 'node:fs';
 import { join, relative } from 'node:path';
 import { parse } from '@babel/parser';
 
-function files(dir) {
+interface Node {
+  readonly type: string;
+  readonly [key: string]: unknown;
+}
+
+export interface FunctionLength {
+  readonly file: string;
+  readonly name: string;
+  readonly line: number;
+  readonly lines: number;
+}
+
+function files(dir: string): string[] {
   return readdirSync(dir).flatMap((f) => {
     const p = join(dir, f);
     return statSync(p).isDirectory() ? files(p) : p.endsWith('.ts') ? [p] : [];
   });
 }
 
-export function functionLengths(root = 'src') {
-  const out = [];
+export function functionLengths(root = 'src'): FunctionLength[] {
+  const out: FunctionLength[] = [];
   for (const file of files(root)) {
     const text = readFileSync(file, 'utf8');
     const ast = parse(text, { sourceType: 'module', plugins: ['typescript'] });
-    const visit = (node, parent) => {
+    const nameOf = (x: unknown): string | undefined => (x as { name?: string } | undefined)?.name;
+    const visit = (node: Node | undefined, parent: Node | undefined): void => {
       if (!node || typeof node.type !== 'string') return;
-      if (/Function|Method/.test(node.type) && node.body?.type === 'BlockStatement') {
+      const body = node.body as Node | undefined;
+      if (/Function|Method/.test(node.type) && body?.type === 'BlockStatement') {
         const name =
-          node.id?.name ??
-          node.key?.name ??
+          nameOf(node.id) ??
+          nameOf(node.key) ??
           (parent?.type === 'VariableDeclarator' || parent?.type === 'ObjectProperty'
-            ? (parent.id?.name ?? parent.key?.name)
+            ? (nameOf(parent.id) ?? nameOf(parent.key))
             : undefined) ??
           '(anonymous)';
-        const line = node.loc.start.line;
-        out.push({ file: relative('.', file), name, line, lines: node.loc.end.line - line + 1 });
+        const loc = node.loc as { start: { line: number }; end: { line: number } };
+        out.push({ file: relative('.', file), name, line: loc.start.line, lines: loc.end.line - loc.start.line + 1 });
       }
       for (const [k, v] of Object.entries(node)) {
         if (k === 'loc' || k === 'leadingComments' || k === 'trailingComments') continue;
-        if (Array.isArray(v)) for (const c of v) visit(c, node);
-        else if (v && typeof v === 'object') visit(v, node);
+        if (Array.isArray(v)) for (const c of v) visit(c as Node, node);
+        else if (v && typeof v === 'object') visit(v as Node, node);
       }
     };
-    visit(ast.program, undefined);
+    visit(ast.program as unknown as Node, undefined);
   }
   return out.sort((a, b) => b.lines - a.lines);
 }

@@ -23,6 +23,7 @@ import { reducedMass } from '../src/species/reduced-mass.js';
 import { findPeaks } from '../src/spectra/peaks.js';
 import { hotCoScan } from './hot-co-scan.js';
 import { largeSpectrum } from './large-spectrum.js';
+import { load, type Ratio, recordRatios } from './summary.js';
 
 const iso = parseSpecies('CO');
 const y = dunhamFromEntry(constantsFor(iso) ?? (undefined as never));
@@ -93,6 +94,8 @@ function distinctRows(obs: readonly Observation[]): number {
 }
 
 mkdirSync('bench/out', { recursive: true });
+console.log(`Load average 1 / 5 / 15 min at the start: ${load()} (2 cores shared: read the ratios, not the times)\n`);
+const ratios: Ratio[] = [];
 const rows: Row[] = [];
 for (const bands of [1, 3]) {
   for (const n of [50, 500, 5000, 50000]) {
@@ -164,11 +167,44 @@ for (const r of rows) {
     `| ${r.bands} band${r.bands > 1 ? 's' : ''} | ${r.n} | ${r.distinct} | ${r.p} | ${fmt(r.kernel)} | ${np !== undefined ? fmt(np) : '–'} | ${np !== undefined ? `${(np / r.kernel).toFixed(2)}` : '–'} | ${fmt(r.full)} | ${r.solves} | ${(r.full / (r.solves * r.kernel)).toFixed(1)} |`,
   );
 }
+for (const r of rows) {
+  const np = numpy.get(r.file.split('/').pop() as string);
+  const fit = `${r.bands} band${r.bands > 1 ? 's' : ''}, ${r.n} lines`;
+  if (np !== undefined)
+    ratios.push({
+      measure: `least-squares kernel, ${fit}: numpy lstsq time / kernel time`,
+      value: np / r.kernel,
+      shown: (np / r.kernel).toFixed(2),
+      goal: '≥ 1',
+      met: np / r.kernel >= 1,
+    });
+  const over = r.full / (r.solves * r.kernel);
+  ratios.push({
+    measure: `fitLineList, ${fit}: time / (its ${r.solves} solves × kernel)`,
+    value: over,
+    shown: `${over.toFixed(1)}×`,
+    goal: '≤ 3×',
+    met: over <= 3,
+  });
+}
 for (const bands of [1, 3]) {
   const these = rows.filter((r) => r.bands === bands);
+  const kernelExp = growthExponent(these.map((r) => ({ n: r.n, t: r.kernel })));
+  const fullExp = growthExponent(these.map((r) => ({ n: r.n, t: r.full })));
   console.log(
-    `Growth in lines, ${bands} band${bands > 1 ? 's' : ''} (50 … 50 000): kernel n^${growthExponent(these.map((r) => ({ n: r.n, t: r.kernel }))).toFixed(2)}, fitLineList n^${growthExponent(these.map((r) => ({ n: r.n, t: r.full }))).toFixed(2)} (goal: no worse than n log n, i.e. exponent ≲ 1.1)`,
+    `Growth in lines, ${bands} band${bands > 1 ? 's' : ''} (50 … 50 000): kernel n^${kernelExp.toFixed(2)}, fitLineList n^${fullExp.toFixed(2)} (goal: no worse than n log n, i.e. exponent ≲ 1.1)`,
   );
+  for (const [what, e] of [
+    ['kernel', kernelExp],
+    ['fitLineList', fullExp],
+  ] as const)
+    ratios.push({
+      measure: `growth exponent of the ${what} in lines (50 … 50 000, ${bands} band${bands > 1 ? 's' : ''})`,
+      value: e,
+      shown: `n^${e.toFixed(2)}`,
+      goal: '≲ n^1.1',
+      met: e <= 1.1,
+    });
 }
 
 {
@@ -199,5 +235,14 @@ for (const bands of [1, 3]) {
     pts.push({ n: s.x.length, t });
     console.log(`| ${s.x.length} | ${step} | ${found} | ${fmt(t)} | ${fmt(t / s.x.length)} |`);
   }
-  console.log(`Growth in points (10⁴ … 10⁶): n^${growthExponent(pts).toFixed(2)} (goal: no worse than n log n)`);
+  const e = growthExponent(pts);
+  console.log(`Growth in points (10⁴ … 10⁶): n^${e.toFixed(2)} (goal: no worse than n log n)`);
+  ratios.push({
+    measure: 'growth exponent of findPeaks in points (10⁴ … 10⁶)',
+    value: e,
+    shown: `n^${e.toFixed(2)}`,
+    goal: '≲ n^1.1',
+    met: e <= 1.1,
+  });
 }
+recordRatios(ratios, true);

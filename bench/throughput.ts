@@ -10,6 +10,7 @@ import autocannon from 'autocannon';
 import { hotCoScan } from './hot-co-scan.js';
 import { largeSpectrumBody } from './large-spectrum.js';
 import { startServer } from './server-process.js';
+import { printSummary, recordRatios } from './summary.js';
 
 const seconds = Number(process.env.BENCH_SECONDS ?? 3);
 const basePort = 20000 + Math.floor(Math.random() * 20000);
@@ -113,6 +114,32 @@ try {
       '≤ 2.5×',
     ],
   ];
+  const fitRatio = fitService / fitBare;
+  const scanRatio = scanBare / scanService;
+  const peaksRatio = peaksService / peaksBare;
+  recordRatios([
+    {
+      measure: (rows[0] as (typeof rows)[number])[0],
+      value: fitRatio,
+      shown: fitRatio.toFixed(2),
+      goal: '≥ 0.4',
+      met: fitRatio >= 0.4,
+    },
+    {
+      measure: (rows[1] as (typeof rows)[number])[0],
+      value: scanRatio,
+      shown: `${scanRatio.toFixed(1)}×`,
+      goal: '≤ 8×',
+      met: scanRatio <= 8,
+    },
+    {
+      measure: (rows[2] as (typeof rows)[number])[0],
+      value: peaksRatio,
+      shown: `${peaksRatio.toFixed(1)}×`,
+      goal: '≤ 2.5×',
+      met: peaksRatio <= 2.5,
+    },
+  ]);
   console.log(`\nThe service against a bare fastify route with the same response bytes (autocannon ${seconds} s each)`);
   console.log('| measure | measured | ratio | goal |');
   console.log('| --- | --- | ---: | ---: |');
@@ -126,3 +153,4 @@ try {
   bare?.stop();
   service.stop();
 }
+printSummary();
