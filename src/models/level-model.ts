@@ -118,5 +118,25 @@ export function levelModel(parameters: readonly Parameter[]): LinearModel {
       return (SIGN[l - 1] as number) * (up * xu ** l - lo * xl ** l);
     },
     columnKey: (p) => `level|${p.key}`,
+    column(p: Parameter, obs: readonly Observation[]): Float64Array {
+      const out = new Float64Array(obs.length);
+      const l = p.kind === 'T' ? 0 : (POWER[p.kind] as number);
+      const sign = l > 0 ? (SIGN[l - 1] as number) : 1;
+      for (let i = 0; i < obs.length; i++) {
+        const o = obs[i] as Observation;
+        if (p.species !== o.species) continue;
+        const up = o.upperV === p.v ? 1 : 0;
+        const lo = o.lowerV === p.v ? 1 : 0;
+        if (up === 0 && lo === 0) continue;
+        if (l === 0) {
+          out[i] = up - lo;
+          continue;
+        }
+        const xu = o.upperJ * (o.upperJ + 1);
+        const xl = o.lowerJ * (o.lowerJ + 1);
+        out[i] = sign * (up * xu ** l - lo * xl ** l);
+      }
+      return out;
+    },
   };
 }

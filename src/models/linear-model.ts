@@ -43,6 +43,8 @@ export interface LinearModel {
    * instance): trial models over the same observations then share the column instead of computing it again.
    */
   columnKey?(p: Parameter): string | undefined;
+  /** The column of `p` over all observations at once, equal to `coefficient` row by row (a faster loop). */
+  column?(p: Parameter, obs: readonly Observation[]): Float64Array;
 }
 
 /**
@@ -74,7 +76,8 @@ export function buildDesign(model: LinearModel, obs: readonly Observation[]): Fl
       a.set(known, off);
       return;
     }
-    for (let i = 0; i < n; i++) a[off + i] = model.coefficient(p, obs[i] as Observation);
+    if (model.column) a.set(model.column(p, obs), off);
+    else for (let i = 0; i < n; i++) a[off + i] = model.coefficient(p, obs[i] as Observation);
     if (key !== undefined) shared?.set(key, a.slice(off, off + n));
   });
   return a;
