@@ -30,10 +30,11 @@ describe('CO fundamental, first and second overtone, σ = 0.001 cm⁻¹', () => 
     sigma: 0.001,
     seed: 11,
   });
-  const r = fitLineList(lines, masses);
-  const eq = r.equilibrium[0];
+  // Fitted inside each test, so that mutation testing sees the fit (see test/MUTANTS.md).
+  const fitted = () => fitLineList(lines, masses);
 
   it('recovers ω_e, ω_e x_e, B_e, α_e, D_e of Huber & Herzberg within 4σ of its own uncertainty', () => {
+    const eq = fitted().equilibrium[0];
     expect(eq).toBeDefined();
     for (const [k, truth] of Object.entries(CO)) {
       const q = (eq as unknown as Record<string, { value: number; uncertainty: number }>)[k];
@@ -43,6 +44,7 @@ describe('CO fundamental, first and second overtone, σ = 0.001 cm⁻¹', () => 
   });
 
   it('r_e(CO) within 4σ of 1.1283231963 Å (√(K/(μB_e)) of the generating HH B_e, AME2020 μ, CODATA 2018 K)', () => {
+    const eq = fitted().equilibrium[0];
     // The same value rounds to the tabulated 1.128323 Å (Huber & Herzberg). σ(r_e) is 2.0e-6 Å here (bar 3e-6).
     const re = eq?.r_e;
     expect(re?.uncertainty as number).toBeLessThan(3e-6);
@@ -50,6 +52,7 @@ describe('CO fundamental, first and second overtone, σ = 0.001 cm⁻¹', () => 
   });
 
   it('band origins match ν₀(1–0) = 2143.271121 and ν₀(2–0) = 4260.060220 cm⁻¹ (REFERENCE-DATA §5c, derived from HH) within 4σ', () => {
+    const r = fitted();
     const o10 = r.bands.find((b) => b.band === '1-0')?.origin;
     const o20 = r.bands.find((b) => b.band === '2-0')?.origin;
     expect(Math.abs((o10?.value as number) - 2143.271121)).toBeLessThan(4 * (o10?.uncertainty as number));
@@ -59,6 +62,7 @@ describe('CO fundamental, first and second overtone, σ = 0.001 cm⁻¹', () => 
   });
 
   it('reports every line as fitted, the level terms and the contract statistics', () => {
+    const r = fitted();
     expect(r.lines.every((l) => l.status === 'fitted')).toBe(true);
     expect(r.statistics.fitted).toBe(lines.length);
     expect(r.statistics.reducedChiSquare).toBeGreaterThan(0.7);
@@ -70,6 +74,7 @@ describe('CO fundamental, first and second overtone, σ = 0.001 cm⁻¹', () => 
   });
 
   it('combination differences agree with the full fit', () => {
+    const r = fitted();
     expect(r.combinationDifferences.length).toBe(6);
     for (const cd of r.combinationDifferences) expect(cd.deviation).toBeLessThan(3.5);
   });
@@ -83,10 +88,12 @@ describe('HCl fundamental alone (one band, two levels)', () => {
     sigma: 0.002,
     seed: 5,
   });
-  const r = fitLineList(lines, masses);
-  const eq = r.equilibrium[0];
+  // Fitted inside each test, so that mutation testing sees the fit (see test/MUTANTS.md).
+  const fitted = () => fitLineList(lines, masses);
 
   it('gives B_e and α_e from B_0 and B_1, with a warning, and no ω_e', () => {
+    const r = fitted();
+    const eq = r.equilibrium[0];
     expect(eq?.B_e).toBeDefined();
     expect(eq?.omega_e).toBeUndefined();
     expect(Math.abs((eq?.B_e?.value as number) - HCL.B_e)).toBeLessThan(4 * (eq?.B_e?.uncertainty as number));
@@ -99,6 +106,7 @@ describe('HCl fundamental alone (one band, two levels)', () => {
   });
 
   it('r_e(H³⁵Cl) within 2σ of 1.2745518285 Å (√(K/(μB_e)) of the generating HH B_e; tabulated 1.27455 Å), with a σ that admits γ_e', () => {
+    const eq = fitted().equilibrium[0];
     // B_e from two levels misses γ_e by 3γ_e/4 (B_v = B_e − α_e(v+½) + γ_e(v+½)²). Real HCl has γ_e ≈ 1.7e-3 cm-1
     // (from memory), 1.3e-3 cm-1 in B_e, 7.8e-5 Å in r_e: an honest σ(r_e) is at least half of that (2σ cover), and
     // a constraint that knows nothing more than Dunham's ordering should not make it wider than 5e-4 Å.
@@ -109,6 +117,7 @@ describe('HCl fundamental alone (one band, two levels)', () => {
   });
 
   it('labels the one vibrational interval ΔG_1/2, not Y10 (it is G(1) − G(0), a few per cent below ω_e)', () => {
+    const r = fitted();
     const names = r.dunham[0]?.parameters.map((p) => p.name) ?? [];
     expect(names).toContain('ΔG_1/2');
     expect(names).not.toContain('Y10');
@@ -116,6 +125,7 @@ describe('HCl fundamental alone (one band, two levels)', () => {
   });
 
   it('B_0 and B_1 are strongly and positively correlated, and the covariance is symmetric', () => {
+    const r = fitted();
     const i = r.covariance.parameters.indexOf('B_0');
     const j = r.covariance.parameters.indexOf('B_1');
     expect(r.correlation.matrix[i]?.[j]).toBeGreaterThan(0.5);
