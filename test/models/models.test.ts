@@ -185,12 +185,24 @@ describe('level structure: connected sets of levels, their reference level, para
       [2, 0],
       [3, 0],
     ]);
+    expect(levelParameters(s, 2).map((p) => p.unit)).toEqual(Array(11).fill('cm-1'));
     const t = levelParameters(s, 1).filter((p) => p.kind === 'T');
     expect(t.map((p) => [p.name, p.v, p.unit, p.species])).toEqual([
       ['T_1-T_0', 1, 'cm-1', '12C-16O'],
       ['T_2-T_0', 2, 'cm-1', '12C-16O'],
       ['T_3-T_0', 3, 'cm-1', '12C-16O'],
     ]);
+  });
+});
+
+describe('a pure-rotation line of an excited level', () => {
+  it('carries no term value: R(2) of 1-1 has T_1 − T_0 coefficient 0 and B_1 coefficient x′ − x″', () => {
+    const obs = [observation('1-0', 'R', 2), observation('1-1', 'R', 2)];
+    const params = levelParameters(levelStructure(obs), 1);
+    expect(params.map((p) => p.name)).toEqual(['T_1-T_0', 'B_0', 'B_1']);
+    const m = levelModel(params);
+    expect(params.map((p) => m.coefficient(p, obs[1] as Observation))).toEqual([0, 0, 12 - 6]);
+    expect(params.map((p) => m.coefficient(p, obs[0] as Observation))).toEqual([1, -6, 12]);
   });
 });
 
@@ -315,6 +327,7 @@ describe('Dunham model against term values written out by hand', () => {
     expect(() => mm.coefficient(u[0] as (typeof u)[number], observation('1-0', 'R', 0, '13C-16O'))).toThrow(
       /no reduced mass for 13C-16O/,
     );
+    expect(() => dunhamModel(u).coefficient(u[0] as (typeof u)[number], o)).toThrow(/no reduced mass for 12C-16O/);
     expect(dunhamKey(3, 1)).toBe('3,1');
   });
 });
@@ -332,6 +345,7 @@ describe('bands and transitions', () => {
         expect(e).toBeInstanceOf(ScienceError);
         expect((e as ScienceError).code).toBe('ASSIGNMENT_INVALID');
         expect((e as Error).message).toBe(`band "${bad}" is not of the form "v'-v''" (e.g. "1-0")`);
+        expect((e as ScienceError).details).toEqual({ band: bad });
       }
     }
   });
