@@ -1,0 +1,218 @@
+import { inverse, Matrix } from 'ml-matrix';
+import { describe, expect, it } from 'vitest';
+import {
+  correlationOf,
+  isRankDeficient,
+  nestedFTest,
+  reducedChiSquare,
+  rmsResidual,
+  type SolvedModel,
+  solveModel,
+  studentisedResiduals,
+  toRows,
+} from '../../src/fit/engine.js';
+import { termTest } from '../../src/fit/term-test.js';
+import type { LinearModel, Observation, Parameter } from '../../src/models/linear-model.js';
+import { NORRIS, PONTIUS, type StrdDataset } from '../fixtures/nist-strd/datasets.js';
+
+// The fit engine (weighted solve, a-posteriori or absolute scaling, studentised residuals, term tests) against
+// outside values: NIST StRD certified results (test/fixtures/nist-strd), leave-one-out refits and the hat matrix
+// computed here with ml-matrix 6.15.1, and F and χ² tail probabilities from SciPy 1.17.1 (scipy.stats.f.sf,
+// scipy.stats.chi2.sf). The model is a plain polynomial written here, not one of src/models. Computed inside `it`.
+
+function polynomial(degree: number): LinearModel {
+  const parameters: Parameter[] = Array.from({ length: degree + 1 }, (_, k) => ({
+    key: `c${k}`,
+    name: `c${k}`,
+    unit: '1',
+    kind: 'Y',
+    k,
+    l: 0,
+  }));
+  // The lower J carries x: a test-only convention of this model.
+  return { parameters, coefficient: (p, o) => o.lowerJ ** (p.k as number) };
+}
+
+function observationsOf(d: StrdDataset, weight = 1): Observation[] {
+  return d.y.map((y, i) => ({
+    index: i,
+    species: 'X',
+    upperV: 1,
+    lowerV: 0,
+    upperJ: 0,
+    lowerJ: (d.x[0] as readonly number[])[i] as number,
+    position: y,
+    weight,
+  }));
+}
+
+function solved(model: LinearModel, obs: Observation[], mode: 'a-posteriori' | 'absolute', lev = true): SolvedModel {
+  const r = solveModel(model, obs, mode, lev);
+  if (isRankDeficient(r)) throw new Error('rank deficient');
+  return r;
+}
+
+/** Log relative error (digits in agreement), as the StRD measure them. */
+const lre = (v: number, c: number) => -Math.log10(Math.abs((v - c) / c));
+
+describe('solveModel against NIST StRD certified values', () => {
+  it('Norris (linear): values to 11 digits, a-posteriori σ to 10, residual SD² = χ²/ν', () => {
+    const fit = solved(polynomial(1), observationsOf(NORRIS), 'a-posteriori');
+    expect(fit.degreesOfFreedom).toBe(34);
+    NORRIS.certified.forEach((c, j) => {
+      expect(lre(fit.values[j] as number, c)).toBeGreaterThanOrEqual(11);
+    });
+    NORRIS.certifiedSd.forEach((c, j) => {
+      expect(lre(Math.sqrt(fit.covariance[j * 2 + j] as number), c)).toBeGreaterThanOrEqual(10);
+    });
+    expect(lre(Math.sqrt(reducedChiSquare(fit) as number), NORRIS.residualSd)).toBeGreaterThanOrEqual(10);
+    expect(fit.conditionNumber).toBeGreaterThan(1);
+    expect(fit.leverages.length).toBe(36);
+  });
+
+  it('absolute mode with σ = the residual SD (weight 1/s²) gives the same σ unscaled; χ²/ν = 1', () => {
+    const w = 1 / NORRIS.residualSd ** 2;
+    const fit = solved(polynomial(1), observationsOf(NORRIS, w), 'absolute');
+    NORRIS.certifiedSd.forEach((c, j) => {
+      expect(lre(Math.sqrt(fit.covariance[j * 2 + j] as number), c)).toBeGreaterThanOrEqual(10);
+    });
+    expect(Math.abs((reducedChiSquare(fit) as number) - 1)).toBeLessThan(1e-10);
+    // The same data with weight 1 in absolute mode: σ smaller by the residual SD (0.8848).
+    const unit = solved(polynomial(1), observationsOf(NORRIS), 'absolute');
+    expect(
+      lre(Math.sqrt(unit.covariance[0] as number) * NORRIS.residualSd, NORRIS.certifiedSd[0] as number),
+    ).toBeGreaterThan(10);
+  });
+
+  it('Pontius (quadratic in x up to 3e6): values to 10 digits; the covariance is symmetric', () => {
+    const fit = solved(polynomial(2), observationsOf(PONTIUS), 'a-posteriori');
+    PONTIUS.certified.forEach((c, j) => {
+      expect(lre(fit.values[j] as number, c)).toBeGreaterThanOrEqual(10);
+    });
+    PONTIUS.certifiedSd.forEach((c, j) => {
+      expect(lre(Math.sqrt(fit.covariance[j * 3 + j] as number), c)).toBeGreaterThanOrEqual(9);
+    });
+    expect(fit.covariance[1]).toBe(fit.covariance[3]);
+    const corr = correlationOf(fit.covariance, 3);
+    for (let i = 0; i < 3; i++) {
+      expect(corr[i * 3 + i]).toBeCloseTo(1, 14);
+      for (let j = 0; j < 3; j++) {
+        const expected =
+          (fit.covariance[i * 3 + j] as number) /
+          Math.sqrt((fit.covariance[i * 3 + i] as number) * (fit.covariance[j * 3 + j] as number));
+        expect(corr[i * 3 + j]).toBeCloseTo(expected, 14);
+      }
+    }
+    expect(toRows(fit.covariance, 3)).toEqual([0, 1, 2].map((i) => Array.from(fit.covariance.slice(i * 3, i * 3 + 3))));
+  });
+});
+
+describe('studentised residuals by their definition', () => {
+  it('tᵢ = eᵢ√wᵢ / (s₍ᵢ₎√(1 − hᵢᵢ)), s₍ᵢ₎ from the refit without line i, hᵢᵢ from ml-matrix (1e-9 relative)', () => {
+    // Norris with one line pulled off by 5 and unequal weights.
+    const obs = observationsOf(NORRIS).map((o, i) => ({
+      ...o,
+      weight: 0.5 + (i % 4) * 0.5,
+      position: i === 10 ? o.position + 5 : o.position,
+    }));
+    const model = polynomial(1);
+    const fit = solved(model, obs, 'a-posteriori');
+    const t = studentisedResiduals(fit);
+    const n = obs.length;
+    const aw = new Matrix(n, 2);
+    for (let i = 0; i < n; i++) {
+      const o = obs[i] as Observation;
+      aw.set(i, 0, Math.sqrt(o.weight));
+      aw.set(i, 1, Math.sqrt(o.weight) * o.lowerJ);
+    }
+    const hat = aw.mmul(inverse(aw.transpose().mmul(aw))).mmul(aw.transpose());
+    for (let i = 0; i < n; i++) {
+      const o = obs[i] as Observation;
+      const without = solved(
+        model,
+        obs.filter((_, k) => k !== i),
+        'a-posteriori',
+        false,
+      );
+      const s2i = without.chiSquare / without.degreesOfFreedom;
+      const e = o.position - ((fit.values[0] as number) + (fit.values[1] as number) * o.lowerJ);
+      const expected = (e * Math.sqrt(o.weight)) / Math.sqrt(s2i * (1 - hat.get(i, i)));
+      expect(Math.abs((t[i] as number) / expected - 1), `line ${i}`).toBeLessThan(1e-9);
+    }
+    expect(Math.abs(t[10] as number)).toBeGreaterThan(5);
+  });
+
+  it('are all 0 without leverages or with fewer than two degrees of freedom', () => {
+    const obs = observationsOf(NORRIS);
+    expect([...studentisedResiduals(solved(polynomial(1), obs, 'a-posteriori', false))].every((v) => v === 0)).toBe(
+      true,
+    );
+    const three = obs.slice(0, 3);
+    const fit = solved(polynomial(1), three, 'a-posteriori');
+    expect(fit.degreesOfFreedom).toBe(1);
+    expect([...studentisedResiduals(fit)]).toEqual([0, 0, 0]);
+  });
+});
+
+describe('edge cases of solveModel', () => {
+  it('no parameters: residuals are the positions, χ² = Σ w y², ν = n', () => {
+    const obs = observationsOf(NORRIS, 2).slice(0, 4);
+    const fit = solved({ parameters: [], coefficient: () => 0 }, obs, 'a-posteriori');
+    expect([...fit.residuals]).toEqual(obs.map((o) => o.position));
+    expect(fit.chiSquare).toBeCloseTo(2 * obs.reduce((s, o) => s + o.position ** 2, 0), 10);
+    expect(fit.degreesOfFreedom).toBe(4);
+    expect(fit.conditionNumber).toBe(1);
+    expect(fit.leverages.length).toBe(4);
+    expect(rmsResidual(fit)).toBeCloseTo(Math.sqrt(obs.reduce((s, o) => s + o.position ** 2, 0) / 4), 12);
+  });
+
+  it('fewer lines than parameters: every parameter in one group; a dependent pair named', () => {
+    const obs = observationsOf(NORRIS).slice(0, 2);
+    const r = solveModel(polynomial(2), obs, 'a-posteriori');
+    expect(isRankDeficient(r)).toBe(true);
+    if (isRankDeficient(r)) expect(r.groups.map((g) => g.map((p) => p.name))).toEqual([['c0', 'c1', 'c2']]);
+    const twin: LinearModel = {
+      parameters: polynomial(1).parameters.concat([{ key: 'twin', name: 'twin', unit: '1', kind: 'Y', k: 1, l: 0 }]),
+      coefficient: (p, o) => o.lowerJ ** (p.k as number),
+    };
+    const d = solveModel(twin, observationsOf(NORRIS), 'a-posteriori');
+    expect(isRankDeficient(d)).toBe(true);
+    if (isRankDeficient(d)) expect(d.groups.map((g) => g.map((p) => p.name).sort())).toEqual([['c1', 'twin']]);
+  });
+
+  it('rms residual of an empty fit is 0; reduced χ² without degrees of freedom is null', () => {
+    const fit = { residuals: new Float64Array(0), degreesOfFreedom: 0, chiSquare: 3 } as unknown as SolvedModel;
+    expect(rmsResidual(fit)).toBe(0);
+    expect(reducedChiSquare(fit)).toBeNull();
+    expect(reducedChiSquare({ ...fit, degreesOfFreedom: 2 })).toBe(1.5);
+  });
+});
+
+describe('term tests at their stated distributions (SciPy values)', () => {
+  const model = (chiSquare: number, degreesOfFreedom: number) => ({ chiSquare, degreesOfFreedom }) as SolvedModel;
+
+  it('nested F test: F = ((χ²_s − χ²_b)/q)/(χ²_b/ν_b) with its tail on (q, ν_b) degrees of freedom', () => {
+    // F = 14 on (1, 28): scipy.stats.f.sf(14, 1, 28) = 0.0008362665150490412; F = 20 on (3, 40): 4.446272742117727e-08.
+    expect(Math.abs(nestedFTest(model(30, 29), model(20, 28)) / 0.0008362665150490412 - 1)).toBeLessThan(1e-9);
+    expect(Math.abs(nestedFTest(model(50, 43), model(20, 40)) / 4.446272742117727e-8 - 1)).toBeLessThan(1e-9);
+    expect(termTest(model(30, 29), model(20, 28), 'a-posteriori')).toBe(nestedFTest(model(30, 29), model(20, 28)));
+  });
+
+  it('nested F test: 1 when nothing is added or nothing is left; a perfect bigger fit is 0 or 1', () => {
+    expect(nestedFTest(model(30, 28), model(20, 28))).toBe(1);
+    expect(nestedFTest(model(30, 27), model(20, 28))).toBe(1);
+    expect(nestedFTest(model(30, 1), model(0, 0))).toBe(1);
+    expect(nestedFTest(model(30, 3), model(0, 2))).toBe(0);
+    expect(nestedFTest(model(0, 3), model(0, 2))).toBe(1);
+  });
+
+  it('absolute mode: Δχ² against χ² with q degrees of freedom; 1 when nothing is added', () => {
+    // scipy.stats.chi2.sf(10, 1) = 0.001565402258002549; chi2.sf(7.5, 3) = 0.0575584519726364.
+    expect(Math.abs(termTest(model(30, 29), model(20, 28), 'absolute') / 0.001565402258002549 - 1)).toBeLessThan(1e-9);
+    expect(Math.abs(termTest(model(27.5, 31), model(20, 28), 'absolute') / 0.0575584519726364 - 1)).toBeLessThan(1e-9);
+    expect(termTest(model(30, 28), model(20, 28), 'absolute')).toBe(1);
+    expect(termTest(model(30, 27), model(20, 28), 'absolute')).toBe(1);
+    // A bigger model that fits worse (rounding) is no evidence for its terms.
+    expect(termTest(model(20, 29), model(20.5, 28), 'absolute')).toBe(1);
+  });
+});
