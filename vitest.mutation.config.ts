@@ -10,7 +10,7 @@ export default defineConfig({
   test: {
     include: [
       'test/{constants,derive,species,stats,linalg,helpers,models}/**/*.test.ts',
-      'test/fit/{fit-lines,higher-terms,term-level,isotopologues}.test.ts',
+      'test/fit/{fit-lines,higher-terms,term-level,isotopologues,engine-reference,warnings-reference}.test.ts',
       'test/qa/temperature.test.ts',
     ],
     environment: 'node',
