@@ -1,21 +1,22 @@
 import { crossChecks, equilibriumFromDunham } from '../derive/equilibrium.js';
 import { quantity } from '../derive/quantity.js';
 import { ScienceError } from '../errors.js';
-import { levelStructure } from '../models/level-model.js';
+import { type LevelStructure, levelStructure } from '../models/level-model.js';
+import type { Observation } from '../models/linear-model.js';
 import { formatBand, type Transition, upperJ } from '../models/transitions.js';
 import type { MassValue } from '../species/reduced-mass.js';
 import { combinationChecks } from './cross-checks.js';
 import { fitDunhamForSpecies, fitMassReduced, formatValue } from './dunham-stage.js';
-import { reducedChiSquare, rmsResidual, type UncertaintyMode } from './engine.js';
+import { reducedChiSquare, rmsResidual, type SolvedModel, type UncertaintyMode } from './engine.js';
 import { reportLevels } from './level-report.js';
-import { predictWithVariance, selectLevelModel } from './level-selection.js';
+import { type LevelSelection, predictWithVariance, selectLevelModel } from './level-selection.js';
 import { readLines } from './observations.js';
 import { rejectOutliers } from './outliers.js';
 import { rescaleStatedUncertainties } from './stated-scale.js';
-import { constrainLevelModel } from './truncation.js';
+import { constrainLevelModel, type TermConstraint } from './truncation.js';
 import type { DetailedFit, DunhamFit, FitOptions, FitResult, LineInput, Statistics, Warning } from './types.js';
 import { absoluteScaleWarnings, checkRepeats, qualityWarnings } from './warnings.js';
-import { weighLines } from './weights.js';
+import { type WeightedLines, weighLines } from './weights.js';
 
 export type { TermConstraint } from './truncation.js';
 export type {
@@ -56,12 +57,13 @@ export function fitLineList(
 }
 
 /**
- * The fit as stages, each in its own file with a typed result:
+ * The fit as stages, each in its own file with a typed result, read top-down here:
  *   1a readLines (observations.ts)       validate, build observations
  *   1b weighLines (weights.ts)           weights from the given σ or the robust scatter per band / source
  *   1c rescaleStatedUncertainties (stated-scale.ts)  a-posteriori: groups whose stated σ disagree get their own scale
  *   2  selectLevelModel (level-selection.ts)  centrifugal terms by the term test
  *   3  rejectOutliers (outliers.ts)      studentised residuals, re-admission
+ *   3b constrainLevelModel (truncation.ts)    the next term beyond the selected ones, as a prior
  *   4  reportLevels (level-report.ts)    lines, bands, levels, parameters, covariance
  *   5  fitDunhamForSpecies (dunham-stage.ts)  equilibrium constants and cross-checks
  *   6  combinationChecks (cross-checks.ts)    Δ₂F against the level fit
@@ -73,14 +75,108 @@ export function fitLineListDetailed(
   options: FitOptions = {},
 ): DetailedFit {
   const opt = { ...DEFAULTS, ...options };
-  const maxOrder = Math.max(1, Math.min(4, Math.floor(opt.maxCentrifugalOrder)));
-  const alpha = opt.termSignificance;
+  const settings: FitSettings = {
+    maxOrder: Math.max(1, Math.min(4, Math.floor(opt.maxCentrifugalOrder))),
+    alpha: opt.termSignificance,
+  };
+  const prepared = prepareObservations(input, masses, opt.uncertaintyMode, settings);
+  const { warnings } = prepared;
+  const kept = selectAndReject(prepared, opt, settings);
+  const selected = kept.level.fit;
+  const truncation = constrainLevelModel(kept.level, kept.mode);
+  if (truncation.constraints.length > 0) warnings.push(constrainedWarning(truncation.constraints, settings.alpha));
+  const level = truncation.level;
+  const fit = level.fit;
+  const report = reportLevels(
+    input,
+    prepared.observations,
+    prepared.read.transitions,
+    kept.rejected,
+    fit,
+    masses,
+    new Set(truncation.constraints.map((c) => c.key)),
+  );
+  warnings.push(...report.warnings);
+  const structure = levelStructure(fit.observations);
+  const dunham = opt.levelsOnly
+    ? { equilibrium: [], dunham: [], checks: [] }
+    : dunhamStage(fit, structure.species, level.orders, masses, kept.mode, settings.alpha, warnings);
+  const massReducedDunham =
+    opt.massReducedDunham && !opt.levelsOnly
+      ? massReducedStage(fit, structure.species, level.orders, masses, kept.mode, settings.alpha, warnings)
+      : undefined;
+  const cds = opt.levelsOnly
+    ? { checks: [], warnings: [] }
+    : combinationChecks(fit, level.orders, kept.mode, report.quantityOf);
+  warnings.push(...cds.warnings);
+  checkRepeats(selected, prepared.given > 0, warnings);
+  absoluteScaleWarnings(selected, kept.mode, warnings);
+  qualityWarnings(selected, report.correlation, report.names, warnings);
 
+  const result: FitResult = {
+    species: [...masses.entries()]
+      .filter(([f]) => structure.species.includes(f))
+      .map(([formula, m]) => ({ formula, reducedMass: quantity(m.value, m.uncertainty, 'u') })),
+    lines: report.lines,
+    bands: report.bands,
+    levels: report.levels,
+    equilibrium: dunham.equilibrium,
+    parameters: report.parameters,
+    covariance: { parameters: report.names, matrix: report.covariance },
+    correlation: { parameters: report.names, matrix: report.correlation },
+    statistics: statisticsOf(input.length, prepared.observations.length, selected, kept.rejected.size, kept.mode),
+    model: {
+      levelTerms: report.levelTerms,
+      selection: `centrifugal and Dunham terms added while ${kept.mode === 'absolute' ? 'a χ²-difference test' : 'an F test'} gives p < ${settings.alpha}; the next term beyond them constrained by a prior`,
+      constraints: [...truncation.constraints, ...dunham.dunham.flatMap((d) => d.constrained ?? [])],
+    },
+    dunham: dunham.dunham,
+    ...(massReducedDunham ? { massReducedDunham } : {}),
+    combinationDifferences: cds.checks,
+    crossChecks: dunham.checks,
+    ...(prepared.weighted.groups.length > 0 ? { scatter: prepared.weighted.groups } : {}),
+    warnings,
+  };
+  return detailedFit(result, fit, structure.reference, selected, kept.mode, prepared);
+}
+
+interface FitSettings {
+  /** Highest centrifugal order (1 = B only … 4 = L). */
+  readonly maxOrder: number;
+  /** Significance of the term test. */
+  readonly alpha: number;
+}
+
+/**
+ * Stage 1: the observations and their weights (stated σ rescaled per group where they disagree), how many lines
+ * carry a σ, the uncertainty mode that can be kept, and the level model first selected for them.
+ */
+interface PreparedObservations {
+  readonly read: ReturnType<typeof readLines>;
+  readonly weighted: WeightedLines;
+  readonly stated: ReturnType<typeof rescaleStatedUncertainties> | undefined;
+  readonly observations: readonly Observation[];
+  readonly initialLevel: LevelSelection;
+  /** Lines that came with an uncertainty. */
+  readonly given: number;
+  readonly mode: UncertaintyMode;
+  readonly warnings: Warning[];
+}
+
+function prepareObservations(
+  input: readonly LineInput[],
+  masses: ReadonlyMap<string, MassValue>,
+  asked: UncertaintyMode,
+  settings: FitSettings,
+): PreparedObservations {
   const read = readLines(input, masses);
-  const weighted = weighLines(input, read.observations, { maxOrder, termSignificance: alpha });
+  const weighted = weighLines(input, read.observations, {
+    maxOrder: settings.maxOrder,
+    termSignificance: settings.alpha,
+  });
   const warnings: Warning[] = [...weighted.warnings];
   const given = input.filter((l) => l.uncertainty !== undefined).length;
-  let mode = opt.uncertaintyMode;
+  let mode = asked;
   if (given === 0 && mode === 'absolute') {
     mode = 'a-posteriori';
     warnings.push({
@@ -89,6 +185,7 @@ export function fitLineListDetailed(
         'absolute uncertainties were asked for but no line has an uncertainty: the covariance is scaled a posteriori',
     });
   }
+  const { maxOrder, alpha } = settings;
   const firstLevel = selectLevelModel(weighted.observations, maxOrder, mode, alpha);
   const stated =
     mode === 'a-posteriori'
@@ -98,11 +195,21 @@ export function fitLineListDetailed(
   const observations = stated?.observations ?? weighted.observations;
   const initialLevel =
     observations === weighted.observations ? firstLevel : selectLevelModel(observations, maxOrder, mode, alpha);
+  return { read, weighted, stated, observations, initialLevel, given, mode, warnings };
+}
 
-  const outliers = rejectOutliers(observations, initialLevel, {
-    maxOrder,
+/** Stages 2 and 3: the level model selected, outliers rejected; the mode turned absolute when no freedom is left. */
+function selectAndReject(
+  prepared: PreparedObservations,
+  opt: { readonly rejectionThreshold: number; readonly maxRejectedFraction: number },
+  settings: FitSettings,
+): { level: LevelSelection; rejected: ReadonlyMap<number, string>; mode: UncertaintyMode } {
+  const { observations, warnings, given } = prepared;
+  let mode = prepared.mode;
+  const outliers = rejectOutliers(observations, prepared.initialLevel, {
+    maxOrder: settings.maxOrder,
     mode,
-    termSignificance: alpha,
+    termSignificance: settings.alpha,
     rejectionThreshold: opt.rejectionThreshold,
     maxRejectedFraction: opt.maxRejectedFraction,
   });
@@ -130,74 +237,25 @@ export function fitLineListDetailed(
       message:
         'no degrees of freedom are left to scale the covariance a posteriori: the line uncertainties are taken as absolute',
     });
-    level = selectLevelModel(outliers.kept, maxOrder, mode, alpha);
+    level = selectLevelModel(outliers.kept, settings.maxOrder, mode, settings.alpha);
   }
-  // The statistics describe the model the term test selected; the constrained terms change the covariance (and
-  // the values they correlate with), not the verdict on how well the lines fit.
-  const selected = level.fit;
-  const truncation = constrainLevelModel(level, mode);
-  level = truncation.level;
-  if (truncation.constraints.length > 0) {
-    warnings.push({
-      code: 'TERMS_CONSTRAINED',
-      message: `centrifugal terms the lines cannot determine (term test p ≥ ${alpha}) are constrained, their uncertainty carried into the covariance: ${truncation.constraints.map((c) => `${c.parameter} = ${formatValue(c.prior.value)} ± ${formatValue(c.prior.uncertainty)} cm-1`).join(', ')} (${[...new Set(truncation.constraints.map((c) => c.basis.replace(/_\d+/g, '_v')))].join('; ')})`,
-    });
-  }
-  const fit = level.fit;
+  return { level, rejected, mode };
+}
 
-  const report = reportLevels(
-    input,
-    observations,
-    read.transitions,
-    rejected,
-    fit,
-    masses,
-    new Set(truncation.constraints.map((c) => c.key)),
-  );
-  warnings.push(...report.warnings);
-  const structure = levelStructure(fit.observations);
-
-  const equilibrium: FitResult['equilibrium'][number][] = [];
-  const dunham: DunhamFit[] = [];
-  const checks: FitResult['crossChecks'][number][] = [];
-  for (const s of opt.levelsOnly ? [] : structure.species) {
-    const obs = fit.observations.filter((o) => o.species === s);
-    const d = fitDunhamForSpecies(s, obs, mode, alpha, level.orders, warnings);
-    if (!d) continue;
-    dunham.push(d.report);
-    const mu = masses.get(s) as MassValue;
-    const eq = equilibriumFromDunham(d.set, mu);
-    if (Object.keys(eq).length > 0) equilibrium.push({ species: s, ...eq });
-    for (const c of crossChecks(d.set, eq, mu)) checks.push({ species: s, ...c });
-  }
-
-  let massReducedDunham: FitResult['massReducedDunham'];
-  if (opt.massReducedDunham && !opt.levelsOnly) {
-    if (structure.species.length < 2) {
-      warnings.push({
-        code: 'MASS_REDUCED_NEEDS_ISOTOPOLOGUES',
-        message: 'a mass-reduced Dunham fit needs lines of two or more isotopologues',
-      });
-    } else {
-      massReducedDunham = fitMassReduced(fit.observations, masses, mode, alpha, level.orders, warnings);
-    }
-  }
-
-  const cds = opt.levelsOnly
-    ? { checks: [], warnings: [] }
-    : combinationChecks(fit, level.orders, mode, report.quantityOf);
-  warnings.push(...cds.warnings);
-
-  checkRepeats(selected, given > 0, warnings);
-  absoluteScaleWarnings(selected, mode, warnings);
-  qualityWarnings(selected, report.correlation, report.names, warnings);
-
-  const statistics: Statistics = {
-    lines: input.length,
-    assigned: observations.length,
+/** The statistics describe the model the term test selected, not the constrained one (which changes the covariance). */
+function statisticsOf(
+  lines: number,
+  assigned: number,
+  selected: SolvedModel,
+  rejected: number,
+  mode: UncertaintyMode,
+): Statistics {
+  return {
+    lines,
+    assigned,
     fitted: selected.observations.length,
-    rejected: rejected.size,
-    unassigned: input.length - observations.length,
+    rejected,
+    unassigned: lines - assigned,
     parameters: selected.model.parameters.length,
     degreesOfFreedom: selected.degreesOfFreedom,
     rms: rmsResidual(selected),
@@ -205,32 +263,74 @@ export function fitLineListDetailed(
     conditionNumber: Number.isFinite(selected.conditionNumber) ? selected.conditionNumber : null,
     uncertaintyMode: mode,
   };
+}
 
-  const result: FitResult = {
-    species: [...masses.entries()]
-      .filter(([f]) => structure.species.includes(f))
-      .map(([formula, m]) => ({ formula, reducedMass: quantity(m.value, m.uncertainty, 'u') })),
-    lines: report.lines,
-    bands: report.bands,
-    levels: report.levels,
-    equilibrium,
-    parameters: report.parameters,
-    covariance: { parameters: report.names, matrix: report.covariance },
-    correlation: { parameters: report.names, matrix: report.correlation },
-    statistics,
-    model: {
-      levelTerms: report.levelTerms,
-      selection: `centrifugal and Dunham terms added while ${mode === 'absolute' ? 'a χ²-difference test' : 'an F test'} gives p < ${alpha}; the next term beyond them constrained by a prior`,
-      constraints: [...truncation.constraints, ...dunham.flatMap((d) => d.constrained ?? [])],
-    },
-    dunham,
-    ...(massReducedDunham ? { massReducedDunham } : {}),
-    combinationDifferences: cds.checks,
-    crossChecks: checks,
-    ...(weighted.groups.length > 0 ? { scatter: weighted.groups } : {}),
-    warnings,
+function constrainedWarning(constraints: readonly TermConstraint[], alpha: number): Warning {
+  return {
+    code: 'TERMS_CONSTRAINED',
+    message: `centrifugal terms the lines cannot determine (term test p ≥ ${alpha}) are constrained, their uncertainty carried into the covariance: ${constraints.map((c) => `${c.parameter} = ${formatValue(c.prior.value)} ± ${formatValue(c.prior.uncertainty)} cm-1`).join(', ')} (${[...new Set(constraints.map((c) => c.basis.replace(/_\d+/g, '_v')))].join('; ')})`,
   };
-  const ref = structure.reference;
+}
+
+/** Stage 5: per isotopologue, the Dunham fit, the equilibrium constants and their cross-checks. */
+function dunhamStage(
+  fit: SolvedModel,
+  species: readonly string[],
+  orders: LevelSelection['orders'],
+  masses: ReadonlyMap<string, MassValue>,
+  mode: UncertaintyMode,
+  alpha: number,
+  warnings: Warning[],
+): {
+  equilibrium: FitResult['equilibrium'][number][];
+  dunham: DunhamFit[];
+  checks: FitResult['crossChecks'][number][];
+} {
+  const equilibrium: FitResult['equilibrium'][number][] = [];
+  const dunham: DunhamFit[] = [];
+  const checks: FitResult['crossChecks'][number][] = [];
+  for (const s of species) {
+    const obs = fit.observations.filter((o) => o.species === s);
+    const d = fitDunhamForSpecies(s, obs, mode, alpha, orders, warnings);
+    if (!d) continue;
+    dunham.push(d.report);
+    const mu = masses.get(s) as MassValue;
+    const eq = equilibriumFromDunham(d.set, mu);
+    if (Object.keys(eq).length > 0) equilibrium.push({ species: s, ...eq });
+    for (const c of crossChecks(d.set, eq, mu)) checks.push({ species: s, ...c });
+  }
+  return { equilibrium, dunham, checks };
+}
+
+/** The mass-reduced Dunham fit across isotopologues, when asked for and there are two or more. */
+function massReducedStage(
+  fit: SolvedModel,
+  species: readonly string[],
+  orders: LevelSelection['orders'],
+  masses: ReadonlyMap<string, MassValue>,
+  mode: UncertaintyMode,
+  alpha: number,
+  warnings: Warning[],
+): FitResult['massReducedDunham'] {
+  if (species.length < 2) {
+    warnings.push({
+      code: 'MASS_REDUCED_NEEDS_ISOTOPOLOGUES',
+      message: 'a mass-reduced Dunham fit needs lines of two or more isotopologues',
+    });
+    return undefined;
+  }
+  return fitMassReduced(fit.observations, masses, mode, alpha, orders, warnings);
+}
+
+/** The result with the predictions and line σ the assignment loop asks of it. */
+function detailedFit(
+  result: FitResult,
+  fit: SolvedModel,
+  ref: LevelStructure['reference'],
+  selected: SolvedModel,
+  mode: UncertaintyMode,
+  { weighted, stated }: PreparedObservations,
+): DetailedFit {
   const scale = mode === 'absolute' ? 1 : (reducedChiSquare(selected) ?? 1);
   return {
     result,
