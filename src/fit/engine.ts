@@ -19,6 +19,7 @@ export interface SolvedModel {
   readonly leverages: Float64Array;
   readonly chiSquare: number;
   readonly degreesOfFreedom: number;
+  /** NaN where it was not computed (trial fits, fits with priors). */
   readonly conditionNumber: number;
 }
 
@@ -218,7 +219,16 @@ export function solveModelWithPriors(
     y[n + k] = pr.value;
     w[n + k] = s2prior / (pr.sigma * pr.sigma);
   });
-  const r = solveLeastSquares({ rows, cols: p, design, observations: y, weights: w, leverage: true });
+  // The condition number of a constrained fit is never reported (the statistics describe the selected model).
+  const r = solveLeastSquares({
+    rows,
+    cols: p,
+    design,
+    observations: y,
+    weights: w,
+    leverage: true,
+    conditionNumber: false,
+  });
   if (r.rankDeficient) {
     return {
       rankDeficient: true,

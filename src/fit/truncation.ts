@@ -50,8 +50,20 @@ interface Reference {
   H_e?: number;
 }
 
+/** The library's constants per species formula, looked up once (the library never changes). */
+const references = new Map<string, Reference>();
+
 /** Customary constants of the species from the reference library (empty when it has none). */
 export function referenceOf(species: string): Reference {
+  let known = references.get(species);
+  if (!known) {
+    known = lookUpReference(species);
+    references.set(species, known);
+  }
+  return { ...known };
+}
+
+function lookUpReference(species: string): Reference {
   let entry: ReturnType<typeof constantsFor>;
   try {
     entry = constantsFor(parseSpecies(species));
