@@ -127,148 +127,21 @@ function firstInvalid(series: VibrationalSeries, vTop: number): { v: number; wha
  */
 export function potentialCurves(input: PotentialInput): PotentialResult {
   const { coefficients, vMax } = input;
-  const p = coefficients.length;
+  checkInput(input);
+  const warnings: PotentialWarning[] = rangeWarnings(input);
   const values = coefficients.map((c) => c.value);
-  const has = (k: number, l: number) => coefficients.some((c) => c.k === k && c.l === l);
-  if (!has(1, 0) || !has(0, 1)) {
-    throw new ScienceError('POTENTIAL_UNDETERMINED', 'turning points need at least omega_e (Y10) and B_e (Y01)', {
-      given: coefficients.map((c) => `Y${c.k}${c.l}`),
-    });
-  }
-  if (!Number.isInteger(vMax) || vMax < 0 || vMax > MAX_V) {
-    throw new ScienceError('INPUT_INVALID', `vMax must be an integer from 0 to ${MAX_V}`, { vMax });
-  }
-  const warnings: PotentialWarning[] = [];
-  if (input.vData !== undefined) {
-    const limit = extrapolationLimit(input.vData);
-    if (vMax > limit) {
-      throw new ScienceError(
-        'POTENTIAL_EXTRAPOLATION_TOO_FAR',
-        `vMax = ${vMax} is far beyond the highest level the data reached (v = ${input.vData}); at most ${limit} is accepted`,
-        { vMax, vData: input.vData, limit },
-      );
-    }
-    if (vMax > input.vData) {
-      warnings.push({
-        code: 'POTENTIAL_EXTRAPOLATED',
-        message: `levels above v = ${input.vData} (up to ${vMax}) use the expansion beyond the levels the data reached`,
-      });
-    }
-  } else {
-    warnings.push({
-      code: 'POTENTIAL_RANGE_UNKNOWN',
-      message: 'the levels the constants were fitted to are not known: turning points above them are extrapolated',
-    });
-  }
   const series = seriesOf(coefficients, values);
-  const bad = firstInvalid(series, vMax);
-  if (bad) {
-    const code = bad.what === 'slope' ? 'POTENTIAL_LEVELS_NOT_INCREASING' : 'POTENTIAL_CONSTANTS_INVALID';
-    const what = bad.what === 'slope' ? 'G(v) stops increasing' : 'B(v) is no longer positive';
-    throw new ScienceError(code, `${what} near v = ${bad.v.toFixed(2)}, below vMax = ${vMax}`, {
-      vMax,
-      v: Number(bad.v.toFixed(3)),
-      vLimit: Math.max(Math.floor(bad.v) - 1, -1),
-    });
-  }
-  if (!has(2, 0)) {
-    warnings.push({
-      code: 'POTENTIAL_HARMONIC',
-      message: 'without omega_e_x_e the levels are harmonic; no Morse curve',
-    });
-  }
-  if (!has(1, 1)) {
-    warnings.push({ code: 'POTENTIAL_RIGID', message: 'without alpha_e, B(v) is taken as B_e at every level' });
-  }
-
+  checkValidUpTo(series, vMax);
+  warnings.push(...missingTermWarnings(coefficients));
   // ħ²/2μ in cm⁻¹ Å²: B μ r² = h/(8π²c m_u). The mass uncertainty (AME2020, ≲1e-9 relative) is neglected.
   const C = ROTATIONAL_FACTOR / input.reducedMass.value;
   const at = (vals: readonly number[], v: number): TurningPoints =>
     rkrTurningPoints({ series: seriesOf(coefficients, vals), hbar2Over2mu: C }, v);
-  const cov = input.covariance;
-
-  const levels: PotentialLevel[] = [];
-  for (let v = 0; v <= vMax; v++) {
-    const tp = at(values, v);
-    if (!(tp.rMin > 0) || !Number.isFinite(tp.rMax)) {
-      throw new ScienceError('POTENTIAL_CONSTANTS_INVALID', `the RKR integrals give no turning points at v = ${v}`, {
-        v,
-      });
-    }
-    const x = v + 0.5;
-    levels.push({
-      v,
-      energy: quantity(
-        tp.energy,
-        propagate((y) => vibrationalEnergy(seriesOf(coefficients, y), x), values, cov),
-        'cm-1',
-      ),
-      rMin: quantity(
-        tp.rMin,
-        propagate((y) => at(y, v).rMin, values, cov),
-        'angstrom',
-      ),
-      rMax: quantity(
-        tp.rMax,
-        propagate((y) => at(y, v).rMax, values, cov),
-        'angstrom',
-      ),
-      B: quantity(
-        rotationalConstant(series, x),
-        propagate((y) => rotationalConstant(seriesOf(coefficients, y), x), values, cov),
-        'cm-1',
-      ),
-    });
-  }
-
-  let morse: PotentialResult['morse'];
-  const iw = coefficients.findIndex((c) => c.k === 1 && c.l === 0);
-  const ix = coefficients.findIndex((c) => c.k === 2 && c.l === 0);
-  const ib = coefficients.findIndex((c) => c.k === 0 && c.l === 1);
-  if (ix >= 0 && (values[ix] as number) < 0) {
-    const idx = [iw, ix, ib];
-    const x3 = idx.map((i) => values[i] as number);
-    const c3 = subCovariance(cov, p, idx);
-    // Y20 = −ω_e x_e.
-    const params = (y: readonly number[]) => morseFromConstants(y[0] as number, -(y[1] as number), y[2] as number, C);
-    const m = params(x3);
-    morse = {
-      D_e: quantity(
-        m.depth,
-        propagate((y) => params(y).depth, x3, c3),
-        'cm-1',
-      ),
-      a: quantity(
-        m.range,
-        propagate((y) => params(y).range, x3, c3),
-        'angstrom-1',
-      ),
-      r_e: quantity(
-        m.equilibrium,
-        propagate((y) => params(y).equilibrium, x3, c3),
-        'angstrom',
-      ),
-    };
-  } else if (ix >= 0) {
-    warnings.push({ code: 'POTENTIAL_NO_MORSE', message: 'omega_e_x_e is not positive: no Morse curve' });
-  }
-
+  const levels = levelsWithUncertainties(input, values, series, at);
+  let morse = morseOf(coefficients, values, input.covariance, C, warnings);
   const rkr = rkrCurve(at, values, vMax);
   const morseCurve = morse ? morsePoints(morse, rkr) : [];
-  let verification: NumerovCheck | undefined;
-  if (input.verify !== false) {
-    // The curve is carried a little above vMax so that the tunnelling tails of the top levels see RKR points,
-    // not the continuation (a check of the curve only: the turning points reported stop at vMax).
-    let vTop = vMax + CHECK_MARGIN;
-    while (vTop > vMax && firstInvalid(series, vTop)) vTop -= 0.5;
-    verification = numerovCheck(series, C, vMax, vTop);
-    if (!verification) {
-      warnings.push({
-        code: 'POTENTIAL_NOT_VERIFIED',
-        message: 'the RKR curve is not single-valued on each side of the minimum; the Numerov check was skipped',
-      });
-    }
-  }
+  let verification = input.verify !== false ? verifyCurve(series, C, vMax, warnings) : undefined;
   const finite = (q: Quantity) => Number.isFinite(q.value) && Number.isFinite(q.uncertainty);
   if (!levels.every((l) => finite(l.energy) && finite(l.rMin) && finite(l.rMax) && finite(l.B))) {
     throw new ScienceError(
@@ -306,6 +179,183 @@ export function potentialCurves(input: PotentialInput): PotentialResult {
     ...(verification ? { verification } : {}),
     warnings,
   };
+}
+
+/** ω_e and B_e are needed; vMax must be an integer in range. */
+function checkInput({ coefficients, vMax }: PotentialInput): void {
+  const has = (k: number, l: number) => coefficients.some((c) => c.k === k && c.l === l);
+  if (!has(1, 0) || !has(0, 1)) {
+    throw new ScienceError('POTENTIAL_UNDETERMINED', 'turning points need at least omega_e (Y10) and B_e (Y01)', {
+      given: coefficients.map((c) => `Y${c.k}${c.l}`),
+    });
+  }
+  if (!Number.isInteger(vMax) || vMax < 0 || vMax > MAX_V) {
+    throw new ScienceError('INPUT_INVALID', `vMax must be an integer from 0 to ${MAX_V}`, { vMax });
+  }
+}
+
+/** How far vMax lies beyond the levels the data reached: refused when too far, warned when beyond or unknown. */
+function rangeWarnings({ vMax, vData }: PotentialInput): PotentialWarning[] {
+  if (vData === undefined) {
+    return [
+      {
+        code: 'POTENTIAL_RANGE_UNKNOWN',
+        message: 'the levels the constants were fitted to are not known: turning points above them are extrapolated',
+      },
+    ];
+  }
+  const limit = extrapolationLimit(vData);
+  if (vMax > limit) {
+    throw new ScienceError(
+      'POTENTIAL_EXTRAPOLATION_TOO_FAR',
+      `vMax = ${vMax} is far beyond the highest level the data reached (v = ${vData}); at most ${limit} is accepted`,
+      { vMax, vData, limit },
+    );
+  }
+  return vMax > vData
+    ? [
+        {
+          code: 'POTENTIAL_EXTRAPOLATED',
+          message: `levels above v = ${vData} (up to ${vMax}) use the expansion beyond the levels the data reached`,
+        },
+      ]
+    : [];
+}
+
+/** Refuses constants whose G(v) stops increasing or whose B(v) stops being positive below vMax. */
+function checkValidUpTo(series: VibrationalSeries, vMax: number): void {
+  const bad = firstInvalid(series, vMax);
+  if (!bad) return;
+  const code = bad.what === 'slope' ? 'POTENTIAL_LEVELS_NOT_INCREASING' : 'POTENTIAL_CONSTANTS_INVALID';
+  const what = bad.what === 'slope' ? 'G(v) stops increasing' : 'B(v) is no longer positive';
+  throw new ScienceError(code, `${what} near v = ${bad.v.toFixed(2)}, below vMax = ${vMax}`, {
+    vMax,
+    v: Number(bad.v.toFixed(3)),
+    vLimit: Math.max(Math.floor(bad.v) - 1, -1),
+  });
+}
+
+function missingTermWarnings(coefficients: readonly DunhamCoefficient[]): PotentialWarning[] {
+  const has = (k: number, l: number) => coefficients.some((c) => c.k === k && c.l === l);
+  const warnings: PotentialWarning[] = [];
+  if (!has(2, 0)) {
+    warnings.push({
+      code: 'POTENTIAL_HARMONIC',
+      message: 'without omega_e_x_e the levels are harmonic; no Morse curve',
+    });
+  }
+  if (!has(1, 1)) {
+    warnings.push({ code: 'POTENTIAL_RIGID', message: 'without alpha_e, B(v) is taken as B_e at every level' });
+  }
+  return warnings;
+}
+
+/** Energy, turning points and B of every level up to vMax, each with its uncertainty through the covariance. */
+function levelsWithUncertainties(
+  input: PotentialInput,
+  values: readonly number[],
+  series: VibrationalSeries,
+  at: (vals: readonly number[], v: number) => TurningPoints,
+): PotentialLevel[] {
+  const { coefficients, covariance: cov } = input;
+  const levels: PotentialLevel[] = [];
+  for (let v = 0; v <= input.vMax; v++) {
+    const tp = at(values, v);
+    if (!(tp.rMin > 0) || !Number.isFinite(tp.rMax)) {
+      throw new ScienceError('POTENTIAL_CONSTANTS_INVALID', `the RKR integrals give no turning points at v = ${v}`, {
+        v,
+      });
+    }
+    const x = v + 0.5;
+    levels.push({
+      v,
+      energy: quantity(
+        tp.energy,
+        propagate((y) => vibrationalEnergy(seriesOf(coefficients, y), x), values, cov),
+        'cm-1',
+      ),
+      rMin: quantity(
+        tp.rMin,
+        propagate((y) => at(y, v).rMin, values, cov),
+        'angstrom',
+      ),
+      rMax: quantity(
+        tp.rMax,
+        propagate((y) => at(y, v).rMax, values, cov),
+        'angstrom',
+      ),
+      B: quantity(
+        rotationalConstant(series, x),
+        propagate((y) => rotationalConstant(seriesOf(coefficients, y), x), values, cov),
+        'cm-1',
+      ),
+    });
+  }
+  return levels;
+}
+
+/** The Morse parameters from ω_e, ω_e x_e and B_e with their covariance, where ω_e x_e > 0 (Y20 < 0). */
+function morseOf(
+  coefficients: readonly DunhamCoefficient[],
+  values: readonly number[],
+  cov: PotentialInput['covariance'],
+  C: number,
+  warnings: PotentialWarning[],
+): PotentialResult['morse'] {
+  const iw = coefficients.findIndex((c) => c.k === 1 && c.l === 0);
+  const ix = coefficients.findIndex((c) => c.k === 2 && c.l === 0);
+  const ib = coefficients.findIndex((c) => c.k === 0 && c.l === 1);
+  if (ix < 0) return undefined;
+  if (!((values[ix] as number) < 0)) {
+    warnings.push({ code: 'POTENTIAL_NO_MORSE', message: 'omega_e_x_e is not positive: no Morse curve' });
+    return undefined;
+  }
+  const idx = [iw, ix, ib];
+  const x3 = idx.map((i) => values[i] as number);
+  const c3 = subCovariance(cov, coefficients.length, idx);
+  // Y20 = −ω_e x_e.
+  const params = (y: readonly number[]) => morseFromConstants(y[0] as number, -(y[1] as number), y[2] as number, C);
+  const m = params(x3);
+  return {
+    D_e: quantity(
+      m.depth,
+      propagate((y) => params(y).depth, x3, c3),
+      'cm-1',
+    ),
+    a: quantity(
+      m.range,
+      propagate((y) => params(y).range, x3, c3),
+      'angstrom-1',
+    ),
+    r_e: quantity(
+      m.equilibrium,
+      propagate((y) => params(y).equilibrium, x3, c3),
+      'angstrom',
+    ),
+  };
+}
+
+/**
+ * The Numerov check of the RKR curve. The curve is carried a little above vMax so that the tunnelling tails of the
+ * top levels see RKR points, not the continuation (a check of the curve only: the turning points reported stop at
+ * vMax).
+ */
+function verifyCurve(
+  series: VibrationalSeries,
+  C: number,
+  vMax: number,
+  warnings: PotentialWarning[],
+): NumerovCheck | undefined {
+  let vTop = vMax + CHECK_MARGIN;
+  while (vTop > vMax && firstInvalid(series, vTop)) vTop -= 0.5;
+  const verification = numerovCheck(series, C, vMax, vTop);
+  if (!verification) {
+    warnings.push({
+      code: 'POTENTIAL_NOT_VERIFIED',
+      message: 'the RKR curve is not single-valued on each side of the minimum; the Numerov check was skipped',
+    });
+  }
+  return verification;
 }
 
 /** Turning points every quarter level from the minimum to vMax, in order of r, for plotting. */
