@@ -146,58 +146,83 @@ export function analyseLineList(
   declared: Isotopologue | undefined,
   options: AnalyseOptions = {},
 ): Analysis {
+  const masses = givenMasses(peaks);
+  if (peaks.every((p) => p.assignment)) return fitAsGiven(peaks, masses, options);
+  const { species, identification, warnings } = resolveSpecies(peaks, declared, options);
+  if (constantsFor(species)) return assignFromLibrary(peaks, species, masses, options, identification, warnings);
+  return assignFromStructure(peaks, species, masses, options);
+}
+
+/** Reduced masses of the species the given assignments name. */
+function givenMasses(peaks: readonly PeakInput[]): Map<string, MassValue> {
   const masses = new Map<string, MassValue>();
   for (const p of peaks) {
     if (p.assignment && !masses.has(p.assignment.species))
       masses.set(p.assignment.species, reducedMass(parseSpecies(p.assignment.species)));
   }
-  const unassigned = peaks.filter((p) => !p.assignment).length;
-  if (unassigned === 0) {
-    const fit = fitLineListDetailed(peaks, masses, options.fit ?? {});
-    return {
-      result: withLabelSuggestions(fit, peaks),
-      assignment: { method: 'given', species: [...masses.keys()], bands: [], unexplained: [] },
-      notes: new Map(),
-    };
-  }
+  return masses;
+}
 
-  let species =
-    declared ??
-    (peaks.find((p) => p.assignment)?.assignment
-      ? parseSpecies(peaks.find((p) => p.assignment)?.assignment?.species as string)
-      : undefined);
-  let identification: IdentificationCandidate[] | undefined;
-  const extraWarnings: Warning[] = [];
-  if (!species) {
-    identification = identifySpecies(peaks, {
-      ...(options.temperature ? { temperature: options.temperature } : {}),
-      maxOffset: options.maxOffset ?? 0.5,
+/** Every line came assigned: fit them as they are. */
+function fitAsGiven(peaks: readonly PeakInput[], masses: Map<string, MassValue>, options: AnalyseOptions): Analysis {
+  const fit = fitLineListDetailed(peaks, masses, options.fit ?? {});
+  return {
+    result: withLabelSuggestions(fit, peaks),
+    assignment: { method: 'given', species: [...masses.keys()], bands: [], unexplained: [] },
+    notes: new Map(),
+  };
+}
+
+/**
+ * The species to assign against: the declared one, else that of the first given assignment, else the library's
+ * identification (its natural mixture), refused below the minimum score and warned when the runner-up is close.
+ */
+function resolveSpecies(
+  peaks: readonly PeakInput[],
+  declared: Isotopologue | undefined,
+  options: AnalyseOptions,
+): { species: Isotopologue; identification?: IdentificationCandidate[]; warnings: Warning[] } {
+  const firstGiven = peaks.find((p) => p.assignment)?.assignment;
+  const known = declared ?? (firstGiven ? parseSpecies(firstGiven.species) : undefined);
+  if (known) return { species: known, warnings: [] };
+  const identification = identifySpecies(peaks, {
+    ...(options.temperature ? { temperature: options.temperature } : {}),
+    maxOffset: options.maxOffset ?? 0.5,
+  });
+  const best = identification[0];
+  const min = options.minIdentificationScore ?? 0.5;
+  if (!best || best.score < min) {
+    throw new ScienceError(
+      'SPECIES_UNIDENTIFIED',
+      `no species of the reference library explains these lines (best: ${best ? `${best.species}, score ${best.score.toFixed(2)}` : 'none'}; needed ${min}); declare "species"`,
+      {
+        candidates: identification
+          .slice(0, 5)
+          .map((c) => ({ species: c.species, name: c.name, score: Number(c.score.toFixed(3)) })),
+      },
+    );
+  }
+  const warnings: Warning[] = [];
+  const runnerUp = identification[1];
+  if (runnerUp && runnerUp.score > 0.8 * best.score) {
+    warnings.push({
+      code: 'IDENTIFICATION_CLOSE',
+      message: `identified as ${best.name} (score ${best.score.toFixed(2)}), but ${runnerUp.name} scores ${runnerUp.score.toFixed(2)}`,
     });
-    const best = identification[0];
-    const min = options.minIdentificationScore ?? 0.5;
-    if (!best || best.score < min) {
-      throw new ScienceError(
-        'SPECIES_UNIDENTIFIED',
-        `no species of the reference library explains these lines (best: ${best ? `${best.species}, score ${best.score.toFixed(2)}` : 'none'}; needed ${min}); declare "species"`,
-        {
-          candidates: identification
-            .slice(0, 5)
-            .map((c) => ({ species: c.species, name: c.name, score: Number(c.score.toFixed(3)) })),
-        },
-      );
-    }
-    const runnerUp = identification[1];
-    if (runnerUp && runnerUp.score > 0.8 * best.score) {
-      extraWarnings.push({
-        code: 'IDENTIFICATION_CLOSE',
-        message: `identified as ${best.name} (score ${best.score.toFixed(2)}), but ${runnerUp.name} scores ${runnerUp.score.toFixed(2)}`,
-      });
-    }
-    const iso = parseSpecies(best.species);
-    // The natural mixture of the identified molecule.
-    species = elementsOnly(iso);
   }
+  // The natural mixture of the identified molecule.
+  return { species: elementsOnly(parseSpecies(best.species)), identification, warnings };
+}
 
+/** Assignment against the reference library's predictions for the species' isotopologues, then the fit. */
+function assignFromLibrary(
+  peaks: readonly PeakInput[],
+  species: Isotopologue,
+  masses: Map<string, MassValue>,
+  options: AnalyseOptions,
+  identification: IdentificationCandidate[] | undefined,
+  extraWarnings: readonly Warning[],
+): Analysis {
   // With intensities, the dynamic range of the scan says how weak an isotopologue or a line can be and still be in
   // it: down to half the weakest line's share of the strongest (never below 1e-6 in abundance, 1e-7 in intensity).
   const range = dynamicRange(peaks);
@@ -205,57 +230,47 @@ export function analyseLineList(
   const minRelativeIntensity = range ? Math.max(1e-7, Math.min(1e-4, 0.5 * range)) : 1e-4;
   const mixture = isotopologuesMeant(species, minAbundance);
   for (const m of mixture) if (!masses.has(m.iso.formula)) masses.set(m.iso.formula, reducedMass(m.iso));
+  const r = withWhatItMatches(peaks, species, options, () =>
+    assignAndFit(peaks, mixture, masses, {
+      minRelativeIntensity,
+      ...(options.temperature !== undefined ? { temperature: options.temperature } : {}),
+      ...(options.maxOffset !== undefined ? { maxOffset: options.maxOffset } : {}),
+      ...(options.fit ? { fit: options.fit } : {}),
+    }),
+  );
+  const suggested = withLabelSuggestions(r.fit, r.lines);
+  const result = { ...suggested, warnings: [...extraWarnings, ...r.warnings, ...suggested.warnings] };
+  return {
+    result,
+    assignment: {
+      method: 'reference',
+      species: mixture.map((m) => m.iso.formula),
+      ...(identification ? { identification } : {}),
+      ...(r.calibration ? { calibration: r.calibration } : {}),
+      bands: r.bands,
+      unexplained: r.unexplained,
+    },
+    notes: r.notes,
+  };
+}
 
-  if (constantsFor(species)) {
-    const r = withWhatItMatches(peaks, species, options, () =>
-      assignAndFit(peaks, mixture, masses, {
-        minRelativeIntensity,
-        ...(options.temperature !== undefined ? { temperature: options.temperature } : {}),
-        ...(options.maxOffset !== undefined ? { maxOffset: options.maxOffset } : {}),
-        ...(options.fit ? { fit: options.fit } : {}),
-      }),
-    );
-    const suggested = withLabelSuggestions(r.fit, r.lines);
-    const result = { ...suggested, warnings: [...extraWarnings, ...r.warnings, ...suggested.warnings] };
-    return {
-      result,
-      assignment: {
-        method: 'reference',
-        species: mixture.map((m) => m.iso.formula),
-        ...(identification ? { identification } : {}),
-        ...(r.calibration ? { calibration: r.calibration } : {}),
-        bands: r.bands,
-        unexplained: r.unexplained,
-      },
-      notes: r.notes,
-    };
-  }
-
-  // No reference constants for these elements: the band structure alone.
+/**
+ * No reference constants for these elements: the band structure alone numbers one band (refused when no structure
+ * is found or no numbering is clearly best), the numbering grows along its own fit, then the fit.
+ */
+function assignFromStructure(
+  peaks: readonly PeakInput[],
+  species: Isotopologue,
+  masses: Map<string, MassValue>,
+  options: AnalyseOptions,
+): Analysis {
   const band = options.structureBand ?? { upper: 1, lower: 0 };
   const free = peaks.map((p, index) => ({ p, index })).filter((x) => !x.p.assignment);
-  const s = assignByStructure(
+  const s = decisiveNumbering(
     free.map((x) => x.p),
-    species.formula,
-    reducedMass(species),
+    species,
     band,
   );
-  if (!s) {
-    throw new ScienceError(
-      'FIT_NO_ASSIGNED_LINES',
-      `${species.formula} has no reference constants, and no P/R band structure (a gap with two progressions of at least six lines in all) could be found in these lines`,
-      { species: species.formula },
-    );
-  }
-  const chosen = s.evidence[0] as NumberingEvidence;
-  const runnerUp = s.evidence[1];
-  if (!s.decisive) {
-    throw new ScienceError(
-      'NUMBERING_AMBIGUOUS',
-      `${species.formula} (not in the reference library): no numbering of its band is clearly best, evidence margin ${s.margin.toFixed(1)} where ${MIN_MARGIN} is needed; send intensities, the lines near the band origin, or a few given assignments. Best: ${describeEvidence(chosen)}. Next: ${runnerUp ? describeEvidence(runnerUp) : '–'}`,
-      { species: species.formula, margin: s.margin, numberings: s.evidence.slice(0, 4) },
-    );
-  }
   const extended = extendByFit(
     free.map((x) => x.p),
     s.assigned,
@@ -275,6 +290,65 @@ export function analyseLineList(
   masses.set(species.formula, reducedMass(species));
   const fit = fitLineListDetailed(lines, masses, options.fit ?? {});
   const unexplained = lines.flatMap((l, i) => (l.assignment ? [] : [i]));
+  const warnings = structureWarnings(
+    species,
+    band,
+    s,
+    unexplained,
+    free.every((x) => x.p.intensity !== undefined),
+  );
+  const suggested = withLabelSuggestions(fit, lines);
+  return {
+    result: { ...suggested, warnings: [...warnings, ...suggested.warnings] },
+    assignment: {
+      method: 'structure',
+      species: [species.formula],
+      bands: [{ species: species.formula, band: `${band.upper}-${band.lower}`, predicted: 0, matched: extended.size }],
+      unexplained,
+      numbering: {
+        chosen: s.evidence[0] as NumberingEvidence,
+        runnersUp: s.evidence.slice(1),
+        margin: Number.isFinite(s.margin) ? s.margin : null,
+      },
+    },
+    notes: new Map(),
+  };
+}
+
+type Numbering = NonNullable<ReturnType<typeof assignByStructure>>;
+
+/** The band's numbering from its structure, refused when none is found or none is clearly best. */
+function decisiveNumbering(free: readonly PeakInput[], species: Isotopologue, band: Band): Numbering {
+  const s = assignByStructure(free, species.formula, reducedMass(species), band);
+  if (!s) {
+    throw new ScienceError(
+      'FIT_NO_ASSIGNED_LINES',
+      `${species.formula} has no reference constants, and no P/R band structure (a gap with two progressions of at least six lines in all) could be found in these lines`,
+      { species: species.formula },
+    );
+  }
+  const chosen = s.evidence[0] as NumberingEvidence;
+  const runnerUp = s.evidence[1];
+  if (!s.decisive) {
+    throw new ScienceError(
+      'NUMBERING_AMBIGUOUS',
+      `${species.formula} (not in the reference library): no numbering of its band is clearly best, evidence margin ${s.margin.toFixed(1)} where ${MIN_MARGIN} is needed; send intensities, the lines near the band origin, or a few given assignments. Best: ${describeEvidence(chosen)}. Next: ${runnerUp ? describeEvidence(runnerUp) : '–'}`,
+      { species: species.formula, margin: s.margin, numberings: s.evidence.slice(0, 4) },
+    );
+  }
+  return s;
+}
+
+/** What a numbering from structure tells the caller: how it was chosen, what stayed out, what it rests on. */
+function structureWarnings(
+  species: Isotopologue,
+  band: Band,
+  s: Numbering,
+  unexplained: readonly number[],
+  withIntensities: boolean,
+): Warning[] {
+  const chosen = s.evidence[0] as NumberingEvidence;
+  const runnerUp = s.evidence[1];
   const warnings: Warning[] = [
     {
       code: 'ASSIGNED_FROM_STRUCTURE',
@@ -285,28 +359,15 @@ export function analyseLineList(
     warnings.push({
       code: 'LINES_UNEXPLAINED',
       message: `${unexplained.length} line(s) belong to no progression found; they stay unassigned`,
-      lines: unexplained,
+      lines: [...unexplained],
     });
   }
-  if (!free.every((x) => x.p.intensity !== undefined) && runnerUp && runnerUp.parts.origin === 0) {
+  if (!withIntensities && runnerUp && runnerUp.parts.origin === 0) {
     warnings.push({
       code: 'NUMBERING_UNCERTAIN',
       message:
         "without intensities, and with no line at the runner-up numbering's band origin to rule it out, the choice rests on the combination differences and the Kratzer relation: send intensities, or anchor a few lines with given assignments",
     });
   }
-  return {
-    result: (() => {
-      const suggested = withLabelSuggestions(fit, lines);
-      return { ...suggested, warnings: [...warnings, ...suggested.warnings] };
-    })(),
-    assignment: {
-      method: 'structure',
-      species: [species.formula],
-      bands: [{ species: species.formula, band: `${band.upper}-${band.lower}`, predicted: 0, matched: extended.size }],
-      unexplained,
-      numbering: { chosen, runnersUp: s.evidence.slice(1), margin: Number.isFinite(s.margin) ? s.margin : null },
-    },
-    notes: new Map(),
-  };
+  return warnings;
 }
