@@ -1,5 +1,4 @@
 import { bandStrengthGuess, relativeIntensity } from '../assign/intensity.js';
-import { type Quantity, quantity } from '../derive/quantity.js';
 import { ScienceError } from '../errors.js';
 import { dunhamBasis } from '../models/dunham.js';
 import { type Band, type Branch, upperJ } from '../models/transitions.js';
@@ -70,35 +69,63 @@ export function predictLines(
   constants: ConstantsInput | undefined,
   options: PredictionOptions,
 ): PredictionResult {
-  let source: PredictionResult['source'] = 'caller';
-  let input = constants;
-  if (!input) {
-    const entry = constantsFor(species);
-    if (!entry) {
-      throw new ScienceError(
-        'SPECIES_NOT_IN_LIBRARY',
-        `${species.formula} is not in the reference library: send its constants`,
-        {
-          species: species.formula,
-        },
-      );
-    }
-    source = 'library';
-    const values: Partial<Record<PredictionConstant, { value: number }>> = {};
-    for (const name of Object.keys(CONSTANT_TO_DUNHAM) as PredictionConstant[]) {
-      const c = entry.constants[name as keyof typeof entry.constants];
-      if (c) values[name] = { value: c.value };
-    }
-    input = { values };
+  const source: PredictionResult['source'] = constants ? 'caller' : 'library';
+  const c = constantsWithCovariance(constants ?? libraryConstants(species));
+  const raw = options.bands.flatMap((band) =>
+    (band.upper === band.lower ? (['R'] as Branch[]) : (['P', 'R'] as Branch[])).flatMap((branch) =>
+      branchLines(c, band, branch, options),
+    ),
+  );
+  const max = Math.max(...raw.map((r) => r.strength), 0);
+  return {
+    source,
+    constants: c.names.map((n, i) => ({
+      name: n,
+      value: c.x[i] as number,
+      uncertainty: c.known[i] ? Math.sqrt(c.cov[i * c.p + i] as number) : null,
+    })),
+    lines: raw.map(({ strength, ...l }) => ({ ...l, relativeIntensity: max > 0 ? strength / max : 0 })),
+  };
+}
+
+/** The library's equilibrium constants of the species, without uncertainties. */
+function libraryConstants(species: Isotopologue): ConstantsInput {
+  const entry = constantsFor(species);
+  if (!entry) {
+    throw new ScienceError(
+      'SPECIES_NOT_IN_LIBRARY',
+      `${species.formula} is not in the reference library: send its constants`,
+      {
+        species: species.formula,
+      },
+    );
   }
-  const names = (Object.keys(CONSTANT_TO_DUNHAM) as PredictionConstant[]).filter((n) => input?.values[n] !== undefined);
+  const values: Partial<Record<PredictionConstant, { value: number }>> = {};
+  for (const name of Object.keys(CONSTANT_TO_DUNHAM) as PredictionConstant[]) {
+    const c = entry.constants[name as keyof typeof entry.constants];
+    if (c) values[name] = { value: c.value };
+  }
+  return { values };
+}
+
+/** The constants given, their values, which have a known uncertainty, and their covariance (row-major p × p). */
+interface Constants {
+  readonly names: readonly PredictionConstant[];
+  readonly p: number;
+  readonly x: readonly number[];
+  readonly known: readonly boolean[];
+  readonly cov: Float64Array;
+}
+
+function constantsWithCovariance(input: ConstantsInput): Constants {
+  const names = (Object.keys(CONSTANT_TO_DUNHAM) as PredictionConstant[]).filter((n) => input.values[n] !== undefined);
   if (!names.includes('B_e') || !names.includes('omega_e')) {
     throw new ScienceError('INPUT_INVALID', 'constants need at least omega_e and B_e', { given: names });
   }
   const p = names.length;
-  const x = names.map((n) => input?.values[n]?.value as number);
+  const x = names.map((n) => input.values[n]?.value as number);
   // A constant without an uncertainty (and no covariance) has an unknown one, not a zero one.
-  const known = names.map((n) => input?.covariance !== undefined || input?.values[n]?.uncertainty !== undefined);
+  const known = names.map((n) => input.covariance !== undefined || input.values[n]?.uncertainty !== undefined);
   const cov = new Float64Array(p * p);
   if (input.covariance) {
     const idx = input.covariance.names.map((n) => names.indexOf(n));
@@ -120,66 +147,72 @@ export function predictLines(
     });
   } else {
     names.forEach((n, i) => {
-      const u = input?.values[n]?.uncertainty ?? 0;
+      const u = input.values[n]?.uncertainty ?? 0;
       cov[i * p + i] = u * u;
     });
   }
-  const energy = (v: number, j: number) =>
-    names.reduce((s, n, i) => {
-      const d = CONSTANT_TO_DUNHAM[n];
-      return s + d.sign * (x[i] as number) * dunhamBasis(d.k, d.l, v, j);
-    }, 0);
+  return { names, p, x, known, cov };
+}
+
+/** Term value E(v, J) from the constants. */
+function energyOf(c: Constants, v: number, j: number): number {
+  return c.names.reduce((s, n, i) => {
+    const d = CONSTANT_TO_DUNHAM[n];
+    return s + d.sign * (c.x[i] as number) * dunhamBasis(d.k, d.l, v, j);
+  }, 0);
+}
+
+/**
+ * One branch's lines, up to jMax. A power series in J(J+1) holds only while the term values it gives still rise
+ * with J: past the first J where the lower or upper level's energy stops rising (the centrifugal terms take over),
+ * the branch ends.
+ */
+function branchLines(
+  c: Constants,
+  band: Band,
+  branch: Branch,
+  options: PredictionOptions,
+): (PredictedTransition & { strength: number })[] {
   const T = options.temperature ?? 296;
   const jMax = options.jMax ?? 30;
-  const e00 = energy(0, 0);
-  const raw: (PredictedTransition & { strength: number })[] = [];
-  for (const band of options.bands) {
-    const branches: Branch[] = band.upper === band.lower ? ['R'] : ['P', 'R'];
-    for (const branch of branches) {
-      // A power series in J(J+1) holds only while the term values it gives still rise with J: past the first J
-      // where the lower or upper level's energy stops rising (the centrifugal terms take over), the branch ends.
-      let lastLower = Number.NEGATIVE_INFINITY;
-      let lastUpper = Number.NEGATIVE_INFINITY;
-      for (let j = branch === 'P' ? 1 : 0; j <= jMax; j++) {
-        const ju = upperJ({ branch, j });
-        const el = energy(band.lower, j);
-        const eu = energy(band.upper, ju);
-        if (!(el > lastLower && eu > lastUpper)) break;
-        lastLower = el;
-        lastUpper = eu;
-        const nu = eu - el;
-        const g = names.map((n) => {
-          const d = CONSTANT_TO_DUNHAM[n];
-          return d.sign * (dunhamBasis(d.k, d.l, band.upper, ju) - dunhamBasis(d.k, d.l, band.lower, j));
-        });
-        const unknown = g.some((ga, a) => ga !== 0 && !known[a]);
-        let variance = 0;
-        for (let a = 0; a < p; a++)
-          for (let b = 0; b < p; b++) variance += (g[a] as number) * (cov[a * p + b] as number) * (g[b] as number);
-        const s = nu > 0 ? bandStrengthGuess(band) * relativeIntensity(nu, branch, j, el - e00, T) : 0;
-        // A Boltzmann factor that overflows (a term value below the ground level) has no meaning: the branch ends.
-        if (!Number.isFinite(s) || !Number.isFinite(variance)) break;
-        const strength = s;
-        raw.push({
-          band: `${band.upper}-${band.lower}`,
-          branch,
-          j,
-          wavenumber: { value: nu, uncertainty: unknown ? null : Math.sqrt(Math.max(variance, 0)), unit: 'cm-1' },
-          relativeIntensity: 0,
-          lowerEnergy: el - e00,
-          strength,
-        });
-      }
-    }
+  const e00 = energyOf(c, 0, 0);
+  const out: (PredictedTransition & { strength: number })[] = [];
+  let lastLower = Number.NEGATIVE_INFINITY;
+  let lastUpper = Number.NEGATIVE_INFINITY;
+  for (let j = branch === 'P' ? 1 : 0; j <= jMax; j++) {
+    const ju = upperJ({ branch, j });
+    const el = energyOf(c, band.lower, j);
+    const eu = energyOf(c, band.upper, ju);
+    if (!(el > lastLower && eu > lastUpper)) break;
+    lastLower = el;
+    lastUpper = eu;
+    const nu = eu - el;
+    const { variance, unknown } = positionVariance(c, band, ju, j);
+    const s = nu > 0 ? bandStrengthGuess(band) * relativeIntensity(nu, branch, j, el - e00, T) : 0;
+    // A Boltzmann factor that overflows (a term value below the ground level) has no meaning: the branch ends.
+    if (!Number.isFinite(s) || !Number.isFinite(variance)) break;
+    out.push({
+      band: `${band.upper}-${band.lower}`,
+      branch,
+      j,
+      wavenumber: { value: nu, uncertainty: unknown ? null : Math.sqrt(Math.max(variance, 0)), unit: 'cm-1' },
+      relativeIntensity: 0,
+      lowerEnergy: el - e00,
+      strength: s,
+    });
   }
-  const max = Math.max(...raw.map((r) => r.strength), 0);
-  return {
-    source,
-    constants: names.map((n, i) => ({
-      name: n,
-      value: x[i] as number,
-      uncertainty: known[i] ? Math.sqrt(cov[i * p + i] as number) : null,
-    })),
-    lines: raw.map(({ strength, ...l }) => ({ ...l, relativeIntensity: max > 0 ? strength / max : 0 })),
-  };
+  return out;
+}
+
+/** gᵀ Σ g for one line, and whether it depends on a constant of unknown uncertainty. */
+function positionVariance(c: Constants, band: Band, ju: number, j: number): { variance: number; unknown: boolean } {
+  const g = c.names.map((n) => {
+    const d = CONSTANT_TO_DUNHAM[n];
+    return d.sign * (dunhamBasis(d.k, d.l, band.upper, ju) - dunhamBasis(d.k, d.l, band.lower, j));
+  });
+  const unknown = g.some((ga, a) => ga !== 0 && !c.known[a]);
+  let variance = 0;
+  for (let a = 0; a < c.p; a++)
+    for (let b = 0; b < c.p; b++) variance += (g[a] as number) * (c.cov[a * c.p + b] as number) * (g[b] as number);
+  return { variance, unknown };
 }
