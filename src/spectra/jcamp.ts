@@ -235,10 +235,42 @@ export interface JcampLimits {
 }
 
 export function parseJcamp(text: string, limits: JcampLimits = {}): JcampData {
-  const maxPoints = limits.maxPoints ?? 5_000_000;
   const lines = text.split(/\r\n|\r|\n/);
+  const block = readLabels(lines);
+  const { labels, dataLabel } = block;
+  if (!labels.has('TITLE')) fail(1, 'the file does not start with ##TITLE= (is it JCAMP-DX?)');
+  if (dataLabel === undefined) fail(lines.length, 'no ##XYDATA=, ##XYPOINTS= or ##PEAK TABLE= block');
+  const num = numberOf(labels);
+  const head: DataHead = {
+    xFactor: num('XFACTOR', 1),
+    yFactor: num('YFACTOR', 1),
+    xUnits: labels.get('XUNITS') ?? '1/CM',
+    yUnits: labels.get('YUNITS') ?? 'ABSORBANCE',
+    title: labels.get('TITLE') ?? '',
+    labels,
+  };
+  const maxPoints = limits.maxPoints ?? 5_000_000;
+  if (dataLabel === 'XYPOINTS' || dataLabel === 'PEAKTABLE') {
+    const maxPairs = dataLabel === 'PEAKTABLE' ? (limits.maxPeaks ?? maxPoints) : maxPoints;
+    return readPairs(lines, { ...block, dataLabel }, head, maxPairs);
+  }
+  return readXyData(lines, block, head, num, maxPoints);
+}
+
+/** The labelled data records before the data block, and where that block starts and ends. */
+interface LabelledBlock {
+  readonly labels: Map<string, string>;
+  readonly dataLabel: 'XYDATA' | 'XYPOINTS' | 'PEAKTABLE' | undefined;
+  /** The block's form, e.g. "(X++(Y..Y))", without spaces, upper case. */
+  readonly dataForm: string;
+  /** First and one-past-last line of the block. */
+  readonly dataStart: number;
+  readonly dataEnd: number;
+}
+
+function readLabels(lines: readonly string[]): LabelledBlock {
   const labels = new Map<string, string>();
-  let dataLabel: string | undefined;
+  let dataLabel: LabelledBlock['dataLabel'];
   let dataForm = '';
   let dataStart = -1;
   let dataEnd = lines.length;
@@ -264,9 +296,12 @@ export function parseJcamp(text: string, limits: JcampLimits = {}): JcampData {
     }
     if (!labels.has(label)) labels.set(label, value);
   }
-  if (!labels.has('TITLE')) fail(1, 'the file does not start with ##TITLE= (is it JCAMP-DX?)');
-  if (dataLabel === undefined) fail(lines.length, 'no ##XYDATA=, ##XYPOINTS= or ##PEAK TABLE= block');
-  const num = (label: string, fallback?: number): number => {
+  return { labels, dataLabel, dataForm, dataStart, dataEnd };
+}
+
+/** A numeric label's value; a missing one takes the fallback or is refused. */
+function numberOf(labels: ReadonlyMap<string, string>): (label: string, fallback?: number) => number {
+  return (label, fallback) => {
     const v = labels.get(label);
     if (v === undefined || v === '') {
       if (fallback !== undefined) return fallback;
@@ -276,40 +311,62 @@ export function parseJcamp(text: string, limits: JcampLimits = {}): JcampData {
     if (!Number.isFinite(x)) fail(1, `##${label}=${v} is not a number`);
     return x;
   };
-  const xFactor = num('XFACTOR', 1);
-  const yFactor = num('YFACTOR', 1);
-  const xUnits = labels.get('XUNITS') ?? '1/CM';
-  const yUnits = labels.get('YUNITS') ?? 'ABSORBANCE';
-  const title = labels.get('TITLE') ?? '';
+}
 
-  if (dataLabel === 'XYPOINTS' || dataLabel === 'PEAKTABLE') {
-    const pairs: { x: number; y?: number }[] = [];
-    const maxPairs = dataLabel === 'PEAKTABLE' ? (limits.maxPeaks ?? maxPoints) : maxPoints;
-    const width = tupleWidth(dataForm);
-    for (let i = dataStart; i < dataEnd; i++) {
-      for (const fields of tuplesOfLine(lines[i] as string, width, i + 1)) {
-        const x = Number(fields[0]);
-        const y = fields[1] !== undefined && fields[1] !== '?' ? Number(fields[1]) : undefined;
-        if (!Number.isFinite(x) || (y !== undefined && !Number.isFinite(y)))
-          fail(i + 1, `"${fields.join(',')}" is not an X,Y pair`);
-        if (pairs.length >= maxPairs)
-          fail(i + 1, `more than ${maxPairs} ${dataLabel === 'PEAKTABLE' ? 'peaks' : 'points'}`);
-        pairs.push({ x: x * xFactor, ...(y !== undefined ? { y: y * yFactor } : {}) });
-      }
+/** What every data block is read with. */
+interface DataHead {
+  readonly xFactor: number;
+  readonly yFactor: number;
+  readonly xUnits: string;
+  readonly yUnits: string;
+  readonly title: string;
+  readonly labels: Map<string, string>;
+}
+
+/** ##XYPOINTS= or ##PEAK TABLE=: X,Y pairs (Y may be "?" or missing in a peak table). */
+function readPairs(
+  lines: readonly string[],
+  block: LabelledBlock & { readonly dataLabel: 'XYPOINTS' | 'PEAKTABLE' },
+  head: DataHead,
+  maxPairs: number,
+): JcampData {
+  const { dataLabel, dataStart, dataEnd } = block;
+  const { xFactor, yFactor, xUnits, yUnits, title, labels } = head;
+  const pairs: { x: number; y?: number }[] = [];
+  const width = tupleWidth(block.dataForm);
+  for (let i = dataStart; i < dataEnd; i++) {
+    for (const fields of tuplesOfLine(lines[i] as string, width, i + 1)) {
+      const x = Number(fields[0]);
+      const y = fields[1] !== undefined && fields[1] !== '?' ? Number(fields[1]) : undefined;
+      if (!Number.isFinite(x) || (y !== undefined && !Number.isFinite(y)))
+        fail(i + 1, `"${fields.join(',')}" is not an X,Y pair`);
+      if (pairs.length >= maxPairs)
+        fail(i + 1, `more than ${maxPairs} ${dataLabel === 'PEAKTABLE' ? 'peaks' : 'points'}`);
+      pairs.push({ x: x * xFactor, ...(y !== undefined ? { y: y * yFactor } : {}) });
     }
-    if (pairs.length === 0) fail(dataStart, 'the data block is empty');
-    if (dataLabel === 'PEAKTABLE') return { kind: 'peaks', peaks: pairs, xUnits, yUnits, title, labels };
-    return {
-      kind: 'spectrum',
-      x: Float64Array.from(pairs, (p) => p.x),
-      y: Float64Array.from(pairs, (p) => p.y ?? Number.NaN),
-      xUnits,
-      yUnits,
-      title,
-      labels,
-    };
   }
+  if (pairs.length === 0) fail(dataStart, 'the data block is empty');
+  if (dataLabel === 'PEAKTABLE') return { kind: 'peaks', peaks: pairs, xUnits, yUnits, title, labels };
+  return {
+    kind: 'spectrum',
+    x: Float64Array.from(pairs, (p) => p.x),
+    y: Float64Array.from(pairs, (p) => p.y ?? Number.NaN),
+    xUnits,
+    yUnits,
+    title,
+    labels,
+  };
+}
 
+/** ##XYDATA=(X++(Y..Y)) in any ASDF form, every line's X checked against the point it starts at. */
+function readXyData(
+  lines: readonly string[],
+  block: LabelledBlock,
+  head: DataHead,
+  num: (label: string, fallback?: number) => number,
+  maxPoints: number,
+): JcampData {
+  const { dataForm, dataStart, dataEnd } = block;
   // Some writers drop the closing parenthesis: "(X++(Y..Y)".
   if (!/^\(X\+\+\(Y\.\.Y\)\)?$/.test(dataForm))
     fail(dataStart, `##XYDATA=${dataForm} is not supported (only (X++(Y..Y)))`);
@@ -318,49 +375,64 @@ export function parseJcamp(text: string, limits: JcampLimits = {}): JcampData {
   const nPoints = num('NPOINTS');
   if (!Number.isInteger(nPoints) || nPoints < 2) fail(1, `##NPOINTS=${nPoints} must be a whole number ≥ 2`);
   if (nPoints > maxPoints) fail(1, `##NPOINTS=${nPoints} is more than the ${maxPoints} points accepted`);
-  const deltaX = (lastX - firstX) / (nPoints - 1);
+  const grid = { firstX, deltaX: (lastX - firstX) / (nPoints - 1), nPoints };
   const ys = new Float64Array(nPoints);
-  let count = 0;
-  let pendingCheck: number | undefined;
-  for (let i = dataStart; i < dataEnd; i++) {
-    const text = (lines[i] as string).replace(/\$\$.*$/, '');
-    if (text.trim() === '') continue;
-    const tokens = tokenizeAsdf(text, i + 1);
-    const first = tokens[0];
-    if (!first || first.kind !== 'abs') fail(i + 1, 'a data line must start with its X value');
-    const x = first.value * xFactor;
-    // This line may hold the points still missing, plus the repeated Y of a DIF check.
-    const budget = nPoints - count + (pendingCheck !== undefined ? 1 : 0);
-    const { values, endsWithDif } = expand(tokens.slice(1), i + 1, budget);
-    let vs = values;
-    const checked = pendingCheck;
-    if (pendingCheck !== undefined) {
-      // DIF form: this line's first Y repeats the last Y of the line before (the Y-value check).
-      if (vs.length === 0 || Math.abs((vs[0] as number) - pendingCheck) > 1e-9 * Math.max(1, Math.abs(pendingCheck))) {
-        fail(
-          i + 1,
-          `DIF Y-value check failed: the line starts with ${vs[0]} but the line before ended with ${pendingCheck}`,
-        );
-      }
-      vs = vs.slice(1);
-    }
-    // X of the line must match the point it starts at (within half a step); after a Y-value check, that point is
-    // the last one of the line before.
-    const expectedX = firstX + (checked !== undefined ? count - 1 : count) * deltaX;
-    // Writers round or truncate the X that starts a line to the digits they print, so the check allows half a
-    // step plus one unit of the last digit written (truncation errs by up to one unit).
-    const tolerance = Math.abs(deltaX) * 0.5 + writtenResolution(text) * Math.abs(xFactor) + 1e-9 * Math.abs(expectedX);
-    if (Math.abs(x - expectedX) > tolerance) {
-      fail(i + 1, `X = ${x} does not continue the data (expected ${expectedX.toPrecision(10)} for point ${count + 1})`);
-    }
-    for (const v of vs) {
-      if (count >= nPoints) fail(i + 1, `more Y values than ##NPOINTS=${nPoints}`);
-      ys[count++] = v * yFactor;
-    }
-    // The last Y of a DIF line is a data point here and is repeated, as a check, at the start of the next line.
-    pendingCheck = endsWithDif ? (values[values.length - 1] as number) : undefined;
-  }
-  if (count !== nPoints) fail(dataEnd, `${count} Y values read, ##NPOINTS= says ${nPoints}`);
-  const x = Float64Array.from({ length: nPoints }, (_, k) => firstX + k * deltaX);
+  const state = { count: 0, pendingCheck: undefined as number | undefined };
+  for (let i = dataStart; i < dataEnd; i++) readDataLine(lines[i] as string, i + 1, grid, head, ys, state);
+  if (state.count !== nPoints) fail(dataEnd, `${state.count} Y values read, ##NPOINTS= says ${nPoints}`);
+  const x = Float64Array.from({ length: nPoints }, (_, k) => firstX + k * grid.deltaX);
+  const { xUnits, yUnits, title, labels } = head;
   return { kind: 'spectrum', x, y: ys, xUnits, yUnits, title, labels };
+}
+
+/** One line of an (X++(Y..Y)) block: its X checked, its Y values (after a DIF line's check value) appended. */
+function readDataLine(
+  line: string,
+  lineNo: number,
+  grid: { readonly firstX: number; readonly deltaX: number; readonly nPoints: number },
+  head: DataHead,
+  ys: Float64Array,
+  state: { count: number; pendingCheck: number | undefined },
+): void {
+  const { firstX, deltaX, nPoints } = grid;
+  const { xFactor, yFactor } = head;
+  const text = line.replace(/\$\$.*$/, '');
+  if (text.trim() === '') return;
+  const tokens = tokenizeAsdf(text, lineNo);
+  const first = tokens[0];
+  if (!first || first.kind !== 'abs') fail(lineNo, 'a data line must start with its X value');
+  const x = first.value * xFactor;
+  const { pendingCheck } = state;
+  // This line may hold the points still missing, plus the repeated Y of a DIF check.
+  const budget = nPoints - state.count + (pendingCheck !== undefined ? 1 : 0);
+  const { values, endsWithDif } = expand(tokens.slice(1), lineNo, budget);
+  let vs = values;
+  if (pendingCheck !== undefined) {
+    // DIF form: this line's first Y repeats the last Y of the line before (the Y-value check).
+    if (vs.length === 0 || Math.abs((vs[0] as number) - pendingCheck) > 1e-9 * Math.max(1, Math.abs(pendingCheck))) {
+      fail(
+        lineNo,
+        `DIF Y-value check failed: the line starts with ${vs[0]} but the line before ended with ${pendingCheck}`,
+      );
+    }
+    vs = vs.slice(1);
+  }
+  // X of the line must match the point it starts at (within half a step); after a Y-value check, that point is
+  // the last one of the line before.
+  const expectedX = firstX + (pendingCheck !== undefined ? state.count - 1 : state.count) * deltaX;
+  // Writers round or truncate the X that starts a line to the digits they print, so the check allows half a
+  // step plus one unit of the last digit written (truncation errs by up to one unit).
+  const tolerance = Math.abs(deltaX) * 0.5 + writtenResolution(text) * Math.abs(xFactor) + 1e-9 * Math.abs(expectedX);
+  if (Math.abs(x - expectedX) > tolerance) {
+    fail(
+      lineNo,
+      `X = ${x} does not continue the data (expected ${expectedX.toPrecision(10)} for point ${state.count + 1})`,
+    );
+  }
+  for (const v of vs) {
+    if (state.count >= nPoints) fail(lineNo, `more Y values than ##NPOINTS=${nPoints}`);
+    ys[state.count++] = v * yFactor;
+  }
+  // The last Y of a DIF line is a data point here and is repeated, as a check, at the start of the next line.
+  state.pendingCheck = endsWithDif ? (values[values.length - 1] as number) : undefined;
 }
