@@ -252,6 +252,7 @@ export interface components {
           /** @enum {string} */
           kind: "lower" | "upper";
           L?: components["schemas"]["Quantity"];
+          M?: components["schemas"]["Quantity"];
           points: {
               j: number;
               residual: number;
@@ -309,6 +310,8 @@ export interface components {
           D?: components["schemas"]["Quantity"];
           H?: components["schemas"]["Quantity"];
           L?: components["schemas"]["Quantity"];
+          /** @description M_v, the x⁵ term (pure-rotation lines to high J) */
+          M?: components["schemas"]["Quantity"];
           /** @description effective bond length from B_v (absent when B_v is not positive) */
           r?: components["schemas"]["Quantity"];
           species: string;
@@ -435,7 +438,7 @@ export interface components {
       lean?: boolean;
       /** @description also fit U_kl across isotopologues (default false) */
       massReducedDunham?: boolean;
-      /** @description 1 = B, 2 = D, 3 = H, 4 = L (default 4) */
+      /** @description 1 = B, 2 = D, 3 = H, 4 = L, 5 = M (default 5) */
       maxCentrifugalOrder?: number;
       /** @description largest instrument wavenumber offset searched by automatic assignment, cm-1 (default 0.5) */
       maxOffset?: number;
@@ -492,6 +495,7 @@ export interface components {
           /** @enum {string} */
           kind: "lower" | "upper";
           L?: components["schemas"]["Quantity"];
+          M?: components["schemas"]["Quantity"];
           points: {
               j: number;
               residual: number;
@@ -550,6 +554,8 @@ export interface components {
           D?: components["schemas"]["Quantity"];
           H?: components["schemas"]["Quantity"];
           L?: components["schemas"]["Quantity"];
+          /** @description M_v, the x⁵ term (pure-rotation lines to high J) */
+          M?: components["schemas"]["Quantity"];
           /** @description effective bond length from B_v (absent when B_v is not positive) */
           r?: components["schemas"]["Quantity"];
           species: string;

@@ -81,6 +81,7 @@ export function fitConstantsRows(r: FitResponse): Cell[][] {
     add('level', l.species, of, 'D', l.D);
     add('level', l.species, of, 'H', l.H);
     add('level', l.species, of, 'L', l.L);
+    add('level', l.species, of, 'M', l.M);
     add('level', l.species, of, 'r', l.r);
   }
   for (const e of r.equilibrium) {

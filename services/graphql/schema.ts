@@ -183,6 +183,7 @@ export const typeDefs = /* GraphQL */ `
     D: Quantity
     H: Quantity
     L: Quantity
+    M: Quantity
     r: Quantity
   }
 

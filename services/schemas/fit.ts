@@ -95,7 +95,13 @@ export const FitOptionsSchema = z
       .lt(0.5)
       .optional()
       .describe('F-test p-value below which an added term is kept (default 0.01)'),
-    maxCentrifugalOrder: z.number().int().min(1).max(4).optional().describe('1 = B, 2 = D, 3 = H, 4 = L (default 4)'),
+    maxCentrifugalOrder: z
+      .number()
+      .int()
+      .min(1)
+      .max(5)
+      .optional()
+      .describe('1 = B, 2 = D, 3 = H, 4 = L, 5 = M (default 5)'),
     massReducedDunham: z.boolean().optional().describe('also fit U_kl across isotopologues (default false)'),
     temperature: z
       .number()
@@ -377,6 +383,7 @@ const fitFields = {
       D: Q.optional(),
       H: Q.optional(),
       L: Q.optional(),
+      M: Q.optional().describe('M_v, the x⁵ term (pure-rotation lines to high J)'),
       r: Q.optional().describe('effective bond length from B_v (absent when B_v is not positive)'),
     }),
   ),
@@ -419,6 +426,7 @@ const fitFields = {
       D: Q.optional(),
       H: Q.optional(),
       L: Q.optional(),
+      M: Q.optional(),
       rms: z.number(),
       degreesOfFreedom: z.number().int(),
       fitted: Q.describe('B of the same level from the full fit'),

@@ -1,5 +1,6 @@
 import { type Quantity, quantity } from '../derive/quantity.js';
 import { solveLeastSquares } from '../linalg/least-squares.js';
+import { CENTRIFUGAL_SIGN, MAX_CENTRIFUGAL_ORDER } from '../models/level-model.js';
 import type { Observation } from '../models/linear-model.js';
 import type { UncertaintyMode } from './engine.js';
 
@@ -28,6 +29,7 @@ export interface CombinationDifferenceFit {
   readonly D?: Quantity;
   readonly H?: Quantity;
   readonly L?: Quantity;
+  readonly M?: Quantity;
   readonly rms: number;
   readonly degreesOfFreedom: number;
 }
@@ -48,14 +50,20 @@ function mean(obs: readonly Observation[]): Mean {
   return { value: swx / sw, variance: 1 / sw };
 }
 
-/** Sign of each power of x in the term formula (+B x − D x² + H x³ + L x⁴), as in the level model. */
-const SIGN = [1, -1, 1, 1];
+/**
+ * A combination-difference fit and the standard uncertainty its B would have with the lines' own σ taken as they
+ * are (s² = 1), whatever the uncertainty mode: what a comparison must not undercut (see cross-checks.ts).
+ */
+export interface CombinationDifferenceResult {
+  readonly fit: CombinationDifferenceFit;
+  readonly statedUncertaintyOfB: number;
+}
 
 export function fitCombinationDifferences(
   observations: readonly Observation[],
   orderOf: (species: string, v: number) => number,
   mode: UncertaintyMode,
-): CombinationDifferenceFit[] {
+): CombinationDifferenceResult[] {
   const groups = new Map<
     string,
     { species: string; upper: number; lower: number; r: Map<number, Observation[]>; p: Map<number, Observation[]> }
@@ -73,7 +81,7 @@ export function fitCombinationDifferences(
     list.push(o);
     branch.set(o.lowerJ, list);
   }
-  const out: CombinationDifferenceFit[] = [];
+  const out: CombinationDifferenceResult[] = [];
   for (const g of groups.values()) {
     const band = `${g.upper}-${g.lower}`;
     const lowerPts: { j: number; m: Mean }[] = [];
@@ -100,8 +108,11 @@ export function fitCombinationDifferences(
       ['lower', lowerPts, g.lower],
       ['upper', upperPts, g.upper],
     ] as const) {
-      const fit = fitDifferences(pts, Math.min(orderOf(g.species, v), 4), mode);
-      if (fit) out.push({ species: g.species, band, kind, v, ...fit });
+      const fit = fitDifferences(pts, Math.min(orderOf(g.species, v), MAX_CENTRIFUGAL_ORDER), mode);
+      if (fit) {
+        const { statedUncertaintyOfB, ...rest } = fit;
+        out.push({ fit: { species: g.species, band, kind, v, ...rest }, statedUncertaintyOfB });
+      }
     }
   }
   return out;
@@ -111,7 +122,7 @@ function fitDifferences(
   pts: readonly { j: number; m: Mean }[],
   wantedOrder: number,
   mode: UncertaintyMode,
-): Omit<CombinationDifferenceFit, 'species' | 'band' | 'kind' | 'v'> | undefined {
+): (Omit<CombinationDifferenceFit, 'species' | 'band' | 'kind' | 'v'> & { statedUncertaintyOfB: number }) | undefined {
   const n = pts.length;
   // Keep at least two degrees of freedom, so that the check can say something.
   const order = Math.min(wantedOrder, n - 2);
@@ -120,7 +131,8 @@ function fitDifferences(
   pts.forEach((pt, i) => {
     const xu = (pt.j + 1) * (pt.j + 2);
     const xl = (pt.j - 1) * pt.j;
-    for (let l = 1; l <= order; l++) design[(l - 1) * n + i] = (SIGN[l - 1] as number) * (xu ** l - xl ** l);
+    for (let l = 1; l <= order; l++)
+      design[(l - 1) * n + i] = (CENTRIFUGAL_SIGN[l - 1] as number) * (xu ** l - xl ** l);
   });
   const r = solveLeastSquares({
     rows: n,
@@ -147,7 +159,9 @@ function fitDifferences(
     ...(order >= 2 ? { D: q(1) } : {}),
     ...(order >= 3 ? { H: q(2) } : {}),
     ...(order >= 4 ? { L: q(3) } : {}),
+    ...(order >= 5 ? { M: q(4) } : {}),
     rms: Math.sqrt(ss / n),
     degreesOfFreedom: dof,
+    statedUncertaintyOfB: Math.sqrt(r.covariance[0] as number),
   };
 }

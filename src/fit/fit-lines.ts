@@ -1,7 +1,7 @@
 import { crossChecks, equilibriumFromDunham } from '../derive/equilibrium.js';
 import { quantity } from '../derive/quantity.js';
 import { ScienceError } from '../errors.js';
-import { type LevelStructure, levelStructure } from '../models/level-model.js';
+import { type LevelStructure, levelStructure, MAX_CENTRIFUGAL_ORDER } from '../models/level-model.js';
 import type { Observation } from '../models/linear-model.js';
 import { formatBand, type Transition, upperJ } from '../models/transitions.js';
 import type { MassValue } from '../species/reduced-mass.js';
@@ -38,7 +38,7 @@ const DEFAULTS = {
   rejectionThreshold: 4,
   maxRejectedFraction: 0.2,
   termSignificance: 0.01,
-  maxCentrifugalOrder: 4,
+  maxCentrifugalOrder: MAX_CENTRIFUGAL_ORDER,
   massReducedDunham: false,
   levelsOnly: false,
 };
@@ -76,7 +76,7 @@ export function fitLineListDetailed(
 ): DetailedFit {
   const opt = { ...DEFAULTS, ...options };
   const settings: FitSettings = {
-    maxOrder: Math.max(1, Math.min(4, Math.floor(opt.maxCentrifugalOrder))),
+    maxOrder: Math.max(1, Math.min(MAX_CENTRIFUGAL_ORDER, Math.floor(opt.maxCentrifugalOrder))),
     alpha: opt.termSignificance,
   };
   const prepared = prepareObservations(input, masses, opt.uncertaintyMode, settings);
@@ -107,7 +107,7 @@ export function fitLineListDetailed(
       : undefined;
   const cds = opt.levelsOnly
     ? { checks: [], warnings: [] }
-    : combinationChecks(fit, level.orders, kept.mode, report.quantityOf);
+    : combinationChecks(fit, level.orders, kept.mode, report.quantityOf, reducedChiSquare(selected));
   warnings.push(...cds.warnings);
   checkRepeats(selected, prepared.given > 0, warnings);
   absoluteScaleWarnings(selected, kept.mode, warnings);
@@ -141,7 +141,7 @@ export function fitLineListDetailed(
 }
 
 interface FitSettings {
-  /** Highest centrifugal order (1 = B only … 4 = L). */
+  /** Highest centrifugal order (1 = B only … 5 = M). */
   readonly maxOrder: number;
   /** Significance of the term test. */
   readonly alpha: number;

@@ -134,7 +134,7 @@ export function reportLevels(
       const T = quantityOf(`${s}|T|${v}`);
       const extra: Record<string, Quantity> = {};
       const terms: string[] = ['B'];
-      for (const kind of ['D', 'H', 'L'] as const) {
+      for (const kind of ['D', 'H', 'L', 'M'] as const) {
         if (constrained.has(`${s}|${kind}|${v}`)) continue;
         const x = quantityOf(`${s}|${kind}|${v}`);
         if (x) {

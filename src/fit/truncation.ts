@@ -1,6 +1,12 @@
 import { type Quantity, quantity } from '../derive/quantity.js';
 import type { DunhamTerm } from '../models/dunham.js';
-import { levelModel, levelParameters, levelStructure } from '../models/level-model.js';
+import {
+  levelModel,
+  levelParameters,
+  levelStructure,
+  MAX_CENTRIFUGAL_ORDER,
+  ROTATIONAL_KINDS,
+} from '../models/level-model.js';
 import { constantsFor } from '../species/library.js';
 import { parseSpecies } from '../species/parse.js';
 import { isRankDeficient, type Prior, reducedChiSquare, solveModelWithPriors, type UncertaintyMode } from './engine.js';
@@ -96,9 +102,18 @@ export const hFromRelation = (D: number, B: number, alpha: number, omega: number
 export const kratzerD = (B: number, omega: number): number => (4 * B ** 3) / omega ** 2;
 
 /**
- * Stage 3b: constrain the next centrifugal term (D when only B was kept, H when D was) of every level, re-solving
- * the kept model with the priors. Levels fitted to H or L are left alone (L's effect below the J where H is
- * determined is negligible). Returns the selection unchanged when no prior can be formed.
+ * Width of the prior of a high-order centrifugal term (L_v next to H_v, M_v next to L_v), in units of κ_v² times
+ * the size of the term below it: 0 ± 5 κ_v² max(|X|, σ_X), κ_v = B_v/ω_e, the rotational analogue of the scale
+ * prior of the Dunham terms. Each power of x scales the coefficient by about κ² times a number of order one to
+ * ten (¹²C¹⁶O v = 0: D/B ≈ 4κ², H/D ≈ 1.2κ², L/H ≈ 8κ², the last from a fit of the database pure-rotation lines to
+ * J = 80, which this covers at 1.6σ as the Dunham scale prior covers β_e of HCl).
+ */
+export const HIGH_ORDER_PRIOR_FACTOR = 5;
+
+/**
+ * Stage 3b: constrain the next centrifugal term of every level (D when only B was kept, H when D was, L when H
+ * was, M when L was), re-solving the kept model with the priors. Levels fitted to M (the model's highest term)
+ * are left alone. Returns the selection unchanged when no prior can be formed.
  */
 export function constrainLevelModel(
   level: LevelSelection,
@@ -134,7 +149,7 @@ export function constrainLevelModel(
     }
     for (const v of vs) {
       const order = level.orders.get(`${s}|${v}`) ?? 1;
-      if (order >= 3) continue;
+      if (order >= MAX_CENTRIFUGAL_ORDER) continue;
       const B = value(`${s}|B|${v}`) as number;
       const name = (kind: string) => `${kind}_${v}${structure.species.length > 1 ? `(${s})` : ''}`;
       if (order === 1) {
@@ -150,6 +165,26 @@ export function constrainLevelModel(
             ref.D_e !== undefined
               ? 'D_e of the reference library, ± 50 %'
               : `Kratzer D ≈ 4B³/ω_e² with B_${v} and ${omegaBasis}, ± 50 %`,
+        });
+      } else if (order >= 3) {
+        const below = ROTATIONAL_KINDS[order - 1] as string;
+        const next = ROTATIONAL_KINDS[order] as string;
+        const i = fit.model.parameters.findIndex((p) => p.key === `${s}|${below}|${v}`);
+        if (i < 0 || omega === undefined || !(omega > 0)) continue;
+        const size = Math.max(
+          Math.abs(fit.values[i] as number),
+          Math.sqrt(Math.max(fit.covariance[i * (fit.model.parameters.length + 1)] as number, 0)),
+        );
+        const kappa = B / omega;
+        const sigma = HIGH_ORDER_PRIOR_FACTOR * kappa * kappa * size;
+        if (!(sigma > 0) || !Number.isFinite(sigma)) continue;
+        priors.push({
+          key: `${s}|${next}|${v}`,
+          value: 0,
+          sigma,
+          name: name(next),
+          species: s,
+          basis: `not determined by the lines: 0 ± 5 (B_v/ω_e)² |${below}_v| (Dunham ordering, ${omegaBasis})`,
         });
       } else {
         // H_v varies little with v (H_v = H_e + O(κ H_e)): one H_e for every level, from the library's

@@ -28,7 +28,7 @@ export interface FitOptions {
   readonly maxRejectedFraction?: number;
   /** p-value below which an added term counts as supported by the data (F test). Default 0.01. */
   readonly termSignificance?: number;
-  /** Highest centrifugal term of the level model: 1 = B, 2 = D, 3 = H, 4 = L. Default 4. */
+  /** Highest centrifugal term of the level model: 1 = B, 2 = D, 3 = H, 4 = L, 5 = M. Default 5. */
   readonly maxCentrifugalOrder?: number;
   /** Also fit one mass-reduced Dunham model (U_kl) across isotopologues. Default false. */
   readonly massReducedDunham?: boolean;
@@ -117,6 +117,7 @@ export interface FitResult {
     readonly D?: Quantity;
     readonly H?: Quantity;
     readonly L?: Quantity;
+    readonly M?: Quantity;
     readonly r?: Quantity;
   }[];
   readonly equilibrium: readonly ({ readonly species: string } & EquilibriumConstants)[];

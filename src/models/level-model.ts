@@ -1,17 +1,19 @@
 import type { LinearModel, Observation, Parameter } from './linear-model.js';
 
 /**
- * The band-by-band level model: E_v(J) = T_v + B_v x − D_v x² + H_v x³ + L_v x⁴, x = J(J+1)
- * (Herzberg, Spectra of Diatomic Molecules, ch. III). Only differences of T are observable: within each set of
+ * The band-by-band level model: E_v(J) = T_v + B_v x − D_v x² + H_v x³ + L_v x⁴ + M_v x⁵, x = J(J+1)
+ * (Herzberg, Spectra of Diatomic Molecules, ch. III; M_v, the x⁵ term, is needed by pure-rotation lines to J ≈ 80
+ * of CO). Only differences of T are observable: within each set of
  * levels connected by vibrational bands, the lowest level is the reference (T = 0) and the others carry
  * T_v − T_ref. A line's position is E_v′(J′) − E_v″(J″).
  */
 
-/** Centrifugal order: 1 = B only, 2 = B, D; 3 = B, D, H; 4 = B, D, H, L. */
-export type CentrifugalOrder = 1 | 2 | 3 | 4;
-export const ROTATIONAL_KINDS = ['B', 'D', 'H', 'L'] as const;
-/** Sign of each power of x in the term formula (+B x − D x² + H x³ + L x⁴). */
-const SIGN = [1, -1, 1, 1];
+/** Centrifugal order: 1 = B only, 2 = B, D; 3 = B, D, H; 4 = B, D, H, L; 5 = B, D, H, L, M. */
+export type CentrifugalOrder = 1 | 2 | 3 | 4 | 5;
+export const MAX_CENTRIFUGAL_ORDER = 5;
+export const ROTATIONAL_KINDS = ['B', 'D', 'H', 'L', 'M'] as const;
+/** Sign of each power of x in the term formula (+B x − D x² + H x³ + L x⁴ + M x⁵). */
+export const CENTRIFUGAL_SIGN = [1, -1, 1, 1, 1] as const;
 
 export interface LevelStructure {
   /** Species in order of first appearance. */
@@ -101,7 +103,7 @@ export function levelParameters(structure: LevelStructure, order: ReadonlyMap<st
   return out;
 }
 
-const POWER: Record<string, number> = { B: 1, D: 2, H: 3, L: 4 };
+const POWER: Record<string, number> = { B: 1, D: 2, H: 3, L: 4, M: 5 };
 
 export function levelModel(parameters: readonly Parameter[]): LinearModel {
   return {
@@ -115,13 +117,13 @@ export function levelModel(parameters: readonly Parameter[]): LinearModel {
       const l = POWER[p.kind] as number;
       const xu = o.upperJ * (o.upperJ + 1);
       const xl = o.lowerJ * (o.lowerJ + 1);
-      return (SIGN[l - 1] as number) * (up * xu ** l - lo * xl ** l);
+      return (CENTRIFUGAL_SIGN[l - 1] as number) * (up * xu ** l - lo * xl ** l);
     },
     columnKey: (p) => `level|${p.key}`,
     column(p: Parameter, obs: readonly Observation[]): Float64Array {
       const out = new Float64Array(obs.length);
       const l = p.kind === 'T' ? 0 : (POWER[p.kind] as number);
-      const sign = l > 0 ? (SIGN[l - 1] as number) : 1;
+      const sign = l > 0 ? (CENTRIFUGAL_SIGN[l - 1] as number) : 1;
       for (let i = 0; i < obs.length; i++) {
         const o = obs[i] as Observation;
         if (p.species !== o.species) continue;

@@ -17,7 +17,7 @@ export interface Parameter {
   readonly k?: number;
   readonly l?: number;
   /** What the parameter is: term value, rotational or centrifugal constant, Dunham or mass-reduced coefficient. */
-  readonly kind: 'T' | 'B' | 'D' | 'H' | 'L' | 'Y' | 'U';
+  readonly kind: 'T' | 'B' | 'D' | 'H' | 'L' | 'M' | 'Y' | 'U';
 }
 
 export interface Observation {
