@@ -42,8 +42,9 @@ export interface Tolerances {
    * identityOrigin (warn beyond, fail beyond three times). */
   readonly identityB: number;
   /** |offset| at the band centre, cm⁻¹. Default 0.05, a typical FTIR wavenumber-accuracy figure at 0.5 cm⁻¹
-   * resolution (common practice). Decision rule (guard band 2u, after JCGM 106:2012): pass |x| ≤ limit; warn when
-   * beyond it by less than 2u; fail when beyond it by more. u includes the library's prediction uncertainty. */
+   * resolution (common practice). Decision rule (guard band 2u, after JCGM 106:2012): pass |x| ≤ limit or |x| ≤
+   * 2.576u (not different from zero at the stated false-alarm rate of 1 %); warn when beyond the limit by less than
+   * 2u; fail when beyond it by more. u includes the library's prediction uncertainty. */
   readonly calibrationOffset: number;
   /** |scale error|, ppm. Default 20 (common practice for FTIR and laser wavemeters). Judged only when the lines
    * determine the scale to a third of this limit (one band alone rarely does: the scale is then nearly degenerate
@@ -58,8 +59,8 @@ export interface Tolerances {
    * (an enriched sample is not a faulty one). */
   readonly isotopeRatio: number;
   /** Expected rotational temperature and its tolerance, K. Default none: the temperature is reported only. Rule:
-   * the guard-banded one of the calibration (pass within the tolerance, warn beyond it by less than 2u, fail beyond
-   * it by more), u the Boltzmann-plot uncertainty. */
+   * the guard-banded one of the calibration (pass within the tolerance or when the deviation is within 2.576u,
+   * warn beyond it by less than 2u, fail beyond it by more), u the Boltzmann-plot uncertainty. */
   readonly temperature?: { readonly expected: number; readonly tolerance: number };
   /** Largest reduced χ² when line uncertainties are given. Default 3 (common practice). Judged only when the
    * uncertainties were given (an estimated scatter makes χ²/ν ≈ 1 by construction); fail above. */
@@ -275,6 +276,9 @@ function calibrationCheck(
   const offsetStatus = guardBandedStatus(c.offset.value, c.offset.uncertainty, tol.calibrationOffset);
   const scaleStatus = c.scale ? guardBandedStatus(c.scale.value, c.scale.uncertainty, tol.calibrationScalePpm) : 'pass';
   const status: CheckStatus = RANK[offsetStatus] >= RANK[scaleStatus] ? offsetStatus : scaleStatus;
+  const beyondButNotSignificant =
+    Math.abs(c.offset.value) > tol.calibrationOffset ||
+    (c.scale !== undefined && Math.abs(c.scale.value) > tol.calibrationScalePpm);
   const found = `offset ${c.offset.value.toFixed(4)} ± ${c.offset.uncertainty.toFixed(4)} cm-1${c.scale ? `, scale ${c.scale.value.toFixed(1)} ± ${c.scale.uncertainty.toFixed(1)} ppm` : ''}`;
   const scaleNote =
     c.scaleUndetermined !== undefined
@@ -298,7 +302,7 @@ function calibrationCheck(
     limit,
     message:
       status === 'pass'
-        ? `${found}: within limits${library}${scaleNote}`
+        ? `${found}: ${beyondButNotSignificant ? `beyond the limits (${tol.calibrationOffset} cm-1, ${tol.calibrationScalePpm} ppm) but not different from zero at the 1 % false-alarm level (|x| ≤ 2.576u): the lines cannot tell it from a calibrated scan` : 'within limits'}${library}${scaleNote}`
         : `${found} against limits ${tol.calibrationOffset} cm-1 and ${tol.calibrationScalePpm} ppm${status === 'warn' ? ' (beyond the limit, but by less than the 2σ guard band: not significant)' : ' (beyond the limit by more than the 2σ guard band)'}${library}${scaleNote}`,
   };
 }

@@ -86,10 +86,13 @@ describe('command line', () => {
     expect(j.statistics.fitted).toBeGreaterThan(40);
     expect(j.notice).toMatch(/certifies nothing/);
   });
-  it('check never fails a clean scan (20 seeds), and its exit status is the verdict of the same use case', () => {
-    // Clean CO fundamentals (reference-quality truth, σ = 0.002 cm⁻¹). Measured 2026-12-02: 10 of 40 seeds warn on
-    // calibration (issue 11 is about that); none fails.
+  it('check never fails a clean scan (20 seeds), warns on at most one, and exits with the use case verdict', () => {
+    // Clean CO fundamentals (reference-quality truth, σ = 0.002 cm⁻¹). Stated false-alarm rate of the calibration
+    // check 1 % per judged quantity (src/qa/calibration.ts): at 20 seeds P(≥ 2 warn) ≈ 2 % even at that rate.
+    // Measured 2026-12-02: 0 of 40 seeds warn (10 of 40 before the calibration carried the library's prediction
+    // uncertainty); 0 of 200 clean scans of the independent generator (test/qa/false-alarms.test.ts).
     const schema = checkRequestSchema(100_000);
+    let warned = 0;
     for (let seed = 1; seed <= 20; seed++) {
       const body = { species: 'CO', lines: scan(0, seed).peaks };
       const file = join(dir, `clean-${seed}.json`);
@@ -98,7 +101,9 @@ describe('command line', () => {
       const verdict = runCheck(schema.parse(body)).verdict;
       expect(code, `seed ${seed}`).toBe(EXIT[verdict as keyof typeof EXIT]);
       expect(code, `seed ${seed}`).not.toBe(EXIT.fail);
+      if (code === EXIT.warn) warned++;
     }
+    expect(warned).toBeLessThanOrEqual(1);
   });
   it('peaks reads JCAMP-DX and finds both lines', () => {
     const r = run(['peaks', jdx, '--format', 'json']);
