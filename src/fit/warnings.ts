@@ -99,7 +99,7 @@ export function absoluteScaleWarnings(fit: SolvedModel, mode: 'a-posteriori' | '
   } else if (1 - upper < CHI_SQUARE_CONSISTENCY) {
     warnings.push({
       code: 'CHI_SQUARE_LOW',
-      message: `χ²/ν = ${r.toFixed(2)} on ${nu} degrees of freedom (p = ${(1 - upper).toExponential(1)} for so small a value) with absolute uncertainties: the line uncertainties look overstated, and so do the reported ones`,
+      message: `χ²/ν = ${r < 0.01 ? r.toExponential(1) : r.toFixed(2)} on ${nu} degrees of freedom (p = ${(1 - upper).toExponential(1)} for so small a value) with absolute uncertainties: the line uncertainties look overstated, by about 1/√(χ²/ν) = ${(1 / Math.sqrt(r)).toPrecision(2)}, and the reported uncertainties, which are not rescaled, are as large as the caller's σ make them (too large by about that factor if the model is complete); consider uncertaintyMode "a-posteriori"`,
     });
   }
 }
