@@ -23,7 +23,19 @@ export const typeDefs = /* GraphQL */ `
     position: Float!
     uncertainty: Float
     intensity: Float
+    "label of the instrument or file the line came from: lines without an uncertainty get σ from the scatter of their source"
+    source: String
     assignment: AssignmentInput
+  }
+
+  "σ estimated from the residual scatter (robust) of one group of lines sent without an uncertainty"
+  type ScatterGroup {
+    group: String!
+    "source, band or pooled"
+    by: String!
+    lines: Int!
+    "cm-1"
+    sigma: Float!
   }
 
   input FitOptionsInput {
@@ -275,11 +287,14 @@ export const typeDefs = /* GraphQL */ `
     covariance: Matrix!
     correlation: Matrix!
     statistics: Statistics!
+    "levelTerms, selection, and constraints (terms carried with a prior; their σ is in the covariance)"
     model: JSON!
     dunham: JSON!
     massReducedDunham: JSON
     combinationDifferences: JSON!
     crossChecks: JSON!
+    "σ estimated from the residual scatter for the lines sent without an uncertainty (per source, band or pooled)"
+    scatter: [ScatterGroup!]
     assignment: AssignmentReport!
     spectrum: SpectrumSummary
     warnings: [Warning!]!

@@ -87,3 +87,44 @@ describe('GraphQL and REST agree', () => {
     expect(g.json().data.species[0].constants).toEqual(rest.species[0].constants);
   });
 });
+
+describe('GraphQL carries the scatter estimate and the constrained terms (as REST does)', () => {
+  it('two instruments without uncertainties: scatter per source and model.constraints equal REST’s', async () => {
+    // CO 1-0 from the independent generator measured on two instruments (σ 0.001 and 0.006 cm⁻¹), no σ sent.
+    const { independentLines, CO_12_16 } = await import('../helpers/independent-lines.js');
+    const list = (sigma: number, seed: number, source: string) =>
+      independentLines({
+        molecule: CO_12_16,
+        bands: [{ upper: 1, lower: 0, jMax: 22 }],
+        sigma,
+        seed,
+        withUncertainties: false,
+      }).lines.map((l) => ({
+        position: l.position,
+        source,
+        assignment: { band: '1-0', branch: l.assignment?.branch, j: l.assignment?.j },
+      }));
+    const body = { species: 'CO', lines: [...list(0.001, 31, 'ftir-a'), ...list(0.006, 32, 'ftir-b')] };
+    const rest = (await app().inject({ method: 'POST', url: '/v1/fits', payload: body })).json();
+    const g = await app().inject({
+      method: 'POST',
+      url: '/graphql',
+      payload: {
+        query: `query Fit($input: FitInput!) { fit(input: $input) { scatter { group by lines sigma } model } }`,
+        variables: { input: body },
+      },
+    });
+    expect(g.statusCode).toBe(200);
+    const gql = g.json().data.fit;
+    expect(gql.scatter).toEqual(rest.scatter);
+    expect(gql.scatter.map((s: { by: string }) => s.by)).toEqual(['source', 'source']);
+    const sigma = Object.fromEntries(gql.scatter.map((s: { group: string; sigma: number }) => [s.group, s.sigma]));
+    // Robust σ of ~44 lines each: within 30 % of the generator's 0.001 and 0.006 (a standard error of about 11 %).
+    expect(sigma['ftir-a'] / 0.001).toBeGreaterThan(0.7);
+    expect(sigma['ftir-a'] / 0.001).toBeLessThan(1.3);
+    expect(sigma['ftir-b'] / 0.006).toBeGreaterThan(0.7);
+    expect(sigma['ftir-b'] / 0.006).toBeLessThan(1.3);
+    expect(gql.model.constraints).toEqual(rest.model.constraints);
+    expect(rest.model.constraints.length).toBeGreaterThan(0);
+  });
+});
