@@ -76,7 +76,7 @@ describe('peak positions carry a floor tied to the sampling step', () => {
       expect(pulls.length).toBeGreaterThanOrEqual(30);
       const rmsPull = Math.sqrt(pulls.reduce((a, z) => a + z * z, 0) / pulls.length);
       if (process.env.PULLS_LOG) console.log(step, pulls.length, rmsPull);
-    expect(rmsPull).toBeLessThanOrEqual(1);
+      expect(rmsPull).toBeLessThanOrEqual(1);
     },
   );
 });
