@@ -1,5 +1,6 @@
 import { type Analysis, analyseLineList } from '../../src/assign/analyse.js';
 import type { PeakInput } from '../../src/assign/assign-lines.js';
+import { type LabelIdentification, type LabelledLine, speciesFromLabels } from '../../src/assign/identify.js';
 import { ScienceError } from '../../src/errors.js';
 import { parseBand } from '../../src/models/transitions.js';
 import { type Isotopologue, parseSpecies } from '../../src/species/parse.js';
@@ -25,6 +26,8 @@ export interface PreparedFit {
   readonly spectrum?: { points: number; peaks: number; noise: number; step: number };
   /** The caller's line identifiers, by input index (sparse when only some lines carry one). */
   readonly lineIds?: readonly (string | number | undefined)[];
+  /** Assigned lines sent without a species: the species their labels identify (and how clearly). */
+  readonly fromLabels?: LabelIdentification;
 }
 
 export interface AnalysedFit extends PreparedFit {
@@ -35,16 +38,11 @@ export interface AnalysedFit extends PreparedFit {
 export function prepareFit(req: FitRequest): PreparedFit {
   const unit = req.unit ?? 'cm-1';
   const declared = req.species !== undefined ? parseSpecies(req.species) : undefined;
+  const fromLabels = declared ? undefined : identifyFromLabels(req, unit);
   const resolve = (s: string | undefined, index: number): Isotopologue => {
     if (s !== undefined) return parseSpecies(s);
     if (declared) return declared;
-    throw new ScienceError(
-      'SPECIES_UNIDENTIFIED',
-      `line ${index} (counted from 0) is assigned but names no species and the request declares none: give ` +
-        '"species" (e.g. "CO", "H35Cl"; ?species= with a CSV or JCAMP-DX body, --species in the CLI), or send ' +
-        'the lines unassigned to have a library species identified',
-      { line: index },
-    );
+    return parseSpecies(fromLabels?.isotopologueOf.get(index) as string);
   };
   if (req.spectrum) {
     const found = peaksOf(req.spectrum, req.peakOptions);
@@ -87,7 +85,36 @@ export function prepareFit(req: FitRequest): PreparedFit {
     };
   });
   const lineIds = req.lines?.some((l) => l.id !== undefined) ? req.lines.map((l) => l.id) : undefined;
-  return { peaks, declared, options: req.options, ...(lineIds ? { lineIds } : {}) };
+  return {
+    peaks,
+    declared,
+    options: req.options,
+    ...(lineIds ? { lineIds } : {}),
+    ...(fromLabels ? { fromLabels } : {}),
+  };
+}
+
+/**
+ * Lines that carry a label but no species, in a request that declares none: their species from the labels
+ * (`speciesFromLabels`: the library molecule whose reference positions of those labels explain them, each line's
+ * isotopologue the nearest), or SPECIES_UNIDENTIFIED saying what to add. Undefined when no line lacks one.
+ */
+function identifyFromLabels(req: FitRequest, unit: NonNullable<FitRequest['unit']>): LabelIdentification | undefined {
+  const labelled: LabelledLine[] = (req.lines ?? []).flatMap((l, index) => {
+    const a = l.assignment;
+    if (!a || a.species !== undefined) return [];
+    return [
+      {
+        index,
+        position: toWavenumber(l.position, unit, l.uncertainty).value,
+        band: withLine(index, () => parseBand(a.band)),
+        branch: a.branch,
+        j: a.j,
+      },
+    ];
+  });
+  if (labelled.length === 0) return undefined;
+  return speciesFromLabels(labelled, req.options?.maxOffset !== undefined ? { maxOffset: req.options.maxOffset } : {});
 }
 
 export function analyseRequest(p: PreparedFit): AnalysedFit {
@@ -98,7 +125,16 @@ export function analyseRequest(p: PreparedFit): AnalysedFit {
     ...(maxOffset !== undefined ? { maxOffset } : {}),
     ...(structureBand !== undefined ? { structureBand: parseBand(structureBand) } : {}),
   });
-  return { ...p, analysis };
+  if (!p.fromLabels) return { ...p, analysis };
+  const f = p.fromLabels;
+  const identified = {
+    code: 'SPECIES_FROM_LABELS',
+    message: `${f.lines} assigned line(s) named no species: their labels identify ${f.name} (${[...new Set(f.isotopologueOf.values())].join(', ')}; ${f.explained} of ${f.lines} lie within tolerance of the library's positions of their labels after an offset of ${f.offset.toFixed(3)} cm-1). Declare "species" to override`,
+  };
+  return {
+    ...p,
+    analysis: { ...analysis, result: { ...analysis.result, warnings: [identified, ...analysis.result.warnings] } },
+  };
 }
 
 export function presentFit(a: AnalysedFit): FitResponse {

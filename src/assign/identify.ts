@@ -1,4 +1,7 @@
-import { libraryEntries } from '../species/library.js';
+import { ScienceError } from '../errors.js';
+import { compileDunham } from '../models/dunham.js';
+import { type Band, type Branch, upperJ } from '../models/transitions.js';
+import { constantsFor, dunhamFromEntry, libraryEntries } from '../species/library.js';
 import { elementsOnly, parseSpecies } from '../species/parse.js';
 import { type CandidateOptions, candidateLines, isotopologuesMeant } from './candidates.js';
 import { matchLines } from './match.js';
@@ -88,4 +91,137 @@ export function identifySpecies(
     });
   }
   return out.sort((a, b) => b.score - a.score);
+}
+
+/** A line that carries a label (band, branch, J″) but no species. */
+export interface LabelledLine {
+  readonly index: number;
+  readonly position: number;
+  readonly band: Band;
+  readonly branch: Branch;
+  readonly j: number;
+}
+
+/** What the labels of species-less lines say about their species. */
+export interface LabelIdentification {
+  /** The molecule whose labelled positions explain the lines best, as a natural mixture ("12C-16O"). */
+  readonly species: string;
+  readonly name: string;
+  /** Lines within tolerance of their label's prediction, of all labelled lines. */
+  readonly explained: number;
+  readonly lines: number;
+  readonly offset: number;
+  /** The isotopologue of each line, by input index: the one whose prediction of the label lies nearest. */
+  readonly isotopologueOf: ReadonlyMap<number, string>;
+}
+
+/** Lines used to vote the offset (the first ones): enough to decide, bounded in cost. */
+const MAX_VOTERS = 200;
+
+/**
+ * Identify the species of lines that came labelled but without a species: every molecule of the library (as its
+ * natural mixture) predicts each label's position from its reference constants; after one common offset
+ * (|offset| ≤ maxOffset, voted: the offset that brings most labelled lines within tolerance), the molecule whose
+ * predictions explain the most lines is ranked first. The tolerance grows with J as the reference prediction's
+ * error does (0.05·(1 + (J/10)²) cm⁻¹ + 2e-5 of the position: HCl R(11) is 0.5 cm⁻¹ off without γ_e, so a high-J
+ * line may fall outside; only the share explained counts). Each line takes the isotopologue whose prediction of
+ * its label lies nearest. Sorted best first; no fit is made.
+ */
+export function identifyLabelledSpecies(
+  lines: readonly LabelledLine[],
+  options: { readonly maxOffset?: number } = {},
+): LabelIdentification[] {
+  const maxOffset = options.maxOffset ?? 0.5;
+  const out: LabelIdentification[] = [];
+  if (lines.length === 0) return out;
+  const seen = new Set<string>();
+  for (const e of libraryEntries().filter((x) => !x.derivedFrom)) {
+    // As in identifySpecies: a molecule once as its natural mixture; a parent that is not the most abundant
+    // isotopologue of its elements (DCl, DF) as itself.
+    const iso = parseSpecies(e.formula);
+    const natural = isotopologuesMeant(elementsOnly(iso), 1e-3);
+    const members = natural[0]?.iso.formula === e.formula ? natural : [{ iso, abundance: 1 }];
+    const key = members.map((m) => m.iso.formula).join('+');
+    if (seen.has(key)) continue;
+    seen.add(key);
+    const mixture = members.flatMap(({ iso: m }) => {
+      const entry = constantsFor(m);
+      return entry ? [{ formula: m.formula, energy: compileDunham(dunhamFromEntry(entry)) }] : [];
+    });
+    if (mixture.length === 0) continue;
+    // Residual of each line against each isotopologue's prediction of its label.
+    const residuals = lines.map((l) =>
+      mixture.map((m) => {
+        const p = m.energy(l.band.upper, upperJ(l)) - m.energy(l.band.lower, l.j);
+        return Number.isFinite(p) ? l.position - p : Number.POSITIVE_INFINITY;
+      }),
+    );
+    const tolOf = (l: LabelledLine) => 0.05 * (1 + (l.j / 10) ** 2) + 2e-5 * Math.abs(l.position);
+    const countAt = (offset: number) =>
+      lines.reduce(
+        (n, l, i) => n + ((residuals[i] as number[]).some((r) => Math.abs(r - offset) <= tolOf(l)) ? 1 : 0),
+        0,
+      );
+    let best = { offset: 0, count: countAt(0) };
+    residuals.slice(0, MAX_VOTERS).forEach((rs) => {
+      for (const r of rs) {
+        if (!(Math.abs(r) <= maxOffset)) continue;
+        const count = countAt(r);
+        if (count > best.count || (count === best.count && Math.abs(r) < Math.abs(best.offset)))
+          best = { offset: r, count };
+      }
+    });
+    const isotopologueOf = new Map<number, string>();
+    lines.forEach((l, i) => {
+      const rs = residuals[i] as number[];
+      let k = 0;
+      rs.forEach((r, m) => {
+        if (Math.abs(r - best.offset) < Math.abs((rs[k] as number) - best.offset)) k = m;
+      });
+      isotopologueOf.set(l.index, (mixture[k] as { formula: string }).formula);
+    });
+    out.push({
+      species: (mixture[0] as { formula: string }).formula,
+      name: e.name,
+      explained: best.count,
+      lines: lines.length,
+      offset: best.offset,
+      isotopologueOf,
+    });
+  }
+  return out.sort((a, b) => b.explained - a.explained || Math.abs(a.offset) - Math.abs(b.offset));
+}
+
+/**
+ * The species of labelled lines sent without one, when their labels make it clear: the best molecule of
+ * `identifyLabelledSpecies` explains at least three lines and half of them, and its runner-up fewer than half as
+ * many. Otherwise SPECIES_UNIDENTIFIED, naming the best candidates and what to add.
+ */
+export function speciesFromLabels(
+  lines: readonly LabelledLine[],
+  options: { readonly maxOffset?: number } = {},
+): LabelIdentification {
+  const ranking = identifyLabelledSpecies(lines, options);
+  const [best, runnerUp] = ranking;
+  const clear =
+    best !== undefined &&
+    best.explained >= 3 &&
+    best.explained >= 0.5 * best.lines &&
+    (runnerUp === undefined || runnerUp.explained < 0.5 * best.explained);
+  if (clear) return best;
+  const first = lines[0]?.index ?? 0;
+  const shown = ranking
+    .slice(0, 3)
+    .filter((r) => r.explained > 0)
+    .map((r) => `${r.name} (${r.species}) explains ${r.explained} of ${r.lines}`);
+  throw new ScienceError(
+    'SPECIES_UNIDENTIFIED',
+    `assigned lines name no species (line ${first} and ${lines.length - 1} more, counted from 0), none is declared, and their labels do not tell it (${shown.length > 0 ? shown.join('; ') : 'no library species predicts them near their labels'}): give "species" (e.g. "CO", "H35Cl"; ?species= with a CSV or JCAMP-DX body, --species in the CLI), or send the lines unassigned`,
+    {
+      line: first,
+      candidates: ranking
+        .slice(0, 5)
+        .map((r) => ({ species: r.species, name: r.name, explained: r.explained, lines: r.lines })),
+    },
+  );
 }

@@ -92,9 +92,18 @@ describe('bad input gets RFC 9457 problem+json, never a 5xx', () => {
     const p = expectProblem(await post({ ...good, unit: 'furlong' }), 400);
     expect(p.detail).toMatch(/cm-1/);
   });
-  it('assigned lines without any species → 422', async () => {
-    const p = expectProblem(await post({ lines: good.lines }), 422);
+  it('assigned lines without any species: identified from their labels, or 422 saying what to add', async () => {
+    const r = await post({ lines: good.lines });
+    expect(r.statusCode).toBe(200);
+    expect(r.json().species.map((s: { formula: string }) => s.formula)).toEqual(['1H-35Cl']);
+    expect(r.json().warnings.find((w: { code: string }) => w.code === 'SPECIES_FROM_LABELS')?.message).toMatch(
+      /hydrogen chloride/,
+    );
+    // The same labels on positions shifted by 40 cm-1: no molecule predicts them there.
+    const shifted = good.lines.map((l) => ({ ...l, position: l.position + 40 }));
+    const p = expectProblem(await post({ lines: shifted }), 422);
     expect(p.code).toBe('SPECIES_UNIDENTIFIED');
+    expect(p.detail).toMatch(/give "species"/);
   });
   it('an unknown route → 404 problem+json', async () => {
     const r = await app().inject({ method: 'GET', url: '/v1/nothing' });

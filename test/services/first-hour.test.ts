@@ -50,9 +50,19 @@ describe('an assigned CSV line list without a species', () => {
   // 12C16O fundamental, P(1) and R(0)…R(2) from ν0 = 2143.2712 cm⁻¹, B0 = 1.92253, B1 = 1.90502 cm⁻¹ (from memory,
   // close to Huber & Herzberg); no uncertainties.
   const csv = 'position,band,branch,j\n2139.4262,1-0,P,1\n2135.5465,1-0,P,2\n2147.0812,1-0,R,0\n2150.8561,1-0,R,1\n';
-  it('says where the species goes for this kind of body, and the advice works', async () => {
+  it('is identified from its labels (carbon monoxide), and says so', async () => {
     const headers = { 'content-type': 'text/csv' };
     const r = await app().inject({ method: 'POST', url: '/v1/fits', headers, payload: csv });
+    expect(r.statusCode).toBe(200);
+    expect(r.json().species.map((s: { formula: string }) => s.formula)).toEqual(['12C-16O']);
+    expect(r.json().warnings[0].code).toBe('SPECIES_FROM_LABELS');
+    expect(r.json().warnings[0].message).toMatch(/carbon monoxide/);
+  });
+  it('labels that fit no species: says where the species goes for this kind of body, and the advice works', async () => {
+    const headers = { 'content-type': 'text/csv' };
+    // The same lines labelled 2-0: no library molecule has its first overtone there.
+    const wrong = csv.replaceAll('1-0', '2-0');
+    const r = await app().inject({ method: 'POST', url: '/v1/fits', headers, payload: wrong });
     expect(r.statusCode).toBe(422);
     expect(r.json().code).toBe('SPECIES_UNIDENTIFIED');
     expect(r.json().detail).toContain('?species=');
