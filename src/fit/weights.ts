@@ -48,10 +48,6 @@ export function weighLines(
   const given = input.filter((l) => l.uncertainty !== undefined).map((l) => l.uncertainty as number);
   const fallback = given.length > 0 ? median(given) : 1;
   const missing = observations.filter((o) => input[o.index]?.uncertainty === undefined);
-  const groupOf = (o: Observation) => {
-    const source = input[o.index]?.source;
-    return source !== undefined ? `source|${source}` : `band|${bandKeyOf(o)}`;
-  };
   const warnings: Warning[] = [];
   const fixed = (sigma: number): WeightedLines => ({
     observations: observations.map((o) =>
@@ -70,15 +66,60 @@ export function weighLines(
     return fixed(fallback);
   }
   if (missing.length === 0) return fixed(fallback);
+  const est = estimateScatter(input, observations, fallback, fit);
+  const groups = scatterGroups(est);
+  if (groups.length > 0) {
+    warnings.push({
+      code: 'UNCERTAINTY_ESTIMATED',
+      message: `${missing.length} line(s) had no uncertainty: σ was estimated from the scatter of the residuals (1.4826 × median absolute deviation, per ${groups.some((g) => g.by === 'source') ? 'source' : 'band'}) and used for the weights and the covariance: ${groups.map((g) => `${g.group} ${g.sigma.toPrecision(2)} cm-1 (${g.lines} lines)`).join(', ')}`,
+    });
+  }
+  const finalPooled = groups.length > 0 ? est.pooled : fallback;
+  const { sigmas } = est;
+  return {
+    observations: est.observations,
+    groups,
+    sigmaFor(species, band, source) {
+      if (source !== undefined) {
+        const s = sigmas.get(`source|${source}`);
+        if (s !== undefined) return s;
+      }
+      return sigmas.get(`band|${species}|${band}`) ?? finalPooled;
+    },
+    warnings,
+  };
+}
 
-  let obs = observations.map((o) =>
-    input[o.index]?.uncertainty === undefined ? { ...o, weight: 1 / fallback ** 2 } : o,
-  );
+/** What the estimating rounds leave: the reweighted observations, σ per group (key "source|…" or "band|…"), pooled σ. */
+interface ScatterEstimate {
+  readonly observations: readonly Observation[];
+  readonly sigmas: ReadonlyMap<string, number>;
+  readonly pooled: number;
+  /** Lines without σ per group, as the first round found them. */
+  readonly counts: ReadonlyMap<string, number>;
+}
+
+/**
+ * The estimating rounds: fit with the provisional weights, measure each group's scatter from the leverage-corrected
+ * residuals of its lines without σ, reweigh. Lines far outside their group's scatter stay out of the next estimating
+ * fit (not out of the main fit: stage 3 judges them), so that one gross error does not bend the fit whose residuals
+ * measure the scatter.
+ */
+function estimateScatter(
+  input: readonly LineInput[],
+  observations: readonly Observation[],
+  fallback: number,
+  fit: { readonly maxOrder: number; readonly termSignificance: number },
+): ScatterEstimate {
+  const groupOf = (o: Observation) => {
+    const source = input[o.index]?.source;
+    return source !== undefined ? `source|${source}` : `band|${bandKeyOf(o)}`;
+  };
+  const withoutSigma = (o: Observation) => input[o.index]?.uncertainty === undefined;
+  let obs = observations.map((o) => (withoutSigma(o) ? { ...o, weight: 1 / fallback ** 2 } : o));
   let sigmas = new Map<string, number>();
   let pooled = fallback;
   let counts = new Map<string, number>();
-  // Lines far outside their group's scatter stay out of the next estimating fit (not out of the main fit: stage 3
-  // judges them), so that one gross error does not bend the fit whose residuals measure the scatter.
   let gross = new Set<number>();
   for (let round = 0; round < ROUNDS; round++) {
     let level: ReturnType<typeof selectLevelModel>;
@@ -94,7 +135,7 @@ export function weighLines(
     const byGroup = new Map<string, number[]>();
     const all: number[] = [];
     f.observations.forEach((o, i) => {
-      if (input[o.index]?.uncertainty !== undefined) return;
+      if (!withoutSigma(o)) return;
       const h = Math.min(f.leverages[i] as number, 1 - 1e-9);
       const e = (f.residuals[i] as number) / Math.sqrt(1 - h);
       all.push(e);
@@ -111,17 +152,20 @@ export function weighLines(
     const sigmaOf = (o: Observation) => sigmas.get(groupOf(o)) ?? pooled;
     gross = new Set();
     f.observations.forEach((o, i) => {
-      if (input[o.index]?.uncertainty !== undefined) return;
+      if (!withoutSigma(o)) return;
       if (Math.abs(f.residuals[i] as number) > GROSS * sigmaOf(o)) gross.add(o.index);
     });
-    obs = observations.map((o) =>
-      input[o.index]?.uncertainty === undefined ? { ...o, weight: 1 / sigmaOf(o) ** 2 } : o,
-    );
+    obs = observations.map((o) => (withoutSigma(o) ? { ...o, weight: 1 / sigmaOf(o) ** 2 } : o));
   }
+  return { observations: obs, sigmas, pooled, counts };
+}
+
+/** The groups as reported: each with its own σ, and one pooled group for the lines of groups too small for one. */
+function scatterGroups(est: ScatterEstimate): ScatterGroup[] {
   const groups: ScatterGroup[] = [];
   let pooledLines = 0;
-  for (const [k, n] of counts) {
-    const s = sigmas.get(k);
+  for (const [k, n] of est.counts) {
+    const s = est.sigmas.get(k);
     if (s === undefined) {
       pooledLines += n;
       continue;
@@ -131,26 +175,8 @@ export function weighLines(
     groups.push({ group: label, by: kind === 'source' ? 'source' : 'band', lines: n, sigma: s });
   }
   if (pooledLines > 0)
-    groups.push({ group: 'all lines without an uncertainty', by: 'pooled', lines: pooledLines, sigma: pooled });
-  if (groups.length > 0) {
-    warnings.push({
-      code: 'UNCERTAINTY_ESTIMATED',
-      message: `${missing.length} line(s) had no uncertainty: σ was estimated from the scatter of the residuals (1.4826 × median absolute deviation, per ${groups.some((g) => g.by === 'source') ? 'source' : 'band'}) and used for the weights and the covariance: ${groups.map((g) => `${g.group} ${g.sigma.toPrecision(2)} cm-1 (${g.lines} lines)`).join(', ')}`,
-    });
-  }
-  const finalPooled = groups.length > 0 ? pooled : fallback;
-  return {
-    observations: obs,
-    groups,
-    sigmaFor(species, band, source) {
-      if (source !== undefined) {
-        const s = sigmas.get(`source|${source}`);
-        if (s !== undefined) return s;
-      }
-      return sigmas.get(`band|${species}|${band}`) ?? finalPooled;
-    },
-    warnings,
-  };
+    groups.push({ group: 'all lines without an uncertainty', by: 'pooled', lines: pooledLines, sigma: est.pooled });
+  return groups;
 }
 
 function bandLabel(key: string): string {
