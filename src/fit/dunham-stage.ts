@@ -163,50 +163,9 @@ export function fitDunhamForSpecies(
     });
     return undefined;
   }
-  const has = (k: number, l: number) => sel.terms.some((t) => t.k === k && t.l === l);
-  const values = new Map(sel.terms.map((t, i) => [`${t.k},${t.l}`, sel.fit.values[i] as number]));
-  const priors = dunhamPriors(species, sel.terms, values);
-  let fit = sel.fit;
-  let terms = sel.terms;
-  if (priors.length > 0) {
-    const wider = [...sel.terms, ...priors.map((p) => p.term)];
-    const c = solveModelWithPriors(
-      dunhamModel(dunhamParameters(species, wider, false)),
-      obs,
-      priors,
-      mode,
-      reducedChiSquare(sel.fit) ?? 1,
-    );
-    if (!isRankDeficient(c)) {
-      fit = c;
-      terms = wider;
-    }
-  }
-  const constrained = new Map((fit === sel.fit ? [] : priors).map((p) => [`${p.term.k},${p.term.l}`, p] as const));
+  const { fit, terms, constrained } = withDunhamPriors(species, obs, sel, mode);
   const isConstrained = (k: number, l: number) => constrained.has(`${k},${l}`);
-  if (plan.nVib < 2) {
-    warnings.push({
-      code: 'VIBRATION_NEEDS_TWO_INTERVALS',
-      message: `${species}: ω_e and ω_e x_e need two or more vibrational intervals (e.g. a fundamental and an overtone); the band origin is ΔG, not ω_e`,
-    });
-  } else if (!has(3, 0) && !isConstrained(3, 0)) {
-    warnings.push({
-      code: 'HIGHER_TERMS_NEGLECTED',
-      message: `${species}: ω_e and ω_e x_e from two vibrational intervals neglect ω_e y_e`,
-    });
-  }
-  if (plan.nLevels === 2 && !isConstrained(2, 1)) {
-    warnings.push({
-      code: 'HIGHER_TERMS_NEGLECTED',
-      message: `${species}: B_e and α_e from two vibrational levels (B_e = B_0 + α_e/2) neglect γ_e and higher terms`,
-    });
-  }
-  if (has(0, 2) && !has(1, 2) && !isConstrained(1, 2)) {
-    warnings.push({
-      code: 'HIGHER_TERMS_NEGLECTED',
-      message: `${species}: D_e is taken as the same in every level (β_e not determined)`,
-    });
-  }
+  warnings.push(...neglectedTermWarnings(species, plan, sel.terms, isConstrained));
   const constraints: TermConstraint[] = [...constrained.values()].map((p) => ({
     parameter: dunhamName('Y', p.term),
     key: p.key,
@@ -236,6 +195,69 @@ export function fitDunhamForSpecies(
     covariance: subCovariance(fit.covariance, p, keep),
   };
   return { report, set };
+}
+
+type DunhamSelection = NonNullable<ReturnType<typeof selectDunham>>;
+type DunhamPrior = ReturnType<typeof dunhamPriors>[number];
+
+/** The selected Dunham terms with the next ones carried as priors, when any can be formed and the fit stands. */
+function withDunhamPriors(
+  species: string,
+  obs: readonly Observation[],
+  sel: DunhamSelection,
+  mode: UncertaintyMode,
+): { fit: SolvedModel; terms: readonly DunhamTerm[]; constrained: Map<string, DunhamPrior> } {
+  const values = new Map(sel.terms.map((t, i) => [`${t.k},${t.l}`, sel.fit.values[i] as number]));
+  const priors = dunhamPriors(species, sel.terms, values);
+  if (priors.length > 0) {
+    const wider = [...sel.terms, ...priors.map((p) => p.term)];
+    const c = solveModelWithPriors(
+      dunhamModel(dunhamParameters(species, wider, false)),
+      obs,
+      priors,
+      mode,
+      reducedChiSquare(sel.fit) ?? 1,
+    );
+    if (!isRankDeficient(c)) {
+      return { fit: c, terms: wider, constrained: new Map(priors.map((p) => [`${p.term.k},${p.term.l}`, p] as const)) };
+    }
+  }
+  return { fit: sel.fit, terms: sel.terms, constrained: new Map() };
+}
+
+/** Which higher terms the equilibrium constants neglect, given the levels and intervals the lines reach. */
+function neglectedTermWarnings(
+  species: string,
+  plan: ReturnType<typeof dunhamTermPlan>,
+  selected: readonly DunhamTerm[],
+  isConstrained: (k: number, l: number) => boolean,
+): Warning[] {
+  const has = (k: number, l: number) => selected.some((t) => t.k === k && t.l === l);
+  const warnings: Warning[] = [];
+  if (plan.nVib < 2) {
+    warnings.push({
+      code: 'VIBRATION_NEEDS_TWO_INTERVALS',
+      message: `${species}: ω_e and ω_e x_e need two or more vibrational intervals (e.g. a fundamental and an overtone); the band origin is ΔG, not ω_e`,
+    });
+  } else if (!has(3, 0) && !isConstrained(3, 0)) {
+    warnings.push({
+      code: 'HIGHER_TERMS_NEGLECTED',
+      message: `${species}: ω_e and ω_e x_e from two vibrational intervals neglect ω_e y_e`,
+    });
+  }
+  if (plan.nLevels === 2 && !isConstrained(2, 1)) {
+    warnings.push({
+      code: 'HIGHER_TERMS_NEGLECTED',
+      message: `${species}: B_e and α_e from two vibrational levels (B_e = B_0 + α_e/2) neglect γ_e and higher terms`,
+    });
+  }
+  if (has(0, 2) && !has(1, 2) && !isConstrained(1, 2)) {
+    warnings.push({
+      code: 'HIGHER_TERMS_NEGLECTED',
+      message: `${species}: D_e is taken as the same in every level (β_e not determined)`,
+    });
+  }
+  return warnings;
 }
 
 export function fitMassReduced(
