@@ -37,7 +37,6 @@ export function reportLevels(
   /** Keys of constrained parameters: in the parameters and covariance, but not reported as level constants. */
   constrained: ReadonlySet<string> = new Set(),
 ): LevelReport {
-  const warnings: Warning[] = [];
   const params = fit.model.parameters;
   const p = params.length;
   const paramIndex = new Map(params.map((q, i) => [q.key, i]));
@@ -46,11 +45,42 @@ export function reportLevels(
     const i = paramIndex.get(key);
     return i === undefined ? undefined : quantity(fit.values[i] as number, sigmaOf(i), 'cm-1');
   };
+  const lines = lineOutcomes(input, observations, transitions, rejected, fit);
+  const bands = bandOrigins(fit, paramIndex);
+  const { levels, levelTerms, warnings } = levelConstants(fit, masses, constrained, quantityOf);
+  const parameters: NamedQuantity[] = params.map((par, i) => ({
+    name: par.name,
+    value: fit.values[i] as number,
+    uncertainty: sigmaOf(i),
+    unit: par.unit,
+    ...(par.species ? { species: par.species } : {}),
+  }));
+  return {
+    lines,
+    bands,
+    levels,
+    levelTerms,
+    parameters,
+    names: params.map((x) => x.name),
+    covariance: toRows(fit.covariance, p),
+    correlation: toRows(correlationOf(fit.covariance, p), p),
+    quantityOf,
+    warnings,
+  };
+}
 
+/** Every line in input order: unassigned, fitted (residual, studentised residual) or rejected (reason, residual). */
+function lineOutcomes(
+  input: readonly LineInput[],
+  observations: readonly Observation[],
+  transitions: ReadonlyMap<number, Transition & { readonly source: 'given' | 'auto' }>,
+  rejected: ReadonlyMap<number, string>,
+  fit: SolvedModel,
+): LineOutcome[] {
   const t = studentisedResiduals(fit);
   const keptPos = new Map(fit.observations.map((o, i) => [o.index, i]));
   const byIndex = new Map(observations.map((o) => [o.index, o]));
-  const lines: LineOutcome[] = input.map((l, index) => {
+  return input.map((l, index) => {
     const a = transitions.get(index);
     const echo = l.intensity !== undefined ? { intensity: l.intensity } : {};
     if (!a) return { index, position: l.position, ...echo, status: 'unassigned' as const };
@@ -80,8 +110,11 @@ export function reportLevels(
     };
     return calculated === undefined ? out : { ...out, calculated, residual: l.position - calculated };
   });
+}
 
-  const structure = levelStructure(fit.observations);
+/** Per band: its fitted lines, J″ range and, for a vibrational band, the origin T_v′ − T_v″ with their covariance. */
+function bandOrigins(fit: SolvedModel, paramIndex: ReadonlyMap<string, number>): FitResult['bands'][number][] {
+  const p = fit.model.parameters.length;
   const bandStats = new Map<
     string,
     { species: string; band: string; upper: number; lower: number; n: number; jmin: number; jmax: number }
@@ -102,7 +135,7 @@ export function reportLevels(
     b.jmax = Math.max(b.jmax, o.lowerJ);
     bandStats.set(key, b);
   }
-  const bands = [...bandStats.values()].map((b) => {
+  return [...bandStats.values()].map((b) => {
     let origin: Quantity | undefined;
     if (b.upper !== b.lower) {
       const iu = paramIndex.get(`${b.species}|T|${b.upper}`);
@@ -123,7 +156,17 @@ export function reportLevels(
       jRange: [b.jmin, b.jmax] as [number, number],
     };
   });
+}
 
+/** Per level: term value, B_v and the determined centrifugal terms (constrained ones left out), and r_v. */
+function levelConstants(
+  fit: SolvedModel,
+  masses: ReadonlyMap<string, MassValue>,
+  constrained: ReadonlySet<string>,
+  quantityOf: (key: string) => Quantity | undefined,
+): Pick<LevelReport, 'levels' | 'levelTerms' | 'warnings'> {
+  const structure = levelStructure(fit.observations);
+  const warnings: Warning[] = [];
   const levels: FitResult['levels'][number][] = [];
   const levelTerms: { species: string; v: number; terms: string[] }[] = [];
   for (const s of structure.species) {
@@ -160,24 +203,5 @@ export function reportLevels(
       }
     }
   }
-
-  const parameters: NamedQuantity[] = params.map((par, i) => ({
-    name: par.name,
-    value: fit.values[i] as number,
-    uncertainty: sigmaOf(i),
-    unit: par.unit,
-    ...(par.species ? { species: par.species } : {}),
-  }));
-  return {
-    lines,
-    bands,
-    levels,
-    levelTerms,
-    parameters,
-    names: params.map((x) => x.name),
-    covariance: toRows(fit.covariance, p),
-    correlation: toRows(correlationOf(fit.covariance, p), p),
-    quantityOf,
-    warnings,
-  };
+  return { levels, levelTerms, warnings };
 }
