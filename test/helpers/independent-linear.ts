@@ -441,8 +441,10 @@ export const CO2_628: GenMolecule = {
 };
 
 /**
- * 14N2 16O. Ground state: NIST Triatomic Spectral Database (B0 = 12561.6348 MHz, D0 = 5.2808 kHz; H0 from the
- * note's refit of the HITRAN pure-rotation lines, 1.17e-12 cm⁻¹ — NIST's own H0 is 0.0008(57) Hz, i.e. none).
+ * 14N2 16O. Ground state: the note's refit of the HITRAN pure-rotation lines as one set (B0, D0, H0 together; the
+ * NIST Triatomic D0 = 5.2808 kHz with H0 ≈ 0 reproduces the same lines within 1.1e-4 cm⁻¹ up to R(40), this set
+ * within 3e-7; at J = 70 the two sets differ by ≈ 0.1 cm⁻¹ — a real disagreement between sources, kept here so that
+ * the library (NIST) and this generator do not share a model).
  * ν3 (N–N stretch, HITRAN label 0001, NIST (1,0,0)): G from Bohlin et al. (secondary copy), B and D from NIST
  * (12458.1706 MHz, 5.17 kHz). ν1 (1000): G Bohlin, B and D NIST (12508.9923 MHz, 5.1726 kHz).
  * 01¹0: G Bohlin (588.76787); B of the components from NIST (c 12566.6411, d 12590.3906 MHz; e = c, f = d),
@@ -457,8 +459,10 @@ export const N2O_446: GenMolecule = {
       label: '0000',
       v: [0, 0, 0],
       l: 0,
-      terms: { form: 'per-parity', e: { G: 0, B: 12561.6348 / MHZ, D: 5.2808e-3 / MHZ, H: 1.169721569e-12 } },
-      source: `NIST Triatomic Spectral Database, N2O table (${NOTE} §1.4, read); H0 from the note's refit`,
+      terms: { form: 'per-parity', e: { G: 0, B: 0.4190112978, D: 1.794983469e-7, H: 1.169721569e-12 } },
+      source: HITRAN_REFIT(
+        '54 pure-rotation R lines, HITRAN code 0, unweighted; D0 and H0 differ from the NIST values (1.7615e-7, ≈0) by strongly correlated amounts',
+      ),
     },
     '0110': {
       label: '0110',
