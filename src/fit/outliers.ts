@@ -30,12 +30,15 @@ export function rejectOutliers(
   observations: readonly Observation[],
   initial: LevelSelection,
   o: OutlierOptions,
+  /** How to refit the kept lines (default: the diatomic level model of selectLevelModel). */
+  refit?: (obs: readonly Observation[]) => LevelSelection,
 ): OutlierResult {
   let kept = observations;
   let level = initial;
   const rejected = new Map<number, string>();
   if (o.rejectionThreshold <= 0) return { kept, rejected, level };
-  const reselect = (obs: readonly Observation[]) => selectLevelModel(obs, o.maxOrder, o.mode, o.termSignificance);
+  const reselect =
+    refit ?? ((obs: readonly Observation[]) => selectLevelModel(obs, o.maxOrder, o.mode, o.termSignificance));
   const budget = Math.floor(o.maxRejectedFraction * observations.length);
   const threshold = Math.max(o.rejectionThreshold, normalTwoSidedQuantile(0.25 / observations.length));
   for (let iter = 0; iter < 12 && rejected.size < budget; iter++) {

@@ -4,10 +4,10 @@ import type { LinearLevelConstants, Parity } from './types.js';
  * Rotational term values of a vibrational level of a linear polyatomic molecule (Herzberg, Infrared and Raman
  * Spectra, ch. IV.1; Brown et al. 1975 for e/f), in cm⁻¹:
  *
- *   F_v(J) = G_v + B_v y − D_v y² + H_v y³ ∓ (q_v/2) J(J+1),   y = J(J+1) − l²,  J ≥ l,
+ *   F_v(J) = G_v + B_v y − D_v y² + H_v y³ ∓ ½ (q_v x + q_J,v x²),   x = J(J+1),  y = x − l²,  J ≥ l,
  *
  * with the upper sign (−) for e and the lower (+) for f, for l ≥ 1 only (Σ levels have no doubling term). So
- * E(f) − E(e) = q_v J(J+1) and q_v > 0 when the f component lies above the e one, as the HITRAN e/f labels
+ * E(f) − E(e) = q_v J(J+1) + q_J,v [J(J+1)]² and q_v > 0 when the f component lies above the e one, as the HITRAN e/f labels
  * place it for the 01¹0 levels of HCN, N2O, OCS and CO2 (reference note, §2). q_v is the FULL splitting
  * coefficient; tables that print half of it (NIST Triatomic N2O q(010)) must be doubled before use.
  * G_v is the term of the B[J(J+1) − l²] form: the lowest level (J = l) of a Π state lies at G_v + B_v·0 ∓ q/2·2,
@@ -29,7 +29,10 @@ export function paritySign(parity: Parity): -1 | 1 {
 export function termValue(c: LinearLevelConstants, l: number, J: number, parity: Parity): number {
   const y = rotationalVariable(l, J);
   let f = c.G + c.B * y - c.D * y * y + (c.H ?? 0) * y * y * y;
-  if (l >= 1 && c.q !== undefined) f += paritySign(parity) * 0.5 * c.q * J * (J + 1);
+  if (l >= 1) {
+    const x = J * (J + 1);
+    f += paritySign(parity) * 0.5 * ((c.q ?? 0) * x + (c.qJ ?? 0) * x * x);
+  }
   return f;
 }
 

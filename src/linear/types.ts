@@ -11,6 +11,11 @@ import { ScienceError } from '../errors.js';
 export interface LinearLevel {
   readonly v: readonly number[];
   readonly l: number;
+  /**
+   * Ranking index within a Fermi polyad that shares v and l (CO2 [10⁰0, 02⁰0]: r = 1 the upper member, HITRAN
+   * 10001; r = 2 the lower, 10002). Absent when the level is not part of such a polyad.
+   */
+  readonly r?: number;
 }
 
 /**
@@ -21,7 +26,7 @@ export type Parity = 'e' | 'f';
 
 /**
  * Constants of one vibrational level, cm⁻¹. G is the vibrational term G_v of the B[J(J+1) − l²] form (see
- * terms.ts for the whole convention); q is the full l-type doubling coefficient: E(f) − E(e) = q J(J+1).
+ * terms.ts for the whole convention); q is the full l-type doubling coefficient: E(f) − E(e) = q J(J+1) (+ q_J [J(J+1)]²).
  */
 export interface LinearLevelConstants {
   readonly G: number;
@@ -29,6 +34,8 @@ export interface LinearLevelConstants {
   readonly D: number;
   readonly H?: number;
   readonly q?: number;
+  /** Centrifugal correction of the l-type doubling: E(f) − E(e) = q J(J+1) + q_J [J(J+1)]². */
+  readonly qJ?: number;
 }
 
 /** Triatomics have 3 modes, the bend the second; C2H2-like tetratomics 5 modes, the bends the fourth and fifth. */
@@ -40,16 +47,20 @@ export function bendingModes(modeCount: number): readonly number[] {
   });
 }
 
-/** Stable identity of a level: quanta joined by commas, then `|l`, e.g. "0,1,0|1". */
+/** Stable identity of a level: quanta joined by commas, then `|l`, e.g. "0,1,0|1" (a Fermi rank adds "|r1"). */
 export function levelKey(level: LinearLevel): string {
-  return `${level.v.join(',')}|${level.l}`;
+  return `${level.v.join(',')}|${level.l}${level.r !== undefined ? `|r${level.r}` : ''}`;
 }
 
 /** Inverse of levelKey (checks the level). */
 export function parseLevelKey(key: string): LinearLevel {
-  const m = /^(\d+(?:,\d+)*)\|(\d+)$/.exec(key);
+  const m = /^(\d+(?:,\d+)*)\|(\d+)(?:\|r(\d+))?$/.exec(key);
   if (!m) throw new ScienceError('INPUT_INVALID', `not a level key: "${key}"`, { key });
-  const level = { v: (m[1] as string).split(',').map(Number), l: Number(m[2]) };
+  const level = {
+    v: (m[1] as string).split(',').map(Number),
+    l: Number(m[2]),
+    ...(m[3] !== undefined ? { r: Number(m[3]) } : {}),
+  };
   checkLevel(level);
   return level;
 }
@@ -79,6 +90,13 @@ export function checkLevel(level: LinearLevel): void {
   if (!Number.isInteger(l) || l < 0) {
     throw new ScienceError('INPUT_INVALID', `l must be a non-negative integer, got ${l}`, { v, l });
   }
+  if (level.r !== undefined && !(Number.isInteger(level.r) && level.r >= 1 && level.r <= 9)) {
+    throw new ScienceError('INPUT_INVALID', `the Fermi rank r must be an integer 1..9, got ${level.r}`, {
+      v,
+      l,
+      r: level.r,
+    });
+  }
   const allowed = allowedL(v);
   if (!allowed.includes(l)) {
     throw new ScienceError(
@@ -104,14 +122,19 @@ function superscript(n: number): string {
 
 /**
  * The level in the trade's notation: v1 v2^l v3 for triatomics ("01¹0", "00⁰1"; quanta above 9 in parentheses),
- * v1 v2 v3 v4 v5 with the total l as superscript after the bends for C2H2 ("00100⁰", "00011²").
+ * v1 v2 v3 v4 v5 with the total l as superscript after the bends for C2H2 ("00100⁰", "00011²"); a Fermi rank as a
+ * Roman subscript-style suffix after an underscore ("10⁰0_I" for the upper member of CO2's [10⁰0, 02⁰0] dyad).
  */
 export function levelLabel(level: LinearLevel): string {
   const q = (n: number): string => (n > 9 ? `(${n})` : String(n));
   const v = level.v;
-  if (v.length === 3) return `${q(v[0] as number)}${q(v[1] as number)}${superscript(level.l)}${q(v[2] as number)}`;
-  return `${v.map(q).join('')}${superscript(level.l)}`;
+  const rank = level.r !== undefined ? `_${ROMAN[level.r] ?? level.r}` : '';
+  if (v.length === 3) {
+    return `${q(v[0] as number)}${q(v[1] as number)}${superscript(level.l)}${q(v[2] as number)}${rank}`;
+  }
+  return `${v.map(q).join('')}${superscript(level.l)}${rank}`;
 }
+const ROMAN = ['', 'I', 'II', 'III', 'IV', 'V', 'VI', 'VII', 'VIII', 'IX'];
 
 /** Band label upper–lower in the trade's notation, e.g. "00⁰1–00⁰0". */
 export function bandLabel(upper: LinearLevel, lower: LinearLevel): string {

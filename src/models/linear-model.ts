@@ -13,11 +13,16 @@ export interface Parameter {
   readonly species?: string;
   /** Vibrational level for level-model parameters. */
   readonly v?: number;
+  /** Level key of a linear-polyatomic level parameter ("0,1,0|1", see src/linear/types.ts#levelKey). */
+  readonly level?: string;
   /** Dunham indices for Y_kl / U_kl. */
   readonly k?: number;
   readonly l?: number;
-  /** What the parameter is: term value, rotational or centrifugal constant, Dunham or mass-reduced coefficient. */
-  readonly kind: 'T' | 'B' | 'D' | 'H' | 'L' | 'M' | 'Y' | 'U';
+  /**
+   * What the parameter is: term value, rotational or centrifugal constant, l-type doubling constant (linear
+   * polyatomics), Dunham or mass-reduced coefficient.
+   */
+  readonly kind: 'T' | 'B' | 'D' | 'H' | 'L' | 'M' | 'q' | 'qJ' | 'Y' | 'U';
 }
 
 export interface Observation {

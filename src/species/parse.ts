@@ -69,7 +69,7 @@ export function parseSpecies(input: string): Isotopologue {
   return { formula: formatFormula(pair), atoms: pair };
 }
 
-function resolveAtom(symbol: string, massText: string | undefined, species: string): Atom {
+export function resolveAtom(symbol: string, massText: string | undefined, species: string): Atom {
   if (symbol === 'D' || symbol === 'T') {
     const massNumber = symbol === 'D' ? 2 : 3;
     if (massText !== undefined && Number(massText) !== massNumber) {
