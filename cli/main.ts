@@ -44,7 +44,7 @@ const USAGE = `branchwise — molecular constants from line lists and spectra of
                                [--table checks|lines|constants]
   branchwise report <file>     [--species S] [--tolerances profile.json] [--temperature K] [--out report.html]
   branchwise peaks <file...>   [--format table|json|csv]
-  branchwise predict --species S [--bands 1-0,2-0] [--jmax N] [--temperature K] [--unit U] [--format table|json|csv]
+  branchwise predict [body.json] --species S [--bands 1-0,2-0] [--jmax N] [--temperature K] [--unit U] [--format table|json|csv]
   branchwise potential (--species S | <file>) --vmax N [--format table|json]
   branchwise --version
 
@@ -227,7 +227,7 @@ export function main(argv: readonly string[], io: Io): number {
     return EXIT.usage;
   }
   try {
-    if (command === 'predict') return predict(v, format, io);
+    if (command === 'predict') return predict(v, format, io, files[0]);
     if (command === 'potential') {
       if (format === 'csv') {
         io.err('potential has no CSV form: use --format table or json\n');
@@ -297,12 +297,17 @@ export function main(argv: readonly string[], io: Io): number {
   }
 }
 
-function predict(v: Record<string, string | boolean | undefined>, format: Format, io: Io): number {
-  if (typeof v.species !== 'string') throw new ScienceError('INPUT_INVALID', 'predict needs --species', {});
+function predict(v: Record<string, string | boolean | undefined>, format: Format, io: Io, file?: string): number {
+  // A .json file is the body of POST /v1/predictions (linear polyatomics: species, levels and { upper, lower } bands).
+  const body = file !== undefined ? bodyOf(file, typeof v.species === 'string' ? { species: v.species } : {}) : {};
+  if (typeof v.species !== 'string' && typeof body.species !== 'string') {
+    throw new ScienceError('INPUT_INVALID', 'predict needs --species (or a .json body with "species")', {});
+  }
   const req = parseOrThrow(
     PredictionRequestSchema,
     {
-      species: v.species,
+      ...body,
+      ...(typeof v.species === 'string' ? { species: v.species } : {}),
       ...(typeof v.bands === 'string' ? { bands: v.bands.split(',') } : {}),
       ...(typeof v.jmax === 'string' ? { jMax: Number(v.jmax) } : {}),
       ...(typeof v.temperature === 'string' ? { temperature: Number(v.temperature) } : {}),
@@ -427,7 +432,15 @@ function fitTable(file: string, r: ReturnType<typeof runFit>): string {
     String(b.lines),
     `${b.jRange[0] ?? ''}–${b.jRange[1] ?? ''}`,
   ]);
-  const levels = r.levels.map((l) => [l.species, `v=${l.v}`, q(l.B), q(l.D), q(l.H)]);
+  const hasQ = r.levels.some((l) => l.q);
+  const levels = r.levels.map((l) => [
+    l.species,
+    l.label ?? `v=${l.v}`,
+    q(l.B),
+    q(l.D),
+    q(l.H),
+    ...(hasQ ? [q(l.q)] : []),
+  ]);
   const eq = r.equilibrium.flatMap((e) =>
     (['omega_e', 'omega_e_x_e', 'B_e', 'alpha_e', 'D_e', 'r_e'] as const).flatMap((k) =>
       e[k] ? [[e.species, k, q(e[k]), e[k]?.unit ?? '']] : [],
@@ -436,7 +449,8 @@ function fitTable(file: string, r: ReturnType<typeof runFit>): string {
   return [
     `${file}: ${r.statistics.fitted} of ${r.statistics.lines} lines fitted, rms ${fmt(r.statistics.rms, 3)} cm-1`,
     table([['species', 'band', 'origin (cm-1)', 'lines', 'J range'], ...bands]),
-    table([['species', 'level', 'B (cm-1)', 'D (cm-1)', 'H (cm-1)'], ...levels]),
+    table([['species', 'level', 'B (cm-1)', 'D (cm-1)', 'H (cm-1)', ...(hasQ ? ['q (cm-1)'] : [])], ...levels]),
+    ...(r.convention ? [`convention: ${r.convention}`] : []),
     ...(eq.length ? [table([['species', 'constant', 'value ± u', 'unit'], ...eq])] : []),
     ...r.warnings.map((w) => `warning: ${w.message}`),
     '',

@@ -175,7 +175,7 @@ export interface components {
       options?: components["schemas"]["FitOptions"];
       peakOptions?: components["schemas"]["PeakOptions"];
       sample?: components["schemas"]["Sample"];
-      /** @description element symbols in order, each optionally preceded by its mass number: "12C16O", "H35Cl", "1H-79Br" */
+      /** @description diatomic: element symbols in order, each optionally preceded by its mass number ("12C16O", "H35Cl", "1H-79Br"; a digit always belongs to the symbol after it). Linear polyatomic: the atoms along the axis joined by "-", each optionally preceded by its mass number ("16O-12C-16O", "14N-14N-16O", "1H-12C-14N", "1H-12C-12C-1H"), or an everyday formula CO2, N2O, OCS, HCN, C2H2, CS2 where a single digit AFTER a symbol is a count and digits BEFORE a symbol are its mass number, applied to every atom of that element ("13CO2" = 16O-13C-16O, "C18O2" = 18O-12C-18O, "DCN" = 2H-12C-14N). Responses echo the hyphenated form. */
       species?: string;
       /** @description a spectrum instead of lines: peaks are found, then assigned and fitted */
       spectrum?: components["schemas"]["Spectrum"];
@@ -232,13 +232,25 @@ export interface components {
     };
     Fit: {
       assignment: components["schemas"]["AssignmentReport"];
-      bands: {
+      bands: ({
           band: string;
           jRange: number[];
+          /**
+           * @description linear polyatomic: Δl = 0 or ±1
+           * @enum {string}
+           */
+          kind?: "parallel" | "perpendicular";
+          /** @description linear polyatomic: the band in the trade notation, e.g. "00⁰1–00⁰0" */
+          label?: string;
           lines: number;
+          /** @description linear polyatomic */
+          lower?: components["schemas"]["LinearLevel"];
+          /** @description linear polyatomic: ν₀ = G_v′ − G_v″ of the B[J(J+1) − l²] form */
           origin?: components["schemas"]["Quantity"];
           species: string;
-        }[];
+          /** @description linear polyatomic */
+          upper?: components["schemas"]["LinearLevel"];
+        })[];
       combinationDifferences: ({
           B: components["schemas"]["Quantity"];
           band: string;
@@ -252,7 +264,8 @@ export interface components {
           /** @enum {string} */
           kind: "lower" | "upper";
           L?: components["schemas"]["Quantity"];
-          M?: components["schemas"]["Quantity"];
+          /** @description linear polyatomic: the level label */
+          level?: string;
           points: {
               j: number;
               residual: number;
@@ -261,8 +274,11 @@ export interface components {
             }[];
           rms: number;
           species: string;
-          v: number;
+          /** @description diatomic: v; linear polyatomic: the quanta [v1, v2, v3] (or five for C2H2) */
+          v: number | number[];
         })[];
+      /** @description linear polyatomic fits: the term-value formula and e/f sign convention the constants belong to */
+      convention?: string;
       correlation: {
         matrix: number[][];
         parameters: string[];
@@ -305,36 +321,67 @@ export interface components {
           terms: string[];
         })[];
       equilibrium: components["schemas"]["EquilibriumConstants"][];
-      levels: {
+      levels: ({
           B: components["schemas"]["Quantity"];
           D?: components["schemas"]["Quantity"];
           H?: components["schemas"]["Quantity"];
+          /** @description linear polyatomic: vibrational angular momentum */
+          l?: number;
           L?: components["schemas"]["Quantity"];
-          /** @description M_v, the x⁵ term (pure-rotation lines to high J) */
-          M?: components["schemas"]["Quantity"];
+          /** @description linear polyatomic: the level in the trade notation, e.g. "01¹0" */
+          label?: string;
+          /**
+           * @description linear polyatomic: the only component seen (q undetermined, B is its effective B)
+           * @enum {string}
+           */
+          parity?: "e" | "f";
+          /** @description linear polyatomic, l ≥ 1: l-type doubling, E(f) − E(e) = q J(J+1) + q_J [J(J+1)]² */
+          q?: components["schemas"]["Quantity"];
+          /** @description linear polyatomic, l ≥ 1: centrifugal correction of the l-type doubling */
+          qJ?: components["schemas"]["Quantity"];
           /** @description effective bond length from B_v (absent when B_v is not positive) */
           r?: components["schemas"]["Quantity"];
+          /** @description linear polyatomic: rank within a Fermi polyad */
+          rank?: number;
           species: string;
           term?: {
             /** @description with ?display=rounded: the value rounded to two significant digits of its uncertainty, e.g. "2143.27123 ± 0.00046" */
             display?: string;
-            relativeTo: number;
+            relativeTo: number | string;
             /** @description standard uncertainty, coverage factor k = 1 */
             uncertainty: number;
             unit: string;
             value: number;
           };
-          v: number;
-        }[];
+          /** @description diatomic: v; linear polyatomic: the quanta [v1, v2, v3] (or five for C2H2) */
+          v: number | number[];
+        })[];
       lines: ({
           assignment?: {
+            /** @description diatomic "v'-v''"; linear polyatomic: the band label, e.g. "00⁰1–00⁰0" */
             band: string;
             /** @enum {string} */
             branch: "P" | "Q" | "R";
             j: number;
+            /** @description linear polyatomic: the lower level */
+            lower?: components["schemas"]["LinearLevel"];
+            /**
+             * @description linear polyatomic: e/f component of the lower level
+             * @enum {string}
+             */
+            parity?: "e" | "f";
             /** @enum {string} */
             source: "given" | "auto";
             species: string;
+            /** @description linear polyatomic: the upper level */
+            upper?: components["schemas"]["LinearLevel"];
+            /** @description linear polyatomic: J' */
+            upperJ?: number;
+            /**
+             * @description linear polyatomic: e/f component of the upper level
+             * @enum {string}
+             */
+            upperParity?: "e" | "f";
           };
           calculated?: number;
           /** @description the caller's identifier of the line (echoed); the report numbers lines from 1 without it */
@@ -379,11 +426,13 @@ export interface components {
       model: {
         /** @description terms carried with a prior because the lines cannot determine them; their σ is in the covariance */
         constraints: components["schemas"]["TermConstraint"][];
-        levelTerms: {
+        levelTerms: ({
+            l?: number;
             species: string;
             terms: string[];
-            v: number;
-          }[];
+            /** @description diatomic: v; linear polyatomic: the quanta [v1, v2, v3] (or five for C2H2) */
+            v: number | number[];
+          })[];
         selection: string;
       };
       /** @description safety caution: the service certifies nothing about a gas */
@@ -408,7 +457,10 @@ export interface components {
         })[];
       species: {
           formula: string;
-          reducedMass: components["schemas"]["Quantity"];
+          /** @description linear polyatomic species: molecular mass, u (AME2020) */
+          mass?: components["schemas"]["Quantity"];
+          /** @description diatomic species */
+          reducedMass?: components["schemas"]["Quantity"];
         }[];
       /** @description when a spectrum was sent: how many points, how many peaks found, the absorbance noise and the step */
       spectrum?: {
@@ -438,7 +490,7 @@ export interface components {
       lean?: boolean;
       /** @description also fit U_kl across isotopologues (default false) */
       massReducedDunham?: boolean;
-      /** @description 1 = B, 2 = D, 3 = H, 4 = L, 5 = M (default 5) */
+      /** @description 1 = B, 2 = D, 3 = H, 4 = L (default 4) */
       maxCentrifugalOrder?: number;
       /** @description largest instrument wavenumber offset searched by automatic assignment, cm-1 (default 0.5) */
       maxOffset?: number;
@@ -463,7 +515,7 @@ export interface components {
       options?: components["schemas"]["FitOptions"];
       peakOptions?: components["schemas"]["PeakOptions"];
       sample?: components["schemas"]["Sample"];
-      /** @description element symbols in order, each optionally preceded by its mass number: "12C16O", "H35Cl", "1H-79Br" */
+      /** @description diatomic: element symbols in order, each optionally preceded by its mass number ("12C16O", "H35Cl", "1H-79Br"; a digit always belongs to the symbol after it). Linear polyatomic: the atoms along the axis joined by "-", each optionally preceded by its mass number ("16O-12C-16O", "14N-14N-16O", "1H-12C-14N", "1H-12C-12C-1H"), or an everyday formula CO2, N2O, OCS, HCN, C2H2, CS2 where a single digit AFTER a symbol is a count and digits BEFORE a symbol are its mass number, applied to every atom of that element ("13CO2" = 16O-13C-16O, "C18O2" = 18O-12C-18O, "DCN" = 2H-12C-14N). Responses echo the hyphenated form. */
       species?: string;
       /** @description a spectrum instead of lines: peaks are found, then assigned and fitted */
       spectrum?: components["schemas"]["Spectrum"];
@@ -475,13 +527,25 @@ export interface components {
     };
     FitResponse: {
       assignment: components["schemas"]["AssignmentReport"];
-      bands: {
+      bands: ({
           band: string;
           jRange: number[];
+          /**
+           * @description linear polyatomic: Δl = 0 or ±1
+           * @enum {string}
+           */
+          kind?: "parallel" | "perpendicular";
+          /** @description linear polyatomic: the band in the trade notation, e.g. "00⁰1–00⁰0" */
+          label?: string;
           lines: number;
+          /** @description linear polyatomic */
+          lower?: components["schemas"]["LinearLevel"];
+          /** @description linear polyatomic: ν₀ = G_v′ − G_v″ of the B[J(J+1) − l²] form */
           origin?: components["schemas"]["Quantity"];
           species: string;
-        }[];
+          /** @description linear polyatomic */
+          upper?: components["schemas"]["LinearLevel"];
+        })[];
       combinationDifferences: ({
           B: components["schemas"]["Quantity"];
           band: string;
@@ -495,7 +559,8 @@ export interface components {
           /** @enum {string} */
           kind: "lower" | "upper";
           L?: components["schemas"]["Quantity"];
-          M?: components["schemas"]["Quantity"];
+          /** @description linear polyatomic: the level label */
+          level?: string;
           points: {
               j: number;
               residual: number;
@@ -504,8 +569,11 @@ export interface components {
             }[];
           rms: number;
           species: string;
-          v: number;
+          /** @description diatomic: v; linear polyatomic: the quanta [v1, v2, v3] (or five for C2H2) */
+          v: number | number[];
         })[];
+      /** @description linear polyatomic fits: the term-value formula and e/f sign convention the constants belong to */
+      convention?: string;
       correlation: {
         matrix: number[][];
         parameters: string[];
@@ -549,36 +617,67 @@ export interface components {
         })[];
       equilibrium: components["schemas"]["EquilibriumConstants"][];
       input: components["schemas"]["InputDigest"];
-      levels: {
+      levels: ({
           B: components["schemas"]["Quantity"];
           D?: components["schemas"]["Quantity"];
           H?: components["schemas"]["Quantity"];
+          /** @description linear polyatomic: vibrational angular momentum */
+          l?: number;
           L?: components["schemas"]["Quantity"];
-          /** @description M_v, the x⁵ term (pure-rotation lines to high J) */
-          M?: components["schemas"]["Quantity"];
+          /** @description linear polyatomic: the level in the trade notation, e.g. "01¹0" */
+          label?: string;
+          /**
+           * @description linear polyatomic: the only component seen (q undetermined, B is its effective B)
+           * @enum {string}
+           */
+          parity?: "e" | "f";
+          /** @description linear polyatomic, l ≥ 1: l-type doubling, E(f) − E(e) = q J(J+1) + q_J [J(J+1)]² */
+          q?: components["schemas"]["Quantity"];
+          /** @description linear polyatomic, l ≥ 1: centrifugal correction of the l-type doubling */
+          qJ?: components["schemas"]["Quantity"];
           /** @description effective bond length from B_v (absent when B_v is not positive) */
           r?: components["schemas"]["Quantity"];
+          /** @description linear polyatomic: rank within a Fermi polyad */
+          rank?: number;
           species: string;
           term?: {
             /** @description with ?display=rounded: the value rounded to two significant digits of its uncertainty, e.g. "2143.27123 ± 0.00046" */
             display?: string;
-            relativeTo: number;
+            relativeTo: number | string;
             /** @description standard uncertainty, coverage factor k = 1 */
             uncertainty: number;
             unit: string;
             value: number;
           };
-          v: number;
-        }[];
+          /** @description diatomic: v; linear polyatomic: the quanta [v1, v2, v3] (or five for C2H2) */
+          v: number | number[];
+        })[];
       lines: ({
           assignment?: {
+            /** @description diatomic "v'-v''"; linear polyatomic: the band label, e.g. "00⁰1–00⁰0" */
             band: string;
             /** @enum {string} */
             branch: "P" | "Q" | "R";
             j: number;
+            /** @description linear polyatomic: the lower level */
+            lower?: components["schemas"]["LinearLevel"];
+            /**
+             * @description linear polyatomic: e/f component of the lower level
+             * @enum {string}
+             */
+            parity?: "e" | "f";
             /** @enum {string} */
             source: "given" | "auto";
             species: string;
+            /** @description linear polyatomic: the upper level */
+            upper?: components["schemas"]["LinearLevel"];
+            /** @description linear polyatomic: J' */
+            upperJ?: number;
+            /**
+             * @description linear polyatomic: e/f component of the upper level
+             * @enum {string}
+             */
+            upperParity?: "e" | "f";
           };
           calculated?: number;
           /** @description the caller's identifier of the line (echoed); the report numbers lines from 1 without it */
@@ -623,11 +722,13 @@ export interface components {
       model: {
         /** @description terms carried with a prior because the lines cannot determine them; their σ is in the covariance */
         constraints: components["schemas"]["TermConstraint"][];
-        levelTerms: {
+        levelTerms: ({
+            l?: number;
             species: string;
             terms: string[];
-            v: number;
-          }[];
+            /** @description diatomic: v; linear polyatomic: the quanta [v1, v2, v3] (or five for C2H2) */
+            v: number | number[];
+          })[];
         selection: string;
       };
       /** @description safety caution: the service certifies nothing about a gas */
@@ -655,7 +756,10 @@ export interface components {
       software: components["schemas"]["Software"];
       species: {
           formula: string;
-          reducedMass: components["schemas"]["Quantity"];
+          /** @description linear polyatomic species: molecular mass, u (AME2020) */
+          mass?: components["schemas"]["Quantity"];
+          /** @description diatomic species */
+          reducedMass?: components["schemas"]["Quantity"];
         }[];
       /** @description when a spectrum was sent: how many points, how many peaks found, the absorbance noise and the step */
       spectrum?: {
@@ -685,7 +789,7 @@ export interface components {
       sha256: string;
     };
     Line: {
-      assignment?: components["schemas"]["Assignment"];
+      assignment?: components["schemas"]["Assignment"] | components["schemas"]["LinearAssignment"];
       /** @description the caller's identifier of the line (echoed); the report numbers lines from 1 without it */
       id?: string | number;
       /** @description any linear scale */
@@ -696,6 +800,47 @@ export interface components {
       source?: string;
       /** @description standard uncertainty in the request unit */
       uncertainty?: number;
+    };
+    /** @description assignment of a line of a linear polyatomic molecule */
+    LinearAssignment: {
+      /** @enum {string} */
+      branch: "P" | "Q" | "R";
+      /** @description lower-state J (J'') */
+      j: number;
+      lower: components["schemas"]["LinearLevel"];
+      /**
+       * @description e/f component of the lower level; needed only when both levels have l ≥ 1
+       * @enum {string}
+       */
+      parity?: "e" | "f";
+      /** @description needed only when the request declares no species */
+      species?: string;
+      upper: components["schemas"]["LinearLevel"];
+    };
+    LinearLevel: {
+      /** @description vibrational angular momentum |l| (≤ the bending quanta, same parity as them) */
+      l: number;
+      /** @description rank within a Fermi polyad sharing v and l, 1 the highest (CO2 10001: 1, 10002: 2; label suffix _I, _II) */
+      rank?: number;
+      /** @description vibrational quanta: [v1, v2, v3] for triatomics (v2 the bend), [v1, v2, v3, v4, v5] for C2H2 */
+      v: number[];
+    };
+    LinearLevelConstants: {
+      B: number;
+      /** @default 0 */
+      D?: number;
+      /** @description G_v of F = G_v + B[J(J+1) − l²] − … */
+      G: number;
+      H?: number;
+      /** @description vibrational angular momentum |l| (≤ the bending quanta, same parity as them) */
+      l: number;
+      /** @description l ≥ 1: E(f) − E(e) = q J(J+1) + q_J [J(J+1)]² */
+      q?: number;
+      qJ?: number;
+      /** @description rank within a Fermi polyad sharing v and l, 1 the highest (CO2 10001: 1, 10002: 2; label suffix _I, _II) */
+      rank?: number;
+      /** @description vibrational quanta: [v1, v2, v3] for triatomics (v2 the bend), [v1, v2, v3, v4, v5] for C2H2 */
+      v: number[];
     };
     NumberingEvidence: {
       alignment: number;
@@ -809,7 +954,7 @@ export interface components {
       options?: components["schemas"]["FitOptions"];
       peakOptions?: components["schemas"]["PeakOptions"];
       sample?: components["schemas"]["Sample"];
-      /** @description element symbols in order, each optionally preceded by its mass number: "12C16O", "H35Cl", "1H-79Br" */
+      /** @description diatomic: element symbols in order, each optionally preceded by its mass number ("12C16O", "H35Cl", "1H-79Br"; a digit always belongs to the symbol after it). Linear polyatomic: the atoms along the axis joined by "-", each optionally preceded by its mass number ("16O-12C-16O", "14N-14N-16O", "1H-12C-14N", "1H-12C-12C-1H"), or an everyday formula CO2, N2O, OCS, HCN, C2H2, CS2 where a single digit AFTER a symbol is a count and digits BEFORE a symbol are its mass number, applied to every atom of that element ("13CO2" = 16O-13C-16O, "C18O2" = 18O-12C-18O, "DCN" = 2H-12C-14N). Responses echo the hyphenated form. */
       species?: string;
       /** @description a spectrum instead of lines: peaks are found, then assigned and fitted */
       spectrum?: components["schemas"]["Spectrum"];
@@ -910,12 +1055,15 @@ export interface components {
     };
     PredictionRequest: {
       /**
-       * @description bands "v'-v''"; "0-0" for pure rotation
+       * @description diatomic: bands "v'-v''" ("0-0" for pure rotation); linear polyatomic: { upper: { v, l }, lower: { v, l } }
        * @default [
        *   "1-0"
        * ]
        */
-      bands?: string[];
+      bands?: (string | {
+          lower: components["schemas"]["LinearLevel"];
+          upper: components["schemas"]["LinearLevel"];
+        })[];
       /** @description equilibrium constants in cm-1 (default: the reference library) */
       constants?: {
         covariance?: {
@@ -931,8 +1079,10 @@ export interface components {
       };
       /** @default 30 */
       jMax?: number;
+      /** @description linear polyatomic: the constants of every level the bands join (cm-1) */
+      levels?: components["schemas"]["LinearLevelConstants"][];
       sample?: components["schemas"]["Sample"];
-      /** @description element symbols in order, each optionally preceded by its mass number: "12C16O", "H35Cl", "1H-79Br" */
+      /** @description diatomic: element symbols in order, each optionally preceded by its mass number ("12C16O", "H35Cl", "1H-79Br"; a digit always belongs to the symbol after it). Linear polyatomic: the atoms along the axis joined by "-", each optionally preceded by its mass number ("16O-12C-16O", "14N-14N-16O", "1H-12C-14N", "1H-12C-12C-1H"), or an everyday formula CO2, N2O, OCS, HCN, C2H2, CS2 where a single digit AFTER a symbol is a count and digits BEFORE a symbol are its mass number, applied to every atom of that element ("13CO2" = 16O-13C-16O, "C18O2" = 18O-12C-18O, "DCN" = 2H-12C-14N). Responses echo the hyphenated form. */
       species: string;
       /**
        * @description K, for relative intensities
@@ -952,16 +1102,34 @@ export interface components {
           uncertainty: number | null;
           value: number;
         })[];
+      /** @description linear polyatomic: the term-value and e/f convention */
+      convention?: string;
       input: components["schemas"]["InputDigest"];
       lines: ({
           band: string;
           /** @enum {string} */
           branch: "P" | "Q" | "R";
           j: number;
+          /** @description linear polyatomic */
+          lower?: components["schemas"]["LinearLevel"];
           lowerEnergy: number;
+          /**
+           * @description linear polyatomic: e/f component of the lower level
+           * @enum {string}
+           */
+          parity?: "e" | "f";
           /** @description in the requested unit */
           position: components["schemas"]["PredictedQuantity"];
           relativeIntensity: number;
+          /** @description linear polyatomic */
+          upper?: components["schemas"]["LinearLevel"];
+          /** @description linear polyatomic: J' */
+          upperJ?: number;
+          /**
+           * @description linear polyatomic: e/f component of the upper level
+           * @enum {string}
+           */
+          upperParity?: "e" | "f";
           wavenumber: components["schemas"]["PredictedQuantity"];
         })[];
       notice: string;

@@ -75,7 +75,7 @@ export function fitConstantsRows(r: FitResponse): Cell[][] {
   };
   for (const b of r.bands) add('band', b.species, b.band, 'origin', b.origin);
   for (const l of r.levels) {
-    const of = `v=${l.v}`;
+    const of = l.label ?? `v=${l.v}`;
     add('level', l.species, of, 'term', l.term);
     add('level', l.species, of, 'B', l.B);
     add('level', l.species, of, 'D', l.D);
@@ -83,6 +83,8 @@ export function fitConstantsRows(r: FitResponse): Cell[][] {
     add('level', l.species, of, 'L', l.L);
     add('level', l.species, of, 'M', l.M);
     add('level', l.species, of, 'r', l.r);
+    add('level', l.species, of, 'q', l.q);
+    add('level', l.species, of, 'qJ', l.qJ);
   }
   for (const e of r.equilibrium) {
     for (const [name, q] of Object.entries(e)) {

@@ -97,7 +97,14 @@ export function resolvers(config: Config, app: FastifyInstance) {
         return guarded(() => app.pool.run({ kind: 'peaks', body }, jobSize(body)));
       },
       predict: async (_: unknown, args: { input: unknown }, ctx: Ctx) => {
-        const parsed = PredictionRequestSchema.safeParse(dropNulls(args.input));
+        const input = dropNulls(args.input) as Record<string, unknown>;
+        const { levelBands, ...rest } = input;
+        const merged = Array.isArray(levelBands)
+          ? { ...rest, bands: [...(Array.isArray(rest.bands) ? rest.bands : []), ...levelBands] }
+          : levelBands !== undefined
+            ? { ...rest, bands: levelBands }
+            : rest;
+        const parsed = PredictionRequestSchema.safeParse(merged);
         if (!parsed.success) badInput(parsed.error);
         const body = parsed.data;
         const r = await guarded(() => app.pool.run<object>({ kind: 'predict', body }, 1));

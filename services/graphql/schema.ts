@@ -12,8 +12,21 @@ export const typeDefs = /* GraphQL */ `
     R
   }
 
+  "A vibrational level of a linear polyatomic molecule: quanta [v1, v2, v3] (C2H2: five) and |l|."
+  input LevelInput {
+    v: [Int!]!
+    l: Int!
+    "rank within a Fermi polyad (CO2 10001: 1, 10002: 2)"
+    rank: Int
+  }
+
+  "Diatomic: band, branch, j. Linear polyatomic: upper, lower, branch, j (and parity when both levels have l ≥ 1)."
   input AssignmentInput {
-    band: String!
+    band: String
+    upper: LevelInput
+    lower: LevelInput
+    "e or f: component of the lower level"
+    parity: String
     branch: Branch!
     j: Int!
     species: String
@@ -143,7 +156,8 @@ export const typeDefs = /* GraphQL */ `
     value: Float!
     uncertainty: Float!
     unit: String!
-    relativeTo: Int!
+    "diatomic: v of the reference level; linear polyatomic: its level key"
+    relativeTo: JSON!
   }
 
   type NamedQuantity {
@@ -156,7 +170,16 @@ export const typeDefs = /* GraphQL */ `
 
   type SpeciesMass {
     formula: String!
-    reducedMass: Quantity!
+    "diatomic species"
+    reducedMass: Quantity
+    "linear polyatomic species: molecular mass, u"
+    mass: Quantity
+  }
+
+  type LinearLevel {
+    v: [Int!]!
+    l: Int!
+    rank: Int
   }
 
   type LineAssignment {
@@ -165,6 +188,11 @@ export const typeDefs = /* GraphQL */ `
     j: Int!
     species: String!
     source: String!
+    upper: LinearLevel
+    lower: LinearLevel
+    parity: String
+    upperParity: String
+    upperJ: Int
   }
 
   type LineOutcome {
@@ -185,11 +213,23 @@ export const typeDefs = /* GraphQL */ `
     origin: Quantity
     lines: Int!
     jRange: [Int!]!
+    upper: LinearLevel
+    lower: LinearLevel
+    label: String
+    "parallel or perpendicular"
+    kind: String
   }
 
   type Level {
     species: String!
-    v: Int!
+    "diatomic: v (Int); linear polyatomic: [v1, v2, v3] (or five quanta)"
+    v: JSON!
+    l: Int
+    rank: Int
+    label: String
+    q: Quantity
+    qJ: Quantity
+    parity: String
     term: TermQuantity
     B: Quantity!
     D: Quantity
@@ -279,6 +319,8 @@ export const typeDefs = /* GraphQL */ `
 
   type FitResult {
     species: [SpeciesMass!]!
+    "linear polyatomic fits: the term-value formula and e/f sign convention"
+    convention: String
     lines: [LineOutcome!]!
     bands: [BandResult!]!
     levels: [Level!]!
@@ -341,6 +383,10 @@ export const typeDefs = /* GraphQL */ `
     "{ values: { omega_e: { value, uncertainty }, … }, covariance: { names, matrix } }"
     constants: JSON
     bands: [String!]
+    "linear polyatomic: bands as [{ upper: { v, l }, lower: { v, l } }] (the REST bands objects)"
+    levelBands: JSON
+    "linear polyatomic: [{ v, l, G, B, D, H, q, qJ }] in cm-1"
+    levels: JSON
     jMax: Int
     temperature: Float
     unit: String
@@ -368,6 +414,11 @@ export const typeDefs = /* GraphQL */ `
     wavenumber: PredictedQuantity!
     relativeIntensity: Float!
     lowerEnergy: Float!
+    upper: LinearLevel
+    lower: LinearLevel
+    upperJ: Int
+    parity: String
+    upperParity: String
   }
 
   type PredictionResult {
@@ -375,6 +426,7 @@ export const typeDefs = /* GraphQL */ `
     source: String!
     constants: [ConstantValue!]!
     lines: [PredictedLine!]!
+    convention: String
     notice: String!
     software: Software!
     input: InputDigest!

@@ -26,6 +26,45 @@ export const fitExample = {
   })),
 };
 
+/**
+ * An invented CO2 scenario: the ν3 band 00⁰1–00⁰0 of 12C16O2 generated from the constants of Rothman & Young,
+ * JQSRT 25, 505 (1981) (G, B, D, H of 00001 and 00011) with seeded Gaussian noise σ = 3e-4 cm⁻¹; not a
+ * measurement. Only even J″ exist (the odd rotational levels of the ground state are missing).
+ */
+const CO2_NU3_LINES = [
+  ['R', 0, 2349.9174],
+  ['R', 2, 2351.4475],
+  ['R', 4, 2352.9528],
+  ['R', 6, 2354.4338],
+  ['R', 8, 2355.8898],
+  ['R', 10, 2357.3211],
+  ['R', 12, 2358.7278],
+  ['R', 14, 2360.1094],
+  ['R', 16, 2361.4665],
+  ['R', 18, 2362.7992],
+  ['R', 20, 2364.1063],
+  ['P', 2, 2347.5763],
+  ['P', 4, 2345.9848],
+  ['P', 6, 2344.3691],
+  ['P', 8, 2342.7273],
+  ['P', 10, 2341.0626],
+  ['P', 12, 2339.3729],
+  ['P', 14, 2337.6583],
+  ['P', 16, 2335.9196],
+  ['P', 18, 2334.1569],
+  ['P', 20, 2332.3693],
+  ['P', 22, 2330.5578],
+] as const;
+
+export const co2FitExample = {
+  species: 'CO2',
+  lines: CO2_NU3_LINES.map(([branch, j, position]) => ({
+    position,
+    uncertainty: 0.0003,
+    assignment: { upper: { v: [0, 0, 1], l: 0 }, lower: { v: [0, 0, 0], l: 0 }, branch, j },
+  })),
+};
+
 /** The same lines without assignments: the service assigns them against the reference constants. */
 export const unassignedExample = {
   species: '12C16O',

@@ -2,6 +2,7 @@ import { CSV_COLUMN_NAMES } from '../../src/spectra/csv.js';
 import { CSV_TYPES, JCAMP_TYPES } from '../text-bodies.js';
 import {
   checkExample,
+  co2FitExample,
   csvExample,
   csvSpectrumExample,
   fitExample,
@@ -80,6 +81,7 @@ const BODIES: Record<string, { json?: Record<string, unknown>; text?: Record<str
     json: {
       assigned: { summary: 'assigned CO 1-0 lines', value: fitExample },
       unassigned: { summary: 'the same lines, assigned by the service', value: unassignedExample },
+      co2: { summary: 'assigned CO2 ν3 lines (linear polyatomic: upper and lower levels)', value: co2FitExample },
     },
     text: {
       ...Object.fromEntries(JCAMP_TYPES.map((t) => [t, jcampBody])),

@@ -8,10 +8,53 @@ import { provenanceAndSampleFields, SampleSchema } from './provenance.js';
 export const SpeciesStringSchema = z
   .string()
   .min(1)
-  .max(40)
-  .describe('element symbols in order, each optionally preceded by its mass number: "12C16O", "H35Cl", "1H-79Br"');
+  .max(60)
+  .describe(
+    'diatomic: element symbols in order, each optionally preceded by its mass number ("12C16O", "H35Cl", "1H-79Br"; a digit always belongs to the symbol after it). Linear polyatomic: the atoms along the axis joined by "-", each optionally preceded by its mass number ("16O-12C-16O", "14N-14N-16O", "1H-12C-14N", "1H-12C-12C-1H"), or an everyday formula CO2, N2O, OCS, HCN, C2H2, CS2 where a single digit AFTER a symbol is a count and digits BEFORE a symbol are its mass number, applied to every atom of that element ("13CO2" = 16O-13C-16O, "C18O2" = 18O-12C-18O, "DCN" = 2H-12C-14N). Responses echo the hyphenated form.',
+  );
 
-export const AssignmentSchema = z
+/** A vibrational level of a linear polyatomic molecule. */
+export const LinearLevelSchema = z
+  .strictObject({
+    v: z
+      .array(z.number().int().min(0).max(100))
+      .min(3)
+      .max(5)
+      .describe('vibrational quanta: [v1, v2, v3] for triatomics (v2 the bend), [v1, v2, v3, v4, v5] for C2H2'),
+    l: z
+      .number()
+      .int()
+      .min(0)
+      .max(100)
+      .describe('vibrational angular momentum |l| (≤ the bending quanta, same parity as them)'),
+    rank: z
+      .number()
+      .int()
+      .min(1)
+      .max(9)
+      .optional()
+      .describe(
+        'rank within a Fermi polyad sharing v and l, 1 the highest (CO2 10001: 1, 10002: 2; label suffix _I, _II)',
+      ),
+  })
+  .meta({ id: 'LinearLevel' });
+
+export const LinearAssignmentSchema = z
+  .strictObject({
+    upper: LinearLevelSchema,
+    lower: LinearLevelSchema,
+    branch: z.enum(['P', 'Q', 'R']),
+    j: z.number().int().min(0).max(300).describe("lower-state J (J'')"),
+    parity: z
+      .enum(['e', 'f'])
+      .optional()
+      .describe('e/f component of the lower level; needed only when both levels have l ≥ 1'),
+    species: SpeciesStringSchema.optional().describe('needed only when the request declares no species'),
+  })
+  .describe('assignment of a line of a linear polyatomic molecule')
+  .meta({ id: 'LinearAssignment' });
+
+export const DiatomicAssignmentSchema = z
   .strictObject({
     band: z
       .string()
@@ -22,6 +65,9 @@ export const AssignmentSchema = z
     species: SpeciesStringSchema.optional().describe('needed only when lines of several isotopologues are mixed'),
   })
   .meta({ id: 'Assignment' });
+
+/** A diatomic assignment ({band, branch, j}) or a linear polyatomic one ({upper, lower, branch, j}). */
+export const AssignmentSchema = z.union([DiatomicAssignmentSchema, LinearAssignmentSchema]);
 
 /** A caller's name for a line, echoed in the response and printed in the report's line table. */
 export const LineIdSchema = z
@@ -206,11 +252,16 @@ export const LineOutcomeSchema = z.object({
   intensity: z.number().optional().describe('as sent'),
   assignment: z
     .object({
-      band: z.string(),
+      band: z.string().describe('diatomic "v\'-v\'\'"; linear polyatomic: the band label, e.g. "00⁰1–00⁰0"'),
       branch: z.enum(['P', 'Q', 'R']),
       j: z.number().int(),
       species: z.string(),
       source: z.enum(['given', 'auto']),
+      upper: LinearLevelSchema.optional().describe('linear polyatomic: the upper level'),
+      lower: LinearLevelSchema.optional().describe('linear polyatomic: the lower level'),
+      parity: z.enum(['e', 'f']).optional().describe('linear polyatomic: e/f component of the lower level'),
+      upperParity: z.enum(['e', 'f']).optional().describe('linear polyatomic: e/f component of the upper level'),
+      upperJ: z.number().int().optional().describe("linear polyatomic: J'"),
     })
     .optional(),
   calculated: z.number().optional(),
@@ -362,29 +413,56 @@ export const AssignmentReportSchema = z
   .meta({ id: 'AssignmentReport' });
 
 /** The fit itself: the body of a /v1/fits response, and `fit` in a /v1/checks response. */
+const LevelVSchema = z
+  .union([z.number().int(), z.array(z.number().int())])
+  .describe('diatomic: v; linear polyatomic: the quanta [v1, v2, v3] (or five for C2H2)');
+
 const fitFields = {
-  species: z.array(z.object({ formula: z.string(), reducedMass: Q })),
+  species: z.array(
+    z.object({
+      formula: z.string(),
+      reducedMass: Q.optional().describe('diatomic species'),
+      mass: Q.optional().describe('linear polyatomic species: molecular mass, u (AME2020)'),
+    }),
+  ),
+  convention: z
+    .string()
+    .optional()
+    .describe('linear polyatomic fits: the term-value formula and e/f sign convention the constants belong to'),
   lines: z.array(LineOutcomeSchema),
   bands: z.array(
     z.object({
       species: z.string(),
       band: z.string(),
-      origin: Q.optional(),
+      origin: Q.optional().describe('linear polyatomic: ν₀ = G_v′ − G_v″ of the B[J(J+1) − l²] form'),
       lines: z.number().int(),
       jRange: z.array(z.number().int()),
+      upper: LinearLevelSchema.optional().describe('linear polyatomic'),
+      lower: LinearLevelSchema.optional().describe('linear polyatomic'),
+      label: z.string().optional().describe('linear polyatomic: the band in the trade notation, e.g. "00⁰1–00⁰0"'),
+      kind: z.enum(['parallel', 'perpendicular']).optional().describe('linear polyatomic: Δl = 0 or ±1'),
     }),
   ),
   levels: z.array(
     z.object({
       species: z.string(),
-      v: z.number().int(),
-      term: Q.extend({ relativeTo: z.number().int() }).optional(),
+      v: LevelVSchema,
+      l: z.number().int().optional().describe('linear polyatomic: vibrational angular momentum'),
+      rank: z.number().int().optional().describe('linear polyatomic: rank within a Fermi polyad'),
+      label: z.string().optional().describe('linear polyatomic: the level in the trade notation, e.g. "01¹0"'),
+      term: Q.extend({ relativeTo: z.union([z.number().int(), z.string()]) }).optional(),
       B: Q,
       D: Q.optional(),
       H: Q.optional(),
       L: Q.optional(),
       M: Q.optional().describe('M_v, the x⁵ term (pure-rotation lines to high J)'),
       r: Q.optional().describe('effective bond length from B_v (absent when B_v is not positive)'),
+      q: Q.optional().describe('linear polyatomic, l ≥ 1: l-type doubling, E(f) − E(e) = q J(J+1) + q_J [J(J+1)]²'),
+      qJ: Q.optional().describe('linear polyatomic, l ≥ 1: centrifugal correction of the l-type doubling'),
+      parity: z
+        .enum(['e', 'f'])
+        .optional()
+        .describe('linear polyatomic: the only component seen (q undetermined, B is its effective B)'),
     }),
   ),
   equilibrium: z.array(EquilibriumSchema),
@@ -405,7 +483,9 @@ const fitFields = {
     uncertaintyMode: z.enum(['a-posteriori', 'absolute']),
   }),
   model: z.object({
-    levelTerms: z.array(z.object({ species: z.string(), v: z.number().int(), terms: z.array(z.string()) })),
+    levelTerms: z.array(
+      z.object({ species: z.string(), v: LevelVSchema, l: z.number().int().optional(), terms: z.array(z.string()) }),
+    ),
     selection: z.string(),
     constraints: z
       .array(TermConstraintSchema)
@@ -418,7 +498,8 @@ const fitFields = {
       species: z.string(),
       band: z.string(),
       kind: z.enum(['lower', 'upper']),
-      v: z.number().int(),
+      v: LevelVSchema,
+      level: z.string().optional().describe('linear polyatomic: the level label'),
       points: z.array(
         z.object({ j: z.number().int(), value: z.number(), uncertainty: z.number(), residual: z.number() }),
       ),

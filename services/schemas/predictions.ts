@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { POSITION_UNITS } from '../../src/units.js';
-import { SpeciesStringSchema } from './fit.js';
+import { LinearLevelSchema, SpeciesStringSchema } from './fit.js';
 import { provenanceAndSampleFields, SampleSchema } from './provenance.js';
 
 const CONSTANTS = [
@@ -16,6 +16,23 @@ const CONSTANTS = [
   'H_e',
 ] as const;
 const ConstantValue = z.strictObject({ value: z.number(), uncertainty: z.number().min(0).optional() });
+
+const finite = z.number().min(-1e6).max(1e6);
+
+/** Constants of one level of a linear polyatomic molecule, cm⁻¹, in the convention of the fit responses. */
+export const LinearLevelConstantsSchema = z
+  .strictObject({
+    v: LinearLevelSchema.shape.v,
+    l: LinearLevelSchema.shape.l,
+    rank: LinearLevelSchema.shape.rank,
+    G: finite.describe('G_v of F = G_v + B[J(J+1) − l²] − …'),
+    B: z.number().positive().max(1000),
+    D: finite.default(0),
+    H: finite.optional(),
+    q: finite.optional().describe('l ≥ 1: E(f) − E(e) = q J(J+1) + q_J [J(J+1)]²'),
+    qJ: finite.optional(),
+  })
+  .meta({ id: 'LinearLevelConstants' });
 
 export const PredictionRequestSchema = z
   .strictObject({
@@ -33,11 +50,24 @@ export const PredictionRequestSchema = z
       .optional()
       .describe('equilibrium constants in cm-1 (default: the reference library)'),
     bands: z
-      .array(z.string().regex(/^\d{1,2}-\d{1,2}$/))
+      .array(
+        z.union([
+          z.string().regex(/^\d{1,2}-\d{1,2}$/),
+          z.strictObject({ upper: LinearLevelSchema, lower: LinearLevelSchema }),
+        ]),
+      )
       .min(1)
       .max(20)
       .default(['1-0'])
-      .describe('bands "v\'-v\'\'"; "0-0" for pure rotation'),
+      .describe(
+        'diatomic: bands "v\'-v\'\'" ("0-0" for pure rotation); linear polyatomic: { upper: { v, l }, lower: { v, l } }',
+      ),
+    levels: z
+      .array(LinearLevelConstantsSchema)
+      .min(1)
+      .max(40)
+      .optional()
+      .describe('linear polyatomic: the constants of every level the bands join (cm-1)'),
     jMax: z.number().int().min(0).max(200).default(30),
     temperature: z.number().min(10).max(6000).default(296).describe('K, for relative intensities'),
     unit: z.enum(POSITION_UNITS).default('cm-1'),
@@ -78,8 +108,14 @@ export const PredictionResponseSchema = z
         wavenumber: PredictedQuantitySchema,
         relativeIntensity: z.number(),
         lowerEnergy: z.number(),
+        upper: LinearLevelSchema.optional().describe('linear polyatomic'),
+        lower: LinearLevelSchema.optional().describe('linear polyatomic'),
+        upperJ: z.number().int().optional().describe("linear polyatomic: J'"),
+        parity: z.enum(['e', 'f']).optional().describe('linear polyatomic: e/f component of the lower level'),
+        upperParity: z.enum(['e', 'f']).optional().describe('linear polyatomic: e/f component of the upper level'),
       }),
     ),
+    convention: z.string().optional().describe('linear polyatomic: the term-value and e/f convention'),
     notice: z.string(),
     ...provenanceAndSampleFields,
   })

@@ -7,6 +7,7 @@ import { type Isotopologue, parseSpecies } from '../../src/species/parse.js';
 import { toWavenumber } from '../../src/units.js';
 import { SAFETY_NOTICE } from '../notice.js';
 import type { FitRequest, FitResponse } from '../schemas/fit.js';
+import { isLinearFitRequest, runLinearFit } from './linear-fit.js';
 import { peaksOf } from './peaks.js';
 import type { DeepReadonly } from './types.js';
 
@@ -15,6 +16,7 @@ import type { DeepReadonly } from './types.js';
  * this function, so they cannot drift.
  */
 export function runFit(req: FitRequest): FitResponse {
+  if (isLinearFitRequest(req)) return runLinearFit(req);
   return presentFit(analyseRequest(prepareFit(req)));
 }
 
@@ -72,12 +74,19 @@ export function prepareFit(req: FitRequest): PreparedFit {
       ...(l.source !== undefined ? { source: l.source } : {}),
     };
     if (!l.assignment) return base;
+    if ('upper' in l.assignment) {
+      throw new ScienceError(
+        'ASSIGNMENT_INVALID',
+        `line ${index}: assignments with upper and lower levels belong to linear polyatomic molecules, which fits take (not checks or reports, so far)`,
+        { line: index },
+      );
+    }
     const iso = resolve(l.assignment.species, index);
     return {
       ...base,
       assignment: {
         species: iso.formula,
-        band: withLine(index, () => parseBand(l.assignment?.band as string)),
+        band: withLine(index, () => parseBand((l.assignment as { band: string }).band)),
         branch: l.assignment.branch,
         j: l.assignment.j,
         source: 'given' as const,

@@ -101,7 +101,8 @@ export interface FitForPotential {
     readonly parameters: readonly { readonly name: string; readonly value: number }[];
     readonly covariance: { readonly matrix: readonly (readonly number[])[] };
   }[];
-  readonly levels: readonly { readonly species: string; readonly v: number }[];
+  /** v is a number for diatomic levels (linear polyatomic levels carry an array and are ignored here). */
+  readonly levels: readonly { readonly species: string; readonly v: number | readonly number[] }[];
   readonly warnings: readonly { readonly code: string; readonly message: string }[];
 }
 
@@ -132,7 +133,10 @@ function fromFitResult(result: FitForPotential, declared?: string): PotentialSou
       covariance[i * idx.length + j] = dunham.covariance.matrix[a]?.[b] as number;
     });
   });
-  const vs = result.levels.filter((l) => l.species === formula).map((l) => l.v);
+  const vs = result.levels
+    .filter((l) => l.species === formula)
+    .map((l) => l.v)
+    .filter((v): v is number => typeof v === 'number');
   return {
     species: parseSpecies(formula),
     source: 'fit',

@@ -1,0 +1,241 @@
+import { ScienceError } from '../../src/errors.js';
+import { fitLinearLines, type LinearFitResult, type LinearLineInput } from '../../src/linear/fit.js';
+import { isLinearSpeciesString, type LinearSpecies, parseLinearSpecies } from '../../src/linear/species.js';
+import type { LinearLevel } from '../../src/linear/types.js';
+import { toWavenumber } from '../../src/units.js';
+import { SAFETY_NOTICE } from '../notice.js';
+import type { FitRequest, FitResponse } from '../schemas/fit.js';
+
+/** A level as the wire writes it ({ v, l, rank? }) and as src/linear holds it ({ v, l, r? }). */
+export interface WireLevel {
+  v: number[];
+  l: number;
+  rank?: number;
+}
+export const fromWire = (w: Readonly<WireLevel>): LinearLevel => ({
+  v: [...w.v],
+  l: w.l,
+  ...(w.rank !== undefined ? { r: w.rank } : {}),
+});
+export const toWire = (x: LinearLevel): WireLevel => ({
+  v: [...x.v],
+  l: x.l,
+  ...(x.r !== undefined ? { rank: x.r } : {}),
+});
+
+type Line = NonNullable<FitRequest['lines']>[number];
+const isLinearAssignment = (a: Line['assignment']): a is Extract<Line['assignment'], { upper: unknown }> =>
+  a !== undefined && 'upper' in a;
+
+/**
+ * Whether a fit request is about a linear polyatomic molecule: its species (declared or on an assignment) is a
+ * chain or an everyday formula of src/linear/species.ts, or an assignment names upper and lower levels.
+ */
+export function isLinearFitRequest(req: FitRequest): boolean {
+  if (req.species !== undefined && isLinearSpeciesString(req.species)) return true;
+  return (req.lines ?? []).some(
+    (l) =>
+      isLinearAssignment(l.assignment) ||
+      (l.assignment?.species !== undefined && isLinearSpeciesString(l.assignment.species)),
+  );
+}
+
+/** The one linear species of a request (all lines of one isotopologue). */
+function speciesOf(req: FitRequest): LinearSpecies {
+  const named = new Set<string>();
+  if (req.species !== undefined) named.add(parseLinearSpecies(req.species).formula);
+  for (const l of req.lines ?? []) {
+    if (l.assignment?.species !== undefined) named.add(parseLinearSpecies(l.assignment.species).formula);
+  }
+  if (named.size === 0) {
+    throw new ScienceError(
+      'SPECIES_UNIDENTIFIED',
+      'a fit of linear polyatomic assignments needs "species" (e.g. "CO2", "16O-12C-16O")',
+      {},
+    );
+  }
+  if (named.size > 1) {
+    throw new ScienceError(
+      'INPUT_INVALID',
+      `a linear polyatomic fit takes the lines of one isotopologue; this request names ${[...named].join(', ')}`,
+      { species: [...named] },
+    );
+  }
+  return parseLinearSpecies([...named][0] as string);
+}
+
+/** POST /v1/fits (and GraphQL `fit`, the CLI) for linear polyatomic molecules: assigned lines only, so far. */
+export function runLinearFit(req: FitRequest): FitResponse {
+  if (req.spectrum) {
+    throw new ScienceError(
+      'INPUT_INVALID',
+      'spectra of linear polyatomic molecules are not assigned automatically yet: send the assigned line list',
+      {},
+    );
+  }
+  const species = speciesOf(req);
+  const unit = req.unit ?? 'cm-1';
+  const lines: LinearLineInput[] = (req.lines ?? []).map((l, index) => {
+    const c = toWavenumber(l.position, unit, l.uncertainty);
+    const a = l.assignment;
+    if (a !== undefined && !isLinearAssignment(a)) {
+      throw new ScienceError(
+        'ASSIGNMENT_INVALID',
+        `line ${index}: ${species.formula} is a linear polyatomic: write its assignment as { "upper": { "v": [..], "l": l }, "lower": { … }, "branch", "j" }, not as a band string`,
+        { line: index },
+      );
+    }
+    return {
+      position: c.value,
+      ...(c.uncertainty !== undefined ? { uncertainty: c.uncertainty } : {}),
+      ...(l.source !== undefined ? { source: l.source } : {}),
+      ...(a !== undefined
+        ? {
+            assignment: {
+              upper: fromWire(a.upper),
+              lower: fromWire(a.lower),
+              branch: a.branch,
+              j: a.j,
+              ...(a.parity !== undefined ? { parity: a.parity } : {}),
+            },
+          }
+        : {}),
+    };
+  });
+  const {
+    temperature: _t,
+    maxOffset: _m,
+    structureBand: _s,
+    lean: _l,
+    massReducedDunham: _u,
+    ...options
+  } = req.options ?? {};
+  const result = fitLinearLines(species, lines, options);
+  return presentLinearFit(req, result);
+}
+
+function presentLinearFit(req: FitRequest, r: LinearFitResult): FitResponse {
+  const s = r.species.formula;
+  const reqLines = req.lines ?? [];
+  return {
+    species: [{ formula: s, mass: r.species.mass }],
+    convention: r.convention,
+    lines: r.lines.map((l) => {
+      const sent = reqLines[l.index];
+      const a = l.assignment;
+      return {
+        index: l.index,
+        ...(sent?.id !== undefined ? { id: sent.id } : {}),
+        position: l.position,
+        ...(sent?.uncertainty !== undefined && req.options?.lean !== true ? { uncertainty: lines0(req, l.index) } : {}),
+        ...(sent?.intensity !== undefined && req.options?.lean !== true ? { intensity: sent.intensity } : {}),
+        ...(a
+          ? {
+              assignment: {
+                band: a.band,
+                branch: a.branch,
+                j: a.j,
+                species: s,
+                source: 'given' as const,
+                upper: toWire(a.upper),
+                lower: toWire(a.lower),
+                parity: a.lowerParity,
+                upperParity: a.upperParity,
+                upperJ: a.upperJ,
+              },
+            }
+          : {}),
+        ...(l.calculated !== undefined ? { calculated: l.calculated } : {}),
+        ...(l.residual !== undefined ? { residual: l.residual } : {}),
+        ...(l.studentisedResidual !== undefined ? { studentisedResidual: l.studentisedResidual } : {}),
+        status: l.status,
+        ...(l.reason !== undefined ? { reason: l.reason } : {}),
+      };
+    }),
+    bands: r.bands.map((b) => ({
+      species: s,
+      band: b.label,
+      ...(b.origin ? { origin: b.origin } : {}),
+      lines: b.lines,
+      jRange: [...b.jRange],
+      upper: toWire(b.upper),
+      lower: toWire(b.lower),
+      label: b.label,
+      kind: b.kind,
+    })),
+    levels: r.levels.map((l) => {
+      const level = { v: l.v, l: l.l, ...(keyRank(l.key) !== undefined ? { r: keyRank(l.key) } : {}) };
+      return {
+        species: s,
+        v: [...l.v],
+        l: l.l,
+        ...(level.r !== undefined ? { rank: level.r } : {}),
+        label: l.label,
+        ...(l.term ? { term: { ...l.term, relativeTo: l.term.relativeTo } } : {}),
+        B: l.B,
+        ...(l.D ? { D: l.D } : {}),
+        ...(l.H ? { H: l.H } : {}),
+        ...(l.q ? { q: l.q } : {}),
+        ...(l.qJ ? { qJ: l.qJ } : {}),
+        ...(l.parity ? { parity: l.parity } : {}),
+      };
+    }),
+    equilibrium: [],
+    parameters: r.parameters.map((p) => ({
+      name: p.name,
+      value: p.value,
+      uncertainty: p.uncertainty,
+      unit: p.unit,
+      species: s,
+    })),
+    covariance: { parameters: [...r.covariance.parameters], matrix: r.covariance.matrix.map((x) => [...x]) },
+    correlation: { parameters: [...r.correlation.parameters], matrix: r.correlation.matrix.map((x) => [...x]) },
+    statistics: { ...r.statistics },
+    model: {
+      levelTerms: r.model.levelTerms.map((t) => {
+        const lv = r.levels.find((l) => l.key === t.level);
+        return { species: s, v: [...(lv?.v ?? [])], l: lv?.l ?? 0, terms: [...t.terms] };
+      }),
+      selection: r.model.selection,
+      constraints: r.model.constraints.map((c) => ({ ...c, species: s })),
+    },
+    dunham: [],
+    combinationDifferences: r.combinationDifferences.map((c) => {
+      const lv = r.levels.find((l) => l.label === c.level);
+      return {
+        species: s,
+        band: c.band,
+        kind: c.kind,
+        v: [...(lv?.v ?? [])],
+        level: c.level,
+        points: c.points.map((p) => ({ ...p })),
+        B: c.B,
+        ...(c.D ? { D: c.D } : {}),
+        rms: c.rms,
+        degreesOfFreedom: c.degreesOfFreedom,
+        fitted: c.fitted,
+        deviation: c.deviation,
+      };
+    }),
+    crossChecks: [],
+    assignment: { method: 'given', species: [s], bands: [], unexplained: [] },
+    warnings: r.warnings.map((w) => ({
+      code: w.code,
+      message: w.message,
+      ...(w.lines ? { lines: [...w.lines] } : {}),
+    })),
+    notice: SAFETY_NOTICE,
+  };
+}
+
+function keyRank(key: string): number | undefined {
+  const m = /\|r(\d+)$/.exec(key);
+  return m ? Number(m[1]) : undefined;
+}
+
+/** The uncertainty of line i in cm⁻¹ (converted like its position). */
+function lines0(req: FitRequest, i: number): number | undefined {
+  const l = req.lines?.[i];
+  if (!l) return undefined;
+  return toWavenumber(l.position, req.unit ?? 'cm-1', l.uncertainty).uncertainty;
+}
