@@ -104,14 +104,23 @@ export type webhooks = Record<string, never>;
 export interface components {
   schemas: {
     Assignment: {
-      /** @description v'-v'' (upper-lower), e.g. "1-0", "2-0", "0-0" for pure rotation */
-      band: string;
+      /** @description diatomic: v'-v'' (upper-lower), e.g. "1-0", "2-0", "0-0" for pure rotation */
+      band?: string;
       /** @enum {string} */
       branch: "P" | "Q" | "R";
       /** @description lower-state J (J'') */
       j: number;
+      /** @description linear polyatomic: the lower level (instead of band) */
+      lower?: components["schemas"]["LinearLevel"];
+      /**
+       * @description linear polyatomic: e/f component of the lower level; needed only when both levels have l ≥ 1
+       * @enum {string}
+       */
+      parity?: "e" | "f";
       /** @description needed only when lines of several isotopologues are mixed */
       species?: string;
+      /** @description linear polyatomic: the upper level (instead of band) */
+      upper?: components["schemas"]["LinearLevel"];
     };
     AssignmentReport: {
       bands: {
@@ -789,7 +798,7 @@ export interface components {
       sha256: string;
     };
     Line: {
-      assignment?: components["schemas"]["Assignment"] | components["schemas"]["LinearAssignment"];
+      assignment?: components["schemas"]["Assignment"];
       /** @description the caller's identifier of the line (echoed); the report numbers lines from 1 without it */
       id?: string | number;
       /** @description any linear scale */
@@ -800,22 +809,6 @@ export interface components {
       source?: string;
       /** @description standard uncertainty in the request unit */
       uncertainty?: number;
-    };
-    /** @description assignment of a line of a linear polyatomic molecule */
-    LinearAssignment: {
-      /** @enum {string} */
-      branch: "P" | "Q" | "R";
-      /** @description lower-state J (J'') */
-      j: number;
-      lower: components["schemas"]["LinearLevel"];
-      /**
-       * @description e/f component of the lower level; needed only when both levels have l ≥ 1
-       * @enum {string}
-       */
-      parity?: "e" | "f";
-      /** @description needed only when the request declares no species */
-      species?: string;
-      upper: components["schemas"]["LinearLevel"];
     };
     LinearLevel: {
       /** @description vibrational angular momentum |l| (≤ the bending quanta, same parity as them) */

@@ -515,7 +515,7 @@ function inputLineTable(options: RenderOptions): string {
   const rows = lines
     .map(
       (l, i) =>
-        `<tr class="unassigned"><td>${esc(l.id !== undefined ? String(l.id) : String(i + 1))}</td><td class="num">${l.uncertainty !== undefined ? l.position.toFixed(decimalsFor(l.uncertainty)) : esc(sig(l.position, 10))}</td><td class="num">${l.uncertainty !== undefined ? sig(l.uncertainty, 2) : ''}</td><td>${l.assignment ? `${esc('band' in l.assignment ? l.assignment.band : '')} ${esc(l.assignment.branch)}(${l.assignment.j})` : ''}</td><td></td><td></td><td>not fitted</td><td>no fit (see the identity check)</td></tr>`,
+        `<tr class="unassigned"><td>${esc(l.id !== undefined ? String(l.id) : String(i + 1))}</td><td class="num">${l.uncertainty !== undefined ? l.position.toFixed(decimalsFor(l.uncertainty)) : esc(sig(l.position, 10))}</td><td class="num">${l.uncertainty !== undefined ? sig(l.uncertainty, 2) : ''}</td><td>${l.assignment ? `${esc(l.assignment.band ?? '')} ${esc(l.assignment.branch)}(${l.assignment.j})` : ''}</td><td></td><td></td><td>not fitted</td><td>no fit (see the identity check)</td></tr>`,
     )
     .join('');
   return `<table id="line-table" class="lines"><caption>Every input line, as sent (positions in ${esc(unitText(unit))}); none was fitted</caption><thead><tr><th>#</th><th>position</th><th>σ</th><th>assignment</th><th>calculated</th><th>obs − calc</th><th>status</th><th>reason</th></tr></thead><tbody>${rows}</tbody></table>`;

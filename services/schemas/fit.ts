@@ -39,35 +39,50 @@ export const LinearLevelSchema = z
   })
   .meta({ id: 'LinearLevel' });
 
-export const LinearAssignmentSchema = z
-  .strictObject({
-    upper: LinearLevelSchema,
-    lower: LinearLevelSchema,
-    branch: z.enum(['P', 'Q', 'R']),
-    j: z.number().int().min(0).max(300).describe("lower-state J (J'')"),
-    parity: z
-      .enum(['e', 'f'])
-      .optional()
-      .describe('e/f component of the lower level; needed only when both levels have l ≥ 1'),
-    species: SpeciesStringSchema.optional().describe('needed only when the request declares no species'),
-  })
-  .describe('assignment of a line of a linear polyatomic molecule')
-  .meta({ id: 'LinearAssignment' });
-
-export const DiatomicAssignmentSchema = z
+/**
+ * A line's assignment: diatomic `{ band, branch, j }` or linear polyatomic `{ upper, lower, branch, j, parity? }`.
+ * One object with both sets of keys (not a union) so that a schema error names its field ("assignment/branch").
+ */
+export const AssignmentSchema = z
   .strictObject({
     band: z
       .string()
       .regex(/^\d{1,2}-\d{1,2}$/, 'band must be "v\'-v\'\'" (upper-lower, each 0 to 99), e.g. "1-0"')
-      .describe('v\'-v\'\' (upper-lower), e.g. "1-0", "2-0", "0-0" for pure rotation'),
+      .optional()
+      .describe('diatomic: v\'-v\'\' (upper-lower), e.g. "1-0", "2-0", "0-0" for pure rotation'),
+    upper: LinearLevelSchema.optional().describe('linear polyatomic: the upper level (instead of band)'),
+    lower: LinearLevelSchema.optional().describe('linear polyatomic: the lower level (instead of band)'),
     branch: z.enum(['P', 'Q', 'R']),
     j: z.number().int().min(0).max(400).describe("lower-state J (J'')"),
+    parity: z
+      .enum(['e', 'f'])
+      .optional()
+      .describe('linear polyatomic: e/f component of the lower level; needed only when both levels have l ≥ 1'),
     species: SpeciesStringSchema.optional().describe('needed only when lines of several isotopologues are mixed'),
   })
+  .superRefine((a, ctx) => {
+    const linear = a.upper !== undefined || a.lower !== undefined || a.parity !== undefined;
+    if (a.band !== undefined && linear) {
+      ctx.addIssue({
+        code: 'custom',
+        path: ['band'],
+        message: 'give "band" (diatomic) or "upper" and "lower" (linear polyatomic), not both',
+      });
+    } else if (a.band === undefined && (a.upper === undefined || a.lower === undefined)) {
+      ctx.addIssue({
+        code: 'custom',
+        path: [
+          a.upper === undefined && a.lower !== undefined
+            ? 'upper'
+            : a.lower === undefined && a.upper !== undefined
+              ? 'lower'
+              : 'band',
+        ],
+        message: 'an assignment needs "band" (diatomic, e.g. "1-0") or "upper" and "lower" levels (linear polyatomic)',
+      });
+    }
+  })
   .meta({ id: 'Assignment' });
-
-/** A diatomic assignment ({band, branch, j}) or a linear polyatomic one ({upper, lower, branch, j}). */
-export const AssignmentSchema = z.union([DiatomicAssignmentSchema, LinearAssignmentSchema]);
 
 /** A caller's name for a line, echoed in the response and printed in the report's line table. */
 export const LineIdSchema = z

@@ -74,7 +74,7 @@ export function prepareFit(req: FitRequest): PreparedFit {
       ...(l.source !== undefined ? { source: l.source } : {}),
     };
     if (!l.assignment) return base;
-    if ('upper' in l.assignment) {
+    if (l.assignment.band === undefined) {
       throw new ScienceError(
         'ASSIGNMENT_INVALID',
         `line ${index}: assignments with upper and lower levels belong to linear polyatomic molecules, which fits take (not checks or reports, so far)`,

@@ -24,8 +24,9 @@ export const toWire = (x: LinearLevel): WireLevel => ({
 });
 
 type Line = NonNullable<FitRequest['lines']>[number];
-const isLinearAssignment = (a: Line['assignment']): a is Extract<Line['assignment'], { upper: unknown }> =>
-  a !== undefined && 'upper' in a;
+type Assignment = NonNullable<Line['assignment']>;
+const isLinearAssignment = (a: Line['assignment']): a is Assignment & { upper: WireLevel; lower: WireLevel } =>
+  a !== undefined && a.upper !== undefined && a.lower !== undefined;
 
 /**
  * Whether a fit request is about a linear polyatomic molecule: its species (declared or on an assignment) is a
