@@ -41,7 +41,8 @@ export const LinearLevelSchema = z
 
 /**
  * A line's assignment: diatomic `{ band, branch, j }` or linear polyatomic `{ upper, lower, branch, j, parity? }`.
- * One object with both sets of keys (not a union) so that a schema error names its field ("assignment/branch").
+ * One object with both sets of keys (not a union) so that a schema error names its field ("assignment/branch");
+ * which set a line must use (band, or upper and lower) is checked by the use case (422 ASSIGNMENT_INVALID).
  */
 export const AssignmentSchema = z
   .strictObject({
@@ -59,28 +60,6 @@ export const AssignmentSchema = z
       .optional()
       .describe('linear polyatomic: e/f component of the lower level; needed only when both levels have l ≥ 1'),
     species: SpeciesStringSchema.optional().describe('needed only when lines of several isotopologues are mixed'),
-  })
-  .superRefine((a, ctx) => {
-    const linear = a.upper !== undefined || a.lower !== undefined || a.parity !== undefined;
-    if (a.band !== undefined && linear) {
-      ctx.addIssue({
-        code: 'custom',
-        path: ['band'],
-        message: 'give "band" (diatomic) or "upper" and "lower" (linear polyatomic), not both',
-      });
-    } else if (a.band === undefined && (a.upper === undefined || a.lower === undefined)) {
-      ctx.addIssue({
-        code: 'custom',
-        path: [
-          a.upper === undefined && a.lower !== undefined
-            ? 'upper'
-            : a.lower === undefined && a.upper !== undefined
-              ? 'lower'
-              : 'band',
-        ],
-        message: 'an assignment needs "band" (diatomic, e.g. "1-0") or "upper" and "lower" levels (linear polyatomic)',
-      });
-    }
   })
   .meta({ id: 'Assignment' });
 

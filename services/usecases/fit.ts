@@ -74,10 +74,13 @@ export function prepareFit(req: FitRequest): PreparedFit {
       ...(l.source !== undefined ? { source: l.source } : {}),
     };
     if (!l.assignment) return base;
-    if (l.assignment.band === undefined) {
+    const a = l.assignment;
+    if (a.band === undefined || a.upper !== undefined || a.lower !== undefined || a.parity !== undefined) {
       throw new ScienceError(
         'ASSIGNMENT_INVALID',
-        `line ${index}: assignments with upper and lower levels belong to linear polyatomic molecules, which fits take (not checks or reports, so far)`,
+        a.band === undefined && a.upper === undefined && a.lower === undefined
+          ? `line ${index}: the assignment needs "band" (e.g. "1-0")`
+          : `line ${index}: upper, lower and parity belong to assignments of linear polyatomic species (give "species": "CO2", "16O-12C-16O", …; fits only, not checks or reports so far), which go without "band"`,
         { line: index },
       );
     }

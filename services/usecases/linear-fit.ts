@@ -79,7 +79,7 @@ export function runLinearFit(req: FitRequest): FitResponse {
   const lines: LinearLineInput[] = (req.lines ?? []).map((l, index) => {
     const c = toWavenumber(l.position, unit, l.uncertainty);
     const a = l.assignment;
-    if (a !== undefined && !isLinearAssignment(a)) {
+    if (a !== undefined && (!isLinearAssignment(a) || a.band !== undefined)) {
       throw new ScienceError(
         'ASSIGNMENT_INVALID',
         `line ${index}: ${species.formula} is a linear polyatomic: write its assignment as { "upper": { "v": [..], "l": l }, "lower": { … }, "branch", "j" }, not as a band string`,
