@@ -275,6 +275,7 @@ export interface components {
           L?: components["schemas"]["Quantity"];
           /** @description linear polyatomic: the level label */
           level?: string;
+          M?: components["schemas"]["Quantity"];
           points: {
               j: number;
               residual: number;
@@ -339,6 +340,8 @@ export interface components {
           L?: components["schemas"]["Quantity"];
           /** @description linear polyatomic: the level in the trade notation, e.g. "01¹0" */
           label?: string;
+          /** @description M_v, the x⁵ term (pure-rotation lines to high J) */
+          M?: components["schemas"]["Quantity"];
           /**
            * @description linear polyatomic: the only component seen (q undetermined, B is its effective B)
            * @enum {string}
@@ -499,7 +502,7 @@ export interface components {
       lean?: boolean;
       /** @description also fit U_kl across isotopologues (default false) */
       massReducedDunham?: boolean;
-      /** @description 1 = B, 2 = D, 3 = H, 4 = L (default 4) */
+      /** @description 1 = B, 2 = D, 3 = H, 4 = L, 5 = M (default 5) */
       maxCentrifugalOrder?: number;
       /** @description largest instrument wavenumber offset searched by automatic assignment, cm-1 (default 0.5) */
       maxOffset?: number;
@@ -570,6 +573,7 @@ export interface components {
           L?: components["schemas"]["Quantity"];
           /** @description linear polyatomic: the level label */
           level?: string;
+          M?: components["schemas"]["Quantity"];
           points: {
               j: number;
               residual: number;
@@ -635,6 +639,8 @@ export interface components {
           L?: components["schemas"]["Quantity"];
           /** @description linear polyatomic: the level in the trade notation, e.g. "01¹0" */
           label?: string;
+          /** @description M_v, the x⁵ term (pure-rotation lines to high J) */
+          M?: components["schemas"]["Quantity"];
           /**
            * @description linear polyatomic: the only component seen (q undetermined, B is its effective B)
            * @enum {string}

@@ -74,16 +74,7 @@ export function prepareFit(req: FitRequest): PreparedFit {
       ...(l.source !== undefined ? { source: l.source } : {}),
     };
     if (!l.assignment) return base;
-    const a = l.assignment;
-    if (a.band === undefined || a.upper !== undefined || a.lower !== undefined || a.parity !== undefined) {
-      throw new ScienceError(
-        'ASSIGNMENT_INVALID',
-        a.band === undefined && a.upper === undefined && a.lower === undefined
-          ? `line ${index}: the assignment needs "band" (e.g. "1-0")`
-          : `line ${index}: upper, lower and parity belong to assignments of linear polyatomic species (give "species": "CO2", "16O-12C-16O", …; fits only, not checks or reports so far), which go without "band"`,
-        { line: index },
-      );
-    }
+    checkDiatomicAssignment(l.assignment, index);
     const iso = resolve(l.assignment.species, index);
     return {
       ...base,
@@ -119,7 +110,7 @@ function identifyFromLabels(req: FitRequest, unit: NonNullable<FitRequest['unit'
       {
         index,
         position: toWavenumber(l.position, unit, l.uncertainty).value,
-        band: withLine(index, () => parseBand(a.band)),
+        band: withLine(index, () => parseBand(checkDiatomicAssignment(a, index))),
         branch: a.branch,
         j: a.j,
       },
@@ -127,6 +118,26 @@ function identifyFromLabels(req: FitRequest, unit: NonNullable<FitRequest['unit'
   });
   if (labelled.length === 0) return undefined;
   return speciesFromLabels(labelled, req.options?.maxOffset !== undefined ? { maxOffset: req.options.maxOffset } : {});
+}
+
+/**
+ * A diatomic assignment has "band" and none of the linear-polyatomic keys (upper, lower, parity): returns the band,
+ * or throws ASSIGNMENT_INVALID (422) saying which keys belong where.
+ */
+function checkDiatomicAssignment(
+  a: { band?: string; upper?: unknown; lower?: unknown; parity?: unknown },
+  index: number,
+): string {
+  if (a.band === undefined || a.upper !== undefined || a.lower !== undefined || a.parity !== undefined) {
+    throw new ScienceError(
+      'ASSIGNMENT_INVALID',
+      a.band === undefined && a.upper === undefined && a.lower === undefined
+        ? `line ${index}: the assignment needs "band" (e.g. "1-0")`
+        : `line ${index}: upper, lower and parity belong to assignments of linear polyatomic species (give "species": "CO2", "16O-12C-16O", …; fits only, not checks or reports so far), which go without "band"`,
+      { line: index },
+    );
+  }
+  return a.band;
 }
 
 export function analyseRequest(p: PreparedFit): AnalysedFit {
