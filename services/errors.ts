@@ -1,6 +1,7 @@
 import type { FastifyError, FastifyReply, FastifyRequest } from 'fastify';
 import { hasZodFastifySchemaValidationErrors } from 'fastify-type-provider-zod';
 import { ScienceError, type ScienceErrorCode } from '../src/errors.js';
+import { acceptedBodiesAdvice } from './text-bodies.js';
 import { NonFiniteResult } from './usecases/finite.js';
 
 /**
@@ -151,11 +152,14 @@ function toProblemUntruncated(error: unknown, request: FastifyRequest): Problem 
   const fe = error as Partial<FastifyError> & { status?: number };
   const known = fe.code ? FASTIFY_CODES[fe.code] : undefined;
   if (known) {
+    const mediaType = fe.code === 'FST_ERR_CTP_INVALID_MEDIA_TYPE';
     return {
       type: problemType(known.code),
       title: known.title,
       status: known.status,
-      detail: fe.message ?? known.title,
+      detail: mediaType
+        ? acceptedBodiesAdvice(request.routeOptions?.url, request.headers['content-type'])
+        : (fe.message ?? known.title),
       instance,
       code: known.code,
     };

@@ -6,6 +6,23 @@ import { parseJcamp } from '../src/spectra/jcamp.js';
 export const JCAMP_TYPES = ['chemical/x-jcamp-dx', 'chemical/x-jcamp'] as const;
 export const CSV_TYPES = ['text/csv'] as const;
 
+/** Routes that take a JCAMP-DX or CSV body besides JSON (the others take JSON only; the batch routes NDJSON). */
+export const TEXT_BODY_ROUTES: readonly string[] = ['/v1/fits', '/v1/checks', '/v1/reports', '/v1/peaks'];
+
+/**
+ * What to send instead, for a body of a media type the route does not take: the types it accepts, and for text
+ * bodies where the species goes.
+ */
+export function acceptedBodiesAdvice(route: string | undefined, contentType: string | undefined): string {
+  const sent = contentType
+    ? `content-type "${contentType.split(';')[0]?.trim().slice(0, 80)}"`
+    : 'a body without a content-type';
+  const where = route ? ` on ${route}` : '';
+  if (route !== undefined && TEXT_BODY_ROUTES.includes(route))
+    return `${sent} is not accepted${where}; send application/json, or a file as text/csv or ${JCAMP_TYPES[0]} with the species in the query string (?species=CO)`;
+  return `${sent} is not accepted${where}; send application/json`;
+}
+
 function xUnitOf(units: string): 'cm-1' | 'um' | 'nm' {
   const u = units.toUpperCase().replace(/\s/g, '');
   if (u === '1/CM' || u === 'CM-1' || u === 'CM^-1' || u === 'WAVENUMBERS') return 'cm-1';

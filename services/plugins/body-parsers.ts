@@ -31,6 +31,9 @@ function forbiddenPropertyOr(err: Error, body: string): Error {
  * stream for the batch routes.
  */
 export function parseBodies(app: FastifyInstance, config: Config): void {
+  // No route takes plain text: without this, fastify's text/plain parser handed a JSON or CSV body sent as
+  // text/plain to the schema as a string ("expected object, received string"); now it is a 415 naming the types.
+  app.removeContentTypeParser('text/plain');
   const defaultJson = app.getDefaultJsonParser('error', 'error');
   // Large bodies of the work routes go to a worker unparsed (services/raw-body.ts).
   const offload = (req: { url: string }, body: string) =>

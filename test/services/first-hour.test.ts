@@ -171,3 +171,60 @@ describe('a band whose level is out of range', () => {
     expect(r.json().detail).toContain('0 to 99');
   });
 });
+
+describe('a body of a media type the route does not take', () => {
+  // 12C16O fundamental P(1), R(0) … R(3), P(2) … P(3) from ν0 = 2143.2712, B0 = 1.92253, B1 = 1.90502 cm⁻¹
+  // (from memory, Huber & Herzberg / HITRAN); only the media type matters here.
+  const lines = [2139.4262, 2135.5464, 2131.6317, 2147.0812, 2150.8558, 2154.5956, 2158.2997].map((position) => ({
+    position,
+  }));
+  const json = JSON.stringify({ species: 'CO', lines });
+  const csv = `position\n${lines.map((l) => l.position).join('\n')}\n`;
+  const post = (url: string, type: string | undefined, payload: string) =>
+    app().inject({ method: 'POST', url, payload, headers: type ? { 'content-type': type } : {} });
+
+  it('JSON sent as text/plain is a 415 naming what to send, not a schema error about a string', async () => {
+    const r = await post('/v1/fits', 'text/plain; charset=utf-8', json);
+    expect(r.statusCode).toBe(415);
+    expect(r.headers['content-type']).toMatch(/^application\/problem\+json/);
+    expect(r.json().code).toBe('UNSUPPORTED_MEDIA_TYPE');
+    expect(r.json().detail).toContain('"text/plain"');
+    expect(r.json().detail).toContain('application/json');
+    expect(r.json().detail).toContain('text/csv');
+    expect(r.json().detail).toContain('?species=');
+    expect(r.json().detail).not.toMatch(/received string/);
+  });
+  it('following the advice works: the same JSON as application/json, the lines as text/csv with ?species=', async () => {
+    const asJson = await post('/v1/fits', 'application/json', json);
+    expect(asJson.statusCode).toBe(200);
+    const asCsv = await post('/v1/fits?species=CO', 'text/csv', csv);
+    expect(asCsv.statusCode).toBe(200);
+    expect(asCsv.json().bands[0].band).toBe('1-0');
+  });
+  it('a form body (curl --data without -H) on a JSON-only route is told to send JSON only', async () => {
+    const r = await post('/v1/predictions', 'application/x-www-form-urlencoded', 'species=CO');
+    expect(r.statusCode).toBe(415);
+    expect(r.json().detail).toContain('"application/x-www-form-urlencoded" is not accepted on /v1/predictions');
+    expect(r.json().detail).toMatch(/send application\/json$/);
+  });
+  it('a body without a content-type is told so', async () => {
+    const r = await app().inject({ method: 'POST', url: '/v1/checks', payload: Buffer.from(json) });
+    expect(r.statusCode).toBe(415);
+    expect(r.json().detail).toMatch(
+      /^a body without a content-type is not accepted on \/v1\/checks; send application\/json/,
+    );
+  });
+  it('names text bodies on exactly the routes whose OpenAPI request bodies list text/csv', async () => {
+    const doc = JSON.parse(readFileSync(new URL('../../openapi/openapi.json', import.meta.url), 'utf8'));
+    const postPaths = Object.entries(doc.paths as Record<string, { post?: { requestBody?: { content?: object } } }>)
+      .filter(([, ops]) => ops.post?.requestBody?.content)
+      .filter(([path]) => !path.startsWith('/v1/batch/'));
+    expect(postPaths.length).toBeGreaterThanOrEqual(6);
+    for (const [path, ops] of postPaths) {
+      const takesCsv = Object.keys(ops.post?.requestBody?.content ?? {}).includes('text/csv');
+      const r = await post(path, 'text/plain', 'x');
+      expect(r.statusCode, path).toBe(415);
+      expect(r.json().detail.includes('text/csv'), path).toBe(takesCsv);
+    }
+  });
+});
