@@ -15,6 +15,8 @@ export class NonFiniteResult extends Error {
 
 /** Throws NonFiniteResult at the first non-finite number (depth-first, iterative); returns the value otherwise. */
 export function assertFinite<T>(value: T): T {
+  // A first walk without paths (every answer takes it); the paths are built only to name what was found.
+  if (allFinite(value)) return value;
   const stack: [unknown, string][] = [[value, '']];
   while (stack.length > 0) {
     const [v, path] = stack.pop() as [unknown, string];
@@ -27,4 +29,19 @@ export function assertFinite<T>(value: T): T {
     }
   }
   return value;
+}
+
+function allFinite(value: unknown): boolean {
+  const stack: unknown[] = [value];
+  while (stack.length > 0) {
+    const v = stack.pop();
+    if (typeof v === 'number') {
+      if (!Number.isFinite(v)) return false;
+    } else if (Array.isArray(v)) {
+      for (let i = v.length - 1; i >= 0; i--) stack.push(v[i]);
+    } else if (v !== null && typeof v === 'object') {
+      for (const k in v) if (Object.hasOwn(v, k)) stack.push((v as Record<string, unknown>)[k]);
+    }
+  }
+  return true;
 }
