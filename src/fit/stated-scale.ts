@@ -1,4 +1,4 @@
-import type { Observation } from '../models/linear-model.js';
+import { type Observation, reweighted } from '../models/linear-model.js';
 import { formatBand } from '../models/transitions.js';
 import { fDistributionSurvival } from '../stats/distributions.js';
 import { robustSigma } from '../stats/robust.js';
@@ -91,7 +91,7 @@ export function rescaleStatedUncertainties(
     factors = next;
     gross = grossLines(f.observations, byGroup, (o) => (stated(o) ? groupKey(o, input[o.index]) : undefined));
     const factorOf = (o: Observation) => factors.get(groupKey(o, input[o.index])) ?? (factors.get(REST) as number);
-    obs = observations.map((o) => (stated(o) ? { ...o, weight: o.weight / factorOf(o) ** 2 } : o));
+    obs = reweighted(observations, (o) => (stated(o) ? o.weight / factorOf(o) ** 2 : undefined));
   }
   if (factors.size === 0) return none;
   const groups: StatedScaleGroup[] = [];

@@ -1,4 +1,4 @@
-import type { Observation } from '../models/linear-model.js';
+import { type Observation, reweighted } from '../models/linear-model.js';
 import { formatBand } from '../models/transitions.js';
 import { median, robustSigma } from '../stats/robust.js';
 import { selectLevelModel } from './level-selection.js';
@@ -50,8 +50,8 @@ export function weighLines(
   const missing = observations.filter((o) => input[o.index]?.uncertainty === undefined);
   const warnings: Warning[] = [];
   const fixed = (sigma: number): WeightedLines => ({
-    observations: observations.map((o) =>
-      input[o.index]?.uncertainty === undefined ? { ...o, weight: 1 / (sigma * sigma) } : o,
+    observations: reweighted(observations, (o) =>
+      input[o.index]?.uncertainty === undefined ? 1 / (sigma * sigma) : undefined,
     ),
     groups: [],
     sigmaFor: () => sigma,
@@ -116,7 +116,7 @@ function estimateScatter(
     return source !== undefined ? `source|${source}` : `band|${bandKeyOf(o)}`;
   };
   const withoutSigma = (o: Observation) => input[o.index]?.uncertainty === undefined;
-  let obs = observations.map((o) => (withoutSigma(o) ? { ...o, weight: 1 / fallback ** 2 } : o));
+  let obs = reweighted(observations, (o) => (withoutSigma(o) ? 1 / fallback ** 2 : undefined));
   let sigmas = new Map<string, number>();
   let pooled = fallback;
   let counts = new Map<string, number>();
@@ -155,7 +155,7 @@ function estimateScatter(
       if (!withoutSigma(o)) return;
       if (Math.abs(f.residuals[i] as number) > GROSS * sigmaOf(o)) gross.add(o.index);
     });
-    obs = observations.map((o) => (withoutSigma(o) ? { ...o, weight: 1 / sigmaOf(o) ** 2 } : o));
+    obs = reweighted(observations, (o) => (withoutSigma(o) ? 1 / sigmaOf(o) ** 2 : undefined));
   }
   return { observations: obs, sigmas, pooled, counts };
 }

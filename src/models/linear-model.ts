@@ -67,6 +67,22 @@ function columnsOf(obs: readonly Observation[]): Map<string, Float64Array> {
   return m;
 }
 
+/**
+ * The observations with some weights changed (`weightOf` gives the new weight, or undefined to keep the observation
+ * as it is), same levels in the same order: the new array shares the columns already computed for the old one.
+ */
+export function reweighted(
+  obs: readonly Observation[],
+  weightOf: (o: Observation) => number | undefined,
+): Observation[] {
+  const out = obs.map((o) => {
+    const w = weightOf(o);
+    return w === undefined ? o : { ...o, weight: w };
+  });
+  columns.set(out, columnsOf(obs));
+  return out;
+}
+
 /** Column-major design matrix of a model over observations. */
 export function buildDesign(model: LinearModel, obs: readonly Observation[]): Float64Array {
   const n = obs.length;
