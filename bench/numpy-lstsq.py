@@ -1,4 +1,5 @@
-"""Times numpy.linalg.lstsq on design matrices written by bench/run.ts (run with OPENBLAS_NUM_THREADS=1).
+"""Times numpy.linalg.lstsq on design matrices written by bench/run.ts (run with OPENBLAS_NUM_THREADS=1), in CPU
+time of this process (time.process_time), as bench/run.ts times its kernel.
 
 Input: a binary file of float64: rows, cols, then the column-major design (rows*cols), then y (rows), then w.
 Prints one line of JSON: {"name": ..., "median_us": ...} per file given on the command line.
@@ -19,8 +20,8 @@ for path in sys.argv[1:]:
     times = []
     reps = max(3, min(200, int(2e6 / (n * p))))
     for _ in range(reps):
-        t0 = time.perf_counter()
+        t0 = time.process_time()
         aw = a * sw[:, None]
         x, *_ = np.linalg.lstsq(aw, y * sw, rcond=None)
-        times.append(time.perf_counter() - t0)
+        times.append(time.process_time() - t0)
     print(json.dumps({"name": path.rsplit("/", 1)[-1], "median_us": float(np.median(times) * 1e6)}))
