@@ -49,24 +49,22 @@ function lineList(n: number, bands: number): LineInput[] {
 
 /**
  * CPU milliseconds per call (process.cpuUsage: the time this process ran, which the other work on a shared machine
- * does not inflate the way it inflates wall time): the median over batches, each batch long enough (≥ 5 ms) for the
- * clock's resolution, the batches together lasting at least minMs of wall time (and at least 3).
+ * does not inflate the way it inflates wall time): after a warm-up of at least 50 ms (so that the optimising
+ * compiler, which runs on other threads of this process, has done its work), the mean over as many calls as make up
+ * minMs of CPU time (a quarter with BENCH_QUICK=1), at least 3.
  */
 function time(f: () => void, minMs = 300): number {
-  f();
-  const probe = process.cpuUsage();
-  f();
-  const once = Math.max(cpuMs(process.cpuUsage(probe)), 0.001);
-  const batch = Math.max(1, Math.ceil(5 / once));
-  const samples: number[] = [];
-  const start = performance.now();
-  while (performance.now() - start < (quick ? minMs / 4 : minMs) || samples.length < 3) {
-    const c0 = process.cpuUsage();
-    for (let k = 0; k < batch; k++) f();
-    samples.push(cpuMs(process.cpuUsage(c0)) / batch);
+  const warm = performance.now();
+  do f();
+  while (performance.now() - warm < 50);
+  const target = quick ? minMs / 4 : minMs;
+  const c0 = process.cpuUsage();
+  let calls = 0;
+  while (calls < 3 || cpuMs(process.cpuUsage(c0)) < target) {
+    f();
+    calls++;
   }
-  samples.sort((a, b) => a - b);
-  return samples[samples.length >> 1] as number;
+  return cpuMs(process.cpuUsage(c0)) / calls;
 }
 
 const cpuMs = (u: NodeJS.CpuUsage) => (u.user + u.system) / 1000;
@@ -164,9 +162,11 @@ try {
   console.log('(python3 with numpy not found here: the numpy column is empty and its ratio not measured)\n');
 }
 
-console.log('Times are CPU time of this process (median per call), not wall time: on a shared machine the wall');
-console.log('time of a call mostly measures who else is running. numpy is timed the same way (time.process_time).\n');
-console.log('Least squares (median). kernel = weighted QR solve with covariance and leverages; a line list of n lines');
+console.log('Times are CPU time of this process (mean per call), not wall time: on a shared machine the wall');
+console.log('time of a call mostly measures who else is running. numpy in CPU time too (time.process_time, median).\n');
+console.log(
+  'Least squares (mean CPU per call). kernel = weighted QR solve with covariance and leverages; a line list of n lines',
+);
 console.log('repeats its transitions (distinct rows), which the kernel merges exactly before the QR. Goals: numpy /');
 console.log('kernel ≥ 1 at every size; whole fitLineList ≤ 3× the kernel time of the solves it makes.');
 console.log(
