@@ -26,8 +26,8 @@ import { type LinearLevel, type LinearLevelConstants, levelKey } from './types.j
  * NIST Triatomic database numbers the stretches the other way), OCS ν1 ≈ 859 cm⁻¹ (C–S stretch; CCCBDB numbers them
  * the other way), HCN ν1 ≈ 3311 cm⁻¹ (C–H stretch) and ν3 ≈ 2097 cm⁻¹ (C–N; CDMS warns the two are swapped in parts
  * of the literature, and NIST SRM 2519a calls the C–H overtone "2ν3"); C2H2 [v1 … v5] with ν1, ν2 σg⁺, ν3 σu⁺,
- * ν4 πg, ν5 πu. CO2 database labels v1 v2 l v3 r name Fermi-dyad members by rank r (10001 upper, 10002 lower);
- * here 10001 is written [1,0,0] and 10002 [0,2,0], the customary nominal assignment.
+ * ν4 πg, ν5 πu. CO2 database labels v1 v2 l v3 r name Fermi-dyad members by rank r: 10001 is written
+ * { v: [1,0,0], l: 0, r: 1 } and 10002 { v: [1,0,0], l: 0, r: 2 } (types.ts).
  */
 
 export type ReferenceStatus = 'read' | 'read-secondary' | 'derived' | 'recalled';
@@ -234,8 +234,9 @@ const CO2_626: ReferenceSpecies = {
       note: 'e components at odd J, f at even J; R&Y G = 667.379 read as the band centre (Q-branch origin)',
     },
     {
-      v: [0, 2, 0],
+      v: [1, 0, 0],
       l: 0,
+      r: 2,
       name: 'Fermi dyad lower member 10002 ([10⁰0, 02⁰0]_II)',
       databaseLabel: '10002',
       G: rv(1285.4087, 'read-secondary', 'RY1981'),
@@ -246,6 +247,7 @@ const CO2_626: ReferenceSpecies = {
     {
       v: [1, 0, 0],
       l: 0,
+      r: 1,
       name: 'Fermi dyad upper member 10001 ([10⁰0, 02⁰0]_I)',
       databaseLabel: '10001',
       G: rv(1388.1847, 'read-secondary', 'RY1981'),
@@ -292,6 +294,7 @@ const CO2_636: ReferenceSpecies = {
     {
       v: [1, 0, 0],
       l: 0,
+      r: 1,
       name: 'Fermi dyad upper member 10001',
       databaseLabel: '10001',
       G: rv(1370.061717, 'derived', NOTE_FIT, 1e-4, 'fit of HITRAN energies J = 36–78 only: G and B extrapolated'),
