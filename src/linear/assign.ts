@@ -36,8 +36,10 @@ import { bandLabel, type LinearLevel, type LinearLevelConstants, levelKey } from
  *  3. match predictions to peaks one-to-one within a tolerance (src/assign/match.ts);
  *  4. fit the matched lines with the linear level fit, re-predict from the fitted constants and match again with
  *     a tolerance from the fit's scatter, three rounds, so that high-J lines the reference constants miss are found;
- *  5. verify the numbering: the lower level's fitted B must agree with the library's within 1 % (a numbering that
- *     ignores missing levels gives 2B, one off by one line a B several per cent off; both fail).
+ *  5. verify the numbering: the lower level's fitted B must agree with the library's within 5 combined σ (at
+ *     least 3e-4 relative): a numbering that ignores missing levels gives 2B, one off by one line a B off by parts
+ *     in 10³; when it fails, the neighbouring numberings (offset ± 1, 2 line spacings, within 0.5 cm⁻¹ or the
+ *     stated maxOffset) are tried and the one that passes with most lines kept.
  * Lines no band explains stay unassigned and are reported, never forced into the fit.
  */
 
@@ -289,7 +291,7 @@ export function assignLinearLines(
   const hi = Math.max(...positions) + 1;
   const bands = options.bands ?? referenceBands(ref).map((b) => ({ upper: b.upper, lower: b.lower }));
   const libEntries = levelEntries(ref);
-  let cands = predictCandidates(species, ref, libEntries, bands, lo, hi, o);
+  const cands = predictCandidates(species, ref, libEntries, bands, lo, hi, o);
   const warnings: string[] = [];
   const observed: ObservedPeak[] = peaks.map((p, index) => ({
     index,
@@ -313,13 +315,56 @@ export function assignLinearLines(
   const maxOffset = options.maxOffset ?? Math.min(0.5, 0.45 * spacing);
   const strong = [...cands].sort((a, b) => b.intensity - a.intensity).slice(0, 80);
   const est = cands.length > 0 ? estimateOffset(strong, positions, maxOffset, Math.min(0.06, spacing / 8)) : undefined;
-  const offset = est?.offset ?? 0;
   const offsetSigma = est?.spread ?? maxOffset;
   if (est && est.runnerUpVotes > 0.8 * est.votes) {
     warnings.push(
       `offset ambiguous: a second offset ${'≥'} 2 windows away gathered ${((100 * est.runnerUpVotes) / est.votes).toFixed(0)} % of the votes`,
     );
   }
+  const ctx: Attempt = { species, ref, peaks, observed, libEntries, bands, usedBands, lo, hi, o, spacing };
+  const first = attemptAssignment(ctx, est?.offset ?? 0, offsetSigma);
+  if (first.numbering.every((n) => n.ok) || cands.length === 0) return withWarnings(first, warnings);
+  // The numbering check failed: the offset may have landed a whole line spacing off (dense bands, or an instrument
+  // offset beyond the voting range). Try the neighbouring numberings within the largest offset searched.
+  const limit = Math.max(0.5, options.maxOffset ?? 0);
+  let best = first;
+  for (const k of [1, -1, 2, -2]) {
+    const off = (est?.offset ?? 0) + k * spacing;
+    if (Math.abs(off) > limit) continue;
+    const alt = attemptAssignment(ctx, off, offsetSigma);
+    const assigned = (r: LinearAssignResult) => r.lines.filter((l) => l.status === 'assigned').length;
+    const okAlt = alt.numbering.length > 0 && alt.numbering.every((n) => n.ok);
+    const okBest = best.numbering.length > 0 && best.numbering.every((n) => n.ok);
+    if ((okAlt && !okBest) || (okAlt === okBest && assigned(alt) > assigned(best))) best = alt;
+  }
+  if (best !== first)
+    warnings.push(`numbering moved by the band's line spacing (offset ${best.offset.value.toFixed(4)} cm-1)`);
+  return withWarnings(best, warnings);
+}
+
+function withWarnings(r: LinearAssignResult, extra: readonly string[]): LinearAssignResult {
+  return { ...r, warnings: [...extra, ...r.warnings] };
+}
+
+interface Attempt {
+  readonly species: LinearSpecies;
+  readonly ref: ReferenceSpecies;
+  readonly peaks: readonly LinearPeak[];
+  readonly observed: readonly ObservedPeak[];
+  readonly libEntries: readonly LevelConstantsEntry[];
+  readonly bands: readonly { upper: LinearLevel; lower: LinearLevel }[];
+  readonly usedBands: readonly { upper: LinearLevel; lower: LinearLevel }[];
+  readonly lo: number;
+  readonly hi: number;
+  readonly o: Required<Pick<LinearAssignOptions, 'temperature' | 'jMax' | 'minRelativeIntensity'>>;
+  readonly spacing: number;
+}
+
+/** Match, refine with the fit, and report, starting from one offset. */
+function attemptAssignment(ctx: Attempt, offset: number, offsetSigma: number): LinearAssignResult {
+  const { species, ref, peaks, observed, libEntries, bands, usedBands, lo, hi, o, spacing } = ctx;
+  const warnings: string[] = [];
+  let cands = predictCandidates(species, ref, libEntries, bands, lo, hi, o);
   let tolFor = (c: Candidate) => Math.min(Math.max(4 * offsetSigma, 3 * c.sigma, 0.005), spacing / 3);
   let shifted = (c: Candidate) => c.position + offset;
   let matches = matchLines(
@@ -432,7 +477,18 @@ function finish(
       const r = ref.levels.find((x) => levelKey(x) === l.key);
       if (!r) continue;
       const ratio = l.B.value / r.B.value;
-      numbering.push({ level: l.label, fittedB: l.B, referenceB: r.B.value, ratio, ok: Math.abs(ratio - 1) < 0.01 });
+      // A numbering one line off moves B″ by a few parts in 10³ (OCS ν1: 3e-3; CO2 ν3: 1.6e-2) and by 2× when the
+      // missing levels are ignored; the fit and a read library value agree to parts in 10⁵. Allowed: 5 combined σ
+      // (a recalled value counts as 1e-4 relative), at least 3e-4.
+      const refSigma = r.B.uncertainty ?? (r.B.status === 'recalled' ? 1e-4 : 1e-6) * r.B.value;
+      const allowed = Math.max((5 * Math.hypot(l.B.uncertainty, refSigma)) / r.B.value, 3e-4);
+      numbering.push({
+        level: l.label,
+        fittedB: l.B,
+        referenceB: r.B.value,
+        ratio,
+        ok: Math.abs(ratio - 1) <= allowed,
+      });
     }
     for (const n of numbering) {
       if (!n.ok) warnings.push(`numbering suspect: fitted B of ${n.level} is ${n.ratio.toFixed(4)} × the library's`);

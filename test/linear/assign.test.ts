@@ -185,6 +185,71 @@ describe('automatic assignment of linear-molecule lists (measured shares per tes
   });
 });
 
+describe('numbering against offsets of the order of a line spacing', () => {
+  it('OCS ν1 (lines 2B ≈ 0.41 cm⁻¹ apart) with offsets 0.2 and 0.405: every line right after the numbering check moves it', () => {
+    for (const offset of [0.2, 0.405]) {
+      const { result, s } = run(OCS_622, 'OCS', [{ upper: '1000', lower: '0000' }], {
+        jMax: 60,
+        sigma: 2e-4,
+        offset,
+        seed: 21,
+      });
+      // Measured: 121 of 121 correct for both; without the check the first numbering was one line off (B″ × 1.003).
+      expect(s.correct).toBe(s.real);
+      expect(result.warnings.join(' ')).toMatch(/numbering moved/);
+    }
+  });
+  it('CO2 ν3 off by 0.8 cm⁻¹ (beyond the default 0.5 search): the wrong numbering is flagged; maxOffset 1 gets it right', () => {
+    const list = genLineList({
+      molecule: CO2_626,
+      bands: [{ upper: '00011', lower: '00001' }],
+      jMax: 60,
+      sigma: 1e-3,
+      offset: 0.8,
+      seed: 22,
+      minRelativeIntensity: 1e-3,
+    });
+    const flagged = assignLinearLines('CO2', genUnassigned(list));
+    // Measured: B″ ratio 1.0158, every line one step off.
+    expect(flagged.numbering[0]?.ok).toBe(false);
+    expect(linearChecks(genUnassigned(list), flagged, []).find((c) => c.id === 'identity')?.status).toBe('fail');
+    const fixed = assignLinearLines('CO2', genUnassigned(list), { maxOffset: 1 });
+    const s = shares(list, fixed);
+    // Measured: 59 of 61 correct, 2 unassigned, 0 wrong.
+    expect(s.wrong).toBe(0);
+    expect(s.correct / s.real).toBeGreaterThan(0.95);
+  });
+  it('harder lists (σ 3–5e-3, 20 % missing, 15–20 spurious, offsets 0.15–0.3): no wrong line, no spurious line taken', () => {
+    const cases: [GenMolecule, string, { upper: string; lower: string }, object][] = [
+      [
+        CO2_626,
+        'CO2',
+        { upper: '00011', lower: '00001' },
+        { jMax: 100, sigma: 5e-3, missingFraction: 0.2, spurious: 20, offset: 0.3, seed: 13 },
+      ],
+      [
+        HCN_H12C14N,
+        'HCN',
+        { upper: '0110', lower: '0000' },
+        { jMax: 50, sigma: 5e-3, missingFraction: 0.2, spurious: 15, offset: -0.2, seed: 14 },
+      ],
+      [
+        N2O_446,
+        'N2O',
+        { upper: '0001', lower: '0000' },
+        { jMax: 80, sigma: 3e-3, missingFraction: 0.2, spurious: 15, offset: 0.15, reportUncertainty: false, seed: 15 },
+      ],
+    ];
+    for (const [mol, species, band, opts] of cases) {
+      const { s } = run(mol, species, [band], opts);
+      // Measured: CO2 59/59, HCN 76/76, N2O 108/108 correct; 0 of 20, 15, 15 spurious lines assigned.
+      expect(s.wrong).toBe(0);
+      expect(s.spuriousAssigned).toBe(0);
+      expect(s.correct / s.real).toBeGreaterThan(0.95);
+    }
+  });
+});
+
 interface Fixture {
   h13cn_srm2519a_nm: { branch: 'P' | 'R'; j: number; vacuumWavelengthNm: number }[];
   c2h2_srm2517a_nm: { branch: 'P' | 'R'; j: number; vacuumWavelengthNm: number }[];
