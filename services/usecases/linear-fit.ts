@@ -5,6 +5,7 @@ import type { LinearLevel } from '../../src/linear/types.js';
 import { toWavenumber } from '../../src/units.js';
 import { SAFETY_NOTICE } from '../notice.js';
 import type { FitRequest, FitResponse } from '../schemas/fit.js';
+import { withAutomaticLinearAssignment } from './linear-assign.js';
 
 /** A level as the wire writes it ({ v, l, rank? }) and as src/linear holds it ({ v, l, r? }). */
 export interface WireLevel {
@@ -111,11 +112,25 @@ export function runLinearFit(req: FitRequest): FitResponse {
     massReducedDunham: _u,
     ...options
   } = req.options ?? {};
-  const result = fitLinearLines(species, lines, options);
-  return presentLinearFit(req, result);
+  // No assignment at all: the library's bands are assigned first (services/usecases/linear-assign.ts).
+  const auto = withAutomaticLinearAssignment(
+    species.formula,
+    lines,
+    (req.lines ?? []).map((l) => l.intensity),
+    {
+      ...(req.options?.temperature !== undefined ? { temperature: req.options.temperature } : {}),
+      ...(req.options?.maxOffset !== undefined ? { maxOffset: req.options.maxOffset } : {}),
+    },
+  );
+  const result = fitLinearLines(species, auto.lines, options);
+  return presentLinearFit(req, result, auto.automatic);
 }
 
-function presentLinearFit(req: FitRequest, r: LinearFitResult): FitResponse {
+function presentLinearFit(
+  req: FitRequest,
+  r: LinearFitResult,
+  automatic: ReadonlySet<number> = new Set(),
+): FitResponse {
   const s = r.species.formula;
   const reqLines = req.lines ?? [];
   return {
@@ -137,7 +152,7 @@ function presentLinearFit(req: FitRequest, r: LinearFitResult): FitResponse {
                 branch: a.branch,
                 j: a.j,
                 species: s,
-                source: 'given' as const,
+                source: automatic.has(l.index) ? ('auto' as const) : ('given' as const),
                 upper: toWire(a.upper),
                 lower: toWire(a.lower),
                 parity: a.lowerParity,
