@@ -3,6 +3,8 @@ import { checksWithoutFit, DEFAULT_TOLERANCES, runChecks } from '../../src/qa/ch
 import { SAFETY_NOTICE } from '../notice.js';
 import type { CheckRequest, CheckResponse } from '../schemas/checks.js';
 import { analyseRequest, prepareFit, presentFit } from './fit.js';
+import { runLinearCheck } from './linear-assign.js';
+import { isLinearFitRequest } from './linear-fit.js';
 import type { DeepReadonly } from './types.js';
 
 /** Errors that mean "no fit could be made", which a QA check reports as a failed identity, not as a 422. */
@@ -18,6 +20,7 @@ const NO_FIT = new Set([
 export function runCheck(req: CheckRequest): CheckResponse {
   const { tolerances, ...fitReq } = req;
   const applied = { ...DEFAULT_TOLERANCES, ...(tolerances ?? {}) };
+  if (isLinearFitRequest(fitReq)) return runLinearCheck(req, applied);
   const prepared = prepareFit(fitReq);
   try {
     const analysed = analyseRequest(prepared);

@@ -1,5 +1,20 @@
-import { assignLinearLines, type LinearAssignResult } from '../../src/linear/assign.js';
+import { identifySpecies } from '../../src/assign/identify.js';
+import { ScienceError } from '../../src/errors.js';
+import {
+  assignLinearLines,
+  identifyLinearSpecies,
+  type LinearAssignResult,
+  linearChecks,
+  mergeIdentifications,
+} from '../../src/linear/assign.js';
 import type { LinearLineInput } from '../../src/linear/fit.js';
+import { type Tolerances, verdictOf } from '../../src/qa/checks.js';
+import { toWavenumber } from '../../src/units.js';
+import { SAFETY_NOTICE } from '../notice.js';
+import type { CheckRequest, CheckResponse } from '../schemas/checks.js';
+import type { FitResponse } from '../schemas/fit.js';
+import { runLinearFit } from './linear-fit.js';
+import type { DeepReadonly } from './types.js';
 
 /**
  * Automatic assignment for the linear fit use case: when a request for a linear species sends no assignment at all,
@@ -35,3 +50,45 @@ export function withAutomaticLinearAssignment(
   });
   return { lines: out, automatic, result };
 }
+
+/**
+ * POST /v1/checks (and GraphQL `check`) for a linear species: the list is assigned automatically (given assignments
+ * are not used here), fitted by the linear fit use case, and judged by the identity, calibration and
+ * unexplained-lines checks of src/linear/assign.ts. The identification ranking spans the diatomic and the linear
+ * library. A fit that cannot be made leaves `fit: null` and the checks say why.
+ */
+export function runLinearCheck(req: CheckRequest, applied: Tolerances): CheckResponse {
+  const { tolerances: _tolerances, ...fitReq } = req;
+  const unit = fitReq.unit ?? 'cm-1';
+  const peaks = (fitReq.lines ?? []).map((l) => {
+    const c = toWavenumber(l.position, unit, l.uncertainty);
+    return {
+      position: c.value,
+      ...(c.uncertainty !== undefined ? { uncertainty: c.uncertainty } : {}),
+      ...(l.intensity !== undefined ? { intensity: l.intensity } : {}),
+    };
+  });
+  let fit: FitResponse | null = null;
+  try {
+    fit = runLinearFit({ ...fitReq, lines: (fitReq.lines ?? []).map(({ assignment: _a, ...l }) => l) });
+  } catch (e) {
+    if (!(e instanceof ScienceError) || !NO_FIT_CODES.has(e.code)) throw e;
+  }
+  const species = fit?.species[0]?.formula ?? (fitReq.species as string);
+  const result = assignLinearLines(species, peaks, {
+    ...(fitReq.options?.temperature !== undefined ? { temperature: fitReq.options.temperature } : {}),
+    ...(fitReq.options?.maxOffset !== undefined ? { maxOffset: fitReq.options.maxOffset } : {}),
+  });
+  const ranking = mergeIdentifications(identifySpecies(peaks), identifyLinearSpecies(peaks));
+  const checks = linearChecks(peaks, result, ranking, applied);
+  const response: DeepReadonly<CheckResponse> = {
+    verdict: verdictOf(checks),
+    checks,
+    tolerances: { ...applied },
+    fit,
+    notice: SAFETY_NOTICE,
+  };
+  return response as CheckResponse;
+}
+
+const NO_FIT_CODES = new Set(['FIT_NO_ASSIGNED_LINES', 'FIT_TOO_FEW_LINES', 'FIT_RANK_DEFICIENT']);

@@ -45,3 +45,32 @@ describe('automatic assignment of linear molecules over the services', () => {
     expect(res.headers['content-type']).toMatch(/application\/problem\+json/);
   });
 });
+
+describe('QA checks of linear molecules over the services', () => {
+  it('POST /v1/checks with an unassigned CO2 ν3 list off by 0.02 cm⁻¹: identity and calibration pass, offset measured', async () => {
+    const lines = genUnassigned(
+      genLineList({
+        molecule: CO2_626,
+        bands: [{ upper: '00011', lower: '00001' }],
+        jMax: 60,
+        sigma: 1e-3,
+        offset: 0.02,
+        seed: 32,
+        minRelativeIntensity: 1e-3,
+      }),
+    );
+    const res = await app().inject({ method: 'POST', url: '/v1/checks', payload: { species: 'CO2', lines } });
+    expect(res.statusCode).toBe(200);
+    const body = res.json();
+    const byId = new Map(body.checks.map((c: { id: string }) => [c.id, c]));
+    expect((byId.get('identity') as { status: string }).status).toBe('pass');
+    const cal = byId.get('calibration') as {
+      status: string;
+      measured: { offset: { value: number; uncertainty: number } };
+    };
+    expect(cal.status).toBe('pass');
+    expect(Math.abs(cal.measured.offset.value - 0.02)).toBeLessThan(4 * cal.measured.offset.uncertainty + 1e-4);
+    expect(body.fit.species[0].formula).toBe('16O-12C-16O');
+    expect(body.notice).toMatch(/certif/i);
+  });
+});
