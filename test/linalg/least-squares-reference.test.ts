@@ -59,6 +59,8 @@ describe('least squares against ml-matrix on the full weighted design', () => {
     ['200 rows, no weights, quadratic', 200, 3, 8, 0, false],
     ['256 weighted rows repeating 16 distinct ones (merged)', 256, 4, 5, 16, true],
     ['128 unweighted rows repeating 12 distinct ones (merged)', 128, 3, 6, 12, false],
+    ['256 weighted rows, each of 128 distinct rows twice (merged at the limit)', 256, 4, 9, 128, true],
+    ['258 weighted rows, 129 distinct (one more than half: not merged)', 258, 4, 10, 129, true],
   ] as const)('%s: coefficients, full covariance, residuals, χ², leverages', (_name, n, p, seed, every, weighted) => {
     const pr = polynomialProblem(n, p, seed, every, weighted);
     const r = solveLeastSquares({
@@ -217,6 +219,34 @@ describe('rank deficiency and bad sizes', () => {
     // y = 1 + 2·(1 + 1e-9 t): coefficients 1 and 2, to 1e-5 (κ ≈ 1e10 leaves about six digits).
     expect(Math.abs((strict.coefficients[0] as number) - 1)).toBeLessThan(1e-5);
     expect(Math.abs((strict.coefficients[1] as number) - 2)).toBeLessThan(1e-5);
+  });
+
+  it('column pivoting reveals the rank when a repeated column comes second: columns 1, 1, t have rank 2', () => {
+    // Without pivoting the second column's remainder is zero at step 2 and the rank count would stop at 1.
+    const n = 8;
+    const design = new Float64Array(n * 3);
+    for (let i = 0; i < n; i++) {
+      design[i] = 1;
+      design[n + i] = 1;
+      design[2 * n + i] = i;
+    }
+    const r = solveLeastSquares({ rows: n, cols: 3, design, observations: new Float64Array(n).fill(1) });
+    expect(r.rank).toBe(2);
+    expect(r.dependencies.map((g) => [...g].sort())).toEqual([[0, 1]]);
+  });
+
+  it('the default rank tolerance is max(rows, cols)·ε (numpy lstsq convention): 1000 rows, a pivot of 3e-14', () => {
+    // Columns 1 and 1 + 1e-13·t, t uniform in [−½, ½): the second pivot of the scaled design is about
+    // 1e-13 · std(t) = 2.9e-14, below 1000·ε = 2.2e-13 (rank 1) but far above 2·ε = 4.4e-16.
+    const n = 1000;
+    const design = new Float64Array(n * 2);
+    for (let i = 0; i < n; i++) {
+      design[i] = 1;
+      design[n + i] = 1 + 1e-13 * (i / n - 0.5);
+    }
+    const y = Float64Array.from({ length: n }, (_, i) => i % 3);
+    expect(solveLeastSquares({ rows: n, cols: 2, design, observations: y }).rank).toBe(1);
+    expect(solveLeastSquares({ rows: n, cols: 2, design, observations: y, rankTolerance: 1e-15 }).rank).toBe(2);
   });
 
   it.each([
