@@ -103,12 +103,15 @@ export const kratzerD = (B: number, omega: number): number => (4 * B ** 3) / ome
 
 /**
  * Width of the prior of a high-order centrifugal term (L_v next to H_v, M_v next to L_v), in units of κ_v² times
- * the size of the term below it: 0 ± 5 κ_v² max(|X|, σ_X), κ_v = B_v/ω_e, the rotational analogue of the scale
+ * the size of the term below it: 0 ± 10 κ_v² max(|X|, σ_X), κ_v = B_v/ω_e, the rotational analogue of the scale
  * prior of the Dunham terms. Each power of x scales the coefficient by about κ² times a number of order one to
- * ten (¹²C¹⁶O v = 0: D/B ≈ 4κ², H/D ≈ 1.2κ², L/H ≈ 8κ², the last from a fit of the database pure-rotation lines to
- * J = 80, which this covers at 1.6σ as the Dunham scale prior covers β_e of HCl).
+ * ten (¹²C¹⁶O v = 0: D/B ≈ 4κ², H/D ≈ 1.2κ², L/H ≈ −8κ², the last from a fit of the database pure-rotation lines to
+ * J = 80, which this covers at 0.8σ). Measured on a CO-like ground state with L and M (test/fit/high-order-priors
+ * .test.ts, lines to J = 50 fitted to H): with 5κ² the H_0 pulls had 1σ coverage 0.18 (mean −1.2), with 10κ²
+ * 0.64 (mean −0.4); where the truth has no L (the HCl generator of test/fit/pulls.test.ts) H_1 over-covers
+ * (0.80), the price of a prior wide enough for molecules that have one.
  */
-export const HIGH_ORDER_PRIOR_FACTOR = 5;
+export const HIGH_ORDER_PRIOR_FACTOR = 10;
 
 /**
  * Stage 3b: constrain the next centrifugal term of every level (D when only B was kept, H when D was, L when H
@@ -184,7 +187,7 @@ export function constrainLevelModel(
           sigma,
           name: name(next),
           species: s,
-          basis: `not determined by the lines: 0 ± 5 (B_v/ω_e)² |${below}_v| (Dunham ordering, ${omegaBasis})`,
+          basis: `not determined by the lines: 0 ± 10 (B_v/ω_e)² |${below}_v| (Dunham ordering, ${omegaBasis})`,
         });
       } else {
         // H_v varies little with v (H_v = H_e + O(κ H_e)): one H_e for every level, from the library's
