@@ -332,7 +332,8 @@ export interface components {
         })[];
       equilibrium: components["schemas"]["EquilibriumConstants"][];
       levels: ({
-          B: components["schemas"]["Quantity"];
+          /** @description always present for diatomic levels; absent for a linear level seen only through l-type transitions */
+          B?: components["schemas"]["Quantity"];
           D?: components["schemas"]["Quantity"];
           H?: components["schemas"]["Quantity"];
           /** @description linear polyatomic: vibrational angular momentum */
@@ -631,7 +632,8 @@ export interface components {
       equilibrium: components["schemas"]["EquilibriumConstants"][];
       input: components["schemas"]["InputDigest"];
       levels: ({
-          B: components["schemas"]["Quantity"];
+          /** @description always present for diatomic levels; absent for a linear level seen only through l-type transitions */
+          B?: components["schemas"]["Quantity"];
           D?: components["schemas"]["Quantity"];
           H?: components["schemas"]["Quantity"];
           /** @description linear polyatomic: vibrational angular momentum */

@@ -231,7 +231,8 @@ export const typeDefs = /* GraphQL */ `
     qJ: Quantity
     parity: String
     term: TermQuantity
-    B: Quantity!
+    "absent only for a linear polyatomic level seen only through l-type transitions"
+    B: Quantity
     D: Quantity
     H: Quantity
     L: Quantity

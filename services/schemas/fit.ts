@@ -445,7 +445,9 @@ const fitFields = {
       rank: z.number().int().optional().describe('linear polyatomic: rank within a Fermi polyad'),
       label: z.string().optional().describe('linear polyatomic: the level in the trade notation, e.g. "01¹0"'),
       term: Q.extend({ relativeTo: z.union([z.number().int(), z.string()]) }).optional(),
-      B: Q,
+      B: Q.optional().describe(
+        'always present for diatomic levels; absent for a linear level seen only through l-type transitions',
+      ),
       D: Q.optional(),
       H: Q.optional(),
       L: Q.optional(),

@@ -188,7 +188,7 @@ function presentLinearFit(
         ...(level.r !== undefined ? { rank: level.r } : {}),
         label: l.label,
         ...(l.term ? { term: { ...l.term, relativeTo: l.term.relativeTo } } : {}),
-        B: l.B,
+        ...(l.B ? { B: l.B } : {}),
         ...(l.D ? { D: l.D } : {}),
         ...(l.H ? { H: l.H } : {}),
         ...(l.q ? { q: l.q } : {}),
@@ -234,6 +234,7 @@ function presentLinearFit(
       };
     }),
     crossChecks: [],
+    ...(r.scatter ? { scatter: r.scatter.map((g) => ({ ...g })) } : {}),
     assignment: { method: 'given', species: [s], bands: [], unexplained: [] },
     warnings: r.warnings.map((w) => ({
       code: w.code,

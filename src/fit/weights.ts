@@ -1,7 +1,7 @@
 import { type Observation, reweighted } from '../models/linear-model.js';
 import { formatBand } from '../models/transitions.js';
 import { median, robustSigma } from '../stats/robust.js';
-import { selectLevelModel } from './level-selection.js';
+import { type LevelSelection, selectLevelModel } from './level-selection.js';
 import type { LineInput, Warning } from './types.js';
 
 /** The scatter estimated for one group of lines sent without an uncertainty. */
@@ -40,10 +40,22 @@ const bandKeyOf = (o: Observation) => `${o.species}|${o.upperV}-${o.lowerV}`;
  * MIN_SCATTER_GROUP such lines take the estimate pooled over all lines without σ, or, when some lines do carry
  * uncertainties and too few lack one, the median of the given ones (as before).
  */
+/**
+ * How another level model takes part (linear polyatomics, src/linear/fit.ts): its refit of a sample of lines, and
+ * the band of an observation as a group key and a label. Defaults: the diatomic level model and "species v′-v″".
+ */
+export interface WeighHooks {
+  refit(obs: readonly Observation[]): LevelSelection;
+  band(o: Observation): { readonly key: string; readonly label: string };
+}
+
+type SigmaInput = Pick<LineInput, 'uncertainty' | 'source'>;
+
 export function weighLines(
-  input: readonly LineInput[],
+  input: readonly SigmaInput[],
   observations: readonly Observation[],
   fit: { readonly maxOrder: number; readonly termSignificance: number },
+  hooks?: WeighHooks,
 ): WeightedLines {
   const given = input.filter((l) => l.uncertainty !== undefined).map((l) => l.uncertainty as number);
   const fallback = given.length > 0 ? median(given) : 1;
@@ -66,7 +78,7 @@ export function weighLines(
     return fixed(fallback);
   }
   if (missing.length === 0) return fixed(fallback);
-  const est = estimateScatter(input, observations, fallback, fit);
+  const est = estimateScatter(input, observations, fallback, fit, hooks);
   const groups = scatterGroups(est);
   if (groups.length > 0) {
     warnings.push({
@@ -97,6 +109,8 @@ interface ScatterEstimate {
   readonly pooled: number;
   /** Lines without σ per group, as the first round found them. */
   readonly counts: ReadonlyMap<string, number>;
+  /** Labels of band groups given by hooks (key without the "band|" prefix). */
+  readonly labels: ReadonlyMap<string, string>;
 }
 
 /**
@@ -106,14 +120,20 @@ interface ScatterEstimate {
  * measure the scatter.
  */
 function estimateScatter(
-  input: readonly LineInput[],
+  input: readonly SigmaInput[],
   observations: readonly Observation[],
   fallback: number,
   fit: { readonly maxOrder: number; readonly termSignificance: number },
+  hooks?: WeighHooks,
 ): ScatterEstimate {
+  const labels = new Map<string, string>();
   const groupOf = (o: Observation) => {
     const source = input[o.index]?.source;
-    return source !== undefined ? `source|${source}` : `band|${bandKeyOf(o)}`;
+    if (source !== undefined) return `source|${source}`;
+    if (!hooks) return `band|${bandKeyOf(o)}`;
+    const b = hooks.band(o);
+    labels.set(b.key, b.label);
+    return `band|${b.key}`;
   };
   const withoutSigma = (o: Observation) => input[o.index]?.uncertainty === undefined;
   let obs = reweighted(observations, (o) => (withoutSigma(o) ? 1 / fallback ** 2 : undefined));
@@ -125,7 +145,9 @@ function estimateScatter(
     let level: ReturnType<typeof selectLevelModel>;
     try {
       const sample = gross.size > 0 ? obs.filter((o) => !gross.has(o.index)) : obs;
-      level = selectLevelModel(sample, fit.maxOrder, 'a-posteriori', fit.termSignificance);
+      level = hooks
+        ? hooks.refit(sample)
+        : selectLevelModel(sample, fit.maxOrder, 'a-posteriori', fit.termSignificance);
     } catch {
       // Too few lines or an indeterminate model: the main fit will say so; keep the provisional weights.
       break;
@@ -157,7 +179,7 @@ function estimateScatter(
     });
     obs = reweighted(observations, (o) => (withoutSigma(o) ? 1 / sigmaOf(o) ** 2 : undefined));
   }
-  return { observations: obs, sigmas, pooled, counts };
+  return { observations: obs, sigmas, pooled, counts, labels };
 }
 
 /** The groups as reported: each with its own σ, and one pooled group for the lines of groups too small for one. */
@@ -171,7 +193,7 @@ function scatterGroups(est: ScatterEstimate): ScatterGroup[] {
       continue;
     }
     const [kind, rest] = k.split(/\|(.*)/s) as [string, string];
-    const label = kind === 'source' ? rest : bandLabel(rest);
+    const label = kind === 'source' ? rest : (est.labels.get(rest) ?? bandLabel(rest));
     groups.push({ group: label, by: kind === 'source' ? 'source' : 'band', lines: n, sigma: s });
   }
   if (pooledLines > 0)

@@ -51,7 +51,7 @@ export function linearCombinationDifferences(
   input: readonly { readonly position: number; readonly uncertainty?: number }[],
   transitions: ReadonlyMap<number, LinearTransition>,
   rejected: ReadonlyMap<number, string>,
-  levels: readonly { readonly key: string; readonly B: Quantity; readonly D?: Quantity }[],
+  levels: readonly { readonly key: string; readonly B?: Quantity; readonly D?: Quantity }[],
 ): LinearCombinationDifferences[] {
   const bands = new Map<string, { r: Map<number, number>; p: Map<number, number>; t: LinearTransition }>();
   for (const [i, t] of transitions) {
@@ -77,7 +77,8 @@ export function linearCombinationDifferences(
       pairs.push({ j: jr + 1, value: a.position - b.position, sigma });
     }
     const full = levels.find((l) => l.key === levelKey(t.lower));
-    if (pairs.length < 4 || !full) continue;
+    if (pairs.length < 4 || !full?.B) continue;
+    const fullB = full.B;
     pairs.sort((x, z) => x.j - z.j);
     const obs: Observation[] = pairs.map((x, i) => ({
       index: i,
@@ -113,8 +114,8 @@ export function linearCombinationDifferences(
       ...(n > 1 ? { D: qAt(1) } : {}),
       rms: rmsResidual(fit),
       degreesOfFreedom: fit.degreesOfFreedom,
-      fitted: full.B,
-      deviation: Math.abs(B.value - full.B.value) / Math.hypot(B.uncertainty, full.B.uncertainty),
+      fitted: fullB,
+      deviation: Math.abs(B.value - fullB.value) / Math.hypot(B.uncertainty, fullB.uncertainty),
     });
   }
   return out;

@@ -16,6 +16,7 @@ import {
 import { type LevelSelection, predictWithVariance, rankError } from '../fit/level-selection.js';
 import { rejectOutliers } from '../fit/outliers.js';
 import { termTest } from '../fit/term-test.js';
+import { type ScatterGroup, weighLines } from '../fit/weights.js';
 import type { LinearModel, Observation, Parameter } from '../models/linear-model.js';
 import { type LinearCombinationDifferences, linearCombinationDifferences } from './combination-differences.js';
 import type { LinearSpecies } from './species.js';
@@ -71,6 +72,8 @@ interface LinearObservation extends Observation {
 }
 
 type Kind = 'T' | 'B' | 'D' | 'H' | 'q' | 'qJ';
+/** |H| / (D²/B) above which a fitted H is reported as implausible (the note's molecules: 0.2–0.7). */
+const IMPLAUSIBLE_H_RATIO = 10;
 const ORDER_KINDS: readonly Kind[] = ['B', 'D', 'H'];
 
 interface LevelInfo {
@@ -79,6 +82,11 @@ interface LevelInfo {
   readonly reference: string;
   readonly parities: ReadonlySet<Parity>;
   readonly distinctJ: number;
+  /**
+   * Whether any line gives the level's rotational ladder (a line to another level, or a change of J). A level seen
+   * only through l-type transitions (Q lines e↔f within the level) carries q and q_J but no B, D, H.
+   */
+  readonly rotational: boolean;
 }
 
 function levelCoefficient(kind: Kind, key: string, level: LevelInfo, o: LinearObservation): number {
@@ -138,9 +146,11 @@ function linearLevelModel(
   for (const info of infos.values()) {
     if (info.key !== info.reference) add('T', info);
     const order = orders.get(info.key) ?? 1;
-    for (let k = 0; k < order; k++) add(ORDER_KINDS[k] as Kind, info);
-    const next = extra.get(info.key);
-    if (next) add(next, info);
+    if (info.rotational) {
+      for (let k = 0; k < order; k++) add(ORDER_KINDS[k] as Kind, info);
+      const next = extra.get(info.key);
+      if (next) add(next, info);
+    }
     if (info.level.l >= 1 && info.parities.size === 2) {
       add('q', info);
       // The doubling's own centrifugal term enters with D (HCN 01¹0: q_J = D_e − D_f ≈ −8.8e-8 cm⁻¹, note §1.6).
@@ -162,6 +172,7 @@ function levelInfos(obs: readonly LinearObservation[]): Map<string, LevelInfo> {
   const isUpper = new Set<string>();
   const parities = new Map<string, Set<Parity>>();
   const js = new Map<string, Set<number>>();
+  const rotational = new Set<string>();
   const find = (k: string): string => {
     let r = k;
     while (parent.get(r) !== r) r = parent.get(r) as string;
@@ -176,6 +187,10 @@ function levelInfos(obs: readonly LinearObservation[]): Map<string, LevelInfo> {
     touch(o.upperKey, o.upperParity, o.upperJ);
     touch(o.lowerKey, o.lowerParity, o.lowerJ);
     if (o.upperKey !== o.lowerKey) isUpper.add(o.upperKey);
+    if (o.upperKey !== o.lowerKey || o.upperJ !== o.lowerJ) {
+      rotational.add(o.upperKey);
+      rotational.add(o.lowerKey);
+    }
   }
   // Prefer as the root: never an upper level, then fewer quanta, then the key.
   const rank = (k: string) => {
@@ -204,6 +219,7 @@ function levelInfos(obs: readonly LinearObservation[]): Map<string, LevelInfo> {
       reference: find(k),
       parities: parities.get(k) as Set<Parity>,
       distinctJ: (js.get(k) as Set<number>).size,
+      rotational: rotational.has(k),
     });
   }
   return out;
@@ -279,6 +295,7 @@ function constrainNextTerms(
   const extra = new Map<string, Kind>();
   const priors: (Prior & { basis: string })[] = [];
   for (const [k, o] of orders) {
+    if (!infos.get(k)?.rotational) continue;
     if (o === 2) {
       const B = value('B', k) as number;
       const D = value('D', k) as number;
@@ -331,7 +348,8 @@ export interface LinearLevelResult {
   readonly label: string;
   /** G_v − G_ref of its connected set, absent for the reference. */
   readonly term?: Quantity & { readonly relativeTo: string };
-  readonly B: Quantity;
+  /** Absent for a level seen only through l-type transitions. */
+  readonly B?: Quantity;
   readonly D?: Quantity;
   readonly H?: Quantity;
   readonly q?: Quantity;
@@ -379,6 +397,8 @@ export interface LinearFitResult {
     readonly constraints: readonly LinearTermConstraint[];
   };
   readonly combinationDifferences: readonly LinearCombinationDifferences[];
+  /** σ estimated from the residual scatter for lines sent without one (per source, else per band, else pooled). */
+  readonly scatter?: readonly ScatterGroup[];
   readonly warnings: readonly { readonly code: string; readonly message: string; readonly lines?: readonly number[] }[];
 }
 
@@ -457,10 +477,31 @@ export function fitLinearLines(
   const mode = options.uncertaintyMode ?? 'a-posteriori';
   const maxOrder = Math.min(Math.max(options.maxCentrifugalOrder ?? 3, 1), 3);
   const alpha = options.termSignificance ?? 0.01;
-  const { obs, transitions } = readLinearLines(species, input, mode);
+  const read = readLinearLines(species, input, mode);
+  const { transitions } = read;
   const s = species.formula;
   const select = (o: readonly Observation[]) =>
     selectLinearModel(s, o as readonly LinearObservation[], maxOrder, mode, alpha);
+  // Lines without σ: σ from the residual scatter per source (else per band), as the diatomic fit does.
+  const weighed = weighLines(
+    input.map((l) => ({
+      ...(l.uncertainty !== undefined ? { uncertainty: l.uncertainty } : {}),
+      ...(l.source !== undefined ? { source: l.source } : {}),
+    })),
+    read.obs,
+    { maxOrder, termSignificance: alpha },
+    {
+      refit: (o) => selectLinearModel(s, o as readonly LinearObservation[], maxOrder, 'a-posteriori', alpha),
+      band: (o) => {
+        const x = o as LinearObservation;
+        return {
+          key: `${s}|${x.upperKey}>${x.lowerKey}`,
+          label: `${s} ${bandLabel(parseLevelKey(x.upperKey), parseLevelKey(x.lowerKey))}`,
+        };
+      },
+    },
+  );
+  const obs = weighed.observations as readonly LinearObservation[];
   const initial = select(obs);
   const outl = rejectOutliers(
     obs,
@@ -480,7 +521,12 @@ export function fitLinearLines(
     maxOrder >= 2
       ? constrainNextTerms(s, kept, selection, mode)
       : { fit: selection.fit, constraints: [] as LinearTermConstraint[] };
-  return reportLinearFit(species, input, obs, transitions, outl.rejected, fit, selection, constraints, mode);
+  const report = reportLinearFit(species, input, obs, transitions, outl.rejected, fit, selection, constraints, mode);
+  return {
+    ...report,
+    ...(weighed.groups.length > 0 ? { scatter: weighed.groups } : {}),
+    warnings: [...weighed.warnings, ...report.warnings],
+  };
 }
 
 function reportLinearFit(
@@ -564,7 +610,7 @@ function reportLinearFit(
       l: info.level.l,
       label: levelLabel(info.level),
       ...(term ? { term: { ...term, relativeTo: info.reference } } : {}),
-      B: q('B', k) as Quantity,
+      ...(q('B', k) ? { B: q('B', k) as Quantity } : {}),
       ...(D ? { D } : {}),
       ...(H ? { H } : {}),
       ...(qv ? { q: qv } : {}),
@@ -572,6 +618,20 @@ function reportLinearFit(
       ...(oneParity ? { parity: oneParity } : {}),
     };
   });
+  for (const l of levels) {
+    // |H| ~ D²/B (common practice; 0.2–0.7 for the molecules of the reference note, §1). Far beyond it, the term
+    // test kept H for structure the model lacks (perturbations, pressure shifts in certified centres, a wrong J).
+    if (l.H && l.D && l.B && l.D.value !== 0) {
+      const scale = (l.D.value * l.D.value) / Math.abs(l.B.value);
+      const ratio = Math.abs(l.H.value) / scale;
+      if (ratio > IMPLAUSIBLE_H_RATIO) {
+        warnings.push({
+          code: 'CENTRIFUGAL_TERM_IMPLAUSIBLE',
+          message: `H of ${l.label} is ${ratio.toFixed(0)} × D²/B, far beyond centrifugal distortion (|H| ~ D²/B): the lines carry structure the level model lacks (a perturbation, pressure shifts, a misnumbered J), which H absorbs; B and D then hold it too`,
+        });
+      }
+    }
+  }
   const bands = bandsOf(s, fit, selection.infos, obs, transitions);
   const names = params.map((x) => x.name);
   const combinationDifferences = linearCombinationDifferences(species, input, transitions, rejected, levels);

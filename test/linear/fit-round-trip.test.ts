@@ -21,7 +21,8 @@ import {
  * see below), 2σ coverage ≥ 0.90 (common practice for 200 trials: the binomial σ of a 0.68 share is 0.033).
  * Measured (PULLS_LOG=1, 2026-12-02): CO2 ν3 origin/B′/B″/D′/D″ 1σ 0.66/0.70/0.71/0.785/0.82, 2σ ≥ 0.95; the
  * same capped at D 0.66/0.705/0.715/0.785/0.825; HCN ν2 origin/B′/B″/D′/D″/q 0.66/0.625/0.605/0.685/0.665/0.645,
- * 2σ ≥ 0.935; N2O ν3 without σ 0.69/0.625/0.635/0.70/0.66, 2σ ≥ 0.92.
+ * 2σ ≥ 0.935; N2O ν3 without σ 0.69/0.625/0.635/0.70/0.66, 2σ ≥ 0.92; N2O ν3 from two instruments without σ
+ * (σ 2e-4 and 2e-3, estimated per source) 0.665/0.66/0.625/0.74/0.695, 2σ ≥ 0.935.
  */
 
 const CO2 = parseLinearSpecies('CO2');
@@ -99,6 +100,20 @@ const CASES: readonly Case[] = [
     species: N2O,
     checks: sigmaCheck(N2O_001, N2O_000, ['0,0,1|0', '0,0,0|0']),
   },
+  {
+    // The same band measured on two instruments, neither list with σ: even J″ on one (σ = 2e-4 cm⁻¹), odd J″ on
+    // the other (σ = 2e-3 cm⁻¹), each line labelled with its source: σ is estimated per source.
+    name: 'N2O 00⁰1–00⁰0 from two instruments without σ',
+    lines: (seed) => {
+      const fine = ownBand(N2O_001, N2O_000, 50, 2e-4, ownNormal(seed), false).filter((l) => l.assignment.j % 2 === 0);
+      const coarse = ownBand(N2O_001, N2O_000, 50, 2e-3, ownNormal(seed + 7919), false).filter(
+        (l) => l.assignment.j % 2 === 1,
+      );
+      return [...fine.map((l) => ({ ...l, source: 'fine' })), ...coarse.map((l) => ({ ...l, source: 'coarse' }))];
+    },
+    species: N2O,
+    checks: sigmaCheck(N2O_001, N2O_000, ['0,0,1|0', '0,0,0|0']),
+  },
 ];
 
 describe('round trips from published constants', () => {
@@ -129,6 +144,18 @@ describe('round trips from published constants', () => {
     expect(r.lines.filter((l) => l.assignment?.branch === 'Q').every((l) => l.assignment?.upperParity === 'f')).toBe(
       true,
     );
+  });
+
+  it('two instruments without σ get their own σ from the scatter (per source)', () => {
+    const lines = (CASES[4] as Case).lines(21);
+    const r = fitLinearLines(N2O, lines);
+    const fine = r.scatter?.find((g) => g.group === 'fine');
+    const coarse = r.scatter?.find((g) => g.group === 'coarse');
+    // True σ 2e-4 and 2e-3 cm⁻¹; a robust estimate from ~25 lines each is good to about ±30 % (MAD efficiency).
+    expect(fine?.sigma).toBeGreaterThan(1.3e-4);
+    expect(fine?.sigma).toBeLessThan(2.8e-4);
+    expect(coarse?.sigma).toBeGreaterThan(1.3e-3);
+    expect(coarse?.sigma).toBeLessThan(2.8e-3);
   });
 
   it('a line pushed 30σ off is rejected, the rest fitted', () => {

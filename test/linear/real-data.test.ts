@@ -27,7 +27,7 @@ describe('real line tables', () => {
     });
     const r = fitLinearLines(parseLinearSpecies('CO2'), lines);
     expect(r.statistics.fitted).toBe(116);
-    const B = (key: string) => r.levels.find((l) => l.key === key)?.B.value ?? Number.NaN;
+    const B = (key: string) => r.levels.find((l) => l.key === key)?.B?.value ?? Number.NaN;
     // Rothman & Young 1981 (read-secondary, RY1981), given to 7–8 digits: tolerance 1e-7 cm⁻¹ (rounding plus the
     // table's own higher-order terms, note §3).
     expect(Math.abs(B('0,0,1|0') - 0.3871414)).toBeLessThan(1e-7);
