@@ -1,5 +1,11 @@
 import { ScienceError } from '../../src/errors.js';
-import { fitLinearLines, type LinearFitResult, type LinearLineInput } from '../../src/linear/fit.js';
+import {
+  fitLinearLines,
+  type LinearFitResult,
+  type LinearLevelResult,
+  type LinearLineInput,
+  type LinearLTypeLevelResult,
+} from '../../src/linear/fit.js';
 import { isLinearSpeciesString, type LinearSpecies, parseLinearSpecies } from '../../src/linear/species.js';
 import type { LinearLevel } from '../../src/linear/types.js';
 import { toWavenumber } from '../../src/units.js';
@@ -179,23 +185,25 @@ function presentLinearFit(
       label: b.label,
       kind: b.kind,
     })),
-    levels: r.levels.map((l) => {
-      const level = { v: l.v, l: l.l, ...(keyRank(l.key) !== undefined ? { r: keyRank(l.key) } : {}) };
-      return {
-        species: s,
-        v: [...l.v],
-        l: l.l,
-        ...(level.r !== undefined ? { rank: level.r } : {}),
-        label: l.label,
-        ...(l.term ? { term: { ...l.term, relativeTo: l.term.relativeTo } } : {}),
-        ...(l.B ? { B: l.B } : {}),
-        ...(l.D ? { D: l.D } : {}),
-        ...(l.H ? { H: l.H } : {}),
-        ...(l.q ? { q: l.q } : {}),
-        ...(l.qJ ? { qJ: l.qJ } : {}),
-        ...(l.parity ? { parity: l.parity } : {}),
-      };
-    }),
+    levels: [...r.levels, ...r.lTypeLevels.map((l): Partial<LinearLevelResult> & LinearLTypeLevelResult => l)].map(
+      (l) => {
+        const level = { v: l.v, l: l.l, ...(keyRank(l.key) !== undefined ? { r: keyRank(l.key) } : {}) };
+        return {
+          species: s,
+          v: [...l.v],
+          l: l.l,
+          ...(level.r !== undefined ? { rank: level.r } : {}),
+          label: l.label,
+          ...(l.term ? { term: { ...l.term, relativeTo: l.term.relativeTo } } : {}),
+          ...(l.B ? { B: l.B } : {}),
+          ...(l.D ? { D: l.D } : {}),
+          ...(l.H ? { H: l.H } : {}),
+          ...(l.q ? { q: l.q } : {}),
+          ...(l.qJ ? { qJ: l.qJ } : {}),
+          ...(l.parity ? { parity: l.parity } : {}),
+        };
+      },
+    ),
     equilibrium: [],
     parameters: r.parameters.map((p) => ({
       name: p.name,

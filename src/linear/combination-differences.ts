@@ -51,7 +51,7 @@ export function linearCombinationDifferences(
   input: readonly { readonly position: number; readonly uncertainty?: number }[],
   transitions: ReadonlyMap<number, LinearTransition>,
   rejected: ReadonlyMap<number, string>,
-  levels: readonly { readonly key: string; readonly B?: Quantity; readonly D?: Quantity }[],
+  levels: readonly { readonly key: string; readonly B: Quantity; readonly D?: Quantity }[],
 ): LinearCombinationDifferences[] {
   const bands = new Map<string, { r: Map<number, number>; p: Map<number, number>; t: LinearTransition }>();
   for (const [i, t] of transitions) {

@@ -348,8 +348,7 @@ export interface LinearLevelResult {
   readonly label: string;
   /** G_v − G_ref of its connected set, absent for the reference. */
   readonly term?: Quantity & { readonly relativeTo: string };
-  /** Absent for a level seen only through l-type transitions. */
-  readonly B?: Quantity;
+  readonly B: Quantity;
   readonly D?: Quantity;
   readonly H?: Quantity;
   readonly q?: Quantity;
@@ -357,6 +356,9 @@ export interface LinearLevelResult {
   /** For an l ≥ 1 level seen in one parity component only: that component (B is then its effective B). */
   readonly parity?: Parity;
 }
+
+/** A level seen only through l-type transitions (Q lines e↔f within it): q and q_J, no rotational constants. */
+export type LinearLTypeLevelResult = Omit<LinearLevelResult, 'B' | 'D' | 'H' | 'term' | 'parity'>;
 
 export interface LinearBandResult {
   readonly upper: LinearLevel;
@@ -374,6 +376,8 @@ export interface LinearFitResult {
   readonly convention: string;
   readonly lines: readonly LinearLineOutcome[];
   readonly levels: readonly LinearLevelResult[];
+  /** Levels reached only by l-type transitions (empty in the usual case). */
+  readonly lTypeLevels: readonly LinearLTypeLevelResult[];
   readonly bands: readonly LinearBandResult[];
   readonly parameters: readonly (Quantity & { readonly name: string; readonly key: string })[];
   readonly covariance: { readonly parameters: readonly string[]; readonly matrix: readonly (readonly number[])[] };
@@ -589,39 +593,55 @@ function reportLinearFit(
     });
   }
   const constrained = new Set(constraints.map((c) => c.key));
-  const levels: LinearLevelResult[] = [...selection.infos.values()].map((info) => {
-    const k = info.key;
-    const maybe = (kind: Kind) => (constrained.has(`${s}|${kind}|${k}`) ? undefined : q(kind, k));
-    const term = q('T', k);
-    const D = maybe('D');
-    const H = maybe('H');
-    const qv = q('q', k);
-    const qJ = q('qJ', k);
-    const oneParity = info.level.l >= 1 && info.parities.size === 1 ? [...info.parities][0] : undefined;
-    if (oneParity) {
-      warnings.push({
-        code: 'L_DOUBLING_UNDETERMINED',
-        message: `level ${levelLabel(info.level)} is seen only in its ${oneParity} component: q is not determined and B is that component's effective B`,
-      });
-    }
-    return {
-      key: k,
-      v: info.level.v,
-      l: info.level.l,
-      label: levelLabel(info.level),
-      ...(term ? { term: { ...term, relativeTo: info.reference } } : {}),
-      ...(q('B', k) ? { B: q('B', k) as Quantity } : {}),
-      ...(D ? { D } : {}),
-      ...(H ? { H } : {}),
-      ...(qv ? { q: qv } : {}),
-      ...(qJ ? { qJ } : {}),
-      ...(oneParity ? { parity: oneParity } : {}),
-    };
-  });
+  const lTypeLevels: LinearLTypeLevelResult[] = [...selection.infos.values()]
+    .filter((info) => !info.rotational)
+    .map((info) => {
+      const qv = q('q', info.key);
+      const qJ = q('qJ', info.key);
+      return {
+        key: info.key,
+        v: info.level.v,
+        l: info.level.l,
+        label: levelLabel(info.level),
+        ...(qv ? { q: qv } : {}),
+        ...(qJ ? { qJ } : {}),
+      };
+    });
+  const levels: LinearLevelResult[] = [...selection.infos.values()]
+    .filter((info) => info.rotational)
+    .map((info) => {
+      const k = info.key;
+      const maybe = (kind: Kind) => (constrained.has(`${s}|${kind}|${k}`) ? undefined : q(kind, k));
+      const term = q('T', k);
+      const D = maybe('D');
+      const H = maybe('H');
+      const qv = q('q', k);
+      const qJ = q('qJ', k);
+      const oneParity = info.level.l >= 1 && info.parities.size === 1 ? [...info.parities][0] : undefined;
+      if (oneParity) {
+        warnings.push({
+          code: 'L_DOUBLING_UNDETERMINED',
+          message: `level ${levelLabel(info.level)} is seen only in its ${oneParity} component: q is not determined and B is that component's effective B`,
+        });
+      }
+      return {
+        key: k,
+        v: info.level.v,
+        l: info.level.l,
+        label: levelLabel(info.level),
+        ...(term ? { term: { ...term, relativeTo: info.reference } } : {}),
+        B: q('B', k) as Quantity,
+        ...(D ? { D } : {}),
+        ...(H ? { H } : {}),
+        ...(qv ? { q: qv } : {}),
+        ...(qJ ? { qJ } : {}),
+        ...(oneParity ? { parity: oneParity } : {}),
+      };
+    });
   for (const l of levels) {
     // |H| ~ D²/B (common practice; 0.2–0.7 for the molecules of the reference note, §1). Far beyond it, the term
     // test kept H for structure the model lacks (perturbations, pressure shifts in certified centres, a wrong J).
-    if (l.H && l.D && l.B && l.D.value !== 0) {
+    if (l.H && l.D && l.D.value !== 0) {
       const scale = (l.D.value * l.D.value) / Math.abs(l.B.value);
       const ratio = Math.abs(l.H.value) / scale;
       if (ratio > IMPLAUSIBLE_H_RATIO) {
@@ -655,6 +675,7 @@ function reportLinearFit(
     convention: LINEAR_TERM_CONVENTION,
     lines,
     levels,
+    lTypeLevels,
     bands,
     parameters: params.map((x, i) => ({
       name: x.name,
