@@ -1,3 +1,4 @@
+import { spawnSync } from 'node:child_process';
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { main } from '../../cli/main.js';
@@ -226,5 +227,49 @@ describe('a body of a media type the route does not take', () => {
       expect(r.statusCode, path).toBe(415);
       expect(r.json().detail.includes('text/csv'), path).toBe(takesCsv);
     }
+  });
+});
+
+describe("the README's curl examples, run as written", () => {
+  const readme = readFileSync(new URL('../../README.md', import.meta.url), 'utf8');
+  const root = new URL('../../', import.meta.url);
+  const examples = [
+    ...readme.matchAll(
+      /curl -s -X POST '?http:\/\/127\.0\.0\.1:8080(\/v1\/[a-z/]+)'? [^\n]*\\\n\s+(?:-H '[^']*' \\\n\s+)?--data @(examples\/[\w.-]+\.json) \| jq '([^']+)'/g,
+    ),
+  ].map((m) => ({ path: m[1] as string, file: m[2] as string, filter: m[3] as string }));
+  const jq = spawnSync('jq', ['--version']);
+
+  it('finds every `… | jq` example of the README', () => {
+    expect(examples.length).toBe(readme.match(/--data @examples\/[\w.-]+\.json \| jq/g)?.length);
+    expect(examples.length).toBeGreaterThanOrEqual(3);
+  });
+  it.skipIf(jq.status !== 0)(
+    "each jq filter runs on the service's answer and prints something (jq 1.6 too)",
+    async () => {
+      for (const { path, file, filter } of examples) {
+        const r = await app().inject({
+          method: 'POST',
+          url: path,
+          headers: { 'content-type': 'application/json' },
+          payload: readFileSync(new URL(file, root)),
+        });
+        expect(r.statusCode, file).toBe(200);
+        const out = spawnSync('jq', ['-e', filter], { input: r.body, encoding: 'utf8' });
+        expect(out.stderr, `${file}: jq '${filter}'`).toBe('');
+        expect(out.status, `${file}: jq '${filter}'`).toBe(0);
+        expect(out.stdout.length).toBeGreaterThan(10);
+      }
+    },
+  );
+  it('runs the command line through npx or npm, as a fresh clone has no `branchwise` on its PATH', () => {
+    let inCode = false;
+    const codeLines: string[] = [];
+    for (const line of readme.split('\n')) {
+      if (line.startsWith('```')) inCode = !inCode;
+      else if (inCode) codeLines.push(line);
+    }
+    expect(codeLines).toContain('npx branchwise --version');
+    expect(codeLines.filter((l) => /^branchwise /.test(l))).toEqual([]);
   });
 });
