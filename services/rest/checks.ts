@@ -29,8 +29,7 @@ export const checkRoutes =
         },
       },
       async (req, reply) => {
-        const raw = await answerRawBody(app, config, 'check', req, reply);
-        if (raw) return raw;
+        if (await answerRawBody(app, config, 'check', req, reply)) return reply;
         const r = await timed(app, 'check', jobSize(req.body), () =>
           app.pool.run<CheckResponse>({ kind: 'check', body: req.body }, jobSize(req.body), workOptions(req, reply)),
         );

@@ -29,8 +29,7 @@ export const fitRoutes =
         },
       },
       async (req, reply) => {
-        const raw = await answerRawBody(app, config, 'fit', req, reply);
-        if (raw) return raw;
+        if (await answerRawBody(app, config, 'fit', req, reply)) return reply;
         const r = await timed(app, 'fit', jobSize(req.body), () =>
           app.pool.run<FitResponse>({ kind: 'fit', body: req.body }, jobSize(req.body), workOptions(req, reply)),
         );

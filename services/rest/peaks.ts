@@ -25,8 +25,7 @@ export const peakRoutes =
         },
       },
       async (req, reply) => {
-        const raw = await answerRawBody(app, config, 'peaks', req, reply);
-        if (raw) return raw;
+        if (await answerRawBody(app, config, 'peaks', req, reply)) return reply;
         const r = await timed(app, 'peaks', jobSize(req.body), () =>
           app.pool.run<PeaksResponse>({ kind: 'peaks', body: req.body }, jobSize(req.body), workOptions(req, reply)),
         );

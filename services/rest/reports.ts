@@ -31,8 +31,7 @@ export const reportRoutes =
         },
       },
       async (req, reply) => {
-        const raw = await answerRawBody(app, config, 'report', req, reply);
-        if (raw) return raw;
+        if (await answerRawBody(app, config, 'report', req, reply)) return reply;
         const html = await timed(app, 'report', jobSize(req.body), () =>
           app.pool.run<string>(
             { kind: 'report', body: req.body, provenance: provenanceOf(req) },

@@ -30,7 +30,11 @@ export function workOptions(req: FastifyRequest, reply: FastifyReply): RunOption
 
 /**
  * Answer a large body (left unparsed by the body parser) from a worker that parses, validates, runs and serialises
- * it; undefined when the body was parsed here as usual.
+ * it: true when it was answered (the handler then returns the reply), false when the body was parsed here as usual.
+ * The answer arrives as UTF-8 bytes moved out of the worker, and is written as they are: neither decoding a string
+ * of tens of MB from the worker's message nor encoding it for the socket happens on the event loop.
+ * (A boolean, not the reply: a FastifyReply is a thenable, and awaiting it waits for the response to finish and
+ * yields undefined.)
  */
 export async function answerRawBody(
   app: FastifyInstance,
@@ -38,8 +42,8 @@ export async function answerRawBody(
   route: RawJob['route'],
   req: FastifyRequest,
   reply: FastifyReply,
-): Promise<FastifyReply | undefined> {
-  if (!(req.body instanceof RawBody)) return undefined;
+): Promise<boolean> {
+  if (!(req.body instanceof RawBody)) return false;
   const raw = req.body;
   const job: RawJob = {
     kind: 'raw',
@@ -55,5 +59,6 @@ export async function answerRawBody(
     app.pool.run<RawAnswer>(job, Math.max(raw.size, config.workerThreshold), workOptions(req, reply)),
   );
   if (a.verdict) app.metrics.verdicts.labels(a.verdict).inc();
-  return reply.type(a.type).send(a.body);
+  reply.type(a.type).send(Buffer.from(a.body.buffer, a.body.byteOffset, a.body.byteLength));
+  return true;
 }

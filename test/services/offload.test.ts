@@ -115,4 +115,29 @@ describe('large bodies off the event loop', () => {
     expect(again.statusCode).toBe(200);
     await hurried.close();
   });
+
+  it('a large body is run once: the handler ends with the answer of the worker (no second, inline run after it)', async () => {
+    // Regression: the handler awaited the reply (a thenable, which resolves to undefined once the response is
+    // written) and went on to run the use case again, inline, on the unparsed body.
+    const a = await buildApp();
+    const kinds: string[] = [];
+    const run = a.pool.run.bind(a.pool);
+    a.pool.run = (job, size, options) => {
+      kinds.push(job.kind);
+      return run(job, size, options);
+    };
+    for (const url of ['/v1/fits', '/v1/checks', '/v1/reports']) {
+      const r = await a.inject({
+        method: 'POST',
+        url,
+        payload: JSON.stringify(large),
+        headers: { 'content-type': 'application/json' },
+      });
+      expect(r.statusCode, url).toBe(200);
+      expect(Number(r.headers['content-length']), url).toBe(r.rawPayload.length);
+    }
+    await new Promise((r) => setTimeout(r, 100));
+    expect(kinds).toEqual(['raw', 'raw', 'raw']);
+    await a.close();
+  });
 });
