@@ -8,7 +8,7 @@
  *  - this thread's CPU time across each stall (process.cpuUsage counts every thread, so the worker's is subtracted
  *    by sampling the process total and the worker's own CPU clock is not available: a stall with little CPU on the
  *    whole process is the scheduler, not the loop's own work).
- * `npm run build && npx tsx bench/loop-pause.ts [lines]`. Prints a timeline; asserts nothing; bounded in time.
+ * `npm run build && npx tsx bench/loop-pause.ts [lines] [concurrent clients]`. Prints a timeline; asserts nothing; bounded in time.
  */
 import { execFile } from 'node:child_process';
 import { writeFileSync } from 'node:fs';
@@ -24,6 +24,7 @@ const { loadConfig } = (await import(
 )) as typeof import('../services/config.js');
 
 const n = Number(process.argv[2] ?? 100_000);
+const clients = Number(process.argv[3] ?? 1);
 const app = await buildApp({ config: loadConfig({ PORT: '0' }) });
 
 const t0 = performance.now();
@@ -90,26 +91,28 @@ console.log(
 await new Promise((r) => setTimeout(r, 500));
 h.enable();
 mark('client starts');
-const out = await new Promise<string>((resolve) =>
-  execFile(
-    'curl',
-    [
-      '-s',
-      '-o',
-      '/dev/null',
-      '-w',
-      '%{http_code} %{time_total}',
-      '-H',
-      'content-type: application/json',
-      '--data-binary',
-      `@${file}`,
-      `http://127.0.0.1:${port}/v1/fits`,
-    ],
-    { timeout: 120_000 },
-    (_e, stdout) => resolve(stdout),
-  ),
-);
-mark(`client done: ${out}`);
+const curl = () =>
+  new Promise<string>((resolve) =>
+    execFile(
+      'curl',
+      [
+        '-s',
+        '-o',
+        '/dev/null',
+        '-w',
+        '%{http_code} %{time_total}',
+        '-H',
+        'content-type: application/json',
+        '--data-binary',
+        `@${file}`,
+        `http://127.0.0.1:${port}/v1/fits`,
+      ],
+      { timeout: 120_000 },
+      (_e, stdout) => resolve(stdout),
+    ),
+  );
+const out = await Promise.all(Array.from({ length: clients }, curl));
+mark(`clients done: ${out.join(', ')}`);
 h.disable();
 clearInterval(tick);
 events.sort((a, b) => Number(a.slice(0, 6)) - Number(b.slice(0, 6)));

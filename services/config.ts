@@ -60,7 +60,7 @@ export interface Config {
    * @see https://fastify.dev/docs/latest/Reference/Server/#trustproxy
    */
   readonly trustProxy: boolean | number | string[];
-  /** Time given to in-flight work after SIGTERM before the process exits, in ms. Default 25 000 (below k8s terminationGracePeriodSeconds 35 and compose stop_grace_period 35 s). SHUTDOWN_GRACE_MS. */
+  /** Time given to in-flight work after SIGTERM before the process exits (status 1), in ms; 0: none. A second signal exits at once. Default 25 000 (below k8s terminationGracePeriodSeconds 35 and compose stop_grace_period 35 s). SHUTDOWN_GRACE_MS. */
   readonly shutdownGraceMs: number;
   /** Whether /metrics shows the Node.js version (nodejs_version_info). Default false. METRICS_RUNTIME_VERSION. */
   readonly metricsRuntimeVersion: boolean;

@@ -4,7 +4,8 @@ import type { FastifyInstance } from 'fastify';
  * Graceful shutdown: /readyz answers 503 at once (load balancers stop sending work), batches end at their next
  * line with a closing record that says where to resume, new requests on open connections get 503, in-flight
  * work finishes; then the process exits. If that takes longer than the grace period (SHUTDOWN_GRACE_MS, kept
- * below the orchestrator's own: terminationGracePeriodSeconds, stop_grace_period), the exit is forced.
+ * below the orchestrator's own: terminationGracePeriodSeconds, stop_grace_period; 0: no wait), the exit is forced,
+ * with status 1. A second signal forces it at once. No other timer bounds the shutdown.
  */
 export function shutdownOnSignals(
   app: FastifyInstance,
@@ -13,7 +14,11 @@ export function shutdownOnSignals(
 ): (signal: string) => Promise<void> {
   let closing = false;
   return async (signal: string) => {
-    if (closing) return exit(1); // a second signal forces the exit
+    if (closing) {
+      // A second signal (an operator's second Ctrl-C, an orchestrator giving up) forces the exit at once.
+      app.log.warn({ signal }, 'second signal during shutdown; exiting now');
+      return exit(1);
+    }
     closing = true;
     app.appState.ready = false;
     app.log.info({ signal, graceMs }, 'shutting down');

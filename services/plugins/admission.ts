@@ -18,7 +18,7 @@ export const BYTES_PER_LINE = 100;
  * Admission before the body is read: a request whose Content-Length says it is large (at least WORKER_THRESHOLD
  * lines at about 100 bytes a line) reserves its estimated lines of MAX_ACTIVE_LINES, or is answered 503 +
  * Retry-After without its body being parsed. The reservation is given back when the answer is written or the
- * client goes away. Small requests and NDJSON batches (admitted line by line by the pool) pass.
+ * client goes away. Small requests, NDJSON batches and GraphQL (admitted per computation by the pool) pass.
  */
 export function admitBySize(scope: FastifyInstance, config: Config, pool: Pool): void {
   if (pool.threads === 0) return;
@@ -27,6 +27,9 @@ export function admitBySize(scope: FastifyInstance, config: Config, pool: Pool):
     const lines = Math.ceil(length / BYTES_PER_LINE);
     if (!(lines >= config.workerThreshold)) return;
     if (String(request.headers['content-type'] ?? '').startsWith('application/x-ndjson')) return;
+    // GraphQL bodies are bounded by SMALL_BODY_LIMIT, and each computation in them reserves its own size in the
+    // pool: reserving the body's estimate here as well counted the same lines twice.
+    if (request.routeOptions.url === '/graphql') return;
     if (!pool.reserve(lines)) {
       reply.header('retry-after', String(RETRY_AFTER_S));
       return sendProblem(

@@ -1,5 +1,6 @@
 import { type ChildProcess, execFileSync, spawn, spawnSync } from 'node:child_process';
 import { existsSync, mkdtempSync, readdirSync, statSync, writeFileSync } from 'node:fs';
+import { connect } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -38,10 +39,11 @@ interface Running {
   exit: Promise<number | null>;
 }
 
-function start(): Promise<Running> {
+/** The built server with the defaults of `npm start`, plus an API key and whatever `env` sets. */
+function start(env: Record<string, string> = {}): Promise<Running> {
   const child = spawn(process.execPath, [SERVER], {
     cwd: ROOT,
-    env: { ...process.env, HOST: '127.0.0.1', PORT: '0', LOG_LEVEL: 'info', API_KEYS: KEY },
+    env: { ...process.env, HOST: '127.0.0.1', PORT: '0', LOG_LEVEL: 'info', API_KEYS: KEY, ...env },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
   let out = '';
@@ -151,6 +153,88 @@ describe('the built server (node dist/services/server.js, as npm start)', () => 
     expect(code).toBe(0);
     expect(server.log()).toMatch(/shutting down/);
   }, 30_000);
+});
+
+/**
+ * A client that sends its headers and the start of a body, then stalls: the request stays in flight. Returns what
+ * the server wrote back, once the server closes the connection (or after `waitMs`, whichever comes first).
+ */
+const MID_BODY = `POST /v1/fits HTTP/1.1\r\nHost: h\r\nAuthorization: Bearer ${KEY}\r\nContent-Type: application/json\r\nContent-Length: 1000\r\n\r\n{"species":"HCl","lines":[`;
+const MID_HEADERS = `POST /v1/fits HTTP/1.1\r\nHost: h\r\nAuthorization: Bearer ${KEY}\r\nContent-Ty`;
+
+function stalledClient(base: string, waitMs: number, sent = MID_BODY): Promise<string> {
+  const { hostname, port } = new URL(base);
+  return new Promise((resolve) => {
+    let got = '';
+    const socket = connect(Number(port), hostname);
+    const done = () => {
+      clearTimeout(timer);
+      socket.destroy();
+      resolve(got);
+    };
+    const timer = setTimeout(done, waitMs);
+    socket.on('data', (d) => {
+      got += String(d);
+    });
+    socket.on('close', done);
+    socket.on('error', done);
+    socket.write(sent);
+  });
+}
+
+describe('the built server: slow clients and signals (npm start defaults, one timing setting each)', () => {
+  beforeAll(() => buildIfStale(), 240_000);
+
+  // Regression (measured on Node 20 before the fix): a client that stalled mid-body got no answer in 20 s, its
+  // request and connection held open indefinitely; Node's requestTimeout covered only late headers.
+  it.each([
+    ['mid-body', MID_BODY],
+    ['mid-headers', MID_HEADERS],
+  ])(
+    'a client that stalls %s gets 408 problem+json and a closed connection (REQUEST_TIMEOUT_MS=1500)',
+    async (_, sent) => {
+      const server = await start({ REQUEST_TIMEOUT_MS: '1500' });
+      try {
+        // Bounded: the answer is due at about 1.5–1.65 s; 20 s is the cap (the client resolves when the server closes).
+        const answer = await stalledClient(server.base, 20_000, sent);
+        expect(answer).toMatch(/^HTTP\/1\.1 408 /);
+        expect(answer).toMatch(/content-type: application\/problem\+json/i);
+        expect(answer).toMatch(/connection: close/i);
+        expect(answer).toMatch(/"code":"REQUEST_TIMEOUT"/);
+        expect((await fetch(`${server.base}/healthz`)).status).toBe(200);
+      } finally {
+        server.child.kill('SIGKILL');
+      }
+    },
+    40_000,
+  );
+
+  it('SHUTDOWN_GRACE_MS bounds the wait for a request that never finishes: exit status 1 with the reason logged', async () => {
+    const server = await start({ SHUTDOWN_GRACE_MS: '1000' });
+    const stalled = stalledClient(server.base, 20_000);
+    await new Promise((r) => setTimeout(r, 300));
+    server.child.kill('SIGTERM');
+    const code = await Promise.race([server.exit, new Promise((r) => setTimeout(() => r('no exit'), 20_000))]);
+    await stalled;
+    expect(code).toBe(1);
+    expect(server.log()).toMatch(/"graceMs":1000,"msg":"shutting down"/);
+    expect(server.log()).toMatch(/did not finish within the grace period/);
+  }, 40_000);
+
+  it('a second signal during a long grace period exits at once (status 1), not when the grace period ends', async () => {
+    const server = await start({ SHUTDOWN_GRACE_MS: '600000' });
+    const stalled = stalledClient(server.base, 20_000);
+    await new Promise((r) => setTimeout(r, 300));
+    server.child.kill('SIGTERM');
+    await new Promise((r) => setTimeout(r, 300));
+    server.child.kill('SIGTERM');
+    // 20 s stands for "at once" against a grace period of 10 minutes (and the 25 s default).
+    const code = await Promise.race([server.exit, new Promise((r) => setTimeout(() => r('no exit'), 20_000))]);
+    await stalled;
+    expect(code).toBe(1);
+    expect(server.log()).toMatch(/second signal during shutdown; exiting now/);
+    expect(server.log()).not.toMatch(/did not finish within the grace period/);
+  }, 40_000);
 });
 
 describe('the built CLI (node dist/cli/branchwise.js)', () => {

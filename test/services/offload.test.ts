@@ -140,4 +140,28 @@ describe('large bodies off the event loop', () => {
     expect(kinds).toEqual(['raw', 'raw', 'raw']);
     await a.close();
   });
+
+  it('a GraphQL fit of more than 200 kB reserves its lines once: one that fits MAX_ACTIVE_LINES is answered', async () => {
+    // Regression: admission reserved the body's estimate (bytes / 100) and the pool the fit's lines again, so a
+    // 2 600-line fit under a 3 000-line budget was refused by its own first reservation.
+    const a = await buildApp({ config: { ...DEFAULT_CONFIG, maxActiveLines: 3000 } });
+    const lines = Array.from({ length: 30 }, () => small.lines)
+      .flat()
+      .slice(0, 2600);
+    const payload = JSON.stringify({
+      query: 'query F($input: FitInput!) { fit(input: $input) { statistics { lines } } }',
+      variables: { input: { species: 'HCl', lines } },
+    });
+    expect(payload.length).toBeGreaterThan(DEFAULT_CONFIG.workerThreshold * 100);
+    const r = await a.inject({
+      method: 'POST',
+      url: '/graphql',
+      payload,
+      headers: { 'content-type': 'application/json' },
+    });
+    expect(r.json().errors).toBeUndefined();
+    expect(r.json().data.fit.statistics.lines).toBeGreaterThan(2000);
+    expect(a.pool.activeLines).toBe(0);
+    await a.close();
+  });
 });
