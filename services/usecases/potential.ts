@@ -1,5 +1,5 @@
 import { ScienceError } from '../../src/errors.js';
-import { dunhamFromConstants } from '../../src/potential/constants-input.js';
+import { dunhamFromConstants, printedDigitsUncertainty } from '../../src/potential/constants-input.js';
 import { type DunhamCoefficient, potentialCurves } from '../../src/potential/potential-curve.js';
 import type { ConstantsInput, PredictionConstant } from '../../src/qa/predictions.js';
 import { constantsFor } from '../../src/species/library.js';
@@ -66,15 +66,18 @@ function fromConstants(req: PotentialRequest): PotentialSource {
         { species: species.formula },
       );
     }
-    const values: Partial<Record<PredictionConstant, { value: number }>> = {};
+    // The library's tables print no uncertainties; each value carries at least the rounding of its last digit.
+    const values: Partial<Record<PredictionConstant, { value: number; uncertainty: number }>> = {};
     for (const [name, c] of Object.entries(entry.constants)) {
-      if (c && c.unit === 'cm-1') values[name as PredictionConstant] = { value: c.value };
+      if (c && c.unit === 'cm-1')
+        values[name as PredictionConstant] = { value: c.value, uncertainty: printedDigitsUncertainty(c.value) };
     }
     input = { values };
     source = 'library';
     warnings.push({
       code: 'POTENTIAL_NO_COVARIANCE',
-      message: 'library constants carry no covariance here: the turning points are given without uncertainty',
+      message:
+        'the library tabulates its constants without uncertainties: each is given the rounding uncertainty of its last printed digit (half a unit, uniform: u = 10^-d/√12), uncorrelated; the uncertainties of the turning points are lower bounds',
     });
   }
   const d = dunhamFromConstants(input);

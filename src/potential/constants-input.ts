@@ -60,3 +60,18 @@ export function dunhamFromConstants(input: ConstantsInput): {
   }
   return { coefficients, covariance, names };
 }
+
+/**
+ * The standard uncertainty a tabulated value carries from its printed digits alone: a value printed to d decimals
+ * lies within half a unit of its last digit, uniformly (GUM, JCGM 100:2008, F.2.2.1: u = δ/√12 for a resolution
+ * δ = 10^−d). The digits are read from the shortest decimal form of the number, so a trailing zero that was printed
+ * is not seen and δ comes out ten times larger (the conservative side). A lower bound of the value's uncertainty:
+ * it says nothing of how well the table's authors determined the constant.
+ */
+export function printedDigitsUncertainty(value: number): number {
+  if (!Number.isFinite(value) || value === 0) return 0;
+  const text = Math.abs(value).toExponential(); // shortest round-trip digits, e.g. "2.9909463e+3"
+  const [mantissa, exponent] = text.split('e') as [string, string];
+  const decimals = (mantissa.split('.')[1] ?? '').length - Number(exponent);
+  return 10 ** -decimals / Math.sqrt(12);
+}

@@ -71,6 +71,16 @@ describe('POST /v1/potentials', () => {
     expect(j.verification.worstIntervalError).toBeLessThan(0.01);
     expect(j.verification.worstRotationalRelativeError).toBeLessThan(1e-4);
     expect(j.warnings.map((w: { code: string }) => w.code)).toContain('POTENTIAL_RANGE_UNKNOWN');
+    // The library prints no uncertainties: the rounding of each last digit is propagated, and the warning says so.
+    for (const l of j.levels as Level[]) {
+      expect(l.rMin.uncertainty).toBeGreaterThan(0);
+      expect(l.rMax.uncertainty).toBeGreaterThan(0);
+      expect(l.energy.uncertainty).toBeGreaterThan(0);
+    }
+    expect(j.morse.D_e.uncertainty).toBeGreaterThan(0);
+    expect(j.warnings.find((w: { code: string }) => w.code === 'POTENTIAL_NO_COVARIANCE').message).toMatch(
+      /last printed digit/,
+    );
     expect(j.notice).toMatch(/certifies nothing/);
     expect(j.software.name).toBeTruthy();
     expect(j.input.sha256).toMatch(/^[0-9a-f]{64}$/);
