@@ -74,6 +74,10 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
     genReqId: () => randomUUID(),
     ajv: { customOptions: { strict: false } },
     requestTimeout: config.requestTimeoutMs,
+    // A request that reached the server on an open connection while it closes is served (within the grace period),
+    // not refused with fastify's bare 503: behind nginx that 503 went to the client (docker/loopback-check.sh, 1 in
+    // ~300 requests when an instance was stopped). New connections are refused once closing; see the onSend hook.
+    return503OnClosing: false,
     // Node checks the request timeout every connectionsCheckingInterval (30 s by default): a tenth of the timeout
     // keeps the 408 within REQUEST_TIMEOUT_MS + 10 % instead of up to 30 s late.
     ...(config.requestTimeoutMs > 0
@@ -116,6 +120,10 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
   });
   app.addHook('onSend', async (request, reply) => {
     reply.header('x-request-id', request.id);
+    // Shutting down: no keep-alive. A proxy would otherwise send its next request on this connection and get the
+    // 503 fastify gives requests that reach a closing server; a new connection is refused instead, which nginx
+    // retries on another replica (proxy_next_upstream error). Measured with docker/loopback-check.sh.
+    if (!app.appState.ready) reply.header('connection', 'close');
   });
 
   parseBodies(app, config);

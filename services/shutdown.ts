@@ -2,7 +2,8 @@ import type { FastifyInstance } from 'fastify';
 
 /**
  * Graceful shutdown: /readyz answers 503 at once (load balancers stop sending work), batches end at their next
- * line with a closing record that says where to resume, new requests on open connections get 503, in-flight
+ * line with a closing record that says where to resume, requests already on open connections are
+ * served and their connections closed (no keep-alive), new connections are refused, in-flight
  * work finishes; then the process exits. If that takes longer than the grace period (SHUTDOWN_GRACE_MS, kept
  * below the orchestrator's own: terminationGracePeriodSeconds, stop_grace_period; 0: no wait), the exit is forced,
  * with status 1. A second signal forces it at once. No other timer bounds the shutdown.

@@ -57,7 +57,10 @@ describe('graceful shutdown', () => {
     await new Promise((r) => setImmediate(r));
     const closing = shutdown('SIGTERM');
     expect(app.appState.ready).toBe(false);
-    expect((await inFlight).statusCode).toBe(200);
+    const answered = await inFlight;
+    expect(answered.statusCode).toBe(200);
+    // No keep-alive once closing: a proxy must not send its next request on this connection (it would get a 503).
+    expect(answered.headers.connection).toBe('close');
     await closing;
     expect(exits).toEqual([0]);
   });
