@@ -33,6 +33,11 @@ export interface Pool {
   readonly activeLines: number;
   /** Reserve `lines` of the admission budget (false when it would overflow); give them back with release. */
   reserve(lines: number): boolean;
+  /**
+   * Reserve `extra` lines more for a request that already holds `held`: false when that would overflow the budget
+   * while other work holds part of it (alone, a request may always grow).
+   */
+  reserveMore(held: number, extra: number): boolean;
   release(lines: number): void;
   /**
    * Start the worker threads and run a tiny job in each, so that the first large request does not pay for the
@@ -41,7 +46,7 @@ export interface Pool {
   warm(): Promise<void>;
 }
 
-const overloaded = (detail: string) =>
+export const overloaded = (detail: string): HttpProblem =>
   new HttpProblem('OVERLOADED', 503, 'Service overloaded', `${detail}; retry in ${RETRY_AFTER_S} s`, {
     'retry-after': String(RETRY_AFTER_S),
   });
@@ -66,12 +71,18 @@ export function createPool(config: Config): Pool {
     activeLines += lines;
     return true;
   };
+  const reserveMore = (held: number, extra: number) => {
+    if (activeLines - held > 0 && activeLines + extra > config.maxActiveLines) return false;
+    activeLines += extra;
+    return true;
+  };
   const release = (lines: number) => {
     activeLines -= lines;
   };
   const unwrap = <T>(r: JobResult): T => {
     if (r.ok) return r.value as T;
     if ('nonFinite' in r) throw new NonFiniteResult(r.nonFinite.quantity, r.nonFinite.value);
+    if ('budget' in r) throw new NeedsBudget(r.budget);
     if ('validation' in r) {
       const errors = r.validation;
       throw new HttpProblem(
@@ -97,6 +108,7 @@ export function createPool(config: Config): Pool {
       return activeLines;
     },
     reserve,
+    reserveMore,
     release,
     async warm() {
       if (!piscina) return;
@@ -141,7 +153,15 @@ export function createPool(config: Config): Pool {
   };
 }
 
-/** How big a request is, in lines (a spectrum counts a hundredth of its points). */
-export function jobSize(body: { lines?: readonly unknown[]; spectrum?: { x: readonly unknown[] } }): number {
-  return (body.lines?.length ?? 0) + Math.ceil((body.spectrum?.x.length ?? 0) / 100);
+export { jobSize } from './job-size.js';
+
+/**
+ * A large body turned out bigger than the lines reserved for it (its Content-Length suggested fewer: a compact
+ * list of bare positions is ~20 bytes a line, not the ~100 assumed): the worker stops after parsing and says how
+ * many; the caller reserves the rest of the budget or refuses, then runs the job again.
+ */
+export class NeedsBudget extends Error {
+  constructor(readonly lines: number) {
+    super(`the body holds ${lines} lines, more than were reserved for it`);
+  }
 }

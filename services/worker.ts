@@ -3,6 +3,7 @@ import { z } from 'zod';
 import { ScienceError } from '../src/errors.js';
 import { prefersCsv, resultCsv, type TableName } from './formats/csv-tables.js';
 import { withDisplay } from './formats/round.js';
+import { jobSize } from './job-size.js';
 import type { Provenance } from './provenance.js';
 import { decodeBody, type Limits } from './raw-body.js';
 import { type CheckRequest, CheckResponseSchema, checkRequestSchema } from './schemas/checks.js';
@@ -36,6 +37,8 @@ export interface RawJob {
   readonly contentType: string;
   readonly query: Record<string, unknown>;
   readonly limits: Limits;
+  /** Lines reserved for this body: a body with over 25 % more stops after parsing and answers { budget: lines }. */
+  readonly reservedLines?: number;
   readonly provenance: Provenance;
   /** The request's Accept header: fits and checks answer CSV when it prefers text/csv (services/formats/). */
   readonly accept?: string;
@@ -53,7 +56,14 @@ export type JobResult =
   | { ok: true; value: unknown }
   | { ok: false; error: { code: string; message: string; details: Record<string, unknown> } }
   | { ok: false; nonFinite: { quantity: string; value: string } }
+  | { ok: false; budget: number }
   | { ok: false; validation: { path: string; message: string }[] };
+
+class NeedsBudget extends Error {
+  constructor(readonly lines: number) {
+    super('more lines than reserved');
+  }
+}
 
 class ValidationFailed extends Error {
   constructor(readonly issues: z.core.$ZodIssue[]) {
@@ -84,6 +94,10 @@ function runRaw(job: RawJob): RawAnswer {
   const parsed = requestSchema(job.route, job.limits.maxLines).safeParse(decodeBody(job, job.limits));
   if (!parsed.success) throw new ValidationFailed(parsed.error.issues);
   const body = parsed.data as FitRequest & { sample?: object };
+  const size = jobSize(body as { lines?: readonly unknown[]; spectrum?: { x: readonly unknown[] } });
+  // 25 % slack: a body of ~80-byte lines runs at once on its estimate; a compact one (bare positions, ~20 bytes a
+  // line) stops here and runs again once its true size is reserved.
+  if (job.reservedLines !== undefined && size > 1.25 * job.reservedLines) throw new NeedsBudget(size);
   if (job.route === 'report')
     return {
       body: utf8(runReport(body as CheckRequest, { provenance: job.provenance })),
@@ -136,6 +150,7 @@ export function runJob(job: Job): JobResult {
     if (e instanceof ScienceError)
       return { ok: false, error: { code: e.code, message: e.message, details: { ...e.details } } };
     if (e instanceof NonFiniteResult) return { ok: false, nonFinite: { quantity: e.quantity, value: e.value } };
+    if (e instanceof NeedsBudget) return { ok: false, budget: e.lines };
     if (e instanceof ValidationFailed)
       return {
         ok: false,

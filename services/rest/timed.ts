@@ -1,6 +1,6 @@
 import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import type { Config } from '../config.js';
-import type { RunOptions } from '../pool.js';
+import { NeedsBudget, overloaded, type RunOptions } from '../pool.js';
 import { provenanceOf } from '../provenance.js';
 import { RawBody } from '../raw-body.js';
 import type { RawAnswer, RawJob } from '../worker.js';
@@ -55,9 +55,33 @@ export async function answerRawBody(
     provenance: provenanceOf(req),
     ...(req.headers.accept ? { accept: req.headers.accept } : {}),
   };
-  const a = await timed(app, route, raw.size, () =>
-    app.pool.run<RawAnswer>(job, Math.max(raw.size, config.workerThreshold), workOptions(req, reply)),
-  );
+  // Admission reserved the Content-Length's estimate (or the pool reserves it now); the worker checks it against
+  // the lines it parses and, when there are more, the rest is reserved before the job runs again.
+  const estimate = req.admittedLines ?? Math.max(raw.size, config.workerThreshold);
+  const run = (reservedLines: number, admitted: boolean) =>
+    timed(app, route, reservedLines, () =>
+      app.pool.run<RawAnswer>({ ...job, reservedLines }, reservedLines, {
+        ...workOptions(req, reply),
+        admitted,
+      }),
+    );
+  let a: RawAnswer;
+  try {
+    a = await run(estimate, req.admittedLines !== undefined);
+  } catch (e) {
+    if (!(e instanceof NeedsBudget)) throw e;
+    const held = req.admittedLines;
+    if (held === undefined) a = await run(e.lines, false);
+    else {
+      const extra = e.lines - held;
+      if (!app.pool.reserveMore(held, extra))
+        throw overloaded(
+          `${app.pool.activeLines} lines are being processed and this request adds ${e.lines}, more than its Content-Length suggested (MAX_ACTIVE_LINES ${config.maxActiveLines})`,
+        );
+      reply.raw.once('close', () => app.pool.release(extra));
+      a = await run(e.lines, true);
+    }
+  }
   if (a.verdict) app.metrics.verdicts.labels(a.verdict).inc();
   reply.type(a.type).send(Buffer.from(a.body.buffer, a.body.byteOffset, a.body.byteLength));
   return true;

@@ -164,4 +164,36 @@ describe('large bodies off the event loop', () => {
     expect(a.pool.activeLines).toBe(0);
     await a.close();
   });
+
+  it('a compact body with more lines than its Content-Length suggests reserves its true line count before it runs', async () => {
+    // Regression: admission estimated ~100 bytes a line and the worker ran whatever the body held, so compact lists
+    // (bare positions are ~20 bytes a line) were admitted several times over MAX_ACTIVE_LINES. Lines of ~65 bytes
+    // (over the 25 % slack the worker allows).
+    const a = await buildApp();
+    const lines = Array.from({ length: 70 }, () => small.lines)
+      .flat()
+      .map((l) => ({ position: Math.round(l.position * 1e4) / 1e4, assignment: l.assignment }));
+    const payload = JSON.stringify({ species: 'HCl', lines });
+    expect(payload.length).toBeGreaterThan(DEFAULT_CONFIG.offloadBytes);
+    expect(1.25 * (payload.length / 100)).toBeLessThan(lines.length);
+    const runs: { reserved?: number; active: number }[] = [];
+    const run = a.pool.run.bind(a.pool);
+    a.pool.run = (job, size, options) => {
+      runs.push({ ...('reservedLines' in job ? { reserved: job.reservedLines } : {}), active: a.pool.activeLines });
+      return run(job, size, options);
+    };
+    const r = await a.inject({
+      method: 'POST',
+      url: '/v1/fits',
+      payload,
+      headers: { 'content-type': 'application/json' },
+    });
+    expect(r.statusCode).toBe(200);
+    expect(runs).toHaveLength(2);
+    expect(runs[0]?.reserved).toBeLessThan(lines.length);
+    expect(runs[1]?.reserved).toBe(lines.length);
+    // While it ran, the budget held all of its lines (the admission estimate plus the rest).
+    expect(runs[1]?.active).toBeGreaterThanOrEqual(lines.length);
+    await a.close();
+  });
 });
