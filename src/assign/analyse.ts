@@ -332,7 +332,7 @@ function decisiveNumbering(free: readonly PeakInput[], species: Isotopologue, ba
   if (!s.decisive) {
     throw new ScienceError(
       'NUMBERING_AMBIGUOUS',
-      `${species.formula} (not in the reference library): no numbering of its band is clearly best, evidence margin ${s.margin.toFixed(1)} where ${MIN_MARGIN} is needed; send intensities, the lines near the band origin, or a few given assignments. Best: ${describeEvidence(chosen)}. Next: ${runnerUp ? describeEvidence(runnerUp) : '–'}`,
+      `${species.formula} (not in the reference library): no numbering of its band is clearly best, ${s.fitsUncertainties ? '' : `the best fits its lines at χ²/ν = ${s.reducedChiSquare.toPrecision(3)}, far beyond their uncertainties (its progression holds wrong lines), `}${s.ownEvidence ? '' : 'the best fails a test of its own beyond 3σ (Δ₂F″ intercept, Kratzer, or a line at its origin), '}evidence margin ${s.margin.toFixed(1)} where ${MIN_MARGIN} is needed; send intensities, the lines near the band origin, or a few given assignments. Best: ${describeEvidence(chosen)}. Next: ${runnerUp ? describeEvidence(runnerUp) : '–'}`,
       { species: species.formula, margin: s.margin, numberings: s.evidence.slice(0, 4) },
     );
   }

@@ -3,6 +3,7 @@ import { type FitResult, fitLineListDetailed, type LineInput } from '../fit/fit-
 import { solveLeastSquares } from '../linalg/least-squares.js';
 import type { Band, Branch } from '../models/transitions.js';
 import type { MassValue } from '../species/reduced-mass.js';
+import { chiSquareSurvival } from '../stats/distributions.js';
 import { median, robustSigma as robustSigmaOf } from '../stats/robust.js';
 import { lowerBound, matchLines, type Prediction } from './match.js';
 
@@ -67,12 +68,24 @@ export interface StructureAssignment {
   readonly evidence: readonly NumberingEvidence[];
   /** Score of the runner-up minus that of the chosen numbering. */
   readonly margin: number;
-  /** True when the margin reaches MIN_MARGIN. */
+  /**
+   * False when every line of the best numbering carries a σ and its fit is improbable for them (χ² tail below
+   * 1e-6): a progression made of the wrong lines, whatever the margin.
+   */
+  readonly fitsUncertainties: boolean;
+  /**
+   * False when one of the best numbering's own tests counts against it beyond 3σ (Δ₂F″ intercept, Kratzer) or a
+   * line lies at its origin: the true numbering was not among those judged, whatever the margin.
+   */
+  readonly ownEvidence: boolean;
+  /** True when the margin reaches MIN_MARGIN and the best numbering passes its own tests. */
   readonly decisive: boolean;
 }
 
 /** Least score margin for a numbering to be reported (χ²-like units: odds of about e^{−9/2} ≈ 1 : 90). */
 export const MIN_MARGIN = 9;
+/** χ² tail probability below which the best numbering's fit is not believed (lines with σ only). */
+const IMPROBABLE_FIT = 1e-6;
 /** Relative 1σ of Kratzer's relation taken as a prior. */
 const KRATZER_SIGMA = 0.05;
 /** Cost of a line lying at a numbering's band origin. */
@@ -193,12 +206,21 @@ export function assignByStructure(
   const best = evidence[0] as Trial & { evidence: NumberingEvidence };
   const runnerUp = evidence[1];
   const margin = runnerUp ? runnerUp.evidence.score - best.evidence.score : Number.POSITIVE_INFINITY;
+  // The best of bad numberings is no numbering: when every line of it carries a σ, its fit must be a probable one.
+  const withSigma = [...best.map.keys()].every((i) => peaks[i]?.uncertainty !== undefined);
+  const fitsUncertainties = !withSigma || chiSquareSurvival(best.chiSquare, best.dof) >= IMPROBABLE_FIT;
+  // And none of its own absolute tests (Δ₂F″ intercept, a line at its origin, Kratzer) may count against it beyond
+  // what chance gives (3σ each): otherwise the true numbering was not among those judged.
+  const parts = best.evidence.parts;
+  const ownEvidence = parts.differences <= MIN_MARGIN && parts.kratzer <= MIN_MARGIN && parts.origin === 0;
   return {
     assigned: best.map,
     reducedChiSquare: best.reducedChiSquare,
     evidence: evidence.slice(0, 6).map((e) => e.evidence),
     margin,
-    decisive: margin >= MIN_MARGIN,
+    fitsUncertainties,
+    ownEvidence,
+    decisive: margin >= MIN_MARGIN && fitsUncertainties && ownEvidence,
   };
 
   function judge(map: Map<number, { branch: Branch; j: number }>, q: number, delta: number): Trial | undefined {
@@ -231,6 +253,7 @@ export function assignByStructure(
         ...(origin !== undefined ? { origin } : {}),
         lineAtOrigin,
         intercept: differenceIntercept(map, peaks),
+        unitSigma: peaks.some((p) => p.uncertainty === undefined) ? (r.scatter?.[0]?.sigma ?? rms) : 1,
         boltzmann: boltzmannResiduals(map, peaks, r),
         kratzer: kratzerRatio(r, band),
       };
@@ -251,7 +274,9 @@ interface Trial {
   reducedChiSquare: number;
   origin?: number;
   lineAtOrigin: boolean;
-  intercept: { value: number; uncertainty: number } | undefined;
+  intercept: { value: number; uncertainty: number; ownScale: number } | undefined;
+  /** The scatter a line without σ has (σ = 1 in the Δ₂F″ weights), or 1 when every line carries one. */
+  unitSigma: number;
   boltzmann: { rss: number; n: number } | undefined;
   kratzer: number | undefined;
 }
@@ -260,9 +285,15 @@ interface Trial {
 function score(trials: readonly Trial[]): (Trial & { evidence: NumberingEvidence })[] {
   const minRed = Math.max(1e-300, Math.min(...trials.map((t) => t.reducedChiSquare)));
   const rssMin = Math.min(...trials.flatMap((t) => (t.boltzmann ? [t.boltzmann.rss / t.boltzmann.n] : [])));
+  // The lines' scale, from the numbering that fits them best (a misaligned one inflates its own).
+  const unit = Math.min(...trials.map((t) => t.unitSigma)) * Math.sqrt(Math.max(1, minRed));
   const out = trials.map((t) => {
     const positions = Math.max(0, t.dof * (t.reducedChiSquare / minRed - 1));
-    const differences = t.intercept ? Math.min(1e6, (t.intercept.value / t.intercept.uncertainty) ** 2) : 0;
+    const intercept = t.intercept && {
+      value: t.intercept.value,
+      uncertainty: t.intercept.uncertainty * Math.max(unit, t.intercept.ownScale),
+    };
+    const differences = intercept ? Math.min(1e6, (intercept.value / intercept.uncertainty) ** 2) : 0;
     const origin = t.lineAtOrigin ? ORIGIN_LINE_COST : 0;
     const intensities =
       t.boltzmann && Number.isFinite(rssMin) && rssMin > 0
@@ -279,7 +310,7 @@ function score(trials: readonly Trial[]): (Trial & { evidence: NumberingEvidence
       ...(t.origin !== undefined ? { origin: t.origin } : {}),
       ...(lower ? { lowerB: lower.B.value } : {}),
       reducedChiSquare: t.reducedChiSquare,
-      ...(t.intercept ? { differenceIntercept: t.intercept } : {}),
+      ...(intercept ? { differenceIntercept: intercept } : {}),
       lineAtOrigin: t.lineAtOrigin,
       ...(t.boltzmann ? { boltzmannScatter: Math.sqrt(t.boltzmann.rss / t.boltzmann.n) } : {}),
       ...(t.kratzer !== undefined ? { kratzerRatio: t.kratzer } : {}),
@@ -347,12 +378,14 @@ function localSpacing(map: ReadonlyMap<number, { branch: Branch; j: number }>, p
 
 /**
  * Δ₂F″(J) = R(J−1) − P(J+1) fitted as a(J+½) + b(J+½)³ + c(J+½)⁵ plus an intercept; the intercept (Δ₂F″ at
- * J = −½) is zero for a right numbering whatever the constants. Weighted by the lines' σ when given.
+ * J = −½) is zero for a right numbering whatever the constants — and for a numbering moved as a whole, whose pairs
+ * are again R(J−1), P(J+1) of a polynomial in m: this test catches misaligned sides, not a whole shift. Weighted by
+ * the lines' σ when given; the uncertainty is the a-priori one, for unit σ where none is given.
  */
 function differenceIntercept(
   map: ReadonlyMap<number, { branch: Branch; j: number }>,
   peaks: readonly Peak[],
-): { value: number; uncertainty: number } | undefined {
+): { value: number; uncertainty: number; ownScale: number } | undefined {
   const R = new Map<number, Peak>();
   const P = new Map<number, Peak>();
   for (const [i, t] of map) (t.branch === 'R' ? R : P).set(t.j, peaks[i] as Peak);
@@ -383,8 +416,16 @@ function differenceIntercept(
     weights: Float64Array.from(ws),
   });
   if (f.rankDeficient) return undefined;
-  const s2 = Math.max(f.chiSquare / (n - cols), 1e-30);
-  return { value: f.coefficients[0] as number, uncertainty: Math.sqrt(s2 * (f.covariance[0] as number)) };
+  // A priori (σ = 1 for lines sent without one; `score` scales it by the lines' scatter) unless its own scale is
+  // larger: the few degrees of freedom of this small fit make its own scale a poor estimate when smaller (7 pairs:
+  // the true numbering of SiO with P(1), P(2) cut came out at −5σ).
+  // Its own scale is used only when larger (a model too short for the J range, LiH's u³ term with two columns).
+  const s2 = f.chiSquare / (n - cols);
+  return {
+    value: f.coefficients[0] as number,
+    uncertainty: Math.sqrt(f.covariance[0] as number),
+    ownScale: Math.sqrt(Math.max(s2, 0)),
+  };
 }
 
 /** Residual sum of squares of the Boltzmann plot ln(I/(S·ν)) = a − b·E″ over both branches (six lines or more). */
@@ -462,18 +503,172 @@ export function grow(
   ];
   const used = new Set([p1.index, r0.index]);
   if (!(spacing0 > 0)) return points;
+  extendBothSides(points, used, pos, order, spacing0);
+  // A spurious line taken on the way (a seed inside the gap next to the true R(0), or a line nearer a rough early
+  // prediction than the true one) bends what follows, and one side may stop early: the lines that stray from one
+  // polynomial through all of them go, the holes are filled from the polynomial, and both sides grow once more.
+  const stepped = byCommonStep(points);
+  const kept = withoutStrays(stepped);
+  if (!kept) return stepped;
+  const usedAgain = new Set(kept.map((p) => p.index));
+  fillHoles(kept, usedAgain, pos, order);
+  extendInwards(kept, usedAgain, pos, order);
+  extendBothSides(kept, usedAgain, pos, order, spacing0);
+  return kept;
+}
+
+/**
+ * Indices renumbered by their common step: a spurious line beside a seed halves the local spacing, the gap then
+ * counts twice the slots it has, and the progression takes the true lines at every other index (B″ comes out half
+ * the true one, and every numbering fits badly), with a few spurious lines between. When four fifths of the
+ * points or more share one residue of m + 1 modulo 2 or 3, those are kept and renumbered, the others dropped; the
+ * seed's P-side line stays at m = −1.
+ */
+function byCommonStep(points: readonly Point[]): Point[] {
+  for (const g of [3, 2]) {
+    const count = new Map<number, number>();
+    for (const p of points) {
+      const r = (((p.m + 1) % g) + g) % g;
+      count.set(r, (count.get(r) ?? 0) + 1);
+    }
+    const [r, n] = [...count].sort((a, b) => b[1] - a[1])[0] as [number, number];
+    if (n < 0.8 * points.length || n < 6) continue;
+    const kept = points
+      .filter((p) => (((p.m + 1) % g) + g) % g === r)
+      .map((p) => ({ ...p, m: (p.m + 1 - r) / g - 1, side: p.m >= 0 }));
+    // The R side stays at m ≥ 0: one index up for all when the renumbering put its innermost line below.
+    const lift = kept.some((p) => p.side && p.m < 0) ? 1 : 0;
+    return kept.map(({ side: _side, ...p }) => ({ ...p, m: p.m + lift }));
+  }
+  return [...points];
+}
+
+/**
+ * Each side grown towards the seed gap (the lines next to the origin are among the weakest, and a misjudged seed
+ * leaves them out): the P side upwards and the R side downwards, from the side's own polynomial, until the other
+ * side is reached or two indices in a row are empty (the origin is one, a lost P(1) or R(0) another).
+ */
+function extendInwards(
+  points: Point[],
+  used: Set<number>,
+  pos: Float64Array,
+  order: readonly { index: number; position: number }[],
+): void {
+  for (const side of ['P', 'R'] as const) {
+    let misses = 0;
+    for (let step = 0; step < 30 && misses < 2; step++) {
+      const ps = points.filter((p) => p.m < 0).map((p) => p.m);
+      const rs = points.filter((p) => p.m >= 0).map((p) => p.m);
+      if (ps.length < 4 || rs.length < 4) return;
+      const top = Math.max(...ps);
+      const bottom = Math.min(...rs);
+      const m = side === 'P' ? top + 1 + misses : bottom - 1 - misses;
+      if (m >= bottom || m <= top || (side === 'P' && m >= 0) || (side === 'R' && m < 0)) break;
+      const local = localPoints(points, side === 'P' ? -1 : 0).filter((p) => (side === 'P' ? p.m < 0 : p.m >= 0));
+      if (local.length < 4) break;
+      const predicted = fortrat(local, m, 1);
+      const spacing = Math.abs(fortrat(local, m + (side === 'P' ? -1 : 1), 1) - predicted);
+      const o = nearestFree(
+        predicted,
+        Math.min(0.2 * spacing, 6 * sideScatter(points, side === 'P')),
+        used,
+        pos,
+        order,
+      );
+      if (!o) {
+        misses++;
+        continue;
+      }
+      points.push({ m, index: o.index, position: o.position });
+      used.add(o.index);
+      misses = 0;
+    }
+  }
+}
+
+/**
+ * A local polynomial's points: the twelve nearest in m to the one sought, from its own side of the seed gap once
+ * that side has four (the two sides may be misaligned by a line until a numbering says otherwise).
+ */
+function localPoints(points: readonly Point[], m: number): readonly Point[] {
+  const same = points.filter((p) => p.m < 0 === m < 0);
+  const pool = same.length >= 4 ? same : points;
+  return pool.length <= 12 ? pool : [...pool].sort((x, y) => Math.abs(x.m - m) - Math.abs(y.m - m)).slice(0, 12);
+}
+
+/** The free line nearest to `predicted` within `tol`, or undefined. */
+function nearestFree(
+  predicted: number,
+  tol: number,
+  used: ReadonlySet<number>,
+  pos: Float64Array,
+  order: readonly { index: number; position: number }[],
+): { index: number; position: number } | undefined {
+  let best: { index: number; position: number } | undefined;
+  for (let i = lowerBound(pos, predicted - tol); i < pos.length && (pos[i] as number) <= predicted + tol; i++) {
+    const o = order[i] as { index: number; position: number };
+    if (used.has(o.index)) continue;
+    if (!best || Math.abs(o.position - predicted) < Math.abs(best.position - predicted)) best = o;
+  }
+  return best;
+}
+
+/**
+ * The empty indices inside a progression (away from its two innermost slots, where the origin may lie), each
+ * filled with the nearest free line within a fifth of the spacing of the polynomial through the twelve nearest
+ * points: interpolated, far sharper than the extrapolation that grew past it.
+ */
+function fillHoles(
+  points: Point[],
+  used: Set<number>,
+  pos: Float64Array,
+  order: readonly { index: number; position: number }[],
+): void {
+  const has = new Set(points.map((p) => p.m));
+  const ms = [...has];
+  const lo = Math.min(...ms);
+  const hi = Math.max(...ms);
+  for (let m = lo + 1; m < hi; m++) {
+    if (has.has(m)) continue;
+    // Only holes with neighbours on both sides within two indices: a wide empty stretch is the gap at the origin.
+    const near = (d: number) => has.has(m - d) || has.has(m - d - 1);
+    const far = (d: number) => has.has(m + d) || has.has(m + d + 1);
+    if (!(near(1) && far(1))) continue;
+    const local = localPoints(points, m);
+    const predicted = fortrat(local, m, 1);
+    const spacing = Math.abs(fortrat(local, m + 1, 1) - predicted);
+    const o = nearestFree(predicted, Math.min(0.2 * spacing, 6 * sideScatter(points, m < 0)), used, pos, order);
+    if (!o) continue;
+    points.push({ m, index: o.index, position: o.position });
+    used.add(o.index);
+  }
+}
+
+/** Grow both sides of a progression outwards (each until three lines in a row are missing). */
+function extendBothSides(
+  points: Point[],
+  used: Set<number>,
+  pos: Float64Array,
+  order: readonly { index: number; position: number }[],
+  spacing0: number,
+): void {
+  const ms = points.map((p) => p.m);
   const misses = { R: 0, P: 0 };
-  let next = { R: slots, P: -2 };
+  let next = { R: Math.max(...ms) + 1, P: Math.min(...ms) - 1 };
   for (let step = 0; step < 400 && (misses.R < 3 || misses.P < 3); step++) {
     for (const side of ['R', 'P'] as const) {
       if (misses[side] >= 3) continue;
       const m = next[side];
-      // A local polynomial: the twelve lines nearest in m to the one sought.
-      const local =
-        points.length <= 12 ? points : [...points].sort((x, y) => Math.abs(x.m - m) - Math.abs(y.m - m)).slice(0, 12);
+      const local = localPoints(points, m);
       const predicted = fortrat(local, m, spacing0);
       const spacing = Math.abs(predicted - fortrat(local, m - Math.sign(m), spacing0));
-      const tol = 0.2 * Math.max(spacing, 1e-6);
+      // A fifth of the spacing while the side is young; once it has eight lines, eight times its own scatter plus
+      // twice the extrapolation's own doubt (a spurious line 0.1 cm⁻¹ off is not taken for a lost line on a side
+      // whose lines lie within 0.003 of its polynomial).
+      // The local polynomial's own extrapolation error is gauged by how far a degree lower would put the line.
+      const modelError =
+        local.length >= 5 ? Math.abs(predicted - fortrat(local, m, spacing0, 2)) : Number.POSITIVE_INFINITY;
+      const tol = Math.min(0.2 * Math.max(spacing, 1e-6), 8 * sideScatter(points, m < 0) + 2 * modelError);
       const lo = lowerBound(pos, predicted - tol);
       let bestI = -1;
       for (let i = lo; i < pos.length && (pos[i] as number) <= predicted + tol; i++) {
@@ -493,16 +688,79 @@ export function grow(
       } else {
         misses[side]++;
       }
-      next = { ...next, [side]: m + Math.sign(m) };
+      next = { ...next, [side]: m + (side === 'R' ? 1 : -1) };
     }
   }
-  return points;
+}
+
+/**
+ * Each side of the seed gap on its own (the two may be misaligned by a line, which the numberings judge): the
+ * points within five robust standard deviations of one polynomial (degree up to 4 in m) through the side's points,
+ * refitted without those beyond (twice). A side of fewer than eight points is kept as it is; undefined when a side
+ * would keep fewer than six.
+ */
+function withoutStrays(points: readonly Point[]): Point[] | undefined {
+  const out: Point[] = [];
+  for (const side of [points.filter((p) => p.m < 0), points.filter((p) => p.m >= 0)]) {
+    if (side.length < 8) {
+      out.push(...side);
+      continue;
+    }
+    const kept = strayFree(side);
+    if (!kept) return undefined;
+    out.push(...kept);
+  }
+  return out;
+}
+
+/**
+ * Robust scatter of one side's points about its polynomial (degree up to 4 in m): how far a line filled in from
+ * that polynomial may lie (six of it) — a spurious line a tenth of a spacing off is not taken for a lost one.
+ * Infinite when the side has too few points to tell.
+ */
+function sideScatter(points: readonly Point[], pSide: boolean): number {
+  const side = points.filter((p) => p.m < 0 === pSide);
+  if (side.length < 8) return Number.POSITIVE_INFINITY;
+  const r = polynomialResiduals(side);
+  const s = r ? robustSigmaOf(r) : 0;
+  return s > 0 ? s : Number.POSITIVE_INFINITY;
+}
+
+/** Residuals of the points about one polynomial in m (degree up to 4), or undefined when it cannot be fitted. */
+function polynomialResiduals(points: readonly Point[]): Float64Array | undefined {
+  const n = points.length;
+  const cols = Math.min(5, n - 3);
+  if (cols < 2) return undefined;
+  const ms = points.map((p) => p.m);
+  const centre = (Math.max(...ms) + Math.min(...ms)) / 2;
+  const half = Math.max(1, (Math.max(...ms) - Math.min(...ms)) / 2);
+  const design = new Float64Array(n * cols);
+  points.forEach((p, i) => {
+    for (let k = 0; k < cols; k++) design[k * n + i] = ((p.m - centre) / half) ** k;
+  });
+  const r = solveLeastSquares({ rows: n, cols, design, observations: Float64Array.from(points, (p) => p.position) });
+  return r.rankDeficient ? undefined : r.residuals;
+}
+
+function strayFree(points: readonly Point[]): Point[] | undefined {
+  let kept = [...points];
+  for (let round = 0; round < 2; round++) {
+    const r = polynomialResiduals(kept);
+    if (!r) return undefined;
+    const s = robustSigmaOf(r);
+    if (!(s > 0)) return kept;
+    const next = kept.filter((_, i) => Math.abs(r[i] as number) <= 5 * s);
+    if (next.length === kept.length) return kept;
+    if (next.length < 6) return undefined;
+    kept = next;
+  }
+  return kept;
 }
 
 /** The Fortrat polynomial through the points so far (degree up to 3 in m), evaluated at m. */
-function fortrat(points: readonly Point[], m: number, spacing0: number): number {
+function fortrat(points: readonly Point[], m: number, spacing0: number, maxDegree = 3): number {
   const n = points.length;
-  const degree = Math.min(3, n - 1);
+  const degree = Math.min(maxDegree, n - 1);
   if (degree < 2) {
     const centre = points.reduce((s, p) => s + p.position - p.m * spacing0, 0) / n;
     return centre + m * spacing0;
