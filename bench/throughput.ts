@@ -127,7 +127,8 @@ let bare: Awaited<ReturnType<typeof startServer>> | undefined;
 try {
   const fitResponse = await post(basePort, '/v1/fits', fit);
   const scanResponse = await post(basePort, '/v1/fits', scan.body);
-  const fitLean = await post(basePort, '/v1/fits?lean=true', fit).catch(() => undefined);
+  const leanBody = JSON.stringify({ ...(JSON.parse(fit) as object), options: { lean: true } });
+  const fitLean = await post(basePort, '/v1/fits', leanBody).catch(() => undefined);
   mkdirSync('bench/out', { recursive: true });
   writeFileSync(
     'bench/out/bare-bodies.json',
@@ -198,7 +199,7 @@ try {
   for (const r of rows) console.log(`| ${r.join(' | ')} |`);
   if (fitLean) {
     console.log(
-      `\nResponse size of the 60-line fit: ${fitResponse.length} B in full, ${fitLean.length} B lean (?lean=true)`,
+      `\nResponse size of the 60-line fit: ${fitResponse.length} B in full, ${fitLean.length} B lean (options.lean)`,
     );
   }
 } finally {
