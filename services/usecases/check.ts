@@ -3,7 +3,7 @@ import { checksWithoutFit, DEFAULT_TOLERANCES, runChecks } from '../../src/qa/ch
 import { SAFETY_NOTICE } from '../notice.js';
 import type { CheckRequest, CheckResponse } from '../schemas/checks.js';
 import { analyseRequest, prepareFit, presentFit } from './fit.js';
-import { runLinearCheck } from './linear-assign.js';
+import { identifiedLinearSpecies, runLinearCheck } from './linear-assign.js';
 import { isLinearFitRequest } from './linear-fit.js';
 import type { DeepReadonly } from './types.js';
 
@@ -33,6 +33,10 @@ export function runCheck(req: CheckRequest): CheckResponse {
     };
     return response as CheckResponse;
   } catch (e) {
+    // No diatomic explains an unassigned list sent without a species: the linear library may.
+    const linear =
+      e instanceof ScienceError && e.code === 'SPECIES_UNIDENTIFIED' ? identifiedLinearSpecies(fitReq) : undefined;
+    if (linear) return runLinearCheck({ ...req, species: linear }, applied);
     if (e instanceof ScienceError && NO_FIT.has(e.code)) {
       const report = checksWithoutFit(prepared.peaks, prepared.declared, e.message);
       const response: DeepReadonly<CheckResponse> = {

@@ -7,6 +7,7 @@ import { type Isotopologue, parseSpecies } from '../../src/species/parse.js';
 import { toWavenumber } from '../../src/units.js';
 import { SAFETY_NOTICE } from '../notice.js';
 import type { FitRequest, FitResponse } from '../schemas/fit.js';
+import { identifiedLinearSpecies } from './linear-assign.js';
 import { isLinearFitRequest, runLinearFit } from './linear-fit.js';
 import { peaksOf } from './peaks.js';
 import type { DeepReadonly } from './types.js';
@@ -17,7 +18,15 @@ import type { DeepReadonly } from './types.js';
  */
 export function runFit(req: FitRequest): FitResponse {
   if (isLinearFitRequest(req)) return runLinearFit(req);
-  return presentFit(analyseRequest(prepareFit(req)));
+  try {
+    return presentFit(analyseRequest(prepareFit(req)));
+  } catch (e) {
+    // No diatomic explains an unassigned list sent without a species: the linear library may.
+    const linear =
+      e instanceof ScienceError && e.code === 'SPECIES_UNIDENTIFIED' ? identifiedLinearSpecies(req) : undefined;
+    if (linear) return runLinearFit({ ...req, species: linear });
+    throw e;
+  }
 }
 
 export interface PreparedFit {

@@ -12,7 +12,7 @@ import { type Tolerances, verdictOf } from '../../src/qa/checks.js';
 import { toWavenumber } from '../../src/units.js';
 import { SAFETY_NOTICE } from '../notice.js';
 import type { CheckRequest, CheckResponse } from '../schemas/checks.js';
-import type { FitResponse } from '../schemas/fit.js';
+import type { FitRequest, FitResponse } from '../schemas/fit.js';
 import { runLinearFit } from './linear-fit.js';
 import type { DeepReadonly } from './types.js';
 
@@ -92,3 +92,21 @@ export function runLinearCheck(req: CheckRequest, applied: Tolerances): CheckRes
 }
 
 const NO_FIT_CODES = new Set(['FIT_NO_ASSIGNED_LINES', 'FIT_TOO_FEW_LINES', 'FIT_RANK_DEFICIENT']);
+
+/**
+ * The linear species an unassigned line list sent WITHOUT a species belongs to, when the diatomic library explained
+ * none of it (called only after SPECIES_UNIDENTIFIED, so diatomic lists pay nothing): the best of the linear
+ * library's ranking with a score ≥ 0.5 (the diatomic threshold), else undefined. Spectra and lists with
+ * assignments are left to the diatomic answer.
+ */
+export function identifiedLinearSpecies(req: FitRequest): string | undefined {
+  if (req.species !== undefined || req.spectrum || !req.lines || req.lines.length === 0) return undefined;
+  if (req.lines.some((l) => l.assignment !== undefined)) return undefined;
+  const unit = req.unit ?? 'cm-1';
+  const peaks = req.lines.map((l) => ({
+    position: toWavenumber(l.position, unit, l.uncertainty).value,
+    ...(l.intensity !== undefined ? { intensity: l.intensity } : {}),
+  }));
+  const best = identifyLinearSpecies(peaks)[0];
+  return best && best.score >= 0.5 ? best.species : undefined;
+}

@@ -74,3 +74,25 @@ describe('QA checks of linear molecules over the services', () => {
     expect(body.notice).toMatch(/certif/i);
   });
 });
+
+describe('unassigned lists sent without a species', () => {
+  it('a CO2 ν3 list: no diatomic explains it, the linear library does (fit of 16O-12C-16O); checks likewise', async () => {
+    const lines = genUnassigned(
+      genLineList({ molecule: CO2_626, bands: [{ upper: '00011', lower: '00001' }], jMax: 50, sigma: 1e-3, seed: 33 }),
+    );
+    const fit = await app().inject({ method: 'POST', url: '/v1/fits', payload: { lines } });
+    expect(fit.statusCode).toBe(200);
+    expect(fit.json().species[0].formula).toBe('16O-12C-16O');
+    const check = await app().inject({ method: 'POST', url: '/v1/checks', payload: { lines } });
+    expect(check.statusCode).toBe(200);
+    const identity = check.json().checks.find((c: { id: string }) => c.id === 'identity');
+    expect(identity.status).toBe('pass');
+    expect(identity.measured.bestMatch).toBe('16O-12C-16O');
+  });
+  it('lines that neither library explains keep the SPECIES_UNIDENTIFIED problem (4xx)', async () => {
+    const lines = [1234.5, 1237.1, 1240.9, 1244.2, 1249.8, 1251.3].map((position) => ({ position }));
+    const res = await app().inject({ method: 'POST', url: '/v1/fits', payload: { lines } });
+    expect(res.statusCode).toBeGreaterThanOrEqual(400);
+    expect(res.statusCode).toBeLessThan(500);
+  });
+});
