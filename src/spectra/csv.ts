@@ -169,7 +169,13 @@ export function parseCsv(text: string, limits: CsvLimits = {}): CsvData {
     if (data.length >= limit) fail(i + 1, `more than ${limit} rows`, { limit });
     data.push({ line: i + 1, cells });
   }
-  if (data.length === 0) throw new ScienceError('INPUT_INVALID', 'the CSV holds no rows of data', {});
+  if (data.length === 0) {
+    // Name what was read instead: a second row without numbers is taken as the row of units under the header.
+    const read = header
+      ? ` (header ${header.cells.join(', ')}${unitsRow ? `; the row under it, ${unitsRow.join(', ')}, was read as its units` : ''})`
+      : '';
+    throw new ScienceError('INPUT_INVALID', `the CSV holds no rows of numbers${read}`, {});
+  }
   const decimalComma = delimiter !== ',';
 
   const columns = header?.cells.map(readHeaderCell);

@@ -273,3 +273,19 @@ describe("the README's curl examples, run as written", () => {
     expect(codeLines.filter((l) => /^branchwise /.test(l))).toEqual([]);
   });
 });
+
+describe('a CSV whose rows hold no numbers', () => {
+  it('says what it read instead: the header and the row taken as units', async () => {
+    const r = await app().inject({
+      method: 'POST',
+      url: '/v1/fits?species=CO',
+      headers: { 'content-type': 'text/csv' },
+      payload: 'peak;note\nn/a;blank\n',
+    });
+    expect(r.statusCode).toBe(422);
+    expect(r.json().code).toBe('INPUT_INVALID');
+    expect(r.json().detail).toBe(
+      'the CSV holds no rows of numbers (header peak, note; the row under it, n/a, blank, was read as its units)',
+    );
+  });
+});
