@@ -8,6 +8,7 @@ import {
   rmsResidual,
   type SolvedModel,
   solveModel,
+  solveModelWithPriors,
   studentisedResiduals,
   toRows,
 } from '../../src/fit/engine.js';
@@ -214,5 +215,106 @@ describe('term tests at their stated distributions (SciPy values)', () => {
     expect(termTest(model(30, 27), model(20, 28), 'absolute')).toBe(1);
     // A bigger model that fits worse (rounding) is no evidence for its terms.
     expect(termTest(model(20, 29), model(20.5, 28), 'absolute')).toBe(1);
+  });
+});
+
+describe('priors as pseudo-observations, against an augmented solve with ml-matrix', () => {
+  function augmented(obs: Observation[], prior: { value: number; sigma: number }, weight: number) {
+    const n = obs.length;
+    const a = new Matrix(n + 1, 2);
+    const y = new Matrix(n + 1, 1);
+    const w: number[] = [];
+    obs.forEach((o, i) => {
+      a.set(i, 0, 1);
+      a.set(i, 1, o.lowerJ);
+      y.set(i, 0, o.position);
+      w.push(o.weight);
+    });
+    a.set(n, 1, 1);
+    y.set(n, 0, prior.value);
+    w.push(weight);
+    const aw = a.clone();
+    const yw = y.clone();
+    for (let i = 0; i <= n; i++) {
+      const s = Math.sqrt(w[i] as number);
+      aw.set(i, 0, aw.get(i, 0) * s);
+      aw.set(i, 1, aw.get(i, 1) * s);
+      yw.set(i, 0, yw.get(i, 0) * s);
+    }
+    const cov = inverse(aw.transpose().mmul(aw));
+    const x = cov.mmul(aw.transpose().mmul(yw));
+    let chi = 0;
+    for (let i = 0; i <= n; i++)
+      chi += (w[i] as number) * (y.get(i, 0) - a.get(i, 0) * x.get(0, 0) - a.get(i, 1) * x.get(1, 0)) ** 2;
+    return { x, cov, chi };
+  }
+
+  it.each([
+    ['absolute', 1],
+    ['a-posteriori', 0.78],
+  ] as const)(
+    'Norris with the slope held at 1 ± 0.001 (%s, prior scale %f): values, covariance, χ², ν',
+    (mode, scale) => {
+      const obs = observationsOf(NORRIS);
+      const prior = { key: 'c1', value: 1, sigma: 0.001 };
+      const fit = solveModelWithPriors(polynomial(1), obs, [prior], mode, scale);
+      if (isRankDeficient(fit)) throw new Error('rank deficient');
+      const ref = augmented(obs, prior, (mode === 'absolute' ? 1 : scale) / 0.001 ** 2);
+      expect(fit.degreesOfFreedom).toBe(35);
+      expect(fit.residuals.length).toBe(36);
+      expect(fit.leverages.length).toBe(36);
+      expect(Math.abs(fit.chiSquare / ref.chi - 1)).toBeLessThan(1e-9);
+      const s2 = mode === 'absolute' ? 1 : ref.chi / 35;
+      for (let j = 0; j < 2; j++) {
+        expect(Math.abs((fit.values[j] as number) / ref.x.get(j, 0) - 1)).toBeLessThan(1e-9);
+        for (let k = 0; k < 2; k++)
+          expect(Math.abs((fit.covariance[j * 2 + k] as number) / (ref.cov.get(j, k) * s2) - 1)).toBeLessThan(1e-8);
+      }
+      // The residuals are those of the lines under the constrained values.
+      const o = obs[5] as Observation;
+      const r5 = o.position - ((fit.values[0] as number) + (fit.values[1] as number) * o.lowerJ);
+      expect(Math.abs((fit.residuals[5] as number) - r5)).toBeLessThan(1e-9);
+    },
+  );
+
+  it('a prior on a parameter the model lacks is an error; too few rows are rank deficient', () => {
+    const obs = observationsOf(NORRIS);
+    expect(() => solveModelWithPriors(polynomial(1), obs, [{ key: 'c7', value: 1, sigma: 1 }], 'absolute')).toThrow(
+      'prior on c7, which the model does not hold',
+    );
+    const r = solveModelWithPriors(polynomial(2), obs.slice(0, 1), [{ key: 'c1', value: 1, sigma: 1 }], 'absolute');
+    expect(isRankDeficient(r)).toBe(true);
+    if (isRankDeficient(r)) expect(r.groups.map((g) => g.map((q) => q.name))).toEqual([['c0', 'c1', 'c2']]);
+  });
+});
+
+describe('more edges of the engine', () => {
+  it('studentised residuals at exactly two degrees of freedom follow the definition', () => {
+    const obs = observationsOf(NORRIS).slice(0, 4);
+    const model = polynomial(1);
+    const fit = solved(model, obs, 'a-posteriori');
+    expect(fit.degreesOfFreedom).toBe(2);
+    const t = studentisedResiduals(fit);
+    const without = solved(model, obs.slice(1), 'a-posteriori', false);
+    const o = obs[0] as Observation;
+    const e = o.position - ((fit.values[0] as number) + (fit.values[1] as number) * o.lowerJ);
+    const h = fit.leverages[0] as number;
+    expect(Math.abs((t[0] as number) / (e / Math.sqrt((without.chiSquare / 1) * (1 - h))) - 1)).toBeLessThan(1e-9);
+  });
+
+  it('leverages by default; a square system is solved exactly with ν = 0 and an a-posteriori scale of NaN', () => {
+    const obs = observationsOf(NORRIS).slice(0, 2);
+    const fit = solveModel(polynomial(1), obs, 'a-posteriori');
+    if (isRankDeficient(fit)) throw new Error('rank deficient');
+    expect(fit.leverages.length).toBe(2);
+    expect(fit.degreesOfFreedom).toBe(0);
+    const [a, b] = obs as [Observation, Observation];
+    const slope = (b.position - a.position) / (b.lowerJ - a.lowerJ);
+    expect(Math.abs((fit.values[1] as number) / slope - 1)).toBeLessThan(1e-12);
+    expect([...fit.covariance].every(Number.isNaN)).toBe(true);
+  });
+
+  it('a parameter of zero variance has correlation 1 with itself and 0 with the others', () => {
+    expect([...correlationOf(new Float64Array([0, 0, 0, 4]), 2)]).toEqual([1, 0, 0, 1]);
   });
 });
