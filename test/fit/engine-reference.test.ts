@@ -277,6 +277,50 @@ describe('priors as pseudo-observations, against an augmented solve with ml-matr
     },
   );
 
+  it('two priors in absolute mode (the prior scale ignored): values, leverages of the lines, no condition number', () => {
+    const obs = observationsOf(NORRIS).slice(0, 6);
+    const priors = [
+      { key: 'c0', value: -0.3, sigma: 0.05 },
+      { key: 'c1', value: 1.002, sigma: 0.0005 },
+    ];
+    const fit = solveModelWithPriors(polynomial(1), obs, priors, 'absolute', 5);
+    if (isRankDeficient(fit)) throw new Error('rank deficient');
+    // Reference: the 6 lines plus the rows [1, 0] and [0, 1] weighted 1/σ², solved with ml-matrix.
+    const rows = [
+      ...obs.map((o) => [1, o.lowerJ, o.position, o.weight]),
+      [1, 0, -0.3, 1 / 0.05 ** 2],
+      [0, 1, 1.002, 1 / 0.0005 ** 2],
+    ];
+    const aw = new Matrix(
+      rows.map(([a, b, , w]) => [(a as number) * Math.sqrt(w as number), (b as number) * Math.sqrt(w as number)]),
+    );
+    const yw = new Matrix(rows.map(([, , y, w]) => [(y as number) * Math.sqrt(w as number)]));
+    const cov = inverse(aw.transpose().mmul(aw));
+    const x = cov.mmul(aw.transpose().mmul(yw));
+    const hat = aw.mmul(cov).mmul(aw.transpose());
+    for (let j = 0; j < 2; j++) expect(Math.abs((fit.values[j] as number) / x.get(j, 0) - 1)).toBeLessThan(1e-9);
+    expect(Math.abs((fit.covariance[3] as number) / cov.get(1, 1) - 1)).toBeLessThan(1e-8);
+    expect(fit.degreesOfFreedom).toBe(6);
+    for (let i = 0; i < 6; i++) expect(Math.abs((fit.leverages[i] as number) - hat.get(i, i))).toBeLessThan(1e-9);
+    expect(fit.conditionNumber).toBeNaN();
+    // As many rows as parameters is solvable: one line and one prior determine a line's two coefficients.
+    const square = solveModelWithPriors(
+      polynomial(1),
+      obs.slice(0, 1),
+      [priors[1] as (typeof priors)[number]],
+      'absolute',
+    );
+    expect(isRankDeficient(square)).toBe(false);
+    // A prior cannot lift a dependency: a duplicated column stays rank deficient, named by its parameters.
+    const twin: LinearModel = {
+      parameters: polynomial(1).parameters.concat([{ key: 'twin', name: 'twin', unit: '1', kind: 'Y', k: 1, l: 0 }]),
+      coefficient: (q, o) => o.lowerJ ** (q.k as number),
+    };
+    const dep = solveModelWithPriors(twin, obs, [{ key: 'c0', value: 0, sigma: 1 }], 'absolute');
+    expect(isRankDeficient(dep)).toBe(true);
+    if (isRankDeficient(dep)) expect(dep.groups.map((g) => g.map((q) => q.name).sort())).toEqual([['c1', 'twin']]);
+  });
+
   it('a prior on a parameter the model lacks is an error; too few rows are rank deficient', () => {
     const obs = observationsOf(NORRIS);
     expect(() => solveModelWithPriors(polynomial(1), obs, [{ key: 'c7', value: 1, sigma: 1 }], 'absolute')).toThrow(
