@@ -1,8 +1,9 @@
 import { ScienceError } from '../../src/errors.js';
+import { isLinearSpeciesString } from '../../src/linear/species.js';
 import { dunhamFromConstants, printedDigitsUncertainty } from '../../src/potential/constants-input.js';
 import { type DunhamCoefficient, potentialCurves } from '../../src/potential/potential-curve.js';
 import type { ConstantsInput, PredictionConstant } from '../../src/qa/predictions.js';
-import { constantsFor } from '../../src/species/library.js';
+import { constantsFor, type LibraryEntry, libraryEntry } from '../../src/species/library.js';
 import { type Isotopologue, parseSpecies } from '../../src/species/parse.js';
 import { reducedMass } from '../../src/species/reduced-mass.js';
 import { SAFETY_NOTICE } from '../notice.js';
@@ -52,7 +53,29 @@ function present(src: PotentialSource, vMax: number, verify: boolean): Potential
   };
 }
 
+/** Potential curves (RKR, Morse) are one-coordinate curves of a diatomic: a linear polyatomic gets a plain 422. */
+function refuseLinear(species: string | undefined): void {
+  if (species === undefined || !isLinearSpeciesString(species)) return;
+  throw new ScienceError(
+    'INPUT_INVALID',
+    `potential curves are for diatomics: "${species}" is a linear polyatomic molecule, whose levels depend on several coordinates (fit its lines with /v1/fits instead)`,
+    { species },
+  );
+}
+
+/**
+ * The rounding uncertainty of a library value's last printed digit. A mass-scaled entry (derivedFrom) prints no
+ * digits of its own: its values carry the parent's rounding, scaled by the same mass factor as the value.
+ */
+function libraryRounding(entry: LibraryEntry, name: string, value: number): number {
+  const parent = entry.derivedFrom ? libraryEntry(entry.derivedFrom) : undefined;
+  const p = parent?.constants[name as keyof LibraryEntry['constants']];
+  if (p && p.value !== 0) return printedDigitsUncertainty(p.value) * Math.abs(value / p.value);
+  return printedDigitsUncertainty(value);
+}
+
 function fromConstants(req: PotentialRequest): PotentialSource {
+  refuseLinear(req.species);
   const species = parseSpecies(req.species as string);
   let input: ConstantsInput | undefined = req.constants;
   let source: PotentialSource['source'] = 'caller';
@@ -70,14 +93,14 @@ function fromConstants(req: PotentialRequest): PotentialSource {
     const values: Partial<Record<PredictionConstant, { value: number; uncertainty: number }>> = {};
     for (const [name, c] of Object.entries(entry.constants)) {
       if (c && c.unit === 'cm-1')
-        values[name as PredictionConstant] = { value: c.value, uncertainty: printedDigitsUncertainty(c.value) };
+        values[name as PredictionConstant] = { value: c.value, uncertainty: libraryRounding(entry, name, c.value) };
     }
     input = { values };
     source = 'library';
     warnings.push({
       code: 'POTENTIAL_NO_COVARIANCE',
       message:
-        'the library tabulates its constants without uncertainties: each is given the rounding uncertainty of its last printed digit (half a unit, uniform: u = 10^-d/√12), uncorrelated; the uncertainties of the turning points are lower bounds',
+        'the library tabulates its constants without uncertainties: each is given the rounding uncertainty of its last printed digit (half a unit, uniform: u = 10^-d/√12; a mass-scaled isotopologue takes that of its parent, scaled), uncorrelated; the uncertainties of the turning points are lower bounds',
     });
   }
   const d = dunhamFromConstants(input);
@@ -92,6 +115,7 @@ function fromConstants(req: PotentialRequest): PotentialSource {
 }
 
 function fromFit(req: PotentialRequest): PotentialSource {
+  refuseLinear(req.species);
   const { constants: _c, vMax: _v, vData: _d, verify: _f, sample: _s, ...fitBody } = req;
   const { analysis, declared } = analyseRequest(prepareFit(fitBody));
   return fromFitResult(analysis.result, declared?.formula);
