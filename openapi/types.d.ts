@@ -843,6 +843,114 @@ export interface components {
       /** @description vibrational quanta: [v1, v2, v3] for triatomics (v2 the bend), [v1, v2, v3, v4, v5] for C2H2 */
       v: number[];
     };
+    LinearSpeciesEntry: {
+      aliases: string[];
+      /** @description the chain along the axis, mass numbers first ("16O-12C-16O") */
+      formula: string;
+      hazard: string;
+      /** @constant */
+      kind: "linear";
+      levels: ({
+          B: {
+            note?: string;
+            /** @description key(s) of `sources`, joined by "+" */
+            source: string;
+            /** @enum {string} */
+            status: "read" | "read-secondary" | "derived" | "recalled";
+            /** @description 1σ; null when the source gives none (never 0) */
+            uncertainty: number | null;
+            /** @constant */
+            unit: "cm-1";
+            value: number;
+          };
+          D: {
+            note?: string;
+            /** @description key(s) of `sources`, joined by "+" */
+            source: string;
+            /** @enum {string} */
+            status: "read" | "read-secondary" | "derived" | "recalled";
+            /** @description 1σ; null when the source gives none (never 0) */
+            uncertainty: number | null;
+            /** @constant */
+            unit: "cm-1";
+            value: number;
+          };
+          databaseLabel: string;
+          G: {
+            note?: string;
+            /** @description key(s) of `sources`, joined by "+" */
+            source: string;
+            /** @enum {string} */
+            status: "read" | "read-secondary" | "derived" | "recalled";
+            /** @description 1σ; null when the source gives none (never 0) */
+            uncertainty: number | null;
+            /** @constant */
+            unit: "cm-1";
+            value: number;
+          };
+          H?: {
+            note?: string;
+            /** @description key(s) of `sources`, joined by "+" */
+            source: string;
+            /** @enum {string} */
+            status: "read" | "read-secondary" | "derived" | "recalled";
+            /** @description 1σ; null when the source gives none (never 0) */
+            uncertainty: number | null;
+            /** @constant */
+            unit: "cm-1";
+            value: number;
+          };
+          l: number;
+          label: string;
+          name: string;
+          note?: string;
+          q?: {
+            note?: string;
+            /** @description key(s) of `sources`, joined by "+" */
+            source: string;
+            /** @enum {string} */
+            status: "read" | "read-secondary" | "derived" | "recalled";
+            /** @description 1σ; null when the source gives none (never 0) */
+            uncertainty: number | null;
+            /** @constant */
+            unit: "cm-1";
+            value: number;
+          };
+          rank?: number;
+          v: number[];
+        })[];
+      mass: {
+        uncertainty: number;
+        /** @constant */
+        unit: "u";
+        value: number;
+      };
+      modes: string[];
+      name: string;
+      /** @description product of the isotopic amount fractions (CIAAW 2013, Meija et al. 2016) */
+      naturalAbundance: number;
+      otherModes?: ({
+          centre: {
+            note?: string;
+            /** @description key(s) of `sources`, joined by "+" */
+            source: string;
+            /** @enum {string} */
+            status: "read" | "read-secondary" | "derived" | "recalled";
+            /** @description 1σ; null when the source gives none (never 0) */
+            uncertainty: number | null;
+            /** @constant */
+            unit: "cm-1";
+            value: number;
+          };
+          mode: string;
+        })[];
+      sources: {
+        [key: string]: {
+          address: string;
+          cite: string;
+        };
+      };
+    };
     NumberingEvidence: {
       alignment: number;
       /** @description rms of ln(I/(S·ν)) about one line in E″, both branches */
@@ -1208,7 +1316,7 @@ export interface components {
       };
       state: string;
     };
-    SpeciesEntryResponse: {
+    SpeciesEntryResponse: ({
       constants: {
         [key: string]: {
           note?: string;
@@ -1234,9 +1342,120 @@ export interface components {
       };
       software: components["schemas"]["Software"];
       state: string;
-    };
+    }) | ({
+      aliases: string[];
+      /** @description the chain along the axis, mass numbers first ("16O-12C-16O") */
+      formula: string;
+      hazard: string;
+      input: components["schemas"]["InputDigest"];
+      /** @constant */
+      kind: "linear";
+      levels: ({
+          B: {
+            note?: string;
+            /** @description key(s) of `sources`, joined by "+" */
+            source: string;
+            /** @enum {string} */
+            status: "read" | "read-secondary" | "derived" | "recalled";
+            /** @description 1σ; null when the source gives none (never 0) */
+            uncertainty: number | null;
+            /** @constant */
+            unit: "cm-1";
+            value: number;
+          };
+          D: {
+            note?: string;
+            /** @description key(s) of `sources`, joined by "+" */
+            source: string;
+            /** @enum {string} */
+            status: "read" | "read-secondary" | "derived" | "recalled";
+            /** @description 1σ; null when the source gives none (never 0) */
+            uncertainty: number | null;
+            /** @constant */
+            unit: "cm-1";
+            value: number;
+          };
+          databaseLabel: string;
+          G: {
+            note?: string;
+            /** @description key(s) of `sources`, joined by "+" */
+            source: string;
+            /** @enum {string} */
+            status: "read" | "read-secondary" | "derived" | "recalled";
+            /** @description 1σ; null when the source gives none (never 0) */
+            uncertainty: number | null;
+            /** @constant */
+            unit: "cm-1";
+            value: number;
+          };
+          H?: {
+            note?: string;
+            /** @description key(s) of `sources`, joined by "+" */
+            source: string;
+            /** @enum {string} */
+            status: "read" | "read-secondary" | "derived" | "recalled";
+            /** @description 1σ; null when the source gives none (never 0) */
+            uncertainty: number | null;
+            /** @constant */
+            unit: "cm-1";
+            value: number;
+          };
+          l: number;
+          label: string;
+          name: string;
+          note?: string;
+          q?: {
+            note?: string;
+            /** @description key(s) of `sources`, joined by "+" */
+            source: string;
+            /** @enum {string} */
+            status: "read" | "read-secondary" | "derived" | "recalled";
+            /** @description 1σ; null when the source gives none (never 0) */
+            uncertainty: number | null;
+            /** @constant */
+            unit: "cm-1";
+            value: number;
+          };
+          rank?: number;
+          v: number[];
+        })[];
+      mass: {
+        uncertainty: number;
+        /** @constant */
+        unit: "u";
+        value: number;
+      };
+      modes: string[];
+      name: string;
+      /** @description product of the isotopic amount fractions (CIAAW 2013, Meija et al. 2016) */
+      naturalAbundance: number;
+      otherModes?: ({
+          centre: {
+            note?: string;
+            /** @description key(s) of `sources`, joined by "+" */
+            source: string;
+            /** @enum {string} */
+            status: "read" | "read-secondary" | "derived" | "recalled";
+            /** @description 1σ; null when the source gives none (never 0) */
+            uncertainty: number | null;
+            /** @constant */
+            unit: "cm-1";
+            value: number;
+          };
+          mode: string;
+        })[];
+      software: components["schemas"]["Software"];
+      sources: {
+        [key: string]: {
+          address: string;
+          cite: string;
+        };
+      };
+    });
     SpeciesList: {
       input: components["schemas"]["InputDigest"];
+      /** @description the linear polyatomic library (CO2, N2O, OCS, HCN, C2H2, …) */
+      linear: components["schemas"]["LinearSpeciesEntry"][];
       notice: string;
       software: components["schemas"]["Software"];
       species: components["schemas"]["SpeciesEntry"][];

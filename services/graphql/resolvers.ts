@@ -13,7 +13,7 @@ import { PeaksRequestSchema } from '../schemas/peaks.js';
 import { potentialRequestSchema } from '../schemas/potentials.js';
 import { PredictionRequestSchema } from '../schemas/predictions.js';
 import { NonFiniteResult } from '../usecases/finite.js';
-import { getSpecies, listSpecies } from '../usecases/species.js';
+import { getDiatomicSpeciesEntry, getLinearSpecies, listSpecies } from '../usecases/species.js';
 
 const JSONScalar = new GraphQLScalarType({
   name: 'JSON',
@@ -117,7 +117,9 @@ export function resolvers(config: Config, app: FastifyInstance) {
         return guarded(() => app.pool.run({ kind: 'potential', body }, Math.max(jobSize(body), 1)));
       },
       species: (_: unknown, args: { formula?: string | null }) =>
-        guarded(() => (args.formula ? [getSpecies(args.formula)] : listSpecies().species)),
+        guarded(() => (args.formula ? [getDiatomicSpeciesEntry(args.formula)] : listSpecies().species)),
+      linearSpecies: (_: unknown, args: { formula?: string | null }) =>
+        guarded(() => (args.formula ? [getLinearSpecies(args.formula)] : listSpecies().linear)),
     },
   };
 }

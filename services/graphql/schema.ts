@@ -360,6 +360,24 @@ export const typeDefs = /* GraphQL */ `
     constants: JSON!
   }
 
+  "An entry of the linear polyatomic library (GET /v1/species/{formula} for CO2, 16O-12C-16O, …)."
+  type LinearSpeciesEntry {
+    "the chain along the axis, mass numbers first"
+    formula: String!
+    aliases: [String!]!
+    name: String!
+    kind: String!
+    mass: Quantity!
+    naturalAbundance: Float!
+    modes: [String!]!
+    hazard: String!
+    "levels with G, B, D (H, q): each { value, uncertainty (null when unknown), unit, status, source, note }"
+    levels: JSON!
+    otherModes: JSON
+    "source key → { cite, address }"
+    sources: JSON!
+  }
+
   type CheckEntry {
     id: String!
     status: String!
@@ -503,5 +521,7 @@ export const typeDefs = /* GraphQL */ `
     fit(input: FitInput!): FitResult!
     "The reference library, or one entry of it (GET /v1/species, GET /v1/species/{formula})."
     species(formula: String): [SpeciesEntry!]!
+    "The linear polyatomic library, or one entry of it by chain or everyday formula (GET /v1/species: linear)."
+    linearSpecies(formula: String): [LinearSpeciesEntry!]!
   }
 `;
