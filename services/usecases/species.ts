@@ -46,7 +46,7 @@ function linearValue(x: ReferenceValue) {
 function presentLinear(e: ReferenceSpecies) {
   const sp = parseLinearSpecies(e.formula);
   const used = new Set<string>();
-  const valueOf = (x: ReferenceValue) => {
+  const cited = (x: ReferenceValue) => {
     for (const key of x.source.split('+')) used.add(key);
     return linearValue(x);
   };
@@ -57,14 +57,14 @@ function presentLinear(e: ReferenceSpecies) {
     label: levelLabel(l),
     databaseLabel: l.databaseLabel,
     name: l.name,
-    G: valueOf(l.G),
-    B: valueOf(l.B),
-    D: valueOf(l.D),
-    ...(l.H ? { H: valueOf(l.H) } : {}),
-    ...(l.q ? { q: valueOf(l.q) } : {}),
+    G: cited(l.G),
+    B: cited(l.B),
+    D: cited(l.D),
+    ...(l.H ? { H: cited(l.H) } : {}),
+    ...(l.q ? { q: cited(l.q) } : {}),
     ...(l.note ? { note: l.note } : {}),
   }));
-  const otherModes = (e.otherModes ?? []).map((m) => ({ mode: m.mode, centre: valueOf(m.centre) }));
+  const otherModes = (e.otherModes ?? []).map((m) => ({ mode: m.mode, centre: cited(m.centre) }));
   const sources = Object.fromEntries(
     [...used].filter((k) => LINEAR_SOURCES[k]).map((k) => [k, { ...(LINEAR_SOURCES[k] as object) }]),
   ) as Record<string, { cite: string; address: string }>;
