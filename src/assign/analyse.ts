@@ -84,6 +84,44 @@ function dynamicRange(peaks: readonly PeakInput[]): number | undefined {
   return hi > 0 ? lo / hi : undefined;
 }
 
+/**
+ * Intensities that carry no information about which line is which: every line sent with one, and either all equal
+ * (a placeholder such as 1) or, over six lines or more, all within a factor 1.2 of each other. A band at any
+ * temperature this service assumes spans far more than that between its strong lines near the envelope's maximum and
+ * its weak high-J lines, so such a spread says nothing a Boltzmann envelope could use and would mislead the
+ * intensity checks of assignment, identification and numbering. Returns why, or undefined when they may be used.
+ */
+export function uninformativeIntensities(peaks: readonly { intensity?: number }[]): string | undefined {
+  const values = peaks.map((p) => p.intensity);
+  if (values.length < 2 || values.some((v) => v === undefined)) return undefined;
+  const xs = values as number[];
+  const lo = Math.min(...xs);
+  const hi = Math.max(...xs);
+  if (hi === lo) return `every line carries the same intensity (${hi})`;
+  if (xs.length >= FLAT_MIN_LINES && lo > 0 && hi / lo <= FLAT_RATIO)
+    return `all ${xs.length} intensities lie within a factor ${(hi / lo).toFixed(3)} of each other (≤ ${FLAT_RATIO}), far less than a band's Boltzmann envelope spans`;
+  return undefined;
+}
+
+/** Below this spread (strongest over weakest) over at least FLAT_MIN_LINES lines, intensities are ignored. */
+const FLAT_RATIO = 1.2;
+const FLAT_MIN_LINES = 6;
+
+/** The peaks without their intensities when these say nothing, and the warning that says so. */
+function withoutFlatIntensities(peaks: readonly PeakInput[]): { peaks: readonly PeakInput[]; warnings: Warning[] } {
+  const why = uninformativeIntensities(peaks);
+  if (!why) return { peaks, warnings: [] };
+  return {
+    peaks: peaks.map(({ intensity: _i, ...p }) => p),
+    warnings: [
+      {
+        code: 'INTENSITIES_IGNORED',
+        message: `intensities ignored for identification, assignment and numbering: ${why}, so they carry no information about which line is which (a placeholder?); the lines were assigned by position alone`,
+      },
+    ],
+  };
+}
+
 /** One numbering in words: its shifts, origin, B″ and what counted against it. */
 export function describeEvidence(e: NumberingEvidence): string {
   const parts = [
@@ -142,15 +180,18 @@ export interface Analysis {
  * cannot predict), then fit.
  */
 export function analyseLineList(
-  peaks: readonly PeakInput[],
+  sent: readonly PeakInput[],
   declared: Isotopologue | undefined,
   options: AnalyseOptions = {},
 ): Analysis {
-  const masses = givenMasses(peaks);
-  if (peaks.every((p) => p.assignment)) return fitAsGiven(peaks, masses, options);
+  const masses = givenMasses(sent);
+  if (sent.every((p) => p.assignment)) return fitAsGiven(sent, masses, options);
+  const { peaks, warnings: flat } = withoutFlatIntensities(sent);
   const { species, identification, warnings } = resolveSpecies(peaks, declared, options);
-  if (constantsFor(species)) return assignFromLibrary(peaks, species, masses, options, identification, warnings);
-  return assignFromStructure(peaks, species, masses, options);
+  if (constantsFor(species))
+    return assignFromLibrary(peaks, species, masses, options, identification, [...flat, ...warnings]);
+  const a = assignFromStructure(peaks, species, masses, options);
+  return flat.length === 0 ? a : { ...a, result: { ...a.result, warnings: [...flat, ...a.result.warnings] } };
 }
 
 /** Reduced masses of the species the given assignments name. */

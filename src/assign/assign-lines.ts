@@ -729,9 +729,11 @@ function bandNotFound(ctx: AssignContext, k: string, b: BandSummary, strong: rea
     message: `${b.species} band ${b.band}: ${strong.length} strong lines are predicted in the window but ${b.matched === 0 ? 'none was' : `only ${b.matched} were`} matched${
       best
         ? `; its best offset is ${best.offset >= 0 ? '+' : ''}${best.offset.toFixed(3)} cm-1, which matches ${best.matches} of them${
-            Math.abs(best.offset) > maxOffset && best.matches >= min
-              ? ` (beyond the ±${maxOffset} cm-1 searched: send a larger "maxOffset")`
-              : ''
+            best.matches < min
+              ? ''
+              : Math.abs(best.offset) > maxOffset
+                ? ` (beyond the ±${maxOffset} cm-1 searched: send a larger "maxOffset")`
+                : refusedWithinReach(ctx, maxOffset)
           }`
         : ''
     }${best && best.matches >= min ? '' : ' (the band is absent, too weak, or shifted further)'}`,
@@ -740,6 +742,16 @@ function bandNotFound(ctx: AssignContext, k: string, b: BandSummary, strong: rea
 }
 
 const round = (x: number) => Math.round(x * 1e5) / 1e5;
+
+/** Why a band whose best offset lies within reach and matches enough lines still has too few: what refused them. */
+function refusedWithinReach(ctx: AssignContext, maxOffset: number): string {
+  const withIntensity = ctx.free.some((p) => p.intensity !== undefined);
+  return ` (within the ±${maxOffset} cm-1 searched, yet refused: ${
+    withIntensity
+      ? `its lines' observed-to-predicted intensity ratio strays more than ×${BAND_RATIO_LIMIT} from that of the best-established band, so it was taken for a coincidence (are the intensities real?), or `
+      : ''
+  }their peaks went to lines of another band)`;
+}
 
 /**
  * Which candidates may seed a band: lines at least `floor` of the strongest line of their class. Pure rotation
