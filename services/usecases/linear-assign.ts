@@ -70,7 +70,10 @@ export function runLinearCheck(req: CheckRequest, applied: Tolerances): CheckRes
   });
   let fit: FitResponse | null = null;
   try {
-    fit = runLinearFit({ ...fitReq, lines: (fitReq.lines ?? []).map(({ assignment: _a, ...l }) => l) });
+    // A fully assigned list is fitted with its own assignments (echoed as "given"); any other list is re-assigned.
+    const lines = fitReq.lines ?? [];
+    const assigned = lines.length > 0 && lines.every((l) => l.assignment !== undefined);
+    fit = runLinearFit(assigned ? fitReq : { ...fitReq, lines: lines.map(({ assignment: _a, ...l }) => l) });
   } catch (e) {
     if (!(e instanceof ScienceError) || !NO_FIT_CODES.has(e.code)) throw e;
   }
