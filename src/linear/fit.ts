@@ -16,6 +16,7 @@ import {
 import { type LevelSelection, predictWithVariance, rankError } from '../fit/level-selection.js';
 import { rejectOutliers } from '../fit/outliers.js';
 import { termTest } from '../fit/term-test.js';
+import type { Statistics } from '../fit/types.js';
 import { type ScatterGroup, weighLines } from '../fit/weights.js';
 import type { LinearModel, Observation, Parameter } from '../models/linear-model.js';
 import { type LinearCombinationDifferences, linearCombinationDifferences } from './combination-differences.js';
@@ -382,19 +383,7 @@ export interface LinearFitResult {
   readonly parameters: readonly (Quantity & { readonly name: string; readonly key: string })[];
   readonly covariance: { readonly parameters: readonly string[]; readonly matrix: readonly (readonly number[])[] };
   readonly correlation: { readonly parameters: readonly string[]; readonly matrix: readonly (readonly number[])[] };
-  readonly statistics: {
-    readonly lines: number;
-    readonly assigned: number;
-    readonly fitted: number;
-    readonly rejected: number;
-    readonly unassigned: number;
-    readonly parameters: number;
-    readonly degreesOfFreedom: number;
-    readonly rms: number;
-    readonly reducedChiSquare: number | null;
-    readonly conditionNumber: number | null;
-    readonly uncertaintyMode: UncertaintyMode;
-  };
+  readonly statistics: Statistics;
   readonly model: {
     readonly levelTerms: readonly { readonly level: string; readonly terms: readonly string[] }[];
     readonly selection: string;
