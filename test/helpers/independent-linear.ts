@@ -36,6 +36,8 @@
  * (vibrational plus rotational, from the ground level's J = 0), normalised to the strongest line of the list.
  */
 
+import { polarNormal } from './independent-lines.js';
+
 /** Second radiation constant c₂ = hc/k in cm K (CODATA 2018, exact h, c, k), written out here on purpose. */
 const C2_CM_K = 1.438776877;
 
@@ -165,25 +167,7 @@ export function genUniform(seed: number): () => number {
 }
 
 export function genGaussian(seed: number): () => number {
-  const u = genUniform(seed);
-  let spare: number | undefined;
-  return () => {
-    if (spare !== undefined) {
-      const s = spare;
-      spare = undefined;
-      return s;
-    }
-    for (;;) {
-      const x = 2 * u() - 1;
-      const y = 2 * u() - 1;
-      const r = x * x + y * y;
-      if (r > 0 && r < 1) {
-        const f = Math.sqrt((-2 * Math.log(r)) / r);
-        spare = y * f;
-        return x * f;
-      }
-    }
-  };
+  return polarNormal(genUniform(seed));
 }
 
 // ——— lines ——————————————————————————————————————————————————————————————————————————————————————

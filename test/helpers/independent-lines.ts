@@ -181,7 +181,11 @@ export function uniformStream(seed: number): () => number {
 
 /** Seeded standard normal deviates by Marsaglia's polar method (pairs, the second kept for the next call). */
 export function gaussianStream(seed: number): () => number {
-  const uniform = uniformStream(seed);
+  return polarNormal(uniformStream(seed));
+}
+
+/** Standard normal deviates from a stream of uniform deviates in [0, 1), by Marsaglia's polar method. */
+export function polarNormal(uniform: () => number): () => number {
   let spare: number | undefined;
   return () => {
     if (spare !== undefined) {
