@@ -13,7 +13,7 @@ import { toWavenumber } from '../../src/units.js';
 import { SAFETY_NOTICE } from '../notice.js';
 import type { CheckRequest, CheckResponse } from '../schemas/checks.js';
 import type { FitRequest, FitResponse } from '../schemas/fit.js';
-import { runLinearFit } from './linear-fit.js';
+import { asLineRequest, runLinearFit } from './linear-fit.js';
 import type { DeepReadonly } from './types.js';
 
 /**
@@ -57,7 +57,8 @@ export function withAutomaticLinearAssignment(
  * unexplained-lines checks of src/linear/assign.ts. The identification ranking spans the diatomic and the linear
  * library. A fit that cannot be made leaves `fit: null` and the checks say why.
  */
-export function runLinearCheck(req: CheckRequest, applied: Tolerances): CheckResponse {
+export function runLinearCheck(sent: CheckRequest, applied: Tolerances): CheckResponse {
+  const { req, spectrum } = asLineRequest(sent);
   const { tolerances: _tolerances, ...fitReq } = req;
   const unit = fitReq.unit ?? 'cm-1';
   const peaks = (fitReq.lines ?? []).map((l) => {
@@ -74,6 +75,7 @@ export function runLinearCheck(req: CheckRequest, applied: Tolerances): CheckRes
     const lines = fitReq.lines ?? [];
     const assigned = lines.length > 0 && lines.every((l) => l.assignment !== undefined);
     fit = runLinearFit(assigned ? fitReq : { ...fitReq, lines: lines.map(({ assignment: _a, ...l }) => l) });
+    if (spectrum) fit = { ...fit, spectrum };
   } catch (e) {
     if (!(e instanceof ScienceError) || !NO_FIT_CODES.has(e.code)) throw e;
   }
@@ -99,11 +101,13 @@ const NO_FIT_CODES = new Set(['FIT_NO_ASSIGNED_LINES', 'FIT_TOO_FEW_LINES', 'FIT
 /**
  * The linear species an unassigned line list sent WITHOUT a species belongs to, when the diatomic library explained
  * none of it (called only after SPECIES_UNIDENTIFIED, so diatomic lists pay nothing): the best of the linear
- * library's ranking with a score ≥ 0.5 (the diatomic threshold), else undefined. Spectra and lists with
- * assignments are left to the diatomic answer.
+ * library's ranking with a score ≥ 0.5 (the diatomic threshold), else undefined. A spectrum is ranked by its peaks
+ * (found once: services/usecases/peaks.ts keeps them). Lists with assignments are left to the diatomic answer.
  */
-export function identifiedLinearSpecies(req: FitRequest): string | undefined {
-  if (req.species !== undefined || req.spectrum || !req.lines || req.lines.length === 0) return undefined;
+export function identifiedLinearSpecies(sent: FitRequest): string | undefined {
+  if (sent.species !== undefined) return undefined;
+  const { req } = asLineRequest(sent);
+  if (!req.lines || req.lines.length === 0) return undefined;
   if (req.lines.some((l) => l.assignment !== undefined)) return undefined;
   const unit = req.unit ?? 'cm-1';
   const peaks = req.lines.map((l) => ({

@@ -1,4 +1,5 @@
 import { ScienceError } from '../../src/errors.js';
+import type { LinearAssignResult } from '../../src/linear/assign.js';
 import {
   fitLinearLines,
   type LinearFitResult,
@@ -12,6 +13,7 @@ import { toWavenumber } from '../../src/units.js';
 import { SAFETY_NOTICE } from '../notice.js';
 import type { FitRequest, FitResponse } from '../schemas/fit.js';
 import { withAutomaticLinearAssignment } from './linear-assign.js';
+import { peaksOf } from './peaks.js';
 
 /** A level as the wire writes it ({ v, l, rank? }) and as src/linear holds it ({ v, l, r? }). */
 export interface WireLevel {
@@ -72,15 +74,43 @@ function speciesOf(req: FitRequest): LinearSpecies {
   return parseLinearSpecies([...named][0] as string);
 }
 
-/** POST /v1/fits (and GraphQL `fit`, the CLI) for linear polyatomic molecules: assigned lines only, so far. */
-export function runLinearFit(req: FitRequest): FitResponse {
-  if (req.spectrum) {
+/** What the peak finder saw when a spectrum was sent (the diatomic response's `spectrum`). */
+export interface SpectrumSummary {
+  readonly points: number;
+  readonly peaks: number;
+  readonly noise: number;
+  readonly step: number;
+}
+
+/**
+ * A linear request as a line list: a spectrum sent instead of lines is turned into its peaks (position, the peak
+ * finder's σ and integrated intensity, in cm⁻¹), which then go through automatic assignment and the fit like an
+ * unassigned list. Requests with lines come back as they are.
+ */
+export function asLineRequest<R extends FitRequest>(req: R): { req: R; spectrum?: SpectrumSummary } {
+  if (!req.spectrum) return { req };
+  const found = peaksOf(req.spectrum, req.peakOptions);
+  if (found.peaks.length === 0) {
     throw new ScienceError(
-      'INPUT_INVALID',
-      'spectra of linear polyatomic molecules are not assigned automatically yet: send the assigned line list',
-      {},
+      'FIT_NO_ASSIGNED_LINES',
+      `no peak stands above the detection threshold in the ${found.points}-point spectrum`,
+      { points: found.points, noise: found.noise },
     );
   }
+  const { spectrum: _s, peakOptions: _p, ...rest } = req;
+  return {
+    req: {
+      ...rest,
+      unit: 'cm-1',
+      lines: found.peaks.map((p) => ({ position: p.position, uncertainty: p.uncertainty, intensity: p.intensity })),
+    } as R,
+    spectrum: { points: found.points, peaks: found.peaks.length, noise: found.noise, step: found.step },
+  };
+}
+
+/** POST /v1/fits (and GraphQL `fit`, the CLI) for linear polyatomic molecules: lines (assigned or not) or a spectrum. */
+export function runLinearFit(sent: FitRequest): FitResponse {
+  const { req, spectrum } = asLineRequest(sent);
   const species = speciesOf(req);
   const unit = req.unit ?? 'cm-1';
   const lines: LinearLineInput[] = (req.lines ?? []).map((l, index) => {
@@ -129,13 +159,15 @@ export function runLinearFit(req: FitRequest): FitResponse {
     },
   );
   const result = fitLinearLines(species, auto.lines, options);
-  return presentLinearFit(req, result, auto.automatic);
+  const response = presentLinearFit(req, result, auto.automatic, auto.result);
+  return spectrum ? { ...response, spectrum } : response;
 }
 
 function presentLinearFit(
   req: FitRequest,
   r: LinearFitResult,
   automatic: ReadonlySet<number> = new Set(),
+  assigned?: LinearAssignResult,
 ): FitResponse {
   const s = r.species.formula;
   const reqLines = req.lines ?? [];
@@ -243,13 +275,45 @@ function presentLinearFit(
     }),
     crossChecks: [],
     ...(r.scatter ? { scatter: r.scatter.map((g) => ({ ...g })) } : {}),
-    assignment: { method: 'given', species: [s], bands: [], unexplained: [] },
+    assignment: assignmentReport(req, r, automatic, assigned),
     warnings: r.warnings.map((w) => ({
       code: w.code,
       message: w.message,
       ...(w.lines ? { lines: [...w.lines] } : {}),
     })),
     notice: SAFETY_NOTICE,
+  };
+}
+
+/**
+ * How the lines got their assignments: 'reference' when the library's bands assigned some (with each band's
+ * predicted and matched lines), else 'given'; the lines left unassigned are the unexplained ones.
+ */
+function assignmentReport(
+  req: FitRequest,
+  r: LinearFitResult,
+  automatic: ReadonlySet<number>,
+  assigned: LinearAssignResult | undefined,
+): FitResponse['assignment'] {
+  const s = r.species.formula;
+  const sent = req.lines ?? [];
+  return {
+    method: automatic.size > 0 ? 'reference' : 'given',
+    species: [s],
+    bands: (assigned?.bands ?? [])
+      .filter((b) => b.predicted > 0)
+      .map((b) => ({ species: s, band: b.label, predicted: b.predicted, matched: b.assigned })),
+    unexplained: r.lines
+      .filter((l) => l.status === 'unassigned')
+      .map((l) => {
+        const line = sent[l.index];
+        return {
+          index: l.index,
+          ...(line?.id !== undefined ? { id: line.id } : {}),
+          position: l.position,
+          ...(line?.intensity !== undefined ? { intensity: line.intensity } : {}),
+        };
+      }),
   };
 }
 

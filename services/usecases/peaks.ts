@@ -6,8 +6,25 @@ import type { PeaksRequest, PeaksResponse } from '../schemas/peaks.js';
 
 type Spectrum = NonNullable<FitRequest['spectrum']>;
 
+/**
+ * Peaks already found per spectrum object and options: a spectrum sent without a species goes through the diatomic
+ * pipeline first and then, when no diatomic explains it, through the linear one, which must not search it twice.
+ */
+const FOUND = new WeakMap<Spectrum, Map<string, PeakResult>>();
+
 /** Peaks of a spectrum given in any supported x unit; x is converted to cm⁻¹ first. */
 export function peaksOf(spectrum: Spectrum, options: FitRequest['peakOptions'] = {}): PeakResult {
+  const key = JSON.stringify(options ?? {});
+  const known = FOUND.get(spectrum)?.get(key);
+  if (known) return known;
+  const found = findPeaksOf(spectrum, options);
+  const byOptions = FOUND.get(spectrum) ?? new Map<string, PeakResult>();
+  byOptions.set(key, found);
+  FOUND.set(spectrum, byOptions);
+  return found;
+}
+
+function findPeaksOf(spectrum: Spectrum, options: FitRequest['peakOptions'] = {}): PeakResult {
   const x = spectrum.xUnit === 'cm-1' ? spectrum.x : spectrum.x.map((v) => toWavenumber(v, spectrum.xUnit).value);
   return findPeaks(x, spectrum.y, {
     yUnit: spectrum.yUnit,

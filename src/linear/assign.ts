@@ -378,6 +378,9 @@ function attemptAssignment(ctx: Attempt, offset: number, offsetSigma: number): L
       .map((m) => `${m.peak.index}:${m.prediction.key}`)
       .sort()
       .join(',');
+  const cappedSigma = observed.map((p) =>
+    p.sigma !== undefined ? { ...p, sigma: Math.min(p.sigma, spacing / 12) } : p,
+  );
   for (let round = 0; round < 4 && matches.length >= 4; round++) {
     const attempt = fitMatched(species, peaks, cands, matches);
     if (attempt instanceof ScienceError) {
@@ -403,9 +406,18 @@ function attemptAssignment(ctx: Attempt, offset: number, offsetSigma: number): L
       const beyond = Math.max(0, c.line.j - top);
       return Math.min(4 * rms * (1 + (beyond / 5) ** 2), spacing / 3);
     };
+    // A line that carries its own σ (a peak finder's, a caller's) is also matched within 4 of them: the fit's rms
+    // can be far below what the lines state (a profile fit's σ), and a line within its own σ is no stranger. Each σ
+    // is capped at a twelfth of the line spacing so that 4σ stays within the spacing/3 of the other tolerances.
     matches = matchLines(
-      cands.map((c) => ({ key: c.key, position: shifted(c), tolerance: tolFor(c), tier: bothFitted(c) ? 0 : 1 })),
-      observed,
+      cands.map((c) => ({
+        key: c.key,
+        position: shifted(c),
+        tolerance: tolFor(c),
+        tier: bothFitted(c) ? 0 : 1,
+        ...(bothFitted(c) ? { withSigma: { model: tolFor(c), perSigma: 4 } } : {}),
+      })),
+      cappedSigma,
     ).matches;
     if (keysOf(matches) === fittedKeys) break;
   }
