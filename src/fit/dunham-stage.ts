@@ -18,13 +18,14 @@ import { dunhamPriors, type TermConstraint } from './truncation.js';
 import type { DunhamFit, Warning } from './types.js';
 
 /** The customary constant each constrained Dunham term is, and the reported constants it moves. */
-const SYMBOL: Record<string, string> = { Y30: 'ω_e y_e', Y21: 'γ_e', Y12: '−β_e', Y02: '−D_e', Y03: 'H_e' };
+const SYMBOL: Record<string, string> = { Y30: 'ω_e y_e', Y21: 'γ_e', Y12: '−β_e', Y02: '−D_e', Y03: 'H_e', Y04: 'L_e' };
 const AFFECTS: Record<string, string> = {
   Y30: 'ω_e and ω_e x_e',
   Y21: 'B_e and α_e',
   Y12: 'D_e',
   Y02: 'B_e and α_e',
   Y03: 'D_e',
+  Y04: 'D_e and H_e',
 };
 
 /** A number for a message: exponent form for the very small and the very large, three digits otherwise. */

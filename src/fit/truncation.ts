@@ -102,14 +102,15 @@ export const hFromRelation = (D: number, B: number, alpha: number, omega: number
 export const kratzerD = (B: number, omega: number): number => (4 * B ** 3) / omega ** 2;
 
 /**
- * Width of the prior of a high-order centrifugal term (L_v next to H_v, M_v next to L_v), in units of κ_v² times
- * the size of the term below it: 0 ± 10 κ_v² max(|X|, σ_X), κ_v = B_v/ω_e, the rotational analogue of the scale
- * prior of the Dunham terms. Each power of x scales the coefficient by about κ² times a number of order one to
- * ten (¹²C¹⁶O v = 0: D/B ≈ 4κ², H/D ≈ 1.2κ², L/H ≈ −8κ², the last from a fit of the database pure-rotation lines to
- * J = 80, which this covers at 0.8σ). Measured on a CO-like ground state with L and M (test/fit/high-order-priors
- * .test.ts, lines to J = 50 fitted to H): with 5κ² the H_0 pulls had 1σ coverage 0.18 (mean −1.2), with 10κ²
- * 0.64 (mean −0.4); where the truth has no L (the HCl generator of test/fit/pulls.test.ts) H_1 over-covers
- * (0.80), the price of a prior wide enough for molecules that have one.
+ * Width of the prior of a high-order centrifugal term without a Dunham estimate (M_v next to L_v always; L_v next
+ * to H_v when α_e or ω_e is unknown), in units of κ_v² times the size of the term below it: 0 ± 10 κ_v² max(|X|,
+ * σ_X), κ_v = B_v/ω_e, the rotational analogue of the scale prior of the Dunham terms. Each power of x scales the
+ * coefficient by about κ² times a number of order one to ten (¹²C¹⁶O v = 0: D/B ≈ 4κ², H/D ≈ 1.2κ², L/H ≈ −8κ², the
+ * last from a fit of the database pure-rotation lines to J = 80, which this covers at 0.8σ). M_v is not centred on
+ * Dunham's M_e: that needs a3, and its bracket cancels as L_e's does (see lFromPotential), so its sign is not known.
+ * Measured on a CO-like ground state with L and M (test/fit/high-order-priors.test.ts, lines to J = 50 fitted to H)
+ * with this prior on L_v: 1σ coverage 0.635–0.675, mean pulls −0.3 to −0.43; with 5κ² H_0 1σ 0.18 (mean −1.2).
+ * L_v now takes Dunham's estimate (lPrior) where the library or the levels give α_e and ω_e.
  */
 export const HIGH_ORDER_PRIOR_FACTOR = 10;
 
@@ -154,6 +155,7 @@ export function constrainLevelModel(
       const order = level.orders.get(`${s}|${v}`) ?? 1;
       if (order >= MAX_CENTRIFUGAL_ORDER) continue;
       const B = value(`${s}|B|${v}`) as number;
+      const dunhamL = order === 3 ? lPrior(ref, B, omega, omegaBasis, alphaFromLevels(s, v, vs, value)) : undefined;
       const name = (kind: string) => `${kind}_${v}${structure.species.length > 1 ? `(${s})` : ''}`;
       if (order === 1) {
         const D = ref.D_e ?? (omega !== undefined ? kratzerD(B, omega) : undefined);
@@ -168,6 +170,15 @@ export function constrainLevelModel(
             ref.D_e !== undefined
               ? 'D_e of the reference library, ± 50 %'
               : `Kratzer D ≈ 4B³/ω_e² with B_${v} and ${omegaBasis}, ± 50 %`,
+        });
+      } else if (order === 3 && dunhamL) {
+        priors.push({
+          key: `${s}|L|${v}`,
+          value: dunhamL.value,
+          sigma: dunhamL.sigma,
+          name: name('L'),
+          species: s,
+          basis: dunhamL.basis,
         });
       } else if (order >= 3) {
         const below = ROTATIONAL_KINDS[order - 1] as string;
@@ -222,6 +233,69 @@ export function constrainLevelModel(
   };
 }
 
+interface DunhamEstimate {
+  readonly value: number;
+  readonly sigma: number;
+  readonly basis: string;
+}
+
+/** α_e ≈ B_v − B_{v+1} (or B_{v−1} − B_v) from the fitted level constants, when a neighbouring level was fitted. */
+function alphaFromLevels(
+  s: string,
+  v: number,
+  vs: readonly number[],
+  value: (key: string) => number | undefined,
+): number | undefined {
+  const here = value(`${s}|B|${v}`);
+  const up = vs.includes(v + 1) ? value(`${s}|B|${v + 1}`) : undefined;
+  if (here !== undefined && up !== undefined) return here - up;
+  const down = vs.includes(v - 1) ? value(`${s}|B|${v - 1}`) : undefined;
+  return here !== undefined && down !== undefined ? down - here : undefined;
+}
+
+/**
+ * L_e from Dunham's potential coefficients, to leading order in κ = B_e/ω_e: the x⁴ coefficient of the rotating
+ * oscillator's energy min_ρ [a0 ρ²(1 + a1 ρ + a2 ρ²) + B x (1 + ρ)⁻²], ρ = (r − r_e)/r_e, a0 = ω_e²/(4B_e):
+ *   L_e = −16 B_e⁷ P / ω_e⁶,  P = 9a1² + 36a1 − 4a2 + 52,
+ * with a1 = −1 − α_e ω_e/(6B_e²) (from Y11) and a2 = 2Y20/(3B_e) + 5a1²/4, Y20 = −ω_e x_e (from Y20). The same
+ * expansion gives Kratzer's D_e = 4B³/ω² and Dunham's H_e = 16B⁵(3 + a1)/ω⁴ (= the H_e relation of SCIENCE.md §9),
+ * so it is the Dunham/Kratzer-type estimate one order further (series worked out for this project; derivation in
+ * DEVELOPERS.md). P is a difference of terms of order 50–100 that cancels to a few units (¹²C¹⁶O 2.3, H³⁵Cl 2.5;
+ * a Morse potential, a2 = 7a1²/12, gives P = (20/3)a1² + 36a1 + 52 ≥ 3.4: L_e < 0 for every Morse-like
+ * potential), so the prior's σ is stated on P: max(½|P|, 1) (a 1–2 % error in a1 or a2), and max(|P|, 2) when
+ * ω_e x_e is unknown and a2 is taken from the Morse form. ¹²C¹⁶O: L_e = −3.6e-17 cm⁻¹ against −3.65e-17 from a
+ * fit of the database pure-rotation lines to x⁵ (test/fit/high-order-priors.test.ts).
+ */
+export function lFromPotential(B: number, omega: number, a1: number, a2: number): number {
+  const p = 9 * a1 * a1 + 36 * a1 - 4 * a2 + 52;
+  return (-16 * B ** 7 * p) / omega ** 6;
+}
+
+function lPrior(
+  ref: Reference,
+  Bv: number,
+  omega: number | undefined,
+  omegaBasis: string,
+  fittedAlpha: number | undefined,
+): DunhamEstimate | undefined {
+  const B = ref.B_e ?? Bv;
+  const alpha = ref.alpha_e ?? fittedAlpha;
+  if (omega === undefined || !(omega > 0) || alpha === undefined || !(B > 0)) return undefined;
+  const a1 = -1 - (alpha * omega) / (6 * B * B);
+  const morse = ref.omega_e_x_e === undefined;
+  const a2 = morse ? (7 * a1 * a1) / 12 : (-2 * (ref.omega_e_x_e as number)) / (3 * B) + (5 * a1 * a1) / 4;
+  const p = 9 * a1 * a1 + 36 * a1 - 4 * a2 + 52;
+  const unit = (16 * B ** 7) / omega ** 6;
+  const sigmaP = morse ? Math.max(Math.abs(p), 2) : Math.max(0.5 * Math.abs(p), 1);
+  const value = -unit * p;
+  if (!Number.isFinite(value) || !(unit > 0)) return undefined;
+  return {
+    value,
+    sigma: unit * sigmaP,
+    basis: `L_v ≈ L_e = −16B_e⁷P/ω_e⁶, P = 9a1² + 36a1 − 4a2 + 52 = ${p.toPrecision(3)} (Dunham's a1 from α_e${ref.alpha_e !== undefined ? ' of the library' : ' of the fitted B_v'}, a2 from ${morse ? 'the Morse form 7a1²/12' : 'ω_e x_e of the library'}; ${omegaBasis}), σ_P = ${sigmaP.toPrecision(2)}`,
+  };
+}
+
 function hPrior(
   s: string,
   ref: Reference,
@@ -264,8 +338,9 @@ function hPrior(
 
 /**
  * Priors for the Dunham terms next to the kept ones that a real molecule has: Y30 (ω_e y_e) next to Y20, Y21 (γ_e)
- * next to Y11, Y12 (−β_e) next to Y02, Y02 (−D_e) when no level fitted D, and Y03 (H_e) next to Y02. Library values
- * where it has them (± 50 %), the H_e relation for Y03, a scale prior 0 ± 5κ|Y_{k−1,l}| otherwise.
+ * next to Y11, Y12 (−β_e) next to Y02, Y02 (−D_e) when no level fitted D, Y03 (H_e) next to Y02 and Y04 (L_e) next
+ * to Y03. Library values where it has them (± 50 %), the H_e relation for Y03, Dunham's L_e estimate for Y04, a
+ * scale prior 0 ± 5κ|Y_{k−1,l}| otherwise.
  */
 export function dunhamPriors(
   species: string,
@@ -329,6 +404,11 @@ export function dunhamPriors(
           basis: 'H_e ≈ 2D_e(12B_e² − α_e ω_e)/(3ω_e²) (Dunham relation), ± 50 %',
         });
     }
+  }
+  if (has(0, 3) && !has(0, 4) && B !== undefined) {
+    const fittedAlpha = y(1, 1);
+    const l = lPrior(ref, B, omega, 'ω_e of the fit', fittedAlpha === undefined ? undefined : -fittedAlpha);
+    if (l) out.push({ key: `${species}|Y|0,4`, value: l.value, sigma: l.sigma, term: { k: 0, l: 4 }, basis: l.basis });
   }
   return out;
 }

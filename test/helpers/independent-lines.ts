@@ -7,9 +7,9 @@
  *
  * Term value (Herzberg's customary expansion, equivalent to Dunham's with Y30 = ω_e y_e, Y21 = γ_e, Y12 = −β_e,
  * Y03 = H_e):
- *   E(v, J) = G(v) + B_v x − D_v x² + H_v x³,  x = J(J+1),  u = v + ½
+ *   E(v, J) = G(v) + B_v x − D_v x² + H_v x³ + L_v x⁴,  x = J(J+1),  u = v + ½
  *   G(v) = ω_e u − ω_e x_e u² + ω_e y_e u³ + ω_e z_e u⁴
- *   B_v = B_e − α_e u + γ_e u²,  D_v = D_e + β_e u,  H_v = H_e
+ *   B_v = B_e − α_e u + γ_e u²,  D_v = D_e + β_e u,  H_v = H_e,  L_v = L_e (0 unless a test sets it)
  * Lines: R(J″) ends on J′ = J″ + 1, P(J″) on J′ = J″ − 1, Q(J″) on J′ = J″ (for the validator's sake only: a
  * ¹Σ–¹Σ band has none). Intensities: Boltzmann population of the lower level, Hönl–London factor (R: J″+1,
  * P: J″, Q: 2J″+1), the wavenumber and the stimulated-emission factor 1 − exp(−c₂ν/T).
@@ -32,6 +32,8 @@ export interface CustomaryConstants {
   readonly D_e: SourcedValue;
   readonly beta_e: SourcedValue;
   readonly H_e: SourcedValue;
+  /** L_e (x⁴ term, L_v = L_e); absent means 0. */
+  readonly L_e?: SourcedValue;
 }
 
 export interface MoleculeConstants {
@@ -123,7 +125,8 @@ export function termValue(c: CustomaryConstants, v: number, j: number): number {
   const bv = c.B_e.value - c.alpha_e.value * u + c.gamma_e.value * u * u;
   const dv = c.D_e.value + c.beta_e.value * u;
   const hv = c.H_e.value;
-  return g + bv * x - dv * x * x + hv * x * x * x;
+  const lv = c.L_e?.value ?? 0;
+  return g + bv * x - dv * x * x + hv * x * x * x + lv * x * x * x * x;
 }
 
 /** The rotational constants of level v (for checks against published B_v, D_v, H_v). */
