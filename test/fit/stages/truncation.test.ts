@@ -69,7 +69,7 @@ describe('dunhamPriors', () => {
   });
 
   it('terms already fitted, or without the term below, get no prior', () => {
-    const more = [...terms, { k: 3, l: 0 }, { k: 2, l: 1 }, { k: 1, l: 2 }, { k: 0, l: 3 }];
+    const more = [...terms, { k: 3, l: 0 }, { k: 2, l: 1 }, { k: 1, l: 2 }, { k: 0, l: 3 }, { k: 0, l: 4 }];
     expect(dunhamPriors('12C-16O', more, values)).toEqual([]);
     // Only Y10 and Y01: no Y30 (needs Y20), no Y21 (needs Y11); Y02 from the library's D_e; no Y03 (needs Y02).
     const two = dunhamPriors(
@@ -194,23 +194,52 @@ describe('constrainLevelModel', () => {
     );
   });
 
-  it('levels fitted to H take L = 0 ± 10 (B_v/ω_e)² max(|H_v|, σ_H); levels fitted to M take nothing', () => {
+  it("CO levels fitted to H take Dunham's L_e from the library constants: −3.61e-17 cm⁻¹ (P = 2.349 by hand)", () => {
     const sel = selectLevelModel(list(45, 1e-4), 3, 'a-posteriori', 0.01);
     expect([...sel.orders.values()]).toEqual([3, 3, 3]);
     const r = constrainLevelModel(sel, 'absolute');
     expect(r.constraints.map((c) => c.parameter)).toEqual(['L_0', 'L_1', 'L_2']);
-    const p = sel.fit.model.parameters.length;
-    for (const [v, c] of r.constraints.entries()) {
-      const i = sel.fit.model.parameters.findIndex((q) => q.name === `H_${v}`);
-      const size = Math.max(Math.abs(sel.fit.values[i] as number), Math.sqrt(sel.fit.covariance[i * p + i] as number));
-      const kappa = named(sel, `B_${v}`) / HH.omega_e;
-      expect(c.prior.value).toBe(0);
-      expect(c.prior.uncertainty / (HIGH_ORDER_PRIOR_FACTOR * kappa ** 2 * size)).toBeCloseTo(1, 12);
+    // L_e = −16B_e⁷P/ω_e⁶, P = 9a1² + 36a1 − 4a2 + 52, a1 = −1 − α_e ω_e/(6B_e²), a2 = −2ω_e x_e/(3B_e) + 5a1²/4,
+    // worked out here with the Huber & Herzberg constants: a1 = −2.6972, a2 = 4.507, P = 2.349, L_e = −3.61e-17,
+    // within 3 % of −3.65e-17 from a fit of the real CO database pure-rotation lines to x⁵ (test/fit/high-order-priors).
+    const a1 = -1 - (HH.alpha_e * HH.omega_e) / (6 * HH.B_e ** 2);
+    const a2 = (-2 * HH.omega_e_x_e) / (3 * HH.B_e) + (5 * a1 * a1) / 4;
+    const P = 9 * a1 * a1 + 36 * a1 - 4 * a2 + 52;
+    expect(P).toBeCloseTo(2.349, 3);
+    const unit = (16 * HH.B_e ** 7) / HH.omega_e ** 6;
+    for (const c of r.constraints) {
+      expect(c.prior.value / (-unit * P)).toBeCloseTo(1, 6);
+      expect(Math.abs(c.prior.value / -3.65e-17 - 1)).toBeLessThan(0.03);
+      // σ stated on P: max(½|P|, 1).
+      expect(c.prior.uncertainty / (unit * Math.max(0.5 * P, 1))).toBeCloseTo(1, 6);
       expect(c.basis).toBe(
-        'not determined by the lines: 0 ± 10 (B_v/ω_e)² |H_v| (Dunham ordering, ω_e from the reference library)',
+        `L_v ≈ L_e = −16B_e⁷P/ω_e⁶, P = 9a1² + 36a1 − 4a2 + 52 = ${P.toPrecision(3)} (Dunham's a1 from α_e of the library, a2 from ω_e x_e of the library; ω_e from the reference library), σ_P = ${Math.max(0.5 * P, 1).toPrecision(2)}`,
       );
     }
     const full = { fit: sel.fit, orders: new Map([...sel.orders].map(([k]) => [k, 5])) };
     expect(constrainLevelModel(full, 'absolute')).toEqual({ level: full, constraints: [] });
+  });
+
+  it('without α_e (not in the library, no neighbouring level) L = 0 ± 10 (B_v/ω_e)² max(|H_v|, σ_H); M likewise', () => {
+    // Band 2-0 of a species the library lacks: levels 0 and 2, so no α_e from adjacent levels; ω_e ≈ (T_2 − T_0)/2.
+    const { obs } = generated({ molecule: CO_12_16, bands: [{ upper: 2, lower: 0, jMax: 45 }], sigma: 1e-4, seed: 62 });
+    const xx = obs.map((o) => ({ ...o, species: 'XX' }));
+    const sel = selectLevelModel(xx, 3, 'a-posteriori', 0.01);
+    expect([...sel.orders.values()]).toEqual([3, 3]);
+    const r = constrainLevelModel(sel, 'absolute');
+    expect(r.constraints.map((c) => c.parameter)).toEqual(['L_0', 'L_2']);
+    const p = sel.fit.model.parameters.length;
+    const omega = named(sel, 'T_2-T_0') / 2;
+    for (const c of r.constraints) {
+      const v = Number(c.parameter.slice(2));
+      const i = sel.fit.model.parameters.findIndex((q) => q.name === `H_${v}`);
+      const size = Math.max(Math.abs(sel.fit.values[i] as number), Math.sqrt(sel.fit.covariance[i * p + i] as number));
+      const kappa = named(sel, `B_${v}`) / omega;
+      expect(c.prior.value).toBe(0);
+      expect(c.prior.uncertainty / (HIGH_ORDER_PRIOR_FACTOR * kappa ** 2 * size)).toBeCloseTo(1, 12);
+      expect(c.basis).toBe(
+        'not determined by the lines: 0 ± 10 (B_v/ω_e)² |H_v| (Dunham ordering, ω_e ≈ the fitted vibrational interval)',
+      );
+    }
   });
 });
