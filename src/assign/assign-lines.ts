@@ -7,6 +7,7 @@ import {
   type LineInput,
   type Warning,
 } from '../fit/fit-lines.js';
+import type { ScatterEstimate } from '../fit/weights.js';
 import { solveLeastSquares } from '../linalg/least-squares.js';
 import { formatBand, type Transition, transitionKey, transitionLabel } from '../models/transitions.js';
 import { constantsFor, dunhamFromEntry } from '../species/library.js';
@@ -76,8 +77,17 @@ export interface AssignResult {
   readonly warnings: readonly Warning[];
 }
 
-const bandKey = (c: { species: string; band: { upper: number; lower: number } }) =>
-  `${c.species}|${formatBand(c.band)}`;
+type BandOf = { readonly species: string; readonly band: { readonly upper: number; readonly lower: number } };
+/** "species|v′-v″", made once per candidate or given transition (the loop asks for it many times a round). */
+const bandKeys = new WeakMap<BandOf, string>();
+const bandKey = (c: BandOf): string => {
+  let k = bandKeys.get(c);
+  if (k === undefined) {
+    k = `${c.species}|${formatBand(c.band)}`;
+    bandKeys.set(c, k);
+  }
+  return k;
+};
 /** Lines the reference constants predict reliably enough to start from, before any fit (J″ ≤ this). */
 const START_J = 4;
 /** How far past the highest matched J a fitted band may reach in one step (at least; half the reach beyond). */
@@ -90,6 +100,12 @@ const K_FITTED = 5;
 const FEW_LINES = 30;
 /** Largest ratio of a fitted prediction's standard uncertainty to the scatter of the lines. */
 const MAX_MODEL_TO_NOISE = 2;
+/**
+ * The inner fits reuse the previous round's scatter estimate of the lines without σ while each group has changed by
+ * at most this fraction of its lines since it was estimated (weights.ts#ScatterReuse); the final fit estimates its
+ * own.
+ */
+const SCATTER_REUSE_GROWTH = 0.1;
 /** Lines of a band below which its scatter is pooled with all bands. */
 const MIN_FOR_OWN_SCATTER = 8;
 
@@ -119,7 +135,14 @@ export function assignAndFit(
     ctx.minLines,
   );
   ctx.warnings.push(...ambiguousOffsetWarnings(offsets));
-  const state: LoopState = { auto: new Map(), detailed: undefined, competitions: [], swept: false, banned: new Map() };
+  const state: LoopState = {
+    auto: new Map(),
+    detailed: undefined,
+    detailedIsOfAuto: false,
+    competitions: [],
+    swept: false,
+    banned: new Map(),
+  };
   for (let pass = 0; pass < 2; pass++) {
     iterateAssignment(ctx, offsets, state);
     // Second pass, when many lines are left: weaker bands that share a level with a fitted band may seed too (a hot
@@ -142,16 +165,22 @@ interface AssignContext {
   readonly hi: number;
   /** Every line of every plausible band in the window, down to any intensity. */
   readonly cands: readonly CandidateLine[];
-  /** Per candidate: its transition key and its band key, made once. */
+  /** Per candidate: its transition key, its band key and its band's number in `bandKeys`, made once. */
   readonly candKeys: readonly string[];
   readonly candBands: readonly string[];
+  readonly candBand: Int32Array;
+  /** The band keys of the candidates, numbered. */
+  readonly bands: readonly string[];
+  /** A candidate's number in `cands`. */
+  readonly candIndex: ReadonlyMap<CandidateLine, number>;
+  /** Whether a candidate's transition was sent with a given assignment (never predicted). */
+  readonly candGiven: Uint8Array;
   /** Which candidates may seed a band (strong enough); the second pass widens it. */
   readonly seedable: boolean[];
   /** Per band, the median distance between neighbouring lines of one branch. */
   readonly spacing: ReadonlyMap<string, number>;
-  /** Lines sent with an assignment, and their transition keys. */
+  /** Lines sent with an assignment. */
   readonly given: readonly { readonly index: number; readonly t: Transition }[];
-  readonly givenKeys: ReadonlySet<string>;
   /** Lines sent without one, all and per source. */
   readonly free: readonly ObservedPeak[];
   readonly sources: readonly string[];
@@ -169,6 +198,8 @@ interface AssignContext {
 interface LoopState {
   auto: Map<number, CandidateLine>;
   detailed: DetailedFit | undefined;
+  /** Whether `detailed` is the fit of exactly `auto` (a refit after withdrawals can fail). */
+  detailedIsOfAuto: boolean;
   competitions: Competition[];
   /** Whether the withdrawn pairs had their last chance against a settled model. */
   swept: boolean;
@@ -176,7 +207,7 @@ interface LoopState {
    * Withdrawn pairs: tried again once the band has grown (a line off an early, short fit may suit the final one),
    * but never a fourth time.
    */
-  readonly banned: Map<string, { at: number; count: number }>;
+  readonly banned: Map<number, { at: number; count: number }>;
 }
 
 function prepareAssignment(
@@ -200,6 +231,7 @@ function prepareAssignment(
   const sourceOf = (i: number) => peaks[i]?.source ?? '';
   const withSigma = peaks.flatMap((p) => (p.uncertainty !== undefined ? [p.uncertainty] : []));
   const sources = [...new Set(free.map((p) => sourceOf(p.index)))];
+  const index = candidateIndex(cands, given);
   return {
     peaks,
     species,
@@ -208,12 +240,10 @@ function prepareAssignment(
     lo,
     hi,
     cands,
-    candKeys: cands.map(transitionKey),
-    candBands: cands.map(bandKey),
+    ...index,
     seedable: seedFilter(cands, options.minRelativeIntensity ?? 1e-4),
-    spacing: lineSpacings(cands),
+    spacing: lineSpacings({ cands, ...index }),
     given,
-    givenKeys: new Set(given.map((g) => transitionKey(g.t))),
     free,
     sources,
     freeBySource: new Map(sources.map((s) => [s, free.filter((p) => sourceOf(p.index) === s)])),
@@ -224,6 +254,37 @@ function prepareAssignment(
     notes: new Map(),
   };
 }
+
+/** The candidates' keys and numbers, made once for the loop's look-ups. */
+function candidateIndex(
+  cands: readonly CandidateLine[],
+  given: readonly { readonly t: Transition }[],
+): Pick<AssignContext, 'candKeys' | 'candBands' | 'candBand' | 'bands' | 'candIndex' | 'candGiven'> {
+  const givenKeys = new Set(given.map((g) => transitionKey(g.t)));
+  const candKeys = cands.map(transitionKey);
+  const candBands = cands.map(bandKey);
+  const number = new Map<string, number>();
+  const candBand = Int32Array.from(candBands, (k) => {
+    let b = number.get(k);
+    if (b === undefined) {
+      b = number.size;
+      number.set(k, b);
+    }
+    return b;
+  });
+  return {
+    candKeys,
+    candBands,
+    candBand,
+    bands: [...number.keys()],
+    candIndex: new Map(cands.map((c, i) => [c, i])),
+    candGiven: Uint8Array.from(candKeys, (k) => (givenKeys.has(k) ? 1 : 0)),
+  };
+}
+
+/** A withdrawn pair (peak, candidate) as one number. */
+const pairKey = (ctx: AssignContext, peak: number, c: CandidateLine) =>
+  peak * ctx.cands.length + (ctx.candIndex.get(c) as number);
 
 /** The lines sent without an assignment, as the matcher takes them. */
 function freePeaks(peaks: readonly PeakInput[]): ObservedPeak[] {
@@ -290,14 +351,16 @@ function iterateAssignment(ctx: AssignContext, offsets: OffsetVotes, state: Loop
     pruneThinBands(next, ctx.minLines, ctx.given);
     pruneImplausibleBands(next, ctx.peaks);
     if (next.size === 0 && ctx.given.length === 0) break;
-    const fit = fitDroppingThinBands(ctx, next);
+    const fit = roundFit(ctx, state, next);
     if (!fit) break;
     const rejected = withdrawRejected(ctx, fit, next, state.banned, iter);
     const stray = withdrawStrayBands(ctx, fit, next, state.banned, iter);
     const withdrawn = rejected + stray;
     const same = withdrawn === 0 && sameAssignments(state.auto, next);
     state.auto = next;
-    state.detailed = withdrawn > 0 ? (tryFit(ctx, lineInputs(ctx, next)) ?? fit) : fit;
+    const refit = withdrawn > 0 ? tryFit(ctx, lineInputs(ctx, next), fit.scatterEstimate) : fit;
+    state.detailed = refit ?? fit;
+    state.detailedIsOfAuto = refit !== undefined;
     if (same) {
       if (state.swept || state.banned.size === 0) break;
       state.swept = true;
@@ -306,15 +369,24 @@ function iterateAssignment(ctx: AssignContext, offsets: OffsetVotes, state: Loop
   }
 }
 
-const isBanned = (banned: LoopState['banned'], k: string, iter: number) => {
+/**
+ * The fit of this round's assignment: the last round's when the assignment has not changed since (the same lines
+ * with the same weights give the same fit), else a new one.
+ */
+function roundFit(ctx: AssignContext, state: LoopState, next: Map<number, CandidateLine>): DetailedFit | undefined {
+  if (state.detailed && state.detailedIsOfAuto && sameAssignments(state.auto, next)) return state.detailed;
+  return fitDroppingThinBands(ctx, next, state.detailed?.scatterEstimate);
+}
+
+const isBanned = (banned: LoopState['banned'], k: number, iter: number) => {
   const b = banned.get(k);
   return b !== undefined && (b.count >= 3 || iter - b.at < 4);
 };
 
 /** What the predictions of one round are made from: the last fit and what it has assigned. */
 interface RoundModel {
-  /** Highest J″ assigned per band. */
-  readonly reach: ReadonlyMap<string, number>;
+  /** Highest J″ assigned per band (by its number in AssignContext.bands; −1 when none). */
+  readonly reach: Int32Array;
   /** Observed/predicted intensity per band (and per class under '#ir' and '#rot'). */
   readonly scale: ReadonlyMap<string, number>;
   readonly residuals: ResidualStatistics | undefined;
@@ -344,29 +416,36 @@ function matchRound(
   const next = new Map<number, CandidateLine>();
   const competitions: Competition[] = [];
   for (const src of ctx.sources) {
-    const byKey = new Map<string, CandidateLine>();
+    const candOf = new Map<Prediction, CandidateLine>();
     const preds: Prediction[] = [];
     ctx.cands.forEach((c, ci) => {
       const p = predictionOf(ctx, offsets, model, c, ci, src);
       if (!p) return;
-      byKey.set(p.key, c);
+      candOf.set(p, c);
       preds.push(p);
     });
     const m = matchLines(preds, ctx.freeBySource.get(src) ?? []);
     for (const x of m.matches) {
-      if (isBanned(state.banned, `${x.peak.index}|${x.prediction.key}`, iter)) continue;
-      next.set(x.peak.index, byKey.get(x.prediction.key) as CandidateLine);
+      const c = candOf.get(x.prediction) as CandidateLine;
+      if (isBanned(state.banned, pairKey(ctx, x.peak.index, c), iter)) continue;
+      next.set(x.peak.index, c);
     }
     competitions.push(...m.competitions);
   }
   return { next, competitions };
 }
 
-/** Highest J″ assigned per band, automatic or given. */
-function bandReach(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>): Map<string, number> {
-  const reach = new Map<string, number>();
-  for (const c of auto.values()) reach.set(bandKey(c), Math.max(reach.get(bandKey(c)) ?? 0, c.j));
-  for (const g of ctx.given) reach.set(bandKey(g.t), Math.max(reach.get(bandKey(g.t)) ?? 0, g.t.j));
+/** Highest J″ assigned per band (by number; −1 when none), automatic or given. */
+function bandReach(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>): Int32Array {
+  const reach = new Int32Array(ctx.bands.length).fill(-1);
+  const raise = (b: number | undefined, j: number) => {
+    if (b !== undefined && j > (reach[b] as number)) reach[b] = j;
+  };
+  for (const c of auto.values()) raise(ctx.candBand[ctx.candIndex.get(c) as number], Math.max(c.j, 0));
+  if (ctx.given.length > 0) {
+    const number = new Map(ctx.bands.map((k, b) => [k, b]));
+    for (const g of ctx.given) raise(number.get(bandKey(g.t)), Math.max(g.t.j, 0));
+  }
   return reach;
 }
 
@@ -383,12 +462,17 @@ function predictionOf(
   ci: number,
   src: string,
 ): Prediction | undefined {
+  if (ctx.candGiven[ci] === 1) return undefined;
   const key = ctx.candKeys[ci] as string;
-  if (ctx.givenKeys.has(key)) return undefined;
   const bk = ctx.candBands[ci] as string;
+  const b = model.reach[ctx.candBand[ci] as number] as number;
+  const reach = b >= 0 ? b : undefined;
+  // Beyond the farthest either placement may reach (a band without lines reaches from START_J): no prediction, and
+  // none of the fit is asked for.
+  if (outOfReach(c.j, reach ?? START_J)) return undefined;
   // A band whose two levels are both fitted (through other bands) is predicted by the fit, matched or not.
   const fitted = model.detailed?.predict(c);
-  const r = model.reach.get(bk) ?? (fitted ? START_J : undefined);
+  const r = reach ?? (fitted ? START_J : undefined);
   const placed =
     fitted && r !== undefined && model.residuals
       ? fittedPrediction(ctx, offsets, model.residuals, c, bk, fitted, r, src)
@@ -406,6 +490,12 @@ function predictionOf(
 
 type Placement = Omit<Prediction, 'key'>;
 
+/**
+ * Whether J″ lies past what a band of reach r may take in one round: a fitted band grows by max(GROWTH_J, r/2), a
+ * reference placement by GROWTH_J (never further).
+ */
+const outOfReach = (j: number, r: number) => j > r + Math.max(GROWTH_J, Math.floor(r / 2));
+
 /** A fitted band's prediction, grown a few lines past its reach; undefined where the model has run out. */
 function fittedPrediction(
   ctx: AssignContext,
@@ -417,7 +507,7 @@ function fittedPrediction(
   r: number,
   src: string,
 ): Placement | undefined {
-  if (c.j > r + Math.max(GROWTH_J, Math.floor(r / 2))) return undefined;
+  if (outOfReach(c.j, r)) return undefined;
   const st = residuals.of(bk, src);
   // Where the model's own uncertainty exceeds the scatter of the lines (twice it), the data have run out
   // for this model: it must not reach further until nearer lines have sharpened it.
@@ -453,12 +543,16 @@ function referencePrediction(
 }
 
 /** The fit of a round; when it cannot be made (too few lines or rank deficient), the thinnest band goes and again. */
-function fitDroppingThinBands(ctx: AssignContext, next: Map<number, CandidateLine>): DetailedFit | undefined {
-  let fit = tryFit(ctx, lineInputs(ctx, next));
+function fitDroppingThinBands(
+  ctx: AssignContext,
+  next: Map<number, CandidateLine>,
+  scatter: ScatterEstimate | undefined,
+): DetailedFit | undefined {
+  let fit = tryFit(ctx, lineInputs(ctx, next), scatter);
   while (!fit && next.size > 0) {
     const thinnest = thinnestBand(next);
     for (const [i, c] of next) if (bandKey(c) === thinnest) next.delete(i);
-    fit = tryFit(ctx, lineInputs(ctx, next));
+    fit = tryFit(ctx, lineInputs(ctx, next), scatter);
   }
   return fit;
 }
@@ -485,8 +579,8 @@ function withdrawRejected(
   for (const l of fit.result.lines) {
     const c = next.get(l.index);
     if (c && l.status === 'rejected' && !explained(ctx, fit, stats, c, l)) {
-      const bk = `${l.index}|${transitionKey(c)}`;
-      banned.set(bk, { at: iter, count: (banned.get(bk)?.count ?? 0) + 1 });
+      const k = pairKey(ctx, l.index, c);
+      banned.set(k, { at: iter, count: (banned.get(k)?.count ?? 0) + 1 });
       next.delete(l.index);
       ctx.notes.set(
         l.index,
@@ -513,7 +607,7 @@ function withdrawStrayBands(
   for (const bk of strayBands(fit, next, ctx.species)) {
     for (const [i, c] of next) {
       if (bandKey(c) !== bk) continue;
-      banned.set(`${i}|${transitionKey(c)}`, { at: iter, count: 3 });
+      banned.set(pairKey(ctx, i, c), { at: iter, count: 3 });
       next.delete(i);
       ctx.notes.set(
         i,
@@ -615,7 +709,7 @@ function nothingAssigned(ctx: AssignContext): ScienceError {
 }
 
 /** The level fit of a round; undefined when too few lines or a rank deficiency leave it impossible. */
-function tryFit(ctx: AssignContext, lines: LineInput[]): DetailedFit | undefined {
+function tryFit(ctx: AssignContext, lines: LineInput[], scatter?: ScatterEstimate): DetailedFit | undefined {
   try {
     // Few lines: B and D only, so that extrapolation to the next lines is not led astray by terms fitted to noise.
     const n = lines.filter((l) => l.assignment).length;
@@ -624,6 +718,7 @@ function tryFit(ctx: AssignContext, lines: LineInput[]): DetailedFit | undefined
       ...(ctx.options.fit ?? {}),
       levelsOnly: true,
       maxCentrifugalOrder: order,
+      ...(scatter ? { reuseScatter: { from: scatter, growth: SCATTER_REUSE_GROWTH } } : {}),
     });
   } catch (e) {
     if (
@@ -1058,26 +1153,30 @@ function strayBands(
 }
 
 /** Per band, the median distance between neighbouring lines of one branch (about 2B). */
-function lineSpacings(cands: readonly CandidateLine[]): Map<string, number> {
-  const byBranch = new Map<string, Map<number, number>>();
-  for (const c of cands) {
-    const k = `${bandKey(c)}#${c.branch}`;
-    const m = byBranch.get(k) ?? new Map<number, number>();
+function lineSpacings(ctx: Pick<AssignContext, 'cands' | 'candBand' | 'bands'>): Map<string, number> {
+  // Per band and branch (3b + 0, 1, 2 for P, Q, R), the position of each J″: the last candidate of a J wins.
+  const byBranch = new Map<number, Map<number, number>>();
+  ctx.cands.forEach((c, ci) => {
+    const k = 3 * (ctx.candBand[ci] as number) + (c.branch === 'P' ? 0 : c.branch === 'Q' ? 1 : 2);
+    let m = byBranch.get(k);
+    if (!m) {
+      m = new Map<number, number>();
+      byBranch.set(k, m);
+    }
     m.set(c.j, c.position);
-    byBranch.set(k, m);
-  }
-  const d = new Map<string, number[]>();
+  });
+  const d = new Map<number, number[]>();
   for (const [k, m] of byBranch) {
-    const bk = k.slice(0, k.lastIndexOf('#'));
-    const list = d.get(bk) ?? [];
+    const b = Math.floor(k / 3);
+    const list = d.get(b) ?? [];
     for (const [j, x] of m) {
       const y = m.get(j + 1);
       if (y !== undefined) list.push(Math.abs(y - x));
     }
-    d.set(bk, list);
+    d.set(b, list);
   }
   const out = new Map<string, number>();
-  for (const [k, list] of d) if (list.length > 0) out.set(k, robustMedian(list));
+  for (const [b, list] of d) if (list.length > 0) out.set(ctx.bands[b] as string, robustMedian(list));
   return out;
 }
 

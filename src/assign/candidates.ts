@@ -67,6 +67,15 @@ export function candidateLines(
     const y = dunhamFromEntry(entry);
     const energy = compileDunham(y);
     const e00 = energy(0, 0);
+    const rising = new Map<number, number>();
+    const risingOf = (v: number) => {
+      let r = rising.get(v);
+      if (r === undefined) {
+        r = risingUpTo(energy, v);
+        rising.set(v, r);
+      }
+      return r;
+    };
     for (let lower = 0; lower <= (options.maxLowerV ?? 4); lower++) {
       const population = Math.exp((-SECOND_RADIATION_CM_K / T) * (energy(lower, 0) - e00));
       if (population < 1e-6) break;
@@ -75,7 +84,7 @@ export function candidateLines(
         const strength = bandStrengthGuess(band) * abundance;
         // Beyond the J where a level's energy polynomial stops rising, its predictions are artefacts of the
         // truncated expansion (hydrides reach it near J ≈ 100): no line is predicted past the first such J.
-        const jTop = Math.min(maxJ, risingUpTo(energy, lower), risingUpTo(energy, lower + dv) - 1);
+        const jTop = Math.min(maxJ, risingOf(lower), risingOf(lower + dv) - 1);
         for (const p of predictBand(y, band, jTop)) {
           if (p.position < lo || p.position > hi) continue;
           const intensity = strength * relativeIntensity(p.position, p.branch, p.j, p.lowerEnergy, T);

@@ -16,7 +16,7 @@ import { rescaleStatedUncertainties } from './stated-scale.js';
 import { constrainLevelModel, type TermConstraint } from './truncation.js';
 import type { DetailedFit, DunhamFit, FitOptions, FitResult, LineInput, Statistics, Warning } from './types.js';
 import { absoluteScaleWarnings, checkRepeats, qualityWarnings } from './warnings.js';
-import { type WeightedLines, weighLines } from './weights.js';
+import { type ScatterReuse, type WeightedLines, weighLines } from './weights.js';
 
 export type { TermConstraint } from './truncation.js';
 export type {
@@ -79,7 +79,7 @@ export function fitLineListDetailed(
     maxOrder: Math.max(1, Math.min(MAX_CENTRIFUGAL_ORDER, Math.floor(opt.maxCentrifugalOrder))),
     alpha: opt.termSignificance,
   };
-  const prepared = prepareObservations(input, masses, opt.uncertaintyMode, settings);
+  const prepared = prepareObservations(input, masses, opt.uncertaintyMode, settings, opt.reuseScatter);
   const { warnings } = prepared;
   const kept = selectAndReject(prepared, opt, settings);
   const selected = kept.level.fit;
@@ -168,12 +168,16 @@ function prepareObservations(
   masses: ReadonlyMap<string, MassValue>,
   asked: UncertaintyMode,
   settings: FitSettings,
+  reuseScatter?: ScatterReuse,
 ): PreparedObservations {
   const read = readLines(input, masses);
-  const weighted = weighLines(input, read.observations, {
-    maxOrder: settings.maxOrder,
-    termSignificance: settings.alpha,
-  });
+  const weighted = weighLines(
+    input,
+    read.observations,
+    { maxOrder: settings.maxOrder, termSignificance: settings.alpha },
+    undefined,
+    reuseScatter,
+  );
   const warnings: Warning[] = [...weighted.warnings];
   const given = input.filter((l) => l.uncertainty !== undefined).length;
   let mode = asked;
@@ -334,6 +338,7 @@ function detailedFit(
   const scale = mode === 'absolute' ? 1 : (reducedChiSquare(selected) ?? 1);
   return {
     result,
+    ...(weighted.estimate ? { scatterEstimate: weighted.estimate } : {}),
     scale: reducedChiSquare(selected) ?? 1,
     predict(tr: Transition) {
       const r = ref.get(tr.species);

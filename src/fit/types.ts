@@ -4,7 +4,7 @@ import type { Branch, Transition } from '../models/transitions.js';
 import type { CombinationDifferenceFit } from './combination-differences.js';
 import type { UncertaintyMode } from './engine.js';
 import type { TermConstraint } from './truncation.js';
-import type { ScatterGroup } from './weights.js';
+import type { ScatterEstimate, ScatterGroup, ScatterReuse } from './weights.js';
 
 /** The types a line-list fit takes and returns (the stages in src/fit/ each fill a part of FitResult). */
 
@@ -37,6 +37,11 @@ export interface FitOptions {
    * automatic assignment). Default false.
    */
   readonly levelsOnly?: boolean;
+  /**
+   * An earlier fit's scatter estimate for the lines without σ, reused while their groups stand (see
+   * weights.ts#ScatterReuse; for the inner loop of automatic assignment, whose list grows a few lines a round).
+   */
+  readonly reuseScatter?: ScatterReuse;
 }
 
 export interface Warning {
@@ -162,4 +167,6 @@ export interface DetailedFit {
    * (a-posteriori mode). Use it with `predict(t).variance` for tolerances: |obs − pred| ≤ k √(σ² + var).
    */
   lineSigma(t: Transition, own?: { readonly uncertainty?: number; readonly source?: string }): number;
+  /** The scatter estimate of the lines without σ, when there were such lines (for `FitOptions.reuseScatter`). */
+  readonly scatterEstimate?: ScatterEstimate;
 }

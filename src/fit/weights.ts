@@ -22,6 +22,20 @@ export interface WeightedLines {
   /** σ for a line without an uncertainty: by source, by band ("species|upper-lower"), or pooled. */
   sigmaFor(species: string, band: string, source?: string): number;
   readonly warnings: readonly Warning[];
+  /** The scatter as estimated (or reused), for a later fit of a grown line list to reuse (`ScatterReuse`). */
+  readonly estimate?: ScatterEstimate;
+}
+
+/**
+ * A scatter estimate carried from one fit to the next over a list that grows (the inner fits of the automatic
+ * assignment): it is reused while the list holds the same groups of lines without σ, each within `growth` (a
+ * fraction) of the lines it had when it was estimated, none crossing MIN_SCATTER_GROUP; otherwise the scatter is
+ * estimated afresh. The estimate of a group of n lines is itself uncertain by about 1/√(2n) (±10 % at
+ * n = 50): a quarter more lines moves it by less than that.
+ */
+export interface ScatterReuse {
+  readonly from: ScatterEstimate;
+  readonly growth: number;
 }
 
 /** Groups smaller than this take the pooled estimate: the MAD of fewer lines is itself uncertain by > 35 %. */
@@ -56,6 +70,7 @@ export function weighLines(
   observations: readonly Observation[],
   fit: { readonly maxOrder: number; readonly termSignificance: number },
   hooks?: WeighHooks,
+  reuse?: ScatterReuse,
 ): WeightedLines {
   const given = input.filter((l) => l.uncertainty !== undefined).map((l) => l.uncertainty as number);
   const fallback = given.length > 0 ? median(given) : 1;
@@ -78,7 +93,9 @@ export function weighLines(
     return fixed(fallback);
   }
   if (missing.length === 0) return fixed(fallback);
-  const est = estimateScatter(input, observations, fallback, fit, hooks);
+  const est =
+    (reuse && reusedScatter(reuse, input, observations, fallback, hooks)) ??
+    estimateScatter(input, observations, fallback, fit, hooks);
   const groups = scatterGroups(est);
   if (groups.length > 0) {
     warnings.push({
@@ -99,11 +116,12 @@ export function weighLines(
       return sigmas.get(`band|${species}|${band}`) ?? finalPooled;
     },
     warnings,
+    estimate: est,
   };
 }
 
 /** What the estimating rounds leave: the reweighted observations, σ per group (key "source|…" or "band|…"), pooled σ. */
-interface ScatterEstimate {
+export interface ScatterEstimate {
   readonly observations: readonly Observation[];
   readonly sigmas: ReadonlyMap<string, number>;
   readonly pooled: number;
@@ -111,6 +129,67 @@ interface ScatterEstimate {
   readonly counts: ReadonlyMap<string, number>;
   /** Labels of band groups given by hooks (key without the "band|" prefix). */
   readonly labels: ReadonlyMap<string, string>;
+  /** The σ that lines without one started from (the median of the given ones, else 1). */
+  readonly fallback: number;
+  /** Lines without σ per group when the σ were estimated (a reused estimate keeps them). */
+  readonly estimatedAt: ReadonlyMap<string, number>;
+}
+
+/** The group of a line without σ: its source when it names one, else its band ("band|species|v′-v″" or the hook's). */
+function scatterGroupOf(
+  input: readonly SigmaInput[],
+  hooks: WeighHooks | undefined,
+  labels: Map<string, string>,
+): (o: Observation) => string {
+  return (o) => {
+    const source = input[o.index]?.source;
+    if (source !== undefined) return `source|${source}`;
+    if (!hooks) return `band|${bandKeyOf(o)}`;
+    const b = hooks.band(o);
+    labels.set(b.key, b.label);
+    return `band|${b.key}`;
+  };
+}
+
+/**
+ * The earlier estimate applied to these observations when its groups still stand (see ScatterReuse); undefined when
+ * they do not and the scatter must be estimated again.
+ */
+function reusedScatter(
+  reuse: ScatterReuse,
+  input: readonly SigmaInput[],
+  observations: readonly Observation[],
+  fallback: number,
+  hooks: WeighHooks | undefined,
+): ScatterEstimate | undefined {
+  const { from, growth } = reuse;
+  if (from.fallback !== fallback || from.estimatedAt.size === 0) return undefined;
+  const labels = new Map<string, string>();
+  const groupOf = scatterGroupOf(input, hooks, labels);
+  const counts = new Map<string, number>();
+  const groupOfLine = new Map<Observation, string>();
+  for (const o of observations) {
+    if (input[o.index]?.uncertainty !== undefined) continue;
+    const k = groupOf(o);
+    groupOfLine.set(o, k);
+    counts.set(k, (counts.get(k) ?? 0) + 1);
+  }
+  if (counts.size !== from.estimatedAt.size) return undefined;
+  for (const [k, n] of counts) {
+    const n0 = from.estimatedAt.get(k);
+    if (n0 === undefined || Math.abs(n - n0) > growth * n0) return undefined;
+    if (n >= MIN_SCATTER_GROUP !== n0 >= MIN_SCATTER_GROUP) return undefined;
+  }
+  const sigmaOf = (k: string) => from.sigmas.get(k) ?? from.pooled;
+  return {
+    ...from,
+    observations: reweighted(observations, (o) => {
+      const k = groupOfLine.get(o);
+      return k === undefined ? undefined : 1 / sigmaOf(k) ** 2;
+    }),
+    counts,
+    labels: new Map([...from.labels, ...labels]),
+  };
 }
 
 /**
@@ -127,14 +206,7 @@ function estimateScatter(
   hooks?: WeighHooks,
 ): ScatterEstimate {
   const labels = new Map<string, string>();
-  const groupOf = (o: Observation) => {
-    const source = input[o.index]?.source;
-    if (source !== undefined) return `source|${source}`;
-    if (!hooks) return `band|${bandKeyOf(o)}`;
-    const b = hooks.band(o);
-    labels.set(b.key, b.label);
-    return `band|${b.key}`;
-  };
+  const groupOf = scatterGroupOf(input, hooks, labels);
   const withoutSigma = (o: Observation) => input[o.index]?.uncertainty === undefined;
   let obs = reweighted(observations, (o) => (withoutSigma(o) ? 1 / fallback ** 2 : undefined));
   let sigmas = new Map<string, number>();
@@ -179,7 +251,7 @@ function estimateScatter(
     });
     obs = reweighted(observations, (o) => (withoutSigma(o) ? 1 / sigmaOf(o) ** 2 : undefined));
   }
-  return { observations: obs, sigmas, pooled, counts, labels };
+  return { observations: obs, sigmas, pooled, counts, labels, fallback, estimatedAt: counts };
 }
 
 /** The groups as reported: each with its own σ, and one pooled group for the lines of groups too small for one. */
