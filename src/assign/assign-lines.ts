@@ -175,6 +175,8 @@ interface AssignContext {
   readonly candIndex: ReadonlyMap<CandidateLine, number>;
   /** Whether a candidate's transition was sent with a given assignment (never predicted). */
   readonly candGiven: Uint8Array;
+  /** Per band (by number), its candidates in ascending J″. */
+  readonly bandCands: readonly Int32Array[];
   /** Which candidates may seed a band (strong enough); the second pass widens it. */
   readonly seedable: boolean[];
   /** Per band, the median distance between neighbouring lines of one branch. */
@@ -259,7 +261,7 @@ function prepareAssignment(
 function candidateIndex(
   cands: readonly CandidateLine[],
   given: readonly { readonly t: Transition }[],
-): Pick<AssignContext, 'candKeys' | 'candBands' | 'candBand' | 'bands' | 'candIndex' | 'candGiven'> {
+): Pick<AssignContext, 'candKeys' | 'candBands' | 'candBand' | 'bands' | 'candIndex' | 'candGiven' | 'bandCands'> {
   const givenKeys = new Set(given.map((g) => transitionKey(g.t)));
   const candKeys = cands.map(transitionKey);
   const candBands = cands.map(bandKey);
@@ -272,10 +274,17 @@ function candidateIndex(
     }
     return b;
   });
+  const members: number[][] = Array.from({ length: number.size }, () => []);
+  candBand.forEach((b, ci) => {
+    members[b]?.push(ci);
+  });
   return {
     candKeys,
     candBands,
     candBand,
+    bandCands: members.map((m) =>
+      Int32Array.from(m.sort((x, y) => (cands[x] as CandidateLine).j - (cands[y] as CandidateLine).j || x - y)),
+    ),
     bands: [...number.keys()],
     candIndex: new Map(cands.map((c, i) => [c, i])),
     candGiven: Uint8Array.from(candKeys, (k) => (givenKeys.has(k) ? 1 : 0)),
@@ -415,15 +424,17 @@ function matchRound(
   };
   const next = new Map<number, CandidateLine>();
   const competitions: Competition[] = [];
+  const near = withinReach(ctx, model.reach);
   for (const src of ctx.sources) {
     const candOf = new Map<Prediction, CandidateLine>();
     const preds: Prediction[] = [];
-    ctx.cands.forEach((c, ci) => {
+    for (const ci of near) {
+      const c = ctx.cands[ci] as CandidateLine;
       const p = predictionOf(ctx, offsets, model, c, ci, src);
-      if (!p) return;
+      if (!p) continue;
       candOf.set(p, c);
       preds.push(p);
-    });
+    }
     const m = matchLines(preds, ctx.freeBySource.get(src) ?? []);
     for (const x of m.matches) {
       const c = candOf.get(x.prediction) as CandidateLine;
@@ -433,6 +444,23 @@ function matchRound(
     competitions.push(...m.competitions);
   }
   return { next, competitions };
+}
+
+/**
+ * The candidates a round may predict, in their order in `cands`: per band those up to the farthest J″ its reach
+ * allows (see outOfReach); the rest of the band's candidates are not looked at.
+ */
+function withinReach(ctx: AssignContext, reach: Int32Array): Int32Array {
+  const out: number[] = [];
+  ctx.bandCands.forEach((list, b) => {
+    const r = reach[b] as number;
+    const rr = r >= 0 ? r : START_J;
+    for (const ci of list) {
+      if (outOfReach((ctx.cands[ci] as CandidateLine).j, rr)) break;
+      out.push(ci);
+    }
+  });
+  return Int32Array.from(out).sort();
 }
 
 /** Highest J″ assigned per band (by number; −1 when none), automatic or given. */
@@ -765,27 +793,26 @@ type BandCount = BandSummary & { seeds: CandidateLine[] };
 
 /** Per band: lines predicted (seedable) and matched, with the strong seeds kept for the not-found search. */
 function bandCounts(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>): Map<string, BandCount> {
-  const counts = new Map<string, BandCount>();
+  type Mutable = { -readonly [K in keyof BandCount]: BandCount[K] };
+  const counts = new Map<string, Mutable>();
   ctx.cands.forEach((c, ci) => {
-    const k = bandKey(c);
-    const b = counts.get(k) ?? {
-      species: c.species,
-      band: formatBand(c.band),
-      predicted: 0,
-      matched: 0,
-      seeds: [],
-    };
-    if (ctx.seedable[ci]) b.seeds.push(c);
-    counts.set(k, { ...b, predicted: b.predicted + (ctx.seedable[ci] ? 1 : 0) });
+    const k = ctx.candBands[ci] as string;
+    let b = counts.get(k);
+    if (!b) {
+      b = { species: c.species, band: formatBand(c.band), predicted: 0, matched: 0, seeds: [] };
+      counts.set(k, b);
+    }
+    if (ctx.seedable[ci]) {
+      b.seeds.push(c);
+      b.predicted++;
+    }
   });
-  for (const c of auto.values()) {
-    const b = counts.get(bandKey(c));
-    if (b) counts.set(bandKey(c), { ...b, matched: b.matched + 1 });
-  }
-  for (const g of ctx.given) {
-    const b = counts.get(bandKey(g.t));
-    if (b) counts.set(bandKey(g.t), { ...b, matched: b.matched + 1 });
-  }
+  const count = (k: string) => {
+    const b = counts.get(k);
+    if (b) b.matched++;
+  };
+  for (const c of auto.values()) count(bandKey(c));
+  for (const g of ctx.given) count(bandKey(g.t));
   return counts;
 }
 
