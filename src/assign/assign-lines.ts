@@ -165,11 +165,9 @@ interface AssignContext {
   readonly hi: number;
   /** Every line of every plausible band in the window, down to any intensity. */
   readonly cands: readonly CandidateLine[];
-  /** Per candidate: its transition key, its band key and its band's number in `bandKeys`, made once. */
-  readonly candKeys: readonly string[];
-  readonly candBands: readonly string[];
+  /** Per candidate: its band's number in `bands`. */
   readonly candBand: Int32Array;
-  /** The band keys of the candidates, numbered. */
+  /** The band keys of the candidates ("species|v′-v″"), numbered. */
   readonly bands: readonly string[];
   /** A candidate's number in `cands`. */
   readonly candIndex: ReadonlyMap<CandidateLine, number>;
@@ -187,6 +185,8 @@ interface AssignContext {
   readonly free: readonly ObservedPeak[];
   readonly sources: readonly string[];
   readonly freeBySource: ReadonlyMap<string, readonly ObservedPeak[]>;
+  /** Per line, the number of its source in `sources` (−1 for a given line whose source no free line has). */
+  readonly sourceNumbers: Int32Array;
   /** Median σ of the lines that carry one. */
   readonly typicalSigma: number | undefined;
   readonly maxOffset: number;
@@ -249,6 +249,7 @@ function prepareAssignment(
     free,
     sources,
     freeBySource: new Map(sources.map((s) => [s, free.filter((p) => sourceOf(p.index) === s)])),
+    sourceNumbers: Int32Array.from(peaks, (_, i) => sources.indexOf(sourceOf(i))),
     typicalSigma: withSigma.length > 0 ? robustMedian(withSigma) : undefined,
     maxOffset: options.maxOffset ?? 0.5,
     minLines: options.minLinesPerBand ?? 4,
@@ -257,37 +258,42 @@ function prepareAssignment(
   };
 }
 
-/** The candidates' keys and numbers, made once for the loop's look-ups. */
+/** The candidates' numbers and band numbers, made once for the loop's look-ups. */
 function candidateIndex(
   cands: readonly CandidateLine[],
   given: readonly { readonly t: Transition }[],
-): Pick<AssignContext, 'candKeys' | 'candBands' | 'candBand' | 'bands' | 'candIndex' | 'candGiven' | 'bandCands'> {
-  const givenKeys = new Set(given.map((g) => transitionKey(g.t)));
-  const candKeys = cands.map(transitionKey);
-  const candBands = cands.map(bandKey);
+): Pick<AssignContext, 'candBand' | 'bands' | 'candIndex' | 'candGiven' | 'bandCands'> {
   const number = new Map<string, number>();
-  const candBand = Int32Array.from(candBands, (k) => {
-    let b = number.get(k);
-    if (b === undefined) {
-      b = number.size;
-      number.set(k, b);
+  const candBand = new Int32Array(cands.length);
+  let last: CandidateLine | undefined;
+  cands.forEach((c, ci) => {
+    // Lines of one band come together and share its band object: the key is made once per band, not per line.
+    if (last && c.band === last.band && c.species === last.species) {
+      candBand[ci] = candBand[ci - 1] as number;
+    } else {
+      const k = bandKey(c);
+      let b = number.get(k);
+      if (b === undefined) {
+        b = number.size;
+        number.set(k, b);
+      }
+      candBand[ci] = b;
     }
-    return b;
+    last = c;
   });
   const members: number[][] = Array.from({ length: number.size }, () => []);
   candBand.forEach((b, ci) => {
     members[b]?.push(ci);
   });
+  const givenKeys = new Set(given.map((g) => transitionKey(g.t)));
   return {
-    candKeys,
-    candBands,
     candBand,
     bandCands: members.map((m) =>
       Int32Array.from(m.sort((x, y) => (cands[x] as CandidateLine).j - (cands[y] as CandidateLine).j || x - y)),
     ),
     bands: [...number.keys()],
     candIndex: new Map(cands.map((c, i) => [c, i])),
-    candGiven: Uint8Array.from(candKeys, (k) => (givenKeys.has(k) ? 1 : 0)),
+    candGiven: Uint8Array.from(cands, (c) => (givenKeys.size > 0 && givenKeys.has(transitionKey(c)) ? 1 : 0)),
   };
 }
 
@@ -311,7 +317,7 @@ function freePeaks(peaks: readonly PeakInput[]): ObservedPeak[] {
   );
 }
 
-const sourceOf = (ctx: AssignContext, i: number) => ctx.peaks[i]?.source ?? '';
+const sourceNumber = (ctx: AssignContext, i: number) => ctx.sourceNumbers[i] as number;
 const speciesNames = (ctx: AssignContext) => ctx.species.map((s) => s.iso.formula).join(', ');
 
 /** The line list as the fit takes it: given assignments as sent, automatic ones from the map. */
@@ -412,37 +418,29 @@ function matchRound(
   const model: RoundModel = {
     reach: bandReach(ctx, state.auto),
     scale: intensityScales(state.auto, ctx.peaks),
-    residuals: state.detailed
-      ? residualStatistics(
-          state.detailed,
-          state.auto,
-          (i) => sourceOf(ctx, i),
-          (i) => ctx.peaks[i]?.uncertainty,
-        )
-      : undefined,
+    residuals: state.detailed ? residualStatistics(ctx, state.detailed, state.auto) : undefined,
     detailed: state.detailed,
   };
   const next = new Map<number, CandidateLine>();
   const competitions: Competition[] = [];
   const near = withinReach(ctx, model.reach);
-  for (const src of ctx.sources) {
+  ctx.sources.forEach((name, n) => {
     const candOf = new Map<Prediction, CandidateLine>();
     const preds: Prediction[] = [];
     for (const ci of near) {
-      const c = ctx.cands[ci] as CandidateLine;
-      const p = predictionOf(ctx, offsets, model, c, ci, src);
+      const p = predictionOf(ctx, offsets, model, ci, { name, n });
       if (!p) continue;
-      candOf.set(p, c);
+      candOf.set(p, ctx.cands[ci] as CandidateLine);
       preds.push(p);
     }
-    const m = matchLines(preds, ctx.freeBySource.get(src) ?? []);
+    const m = matchLines(preds, ctx.freeBySource.get(name) ?? []);
     for (const x of m.matches) {
       const c = candOf.get(x.prediction) as CandidateLine;
       if (isBanned(state.banned, pairKey(ctx, x.peak.index, c), iter)) continue;
       next.set(x.peak.index, c);
     }
     competitions.push(...m.competitions);
-  }
+  });
   return { next, competitions };
 }
 
@@ -486,14 +484,15 @@ function predictionOf(
   ctx: AssignContext,
   offsets: OffsetVotes,
   model: RoundModel,
-  c: CandidateLine,
   ci: number,
-  src: string,
+  src: SourceRef,
 ): Prediction | undefined {
   if (ctx.candGiven[ci] === 1) return undefined;
-  const key = ctx.candKeys[ci] as string;
-  const bk = ctx.candBands[ci] as string;
-  const b = model.reach[ctx.candBand[ci] as number] as number;
+  const c = ctx.cands[ci] as CandidateLine;
+  const band = ctx.candBand[ci] as number;
+  const cand: CandidateRef = { c, ci, band, bk: ctx.bands[band] as string };
+  const bk = cand.bk;
+  const b = model.reach[band] as number;
   const reach = b >= 0 ? b : undefined;
   // Beyond the farthest either placement may reach (a band without lines reaches from START_J): no prediction, and
   // none of the fit is asked for.
@@ -503,13 +502,14 @@ function predictionOf(
   const r = reach ?? (fitted ? START_J : undefined);
   const placed =
     fitted && r !== undefined && model.residuals
-      ? fittedPrediction(ctx, offsets, model.residuals, c, bk, fitted, r, src)
-      : referencePrediction(ctx, offsets, c, ci, bk, r, src);
+      ? fittedPrediction(ctx, offsets, model.residuals, cand, fitted, r, src)
+      : referencePrediction(ctx, offsets, cand, r, src.name);
   if (!placed) return undefined;
   const own = model.scale.get(bk);
   const k = own ?? classScale(model.scale, c);
   return {
-    key,
+    // The candidate's number (matches are mapped back by the prediction object; the key only names it).
+    key: String(ci),
     ...placed,
     ...(k !== undefined ? { intensity: k * c.intensity } : {}),
     ...(own === undefined && k !== undefined ? { intensityRatioLimit: BAND_RATIO_LIMIT } : {}),
@@ -517,6 +517,20 @@ function predictionOf(
 }
 
 type Placement = Omit<Prediction, 'key'>;
+
+/** A candidate with its number, its band's number and its band key. */
+interface CandidateRef {
+  readonly c: CandidateLine;
+  readonly ci: number;
+  readonly band: number;
+  readonly bk: string;
+}
+
+/** A source of lines by name and by its number in AssignContext.sources. */
+interface SourceRef {
+  readonly name: string;
+  readonly n: number;
+}
 
 /**
  * Whether J″ lies past what a band of reach r may take in one round: a fitted band grows by max(GROWTH_J, r/2), a
@@ -529,14 +543,13 @@ function fittedPrediction(
   ctx: AssignContext,
   offsets: OffsetVotes,
   residuals: ResidualStatistics,
-  c: CandidateLine,
-  bk: string,
+  { c, band, bk }: CandidateRef,
   fitted: { value: number; variance: number },
   r: number,
-  src: string,
+  { name: src, n: srcNumber }: SourceRef,
 ): Placement | undefined {
   if (outOfReach(c.j, r)) return undefined;
-  const st = residuals.of(bk, src);
+  const st = residuals.of(band, srcNumber);
   // Where the model's own uncertainty exceeds the scatter of the lines (twice it), the data have run out
   // for this model: it must not reach further until nearer lines have sharpened it.
   // Beyond the reach, a few lines at a time; further only where the model is still as sharp as the data.
@@ -559,9 +572,7 @@ function fittedPrediction(
 function referencePrediction(
   ctx: AssignContext,
   offsets: OffsetVotes,
-  c: CandidateLine,
-  ci: number,
-  bk: string,
+  { c, ci, bk }: CandidateRef,
   r: number | undefined,
   src: string,
 ): Placement | undefined {
@@ -598,12 +609,7 @@ function withdrawRejected(
   iter: number,
 ): number {
   let withdrawn = 0;
-  const stats = residualStatistics(
-    fit,
-    next,
-    (i) => sourceOf(ctx, i),
-    (i) => ctx.peaks[i]?.uncertainty,
-  );
+  const stats = residualStatistics(ctx, fit, next);
   for (const l of fit.result.lines) {
     const c = next.get(l.index);
     if (c && l.status === 'rejected' && !explained(ctx, fit, stats, c, l)) {
@@ -689,7 +695,7 @@ function explained(
 ): boolean {
   const p = fit.predict(c);
   if (!p || l.residual === undefined) return false;
-  const st = stats.of(bandKey(c), sourceOf(ctx, l.index));
+  const st = stats.of(ctx.candBand[ctx.candIndex.get(c) as number] as number, sourceNumber(ctx, l.index));
   const model = K_FITTED * Math.sqrt(p.variance);
   const sigma = ctx.peaks[l.index]?.uncertainty;
   const tol =
@@ -796,7 +802,7 @@ function bandCounts(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>
   type Mutable = { -readonly [K in keyof BandCount]: BandCount[K] };
   const counts = new Map<string, Mutable>();
   ctx.cands.forEach((c, ci) => {
-    const k = ctx.candBands[ci] as string;
+    const k = ctx.bands[ctx.candBand[ci] as number] as string;
     let b = counts.get(k);
     if (!b) {
       b = { species: c.species, band: formatBand(c.band), predicted: 0, matched: 0, seeds: [] };
@@ -986,7 +992,20 @@ function bestBandOffset(
 }
 
 interface ResidualStatistics {
-  of(band: string, source: string): { shift: number; scatter: number; sigmaFactor: number };
+  /** For a band and a source, by their numbers (AssignContext.bands, AssignContext.sources). */
+  of(band: number, source: number): ResidualStat;
+}
+
+interface ResidualStat {
+  readonly shift: number;
+  readonly scatter: number;
+  readonly sigmaFactor: number;
+}
+
+/** Residuals of one band and source: in cm⁻¹ for lines without σ, in units of σ for lines with one. */
+interface ResidualGroup {
+  readonly r: number[];
+  readonly z: number[];
 }
 
 /**
@@ -996,67 +1015,74 @@ interface ResidualStatistics {
  * model leaves, so that matching keeps the noisy lines too (it must not shrink the variance).
  */
 function residualStatistics(
+  ctx: AssignContext,
   fit: DetailedFit,
   auto: ReadonlyMap<number, CandidateLine>,
-  sourceOf: (i: number) => string,
-  sigmaOf: (i: number) => number | undefined,
 ): ResidualStatistics {
-  const groups = new Map<string, { r: number[]; z: number[] }>();
-  const add = (k: string, r: number, sigma: number | undefined) => {
-    const g = groups.get(k) ?? { r: [], z: [] };
-    if (sigma === undefined) g.r.push(r);
-    else g.z.push(r / sigma);
-    groups.set(k, g);
-  };
-  const bandOf = new Map<number, string>();
-  for (const l of fit.result.lines) {
-    const c = auto.get(l.index);
-    if (!c || l.status !== 'fitted' || l.residual === undefined) continue;
-    bandOf.set(l.index, bandKey(c));
-  }
-  const shiftOf = new Map<string, number>();
-  // Per band and source: the median residual.
-  const bySrc = new Map<string, number[]>();
-  for (const l of fit.result.lines) {
-    const bk = bandOf.get(l.index);
-    if (!bk || l.residual === undefined) continue;
-    const k = `${bk}#${sourceOf(l.index)}`;
-    const list = bySrc.get(k) ?? [];
-    list.push(l.residual);
-    bySrc.set(k, list);
-  }
-  for (const [k, list] of bySrc) shiftOf.set(k, list.length >= 3 ? robustMedian(list) : 0);
-  for (const l of fit.result.lines) {
-    const bk = bandOf.get(l.index);
-    if (!bk || l.residual === undefined) continue;
-    const src = sourceOf(l.index);
-    const r = l.residual - (shiftOf.get(`${bk}#${src}`) ?? 0);
-    const sigma = sigmaOf(l.index);
-    add(`${bk}#${src}`, r, sigma);
-    add('*', r, sigma);
-  }
-  const pooled = groups.get('*') ?? { r: [], z: [] };
-  const scatterOf = (g: { r: number[] } | undefined) =>
+  const { shifts, groups, pooled } = residualGroups(ctx, fit, auto);
+  const scatterOf = (g: ResidualGroup | undefined) =>
     g && g.r.length >= MIN_FOR_OWN_SCATTER ? robustSigma(g.r) : pooled.r.length >= 3 ? robustSigma(pooled.r) : 0.01;
-  const factorOf = (g: { z: number[] } | undefined) =>
+  const factorOf = (g: ResidualGroup | undefined) =>
     Math.max(
       1,
       g && g.z.length >= MIN_FOR_OWN_SCATTER ? robustSigma(g.z) : pooled.z.length >= 3 ? robustSigma(pooled.z) : 1,
     );
   // Asked once per candidate and round: each band's answer is computed once.
-  const known = new Map<string, { shift: number; scatter: number; sigmaFactor: number }>();
+  const known = new Map<number, ResidualStat>();
+  const nSources = ctx.sources.length;
   return {
     of(band, source) {
-      const k = `${band}#${source}`;
+      const k = band * nSources + source;
       let st = known.get(k);
       if (!st) {
         const g = groups.get(k);
-        st = { shift: shiftOf.get(k) ?? 0, scatter: scatterOf(g), sigmaFactor: factorOf(g) };
+        st = { shift: shifts.get(k) ?? 0, scatter: scatterOf(g), sigmaFactor: factorOf(g) };
         known.set(k, st);
       }
       return st;
     },
   };
+}
+
+/**
+ * The fitted automatic lines grouped by band and source (key band × sources + source): each group's median residual
+ * (0 under three lines), and the residuals about it per group and pooled.
+ */
+function residualGroups(
+  ctx: AssignContext,
+  fit: DetailedFit,
+  auto: ReadonlyMap<number, CandidateLine>,
+): { shifts: Map<number, number>; groups: Map<number, ResidualGroup>; pooled: ResidualGroup } {
+  const nSources = ctx.sources.length;
+  const members: { key: number; index: number; residual: number }[] = [];
+  const byKey = new Map<number, number[]>();
+  for (const l of fit.result.lines) {
+    const c = auto.get(l.index);
+    if (!c || l.status !== 'fitted' || l.residual === undefined) continue;
+    const key = (ctx.candBand[ctx.candIndex.get(c) as number] as number) * nSources + sourceNumber(ctx, l.index);
+    members.push({ key, index: l.index, residual: l.residual });
+    const list = byKey.get(key) ?? [];
+    list.push(l.residual);
+    byKey.set(key, list);
+  }
+  const shifts = new Map<number, number>();
+  for (const [k, list] of byKey) shifts.set(k, list.length >= 3 ? robustMedian(list) : 0);
+  const groups = new Map<number, ResidualGroup>();
+  const pooled: ResidualGroup = { r: [], z: [] };
+  for (const m of members) {
+    const r = m.residual - (shifts.get(m.key) ?? 0);
+    const sigma = ctx.peaks[m.index]?.uncertainty;
+    let g = groups.get(m.key);
+    if (!g) {
+      g = { r: [], z: [] };
+      groups.set(m.key, g);
+    }
+    for (const into of [g, pooled]) {
+      if (sigma === undefined) into.r.push(r);
+      else into.z.push(r / sigma);
+    }
+  }
+  return { shifts, groups, pooled };
 }
 
 function sameAssignments(a: ReadonlyMap<number, CandidateLine>, b: ReadonlyMap<number, CandidateLine>): boolean {
