@@ -62,11 +62,22 @@ export function potentialCommand(
   const check = r.verification
     ? `Numerov check (RKR points to v = ${r.verification.vTop}): worst |Δ(G_v − G_0)| ${r.verification.worstIntervalError.toExponential(2)} cm-1, worst |ΔB_v/B_v| ${r.verification.worstRotationalRelativeError.toExponential(2)}, v = 0 shift ${r.verification.zeroPointShift.toFixed(4)} cm-1`
     : '';
+  const rf = r.refined;
+  const refined = rf
+    ? [
+        `Refined curve (its Numerov levels give back the constants; ${rf.rounds.length} solves): worst |Δ(G_v − G_0)| ${rf.worstIntervalError.toExponential(2)} cm-1, worst |ΔB_v/B_v| ${rf.worstRotationalRelativeError.toExponential(2)}${rf.withinGoals ? '' : ' (short of 0.01 cm-1 and 1e-4)'}, v = 0 shift ${rf.zeroPointShift.toFixed(4)} cm-1`,
+        ...rf.levels.map(
+          (l) =>
+            `  v = ${l.v}: E_v ${f(l.energy.value, 4)} cm-1, r- ${f(l.rMin.value, 6)} Å, r+ ${f(l.rMax.value, 6)} Å`,
+        ),
+      ]
+    : [];
   const text = [
     `${r.species} (${r.source} constants), first-order RKR turning points`,
     ...lines,
     morse,
     ...(check ? [check] : []),
+    ...refined,
     ...r.warnings.map((w) => `warning: ${w.message}`),
   ].join('\n');
   return { text: `${text}\n`, json: r };

@@ -1062,6 +1062,8 @@ export interface components {
       lines?: components["schemas"]["Line"][];
       options?: components["schemas"]["FitOptions"];
       peakOptions?: components["schemas"]["PeakOptions"];
+      /** @description correct the curve until its Numerov levels give back G_v − G_0 and B_v, and give its turning points (default: as verify) */
+      refine?: boolean;
       sample?: components["schemas"]["Sample"];
       /** @description diatomic: element symbols in order, each optionally preceded by its mass number ("12C16O", "H35Cl", "1H-79Br"; a digit always belongs to the symbol after it). Linear polyatomic: the atoms along the axis joined by "-", each optionally preceded by its mass number ("16O-12C-16O", "14N-14N-16O", "1H-12C-14N", "1H-12C-12C-1H"), or an everyday formula CO2, N2O, OCS, HCN, C2H2, CS2 where a single digit AFTER a symbol is a count and digits BEFORE a symbol are its mass number, applied to every atom of that element ("13CO2" = 16O-13C-16O, "C18O2" = 18O-12C-18O, "DCN" = 2H-12C-14N). Responses echo the hyphenated form. */
       species?: string;
@@ -1123,6 +1125,42 @@ export interface components {
       };
       notice: string;
       reducedMass: components["schemas"]["Quantity"];
+      /** @description the RKR curve corrected (inverted-perturbation idea) until its quantum levels give back the constants; absent when verify or refine is false */
+      refined?: {
+        grid: {
+          from: number;
+          points: number;
+          step: number;
+          to: number;
+        };
+        levels: {
+            /** @description C⟨1/r²⟩ of the refined curve, cm-1 */
+            B: number;
+            /** @description E_v above the refined curve’s minimum, cm-1 (σ that of G_v) */
+            energy: components["schemas"]["Quantity"];
+            /** @description (E_v − E_0) − (G_v − G_0), cm-1 */
+            intervalError: number;
+            /** @description outer turning point of the refined curve at E_v, Å (σ of first order) */
+            rMax: components["schemas"]["Quantity"];
+            /** @description inner turning point of the refined curve at E_v, Å (σ of first order) */
+            rMin: components["schemas"]["Quantity"];
+            rotationalRelativeError: number;
+            v: number;
+          }[];
+        /** @description one Numerov solve each; the first is the first-order curve */
+        rounds: {
+            worstIntervalError: number;
+            worstRotationalRelativeError: number;
+          }[];
+        /** @description highest v of the RKR points of the curve */
+        vTop: number;
+        /** @description intervals within 0.01 cm-1 and B_v within 1e-4 relative */
+        withinGoals: boolean;
+        worstIntervalError: number;
+        worstRotationalRelativeError: number;
+        /** @description E_0 − G_0 of the refined curve, cm-1 (Dunham's Y00) */
+        zeroPointShift: number;
+      };
       /** @description the request's sample, echoed */
       sample?: components["schemas"]["Sample"];
       software: components["schemas"]["Software"];

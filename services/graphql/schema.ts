@@ -461,6 +461,8 @@ export const typeDefs = /* GraphQL */ `
     "highest vibrational level the data behind the constants reached"
     vData: Int
     verify: Boolean
+    "correct the curve until its Numerov levels give back G_v − G_0 and B_v (default: as verify)"
+    refine: Boolean
     unit: String
     lines: [LineInput!]
     spectrum: SpectrumInput
@@ -504,6 +506,8 @@ export const typeDefs = /* GraphQL */ `
     curves: PotentialCurves!
     "the Numerov check, with the REST shape"
     verification: JSON
+    "the refined curve (turning points at its quantum levels, its own Numerov check), with the REST shape"
+    refined: JSON
     warnings: [Warning!]!
     notice: String!
   }

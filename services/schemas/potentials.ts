@@ -24,6 +24,12 @@ const potentialFields = (maxLines: number) => ({
     .boolean()
     .default(true)
     .describe('solve the radial equation on the RKR curve (Numerov) and report the differences'),
+  refine: z
+    .boolean()
+    .optional()
+    .describe(
+      'correct the curve until its Numerov levels give back G_v − G_0 and B_v, and give its turning points (default: as verify)',
+    ),
 });
 
 const oneSource = (b: {
@@ -99,6 +105,33 @@ export const PotentialResponseSchema = z
         worstRotationalRelativeError: z.number(),
       })
       .optional(),
+    refined: z
+      .object({
+        vTop: z.number().describe('highest v of the RKR points of the curve'),
+        rounds: z
+          .array(z.object({ worstIntervalError: z.number(), worstRotationalRelativeError: z.number() }))
+          .describe('one Numerov solve each; the first is the first-order curve'),
+        grid: z.object({ from: z.number(), to: z.number(), step: z.number(), points: z.number().int() }),
+        zeroPointShift: z.number().describe("E_0 − G_0 of the refined curve, cm-1 (Dunham's Y00)"),
+        levels: z.array(
+          z.object({
+            v: z.number().int(),
+            energy: QuantitySchema.describe('E_v above the refined curve’s minimum, cm-1 (σ that of G_v)'),
+            rMin: QuantitySchema.describe('inner turning point of the refined curve at E_v, Å (σ of first order)'),
+            rMax: QuantitySchema.describe('outer turning point of the refined curve at E_v, Å (σ of first order)'),
+            intervalError: z.number().describe('(E_v − E_0) − (G_v − G_0), cm-1'),
+            B: z.number().describe('C⟨1/r²⟩ of the refined curve, cm-1'),
+            rotationalRelativeError: z.number(),
+          }),
+        ),
+        worstIntervalError: z.number(),
+        worstRotationalRelativeError: z.number(),
+        withinGoals: z.boolean().describe('intervals within 0.01 cm-1 and B_v within 1e-4 relative'),
+      })
+      .optional()
+      .describe(
+        'the RKR curve corrected (inverted-perturbation idea) until its quantum levels give back the constants; absent when verify or refine is false',
+      ),
     warnings: z.array(WarningSchema),
     notice: z.string(),
     ...provenanceAndSampleFields,

@@ -22,10 +22,10 @@ interface PotentialSource {
 /** POST /v1/potentials, GraphQL `potential` and `branchwise potential`. */
 export function runPotential(req: PotentialRequest): PotentialResponse {
   const src = req.lines !== undefined || req.spectrum !== undefined ? fromFit(req) : fromConstants(req);
-  return present(src, req.vMax, req.verify);
+  return present(src, req.vMax, req.verify, req.refine);
 }
 
-function present(src: PotentialSource, vMax: number, verify: boolean): PotentialResponse {
+function present(src: PotentialSource, vMax: number, verify: boolean, refine?: boolean): PotentialResponse {
   const mu = reducedMass(src.species);
   const r = potentialCurves({
     coefficients: src.coefficients,
@@ -34,6 +34,7 @@ function present(src: PotentialSource, vMax: number, verify: boolean): Potential
     vMax,
     ...(src.vData !== undefined ? { vData: src.vData } : {}),
     verify,
+    ...(refine !== undefined ? { refine } : {}),
   });
   return {
     species: src.species.formula,
@@ -47,6 +48,15 @@ function present(src: PotentialSource, vMax: number, verify: boolean): Potential
     curves: { rkr: [...r.curves.rkr], morse: [...r.curves.morse] },
     ...(r.verification
       ? { verification: { ...r.verification, levels: r.verification.levels.map((l) => ({ ...l })) } }
+      : {}),
+    ...(r.refined
+      ? {
+          refined: {
+            ...r.refined,
+            rounds: r.refined.rounds.map((x) => ({ ...x })),
+            levels: r.refined.levels.map((l) => ({ ...l })),
+          },
+        }
       : {}),
     warnings: [...src.warnings, ...r.warnings],
     notice: SAFETY_NOTICE,
@@ -116,7 +126,7 @@ function fromConstants(req: PotentialRequest): PotentialSource {
 
 function fromFit(req: PotentialRequest): PotentialSource {
   refuseLinear(req.species);
-  const { constants: _c, vMax: _v, vData: _d, verify: _f, sample: _s, ...fitBody } = req;
+  const { constants: _c, vMax: _v, vData: _d, verify: _f, refine: _r, sample: _s, ...fitBody } = req;
   const { analysis, declared } = analyseRequest(prepareFit(fitBody));
   return fromFitResult(analysis.result, declared?.formula);
 }

@@ -42,8 +42,12 @@ export function solveRadialLevels(
     V[i] = potential(r[i] as number);
     vMin = Math.min(vMin, V[i] as number);
   }
-  const vCap = Math.min(V[0] as number, V[n - 1] as number);
   const k = (h * h) / (12 * hbar2Over2mu);
+  // Numerov's recurrence changes sign (spurious nodes) once k(V − E) passes 1: a steep extrapolated wall is held at
+  // vMin + 0.5/k, where k(V − E) ≤ ½ for every E ≥ vMin (for a 6000-point grid ≳ 10⁹ cm⁻¹, deep under any level).
+  const wallCap = vMin + 0.5 / k;
+  for (let i = 0; i < n; i++) if (!((V[i] as number) <= wallCap)) V[i] = wallCap;
+  const vCap = Math.min(V[0] as number, V[n - 1] as number);
   const t = new Float64Array(n);
 
   const nodesBelow = (E: number): number => {
@@ -90,6 +94,7 @@ export function solveRadialLevels(
       psi[i + 1] =
         ((2 + 10 * (t[i] as number)) * (psi[i] as number) - (1 - (t[i - 1] as number)) * (psi[i - 1] as number)) /
         (1 - (t[i + 1] as number));
+      if (Math.abs(psi[i + 1] as number) > 1e150) for (let j = 0; j <= i + 1; j++) psi[j] = (psi[j] as number) * 1e-150;
     }
     const join = psi[m] as number;
     const inward = new Float64Array(n);
@@ -98,6 +103,8 @@ export function solveRadialLevels(
       inward[i - 1] =
         ((2 + 10 * (t[i] as number)) * (inward[i] as number) - (1 - (t[i + 1] as number)) * (inward[i + 1] as number)) /
         (1 - (t[i - 1] as number));
+      if (Math.abs(inward[i - 1] as number) > 1e150)
+        for (let j = i - 1; j < n; j++) inward[j] = (inward[j] as number) * 1e-150;
     }
     const scale = join / (inward[m] as number);
     let num = 0;

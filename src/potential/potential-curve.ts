@@ -3,9 +3,8 @@ import { propagate, type Quantity, quantity, subCovariance } from '../derive/qua
 import { ScienceError } from '../errors.js';
 import type { MassValue } from '../species/reduced-mass.js';
 import { morseEnergy, morseFromConstants } from './morse.js';
-import { solveRadialLevels } from './numerov.js';
+import { compareLevels, refineRkrCurve, solveOnRkrCurve } from './refine.js';
 import { rkrTurningPoints, type TurningPoints } from './rkr.js';
-import { rkrCurveModel } from './rkr-curve.js';
 import {
   rotationalConstant,
   type VibrationalSeries,
@@ -31,6 +30,10 @@ export interface PotentialInput {
   readonly vData?: number;
   /** Solve the radial equation on the RKR curve and compare. Default true. */
   readonly verify?: boolean;
+  /**
+   * Correct the curve until its Numerov levels give back G_v − G_0 and B_v (refine.ts). Default: as `verify`.
+   */
+  readonly refine?: boolean;
 }
 
 export interface PotentialLevel {
@@ -67,6 +70,31 @@ export interface NumerovCheck {
   readonly worstRotationalRelativeError: number;
 }
 
+/** The refined curve: turning points at its quantum levels and its own round trip. */
+export interface RefinedPotential {
+  readonly vTop: number;
+  /** Numerov solves made; the worst residuals after each (the first is the first-order curve). */
+  readonly rounds: readonly { readonly worstIntervalError: number; readonly worstRotationalRelativeError: number }[];
+  readonly grid: NumerovCheck['grid'];
+  /** E_0 − G_0 of the refined curve, cm⁻¹ (Dunham's Y00 with its higher-order terms). */
+  readonly zeroPointShift: number;
+  readonly levels: readonly {
+    readonly v: number;
+    /** E_v above the refined curve's minimum (G_v − G_0 + E_0), cm⁻¹; σ that of G_v. */
+    readonly energy: Quantity;
+    /** Classical turning points of the refined curve at E_v, Å; σ those of the first-order points. */
+    readonly rMin: Quantity;
+    readonly rMax: Quantity;
+    readonly intervalError: number;
+    readonly B: number;
+    readonly rotationalRelativeError: number;
+  }[];
+  readonly worstIntervalError: number;
+  readonly worstRotationalRelativeError: number;
+  /** Both goals met: intervals within 0.01 cm⁻¹, B_v within 1e-4 relative. */
+  readonly withinGoals: boolean;
+}
+
 export interface PotentialWarning {
   readonly code: string;
   readonly message: string;
@@ -78,6 +106,7 @@ export interface PotentialResult {
   readonly morse?: { readonly D_e: Quantity; readonly a: Quantity; readonly r_e: Quantity };
   readonly curves: { readonly rkr: readonly CurvePoint[]; readonly morse: readonly CurvePoint[] };
   readonly verification?: NumerovCheck;
+  readonly refined?: RefinedPotential;
   readonly warnings: readonly PotentialWarning[];
 }
 
@@ -142,6 +171,10 @@ export function potentialCurves(input: PotentialInput): PotentialResult {
   const rkr = rkrCurve(at, values, vMax);
   const morseCurve = morse ? morsePoints(morse, rkr) : [];
   let verification = input.verify !== false ? verifyCurve(series, C, vMax, warnings) : undefined;
+  const refined =
+    verification && (input.refine ?? input.verify !== false)
+      ? refineCurve(series, C, vMax, verification.vTop, levels, warnings)
+      : undefined;
   const finite = (q: Quantity) => Number.isFinite(q.value) && Number.isFinite(q.uncertainty);
   if (!levels.every((l) => finite(l.energy) && finite(l.rMin) && finite(l.rMax) && finite(l.B))) {
     throw new ScienceError(
@@ -177,6 +210,7 @@ export function potentialCurves(input: PotentialInput): PotentialResult {
     ...(morse ? { morse } : {}),
     curves: { rkr: finiteCurve(rkr) ? rkr : [], morse: morse && finiteCurve(morseCurve) ? morseCurve : [] },
     ...(verification ? { verification } : {}),
+    ...(refined ? { refined } : {}),
     warnings,
   };
 }
@@ -397,34 +431,61 @@ export function numerovCheck(
   vMax: number,
   vTop: number,
 ): NumerovCheck | undefined {
-  const model = rkrCurveModel(series, C, vTop);
-  if (!model) return undefined;
-  const width = model.outer - model.inner;
-  const from = Math.max(model.inner - 0.25 * width, 0.2 * model.inner);
-  const to = model.outer + 0.5 * width;
-  const points = 6000;
-  const step = (to - from) / (points - 1);
-  const solved = solveRadialLevels(model.potential, C, { from, to, step }, vMax + 1);
-  if (solved.length === 0) return undefined;
-  const e0 = (solved[0] as (typeof solved)[number]).energy;
-  const g0 = vibrationalEnergy(series, 0.5);
-  const levels = solved.map((s) => {
-    const x = s.v + 0.5;
-    const b = rotationalConstant(series, x);
-    return {
-      v: s.v,
-      energy: s.energy,
-      intervalError: s.energy - e0 - (vibrationalEnergy(series, x) - g0),
-      B: s.rotational,
-      rotationalRelativeError: (s.rotational - b) / b,
-    };
-  });
+  const solved = solveOnRkrCurve(series, C, vTop, vMax + 1);
+  if (!solved || solved.levels.length === 0) return undefined;
+  return { vTop, ...compareLevels(series, solved.grid, solved.levels) };
+}
+
+/** Goals of the round trip (issue 17). */
+export const ROUND_TRIP_GOALS = { interval: 0.01, rotationalRelative: 1e-4 } as const;
+
+/**
+ * The curve corrected until its Numerov levels give back the constants (refine.ts), on the RKR points of the check.
+ * The turning points' uncertainties are those of the first-order points: the correction (≲ 1e-4 Å for HCl) moves
+ * with the constants only at second order.
+ */
+function refineCurve(
+  series: VibrationalSeries,
+  C: number,
+  vMax: number,
+  vTop: number,
+  firstOrder: readonly PotentialLevel[],
+  warnings: PotentialWarning[],
+): RefinedPotential | undefined {
+  const r = refineRkrCurve({ series, hbar2Over2mu: C, vMax, vTop });
+  if (!r || r.levels.length !== firstOrder.length) {
+    warnings.push({ code: 'POTENTIAL_NOT_REFINED', message: 'the RKR curve could not be refined (no Numerov levels)' });
+    return undefined;
+  }
+  const withinGoals =
+    r.check.worstIntervalError <= ROUND_TRIP_GOALS.interval &&
+    r.check.worstRotationalRelativeError <= ROUND_TRIP_GOALS.rotationalRelative;
+  if (!withinGoals) {
+    warnings.push({
+      code: 'POTENTIAL_REFINEMENT_SHORT',
+      message: `the refined curve gives back G_v − G_0 within ${r.check.worstIntervalError.toPrecision(2)} cm-1 and B_v within ${r.check.worstRotationalRelativeError.toPrecision(2)} relative, short of 0.01 cm-1 and 1e-4: its turning points are no better than first order`,
+    });
+  }
   return {
     vTop,
-    grid: { from, to, step, points },
-    zeroPointShift: e0 - g0,
-    levels,
-    worstIntervalError: Math.max(...levels.map((l) => Math.abs(l.intervalError))),
-    worstRotationalRelativeError: Math.max(...levels.map((l) => Math.abs(l.rotationalRelativeError))),
+    rounds: r.rounds,
+    grid: r.check.grid,
+    zeroPointShift: r.check.zeroPointShift,
+    levels: r.check.levels.map((l, i) => {
+      const fo = firstOrder[i] as PotentialLevel;
+      const tp = r.levels[i] as (typeof r.levels)[number];
+      return {
+        v: l.v,
+        energy: quantity(tp.energy, fo.energy.uncertainty, 'cm-1'),
+        rMin: quantity(tp.rMin, fo.rMin.uncertainty, 'angstrom'),
+        rMax: quantity(tp.rMax, fo.rMax.uncertainty, 'angstrom'),
+        intervalError: l.intervalError,
+        B: l.B,
+        rotationalRelativeError: l.rotationalRelativeError,
+      };
+    }),
+    worstIntervalError: r.check.worstIntervalError,
+    worstRotationalRelativeError: r.check.worstRotationalRelativeError,
+    withinGoals,
   };
 }

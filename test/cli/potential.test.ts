@@ -18,6 +18,8 @@ describe('branchwise potential', () => {
     expect(r.out).toMatch(/r\+ \(Å\)/);
     expect(r.out.split('\n').filter((l) => /^\d\s/.test(l))).toHaveLength(4);
     expect(r.out).toMatch(/Morse: D_e/);
+    expect(r.out).toMatch(/Refined curve .*worst \|Δ\(G_v − G_0\)\|/);
+    expect(r.out.split('\n').filter((l) => /^ {2}v = \d: E_v/.test(l))).toHaveLength(4);
   });
   it('gives the REST shape with --format json and reads a JSON body', () => {
     const dir = mkdtempSync(join(tmpdir(), 'branchwise-potential-'));

@@ -5,9 +5,12 @@ import { solveRadialLevels } from '../../src/potential/numerov.js';
 import { rkrTurningPoints } from '../../src/potential/rkr.js';
 import { rkrCurveModel } from '../../src/potential/rkr-curve.js';
 import type { VibrationalSeries } from '../../src/potential/vibrational-terms.js';
+import { parseSpecies } from '../../src/species/parse.js';
+import { reducedMass } from '../../src/species/reduced-mass.js';
 
 /**
- * Why the RKR → Numerov round trip of HCl misses the 0.01 cm⁻¹ goal (0.66 cm⁻¹ at v = 6) while CO meets it: each
+ * Why the first-order RKR → Numerov round trip of HCl misses the 0.01 cm⁻¹ goal (0.66 cm⁻¹ at v = 6; the refined
+ * curve of refine.ts meets it) while CO meets it: each
  * candidate cause measured on its own. H³⁵Cl X ¹Σ⁺ constants of Huber & Herzberg (1979), recalled (as in
  * potential-curve.test.ts): ω_e 2990.9463, ω_e x_e 52.8186, ω_e y_e 0.2243, ω_e z_e −0.0122, B_e 10.593416,
  * α_e 0.307181 cm⁻¹; μ = 0.9795925391 u (AME2020, REFERENCE-DATA.md §2c).
@@ -112,5 +115,49 @@ describe('HCl RKR → Numerov: what the 0.66 cm⁻¹ is made of', () => {
     // Measured: v = 6 −0.658 → −1.267, v = 5 −0.049 → −0.311, v = 2 0.408 → 0.401 cm⁻¹.
     expect(Math.abs((tall.errors[6] as number) - (base.errors[6] as number))).toBeGreaterThan(0.3);
     expect(Math.abs((tall.errors[2] as number) - (base.errors[2] as number))).toBeLessThan(0.01);
+  });
+
+  it("Dunham's Y00 in the RKR energies (the lower limit moved to G(v_min) = −Y00) does not cure HCl; it helps CO", () => {
+    // RKR on E(v) = Y00 + G(v) from v_min (Y00 by Dunham's formula, as in potential-curve.test.ts): the curve's
+    // zero-point energy is then put in by hand rather than left out. Measured worst interval error, v ≤ 6 / v ≤ 5:
+    // HCl 0.658 → 0.619 cm⁻¹ (v = 3; −0.33 at v = 6), CO 0.0097 → 0.0025 cm⁻¹; B_v HCl 2.2e-4 → 2.4e-4.
+    // So comparing intervals (as numerovCheck does) is not what limits HCl; the v-dependent quantum correction is.
+    const withY00 = (s: VibrationalSeries, c: number, vMax: number) => {
+      const [we, y20] = s.g as [number, number];
+      const [be, y11] = s.b as [number, number];
+      const y00 = be / 4 + (-y11 * we) / (12 * be) + (y11 * y11 * we * we) / (144 * be ** 3) + y20 / 4;
+      // x0 < 0 with Y00 + G(x0) = 0, then every polynomial re-expanded about x0 (y = x − x0).
+      let x0 = -y00 / we;
+      for (let i = 0; i < 40; i++) {
+        const slope = s.g.reduce((sum, y, k) => sum + (k + 1) * y * x0 ** k, 0);
+        x0 -= (y00 + G(s, x0)) / slope;
+      }
+      const shift = (a: readonly number[]) => {
+        const q = a.map(() => 0);
+        a.forEach((ak, k) => {
+          let binom = 1;
+          for (let j = k; j >= 0; j--) {
+            q[j] = (q[j] as number) + ak * binom * x0 ** (k - j);
+            binom = (binom * j) / (k - j + 1);
+          }
+        });
+        return q;
+      };
+      const shifted: VibrationalSeries = { g: shift([y00, ...s.g]).slice(1), b: shift(s.b) };
+      const model = rkrCurveModel(shifted, c, vMax + 3 - x0);
+      if (!model) throw new Error('no curve');
+      const width = model.outer - model.inner;
+      const from = Math.max(model.inner - 0.25 * width, 0.2 * model.inner);
+      const to = model.outer + 0.5 * width;
+      const levels = solveRadialLevels(model.potential, c, { from, to, step: (to - from) / 5999 }, vMax + 1);
+      const e0 = levels[0]?.energy as number;
+      return Math.max(...levels.map((l) => Math.abs(l.energy - e0 - (G(s, l.v + 0.5) - G(s, 0.5)))));
+    };
+    const hcl = withY00(HCL, C, 6);
+    expect(hcl).toBeGreaterThan(0.5);
+    expect(hcl).toBeLessThan(0.7);
+    const co: VibrationalSeries = { g: [2169.81358, -13.28831, 0.010511], b: [1.93128087, -0.01750441] };
+    const coWith = withY00(co, ROTATIONAL_FACTOR / reducedMass(parseSpecies('CO')).value, 5);
+    expect(coWith).toBeLessThan(0.004);
   });
 });

@@ -50,7 +50,7 @@ describe('RKR → Numerov round trip on published constants', () => {
     expect(Math.abs(check.zeroPointShift - dunhamY00(2169.81358, 13.28831, 1.93128087, 0.01750441))).toBeLessThan(2e-3);
   });
 
-  it('HCl, v = 0…6: B_v within 3e-4 relative, but G_v − G_0 only within 0.7 cm⁻¹ (first-order RKR, a hydride)', () => {
+  it('HCl, v = 0…6: first order only within 0.7 cm⁻¹ and 3e-4 (a hydride); the refined curve within 0.01 and 1e-4', () => {
     const r = potentialCurves({ coefficients: HCL, covariance: zeros(6), reducedMass: muHCl, vMax: 6, vData: 6 });
     const check = r.verification;
     expect(check).toBeDefined();
@@ -63,6 +63,13 @@ describe('RKR → Numerov round trip on published constants', () => {
     // Y00 by Dunham's formula is 1.60 cm⁻¹ here; the Numerov shift is 1.75 cm⁻¹ (within 0.2 cm⁻¹, the size of the
     // neglected higher-order terms for HCl).
     expect(Math.abs(check.zeroPointShift - dunhamY00(2990.9463, 52.8186, 10.593416, 0.307181))).toBeLessThan(0.2);
+    // The refined curve (refine.ts, refine.test.ts) meets both goals: measured 0.0022 cm⁻¹ and 7.7e-7, and its v = 0
+    // shift is Y00 within 0.005 cm⁻¹ (1.6070 vs 1.6022).
+    expect(r.refined?.withinGoals).toBe(true);
+    expect(r.refined?.worstIntervalError).toBeLessThan(0.01);
+    expect(r.refined?.worstRotationalRelativeError).toBeLessThan(1e-4);
+    expect(r.refined?.levels).toHaveLength(7);
+    expect(r.warnings.map((w) => w.code)).not.toContain('POTENTIAL_REFINEMENT_SHORT');
   });
 });
 

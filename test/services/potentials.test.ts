@@ -203,11 +203,42 @@ describe('POST /v1/potentials', () => {
     expect(d.morse.D_e.value).toBe(rest.morse.D_e.value);
     expect(d.curves.rkr).toEqual(rest.curves.rkr);
     expect(d.verification.worstIntervalError).toBe(rest.verification.worstIntervalError);
+    const refined = await app().inject({
+      method: 'POST',
+      url: '/graphql',
+      payload: { query: '{ potential(input: { species: "HCl", vMax: 3 }) { refined } }' },
+    });
+    expect(refined.json().data.potential.refined).toEqual(rest.refined);
     const bad = await app().inject({
       method: 'POST',
       url: '/graphql',
       payload: { query: '{ potential(input: { species: "HCl", vMax: 40 }) { species } }' },
     });
     expect(bad.json().errors[0].extensions.code).toBe('POTENTIAL_LEVELS_NOT_INCREASING');
+  });
+
+  it('gives the refined curve of HCl from the library: its Numerov levels meet 0.01 cm-1 and 1e-4 (first order: not)', async () => {
+    const r = await post({ species: 'HCl', vMax: 6 });
+    expect(r.statusCode).toBe(200);
+    const j = r.json();
+    // Measured: first order 0.66 cm-1 and 2.2e-4, refined 0.0022 cm-1 and 7.7e-7 (test/potential/refine.test.ts).
+    expect(j.verification.worstIntervalError).toBeGreaterThan(0.1);
+    expect(j.refined.withinGoals).toBe(true);
+    expect(j.refined.worstIntervalError).toBeLessThan(0.01);
+    expect(j.refined.worstRotationalRelativeError).toBeLessThan(1e-4);
+    expect(j.refined.levels).toHaveLength(7);
+    for (const [i, l] of (j.refined.levels as { v: number; rMin: Q; rMax: Q; energy: Q }[]).entries()) {
+      const first = j.levels[i] as Level;
+      expect(l.v).toBe(first.v);
+      expect(l.rMin.unit).toBe('angstrom');
+      // The correction is ≤ 1.2e-4 Å (refine.test.ts); its σ is that of the first-order point.
+      expect(Math.abs(l.rMin.value - first.rMin.value)).toBeLessThan(2e-4);
+      expect(l.rMin.uncertainty).toBe(first.rMin.uncertainty);
+      // E_v = G_v + Y00: Dunham's Y00 for HCl is 1.60 cm-1 (potential-curve.test.ts).
+      expect(l.energy.value - first.energy.value).toBeCloseTo(1.6, 1);
+    }
+    const off = (await post({ species: 'HCl', vMax: 2, refine: false })).json();
+    expect(off.refined).toBeUndefined();
+    expect(off.verification).toBeDefined();
   });
 });
