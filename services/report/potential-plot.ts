@@ -2,7 +2,8 @@ import type { PotentialResponse } from '../schemas/potentials.js';
 
 /**
  * The potential figure of the report: RKR turning points (circles), the Morse curve from the same constants
- * (dashed) and each level drawn as a horizontal segment from r₋ to r₊ at its energy. Self-contained SVG (its own
+ * (dashed), each level drawn as a horizontal segment from r₋ to r₊ at its energy, and the refined curve's turning
+ * points at its own levels (hollow diamonds) when the response has them. Self-contained SVG (its own
  * axes), in the Okabe–Ito colours the other plots use.
  */
 const BLUE = '#0072B2';
@@ -67,11 +68,22 @@ export function renderPotentialPlot(p: PotentialResponse, caption: string): stri
       `<path d="${d}" stroke="${ORANGE}" stroke-width="1.6" fill="none" stroke-dasharray="5 3" class="series" data-series="Morse"/>`,
     );
   }
+  if (p.refined) {
+    // The refined curve's turning points at its own levels: hollow diamonds (they sit ≲ 1e-4 Å from the RKR points
+    // of a light hydride's levels, a few pixels above them by the zero-point constant).
+    const diamond = (x: number, y: number) =>
+      `<path d="M${x.toFixed(1)} ${(y - 3.2).toFixed(1)}l3.2 3.2l-3.2 3.2l-3.2 -3.2z" fill="none" stroke="${GREY}" stroke-width="1"/>`;
+    const pts = p.refined.levels.flatMap((l) => [
+      diamond(sx(l.rMin.value), sy(l.energy.value)),
+      diamond(sx(l.rMax.value), sy(l.energy.value)),
+    ]);
+    parts.push(`<g class="series" data-series="refined">${pts.join('')}</g>`);
+  }
   parts.push(
     `<g class="series" data-series="RKR">${rkr.map((c) => `<circle cx="${sx(c.r).toFixed(1)}" cy="${sy(c.energy).toFixed(1)}" r="2.2" fill="${BLUE}"/>`).join('')}</g>`,
   );
   parts.push(
-    `<g class="legend"><circle cx="${m.l + 10}" cy="16" r="3" fill="${BLUE}"/><text x="${m.l + 18}" y="20" class="lg">RKR turning points</text><line x1="${m.l + 170}" x2="${m.l + 186}" y1="16" y2="16" stroke="${ORANGE}" stroke-width="2" stroke-dasharray="4 2"/><text x="${m.l + 192}" y="20" class="lg">Morse</text><line x1="${m.l + 250}" x2="${m.l + 266}" y1="16" y2="16" stroke="${GREY}" stroke-width="1.5"/><text x="${m.l + 272}" y="20" class="lg">levels G_v</text></g>`,
+    `<g class="legend"><circle cx="${m.l + 10}" cy="16" r="3" fill="${BLUE}"/><text x="${m.l + 18}" y="20" class="lg">RKR turning points</text><line x1="${m.l + 170}" x2="${m.l + 186}" y1="16" y2="16" stroke="${ORANGE}" stroke-width="2" stroke-dasharray="4 2"/><text x="${m.l + 192}" y="20" class="lg">Morse</text><line x1="${m.l + 250}" x2="${m.l + 266}" y1="16" y2="16" stroke="${GREY}" stroke-width="1.5"/><text x="${m.l + 272}" y="20" class="lg">levels G_v</text>${p.refined ? `<path d="M${m.l + 356} 12.8l3.2 3.2l-3.2 3.2l-3.2 -3.2z" fill="none" stroke="${GREY}" stroke-width="1"/><text x="${m.l + 364}" y="20" class="lg">refined</text>` : ''}</g>`,
   );
   parts.push(`<text x="${(m.l + (W - m.r)) / 2}" y="${H - 8}" text-anchor="middle" class="al">r (Å)</text>`);
   parts.push(

@@ -46,6 +46,16 @@ describe('report: potential curve', () => {
     expect(part).toContain('data-series="Morse"');
     expect(part.match(/>v=\d</g)).toHaveLength(3);
     expect(part).toMatch(/<table id="turning-points">/);
+    // The refined curve: two diamonds per level and three more columns in the table, its check in the caption.
+    const refined = part.slice(
+      part.indexOf('data-series="refined"'),
+      part.indexOf('</g>', part.indexOf('data-series="refined"')),
+    );
+    expect(refined.match(/<path/g)).toHaveLength(2 * 3);
+    expect(part).toContain('<th>refined r₋ (Å)</th>');
+    expect(part).toMatch(/Refined curve \(corrected until its Numerov levels give back/);
+    const firstRow = part.slice(part.indexOf('<tbody>'), part.indexOf('</tr>', part.indexOf('<tbody>')));
+    expect(firstRow.match(/<td/g)).toHaveLength(7);
   });
 
   it('has no potential section with one vibrational interval (the fundamental alone)', async () => {
