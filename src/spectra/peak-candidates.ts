@@ -32,8 +32,13 @@ function halfWidthAt(r: Float64Array, i: number): number {
   return Math.max(1, 0.5 * (hi - lo));
 }
 
-/** Local maxima of r at or above the threshold; noise splits a line's top, so within one half width only the highest counts. */
-export function findCandidates(r: Float64Array, threshold: number): Candidates {
+/**
+ * Local maxima of r at or above the threshold; noise splits a line's top, so within one half width only the highest
+ * counts. With a prominence, a maximum must also rise that far above the lowest point between it and the nearest
+ * higher maximum on either side (its topographic prominence): noise makes local maxima on a line's wings, which
+ * stand less than a few noise σ above the dip beside them.
+ */
+export function findCandidates(r: Float64Array, threshold: number, prominence = 0): Candidates {
   const index: number[] = [];
   let lastHalfWidth = 0;
   for (let i = 1; i < r.length - 1; i++) {
@@ -50,7 +55,29 @@ export function findCandidates(r: Float64Array, threshold: number): Candidates {
     index.push(i);
     lastHalfWidth = halfWidthAt(r, i);
   }
-  return { index, halfWidth: index.map((i) => halfWidthAt(r, i)) };
+  const kept = prominence > 0 ? prominentOnly(r, index, prominence) : index;
+  return { index: kept, halfWidth: kept.map((i) => halfWidthAt(r, i)) };
+}
+
+/** The maxima (sample indices, increasing) whose topographic prominence among them reaches `prominence`. */
+function prominentOnly(r: Float64Array, index: readonly number[], prominence: number): number[] {
+  // dips[k]: the lowest r between maxima k and k + 1.
+  const dips = index.slice(0, -1).map((a, k) => {
+    let low = Number.POSITIVE_INFINITY;
+    for (let i = a; i <= (index[k + 1] as number); i++) low = Math.min(low, r[i] as number);
+    return low;
+  });
+  const col = (k: number, dir: -1 | 1): number => {
+    const top = r[index[k] as number] as number;
+    let low = Number.POSITIVE_INFINITY;
+    for (let j = k + dir; j >= 0 && j < index.length; j += dir) {
+      low = Math.min(low, dips[dir < 0 ? j : j - 1] as number);
+      if (top - low >= prominence) return low;
+      if ((r[index[j] as number] as number) > top) return low;
+    }
+    return Number.NEGATIVE_INFINITY;
+  };
+  return index.filter((i, k) => (r[i] as number) - Math.max(col(k, -1), col(k, 1)) >= prominence);
 }
 
 /**

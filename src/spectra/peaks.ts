@@ -56,7 +56,7 @@ export function findPeaks(xIn: ArrayLike<number>, yIn: ArrayLike<number>, option
   const r = aboveBaseline(spectrum);
   const noise0 = firstNoiseEstimate(r);
   const threshold = (options.threshold ?? 6) * noise0;
-  const groups = groupCandidates(findCandidates(r, threshold), x.length);
+  const groups = groupCandidates(findCandidates(r, threshold, CANDIDATE_PROMINENCE * noise0), x.length);
   const ctx: GroupContext = { x, r, step, shape: options.shape ?? 'voigt', threshold, noise0 };
   const fits = groups.map((g) => fitGroup(ctx, g));
   const pooled = pooledNoise(fits, noise0);
@@ -65,6 +65,14 @@ export function findPeaks(xIn: ArrayLike<number>, yIn: ArrayLike<number>, option
   peaks.sort((p, q) => p.position - q.position);
   return { peaks: strongest(peaks, options.maxPeaks ?? 20_000), noise: pooled, points: x.length, step };
 }
+
+/**
+ * How far, in first-estimate noise σ, a candidate must rise above the dip between it and a higher neighbour: noise
+ * on a strong line's wings makes local maxima above the threshold that stand 1–3 σ above their dips (common
+ * practice: a prominence of a few noise σ, as peak pickers use). A true line that close to another without a
+ * deeper dip is left to the blend stage, which looks for it in the fit residuals.
+ */
+export const CANDIDATE_PROMINENCE = 4;
 
 /** What every group fit needs besides its own candidates. */
 interface GroupContext {

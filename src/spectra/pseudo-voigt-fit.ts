@@ -1,15 +1,20 @@
-import { reduceToTriangle, solveLeastSquares } from '../linalg/least-squares.js';
+import { factorDamped, inverseDiagonal, smallSpdWork, solveFactored } from '../linalg/normal-equations.js';
 
 /**
  * Levenberg–Marquardt fit of m pseudo-Voigt profiles (P. Thompson, D. E. Cox and J. B. Hastings, J. Appl. Cryst.
  * 20, 79 (1987)) plus a linear baseline to r[lo..hi]. Parameters: per profile centre, height, FWHM; one shared
- * Lorentzian share η (fixed for Gaussian or Lorentzian shapes); baseline a, b. The damped step solves J augmented
- * with √λ·diag(‖J_c‖) rows (Marquardt's scaling) by the QR least squares.
+ * Lorentzian share η (fixed for Gaussian or Lorentzian shapes, kept in [0, 1] by projection); baseline a, b.
+ *
+ * The problem is tiny (q = 3m + 3 ≲ 30 parameters over a few hundred points), so each parameter point is one pass
+ * over the window that sums the residuals and the normal equations JᵀJ, Jᵀres together (J is never stored), and
+ * each damped step (JᵀJ + λ·diag(JᵀJ)) δ = Jᵀres, Marquardt's scaling, is a q × q Cholesky solve
+ * (linalg/normal-equations.ts). A refused step costs one pass, a taken one nothing more.
  *
  * Convergence: the fit stops once a step (taken or refused) moves every free parameter by less than SETTLED of its
- * standard deviation (from the damped covariance and the window's residual variance): further steps would change
- * nothing a caller can see. Otherwise it stops on a relative χ² improvement below 1e-8, on λ > 10⁸ or after 60
- * iterations.
+ * standard deviation (from the damped covariance and the window's residual variance), or once a taken step is
+ * shorter than STEP_SETTLED in the metric of the covariance (no parameter then moved by more than that fraction
+ * of its σ): further steps would change nothing a caller can see. Otherwise it stops on a relative χ²
+ * improvement below 1e-8, on λ > 10⁸ or after 60 iterations.
  */
 
 export type LineShape = 'gaussian' | 'lorentzian' | 'voigt';
@@ -44,6 +49,12 @@ export interface FitWindow {
 
 /** A step smaller than this fraction of every parameter's σ counts as settled. */
 export const SETTLED = 0.01;
+/**
+ * A taken step whose length in the metric of the fit's covariance, √(δᵀJᵀJδ/s²), is below this has moved no
+ * parameter by more than this fraction of its σ (Cauchy–Schwarz): the fit has settled even where a poorly
+ * determined member (a noise bump on a line's wing, dropped afterwards) still crawls along a flat valley.
+ */
+export const STEP_SETTLED = 0.05;
 const MAX_ITERATIONS = 60;
 const LN2x4 = 4 * Math.LN2;
 
@@ -100,96 +111,67 @@ function modelAt(pb: Problem, p: readonly number[], xi: number): number {
   return v;
 }
 
-function residualSumOfSquares(pb: Problem, p: readonly number[]): number {
-  let s = 0;
-  for (let i = pb.lo; i <= pb.hi; i++) s += ((pb.r[i] as number) - modelAt(pb, p, pb.x[i] as number)) ** 2;
-  return s;
+/** The normal equations of one parameter point: JᵀJ (upper triangle, row-major q × q) and Jᵀres. */
+interface NormalEquations {
+  readonly jtj: Float64Array;
+  readonly jtr: Float64Array;
 }
 
-/** Analytic Jacobian (column-major over the free parameters) and residuals at p, written into jac and res. */
-function jacobianAt(pb: Problem, p: readonly number[], jac: Float64Array, res: Float64Array): void {
-  const { x, r, lo, m, col } = pb;
-  const npts = res.length;
+const normalEquations = (q: number): NormalEquations => ({
+  jtj: new Float64Array(q * q),
+  jtr: new Float64Array(q),
+});
+
+/**
+ * The residual sum of squares at p and, in one pass over the window, the normal equations there: each point's row
+ * of the analytic Jacobian (columns of the free parameters) is added to JᵀJ and Jᵀres at once, so J is never
+ * stored and a window of any length costs q(q + 1)/2 products a point.
+ */
+function evaluate(pb: Problem, p: readonly number[], ne: NormalEquations, row: Float64Array): number {
+  const { x, r, lo, hi, m, col } = pb;
+  const q = row.length;
+  const { jtj, jtr } = ne;
+  jtj.fill(0);
+  jtr.fill(0);
   const x0 = x[lo] as number;
   const eta = clampEta(p[pb.etaIndex] as number);
   const etaCol = col[pb.etaIndex] as number;
   const baseCol = col[pb.baseIndex] as number;
   const slopeCol = col[pb.baseIndex + 1] as number;
-  for (let i = 0; i < npts; i++) {
-    const xi = x[lo + i] as number;
-    let v = (p[pb.baseIndex] as number) + (p[pb.baseIndex + 1] as number) * (xi - x0);
+  const a = p[pb.baseIndex] as number;
+  const b = p[pb.baseIndex + 1] as number;
+  let rss = 0;
+  for (let i = lo; i <= hi; i++) {
+    const xi = x[i] as number;
+    let v = a + b * (xi - x0);
     let dEta = 0;
     for (let k = 0; k < m; k++) {
-      const c = p[3 * k] as number;
       const h = p[3 * k + 1] as number;
       const w = Math.abs(p[3 * k + 2] as number);
-      const u = (xi - c) / w;
+      const u = (xi - (p[3 * k] as number)) / w;
       const G = Math.exp(-LN2x4 * u * u);
       const L = 1 / (1 + 4 * u * u);
       const shapeValue = (1 - eta) * G + eta * L;
       v += h * shapeValue;
       const dShapeDu = -(1 - eta) * 2 * LN2x4 * u * G - eta * 8 * u * L * L;
-      jac[(col[3 * k] as number) * npts + i] = (-h * dShapeDu) / w;
-      jac[(col[3 * k + 1] as number) * npts + i] = shapeValue;
-      jac[(col[3 * k + 2] as number) * npts + i] = (-h * dShapeDu * u) / w;
+      row[col[3 * k] as number] = (-h * dShapeDu) / w;
+      row[col[3 * k + 1] as number] = shapeValue;
+      row[col[3 * k + 2] as number] = (-h * dShapeDu * u) / w;
       dEta += h * (L - G);
     }
-    if (etaCol >= 0) jac[etaCol * npts + i] = dEta;
-    jac[baseCol * npts + i] = 1;
-    jac[slopeCol * npts + i] = xi - x0;
-    res[i] = (r[lo + i] as number) - v;
+    if (etaCol >= 0) row[etaCol] = dEta;
+    row[baseCol] = 1;
+    row[slopeCol] = xi - x0;
+    const res = (r[i] as number) - v;
+    rss += res * res;
+    for (let c = 0; c < q; c++) {
+      const rc = row[c] as number;
+      jtr[c] = (jtr[c] as number) + rc * res;
+      const off = c * q;
+      for (let c2 = c; c2 < q; c2++) jtj[off + c2] = (jtj[off + c2] as number) + rc * (row[c2] as number);
+    }
   }
-}
-
-/** Buffers of one fit, reused by every iteration. */
-interface Workspace {
-  readonly jac: Float64Array;
-  readonly res: Float64Array;
-  /** [M; √λD] (2q × q, column-major) and [c; 0]. */
-  readonly aug: Float64Array;
-  readonly rhs: Float64Array;
-}
-
-/** J and the residuals at one parameter point reduced to q rows (J = Q M, c = Qᵀres), with ‖J_c‖². */
-interface Linearisation {
-  readonly m: Float64Array;
-  readonly c: Float64Array;
-  readonly norms2: Float64Array;
-}
-
-function linearise(pb: Problem, p: readonly number[], ws: Workspace, q: number): Linearisation {
-  jacobianAt(pb, p, ws.jac, ws.res);
-  const npts = ws.res.length;
-  const norms2 = new Float64Array(q);
-  for (let c = 0; c < q; c++) {
-    let nrm = 0;
-    for (let i = 0; i < npts; i++) nrm += (ws.jac[c * npts + i] as number) ** 2;
-    norms2[c] = nrm;
-  }
-  return { ...reduceToTriangle(npts, q, ws.jac, ws.res), norms2 };
-}
-
-/**
- * The damped Gauss–Newton step: least squares of [J; √λ·diag(‖J_c‖)] δ = [res; 0] (Marquardt's scaling), solved
- * as [M; √λ·diag(‖J_c‖)] δ = [c; 0]: a refused step costs a 2q × q solve, not a new factorisation of J.
- */
-function dampedStep(lin: Linearisation, ws: Workspace, q: number, lambda: number) {
-  const rows = 2 * q;
-  ws.aug.fill(0);
-  ws.rhs.fill(0);
-  ws.rhs.set(lin.c);
-  for (let c = 0; c < q; c++) {
-    for (let i = 0; i < q; i++) ws.aug[c * rows + i] = lin.m[c * q + i] as number;
-    ws.aug[c * rows + q + c] = Math.sqrt(lambda * Math.max(lin.norms2[c] as number, 1e-300));
-  }
-  return solveLeastSquares({
-    rows,
-    cols: q,
-    design: ws.aug,
-    observations: ws.rhs,
-    rankTolerance: 1e-13,
-    conditionNumber: false,
-  });
+  return rss;
 }
 
 /** A step that throws a profile out of its window, below a third of a sample wide or wider than the window is refused. */
@@ -204,13 +186,23 @@ function staysInside(pb: Problem, p: readonly number[]): boolean {
   return true;
 }
 
-/** True when every component of the step is below SETTLED of its σ (σ² = variance · damped covariance diagonal). */
-function hasSettled(delta: Float64Array, covariance: Float64Array, variance: number): boolean {
+/** δᵀAδ for A symmetric, its upper triangle stored (row-major q × q). */
+function quadraticForm(a: Float64Array, delta: Float64Array): number {
   const q = delta.length;
-  for (let c = 0; c < q; c++) {
-    const sigma2 = variance * (covariance[c * q + c] as number);
+  let s = 0;
+  for (let i = 0; i < q; i++) {
+    const di = delta[i] as number;
+    s += (a[i * q + i] as number) * di * di;
+    for (let j = i + 1; j < q; j++) s += 2 * (a[i * q + j] as number) * di * (delta[j] as number);
+  }
+  return s;
+}
+
+/** True when every component of the step is below SETTLED of its σ (σ² = variance · damped covariance diagonal). */
+function hasSettled(delta: Float64Array, covarianceDiagonal: Float64Array, variance: number): boolean {
+  for (let c = 0; c < delta.length; c++) {
     const d = delta[c] as number;
-    if (!(d * d <= SETTLED * SETTLED * sigma2)) return false;
+    if (!(d * d <= SETTLED * SETTLED * variance * (covarianceDiagonal[c] as number))) return false;
   }
   return true;
 }
@@ -249,61 +241,71 @@ export function fitProfiles(
   const { lo, hi } = window;
   const m = members.length;
   const npts = hi - lo + 1;
-  let p = initialParameters(x, r, members, halfWidths, step, shape);
+  const p0 = initialParameters(x, r, members, halfWidths, step, shape);
   const etaIndex = 3 * m;
-  const freeIdx = p.flatMap((_, j) => (j !== etaIndex || shape === 'voigt' ? [j] : []));
+  const freeIdx = p0.flatMap((_, j) => (j !== etaIndex || shape === 'voigt' ? [j] : []));
   const q = freeIdx.length;
   // Too few points in the window to fit these profiles: nothing comes of it.
   if (npts <= q) return { profiles: [], rss: 0, dof: 0, model: () => 0 };
-  const col = new Int32Array(p.length).fill(-1);
+  const col = new Int32Array(p0.length).fill(-1);
   freeIdx.forEach((j, c) => {
     col[j] = c;
   });
   const pb: Problem = { x, r, lo, hi, m, etaIndex, baseIndex: etaIndex + 1, col, freeIdx, step };
-  const ws: Workspace = {
-    jac: new Float64Array(npts * q),
-    res: new Float64Array(npts),
-    aug: new Float64Array(2 * q * q),
-    rhs: new Float64Array(2 * q),
+  const { p, rss, normal } = levenbergMarquardt(pb, p0, q);
+  // (JᵀJ)⁻¹ per unit noise variance at the final point; scaled by the pooled noise by the caller.
+  const work = smallSpdWork(q);
+  const covariance = new Float64Array(q).fill(Number.NaN);
+  if (factorDamped(normal.jtj, 0, work)) inverseDiagonal(work, covariance);
+  return {
+    profiles: profilesOf(pb, p, (c) => covariance[c] as number),
+    rss,
+    dof: Math.max(0, npts - q),
+    model: (xi: number) => modelAt(pb, p, xi),
   };
+}
+
+/**
+ * Marquardt's damped Gauss–Newton iteration from p0: the step solves (JᵀJ + λ·diag(JᵀJ)) δ = Jᵀres; λ falls
+ * tenfold after a step that lowers the residual sum of squares and rises tenfold after one that does not. Returns
+ * the last accepted point with its residual sum of squares and normal equations.
+ */
+function levenbergMarquardt(pb: Problem, p0: readonly number[], q: number) {
+  const npts = pb.hi - pb.lo + 1;
+  const row = new Float64Array(q);
+  const work = smallSpdWork(q);
+  const delta = new Float64Array(q);
+  const dampedDiagonal = new Float64Array(q);
+  let normal = normalEquations(q);
+  let spare = normalEquations(q);
+  let p = p0;
+  let current = evaluate(pb, p, normal, row);
   let lambda = 1e-3;
-  let current = residualSumOfSquares(pb, p);
-  let lin: Linearisation | undefined;
   for (let iter = 0; iter < MAX_ITERATIONS; iter++) {
-    lin ??= linearise(pb, p, ws, q);
-    const sol = dampedStep(lin, ws, q, lambda);
-    if (sol.rankDeficient) break;
+    if (!factorDamped(normal.jtj, lambda, work)) break;
+    solveFactored(normal.jtr, work, delta);
+    inverseDiagonal(work, dampedDiagonal);
+    const variance = current / (npts - q);
+    const settled = hasSettled(delta, dampedDiagonal, variance);
     const trial = [...p];
-    freeIdx.forEach((j, c) => {
-      trial[j] = (p[j] as number) + (sol.coefficients[c] as number);
+    pb.freeIdx.forEach((j, c) => {
+      trial[j] = (p[j] as number) + (delta[c] as number);
     });
-    const settled = hasSettled(sol.coefficients, sol.covariance, current / (npts - q));
-    const next = staysInside(pb, trial) ? residualSumOfSquares(pb, trial) : Number.POSITIVE_INFINITY;
+    // η is kept in [0, 1] by projection: beyond it the profile would not change and the fit would chase η.
+    trial[pb.etaIndex] = clampEta(trial[pb.etaIndex] as number);
+    const next = staysInside(pb, trial) ? evaluate(pb, trial, spare, row) : Number.POSITIVE_INFINITY;
     if (next < current) {
       const improvement = (current - next) / Math.max(current, 1e-300);
+      const smallStep = quadraticForm(normal.jtj, delta) < STEP_SETTLED * STEP_SETTLED * variance;
       p = trial;
-      lin = undefined;
+      [normal, spare] = [spare, normal];
       current = next;
       lambda = Math.max(lambda / 10, 1e-12);
-      if (improvement < 1e-8 || settled) break;
+      if (improvement < 1e-8 || settled || smallStep) break;
     } else {
       lambda *= 10;
       if (lambda > 1e8 || settled) break;
     }
   }
-  // (JᵀJ)⁻¹ per unit noise variance, at the start of the last iteration; scaled by the pooled noise by the caller.
-  const cov = solveLeastSquares({
-    rows: npts,
-    cols: q,
-    design: ws.jac,
-    observations: new Float64Array(npts),
-    conditionNumber: false,
-  });
-  const final = p;
-  return {
-    profiles: profilesOf(pb, p, (c) => (cov.rankDeficient ? Number.NaN : (cov.covariance[c * q + c] as number))),
-    rss: current,
-    dof: Math.max(0, npts - q),
-    model: (xi: number) => modelAt(pb, final, xi),
-  };
+  return { p, rss: current, normal };
 }

@@ -60,4 +60,24 @@ describe('peak finder stages', () => {
     // The first window stops half-way to the isolated line's candidate at the latest.
     expect(groups[0]?.hi).toBeLessThanOrEqual(756);
   });
+
+  it("prominence: noise maxima on a strong line's wings are dropped, a weaker line beyond a real dip is kept", () => {
+    const n = 3000;
+    const sigma = 0.01;
+    const z = seededNormal(21);
+    const r = new Float64Array(n);
+    // Lorentzian lines (FWHM 20 samples): 2.0 at 1000 (wings above the 6σ threshold for ~±170 samples) and 0.3 at
+    // 1100, 5 FWHM away with a dip far below both; noise σ = 0.01.
+    for (let i = 0; i < n; i++) {
+      const l = (c: number, h: number) => h / (1 + 4 * ((i - c) / 20) ** 2);
+      r[i] = l(1000, 2) + l(1100, 0.3) + sigma * z();
+    }
+    const all = findCandidates(r, 6 * sigma);
+    const prominent = findCandidates(r, 6 * sigma, 4 * sigma);
+    // Without the prominence rule the wings carry extra maxima; with it, one candidate per line.
+    expect(all.index.length).toBeGreaterThan(2);
+    expect(prominent.index.length).toBe(2);
+    expect(Math.abs((prominent.index[0] as number) - 1000)).toBeLessThanOrEqual(2);
+    expect(Math.abs((prominent.index[1] as number) - 1100)).toBeLessThanOrEqual(3);
+  });
 });
