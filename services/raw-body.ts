@@ -34,8 +34,10 @@ export function jsonDepth(value: unknown): number {
     if (v === null || typeof v !== 'object') continue;
     if (d > max) max = d;
     if (max > MAX_JSON_DEPTH) return max;
-    if (Array.isArray(v)) for (const x of v) stack.push([x, d + 1]);
-    else
+    // Numbers and strings add no depth: only objects and arrays are stacked (a 10⁶-point spectrum is two arrays).
+    if (Array.isArray(v)) {
+      for (const x of v) if (x !== null && typeof x === 'object') stack.push([x, d + 1]);
+    } else
       for (const [k, x] of Object.entries(v as object)) {
         if (k === '__proto__' || k === 'constructor')
           throw Object.assign(new Error(`Object contains forbidden prototype property "${k}"`), { statusCode: 400 });

@@ -8,7 +8,7 @@ import type { Provenance } from './provenance.js';
 import { decodeBody, type Limits } from './raw-body.js';
 import { type CheckRequest, CheckResponseSchema, checkRequestSchema } from './schemas/checks.js';
 import { type FitRequest, FitResponseSchema, fitRequestSchema } from './schemas/fit.js';
-import { type PeaksRequest, PeaksRequestSchema, PeaksResponseSchema } from './schemas/peaks.js';
+import { type PeaksRequest, PeaksResponseSchema, parsePeaksRequest } from './schemas/peaks.js';
 import type { PotentialRequest } from './schemas/potentials.js';
 import type { PredictionRequest } from './schemas/predictions.js';
 import { runCheck } from './usecases/check.js';
@@ -72,16 +72,11 @@ class ValidationFailed extends Error {
 }
 
 const requestSchemas = new Map<string, z.ZodType>();
-function requestSchema(route: RawJob['route'], maxLines: number): z.ZodType {
+function requestSchema(route: 'fit' | 'check' | 'report', maxLines: number): z.ZodType {
   const key = `${route}:${maxLines}`;
   let s = requestSchemas.get(key);
   if (!s) {
-    s =
-      route === 'fit'
-        ? fitRequestSchema(maxLines)
-        : route === 'peaks'
-          ? PeaksRequestSchema
-          : checkRequestSchema(maxLines);
+    s = route === 'fit' ? fitRequestSchema(maxLines) : checkRequestSchema(maxLines);
     requestSchemas.set(key, s);
   }
   return s;
@@ -91,7 +86,11 @@ function requestSchema(route: RawJob['route'], maxLines: number): z.ZodType {
 const utf8 = (text: string): Uint8Array => new TextEncoder().encode(text);
 
 function runRaw(job: RawJob): RawAnswer {
-  const parsed = requestSchema(job.route, job.limits.maxLines).safeParse(decodeBody(job, job.limits));
+  const decoded = decodeBody(job, job.limits);
+  const parsed =
+    job.route === 'peaks'
+      ? parsePeaksRequest(decoded)
+      : requestSchema(job.route, job.limits.maxLines).safeParse(decoded);
   if (!parsed.success) throw new ValidationFailed(parsed.error.issues);
   const body = parsed.data as FitRequest & { sample?: object };
   const size = jobSize(body as { lines?: readonly unknown[]; spectrum?: { x: readonly unknown[] } });
