@@ -100,8 +100,8 @@ export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult 
   const coefficients = backSubstitute(qr, p);
   const rinv = invertUpperTriangular(r, p);
   const covariance = covarianceFrom(rinv, perm, scale, p);
-  const residuals = observations.slice();
-  subtractDesignTimes(residuals, design, coefficients, n, p);
+  const residuals = merged ? residualsByGroup(merged, observations, coefficients, p) : observations.slice();
+  if (!merged) subtractDesignTimes(residuals, design, coefficients, n, p);
   let chiSquare = 0;
   for (let i = 0; i < n; i++) chiSquare += (residuals[i] as number) ** 2 * (weights ? (weights[i] as number) : 1);
   let leverages: Float64Array | undefined;
@@ -391,33 +391,19 @@ function compressRows(
   weights: Float64Array | undefined,
 ): MergedRows | undefined {
   if (n < 64 || n < 4 * p) return undefined;
-  let size = 1;
-  while (size < 2 * n) size <<= 1;
-  const table = new Int32Array(size).fill(-1);
-  const group = new Int32Array(n);
-  const firstRow: number[] = [];
-  for (let i = 0; i < n; i++) {
-    let slot = rowHash(design, n, p, i) & (size - 1);
-    for (;;) {
-      const g = table[slot] as number;
-      if (g < 0) {
-        table[slot] = firstRow.length;
-        group[i] = firstRow.length;
-        firstRow.push(i);
-        break;
-      }
-      if (sameRow(design, n, p, i, firstRow[g] as number)) {
-        group[i] = g;
-        break;
-      }
-      slot = (slot + 1) & (size - 1);
-    }
-    if (firstRow.length > n / 2) return undefined;
-  }
+  const groups = groupsByHash(rowHashes(design, n, p), n / 2);
+  if (!groups) return undefined;
+  const { group, firstRow } = groups;
   const m = firstRow.length;
   const merged = new Float64Array(m * p);
   for (let j = 0; j < p; j++)
     for (let g = 0; g < m; g++) merged[j * m + g] = design[j * n + (firstRow[g] as number)] as number;
+  // Equal hashes are checked for equal rows, column by column; a collision (never seen) means no merging.
+  for (let j = 0; j < p; j++) {
+    const off = j * n;
+    const offM = j * m;
+    for (let i = 0; i < n; i++) if (design[off + i] !== merged[offM + (group[i] as number)]) return undefined;
+  }
   const w = new Float64Array(m);
   const wy = new Float64Array(m);
   for (let i = 0; i < n; i++) {
@@ -430,22 +416,71 @@ function compressRows(
   return { rows: m, design: merged, observations: wy, weights: w, group };
 }
 
-const hashView = new Float64Array(1);
-const hashBits = new Int32Array(hashView.buffer);
-
-function rowHash(design: Float64Array, n: number, p: number, i: number): number {
-  let h = 0x811c9dc5 | 0;
-  for (let j = 0; j < p; j++) {
-    hashView[0] = (design[j * n + i] as number) + 0; // −0 and 0 alike
-    h = Math.imul(h ^ (hashBits[0] as number), 0x01000193);
-    h = Math.imul(h ^ (hashBits[1] as number), 0x01000193);
+/**
+ * Rows grouped by equal hash (open addressing on the hash's low bits): each row's group and each group's first row;
+ * undefined once there are more than `most` groups.
+ */
+function groupsByHash(hashes: Int32Array, most: number): { group: Int32Array; firstRow: Int32Array } | undefined {
+  const n = hashes.length;
+  let size = 1;
+  while (size < 2 * n) size <<= 1;
+  const table = new Int32Array(size).fill(-1);
+  const group = new Int32Array(n);
+  const firstRow = new Int32Array(Math.floor(most) + 1);
+  let m = 0;
+  for (let i = 0; i < n; i++) {
+    const h = hashes[i] as number;
+    let slot = h & (size - 1);
+    for (;;) {
+      const g = table[slot] as number;
+      if (g < 0) {
+        if (m >= most) return undefined;
+        table[slot] = m;
+        firstRow[m] = i;
+        group[i] = m++;
+        break;
+      }
+      if (hashes[firstRow[g] as number] === h) {
+        group[i] = g;
+        break;
+      }
+      slot = (slot + 1) & (size - 1);
+    }
   }
-  return h >>> 0;
+  return { group, firstRow: firstRow.subarray(0, m) };
 }
 
-function sameRow(design: Float64Array, n: number, p: number, i: number, k: number): boolean {
-  for (let j = 0; j < p; j++) if (design[j * n + i] !== design[j * n + k]) return false;
-  return true;
+/**
+ * An FNV-1a hash of every row's bit patterns, built column by column (each column read once, in order). Rows equal
+ * but for −0 against 0 hash apart and stay unmerged, which is allowed: merging is exact, not required.
+ */
+function rowHashes(design: Float64Array, n: number, p: number): Int32Array {
+  const bits = new Int32Array(design.buffer, design.byteOffset, 2 * n * p);
+  const h = new Int32Array(n).fill(0x811c9dc5 | 0);
+  for (let j = 0; j < p; j++) {
+    const off = 2 * j * n;
+    for (let i = 0; i < n; i++) {
+      let v = Math.imul((h[i] as number) ^ (bits[off + 2 * i] as number), 0x01000193);
+      v = Math.imul(v ^ (bits[off + 2 * i + 1] as number), 0x01000193);
+      h[i] = v;
+    }
+  }
+  return h;
+}
+
+/** yᵢ − (Ax)ᵢ for every row, (Ax)ᵢ taken from its merged row (identical design rows give identical fits). */
+function residualsByGroup(merged: MergedRows, observations: Float64Array, x: Float64Array, p: number): Float64Array {
+  const m = merged.rows;
+  const fitted = new Float64Array(m);
+  for (let j = 0; j < p; j++) {
+    const off = j * m;
+    const c = x[j] as number;
+    for (let g = 0; g < m; g++) fitted[g] = (fitted[g] as number) + (merged.design[off + g] as number) * c;
+  }
+  const residuals = new Float64Array(observations.length);
+  for (let i = 0; i < residuals.length; i++)
+    residuals[i] = (observations[i] as number) - (fitted[merged.group[i] as number] as number);
+  return residuals;
 }
 
 /** A row's share of its merged row's leverage is its share of the merged weight: hᵢ = h_g wᵢ / W_g. */
