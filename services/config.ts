@@ -28,6 +28,11 @@ export interface Config {
   readonly workers: number;
   /** Requests with more lines (or spectra with more points / 100) than this go to the worker pool. Default 2 000. */
   readonly workerThreshold: number;
+  /**
+   * Threads (the calling one included) over which the pseudo-Voigt group fits of one spectrum of 200 000 points or
+   * more are spread; 1: one thread. Default min(4, cores). PEAK_THREADS.
+   */
+  readonly peakThreads: number;
   /** Whole-request timeout in ms (0: none). Default 120 000. */
   readonly requestTimeoutMs: number;
   /** Event-loop delay in ms above which the service sheds load with 503 (0: off). Default 1 000. */
@@ -118,6 +123,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     rateLimitPerMinute: intFrom(env, 'RATE_LIMIT_PER_MINUTE', 600, 0, 10_000_000),
     workers: intFrom(env, 'WORKERS', Math.max(1, availableParallelism() - 1), 0, 256),
     workerThreshold: intFrom(env, 'WORKER_THRESHOLD', 2000, 1, 100_000_000),
+    peakThreads: intFrom(env, 'PEAK_THREADS', Math.min(4, availableParallelism()), 1, 64),
     requestTimeoutMs: intFrom(env, 'REQUEST_TIMEOUT_MS', 120_000, 0, 3_600_000),
     maxEventLoopDelayMs: intFrom(env, 'MAX_EVENT_LOOP_DELAY_MS', 1000, 0, 600_000),
     maxHeapUsedBytes: intFrom(env, 'MAX_HEAP_USED_BYTES', 0, 0, Number.MAX_SAFE_INTEGER),

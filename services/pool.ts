@@ -119,7 +119,7 @@ export function createPool(config: Config): Pool {
       await Promise.all(Array.from({ length: threads }, () => piscina.run(tiny)));
     },
     async run<T>(job: Job, size: number, options: RunOptions = {}): Promise<T> {
-      if (!piscina || size < config.workerThreshold) return unwrap<T>(runJob(job));
+      if (!piscina || size < config.workerThreshold) return unwrap<T>(await runJob(job));
       if (config.maxQueue > 0 && piscina.queueSize >= config.maxQueue)
         throw overloaded(`${piscina.queueSize} jobs are waiting for a worker (MAX_QUEUE ${config.maxQueue})`);
       const admit = !options.admitted;

@@ -8,13 +8,13 @@ import type { Provenance } from './provenance.js';
 import { decodeBody, type Limits } from './raw-body.js';
 import { type CheckRequest, CheckResponseSchema, checkRequestSchema } from './schemas/checks.js';
 import { type FitRequest, FitResponseSchema, fitRequestSchema } from './schemas/fit.js';
-import { type PeaksRequest, PeaksResponseSchema, parsePeaksRequest } from './schemas/peaks.js';
+import { type PeaksRequest, type PeaksResponse, PeaksResponseSchema, parsePeaksRequest } from './schemas/peaks.js';
 import type { PotentialRequest } from './schemas/potentials.js';
 import type { PredictionRequest } from './schemas/predictions.js';
 import { runCheck } from './usecases/check.js';
 import { assertFinite, NonFiniteResult } from './usecases/finite.js';
 import { runFit } from './usecases/fit.js';
-import { runPeaks } from './usecases/peaks.js';
+import { runPeaksInThreads } from './usecases/peaks.js';
 import { runPotential } from './usecases/potential.js';
 import { runPrediction } from './usecases/predict.js';
 import { runReport } from './usecases/report.js';
@@ -24,7 +24,7 @@ export type Job =
   | { kind: 'fit'; body: FitRequest }
   | { kind: 'check'; body: CheckRequest }
   | { kind: 'report'; body: CheckRequest; provenance?: Provenance }
-  | { kind: 'peaks'; body: PeaksRequest }
+  | { kind: 'peaks'; body: PeaksRequest; peakThreads?: number }
   | { kind: 'predict'; body: PredictionRequest }
   | { kind: 'potential'; body: PotentialRequest }
   | RawJob;
@@ -42,6 +42,8 @@ export interface RawJob {
   readonly provenance: Provenance;
   /** The request's Accept header: fits and checks answer CSV when it prefers text/csv (services/formats/). */
   readonly accept?: string;
+  /** Threads for the group fits of a large spectrum (PEAK_THREADS); one when absent. */
+  readonly peakThreads?: number;
 }
 
 /** What a raw job answers: the response body, already serialised and encoded (UTF-8). */
@@ -85,7 +87,7 @@ function requestSchema(route: 'fit' | 'check' | 'report', maxLines: number): z.Z
 /** UTF-8 bytes in an ArrayBuffer of their own (so that it can be moved to the main thread, not copied). */
 const utf8 = (text: string): Uint8Array => new TextEncoder().encode(text);
 
-function runRaw(job: RawJob): RawAnswer {
+function runRaw(job: RawJob): RawAnswer | Promise<RawAnswer> {
   const decoded = decodeBody(job, job.limits);
   const parsed =
     job.route === 'peaks'
@@ -102,12 +104,19 @@ function runRaw(job: RawJob): RawAnswer {
       body: utf8(runReport(body as CheckRequest, { provenance: job.provenance })),
       type: 'text/html; charset=utf-8',
     };
-  const result =
-    job.route === 'fit'
-      ? runFit(body)
-      : job.route === 'check'
-        ? runCheck(body as CheckRequest)
-        : runPeaks(body as unknown as PeaksRequest);
+  if (job.route === 'peaks')
+    return runPeaksInThreads(body as unknown as PeaksRequest, job.peakThreads ?? 1).then((r) =>
+      rawAnswer(job, body, r),
+    );
+  return rawAnswer(job, body, job.route === 'fit' ? runFit(body) : runCheck(body as CheckRequest));
+}
+
+/** A raw job's result stamped, checked finite and serialised as the route answers it. */
+function rawAnswer(
+  job: RawJob,
+  body: { sample?: object },
+  result: ReturnType<typeof runFit> | ReturnType<typeof runCheck> | PeaksResponse,
+): RawAnswer {
   const stamped = { ...assertFinite(result), ...(body.sample ? { sample: body.sample } : {}), ...job.provenance };
   const responseSchema: z.ZodType =
     job.route === 'fit' ? FitResponseSchema : job.route === 'check' ? CheckResponseSchema : PeaksResponseSchema;
@@ -115,7 +124,11 @@ function runRaw(job: RawJob): RawAnswer {
   // The same forms as a small body gets (services/formats/respond.ts): CSV tables, or rounded display strings.
   if (job.route !== 'peaks' && prefersCsv(job.accept)) {
     const table = (job.query.table as TableName | undefined) ?? 'lines';
-    return { body: utf8(resultCsv(job.route, stamped as never, table)), type: 'text/csv; charset=utf-8', ...verdict };
+    return {
+      body: utf8(resultCsv(job.route as 'fit' | 'check', stamped as never, table)),
+      type: 'text/csv; charset=utf-8',
+      ...verdict,
+    };
   }
   const shown = job.route !== 'peaks' && job.query.display === 'rounded' ? withDisplay(stamped) : stamped;
   const encoded = z.encode(responseSchema, shown);
@@ -131,7 +144,7 @@ function run(job: Job): unknown {
     case 'report':
       return runReport(job.body, { ...(job.provenance ? { provenance: job.provenance } : {}) });
     case 'peaks':
-      return assertFinite(runPeaks(job.body));
+      return runPeaksInThreads(job.body, job.peakThreads ?? 1).then(assertFinite);
     case 'predict':
       return assertFinite(runPrediction(job.body));
     case 'potential':
@@ -141,24 +154,32 @@ function run(job: Job): unknown {
   }
 }
 
-export function runJob(job: Job): JobResult {
+/** Runs a job; a large spectrum's peaks (group fits in threads) answer later, everything else at once. */
+export function runJob(job: Job): JobResult | Promise<JobResult> {
   try {
-    return { ok: true, value: run(job) };
+    const value = run(job);
+    return value instanceof Promise ? value.then(succeeded, failed) : succeeded(value);
   } catch (e) {
-    // Science errors cross the thread boundary as plain data and are rebuilt on the other side.
-    if (e instanceof ScienceError)
-      return { ok: false, error: { code: e.code, message: e.message, details: { ...e.details } } };
-    if (e instanceof NonFiniteResult) return { ok: false, nonFinite: { quantity: e.quantity, value: e.value } };
-    if (e instanceof NeedsBudget) return { ok: false, budget: e.lines };
-    if (e instanceof ValidationFailed)
-      return {
-        ok: false,
-        validation: e.issues.map((i) => ({ path: i.path.map(String).join('/') || '(body)', message: i.message })),
-      };
-    if (e instanceof Error && (e as { statusCode?: number }).statusCode === 400)
-      return { ok: false, validation: [{ path: '(body)', message: e.message }] };
-    throw e;
+    return failed(e);
   }
+}
+
+const succeeded = (value: unknown): JobResult => ({ ok: true, value });
+
+function failed(e: unknown): JobResult {
+  // Science errors cross the thread boundary as plain data and are rebuilt on the other side.
+  if (e instanceof ScienceError)
+    return { ok: false, error: { code: e.code, message: e.message, details: { ...e.details } } };
+  if (e instanceof NonFiniteResult) return { ok: false, nonFinite: { quantity: e.quantity, value: e.value } };
+  if (e instanceof NeedsBudget) return { ok: false, budget: e.lines };
+  if (e instanceof ValidationFailed)
+    return {
+      ok: false,
+      validation: e.issues.map((i) => ({ path: i.path.map(String).join('/') || '(body)', message: i.message })),
+    };
+  if (e instanceof Error && (e as { statusCode?: number }).statusCode === 400)
+    return { ok: false, validation: [{ path: '(body)', message: e.message }] };
+  throw e;
 }
 
 /**
@@ -166,8 +187,8 @@ export function runJob(job: Job): JobResult {
  * copied and deserialised there (bench/loop-pause.ts: a 100 000-line fit's answer of ~30 MB held the event loop
  * for 100 ms on arrival and 260 ms more when written to the socket as a string).
  */
-export default function runInWorker(job: Job): JobResult | ReturnType<typeof move> {
-  const r = runJob(job);
+export default async function runInWorker(job: Job): Promise<JobResult | ReturnType<typeof move>> {
+  const r = await runJob(job);
   if (!r.ok || job.kind !== 'raw') return r;
   const bytes = (r.value as RawAnswer).body;
   return move({ [transferableSymbol]: bytes.buffer, [valueSymbol]: r });

@@ -94,7 +94,7 @@ export function resolvers(config: Config, app: FastifyInstance) {
         );
         if (!parsed.success) badInput(parsed.error);
         const body = parsed.data;
-        return guarded(() => app.pool.run({ kind: 'peaks', body }, jobSize(body)));
+        return guarded(() => app.pool.run({ kind: 'peaks', body, peakThreads: config.peakThreads }, jobSize(body)));
       },
       predict: async (_: unknown, args: { input: unknown }, ctx: Ctx) => {
         const input = dropNulls(args.input) as Record<string, unknown>;

@@ -27,7 +27,11 @@ export const peakRoutes =
       async (req, reply) => {
         if (await answerRawBody(app, config, 'peaks', req, reply)) return reply;
         const r = await timed(app, 'peaks', jobSize(req.body), () =>
-          app.pool.run<PeaksResponse>({ kind: 'peaks', body: req.body }, jobSize(req.body), workOptions(req, reply)),
+          app.pool.run<PeaksResponse>(
+            { kind: 'peaks', body: req.body, peakThreads: config.peakThreads },
+            jobSize(req.body),
+            workOptions(req, reply),
+          ),
         );
         return stamped(req, r, req.body.sample);
       },

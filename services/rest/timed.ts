@@ -54,6 +54,7 @@ export async function answerRawBody(
     limits: { maxLines: config.maxLines, maxPoints: config.maxPoints },
     provenance: provenanceOf(req),
     ...(req.headers.accept ? { accept: req.headers.accept } : {}),
+    ...(route === 'peaks' ? { peakThreads: config.peakThreads } : {}),
   };
   // Admission reserved the Content-Length's estimate (or the pool reserves it now); the worker checks it against
   // the lines it parses and, when there are more, the rest is reserved before the job runs again.

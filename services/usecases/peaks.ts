@@ -1,10 +1,20 @@
-import { findPeaks, type PeakResult } from '../../src/spectra/peaks.js';
+import { findPeaks, type PeakOptions, type PeakResult } from '../../src/spectra/peaks.js';
 import { toWavenumber } from '../../src/units.js';
 import { SAFETY_NOTICE } from '../notice.js';
+import { findPeaksInThreads } from '../peak-threads.js';
 import type { FitRequest } from '../schemas/fit.js';
 import type { PeaksRequest, PeaksResponse } from '../schemas/peaks.js';
 
 type Spectrum = NonNullable<FitRequest['spectrum']>;
+
+const wavenumbers = (spectrum: Spectrum): readonly number[] =>
+  spectrum.xUnit === 'cm-1' ? spectrum.x : spectrum.x.map((v) => toWavenumber(v, spectrum.xUnit).value);
+
+const peakOptions = (spectrum: Spectrum, options: FitRequest['peakOptions'] = {}): PeakOptions => ({
+  yUnit: spectrum.yUnit,
+  ...(options.threshold !== undefined ? { threshold: options.threshold } : {}),
+  ...(options.shape !== undefined ? { shape: options.shape } : {}),
+});
 
 /**
  * Peaks already found per spectrum object and options: a spectrum sent without a species goes through the diatomic
@@ -17,20 +27,11 @@ export function peaksOf(spectrum: Spectrum, options: FitRequest['peakOptions'] =
   const key = JSON.stringify(options ?? {});
   const known = FOUND.get(spectrum)?.get(key);
   if (known) return known;
-  const found = findPeaksOf(spectrum, options);
+  const found = findPeaks(wavenumbers(spectrum), spectrum.y, peakOptions(spectrum, options));
   const byOptions = FOUND.get(spectrum) ?? new Map<string, PeakResult>();
   byOptions.set(key, found);
   FOUND.set(spectrum, byOptions);
   return found;
-}
-
-function findPeaksOf(spectrum: Spectrum, options: FitRequest['peakOptions'] = {}): PeakResult {
-  const x = spectrum.xUnit === 'cm-1' ? spectrum.x : spectrum.x.map((v) => toWavenumber(v, spectrum.xUnit).value);
-  return findPeaks(x, spectrum.y, {
-    yUnit: spectrum.yUnit,
-    ...(options.threshold !== undefined ? { threshold: options.threshold } : {}),
-    ...(options.shape !== undefined ? { shape: options.shape } : {}),
-  });
 }
 
 /** The unit of every number of a peak list: x is always converted to cm⁻¹, y to absorbance. */
@@ -44,8 +45,24 @@ export const PEAK_UNITS = {
   noise: 'absorbance',
 } as const;
 
+const answer = (r: PeakResult): PeaksResponse => ({
+  peaks: r.peaks,
+  points: r.points,
+  noise: r.noise,
+  step: r.step,
+  units: PEAK_UNITS,
+  notice: SAFETY_NOTICE,
+});
+
 /** POST /v1/peaks. */
 export function runPeaks(req: PeaksRequest): PeaksResponse {
-  const r = peaksOf(req.spectrum, req.peakOptions);
-  return { peaks: r.peaks, points: r.points, noise: r.noise, step: r.step, units: PEAK_UNITS, notice: SAFETY_NOTICE };
+  return answer(peaksOf(req.spectrum, req.peakOptions));
+}
+
+/** POST /v1/peaks with the group fits of a large spectrum spread over `threads` threads (services/peak-threads.ts). */
+export async function runPeaksInThreads(req: PeaksRequest, threads: number): Promise<PeaksResponse> {
+  const { spectrum } = req;
+  return answer(
+    await findPeaksInThreads(wavenumbers(spectrum), spectrum.y, peakOptions(spectrum, req.peakOptions), threads),
+  );
 }

@@ -51,15 +51,74 @@ export interface PeakResult {
 }
 
 export function findPeaks(xIn: ArrayLike<number>, yIn: ArrayLike<number>, options: PeakOptions = {}): PeakResult {
+  const search = preparePeakSearch(xIn, yIn, options);
+  return finishPeaks(search, fitGroups(packGroups(search, 0, search.groups.length)), options);
+}
+
+/** Stages 1–3: the spectrum above its baseline, the first noise figure and the candidate groups to fit. */
+export interface PeakSearch extends GroupContext {
+  readonly groups: readonly CandidateGroup[];
+}
+
+export function preparePeakSearch(
+  xIn: ArrayLike<number>,
+  yIn: ArrayLike<number>,
+  options: PeakOptions = {},
+): PeakSearch {
   const spectrum = toAbsorbance(xIn, yIn, options.yUnit);
   const { x, step } = spectrum;
   const r = aboveBaseline(spectrum);
   const noise0 = firstNoiseEstimate(r);
   const threshold = (options.threshold ?? 6) * noise0;
   const groups = groupCandidates(findCandidates(r, threshold, CANDIDATE_PROMINENCE * noise0), x.length);
-  const ctx: GroupContext = { x, r, step, shape: options.shape ?? 'voigt', threshold, noise0 };
-  const fits = groups.map((g) => fitGroup(ctx, g));
-  const pooled = pooledNoise(fits, noise0);
+  return { x, r, step, shape: options.shape ?? 'voigt', threshold, noise0, groups };
+}
+
+/**
+ * Groups [from, to) of a search with only the samples their fits read: each group's window, laid end to end, and
+ * the groups' indices moved to match. A fit reads nothing outside its window, so a packed group fits exactly as it
+ * does in place; a packed chunk is small (~1 % of a 10⁶-point spectrum) and can go to another thread.
+ */
+export interface PackedGroups extends GroupContext {
+  readonly groups: readonly CandidateGroup[];
+}
+
+export function packGroups(search: PeakSearch, from: number, to: number): PackedGroups {
+  const chosen = search.groups.slice(from, to);
+  const length = chosen.reduce((sum, g) => sum + g.hi - g.lo + 1, 0);
+  const x = new Float64Array(length);
+  const r = new Float64Array(length);
+  let at = 0;
+  const groups = chosen.map((g) => {
+    x.set(search.x.subarray(g.lo, g.hi + 1), at);
+    r.set(search.r.subarray(g.lo, g.hi + 1), at);
+    const shift = at - g.lo;
+    at += g.hi - g.lo + 1;
+    return { ...g, members: g.members.map((m) => m + shift), lo: g.lo + shift, hi: g.hi + shift };
+  });
+  const { step, shape, threshold, noise0 } = search;
+  return { x, r, step, shape, threshold, noise0, groups };
+}
+
+/** What a group fit leaves for the last stage (plain data: it crosses threads). */
+export interface GroupFit {
+  readonly profiles: FittedProfile[];
+  readonly rss: number;
+  readonly dof: number;
+}
+
+/** Stage 4 for a packed chunk of groups: each group fitted, weak or duplicate members dropped, blends added. */
+export function fitGroups(packed: PackedGroups): GroupFit[] {
+  return packed.groups.map((g) => {
+    const f = fitGroup(packed, g);
+    return { profiles: f.profiles, rss: f.rss, dof: f.dof };
+  });
+}
+
+/** Stage 5: the pooled noise, the lines kept and their uncertainties, from every group's fit (in group order). */
+export function finishPeaks(search: PeakSearch, fits: readonly GroupFit[], options: PeakOptions = {}): PeakResult {
+  const { x, step, threshold } = search;
+  const pooled = pooledNoise(fits, search.noise0);
   const fitted = fits.flatMap((f) => f.profiles.filter((p) => p.valid && p.height >= threshold));
   const peaks = typicalLines(fitted, x).map((p) => toPeak(p, pooled, step));
   peaks.sort((p, q) => p.position - q.position);
@@ -75,7 +134,7 @@ export function findPeaks(xIn: ArrayLike<number>, yIn: ArrayLike<number>, option
 export const CANDIDATE_PROMINENCE = 4;
 
 /** What every group fit needs besides its own candidates. */
-interface GroupContext {
+export interface GroupContext {
   readonly x: Float64Array;
   readonly r: Float64Array;
   readonly step: number;
@@ -157,7 +216,7 @@ function addBlend(
 }
 
 /** The final noise from the pooled fit residuals (a-posteriori); the first estimate when no fit has freedom left. */
-function pooledNoise(fits: readonly ProfileFit[], noise0: number): number {
+function pooledNoise(fits: readonly GroupFit[], noise0: number): number {
   let rss = 0;
   let dof = 0;
   for (const f of fits) {
