@@ -916,6 +916,19 @@ export interface components {
             unit: "cm-1";
             value: number;
           };
+          /** @description l ≥ 1: E(f) − E(e) = q J(J+1) + q_J [J(J+1)]² */
+          qJ?: {
+            note?: string;
+            /** @description key(s) of `sources`, joined by "+" */
+            source: string;
+            /** @enum {string} */
+            status: "read" | "read-secondary" | "derived" | "recalled";
+            /** @description 1σ; null when the source gives none (never 0) */
+            uncertainty: number | null;
+            /** @constant */
+            unit: "cm-1";
+            value: number;
+          };
           rank?: number;
           v: number[];
         })[];
@@ -1226,7 +1239,7 @@ export interface components {
       };
       /** @default 30 */
       jMax?: number;
-      /** @description linear polyatomic: the constants of every level the bands join (cm-1) */
+      /** @description linear polyatomic: the constants of every level the bands join (cm-1); absent: the reference library, with its sources (and, when no bands are sent, every infrared band it holds for the species) */
       levels?: components["schemas"]["LinearLevelConstants"][];
       sample?: components["schemas"]["Sample"];
       /** @description diatomic: element symbols in order, each optionally preceded by its mass number ("12C16O", "H35Cl", "1H-79Br"; a digit always belongs to the symbol after it). Linear polyatomic: the atoms along the axis joined by "-", each optionally preceded by its mass number ("16O-12C-16O", "14N-14N-16O", "1H-12C-14N", "1H-12C-12C-1H"), or an everyday formula CO2, N2O, OCS, HCN, C2H2, CS2 where a single digit AFTER a symbol is a count and digits BEFORE a symbol are its mass number, applied to every atom of that element ("13CO2" = 16O-13C-16O, "C18O2" = 18O-12C-18O, "DCN" = 2H-12C-14N). Responses echo the hyphenated form. */
@@ -1245,6 +1258,13 @@ export interface components {
     PredictionResponse: {
       constants: ({
           name: string;
+          /** @description linear library values: key(s) of `sources`, joined by "+" */
+          source?: string;
+          /**
+           * @description linear library values: read from the source, from a secondary copy, derived, or recalled
+           * @enum {string}
+           */
+          status?: "read" | "read-secondary" | "derived" | "recalled";
           /** @description null when the value has no published uncertainty (never 0) */
           uncertainty: number | null;
           value: number;
@@ -1285,6 +1305,13 @@ export interface components {
       software: components["schemas"]["Software"];
       /** @enum {string} */
       source: "library" | "caller";
+      /** @description linear library predictions: the publications the values come from, by key */
+      sources?: {
+        [key: string]: {
+          address: string;
+          cite: string;
+        };
+      };
       species: string;
     };
     /** @description RFC 9457 problem details. */
@@ -1443,6 +1470,19 @@ export interface components {
           name: string;
           note?: string;
           q?: {
+            note?: string;
+            /** @description key(s) of `sources`, joined by "+" */
+            source: string;
+            /** @enum {string} */
+            status: "read" | "read-secondary" | "derived" | "recalled";
+            /** @description 1σ; null when the source gives none (never 0) */
+            uncertainty: number | null;
+            /** @constant */
+            unit: "cm-1";
+            value: number;
+          };
+          /** @description l ≥ 1: E(f) − E(e) = q J(J+1) + q_J [J(J+1)]² */
+          qJ?: {
             note?: string;
             /** @description key(s) of `sources`, joined by "+" */
             source: string;

@@ -416,6 +416,10 @@ export const typeDefs = /* GraphQL */ `
     name: String!
     value: Float!
     uncertainty: Float
+    "linear library values: read, read-secondary, derived or recalled"
+    status: String
+    "linear library values: key(s) of sources, joined by +"
+    source: String
   }
 
   "A predicted position: uncertainty is null when a constant it rests on has no published uncertainty."
@@ -444,6 +448,8 @@ export const typeDefs = /* GraphQL */ `
     species: String!
     source: String!
     constants: [ConstantValue!]!
+    "linear library predictions: { key: { cite, address } } of the publications the values come from"
+    sources: JSON
     lines: [PredictedLine!]!
     convention: String
     notice: String!

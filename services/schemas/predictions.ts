@@ -67,7 +67,9 @@ export const PredictionRequestSchema = z
       .min(1)
       .max(40)
       .optional()
-      .describe('linear polyatomic: the constants of every level the bands join (cm-1)'),
+      .describe(
+        'linear polyatomic: the constants of every level the bands join (cm-1); absent: the reference library, with its sources (and, when no bands are sent, every infrared band it holds for the species)',
+      ),
     jMax: z.number().int().min(0).max(200).default(30),
     temperature: z.number().min(10).max(6000).default(296).describe('K, for relative intensities'),
     unit: z.enum(POSITION_UNITS).default('cm-1'),
@@ -97,8 +99,17 @@ export const PredictionResponseSchema = z
         name: z.string(),
         value: z.number(),
         uncertainty: z.number().nullable().describe('null when the value has no published uncertainty (never 0)'),
+        status: z
+          .enum(['read', 'read-secondary', 'derived', 'recalled'])
+          .optional()
+          .describe('linear library values: read from the source, from a secondary copy, derived, or recalled'),
+        source: z.string().optional().describe('linear library values: key(s) of `sources`, joined by "+"'),
       }),
     ),
+    sources: z
+      .record(z.string(), z.object({ cite: z.string(), address: z.string() }))
+      .optional()
+      .describe('linear library predictions: the publications the values come from, by key'),
     lines: z.array(
       z.object({
         band: z.string(),

@@ -54,6 +54,7 @@ export const LinearSpeciesEntrySchema = z
         D: LinearLibraryValueSchema,
         H: LinearLibraryValueSchema.optional(),
         q: LinearLibraryValueSchema.optional(),
+        qJ: LinearLibraryValueSchema.optional().describe('l ≥ 1: E(f) − E(e) = q J(J+1) + q_J [J(J+1)]²'),
         note: z.string().optional(),
       }),
     ),

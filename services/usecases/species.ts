@@ -62,6 +62,7 @@ function presentLinear(e: ReferenceSpecies) {
     D: cited(l.D),
     ...(l.H ? { H: cited(l.H) } : {}),
     ...(l.q ? { q: cited(l.q) } : {}),
+    ...(l.qJ ? { qJ: cited(l.qJ) } : {}),
     ...(l.note ? { note: l.note } : {}),
   }));
   const otherModes = (e.otherModes ?? []).map((m) => ({ mode: m.mode, centre: cited(m.centre) }));

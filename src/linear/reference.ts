@@ -18,8 +18,7 @@ import { type LinearLevel, type LinearLevelConstants, levelKey } from './types.j
  * Sources quote Π levels in other forms, converted here (status 'derived', the conversion named in `note`):
  *   - per-parity power series E_p = G_p + B_p x − D_p x² + H_p x³ (x = J(J+1)), as in refits of database
  *     energies: H = H̄, D = D̄ − 3H l², B = B̄ − 2D l² − 3H l⁴, q = B_f − B_e, G_v = Ḡ + B l² + D l⁴ + H l⁶ (bars are
- *     e/f means). The difference D_f − D_e (a J-dependence of q) has no place in this model and is dropped; the
- *     note of each such level gives its size.
+ *     e/f means), q_J = −(D_f − D_e) (the J-dependence of q: E_f − E_e = q x + q_J x²).
  *   - NIST Triatomic c/d components: c (lower B) = e, d = f; NIST's tabulated q(010) is HALF the splitting.
  *   - Rothman & Young (1981) give one B per Π level, which equals the HITRAN e-component value (note §2).
  * Mode numbering (Herzberg's, used by HITRAN): triatomics [v1, v2, v3] with v2 the bend; N2O ν1 ≈ 1285 cm⁻¹ (the
@@ -104,6 +103,8 @@ export interface ReferenceLevel extends LinearLevel {
   readonly H?: ReferenceValue;
   /** Full l-type doubling coefficient (l ≥ 1 only). */
   readonly q?: ReferenceValue;
+  /** Its centrifugal correction: E(f) − E(e) = q J(J+1) + q_J [J(J+1)]² (l ≥ 1 only). */
+  readonly qJ?: ReferenceValue;
   readonly note?: string;
 }
 
@@ -166,7 +167,7 @@ function fromParitySeries(
   f: ParitySeries,
   source: string,
   what: string,
-): Pick<ReferenceLevel, 'G' | 'B' | 'D' | 'H' | 'q'> {
+): Pick<ReferenceLevel, 'G' | 'B' | 'D' | 'H' | 'q' | 'qJ'> {
   const L = l * l;
   const mean = (a: number, b: number) => (a + b) / 2;
   const sMean = (a?: number, b?: number) => (a === undefined || b === undefined ? undefined : 0.5 * Math.hypot(a, b));
@@ -174,7 +175,7 @@ function fromParitySeries(
   const D = mean(e.D, f.D) - 3 * H * L;
   const B = mean(e.B, f.B) - 2 * D * L - 3 * H * L * L;
   const G = termOriginFromPowerSeries(mean(e.G, f.G), { B, D, H }, l);
-  const dDnote = `D_f − D_e = ${(f.D - e.D).toExponential(3)} cm-1 dropped (its lines shift by ≈ ${((f.D - e.D) / 2).toExponential(2)} x² cm-1)`;
+  const dDnote = `D_f − D_e = ${(f.D - e.D).toExponential(3)} cm-1 carried as q_J = −(D_f − D_e)`;
   const how = `converted from ${what} per-parity power series (e and f): see the module comment; ${dDnote}`;
   return {
     G: rv(G, 'derived', source, sMean(e.sG, f.sG), how),
@@ -188,6 +189,19 @@ function fromParitySeries(
       e.sB !== undefined && f.sB !== undefined ? Math.hypot(e.sB, f.sB) : undefined,
       `B_f − B_e of ${what}`,
     ),
+    // E_f − E_e = (B_f − B_e)x − (D_f − D_e)x² + …, so the l-doubling's centrifugal term is q_J = −(D_f − D_e)
+    // (HCN 01¹0: −8.85e-8 cm⁻¹, 0.02 cm⁻¹ on an f line at J = 25).
+    ...(f.D !== e.D
+      ? {
+          qJ: rv(
+            -(f.D - e.D),
+            'derived',
+            source,
+            e.sD !== undefined && f.sD !== undefined ? Math.hypot(e.sD, f.sD) : undefined,
+            `−(D_f − D_e) of ${what}`,
+          ),
+        }
+      : {}),
   };
 }
 
@@ -772,6 +786,7 @@ export function referenceConstants(level: ReferenceLevel): LinearLevelConstants 
     D: level.D.value,
     ...(level.H ? { H: level.H.value } : {}),
     ...(level.q && level.l >= 1 ? { q: level.q.value } : {}),
+    ...(level.qJ && level.l >= 1 ? { qJ: level.qJ.value } : {}),
   };
 }
 

@@ -192,8 +192,12 @@ describe('linear polyatomic molecules over the services', () => {
     expect(res.headers['content-type']).toMatch(/application\/problem\+json/);
   });
 
-  it('refuses linear predictions without levels, and diatomic strings still predict as before', async () => {
-    const bad = await app().inject({ method: 'POST', url: '/v1/predictions', payload: { species: 'CO2' } });
+  it('refuses linear predictions with diatomic band strings, and diatomic strings still predict as before', async () => {
+    const bad = await app().inject({
+      method: 'POST',
+      url: '/v1/predictions',
+      payload: { species: 'CO2', bands: ['1-0', '2-0'] },
+    });
     expect(bad.statusCode).toBe(422);
     expect(bad.headers['content-type']).toMatch(/application\/problem\+json/);
     const co = await app().inject({ method: 'POST', url: '/v1/predictions', payload: { species: '12C16O', jMax: 3 } });
