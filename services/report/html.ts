@@ -3,6 +3,15 @@ import type { Provenance } from '../provenance.js';
 import type { CheckRequest, CheckResponse } from '../schemas/checks.js';
 import type { Sample } from '../schemas/provenance.js';
 import { decimalsFor, fixedTo, prose, quantity, sig, unitText } from './format.js';
+import {
+  isLinearFit,
+  linearAssignmentText,
+  linearBandOrder,
+  linearConstantsSection,
+  linearFortrat,
+  linearHazards,
+  linearResidualPanels,
+} from './linear.js';
 import { esc, MARKERS, PALETTE, plot, type Series } from './svg.js';
 
 /**
@@ -228,6 +237,19 @@ function constantsSection(fit: Fit, warnings: readonly NumberedWarning[]): strin
         .join('')}</tbody></table>`
     : '';
   return `${eq}${levels}${bands}${stats}${cross}`;
+}
+
+/** The constants of a linear fit (services/report/linear.ts), with the warnings that qualify each table. */
+function linearConstants(fit: Fit, warnings: readonly NumberedWarning[]): string {
+  const of = (re: RegExp) => warnings.filter((w) => re.test(w.code));
+  return linearConstantsSection(fit, {
+    levels: warningNote(
+      of(/STRONG_CORRELATION|NON_PHYSICAL|FEW_DEGREES|ILL_CONDITIONED|L_DOUBLING|CENTRIFUGAL|TERMS_/),
+      'level-notes',
+    ),
+    bands: warningNote(of(/^(BAND_|OFFSET_|NUMBERING_|ASSIGNED_|NO_BAND|IDENTIFICATION_|COMBINATION_)/), 'band-notes'),
+    stats: warningNote(of(/^(UNCERTAINTY_|FEW_DEGREES|LINES_REJECTED|REPEATS)/), 'statistics-notes'),
+  });
 }
 
 // ---------------------------------------------------------------------------------------------- plots
@@ -461,6 +483,7 @@ function otherPlots(report: CheckResponse, fit: Fit, bands: readonly { species: 
       }),
     );
   }
+  if (isLinearFit(fit)) return [...out, ...linearFortrat(fit, bands)];
   const fortrat: Series[] = bands
     .map((b, n) => ({
       label: `${b.species} ${b.band}`,
@@ -489,6 +512,7 @@ function otherPlots(report: CheckResponse, fit: Fit, bands: readonly { species: 
 const STATUS_WORDS: Record<string, string> = { fitted: 'fitted', rejected: 'rejected', unassigned: 'unexplained' };
 
 function lineTable(fit: Fit, warnings: readonly NumberedWarning[]): string {
+  const linear = isLinearFit(fit);
   const byLine = new Map<number, NumberedWarning[]>();
   for (const w of warnings) for (const i of w.lines ?? []) byLine.set(i, [...(byLine.get(i) ?? []), w]);
   const rms = fit.statistics.rms;
@@ -500,7 +524,7 @@ function lineTable(fit: Fit, warnings: readonly NumberedWarning[]): string {
       const ws = byLine.get(l.index) ?? [];
       const why = l.reason ? prose(l.reason) : l.status === 'unassigned' ? 'no band explains this line' : '';
       const reason = [why, ...ws.map((w) => `W${w.n}`)].filter(Boolean).join('; ');
-      return `<tr class="${esc(l.status)}"><td>${esc(l.id !== undefined ? String(l.id) : String(l.index + 1))}</td><td class="num">${l.position.toFixed(d)}</td><td class="num">${l.uncertainty !== undefined ? sig(l.uncertainty, 2) : ''}</td><td>${a ? `${esc(a.species)} ${esc(a.band)} ${esc(a.branch)}(${a.j})${a.source === 'auto' ? '' : ' <span class="muted">given</span>'}` : ''}</td><td class="num">${fixedTo(l.calculated, u)}</td><td class="num">${fixedTo(l.residual, u)}</td><td>${esc(STATUS_WORDS[l.status] ?? l.status)}</td><td>${esc(reason)}</td></tr>`;
+      return `<tr class="${esc(l.status)}"><td>${esc(l.id !== undefined ? String(l.id) : String(l.index + 1))}</td><td class="num">${l.position.toFixed(d)}</td><td class="num">${l.uncertainty !== undefined ? sig(l.uncertainty, 2) : ''}</td><td>${a ? `${esc(linear ? linearAssignmentText(a) : `${a.species} ${a.band} ${a.branch}(${a.j})`)}${a.source === 'auto' ? '' : ' <span class="muted">given</span>'}` : ''}</td><td class="num">${fixedTo(l.calculated, u)}</td><td class="num">${fixedTo(l.residual, u)}</td><td>${esc(STATUS_WORDS[l.status] ?? l.status)}</td><td>${esc(reason)}</td></tr>`;
     })
     .join('');
   const anyIds = fit.lines.some((l) => l.id !== undefined);
@@ -569,11 +593,12 @@ export function renderReport(report: CheckResponse, options: RenderOptions): str
 
   let body: string;
   if (fit) {
-    const bands = [...fit.bands].sort(bandOrder(fit.species.map((s) => s.formula)));
+    const linear = isLinearFit(fit);
+    const bands = [...fit.bands].sort(linear ? linearBandOrder : bandOrder(fit.species.map((s) => s.formula)));
     const plotsHtml = [
       ...(options.spectrum ? [spectrumPanel(fit, options.spectrum)] : []),
       `<div class="panels" id="line-panels">${lineListPanels(fit, bands).join('')}</div>`,
-      `<div class="panels" id="residual-panels">${residualPanels(fit, bands).join('')}</div>`,
+      `<div class="panels" id="residual-panels">${(linear ? linearResidualPanels : residualPanels)(fit, bands).join('')}</div>`,
       ...otherPlots(report, fit, bands),
     ].join('\n');
     const unexplained = fit.assignment.unexplained;
@@ -581,7 +606,7 @@ export function renderReport(report: CheckResponse, options: RenderOptions): str
       unexplained.length === 0
         ? `<p id="unexplained">Every line was assigned to a band: none is left unexplained.</p>`
         : `<p id="unexplained">${unexplained.length} line${unexplained.length === 1 ? ' is' : 's are'} explained by no band (status “unexplained” in the table below): possible impurities or noise, never fitted.</p>`;
-    body = `<h2>Constants</h2>${constantsSection(fit, warnings)}
+    body = `<h2>Constants</h2>${linear ? linearConstants(fit, warnings) : constantsSection(fit, warnings)}
 <h2>Plots</h2>${plotsHtml}
 <h2>Lines</h2>${explained}${lineTable(fit, warnings)}`;
   } else {
@@ -600,7 +625,7 @@ export function renderReport(report: CheckResponse, options: RenderOptions): str
 <p class="sub">${esc(species)} · generated ${esc(options.generatedAt)} by branchwise${options.provenance ? ` ${esc(options.provenance.software.version)}` : ''}</p>
 ${headerBlock(report, options)}
 <div class="verdict ${esc(report.verdict)}" id="verdict">${esc(STATUS_TEXT[report.verdict] ?? report.verdict)}<span style="font-weight:400;font-size:14px">worst of ${report.checks.filter((c) => c.status !== 'not-evaluated').length} evaluated checks</span></div>
-<div class="caution" id="caution"><strong>Caution.</strong> ${esc(report.notice)} This report gives constants computed from the data sent; it is not a certificate of the safety, purity or identity of a gas.</div>
+<div class="caution" id="caution"><strong>Caution.</strong> ${esc(report.notice)} This report gives constants computed from the data sent; it is not a certificate of the safety, purity or identity of a gas.${fit && isLinearFit(fit) ? linearHazards(fit) : ''}</div>
 <h2>Warnings</h2>${warningList}
 <h2>Checks</h2>
 <table id="checks"><thead><tr><th>check</th><th>status</th><th>finding</th></tr></thead><tbody>${checks}</tbody></table>

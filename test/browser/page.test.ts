@@ -8,6 +8,7 @@ import { type BrowserContext, chromium, type Frame, type Page } from 'playwright
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { buildApp } from '../../services/app.js';
 import { loadConfig } from '../../services/config.js';
+import { genLineList, genUnassigned, HCN_H12C14N } from '../helpers/independent-linear.js';
 import { writeJcamp } from '../helpers/jcamp-writer.js';
 import { hclScan } from '../helpers/scans.js';
 import { syntheticSpectrum } from '../helpers/spectra.js';
@@ -207,6 +208,42 @@ describe.skipIf(!existsSync(CHROMIUM))('in Chromium, by host name over plain HTT
     await other.close();
     await page.click('#forget');
     expect(await page.evaluate(() => sessionStorage.getItem('branchwise.apiKey'))).toBeNull();
+    await page.close();
+  });
+
+  it('an HCN ν2 line list gives the linear layout: levels with l and e/f, the Q branch, residuals by branch, the hazard', async () => {
+    const { page, errors } = await tab();
+    await page.goto(`${open.base}/`);
+    // Independent generator (shared note's refit of HITRAN HCN levels): 01¹0–00⁰0 with P, Q and R, σ 5e-4 cm⁻¹.
+    const lines = genUnassigned(
+      genLineList({
+        molecule: HCN_H12C14N,
+        bands: [{ upper: '0110', lower: '0000' }],
+        jMax: 30,
+        sigma: 5e-4,
+        seed: 83,
+        minRelativeIntensity: 0.01,
+      }),
+    );
+    await page.fill('#input', JSON.stringify({ lines }));
+    await page.fill('#species', 'HCN');
+    await page.click('#go');
+    const frame = await reportFrame(page);
+    expect(await frame.textContent('#convention')).toMatch(/upper sign \(−\) for e and lower \(\+\) for f/);
+    const levels = (await frame.textContent('#levels')) ?? '';
+    expect(levels).toContain('01¹0');
+    expect(levels).toContain('e, f');
+    expect(await frame.textContent('#q-branches')).toMatch(/e → f/);
+    expect(await frame.textContent('#hazards')).toMatch(/HCN is acutely toxic/);
+    // Residual panel: one series per branch and component, each drawn.
+    const series = await frame.$$eval('#residual-panels svg .series', (g) => g.length);
+    expect(series).toBeGreaterThanOrEqual(3);
+    const plotted = await frame.$$eval('figure.plot svg', (svgs) =>
+      svgs.map((sv) => sv.querySelectorAll('.series').length),
+    );
+    for (const n of plotted) expect(n).toBeGreaterThan(0);
+    await page.screenshot({ path: join(ARTIFACTS, 'page-linear-report.png'), fullPage: true });
+    expect(errors).toEqual([]);
     await page.close();
   });
 
