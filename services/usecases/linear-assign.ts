@@ -3,24 +3,30 @@ import { ScienceError } from '../../src/errors.js';
 import {
   assignLinearLines,
   identifyLinearSpecies,
+  type LinearAssignedLine,
   type LinearAssignResult,
   linearChecks,
   mergeIdentifications,
 } from '../../src/linear/assign.js';
 import type { LinearLineInput } from '../../src/linear/fit.js';
+import type { LinearAssignment } from '../../src/linear/transitions.js';
+import { bandLabel, levelKey } from '../../src/linear/types.js';
 import { type Tolerances, verdictOf } from '../../src/qa/checks.js';
 import { toWavenumber } from '../../src/units.js';
 import { SAFETY_NOTICE } from '../notice.js';
 import type { CheckRequest, CheckResponse } from '../schemas/checks.js';
 import type { FitRequest, FitResponse } from '../schemas/fit.js';
-import { asLineRequest, runLinearFit } from './linear-fit.js';
+import { asLineRequest, assignmentFromWire, isLinearAssignment, runLinearFit } from './linear-fit.js';
 import type { DeepReadonly } from './types.js';
 
 /**
- * Automatic assignment for the linear fit use case: when a request for a linear species sends no assignment at all,
- * the library's bands are assigned first (src/linear/assign.ts) and the fit runs on the lines so assigned. Lines
- * given with an assignment are never touched (an assignment on any line turns this off, as for diatomics a given
- * band does). Returns the lines with assignments filled in and the indices assigned automatically.
+ * Automatic assignment for the linear fit use case: lines sent without an assignment are assigned against the
+ * library's bands (src/linear/assign.ts) and the fit runs on the lines so assigned. Lines given with an assignment
+ * keep it: with some given, the whole list is assigned (every line helps find the offset), then each given label
+ * replaces the automatic one of its line, and an automatic label that repeats a given line's transition is
+ * dropped (that line stays unassigned). A species without library constants leaves the unlabelled lines
+ * unassigned when some labels are given (the fit uses those), and is a 404 when none are. Returns the lines with
+ * assignments filled in and the indices assigned automatically.
  */
 export function withAutomaticLinearAssignment(
   species: string,
@@ -28,27 +34,77 @@ export function withAutomaticLinearAssignment(
   intensities: readonly (number | undefined)[],
   options: { readonly temperature?: number; readonly maxOffset?: number },
 ): { lines: LinearLineInput[]; automatic: ReadonlySet<number>; result?: LinearAssignResult } {
-  if (lines.some((l) => l.assignment !== undefined)) return { lines: [...lines], automatic: new Set() };
-  const result = assignLinearLines(
-    species,
-    lines.map((l, i) => ({
-      position: l.position,
-      ...(l.uncertainty !== undefined ? { uncertainty: l.uncertainty } : {}),
-      ...(intensities[i] !== undefined ? { intensity: intensities[i] as number } : {}),
-    })),
-    {
-      ...(options.temperature !== undefined ? { temperature: options.temperature } : {}),
-      ...(options.maxOffset !== undefined ? { maxOffset: options.maxOffset } : {}),
-    },
-  );
+  const given = lines.filter((l) => l.assignment !== undefined).length;
+  if (given === lines.length) return { lines: [...lines], automatic: new Set() };
+  let result: LinearAssignResult;
+  try {
+    result = assignLinearLines(
+      species,
+      lines.map((l, i) => ({
+        position: l.position,
+        ...(l.uncertainty !== undefined ? { uncertainty: l.uncertainty } : {}),
+        ...(intensities[i] !== undefined ? { intensity: intensities[i] as number } : {}),
+      })),
+      {
+        ...(options.temperature !== undefined ? { temperature: options.temperature } : {}),
+        ...(options.maxOffset !== undefined ? { maxOffset: options.maxOffset } : {}),
+      },
+    );
+  } catch (e) {
+    if (given > 0 && e instanceof ScienceError && e.code === 'SPECIES_NOT_IN_LIBRARY') {
+      return { lines: [...lines], automatic: new Set() };
+    }
+    throw e;
+  }
+  const merged = withGivenAssignments(result, lines);
   const automatic = new Set<number>();
   const out = lines.map((l, i) => {
-    const a = result.lines[i]?.assignment;
+    if (l.assignment) return { ...l };
+    const a = merged.lines[i]?.assignment;
     if (!a) return { ...l };
     automatic.add(i);
     return { ...l, assignment: a };
   });
-  return { lines: out, automatic, result };
+  return { lines: out, automatic, result: merged };
+}
+
+/** A transition's identity: both levels, branch, J″ and the lower component (e when not stated). */
+function transitionKey(a: LinearAssignment): string {
+  return `${levelKey(a.upper)}>${levelKey(a.lower)}|${a.branch}|${a.j}|${a.parity ?? 'e'}`;
+}
+
+/**
+ * The automatic assignment with the caller's labels put back: a given line keeps its label, an automatic label
+ * that repeats a given transition is dropped, and the unexplained share is recounted (by intensity when every line
+ * has one, else by count, as src/linear/assign.ts counts it).
+ */
+export function withGivenAssignments(
+  result: LinearAssignResult,
+  sent: readonly { readonly position: number; readonly intensity?: number; readonly assignment?: LinearAssignment }[],
+): LinearAssignResult {
+  const givenKeys = new Set(sent.flatMap((l) => (l.assignment ? [transitionKey(l.assignment)] : [])));
+  if (givenKeys.size === 0) return result;
+  const lines: LinearAssignedLine[] = result.lines.map((l, i) => {
+    const a = sent[i]?.assignment;
+    if (a) {
+      return {
+        index: i,
+        position: l.position,
+        status: 'assigned',
+        assignment: a,
+        band: bandLabel(a.upper, a.lower),
+      };
+    }
+    if (l.assignment && givenKeys.has(transitionKey(l.assignment))) {
+      return { index: i, position: l.position, status: 'unassigned' };
+    }
+    return l;
+  });
+  const byIntensity = sent.every((l) => l.intensity !== undefined && l.intensity > 0);
+  const weight = (i: number) => (byIntensity ? (sent[i]?.intensity as number) : 1);
+  const total = lines.reduce((t, l) => t + weight(l.index), 0);
+  const left = lines.filter((l) => l.status === 'unassigned').reduce((t, l) => t + weight(l.index), 0);
+  return { ...result, lines, unexplainedFraction: total > 0 ? left / total : 0 };
 }
 
 /**
@@ -71,19 +127,26 @@ export function runLinearCheck(sent: CheckRequest, applied: Tolerances): CheckRe
   });
   let fit: FitResponse | null = null;
   try {
-    // A fully assigned list is fitted with its own assignments (echoed as "given"); any other list is re-assigned.
-    const lines = fitReq.lines ?? [];
-    const assigned = lines.length > 0 && lines.every((l) => l.assignment !== undefined);
-    fit = runLinearFit(assigned ? fitReq : { ...fitReq, lines: lines.map(({ assignment: _a, ...l }) => l) });
+    // Given assignments are kept (echoed as "given") and the other lines assigned (withAutomaticLinearAssignment).
+    fit = runLinearFit(fitReq);
     if (spectrum) fit = { ...fit, spectrum };
   } catch (e) {
     if (!(e instanceof ScienceError) || !NO_FIT_CODES.has(e.code)) throw e;
   }
   const species = fit?.species[0]?.formula ?? (fitReq.species as string);
-  const result = assignLinearLines(species, peaks, {
+  const automatic = assignLinearLines(species, peaks, {
     ...(fitReq.options?.temperature !== undefined ? { temperature: fitReq.options.temperature } : {}),
     ...(fitReq.options?.maxOffset !== undefined ? { maxOffset: fitReq.options.maxOffset } : {}),
   });
+  // The checks judge the lines as labelled: the caller's labels where given, the automatic ones elsewhere.
+  const result = withGivenAssignments(
+    automatic,
+    (fitReq.lines ?? []).map((l, i) => ({
+      position: (peaks[i] as { position: number }).position,
+      ...(l.intensity !== undefined ? { intensity: l.intensity } : {}),
+      ...(isLinearAssignment(l.assignment) ? { assignment: assignmentFromWire(l.assignment) } : {}),
+    })),
+  );
   const ranking = mergeIdentifications(identifySpecies(peaks), identifyLinearSpecies(peaks));
   const checks = linearChecks(peaks, result, ranking, applied);
   const response: DeepReadonly<CheckResponse> = {

@@ -8,6 +8,7 @@ import {
   type LinearLTypeLevelResult,
 } from '../../src/linear/fit.js';
 import { isLinearSpeciesString, type LinearSpecies, parseLinearSpecies } from '../../src/linear/species.js';
+import type { LinearAssignment } from '../../src/linear/transitions.js';
 import type { LinearLevel } from '../../src/linear/types.js';
 import { toWavenumber } from '../../src/units.js';
 import { SAFETY_NOTICE } from '../notice.js';
@@ -34,8 +35,19 @@ export const toWire = (x: LinearLevel): WireLevel => ({
 
 type Line = NonNullable<FitRequest['lines']>[number];
 type Assignment = NonNullable<Line['assignment']>;
-const isLinearAssignment = (a: Line['assignment']): a is Assignment & { upper: WireLevel; lower: WireLevel } =>
+export const isLinearAssignment = (a: Line['assignment']): a is Assignment & { upper: WireLevel; lower: WireLevel } =>
   a !== undefined && a.upper !== undefined && a.lower !== undefined;
+
+/** A linear assignment as src/linear takes it, from the wire form. */
+export function assignmentFromWire(a: Assignment & { upper: WireLevel; lower: WireLevel }): LinearAssignment {
+  return {
+    upper: fromWire(a.upper),
+    lower: fromWire(a.lower),
+    branch: a.branch,
+    j: a.j,
+    ...(a.parity !== undefined ? { parity: a.parity } : {}),
+  };
+}
 
 /**
  * Whether a fit request is about a linear polyatomic molecule: its species (declared or on an assignment) is a
@@ -127,17 +139,7 @@ export function runLinearFit(sent: FitRequest): FitResponse {
       position: c.value,
       ...(c.uncertainty !== undefined ? { uncertainty: c.uncertainty } : {}),
       ...(l.source !== undefined ? { source: l.source } : {}),
-      ...(a !== undefined
-        ? {
-            assignment: {
-              upper: fromWire(a.upper),
-              lower: fromWire(a.lower),
-              branch: a.branch,
-              j: a.j,
-              ...(a.parity !== undefined ? { parity: a.parity } : {}),
-            },
-          }
-        : {}),
+      ...(a !== undefined ? { assignment: assignmentFromWire(a) } : {}),
     };
   });
   const {
