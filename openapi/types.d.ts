@@ -505,7 +505,7 @@ export interface components {
       massReducedDunham?: boolean;
       /** @description 1 = B, 2 = D, 3 = H, 4 = L, 5 = M (default 5) */
       maxCentrifugalOrder?: number;
-      /** @description largest instrument wavenumber offset searched by automatic assignment, cm-1 (default 0.5) */
+      /** @description largest instrument wavenumber offset searched by automatic assignment, cm-1 (default 0.5; linear polyatomic species 1.2) */
       maxOffset?: number;
       /** @description default 0.2 */
       maxRejectedFraction?: number;

@@ -154,7 +154,9 @@ export const FitOptionsSchema = z
       .min(0)
       .max(5)
       .optional()
-      .describe('largest instrument wavenumber offset searched by automatic assignment, cm-1 (default 0.5)'),
+      .describe(
+        'largest instrument wavenumber offset searched by automatic assignment, cm-1 (default 0.5; linear polyatomic species 1.2)',
+      ),
     lean: z
       .boolean()
       .optional()

@@ -31,15 +31,17 @@ import { bandLabel, type LinearLevel, type LinearLevelConstants, levelKey } from
  *     selection rules and the nuclear-spin statistics (levels that do not exist give no line: a 12C16O2 ν3 list has
  *     only even J″, lines 4B apart; numbering it as a diatomic would double B) and relative intensities (Hönl–London
  *     × spin weight × Boltzmann at the stated temperature);
- *  2. estimate the instrument's wavenumber offset by voting (src/assign/offset.ts), within less than half the line
- *     spacing of the densest band so that a whole-line shift (a numbering slip) cannot win;
+ *  2. estimate the instrument's wavenumber offset by voting (src/assign/offset.ts) within ±1.2 cm⁻¹ (or maxOffset);
+ *     beyond half a line spacing a whole-line shift (a numbering slip) can win the vote, which stage 5 catches;
  *  3. match predictions to peaks one-to-one within a tolerance (src/assign/match.ts);
  *  4. fit the matched lines with the linear level fit, re-predict from the fitted constants and match again with
  *     a tolerance from the fit's scatter, three rounds, so that high-J lines the reference constants miss are found;
  *  5. verify the numbering: the lower level's fitted B must agree with the library's within 5 combined σ (at
- *     least 3e-4 relative): a numbering that ignores missing levels gives 2B, one off by one line a B off by parts
- *     in 10³; when it fails, the neighbouring numberings (offset ± 1, 2 line spacings, within 0.5 cm⁻¹ or the
- *     stated maxOffset) are tried and the one that passes with most lines kept.
+ *     least 3e-4 relative) and the fit must scatter by less than a twentieth of the line spacing: a numbering that
+ *     ignores missing levels gives 2B, one off by one line a B off by parts in 10³; when it fails, the
+ *     neighbouring numberings (offset ± whole line spacings, within the range searched, default ±1.2 cm⁻¹) are
+ *     tried and the one that passes with most lines kept; when none passes, every line is left unassigned (a
+ *     numbering one spacing off is worse than none) with a warning naming maxOffset.
  * Lines no band explains stay unassigned and are reported, never forced into the fit.
  */
 
@@ -54,7 +56,7 @@ export interface LinearAssignOptions {
   readonly temperature?: number;
   /** Highest J″ predicted. Default 120 (room-temperature CO2 reaches J″ ≈ 100 at 1e-3 of the strongest line). */
   readonly jMax?: number;
-  /** Largest offset searched, cm⁻¹. Default: 0.5 or 0.45 × the densest band's line spacing, the smaller. */
+  /** Largest offset searched, cm⁻¹. Default DEFAULT_MAX_OFFSET (1.2). */
   readonly maxOffset?: number;
   /** Predicted lines weaker than this share of the strongest are not sought. Default 1e-3. */
   readonly minRelativeIntensity?: number;
@@ -197,6 +199,13 @@ function predictCandidates(
 
 const DEFAULTS = { temperature: 296, jMax: 120, minRelativeIntensity: 1e-3 } as const;
 
+/**
+ * Largest instrument offset searched by default, cm⁻¹: labs see tenths of a cm⁻¹ up to about 1 cm⁻¹ on uncalibrated
+ * benches (common practice). Beyond half a line spacing the vote can pick a shifted numbering; the numbering check
+ * decides between the candidates a whole spacing apart.
+ */
+export const DEFAULT_MAX_OFFSET = 1.2;
+
 function checkPeaks(peaks: readonly LinearPeak[]): void {
   if (peaks.length === 0) throw new ScienceError('INPUT_INVALID', 'the line list is empty', {});
   peaks.forEach((p, i) => {
@@ -312,34 +321,54 @@ export function assignLinearLines(
     }),
     10,
   );
-  const maxOffset = options.maxOffset ?? Math.min(0.5, 0.45 * spacing);
+  const maxOffset = options.maxOffset ?? DEFAULT_MAX_OFFSET;
   const strong = [...cands].sort((a, b) => b.intensity - a.intensity).slice(0, 80);
   const est = cands.length > 0 ? estimateOffset(strong, positions, maxOffset, Math.min(0.06, spacing / 8)) : undefined;
-  const offsetSigma = est?.spread ?? maxOffset;
-  if (est && est.runnerUpVotes > 0.8 * est.votes) {
+  const offsetSigma = Math.min(est?.spread ?? maxOffset, spacing / 8);
+  const ctx: Attempt = { species, ref, peaks, observed, libEntries, bands, usedBands, lo, hi, o, spacing };
+  const first = attemptAssignment(ctx, est?.offset ?? 0, offsetSigma);
+  if (first.numbering.every((n) => n.ok) || cands.length === 0) return withWarnings(first, warnings);
+  // The numbering check failed: searched over more than half a line spacing, the vote can land a whole spacing (or
+  // several) off, where a shifted numbering explains the lines almost as well. Try the neighbouring numberings
+  // within the range searched and keep one that passes, with most lines.
+  let best = first;
+  const passes = (r: LinearAssignResult) => r.numbering.length > 0 && r.numbering.every((n) => n.ok);
+  const assigned = (r: LinearAssignResult) => r.lines.filter((l) => l.status === 'assigned').length;
+  for (let k = 1; k * spacing <= 2 * maxOffset + spacing; k++) {
+    for (const sign of [1, -1]) {
+      const off = (est?.offset ?? 0) + sign * k * spacing;
+      if (Math.abs(off) > maxOffset + 0.5 * spacing) continue;
+      const alt = attemptAssignment(ctx, off, offsetSigma);
+      if ((passes(alt) && !passes(best)) || (passes(alt) === passes(best) && assigned(alt) > assigned(best)))
+        best = alt;
+    }
+  }
+  if (!passes(best)) {
+    // No numbering passes: an assignment that may be a whole line spacing off is worse than none.
+    warnings.push(
+      `no numbering within ±${maxOffset} cm-1 passes the check of the lower level's B against the library: lines left unassigned (a larger offset needs options.maxOffset)`,
+    );
+    return withWarnings(unassignedResult(first), warnings);
+  }
+  if (best !== first)
+    warnings.push(`numbering moved by the band's line spacing (offset ${best.offset.value.toFixed(4)} cm-1)`);
+  if (est && est.runnerUpVotes > 0.8 * est.votes && best === first) {
     warnings.push(
       `offset ambiguous: a second offset ${'≥'} 2 windows away gathered ${((100 * est.runnerUpVotes) / est.votes).toFixed(0)} % of the votes`,
     );
   }
-  const ctx: Attempt = { species, ref, peaks, observed, libEntries, bands, usedBands, lo, hi, o, spacing };
-  const first = attemptAssignment(ctx, est?.offset ?? 0, offsetSigma);
-  if (first.numbering.every((n) => n.ok) || cands.length === 0) return withWarnings(first, warnings);
-  // The numbering check failed: the offset may have landed a whole line spacing off (dense bands, or an instrument
-  // offset beyond the voting range). Try the neighbouring numberings within the largest offset searched.
-  const limit = Math.max(0.5, options.maxOffset ?? 0);
-  let best = first;
-  for (const k of [1, -1, 2, -2]) {
-    const off = (est?.offset ?? 0) + k * spacing;
-    if (Math.abs(off) > limit) continue;
-    const alt = attemptAssignment(ctx, off, offsetSigma);
-    const assigned = (r: LinearAssignResult) => r.lines.filter((l) => l.status === 'assigned').length;
-    const okAlt = alt.numbering.length > 0 && alt.numbering.every((n) => n.ok);
-    const okBest = best.numbering.length > 0 && best.numbering.every((n) => n.ok);
-    if ((okAlt && !okBest) || (okAlt === okBest && assigned(alt) > assigned(best))) best = alt;
-  }
-  if (best !== first)
-    warnings.push(`numbering moved by the band's line spacing (offset ${best.offset.value.toFixed(4)} cm-1)`);
   return withWarnings(best, warnings);
+}
+
+/** The result with every line unassigned (the bands' predictions kept, nothing matched). */
+function unassignedResult(r: LinearAssignResult): LinearAssignResult {
+  const { fit: _fit, ...rest } = r;
+  return {
+    ...rest,
+    lines: r.lines.map((l) => ({ index: l.index, position: l.position, status: 'unassigned' as const })),
+    bands: r.bands.map(({ jRange: _j, ...b }) => ({ ...b, assigned: 0 })),
+    unexplainedFraction: 1,
+  };
 }
 
 function withWarnings(r: LinearAssignResult, extra: readonly string[]): LinearAssignResult {
@@ -426,7 +455,18 @@ function attemptAssignment(ctx: Attempt, offset: number, offsetSigma: number): L
     const attempt = fitMatched(species, peaks, cands, matches);
     if (!(attempt instanceof ScienceError)) fit = attempt;
   }
-  return finish(species, ref, peaks, cands, matches, fit, usedBands, { offset, offsetSigma }, shifted, warnings);
+  return finish(
+    species,
+    ref,
+    peaks,
+    cands,
+    matches,
+    fit,
+    usedBands,
+    { offset, offsetSigma, maxRms: spacing / 20 },
+    shifted,
+    warnings,
+  );
 }
 
 function finish(
@@ -437,7 +477,7 @@ function finish(
   matches: ReturnType<typeof matchLines>['matches'],
   fit: LinearFitResult | undefined,
   bands: readonly { upper: LinearLevel; lower: LinearLevel }[],
-  off: { offset: number; offsetSigma: number },
+  off: { offset: number; offsetSigma: number; maxRms: number },
   shifted: (c: Candidate) => number,
   warnings: string[],
 ): LinearAssignResult {
@@ -494,13 +534,22 @@ function finish(
       // (a recalled value counts as 1e-4 relative), at least 3e-4.
       const refSigma = r.B.uncertainty ?? (r.B.status === 'recalled' ? 1e-4 : 1e-6) * r.B.value;
       const allowed = Math.max((5 * Math.hypot(l.B.uncertainty, refSigma)) / r.B.value, 3e-4);
+      // A numbering whose fit scatters by more than a twentieth of the line spacing is no numbering at all (a
+      // wrong one leaves residuals of a tenth of the spacing and more, with a B″ too vague to be rejected; a
+      // right one fits to the noise): our rule, measured on CO2 ν3 shifted by 2.5 and 3 cm⁻¹ (rms 0.18, 0.24 cm⁻¹
+      // against 9e-4 for the right numbering, spacing 1.56).
       numbering.push({
         level: l.label,
         fittedB: l.B,
         referenceB: r.B.value,
         ratio,
-        ok: Math.abs(ratio - 1) <= allowed,
+        ok: Math.abs(ratio - 1) <= allowed && fit.statistics.rms <= off.maxRms,
       });
+    }
+    if (fit.statistics.rms > off.maxRms) {
+      warnings.push(
+        `the fit of this numbering scatters by ${fit.statistics.rms.toPrecision(2)} cm-1, more than a twentieth of the line spacing`,
+      );
     }
     for (const n of numbering) {
       if (!n.ok) warnings.push(`numbering suspect: fitted B of ${n.level} is ${n.ratio.toFixed(4)} × the library's`);
@@ -574,7 +623,7 @@ export function identifyLinearSpecies(
     const est = estimateOffset(
       cands,
       strongObserved.map((p) => p.position),
-      options.maxOffset ?? Math.min(0.5, 0.45 * spacing),
+      options.maxOffset ?? DEFAULT_MAX_OFFSET,
       0.06,
     );
     const offset = est?.offset ?? 0;
