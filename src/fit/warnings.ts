@@ -1,6 +1,6 @@
 import type { Observation } from '../models/linear-model.js';
 import { transitionLabel } from '../models/transitions.js';
-import { chiSquareSurvival } from '../stats/distributions.js';
+import { chiSquareCdf, chiSquareSurvival } from '../stats/distributions.js';
 import { reducedChiSquare, type SolvedModel } from './engine.js';
 import type { Warning } from './types.js';
 
@@ -96,10 +96,14 @@ export function absoluteScaleWarnings(fit: SolvedModel, mode: 'a-posteriori' | '
       code: 'CHI_SQUARE_HIGH',
       message: `χ²/ν = ${r.toFixed(2)} on ${nu} degrees of freedom (p = ${upper.toExponential(1)}) with absolute uncertainties: the line uncertainties understate the scatter or the model misses a term, and the reported uncertainties, which are not rescaled, are too small by about √(χ²/ν) = ${Math.sqrt(r).toFixed(2)}; consider uncertaintyMode "a-posteriori"`,
     });
-  } else if (1 - upper < CHI_SQUARE_CONSISTENCY) {
+    return;
+  }
+  // The lower tail computed directly: 1 − upper is 0 for χ² far below ν, and the message would say p = 0.
+  const lower = chiSquareCdf(fit.chiSquare, nu);
+  if (lower < CHI_SQUARE_CONSISTENCY) {
     warnings.push({
       code: 'CHI_SQUARE_LOW',
-      message: `χ²/ν = ${r < 0.01 ? r.toExponential(1) : r.toFixed(2)} on ${nu} degrees of freedom (p = ${(1 - upper).toExponential(1)} for so small a value) with absolute uncertainties: the line uncertainties look overstated, by about 1/√(χ²/ν) = ${(1 / Math.sqrt(r)).toPrecision(2)}, and the reported uncertainties, which are not rescaled, are as large as the caller's σ make them (too large by about that factor if the model is complete); consider uncertaintyMode "a-posteriori"`,
+      message: `χ²/ν = ${r < 0.01 ? r.toExponential(1) : r.toFixed(2)} on ${nu} degrees of freedom (p = ${lower.toExponential(1)} for so small a value) with absolute uncertainties: the line uncertainties look overstated, by about 1/√(χ²/ν) = ${(1 / Math.sqrt(r)).toPrecision(2)}, and the reported uncertainties, which are not rescaled, are as large as the caller's σ make them (too large by about that factor if the model is complete); consider uncertaintyMode "a-posteriori"`,
     });
   }
 }

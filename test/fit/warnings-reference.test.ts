@@ -137,5 +137,18 @@ describe('χ² in absolute mode', () => {
     absoluteScaleWarnings(fitOf({ chiSquare: 36, degreesOfFreedom: 62 }), 'absolute', w);
     expect(w.map((x) => x.code)).toEqual(['CHI_SQUARE_LOW']);
     expect(w[0]?.message).toContain('χ²/ν = 0.48 on 62 degrees of freedom (p = 2.0e-4 for so small a value)');
+    expect(w[0]?.message).toContain('look overstated, by about 1/√(χ²/ν) = 1.4, and the reported uncertainties');
+  });
+
+  it('χ² = 0.5 on 62: χ²/ν below 0.01 in exponent form, P(χ² ≤ 0.5) = 2.1e-53 (SciPy 1.17 chi2.cdf), factor 11', () => {
+    const w: Warning[] = [];
+    absoluteScaleWarnings(fitOf({ chiSquare: 0.5, degreesOfFreedom: 62 }), 'absolute', w);
+    expect(w).toEqual([
+      {
+        code: 'CHI_SQUARE_LOW',
+        message:
+          'χ²/ν = 8.1e-3 on 62 degrees of freedom (p = 2.1e-53 for so small a value) with absolute uncertainties: the line uncertainties look overstated, by about 1/√(χ²/ν) = 11, and the reported uncertainties, which are not rescaled, are as large as the caller\'s σ make them (too large by about that factor if the model is complete); consider uncertaintyMode "a-posteriori"',
+      },
+    ]);
   });
 });

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import {
+  chiSquareCdf,
   chiSquareSurvival,
   fDistributionSurvival,
   incompleteBeta,
@@ -95,6 +96,29 @@ describe('special functions against SciPy', () => {
     [0.01, 6, 0.9999999792446357],
   ])('P(χ² > %f; k = %i) = %f', (x, k, v) => {
     expect(rel(chiSquareSurvival(x, k), v)).toBeLessThan(1e-10);
+  });
+
+  // Lower tail computed directly (SciPy 1.17.1 scipy.stats.chi2.cdf), down to values 1 − Q cannot hold.
+  it.each([
+    [0.5, 62, 2.0699045209492092e-53],
+    [30, 62, 0.0001973131496882521],
+    [3, 2, 0.7768698398515702],
+    [100, 62, 0.9984059726813936],
+    [0.001, 1, 0.02522712063003961],
+    [0.01, 6, 2.0755364366551777e-8],
+  ])('P(χ² ≤ %f; k = %i) = %f', (x, k, v) => {
+    expect(rel(chiSquareCdf(x, k), v)).toBeLessThan(1e-10);
+  });
+
+  it('P(χ² ≤ 0) = 0 and P(χ² ≤ x) + P(χ² > x) = 1', () => {
+    expect(chiSquareCdf(0, 5)).toBe(0);
+    expect(chiSquareCdf(-1, 5)).toBe(0);
+    for (const [x, k] of [
+      [3, 5],
+      [40, 20],
+      [5000, 4000],
+    ] as const)
+      expect(chiSquareCdf(x, k) + chiSquareSurvival(x, k)).toBeCloseTo(1, 14);
   });
 
   // Large arguments, as a 5 000-line list gives (SciPy 1.17.1, scipy.special.gammaln/betainc,
