@@ -143,6 +143,25 @@ describe('studentised residuals by their definition', () => {
     expect(Math.abs(t[10] as number)).toBeGreaterThan(5);
   });
 
+  it('a line that alone determines a parameter (leverage 1) gets a finite t near 0, the others theirs', () => {
+    // Norris's straight line plus a parameter that only line 0 carries: line 0 is fitted exactly, h₀₀ = 1.
+    const base = polynomial(1);
+    const own: Parameter = { key: 'own', name: 'own', unit: '1', kind: 'Y', k: 9, l: 0 };
+    const model: LinearModel = {
+      parameters: [...base.parameters, own],
+      coefficient: (p, o) => (p.key === 'own' ? (o.index === 0 ? 1 : 0) : base.coefficient(p, o)),
+    };
+    const fit = solved(model, observationsOf(NORRIS), 'a-posteriori');
+    expect(fit.leverages[0]).toBeCloseTo(1, 12);
+    const t = studentisedResiduals(fit);
+    expect([...t].every((v) => Number.isFinite(v))).toBe(true);
+    expect(Math.abs(t[0] as number)).toBeLessThan(1e-3);
+    // The others as the straight line without line 0 gives them (1e-9 relative).
+    const rest = studentisedResiduals(solved(base, observationsOf(NORRIS).slice(1), 'a-posteriori'));
+    for (let i = 1; i < t.length; i++)
+      expect(Math.abs((t[i] as number) / (rest[i - 1] as number) - 1)).toBeLessThan(1e-9);
+  });
+
   it('are all 0 without leverages or with fewer than two degrees of freedom', () => {
     const obs = observationsOf(NORRIS);
     expect([...studentisedResiduals(solved(polynomial(1), obs, 'a-posteriori', false))].every((v) => v === 0)).toBe(
