@@ -88,13 +88,15 @@ describe('repeated design rows are merged exactly before the factorisation', () 
     }
   });
 
-  it('the smallest list that is merged (64 rows, 16 parameters, 24 distinct rows) is merged', () => {
-    // 64 rows is the documented lower limit and 4 rows per parameter the other one: this list sits on both.
+  it('the smallest list that is merged (64 rows, 16 parameters, 32 distinct rows: exactly half) is merged', () => {
+    // 64 rows is the documented lower limit, 4 rows per parameter the second and at most half the rows distinct the
+    // third: this list sits on all three.
     const u = seededRandom(3);
-    const table = Array.from({ length: 24 * 16 }, () => u() - 0.5);
-    const s = repeatedSystem(64, 16, 24, 5, (g, j) => table[g * 16 + j] as number);
+    const table = Array.from({ length: 32 * 16 }, () => u() - 0.5);
+    const s = repeatedSystem(64, 16, 32, 5, (g, j) => table[g * 16 + j] as number);
+    expect(new Set(s.group).size).toBe(32);
     const full = solve(s);
-    const byHand = solve(mergedByHand(s, 24));
+    const byHand = solve(mergedByHand(s, 32));
     expectBitwiseEqual(full.coefficients, byHand.coefficients);
     expectBitwiseEqual(full.covariance, byHand.covariance);
   });

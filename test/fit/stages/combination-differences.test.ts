@@ -67,6 +67,19 @@ describe('combination differences of one band, noise-free', () => {
     ]);
   });
 
+  it('the lines in any order give the same fits, points ascending in J', () => {
+    const { obs } = generated({ molecule: CO_12_16, bands: [{ upper: 1, lower: 0, jMax: 15 }], sigma: 0.002, seed: 5 });
+    const a = fitCombinationDifferences(obs, () => 2, 'absolute');
+    // R lines first, each branch from high J down.
+    const scrambled = [...obs].sort((x, y) => y.upperJ - y.lowerJ - (x.upperJ - x.lowerJ) || y.lowerJ - x.lowerJ);
+    const b = fitCombinationDifferences(scrambled, () => 2, 'absolute');
+    expect(b).toEqual(a);
+    for (const { fit } of b) {
+      const js = fit.points.map((p) => p.j);
+      expect(js).toEqual([...js].sort((x, y) => x - y));
+    }
+  });
+
   it('pure rotation lines and bands of other species are kept apart', () => {
     const { obs } = generated({
       molecule: CO_12_16,

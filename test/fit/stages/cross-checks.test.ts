@@ -65,6 +65,11 @@ describe('combinationChecks', () => {
     // Without the main fit's scale (or with s² ≥ 1) the fit's σ is taken as it is: larger deviations.
     const plain = combinationChecks(sel.fit, sel.orders, 'a-posteriori', (k) => byKey.get(k)).checks;
     const one = combinationChecks(sel.fit, sel.orders, 'a-posteriori', (k) => byKey.get(k), 1).checks;
+    // s² of 0 (a perfect fit) or above 1 leaves the fit's σ as it is too.
+    const zero = combinationChecks(sel.fit, sel.orders, 'a-posteriori', (k) => byKey.get(k), 0).checks;
+    const four = combinationChecks(sel.fit, sel.orders, 'a-posteriori', (k) => byKey.get(k), 4).checks;
+    expect(zero.map((x) => x.deviation)).toEqual(plain.map((x) => x.deviation));
+    expect(four.map((x) => x.deviation)).toEqual(plain.map((x) => x.deviation));
     for (const [i, ch] of plain.entries()) {
       const fitted = ch.fitted;
       const sigmaCd = Math.max(ch.B.uncertainty, (stated[i] as (typeof stated)[number]).statedUncertaintyOfB);

@@ -136,6 +136,14 @@ describe('selectLevelModel: lists that cannot be fitted', () => {
     expect(e.details).toEqual({ lines: 2, parameters: 3 });
   });
 
+  it('exactly as many lines as parameters is fitted (no degrees of freedom), one fewer is refused', () => {
+    const { obs } = generated({ molecule: CO_12_16, bands: [{ upper: 1, lower: 0, jMax: 1 }], seed: 1 });
+    expect(obs).toHaveLength(3);
+    const sel = selectLevelModel(obs, 5, 'absolute', 0.01);
+    expect(sel.fit.degreesOfFreedom).toBe(0);
+    expect([...sel.orders.values()]).toEqual([1, 1]);
+  });
+
   it('one line measured four times: FIT_RANK_DEFICIENT with the groups that cannot be told apart', () => {
     const { obs } = generated({ molecule: CO_12_16, bands: [{ upper: 1, lower: 0, jMax: 3 }], seed: 1 });
     const r3 = obs.find((o) => o.lowerJ === 3 && o.upperJ === 4) as Observation;

@@ -84,6 +84,7 @@ describe('readLines', () => {
     expect(e.details).toEqual({ line: 1 });
     const none = thrown(() => readLines([{ position: 2100 }, { position: 2101, uncertainty: 0.1 }], masses));
     expect(none.code).toBe('FIT_NO_ASSIGNED_LINES');
+    expect(none.message).toBe('no line carries an assignment, so there is nothing to fit');
     expect(none.details).toEqual({ lines: 2 });
   });
 });

@@ -81,6 +81,40 @@ describe('rejectOutliers', () => {
     expect([...one.rejected.keys()]).toEqual([40]);
   });
 
+  it('the budget holds across rounds: a second round takes only what the first left of it', () => {
+    // The starting model was fitted to positions where lines 30 and 75 were still right; round 1 rejects the two
+    // errors it sees (5, 40), round 2 sees 30 and 75 but the budget floor(0.03 × 118) = 3 leaves room for one.
+    const gross = new Map([
+      [5, 0.03],
+      [40, -0.03],
+      [30, 0.02],
+      [75, -0.025],
+    ]);
+    const obs = list(29, gross);
+    const provisional = obs.map((o) =>
+      o.index === 30 || o.index === 75 ? { ...o, position: o.position - (gross.get(o.index) as number) } : o,
+    );
+    const r = rejectOutliers(obs, initialOf(provisional), options({ maxRejectedFraction: 0.03 }));
+    expect([...r.rejected.keys()].sort((a, b) => a - b)).toEqual([5, 40, 75]);
+  });
+
+  it('the take-back is judged with the fit’s own scale: a 6σ line stays out when the stated σ are 3× too large', () => {
+    // σ stated 0.003 for a scatter of 0.001 (s² ≈ 1/9); line 20 is off by 0.006 cm⁻¹: 6 of the scatter, 2 of its σ.
+    const { obs } = generated({
+      molecule: CO_12_16,
+      bands: [
+        { upper: 1, lower: 0, jMax: 29 },
+        { upper: 2, lower: 0, jMax: 29 },
+      ],
+      sigma: 0.001,
+      reportedSigmaFactor: 3,
+      seed: 22,
+    });
+    const bad = obs.map((o) => (o.index === 20 ? { ...o, position: o.position + 0.006 } : o));
+    const r = rejectOutliers(bad, initialOf(bad), options());
+    expect([...r.rejected.keys()]).toEqual([20]);
+  });
+
   it('a threshold of 0 turns rejection off: the lines and the level come back as they were', () => {
     const obs = list(20, new Map([[5, 0.05]]));
     const initial = initialOf(obs);
