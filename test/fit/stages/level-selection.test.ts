@@ -104,6 +104,17 @@ describe('selectLevelModel: the centrifugal order of each level', () => {
     expect(selectLevelModel(mk(2), 5, 'a-posteriori', 0.01).orders.get('12C-16O|2')).toBe(2);
   });
 
+  it('a higher order that would leave no degree of freedom is not tried, however much the lines want it', () => {
+    // R(0…3) and P(2) of 1-0 at σ = 1e-5: five lines, J″ 0–3 and J′ 1–4 (four distinct each). D would make five
+    // parameters for five lines; in absolute mode Δχ² alone would accept it (χ² of B alone is about 300 on 2 degrees of freedom).
+    const { obs } = generated({ molecule: CO_12_16, bands: [{ upper: 1, lower: 0, jMax: 3 }], sigma: 1e-5, seed: 13 });
+    const five = obs.filter((o) => o.upperJ === o.lowerJ + 1 || o.lowerJ === 2);
+    expect(five).toHaveLength(5);
+    const sel = selectLevelModel(five, 5, 'absolute', 0.01);
+    expect([...sel.orders.values()]).toEqual([1, 1]);
+    expect(sel.fit.degreesOfFreedom).toBe(2);
+  });
+
   it('absolute mode keeps the covariance unscaled; a-posteriori scales it by χ²/ν', () => {
     const { obs } = generated({
       molecule: CO_12_16,
