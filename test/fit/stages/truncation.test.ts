@@ -220,6 +220,33 @@ describe('constrainLevelModel', () => {
     expect(constrainLevelModel(full, 'absolute')).toEqual({ level: full, constraints: [] });
   });
 
+  it('a species the library lacks, levels 0–2 fitted to H: L from the fitted B_v, α_e and the Morse a2', () => {
+    const xx = list(45, 1e-4, 'XX');
+    const sel = selectLevelModel(xx, 3, 'a-posteriori', 0.01);
+    expect([...sel.orders.values()]).toEqual([3, 3, 3]);
+    const r = constrainLevelModel(sel, 'absolute');
+    expect(r.constraints.map((c) => c.parameter)).toEqual(['L_0', 'L_1', 'L_2']);
+    // ω_e ≈ the larger interval per quantum (T_1 − T_0); α_e from B_v − B_{v+1} (the top level: B_{v−1} − B_v);
+    // a1 = −1 − α_e ω_e/(6B_v²), a2 = 7a1²/12 (Morse), P = 9a1² + 36a1 − 4a2 + 52, σ_P = max(|P|, 2).
+    const omega = named(sel, 'T_1-T_0');
+    const B = [0, 1, 2].map((v) => named(sel, `B_${v}`)) as [number, number, number];
+    const alphas = [B[0] - B[1], B[1] - B[2], B[1] - B[2]] as number[];
+    for (const [v, c] of r.constraints.entries()) {
+      const b = B[v] as number;
+      const a1 = -1 - ((alphas[v] as number) * omega) / (6 * b * b);
+      const a2 = (7 * a1 * a1) / 12;
+      const P = 9 * a1 * a1 + 36 * a1 - 4 * a2 + 52;
+      const unit = (16 * b ** 7) / omega ** 6;
+      expect(c.prior.value / (-unit * P), c.parameter).toBeCloseTo(1, 9);
+      expect(c.prior.uncertainty / (unit * Math.max(Math.abs(P), 2)), c.parameter).toBeCloseTo(1, 9);
+      expect(c.basis).toBe(
+        `L_v ≈ L_e = −16B_e⁷P/ω_e⁶, P = 9a1² + 36a1 − 4a2 + 52 = ${P.toPrecision(3)} (Dunham's a1 from α_e of the fitted B_v, a2 from the Morse form 7a1²/12; ω_e ≈ the fitted vibrational interval), σ_P = ${Math.max(Math.abs(P), 2).toPrecision(2)}`,
+      );
+    }
+    // Close to CO's own L_e (−3.6e-17 cm⁻¹; the lines are CO's): the Morse a2 and the fitted ω moves it by < 60 %.
+    expect(Math.abs((r.constraints[0]?.prior.value as number) / -3.6e-17 - 1)).toBeLessThan(0.6);
+  });
+
   it('without α_e (not in the library, no neighbouring level) L = 0 ± 10 (B_v/ω_e)² max(|H_v|, σ_H); M likewise', () => {
     // Band 2-0 of a species the library lacks: levels 0 and 2, so no α_e from adjacent levels; ω_e ≈ (T_2 − T_0)/2.
     const { obs } = generated({ molecule: CO_12_16, bands: [{ upper: 2, lower: 0, jMax: 45 }], sigma: 1e-4, seed: 62 });
