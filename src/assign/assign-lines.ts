@@ -187,6 +187,8 @@ interface AssignContext {
   readonly freeBySource: ReadonlyMap<string, readonly ObservedPeak[]>;
   /** Per line, the number of its source in `sources` (−1 for a given line whose source no free line has). */
   readonly sourceNumbers: Int32Array;
+  /** The lines as the fit takes them before any automatic assignment (`lineInputs` adds those). */
+  readonly inputs: readonly LineInput[];
   /** Median σ of the lines that carry one. */
   readonly typicalSigma: number | undefined;
   readonly maxOffset: number;
@@ -250,6 +252,7 @@ function prepareAssignment(
     sources,
     freeBySource: new Map(sources.map((s) => [s, free.filter((p) => sourceOf(p.index) === s)])),
     sourceNumbers: Int32Array.from(peaks, (_, i) => sources.indexOf(sourceOf(i))),
+    inputs: baseInputs(peaks),
     typicalSigma: withSigma.length > 0 ? robustMedian(withSigma) : undefined,
     maxOffset: options.maxOffset ?? 0.5,
     minLines: options.minLinesPerBand ?? 4,
@@ -322,14 +325,7 @@ const speciesNames = (ctx: AssignContext) => ctx.species.map((s) => s.iso.formul
 
 /** The line list as the fit takes it: given assignments as sent, automatic ones from the map. */
 function lineInputs(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>): LineInput[] {
-  return ctx.peaks.map((p, index) => {
-    const base = {
-      position: p.position,
-      ...(p.uncertainty !== undefined ? { uncertainty: p.uncertainty } : {}),
-      ...(p.intensity !== undefined ? { intensity: p.intensity } : {}),
-      ...(p.source !== undefined ? { source: p.source } : {}),
-    };
-    if (p.assignment) return { ...base, assignment: p.assignment };
+  return ctx.inputs.map((base, index) => {
     const c = auto.get(index);
     if (!c) return base;
     return {
@@ -337,6 +333,17 @@ function lineInputs(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>
       assignment: { species: c.species, band: c.band, branch: c.branch, j: c.j, source: 'auto' as const },
     };
   });
+}
+
+/** Each line as the fit takes it, given assignment included, without an automatic one (made once). */
+function baseInputs(peaks: readonly PeakInput[]): LineInput[] {
+  return peaks.map((p) => ({
+    position: p.position,
+    ...(p.uncertainty !== undefined ? { uncertainty: p.uncertainty } : {}),
+    ...(p.intensity !== undefined ? { intensity: p.intensity } : {}),
+    ...(p.source !== undefined ? { source: p.source } : {}),
+    ...(p.assignment ? { assignment: p.assignment } : {}),
+  }));
 }
 
 function ambiguousOffsetWarnings(offsets: OffsetVotes): Warning[] {

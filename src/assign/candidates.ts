@@ -1,7 +1,6 @@
 import { SECOND_RADIATION_CM_K } from '../constants/codata-2018.js';
 import { compileDunham } from '../models/dunham.js';
-import { predictBand } from '../models/predict.js';
-import type { Band, Branch } from '../models/transitions.js';
+import { type Band, type Branch, upperJ } from '../models/transitions.js';
 import { constantsFor, dunhamFromEntry } from '../species/library.js';
 import { elementsOnly, type Isotopologue, isotopologuesOf, naturalAbundance, parseSpecies } from '../species/parse.js';
 import { bandStrengthGuess, relativeIntensity } from './intensity.js';
@@ -58,48 +57,10 @@ export function candidateLines(
   hi: number,
   options: CandidateOptions = {},
 ): CandidateLine[] {
-  const T = options.temperature ?? 296;
-  const maxJ = options.maxJ ?? 80;
   const out: CandidateLine[] = [];
   for (const { iso, abundance } of species) {
     const entry = constantsFor(iso);
-    if (!entry) continue;
-    const y = dunhamFromEntry(entry);
-    const energy = compileDunham(y);
-    const e00 = energy(0, 0);
-    const rising = new Map<number, number>();
-    const risingOf = (v: number) => {
-      let r = rising.get(v);
-      if (r === undefined) {
-        r = risingUpTo(energy, v);
-        rising.set(v, r);
-      }
-      return r;
-    };
-    for (let lower = 0; lower <= (options.maxLowerV ?? 4); lower++) {
-      const population = Math.exp((-SECOND_RADIATION_CM_K / T) * (energy(lower, 0) - e00));
-      if (population < 1e-6) break;
-      for (let dv = 0; dv <= (options.maxDeltaV ?? 4); dv++) {
-        const band = { upper: lower + dv, lower };
-        const strength = bandStrengthGuess(band) * abundance;
-        // Beyond the J where a level's energy polynomial stops rising, its predictions are artefacts of the
-        // truncated expansion (hydrides reach it near J ≈ 100): no line is predicted past the first such J.
-        const jTop = Math.min(maxJ, risingOf(lower), risingOf(lower + dv) - 1);
-        for (const p of predictBand(y, band, jTop)) {
-          if (p.position < lo || p.position > hi) continue;
-          const intensity = strength * relativeIntensity(p.position, p.branch, p.j, p.lowerEnergy, T);
-          out.push({
-            species: iso.formula,
-            band,
-            branch: p.branch,
-            j: p.j,
-            position: p.position,
-            lowerEnergy: p.lowerEnergy,
-            intensity,
-          });
-        }
-      }
-    }
+    if (entry) out.push(...isotopologueCandidates(iso.formula, dunhamFromEntry(entry), abundance, lo, hi, options));
   }
   let max = 0;
   for (const c of out) max = Math.max(max, c.intensity);
@@ -107,6 +68,54 @@ export function candidateLines(
   return out
     .filter((c) => c.intensity >= floor && c.intensity > 0)
     .map((c) => ({ ...c, intensity: c.intensity / max }));
+}
+
+/** The lines of one isotopologue's plausible bands in [lo, hi], intensities not yet normalised. */
+function isotopologueCandidates(
+  formula: string,
+  y: ReadonlyMap<string, number>,
+  abundance: number,
+  lo: number,
+  hi: number,
+  options: CandidateOptions,
+): CandidateLine[] {
+  const T = options.temperature ?? 296;
+  const maxJ = options.maxJ ?? 80;
+  const energy = compileDunham(y);
+  const e00 = energy(0, 0);
+  const rising = new Map<number, number>();
+  const risingOf = (v: number) => {
+    let r = rising.get(v);
+    if (r === undefined) {
+      r = risingUpTo(energy, v);
+      rising.set(v, r);
+    }
+    return r;
+  };
+  const out: CandidateLine[] = [];
+  for (let lower = 0; lower <= (options.maxLowerV ?? 4); lower++) {
+    const population = Math.exp((-SECOND_RADIATION_CM_K / T) * (energy(lower, 0) - e00));
+    if (population < 1e-6) break;
+    for (let dv = 0; dv <= (options.maxDeltaV ?? 4); dv++) {
+      const band = { upper: lower + dv, lower };
+      const strength = bandStrengthGuess(band) * abundance;
+      // Beyond the J where a level's energy polynomial stops rising, its predictions are artefacts of the
+      // truncated expansion (hydrides reach it near J ≈ 100): no line is predicted past the first such J.
+      const jTop = Math.min(maxJ, risingOf(lower), risingOf(lower + dv) - 1);
+      // The band's lines as predictBand gives them (P then R; pure rotation R only), kept when in the window.
+      for (const branch of band.upper === band.lower ? (['R'] as const) : (['P', 'R'] as const)) {
+        for (let j = branch === 'P' ? 1 : 0; j <= jTop; j++) {
+          const el = energy(band.lower, j);
+          const position = energy(band.upper, upperJ({ branch, j })) - el;
+          if (position < lo || position > hi) continue;
+          const lowerEnergy = el - e00;
+          const intensity = strength * relativeIntensity(position, branch, j, lowerEnergy, T);
+          out.push({ species: formula, band, branch, j, position, lowerEnergy, intensity });
+        }
+      }
+    }
+  }
+  return out;
 }
 
 /** The highest J up to which E(v, J) rises with J (at most 400). */
