@@ -187,6 +187,8 @@ interface AssignContext {
   readonly freeBySource: ReadonlyMap<string, readonly ObservedPeak[]>;
   /** Per line, the number of its source in `sources` (−1 for a given line whose source no free line has). */
   readonly sourceNumbers: Int32Array;
+  /** The library's Dunham coefficients per isotopologue (for the B_v test of strayBands). */
+  readonly referenceDunham: ReadonlyMap<string, ReadonlyMap<string, number>>;
   /** The lines as the fit takes them before any automatic assignment (`lineInputs` adds those). */
   readonly inputs: readonly LineInput[];
   /** Median σ of the lines that carry one. */
@@ -253,6 +255,7 @@ function prepareAssignment(
     freeBySource: new Map(sources.map((s) => [s, free.filter((p) => sourceOf(p.index) === s)])),
     sourceNumbers: Int32Array.from(peaks, (_, i) => sources.indexOf(sourceOf(i))),
     inputs: baseInputs(peaks),
+    referenceDunham: referenceDunham(species),
     typicalSigma: withSigma.length > 0 ? robustMedian(withSigma) : undefined,
     maxOffset: options.maxOffset ?? 0.5,
     minLines: options.minLinesPerBand ?? 4,
@@ -645,7 +648,7 @@ function withdrawStrayBands(
   iter: number,
 ): number {
   let withdrawn = 0;
-  for (const bk of strayBands(fit, next, ctx.species)) {
+  for (const bk of strayBands(fit, next, ctx.referenceDunham)) {
     for (const [i, c] of next) {
       if (bandKey(c) !== bk) continue;
       banned.set(pairKey(ctx, i, c), { at: iter, count: 3 });
@@ -1133,9 +1136,11 @@ function pruneImplausibleBands(auto: Map<number, CandidateLine>, peaks: readonly
  * abundance ratio (a soft constraint, ln-ratio σ 0.3), or swaps its two labels when the swap fits better.
  */
 function resolveDoublets(auto: Map<number, CandidateLine>, peaks: readonly PeakInput[]): void {
-  const groups = new Map<string, number[]>();
+  // Keyed by band, branch and J″ as one number (every species' line of one transition in one group).
+  const groups = new Map<number, number[]>();
   for (const [i, c] of auto) {
-    const k = `${formatBand(c.band)}|${c.branch}|${c.j}`;
+    const k =
+      ((c.band.upper * 256 + c.band.lower) * 3 + (c.branch === 'P' ? 0 : c.branch === 'Q' ? 1 : 2)) * 4096 + c.j;
     const list = groups.get(k) ?? [];
     list.push(i);
     groups.set(k, list);
@@ -1181,13 +1186,8 @@ const MAX_B_DEVIATION = 0.01;
 function strayBands(
   fit: DetailedFit,
   auto: ReadonlyMap<number, CandidateLine>,
-  species: readonly { iso: Isotopologue }[],
+  ref: AssignContext['referenceDunham'],
 ): Set<string> {
-  const ref = new Map<string, Map<string, number>>();
-  for (const s of species) {
-    const e = constantsFor(s.iso);
-    if (e) ref.set(s.iso.formula, dunhamFromEntry(e));
-  }
   const referenceB = (formula: string, v: number): number | undefined => {
     const y = ref.get(formula);
     if (!y) return undefined;
@@ -1210,6 +1210,16 @@ function strayBands(
     }
   }
   return stray;
+}
+
+/** The library's Dunham coefficients of each isotopologue that has them (made once per assignment). */
+function referenceDunham(species: readonly { iso: Isotopologue }[]): Map<string, Map<string, number>> {
+  const ref = new Map<string, Map<string, number>>();
+  for (const s of species) {
+    const e = constantsFor(s.iso);
+    if (e) ref.set(s.iso.formula, dunhamFromEntry(e));
+  }
+  return ref;
 }
 
 /** Per band, the median distance between neighbouring lines of one branch (about 2B). */
