@@ -34,7 +34,7 @@ import { peakRoutes } from './rest/peaks.js';
 import { potentialRoutes } from './rest/potentials.js';
 import { reportRoutes } from './rest/reports.js';
 import { speciesRoutes } from './rest/species.js';
-import { plainSerializer } from './serializer.js';
+import { compiledSerializerCompiler } from './serializer.js';
 
 export { MAX_JSON_DEPTH } from './plugins/body-parsers.js';
 
@@ -172,7 +172,7 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
           const validate = validatorCompiler(route as Parameters<typeof validatorCompiler>[0]);
           return (data: unknown) => (data instanceof RawBody ? { value: data } : validate(data));
         });
-        v1.setSerializerCompiler(config.validateResponses ? serializerCompiler : plainSerializer);
+        v1.setSerializerCompiler(config.validateResponses ? serializerCompiler : compiledSerializerCompiler);
         await v1.register(fitRoutes(config));
         await v1.register(checkRoutes(config));
         await v1.register(peakRoutes(config));

@@ -1,5 +1,5 @@
 import { move, transferableSymbol, valueSymbol } from 'piscina';
-import { z } from 'zod';
+import type { z } from 'zod';
 import { ScienceError } from '../src/errors.js';
 import { prefersCsv, resultCsv, type TableName } from './formats/csv-tables.js';
 import { withDisplay } from './formats/round.js';
@@ -11,6 +11,7 @@ import { type FitRequest, FitResponseSchema, fitRequestSchema } from './schemas/
 import { type PeaksRequest, type PeaksResponse, PeaksResponseSchema, parsePeaksRequest } from './schemas/peaks.js';
 import type { PotentialRequest } from './schemas/potentials.js';
 import type { PredictionRequest } from './schemas/predictions.js';
+import { compiledSerializer } from './serializer.js';
 import { runCheck } from './usecases/check.js';
 import { assertFinite, NonFiniteResult } from './usecases/finite.js';
 import { runFit } from './usecases/fit.js';
@@ -131,8 +132,8 @@ function rawAnswer(
     };
   }
   const shown = job.route !== 'peaks' && job.query.display === 'rounded' ? withDisplay(stamped) : stamped;
-  const encoded = z.encode(responseSchema, shown);
-  return { body: utf8(JSON.stringify(encoded)), type: 'application/json; charset=utf-8', ...verdict };
+  // Serialised as a small body's answer is (services/serializer.ts), without checking it against its schema.
+  return { body: utf8(compiledSerializer(responseSchema)(shown)), type: 'application/json; charset=utf-8', ...verdict };
 }
 
 function run(job: Job): unknown {
