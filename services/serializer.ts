@@ -28,9 +28,56 @@ const isZod = (x: unknown): x is z.ZodType => typeof x === 'object' && x !== nul
 /** Compiled serialisers by schema: one compilation per schema and process (tests build many apps). */
 const compiled = new WeakMap<z.ZodType, Serialise>();
 
-/** The JSON Schema of what a zod schema puts on the wire (its output side), for the compiler. */
-export function wireSchema(schema: z.ZodType): Record<string, unknown> {
-  return z.toJSONSchema(schema, { target: 'draft-7', io: 'output', unrepresentable: 'any' }) as Record<string, unknown>;
+type JsonSchema = Record<string, unknown>;
+
+/**
+ * The JSON Schema of what a zod schema puts on the wire (its output side), for the compiler, with each `anyOf` of
+ * plain types (`number | null`, `string | integer`, `integer | integer[]`, …) written as a list of types. The
+ * compiler tells such a list apart by `typeof` as it writes; for an `anyOf` it asks a schema validator (ajv) which
+ * branch a value matches, compiled on first use: measured, that compilation took about a second of the first
+ * answer of /v1/fits on a loaded machine, and the checks cost on every answer. Unions of objects stay `anyOf`.
+ */
+export function wireSchema(schema: z.ZodType): JsonSchema {
+  const json = z.toJSONSchema(schema, { target: 'draft-7', io: 'output', unrepresentable: 'any' }) as JsonSchema;
+  // Twice: the second pass can take `X | null` apart for a definition X whose own unions the first pass rewrote.
+  const once = typeListsForPlainUnions(json, {}) as JsonSchema;
+  return typeListsForPlainUnions(once, (once.definitions ?? {}) as Record<string, JsonSchema>) as JsonSchema;
+}
+
+/**
+ * Order in which a value's type is tested: null first, string last (the compiler's string test takes any object
+ * with its own toString, an array among them).
+ */
+const TYPE_ORDER = ['null', 'boolean', 'integer', 'number', 'array', 'object', 'string'];
+
+function typeListsForPlainUnions(node: unknown, definitions: Record<string, JsonSchema>): unknown {
+  if (Array.isArray(node)) return node.map((x) => typeListsForPlainUnions(x, definitions));
+  if (typeof node !== 'object' || node === null) return node;
+  const out: JsonSchema = {};
+  for (const [k, v] of Object.entries(node)) out[k] = typeListsForPlainUnions(v, definitions);
+  if (!Array.isArray(out.anyOf)) return out;
+  const options = (out.anyOf as JsonSchema[]).map((o) => objectBehind(o, definitions));
+  const types = options.map((o) => o.type);
+  const structured = options.filter((o) => o.type === 'array' || o.type === 'object');
+  const plain =
+    options.every((o) => typeof o.type === 'string' && o.$ref === undefined && o.anyOf === undefined) &&
+    new Set(types).size === types.length &&
+    structured.length <= 1 &&
+    !(types.includes('integer') && types.includes('number'));
+  if (!plain) return out;
+  const { anyOf: _anyOf, ...rest } = out;
+  // Keywords of the array or object branch (items, properties, …) say how to write it; the other branches' keywords
+  // (minimum, maxLength, …) only validate, which the compiler does not do.
+  const { type: _type, ...shape } = structured[0] ?? {};
+  return { ...rest, ...shape, type: TYPE_ORDER.filter((t) => types.includes(t)) };
+}
+
+/** `{ $ref: "#/definitions/X" }` of an object schema: that schema (its own refs stay valid in the same document). */
+function objectBehind(option: JsonSchema, definitions: Record<string, JsonSchema>): JsonSchema {
+  const ref = option.$ref;
+  if (typeof ref !== 'string' || Object.keys(option).length !== 1 || !ref.startsWith('#/definitions/')) return option;
+  const target = definitions[ref.slice('#/definitions/'.length)];
+  return target?.type === 'object' ? target : option;
 }
 
 /** The compiled serialiser of a zod schema (compiled once, on first use). */

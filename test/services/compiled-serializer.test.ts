@@ -75,6 +75,20 @@ describe('the compiled serialiser writes what JSON.stringify writes, on answers 
     const lines = assigned.filter((l) => l.assignment.band === '1-0' || l.assignment.band === '2-0');
     sameAsJson(CheckResponseSchema, assertFinite(runCheck({ species: 'CO', lines })));
   });
+  it('check of lines no band explains: the fit is null (a union of an object and null in the schema)', () => {
+    const answer = assertFinite(
+      runCheck({ species: 'CO', lines: [{ position: 1000 }, { position: 1100 }, { position: 1200 }] }),
+    );
+    expect(answer.fit).toBeNull();
+    sameAsJson(CheckResponseSchema, answer);
+  });
+  it('fit of the CO2 example with numeric line ids: levels with v as an array (integer | integer[] in the schema)', () => {
+    const co2 = JSON.parse(readFileSync(new URL('../../examples/co2-nu3-assigned.json', import.meta.url), 'utf8'));
+    const lines = (co2.lines as object[]).map((l, i) => ({ ...l, id: i }));
+    const answer = assertFinite(runFit({ ...co2, lines }));
+    expect(Array.isArray(answer.levels[0]?.v)).toBe(true);
+    sameAsJson(FitResponseSchema, answer);
+  });
   it('library entry of CO2 (published values without an uncertainty are null)', () => {
     const entry = getSpecies('CO2');
     expect(JSON.stringify(entry)).toContain('"uncertainty":null');
