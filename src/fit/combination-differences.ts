@@ -86,9 +86,11 @@ export function fitCombinationDifferences(
     const band = `${g.upper}-${g.lower}`;
     const lowerPts: { j: number; m: Mean }[] = [];
     const upperPts: { j: number; m: Mean }[] = [];
-    const js = new Set<number>([...g.r.keys(), ...g.p.keys()].flatMap((j) => [j - 1, j, j + 1]));
-    for (const j of [...js].sort((a, b) => a - b)) {
-      if (j < 1) continue;
+    // Every J from 1 up to one past the highest J″ seen: a difference needs a line at J − 1, J or J + 1.
+    let top = 0;
+    for (const j of g.r.keys()) top = Math.max(top, j + 1);
+    for (const j of g.p.keys()) top = Math.max(top, j + 1);
+    for (let j = 1; j <= top; j++) {
       const rPrev = g.r.get(j - 1);
       const pNext = g.p.get(j + 1);
       if (rPrev && pNext) {

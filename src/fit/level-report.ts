@@ -81,36 +81,38 @@ function lineOutcomes(
   const keptPos = new Map(fit.observations.map((o, i) => [o.index, i]));
   const byIndex = new Map(observations.map((o) => [o.index, o]));
   return input.map((l, index) => {
+    // Built member by member (no spreads of optional parts: this runs for every line of every fit); the members
+    // come in the order the answer has always had.
+    const out: Writable<LineOutcome> = { index, position: l.position } as Writable<LineOutcome>;
+    if (l.intensity !== undefined) out.intensity = l.intensity;
     const a = transitions.get(index);
-    const echo = l.intensity !== undefined ? { intensity: l.intensity } : {};
-    if (!a) return { index, position: l.position, ...echo, status: 'unassigned' as const };
-    const assignment = { band: formatBand(a.band), branch: a.branch, j: a.j, species: a.species, source: a.source };
+    if (!a) {
+      out.status = 'unassigned';
+      return out;
+    }
+    out.assignment = { band: formatBand(a.band), branch: a.branch, j: a.j, species: a.species, source: a.source };
     const ki = keptPos.get(index);
     if (ki !== undefined) {
       const residual = fit.residuals[ki] as number;
-      return {
-        index,
-        position: l.position,
-        ...echo,
-        assignment,
-        calculated: l.position - residual,
-        residual,
-        studentisedResidual: t[ki] as number,
-        status: 'fitted' as const,
-      };
+      out.calculated = l.position - residual;
+      out.residual = residual;
+      out.studentisedResidual = t[ki] as number;
+      out.status = 'fitted';
+      return out;
     }
+    out.status = 'rejected';
+    out.reason = rejected.get(index) ?? 'rejected';
     const calculated = predictWithVariance(fit, byIndex.get(index) as Observation)?.value;
-    const out: LineOutcome = {
-      index,
-      position: l.position,
-      ...echo,
-      assignment,
-      status: 'rejected' as const,
-      reason: rejected.get(index) ?? 'rejected',
-    };
-    return calculated === undefined ? out : { ...out, calculated, residual: l.position - calculated };
+    if (calculated !== undefined) {
+      out.calculated = calculated;
+      out.residual = l.position - calculated;
+    }
+    return out;
   });
 }
+
+/** A result type with its members writable, for building it member by member. */
+type Writable<T> = { -readonly [K in keyof T]: T[K] };
 
 /** Per band: its fitted lines, J″ range and, for a vibrational band, the origin T_v′ − T_v″ with their covariance. */
 function bandOrigins(fit: SolvedModel, paramIndex: ReadonlyMap<string, number>): FitResult['bands'][number][] {
