@@ -40,8 +40,9 @@ export const CLI_NOTICE =
 const USAGE = `branchwise — molecular constants from line lists and spectra of diatomic gases
 
   branchwise fit <file...>     [--species S] [--unit U] [--temperature K] [--format table|json|csv] [--table lines|constants]
+                               [--detail lean|full]
   branchwise check <file...>   [--species S] [--tolerances profile.json] [--temperature K] [--format table|json|csv]
-                               [--table checks|lines|constants]
+                               [--table checks|lines|constants] [--detail lean|full]
   branchwise report <file>     [--species S] [--tolerances profile.json] [--temperature K] [--out report.html]
   branchwise peaks <file...>   [--format table|json|csv]
   branchwise predict [body.json] --species S [--bands 1-0,2-0] [--jmax N] [--temperature K] [--unit U] [--format table|json|csv]
@@ -49,6 +50,9 @@ const USAGE = `branchwise — molecular constants from line lists and spectra of
   branchwise --version
 
 Files: .json (the body of the matching HTTP endpoint), .csv (a spectrum or a line list), .jdx/.dx/.jcamp (JCAMP-DX).
+JSON answers of lists of more than 1 000 lines are lean: each line leaves out the uncertainty, intensity and
+assignment the file already holds (assignments the fit made stay); --detail full keeps them, --detail lean asks
+for it at any size.
 A file that cannot be read is reported under its name; the other files are still processed.
 Exit status: 0 pass, 1 warn, 2 fail (check, report); 3 bad input; 4 usage.
 ${CLI_NOTICE}`;
@@ -194,6 +198,7 @@ export function main(argv: readonly string[], io: Io): number {
         vmax: { type: 'string' },
         format: { type: 'string', default: 'table' },
         table: { type: 'string' },
+        detail: { type: 'string' },
         out: { type: 'string', short: 'o' },
         version: { type: 'boolean', short: 'V' },
         help: { type: 'boolean', short: 'h' },
@@ -218,6 +223,10 @@ export function main(argv: readonly string[], io: Io): number {
     return EXIT.usage;
   }
   const format = v.format as Format;
+  if (v.detail !== undefined && v.detail !== 'lean' && v.detail !== 'full') {
+    io.err(`--detail ${String(v.detail)} is not one of lean, full\n`);
+    return EXIT.usage;
+  }
   const tables: Record<string, readonly TableName[]> = {
     fit: ['lines', 'constants'],
     check: ['checks', 'lines', 'constants'],
@@ -396,10 +405,8 @@ function runOne(
     }
     return { result: r as unknown as Record<string, unknown>, rows, exit: EXIT.pass };
   }
+  if (command === 'fit' || command === 'check') setDetail(body, v.detail, format);
   if (command === 'fit') {
-    // JSON answers for lists of more than 1 000 lines are lean (no per-line echoes) unless the file says otherwise.
-    if (format === 'json' && Array.isArray(body.lines) && body.lines.length > 1000)
-      body.options = { lean: true, ...(body.options ?? {}) };
     const r = runFit(parseOrThrow(fitRequestSchema(DEFAULT_CONFIG.maxLines), body, file));
     if (format === 'table') io.out(fitTable(file, r));
     return {
@@ -421,6 +428,21 @@ function runOne(
     rows: resultRows('check', r, tableName ?? 'checks'),
     exit: EXIT[r.verdict],
   };
+}
+
+/** Lists longer than this are answered lean in JSON unless --detail full or the file's own options.lean says otherwise. */
+export const LEAN_FROM_LINES = 1000;
+
+/**
+ * options.lean of a fit or check body: as --detail says (lean, full); otherwise lean for JSON answers of lists of
+ * more than LEAN_FROM_LINES lines (the per-line echoes of what the file already holds are most of such an answer),
+ * unless the file sets it itself.
+ */
+function setDetail(body: Record<string, unknown>, detail: string | boolean | undefined, format: Format): void {
+  const options = (body.options ?? {}) as Record<string, unknown>;
+  if (detail === 'lean' || detail === 'full') body.options = { ...options, lean: detail === 'lean' };
+  else if (format === 'json' && Array.isArray(body.lines) && body.lines.length > LEAN_FROM_LINES)
+    body.options = { lean: true, ...options };
 }
 
 /** The fit as a person reads it: band origins, level constants, equilibrium constants, each rounded to its uncertainty. */

@@ -1810,6 +1810,8 @@ export interface operations {
         "sample.notes"?: string;
         /** @description rounded: every value with an uncertainty also carries `display`, rounded to two significant digits of its uncertainty (the numbers stay full precision) */
         display?: "rounded";
+        /** @description lean: each entry of `lines` leaves out what the request already holds (as `options.lean: true` in a JSON body; also for JCAMP-DX and CSV bodies); full: keeps it. Overrides `options.lean` when given */
+        detail?: "full" | "lean";
         /** @description with Accept: text/csv, which table: lines (default), constants, or checks (/v1/checks only) */
         table?: "lines" | "constants" | "checks";
       };
@@ -1937,6 +1939,8 @@ export interface operations {
         "sample.notes"?: string;
         /** @description rounded: every value with an uncertainty also carries `display`, rounded to two significant digits of its uncertainty (the numbers stay full precision) */
         display?: "rounded";
+        /** @description lean: each entry of `lines` leaves out what the request already holds (as `options.lean: true` in a JSON body; also for JCAMP-DX and CSV bodies); full: keeps it. Overrides `options.lean` when given */
+        detail?: "full" | "lean";
         /** @description with Accept: text/csv, which table: lines (default), constants, or checks (/v1/checks only) */
         table?: "lines" | "constants" | "checks";
       };

@@ -2,6 +2,7 @@ import { move, transferableSymbol, valueSymbol } from 'piscina';
 import type { z } from 'zod';
 import { ScienceError } from '../src/errors.js';
 import { prefersCsv, resultCsv, type TableName } from './formats/csv-tables.js';
+import { withDetail } from './formats/respond.js';
 import { withDisplay } from './formats/round.js';
 import { jobSize } from './job-size.js';
 import type { Provenance } from './provenance.js';
@@ -95,7 +96,7 @@ function runRaw(job: RawJob): RawAnswer | Promise<RawAnswer> {
       ? parsePeaksRequest(decoded)
       : requestSchema(job.route, job.limits.maxLines).safeParse(decoded);
   if (!parsed.success) throw new ValidationFailed(parsed.error.issues);
-  const body = parsed.data as FitRequest & { sample?: object };
+  const body = withDetail(parsed.data as FitRequest & { sample?: object }, job.query);
   const size = jobSize(body as { lines?: readonly unknown[]; spectrum?: { x: readonly unknown[] } });
   // 25 % slack: a body of ~80-byte lines runs at once on its estimate; a compact one (bare positions, ~20 bytes a
   // line) stops here and runs again once its true size is reserved.

@@ -25,3 +25,13 @@ export function resultInForm<T extends FitResponse | CheckResponse>(
   }
   return q.display === 'rounded' ? withDisplay(result) : result;
 }
+
+/**
+ * The body with `options.lean` set from ?detail= (lean: true, full: false) when the query gives it; unchanged
+ * otherwise. JCAMP-DX and CSV bodies carry no options of their own, so the query is their way to ask.
+ */
+export function withDetail<T extends { options?: { lean?: boolean } }>(body: T, query: unknown): T {
+  const detail = (query as { detail?: unknown } | undefined)?.detail;
+  if (detail !== 'lean' && detail !== 'full') return body;
+  return { ...body, options: { ...body.options, lean: detail === 'lean' } };
+}

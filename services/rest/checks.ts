@@ -1,6 +1,6 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import type { Config } from '../config.js';
-import { resultInForm } from '../formats/respond.js';
+import { resultInForm, withDetail } from '../formats/respond.js';
 import { jobSize } from '../pool.js';
 import { stamped } from '../provenance.js';
 import { type CheckResponse, CheckResponseSchema, checkRequestSchema } from '../schemas/checks.js';
@@ -31,7 +31,11 @@ export const checkRoutes =
       async (req, reply) => {
         if (await answerRawBody(app, config, 'check', req, reply)) return reply;
         const r = await timed(app, 'check', jobSize(req.body), () =>
-          app.pool.run<CheckResponse>({ kind: 'check', body: req.body }, jobSize(req.body), workOptions(req, reply)),
+          app.pool.run<CheckResponse>(
+            { kind: 'check', body: withDetail(req.body, req.query) },
+            jobSize(req.body),
+            workOptions(req, reply),
+          ),
         );
         app.metrics.verdicts.labels(r.verdict).inc();
         return resultInForm(req, reply, 'check', stamped(req, r, req.body.sample));

@@ -1,6 +1,6 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import type { Config } from '../config.js';
-import { resultInForm } from '../formats/respond.js';
+import { resultInForm, withDetail } from '../formats/respond.js';
 import { jobSize } from '../pool.js';
 import { stamped } from '../provenance.js';
 import { problemResponses } from '../schemas/common.js';
@@ -31,7 +31,11 @@ export const fitRoutes =
       async (req, reply) => {
         if (await answerRawBody(app, config, 'fit', req, reply)) return reply;
         const r = await timed(app, 'fit', jobSize(req.body), () =>
-          app.pool.run<FitResponse>({ kind: 'fit', body: req.body }, jobSize(req.body), workOptions(req, reply)),
+          app.pool.run<FitResponse>(
+            { kind: 'fit', body: withDetail(req.body, req.query) },
+            jobSize(req.body),
+            workOptions(req, reply),
+          ),
         );
         return resultInForm(req, reply, 'fit', stamped(req, r, req.body.sample));
       },

@@ -25,6 +25,12 @@ export const ResultQuerySchema = SpeciesQuerySchema.extend({
     .describe(
       'rounded: every value with an uncertainty also carries `display`, rounded to two significant digits of its uncertainty (the numbers stay full precision)',
     ),
+  detail: z
+    .enum(['full', 'lean'])
+    .optional()
+    .describe(
+      'lean: each entry of `lines` leaves out what the request already holds (as `options.lean: true` in a JSON body; also for JCAMP-DX and CSV bodies); full: keeps it. Overrides `options.lean` when given',
+    ),
   table: z
     .enum(['lines', 'constants', 'checks'])
     .optional()

@@ -106,3 +106,40 @@ describe('lean answers', () => {
     expect(JSON.stringify(lean.lines).length).toBeLessThan(0.7 * JSON.stringify(full.lines).length);
   });
 });
+
+describe('?detail= asks for the lean answer on any body (JSON, CSV), and overrides options.lean', () => {
+  const body = assignedFitBody('CO', ['1-0'], 12, 0.001, 6);
+  const post = async (url: string, payload: unknown, type = 'application/json') =>
+    (
+      await plain.inject({
+        method: 'POST',
+        url,
+        headers: { 'content-type': type },
+        payload: typeof payload === 'string' ? payload : JSON.stringify(payload),
+      })
+    ).json() as { lines: Record<string, unknown>[] };
+  it('JSON: ?detail=lean is options.lean; ?detail=full wins over options.lean', async () => {
+    const viaBody = await post('/v1/fits', { ...body, options: { lean: true } });
+    const viaQuery = await post('/v1/fits?detail=lean', body);
+    expect(viaQuery.lines).toEqual(viaBody.lines);
+    expect(viaQuery.lines[0]?.uncertainty).toBeUndefined();
+    const full = await post('/v1/fits?detail=full', { ...body, options: { lean: true } });
+    expect(full.lines[0]?.uncertainty).toBe(0.001);
+  });
+  it('CSV line list with ?species=CO&detail=lean (a CSV body has no options of its own)', async () => {
+    const csv = [
+      'position,uncertainty,band,branch,j',
+      ...body.lines.map((l) => `${l.position},0.001,1-0,${l.assignment.branch},${l.assignment.j}`),
+    ].join('\n');
+    const lean = await post('/v1/fits?species=CO&detail=lean', csv, 'text/csv');
+    const full = await post('/v1/fits?species=CO', csv, 'text/csv');
+    expect(lean.lines).toHaveLength(body.lines.length);
+    expect(lean.lines.every((l) => l.uncertainty === undefined && l.assignment === undefined)).toBe(true);
+    expect(full.lines.every((l) => l.uncertainty === 0.001)).toBe(true);
+  });
+  it('an unknown detail is a 400 naming the parameter', async () => {
+    const r = await plain.inject({ method: 'POST', url: '/v1/fits?detail=short', payload: body });
+    expect(r.statusCode).toBe(400);
+    expect(r.body).toContain('detail');
+  });
+});
