@@ -19,20 +19,33 @@ export function rankError(def: RankDeficiency, what: string): ScienceError {
   );
 }
 
-/** Distinct J values that touch each level, which bound the rotational terms the level can support. */
+/**
+ * Distinct J values that touch each level, which bound the rotational terms the level can support; keyed
+ * "species|v" in the order the levels are first met. Counted with numeric keys (J ≤ MAX_J < 1024): a string key per
+ * observation cost more than the rest of this function.
+ */
 function distinctJ(obs: readonly Observation[]): Map<string, number> {
-  const sets = new Map<string, Set<number>>();
+  const seen = new Map<string, Map<number, Set<number>>>();
+  const order: [string, Set<number>][] = [];
   const add = (s: string, v: number, j: number) => {
-    const k = `${s}|${v}`;
-    const set = sets.get(k) ?? new Set<number>();
+    let bySpecies = seen.get(s);
+    if (!bySpecies) {
+      bySpecies = new Map();
+      seen.set(s, bySpecies);
+    }
+    let set = bySpecies.get(v);
+    if (!set) {
+      set = new Set();
+      bySpecies.set(v, set);
+      order.push([`${s}|${v}`, set]);
+    }
     set.add(j);
-    sets.set(k, set);
   };
   for (const o of obs) {
     add(o.species, o.upperV, o.upperJ);
     add(o.species, o.lowerV, o.lowerJ);
   }
-  return new Map([...sets].map(([k, v]) => [k, v.size]));
+  return new Map(order.map(([k, set]) => [k, set.size]));
 }
 
 /**

@@ -9,16 +9,10 @@ import type { Warning } from './types.js';
 
 /** Repeated measurements of one transition: weighted together, flagged when they disagree beyond their scatter. */
 export function checkRepeats(fit: SolvedModel, uncertaintiesGiven: boolean, warnings: Warning[]): void {
-  const groups = new Map<string, Observation[]>();
-  for (const o of fit.observations) {
-    const key = `${o.species}|${o.upperV}|${o.lowerV}|${o.upperJ}|${o.lowerJ}`;
-    const g = groups.get(key) ?? [];
-    g.push(o);
-    groups.set(key, g);
-  }
+  const groups = repeatGroups(fit.observations);
   // Against the caller's uncertainties when there are any; otherwise against the scatter of the whole fit.
   const s2 = uncertaintiesGiven || fit.degreesOfFreedom <= 0 ? 1 : Math.max(reducedChiSquare(fit) ?? 1, 1e-300);
-  for (const g of groups.values()) {
+  for (const g of groups) {
     if (g.length < 2) continue;
     let sw = 0;
     let swx = 0;
@@ -106,4 +100,29 @@ export function absoluteScaleWarnings(fit: SolvedModel, mode: 'a-posteriori' | '
       message: `χ²/ν = ${r < 0.01 ? r.toExponential(1) : r.toFixed(2)} on ${nu} degrees of freedom (p = ${lower.toExponential(1)} for so small a value) with absolute uncertainties: the line uncertainties look overstated, by about 1/√(χ²/ν) = ${(1 / Math.sqrt(r)).toPrecision(2)}, and the reported uncertainties, which are not rescaled, are as large as the caller's σ make them (too large by about that factor if the model is complete); consider uncertaintyMode "a-posteriori"`,
     });
   }
+}
+
+/**
+ * Observations grouped by transition (species, v′, v″, J′, J″), groups in the order first met. Keyed by a number
+ * within each species (v < 1024, J ≤ MAX_J < 1024): a string key per observation cost more than the grouping.
+ */
+function repeatGroups(observations: readonly Observation[]): Observation[][] {
+  const bySpecies = new Map<string, Map<number, Observation[]>>();
+  const groups: Observation[][] = [];
+  for (const o of observations) {
+    let m = bySpecies.get(o.species);
+    if (!m) {
+      m = new Map();
+      bySpecies.set(o.species, m);
+    }
+    const key = ((o.upperV * 1024 + o.lowerV) * 1024 + o.upperJ) * 1024 + o.lowerJ;
+    let g = m.get(key);
+    if (!g) {
+      g = [];
+      m.set(key, g);
+      groups.push(g);
+    }
+    g.push(o);
+  }
+  return groups;
 }

@@ -36,6 +36,24 @@ const TOKEN = /^(\d{1,3})?-?([A-Z][a-z]?)/;
  * ³H. Only diatomic molecules are accepted so far.
  */
 export function parseSpecies(input: string): Isotopologue {
+  const known = parsed.get(input);
+  if (known) return known;
+  const iso = readSpecies(input);
+  // Bounded: a stream of distinct strings (hostile or not) cannot grow it past PARSED_KEPT entries.
+  if (parsed.size >= PARSED_KEPT) parsed.clear();
+  parsed.set(input, iso);
+  return iso;
+}
+
+/**
+ * Species already parsed, by the string as given: a request names its species once but several stages ask for the
+ * isotopologue (the declared species, each given assignment, the masses), and the next request names the same few.
+ * The values are frozen, so sharing them is safe.
+ */
+const parsed = new Map<string, Isotopologue>();
+const PARSED_KEPT = 256;
+
+function readSpecies(input: string): Isotopologue {
   const text = input.trim();
   if (text.length === 0 || text.length > MAX_SPECIES_LENGTH) {
     throw new ScienceError('SPECIES_INVALID', `species "${input.slice(0, MAX_SPECIES_LENGTH)}" is empty or too long`, {
@@ -65,8 +83,8 @@ export function parseSpecies(input: string): Isotopologue {
       { species: text, atoms: atoms.length },
     );
   }
-  const pair = atoms as [Atom, Atom];
-  return { formula: formatFormula(pair), atoms: pair };
+  const pair = Object.freeze([Object.freeze(atoms[0]), Object.freeze(atoms[1])]) as readonly [Atom, Atom];
+  return Object.freeze({ formula: formatFormula(pair), atoms: pair });
 }
 
 export function resolveAtom(symbol: string, massText: string | undefined, species: string): Atom {
