@@ -166,9 +166,15 @@ export function correlationOf(cov: Float64Array, p: number): Float64Array {
   return out;
 }
 
-/** A row-major p × p matrix as rows (for reports). */
+/** A row-major p × p matrix as rows (for reports; plain loops: Array.from of typed subarrays was 4 % of a fit). */
 export function toRows(m: Float64Array, p: number): number[][] {
-  return Array.from({ length: p }, (_, i) => Array.from(m.subarray(i * p, i * p + p)));
+  const rows: number[][] = [];
+  for (let i = 0; i < p; i++) {
+    const row: number[] = [];
+    for (let j = 0; j < p; j++) row.push(m[i * p + j] as number);
+    rows.push(row);
+  }
+  return rows;
 }
 
 /** A prior on one parameter: a pseudo-observation p_k = value ± sigma. */
