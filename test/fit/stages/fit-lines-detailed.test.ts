@@ -25,7 +25,16 @@ describe('fitLineListDetailed', () => {
     const lines = co();
     lines[7] = { ...(lines[7] as LineInput), position: (lines[7] as LineInput).position + 0.05 };
     lines.push({ position: 2222.2 });
-    const { result, scale } = fitLineListDetailed(lines, MU);
+    // A mass for a species the list does not hold is not reported.
+    const masses = new Map([...MU, ['13C-16O', { value: 7.17241, uncertainty: 1e-9 }]]);
+    const { result, scale } = fitLineListDetailed(lines, masses);
+    expect(result.warnings.map((w) => w.code)).not.toContain('UNCERTAINTY_MODE_CHANGED');
+    expect(result.warnings.map((w) => w.code)).not.toContain('MASS_REDUCED_NEEDS_ISOTOPOLOGUES');
+    expect(result.scatter).toBeUndefined();
+    // Dunham constraints are listed with the level ones.
+    expect(result.model.constraints.some((c) => c.parameter.startsWith('Y'))).toBe(true);
+    expect(result.crossChecks.every((c) => c.species === '12C-16O')).toBe(true);
+    expect(result.equilibrium.map((e) => e.species)).toEqual(['12C-16O']);
     const s = result.statistics;
     expect(s).toMatchObject({ lines: 83, assigned: 82, fitted: 81, rejected: 1, unassigned: 1 });
     expect(s.degreesOfFreedom).toBe(81 - s.parameters);
@@ -80,7 +89,10 @@ describe('fitLineListDetailed', () => {
     const { result } = fitLineListDetailed(three, MU);
     expect(result.statistics.uncertaintyMode).toBe('absolute');
     expect(result.statistics.degreesOfFreedom).toBe(0);
-    expect(result.warnings.map((w) => w.code)).toContain('UNCERTAINTY_MODE_CHANGED');
+    expect(result.warnings.filter((w) => w.code === 'UNCERTAINTY_MODE_CHANGED').map((w) => w.message)).toEqual([
+      'no degrees of freedom are left to scale the covariance a posteriori: the line uncertainties are taken as absolute',
+    ]);
+    expect(result.model.selection).toContain('while a χ²-difference test gives p < 0.01');
     const bare = three.map(({ uncertainty: _, ...l }) => l);
     let e: unknown;
     try {
@@ -100,6 +112,8 @@ describe('fitLineListDetailed', () => {
     const only = fitLineListDetailed(co(), MU, { levelsOnly: true, massReducedDunham: true }).result;
     expect([only.dunham, only.equilibrium, only.combinationDifferences, only.crossChecks]).toEqual([[], [], [], []]);
     expect(only.massReducedDunham).toBeUndefined();
+    expect(only.warnings.map((w) => w.code)).not.toContain('MASS_REDUCED_NEEDS_ISOTOPOLOGUES');
+    expect(only.warnings.every((w) => typeof w.code === 'string')).toBe(true);
     const full = fitLineListDetailed(co(), MU, { massReducedDunham: true }).result;
     expect(full.dunham).toHaveLength(1);
     expect(full.combinationDifferences.length).toBe(4);
@@ -136,5 +150,68 @@ describe('fitLineListDetailed', () => {
     expect(none.lineSigma(t)).toBeCloseTo(est * Math.sqrt(none.scale), 15);
     // 0.001 cm⁻¹ of scatter estimated within 30 % (51 lines; stated tolerance).
     expect(Math.abs(est / 0.001 - 1)).toBeLessThan(0.3);
+  });
+  it('two rejected lines are listed in index order; maxCentrifugalOrder 1.5 keeps B only, Kratzer D constrained', () => {
+    const lines = co();
+    lines[30] = { ...(lines[30] as LineInput), position: (lines[30] as LineInput).position + 0.08 };
+    lines[7] = { ...(lines[7] as LineInput), position: (lines[7] as LineInput).position + 0.04 };
+    const r = fitLineListDetailed(lines, MU).result;
+    expect(r.warnings.find((w) => w.code === 'LINES_REJECTED')?.lines).toEqual([7, 30]);
+    // A species the library lacks (the CO lines relabelled), fitted to B only.
+    const xx = co().map((l) => ({
+      ...l,
+      assignment: { ...(l.assignment as NonNullable<LineInput['assignment']>), species: 'XX' },
+    }));
+    const b = fitLineListDetailed(xx, new Map([['XX', MU.get('12C-16O') as { value: number; uncertainty: number }]]), {
+      maxCentrifugalOrder: 1.5,
+    }).result;
+    expect(b.model.levelTerms.map((t) => t.terms)).toEqual([['B'], ['B'], ['B']]);
+    const w = b.warnings.find((x) => x.code === 'TERMS_CONSTRAINED' && x.message.startsWith('centrifugal'));
+    expect(w?.message).toMatch(
+      / \(Kratzer D ≈ 4B³\/ω_e² with B_v and ω_e ≈ the fitted vibrational interval, ± 50 %\)$/,
+    );
+    const none = fitLineListDetailed(co(), MU).result;
+    expect(none.warnings.map((x) => x.code)).not.toContain('LINES_REJECTED');
+  });
+
+  it('stated σ that disagree by band are rescaled in a-posteriori mode only, and the line σ carries the factor', () => {
+    // 1-0 and 3-0 scattered as stated (0.001), 2-0 ten times more, all stated 0.001.
+    const lines = independentLines({
+      molecule: CO_12_16,
+      bands: [
+        { upper: 1, lower: 0, jMax: 25, sigma: 0.001 },
+        { upper: 2, lower: 0, jMax: 25, sigma: 0.01 },
+        { upper: 3, lower: 0, jMax: 25, sigma: 0.001 },
+      ],
+      withUncertainties: false,
+      seed: 51,
+    }).lines.map((l) => ({ ...l, uncertainty: 0.001 })) as LineInput[];
+    const post = fitLineListDetailed(lines, MU);
+    expect(post.result.warnings.map((w) => w.code)).toContain('UNCERTAINTY_RESCALED');
+    const t = { species: '12C-16O', band: { upper: 2, lower: 0 }, branch: 'R' as const, j: 3 };
+    const f = post.lineSigma(t, { uncertainty: 0.001 }) / (0.001 * Math.sqrt(post.scale));
+    // The factor of 2-0 is about 10 (30 %, as in the stage's own test).
+    expect(Math.abs(f / 10 - 1)).toBeLessThan(0.3);
+    const abs = fitLineListDetailed(lines, MU, { uncertaintyMode: 'absolute' });
+    expect(abs.result.warnings.map((w) => w.code)).not.toContain('UNCERTAINTY_RESCALED');
+  });
+
+  it('without σ the scatter groups and their warning are reported', () => {
+    const r = fitLineListDetailed(co({ withUncertainties: false }), MU).result;
+    expect(r.scatter?.map((g) => g.group)).toEqual(['12C-16O 1-0', '12C-16O 2-0']);
+    expect(r.warnings[0]?.code).toBe('UNCERTAINTY_ESTIMATED');
+    // a-posteriori was asked for: nothing to change.
+    expect(r.warnings.map((w) => w.code)).not.toContain('UNCERTAINTY_MODE_CHANGED');
+  });
+
+  it('predict refuses a band between levels the lines never connect (v = 3 seen in pure rotation only)', () => {
+    const lines = [
+      ...co(),
+      ...(independentLines({ molecule: CO_12_16, bands: [{ upper: 3, lower: 3, jMax: 8 }], sigma: 1e-4, seed: 3 })
+        .lines as LineInput[]),
+    ];
+    const d = fitLineListDetailed(lines, MU);
+    expect(d.predict({ species: '12C-16O', band: { upper: 3, lower: 3 }, branch: 'R', j: 2 })).toBeDefined();
+    expect(d.predict({ species: '12C-16O', band: { upper: 3, lower: 0 }, branch: 'R', j: 2 })).toBeUndefined();
   });
 });

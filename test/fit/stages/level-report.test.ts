@@ -111,6 +111,10 @@ describe('reportLevels', () => {
     expect(r.levels[0]?.r?.unit).toBe('angstrom');
     expect(r.quantityOf('12C-16O|D|1')).toEqual(r.levels[1]?.D);
     expect(r.quantityOf('12C-16O|H|1')).toBeUndefined();
+    expect(r.quantityOf('12C-16O|B|0')?.unit).toBe('cm-1');
+    expect(r.parameters.every((q) => q.species === '12C-16O' && q.unit === 'cm-1')).toBe(true);
+    expect(Object.keys(r.lines[6] as object)).not.toContain('intensity');
+    expect(r.bands.every((b) => b.origin?.unit === 'cm-1')).toBe(true);
     expect(r.parameters.map((q) => q.name)).toEqual(r.names);
     expect(r.covariance).toHaveLength(r.names.length);
     for (const [i, row] of r.correlation.entries()) expect(row[i]).toBeCloseTo(1, 14);
