@@ -1,5 +1,6 @@
 import { ScienceError } from '../errors.js';
 import type { Branch } from '../models/transitions.js';
+import { honlLondonComponent } from './intensity.js';
 import type { LinearSpecies } from './species.js';
 import { termValue } from './terms.js';
 import { bandTransitions } from './transitions.js';
@@ -29,26 +30,12 @@ export interface PredictedLinearLine {
 }
 
 /**
- * Hönl–London factors of a linear molecule, the symmetric-top formulas with K = l (Herzberg, Infrared and Raman
- * Spectra, ch. IV, Table 12 form), J = J″, summed over M. ΔK = 0: R (J+1)²−l²)/(J+1), Q l²(2J+1)/(J(J+1)),
- * P (J²−l²)/J; ΔK = +1 (l′ = l″ + 1): R (J+2+l)(J+1+l)/(J+1), Q (J+1+l)(J−l)(2J+1)/(J(J+1)), P (J−1−l)(J−l)/J;
- * ΔK = −1: the same with l → −l. Each e/f component of an l ≥ 1 level takes half (the two components share the
- * K = ±l strength). Nuclear-spin weights are not included.
+ * Hönl–London factor of one line (one parity component), J = J″: intensity.ts#honlLondonComponent, the one
+ * normalisation of this module family (3j symbols, the branches of one J″ summing to 2J″+1, half per component when
+ * both levels have l ≥ 1). Nuclear-spin weights are not included.
  */
 export function honlLondon(lowerL: number, upperL: number, branch: Branch, J: number): number {
-  const k = lowerL;
-  let f: number;
-  if (upperL === lowerL) {
-    if (branch === 'R') f = ((J + 1) ** 2 - k * k) / (J + 1);
-    else if (branch === 'Q') f = J === 0 ? 0 : (k * k * (2 * J + 1)) / (J * (J + 1));
-    else f = J === 0 ? 0 : (J * J - k * k) / J;
-  } else {
-    const s = upperL > lowerL ? k : -k;
-    if (branch === 'R') f = ((J + 2 + s) * (J + 1 + s)) / (J + 1);
-    else if (branch === 'Q') f = J === 0 ? 0 : ((J + 1 + s) * (J - s) * (2 * J + 1)) / (J * (J + 1));
-    else f = J === 0 ? 0 : ((J - 1 - s) * (J - s)) / J;
-  }
-  return Math.max(f, 0) * (lowerL >= 1 ? 0.5 : 1);
+  return honlLondonComponent(branch, lowerL, upperL, J);
 }
 
 /**

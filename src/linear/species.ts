@@ -187,17 +187,6 @@ export function hasZeroNuclearSpin(atom: Atom): boolean {
   return z % 2 === 0 && n % 2 === 0;
 }
 
-/**
- * True when half of the rotational levels are missing: a centrosymmetric chain whose exchanged nuclei all have
- * I = 0 (12C16O2, 13C16O2, 12C18O2, 12C32S2), so only levels symmetric under the exchange exist.
- */
-export function hasMissingLevels(species: LinearSpecies): boolean {
-  if (!species.centrosymmetric) return false;
-  const n = species.atoms.length;
-  for (let i = 0; i < Math.floor(n / 2); i++) if (!hasZeroNuclearSpin(species.atoms[i] as Atom)) return false;
-  return true;
-}
-
 /** Natural abundance of the isotopologue: product of its atoms' amount fractions (CIAAW 2013). */
 export function linearAbundance(species: LinearSpecies): number {
   return species.atoms.reduce((p, a) => p * fractionInMixture(a.element, a.isotope), 1);

@@ -1,4 +1,5 @@
 import { ScienceError } from '../errors.js';
+import { hasZeroNuclearSpin, type LinearSpecies } from './species.js';
 import type { LinearLevel, Parity } from './types.js';
 
 /**
@@ -82,7 +83,10 @@ function uModesOf(atomCount: number): readonly number[] {
  * Exchange statistics of a chain of nuclides written along the axis (["16O", "12C", "16O"]).
  * Throws INPUT_INVALID for a centrosymmetric chain with a nuclide whose spin is not tabulated.
  */
-export function exchangeStatistics(chain: readonly string[]): ExchangeStatistics {
+export function exchangeStatistics(
+  chain: readonly string[],
+  spinOf: (nuclide: string, position: number) => number | undefined = nuclearSpin,
+): ExchangeStatistics {
   const n = chain.length;
   const centrosymmetric = n >= 3 && chain.every((a, i) => a === chain[n - 1 - i]);
   if (!centrosymmetric) return { kind: 'none' };
@@ -92,7 +96,7 @@ export function exchangeStatistics(chain: readonly string[]): ExchangeStatistics
   let fermionPairs = 0;
   for (let i = 0; i < Math.floor(n / 2); i++) {
     const nuclide = chain[i] as string;
-    const I = nuclearSpin(nuclide);
+    const I = spinOf(nuclide, i);
     if (I === undefined) {
       throw new ScienceError('INPUT_INVALID', `no nuclear spin tabulated for ${nuclide}`, { nuclide });
     }
@@ -173,4 +177,35 @@ export function branchJStep(stats: ExchangeStatistics, lower: LinearLevel): 1 | 
   const e = allowedJ(stats, lower, 'e');
   const f = lower.l >= 1 ? allowedJ(stats, lower, 'f') : 'none';
   return e === 'all' || f === 'all' ? 1 : 2;
+}
+
+/** Statistics per parsed species object (levelExists asks once per rotational level). */
+const STATISTICS = new WeakMap<LinearSpecies, ExchangeStatistics>();
+
+/**
+ * The exchange statistics of a parsed species: the one rule of this module for every caller (selection rules,
+ * predictions, intensities, assignment). A nuclide missing from the spin table counts as I = 0 when it is
+ * even-even (species.ts#hasZeroNuclearSpin), so every chain that parses has statistics; any other untabulated
+ * nuclide of a centrosymmetric chain is INPUT_INVALID.
+ */
+export function speciesStatistics(species: LinearSpecies): ExchangeStatistics {
+  const known = STATISTICS.get(species);
+  if (known) return known;
+  const stats = exchangeStatistics(species.formula.split('-'), (nuclide, i) => {
+    const I = nuclearSpin(nuclide);
+    if (I !== undefined) return I;
+    const atom = species.atoms[i];
+    return atom && hasZeroNuclearSpin(atom) ? 0 : undefined;
+  });
+  STATISTICS.set(species, stats);
+  return stats;
+}
+
+/**
+ * True when half of the rotational levels are missing: exchange statistics with one weight zero (a centrosymmetric
+ * chain whose exchanged nuclei all have I = 0: 12C16O2, 13C16O2, 12C18O2, 12C32S2).
+ */
+export function hasMissingLevels(species: LinearSpecies): boolean {
+  const stats = speciesStatistics(species);
+  return stats.kind === 'exchange' && (stats.symmetricWeight === 0 || stats.antisymmetricWeight === 0);
 }

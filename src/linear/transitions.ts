@@ -1,6 +1,7 @@
 import { ScienceError } from '../errors.js';
 import type { Branch } from '../models/transitions.js';
-import { hasMissingLevels, type LinearSpecies } from './species.js';
+import type { LinearSpecies } from './species.js';
+import { isGerade as isGeradeIn, levelSpinWeight, speciesStatistics } from './spin-statistics.js';
 import { bandLabel, checkLevel, type LinearLevel, levelKey, type Parity, parityComponents } from './types.js';
 
 /**
@@ -13,7 +14,8 @@ import { bandLabel, checkLevel, type LinearLevel, levelKey, type Parity, parityC
  *   f component of the Π level;
  * - in centrosymmetric chains whose exchanged nuclei have I = 0 (12C16O2) half the levels are missing: in a g
  *   vibrational state e levels have even J and f levels odd J, in a u state the reverse (the rule every 626 level
- *   of the HITRAN sample obeys, reference note §2), and a band must join g and u (dipole).
+ *   of the HITRAN sample obeys, reference note §2); which levels exist comes from spin-statistics.ts (one rule for
+ *   the whole module family), and in every centrosymmetric chain a band must join g and u (dipole).
  */
 
 export interface LinearAssignment {
@@ -49,21 +51,14 @@ export function bandKind(upper: LinearLevel, lower: LinearLevel): BandKind {
   );
 }
 
-/** Gerade (true) or ungerade vibrational state of a centrosymmetric chain: ν2, ν3 (XYX) and ν3, ν5 (XYYX) are u. */
-export function isGerade(level: LinearLevel): boolean {
-  const v = level.v;
-  const odd = v.length === 3 ? (v[1] as number) + (v[2] as number) : (v[2] as number) + (v[4] as number);
-  return odd % 2 === 0;
-}
-
-/** Whether the rotational level (J, parity) of a vibrational level exists in this species. */
+/**
+ * Whether the rotational level (J, parity) of a vibrational level exists in this species: J ≥ l, a component the
+ * level has, and a nuclear-spin weight above zero (spin-statistics.ts, the one rule for missing levels).
+ */
 export function levelExists(species: LinearSpecies, level: LinearLevel, J: number, parity: Parity): boolean {
   if (J < level.l) return false;
   if (!parityComponents(level.l).includes(parity)) return false;
-  if (!hasMissingLevels(species)) return true;
-  const evenJ = J % 2 === 0;
-  const eHasEvenJ = isGerade(level);
-  return parity === 'e' ? evenJ === eHasEvenJ : evenJ !== eHasEvenJ;
+  return levelSpinWeight(speciesStatistics(species), level, J, parity) > 0;
 }
 
 function deltaJ(branch: Branch): number {
@@ -162,10 +157,11 @@ export function bandTransitions(
   jMax: number,
 ): LinearTransition[] {
   bandKind(upper, lower);
-  if (species.centrosymmetric && hasMissingLevels(species) && isGerade(upper) === isGerade(lower)) {
+  const stats = speciesStatistics(species);
+  if (stats.kind === 'exchange' && isGeradeIn(upper, stats.uModes) === isGeradeIn(lower, stats.uModes)) {
     throw new ScienceError(
       'ASSIGNMENT_INVALID',
-      `band ${bandLabel(upper, lower)} joins two ${isGerade(upper) ? 'g' : 'u'} states of ${species.formula}: it has no dipole (infrared) lines`,
+      `band ${bandLabel(upper, lower)} joins two ${isGeradeIn(upper, stats.uModes) ? 'g' : 'u'} states of ${species.formula}: it has no dipole (infrared) lines`,
       { upper, lower },
     );
   }

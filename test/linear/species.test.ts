@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { hasMissingLevels, isLinearSpeciesString, parseLinearSpecies } from '../../src/linear/species.js';
+import { isLinearSpeciesString, parseLinearSpecies } from '../../src/linear/species.js';
+import { hasMissingLevels } from '../../src/linear/spin-statistics.js';
 import { parseSpecies } from '../../src/species/parse.js';
 
 describe('linear species strings', () => {
