@@ -134,6 +134,8 @@ export function runLinearCheck(sent: CheckRequest, applied: Tolerances): CheckRe
     if (!(e instanceof ScienceError) || !NO_FIT_CODES.has(e.code)) throw e;
   }
   const species = fit?.species[0]?.formula ?? (fitReq.species as string);
+  // With several isotopologues the checks judge the first one's lines (the others are explained by their own).
+  if (fit && fit.species.length > 1) return isotopologueCheck(fitReq, fit, species, peaks, applied);
   const automatic = assignLinearLines(species, peaks, {
     ...(fitReq.options?.temperature !== undefined ? { temperature: fitReq.options.temperature } : {}),
     ...(fitReq.options?.maxOffset !== undefined ? { maxOffset: fitReq.options.maxOffset } : {}),
@@ -149,6 +151,51 @@ export function runLinearCheck(sent: CheckRequest, applied: Tolerances): CheckRe
   );
   const ranking = mergeIdentifications(identifySpecies(peaks), identifyLinearSpecies(peaks));
   const checks = linearChecks(peaks, result, ranking, applied);
+  const response: DeepReadonly<CheckResponse> = {
+    verdict: verdictOf(checks),
+    checks,
+    tolerances: { ...applied },
+    fit,
+    notice: SAFETY_NOTICE,
+  };
+  return response as CheckResponse;
+}
+
+/**
+ * Checks of a fit of several isotopologues: identity, calibration and unexplained-lines of the first species on
+ * the lines the fit gave it (given labels as given), the other species' lines left to their own fits; indices in
+ * `measured` are those of the request.
+ */
+function isotopologueCheck(
+  fitReq: FitRequest,
+  fit: FitResponse,
+  species: string,
+  peaks: readonly { position: number; uncertainty?: number; intensity?: number }[],
+  applied: Tolerances,
+): CheckResponse {
+  const mine = fit.lines.filter((l) => l.assignment?.species === species).map((l) => l.index);
+  const sub = mine.map((i) => peaks[i] as (typeof peaks)[number]);
+  const automatic = assignLinearLines(species, sub, {
+    ...(fitReq.options?.temperature !== undefined ? { temperature: fitReq.options.temperature } : {}),
+    ...(fitReq.options?.maxOffset !== undefined ? { maxOffset: fitReq.options.maxOffset } : {}),
+  });
+  const sent = fitReq.lines ?? [];
+  const result = withGivenAssignments(
+    automatic,
+    mine.map((i, k) => {
+      const a = sent[i]?.assignment;
+      return {
+        position: (sub[k] as { position: number }).position,
+        ...(sent[i]?.intensity !== undefined ? { intensity: sent[i]?.intensity as number } : {}),
+        ...(isLinearAssignment(a) ? { assignment: assignmentFromWire(a) } : {}),
+      };
+    }),
+  );
+  const ranking = mergeIdentifications(identifySpecies(peaks), identifyLinearSpecies(peaks));
+  const checks = linearChecks(sub, result, ranking, applied).map((c) => {
+    const un = (c.measured as { unassigned?: number[] }).unassigned;
+    return un ? { ...c, measured: { ...c.measured, unassigned: un.map((k) => mine[k] as number) } } : c;
+  });
   const response: DeepReadonly<CheckResponse> = {
     verdict: verdictOf(checks),
     checks,

@@ -123,6 +123,8 @@ export function asLineRequest<R extends FitRequest>(req: R): { req: R; spectrum?
 /** POST /v1/fits (and GraphQL `fit`, the CLI) for linear polyatomic molecules: lines (assigned or not) or a spectrum. */
 export function runLinearFit(sent: FitRequest): FitResponse {
   const { req, spectrum } = asLineRequest(sent);
+  const groups = isotopologueGroups(req);
+  if (groups) return runIsotopologueFits(req, groups);
   const species = speciesOf(req);
   const unit = req.unit ?? 'cm-1';
   const lines: LinearLineInput[] = (req.lines ?? []).map((l, index) => {
@@ -329,4 +331,142 @@ function lines0(req: FitRequest, i: number): number | undefined {
   const l = req.lines?.[i];
   if (!l) return undefined;
   return toWavenumber(l.position, req.unit ?? 'cm-1', l.uncertainty).uncertainty;
+}
+
+/**
+ * The lines of a request that names several isotopologues of linear molecules (on `assignment.species`; lines
+ * without one belong to the declared `species`), grouped by chain in order of first appearance; undefined when
+ * the request names one at most.
+ */
+function isotopologueGroups(req: FitRequest): Map<string, number[]> | undefined {
+  const lines = req.lines ?? [];
+  const declared = req.species !== undefined ? parseLinearSpecies(req.species).formula : undefined;
+  const named = lines.map((l) =>
+    l.assignment?.species !== undefined ? parseLinearSpecies(l.assignment.species).formula : declared,
+  );
+  const distinct = new Set(named.filter((x): x is string => x !== undefined));
+  const missing = named.findIndex((x) => x === undefined);
+  // Lines that name a species beside lines that do not, and no declared species: which one the others belong to
+  // is not said (fitting them as the named one would fit another molecule's lines).
+  if (distinct.size <= 1 && !(distinct.size === 1 && missing >= 0)) return undefined;
+  if (missing >= 0) {
+    throw new ScienceError(
+      'SPECIES_UNIDENTIFIED',
+      `line ${missing}: other lines name ${[...distinct].join(', ')}; a line without "assignment.species" belongs to the declared "species", and none is declared`,
+      { line: missing },
+    );
+  }
+  const groups = new Map<string, number[]>();
+  named.forEach((f, i) => {
+    groups.set(f as string, [...(groups.get(f as string) ?? []), i]);
+  });
+  return groups;
+}
+
+/**
+ * Several isotopologues in one request (12C16O2 and 13C16O2 ν3 in one list): each species gets its own fit and its
+ * own constants (independent fits per isotopologue, SCIENCE.md §3), answered as one response. Lines keep their
+ * request index; parameters and the covariance carry the species before each name ("16O-13C-16O B(0,0,0|0)"), the
+ * covariance is block-diagonal (the fits share no parameter); statistics add up (χ²/ν over the summed degrees of
+ * freedom, rms over every fitted line).
+ */
+function runIsotopologueFits(req: FitRequest, groups: ReadonlyMap<string, readonly number[]>): FitResponse {
+  const sent = req.lines ?? [];
+  const parts = [...groups].map(([formula, indices]) => {
+    const sub: FitRequest = {
+      ...req,
+      species: formula,
+      lines: indices.map((i) => {
+        const l = sent[i] as Line;
+        if (!l.assignment) return l;
+        const { species: _s, ...a } = l.assignment;
+        return { ...l, assignment: a };
+      }),
+    };
+    return { formula, indices, fit: runLinearFit(sub) };
+  });
+  const back = (indices: readonly number[]) => (i: number) => indices[i] as number;
+  const named = (formula: string, name: string) => `${formula} ${name}`;
+  const lines = parts
+    .flatMap(({ indices, fit }) => fit.lines.map((l) => ({ ...l, index: back(indices)(l.index) })))
+    .sort((a, b) => a.index - b.index);
+  const names = parts.flatMap(({ formula, fit }) => fit.covariance.parameters.map((n) => named(formula, n)));
+  const blocks = (pick: (f: FitResponse) => { matrix: number[][] }) => {
+    const out: number[][] = names.map(() => names.map(() => 0));
+    let at = 0;
+    for (const { fit } of parts) {
+      const m = pick(fit).matrix;
+      m.forEach((row, i) => {
+        row.forEach((x, j) => {
+          (out[at + i] as number[])[at + j] = x;
+        });
+      });
+      at += m.length;
+    }
+    return out;
+  };
+  const stats = parts.map((p) => p.fit.statistics);
+  const sum = (k: 'lines' | 'assigned' | 'fitted' | 'rejected' | 'unassigned' | 'parameters' | 'degreesOfFreedom') =>
+    stats.reduce((t, x) => t + x[k], 0);
+  const dof = sum('degreesOfFreedom');
+  const fitted = sum('fitted');
+  const chi = stats.every((x) => x.reducedChiSquare !== null)
+    ? stats.reduce((t, x) => t + (x.reducedChiSquare as number) * x.degreesOfFreedom, 0)
+    : null;
+  const first = (parts[0] as { fit: FitResponse }).fit;
+  return {
+    ...first,
+    species: parts.flatMap((p) => p.fit.species),
+    lines,
+    bands: parts.flatMap((p) => p.fit.bands),
+    levels: parts.flatMap((p) => p.fit.levels),
+    parameters: parts.flatMap(({ formula, fit }) =>
+      fit.parameters.map((x) => ({ ...x, name: named(formula, x.name) })),
+    ),
+    covariance: { parameters: names, matrix: blocks((f) => f.covariance) },
+    correlation: { parameters: names, matrix: blocks((f) => f.correlation as { matrix: number[][] }) },
+    statistics: {
+      ...first.statistics,
+      lines: sum('lines'),
+      assigned: sum('assigned'),
+      fitted,
+      rejected: sum('rejected'),
+      unassigned: sum('unassigned'),
+      parameters: sum('parameters'),
+      degreesOfFreedom: dof,
+      rms: Math.sqrt(stats.reduce((t, x) => t + x.rms * x.rms * x.fitted, 0) / Math.max(1, fitted)),
+      reducedChiSquare: chi !== null && dof > 0 ? chi / dof : null,
+      conditionNumber: stats.some((x) => x.conditionNumber !== null)
+        ? Math.max(...stats.map((x) => x.conditionNumber ?? 0))
+        : null,
+    },
+    model: {
+      levelTerms: parts.flatMap((p) => p.fit.model.levelTerms),
+      selection: parts.map((p) => `${p.formula}: ${p.fit.model.selection}`).join(' '),
+      constraints: parts.flatMap((p) => p.fit.model.constraints ?? []),
+    },
+    combinationDifferences: parts.flatMap((p) => p.fit.combinationDifferences),
+    ...(parts.some((p) => p.fit.scatter)
+      ? {
+          scatter: parts.flatMap(({ formula, fit }) =>
+            (fit.scatter ?? []).map((g) => ({ ...g, group: `${formula} ${g.group}` })),
+          ),
+        }
+      : {}),
+    assignment: {
+      method: parts.some((p) => p.fit.assignment.method === 'reference') ? 'reference' : 'given',
+      species: parts.map((p) => p.formula),
+      bands: parts.flatMap((p) => p.fit.assignment.bands),
+      unexplained: parts
+        .flatMap(({ indices, fit }) => fit.assignment.unexplained.map((u) => ({ ...u, index: back(indices)(u.index) })))
+        .sort((a, b) => a.index - b.index),
+    },
+    warnings: parts.flatMap(({ formula, indices, fit }) =>
+      fit.warnings.map((w) => ({
+        ...w,
+        message: `${formula}: ${w.message}`,
+        ...(w.lines ? { lines: w.lines.map(back(indices)) } : {}),
+      })),
+    ),
+  };
 }
