@@ -1,5 +1,5 @@
 import { ScienceError } from '../../src/errors.js';
-import type { LinearAssignResult } from '../../src/linear/assign.js';
+import { assignLinearLines, type LinearAssignResult } from '../../src/linear/assign.js';
 import {
   fitLinearLines,
   type LinearFitResult,
@@ -7,6 +7,7 @@ import {
   type LinearLineInput,
   type LinearLTypeLevelResult,
 } from '../../src/linear/fit.js';
+import { LINEAR_REFERENCE } from '../../src/linear/reference.js';
 import { isLinearSpeciesString, type LinearSpecies, parseLinearSpecies } from '../../src/linear/species.js';
 import type { LinearAssignment } from '../../src/linear/transitions.js';
 import type { LinearLevel } from '../../src/linear/types.js';
@@ -162,9 +163,85 @@ export function runLinearFit(sent: FitRequest): FitResponse {
       ...(req.options?.maxOffset !== undefined ? { maxOffset: req.options.maxOffset } : {}),
     },
   );
+  const others = otherIsotopologueLines(req, species.formula, auto.lines, auto.automatic);
+  if (others) return withSpectrum(others, spectrum);
   const result = fitLinearLines(species, auto.lines, options);
   const response = presentLinearFit(req, result, auto.automatic, auto.result);
-  return spectrum ? { ...response, spectrum } : response;
+  return withSpectrum(response, spectrum);
+}
+
+function withSpectrum(r: FitResponse, spectrum: SpectrumSummary | undefined): FitResponse {
+  return spectrum ? { ...r, spectrum } : r;
+}
+
+/** The molecule of a chain, mass numbers dropped ("16O-13C-16O" → "O-C-O"). */
+const moleculeOf = (chain: string) =>
+  chain
+    .split('-')
+    .map((a) => a.replace(/^\d+/, ''))
+    .join('-');
+
+/**
+ * An unlabelled list of one molecule often holds its rarer isotopologues too (13C16O2 beside 12C16O2 at 1 %): the
+ * lines the declared species left unassigned are assigned against the library's other isotopologues of the same
+ * molecule, each kept when its numbering check passes with at least 6 lines; the list is then fitted per species
+ * (runIsotopologueFits) with those lines marked automatic. Undefined when the list carried labels, when fewer than
+ * 6 lines were left, or when no other isotopologue explains them.
+ */
+function otherIsotopologueLines(
+  req: FitRequest,
+  formula: string,
+  lines: readonly LinearLineInput[],
+  automatic: ReadonlySet<number>,
+): FitResponse | undefined {
+  const sent = req.lines ?? [];
+  if (sent.some((l) => l.assignment !== undefined)) return undefined;
+  let left = lines.flatMap((l, i) => (l.assignment ? [] : [i]));
+  if (left.length < 6) return undefined;
+  const found = new Map<number, { species: string; assignment: LinearAssignment }>();
+  for (const ref of LINEAR_REFERENCE) {
+    if (ref.formula === formula || moleculeOf(ref.formula) !== moleculeOf(formula) || left.length < 6) continue;
+    const r = assignLinearLines(
+      ref.formula,
+      left.map((i) => lines[i] as LinearLineInput),
+      req.options?.maxOffset !== undefined ? { maxOffset: req.options.maxOffset } : {},
+    );
+    const taken = r.lines.filter((l) => l.assignment);
+    if (taken.length < 6 || r.numbering.length === 0 || !r.numbering.every((n) => n.ok)) continue;
+    for (const l of taken) {
+      found.set(left[l.index] as number, { species: ref.formula, assignment: l.assignment as LinearAssignment });
+    }
+    left = left.filter((i) => !found.has(i));
+  }
+  if (found.size === 0) return undefined;
+  const labelled: FitRequest = {
+    ...req,
+    species: formula,
+    lines: sent.map((l, i) => {
+      const a = found.get(i)?.assignment ?? lines[i]?.assignment;
+      if (!a) return l;
+      return {
+        ...l,
+        assignment: {
+          ...(found.has(i) ? { species: found.get(i)?.species } : {}),
+          upper: toWire(a.upper),
+          lower: toWire(a.lower),
+          branch: a.branch,
+          j: a.j,
+          ...(a.parity !== undefined ? { parity: a.parity } : {}),
+        },
+      };
+    }),
+  } as FitRequest;
+  const fit = runLinearFit(labelled);
+  const auto = (i: number) => automatic.has(i) || found.has(i);
+  return {
+    ...fit,
+    lines: fit.lines.map((l) =>
+      l.assignment && auto(l.index) ? { ...l, assignment: { ...l.assignment, source: 'auto' as const } } : l,
+    ),
+    assignment: { ...fit.assignment, method: 'reference' },
+  };
 }
 
 function presentLinearFit(

@@ -125,4 +125,46 @@ describe('several isotopologues of a linear molecule in one fit', () => {
     expect(by('unexplained-lines').measured.lines).toBe(0);
     expect(body.fit.species).toHaveLength(2);
   });
+
+  it('an unlabelled CO2 list holding 13C16O2 ν3 at natural abundance: both isotopologues assigned and fitted, no spurious line taken', async () => {
+    const a = genLineList({ molecule: CO2_626, bands: [NU3], jMax: 50, sigma: 5e-4, spurious: 5, seed: 67 });
+    // 13C: 1.07 % (CIAAW, SCIENCE.md §5); the weak lines of the rarer species as a scan gives them.
+    const b = genLineList({ molecule: CO2_636, bands: [NU3], jMax: 40, sigma: 5e-4, seed: 68 }).map((l) => ({
+      ...l,
+      intensity: 0.0107 * l.intensity,
+    }));
+    const mixed = [...a.map((l) => ({ l, s: '16O-12C-16O' })), ...b.map((l) => ({ l, s: '16O-13C-16O' }))].sort(
+      (x, y) => x.l.position - y.l.position,
+    );
+    const res = await app().inject({
+      method: 'POST',
+      url: '/v1/fits',
+      payload: {
+        species: 'CO2',
+        lines: mixed.map(({ l }) => ({ position: l.position, uncertainty: l.uncertainty, intensity: l.intensity })),
+      },
+    });
+    expect(res.statusCode, res.body.slice(0, 400)).toBe(200);
+    const body = res.json();
+    const s = { correct: 0, wrong: 0, unassigned: 0, spuriousTaken: 0 };
+    body.lines.forEach(
+      (l: { index: number; assignment?: { species: string; branch: string; j: number; source: string } }) => {
+        const m = mixed[l.index] as { l: GenLine; s: string };
+        if (m.l.kind === 'spurious') {
+          if (l.assignment) s.spuriousTaken++;
+          return;
+        }
+        if (!l.assignment) s.unassigned++;
+        else if (l.assignment.species === m.s && l.assignment.branch === m.l.branch && l.assignment.j === m.l.j)
+          s.correct++;
+        else s.wrong++;
+        if (l.assignment) expect(l.assignment.source).toBe('auto');
+      },
+    );
+    if (process.env.SHARES_LOG) console.log(s);
+    expect(s.wrong).toBe(0);
+    expect(s.spuriousTaken).toBe(0);
+    expect(s.correct).toBeGreaterThanOrEqual(0.98 * (s.correct + s.unassigned));
+    expect(body.species.map((x: { formula: string }) => x.formula).sort()).toEqual(['16O-12C-16O', '16O-13C-16O']);
+  });
 });
