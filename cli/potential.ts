@@ -65,7 +65,7 @@ export function potentialCommand(
   const rf = r.refined;
   const refined = rf
     ? [
-        `Refined curve (its Numerov levels give back the constants; ${rf.rounds.length} solves): worst |Δ(G_v − G_0)| ${rf.worstIntervalError.toExponential(2)} cm-1, worst |ΔB_v/B_v| ${rf.worstRotationalRelativeError.toExponential(2)}${rf.withinGoals ? '' : ' (short of 0.01 cm-1 and 1e-4)'}, v = 0 shift ${rf.zeroPointShift.toFixed(4)} cm-1`,
+        `Refined curve (its Numerov levels give back the constants; ${rf.solves} Numerov solves): worst |Δ(G_v − G_0)| ${rf.worstIntervalError.toExponential(2)} cm-1, worst |ΔB_v/B_v| ${rf.worstRotationalRelativeError.toExponential(2)}${rf.withinGoals ? '' : ' (short of 0.01 cm-1 and 1e-4)'}, v = 0 shift ${rf.zeroPointShift.toFixed(4)} cm-1`,
         ...rf.levels.map(
           (l) =>
             `  v = ${l.v}: E_v ${f(l.energy.value, 4)} cm-1, r- ${f(l.rMin.value, 6)} Å, r+ ${f(l.rMax.value, 6)} Å`,

@@ -1160,11 +1160,18 @@ export interface components {
             rotationalRelativeError: number;
             v: number;
           }[];
-        /** @description one Numerov solve each; the first is the first-order curve */
+        /** @description worst residuals after each round of the kept run; the first is the first-order curve */
         rounds: {
             worstIntervalError: number;
             worstRotationalRelativeError: number;
           }[];
+        /** @description Numerov solves made in all */
+        solves: number;
+        /**
+         * @description the levels' response to a correction, first taken as the identity or (when that fell short) measured
+         * @enum {string}
+         */
+        start: "identity" | "finite-difference";
         /** @description highest v of the RKR points of the curve */
         vTop: number;
         /** @description intervals within 0.01 cm-1 and B_v within 1e-4 relative */

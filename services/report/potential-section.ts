@@ -11,7 +11,7 @@ export function potentialSection(p: PotentialResponse): ReportSection {
   const check = p.verification;
   const rf = p.refined;
   const refinedNote = rf
-    ? ` Refined curve (corrected until its Numerov levels give back G_v − G_0 and B_v; ${rf.rounds.length} solves): worst |Δ(G_v − G_0)| ${rf.worstIntervalError.toExponential(1)} cm⁻¹, worst |ΔB_v/B_v| ${rf.worstRotationalRelativeError.toExponential(1)}${rf.withinGoals ? '' : ', short of 0.01 cm⁻¹ and 1e-4'}; its turning points at its own levels E_v (G_v + the zero-point constant, ${rf.zeroPointShift.toFixed(3)} cm⁻¹) are in the last columns.`
+    ? ` Refined curve (corrected until its Numerov levels give back G_v − G_0 and B_v; ${rf.solves} Numerov solves): worst |Δ(G_v − G_0)| ${rf.worstIntervalError.toExponential(1)} cm⁻¹, worst |ΔB_v/B_v| ${rf.worstRotationalRelativeError.toExponential(1)}${rf.withinGoals ? '' : ', short of 0.01 cm⁻¹ and 1e-4'}; its turning points at its own levels E_v (G_v + the zero-point constant, ${rf.zeroPointShift.toFixed(3)} cm⁻¹) are in the last columns.`
     : '';
   const caption = `First-order RKR turning points from the fitted constants, for the levels the data reached (v = 0…${p.vMax}); the Morse curve from ω_e, ω_e x_e and B_e.${check ? ` Numerov check of the RKR curve: worst |Δ(G_v − G_0)| ${check.worstIntervalError.toExponential(1)} cm⁻¹, worst |ΔB_v/B_v| ${check.worstRotationalRelativeError.toExponential(1)}.` : ''}${refinedNote}`;
   const rows = p.levels

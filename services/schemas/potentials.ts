@@ -108,9 +108,15 @@ export const PotentialResponseSchema = z
     refined: z
       .object({
         vTop: z.number().describe('highest v of the RKR points of the curve'),
+        start: z
+          .enum(['identity', 'finite-difference'])
+          .describe(
+            "the levels' response to a correction, first taken as the identity or (when that fell short) measured",
+          ),
+        solves: z.number().int().describe('Numerov solves made in all'),
         rounds: z
           .array(z.object({ worstIntervalError: z.number(), worstRotationalRelativeError: z.number() }))
-          .describe('one Numerov solve each; the first is the first-order curve'),
+          .describe('worst residuals after each round of the kept run; the first is the first-order curve'),
         grid: z.object({ from: z.number(), to: z.number(), step: z.number(), points: z.number().int() }),
         zeroPointShift: z.number().describe("E_0 − G_0 of the refined curve, cm-1 (Dunham's Y00)"),
         levels: z.array(

@@ -73,7 +73,11 @@ export interface NumerovCheck {
 /** The refined curve: turning points at its quantum levels and its own round trip. */
 export interface RefinedPotential {
   readonly vTop: number;
-  /** Numerov solves made; the worst residuals after each (the first is the first-order curve). */
+  /** The levels' response to a correction first taken as the identity, or measured (when the first did not do). */
+  readonly start: 'identity' | 'finite-difference';
+  /** Numerov solves made in all. */
+  readonly solves: number;
+  /** The worst residuals after each round of the kept run (the first is the first-order curve). */
   readonly rounds: readonly { readonly worstIntervalError: number; readonly worstRotationalRelativeError: number }[];
   readonly grid: NumerovCheck['grid'];
   /** E_0 − G_0 of the refined curve, cm⁻¹ (Dunham's Y00 with its higher-order terms). */
@@ -468,6 +472,8 @@ function refineCurve(
   }
   return {
     vTop,
+    start: r.start,
+    solves: r.solves,
     rounds: r.rounds,
     grid: r.check.grid,
     zeroPointShift: r.check.zeroPointShift,

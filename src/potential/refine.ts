@@ -83,7 +83,11 @@ export interface RefinedLevel {
 export interface RefinedCurve {
   /** The G_c(v), B_c(v) whose RKR curve is the refined curve. */
   readonly series: VibrationalSeries;
-  /** Rounds made (each one Numerov solve) and the worst residuals after each, the first being first-order RKR. */
+  /** How the response of the levels was first taken: as the identity, or measured by finite differences. */
+  readonly start: 'identity' | 'finite-difference';
+  /** Numerov solves made in all. */
+  readonly solves: number;
+  /** The worst residuals after each round of the kept run, the first being the first-order curve. */
   readonly rounds: readonly { readonly worstIntervalError: number; readonly worstRotationalRelativeError: number }[];
   /** The check of the kept round. */
   readonly check: CurveCheck;
@@ -136,31 +140,85 @@ export function compareLevels(target: VibrationalSeries, grid: RadialGridUsed, s
 const badness = (c: CurveCheck) => Math.max(c.worstIntervalError / 0.01, c.worstRotationalRelativeError / 1e-4);
 
 export function refineRkrCurve(input: RefineInput): RefinedCurve | undefined {
+  const basis = correctionBasis(input.vMax + 1, input.degree ?? 4);
+  // The identity start suffices when the quantum correction is small (HCl, DCl, CO); when it does not reach the
+  // goals (HF above v = 4), the response is measured instead, one solve per correction term.
+  const first = iterate(input, basis, 'identity');
+  const run =
+    first.best && badness(first.best.check) <= 1 ? first : better(first, iterate(input, basis, 'finite-difference'));
+  const kept = run.best;
+  if (!kept) return undefined;
+  return {
+    series: kept.series,
+    start: run.start,
+    solves: first === run ? first.solves : first.solves + run.solves,
+    rounds: run.rounds,
+    check: kept.check,
+    levels: kept.check.levels.map((l) => ({
+      v: l.v,
+      energy: l.energy,
+      ...turningPointsAt(kept.series, input.hbar2Over2mu, l.energy),
+    })),
+  };
+}
+
+type Basis = ReturnType<typeof correctionBasis>;
+type JacobianStart = RefinedCurve['start'];
+interface Run {
+  readonly start: JacobianStart;
+  readonly best: { series: VibrationalSeries; check: CurveCheck } | undefined;
+  readonly rounds: RefinedCurve['rounds'][number][];
+  readonly solves: number;
+}
+
+const better = (a: Run, b: Run): Run => (!b.best || (a.best && badness(a.best.check) <= badness(b.best.check)) ? a : b);
+
+/**
+ * Rounds of least-squares steps J s ≈ −r on the correction parameters. J starts as the identity response of the
+ * levels (−A: a change ΔG, ΔB moves the levels by as much) or as measured by finite differences, and is updated by
+ * Broyden's rank-one rule (C. G. Broyden, Math. Comp. 19, 577 (1965)) from each round's change of the residuals.
+ */
+function iterate(input: RefineInput, basis: Basis, start: JacobianStart): Run {
   const { series: target, hbar2Over2mu: C, vMax, vTop } = input;
   const count = vMax + 1;
   const maxRounds = input.maxRounds ?? 10;
-  const basis = correctionBasis(count, input.degree ?? 4);
   const p = basis.kg + basis.kb;
   const rows = 2 * count - 1;
   const params = new Float64Array(p);
-  // J ≈ ∂r/∂params, started from the identity response of the levels (−A) and updated by Broyden's rank-one rule
-  // (C. G. Broyden, Math. Comp. 19, 577 (1965)) from each round's change of the residuals.
   const jac = new Float64Array(rows * p);
   for (let i = 0; i < rows; i++) for (let k = 0; k < p; k++) jac[i * p + k] = -basis.design(i, k, target);
   const rounds: RefinedCurve['rounds'][number][] = [];
-  let best: { series: VibrationalSeries; check: CurveCheck } | undefined;
+  let solves = 0;
+  const solve = (pars: Float64Array) => {
+    solves++;
+    const solved = solveOnRkrCurve(basis.apply(target, pars), C, vTop, count, input.points);
+    const check =
+      solved && solved.levels.length === count ? compareLevels(target, solved.grid, solved.levels) : undefined;
+    return check && Number.isFinite(check.worstIntervalError) && Number.isFinite(check.worstRotationalRelativeError)
+      ? check
+      : undefined;
+  };
+  let best: Run['best'];
   let last: { r: Float64Array; step: Float64Array } | undefined;
   let stalled = 0;
+  let halvings = 0;
   for (let round = 0; round < maxRounds; round++) {
-    const series = basis.apply(target, params);
-    const solved = solveOnRkrCurve(series, C, vTop, count, input.points);
-    if (!solved || solved.levels.length < count) break;
-    const check = compareLevels(target, solved.grid, solved.levels);
-    if (!(Number.isFinite(check.worstIntervalError) && Number.isFinite(check.worstRotationalRelativeError))) break;
+    const check = solve(params);
+    if (!check) {
+      // A step too long for the curve (it turned multi-valued, or lost a level): go back half of it, at most 4 times.
+      if (!last || ++halvings > 4) break;
+      for (let k = 0; k < p; k++) {
+        const half = 0.5 * (last.step[k] as number);
+        params[k] = (params[k] as number) - half;
+        last.step[k] = half;
+      }
+      continue;
+    }
     rounds.push({
       worstIntervalError: check.worstIntervalError,
       worstRotationalRelativeError: check.worstRotationalRelativeError,
     });
+    const series = basis.apply(target, params);
     if (!best || badness(check) < 0.95 * badness(best.check)) {
       best = { series, check };
       stalled = 0;
@@ -168,20 +226,36 @@ export function refineRkrCurve(input: RefineInput): RefinedCurve | undefined {
     // Good to a hundredth of the goals: stop.
     if (badness(check) < 0.01) break;
     const r = scaledResiduals(check);
+    if (round === 0 && start === 'finite-difference')
+      measureResponse(jac, rows, p, r, (k) => basis.probe(k, vMax, target), params, solve);
     if (last) broydenUpdate(jac, rows, p, last.step, r, last.r);
     const step = gaussNewtonStep(jac, rows, p, r);
     if (!step) break;
     for (let k = 0; k < p; k++) params[k] = (params[k] as number) + (step[k] as number);
     last = { r, step };
   }
-  if (!best) return undefined;
-  const kept = best;
-  return {
-    series: kept.series,
-    rounds,
-    check: kept.check,
-    levels: kept.check.levels.map((l) => ({ v: l.v, energy: l.energy, ...turningPointsAt(kept.series, C, l.energy) })),
-  };
+  return { start, best, rounds, solves };
+}
+
+/** Column k of J by a forward difference of size probe(k) (a change of ~0.1 cm⁻¹ or 1e-5 B_e at the top level). */
+function measureResponse(
+  jac: Float64Array,
+  rows: number,
+  p: number,
+  r: Float64Array,
+  probe: (k: number) => number,
+  params: Float64Array,
+  solve: (pars: Float64Array) => CurveCheck | undefined,
+): void {
+  for (let k = 0; k < p; k++) {
+    const h = probe(k);
+    const moved = params.slice();
+    moved[k] = (moved[k] as number) + h;
+    const check = solve(moved);
+    if (!check) continue; // keep the identity column
+    const rk = scaledResiduals(check);
+    for (let i = 0; i < rows; i++) jac[i * p + k] = ((rk[i] as number) - (r[i] as number)) / h;
+  }
 }
 
 /**
@@ -215,6 +289,11 @@ function correctionBasis(n: number, degree: number) {
       }
       const x = row - (n - 1) + 0.5;
       return col >= kg ? x ** (col - kg) / rotationalConstant(target, x) / 1e-4 : 0;
+    },
+    /** A step in parameter k that moves the top level by ~0.1 cm⁻¹ (ΔG) or ~1e-5 B_e (ΔB). */
+    probe(k: number, vMax: number, target: VibrationalSeries): number {
+      const x = vMax + 0.5;
+      return k < kg ? 0.1 / x ** (k + 1) : (1e-5 * (target.b[0] as number)) / x ** (k - kg);
     },
     apply(target: VibrationalSeries, params: Float64Array): VibrationalSeries {
       const g = [...target.g];
