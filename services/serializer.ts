@@ -90,6 +90,11 @@ export function compiledSerializer(schema: z.ZodType): Serialise {
   return f;
 }
 
+/** Compile the serialisers of these schemas now (server.ts, before the port opens), so no request waits for one. */
+export function warmSerializers(schemas: readonly z.ZodType[]): void {
+  for (const s of schemas) compiledSerializer(s);
+}
+
 /**
  * fastify's serializer compiler for the /v1 scope: compiled for 2xx zod schemas, JSON.stringify otherwise. The
  * compilation is left to the first answer of the route, so that building the app (every service test does) costs
