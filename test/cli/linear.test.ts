@@ -44,4 +44,20 @@ describe('CLI with linear polyatomic molecules', () => {
     // HITRAN R(0) = 0.838022 cm⁻¹ = 25123.27 MHz (read; note §4, 6 decimals).
     expect(Math.abs((lines[0]?.position.value ?? 0) - 0.838022 * 29979.2458)).toBeLessThan(0.03);
   });
+
+  it("predicts OCS from the library with no levels: sources cited, ν1 P(1) at HITRAN's 858.561245 cm⁻¹ within 5e-5", () => {
+    const r = run(['predict', '--species', 'OCS', '--jmax', '5', '--format', 'json']);
+    expect(r.code).toBe(EXIT.pass);
+    const body = JSON.parse(r.out) as {
+      source: string;
+      sources: Record<string, { cite: string }>;
+      lines: { band: string; branch: string; j: number; wavenumber: { value: number } }[];
+    };
+    expect(body.source).toBe('library');
+    expect(Object.keys(body.sources).length).toBeGreaterThan(0);
+    // HITRAN, OCS 10⁰0–00⁰0 P(1) (test/fixtures/linear-reference, read); the library's ν1 constants reproduce the
+    // 17 HITRAN lines within 5e-5 cm⁻¹ (test/linear/reference.test.ts).
+    const p1 = body.lines.find((l) => l.band === '10⁰0–00⁰0' && l.branch === 'P' && l.j === 1);
+    expect(Math.abs((p1?.wavenumber.value as number) - 858.561245)).toBeLessThan(5e-5);
+  });
 });
