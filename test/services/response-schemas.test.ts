@@ -3,6 +3,8 @@ import type { FastifyInstance } from 'fastify';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { buildApp } from '../../services/app.js';
 import { DEFAULT_CONFIG } from '../../services/config.js';
+import { CheckResponseSchema } from '../../services/schemas/checks.js';
+import { FitResponseSchema } from '../../services/schemas/fit.js';
 import { assignedFitBody } from '../helpers/requests.js';
 import { hclScan } from '../helpers/scans.js';
 import { syntheticSpectrum } from '../helpers/spectra.js';
@@ -141,5 +143,29 @@ describe('?detail= asks for the lean answer on any body (JSON, CSV), and overrid
     const r = await plain.inject({ method: 'POST', url: '/v1/fits?detail=short', payload: body });
     expect(r.statusCode).toBe(400);
     expect(r.body).toContain('detail');
+  });
+});
+
+describe("NDJSON batch results (written with JSON.stringify, one a line) match the single routes' schemas", () => {
+  it.each([
+    ['fits', FitResponseSchema],
+    ['checks', CheckResponseSchema],
+  ] as const)('/v1/batch/%s', async (path, schema) => {
+    const bodies = [assignedFitBody('HCl', ['1-0'], 8, 0.002, 11), { species: 'HCl', lines: scan.peaks }];
+    const r = await plain.inject({
+      method: 'POST',
+      url: `/v1/batch/${path}`,
+      payload: bodies.map((b) => JSON.stringify(b)).join('\n'),
+      headers: { 'content-type': 'application/x-ndjson' },
+    });
+    const out = r.body
+      .trim()
+      .split('\n')
+      .map((l) => JSON.parse(l) as { status: number; result?: unknown });
+    expect(out.map((o) => o.status)).toEqual([200, 200]);
+    for (const o of out) {
+      const parsed = schema.safeParse(o.result);
+      expect(parsed.success ? '' : parsed.error.message).toBe('');
+    }
   });
 });
