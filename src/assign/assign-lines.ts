@@ -1012,17 +1012,22 @@ interface ResidualStat {
   readonly sigmaFactor: number;
 }
 
-/** Residuals of one band and source: in cm⁻¹ for lines without σ, in units of σ for lines with one. */
+/** Residuals of one band and source: in cm⁻¹ for lines without σ, in units of σ for lines with one (and that σ). */
 interface ResidualGroup {
   readonly r: number[];
   readonly z: number[];
+  readonly sigma: number[];
 }
 
 /**
  * From the fitted assignment, per band and source: the median residual (a source's calibration relative to the
- * fit) and the robust scatter about it, in cm⁻¹ for lines without σ and as a multiple of σ for lines with one.
- * Bands with few lines take the pooled values. The tolerances built from these judge every line by what a correct
- * model leaves, so that matching keeps the noisy lines too (it must not shrink the variance).
+ * fit), and the noise a correct model leaves, taken from the fit itself (`DetailedFit.lineSigma`): for lines
+ * without σ the scatter the fit estimated for their source or band (cm⁻¹), for lines with σ the factor the fit
+ * applies to their stated σ (its per-group rescaling and √s²) at the median σ of the band's lines. So the
+ * assignment judges lines by the σ the fit weighs them with, never narrower than the band's own robust scatter
+ * (the fit's σ may be pooled over bands or carried from an earlier round by `reuseScatter`, and a tolerance below
+ * a band's scatter drops its noisiest lines: matching must not shrink the variance); bands with few lines take
+ * the pooled scatter, and where the fit gives no finite σ the robust scatter alone.
  */
 function residualStatistics(
   ctx: AssignContext,
@@ -1037,6 +1042,17 @@ function residualStatistics(
       1,
       g && g.z.length >= MIN_FOR_OWN_SCATTER ? robustSigma(g.z) : pooled.z.length >= 3 ? robustSigma(pooled.z) : 1,
     );
+  const fitSigma = (band: number, source: number, uncertainty?: number) => {
+    const t = transitionOfBand(ctx.bands[band] ?? '');
+    const name = ctx.sources[source] ?? '';
+    const s = t
+      ? fit.lineSigma(t, {
+          ...(uncertainty !== undefined ? { uncertainty } : {}),
+          ...(name !== '' ? { source: name } : {}),
+        })
+      : Number.NaN;
+    return Number.isFinite(s) && s > 0 ? s : undefined;
+  };
   // Asked once per candidate and round: each band's answer is computed once.
   const known = new Map<number, ResidualStat>();
   const nSources = ctx.sources.length;
@@ -1046,12 +1062,30 @@ function residualStatistics(
       let st = known.get(k);
       if (!st) {
         const g = groups.get(k);
-        st = { shift: shifts.get(k) ?? 0, scatter: scatterOf(g), sigmaFactor: factorOf(g) };
+        const own = scatterOf(g);
+        const fitted = fitSigma(band, source);
+        const given = g && g.sigma.length > 0 ? g.sigma : pooled.sigma;
+        const typical = given.length > 0 ? robustMedian(given) : undefined;
+        const scaled = typical !== undefined ? fitSigma(band, source, typical) : undefined;
+        st = {
+          shift: shifts.get(k) ?? 0,
+          scatter: fitted !== undefined ? Math.max(fitted, own) : own,
+          sigmaFactor:
+            scaled !== undefined && typical !== undefined ? Math.max(scaled / typical, factorOf(g)) : factorOf(g),
+        };
         known.set(k, st);
       }
       return st;
     },
   };
+}
+
+/** A transition of a band given by its key (`species|v′-v″`), for asking the fit the σ of its lines. */
+function transitionOfBand(band: string): Transition | undefined {
+  const [species, vs] = band.split('|');
+  const [upper, lower] = (vs ?? '').split('-').map(Number);
+  if (species === undefined || !Number.isInteger(upper) || !Number.isInteger(lower)) return undefined;
+  return { species, band: { upper: upper as number, lower: lower as number }, branch: 'R', j: 0 };
 }
 
 /**
@@ -1078,18 +1112,21 @@ function residualGroups(
   const shifts = new Map<number, number>();
   for (const [k, list] of byKey) shifts.set(k, list.length >= 3 ? robustMedian(list) : 0);
   const groups = new Map<number, ResidualGroup>();
-  const pooled: ResidualGroup = { r: [], z: [] };
+  const pooled: ResidualGroup = { r: [], z: [], sigma: [] };
   for (const m of members) {
     const r = m.residual - (shifts.get(m.key) ?? 0);
     const sigma = ctx.peaks[m.index]?.uncertainty;
     let g = groups.get(m.key);
     if (!g) {
-      g = { r: [], z: [] };
+      g = { r: [], z: [], sigma: [] };
       groups.set(m.key, g);
     }
     for (const into of [g, pooled]) {
       if (sigma === undefined) into.r.push(r);
-      else into.z.push(r / sigma);
+      else {
+        into.z.push(r / sigma);
+        into.sigma.push(sigma);
+      }
     }
   }
   return { shifts, groups, pooled };
