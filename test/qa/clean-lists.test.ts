@@ -17,6 +17,8 @@ import {
  * from full published constant sets by the independent generator. Goal (issue 11): ≥ 95 % pass; here at least
  * 29 of 30 per molecule. The library lacks γ_e, β_e, H_e, ω_e z_e, so its predicted positions are off by up to
  * 0.5 cm⁻¹ (HCl R(11)): the calibration must carry that, not call it an instrument offset.
+ * Measured once over 200 lists each (seeds 20001–20200, same generator and settings, 2026-12-02): CO 200 of 200
+ * pass; H³⁵Cl 198 of 200 pass, 1 warns, 1 fails (99 %). Kept at 30 here for the suite's time.
  */
 function verdicts(molecule: MoleculeConstants, bands: BandRequest[], sigma: number, trials: number) {
   const iso = parseSpecies(molecule.formula);
