@@ -34,6 +34,7 @@ import { peakRoutes } from './rest/peaks.js';
 import { potentialRoutes } from './rest/potentials.js';
 import { reportRoutes } from './rest/reports.js';
 import { speciesRoutes } from './rest/species.js';
+import { quickPeaksRequest } from './schemas/peaks.js';
 import { compiledSerializerCompiler } from './serializer.js';
 
 export { MAX_JSON_DEPTH } from './plugins/body-parsers.js';
@@ -168,9 +169,15 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
     await work.register(
       async (v1) => {
         // A large body left unparsed (RawBody) is validated by the worker that parses it.
+        // A spectrum's two long arrays are checked by a loop, not element by element by zod (schemas/peaks.ts).
         v1.setValidatorCompiler((route) => {
           const validate = validatorCompiler(route as Parameters<typeof validatorCompiler>[0]);
-          return (data: unknown) => (data instanceof RawBody ? { value: data } : validate(data));
+          const peaksBody = route.httpPart === 'body' && route.url.endsWith('/peaks');
+          return (data: unknown) => {
+            if (data instanceof RawBody) return { value: data };
+            const quick = peaksBody ? quickPeaksRequest(data) : undefined;
+            return quick ? { value: quick } : validate(data);
+          };
         });
         v1.setSerializerCompiler(config.validateResponses ? serializerCompiler : compiledSerializerCompiler);
         await v1.register(fitRoutes(config));

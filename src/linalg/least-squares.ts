@@ -391,14 +391,14 @@ function compressRows(
   weights: Float64Array | undefined,
 ): MergedRows | undefined {
   if (n < 64 || n < 4 * p) return undefined;
-  const groups = groupsByHash(rowHashes(design, n, p), n / 2);
+  const groups = groupsByKey(design, n, p, n / 2);
   if (!groups) return undefined;
   const { group, firstRow } = groups;
   const m = firstRow.length;
   const merged = new Float64Array(m * p);
   for (let j = 0; j < p; j++)
     for (let g = 0; g < m; g++) merged[j * m + g] = design[j * n + (firstRow[g] as number)] as number;
-  // Equal hashes are checked for equal rows, column by column; a collision (never seen) means no merging.
+  // Equal keys are checked for equal rows, column by column; a collision (never seen) means no merging.
   for (let j = 0; j < p; j++) {
     const off = j * n;
     const offM = j * m;
@@ -417,30 +417,49 @@ function compressRows(
 }
 
 /**
- * Rows grouped by equal hash (open addressing on the hash's low bits): each row's group and each group's first row;
- * undefined once there are more than `most` groups.
+ * Rows grouped by an exact key: each row's projection on fixed weights, summed column by column (identical rows
+ * give bit-identical keys; different rows almost never do, and the caller checks). Open addressing on the key's
+ * bits in a table that doubles as groups appear. Returns each row's group and each group's first row; undefined
+ * once there are more than `most` groups.
  */
-function groupsByHash(hashes: Int32Array, most: number): { group: Int32Array; firstRow: Int32Array } | undefined {
-  const n = hashes.length;
-  let size = 1;
-  while (size < 2 * n) size <<= 1;
-  const table = new Int32Array(size).fill(-1);
+function groupsByKey(design: Float64Array, n: number, p: number, most: number) {
+  const key = new Float64Array(n);
+  for (let j = 0; j < p; j++) {
+    const off = j * n;
+    const w = 1 + j * 0.6180339887498949;
+    for (let i = 0; i < n; i++) key[i] = (key[i] as number) + (design[off + i] as number) * w;
+  }
+  const bits = new Int32Array(key.buffer);
+  let size = 64;
+  let table = new Int32Array(size).fill(-1);
   const group = new Int32Array(n);
   const firstRow = new Int32Array(Math.floor(most) + 1);
+  const keys = new Float64Array(Math.floor(most) + 1);
   let m = 0;
+  const slotOf = (i: number) => Math.imul((bits[2 * i] as number) ^ (bits[2 * i + 1] as number), 0x9e3779b1) >>> 0;
   for (let i = 0; i < n; i++) {
-    const h = hashes[i] as number;
-    let slot = h & (size - 1);
+    const k = key[i] as number;
+    let slot = slotOf(i) & (size - 1);
     for (;;) {
       const g = table[slot] as number;
       if (g < 0) {
         if (m >= most) return undefined;
         table[slot] = m;
         firstRow[m] = i;
+        keys[m] = k;
         group[i] = m++;
+        if (2 * m > size) {
+          size *= 2;
+          table = new Int32Array(size).fill(-1);
+          for (let g2 = 0; g2 < m; g2++) {
+            let s2 = slotOf(firstRow[g2] as number) & (size - 1);
+            while ((table[s2] as number) >= 0) s2 = (s2 + 1) & (size - 1);
+            table[s2] = g2;
+          }
+        }
         break;
       }
-      if (hashes[firstRow[g] as number] === h) {
+      if (keys[g] === k) {
         group[i] = g;
         break;
       }
@@ -448,24 +467,6 @@ function groupsByHash(hashes: Int32Array, most: number): { group: Int32Array; fi
     }
   }
   return { group, firstRow: firstRow.subarray(0, m) };
-}
-
-/**
- * An FNV-1a hash of every row's bit patterns, built column by column (each column read once, in order). Rows equal
- * but for −0 against 0 hash apart and stay unmerged, which is allowed: merging is exact, not required.
- */
-function rowHashes(design: Float64Array, n: number, p: number): Int32Array {
-  const bits = new Int32Array(design.buffer, design.byteOffset, 2 * n * p);
-  const h = new Int32Array(n).fill(0x811c9dc5 | 0);
-  for (let j = 0; j < p; j++) {
-    const off = 2 * j * n;
-    for (let i = 0; i < n; i++) {
-      let v = Math.imul((h[i] as number) ^ (bits[off + 2 * i] as number), 0x01000193);
-      v = Math.imul(v ^ (bits[off + 2 * i + 1] as number), 0x01000193);
-      h[i] = v;
-    }
-  }
-  return h;
 }
 
 /** yᵢ − (Ax)ᵢ for every row, (Ax)ᵢ taken from its merged row (identical design rows give identical fits). */

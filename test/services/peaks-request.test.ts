@@ -1,6 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { jsonDepth } from '../../services/raw-body.js';
 import { PeaksRequestSchema, parsePeaksRequest } from '../../services/schemas/peaks.js';
+import { findPeaks } from '../../src/spectra/peaks.js';
+import { useApp } from '../helpers/app.js';
 
 type Body = ReturnType<typeof body>;
 
@@ -92,5 +94,31 @@ describe('JSON depth of a large body', () => {
     expect(jsonDepth([1, [2, [3, [4]]]])).toBe(4);
     expect(jsonDepth({ lines: [{ position: 1 }, { position: 2, assignment: { j: 1 } }] })).toBe(4);
     expect(() => jsonDepth({ lines: [1, JSON.parse('{"__proto__": {"a": 1}}')] })).toThrow(/__proto__/);
+  });
+});
+
+describe('POST /v1/peaks below the offload size (the route validator takes the quick way too)', () => {
+  const app = useApp();
+  const x = Array.from({ length: 400 }, (_, i) => 2000 + 0.05 * i);
+  const y = x.map((v) => 0.002 * Math.sin(37 * v) + 0.4 / (1 + ((v - 2010) / 0.1) ** 2));
+
+  it('a valid spectrum answers the peaks findPeaks gives for it', async () => {
+    const r = await app().inject({ method: 'POST', url: '/v1/peaks', payload: { spectrum: { x, y } } });
+    expect(r.statusCode, r.body).toBe(200);
+    expect(r.json().peaks).toEqual(findPeaks(x, y).peaks);
+  });
+
+  it.each([
+    ['a string in y', { x, y: y.map((v, i) => (i === 7 ? 'a' : v)) }, 'spectrum/y/7'],
+    ['x longer than y', { x: [...x, 2100], y }, 'spectrum/y'],
+    ['a value beyond ±1e12', { x: x.map((v, i) => (i === 3 ? 1e13 : v)), y }, 'spectrum/x/3'],
+  ])('%s: 400 problem+json naming the element, as the schema words it', async (_, spectrum, path) => {
+    const r = await app().inject({ method: 'POST', url: '/v1/peaks', payload: { spectrum } });
+    expect(r.statusCode).toBe(400);
+    expect(r.headers['content-type']).toMatch(/application\/problem\+json/);
+    const issue = PeaksRequestSchema.safeParse({ spectrum }).error?.issues[0];
+    expect(issue).toBeDefined();
+    expect(r.body).toContain(path);
+    expect(r.body).toContain(JSON.stringify(issue?.message).slice(1, -1));
   });
 });
