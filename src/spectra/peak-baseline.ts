@@ -104,16 +104,20 @@ export function aboveBaseline(s: AbsorbanceSpectrum): Float64Array {
  */
 export function firstNoiseEstimate(r: Float64Array): number {
   const m = r.length - 1;
-  const part = new Float64Array(32);
-  const scratch = new Float64Array(32);
+  const full = new Float64Array(32);
+  const work = new Float64Array(32);
   const segNoise: number[] = [];
   for (let s0 = 0; s0 + 8 <= m; s0 += 32) {
     const len = Math.min(m, s0 + 32) - s0;
-    const diffs = part.subarray(0, len);
+    // Full segments reuse two arrays of 32; the short last one gets its own (no views made per segment).
+    const diffs = len === 32 ? full : new Float64Array(len);
+    const scratch = len === 32 ? work : new Float64Array(len);
     for (let i = 0; i < len; i++) diffs[i] = (r[s0 + i + 1] as number) - (r[s0 + i] as number);
-    const med = lowerQuantile(diffs, 0.5, scratch);
-    for (let i = 0; i < len; i++) diffs[i] = Math.abs((diffs[i] as number) - med);
-    segNoise.push((1.4826 * lowerQuantile(diffs, 0.5, scratch)) / Math.SQRT2);
+    const half = Math.floor(0.5 * (len - 1));
+    scratch.set(diffs);
+    const med = selectInPlace(scratch, half);
+    for (let i = 0; i < len; i++) scratch[i] = Math.abs((diffs[i] as number) - med);
+    segNoise.push((1.4826 * selectInPlace(scratch, half)) / Math.SQRT2);
   }
   if (segNoise.length === 0) return 1e-12;
   const all = Float64Array.from(segNoise);

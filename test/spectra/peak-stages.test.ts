@@ -80,4 +80,30 @@ describe('peak finder stages', () => {
     expect(Math.abs((prominent.index[0] as number) - 1000)).toBeLessThanOrEqual(2);
     expect(Math.abs((prominent.index[1] as number) - 1100)).toBeLessThanOrEqual(3);
   });
+
+  it('the first noise estimate equals the same rule computed by sorting (segments of 32 differences, a short last one)', () => {
+    const z = seededNormal(5);
+    for (const n of [9, 40, 41, 1000, 4097]) {
+      const r = Float64Array.from({ length: n }, (_, i) => 0.01 * z() + 1e-4 * i);
+      // Independent of the finder's selection: sort each segment, take ⌊(len−1)/2⌋ and ⌊0.25(k−1)⌋ order statistics.
+      const lower = (v: number[], q: number) => [...v].sort((a, b) => a - b)[Math.floor(q * (v.length - 1))] as number;
+      const seg: number[] = [];
+      for (let s0 = 0; s0 + 8 <= n - 1; s0 += 32) {
+        const d = Array.from(
+          { length: Math.min(n - 1, s0 + 32) - s0 },
+          (_, i) => (r[s0 + i + 1] as number) - (r[s0 + i] as number),
+        );
+        const med = lower(d, 0.5);
+        seg.push(
+          (1.4826 *
+            lower(
+              d.map((v) => Math.abs(v - med)),
+              0.5,
+            )) /
+            Math.SQRT2,
+        );
+      }
+      expect(firstNoiseEstimate(r)).toBe(Math.max(lower(seg, 0.25), 1e-12));
+    }
+  });
 });
