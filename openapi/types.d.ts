@@ -973,8 +973,10 @@ export interface components {
         uncertainty: number;
         value: number;
       };
-      /** @description D″ / (4B_e³/ω_e²) */
+      /** @description D_e / (4B_e³/ω_e²), D_e from D″ through Dunham’s β_e; 1 for a right numbering of a ¹Σ state (0: constants no bound ¹Σ state has) */
       kratzerRatio?: number;
+      /** @description relative standard uncertainty of kratzerRatio */
+      kratzerUncertainty?: number;
       label: string;
       /** @description a line lies where this numbering puts the band origin */
       lineAtOrigin: boolean;

@@ -339,7 +339,13 @@ const NumberingEvidenceSchema = z
       .describe('Δ₂F″ extrapolated to J = −½, cm-1 (zero for a right numbering)'),
     lineAtOrigin: z.boolean().describe('a line lies where this numbering puts the band origin'),
     boltzmannScatter: z.number().optional().describe('rms of ln(I/(S·ν)) about one line in E″, both branches'),
-    kratzerRatio: z.number().optional().describe('D″ / (4B_e³/ω_e²)'),
+    kratzerRatio: z
+      .number()
+      .optional()
+      .describe(
+        'D_e / (4B_e³/ω_e²), D_e from D″ through Dunham’s β_e; 1 for a right numbering of a ¹Σ state (0: constants no bound ¹Σ state has)',
+      ),
+    kratzerUncertainty: z.number().optional().describe('relative standard uncertainty of kratzerRatio'),
     score: z.number().describe('evidence against, χ²-like units; lower is better'),
     parts: z.object({
       positions: z.number(),

@@ -134,7 +134,9 @@ export function describeEvidence(e: NumberingEvidence): string {
       : undefined,
     e.lineAtOrigin ? 'a line lies at its origin' : 'no line at its origin',
     e.boltzmannScatter !== undefined ? `Boltzmann-plot rms ${e.boltzmannScatter.toFixed(3)}` : undefined,
-    e.kratzerRatio !== undefined ? `D″/Kratzer ${e.kratzerRatio.toFixed(3)}` : undefined,
+    e.kratzerRatio !== undefined
+      ? `D_e/Kratzer ${e.kratzerRatio.toFixed(3)}${e.kratzerUncertainty !== undefined ? ` ± ${e.kratzerUncertainty.toFixed(3)}` : ''}`
+      : undefined,
     `score ${e.score.toFixed(1)}`,
   ];
   return parts.filter((x) => x !== undefined).join(', ');
@@ -407,7 +409,7 @@ function structureWarnings(
     warnings.push({
       code: 'NUMBERING_UNCERTAIN',
       message:
-        "without intensities, and with no line at the runner-up numbering's band origin to rule it out, the choice rests on the combination differences and the Kratzer relation: send intensities, or anchor a few lines with given assignments",
+        "without intensities, and with no line at the runner-up numbering's band origin to rule it out, the choice rests on the combination differences and Kratzer's relation D_e = 4B_e³/ω_e², which holds for ¹Σ ground states (a state with spin or orbital angular momentum, or a perturbed one, may break it): send intensities, or anchor a few lines with given assignments",
     });
   }
   return warnings;

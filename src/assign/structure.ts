@@ -22,9 +22,11 @@ import { lowerBound, matchLines, type Prediction } from './match.js';
  *    - the missing line at the origin: a line lying where the numbering puts ν₀ costs 25 (a 5σ argument);
  *    - intensities, when given: ln(I/(S·ν)) against E″ must be one straight line for both branches (Boltzmann
  *      plot with Hönl–London factors S = J″+1 for R, J″ for P): n·ln(RSS/RSS_best);
- *    - Kratzer's relation D_e = 4B_e³/ω_e² with B_e and ω_e from the numbering's own constants (ω_e x_e from
- *      Pekeris's relation α_e = 6B_e²/ω_e·(√(ω_e x_e/B_e) − B_e/ω_e)) as a prior good to 5 % (1σ; common practice
- *      for ¹Σ ground states, where it holds to a few per cent).
+ *    - Kratzer's relation D_e = 4B_e³/ω_e² (exact in Dunham's expansion to order (B_e/ω_e)²) with B_e and ω_e from
+ *      the numbering's own constants (ω_e x_e from Pekeris's relation α_e = 6√(ω_e x_e B_e³)/ω_e − 6B_e²/ω_e), as a
+ *      likelihood with its own uncertainty (`kratzerTest`): a whole shift by one line moves it by about 3α_e/B_e
+ *      (2 % for CS, 8 % for LiH); constants no bound ¹Σ state has (D″ ≤ 0, B′ ≥ B″, D″ not determined where
+ *      another numbering's is) cost as much as a line at the origin.
  *    A positions-only fit cannot tell a shift of the whole numbering (a Fortrat polynomial renumbered is another
  *    Fortrat polynomial with other B′, B″): only the origin line, the intensities and the priors can.
  * 4. The numbering with the least total is chosen when the runner-up's total is at least MIN_MARGIN more;
@@ -47,8 +49,10 @@ export interface NumberingEvidence {
   readonly lineAtOrigin: boolean;
   /** rms of the Boltzmann plot (natural log units), when intensities were sent. */
   readonly boltzmannScatter?: number;
-  /** D″ / (4B_e³/ω_e²). */
+  /** D_e / (4B_e³/ω_e²) (D_e from D″ through Dunham's β_e; one for a right numbering). */
   readonly kratzerRatio?: number;
+  /** Relative standard uncertainty of that ratio (D″'s own, ω_e's through Pekeris, β_e, and a floor). */
+  readonly kratzerUncertainty?: number;
   /** Total evidence against, χ²-like units; the chosen numbering has the least. */
   readonly score: number;
   readonly parts: {
@@ -86,8 +90,14 @@ export interface StructureAssignment {
 export const MIN_MARGIN = 9;
 /** χ² tail probability below which the best numbering's fit is not believed (lines with σ only). */
 const IMPROBABLE_FIT = 1e-6;
-/** Relative 1σ of Kratzer's relation taken as a prior. */
-const KRATZER_SIGMA = 0.05;
+/**
+ * Floor of the relative 1σ of the Kratzer test: Dunham's Y02 = −4Y01³/Y10² is exact to order (B_e/ω_e)², and the
+ * published ¹Σ ground states checked hold it within 0.1 % (CO, HCl, HF, O2, from memory; CS 0.3 % from its
+ * microwave D_0).
+ */
+const KRATZER_SIGMA = 0.003;
+/** Relative doubt of ω_e x_e from Pekeris's relation (the largest miss seen, HF's 18 %, rounded up). */
+const PEKERIS_DOUBT = 0.2;
 /** Cost of a line lying at a numbering's band origin. */
 const ORIGIN_LINE_COST = 25;
 
@@ -255,7 +265,7 @@ export function assignByStructure(
         intercept: differenceIntercept(map, peaks),
         unitSigma: peaks.some((p) => p.uncertainty === undefined) ? (r.scatter?.[0]?.sigma ?? rms) : 1,
         boltzmann: boltzmannResiduals(map, peaks, r),
-        kratzer: kratzerRatio(r, band),
+        kratzer: kratzerTest(r, band),
       };
     } catch (e) {
       if (e instanceof ScienceError) return undefined;
@@ -278,7 +288,7 @@ interface Trial {
   /** The scatter a line without σ has (σ = 1 in the Δ₂F″ weights), or 1 when every line carries one. */
   unitSigma: number;
   boltzmann: { rss: number; n: number } | undefined;
-  kratzer: number | undefined;
+  kratzer: KratzerTest | undefined;
 }
 
 /** Evidence totals of every trial, best first. */
@@ -287,6 +297,11 @@ function score(trials: readonly Trial[]): (Trial & { evidence: NumberingEvidence
   const rssMin = Math.min(...trials.flatMap((t) => (t.boltzmann ? [t.boltzmann.rss / t.boltzmann.n] : [])));
   // The lines' scale, from the numbering that fits them best (a misaligned one inflates its own).
   const unit = Math.min(...trials.map((t) => t.unitSigma)) * Math.sqrt(Math.max(1, minRed));
+  const tested = trials.flatMap((t) => (t.kratzer !== undefined && t.kratzer.ratio > 0 ? [t.kratzer.uncertainty] : []));
+  const anyKratzer = tested.length > 0;
+  // The Kratzer test as a likelihood, −2 ln of a normal density: z² plus 2 ln σ against the sharpest numbering's σ
+  // (a numbering under which D″ is loose predicts nothing and gains nothing from passing).
+  const sharpestKratzer = anyKratzer ? Math.min(...tested) : 1;
   const out = trials.map((t) => {
     const positions = Math.max(0, t.dof * (t.reducedChiSquare / minRed - 1));
     const intercept = t.intercept && {
@@ -299,7 +314,16 @@ function score(trials: readonly Trial[]): (Trial & { evidence: NumberingEvidence
       t.boltzmann && Number.isFinite(rssMin) && rssMin > 0
         ? Math.max(0, t.boltzmann.n * Math.log(t.boltzmann.rss / t.boltzmann.n / rssMin))
         : 0;
-    const kratzer = t.kratzer !== undefined && t.kratzer > 0 ? (Math.log(t.kratzer) / KRATZER_SIGMA) ** 2 : 0;
+    // A numbering under which the lines do not even determine D″, where another's do, fits them as noise.
+    const kratzer =
+      t.kratzer === undefined
+        ? anyKratzer
+          ? IMPLAUSIBLE_COST
+          : 0
+        : t.kratzer.ratio > 0
+          ? Math.min(1e6, (Math.log(t.kratzer.ratio) / t.kratzer.uncertainty) ** 2) +
+            2 * Math.log(t.kratzer.uncertainty / sharpestKratzer)
+          : IMPLAUSIBLE_COST;
     const total = positions + differences + origin + intensities + kratzer;
     const lower = t.result.levels.find((l) => l.v === Math.min(...t.result.levels.map((x) => x.v)));
     const evidence: NumberingEvidence = {
@@ -313,7 +337,7 @@ function score(trials: readonly Trial[]): (Trial & { evidence: NumberingEvidence
       ...(intercept ? { differenceIntercept: intercept } : {}),
       lineAtOrigin: t.lineAtOrigin,
       ...(t.boltzmann ? { boltzmannScatter: Math.sqrt(t.boltzmann.rss / t.boltzmann.n) } : {}),
-      ...(t.kratzer !== undefined ? { kratzerRatio: t.kratzer } : {}),
+      ...(t.kratzer !== undefined ? { kratzerRatio: t.kratzer.ratio, kratzerUncertainty: t.kratzer.uncertainty } : {}),
       score: total,
       parts: { positions, differences, origin, intensities, kratzer },
     };
@@ -401,7 +425,7 @@ function differenceIntercept(
     ws.push(1 / s2);
   }
   const n = xs.length;
-  const cols = n >= 12 ? 4 : n >= 7 ? 3 : 2;
+  const cols = n >= 30 ? 6 : n >= 20 ? 5 : n >= 12 ? 4 : n >= 7 ? 3 : 2;
   if (n < cols + 2) return undefined;
   const design = new Float64Array(n * cols);
   xs.forEach((x, k) => {
@@ -456,28 +480,60 @@ function boltzmannResiduals(
   return { rss: Math.max(f.chiSquare, 1e-12), n };
 }
 
+/** The Kratzer test of one numbering; a ratio of 0 when its constants are not those of a bound ¹Σ state. */
+export interface KratzerTest {
+  readonly ratio: number;
+  readonly uncertainty: number;
+}
+const IMPLAUSIBLE: KratzerTest = { ratio: 0, uncertainty: 1 };
+/** Cost of a numbering whose constants no ¹Σ ground state has (D″ ≤ 0, B′ ≥ B″), like a line at its origin. */
+const IMPLAUSIBLE_COST = 25;
+
 /**
- * D″ over Kratzer's 4B_e³/ω_e², with B_e = B″ + α_e(v″+½), α_e = (B″ − B′)/(v′ − v″), and ω_e from the band origin
- * ν₀ = ω_e Δv − ω_e x_e Δv(v′+v″+1) with ω_e x_e from Pekeris's relation (iterated). Undefined without D″ or for
- * pure rotation.
+ * Kratzer's relation as a test of a numbering: D_e / (4B_e³/ω_e²), which Dunham's expansion makes exact up to terms
+ * of relative order (B_e/ω_e)² (Y02 = −4Y01³/Y10²), with its relative uncertainty.
+ * - B_e = B″ + α_e(v″+½), α_e = (B″ − B′)/(v′ − v″): a numbering moved by s lines moves both B by about −α_e·s
+ *   and leaves D almost as it was, so the ratio moves by about 3α_e/B_e per line (2 % for CS, 8 % for LiH).
+ * - ω_e from the band origin ν₀ = ω_e Δv − ω_e x_e Δv(v′+v″+1), ω_e x_e from Pekeris's relation
+ *   α_e = 6√(ω_e x_e B_e³)/ω_e − 6B_e²/ω_e, i.e. ω_e x_e = (α_eω_e + 6B_e²)²/(36B_e³) (iterated; against Huber &
+ *   Herzberg's constants, from memory, it gives N2 +2 %, NaCl +4 %, CO +6 %, CS +6 %, SiO +8 %, O2 +9 %, HCl +12 %,
+ *   LiH +15 %, HF +18 %: its doubt, PEKERIS_DOUBT of ω_e x_e, enters through ω_e).
+ * - D_e from the fitted D″ = D_e + β_e(v″+½), β_e from Dunham's relation β_e = D_e(8ω_e x_e/ω_e − 5α_e/B_e −
+ *   α_e²ω_e/(24B_e³)) (common practice; half the correction is taken as its doubt).
+ * The relative uncertainty adds D″'s own (from the fit), those of β_e and ω_e, and a floor of KRATZER_SIGMA in
+ * quadrature.
+ * Undefined without D″ or for pure rotation.
  */
-export function kratzerRatio(r: FitResult, band: Band): number | undefined {
+export function kratzerTest(r: FitResult, band: Band): KratzerTest | undefined {
   const dv = band.upper - band.lower;
   if (dv <= 0) return undefined;
   const lo = r.levels.find((l) => l.v === band.lower);
   const up = r.levels.find((l) => l.v === band.upper);
   const origin = r.bands[0]?.origin?.value;
   const D = lo?.D?.value;
-  if (!lo || !up || origin === undefined || D === undefined || !(D > 0)) return undefined;
+  if (!lo || !up || origin === undefined || D === undefined) return undefined;
   const alpha = (lo.B.value - up.B.value) / dv;
   const Be = lo.B.value + alpha * (band.lower + 0.5);
-  if (!(alpha > 0) || !(Be > 0)) return undefined;
+  // A ¹Σ ground state has D > 0 and B falling with v (α_e > 0): a numbering that needs otherwise fails the test.
+  if (!(D > 0) || !(alpha > 0) || !(Be > 0) || !(origin > 0)) return IMPLAUSIBLE;
+  const levels = band.upper + band.lower + 1;
   let we = origin / dv;
+  let wexe = 0;
   for (let k = 0; k < 20; k++) {
-    const wexe = Be * ((alpha * we) / (6 * Be * Be) + Be / we) ** 2;
-    we = (origin + wexe * dv * (band.upper + band.lower + 1)) / dv;
+    wexe = (alpha * we + 6 * Be * Be) ** 2 / (36 * Be ** 3);
+    we = (origin + wexe * dv * levels) / dv;
   }
-  return D / ((4 * Be ** 3) / we ** 2);
+  const betaOverD = (8 * wexe) / we - (5 * alpha) / Be - (alpha * alpha * we) / (24 * Be ** 3);
+  // D_e from D″ through Dunham's β_e, half the correction taken as its doubt (the fitted D′ − D″ would do it too, but
+  // it takes up whatever higher terms the model lacks: LiH's true numbering came out 7σ off).
+  const correction = betaOverD * (band.lower + 0.5);
+  const De = D / (1 + correction);
+  const ratio = De / ((4 * Be ** 3) / we ** 2);
+  const fromD = (lo.D?.uncertainty ?? 0) / D;
+  const fromBeta = 0.5 * Math.abs(correction);
+  const fromOmega = (2 * PEKERIS_DOUBT * wexe * levels) / we;
+  const uncertainty = Math.sqrt(KRATZER_SIGMA ** 2 + fromD ** 2 + fromBeta ** 2 + fromOmega ** 2);
+  return Number.isFinite(ratio) && ratio > 0 && Number.isFinite(uncertainty) ? { ratio, uncertainty } : IMPLAUSIBLE;
 }
 
 /** Grow R (m = 1, 2, …) and P (m = −1, −2, …) from a candidate P(1), R(0) pair along a fitted Fortrat polynomial. */

@@ -16,22 +16,23 @@ const CS: MoleculeConstants = {
     B_e: { value: 0.8200436, source: 'Huber & Herzberg, from memory' },
     alpha_e: { value: 0.0059182, source: 'Huber & Herzberg, from memory' },
     gamma_e: { value: -1.3e-6, source: 'magnitude from memory' },
-    D_e: { value: 1.4e-6, source: 'Huber & Herzberg, from memory' },
+    // From CS's microwave D_0 (test/assign/structure.test.ts); the 1.4e-6 recalled before broke Kratzer's relation.
+    D_e: { value: 1.331e-6, source: 'from the recalled CS rotational rest frequencies' },
     beta_e: { value: -2e-9, source: 'magnitude from memory' },
     H_e: { value: 0, source: 'not used' },
   },
 };
 const app = useApp();
 
-function lines(pMin: number, seed: number) {
+function lines(pMin: number, seed: number, jMax = 40) {
   return independentLines({
     molecule: CS,
     seed,
     sigma: 0.001,
     unassigned: true,
     bands: [
-      { upper: 1, lower: 0, jMin: pMin, jMax: 40, branches: ['P'] },
-      { upper: 1, lower: 0, jMax: 40, branches: ['R'] },
+      { upper: 1, lower: 0, jMin: pMin, jMax, branches: ['P'] },
+      { upper: 1, lower: 0, jMax, branches: ['R'] },
     ],
   }).lines.map((l) => ({ position: l.position, uncertainty: l.uncertainty }));
 }
@@ -54,11 +55,27 @@ describe('POST /v1/fits numbering a species the library lacks', () => {
     expect(Math.abs(b0 - (0.8200436 - 0.0059182 / 2))).toBeLessThan(1e-4);
   });
 
-  it('P(1)–P(4) missing and no intensities: 422 NUMBERING_AMBIGUOUS as problem+json with the numberings weighed', async () => {
+  it('P(1)–P(4) missing, no intensities, J ≤ 40: numbered by the Kratzer test, right, with its warning', async () => {
     const r = await app().inject({
       method: 'POST',
       url: '/v1/fits',
       payload: { species: '12C32S', lines: lines(5, 6) },
+    });
+    expect(r.statusCode).toBe(200);
+    const j = r.json();
+    const b0 = j.levels.find((l: { v: number }) => l.v === 0).B.value;
+    // A numbering one line off moves B_0 by α_e ≈ 0.006 cm⁻¹.
+    expect(Math.abs(b0 - (0.8200436 - 0.0059182 / 2))).toBeLessThan(1e-4);
+    expect(j.assignment.numbering.chosen.kratzerRatio).toBeGreaterThan(0.98);
+    expect(j.assignment.numbering.chosen.kratzerRatio).toBeLessThan(1.02);
+    expect(j.warnings.map((w: { code: string }) => w.code)).toContain('NUMBERING_UNCERTAIN');
+  });
+
+  it('P(1)–P(4) missing, no intensities, J ≤ 15 (D″ loose): 422 NUMBERING_AMBIGUOUS as problem+json with the numberings weighed', async () => {
+    const r = await app().inject({
+      method: 'POST',
+      url: '/v1/fits',
+      payload: { species: '12C32S', lines: lines(5, 6, 15) },
     });
     expect(r.statusCode).toBe(422);
     expect(r.headers['content-type']).toMatch(/problem\+json/);
