@@ -108,6 +108,12 @@ const MAX_MODEL_TO_NOISE = 2;
 const SCATTER_REUSE_GROWTH = 0.1;
 /** Lines of a band below which its scatter is pooled with all bands. */
 const MIN_FOR_OWN_SCATTER = 8;
+/**
+ * A line this close to its fitted prediction, as a fraction of its band's line spacing, is no chance coincidence
+ * whatever the scatter says (a random line lands that near once in about 10⁴ predictions): noise-free database
+ * positions, whose bands bend by 1e-5 cm⁻¹ away from any smooth model where their sources change, keep their labels.
+ */
+const COINCIDENCE_FRACTION = 1e-4;
 
 /**
  * The assignment as stages, top-down: prepare (window, candidates, seeds, free lines per source) → vote the offsets →
@@ -571,9 +577,10 @@ function fittedPrediction(
   const model = Math.hypot(K_FITTED * Math.sqrt(fitted.variance), second) + 1e-6;
   // A tolerance wider than a quarter of the line spacing tells nothing.
   if (model > 0.25 * (ctx.spacing.get(bk) ?? Number.POSITIVE_INFINITY)) return undefined;
+  const spacing = ctx.spacing.get(bk) ?? 0;
   return {
     position: fitted.value + st.shift,
-    tolerance: Math.hypot(model, K_FITTED * st.scatter),
+    tolerance: Math.max(Math.hypot(model, K_FITTED * st.scatter), COINCIDENCE_FRACTION * spacing),
     withSigma: { model, perSigma: K_FITTED * st.sigmaFactor },
   };
 }
@@ -712,7 +719,8 @@ function explained(
     sigma !== undefined
       ? Math.hypot(model, K_FITTED * st.sigmaFactor * sigma)
       : Math.hypot(model, K_FITTED * st.scatter);
-  return Math.abs(l.residual - st.shift) <= tol;
+  const coincidence = COINCIDENCE_FRACTION * (ctx.spacing.get(bandKey(c)) ?? 0);
+  return Math.abs(l.residual - st.shift) <= Math.max(tol, coincidence);
 }
 
 /** Why no line could be assigned, in the terms a caller can act on. */
