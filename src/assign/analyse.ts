@@ -330,23 +330,35 @@ function assignFromStructure(
         assignment: { species: species.formula, band, branch: t.branch, j: t.j, source: 'auto' },
       };
   });
+  const hot = numberHotBands(lines, free, species, band);
   masses.set(species.formula, reducedMass(species));
   const fit = fitLineListDetailed(lines, masses, options.fit ?? {});
   const unexplained = lines.flatMap((l, i) => (l.assignment ? [] : [i]));
-  const warnings = structureWarnings(
-    species,
-    band,
-    s,
-    unexplained,
-    free.every((x) => x.p.intensity !== undefined),
-  );
+  const warnings = [
+    ...structureWarnings(
+      species,
+      band,
+      s,
+      unexplained,
+      free.every((x) => x.p.intensity !== undefined),
+    ),
+    ...hot.warnings,
+  ];
   const suggested = withLabelSuggestions(fit, lines);
   return {
     result: { ...suggested, warnings: [...warnings, ...suggested.warnings] },
     assignment: {
       method: 'structure',
       species: [species.formula],
-      bands: [{ species: species.formula, band: `${band.upper}-${band.lower}`, predicted: 0, matched: extended.size }],
+      bands: [
+        { species: species.formula, band: `${band.upper}-${band.lower}`, predicted: 0, matched: extended.size },
+        ...hot.bands.map((b) => ({
+          species: species.formula,
+          band: `${b.band.upper}-${b.band.lower}`,
+          predicted: 0,
+          matched: b.matched,
+        })),
+      ],
       unexplained,
       numbering: {
         chosen: s.evidence[0] as NumberingEvidence,
@@ -356,6 +368,108 @@ function assignFromStructure(
     },
     notes: new Map(),
   };
+}
+
+/** Fewest free lines worth searching for a further band (two progressions of six). */
+const MIN_HOT_LINES = 12;
+
+/**
+ * Hot bands from structure: with the first band numbered, the lines left are searched for the band one quantum up
+ * (2-1 after 1-0, then 3-2), each numbering judged in one fit with the bands numbered so far. Its lower level is the
+ * upper level of the band below, so its combination differences Δ₂F″ must be those Δ₂F′ of that band: a numbering
+ * off by one line cannot fit both (Δ₂F moves by about 4B). Kept only when decisive and probable; `lines` is
+ * completed in place.
+ */
+function numberHotBands(
+  lines: PeakInput[],
+  free: readonly { p: PeakInput; index: number }[],
+  species: Isotopologue,
+  first: Band,
+): { bands: { band: Band; matched: number; numbering: Numbering }[]; warnings: Warning[] } {
+  const bands: { band: Band; matched: number; numbering: Numbering }[] = [];
+  const warnings: Warning[] = [];
+  let below = first;
+  for (let k = 0; k < 3; k++) {
+    const left = free.filter((x) => !lines[x.index]?.assignment);
+    if (left.length < MIN_HOT_LINES) break;
+    const band = { upper: below.upper + 1, lower: below.upper };
+    const anchors = lines.filter((l) => l.assignment?.species === species.formula);
+    const peaks = left.map((x) => x.p);
+    const s = assignByStructure(peaks, species.formula, reducedMass(species), band, anchors);
+    if (!s || !s.decisive) {
+      if (s && k === 0) refuseIfFundamentalLeft(lines, free, left, species, first);
+      if (s)
+        warnings.push({
+          code: 'BAND_NOT_NUMBERED',
+          message: `${left.length} line(s) left after band ${below.upper}-${below.lower}: no numbering of them as the hot band ${band.upper}-${band.lower} is clearly best (it must share level v = ${band.lower} with band ${below.upper}-${below.lower}); best: ${describeEvidence(s.evidence[0] as NumberingEvidence)}`,
+          lines: left.map((x) => x.index),
+        });
+      break;
+    }
+    const extended = extendByFit(peaks, s.assigned, species.formula, reducedMass(species), band, anchors);
+    left.forEach((x, i) => {
+      const t = extended.get(i);
+      if (t)
+        lines[x.index] = {
+          ...x.p,
+          assignment: { species: species.formula, band, branch: t.branch, j: t.j, source: 'auto' },
+        };
+    });
+    bands.push({ band, matched: extended.size, numbering: s });
+    warnings.push({
+      code: 'ASSIGNED_FROM_STRUCTURE',
+      message: `${extended.size} further line(s) numbered from structure as the hot band ${band.upper}-${band.lower}, judged in one fit with the bands below (shared level v = ${band.lower}): ${describeEvidence(s.evidence[0] as NumberingEvidence)}; runner-up: ${s.evidence[1] ? describeEvidence(s.evidence[1]) : 'none'}; evidence margin ${Number.isFinite(s.margin) ? s.margin.toFixed(1) : '∞'}`,
+    });
+    below = band;
+  }
+  return { bands, warnings };
+}
+
+/**
+ * The first band numbered may itself be the hot band, the fundamental left among the lines: when the lines left
+ * number decisively as the first band on their own, and the first band's lines then number decisively as the band
+ * one quantum up jointly with them, the choice of fundamental is open — refused (NUMBERING_AMBIGUOUS) rather than
+ * numbered wrong.
+ */
+function refuseIfFundamentalLeft(
+  lines: readonly PeakInput[],
+  free: readonly { p: PeakInput; index: number }[],
+  left: readonly { p: PeakInput; index: number }[],
+  species: Isotopologue,
+  first: Band,
+): void {
+  const mass = reducedMass(species);
+  const alone = assignByStructure(
+    left.map((x) => x.p),
+    species.formula,
+    mass,
+    first,
+  );
+  if (!alone?.decisive) return;
+  const anchors: PeakInput[] = [];
+  left.forEach((x, i) => {
+    const t = alone.assigned.get(i);
+    if (t)
+      anchors.push({
+        ...x.p,
+        assignment: { species: species.formula, band: first, branch: t.branch, j: t.j, source: 'auto' },
+      });
+  });
+  const firstLines = free.filter((x) => lines[x.index]?.assignment);
+  const up = { upper: first.upper + 1, lower: first.upper };
+  const swapped = assignByStructure(
+    firstLines.map((x) => x.p),
+    species.formula,
+    mass,
+    up,
+    anchors,
+  );
+  if (!swapped?.decisive) return;
+  throw new ScienceError(
+    'NUMBERING_AMBIGUOUS',
+    `${species.formula} (not in the reference library): two progressions were found, and either may be band ${first.upper}-${first.lower} with the other its hot band ${up.upper}-${up.lower}; the band structure alone cannot tell which is the fundamental: send intensities (the fundamental is the stronger below a few thousand kelvin), or a few given assignments`,
+    { species: species.formula, numberings: [...alone.evidence.slice(0, 2), ...swapped.evidence.slice(0, 2)] },
+  );
 }
 
 type Numbering = NonNullable<ReturnType<typeof assignByStructure>>;

@@ -114,6 +114,7 @@ export function assignByStructure(
   species: string,
   mass: MassValue,
   band: Band,
+  anchors: readonly LineInput[] = [],
 ): StructureAssignment | undefined {
   const order = peaks
     .map((p, index) => ({ index, position: p.position, intensity: p.intensity ?? 1 }))
@@ -240,9 +241,13 @@ export function assignByStructure(
       return t ? { ...base, assignment: { species, band, branch: t.branch, j: t.j, source: 'auto' as const } } : base;
     });
     try {
-      const d = fitLineListDetailed(lines, masses, { levelsOnly: true, rejectionThreshold: 0 });
+      // Lines already numbered (another band of the species) are fitted with it: a level the two bands share must
+      // fit both, which no misnumbered band does.
+      const all = [...lines, ...anchors];
+      const d = fitLineListDetailed(all, masses, { levelsOnly: true, rejectionThreshold: 0 });
       const r = d.result;
-      const origin = r.bands[0]?.origin?.value;
+      const stated = statedChiSquare(r, all);
+      const origin = originOf(r, band);
       const spacing = localSpacing(map, peaks);
       const rms = r.statistics.rms;
       const sigmas = peaks.flatMap((p) => (p.uncertainty !== undefined ? [p.uncertainty] : []));
@@ -256,15 +261,19 @@ export function assignByStructure(
         map,
         q,
         delta,
+        band,
         result: r,
-        chiSquare: (r.statistics.reducedChiSquare ?? 1) * Math.max(1, r.statistics.degreesOfFreedom),
+        chiSquare: stated ?? (r.statistics.reducedChiSquare ?? 1) * Math.max(1, r.statistics.degreesOfFreedom),
         dof: Math.max(1, r.statistics.degreesOfFreedom),
-        reducedChiSquare: r.statistics.reducedChiSquare ?? Number.POSITIVE_INFINITY,
+        reducedChiSquare:
+          stated !== undefined
+            ? stated / Math.max(1, r.statistics.degreesOfFreedom)
+            : (r.statistics.reducedChiSquare ?? Number.POSITIVE_INFINITY),
         ...(origin !== undefined ? { origin } : {}),
         lineAtOrigin,
         intercept: differenceIntercept(map, peaks),
         unitSigma: peaks.some((p) => p.uncertainty === undefined) ? (r.scatter?.[0]?.sigma ?? rms) : 1,
-        boltzmann: boltzmannResiduals(map, peaks, r),
+        boltzmann: boltzmannResiduals(map, peaks, r, band),
         kratzer: kratzerTest(r, band),
       };
     } catch (e) {
@@ -278,6 +287,7 @@ interface Trial {
   map: Map<number, { branch: Branch; j: number }>;
   q: number;
   delta: number;
+  band: Band;
   result: FitResult;
   chiSquare: number;
   dof: number;
@@ -291,9 +301,33 @@ interface Trial {
   kratzer: KratzerTest | undefined;
 }
 
+/**
+ * The reduced χ² that stands for the lines' own scale: that of the best-fitting numbering, unless a numbering passes
+ * its combination-difference and Kratzer tests better (by 9 or more) — then the best fit among those that pass them
+ * as well as it does. A numbering that fails those tests may still fit the positions better by over-fitting (with a
+ * hot band's lower level fixed by the band below, a misaligned numbering can fit its lines at χ²/ν 0.59 against the
+ * true numbering's 0.99), and must not make the true one look bad.
+ */
+function positionScale(trials: readonly Trial[]): number {
+  const own = (t: Trial) => {
+    const d = t.intercept
+      ? Math.min(1e6, (t.intercept.value / (t.intercept.uncertainty * t.intercept.ownScale || 1)) ** 2)
+      : 0;
+    const k = t.kratzer
+      ? t.kratzer.ratio > 0
+        ? (Math.log(t.kratzer.ratio) / t.kratzer.uncertainty) ** 2
+        : IMPLAUSIBLE_COST
+      : 0;
+    return d + k + (t.lineAtOrigin ? ORIGIN_LINE_COST : 0);
+  };
+  const best = Math.min(...trials.map(own));
+  const passing = trials.filter((t) => own(t) <= best + MIN_MARGIN);
+  return Math.max(1e-300, Math.min(...passing.map((t) => t.reducedChiSquare)));
+}
+
 /** Evidence totals of every trial, best first. */
 function score(trials: readonly Trial[]): (Trial & { evidence: NumberingEvidence })[] {
-  const minRed = Math.max(1e-300, Math.min(...trials.map((t) => t.reducedChiSquare)));
+  const minRed = positionScale(trials);
   const rssMin = Math.min(...trials.flatMap((t) => (t.boltzmann ? [t.boltzmann.rss / t.boltzmann.n] : [])));
   // The lines' scale, from the numbering that fits them best (a misaligned one inflates its own).
   const unit = Math.min(...trials.map((t) => t.unitSigma)) * Math.sqrt(Math.max(1, minRed));
@@ -325,7 +359,7 @@ function score(trials: readonly Trial[]): (Trial & { evidence: NumberingEvidence
             2 * Math.log(t.kratzer.uncertainty / sharpestKratzer)
           : IMPLAUSIBLE_COST;
     const total = positions + differences + origin + intensities + kratzer;
-    const lower = t.result.levels.find((l) => l.v === Math.min(...t.result.levels.map((x) => x.v)));
+    const lower = t.result.levels.find((l) => l.v === t.band.lower);
     const evidence: NumberingEvidence = {
       label: describeShift(t.q, t.delta),
       originSlot: t.q,
@@ -457,8 +491,9 @@ function boltzmannResiduals(
   map: ReadonlyMap<number, { branch: Branch; j: number }>,
   peaks: readonly Peak[],
   r: FitResult,
+  band: Band,
 ): { rss: number; n: number } | undefined {
-  const lower = r.levels.find((l) => l.v === Math.min(...r.levels.map((x) => x.v)));
+  const lower = r.levels.find((l) => l.v === band.lower);
   if (!lower) return undefined;
   const withI = [...map].filter(([i, t]) => (peaks[i]?.intensity ?? 0) > 0 && (t.branch === 'R' || t.j > 0));
   if (withI.length < 6) return undefined;
@@ -478,6 +513,38 @@ function boltzmannResiduals(
   const f = solveLeastSquares({ rows: n, cols: 2, design, observations: obs });
   if (f.rankDeficient) return undefined;
   return { rss: Math.max(f.chiSquare, 1e-12), n };
+}
+
+/**
+ * χ² of the fitted lines against their stated σ, when every one has a σ (the sum of squares when none has): the
+ * fit's own reduced χ² rescales a group of lines whose stated σ its scatter belies (src/fit/stated-scale.ts), and
+ * estimates σ per band for lines without, either of which lets a misnumbered band, its residuals blown up, pass for
+ * a noisy one (real CO 2-1 numbered wrong beside 1-0 without σ). Undefined for a mix.
+ */
+function statedChiSquare(r: FitResult, lines: readonly LineInput[]): number | undefined {
+  let chi = 0;
+  let rss = 0;
+  let withSigma = 0;
+  let without = 0;
+  for (const l of r.lines) {
+    if (l.status !== 'fitted' || l.residual === undefined) continue;
+    const s = lines[l.index]?.uncertainty;
+    if (s !== undefined && s > 0) {
+      chi += (l.residual / s) ** 2;
+      withSigma++;
+    } else {
+      rss += l.residual ** 2;
+      without++;
+    }
+  }
+  // No line with σ: the sum of squares (σ = 1 for all; the scores compare numberings by ratios of it).
+  if (withSigma === 0) return rss;
+  return without === 0 ? chi : undefined;
+}
+
+/** The fitted origin of `band` (the fit may hold other bands of the species too). */
+function originOf(r: FitResult, band: Band): number | undefined {
+  return r.bands.find((b) => b.band === `${band.upper}-${band.lower}`)?.origin?.value;
 }
 
 /** The Kratzer test of one numbering; a ratio of 0 when its constants are not those of a bound ¹Σ state. */
@@ -509,7 +576,7 @@ export function kratzerTest(r: FitResult, band: Band): KratzerTest | undefined {
   if (dv <= 0) return undefined;
   const lo = r.levels.find((l) => l.v === band.lower);
   const up = r.levels.find((l) => l.v === band.upper);
-  const origin = r.bands[0]?.origin?.value;
+  const origin = originOf(r, band);
   const D = lo?.D?.value;
   if (!lo || !up || origin === undefined || D === undefined) return undefined;
   const alpha = (lo.B.value - up.B.value) / dv;
@@ -844,6 +911,7 @@ export function extendByFit(
   species: string,
   mass: MassValue,
   band: Band,
+  anchors: readonly LineInput[] = [],
 ): Map<number, { branch: Branch; j: number }> {
   const masses = new Map([[species, mass]]);
   let map = new Map(assigned);
@@ -855,7 +923,7 @@ export function extendByFit(
     });
     let fit: ReturnType<typeof fitLineListDetailed>;
     try {
-      fit = fitLineListDetailed(lines, masses, { levelsOnly: true });
+      fit = fitLineListDetailed([...lines, ...anchors], masses, { levelsOnly: true });
     } catch (e) {
       if (e instanceof ScienceError) return map;
       throw e;
@@ -863,7 +931,7 @@ export function extendByFit(
     const res: number[] = [];
     const z: number[] = [];
     for (const l of fit.result.lines) {
-      if (l.status !== 'fitted' || l.residual === undefined) continue;
+      if (l.status !== 'fitted' || l.residual === undefined || l.index >= peaks.length) continue;
       const s = peaks[l.index]?.uncertainty;
       if (s === undefined) res.push(l.residual);
       else z.push(l.residual / s);
@@ -875,12 +943,21 @@ export function extendByFit(
     for (const [i, t] of map) taken.set(`${t.branch}${t.j}`, i);
     const preds: Prediction[] = [];
     const jMax = jTop + Math.max(3, Math.floor(jTop / 2));
+    // The scale of a line's own noise: the scatter of lines without σ, or the typical σ times its factor.
+    const sigmas = peaks.flatMap((p) => (p.uncertainty !== undefined ? [p.uncertainty] : []));
+    const noise = Math.max(scatter, factor * (sigmas.length > 0 ? median(sigmas) : 0));
+    const spacing = localSpacing(map, peaks);
     for (const branch of ['P', 'R'] as const)
       for (let j = branch === 'P' ? 1 : 0; j <= jMax; j++) {
         if (taken.has(`${branch}${j}`)) continue;
         const p = fit.predict({ species, band, branch, j });
         if (!p) continue;
         const model = 5 * Math.sqrt(p.variance) + 1e-6;
+        // Beyond three lines past the reach the prediction must be as sharp as twice the noise (there the data
+        // have run out for this model), and nowhere may its tolerance span a quarter of the line spacing: a light
+        // molecule's fit extrapolated from J ≤ 15 to J = 45 took a hot band's lines and spurious ones.
+        if (j > jTop + 3 && noise > 0 && Math.sqrt(p.variance) > 2 * noise) continue;
+        if (model > 0.25 * spacing) continue;
         preds.push({
           key: `${branch}${j}`,
           position: p.value,
@@ -896,7 +973,7 @@ export function extendByFit(
     const m = matchLines(preds, free);
     const next = new Map(map);
     // Lines the fit rejects are dropped (they were taken by the progression, not by the model).
-    for (const l of fit.result.lines) if (l.status === 'rejected') next.delete(l.index);
+    for (const l of fit.result.lines) if (l.status === 'rejected' && l.index < peaks.length) next.delete(l.index);
     for (const x of m.matches) {
       const key = x.prediction.key;
       next.set(x.peak.index, { branch: key[0] as Branch, j: Number(key.slice(1)) });

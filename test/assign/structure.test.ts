@@ -240,7 +240,7 @@ describe('numbering a band from its structure alone (species absent from the lib
 
   // The P branch cut at several J, each species, with and without intensities, 4 spurious lines (seed 11 per case):
   // never a wrong numbering; with P(1) present, or with intensities and P(1)–P(2) cut, always the right one.
-  // Measured over generator seeds 11, 21, 31 (96 lists, ad hoc sweep): 84 right, 0 wrong, 12 refused, with the
+  // Measured over generator seeds 11, 21, 31 (96 lists, ad hoc sweep): 85 right, 0 wrong, 11 refused, with the
   // Kratzer test as a likelihood with its own σ (Pekeris's relation corrected: it gave ω_e x_e 2× too small);
   // before: 56 right, 0 wrong, 39 refused, 1 partly assigned; before the evidence was made honest (Δ₂F″ intercept
   // from the lines' σ, the best numbering's own tests, cleaner progressions): 59 right, 3 wrong, 33 refused.
