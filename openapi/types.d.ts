@@ -1551,11 +1551,11 @@ export interface components {
       /** @description abscissa, increasing or decreasing */
       x: number[];
       /**
-       * @description wavenumber, or vacuum wavelength
+       * @description wavenumber (cm-1, also written 1/cm, cm^-1, wavenumbers), or vacuum wavelength (um, µm; nm)
        * @default cm-1
        * @enum {string}
        */
-      xUnit?: "cm-1" | "um" | "nm";
+      xUnit?: "cm-1" | "1/cm" | "1/CM" | "cm^-1" | "cm⁻¹" | "CM-1" | "wavenumber" | "wavenumbers" | "WAVENUMBERS" | "um" | "µm" | "μm" | "micrometers" | "micrometres" | "microns" | "MICROMETERS" | "nm" | "nanometers" | "nanometres" | "NANOMETERS";
       y: number[];
       /**
        * @description transmittance as a fraction or in per cent

@@ -176,6 +176,37 @@ export const FitOptionsSchema = z
 /** Most points of a spectrum in one request. */
 export const MAX_SPECTRUM_POINTS = 5_000_000;
 
+/** Spellings of the spectrum's x unit that instruments and JCAMP-DX files use, each read as one of cm-1, um, nm. */
+const X_UNIT_SPELLINGS = {
+  'cm-1': 'cm-1',
+  '1/cm': 'cm-1',
+  '1/CM': 'cm-1',
+  'cm^-1': 'cm-1',
+  'cm⁻¹': 'cm-1',
+  'CM-1': 'cm-1',
+  wavenumber: 'cm-1',
+  wavenumbers: 'cm-1',
+  WAVENUMBERS: 'cm-1',
+  um: 'um',
+  'µm': 'um',
+  'μm': 'um',
+  micrometers: 'um',
+  micrometres: 'um',
+  microns: 'um',
+  MICROMETERS: 'um',
+  nm: 'nm',
+  nanometers: 'nm',
+  nanometres: 'nm',
+  NANOMETERS: 'nm',
+} as const satisfies Record<string, 'cm-1' | 'um' | 'nm'>;
+type XUnitSpelling = keyof typeof X_UNIT_SPELLINGS;
+
+export const XUnitSchema = z
+  .enum(Object.keys(X_UNIT_SPELLINGS) as [XUnitSpelling, ...XUnitSpelling[]])
+  .default('cm-1')
+  .transform((spelling) => X_UNIT_SPELLINGS[spelling])
+  .describe('wavenumber (cm-1, also written 1/cm, cm^-1, wavenumbers), or vacuum wavelength (um, µm; nm)');
+
 export const SpectrumSchema = z
   .strictObject({
     x: z
@@ -188,7 +219,7 @@ export const SpectrumSchema = z
       .enum(['absorbance', 'transmittance'])
       .default('absorbance')
       .describe('transmittance as a fraction or in per cent'),
-    xUnit: z.enum(['cm-1', 'um', 'nm']).default('cm-1').describe('wavenumber, or vacuum wavelength'),
+    xUnit: XUnitSchema,
   })
   .refine((s) => s.x.length === s.y.length, { message: 'x and y must have the same number of points', path: ['y'] })
   .meta({ id: 'Spectrum' });

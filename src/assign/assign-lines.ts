@@ -783,6 +783,13 @@ function tryFit(ctx: AssignContext, lines: LineInput[], scatter?: ScatterEstimat
   }
 }
 
+/** The lines among `which` whose position equals that of a line sent before them (exact repeats, in index order). */
+function repeatedPositions(peaks: readonly PeakInput[], which: readonly number[]): number[] {
+  const firstAt = new Map<number, number>();
+  for (const [i, p] of peaks.entries()) if (!firstAt.has(p.position)) firstAt.set(p.position, i);
+  return which.filter((i) => (firstAt.get((peaks[i] as PeakInput).position) as number) < i);
+}
+
 /** The final fit of the settled assignment (Dunham included), the unexplained lines, the bands and the calibration. */
 function finishAssignment(
   ctx: AssignContext,
@@ -794,9 +801,14 @@ function finishAssignment(
   const fit = fitLineListDetailed(lines, ctx.masses, ctx.options.fit ?? {});
   const unexplained = ctx.peaks.flatMap((p, i) => (p.assignment || auto.has(i) ? [] : [i]));
   if (unexplained.length > 0) {
+    const repeats = repeatedPositions(ctx.peaks, unexplained);
+    const why =
+      repeats.length > 0
+        ? `; ${repeats.length} of them repeat the position of an earlier line (a duplicated row?): lines ${repeats.slice(0, 10).join(', ')}${repeats.length > 10 ? ', …' : ''}`
+        : '';
     ctx.warnings.push({
       code: 'LINES_UNEXPLAINED',
-      message: `${unexplained.length} line(s) are explained by no band of ${speciesNames(ctx)}; they stay unassigned and out of the fit`,
+      message: `${unexplained.length} line(s) are explained by no band of ${speciesNames(ctx)}; they stay unassigned and out of the fit${why}`,
       lines: unexplained,
     });
   }
