@@ -18,7 +18,7 @@ const cell = (v: Cell): string => {
 };
 
 export function toCsv(rows: readonly (readonly Cell[])[]): string {
-  return rows.map((r) => r.map(cell).join(',')).join('\r\n') + '\r\n';
+  return `${rows.map((r) => r.map(cell).join(',')).join('\r\n')}\r\n`;
 }
 
 export function fitLinesRows(r: FitResponse): Cell[][] {

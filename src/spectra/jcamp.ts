@@ -400,7 +400,7 @@ function readDataLine(
   if (text.trim() === '') return;
   const tokens = tokenizeAsdf(text, lineNo);
   const first = tokens[0];
-  if (!first || first.kind !== 'abs') fail(lineNo, 'a data line must start with its X value');
+  if (first?.kind !== 'abs') fail(lineNo, 'a data line must start with its X value');
   const x = first.value * xFactor;
   const { pendingCheck } = state;
   // This line may hold the points still missing, plus the repeated Y of a DIF check.
