@@ -141,10 +141,12 @@ export interface components {
           predicted: number;
           species: string;
         }[];
+      /** @description the assignment's search estimate: observed − library positions regressed on an offset and a scale only, the library's missing higher terms (γ_e, β_e, H_e …) left in the scatter and the covariance scaled by it a posteriori, so it is biased when the library lacks terms and its σ reflects that misfit; POST /v1/checks reports the calibration to use (checks[calibration]: the same regression with the missing terms carried as priors and the lines' own σ) */
       calibration?: {
+        /** @description wavenumber at which the offset is quoted */
         centre: number;
         lines: number;
-        /** @description observed − reference at the centre of the matched lines */
+        /** @description observed − reference at `centre` (the weighted centre of the matched lines) */
         offset: components["schemas"]["Quantity"];
         reference: string;
         /** @description relative scale error in ppm, when the lines span at least 1 % of the centre */

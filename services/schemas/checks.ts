@@ -2,26 +2,49 @@ import { z } from 'zod';
 import { exactlyOne, exactlyOneMessage, FitSchema, fitRequestFields } from './fit.js';
 import { provenanceAndSampleFields } from './provenance.js';
 
+const TOLERANCE_KEYS = [
+  'identityOrigin',
+  'identityB',
+  'calibrationOffset',
+  'calibrationScalePpm',
+  'unexplainedFraction',
+  'isotopeRatio',
+  'temperature',
+  'maxReducedChiSquare',
+  'maxRejectedFraction',
+  'minCompleteness',
+] as const;
+
+/** The answer to an unknown tolerance: the keys a tolerance profile accepts. */
+function unknownToleranceKeys(issue: { code?: string; keys?: readonly PropertyKey[] }): string | undefined {
+  if (issue.code !== 'unrecognized_keys' || !issue.keys) return undefined;
+  const listed = issue.keys.map((k) => `"${String(k)}"`).join(', ');
+  return `Unrecognized tolerance key(s) ${listed}: the accepted keys are ${TOLERANCE_KEYS.join(', ')}`;
+}
+
 export const TolerancesSchema = z
-  .strictObject({
-    identityOrigin: z.number().positive().optional().describe('cm-1; default 0.5'),
-    identityB: z.number().positive().optional().describe('relative; default 1e-3'),
-    calibrationOffset: z.number().positive().optional().describe('cm-1; default 0.05'),
-    calibrationScalePpm: z.number().positive().optional().describe('ppm; default 20'),
-    unexplainedFraction: z.number().min(0).max(1).optional().describe('default 0.05 (fail above, warn above half)'),
-    isotopeRatio: z
-      .number()
-      .positive()
-      .optional()
-      .describe('relative deviation from natural; default 0.15 (warn above)'),
-    temperature: z
-      .strictObject({ expected: z.number().positive().max(10000), tolerance: z.number().positive() })
-      .optional()
-      .describe('expected rotational temperature and tolerance, K; default none (reported only)'),
-    maxReducedChiSquare: z.number().positive().optional().describe('default 3 (only with line uncertainties)'),
-    maxRejectedFraction: z.number().min(0).max(1).optional().describe('default 0.05'),
-    minCompleteness: z.number().min(0).max(1).optional().describe('default 0.9'),
-  })
+  .strictObject(
+    {
+      identityOrigin: z.number().positive().optional().describe('cm-1; default 0.5'),
+      identityB: z.number().positive().optional().describe('relative; default 1e-3'),
+      calibrationOffset: z.number().positive().optional().describe('cm-1; default 0.05'),
+      calibrationScalePpm: z.number().positive().optional().describe('ppm; default 20'),
+      unexplainedFraction: z.number().min(0).max(1).optional().describe('default 0.05 (fail above, warn above half)'),
+      isotopeRatio: z
+        .number()
+        .positive()
+        .optional()
+        .describe('relative deviation from natural; default 0.15 (warn above)'),
+      temperature: z
+        .strictObject({ expected: z.number().positive().max(10000), tolerance: z.number().positive() })
+        .optional()
+        .describe('expected rotational temperature and tolerance, K; default none (reported only)'),
+      maxReducedChiSquare: z.number().positive().optional().describe('default 3 (only with line uncertainties)'),
+      maxRejectedFraction: z.number().min(0).max(1).optional().describe('default 0.05'),
+      minCompleteness: z.number().min(0).max(1).optional().describe('default 0.9'),
+    } satisfies Record<(typeof TOLERANCE_KEYS)[number], z.ZodType>,
+    { error: unknownToleranceKeys },
+  )
   .meta({ id: 'Tolerances', description: 'A tolerance profile; every field overrides one documented default.' });
 
 export function checkRequestSchema(maxLines: number) {

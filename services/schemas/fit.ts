@@ -347,13 +347,17 @@ const DunhamFitSchema = z.object({
   constrained: z.array(TermConstraintSchema).optional(),
 });
 
-const CalibrationSchema = z.object({
-  offset: Q.describe('observed − reference at the centre of the matched lines'),
-  scale: Q.optional().describe('relative scale error in ppm, when the lines span at least 1 % of the centre'),
-  centre: z.number(),
-  lines: z.number().int(),
-  reference: z.string(),
-});
+const CalibrationSchema = z
+  .object({
+    offset: Q.describe('observed − reference at `centre` (the weighted centre of the matched lines)'),
+    scale: Q.optional().describe('relative scale error in ppm, when the lines span at least 1 % of the centre'),
+    centre: z.number().describe('wavenumber at which the offset is quoted'),
+    lines: z.number().int(),
+    reference: z.string(),
+  })
+  .describe(
+    "the assignment's search estimate: observed − library positions regressed on an offset and a scale only, the library's missing higher terms (γ_e, β_e, H_e …) left in the scatter and the covariance scaled by it a posteriori, so it is biased when the library lacks terms and its σ reflects that misfit; POST /v1/checks reports the calibration to use (checks[calibration]: the same regression with the missing terms carried as priors and the lines' own σ)",
+  );
 
 const NumberingEvidenceSchema = z
   .object({

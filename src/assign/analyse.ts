@@ -282,7 +282,8 @@ function assignFromLibrary(
     }),
   );
   const suggested = withLabelSuggestions(r.fit, r.lines);
-  const result = { ...suggested, warnings: [...extraWarnings, ...r.warnings, ...suggested.warnings] };
+  const warnings = namingBandsNotFound([...extraWarnings, ...r.warnings, ...suggested.warnings], r.bands);
+  const result = { ...suggested, warnings };
   return {
     result,
     assignment: {
@@ -527,4 +528,28 @@ function structureWarnings(
     });
   }
   return warnings;
+}
+
+/**
+ * VIBRATION_NEEDS_TWO_INTERVALS of a species one of whose predicted bands was searched for but not found (its best
+ * offset is known: BAND_NOT_FOUND): say that band was in the window but not matched, rather than suggesting an
+ * overtone the list may already hold.
+ */
+function namingBandsNotFound(warnings: readonly Warning[], bands: readonly BandSummary[]): Warning[] {
+  return warnings.map((w) => {
+    if (w.code !== 'VIBRATION_NEEDS_TWO_INTERVALS') return w;
+    const missed = bands.filter(
+      (b) => b.bestOffset && b.matched < b.bestOffset.matches && w.message.startsWith(`${b.species}:`),
+    );
+    if (missed.length === 0) return w;
+    const names = missed.map(
+      (b) =>
+        `${b.band} (best offset ${b.bestOffset && b.bestOffset.offset >= 0 ? '+' : ''}${b.bestOffset?.offset.toFixed(3)} cm-1)`,
+    );
+    const species = missed[0]?.species as string;
+    return {
+      ...w,
+      message: `${species}: ω_e and ω_e x_e need two or more vibrational intervals, and only one was fitted: band ${names.join(', ')} is predicted in the window and its lines may be in the list, but it was not matched (see BAND_NOT_FOUND); the band origin is ΔG, not ω_e`,
+    };
+  });
 }
