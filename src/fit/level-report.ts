@@ -5,7 +5,7 @@ import type { Observation } from '../models/linear-model.js';
 import { formatBand, type Transition } from '../models/transitions.js';
 import type { MassValue } from '../species/reduced-mass.js';
 import { correlationOf, type SolvedModel, studentisedResiduals, toRows } from './engine.js';
-import { predictWithVariance } from './level-selection.js';
+import { excludedStudentisedResidual, predictWithVariance } from './level-selection.js';
 import type { FitResult, LineInput, LineOutcome, NamedQuantity, Warning } from './types.js';
 
 export interface LevelReport {
@@ -69,7 +69,10 @@ export function reportLevels(
   };
 }
 
-/** Every line in input order: unassigned, fitted (residual, studentised residual) or rejected (reason, residual). */
+/**
+ * Every line in input order: unassigned, fitted (residual, studentised residual) or rejected (reason, residual and
+ * studentised residual against the final fit, which left the line out).
+ */
 function lineOutcomes(
   input: readonly LineInput[],
   observations: readonly Observation[],
@@ -102,10 +105,13 @@ function lineOutcomes(
     }
     out.status = 'rejected';
     out.reason = rejected.get(index) ?? 'rejected';
-    const calculated = predictWithVariance(fit, byIndex.get(index) as Observation)?.value;
+    const ob = byIndex.get(index) as Observation;
+    const calculated = predictWithVariance(fit, ob)?.value;
     if (calculated !== undefined) {
       out.calculated = calculated;
       out.residual = l.position - calculated;
+      const t = excludedStudentisedResidual(fit, ob);
+      if (t !== undefined) out.studentisedResidual = t;
     }
     return out;
   });

@@ -1,7 +1,14 @@
 import { ScienceError } from '../errors.js';
 import { levelModel, levelParameters, levelStructure } from '../models/level-model.js';
 import type { Observation, Parameter } from '../models/linear-model.js';
-import { isRankDeficient, type RankDeficiency, type SolvedModel, solveModel, type UncertaintyMode } from './engine.js';
+import {
+  isRankDeficient,
+  type RankDeficiency,
+  reducedChiSquare,
+  type SolvedModel,
+  solveModel,
+  type UncertaintyMode,
+} from './engine.js';
 import { termTest } from './term-test.js';
 
 /** The chosen level model, solved with leverages, and the centrifugal order of each level ("species|v"). */
@@ -120,4 +127,17 @@ export function predictWithVariance(fit: SolvedModel, o: Observation): { value: 
       variance += gi * (fit.covariance[i * p + (nz[b] as number)] as number) * (g[b] as number);
   }
   return { value, variance: Math.max(variance, 0) };
+}
+
+/**
+ * Studentised residual of a line the fit left out (a rejected line): e / √(s²/w + var(prediction)), with s² the
+ * fit's χ²/ν — the statistic rejection and re-admission judge by (outliers.ts), so a rejected line's record carries
+ * the same kind of figure as a fitted line's. Undefined where the fit has no prediction for the line.
+ */
+export function excludedStudentisedResidual(fit: SolvedModel, o: Observation): number | undefined {
+  const pred = predictWithVariance(fit, o);
+  if (pred === undefined) return undefined;
+  const s2 = reducedChiSquare(fit) ?? 1;
+  const scale = Math.sqrt(s2 / o.weight + pred.variance);
+  return scale > 0 ? (o.position - pred.value) / scale : undefined;
 }

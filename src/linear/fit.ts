@@ -13,7 +13,12 @@ import {
   toRows,
   type UncertaintyMode,
 } from '../fit/engine.js';
-import { type LevelSelection, predictWithVariance, rankError } from '../fit/level-selection.js';
+import {
+  excludedStudentisedResidual,
+  type LevelSelection,
+  predictWithVariance,
+  rankError,
+} from '../fit/level-selection.js';
 import { rejectOutliers } from '../fit/outliers.js';
 import { termTest } from '../fit/term-test.js';
 import type { Statistics } from '../fit/types.js';
@@ -564,12 +569,15 @@ function reportLinearFit(
         status: 'fitted' as const,
       };
     }
-    const calc = predictWithVariance(fit, byIndex.get(i) as Observation)?.value;
+    const ob = byIndex.get(i) as Observation;
+    const calc = predictWithVariance(fit, ob)?.value;
+    const tOut = calc !== undefined ? excludedStudentisedResidual(fit, ob) : undefined;
     return {
       index: i,
       position: l.position,
       assignment,
       ...(calc !== undefined ? { calculated: calc, residual: l.position - calc } : {}),
+      ...(tOut !== undefined ? { studentisedResidual: tOut } : {}),
       status: 'rejected' as const,
       reason: rejected.get(i) ?? 'rejected',
     };

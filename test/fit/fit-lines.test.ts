@@ -146,6 +146,11 @@ describe('outliers', () => {
     const r = fitLineList(bad, masses);
     expect(r.lines[7]?.status).toBe('rejected');
     expect(r.lines[7]?.reason).toMatch(/studentised residual/);
+    // The rejected line's record carries its studentised residual against the final fit (it was null before):
+    // 0.1 cm⁻¹ off at σ 0.002 is about 50σ; above the rejection threshold of 4 in any case.
+    const t7 = r.lines[7]?.studentisedResidual as number;
+    expect(Math.abs(t7)).toBeGreaterThan(20);
+    expect(Math.sign(t7)).toBe(1);
     expect(r.lines.filter((l) => l.status === 'rejected').length).toBe(1);
     expect(r.warnings.some((w) => w.code === 'LINES_REJECTED' && w.lines?.includes(7))).toBe(true);
     expect(Math.abs((r.equilibrium[0]?.B_e?.value as number) - HCL.B_e)).toBeLessThan(

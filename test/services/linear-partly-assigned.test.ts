@@ -100,6 +100,8 @@ describe('partly assigned linear lists', () => {
     const wrongLabel = out[realP] as Outcome;
     expect(wrongLabel.assignment).toMatchObject({ branch: 'P', j: 22, source: 'given' });
     expect(wrongLabel.status).toBe('rejected');
+    // Its record carries the studentised residual against the final fit, beyond the rejection threshold (≥ 4).
+    expect(Math.abs((wrongLabel as { studentisedResidual?: number }).studentisedResidual as number)).toBeGreaterThan(4);
     expect((out[realP22] as Outcome).assignment).toBeUndefined();
   });
 });

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { studentisedResiduals } from '../../../src/fit/engine.js';
+import { reducedChiSquare, studentisedResiduals } from '../../../src/fit/engine.js';
 import { reportLevels } from '../../../src/fit/level-report.js';
 import { predictWithVariance, selectLevelModel } from '../../../src/fit/level-selection.js';
 import { readLines } from '../../../src/fit/observations.js';
@@ -49,7 +49,14 @@ describe('reportLevels', () => {
     expect(r.lines[5]?.intensity).toBe(0.25);
     expect(r.lines[5]?.assignment).toEqual({ band: '1-0', branch: 'P', j: 6, species: '12C-16O', source: 'given' });
     const rej = r.lines[10];
-    const pred = predictWithVariance(sel.fit, observations.find((o) => o.index === 10) as (typeof observations)[0]);
+    const ob10 = observations.find((o) => o.index === 10) as (typeof observations)[0];
+    const pred = predictWithVariance(sel.fit, ob10);
+    // A rejected line's studentised residual: against the final fit, which left it out (e / √(s²/w + var)); the
+    // rejection here is made up, the line is clean, so it is small.
+    const t10 =
+      (ob10.position - (pred?.value as number)) /
+      Math.sqrt((reducedChiSquare(sel.fit) as number) / ob10.weight + (pred?.variance as number));
+    expect(Math.abs(t10)).toBeLessThan(4);
     expect(rej).toEqual({
       index: 10,
       position: input[10]?.position,
@@ -58,6 +65,7 @@ describe('reportLevels', () => {
       reason: 'studentised residual 9.9 exceeds 4.00',
       calculated: pred?.value,
       residual: (input[10]?.position as number) - (pred?.value as number),
+      studentisedResidual: t10,
     });
     expect(r.lines.at(-1)).toEqual({
       index: input.length - 1,
