@@ -3,7 +3,7 @@ import { checksWithoutFit, DEFAULT_TOLERANCES, runChecks } from '../../src/qa/ch
 import { SAFETY_NOTICE } from '../notice.js';
 import type { CheckRequest, CheckResponse } from '../schemas/checks.js';
 import { analyseRequest, prepareFit, presentFit } from './fit.js';
-import { identifiedLinearSpecies, runLinearCheck } from './linear-assign.js';
+import { identifiedLinearSpecies, linearSpeciesFirst, runLinearCheck } from './linear-assign.js';
 import { isLinearFitRequest } from './linear-fit.js';
 import type { DeepReadonly } from './types.js';
 
@@ -21,6 +21,9 @@ export function runCheck(req: CheckRequest): CheckResponse {
   const { tolerances, ...fitReq } = req;
   const applied = { ...DEFAULT_TOLERANCES, ...(tolerances ?? {}) };
   if (isLinearFitRequest(fitReq)) return runLinearCheck(req, applied);
+  // An unassigned list without a species that a linear molecule explains far better than any diatomic.
+  const first = linearSpeciesFirst(fitReq);
+  if (first) return runLinearCheck({ ...req, species: first }, applied);
   const prepared = prepareFit(fitReq);
   try {
     const analysed = analyseRequest(prepared);

@@ -8,7 +8,7 @@ import { type Isotopologue, parseSpecies } from '../../src/species/parse.js';
 import { toWavenumber } from '../../src/units.js';
 import { SAFETY_NOTICE } from '../notice.js';
 import type { FitRequest, FitResponse } from '../schemas/fit.js';
-import { identifiedLinearSpecies } from './linear-assign.js';
+import { identifiedLinearSpecies, linearSpeciesFirst } from './linear-assign.js';
 import { isLinearFitRequest, runLinearFit } from './linear-fit.js';
 import { peaksOf } from './peaks.js';
 import type { DeepReadonly, Writable } from './types.js';
@@ -19,6 +19,9 @@ import type { DeepReadonly, Writable } from './types.js';
  */
 export function runFit(req: FitRequest): FitResponse {
   if (isLinearFitRequest(req)) return runLinearFit(req);
+  // An unassigned list without a species that a linear molecule explains far better than any diatomic.
+  const first = linearSpeciesFirst(req);
+  if (first) return runLinearFit({ ...req, species: first });
   try {
     return presentFit(analyseRequest(prepareFit(req)));
   } catch (e) {

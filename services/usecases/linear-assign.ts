@@ -215,15 +215,49 @@ const NO_FIT_CODES = new Set(['FIT_NO_ASSIGNED_LINES', 'FIT_TOO_FEW_LINES', 'FIT
  * (found once: services/usecases/peaks.ts keeps them). Lists with assignments are left to the diatomic answer.
  */
 export function identifiedLinearSpecies(sent: FitRequest): string | undefined {
+  const peaks = undeclaredPeaks(sent);
+  if (!peaks) return undefined;
+  const best = identifyLinearSpecies(peaks, maxOffsetOf(sent))[0];
+  return best && best.score >= 0.5 ? best.species : undefined;
+}
+
+/**
+ * The linear species an unassigned list sent WITHOUT a species goes to before any diatomic is tried: the best of the
+ * linear ranking when it scores ≥ 0.5 and explains the list far better than the best diatomic, that is, it scores at
+ * least as high and matches at least LINEAR_MATCH_RATIO times as many lines (or the diatomic scores < 0.5). A dense
+ * polyatomic band otherwise lets a diatomic with a handful of lines in the window score ≥ 0.5 by coincidence (an
+ * N2O ν3 list was taken for HI: 2 of 4 HI lines matched against 60 of 60 N2O lines) and be refused as that diatomic.
+ * The diatomic ranking is computed only when the linear one has a candidate, so diatomic lists pay one linear ranking.
+ */
+export function linearSpeciesFirst(sent: FitRequest): string | undefined {
+  const peaks = undeclaredPeaks(sent);
+  if (!peaks) return undefined;
+  const options = maxOffsetOf(sent);
+  const linear = identifyLinearSpecies(peaks, options)[0];
+  if (!linear || linear.score < 0.5) return undefined;
+  const diatomic = identifySpecies(peaks, options)[0];
+  if (!diatomic || diatomic.score < 0.5) return linear.species;
+  const farBetter = linear.score >= diatomic.score && linear.matched >= LINEAR_MATCH_RATIO * diatomic.matched;
+  return farBetter ? linear.species : undefined;
+}
+
+/** How many times as many lines the linear candidate must match as the best diatomic to be preferred to it. */
+const LINEAR_MATCH_RATIO = 3;
+
+/** The request's offset window, for the rankings. */
+function maxOffsetOf(sent: FitRequest): { maxOffset?: number } {
+  return sent.options?.maxOffset !== undefined ? { maxOffset: sent.options.maxOffset } : {};
+}
+
+/** The peaks (cm⁻¹) of an unassigned list sent without a species; undefined for any other request. */
+function undeclaredPeaks(sent: FitRequest): { position: number; intensity?: number }[] | undefined {
   if (sent.species !== undefined) return undefined;
   const { req } = asLineRequest(sent);
   if (!req.lines || req.lines.length === 0) return undefined;
   if (req.lines.some((l) => l.assignment !== undefined)) return undefined;
   const unit = req.unit ?? 'cm-1';
-  const peaks = req.lines.map((l) => ({
+  return req.lines.map((l) => ({
     position: toWavenumber(l.position, unit, l.uncertainty).value,
     ...(l.intensity !== undefined ? { intensity: l.intensity } : {}),
   }));
-  const best = identifyLinearSpecies(peaks)[0];
-  return best && best.score >= 0.5 ? best.species : undefined;
 }

@@ -191,7 +191,9 @@ export function analyseLineList(
   const { peaks, warnings: flat } = withoutFlatIntensities(sent);
   const { species, identification, warnings } = resolveSpecies(peaks, declared, options);
   if (constantsFor(species))
-    return assignFromLibrary(peaks, species, masses, options, identification, [...flat, ...warnings]);
+    return asIdentified(identification, () =>
+      assignFromLibrary(peaks, species, masses, options, identification, [...flat, ...warnings]),
+    );
   const a = assignFromStructure(peaks, species, masses, options);
   return flat.length === 0 ? a : { ...a, result: { ...a.result, warnings: [...flat, ...a.result.warnings] } };
 }
@@ -235,9 +237,19 @@ function resolveSpecies(
   const best = identification[0];
   const min = options.minIdentificationScore ?? 0.5;
   if (!best || best.score < min) {
+    const scored = identification.filter((c) => c.score >= 0.005).slice(0, 3);
+    const window = `±${options.maxOffset ?? 0.5} cm-1`;
+    const found =
+      scored.length > 0
+        ? `best: ${scored.map((c) => `${c.species}, score ${c.score.toFixed(2)}`).join('; ')}; needed ${min}`
+        : 'nothing matched';
+    // The remedy first: a problem's detail is cut at 300 characters.
+    const beyond = matchBeyondWindow(peaks, options, min);
     throw new ScienceError(
       'SPECIES_UNIDENTIFIED',
-      `no species of the reference library explains these lines (best: ${best ? `${best.species}, score ${best.score.toFixed(2)}` : 'none'}; needed ${min}); declare "species"`,
+      beyond
+        ? `no species of the reference library explains these lines within ${window} ("options.maxOffset"; ${found}), but ${beyond}, or declare "species"`
+        : `no species of the reference library explains these lines within ${window} ("options.maxOffset"; ${found}); declare "species"`,
       {
         candidates: identification
           .slice(0, 5)
@@ -255,6 +267,49 @@ function resolveSpecies(
   }
   // The natural mixture of the identified molecule.
   return { species: elementsOnly(parseSpecies(best.species)), identification, warnings };
+}
+
+/**
+ * When the identification within ±maxOffset found nothing good enough: the molecule that the same ranking, searched up
+ * to 4× maxOffset, accepts, at what offset, and the option that reaches it; else ''. Only on this refusal path.
+ */
+function matchBeyondWindow(peaks: readonly PeakInput[], options: AnalyseOptions, min: number): string {
+  const maxOffset = options.maxOffset ?? 0.5;
+  const wide = identifySpecies(peaks, {
+    ...(options.temperature ? { temperature: options.temperature } : {}),
+    maxOffset: 4 * maxOffset,
+  })[0];
+  if (!wide || wide.score < min || Math.abs(wide.offset) <= maxOffset) return '';
+  const reach = Math.ceil((Math.abs(wide.offset) + 0.05) * 10) / 10;
+  return `at offset ${wide.offset >= 0 ? '+' : ''}${wide.offset.toFixed(3)} cm-1 they match ${wide.species} (score ${wide.score.toFixed(2)}): if the calibration is that far off, send a larger "options.maxOffset" (e.g. ${reach})`;
+}
+
+/**
+ * A species the library identified (none was declared) that then matches nothing: the refusal says so, naming the
+ * candidates, instead of speaking of a declared species.
+ */
+function asIdentified<T>(identification: readonly IdentificationCandidate[] | undefined, f: () => T): T {
+  try {
+    return f();
+  } catch (e) {
+    if (!identification || !(e instanceof ScienceError) || e.code !== 'FIT_NO_ASSIGNED_LINES') throw e;
+    if (!/the declared species/.test(e.message)) throw e;
+    const named = identification
+      .filter((c) => c.score > 0)
+      .slice(0, 3)
+      .map((c) => `${c.name} (${c.species}) score ${c.score.toFixed(2)}`)
+      .join(', ');
+    throw new ScienceError(
+      e.code,
+      `no species was declared, and the best the library's identification offers (${named}) does not hold up: ${e.message.replace('the declared species', 'the identified species')}; declare "species"`,
+      {
+        ...e.details,
+        candidates: identification
+          .slice(0, 5)
+          .map((c) => ({ species: c.species, name: c.name, score: Number(c.score.toFixed(3)) })),
+      },
+    );
+  }
 }
 
 /** Assignment against the reference library's predictions for the species' isotopologues, then the fit. */

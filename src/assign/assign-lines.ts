@@ -749,6 +749,15 @@ function nothingAssigned(ctx: AssignContext): ScienceError {
   ]
     .map(([k, list]) => ({ k, list, best: bestBandOffset(list, ctx.free, ctx.maxOffset) }))
     .sort((a, b) => (b.best?.matches ?? 0) - (a.best?.matches ?? 0))[0];
+  const beyond = bestBand ? beyondWindow(ctx, bestBand.k, bestBand.list) : undefined;
+  if (bestBand && beyond) {
+    // The remedy first: a problem's detail is cut at 300 characters.
+    return new ScienceError(
+      'FIT_NO_ASSIGNED_LINES',
+      `nothing matches the declared species ${names} within ±${ctx.maxOffset} cm-1 ("options.maxOffset"), but at offset ${signed(beyond.offset)} cm-1 its band ${bestBand.k.replace('|', ' ')} finds ${beyond.matches} of its ${bestBand.list.length} strongest predicted lines: if the calibration is that far off, send a larger "options.maxOffset" (e.g. ${beyond.reach})`,
+      { species: names, offsetFound: beyond.offset, suggestedMaxOffset: beyond.reach },
+    );
+  }
   return new ScienceError(
     'FIT_NO_ASSIGNED_LINES',
     `nothing matches the declared species ${names}: ${
@@ -758,6 +767,25 @@ function nothingAssigned(ctx: AssignContext): ScienceError {
     }`,
     { species: names },
   );
+}
+
+const signed = (x: number) => `${x >= 0 ? '+' : ''}${x.toFixed(3)}`;
+
+/**
+ * A band that matches too few lines within ±maxOffset but enough just beyond it (searched up to 4× maxOffset, within
+ * half its line spacing, as bandNotFound does): the offset it finds there, its matches and a window that reaches it.
+ */
+function beyondWindow(
+  ctx: AssignContext,
+  k: string,
+  strong: readonly CandidateLine[],
+): { offset: number; matches: number; reach: number } | undefined {
+  const { maxOffset, minLines: min } = ctx;
+  const wide = Math.min(4 * maxOffset, 0.45 * (ctx.spacing.get(k) ?? 4 * maxOffset));
+  if (!(wide > maxOffset)) return undefined;
+  const best = bestBandOffset(strong, ctx.free, wide);
+  if (!best || best.matches < min || Math.abs(best.offset) <= maxOffset) return undefined;
+  return { ...best, reach: Math.ceil((Math.abs(best.offset) + 0.05) * 10) / 10 };
 }
 
 /** The level fit of a round; undefined when too few lines or a rank deficiency leave it impossible. */
