@@ -297,11 +297,12 @@ function asIdentified<T>(identification: readonly IdentificationCandidate[] | un
     const named = identification
       .filter((c) => c.score > 0)
       .slice(0, 3)
-      .map((c) => `${c.name} (${c.species}) score ${c.score.toFixed(2)}`)
+      .map((c) => `${c.species} score ${c.score.toFixed(2)}`)
       .join(', ');
+    // The remedy first: a problem's detail is cut at 300 characters.
     throw new ScienceError(
       e.code,
-      `no species was declared, and the best the library's identification offers (${named}) does not hold up: ${e.message.replace('the declared species', 'the identified species')}; declare "species"`,
+      `no species was declared and the library's best identifications do not hold up (${named}): declare "species"; ${e.message.replace('the declared species', 'the identified species')}`,
       {
         ...e.details,
         candidates: identification
