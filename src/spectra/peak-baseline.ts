@@ -67,13 +67,36 @@ export function toAbsorbance(
 }
 
 /**
- * Absorbance above the baseline: the 20th percentile of segments of max(64, n/100) points, joined by straight
- * lines between the segment centres (flat beyond the outer centres' line).
+ * Full width at half maximum, in points, of the strongest feature (its half-height crossings on either side above
+ * the spectrum's lowest value): the baseline segments must be many line widths long, or the 20th percentile of a
+ * segment sits on a line's own wings (a finely sampled pressure-broadened spectrum: 40 points per FWHM).
+ */
+export function strongestWidthInPoints(a: Float64Array): number {
+  const n = a.length;
+  let top = 0;
+  let low = Number.POSITIVE_INFINITY;
+  for (let i = 0; i < n; i++) {
+    if ((a[i] as number) > (a[top] as number)) top = i;
+    low = Math.min(low, a[i] as number);
+  }
+  const half = low + 0.5 * ((a[top] as number) - low);
+  let left = top;
+  while (left > 0 && (a[left] as number) > half) left--;
+  let right = top;
+  while (right < n - 1 && (a[right] as number) > half) right++;
+  return right - left;
+}
+
+/**
+ * Absorbance above the baseline: the 20th percentile of segments of max(64, n/100, 12 × the strongest feature's
+ * FWHM) points (at most a quarter of the spectrum), joined by straight lines between the segment centres (flat
+ * beyond the outer centres' line).
  */
 export function aboveBaseline(s: AbsorbanceSpectrum): Float64Array {
   const { x, absorbance: a } = s;
   const n = x.length;
-  const seg = Math.max(64, Math.round(n / 100));
+  const byWidth = Math.min(12 * strongestWidthInPoints(a), Math.floor(n / 4));
+  const seg = Math.max(64, Math.round(n / 100), byWidth);
   const scratch = new Float64Array(seg);
   const centres: number[] = [];
   const levels: number[] = [];

@@ -16,10 +16,11 @@ import { seededNormal } from '../helpers/random.js';
  * Measured 2026-12-02 (1σ / 2σ coverage, rms pull):
  *   step 0.02  Lorentz strong 0.985 / 1.000 / 0.42, weak 0.735 / 0.970 / 0.90
  *   step 0.02  Gauss   strong 0.998 / 1.000 / 0.30, weak 0.748 / 0.970 / 0.88
- *   step 0.004 Gauss   strong 0.657 / 0.933 / 1.07, weak 0.737 / 0.965 / 0.93
- *   step 0.004 Lorentz strong 0.010 / 0.028 / 12.3, weak 0.435 / 0.822 / 1.46 — NOT met: at 40 points per FWHM the
- *     finder's Lorentzian fits come out with widths and shapes wrong (η 0.2–0.9 for a pure Lorentzian) and positions
- *     off by up to 2e-3 cm⁻¹, a defect of the profile fit, not of the σ; marked `it.fails` until fixed.
+ *   step 0.004 Gauss   strong 0.943 / 1.000 / 0.52, weak 0.707 / 0.953 / 0.98
+ *   step 0.004 Lorentz strong 0.853 / 0.998 / 0.69, weak 0.715 / 0.962 / 0.99
+ * Before the baseline segments were tied to the line width (at least 12 FWHM of the strongest feature), the 64-point
+ * segments at step 0.004 were 1.6 FWHM long: the baseline sat on the lines' wings, Lorentzian positions were off by
+ * up to 2e-3 cm⁻¹ (strong 0.010 / 0.028 / 12.3, weak 0.435 / 0.822 / 1.46) and Gaussian strong lines 0.657 / 0.933.
  */
 function spectrum(seed: number, step: number, profile: 'lorentz' | 'gauss') {
   const z = seededNormal(seed);
@@ -104,7 +105,7 @@ describe('peak position σ against pulls over 200 seeded noisy spectra per case'
     meetsRequirement(r.weak);
   });
 
-  it.fails('step 0.004 cm⁻¹, Lorentzian: coverage not met (finder defect at 40 points per FWHM, see above)', () => {
+  it('step 0.004 cm⁻¹, Lorentzian: coverage met at 40 points per FWHM (baseline segments ≥ 12 FWHM)', () => {
     const r = measure(0.004, 'lorentz');
     meetsRequirement(r.strong);
     meetsRequirement(r.weak);
