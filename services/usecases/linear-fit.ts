@@ -422,7 +422,7 @@ function isotopologueGroups(req: FitRequest): Map<string, number[]> | undefined 
     l.assignment?.species !== undefined ? parseLinearSpecies(l.assignment.species).formula : declared,
   );
   const distinct = new Set(named.filter((x): x is string => x !== undefined));
-  const missing = named.findIndex((x) => x === undefined);
+  const missing = named.indexOf(undefined);
   // Lines that name a species beside lines that do not, and no declared species: which one the others belong to
   // is not said (fitting them as the named one would fit another molecule's lines).
   if (distinct.size <= 1 && !(distinct.size === 1 && missing >= 0)) return undefined;

@@ -453,7 +453,7 @@ function numberHotBands(
     const anchors = lines.filter((l) => l.assignment?.species === species.formula);
     const peaks = left.map((x) => x.p);
     const s = assignByStructure(peaks, species.formula, reducedMass(species), band, anchors);
-    if (!s || !s.decisive) {
+    if (!s?.decisive) {
       if (s && k === 0) refuseIfFundamentalLeft(lines, free, left, species, first);
       if (s)
         warnings.push({
