@@ -19,6 +19,30 @@ export interface IdentificationCandidate {
 }
 
 /**
+ * What identification compares with the library, shared by the diatomic and the linear ranking: the observed window
+ * widened by 1 cm⁻¹ each side, and the lines to be matched — the stronger half (at least ten) when every line has
+ * an intensity, else all of them.
+ */
+export function identificationWindow(peaks: readonly { position: number; intensity?: number }[]): {
+  lo: number;
+  hi: number;
+  strongObserved: { index: number; position: number; intensity: number }[];
+} {
+  let lo = Number.POSITIVE_INFINITY;
+  let hi = Number.NEGATIVE_INFINITY;
+  for (const p of peaks) {
+    lo = Math.min(lo, p.position);
+    hi = Math.max(hi, p.position);
+  }
+  const withIntensity = peaks.every((p) => p.intensity !== undefined);
+  const strongObserved = peaks
+    .map((p, index) => ({ index, position: p.position, intensity: p.intensity ?? 1 }))
+    .sort((a, b) => b.intensity - a.intensity)
+    .slice(0, withIntensity ? Math.max(10, Math.ceil(peaks.length / 2)) : peaks.length);
+  return { lo: lo - 1, hi: hi + 1, strongObserved };
+}
+
+/**
  * Rank the library's molecules by how well their predicted spectrum (natural isotopic mixture, reference
  * constants) explains the strong observed lines, after each one's own offset estimate. No fit is made: this only
  * chooses what to assign against.
@@ -27,14 +51,7 @@ export function identifySpecies(
   peaks: readonly { position: number; intensity?: number }[],
   options: CandidateOptions & { maxOffset?: number } = {},
 ): IdentificationCandidate[] {
-  const positions = peaks.map((p) => p.position);
-  const lo = Math.min(...positions) - 1;
-  const hi = Math.max(...positions) + 1;
-  const withIntensity = peaks.every((p) => p.intensity !== undefined);
-  const strongObserved = peaks
-    .map((p, index) => ({ index, position: p.position, intensity: p.intensity ?? 1 }))
-    .sort((a, b) => b.intensity - a.intensity)
-    .slice(0, withIntensity ? Math.max(10, Math.ceil(peaks.length / 2)) : peaks.length);
+  const { lo, hi, strongObserved } = identificationWindow(peaks);
   // Each pair of elements once as its natural mixture; a parent that is not the most abundant isotopologue of its
   // elements (DCl, DF) as itself, for isotopically enriched samples.
   const seen = new Set<string>();

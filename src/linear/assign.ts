@@ -1,4 +1,5 @@
 import { type Match, matchLines, type ObservedPeak } from '../assign/match.js';
+import { identificationWindow } from '../assign/identify.js';
 import { estimateOffset } from '../assign/offset.js';
 import { type Quantity, quantity } from '../derive/quantity.js';
 import { ScienceError } from '../errors.js';
@@ -595,14 +596,7 @@ export function identifyLinearSpecies(
   options: { readonly maxOffset?: number; readonly temperature?: number } = {},
 ): LinearIdentification[] {
   if (peaks.length === 0) return [];
-  const positions = peaks.map((p) => p.position);
-  const lo = Math.min(...positions) - 1;
-  const hi = Math.max(...positions) + 1;
-  const withIntensity = peaks.every((p) => p.intensity !== undefined);
-  const strongObserved = peaks
-    .map((p, index) => ({ index, position: p.position, intensity: p.intensity ?? 1 }))
-    .sort((a, b) => b.intensity - a.intensity)
-    .slice(0, withIntensity ? Math.max(10, Math.ceil(peaks.length / 2)) : peaks.length);
+  const { lo, hi, strongObserved } = identificationWindow(peaks);
   const out: LinearIdentification[] = [];
   for (const ref of LINEAR_REFERENCE) {
     const species = parseLinearSpecies(ref.formula);
