@@ -1,5 +1,5 @@
-import { type Match, matchLines, type ObservedPeak } from '../assign/match.js';
 import { identificationWindow } from '../assign/identify.js';
+import { type Match, matchLines, type ObservedPeak } from '../assign/match.js';
 import { estimateOffset } from '../assign/offset.js';
 import { type Quantity, quantity } from '../derive/quantity.js';
 import { ScienceError } from '../errors.js';
