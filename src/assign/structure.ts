@@ -108,7 +108,25 @@ interface Point {
 }
 
 type Peak = { position: number; uncertainty?: number; intensity?: number };
+/** Index of a peak → its transition (lower J and branch) in the band being numbered. */
+type Numbering = Map<number, { branch: Branch; j: number }>;
 
+/** What every numbering of one call is judged against. */
+interface StructureContext {
+  readonly peaks: readonly Peak[];
+  readonly species: string;
+  readonly band: Band;
+  /** Lines of another band of the species, already numbered, fitted with every numbering. */
+  readonly anchors: readonly LineInput[];
+  readonly masses: ReadonlyMap<string, MassValue>;
+  /** The peak positions in ascending order. */
+  readonly pos: Float64Array;
+}
+
+/**
+ * The stages: progressions grown from every gap pair → the longest distinct ones → every numbering of them judged
+ * → the best one's nearest rivals judged → one numbering per band origin, scored → the verdict.
+ */
 export function assignByStructure(
   peaks: readonly Peak[],
   species: string,
@@ -120,10 +138,24 @@ export function assignByStructure(
     .map((p, index) => ({ index, position: p.position, intensity: p.intensity ?? 1 }))
     .sort((a, b) => a.position - b.position);
   const pos = Float64Array.from(order, (p) => p.position);
+  const chains = progressions(order, pos);
+  if (chains.length === 0) return undefined;
+  const ctx: StructureContext = { peaks, species, band, anchors, masses: new Map([[species, mass]]), pos };
+  const tried = new Set<string>();
+  const trials = judgeProgressions(longestProgressions(chains), ctx, tried);
+  if (trials.length === 0) return undefined;
+  trials.push(...judgeRivals(score(trials)[0] as Trial, ctx, tried));
+  return verdict(onePerOrigin(score(trials), peaks), peaks);
+}
+
+/**
+ * Progressions of six lines or more grown from every neighbouring pair across a gap (P(1) and R(0) are among the
+ * weakest lines of a band, and a spurious peak may sit inside the gap: b may also be the second or third peak
+ * after a), longest first.
+ */
+function progressions(order: readonly { index: number; position: number }[], pos: Float64Array): Point[][] {
   const chains: Point[][] = [];
   const inChain = new Set<number>();
-  // Every neighbouring pair across a gap is a candidate (P(1) and R(0) are among the weakest lines of a band), and a
-  // spurious peak may sit inside the gap: b may also be the second or third peak after a.
   for (let i = 0; i + 1 < order.length; i++)
     for (let skip = 1; skip <= 3 && i + skip < order.length; skip++) {
       const a = order[i] as { index: number; position: number };
@@ -143,10 +175,12 @@ export function assignByStructure(
         for (const p of points) inChain.add(p.index);
       }
     }
-  if (chains.length === 0) return undefined;
-  chains.sort((x, y) => y.length - x.length);
+  return chains.sort((x, y) => y.length - x.length);
+}
+
+/** The longest progressions (within 90 % of the longest), at most four distinct: several gap pairs usually grow the same one. */
+function longestProgressions(chains: readonly Point[][]): Point[][] {
   const longest = (chains[0] as Point[]).length;
-  // The longest progressions: several gap pairs usually grow the same one.
   const seen = new Set<string>();
   const contenders: Point[][] = [];
   for (const c of chains) {
@@ -161,50 +195,67 @@ export function assignByStructure(
     contenders.push(c);
     if (contenders.length >= 4) break;
   }
-  const masses = new Map([[species, mass]]);
+  return contenders;
+}
+
+/** A numbering's identity: two progressions may number the same lines the same way. */
+function numberingKey(map: Numbering): string {
+  return [...map]
+    .map(([i, t]) => `${i}${t.branch}${t.j}`)
+    .sort()
+    .join(',');
+}
+
+/** Every numbering of the contending progressions judged once (`tried` collects their keys). */
+function judgeProgressions(contenders: readonly Point[][], ctx: StructureContext, tried: Set<string>): Trial[] {
   const trials: Trial[] = [];
-  const tried = new Set<string>();
   for (const chain of contenders) {
     for (const { q, delta } of numberingsOf(chain)) {
       const map = numbered(chain, q, delta);
       if (!map) continue;
-      const sig = [...map]
-        .map(([i, t]) => `${i}${t.branch}${t.j}`)
-        .sort()
-        .join(',');
-      if (tried.has(sig)) continue;
-      tried.add(sig);
-      const t = judge(map, q, delta);
+      const key = numberingKey(map);
+      if (tried.has(key)) continue;
+      tried.add(key);
+      const t = judge(map, q, delta, ctx);
       if (t) trials.push(t);
     }
   }
-  if (trials.length === 0) return undefined;
-  // The nearest rivals of the best numbering are always judged: the whole numbering moved by up to three lines,
-  // and the R side moved by one against the P side (a line lying at a rival's origin then counts against it).
-  const first = score(trials)[0] as Trial;
+  return trials;
+}
+
+/**
+ * The nearest rivals of the best numbering, always judged: the whole numbering moved by up to three lines, and the
+ * R side moved by one against the P side (a line lying at a rival's origin then counts against it).
+ */
+function judgeRivals(first: Trial, ctx: StructureContext, tried: Set<string>): Trial[] {
+  const trials: Trial[] = [];
   for (let shift = -3; shift <= 3; shift++)
     for (const delta of [-1, 0, 1]) {
       if (shift === 0 && delta === 0) continue;
-      const map = new Map<number, { branch: Branch; j: number }>();
+      const map: Numbering = new Map();
       for (const [i, t] of first.map) {
         const m0 = t.branch === 'R' ? t.j + 1 : -t.j;
         const m = m0 + shift + (m0 > 0 ? delta : 0);
         if (m !== 0) map.set(i, m > 0 ? { branch: 'R', j: m - 1 } : { branch: 'P', j: -m });
       }
-      const sig = [...map]
-        .map(([i, t]) => `${i}${t.branch}${t.j}`)
-        .sort()
-        .join(',');
-      if (tried.has(sig)) continue;
-      tried.add(sig);
-      const t = judge(map, first.q - shift, delta);
+      const key = numberingKey(map);
+      if (tried.has(key)) continue;
+      tried.add(key);
+      const t = judge(map, first.q - shift, delta, ctx);
       if (t) trials.push(t);
     }
-  // Different progressions (one with a stray line more, say) give the same numbering: one entry per band origin
-  // (within a quarter of the line spacing), the best scored.
-  const scored = score(trials);
+  return trials;
+}
+
+type ScoredTrial = Trial & { evidence: NumberingEvidence };
+
+/**
+ * Different progressions (one with a stray line more, say) give the same numbering: one entry per band origin
+ * (within a quarter of the line spacing), the best scored.
+ */
+function onePerOrigin(scored: readonly ScoredTrial[], peaks: readonly Peak[]): ScoredTrial[] {
   const spacing = localSpacing(scored[0]?.map ?? new Map(), peaks);
-  const evidence: typeof scored = [];
+  const evidence: ScoredTrial[] = [];
   for (const t of scored) {
     if (
       evidence.some(
@@ -214,7 +265,12 @@ export function assignByStructure(
       continue;
     evidence.push(t);
   }
-  const best = evidence[0] as Trial & { evidence: NumberingEvidence };
+  return evidence;
+}
+
+/** The best numbering, its margin over the runner-up, and whether it passes its own tests. */
+function verdict(evidence: readonly ScoredTrial[], peaks: readonly Peak[]): StructureAssignment {
+  const best = evidence[0] as ScoredTrial;
   const runnerUp = evidence[1];
   const margin = runnerUp ? runnerUp.evidence.score - best.evidence.score : Number.POSITIVE_INFINITY;
   // The best of bad numberings is no numbering: when every line of it carries a σ, its fit must be a probable one.
@@ -233,53 +289,63 @@ export function assignByStructure(
     ownEvidence,
     decisive: margin >= MIN_MARGIN && fitsUncertainties && ownEvidence,
   };
+}
 
-  function judge(map: Map<number, { branch: Branch; j: number }>, q: number, delta: number): Trial | undefined {
-    const lines: LineInput[] = peaks.map((pk, index) => {
-      const t = map.get(index);
-      const base = { position: pk.position, ...(pk.uncertainty !== undefined ? { uncertainty: pk.uncertainty } : {}) };
-      return t ? { ...base, assignment: { species, band, branch: t.branch, j: t.j, source: 'auto' as const } } : base;
-    });
-    try {
-      // Lines already numbered (another band of the species) are fitted with it: a level the two bands share must
-      // fit both, which no misnumbered band does.
-      const all = [...lines, ...anchors];
-      const d = fitLineListDetailed(all, masses, { levelsOnly: true, rejectionThreshold: 0 });
-      const r = d.result;
-      const stated = statedChiSquare(r, all);
-      const origin = originOf(r, band);
-      const spacing = localSpacing(map, peaks);
-      const rms = r.statistics.rms;
-      const sigmas = peaks.flatMap((p) => (p.uncertainty !== undefined ? [p.uncertainty] : []));
-      const tol = Math.min(Math.max(4 * rms, 4 * (sigmas.length > 0 ? median(sigmas) : 0)), 0.1 * spacing);
-      let lineAtOrigin = false;
-      if (origin !== undefined) {
-        const k = lowerBound(pos, origin - tol);
-        lineAtOrigin = k < pos.length && (pos[k] as number) <= origin + tol;
-      }
-      return {
-        map,
-        q,
-        delta,
-        band,
-        result: r,
-        chiSquare: stated ?? (r.statistics.reducedChiSquare ?? 1) * Math.max(1, r.statistics.degreesOfFreedom),
-        dof: Math.max(1, r.statistics.degreesOfFreedom),
-        reducedChiSquare:
-          stated !== undefined
-            ? stated / Math.max(1, r.statistics.degreesOfFreedom)
-            : (r.statistics.reducedChiSquare ?? Number.POSITIVE_INFINITY),
-        ...(origin !== undefined ? { origin } : {}),
-        lineAtOrigin,
-        intercept: differenceIntercept(map, peaks),
-        unitSigma: peaks.some((p) => p.uncertainty === undefined) ? (r.scatter?.[0]?.sigma ?? rms) : 1,
-        boltzmann: boltzmannResiduals(map, peaks, r, band),
-        kratzer: kratzerTest(r, band),
-      };
-    } catch (e) {
-      if (e instanceof ScienceError) return undefined;
-      throw e;
-    }
+/** The peaks as a line list numbered by `map` (the others unassigned). */
+function numberedLines(map: Numbering, ctx: StructureContext): LineInput[] {
+  const { peaks, species, band } = ctx;
+  return peaks.map((pk, index) => {
+    const t = map.get(index);
+    const base = { position: pk.position, ...(pk.uncertainty !== undefined ? { uncertainty: pk.uncertainty } : {}) };
+    return t ? { ...base, assignment: { species, band, branch: t.branch, j: t.j, source: 'auto' as const } } : base;
+  });
+}
+
+/** Whether a peak lies within the fit's tolerance of the numbering's band origin. */
+function lineAtOriginOf(origin: number | undefined, rms: number, map: Numbering, ctx: StructureContext): boolean {
+  if (origin === undefined) return false;
+  const { peaks, pos } = ctx;
+  const spacing = localSpacing(map, peaks);
+  const sigmas = peaks.flatMap((p) => (p.uncertainty !== undefined ? [p.uncertainty] : []));
+  const tol = Math.min(Math.max(4 * rms, 4 * (sigmas.length > 0 ? median(sigmas) : 0)), 0.1 * spacing);
+  const k = lowerBound(pos, origin - tol);
+  return k < pos.length && (pos[k] as number) <= origin + tol;
+}
+
+/** One numbering fitted and tested; undefined when the fit refuses it. */
+function judge(map: Numbering, q: number, delta: number, ctx: StructureContext): Trial | undefined {
+  const { peaks, band, anchors, masses } = ctx;
+  try {
+    // Lines already numbered (another band of the species) are fitted with it: a level the two bands share must
+    // fit both, which no misnumbered band does.
+    const all = [...numberedLines(map, ctx), ...anchors];
+    const d = fitLineListDetailed(all, masses, { levelsOnly: true, rejectionThreshold: 0 });
+    const r = d.result;
+    const stated = statedChiSquare(r, all);
+    const origin = originOf(r, band);
+    const rms = r.statistics.rms;
+    return {
+      map,
+      q,
+      delta,
+      band,
+      result: r,
+      chiSquare: stated ?? (r.statistics.reducedChiSquare ?? 1) * Math.max(1, r.statistics.degreesOfFreedom),
+      dof: Math.max(1, r.statistics.degreesOfFreedom),
+      reducedChiSquare:
+        stated !== undefined
+          ? stated / Math.max(1, r.statistics.degreesOfFreedom)
+          : (r.statistics.reducedChiSquare ?? Number.POSITIVE_INFINITY),
+      ...(origin !== undefined ? { origin } : {}),
+      lineAtOrigin: lineAtOriginOf(origin, rms, map, ctx),
+      intercept: differenceIntercept(map, peaks),
+      unitSigma: peaks.some((p) => p.uncertainty === undefined) ? (r.scatter?.[0]?.sigma ?? rms) : 1,
+      boltzmann: boltzmannResiduals(map, peaks, r, band),
+      kratzer: kratzerTest(r, band),
+    };
+  } catch (e) {
+    if (e instanceof ScienceError) return undefined;
+    throw e;
   }
 }
 
