@@ -141,11 +141,14 @@ const badness = (c: CurveCheck) => Math.max(c.worstIntervalError / 0.01, c.worst
 
 export function refineRkrCurve(input: RefineInput): RefinedCurve | undefined {
   const basis = correctionBasis(input.vMax + 1, input.degree ?? 4);
-  // The identity start suffices when the quantum correction is small (HCl, DCl, CO); when it does not reach the
-  // goals (HF above v = 4), the response is measured instead, one solve per correction term.
-  const first = iterate(input, basis, 'identity');
+  // The identity start suffices when the quantum correction is small (HCl, DCl, CO to v = 20); when it does not
+  // reach the goals (HF above v = 4, CO to v = 40), damped Gauss–Newton with the response measured in every round
+  // takes over, with one more correction term when there are levels for it (newtonDegree).
+  const first = iterate(input, basis);
   const run =
-    first.best && badness(first.best.check) <= 1 ? first : better(first, iterate(input, basis, 'finite-difference'));
+    first.best && badness(first.best.check) <= 1
+      ? first
+      : better(first, newtonIterate(input, correctionBasis(input.vMax + 1, newtonDegree(input))));
   const kept = run.best;
   if (!kept) return undefined;
   return {
@@ -173,13 +176,35 @@ interface Run {
 
 const better = (a: Run, b: Run): Run => (!b.best || (a.best && badness(a.best.check) <= badness(b.best.check)) ? a : b);
 
+/** Numerov on the RKR curve of the corrected constants, compared with the targets; counts its solves. */
+function curveSolver(input: RefineInput, basis: Basis) {
+  const count = input.vMax + 1;
+  let n = 0;
+  const solve = (pars: Float64Array): CurveCheck | undefined => {
+    n++;
+    const solved = solveOnRkrCurve(
+      basis.apply(input.series, pars),
+      input.hbar2Over2mu,
+      input.vTop,
+      count,
+      input.points,
+    );
+    const check =
+      solved && solved.levels.length === count ? compareLevels(input.series, solved.grid, solved.levels) : undefined;
+    return check && Number.isFinite(check.worstIntervalError) && Number.isFinite(check.worstRotationalRelativeError)
+      ? check
+      : undefined;
+  };
+  return { solve, solves: () => n };
+}
+
 /**
  * Rounds of least-squares steps J s ≈ −r on the correction parameters. J starts as the identity response of the
- * levels (−A: a change ΔG, ΔB moves the levels by as much) or as measured by finite differences, and is updated by
- * Broyden's rank-one rule (C. G. Broyden, Math. Comp. 19, 577 (1965)) from each round's change of the residuals.
+ * levels (−A: a change ΔG, ΔB moves the levels by as much) and is updated by Broyden's rank-one rule
+ * (C. G. Broyden, Math. Comp. 19, 577 (1965)) from each round's change of the residuals.
  */
-function iterate(input: RefineInput, basis: Basis, start: JacobianStart): Run {
-  const { series: target, hbar2Over2mu: C, vMax, vTop } = input;
+function iterate(input: RefineInput, basis: Basis): Run {
+  const { series: target, vMax } = input;
   const count = vMax + 1;
   const maxRounds = input.maxRounds ?? 10;
   const p = basis.kg + basis.kb;
@@ -188,16 +213,7 @@ function iterate(input: RefineInput, basis: Basis, start: JacobianStart): Run {
   const jac = new Float64Array(rows * p);
   for (let i = 0; i < rows; i++) for (let k = 0; k < p; k++) jac[i * p + k] = -basis.design(i, k, target);
   const rounds: RefinedCurve['rounds'][number][] = [];
-  let solves = 0;
-  const solve = (pars: Float64Array) => {
-    solves++;
-    const solved = solveOnRkrCurve(basis.apply(target, pars), C, vTop, count, input.points);
-    const check =
-      solved && solved.levels.length === count ? compareLevels(target, solved.grid, solved.levels) : undefined;
-    return check && Number.isFinite(check.worstIntervalError) && Number.isFinite(check.worstRotationalRelativeError)
-      ? check
-      : undefined;
-  };
+  const { solve, solves } = curveSolver(input, basis);
   let best: Run['best'];
   let last: { r: Float64Array; step: Float64Array } | undefined;
   let stalled = 0;
@@ -226,15 +242,13 @@ function iterate(input: RefineInput, basis: Basis, start: JacobianStart): Run {
     // Good to a hundredth of the goals: stop.
     if (badness(check) < 0.01) break;
     const r = scaledResiduals(check);
-    if (round === 0 && start === 'finite-difference')
-      measureResponse(jac, rows, p, r, (k) => basis.probe(k, vMax, target), params, solve);
     if (last) broydenUpdate(jac, rows, p, last.step, r, last.r);
     const step = gaussNewtonStep(jac, rows, p, r);
     if (!step) break;
     for (let k = 0; k < p; k++) params[k] = (params[k] as number) + (step[k] as number);
     last = { r, step };
   }
-  return { start, best, rounds, solves };
+  return { start: 'identity', best, rounds, solves: solves() };
 }
 
 /** Column k of J by a forward difference of size probe(k) (a change of ~0.1 cm⁻¹ or 1e-5 B_e at the top level). */
@@ -348,4 +362,64 @@ function turningPointsAt(series: VibrationalSeries, C: number, energy: number): 
   }
   const tp = rkrTurningPoints({ series, hbar2Over2mu: C }, x - 0.5);
   return { rMin: tp.rMin, rMax: tp.rMax };
+}
+
+/**
+ * Damped Gauss–Newton on the correction parameters: the response of the levels measured afresh by forward
+ * differences in every round (one solve per parameter), the step halved until the sum of squared scaled residuals
+ * falls (at most five halvings). Stops within half the goals, or after a round that gains less than 10 %.
+ */
+function newtonIterate(input: RefineInput, basis: Basis): Run {
+  const { series: target, vMax } = input;
+  const maxRounds = input.maxRounds ?? 10;
+  const p = basis.kg + basis.kb;
+  const rows = 2 * (vMax + 1) - 1;
+  const { solve, solves } = curveSolver(input, basis);
+  const rounds: RefinedCurve['rounds'][number][] = [];
+  const note = (c: CurveCheck) =>
+    rounds.push({
+      worstIntervalError: c.worstIntervalError,
+      worstRotationalRelativeError: c.worstRotationalRelativeError,
+    });
+  let params: Float64Array = new Float64Array(p);
+  let check = solve(params);
+  if (!check) return { start: 'finite-difference', best: undefined, rounds, solves: solves() };
+  note(check);
+  const jac = new Float64Array(rows * p);
+  for (let round = 0; round < maxRounds && badness(check) > 0.5; round++) {
+    const r = scaledResiduals(check);
+    for (let i = 0; i < rows; i++) for (let k = 0; k < p; k++) jac[i * p + k] = -basis.design(i, k, target);
+    measureResponse(jac, rows, p, r, (k) => basis.probe(k, vMax, target), params, solve);
+    const step = gaussNewtonStep(jac, rows, p, r);
+    if (!step) break;
+    const before = sumSquares(r);
+    let next: { params: Float64Array; check: CurveCheck } | undefined;
+    for (let t = 1, h = 0; h <= 5 && !next; h++, t /= 2) {
+      const trial = params.map((x, k) => x + t * (step[k] as number));
+      const c = solve(trial);
+      if (c && sumSquares(scaledResiduals(c)) < before) next = { params: trial, check: c };
+    }
+    if (!next) break;
+    const gain = badness(next.check) / badness(check);
+    params = next.params;
+    check = next.check;
+    note(check);
+    if (gain > 0.9) break;
+  }
+  return { start: 'finite-difference', best: { series: basis.apply(target, params), check }, rounds, solves: solves() };
+}
+
+/**
+ * The degree of the corrections for the Newton run: one more than the identity run's 4 when there are at least
+ * six levels above v = 0 to fix it, at most 6 (a square system, as many terms as residuals, does not converge:
+ * HF v ≤ 6 at degree 6 stalls at 1.8 cm⁻¹).
+ */
+function newtonDegree(input: RefineInput): number {
+  return Math.min(6, Math.max(input.degree ?? 4, input.vMax - 1));
+}
+
+function sumSquares(r: Float64Array): number {
+  let s = 0;
+  for (const x of r) s += x * x;
+  return s;
 }

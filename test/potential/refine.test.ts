@@ -45,15 +45,18 @@ describe('refined curve: the Numerov round trip meets 0.01 cm⁻¹ and 1e-4 wher
   //   HCl v ≤ 6: 0.658, 2.2e-4 → 0.0022, 7.7e-7 (9);  DCl v ≤ 6: 1.285, 2.3e-4 → 0.0006, 2.5e-7 (9);
   //   CO v ≤ 5: 0.0097, 1.3e-6 → 1e-5, 1.5e-9 (3);     CO v ≤ 20: 0.174, 1.2e-5 → 0.0008, 2.3e-7 (7);
   //   HF v ≤ 4: 18.9, 3.3e-3 → 0.0002, 2.1e-8 (10);
-  //   HF v ≤ 5: 33.6, 6.1e-3 → identity start 0.157 (short), measured-response start 0.0026, 7.3e-5 (29 solves in all);
-  //   HF v ≤ 6: 62.8 → 0.0081 cm⁻¹ but B_v 2.1e-4: NOT met (below).
+  //   HF v ≤ 5: 33.6, 6.1e-3 → identity start 0.157 (short), damped Newton (degree 4) 0.0026, 7.1e-5 (41 solves);
+  //   HF v ≤ 6: 62.8, 1.2e-2 → identity start short, damped Newton (degree 5) 0.0015, 3.5e-5 (45 solves);
+  //   CO v ≤ 40: 1.81, 2.4e-4 → identity start 0.0148, 2.0e-4 (short), damped Newton (degree 6) 0.00095, 3.1e-5.
   const cases: [string, number][] = [
     ['HCl', 6],
     ['DCl', 6],
     ['CO', 5],
     ['CO', 20],
+    ['CO', 40],
     ['HF', 4],
     ['HF', 5],
+    ['HF', 6],
   ];
   for (const [name, vMax] of cases) {
     it(`${name}, v = 0…${vMax}: within 0.01 cm⁻¹ and 1e-4 (first order: not, except CO v ≤ 5)`, () => {
@@ -67,7 +70,7 @@ describe('refined curve: the Numerov round trip meets 0.01 cm⁻¹ and 1e-4 wher
     });
   }
 
-  it('HF to v = 6 is not refined to the goals with these (recalled) constants (B_v 2.1e-4), and says so', () => {
+  it('HF to v = 6 through potentialCurves: the Newton run meets the goals and no shortfall is warned of', () => {
     const coefficients: DunhamCoefficient[] = [
       { k: 1, l: 0, value: 4138.32 },
       { k: 2, l: 0, value: -89.88 },
@@ -82,14 +85,13 @@ describe('refined curve: the Numerov round trip meets 0.01 cm⁻¹ and 1e-4 wher
       vMax: 6,
     });
     // Measured: first order 62.8 cm⁻¹ at v = 6; the identity start stops at 13.7 cm⁻¹ (its RKR curve turns
-    // multi-valued), the measured-response start at 0.0081 cm⁻¹ and B_v 2.1e-4 (27 solves). The first-order inner
-    // wall of these constants steepens from 8e4 to 6e5 cm⁻¹/Å between v = 1 and 9, so the quantum correction is
-    // large and far from a small perturbation; the v = 0 shift, 4.87 cm⁻¹, is 0.74 from Dunham's Y00 (4.13).
-    expect(r.refined?.withinGoals).toBe(false);
+    // multi-valued); Broyden from a measured response stalled at B_v 2.1e-4 (the degree-4 corrections leave an
+    // alternating residual over 7 levels); damped Newton with degree-5 corrections: 0.0015 cm⁻¹, 3.5e-5.
+    expect(r.refined?.withinGoals).toBe(true);
     expect(r.refined?.start).toBe('finite-difference');
     expect(r.refined?.worstIntervalError).toBeLessThan(0.01);
-    expect(r.refined?.worstRotationalRelativeError).toBeGreaterThan(1e-4);
-    expect(r.warnings.map((w) => w.code)).toContain('POTENTIAL_REFINEMENT_SHORT');
+    expect(r.refined?.worstRotationalRelativeError).toBeLessThan(1e-4);
+    expect(r.warnings.map((w) => w.code)).not.toContain('POTENTIAL_REFINEMENT_SHORT');
   });
 });
 
