@@ -29,6 +29,9 @@ export function solveRadialLevels(
   hbar2Over2mu: number,
   grid: RadialGrid,
   count: number,
+  /** Near guesses of the levels (e.g. those of a slightly different curve): the bisection starts in a bracket of
+   *  ±1 cm⁻¹ about each, widened eightfold until it holds, instead of from the bottom of the well to the top. */
+  guesses?: readonly number[],
 ): RadialLevel[] {
   const n = Math.floor((grid.to - grid.from) / grid.step) + 1;
   if (!(grid.from > 0) || n < 10 || n > 2_000_000)
@@ -73,6 +76,9 @@ export function solveRadialLevels(
     let lo = v === 0 ? vMin : (out[v - 1] as RadialLevel).energy;
     let hi = vCap;
     if (nodesBelow(hi) <= v) break; // no more bound levels inside the grid
+    const guess = guesses?.[v];
+    if (guess !== undefined && Number.isFinite(guess) && guess > lo && guess < hi)
+      [lo, hi] = bracketNear(guess, lo, hi, v);
     for (let it = 0; it < 200 && hi - lo > 1e-11 * Math.max(1, Math.abs(hi)); it++) {
       const mid = 0.5 * (lo + hi);
       if (nodesBelow(mid) <= v) lo = mid;
@@ -82,6 +88,20 @@ export function solveRadialLevels(
     out.push({ v, energy: E, rotational: hbar2Over2mu * inverseSquareMean(E) });
   }
   return out;
+
+  /** [lo, hi] ⊂ [floor, ceiling] about `guess` with nodesBelow(lo) ≤ v < nodesBelow(hi) (floor and ceiling are). */
+  function bracketNear(guess: number, floor: number, ceiling: number, v: number): [number, number] {
+    let lo = floor;
+    let hi = ceiling;
+    for (let w = 1; w < ceiling - floor; w *= 8) {
+      const a = Math.max(lo, guess - w);
+      const b = Math.min(hi, guess + w);
+      if (a > lo && nodesBelow(a) > v) hi = a;
+      else if (b < hi && nodesBelow(b) <= v) lo = b;
+      else return [a, b];
+    }
+    return [lo, hi];
+  }
 
   function inverseSquareMean(E: number): number {
     for (let i = 0; i < n; i++) t[i] = k * ((V[i] as number) - E);

@@ -101,6 +101,7 @@ export function solveOnRkrCurve(
   vTop: number,
   count: number,
   points = 6000,
+  guesses?: readonly number[],
 ): { model: RkrCurveModel; grid: RadialGridUsed; levels: RadialLevel[] } | undefined {
   const model = rkrCurveModel(series, C, vTop);
   if (!model) return undefined;
@@ -108,7 +109,7 @@ export function solveOnRkrCurve(
   const from = Math.max(model.inner - 0.25 * width, 0.2 * model.inner);
   const to = model.outer + 0.5 * width;
   const step = (to - from) / (points - 1);
-  const levels = solveRadialLevels(model.potential, C, { from, to, step }, count);
+  const levels = solveRadialLevels(model.potential, C, { from, to, step }, count, guesses);
   return { model, grid: { from, to, step, points }, levels };
 }
 
@@ -180,7 +181,8 @@ const better = (a: Run, b: Run): Run => (!b.best || (a.best && badness(a.best.ch
 function curveSolver(input: RefineInput, basis: Basis) {
   const count = input.vMax + 1;
   let n = 0;
-  const solve = (pars: Float64Array): CurveCheck | undefined => {
+  /** `near`: a check of a nearby curve, whose levels start the bisections. */
+  const solve = (pars: Float64Array, near?: CurveCheck): CurveCheck | undefined => {
     n++;
     const solved = solveOnRkrCurve(
       basis.apply(input.series, pars),
@@ -188,6 +190,7 @@ function curveSolver(input: RefineInput, basis: Basis) {
       input.vTop,
       count,
       input.points,
+      near?.levels.map((l) => l.energy),
     );
     const check =
       solved && solved.levels.length === count ? compareLevels(input.series, solved.grid, solved.levels) : undefined;
@@ -389,14 +392,23 @@ function newtonIterate(input: RefineInput, basis: Basis): Run {
   for (let round = 0; round < maxRounds && badness(check) > 0.5; round++) {
     const r = scaledResiduals(check);
     for (let i = 0; i < rows; i++) for (let k = 0; k < p; k++) jac[i * p + k] = -basis.design(i, k, target);
-    measureResponse(jac, rows, p, r, (k) => basis.probe(k, vMax, target), params, solve);
+    const here = check;
+    measureResponse(
+      jac,
+      rows,
+      p,
+      r,
+      (k) => basis.probe(k, vMax, target),
+      params,
+      (pars) => solve(pars, here),
+    );
     const step = gaussNewtonStep(jac, rows, p, r);
     if (!step) break;
     const before = sumSquares(r);
     let next: { params: Float64Array; check: CurveCheck } | undefined;
     for (let t = 1, h = 0; h <= 5 && !next; h++, t /= 2) {
       const trial = params.map((x, k) => x + t * (step[k] as number));
-      const c = solve(trial);
+      const c = solve(trial, here);
       if (c && sumSquares(scaledResiduals(c)) < before) next = { params: trial, check: c };
     }
     if (!next) break;

@@ -65,6 +65,22 @@ describe('Numerov radial solver', () => {
     expect(levels).toHaveLength(11);
     for (const l of levels) expect(Math.abs(l.energy - G(l.v + 0.5))).toBeLessThan(1e-4);
   });
+  it('gives the same levels when started from guesses, near or far off (1e-6 cm⁻¹, B to 1e-9)', () => {
+    const grid = { from: 0.7, to: 3.2, step: 4e-4 };
+    const plain = solveRadialLevels((r) => morseEnergy(M, r), C, grid, 11);
+    // Guesses ±0.3 cm⁻¹ (a nearby curve), 50 cm⁻¹ high, 900 cm⁻¹ low (below the level before), and none.
+    const offsets = [0.3, -0.3, 50, -900, Number.NaN];
+    for (const d of offsets) {
+      const guesses = plain.map((l, i) => l.energy + (i % 2 === 0 ? d : -d));
+      const guessed = solveRadialLevels((r) => morseEnergy(M, r), C, grid, 11, guesses);
+      expect(guessed).toHaveLength(11);
+      guessed.forEach((l, v) => {
+        expect(Math.abs(l.energy - (plain[v]?.energy as number)), `offset ${d}, v = ${v}`).toBeLessThan(1e-6);
+        expect(Math.abs(l.rotational / (plain[v]?.rotational as number) - 1)).toBeLessThan(1e-9);
+      });
+    }
+  });
+
   it('finds no more levels than the grid holds', () => {
     const levels = solveRadialLevels(
       (r) => Math.min(morseEnergy(M, r), 5000),
