@@ -370,7 +370,7 @@ function turningPointsAt(series: VibrationalSeries, C: number, energy: number): 
 /**
  * Damped Gauss–Newton on the correction parameters: the response of the levels measured afresh by forward
  * differences in every round (one solve per parameter), the step halved until the sum of squared scaled residuals
- * falls (at most five halvings). Stops within half the goals, or after a round that gains less than 10 %.
+ * falls (at most five halvings). Stops within half the goals, or after a round that gains less than 30 %.
  */
 function newtonIterate(input: RefineInput, basis: Basis): Run {
   const { series: target, vMax } = input;
@@ -416,7 +416,7 @@ function newtonIterate(input: RefineInput, basis: Basis): Run {
     params = next.params;
     check = next.check;
     note(check);
-    if (gain > 0.9) break;
+    if (gain > 0.7) break;
   }
   return { start: 'finite-difference', best: { series: basis.apply(target, params), check }, rounds, solves: solves() };
 }
