@@ -106,3 +106,76 @@ describe('modes', () => {
     );
   });
 });
+
+describe('more of the glue', () => {
+  it('absolute mode with no degree of freedom stays absolute without a mode warning', () => {
+    const l = lines([{ upper: 1, lower: 0, jMax: 1 }], 0.001);
+    const { result } = fitLineListDetailed(l, new Map([['12C-16O', MU_CO]]), {
+      levelsOnly: true,
+      uncertaintyMode: 'absolute',
+    });
+    expect(result.statistics.uncertaintyMode).toBe('absolute');
+    expect(result.statistics.degreesOfFreedom).toBe(0);
+    expect(result.warnings.map((x) => x.code)).not.toContain('UNCERTAINTY_MODE_CHANGED');
+  });
+
+  it('two species: each Dunham fit holds its own lines only (its degrees of freedom count them)', () => {
+    const l = [
+      ...lines(
+        [
+          { upper: 1, lower: 0, jMax: 20 },
+          { upper: 2, lower: 0, jMax: 20 },
+        ],
+        0.001,
+      ),
+      ...lines([{ upper: 1, lower: 0, jMax: 15 }], 0.001, OTHER, 95),
+    ];
+    const { result } = fitLineListDetailed(
+      l,
+      new Map([
+        ['12C-16O', MU_CO],
+        [OTHER, MU_CO],
+      ]),
+    );
+    const co = result.dunham.find((d) => d.species === '12C-16O');
+    const other = result.dunham.find((d) => d.species === OTHER);
+    // 82 lines of CO (41 per band), 31 of the other; each fit's ν = its lines − its selected terms.
+    const selected = (d: typeof co) => (d?.terms.length as number) - (d?.constrained?.length ?? 0);
+    expect(co?.statistics.degreesOfFreedom).toBe(82 - selected(co));
+    expect(other?.statistics.degreesOfFreedom).toBe(31 - selected(other));
+    // And B_e of CO from its own lines: within 4σ of Huber & Herzberg's 1.93128087 cm⁻¹, σ below 1e-4.
+    const be = result.equilibrium.find((e) => e.species === '12C-16O')?.B_e;
+    expect(be?.uncertainty as number).toBeLessThan(1e-4);
+    expect(Math.abs((be?.value as number) - 1.93128087)).toBeLessThan(4 * (be?.uncertainty as number));
+  });
+
+  it('a Dunham fit with nothing constrained adds nothing to the list of constraints', () => {
+    // Pure rotation in v = 0 and 1 of a species the library lacks, fitted to D: no ω_e, so no Dunham prior.
+    const l = lines(
+      [
+        { upper: 0, lower: 0, jMax: 30 },
+        { upper: 1, lower: 1, jMax: 30 },
+      ],
+      1e-4,
+      OTHER,
+    );
+    const { result } = fitLineListDetailed(l, new Map([[OTHER, MU_CO]]));
+    expect(result.dunham).toHaveLength(1);
+    expect(result.dunham[0]).not.toHaveProperty('constrained');
+    for (const c of result.model.constraints) expect(typeof c.parameter).toBe('string');
+    expect(result.model.constraints.every((c) => !c.parameter.startsWith('Y'))).toBe(true);
+  });
+
+  it('stated σ rescaled per group: the level fit that follows uses the rescaled weights (χ²/ν near 1)', () => {
+    // 1-0 right (σ 0.001 stated and true), 2-0 stating 0.001 for a scatter of 0.01: 2-0 is rescaled about tenfold.
+    const good = lines([{ upper: 1, lower: 0, jMax: 25 }], 0.001);
+    const bad = lines([{ upper: 2, lower: 0, jMax: 25 }], 0.01, undefined, 96).map((x) => ({
+      ...x,
+      uncertainty: 0.001,
+    }));
+    const { result } = fitLineListDetailed([...good, ...bad], new Map([['12C-16O', MU_CO]]), { levelsOnly: true });
+    expect(result.warnings.map((x) => x.code)).toContain('UNCERTAINTY_RESCALED');
+    // Without the rescaled weights χ²/ν would be about (51 + 51 × 100)/102 ≈ 50.
+    expect(result.statistics.reducedChiSquare as number).toBeLessThan(2);
+  });
+});
