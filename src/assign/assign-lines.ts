@@ -101,11 +101,12 @@ const FEW_LINES = 30;
 /** Largest ratio of a fitted prediction's standard uncertainty to the scatter of the lines. */
 const MAX_MODEL_TO_NOISE = 2;
 /**
- * The inner fits reuse the previous round's scatter estimate of the lines without σ while each group has changed by
- * at most this fraction of its lines since it was estimated (weights.ts#ScatterReuse); the final fit estimates its
- * own.
+ * The inner fits take their weights for lines without σ from the scatter the last round's fit left on its residuals
+ * (DetailedFit.scatterOfResiduals: no extra fits) while each group (band or source) has changed by at most this
+ * fraction of its lines since that fit and no group is new or crosses MIN_SCATTER_GROUP (weights.ts#ScatterReuse);
+ * otherwise, and in the final fit, the scatter is estimated afresh.
  */
-const SCATTER_REUSE_GROWTH = 0.1;
+const SCATTER_REUSE_GROWTH = 0.5;
 /** Lines of a band below which its scatter is pooled with all bands. */
 const MIN_FOR_OWN_SCATTER = 8;
 /**
@@ -406,7 +407,8 @@ function iterateAssignment(ctx: AssignContext, offsets: OffsetVotes, state: Loop
  */
 function roundFit(ctx: AssignContext, state: LoopState, next: Map<number, CandidateLine>): DetailedFit | undefined {
   if (state.detailed && state.detailedIsOfAuto && sameAssignments(state.auto, next)) return state.detailed;
-  return fitDroppingThinBands(ctx, next, state.detailed?.scatterEstimate);
+  const last = state.detailed;
+  return fitDroppingThinBands(ctx, next, last && (last.scatterOfResiduals() ?? last.scatterEstimate));
 }
 
 const isBanned = (banned: LoopState['banned'], k: number, iter: number) => {

@@ -16,7 +16,7 @@ import { rescaleStatedUncertainties } from './stated-scale.js';
 import { constrainLevelModel, type TermConstraint } from './truncation.js';
 import type { DetailedFit, DunhamFit, FitOptions, FitResult, LineInput, Statistics, Warning } from './types.js';
 import { absoluteScaleWarnings, checkRepeats, qualityWarnings } from './warnings.js';
-import { type ScatterReuse, type WeightedLines, weighLines } from './weights.js';
+import { type ScatterReuse, scatterOfFit, type WeightedLines, weighLines } from './weights.js';
 
 export type { TermConstraint } from './truncation.js';
 export type {
@@ -137,7 +137,7 @@ export function fitLineListDetailed(
     ...(prepared.weighted.groups.length > 0 ? { scatter: prepared.weighted.groups } : {}),
     warnings,
   };
-  return detailedFit(result, fit, structure.reference, selected, kept.mode, prepared);
+  return detailedFit(result, fit, structure.reference, selected, kept.mode, prepared, input);
 }
 
 interface FitSettings {
@@ -333,7 +333,8 @@ function detailedFit(
   ref: LevelStructure['reference'],
   selected: SolvedModel,
   mode: UncertaintyMode,
-  { weighted, stated }: PreparedObservations,
+  { weighted, stated, observations }: PreparedObservations,
+  input: readonly LineInput[],
 ): DetailedFit {
   const scale = mode === 'absolute' ? 1 : (reducedChiSquare(selected) ?? 1);
   return {
@@ -356,6 +357,7 @@ function detailedFit(
         weight: 1,
       });
     },
+    scatterOfResiduals: () => scatterOfFit(input, observations, selected),
     lineSigma(tr, own) {
       const band = formatBand(tr.band);
       const sigma =

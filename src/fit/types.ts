@@ -169,4 +169,9 @@ export interface DetailedFit {
   lineSigma(t: Transition, own?: { readonly uncertainty?: number; readonly source?: string }): number;
   /** The scatter estimate of the lines without σ, when there were such lines (for `FitOptions.reuseScatter`). */
   readonly scatterEstimate?: ScatterEstimate;
+  /**
+   * The scatter the selected level fit leaves on its lines without σ (weights.ts#scatterOfFit), for the next fit of a
+   * grown list to reuse (`FitOptions.reuseScatter`) without estimating afresh; undefined when it cannot be measured.
+   */
+  scatterOfResiduals(): ScatterEstimate | undefined;
 }

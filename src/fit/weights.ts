@@ -1,6 +1,7 @@
 import { type Observation, reweighted } from '../models/linear-model.js';
 import { formatBand } from '../models/transitions.js';
 import { median, robustSigma } from '../stats/robust.js';
+import type { SolvedModel } from './engine.js';
 import { type LevelSelection, selectLevelModel } from './level-selection.js';
 import type { LineInput, Warning } from './types.js';
 
@@ -225,24 +226,11 @@ function estimateScatter(
       break;
     }
     const f = level.fit;
-    if (f.degreesOfFreedom < 2 || f.leverages.length !== f.observations.length) break;
-    const byGroup = new Map<string, number[]>();
-    const all: number[] = [];
-    f.observations.forEach((o, i) => {
-      if (!withoutSigma(o)) return;
-      const h = Math.min(f.leverages[i] as number, 1 - 1e-9);
-      const e = (f.residuals[i] as number) / Math.sqrt(1 - h);
-      all.push(e);
-      const k = groupOf(o);
-      const list = byGroup.get(k) ?? [];
-      list.push(e);
-      byGroup.set(k, list);
-    });
-    if (all.length < 3) break;
-    pooled = scatterOf(all);
-    sigmas = new Map();
-    if (round === 0) counts = new Map([...byGroup].map(([k, v]) => [k, v.length]));
-    for (const [k, e] of byGroup) if (e.length >= MIN_SCATTER_GROUP) sigmas.set(k, scatterOf(e));
+    const measured = measureScatter(f, withoutSigma, groupOf);
+    if (!measured) break;
+    pooled = measured.pooled;
+    sigmas = measured.sigmas;
+    if (round === 0) counts = measured.counts;
     const sigmaOf = (o: Observation) => sigmas.get(groupOf(o)) ?? pooled;
     gross = new Set();
     f.observations.forEach((o, i) => {
@@ -252,6 +240,73 @@ function estimateScatter(
     obs = reweighted(observations, (o) => (withoutSigma(o) ? 1 / sigmaOf(o) ** 2 : undefined));
   }
   return { observations: obs, sigmas, pooled, counts, labels, fallback, estimatedAt: counts };
+}
+
+/**
+ * One estimating round's measure on a fit: per group (of MIN_SCATTER_GROUP lines or more) and pooled, the scatter of
+ * the leverage-corrected residuals eᵢ/√(1 − hᵢᵢ) of its lines without σ, and how many such lines each group has.
+ * Undefined when the fit leaves under two degrees of freedom, has no leverages, or has fewer than three such lines.
+ */
+function measureScatter(
+  f: SolvedModel,
+  withoutSigma: (o: Observation) => boolean,
+  groupOf: (o: Observation) => string,
+): { pooled: number; sigmas: Map<string, number>; counts: Map<string, number> } | undefined {
+  if (f.degreesOfFreedom < 2 || f.leverages.length !== f.observations.length) return undefined;
+  const byGroup = new Map<string, number[]>();
+  const all: number[] = [];
+  f.observations.forEach((o, i) => {
+    if (!withoutSigma(o)) return;
+    const h = Math.min(f.leverages[i] as number, 1 - 1e-9);
+    const e = (f.residuals[i] as number) / Math.sqrt(1 - h);
+    all.push(e);
+    const k = groupOf(o);
+    const list = byGroup.get(k) ?? [];
+    list.push(e);
+    byGroup.set(k, list);
+  });
+  if (all.length < 3) return undefined;
+  const sigmas = new Map<string, number>();
+  for (const [k, e] of byGroup) if (e.length >= MIN_SCATTER_GROUP) sigmas.set(k, scatterOf(e));
+  return { pooled: scatterOf(all), sigmas, counts: new Map([...byGroup].map(([k, v]) => [k, v.length])) };
+}
+
+/**
+ * The scatter a finished fit leaves on its lines without σ (measured as one estimating round measures it, on the
+ * fit's kept lines), as an estimate for a later fit of the grown list to reuse (`ScatterReuse`): the inner fits of
+ * the automatic assignment, whose list grows a few lines a round, take their weights from the last round's
+ * residuals instead of estimating afresh with two extra level fits each. Its counts are those of all `observations`
+ * without σ (rejected lines too), as the next fit's reuse test counts them. Undefined when the fit cannot measure it.
+ */
+export function scatterOfFit(
+  input: readonly SigmaInput[],
+  observations: readonly Observation[],
+  fit: SolvedModel,
+): ScatterEstimate | undefined {
+  const withoutSigma = (o: Observation) => input[o.index]?.uncertainty === undefined;
+  const labels = new Map<string, string>();
+  const groupOf = scatterGroupOf(input, undefined, labels);
+  const measured = measureScatter(fit, withoutSigma, groupOf);
+  if (!measured) return undefined;
+  const { sigmas, pooled } = measured;
+  const given = input.filter((l) => l.uncertainty !== undefined).map((l) => l.uncertainty as number);
+  const counts = new Map<string, number>();
+  for (const o of observations) {
+    if (!withoutSigma(o)) continue;
+    const k = groupOf(o);
+    counts.set(k, (counts.get(k) ?? 0) + 1);
+  }
+  return {
+    observations: reweighted(observations, (o) =>
+      withoutSigma(o) ? 1 / (sigmas.get(groupOf(o)) ?? pooled) ** 2 : undefined,
+    ),
+    sigmas,
+    pooled,
+    counts,
+    labels,
+    fallback: given.length > 0 ? median(given) : 1,
+    estimatedAt: counts,
+  };
 }
 
 /** The groups as reported: each with its own σ, and one pooled group for the lines of groups too small for one. */
