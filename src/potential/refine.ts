@@ -370,7 +370,8 @@ function turningPointsAt(series: VibrationalSeries, C: number, energy: number): 
 /**
  * Damped Gauss–Newton on the correction parameters: the response of the levels measured afresh by forward
  * differences in every round (one solve per parameter), the step halved until the sum of squared scaled residuals
- * falls (at most five halvings). Stops within half the goals, or after a round that gains less than 30 %.
+ * falls (at most five halvings). Stops within half the goals, after a round that gains less than 30 %, or before
+ * a round would pass 4(p + 2) solves.
  */
 function newtonIterate(input: RefineInput, basis: Basis): Run {
   const { series: target, vMax } = input;
@@ -389,7 +390,9 @@ function newtonIterate(input: RefineInput, basis: Basis): Run {
   if (!check) return { start: 'finite-difference', best: undefined, rounds, solves: solves() };
   note(check);
   const jac = new Float64Array(rows * p);
-  for (let round = 0; round < maxRounds && badness(check) > 0.5; round++) {
+  // A bound on the work whatever the curve does: about four rounds of response and step (a request has 60 s).
+  const budget = 4 * (p + 2);
+  for (let round = 0; round < maxRounds && badness(check) > 0.5 && solves() + p + 1 <= budget; round++) {
     const r = scaledResiduals(check);
     for (let i = 0; i < rows; i++) for (let k = 0; k < p; k++) jac[i * p + k] = -basis.design(i, k, target);
     const here = check;
