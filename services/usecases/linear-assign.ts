@@ -1,4 +1,5 @@
 import { identifySpecies } from '../../src/assign/identify.js';
+import { uninformativeIntensities } from '../../src/assign/intensity.js';
 import { ScienceError } from '../../src/errors.js';
 import {
   assignLinearLines,
@@ -100,7 +101,8 @@ export function withGivenAssignments(
     }
     return l;
   });
-  const byIntensity = sent.every((l) => l.intensity !== undefined && l.intensity > 0);
+  const byIntensity =
+    sent.every((l) => l.intensity !== undefined && l.intensity > 0) && !uninformativeIntensities(sent);
   const weight = (i: number) => (byIntensity ? (sent[i]?.intensity as number) : 1);
   const total = lines.reduce((t, l) => t + weight(l.index), 0);
   const left = lines.filter((l) => l.status === 'unassigned').reduce((t, l) => t + weight(l.index), 0);

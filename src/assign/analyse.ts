@@ -9,13 +9,16 @@ import {
 } from '../fit/fit-lines.js';
 import type { Band } from '../models/transitions.js';
 import { constantsFor } from '../species/library.js';
-import { elementsOnly, type Isotopologue, parseSpecies } from '../species/parse.js';
+import { elementsOnly, enrichedAtomsOnly, type Isotopologue, parseSpecies } from '../species/parse.js';
 import { type MassValue, reducedMass } from '../species/reduced-mass.js';
 import { assignAndFit, type BandSummary, type Calibration, type PeakInput } from './assign-lines.js';
 import { isotopologuesMeant } from './candidates.js';
 import { type IdentificationCandidate, identifySpecies } from './identify.js';
+import { withoutUninformativeIntensities } from './intensity.js';
 import { likelyLabels } from './relabel.js';
 import { assignByStructure, extendByFit, MIN_MARGIN, type NumberingEvidence } from './structure.js';
+
+export { uninformativeIntensities } from './intensity.js';
 
 /**
  * When nothing matches the declared species, say what the lines do match (the library's best identification, when
@@ -84,35 +87,12 @@ function dynamicRange(peaks: readonly PeakInput[]): number | undefined {
   return hi > 0 ? lo / hi : undefined;
 }
 
-/**
- * Intensities that carry no information about which line is which: every line sent with one, and either all equal
- * (a placeholder such as 1) or, over six lines or more, all within a factor 1.2 of each other. A band at any
- * temperature this service assumes spans far more than that between its strong lines near the envelope's maximum and
- * its weak high-J lines, so such a spread says nothing a Boltzmann envelope could use and would mislead the
- * intensity checks of assignment, identification and numbering. Returns why, or undefined when they may be used.
- */
-export function uninformativeIntensities(peaks: readonly { intensity?: number }[]): string | undefined {
-  const values = peaks.map((p) => p.intensity);
-  if (values.length < 2 || values.some((v) => v === undefined)) return undefined;
-  const xs = values as number[];
-  const lo = Math.min(...xs);
-  const hi = Math.max(...xs);
-  if (hi === lo) return `every line carries the same intensity (${hi})`;
-  if (xs.length >= FLAT_MIN_LINES && lo > 0 && hi / lo <= FLAT_RATIO)
-    return `all ${xs.length} intensities lie within a factor ${(hi / lo).toFixed(3)} of each other (≤ ${FLAT_RATIO}), far less than a band's Boltzmann envelope spans`;
-  return undefined;
-}
-
-/** Below this spread (strongest over weakest) over at least FLAT_MIN_LINES lines, intensities are ignored. */
-const FLAT_RATIO = 1.2;
-const FLAT_MIN_LINES = 6;
-
-/** The peaks without their intensities when these say nothing, and the warning that says so. */
-function withoutFlatIntensities(peaks: readonly PeakInput[]): { peaks: readonly PeakInput[]; warnings: Warning[] } {
-  const why = uninformativeIntensities(peaks);
+/** The peaks without their intensities when these say nothing (the shared rule of ./intensity.ts), and a warning. */
+function withoutFlatIntensities(sent: readonly PeakInput[]): { peaks: readonly PeakInput[]; warnings: Warning[] } {
+  const { peaks, why } = withoutUninformativeIntensities(sent);
   if (!why) return { peaks, warnings: [] };
   return {
-    peaks: peaks.map(({ intensity: _i, ...p }) => p),
+    peaks,
     warnings: [
       {
         code: 'INTENSITIES_IGNORED',
@@ -265,8 +245,9 @@ function resolveSpecies(
       message: `identified as ${best.name} (score ${best.score.toFixed(2)}), but ${runnerUp.name} scores ${runnerUp.score.toFixed(2)}`,
     });
   }
-  // The natural mixture of the identified molecule.
-  return { species: elementsOnly(parseSpecies(best.species)), identification, warnings };
+  // The identified molecule's mixture: natural, but an enriched isotope (the 2H of the library's DCl) kept; it was
+  // the natural mixture always, so a DCl list identified as DCl was then assigned as HCl and matched nothing.
+  return { species: enrichedAtomsOnly(parseSpecies(best.species)), identification, warnings };
 }
 
 /**

@@ -2,7 +2,7 @@ import { SECOND_RADIATION_CM_K } from '../constants/codata-2018.js';
 import { compileDunham } from '../models/dunham.js';
 import { type Band, type Branch, upperJ } from '../models/transitions.js';
 import { constantsFor, dunhamFromEntry } from '../species/library.js';
-import { elementsOnly, type Isotopologue, isotopologuesOf, naturalAbundance, parseSpecies } from '../species/parse.js';
+import { elementsOnly, type Isotopologue, isotopologueMixture, parseSpecies } from '../species/parse.js';
 import { bandStrengthGuess, relativeIntensity } from './intensity.js';
 
 /** A line the reference constants predict, with a rough relative intensity for ranking. */
@@ -33,18 +33,16 @@ export interface CandidateOptions {
 }
 
 /**
- * The isotopologues a declared species stands for: the one named when a mass number is given, otherwise the
- * natural mixture (every isotopologue above minAbundance).
+ * The isotopologues a declared species stands for (every one above minAbundance): an atom named with its mass number
+ * (or D) is fixed, a bare one is its natural mixture, so "H35Cl" is one isotopologue, "HCl" the natural mixture and
+ * "DCl" 2H-35Cl with 2H-37Cl (it was 2H-35Cl alone, which left every 2H-37Cl line of a DCl sample unassigned).
  */
 export function isotopologuesMeant(
   species: Isotopologue,
   minAbundance: number,
 ): { iso: Isotopologue; abundance: number }[] {
-  if (species.atoms.some((a) => a.explicitIsotope)) return [{ iso: species, abundance: 1 }];
-  return isotopologuesOf(species)
-    .map((iso) => ({ iso, abundance: naturalAbundance(iso) }))
-    .filter((x) => x.abundance >= minAbundance)
-    .sort((a, b) => b.abundance - a.abundance);
+  if (species.atoms.every((a) => a.explicitIsotope)) return [{ iso: species, abundance: 1 }];
+  return isotopologueMixture(species).filter((x) => x.abundance >= minAbundance);
 }
 
 /**

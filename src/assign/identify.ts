@@ -2,8 +2,9 @@ import { ScienceError } from '../errors.js';
 import { compileDunham } from '../models/dunham.js';
 import { type Band, type Branch, upperJ } from '../models/transitions.js';
 import { constantsFor, dunhamFromEntry, libraryEntries } from '../species/library.js';
-import { elementsOnly, parseSpecies } from '../species/parse.js';
+import { elementsOnly, enrichedAtomsOnly, parseSpecies } from '../species/parse.js';
 import { type CandidateOptions, candidateLines, isotopologuesMeant } from './candidates.js';
+import { uninformativeIntensities } from './intensity.js';
 import { matchLines } from './match.js';
 import { estimateOffset } from './offset.js';
 
@@ -34,9 +35,10 @@ export function identificationWindow(peaks: readonly { position: number; intensi
     lo = Math.min(lo, p.position);
     hi = Math.max(hi, p.position);
   }
-  const withIntensity = peaks.every((p) => p.intensity !== undefined);
+  // Placeholder intensities (the shared rule of ./intensity.ts) rank nothing: every line is then as strong.
+  const withIntensity = peaks.every((p) => p.intensity !== undefined) && !uninformativeIntensities(peaks);
   const strongObserved = peaks
-    .map((p, index) => ({ index, position: p.position, intensity: p.intensity ?? 1 }))
+    .map((p, index) => ({ index, position: p.position, intensity: withIntensity ? (p.intensity as number) : 1 }))
     .sort((a, b) => b.intensity - a.intensity)
     .slice(0, withIntensity ? Math.max(10, Math.ceil(peaks.length / 2)) : peaks.length);
   return { lo: lo - 1, hi: hi + 1, strongObserved };
@@ -53,7 +55,8 @@ export function identifySpecies(
 ): IdentificationCandidate[] {
   const { lo, hi, strongObserved } = identificationWindow(peaks);
   // Each pair of elements once as its natural mixture; a parent that is not the most abundant isotopologue of its
-  // elements (DCl, DF) as itself, for isotopically enriched samples.
+  // elements (DCl, DF) as its enriched atom with the other's natural mixture (DCl: 2H-35Cl and 2H-37Cl), for
+  // isotopically enriched samples.
   const seen = new Set<string>();
   const tests: { formula: string; name: string; mixture: ReturnType<typeof isotopologuesMeant> }[] = [];
   for (const e of libraryEntries().filter((x) => !x.derivedFrom)) {
@@ -65,7 +68,11 @@ export function identifySpecies(
       seen.add(elements);
       tests.push({ formula: e.formula, name: e.name, mixture: natural });
     } else {
-      tests.push({ formula: e.formula, name: e.name, mixture: [{ iso, abundance: 1 }] });
+      tests.push({
+        formula: e.formula,
+        name: e.name,
+        mixture: isotopologuesMeant(enrichedAtomsOnly(iso), options.minAbundance ?? 1e-3),
+      });
     }
   }
   const out: IdentificationCandidate[] = [];
@@ -157,7 +164,7 @@ export function identifyLabelledSpecies(
     // isotopologue of its elements (DCl, DF) as itself.
     const iso = parseSpecies(e.formula);
     const natural = isotopologuesMeant(elementsOnly(iso), 1e-3);
-    const members = natural[0]?.iso.formula === e.formula ? natural : [{ iso, abundance: 1 }];
+    const members = natural[0]?.iso.formula === e.formula ? natural : isotopologuesMeant(enrichedAtomsOnly(iso), 1e-3);
     const key = members.map((m) => m.iso.formula).join('+');
     if (seen.has(key)) continue;
     seen.add(key);

@@ -1,4 +1,5 @@
 import { identificationWindow } from '../assign/identify.js';
+import { withoutUninformativeIntensities } from '../assign/intensity.js';
 import { type Match, matchLines, type ObservedPeak } from '../assign/match.js';
 import { estimateOffset } from '../assign/offset.js';
 import { type Quantity, quantity } from '../derive/quantity.js';
@@ -285,10 +286,12 @@ function fitMatched(
  */
 export function assignLinearLines(
   speciesInput: string,
-  peaks: readonly LinearPeak[],
+  sent: readonly LinearPeak[],
   options: LinearAssignOptions = {},
 ): LinearAssignResult {
-  checkPeaks(peaks);
+  checkPeaks(sent);
+  // Placeholder intensities (the diatomic path's rule, src/assign/intensity.ts) weigh nothing.
+  const { peaks, why } = withoutUninformativeIntensities(sent);
   const species = parseLinearSpecies(speciesInput);
   const ref = referenceFor(species);
   const o = {
@@ -302,7 +305,9 @@ export function assignLinearLines(
   const bands = options.bands ?? referenceBands(ref).map((b) => ({ upper: b.upper, lower: b.lower }));
   const libEntries = levelEntries(ref);
   const cands = predictCandidates(species, ref, libEntries, bands, lo, hi, o);
-  const warnings: string[] = [];
+  const warnings: string[] = why
+    ? [`intensities ignored: ${why}, so they carry no information about which line is which (a placeholder?)`]
+    : [];
   const observed: ObservedPeak[] = peaks.map((p, index) => ({
     index,
     position: p.position,

@@ -2,7 +2,7 @@ import type { Analysis } from '../assign/analyse.js';
 import type { PeakInput } from '../assign/assign-lines.js';
 import { candidateLines, naturalAbundances } from '../assign/candidates.js';
 import { type IdentificationCandidate, identifySpecies } from '../assign/identify.js';
-import { relativeIntensity } from '../assign/intensity.js';
+import { relativeIntensity, withoutUninformativeIntensities } from '../assign/intensity.js';
 import { compileDunham } from '../models/dunham.js';
 import type { Branch } from '../models/transitions.js';
 import { constantsFor, dunhamFromEntry } from '../species/library.js';
@@ -137,7 +137,7 @@ export function checksWithoutFit(
 }
 
 export function runChecks(
-  peaks: readonly PeakInput[],
+  sent: readonly PeakInput[],
   declared: Isotopologue | undefined,
   analysis: Analysis,
   tolerances: Partial<Tolerances> = {},
@@ -145,15 +145,18 @@ export function runChecks(
   const tol = { ...DEFAULT_TOLERANCES, ...tolerances };
   const r = analysis.result;
   const main = analysis.assignment.species[0] ?? r.species[0]?.formula;
-  const temperature = temperatureCheck(peaks, analysis, main, tol);
+  // Placeholder intensities (the rule the assignment uses, src/assign/intensity.ts) weigh, rank and measure nothing.
+  const { peaks: used, why } = withoutUninformativeIntensities(sent);
+  const noIntensities = why ? `intensities ignored: ${why}` : 'the lines carry no intensities';
+  const temperature = temperatureCheck(used, analysis, main, tol, noIntensities);
   const T = (temperature.measured.temperature as { value: number } | undefined)?.value ?? 296;
   const checks = [
-    identityCheck(peaks, declared, analysis, main, tol),
-    calibrationCheck(peaks, analysis, main, tol),
-    unexplainedCheck(peaks, analysis, tol),
-    isotopeCheck(peaks, analysis, T, tol),
+    identityCheck(used, declared, analysis, main, tol),
+    calibrationCheck(used, analysis, main, tol),
+    unexplainedCheck(used, analysis, tol),
+    isotopeCheck(used, analysis, T, tol, noIntensities),
     temperature,
-    fitQualityCheck(peaks, analysis, T, tol),
+    fitQualityCheck(used, analysis, T, tol),
   ];
   return { verdict: verdictOf(checks), checks };
 }
@@ -309,7 +312,9 @@ function calibrationCheck(
 
 function unexplainedCheck(peaks: readonly PeakInput[], analysis: Analysis, tol: Tolerances): Check {
   const idx = analysis.result.lines.filter((l) => l.status === 'unassigned').map((l) => l.index);
-  const withI = peaks.every((p) => p.intensity !== undefined && p.intensity >= 0);
+  // By intensity when every line has one and they sum to something (all 0 counted lines: the share was 0 then).
+  const withI =
+    peaks.every((p) => p.intensity !== undefined && p.intensity >= 0) && peaks.some((p) => (p.intensity as number) > 0);
   const total = withI ? peaks.reduce((s, p) => s + (p.intensity as number), 0) : peaks.length;
   const part = withI ? idx.reduce((s, i) => s + (peaks[i]?.intensity as number), 0) : idx.length;
   const fraction = total > 0 ? part / total : 0;
@@ -360,12 +365,17 @@ function bandsMissedAtTheirBestOffset(analysis: Analysis, unexplained: number) {
   );
 }
 
-function isotopeCheck(peaks: readonly PeakInput[], analysis: Analysis, T: number, tol: Tolerances): Check {
+function isotopeCheck(
+  peaks: readonly PeakInput[],
+  analysis: Analysis,
+  T: number,
+  tol: Tolerances,
+  noIntensities: string,
+): Check {
   const limit = { relative: tol.isotopeRatio };
   const species = analysis.assignment.species;
   if (species.length < 2) return notEvaluated('isotope-ratio', 'only one isotopologue was assigned against');
-  if (!peaks.every((p) => p.intensity !== undefined))
-    return notEvaluated('isotope-ratio', 'the lines carry no intensities');
+  if (!peaks.every((p) => p.intensity !== undefined)) return notEvaluated('isotope-ratio', noIntensities);
   const main = species[0] as string;
   const natural = naturalAbundances(main);
   const byTransition = new Map<
@@ -486,10 +496,10 @@ function temperatureCheck(
   analysis: Analysis,
   main: string | undefined,
   tol: Tolerances,
+  noIntensities: string,
 ): Check {
   const limit = tol.temperature ? { expected: tol.temperature.expected, tolerance: tol.temperature.tolerance } : {};
-  if (!peaks.every((p) => p.intensity !== undefined))
-    return notEvaluated('temperature', 'the lines carry no intensities');
+  if (!peaks.every((p) => p.intensity !== undefined)) return notEvaluated('temperature', noIntensities);
   const band = mainBand(analysis, main);
   if (!band) return notEvaluated('temperature', 'no vibrational band of the main species was fitted');
   const lowerV = Number(band.band.split('-')[1]);

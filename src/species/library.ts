@@ -279,10 +279,20 @@ export function constantsFor(species: Isotopologue): LibraryEntry | undefined {
   const direct = BY_FORMULA.get(species.formula);
   if (direct) return direct;
   const [a, b] = species.atoms;
-  const parent = PARENTS.find((e) => {
-    const p = parseSpecies(e.formula);
-    return p.atoms[0].element.symbol === a.element.symbol && p.atoms[1].element.symbol === b.element.symbol;
-  });
+  // Of the entries of the same elements, the one sharing most isotopes (2H-37Cl from 2H-35Cl, not from 1H-35Cl:
+  // the smaller the mass change, the smaller the Born–Oppenheimer breakdown the scaling ignores).
+  let parent: LibraryEntry | undefined;
+  let shared = -1;
+  for (const e of PARENTS) {
+    const [pa, pb] = parseSpecies(e.formula).atoms;
+    if (pa.element.symbol !== a.element.symbol || pb.element.symbol !== b.element.symbol) continue;
+    const n =
+      Number(pa.isotope.massNumber === a.isotope.massNumber) + Number(pb.isotope.massNumber === b.isotope.massNumber);
+    if (n > shared) {
+      parent = e;
+      shared = n;
+    }
+  }
   return parent ? derive(species.formula, parent) : undefined;
 }
 

@@ -161,6 +161,43 @@ export function naturalAbundance(species: Isotopologue): number {
   return fractionInMixture(a.element, a.isotope) * fractionInMixture(b.element, b.isotope);
 }
 
+/**
+ * The isotopologues a species string stands for, with their share of the sample: an atom written with its mass
+ * number (or as D, T) is that isotope in every molecule, an atom written bare is its element's natural mixture. So
+ * "HCl" is 1H-35Cl and 1H-37Cl at 0.758 : 0.242 (with 2H-35Cl, 2H-37Cl at about 1e-4), "DCl" is 2H-35Cl and 2H-37Cl
+ * at 0.758 : 0.242, and "H35Cl" is 1H-35Cl alone. Most abundant first.
+ */
+export function isotopologueMixture(species: Isotopologue): { iso: Isotopologue; abundance: number }[] {
+  const choices = (atom: Atom) =>
+    atom.explicitIsotope
+      ? [{ atom: { ...atom, explicitIsotope: true }, fraction: 1 }]
+      : isotopicMixture(atom.element).map(({ isotope, fraction }) => ({
+          atom: { element: atom.element, isotope, explicitIsotope: true },
+          fraction,
+        }));
+  const out: { iso: Isotopologue; abundance: number }[] = [];
+  for (const a of choices(species.atoms[0])) {
+    for (const b of choices(species.atoms[1])) {
+      const atoms: [Atom, Atom] = [a.atom, b.atom];
+      out.push({ iso: { formula: formatFormula(atoms), atoms }, abundance: a.fraction * b.fraction });
+    }
+  }
+  return out.sort((x, y) => y.abundance - x.abundance);
+}
+
+/**
+ * The same molecule with only its enriched atoms named: an isotope that is not its element's most abundant one
+ * stays (the 2H of 2H-35Cl), the others become their natural mixture (its 35Cl), so the library's DCl entry stands
+ * for a deuterated sample of natural chlorine and not for HCl.
+ */
+export function enrichedAtomsOnly(species: Isotopologue): Isotopologue {
+  const keep = (a: Atom): Atom => ({
+    ...a,
+    explicitIsotope: a.isotope.massNumber !== mostAbundantIsotope(a.element).massNumber,
+  });
+  return { ...species, atoms: [keep(species.atoms[0]), keep(species.atoms[1])] };
+}
+
 /** The same molecule with no isotope named: what "HCl" means as opposed to "H35Cl" (the natural mixture). */
 export function elementsOnly(species: Isotopologue): Isotopologue {
   return {

@@ -17,6 +17,7 @@ import {
 /** Atomic masses in u, AME2020 (Wang et al., Chin. Phys. C 45, 030003 (2021)), from memory to the digits shown. */
 export const MASS: Record<string, number> = {
   '1H': 1.00782503223,
+  '2H': 2.01410177812,
   '12C': 12,
   '13C': 13.00335483507,
   '16O': 15.99491461957,
