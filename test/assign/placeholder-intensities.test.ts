@@ -4,8 +4,8 @@ import { uninformativeIntensities } from '../../src/assign/intensity.js';
 import { assignLinearLines } from '../../src/linear/assign.js';
 import { runChecks } from '../../src/qa/checks.js';
 import { parseSpecies } from '../../src/species/parse.js';
-import { CO_12_16 } from '../helpers/independent-lines.js';
 import { genLineList, genUnassigned, N2O_446 } from '../helpers/independent-linear.js';
+import { CO_12_16 } from '../helpers/independent-lines.js';
 import { scan, shares } from '../helpers/scan-scenarios.js';
 
 /**
