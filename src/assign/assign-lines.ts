@@ -583,6 +583,9 @@ function fittedPrediction(
   return {
     position: fitted.value + st.shift,
     tolerance: Math.max(Math.hypot(model, K_FITTED * st.scatter), COINCIDENCE_FRACTION * spacing),
+    // No coincidence floor for lines with σ (tried): real CO 3-0 R(34) and R(40), 8 and 13.7 times their stated σ of
+    // 1e-5 from the band's fit, would carry their labels, but in the fit they move the pooled scale of the stated σ
+    // (0.39 → 0.42, src/fit/stated-scale.ts) and seven 2-0 and 3-0 lines near 4σ are rejected (491 → 484 fitted).
     withSigma: { model, perSigma: K_FITTED * st.sigmaFactor },
   };
 }
@@ -1008,7 +1011,11 @@ function voteOffsets(
         const own = estimateOffset(top, observed, maxOffset, 0.06);
         if (own) {
           const tol = Math.min(Math.max(4 * own.spread, 0.03), 0.3);
-          const n = countNear(top, sorted, own.offset, tol);
+          // Peaks another band predicts at the source's offset are its, not evidence for this band's own offset:
+          // the H81Br band moved by the isotope splitting lands on H79Br lines (a scan missing H81Br's strongest
+          // lines gave it that offset, and every H79Br line went to H81Br).
+          const claimed = claimedByOthers(seeds, bk, choice.offset);
+          const n = countNear(top, sorted, own.offset, tol, claimed, choice.tolerance);
           if (n >= minLines && n >= withSource + 3 && n >= 2 * withSource)
             use = { offset: own.offset, tolerance: tol, own: true };
         }
@@ -1025,14 +1032,41 @@ function voteOffsets(
   };
 }
 
-/** How many predictions, shifted by the offset, have a peak within the tolerance. */
-function countNear(preds: readonly { position: number }[], sorted: Float64Array, offset: number, tol: number): number {
+/**
+ * How many predictions, shifted by the offset, have a peak within the tolerance; with `claimed` (sorted positions),
+ * only peaks farther than `claimTol` from every claimed position count.
+ */
+function countNear(
+  preds: readonly { position: number }[],
+  sorted: Float64Array,
+  offset: number,
+  tol: number,
+  claimed?: Float64Array,
+  claimTol = 0,
+): number {
   let n = 0;
   for (const p of preds) {
-    const i = lowerBound(sorted, p.position + offset - tol);
-    if (i < sorted.length && (sorted[i] as number) <= p.position + offset + tol) n++;
+    const hi = p.position + offset + tol;
+    for (let i = lowerBound(sorted, p.position + offset - tol); i < sorted.length && (sorted[i] as number) <= hi; i++) {
+      if (claimed && isNear(claimed, sorted[i] as number, claimTol)) continue;
+      n++;
+      break;
+    }
   }
   return n;
+}
+
+/** Whether a sorted array holds a value within tol of x. */
+function isNear(sorted: Float64Array, x: number, tol: number): boolean {
+  const i = lowerBound(sorted, x - tol);
+  return i < sorted.length && (sorted[i] as number) <= x + tol;
+}
+
+/** Where the seeds of every band but `band` are predicted at the given offset, sorted. */
+function claimedByOthers(seeds: readonly CandidateLine[], band: string, offset: number): Float64Array {
+  const out: number[] = [];
+  for (const c of seeds) if (bandKey(c) !== band) out.push(c.position + offset);
+  return Float64Array.from(out).sort();
 }
 
 /** The best offset a band's own strong predictions find among the free peaks, and how many they then match. */
