@@ -142,6 +142,8 @@ function fitDifferences(
     design,
     observations: Float64Array.from(pts, (p) => p.m.value),
     weights: Float64Array.from(pts, (p) => 1 / p.m.variance),
+    // Neither the condition number nor leverages are reported for a combination-difference fit.
+    conditionNumber: false,
   });
   if (r.rankDeficient) return undefined;
   const dof = n - order;

@@ -218,6 +218,7 @@ function withDunhamPriors(
       priors,
       mode,
       reducedChiSquare(sel.fit) ?? 1,
+      false,
     );
     if (!isRankDeficient(c)) {
       return { fit: c, terms: wider, constrained: new Map(priors.map((p) => [`${p.term.k},${p.term.l}`, p] as const)) };

@@ -1,4 +1,4 @@
-import { solveLeastSquares } from '../linalg/least-squares.js';
+import { type LeastSquaresResult, solveLeastSquares } from '../linalg/least-squares.js';
 import { buildDesign, type LinearModel, type Observation, type Parameter } from '../models/linear-model.js';
 import { fDistributionSurvival } from '../stats/distributions.js';
 
@@ -91,7 +91,7 @@ export function solveModel(
   const dof = n - p;
   const s2 = mode === 'absolute' ? 1 : dof > 0 ? r.chiSquare / dof : Number.NaN;
   const covariance = r.covariance.map((c) => c * s2);
-  return {
+  const solved: SolvedModel = {
     model,
     observations,
     values: r.coefficients,
@@ -102,6 +102,22 @@ export function solveModel(
     degreesOfFreedom: dof,
     conditionNumber: r.conditionNumber,
   };
+  if (!withLeverage && r.later) completions.set(solved, r.later);
+  return solved;
+}
+
+/** What a trial fit (solved without leverages) needs to become a full one, kept as long as the fit itself. */
+const completions = new WeakMap<SolvedModel, NonNullable<LeastSquaresResult['later']>>();
+
+/**
+ * A fit solved without leverages (a trial of term selection) completed with its leverages and condition number,
+ * computed from the factors of its own solve: the same figures as solving the chosen model again with
+ * `withLeverage`, without the second factorisation. Undefined for a fit that cannot be completed so.
+ */
+export function withLeverages(fit: SolvedModel): SolvedModel | undefined {
+  const later = completions.get(fit);
+  if (!later) return undefined;
+  return { ...fit, leverages: later.leverages(), conditionNumber: later.conditionNumber() };
 }
 
 export function isRankDeficient(x: SolvedModel | RankDeficiency): x is RankDeficiency {
@@ -201,6 +217,8 @@ export function solveModelWithPriors(
   priors: readonly Prior[],
   mode: UncertaintyMode,
   priorScale = 1,
+  /** Compute the lines' leverages (for studentised residuals). Default true; the Dunham fits do not use them. */
+  withLeverage = true,
 ): SolvedModel | RankDeficiency {
   const n = observations.length;
   const m = priors.length;
@@ -232,7 +250,7 @@ export function solveModelWithPriors(
     design,
     observations: y,
     weights: w,
-    leverage: true,
+    leverage: withLeverage,
     conditionNumber: false,
   });
   if (r.rankDeficient) {
@@ -249,7 +267,7 @@ export function solveModelWithPriors(
     values: r.coefficients,
     covariance: r.covariance.map((c) => c * s2),
     residuals: r.residuals.slice(0, n),
-    leverages: (r.leverages ?? new Float64Array(rows)).slice(0, n),
+    leverages: r.leverages ? r.leverages.slice(0, n) : new Float64Array(0),
     chiSquare: r.chiSquare,
     degreesOfFreedom: dof,
     conditionNumber: r.conditionNumber,

@@ -8,6 +8,7 @@ import {
   type SolvedModel,
   solveModel,
   type UncertaintyMode,
+  withLeverages,
 } from './engine.js';
 import { termTest } from './term-test.js';
 
@@ -95,7 +96,9 @@ export function selectLevelModel(
     current = t;
     for (const k of eligible) orders.set(k, next);
   }
-  // The chosen model once more, with leverages for the studentised residuals.
+  // The chosen model with leverages for the studentised residuals (from its own solve's factors).
+  const completed = withLeverages(current);
+  if (completed) return { fit: completed, orders };
   const final = solveModel(current.model, obs, mode, true);
   return { fit: isRankDeficient(final) ? current : final, orders };
 }

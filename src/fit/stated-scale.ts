@@ -60,7 +60,7 @@ export function rescaleStatedUncertainties(
 ): StatedScale {
   const stated = (o: Observation) => input[o.index]?.uncertainty !== undefined;
   const none: StatedScale = { observations, groups: [], factorFor: () => 1, warnings: [] };
-  if (observations.filter(stated).length < 2 * MIN_SCATTER_GROUP) return none;
+  if (!canDiffer(observations, input)) return none;
   let factors = new Map<string, number>();
   let gross = new Set<number>();
   let obs = observations;
@@ -114,6 +114,49 @@ export function rescaleStatedUncertainties(
       },
     ],
   };
+}
+
+/**
+ * Whether any group of stated lines can be judged against the rest: a group of ≥ MIN_SCATTER_GROUP lines with
+ * ≥ MIN_SCATTER_GROUP other stated lines beside it (`differingGroups` asks the same of the clipped groups, which only
+ * lose lines). A list of one band stating one σ, the common case, has no other group: no fit of residuals is needed
+ * to know that nothing will be rescaled.
+ */
+function canDiffer(observations: readonly Observation[], input: readonly LineInput[]): boolean {
+  if (oneStatedGroup(observations, input)) return false;
+  const counts = new Map<string, number>();
+  let total = 0;
+  for (const o of observations) {
+    const line = input[o.index];
+    if (line?.uncertainty === undefined) continue;
+    const k = groupKey(o, line);
+    counts.set(k, (counts.get(k) ?? 0) + 1);
+    total++;
+  }
+  for (const n of counts.values()) if (n >= MIN_SCATTER_GROUP && total - n >= MIN_SCATTER_GROUP) return true;
+  return false;
+}
+
+/** Every stated line of one species and band, without a source, stating the same σ: one group (no key built). */
+function oneStatedGroup(observations: readonly Observation[], input: readonly LineInput[]): boolean {
+  let first: Observation | undefined;
+  let sigma = 0;
+  for (const o of observations) {
+    const line = input[o.index];
+    if (line?.uncertainty === undefined) continue;
+    if (line.source !== undefined) return false;
+    if (!first) {
+      first = o;
+      sigma = line.uncertainty;
+    } else if (
+      line.uncertainty !== sigma ||
+      o.species !== first.species ||
+      o.upperV !== first.upperV ||
+      o.lowerV !== first.lowerV
+    )
+      return false;
+  }
+  return true;
 }
 
 /**

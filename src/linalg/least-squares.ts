@@ -56,6 +56,15 @@ export interface LeastSquaresResult {
   readonly conditionNumber: number;
   /** Diagonal of the hat matrix (only when requested). */
   readonly leverages?: Float64Array;
+  /**
+   * For a full-rank solve: the leverages and the condition number computed afterwards from the factors this solve
+   * kept (the same operations as `leverage: true` and `conditionNumber: true` would have made, so the same bits),
+   * for a trial fit that turns out to be the chosen one: it need not be solved again.
+   */
+  readonly later?: {
+    leverages(): Float64Array;
+    conditionNumber(): number;
+  };
 }
 
 const EPS = 2.220446049250313e-16;
@@ -104,11 +113,12 @@ export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult 
   if (!merged) subtractDesignTimes(residuals, design, coefficients, n, p);
   let chiSquare = 0;
   for (let i = 0; i < n; i++) chiSquare += (residuals[i] as number) ** 2 * (weights ? (weights[i] as number) : 1);
-  let leverages: Float64Array | undefined;
-  if (input.leverage) {
+  // Every array these read is this solve's own (the caller's design and weights are never modified).
+  const allLeverages = () => {
     const h = leveragesOf(sys.rows, p, sys.design, sys.weights, rinv, perm, scale);
-    leverages = merged ? spreadLeverages(h, merged, weights, n) : h;
-  }
+    return merged ? spreadLeverages(h, merged, weights, n) : h;
+  };
+  const leverages = input.leverage ? allLeverages() : undefined;
   return {
     rank,
     rankDeficient: false,
@@ -119,6 +129,10 @@ export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult 
     chiSquare,
     conditionNumber,
     ...(leverages ? { leverages } : {}),
+    later: {
+      leverages: () => leverages ?? allLeverages(),
+      conditionNumber: () => (Number.isNaN(conditionNumber) ? triangularConditionNumber(r, p) : conditionNumber),
+    },
   };
 }
 
