@@ -9,7 +9,14 @@ import {
 } from '../models/level-model.js';
 import { constantsFor } from '../species/library.js';
 import { parseSpecies } from '../species/parse.js';
-import { isRankDeficient, type Prior, reducedChiSquare, solveModelWithPriors, type UncertaintyMode } from './engine.js';
+import {
+  isRankDeficient,
+  type Prior,
+  reducedChiSquare,
+  type SolvedModel,
+  solveModelWithPriors,
+  type UncertaintyMode,
+} from './engine.js';
 import type { LevelSelection } from './level-selection.js';
 
 /**
@@ -114,6 +121,21 @@ export const kratzerD = (B: number, omega: number): number => (4 * B ** 3) / ome
  */
 export const HIGH_ORDER_PRIOR_FACTOR = 10;
 
+/** A level-model prior with what the report says of it. */
+type LevelPrior = Prior & { name: string; species: string; basis: string };
+
+/** What the priors of one species' levels are formed from: the fitted values, the library's constants, ω_e. */
+interface LevelPriorContext {
+  readonly species: string;
+  readonly fit: SolvedModel;
+  readonly levels: readonly number[];
+  readonly ref: Reference;
+  readonly omega: number | undefined;
+  readonly omegaBasis: string;
+  readonly multi: boolean;
+  value(key: string): number | undefined;
+}
+
 /**
  * Stage 3b: constrain the next centrifugal term of every level (D when only B was kept, H when D was, L when H
  * was, M when L was), re-solving the kept model with the priors. Levels fitted to M (the model's highest term)
@@ -130,90 +152,19 @@ export function constrainLevelModel(
     const i = fit.model.parameters.findIndex((p) => p.key === key);
     return i < 0 ? undefined : (fit.values[i] as number);
   };
-  const priors: (Prior & { name: string; species: string; basis: string })[] = [];
+  const priors: LevelPrior[] = [];
   const widened = new Map(level.orders);
   for (const s of structure.species) {
     const ref = referenceOf(s);
-    const vs = structure.levels.get(s) as readonly number[];
-    const refLevel = structure.reference.get(s) as ReadonlyMap<number, number>;
-    // ω_e: the library's, else the smallest vibrational interval per quantum (ΔG ≈ ω_e − 2ω_e x_e: a few per
-    // cent low, well inside the prior's 50 %).
-    let omega = ref.omega_e;
-    let omegaBasis = 'ω_e from the reference library';
-    if (omega === undefined) {
-      for (const v of vs) {
-        const r = refLevel.get(v) as number;
-        const t = value(`${s}|T|${v}`);
-        if (t !== undefined && v !== r) {
-          const perQuantum = t / (v - r);
-          if (omega === undefined || perQuantum > omega) omega = perQuantum;
-        }
-      }
-      omegaBasis = 'ω_e ≈ the fitted vibrational interval';
-    }
-    for (const v of vs) {
+    const levels = structure.levels.get(s) as readonly number[];
+    const omega = omegaOf(s, ref, levels, structure.reference.get(s) as ReadonlyMap<number, number>, value);
+    const context = { species: s, fit, levels, ref, ...omega, multi: structure.species.length > 1, value };
+    for (const v of levels) {
       const order = level.orders.get(`${s}|${v}`) ?? 1;
       if (order >= MAX_CENTRIFUGAL_ORDER) continue;
-      const B = value(`${s}|B|${v}`) as number;
-      const dunhamL = order === 3 ? lPrior(ref, B, omega, omegaBasis, alphaFromLevels(s, v, vs, value)) : undefined;
-      const name = (kind: string) => `${kind}_${v}${structure.species.length > 1 ? `(${s})` : ''}`;
-      if (order === 1) {
-        const D = ref.D_e ?? (omega !== undefined ? kratzerD(B, omega) : undefined);
-        if (D === undefined || !(D > 0)) continue;
-        priors.push({
-          key: `${s}|D|${v}`,
-          value: D,
-          sigma: RELATION_PRIOR_FRACTION * D,
-          name: name('D'),
-          species: s,
-          basis:
-            ref.D_e !== undefined
-              ? 'D_e of the reference library, ± 50 %'
-              : `Kratzer D ≈ 4B³/ω_e² with B_${v} and ${omegaBasis}, ± 50 %`,
-        });
-      } else if (order === 3 && dunhamL) {
-        priors.push({
-          key: `${s}|L|${v}`,
-          value: dunhamL.value,
-          sigma: dunhamL.sigma,
-          name: name('L'),
-          species: s,
-          basis: dunhamL.basis,
-        });
-      } else if (order >= 3) {
-        const below = ROTATIONAL_KINDS[order - 1] as string;
-        const next = ROTATIONAL_KINDS[order] as string;
-        const i = fit.model.parameters.findIndex((p) => p.key === `${s}|${below}|${v}`);
-        if (i < 0 || omega === undefined || !(omega > 0)) continue;
-        const size = Math.max(
-          Math.abs(fit.values[i] as number),
-          Math.sqrt(Math.max(fit.covariance[i * (fit.model.parameters.length + 1)] as number, 0)),
-        );
-        const kappa = B / omega;
-        const sigma = HIGH_ORDER_PRIOR_FACTOR * kappa * kappa * size;
-        if (!(sigma > 0) || !Number.isFinite(sigma)) continue;
-        priors.push({
-          key: `${s}|${next}|${v}`,
-          value: 0,
-          sigma,
-          name: name(next),
-          species: s,
-          basis: `not determined by the lines: 0 ± 10 (B_v/ω_e)² |${below}_v| (Dunham ordering, ${omegaBasis})`,
-        });
-      } else {
-        // H_v varies little with v (H_v = H_e + O(κ H_e)): one H_e for every level, from the library's
-        // equilibrium constants when it has them all, else from the lowest level with a fitted D.
-        const h = hPrior(s, ref, vs, value, omega, omegaBasis);
-        if (!h) continue;
-        priors.push({
-          key: `${s}|H|${v}`,
-          value: h.value,
-          sigma: h.sigma,
-          name: name('H'),
-          species: s,
-          basis: h.basis,
-        });
-      }
+      const prior = nextTermPrior(context, v, order);
+      if (!prior) continue;
+      priors.push(prior);
       widened.set(`${s}|${v}`, order + 1);
     }
   }
@@ -230,6 +181,100 @@ export function constrainLevelModel(
       prior: quantity(p.value, p.sigma, 'cm-1'),
       basis: p.basis,
     })),
+  };
+}
+
+/**
+ * ω_e: the library's, else the largest fitted vibrational interval per quantum (ΔG ≈ ω_e − 2ω_e x_e: a few per cent
+ * low, well inside the prior's 50 %), else undefined.
+ */
+function omegaOf(
+  s: string,
+  ref: Reference,
+  levels: readonly number[],
+  refLevel: ReadonlyMap<number, number>,
+  value: (key: string) => number | undefined,
+): { omega: number | undefined; omegaBasis: string } {
+  if (ref.omega_e !== undefined) return { omega: ref.omega_e, omegaBasis: 'ω_e from the reference library' };
+  let omega: number | undefined;
+  for (const v of levels) {
+    const r = refLevel.get(v) as number;
+    const t = value(`${s}|T|${v}`);
+    if (t !== undefined && v !== r) {
+      const perQuantum = t / (v - r);
+      if (omega === undefined || perQuantum > omega) omega = perQuantum;
+    }
+  }
+  return { omega, omegaBasis: 'ω_e ≈ the fitted vibrational interval' };
+}
+
+/** The prior on the term after level v's highest fitted one (`order`), or undefined when none can be formed. */
+function nextTermPrior(c: LevelPriorContext, v: number, order: number): LevelPrior | undefined {
+  const s = c.species;
+  const B = c.value(`${s}|B|${v}`) as number;
+  const name = (kind: string) => `${kind}_${v}${c.multi ? `(${s})` : ''}`;
+  const prior = (kind: string, e: DunhamEstimate): LevelPrior => ({
+    key: `${s}|${kind}|${v}`,
+    value: e.value,
+    sigma: e.sigma,
+    name: name(kind),
+    species: s,
+    basis: e.basis,
+  });
+  if (order === 1) {
+    const d = dPrior(c.ref, B, v, c.omega, c.omegaBasis);
+    return d ? prior('D', d) : undefined;
+  }
+  if (order === 2) {
+    // H_v varies little with v (H_v = H_e + O(κ H_e)): one H_e for every level, from the library's equilibrium
+    // constants when it has them all, else from the lowest level with a fitted D.
+    const h = hPrior(s, c.ref, c.levels, c.value, c.omega, c.omegaBasis);
+    return h ? prior('H', h) : undefined;
+  }
+  const dunhamL =
+    order === 3 ? lPrior(c.ref, B, c.omega, c.omegaBasis, alphaFromLevels(s, v, c.levels, c.value)) : undefined;
+  if (dunhamL) return prior('L', dunhamL);
+  const scaled = scalePrior(c, v, order, B);
+  return scaled ? prior(ROTATIONAL_KINDS[order] as string, scaled) : undefined;
+}
+
+/** D_v next to B_v: the library's D_e, else Kratzer's 4B³/ω_e², ± 50 %. */
+function dPrior(
+  ref: Reference,
+  B: number,
+  v: number,
+  omega: number | undefined,
+  omegaBasis: string,
+): DunhamEstimate | undefined {
+  const D = ref.D_e ?? (omega !== undefined ? kratzerD(B, omega) : undefined);
+  if (D === undefined || !(D > 0)) return undefined;
+  return {
+    value: D,
+    sigma: RELATION_PRIOR_FRACTION * D,
+    basis:
+      ref.D_e !== undefined
+        ? 'D_e of the reference library, ± 50 %'
+        : `Kratzer D ≈ 4B³/ω_e² with B_${v} and ${omegaBasis}, ± 50 %`,
+  };
+}
+
+/** L_v or M_v without a Dunham estimate: 0 ± 10 (B_v/ω_e)² max(|X|, σ_X), X the term below (HIGH_ORDER_PRIOR_FACTOR). */
+function scalePrior(c: LevelPriorContext, v: number, order: number, B: number): DunhamEstimate | undefined {
+  const { fit, omega, species: s } = c;
+  const below = ROTATIONAL_KINDS[order - 1] as string;
+  const i = fit.model.parameters.findIndex((p) => p.key === `${s}|${below}|${v}`);
+  if (i < 0 || omega === undefined || !(omega > 0)) return undefined;
+  const size = Math.max(
+    Math.abs(fit.values[i] as number),
+    Math.sqrt(Math.max(fit.covariance[i * (fit.model.parameters.length + 1)] as number, 0)),
+  );
+  const kappa = B / omega;
+  const sigma = HIGH_ORDER_PRIOR_FACTOR * kappa * kappa * size;
+  if (!(sigma > 0) || !Number.isFinite(sigma)) return undefined;
+  return {
+    value: 0,
+    sigma,
+    basis: `not determined by the lines: 0 ± 10 (B_v/ω_e)² |${below}_v| (Dunham ordering, ${c.omegaBasis})`,
   };
 }
 
