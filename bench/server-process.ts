@@ -1,21 +1,39 @@
-import { type ChildProcess, spawn } from 'node:child_process';
+import { type ChildProcess, execFileSync, spawn } from 'node:child_process';
 
-/** The service in its own process from the TypeScript sources, for load scripts; resolves when it is ready. */
+/**
+ * How the service runs in a load script. `npm-start`: as `npm start` runs it (the built dist/, built first when a
+ * source changed; every default of an empty environment: worker pool, load shedding, deadlines, pino at info), with
+ * one exception, the rate limit raised to 10 000 000 a minute, so that it is on and pays its cost per request but
+ * never answers one load generator's address 429. `relaxed` (the earlier bench setting, from the TypeScript
+ * sources): rate limit, shedding and workers off, pino at warn.
+ */
+export type ServiceSetting = 'npm-start' | 'relaxed';
+
+const SETTINGS: Record<ServiceSetting, Record<string, string>> = {
+  'npm-start': { RATE_LIMIT_PER_MINUTE: '10000000' },
+  relaxed: { LOG_LEVEL: 'warn', RATE_LIMIT_PER_MINUTE: '0', WORKERS: '0', MAX_EVENT_LOOP_DELAY_MS: '0' },
+};
+
+/**
+ * The service (or another entry, e.g. bench/bare-server.ts, from its TypeScript source) in its own process group,
+ * for load scripts; resolves when it is ready.
+ */
 export async function startServer(
   port: number,
   entry = 'services/server.ts',
   extraEnv: Record<string, string> = {},
+  setting: ServiceSetting = 'npm-start',
 ): Promise<{ stop: () => void; child: ChildProcess }> {
-  const child = spawn('npx', ['tsx', entry], {
+  const service = entry === 'services/server.ts';
+  const built = service && setting === 'npm-start';
+  if (built) execFileSync('node', ['scripts/build.mjs', '--if-stale'], { stdio: 'ignore' });
+  const child = spawn(built ? 'node' : 'npx', built ? ['dist/services/server.js'] : ['tsx', entry], {
     env: {
       ...process.env,
+      ...(service ? SETTINGS[setting] : {}),
       ...extraEnv,
       PORT: String(port),
       HOST: '127.0.0.1',
-      LOG_LEVEL: 'warn',
-      RATE_LIMIT_PER_MINUTE: '0',
-      WORKERS: '0',
-      MAX_EVENT_LOOP_DELAY_MS: '0',
     },
     stdio: 'ignore',
     detached: true,
@@ -25,8 +43,7 @@ export async function startServer(
   };
   for (let i = 0; i < 100; i++) {
     try {
-      if ((await fetch(`http://127.0.0.1:${port}${entry === 'services/server.ts' ? '/readyz' : '/healthz'}`)).ok)
-        return { stop, child };
+      if ((await fetch(`http://127.0.0.1:${port}${service ? '/readyz' : '/healthz'}`)).ok) return { stop, child };
     } catch {
       // not up yet
     }

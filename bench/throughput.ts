@@ -1,7 +1,9 @@
 /**
- * The service against the floor, as ratios from one run. The service (npm start defaults, rate limit and shedding
- * off, no workers) and a bare fastify server (bench/bare-server.ts) answering the service's own response bytes run
- * in their own processes; the load generator (autocannon) runs in this one. Each pair is measured back to back so
+ * The service against the floor, as ratios from one run. The service as `npm start` runs it (built dist/, every
+ * protection on, pino at info; the rate limit raised so that one load generator is never answered 429:
+ * bench/server-process.ts; BENCH_SERVICE=relaxed gives the earlier setting, with rate limit, shedding, workers off and
+ * pino at warn) and a bare fastify server (bench/bare-server.ts: no plugins, fastify's JSON parser on the same body,
+ * the service's own response bytes, no headers beyond fastify's) run in their own processes; the load generator (autocannon) runs in this one. Each pair is measured back to back so
  * that the load of a shared machine falls on both. Each comparison is given twice: in wall time (throughput, or
  * time per request) and in server CPU per request (/proc utime + stime of each server's process group); the goals
  * are judged on the CPU ratio, which the other work of a shared machine does not stretch. Nothing here is asserted.
@@ -10,27 +12,16 @@ import { execFileSync } from 'node:child_process';
 import { mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { performance } from 'node:perf_hooks';
 import autocannon from 'autocannon';
+import { fitBody } from './fit-body.js';
 import { hotCoScan } from './hot-co-scan.js';
 import { largeSpectrumBody } from './large-spectrum.js';
-import { startServer } from './server-process.js';
+import { type ServiceSetting, startServer } from './server-process.js';
 import { printSummary, type Ratio, recordRatios } from './summary.js';
 
 const seconds = Number(process.env.BENCH_SECONDS ?? 3);
 /** Which comparisons to run (BENCH_ROUTES, comma-separated: fit, scan, peaks; default all three). */
 const routes = new Set((process.env.BENCH_ROUTES ?? 'fit,scan,peaks').split(',').map((s) => s.trim()));
 const basePort = 20000 + Math.floor(Math.random() * 20000);
-
-function fitBody(): string {
-  const lines = [];
-  for (let j = 0; j < 30; j++) {
-    const x = (J: number) => J * (J + 1);
-    const nu = (v1: number, J1: number, J0: number) =>
-      2143.27 + (1.9225 - 0.0175 * v1) * x(J1) - 1.9225 * x(J0) - 6.1e-6 * (x(J1) ** 2 - x(J0) ** 2);
-    lines.push({ position: nu(1, j + 1, j), uncertainty: 0.001, assignment: { band: '1-0', branch: 'R', j } });
-    lines.push({ position: nu(1, j, j + 1), uncertainty: 0.001, assignment: { band: '1-0', branch: 'P', j: j + 1 } });
-  }
-  return JSON.stringify({ species: 'CO', lines });
-}
 
 /** CO at 1500 K: 1-0, 2-1 and 3-2 with 25 % spurious and 10 % lost lines, offset 0.1 cm⁻¹, unassigned. */
 function scanBody(): { body: string; peaks: number } {
@@ -124,7 +115,8 @@ async function medianMs(f: () => Promise<unknown>, count: number): Promise<numbe
 const fit = fitBody();
 const scan = routes.has('scan') ? scanBody() : { body: '{}', peaks: 0 };
 const spectrum = routes.has('peaks') ? largeSpectrumBody() : { body: '{}', points: 0 };
-const service = await startServer(basePort);
+const setting: ServiceSetting = process.env.BENCH_SERVICE === 'relaxed' ? 'relaxed' : 'npm-start';
+const service = await startServer(basePort, undefined, {}, setting);
 let bare: Awaited<ReturnType<typeof startServer>> | undefined;
 try {
   const fitResponse = await post(basePort, '/v1/fits', fit);
@@ -206,7 +198,9 @@ try {
     );
   }
   recordRatios(ratios);
-  console.log(`\nThe service against a bare fastify route with the same response bytes (autocannon ${seconds} s each)`);
+  console.log(
+    `\nThe service (${setting === 'npm-start' ? 'as npm start runs it, rate limit raised' : 'relaxed: rate limit, shedding, workers off, pino at warn'}) against a bare fastify route with the same response bytes (autocannon ${seconds} s each)`,
+  );
   console.log('| measure | measured | ratio in wall time | ratio in server CPU | goal |');
   console.log('| --- | --- | ---: | ---: | ---: |');
   for (const r of rows) console.log(`| ${r.join(' | ')} |`);
