@@ -64,6 +64,27 @@ describe('special functions against SciPy', () => {
     expect(rel(fDistributionSurvival(f, d1, d2), v)).toBeLessThan(1e-10);
   });
 
+  // The end points are exact whatever the parameters: at a = 1e306 the general formula has ln Γ(a + b) − ln Γ(a) =
+  // ∞ − ∞ (NaN), so only the end-point rules can give I_0 = 0 and I_1 = 1 there. ln Γ(1e306) overflows to ∞ by
+  // hand: (a − ½) ln(a + 6.5) ≈ 1e306 × 704.6 > 1.8e308.
+  it('I_0 = 0 and I_1 = 1 exactly, also where ln Γ of the parameters overflows', () => {
+    expect(logGamma(1e306)).toBe(Number.POSITIVE_INFINITY);
+    expect(incompleteBeta(0, 1e306, 2)).toBe(0);
+    expect(incompleteBeta(1, 2, 1e306)).toBe(1);
+    expect(incompleteBeta(0, 3, 1e306)).toBe(0);
+    expect(incompleteBeta(1, 1e306, 3)).toBe(1);
+  });
+
+  // Far above the mean the lower tail is 1 to double precision (Q(1000, 10000) < e^-6000 by the Chernoff bound
+  // exp(−k/2·(x/k − 1 − ln(x/k))) with x/k = 10: exp(−1000·(9 − ln 10)) ≈ e^-6697); the series of P(a, x) would need
+  // about x − a = 9000 terms to get there and is not used there.
+  it('P(χ² ≤ x) = 1 far above the mean (x = 20 000, k = 2000) and just above it (x = 2 100, k = 2000)', () => {
+    expect(chiSquareCdf(20000, 2000)).toBe(1);
+    // SciPy 1.17.1 scipy.stats.chi2.cdf(2100, 2000) = 0.9413288886226819 (mpmath 1.3.0 gammainc at 40 digits agrees);
+    // tolerance 1e-9 relative.
+    expect(rel(chiSquareCdf(2100, 2000), 0.9413288886226819)).toBeLessThan(1e-9);
+  });
+
   it('P(F > f) = 1 for f ≤ 0, however negative', () => {
     expect(fDistributionSurvival(0, 2, 5)).toBe(1);
     expect(fDistributionSurvival(-1, 2, 5)).toBe(1);

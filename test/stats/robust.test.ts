@@ -41,6 +41,12 @@ describe('robust statistics by selection', () => {
     expect(Number.isNaN(median([]))).toBe(true);
   });
 
+  it('every quantile of an empty input is NaN, the end points q = 0 and 1 included', () => {
+    // q = 0 and 1 land exactly on an order statistic (h = lo), so only the empty-input guard gives NaN there.
+    for (const q of [0, 0.25, 1]) expect(quantile([], q)).toBeNaN();
+    expect(robustSigma([])).toBeNaN();
+  });
+
   it('MAD factor is 1/Φ⁻¹(3/4) (Φ⁻¹(0.75) = 0.674489750196082, from memory of normal tables)', () => {
     expect(MAD_TO_SIGMA).toBeCloseTo(1 / 0.674489750196082, 12);
   });
