@@ -74,9 +74,12 @@ describe('RKR → Numerov round trip on published constants', () => {
 });
 
 describe('levels, Morse parameters and curves', () => {
-  const r = potentialCurves({ coefficients: CO, covariance: zeros(5), reducedMass: muCO, vMax: 8, verify: false });
+  // Computed inside each test, so that a mutation run sees it.
+  const run = () =>
+    potentialCurves({ coefficients: CO, covariance: zeros(5), reducedMass: muCO, vMax: 8, verify: false });
 
   it('gives one level per v with G_v from the constants and r₋ < r_e < r₊', () => {
+    const r = run();
     expect(r.levels.map((l) => l.v)).toEqual([0, 1, 2, 3, 4, 5, 6, 7, 8]);
     const re = r.morse?.r_e.value as number;
     for (const l of r.levels) {
@@ -89,6 +92,7 @@ describe('levels, Morse parameters and curves', () => {
   });
 
   it('Morse D_e = ω_e²/(4ω_e x_e) and r_e = 1.128323 Å (Huber & Herzberg, recalled; 2e-6 Å)', () => {
+    const r = run();
     expect(r.morse?.D_e.value).toBeCloseTo(2169.81358 ** 2 / (4 * 13.28831), 6);
     expect(Math.abs((r.morse?.r_e.value as number) - 1.128323)).toBeLessThan(2e-6);
     // a = √(ω_e x_e / C) = ω_e √(2π²cμ/(D_e h)) (SCIENCE.md §4): 2.32 Å⁻¹ for CO (from memory, two digits).
@@ -96,6 +100,7 @@ describe('levels, Morse parameters and curves', () => {
   });
 
   it('RKR curve points run in r with the minimum at r_e; the Morse curve shares r_e', () => {
+    const r = run();
     const rkr = r.curves.rkr;
     for (let i = 1; i < rkr.length; i++)
       expect((rkr[i] as { r: number }).r).toBeGreaterThan((rkr[i - 1] as { r: number }).r);
