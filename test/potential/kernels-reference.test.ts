@@ -1,4 +1,5 @@
 import { describe, expect, it } from 'vitest';
+import { dunhamFromConstants, printedDigitsUncertainty } from '../../src/potential/constants-input.js';
 import { gaussLegendreUnit } from '../../src/potential/gauss-legendre.js';
 import { morseEnergy, morseFromConstants, morseTurningPoints } from '../../src/potential/morse.js';
 import { solveRadialLevels } from '../../src/potential/numerov.js';
@@ -321,5 +322,91 @@ describe('RKR curve of a Morse oscillator: spline inside, Morse-shaped walls out
       const v = morseEnergy(M, r);
       expect(Math.abs(model.potential(r) - v) / v).toBeLessThan(5e-3);
     }
+  });
+});
+
+describe('constants as Dunham coefficients, the other paths', () => {
+  it('separate uncertainties fill the diagonal; l ≥ 2 constants are left out; D_e in a covariance is skipped', () => {
+    const d = dunhamFromConstants({
+      values: {
+        omega_e: { value: 2000, uncertainty: 0.5 },
+        omega_e_x_e: { value: 10 },
+        B_e: { value: 2, uncertainty: 1e-4 },
+        D_e: { value: 6e-6, uncertainty: 1e-8 },
+        H_e: { value: 1e-12 },
+      },
+    });
+    expect(d.names).toEqual(['omega_e', 'omega_e_x_e', 'B_e']);
+    expect(d.coefficients).toEqual([
+      { k: 1, l: 0, value: 2000 },
+      { k: 2, l: 0, value: -10 },
+      { k: 0, l: 1, value: 2 },
+    ]);
+    expect([...d.covariance]).toEqual([0.25, 0, 0, 0, 0, 0, 0, 0, 1e-4 * 1e-4]);
+    const withD = dunhamFromConstants({
+      values: { omega_e: { value: 2000 }, B_e: { value: 2 }, D_e: { value: 6e-6 } },
+      covariance: {
+        names: ['D_e', 'B_e', 'omega_e'],
+        matrix: [
+          [1e-16, 2e-12, 3e-8],
+          [2e-12, 1e-8, 5e-5],
+          [3e-8, 5e-5, 0.25],
+        ],
+      },
+    });
+    // Order of the names is CONSTANT_TO_DUNHAM's (ω_e, B_e); the covariance is read by name.
+    expect([...withD.covariance]).toEqual([0.25, 5e-5, 5e-5, 1e-8]);
+  });
+
+  it('refuses a negative variance, a non-finite entry and a matrix that is not square', () => {
+    const values = { omega_e: { value: 2000 }, B_e: { value: 2 } };
+    const neg = () =>
+      dunhamFromConstants({
+        values,
+        covariance: {
+          names: ['omega_e', 'B_e'],
+          matrix: [
+            [-1, 0],
+            [0, 1],
+          ],
+        },
+      });
+    expect(neg).toThrow('the variance of omega_e is negative');
+    const nan = () =>
+      dunhamFromConstants({
+        values,
+        covariance: {
+          names: ['omega_e', 'B_e'],
+          matrix: [
+            [1, Number.NaN],
+            [Number.NaN, 1],
+          ],
+        },
+      });
+    expect(nan).toThrow('the covariance matrix must be finite and symmetric');
+    const ragged = () =>
+      dunhamFromConstants({ values, covariance: { names: ['omega_e', 'B_e'], matrix: [[1, 0], [0]] } });
+    expect(ragged).toThrow('the covariance matrix must be square, one row and column per name');
+    const short = () => dunhamFromConstants({ values, covariance: { names: ['omega_e', 'B_e'], matrix: [[1, 0]] } });
+    expect(short).toThrow(/square/);
+    // Symmetric to 1e-9 relative is accepted.
+    const near = dunhamFromConstants({
+      values,
+      covariance: {
+        names: ['omega_e', 'B_e'],
+        matrix: [
+          [1, 0.5],
+          [0.5 * (1 + 1e-12), 1],
+        ],
+      },
+    });
+    expect(near.covariance[1]).toBe(0.5);
+  });
+
+  it('printed digits: nothing for 0 and non-finite values; 1e-5 → δ = 1e-5; 1500 → δ = 100 (trailing zeros unseen)', () => {
+    expect([0, Number.NaN, Number.POSITIVE_INFINITY].map(printedDigitsUncertainty)).toEqual([0, 0, 0]);
+    expect(printedDigitsUncertainty(1e-5) * Math.sqrt(12)).toBeCloseTo(1e-5, 18);
+    expect(printedDigitsUncertainty(1500) * Math.sqrt(12)).toBeCloseTo(100, 10);
+    expect(printedDigitsUncertainty(-2.5e-7) * Math.sqrt(12)).toBeCloseTo(1e-8, 20);
   });
 });
