@@ -337,6 +337,31 @@ describe('RKR curve of a Morse oscillator: spline inside, Morse-shaped walls out
     }
   });
 
+  // With B(v) rising (Y11 = +0.05) the inner wall is less curved than a Morse wall can be at its end
+  // (V″V/V′² ≈ 0.32 < ½, measured), so the continuation there is the exponential V₁ + c(e^{−b(r − r₁)} − 1): its
+  // successive differences over equal steps have a constant ratio e^{bd}, and it joins the spline with its value
+  // and slope.
+  it('continues a wall no Morse shape fits by an exponential that joins the spline in value and slope', () => {
+    const model = rkrCurveModel({ g: [2000, -10], b: [2, 0.05] }, 16.86, 8, { knots: 80 });
+    if (!model) throw new Error('no curve');
+    const V = model.potential;
+    const r0 = model.inner;
+    const V0 = V(r0);
+    expect(Math.abs(V(r0 - 1e-9) - V0)).toBeLessThan(1e-3);
+    const h = 1e-6;
+    const slopeIn = (V(r0 + h) - V0) / h;
+    const slopeOut = (V0 - V(r0 - h)) / h;
+    expect(slopeIn).toBeLessThan(0);
+    expect(Math.abs(slopeOut - slopeIn) / Math.abs(slopeIn)).toBeLessThan(1e-3);
+    const d = 0.05;
+    const [a, b, c, e] = [V0, V(r0 - d), V(r0 - 2 * d), V(r0 - 3 * d)] as [number, number, number, number];
+    expect(b).toBeGreaterThan(a);
+    const q1 = (c - b) / (b - a);
+    const q2 = (e - c) / (c - b);
+    expect(q1).toBeGreaterThan(1);
+    expect(Math.abs(q1 - q2) / q1).toBeLessThan(1e-9);
+  });
+
   it('gives no curve when the turning points do not run in order (B(v) doubling by v = 1.5)', () => {
     const series = { g: [2000, -10], b: [2] };
     expect(rkrCurveModel(series, 16.86, 10, { knots: 40 })).toBeDefined();
