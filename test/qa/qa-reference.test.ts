@@ -352,14 +352,64 @@ describe('predicted lines by hand', () => {
     for (const l of band.lines) expect(l.wavenumber.uncertainty).toBeNull();
   });
 
+  // I ∝ g_band ν S e^{−c₂E″/T}(1 − e^{−c₂ν/T}) (SCIENCE.md §5), S = J″+1 (R), J″ (P), normalised to the strongest
+  // line; g_band, the rough band strength of the ranking (common practice): 1 for 1-0, 2 for 2-1, 0.01 for 2-0.
+  it('relative intensities across bands at 296 K follow the formula written out here (1e-9)', () => {
+    const bands = [
+      { upper: 1, lower: 0 },
+      { upper: 2, lower: 0 },
+      { upper: 2, lower: 1 },
+    ];
+    const r = predictLines(species, constants, { bands, jMax: 20 });
+    const g = { '1-0': 1, '2-0': 0.01, '2-1': 2 } as Record<string, number>;
+    const raw = r.lines.map((l) => {
+      const s = l.branch === 'R' ? l.j + 1 : l.j;
+      const nu = l.wavenumber.value;
+      return (g[l.band] as number) * nu * s * Math.exp((-C2 * l.lowerEnergy) / 296) * (1 - Math.exp((-C2 * nu) / 296));
+    });
+    const max = Math.max(...raw);
+    r.lines.forEach((l, i) => {
+      expect(Math.abs(l.relativeIntensity - (raw[i] as number) / max)).toBeLessThan(1e-9);
+    });
+    // E″ of the hot band's lines is measured from v = 0, J = 0: G(1) − G(0) = 1980 plus the rotation of v = 1.
+    const hot = r.lines.find((l) => l.band === '2-1' && l.branch === 'R' && l.j === 0);
+    expect(Math.abs((hot?.lowerEnergy as number) - 1980)).toBeLessThan(1e-9);
+    // A band drawn downwards (upper below lower) has ν < 0: its lines carry intensity 0, never NaN.
+    const down = predictLines(species, constants, { bands: [{ upper: 0, lower: 1 }], jMax: 3 });
+    expect(down.lines.length).toBeGreaterThan(0);
+    for (const l of down.lines) {
+      expect(l.wavenumber.value).toBeLessThan(0);
+      expect(l.relativeIntensity).toBe(0);
+    }
+  });
+
+  it('a covariance makes every σ known, even of constants given without one', () => {
+    const bare = {
+      values: { omega_e: { value: 2000 }, omega_e_x_e: { value: 10 }, B_e: { value: 2 }, alpha_e: { value: 0.02 } },
+      covariance: { names: ['omega_e' as const], matrix: [[0.01]] },
+    };
+    const r = predictLines(species, bare, { bands: [{ upper: 1, lower: 0 }], jMax: 1 });
+    for (const l of r.lines) expect(l.wavenumber.uncertainty).toBeCloseTo(0.1, 12);
+    expect(r.constants.map((c) => c.uncertainty)).toEqual([0.1, 0, 0, 0]);
+  });
+
   it('library constants carry no σ; refusals name what is missing or wrong', () => {
     const lib = predictLines(species, undefined, { bands: [{ upper: 1, lower: 0 }], jMax: 2 });
     expect(lib.source).toBe('library');
     for (const c of lib.constants) expect(c.uncertainty).toBeNull();
     expect(lib.constants.map((c) => c.name)).toContain('omega_e');
+    // R(0) of H35Cl 1-0 lies at 2906.25 cm⁻¹ (HITRAN, from memory); the library's constants without higher terms
+    // give it within 0.5 cm⁻¹.
+    const r0 = lib.lines.find((l) => l.branch === 'R' && l.j === 0);
+    expect(Math.abs((r0?.wavenumber.value as number) - 2906.25)).toBeLessThan(0.5);
+    const missing = err(() => predictLines(parseSpecies('NaCl'), undefined, { bands: [] }));
+    expect(missing.code).toBe('SPECIES_NOT_IN_LIBRARY');
+    expect(missing.message).toBe('23Na-35Cl is not in the reference library: send its constants');
+    expect(missing.details).toEqual({ species: '23Na-35Cl' });
     const noB = err(() => predictLines(species, { values: { omega_e: { value: 2000 } } }, { bands: [] }));
     expect(noB.code).toBe('INPUT_INVALID');
     expect(noB.message).toBe('constants need at least omega_e and B_e');
+    expect(noB.details).toEqual({ given: ['omega_e'] });
     const badName = err(() =>
       predictLines(
         species,
@@ -368,6 +418,25 @@ describe('predicted lines by hand', () => {
       ),
     );
     expect(badName.message).toBe('the covariance names must be constants that are given, one row per name');
+    expect(badName.code).toBe('INPUT_INVALID');
+    expect(badName.details).toEqual({ names: ['gamma_e'] });
+    const oneUnknown = err(() =>
+      predictLines(
+        species,
+        {
+          values: constants.values,
+          covariance: {
+            names: ['B_e', 'gamma_e'],
+            matrix: [
+              [1, 0],
+              [0, 1],
+            ],
+          },
+        },
+        { bands: [] },
+      ),
+    );
+    expect(oneUnknown.message).toBe('the covariance names must be constants that are given, one row per name');
     const rows = err(() =>
       predictLines(
         species,
@@ -384,5 +453,6 @@ describe('predicted lines by hand', () => {
       ),
     );
     expect(square.message).toBe('the covariance matrix must be square');
+    expect(square.code).toBe('INPUT_INVALID');
   });
 });
