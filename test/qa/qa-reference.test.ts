@@ -236,6 +236,51 @@ describe('calibration against reference positions, by hand', () => {
     expect(noOmega?.nuisance).toEqual([]);
   });
 
+  // Lines of three bands whose true term values carry ω_e y_e = 0.05 and γ_e = 3e-5 cm⁻¹, which the reference
+  // constants lack: with the two nuisance terms in the regression, and lines far more precise (σ = 1e-5) than the
+  // priors (0 ± a few 0.01), the offset and scale come out as put in; with the nuisance columns zeroed by hand the
+  // offset came out 1.04 cm⁻¹ off.
+  it('the nuisance terms take up what the constants lack, so offset and scale come out right (1e-6, 0.01 ppm)', () => {
+    const truth = (v: number, j: number) => {
+      const x = v + 0.5;
+      return energy(v, j) + 0.05 * x ** 3 + 3e-5 * x * x * j * (j + 1);
+    };
+    const pts: { observed: number; sigma: number; upperV: number; upperJ: number; lowerV: number; lowerJ: number }[] =
+      [];
+    for (const up of [1, 2, 3])
+      for (let j = 0; j <= 12; j++) {
+        pts.push({
+          observed: truth(up, j + 1) - truth(0, j),
+          sigma: 1e-5,
+          upperV: up,
+          upperJ: j + 1,
+          lowerV: 0,
+          lowerJ: j,
+        });
+        if (j > 0)
+          pts.push({
+            observed: truth(up, j - 1) - truth(0, j),
+            sigma: 1e-5,
+            upperV: up,
+            upperJ: j - 1,
+            lowerV: 0,
+            lowerJ: j,
+          });
+      }
+    const refs = pts.map((p) => energy(p.upperV, p.upperJ) - energy(p.lowerV, p.lowerJ));
+    const centre = refs.reduce((a, b) => a + b, 0) / refs.length;
+    const shifted = pts.map((p, i) => ({
+      ...p,
+      observed: p.observed + 0.013 + 25e-6 * ((refs[i] as number) - centre),
+    }));
+    const r = calibrateAgainstLibrary(shifted, new Map(Y), 'x', 100);
+    if (!r) throw new Error('no calibration');
+    expect(r.nuisance).toEqual(['ω_e y_e', 'γ_e']);
+    expect(Math.abs(r.centre - centre)).toBeLessThan(1e-9);
+    expect(Math.abs(r.offset.value - 0.013)).toBeLessThan(1e-6);
+    expect(Math.abs((r.scale?.value as number) - 25)).toBeLessThan(0.01);
+  });
+
   it('fewer than three lines, or lines that cannot separate offset and scale, give no calibration', () => {
     const { pts } = lines(0, 0, () => 0.002);
     expect(calibrateAgainstLibrary(pts.slice(0, 2), new Map(Y), 'x', 100)).toBeUndefined();
