@@ -13,8 +13,8 @@ import { parseSpecies } from '../../src/species/parse.js';
 // Fast checks of the QA kernels (temperature, calibration, guard band, predictions) against values worked out by
 // hand or published, each computed inside `it`. The constants below are invented (not a molecule).
 
-/** Second radiation constant c₂ = hc/k = 1.438776877…e-2 m K (CODATA 2018; h, c and k are exact). */
-const C2 = 1.438776877;
+/** Second radiation constant c₂ = hc/k = 1.438776877503933 cm K from the exact SI values of h, c and k. */
+const C2 = 1.438776877503933;
 
 const err = (f: () => unknown): ScienceError => {
   try {
