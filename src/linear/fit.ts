@@ -527,6 +527,14 @@ export function fitLinearLines(
   };
 }
 
+type LinearWarning = LinearFitResult['warnings'][number];
+/** A fitted parameter of the species as a quantity ("s|kind|level"), undefined when the model has none. */
+type QuantityOf = (kind: Kind, key: string) => Quantity | undefined;
+
+/**
+ * The report, in stages: lines → l-type and rotational levels → warnings on implausible H → bands → combination
+ * differences → statistics and the model's description. Warnings come in that order.
+ */
 function reportLinearFit(
   species: LinearSpecies,
   input: readonly LinearLineInput[],
@@ -539,20 +547,71 @@ function reportLinearFit(
   mode: UncertaintyMode,
 ): LinearFitResult {
   const s = species.formula;
-  const params = fit.model.parameters;
-  const p = params.length;
-  const index = new Map(params.map((x, i) => [x.key, i]));
-  const q = (kind: Kind, key: string): Quantity | undefined => {
+  const q = quantityLookup(s, fit);
+  const warnings: LinearWarning[] = [];
+  const lines = linearLineOutcomes(input, obs, transitions, rejected, fit);
+  if (rejected.size > 0) {
+    warnings.push({
+      code: 'LINES_REJECTED',
+      message: `${rejected.size} line(s) rejected as outliers (studentised residual)`,
+      lines: [...rejected.keys()],
+    });
+  }
+  const constrained = new Set(constraints.map((c) => c.key));
+  const lTypeLevels = lTypeLevelsOf(selection.infos, q);
+  const rotational = rotationalLevelsOf(s, selection.infos, q, constrained);
+  const levels = rotational.levels;
+  warnings.push(...rotational.warnings, ...implausibleHWarnings(levels));
+  const bands = bandsOf(s, fit, selection.infos, obs, transitions);
+  const combinationDifferences = linearCombinationDifferences(species, input, transitions, rejected, levels);
+  warnings.push(...disagreeingDifferences(combinationDifferences));
+  if (fit.degreesOfFreedom < 5) {
+    warnings.push({
+      code: 'FEW_DEGREES_OF_FREEDOM',
+      message: `only ${fit.degreesOfFreedom} degrees of freedom`,
+    });
+  }
+  return {
+    species: { formula: s, mass: quantity(species.mass.value, species.mass.uncertainty, 'u') },
+    convention: LINEAR_TERM_CONVENTION,
+    lines,
+    levels,
+    lTypeLevels,
+    bands,
+    ...parametersAndCovariance(fit),
+    statistics: linearStatistics(input.length, transitions.size, rejected.size, fit, mode),
+    model: linearModelDescription(selection, fit, constraints, mode),
+    combinationDifferences,
+    warnings,
+  };
+}
+
+function quantityLookup(s: string, fit: SolvedModel): QuantityOf {
+  const p = fit.model.parameters.length;
+  const index = new Map(fit.model.parameters.map((x, i) => [x.key, i]));
+  return (kind, key) => {
     const i = index.get(`${s}|${kind}|${key}`);
     return i === undefined
       ? undefined
       : quantity(fit.values[i] as number, Math.sqrt(fit.covariance[i * p + i] as number), 'cm-1');
   };
-  const warnings: { code: string; message: string; lines?: number[] }[] = [];
+}
+
+/**
+ * Every line in input order: unassigned, fitted (residual, studentised residual) or rejected (reason, and residual
+ * and studentised residual against the final fit, which left it out).
+ */
+function linearLineOutcomes(
+  input: readonly LinearLineInput[],
+  obs: readonly LinearObservation[],
+  transitions: ReadonlyMap<number, LinearTransition>,
+  rejected: ReadonlyMap<number, string>,
+  fit: SolvedModel,
+): LinearLineOutcome[] {
   const t = studentisedResiduals(fit);
   const keptPos = new Map(fit.observations.map((o, i) => [o.index, i]));
   const byIndex = new Map(obs.map((o) => [o.index, o]));
-  const lines: LinearLineOutcome[] = input.map((l, i) => {
+  return input.map((l, i) => {
     const a = transitions.get(i);
     if (!a) return { index: i, position: l.position, status: 'unassigned' as const };
     const assignment = { ...a, band: bandLabel(a.upper, a.lower) };
@@ -582,15 +641,11 @@ function reportLinearFit(
       reason: rejected.get(i) ?? 'rejected',
     };
   });
-  if (rejected.size > 0) {
-    warnings.push({
-      code: 'LINES_REJECTED',
-      message: `${rejected.size} line(s) rejected as outliers (studentised residual)`,
-      lines: [...rejected.keys()],
-    });
-  }
-  const constrained = new Set(constraints.map((c) => c.key));
-  const lTypeLevels: LinearLTypeLevelResult[] = [...selection.infos.values()]
+}
+
+/** The l-type doubling constants of the vibrational levels that carry no rotational constants of their own. */
+function lTypeLevelsOf(infos: ReadonlyMap<string, LevelInfo>, q: QuantityOf): LinearLTypeLevelResult[] {
+  return [...infos.values()]
     .filter((info) => !info.rotational)
     .map((info) => {
       const qv = q('q', info.key);
@@ -604,7 +659,20 @@ function reportLinearFit(
         ...(qJ ? { qJ } : {}),
       };
     });
-  const levels: LinearLevelResult[] = [...selection.infos.values()]
+}
+
+/**
+ * The rotational levels (term value, B, D and H unless constrained, q): with a warning for each l ≥ 1 level seen in
+ * one parity component only (q undetermined, B that component's effective B).
+ */
+function rotationalLevelsOf(
+  s: string,
+  infos: ReadonlyMap<string, LevelInfo>,
+  q: QuantityOf,
+  constrained: ReadonlySet<string>,
+): { levels: LinearLevelResult[]; warnings: LinearWarning[] } {
+  const warnings: LinearWarning[] = [];
+  const levels: LinearLevelResult[] = [...infos.values()]
     .filter((info) => info.rotational)
     .map((info) => {
       const k = info.key;
@@ -635,9 +703,16 @@ function reportLinearFit(
         ...(oneParity ? { parity: oneParity } : {}),
       };
     });
+  return { levels, warnings };
+}
+
+/**
+ * |H| ~ D²/B (common practice; 0.2–0.7 for the molecules of the reference note, §1). Far beyond it, the term test
+ * kept H for structure the model lacks (perturbations, pressure shifts in certified centres, a wrong J).
+ */
+function implausibleHWarnings(levels: readonly LinearLevelResult[]): LinearWarning[] {
+  const warnings: LinearWarning[] = [];
   for (const l of levels) {
-    // |H| ~ D²/B (common practice; 0.2–0.7 for the molecules of the reference note, §1). Far beyond it, the term
-    // test kept H for structure the model lacks (perturbations, pressure shifts in certified centres, a wrong J).
     if (l.H && l.D && l.D.value !== 0) {
       const scale = (l.D.value * l.D.value) / Math.abs(l.B.value);
       const ratio = Math.abs(l.H.value) / scale;
@@ -649,31 +724,24 @@ function reportLinearFit(
       }
     }
   }
-  const bands = bandsOf(s, fit, selection.infos, obs, transitions);
+  return warnings;
+}
+
+/** A warning per level whose B from combination differences is more than 3 combined σ from the full fit's. */
+function disagreeingDifferences(cds: readonly LinearCombinationDifferences[]): LinearWarning[] {
+  return cds
+    .filter((cd) => cd.deviation > 3)
+    .map((cd) => ({
+      code: 'COMBINATION_DIFFERENCES_DISAGREE',
+      message: `B from the combination differences of ${cd.level} differs from the full fit by ${cd.deviation.toFixed(1)} combined σ`,
+    }));
+}
+
+function parametersAndCovariance(fit: SolvedModel): Pick<LinearFitResult, 'parameters' | 'covariance' | 'correlation'> {
+  const params = fit.model.parameters;
+  const p = params.length;
   const names = params.map((x) => x.name);
-  const combinationDifferences = linearCombinationDifferences(species, input, transitions, rejected, levels);
-  for (const cd of combinationDifferences) {
-    if (cd.deviation > 3) {
-      warnings.push({
-        code: 'COMBINATION_DIFFERENCES_DISAGREE',
-        message: `B from the combination differences of ${cd.level} differs from the full fit by ${cd.deviation.toFixed(1)} combined σ`,
-      });
-    }
-  }
-  if (fit.degreesOfFreedom < 5) {
-    warnings.push({
-      code: 'FEW_DEGREES_OF_FREEDOM',
-      message: `only ${fit.degreesOfFreedom} degrees of freedom`,
-    });
-  }
-  const nAssigned = transitions.size;
   return {
-    species: { formula: s, mass: quantity(species.mass.value, species.mass.uncertainty, 'u') },
-    convention: LINEAR_TERM_CONVENTION,
-    lines,
-    levels,
-    lTypeLevels,
-    bands,
     parameters: params.map((x, i) => ({
       name: x.name,
       key: x.key,
@@ -681,29 +749,45 @@ function reportLinearFit(
     })),
     covariance: { parameters: names, matrix: toRows(fit.covariance, p) },
     correlation: { parameters: names, matrix: toRows(correlationOf(fit.covariance, p), p) },
-    statistics: {
-      lines: input.length,
-      assigned: nAssigned,
-      fitted: fit.observations.length,
-      rejected: rejected.size,
-      unassigned: input.length - nAssigned,
-      parameters: p,
-      degreesOfFreedom: fit.degreesOfFreedom,
-      rms: rmsResidual(fit),
-      reducedChiSquare: reducedChiSquare(fit),
-      conditionNumber: Number.isFinite(fit.conditionNumber) ? fit.conditionNumber : null,
-      uncertaintyMode: mode,
-    },
-    model: {
-      levelTerms: [...selection.infos.keys()].map((k) => ({
-        level: k,
-        terms: params.filter((x) => (x as { level?: string }).level === k).map((x) => x.name),
-      })),
-      selection: `per level B, then D, then H while the ${mode === 'absolute' ? 'χ² difference' : 'nested F'} test keeps p < 0.01; q for l ≥ 1 levels seen in both parity components`,
-      constraints,
-    },
-    combinationDifferences,
-    warnings,
+  };
+}
+
+function linearStatistics(
+  lines: number,
+  assigned: number,
+  rejected: number,
+  fit: SolvedModel,
+  mode: UncertaintyMode,
+): Statistics {
+  return {
+    lines,
+    assigned,
+    fitted: fit.observations.length,
+    rejected,
+    unassigned: lines - assigned,
+    parameters: fit.model.parameters.length,
+    degreesOfFreedom: fit.degreesOfFreedom,
+    rms: rmsResidual(fit),
+    reducedChiSquare: reducedChiSquare(fit),
+    conditionNumber: Number.isFinite(fit.conditionNumber) ? fit.conditionNumber : null,
+    uncertaintyMode: mode,
+  };
+}
+
+function linearModelDescription(
+  selection: { readonly infos: ReadonlyMap<string, LevelInfo> },
+  fit: SolvedModel,
+  constraints: readonly LinearTermConstraint[],
+  mode: UncertaintyMode,
+): LinearFitResult['model'] {
+  const params = fit.model.parameters;
+  return {
+    levelTerms: [...selection.infos.keys()].map((k) => ({
+      level: k,
+      terms: params.filter((x) => (x as { level?: string }).level === k).map((x) => x.name),
+    })),
+    selection: `per level B, then D, then H while the ${mode === 'absolute' ? 'χ² difference' : 'nested F'} test keeps p < 0.01; q for l ≥ 1 levels seen in both parity components`,
+    constraints,
   };
 }
 
