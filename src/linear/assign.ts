@@ -475,6 +475,7 @@ function attemptAssignment(ctx: Attempt, offset: number, offsetSigma: number): L
   );
 }
 
+/** The result, in stages: lines as matched → band summaries → numbering checks against the library → share unexplained. */
 function finish(
   species: LinearSpecies,
   ref: ReferenceSpecies,
@@ -487,11 +488,33 @@ function finish(
   shifted: (c: Candidate) => number,
   warnings: string[],
 ): LinearAssignResult {
+  const lines = assignedLines(peaks, cands, matches, shifted);
+  const numbering = fit ? numberingChecks(fit, ref, bands, off.maxRms) : [];
+  if (fit) warnings.push(...numberingWarnings(fit, numbering, off.maxRms));
+  return {
+    species: species.formula,
+    offset: quantity(off.offset, off.offsetSigma, 'cm-1'),
+    lines,
+    bands: bandSummaries(bands, lines, cands),
+    ...(fit ? { fit } : {}),
+    numbering,
+    unexplainedFraction: unexplainedFraction(peaks, lines),
+    warnings,
+  };
+}
+
+/** Every peak in order: unassigned, or assigned with the matched candidate's transition, prediction and residual. */
+function assignedLines(
+  peaks: readonly LinearPeak[],
+  cands: readonly Candidate[],
+  matches: ReturnType<typeof matchLines>['matches'],
+  shifted: (c: Candidate) => number,
+): LinearAssignedLine[] {
   const byCand = new Map(cands.map((c) => [c.key, c]));
   const byPeak = new Map<number, { c: Candidate; residual: number }>();
   for (const m of matches)
     byPeak.set(m.peak.index, { c: byCand.get(m.prediction.key) as Candidate, residual: m.residual });
-  const lines: LinearAssignedLine[] = peaks.map((p, index) => {
+  return peaks.map((p, index) => {
     const hit = byPeak.get(index);
     if (!hit) return { index, position: p.position, status: 'unassigned' };
     const c = hit.c;
@@ -511,7 +534,15 @@ function finish(
       residual: p.position - shifted(c),
     };
   });
-  const summaries: LinearBandSummary[] = bands.map((b) => {
+}
+
+/** Per band: its kind, the lines predicted and assigned, and the J range assigned. */
+function bandSummaries(
+  bands: readonly { upper: LinearLevel; lower: LinearLevel }[],
+  lines: readonly LinearAssignedLine[],
+  cands: readonly Candidate[],
+): LinearBandSummary[] {
+  return bands.map((b) => {
     const key = `${levelKey(b.upper)}>${levelKey(b.lower)}`;
     const mine = lines.filter(
       (l) => l.assignment && `${levelKey(l.assignment.upper)}>${levelKey(l.assignment.lower)}` === key,
@@ -527,56 +558,64 @@ function finish(
       ...(js.length > 0 ? { jRange: [Math.min(...js), Math.max(...js)] as const } : {}),
     };
   });
+}
+
+/** The fitted B of each lower level the library knows against the library's, judged with the fit's scatter. */
+function numberingChecks(
+  fit: LinearFitResult,
+  ref: ReferenceSpecies,
+  bands: readonly { upper: LinearLevel; lower: LinearLevel }[],
+  maxRms: number,
+): NumberingCheck[] {
   const numbering: NumberingCheck[] = [];
-  if (fit) {
-    const lowerKeys = new Set(bands.map((b) => levelKey(b.lower)));
-    for (const l of fit.levels) {
-      if (!lowerKeys.has(l.key) || l.parity) continue;
-      const r = ref.levels.find((x) => levelKey(x) === l.key);
-      if (!r) continue;
-      const ratio = l.B.value / r.B.value;
-      // A numbering one line off moves B″ by a few parts in 10³ (OCS ν1: 3e-3; CO2 ν3: 1.6e-2) and by 2× when the
-      // missing levels are ignored; the fit and a read library value agree to parts in 10⁵. Allowed: 5 combined σ
-      // (a recalled value counts as 1e-4 relative), at least 3e-4.
-      const refSigma = r.B.uncertainty ?? (r.B.status === 'recalled' ? 1e-4 : 1e-6) * r.B.value;
-      const allowed = Math.max((5 * Math.hypot(l.B.uncertainty, refSigma)) / r.B.value, 3e-4);
-      // A numbering whose fit scatters by more than a twentieth of the line spacing is no numbering at all (a
-      // wrong one leaves residuals of a tenth of the spacing and more, with a B″ too vague to be rejected; a
-      // right one fits to the noise): our rule, measured on CO2 ν3 shifted by 2.5 and 3 cm⁻¹ (rms 0.18, 0.24 cm⁻¹
-      // against 9e-4 for the right numbering, spacing 1.56).
-      numbering.push({
-        level: l.label,
-        fittedB: l.B,
-        referenceB: r.B.value,
-        ratio,
-        ok: Math.abs(ratio - 1) <= allowed && fit.statistics.rms <= off.maxRms,
-      });
-    }
-    if (fit.statistics.rms > off.maxRms) {
-      warnings.push(
-        `the fit of this numbering scatters by ${fit.statistics.rms.toPrecision(2)} cm-1, more than a twentieth of the line spacing`,
-      );
-    }
-    for (const n of numbering) {
-      if (!n.ok) warnings.push(`numbering suspect: fitted B of ${n.level} is ${n.ratio.toFixed(4)} × the library's`);
-    }
+  const lowerKeys = new Set(bands.map((b) => levelKey(b.lower)));
+  for (const l of fit.levels) {
+    if (!lowerKeys.has(l.key) || l.parity) continue;
+    const r = ref.levels.find((x) => levelKey(x) === l.key);
+    if (!r) continue;
+    const ratio = l.B.value / r.B.value;
+    // A numbering one line off moves B″ by a few parts in 10³ (OCS ν1: 3e-3; CO2 ν3: 1.6e-2) and by 2× when the
+    // missing levels are ignored; the fit and a read library value agree to parts in 10⁵. Allowed: 5 combined σ
+    // (a recalled value counts as 1e-4 relative), at least 3e-4.
+    const refSigma = r.B.uncertainty ?? (r.B.status === 'recalled' ? 1e-4 : 1e-6) * r.B.value;
+    const allowed = Math.max((5 * Math.hypot(l.B.uncertainty, refSigma)) / r.B.value, 3e-4);
+    // A numbering whose fit scatters by more than a twentieth of the line spacing is no numbering at all (a
+    // wrong one leaves residuals of a tenth of the spacing and more, with a B″ too vague to be rejected; a
+    // right one fits to the noise): our rule, measured on CO2 ν3 shifted by 2.5 and 3 cm⁻¹ (rms 0.18, 0.24 cm⁻¹
+    // against 9e-4 for the right numbering, spacing 1.56).
+    numbering.push({
+      level: l.label,
+      fittedB: l.B,
+      referenceB: r.B.value,
+      ratio,
+      ok: Math.abs(ratio - 1) <= allowed && fit.statistics.rms <= maxRms,
+    });
   }
+  return numbering;
+}
+
+function numberingWarnings(fit: LinearFitResult, numbering: readonly NumberingCheck[], maxRms: number): string[] {
+  const warnings: string[] = [];
+  if (fit.statistics.rms > maxRms) {
+    warnings.push(
+      `the fit of this numbering scatters by ${fit.statistics.rms.toPrecision(2)} cm-1, more than a twentieth of the line spacing`,
+    );
+  }
+  for (const n of numbering) {
+    if (!n.ok) warnings.push(`numbering suspect: fitted B of ${n.level} is ${n.ratio.toFixed(4)} × the library's`);
+  }
+  return warnings;
+}
+
+/** The share of the peaks left unassigned, by intensity when every peak has one, else by count. */
+function unexplainedFraction(peaks: readonly LinearPeak[], lines: readonly LinearAssignedLine[]): number {
   const withIntensity = peaks.every((p) => p.intensity !== undefined && p.intensity > 0);
   const weight = (p: LinearPeak) => (withIntensity ? (p.intensity as number) : 1);
   const total = peaks.reduce((s, p) => s + weight(p), 0);
   const unexplained = lines
     .filter((l) => l.status === 'unassigned')
     .reduce((s, l) => s + weight(peaks[l.index] as LinearPeak), 0);
-  return {
-    species: species.formula,
-    offset: quantity(off.offset, off.offsetSigma, 'cm-1'),
-    lines,
-    bands: summaries,
-    ...(fit ? { fit } : {}),
-    numbering,
-    unexplainedFraction: total > 0 ? unexplained / total : 0,
-    warnings,
-  };
+  return total > 0 ? unexplained / total : 0;
 }
 
 /** One species of the identification ranking (the same shape as src/assign/identify.ts gives diatomics). */
