@@ -88,6 +88,8 @@ export interface StructureAssignment {
 
 /** Least score margin for a numbering to be reported (χ²-like units: odds of about e^{−9/2} ≈ 1 : 90). */
 export const MIN_MARGIN = 9;
+/** Fraction of the line spacing within which a line of another band or a spurious peak is not met by chance. */
+const COINCIDENCE = 1e-4;
 /** χ² tail probability below which the best numbering's fit is not believed (lines with σ only). */
 const IMPROBABLE_FIT = 1e-6;
 /**
@@ -96,8 +98,13 @@ const IMPROBABLE_FIT = 1e-6;
  * microwave D_0).
  */
 const KRATZER_SIGMA = 0.003;
-/** Relative doubt of ω_e x_e from Pekeris's relation (the largest miss seen, HF's 18 %, rounded up). */
-const PEKERIS_DOUBT = 0.2;
+/**
+ * Pekeris's relation over-predicts ω_e x_e for every ¹Σ ground state checked (`kratzerTest`: +2 % to +18 %, mean
+ * +8.9 %, standard deviation 5 %): its value is divided by PEKERIS_BIAS, and PEKERIS_DOUBT is the relative 1σ left
+ * (the whole range, 1.02–1.18, within 1σ of 1.09).
+ */
+const PEKERIS_BIAS = 1.09;
+const PEKERIS_DOUBT = 0.08;
 /** Cost of a line lying at a numbering's band origin. */
 const ORIGIN_LINE_COST = 25;
 
@@ -155,7 +162,8 @@ export function assignByStructure(
  */
 function progressions(order: readonly { index: number; position: number }[], pos: Float64Array): Point[][] {
   const chains: Point[][] = [];
-  const inChain = new Set<number>();
+  /** The smooth progressions (by their place in `chains`) each line belongs to. */
+  const inChain = new Map<number, number[]>();
   for (let i = 0; i + 1 < order.length; i++)
     for (let skip = 1; skip <= 3 && i + skip < order.length; skip++) {
       const a = order[i] as { index: number; position: number };
@@ -167,12 +175,16 @@ function progressions(order: readonly { index: number; position: number }[], pos
       const above = ib + 1 < pos.length ? (pos[ib + 1] as number) - b.position : Number.POSITIVE_INFINITY;
       if (!(d >= 1.6 * Math.min(below, above))) continue;
       // A pair inside a progression already grown is a line missing from it, not a new band: its numberings are
-      // judged through that progression's empty slots.
-      if (inChain.has(a.index) && inChain.has(b.index)) continue;
+      // judged through that progression's empty slots. Only a progression whose sides are smooth counts, and only
+      // when it holds both lines: one grown from a spurious seed can run through the true gap with a side made of
+      // every other line, and two progressions may share a line without sharing the gap between.
+      const ca = inChain.get(a.index);
+      if (ca && inChain.get(b.index)?.some((k) => ca.includes(k))) continue;
       const points = grow(a, b, pos, order);
       if (points.length >= 6) {
         chains.push(points);
-        for (const p of points) inChain.add(p.index);
+        if (smoothSides(points))
+          for (const p of points) inChain.set(p.index, [...(inChain.get(p.index) ?? []), chains.length - 1]);
       }
     }
   return chains.sort((x, y) => y.length - x.length);
@@ -269,13 +281,31 @@ function onePerOrigin(scored: readonly ScoredTrial[], peaks: readonly Peak[]): S
 }
 
 /** The best numbering, its margin over the runner-up, and whether it passes its own tests. */
+/** Root mean square residual of the fitted lines among the first `count` (the numbered ones, not the anchors). */
+function fittedRms(r: FitResult, count: number): number {
+  let sum = 0;
+  let n = 0;
+  for (const l of r.lines) {
+    if (l.status !== 'fitted' || l.residual === undefined || l.index >= count) continue;
+    sum += l.residual ** 2;
+    n++;
+  }
+  return n > 0 ? Math.sqrt(sum / n) : Number.POSITIVE_INFINITY;
+}
+
 function verdict(evidence: readonly ScoredTrial[], peaks: readonly Peak[]): StructureAssignment {
   const best = evidence[0] as ScoredTrial;
   const runnerUp = evidence[1];
   const margin = runnerUp ? runnerUp.evidence.score - best.evidence.score : Number.POSITIVE_INFINITY;
   // The best of bad numberings is no numbering: when every line of it carries a σ, its fit must be a probable one.
   const withSigma = [...best.map.keys()].every((i) => peaks[i]?.uncertainty !== undefined);
-  const fitsUncertainties = !withSigma || chiSquareSurvival(best.chiSquare, best.dof) >= IMPROBABLE_FIT;
+  // Unless its lines lie within 1e-4 of the line spacing of the fit (rms): no line of another band or spurious peak
+  // falls that close by chance, and the misfit is the stated σ's (a database's lower bounds: real CO 3-0 at
+  // χ²/ν 3.6 against them, rms 2e-5 cm⁻¹ on a spacing of 3.5) or a model a term short.
+  const fitsUncertainties =
+    !withSigma ||
+    chiSquareSurvival(best.chiSquare, best.dof) >= IMPROBABLE_FIT ||
+    fittedRms(best.result, peaks.length) < COINCIDENCE * localSpacing(best.map, peaks);
   // And none of its own absolute tests (Δ₂F″ intercept, a line at its origin, Kratzer) may count against it beyond
   // what chance gives (3σ each): otherwise the true numbering was not among those judged.
   const parts = best.evidence.parts;
@@ -454,7 +484,7 @@ function describeShift(q: number, delta: number): string {
 /**
  * The numberings worth judging for a progression, whose lines carry consecutive indices m (the seed gap's P-side
  * line at m = −1, its R-side line at m = slots − 1, as the spacing either side puts it): the origin at any empty
- * slot q (those nearest the seed gap first, at most 16), and the R side of the seed gap moved by δ = −1, 0, +1
+ * slot q (those nearest the seed gap first, at most 16, and up to 12 inside the progression), and the R side of the seed gap moved by δ = −1, 0, +1
  * against the P side (in case the gap was misjudged by a line).
  */
 function numberingsOf(chain: readonly Point[]): { q: number; delta: number }[] {
@@ -464,8 +494,12 @@ function numberingsOf(chain: readonly Point[]): { q: number; delta: number }[] {
   const empty: number[] = [];
   for (let m = lo - 1; m <= hi + 1; m++) if (!ms.has(m)) empty.push(m);
   empty.sort((a, b) => Math.abs(a) - Math.abs(b));
+  // And every empty slot inside the progression (lost lines, few): a seed taken from a spurious line beyond one
+  // end grows a progression that runs through the true gap, far from its own seed gap.
+  const inside = empty.filter((m) => m > lo && m < hi);
+  const slots = [...new Set([...empty.slice(0, 16), ...inside.slice(0, 12)])];
   const out: { q: number; delta: number }[] = [];
-  for (const q of empty.slice(0, 16)) for (const delta of [0, -1, 1]) out.push({ q, delta });
+  for (const q of slots) for (const delta of [0, -1, 1]) out.push({ q, delta });
   return out;
 }
 
@@ -525,20 +559,34 @@ function differenceIntercept(
     ws.push(1 / s2);
   }
   const n = xs.length;
-  const cols = n >= 30 ? 6 : n >= 20 ? 5 : n >= 12 ? 4 : n >= 7 ? 3 : 2;
+  const fitWith = (cols: number) => {
+    const design = new Float64Array(n * cols);
+    xs.forEach((x, k) => {
+      design[k] = 1;
+      for (let c = 1; c < cols; c++) design[c * n + k] = x ** (2 * c - 1);
+    });
+    return solveLeastSquares({
+      rows: n,
+      cols,
+      design,
+      observations: Float64Array.from(ys),
+      weights: Float64Array.from(ws),
+    });
+  };
+  let cols = n >= 30 ? 6 : n >= 20 ? 5 : n >= 12 ? 4 : n >= 7 ? 3 : 2;
   if (n < cols + 2) return undefined;
-  const design = new Float64Array(n * cols);
-  xs.forEach((x, k) => {
-    design[k] = 1;
-    for (let c = 1; c < cols; c++) design[c * n + k] = x ** (2 * c - 1);
-  });
-  const f = solveLeastSquares({
-    rows: n,
-    cols,
-    design,
-    observations: Float64Array.from(ys),
-    weights: Float64Array.from(ws),
-  });
+  let f = fitWith(cols);
+  // One more odd power while it is significant (F > 16, beyond 4σ) and leaves two degrees of freedom: a light
+  // molecule's Δ₂F″ over J ≤ 14 needs its (J+½)⁵ term (LiH: 12H(J+½)⁵ reaches 0.6 cm⁻¹), and a model too short
+  // bends the intercept of the true numbering by 5σ.
+  while (cols < 7 && n >= cols + 3 && !f.rankDeficient) {
+    const g = fitWith(cols + 1);
+    if (g.rankDeficient) break;
+    const F = (f.chiSquare - g.chiSquare) / (g.chiSquare / (n - cols - 1));
+    if (!(F > 16)) break;
+    f = g;
+    cols++;
+  }
   if (f.rankDeficient) return undefined;
   // A priori (σ = 1 for lines sent without one; `score` scales it by the lines' scatter) unless its own scale is
   // larger: the few degrees of freedom of this small fit make its own scale a poor estimate when smaller (7 pairs:
@@ -630,7 +678,8 @@ const IMPLAUSIBLE_COST = 25;
  * - ω_e from the band origin ν₀ = ω_e Δv − ω_e x_e Δv(v′+v″+1), ω_e x_e from Pekeris's relation
  *   α_e = 6√(ω_e x_e B_e³)/ω_e − 6B_e²/ω_e, i.e. ω_e x_e = (α_eω_e + 6B_e²)²/(36B_e³) (iterated; against Huber &
  *   Herzberg's constants, from memory, it gives N2 +2 %, NaCl +4 %, CO +6 %, CS +6 %, SiO +8 %, O2 +9 %, HCl +12 %,
- *   LiH +15 %, HF +18 %: its doubt, PEKERIS_DOUBT of ω_e x_e, enters through ω_e).
+ *   LiH +15 %, HF +18 %; recomputed here for CO +5.7 %, HCl +12.1 %, N2 +2.1 %, and for the test constants of CS
+ *   +5.6 %, SiO +7.7 %, NaCl +3.7 %, LiH +15 %: divided by PEKERIS_BIAS, its doubt PEKERIS_DOUBT enters through ω_e).
  * - D_e from the fitted D″ = D_e + β_e(v″+½), β_e from Dunham's relation β_e = D_e(8ω_e x_e/ω_e − 5α_e/B_e −
  *   α_e²ω_e/(24B_e³)) (common practice; half the correction is taken as its doubt).
  * The relative uncertainty adds D″'s own (from the fit), those of β_e and ω_e, and a floor of KRATZER_SIGMA in
@@ -653,7 +702,7 @@ export function kratzerTest(r: FitResult, band: Band): KratzerTest | undefined {
   let we = origin / dv;
   let wexe = 0;
   for (let k = 0; k < 20; k++) {
-    wexe = (alpha * we + 6 * Be * Be) ** 2 / (36 * Be ** 3);
+    wexe = (alpha * we + 6 * Be * Be) ** 2 / (36 * Be ** 3) / PEKERIS_BIAS;
     we = (origin + wexe * dv * levels) / dv;
   }
   const betaOverD = (8 * wexe) / we - (5 * alpha) / Be - (alpha * alpha * we) / (24 * Be ** 3);
@@ -669,6 +718,30 @@ export function kratzerTest(r: FitResult, band: Band): KratzerTest | undefined {
   return Number.isFinite(ratio) && ratio > 0 && Number.isFinite(uncertainty) ? { ratio, uncertainty } : IMPLAUSIBLE;
 }
 
+/**
+ * Whether each side of a progression has four lines or more and a smoothly varying spacing: per index step,
+ * consecutive spacings differ by at most a quarter of the side's median spacing (a band's changes by 2(B′ − B″) per
+ * line, a few per cent at most; a side that skips lines, or takes spurious ones, jumps by half a spacing or more).
+ * A side of three lines tells nothing (a spurious line and two lines beyond the gap pass for one).
+ */
+export function smoothSides(points: readonly Point[]): boolean {
+  for (const side of [points.filter((p) => p.m < 0), points.filter((p) => p.m >= 0)]) {
+    if (side.length < 4) return false;
+    const s = [...side].sort((a, b) => a.m - b.m);
+    const steps: number[] = [];
+    for (let k = 1; k < s.length; k++) {
+      const a = s[k - 1] as Point;
+      const b = s[k] as Point;
+      steps.push((b.position - a.position) / (b.m - a.m));
+    }
+    if (steps.length < 2) continue;
+    const typical = median(steps.map(Math.abs));
+    for (let k = 1; k < steps.length; k++)
+      if (Math.abs((steps[k] as number) - (steps[k - 1] as number)) > 0.25 * typical) return false;
+  }
+  return true;
+}
+
 /** Grow R (m = 1, 2, …) and P (m = −1, −2, …) from a candidate P(1), R(0) pair along a fitted Fortrat polynomial. */
 export function grow(
   p1: { index: number; position: number },
@@ -676,16 +749,45 @@ export function grow(
   pos: Float64Array,
   order: readonly { index: number; position: number }[],
 ): Point[] {
-  // The local spacing from the neighbours outside the gap; the gap then spans `slots` spacings.
+  // The local spacing from the neighbours outside the gap (on each side the median of the next five spacings: a
+  // spurious line beside a seed, common, splits one spacing in two); the gap then spans `slots` spacings.
   const ia = lowerBound(pos, p1.position);
   const ib = lowerBound(pos, r0.position);
-  const near: number[] = [];
-  if (ia > 0) near.push(p1.position - (pos[ia - 1] as number));
-  if (ib + 1 < pos.length) near.push((pos[ib + 1] as number) - r0.position);
+  const below: number[] = [];
+  for (let k = ia; k > 0 && k > ia - 5; k--) below.push((pos[k] as number) - (pos[k - 1] as number));
+  const above: number[] = [];
+  for (let k = ib; k + 1 < pos.length && k < ib + 5; k++) above.push((pos[k + 1] as number) - (pos[k] as number));
+  const near = [below, above].filter((x) => x.length > 0).map((x) => median(x));
   const gap = r0.position - p1.position;
-  const local = near.length > 0 ? Math.min(...near) : gap / 2;
-  const slots = Math.max(2, Math.min(30, Math.round(gap / local)));
-  const spacing0 = gap / slots;
+  // Across the gap the spacing changes steadily (by 2(B′ − B″) a line, 6 % a line for LiH): when the two sides'
+  // spacings agree within a factor 1.4 their mean counts the slots. Otherwise either may be wrong (spurious lines
+  // split the spacings of one side, lost lines double them): the gap is counted with each, and the longest
+  // progression kept.
+  const [n1, n2] = near as [number, number];
+  const locals =
+    near.length === 0
+      ? [gap / 2]
+      : near.length === 2 && Math.max(n1, n2) <= 1.4 * Math.min(n1, n2)
+        ? [(n1 + n2) / 2]
+        : near;
+  const counts = [...new Set(locals.map((l) => Math.max(2, Math.min(30, Math.round(gap / l)))))];
+  let best: Point[] = [];
+  for (const slots of counts) {
+    const points = growWithSlots(p1, r0, slots, pos, order);
+    if (points.length > best.length) best = points;
+  }
+  return best;
+}
+
+/** A progression grown from a seed pair whose gap spans `slots` spacings. */
+function growWithSlots(
+  p1: { index: number; position: number },
+  r0: { index: number; position: number },
+  slots: number,
+  pos: Float64Array,
+  order: readonly { index: number; position: number }[],
+): Point[] {
+  const spacing0 = (r0.position - p1.position) / slots;
   const points: Point[] = [
     { m: -1, index: p1.index, position: p1.position },
     { m: slots - 1, index: r0.index, position: r0.position },
@@ -703,7 +805,28 @@ export function grow(
   fillHoles(kept, usedAgain, pos, order);
   extendInwards(kept, usedAgain, pos, order);
   extendBothSides(kept, usedAgain, pos, order, spacing0);
-  return kept;
+  return withoutStraySeedSide(kept, spacing0);
+}
+
+/**
+ * A side of three points or fewer beside a long one (twelve or more) is kept only where the long side's
+ * polynomial, carried across, puts its lines (within a quarter spacing): the Fortrat polynomial runs on through
+ * the band origin, so a seed gap that is the origin loses nothing, while a spurious line taken as the seed beyond
+ * one end of a band, its whole band then grown on the other side, is dropped rather than numbered as P(42).
+ */
+function withoutStraySeedSide(points: Point[], spacing0: number): Point[] {
+  const pSide = points.filter((p) => p.m < 0);
+  const rSide = points.filter((p) => p.m >= 0);
+  const [small, large] = pSide.length <= rSide.length ? [pSide, rSide] : [rSide, pSide];
+  if (small.length === 0 || small.length > 3 || large.length < 12) return points;
+  const drop = new Set<number>();
+  for (const p of small) {
+    const near = [...large].sort((x, y) => Math.abs(x.m - p.m) - Math.abs(y.m - p.m)).slice(0, 12);
+    const predicted = fortrat(near, p.m, spacing0);
+    const spacing = Math.abs(fortrat(near, p.m + 1, spacing0) - predicted);
+    if (!(Math.abs(p.position - predicted) <= 0.25 * spacing)) drop.add(p.index);
+  }
+  return drop.size === 0 ? points : points.filter((p) => !drop.has(p.index));
 }
 
 /**
@@ -911,7 +1034,15 @@ function sideScatter(points: readonly Point[], pSide: boolean): number {
   const side = points.filter((p) => p.m < 0 === pSide);
   if (side.length < 8) return Number.POSITIVE_INFINITY;
   const r = polynomialResiduals(side);
-  const s = r ? robustSigmaOf(r) : 0;
+  if (!r) return Number.POSITIVE_INFINITY;
+  // The residuals of a polynomial with five coefficients through a few points understate the lines' scatter (nine
+  // points keep four degrees of freedom, and their median deviation is a rough guess): the larger of the robust
+  // scale and the root mean square, each corrected for the coefficients (CS R(9) lay 2.6σ from the cubic through
+  // R(0)–R(8) while the robust scale alone made the tolerance 0.8σ, and the R branch stopped there).
+  const dof = r.length - Math.min(5, r.length - 3);
+  const correction = Math.sqrt(r.length / dof);
+  const rms = Math.sqrt(r.reduce((a, x) => a + x * x, 0) / dof);
+  const s = Math.max(robustSigmaOf(r) * correction, rms);
   return s > 0 ? s : Number.POSITIVE_INFINITY;
 }
 

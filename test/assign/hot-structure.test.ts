@@ -5,61 +5,17 @@ import { assignByStructure } from '../../src/assign/structure.js';
 import { ScienceError } from '../../src/errors.js';
 import { parseSpecies } from '../../src/species/parse.js';
 import { reducedMass } from '../../src/species/reduced-mass.js';
+import { CS, NACL, SIO } from '../helpers/absent-species.js';
 import { independentLines, type MoleculeConstants } from '../helpers/independent-lines.js';
 
 /**
  * Hot bands from structure alone: a species the library lacks, its fundamental and the 2-1 hot band in one list.
  * The hot band is numbered jointly with the fundamental (its lower level is the fundamental's upper one, so its
  * combination differences must be the fundamental's). Lines from the independent generator (own term values and
- * J bookkeeping) with X ¹Σ⁺ constants from Huber & Herzberg (1979), FROM MEMORY (higher terms magnitudes only; CS
- * D_e from its microwave D_0, see structure.test.ts). Bars: never a wrong numbering; each band numbered either
+ * J bookkeeping) with X ¹Σ⁺ constants from Huber & Herzberg (1979), FROM MEMORY (test/helpers/absent-species.ts:
+ * higher terms magnitudes only; CS D_e from its microwave D_0). Bars: never a wrong numbering; each band numbered either
  * ≥ 98 % right or left unassigned (a refusal of the whole list is allowed where the fundamental cannot be told).
  */
-const HH = 'Huber & Herzberg (1979), from memory';
-const c = (value: number, source = HH) => ({ value, source });
-const CS: MoleculeConstants = {
-  formula: '12C-32S',
-  constants: {
-    omega_e: c(1285.08),
-    omega_e_x_e: c(6.46),
-    omega_e_y_e: c(0),
-    B_e: c(0.8200436),
-    alpha_e: c(0.0059182),
-    gamma_e: c(-1.3e-6, 'magnitude from memory'),
-    D_e: c(1.331e-6, 'from the recalled CS rotational rest frequencies (structure.test.ts)'),
-    beta_e: c(-2e-9, 'magnitude from memory'),
-    H_e: c(1e-13, 'order of magnitude, estimate'),
-  },
-};
-const SIO: MoleculeConstants = {
-  formula: '28Si-16O',
-  constants: {
-    omega_e: c(1241.55),
-    omega_e_x_e: c(5.966),
-    omega_e_y_e: c(0),
-    B_e: c(0.7267512),
-    alpha_e: c(0.0050379),
-    gamma_e: c(-3e-6, 'magnitude from memory'),
-    D_e: c(9.92e-7),
-    beta_e: c(-1e-9, 'magnitude from memory'),
-    H_e: c(1e-13, 'order of magnitude, estimate'),
-  },
-};
-const NACL: MoleculeConstants = {
-  formula: '23Na-35Cl',
-  constants: {
-    omega_e: c(366.0),
-    omega_e_x_e: c(2.0),
-    omega_e_y_e: c(0),
-    B_e: c(0.218063),
-    alpha_e: c(0.0016248),
-    gamma_e: c(2e-6, 'magnitude from memory'),
-    D_e: c(3.12e-7),
-    beta_e: c(0),
-    H_e: c(0),
-  },
-};
-
 const measured: string[] = [];
 
 function run(molecule: MoleculeConstants, top: number, hotTop: number, intensities: boolean, seed: number) {

@@ -3,6 +3,7 @@ import { analyseLineList } from '../../src/assign/analyse.js';
 import { ScienceError } from '../../src/errors.js';
 import { constantsFor } from '../../src/species/library.js';
 import { parseSpecies } from '../../src/species/parse.js';
+import { CS, LIH, NACL, SIO } from '../helpers/absent-species.js';
 import { independentLines, type MoleculeConstants } from '../helpers/independent-lines.js';
 
 /**
@@ -13,67 +14,8 @@ import { independentLines, type MoleculeConstants } from '../helpers/independent
  * the true lines correct, ≤ 5 % of spurious lines taken, and never a wrong numbering reported: where the data
  * cannot decide (no intensities and lines missing at the origin) the service must refuse with NUMBERING_AMBIGUOUS.
  */
-const HH = 'Huber & Herzberg (1979), from memory';
-const c = (value: number, source = HH) => ({ value, source });
-const CS: MoleculeConstants = {
-  formula: '12C-32S',
-  constants: {
-    omega_e: c(1285.08),
-    omega_e_x_e: c(6.46),
-    omega_e_y_e: c(0),
-    B_e: c(0.8200436),
-    alpha_e: c(0.0059182),
-    gamma_e: c(-1.3e-6, 'magnitude from memory'),
-    // D_0 from the rest frequencies of CS J = 1–0, 2–1, 3–2 (48 990.955, 97 980.953, 146 969.026 MHz, from memory):
-    // ν = 2B(J+1) − 4D(J+1)³ gives D_0 = 39.9 kHz = 1.331e-6 cm⁻¹, within 0.3 % of Kratzer's 4B_e³/ω_e²; the
-    // 1.40e-6 recalled earlier broke that relation by 5 %, which no ¹Σ ground state does (Dunham's Y02 = −4Y01³/Y10²).
-    D_e: c(1.331e-6, 'from the recalled CS rotational rest frequencies (see above)'),
-    beta_e: c(-2e-9, 'magnitude from memory'),
-    H_e: c(1e-13, 'order of magnitude, estimate'),
-  },
-};
-const SIO: MoleculeConstants = {
-  formula: '28Si-16O',
-  constants: {
-    omega_e: c(1241.55),
-    omega_e_x_e: c(5.966),
-    omega_e_y_e: c(0),
-    B_e: c(0.7267512),
-    alpha_e: c(0.0050379),
-    gamma_e: c(-3e-6, 'magnitude from memory'),
-    D_e: c(9.92e-7),
-    beta_e: c(-1e-9, 'magnitude from memory'),
-    H_e: c(1e-13, 'order of magnitude, estimate'),
-  },
-};
-const LIH: MoleculeConstants = {
-  formula: '7Li-1H',
-  constants: {
-    omega_e: c(1405.65),
-    omega_e_x_e: c(23.2),
-    omega_e_y_e: c(0.16, 'magnitude from memory'),
-    B_e: c(7.5131),
-    alpha_e: c(0.2132),
-    gamma_e: c(1.6e-3, 'magnitude from memory'),
-    D_e: c(8.617e-4),
-    beta_e: c(-1e-5, 'magnitude from memory'),
-    H_e: c(8e-8, 'order of magnitude, estimate'),
-  },
-};
-const NACL: MoleculeConstants = {
-  formula: '23Na-35Cl',
-  constants: {
-    omega_e: c(366.0),
-    omega_e_x_e: c(2.0),
-    omega_e_y_e: c(0),
-    B_e: c(0.218063),
-    alpha_e: c(0.0016248),
-    gamma_e: c(2e-6, 'magnitude from memory'),
-    D_e: c(3.12e-7),
-    beta_e: c(0),
-    H_e: c(0),
-  },
-};
+// X ¹Σ⁺ constants of CS, SiO, LiH and NaCl: test/helpers/absent-species.ts (Huber & Herzberg 1979, from memory; CS
+// D_e from its microwave D_0).
 
 interface Scenario {
   readonly molecule: MoleculeConstants;
@@ -238,37 +180,48 @@ describe('numbering a band from its structure alone (species absent from the lib
     });
   }
 
-  // The P branch cut at several J, each species, with and without intensities, 4 spurious lines (seed 11 per case):
-  // never a wrong numbering; with P(1) present, or with intensities and P(1)–P(2) cut, always the right one.
-  // Measured over generator seeds 11, 21, 31 (96 lists, ad hoc sweep): 85 right, 0 wrong, 11 refused, with the
-  // Kratzer test as a likelihood with its own σ (Pekeris's relation corrected: it gave ω_e x_e 2× too small);
-  // before: 56 right, 0 wrong, 39 refused, 1 partly assigned; before the evidence was made honest (Δ₂F″ intercept
-  // from the lines' σ, the best numbering's own tests, cleaner progressions): 59 right, 3 wrong, 33 refused.
-  it('the P branch cut at J = 1, 2, 3, 5: never numbered wrong, right whenever the data decide', () => {
-    const tally = { right: 0, wrong: 0, refused: 0, partial: 0 };
-    const jMax: [MoleculeConstants, number][] = [
-      [CS, 40],
-      [SIO, 45],
-      [LIH, 15],
-      [NACL, 70],
-    ];
-    for (const intensities of [false, true])
-      for (const pMin of [1, 2, 3, 5])
-        for (const [molecule, top] of jMax) {
-          const s = { ...base, molecule, pMin, pMax: top, rMax: top, intensities, spurious: 4, seed: 11 };
-          const r = run(s);
-          const name = `${molecule.formula} P(${pMin})+ ${intensities ? 'I' : '-'}`;
-          if (r.refused) {
-            tally.refused++;
-            expect(pMin === 1 || (intensities && pMin <= 2), `${name} refused`).toBe(false);
-            continue;
+  // The P branch cut at several J, each species, with and without intensities, 4 spurious lines, generator seeds
+  // 11, 21, 31 (96 lists): never a wrong numbering; with P(1) present, or with intensities and P(1)–P(2) cut, always
+  // the right one; right in ≥ 98 % of the lists.
+  // Measured (test/sweeps/structure-sweep.ts, which prints the evidence of every refusal): 96 right, 0 wrong,
+  // 0 refused. Seeds 11–61 with and without σ (384 lists): 380 right, 0 wrong, 2 refused, 2 one line short
+  // (DEVELOPERS.md). Before: 85 right, 0 wrong, 11 refused — progressions grown
+  // from a spurious seed claimed the true gap's lines, gaps counted with the smaller neighbouring spacing (LiH's
+  // differ by 15 % across the gap), Δ₂F″ intercepts without the (J+½)⁵ term LiH needs, Pekeris's ω_e x_e taken
+  // without its +9 % bias (NaCl's true and shifted numberings 4σ apart, now 7σ).
+  const tally = { right: 0, wrong: 0, refused: 0, partial: 0 };
+  const jMax: [MoleculeConstants, number][] = [
+    [CS, 40],
+    [SIO, 45],
+    [LIH, 15],
+    [NACL, 70],
+  ];
+  // One test per seed (32 lists each, a few seconds alone; the timeout allows for a loaded machine), then the share.
+  for (const seed of [11, 21, 31])
+    it(`the P branch cut at J = 1, 2, 3, 5, seed ${seed}: never numbered wrong; right with P(1), or with intensities and P(1)–P(2) cut`, () => {
+      for (const intensities of [false, true])
+        for (const pMin of [1, 2, 3, 5])
+          for (const [molecule, top] of jMax) {
+            const s = { ...base, molecule, pMin, pMax: top, rMax: top, intensities, spurious: 4, seed };
+            const r = run(s);
+            const name = `${molecule.formula} P(${pMin})+ ${intensities ? 'I' : '-'} seed ${seed}`;
+            if (r.refused) {
+              tally.refused++;
+              expect(pMin === 1 || (intensities && pMin <= 2), `${name} refused`).toBe(false);
+              continue;
+            }
+            if (r.wrong > 0.5 * r.trueLines) tally.wrong++;
+            expect(r.wrong, name).toBeLessThanOrEqual(0.02 * r.trueLines);
+            if (r.correct >= 0.98 * r.trueLines) tally.right++;
+            else tally.partial++;
           }
-          if (r.wrong > 0.5 * r.trueLines) tally.wrong++;
-          expect(r.wrong, name).toBeLessThanOrEqual(0.02 * r.trueLines);
-          if (r.correct >= 0.98 * r.trueLines) tally.right++;
-          else tally.partial++;
-        }
-    measured['P branch cut at J = 1, 2, 3, 5 (32 lists)'] =
+    }, 180_000);
+
+  it('over the 96 lists of seeds 11, 21, 31: right in ≥ 98 %, wrong in none (measured 96 right)', () => {
+    expect(tally.right + tally.wrong + tally.refused + tally.partial).toBe(96);
+    expect(tally.wrong).toBe(0);
+    expect(tally.right / 96).toBeGreaterThanOrEqual(0.98);
+    measured['P branch cut at J = 1, 2, 3, 5, seeds 11, 21, 31 (96 lists)'] =
       `right ${tally.right}, wrong ${tally.wrong}, refused ${tally.refused}, partly assigned ${tally.partial}`;
   });
 });
