@@ -269,3 +269,105 @@ describe('reusing an earlier estimate (ScatterReuse)', () => {
     expect(reused.groups.map((g) => g.sigma)).toEqual(earlier.groups.map((g) => g.sigma));
   });
 });
+
+describe('the limits of reuse, second part', () => {
+  /** 1-0 (σ 0.002, J″ ≤ 25: 51 lines) and 2-0 (σ 0.004, J″ ≤ 5 less P(1): exactly 10 lines), no σ sent. */
+  function twoGroups() {
+    const { input, obs } = bands([
+      { upper: 1, sigma: 0.002 },
+      { upper: 2, sigma: 0.004, jMax: 5 },
+    ]);
+    return { input, obs: obs.filter((o) => !(o.upperV === 2 && o.lowerJ === 1 && o.upperJ === 0)) };
+  }
+
+  it(`a group of exactly ${MIN_SCATTER_GROUP} lines is reused as it was (it stays on its side of the limit)`, () => {
+    const { input, obs } = twoGroups();
+    // The earlier list lacks one 1-0 line: 50 and 10 lines.
+    const earlierObs = obs.filter((o) => o !== obs[3]);
+    const earlier = weighLines(input, earlierObs, FIT);
+    expect(earlier.groups.map((g) => [g.by, g.lines])).toEqual([
+      ['band', 50],
+      ['band', 10],
+    ]);
+    const reused = weighLines(input, obs, FIT, undefined, {
+      from: earlier.estimate as NonNullable<typeof earlier.estimate>,
+      growth: 0.05,
+    });
+    expect(reused.groups.map((g) => g.sigma)).toEqual(earlier.groups.map((g) => g.sigma));
+    expect(weighLines(input, obs, FIT).groups[0]?.sigma).not.toBe(earlier.groups[0]?.sigma);
+  });
+
+  it('a small group reused takes the earlier pooled σ; a small group that is another band forces a new estimate', () => {
+    const big = bands([
+      { upper: 1, sigma: 0.002, jMax: 25 },
+      { upper: 2, sigma: 0.004, jMax: 4 },
+    ]);
+    const earlierObs = big.obs.filter((o) => o !== big.obs[3]);
+    const earlier = weighLines(big.input, earlierObs, FIT);
+    expect(earlier.groups.map((g) => [g.by, g.lines])).toEqual([
+      ['band', 50],
+      ['pooled', 9],
+    ]);
+    const from = earlier.estimate as NonNullable<typeof earlier.estimate>;
+    const reused = weighLines(big.input, big.obs, FIT, undefined, { from, growth: 0.05 });
+    expect(reused.groups.map((g) => g.sigma)).toEqual(earlier.groups.map((g) => g.sigma));
+    // The same shape (51 + 9 lines), but the small group is 3-0, not 2-0: estimated afresh.
+    const other = bands([
+      { upper: 1, sigma: 0.002, jMax: 25 },
+      { upper: 3, sigma: 0.004, jMax: 4 },
+    ]);
+    const fresh = weighLines(other.input, other.obs, FIT).groups.map((g) => g.sigma);
+    expect(weighLines(other.input, other.obs, FIT, undefined, { from, growth: 1 }).groups.map((g) => g.sigma)).toEqual(
+      fresh,
+    );
+    expect(fresh[0]).not.toBe(earlier.groups[0]?.sigma);
+  });
+
+  it('a group that is gone forces a new estimate', () => {
+    const { input, obs } = twoGroups();
+    const earlier = weighLines(input, obs, FIT);
+    const only1 = obs.filter((o) => o.upperV === 1);
+    const fresh = weighLines(input, only1, FIT).groups.map((g) => g.sigma);
+    const again = weighLines(input, only1, FIT, undefined, {
+      from: earlier.estimate as NonNullable<typeof earlier.estimate>,
+      growth: 1,
+    });
+    expect(again.groups.map((g) => g.sigma)).toEqual(fresh);
+    expect(fresh[0]).not.toBe(earlier.groups[0]?.sigma);
+  });
+
+  it('a list mixing lines with σ and without: only the lines without σ are counted and reweighed when reused', () => {
+    const { input, obs } = bands([
+      { upper: 1, sigma: 0.001 },
+      { upper: 2, sigma: 0.004 },
+    ]);
+    const withSigma: LineInput[] = input.map((l, i) =>
+      obs.find((o) => o.index === i)?.upperV === 1 ? { ...l, uncertainty: 0.001 } : l,
+    );
+    const weighted = obs.map((o) => (o.upperV === 1 ? { ...o, weight: 1e6 } : o));
+    const earlierObs = weighted.filter((o) => o !== weighted.find((x) => x.upperV === 2));
+    const earlier = weighLines(withSigma, earlierObs, FIT);
+    expect(earlier.groups.map((g) => [g.group, g.lines])).toEqual([['12C-16O 2-0', 50]]);
+    const reused = weighLines(withSigma, weighted, FIT, undefined, {
+      from: earlier.estimate as NonNullable<typeof earlier.estimate>,
+      growth: 0.05,
+    });
+    expect(reused.groups.map((g) => [g.group, g.lines, g.sigma])).toEqual([
+      ['12C-16O 2-0', 51, earlier.groups[0]?.sigma],
+    ]);
+    for (const o of reused.observations) {
+      if (o.upperV === 1) expect(o.weight).toBe(1e6);
+      else expect(o.weight).toBe(1 / (earlier.groups[0]?.sigma as number) ** 2);
+    }
+  });
+
+  it(`exactly ${MIN_SCATTER_GROUP} lines without σ beside lines with σ: estimated, not filled with the median`, () => {
+    const { input, obs } = bands([{ upper: 1, sigma: 0.002 }]);
+    const without = new Set(obs.slice(0, 10).map((o) => o.index));
+    const mixed: LineInput[] = input.map((l, i) => (without.has(i) ? l : { ...l, uncertainty: 0.002 }));
+    const weighted = obs.map((o) => (without.has(o.index) ? o : { ...o, weight: 1 / 0.002 ** 2 }));
+    const w = weighLines(mixed, weighted, FIT);
+    expect(w.warnings.map((x) => x.code)).toEqual(['UNCERTAINTY_ESTIMATED']);
+    expect(w.groups.map((g) => [g.group, g.lines])).toEqual([['12C-16O 1-0', 10]]);
+  });
+});
