@@ -294,7 +294,8 @@ function dunhamStage(
   const dunham: DunhamFit[] = [];
   const checks: FitResult['crossChecks'][number][] = [];
   for (const s of species) {
-    const obs = fit.observations.filter((o) => o.species === s);
+    // One species: its lines are all of them (the same array keeps the structure and columns found for it).
+    const obs = species.length === 1 ? fit.observations : fit.observations.filter((o) => o.species === s);
     const d = fitDunhamForSpecies(s, obs, mode, alpha, orders, warnings);
     if (!d) continue;
     dunham.push(d.report);

@@ -60,7 +60,9 @@ export function rescaleStatedUncertainties(
 ): StatedScale {
   const stated = (o: Observation) => input[o.index]?.uncertainty !== undefined;
   const none: StatedScale = { observations, groups: [], factorFor: () => 1, warnings: [] };
-  if (!canDiffer(observations, input)) return none;
+  if (oneStatedGroup(observations, input)) return none;
+  const keyOf = statedGroupKeys(observations, input);
+  if (!canDiffer(observations, keyOf)) return none;
   let factors = new Map<string, number>();
   let gross = new Set<number>();
   let obs = observations;
@@ -81,7 +83,7 @@ export function rescaleStatedUncertainties(
       const h = Math.min(f.leverages[i] as number, 1 - 1e-9);
       // Scaled by the stated σ only (the factor of this round is what is being estimated).
       const z = (f.residuals[i] as number) / (input[o.index]?.uncertainty as number) / Math.sqrt(1 - h);
-      const k = groupKey(o, input[o.index]);
+      const k = keyOf(o) as string;
       const list = byGroup.get(k) ?? [];
       list.push(z);
       byGroup.set(k, list);
@@ -89,15 +91,15 @@ export function rescaleStatedUncertainties(
     const next = differingGroups(byGroup);
     if (next.size === 0) break;
     factors = next;
-    gross = grossLines(f.observations, byGroup, (o) => (stated(o) ? groupKey(o, input[o.index]) : undefined));
-    const factorOf = (o: Observation) => factors.get(groupKey(o, input[o.index])) ?? (factors.get(REST) as number);
+    gross = grossLines(f.observations, byGroup, keyOf);
+    const factorOf = (o: Observation) => factors.get(keyOf(o) as string) ?? (factors.get(REST) as number);
     obs = reweighted(observations, (o) => (stated(o) ? o.weight / factorOf(o) ** 2 : undefined));
   }
   if (factors.size === 0) return none;
   const groups: StatedScaleGroup[] = [];
   for (const [k, factor] of factors) {
     if (k === REST) continue;
-    const lines = observations.filter((o) => stated(o) && groupKey(o, input[o.index]) === k).length;
+    const lines = observations.filter((o) => keyOf(o) === k).length;
     groups.push({ group: labelOf(k), lines, factor });
   }
   return {
@@ -122,19 +124,30 @@ export function rescaleStatedUncertainties(
  * lose lines). A list of one band stating one σ, the common case, has no other group: no fit of residuals is needed
  * to know that nothing will be rescaled.
  */
-function canDiffer(observations: readonly Observation[], input: readonly LineInput[]): boolean {
-  if (oneStatedGroup(observations, input)) return false;
+function canDiffer(observations: readonly Observation[], keyOf: (o: Observation) => string | undefined): boolean {
   const counts = new Map<string, number>();
   let total = 0;
   for (const o of observations) {
-    const line = input[o.index];
-    if (line?.uncertainty === undefined) continue;
-    const k = groupKey(o, line);
+    const k = keyOf(o);
+    if (k === undefined) continue;
     counts.set(k, (counts.get(k) ?? 0) + 1);
     total++;
   }
   for (const n of counts.values()) if (n >= MIN_SCATTER_GROUP && total - n >= MIN_SCATTER_GROUP) return true;
   return false;
+}
+
+/** The group key of each stated line (by its input index), built once; undefined for a line without σ. */
+function statedGroupKeys(
+  observations: readonly Observation[],
+  input: readonly LineInput[],
+): (o: Observation) => string | undefined {
+  const keys: (string | undefined)[] = [];
+  for (const o of observations) {
+    const line = input[o.index];
+    if (line?.uncertainty !== undefined) keys[o.index] = groupKey(o, line);
+  }
+  return (o) => keys[o.index];
 }
 
 /** Every stated line of one species and band, without a source, stating the same σ: one group (no key built). */

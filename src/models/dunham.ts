@@ -71,10 +71,11 @@ export function dunhamModel(parameters: readonly Parameter[], reducedMass?: Read
       const out = new Float64Array(obs.length);
       const k = p.k as number;
       const l = p.l as number;
+      const basis = levelValues((v, j) => dunhamBasis(k, l, v, j));
       for (let i = 0; i < obs.length; i++) {
         const o = obs[i] as Observation;
         if (p.kind === 'Y' && p.species !== o.species) continue;
-        const c = dunhamBasis(k, l, o.upperV, o.upperJ) - dunhamBasis(k, l, o.lowerV, o.lowerJ);
+        const c = basis(o.upperV, o.upperJ) - basis(o.lowerV, o.lowerJ);
         if (p.kind === 'U') {
           const mu = reducedMass?.get(o.species);
           if (mu === undefined) throw new Error(`no reduced mass for ${o.species}`);
@@ -83,6 +84,29 @@ export function dunhamModel(parameters: readonly Parameter[], reducedMass?: Read
       }
       return out;
     },
+  };
+}
+
+/**
+ * f(v, J) remembered per level: a line list meets each level many times (every line to it, repeats of a line), and
+ * the powers cost more than the look-up. The values are f's own, so a column built through it has the same bits.
+ */
+export function levelValues(f: (v: number, j: number) => number): (v: number, j: number) => number {
+  const byV = new Map<number, Float64Array>();
+  return (v, j) => {
+    let row = byV.get(v);
+    if (!row || row.length <= j) {
+      const grown = new Float64Array(Math.max(64, 2 * (j + 1))).fill(Number.NaN);
+      if (row) grown.set(row);
+      row = grown;
+      byV.set(v, row);
+    }
+    let x = row[j] as number;
+    if (Number.isNaN(x)) {
+      x = f(v, j);
+      row[j] = x;
+    }
+    return x;
   };
 }
 

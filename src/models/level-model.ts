@@ -1,3 +1,4 @@
+import { levelValues } from './dunham.js';
 import type { LinearModel, Observation, Parameter } from './linear-model.js';
 
 /**
@@ -24,7 +25,20 @@ export interface LevelStructure {
   readonly reference: ReadonlyMap<string, ReadonlyMap<number, number>>;
 }
 
+/** Structures already found, per observation array (never changed once built; held weakly, like the columns). */
+const structures = new WeakMap<readonly Observation[], LevelStructure>();
+
+/** Species, levels and reference levels of a set of observations (found once per observation array). */
 export function levelStructure(obs: readonly Observation[]): LevelStructure {
+  let known = structures.get(obs);
+  if (!known) {
+    known = findLevelStructure(obs);
+    structures.set(obs, known);
+  }
+  return known;
+}
+
+function findLevelStructure(obs: readonly Observation[]): LevelStructure {
   const species: string[] = [];
   const levelSets = new Map<string, Set<number>>();
   const parent = new Map<string, Map<number, number>>();
@@ -124,6 +138,7 @@ export function levelModel(parameters: readonly Parameter[]): LinearModel {
       const out = new Float64Array(obs.length);
       const l = p.kind === 'T' ? 0 : (POWER[p.kind] as number);
       const sign = l > 0 ? (CENTRIFUGAL_SIGN[l - 1] as number) : 1;
+      const power = levelValues((_v, j) => (j * (j + 1)) ** l);
       for (let i = 0; i < obs.length; i++) {
         const o = obs[i] as Observation;
         if (p.species !== o.species) continue;
@@ -134,9 +149,7 @@ export function levelModel(parameters: readonly Parameter[]): LinearModel {
           out[i] = up - lo;
           continue;
         }
-        const xu = o.upperJ * (o.upperJ + 1);
-        const xl = o.lowerJ * (o.lowerJ + 1);
-        out[i] = sign * (up * xu ** l - lo * xl ** l);
+        out[i] = sign * (up * power(0, o.upperJ) - lo * power(0, o.lowerJ));
       }
       return out;
     },
