@@ -29,6 +29,10 @@ const iso = parseSpecies('CO');
 const y = dunhamFromEntry(constantsFor(iso) ?? (undefined as never));
 const masses = new Map([[iso.formula, reducedMass(iso)]]);
 const quick = process.env.BENCH_QUICK === '1';
+/** Line counts of the least-squares table (BENCH_LINES, comma-separated; default 50, 500, 5000, 50000). */
+const lineCounts = (process.env.BENCH_LINES ?? '50,500,5000,50000').split(',').map(Number);
+/** Which parts run (BENCH_PARTS, comma-separated: fits, scan, peaks; default all). */
+const parts = new Set((process.env.BENCH_PARTS ?? 'fits,scan,peaks').split(',').map((x) => x.trim()));
 
 function lineList(n: number, bands: number): LineInput[] {
   const pool = Array.from({ length: bands }, (_, b) => predictBand(y, { upper: b + 1, lower: 0 }, 40)).flat();
@@ -92,6 +96,8 @@ interface Row {
   p: number;
   distinct: number;
   kernel: number;
+  /** The kernel asked for what lstsq gives (coefficients; no leverages, no condition number). */
+  solveOnly: number;
   full: number;
   solves: number;
   file: string;
@@ -105,8 +111,8 @@ mkdirSync('bench/out', { recursive: true });
 console.log(`Load average 1 / 5 / 15 min at the start: ${load()} (2 cores shared: read the ratios, not the times)\n`);
 const ratios: Ratio[] = [];
 const rows: Row[] = [];
-for (const bands of [1, 3]) {
-  for (const n of [50, 500, 5000, 50000]) {
+for (const bands of parts.has('fits') ? [1, 3] : []) {
+  for (const n of lineCounts) {
     const lines = lineList(n, bands);
     const obs: Observation[] = lines.map((l, index) => {
       const a = l.assignment as NonNullable<LineInput['assignment']>;
@@ -129,6 +135,18 @@ for (const bands of [1, 3]) {
     const solve = () =>
       void solveLeastSquares({ rows: n, cols: p, design, observations: yv, weights: w, leverage: true });
     const kernel = time(solve);
+    const solveOnly = time(
+      () =>
+        void solveLeastSquares({
+          rows: n,
+          cols: p,
+          design,
+          observations: yv,
+          weights: w,
+          leverage: false,
+          conditionNumber: false,
+        }),
+    );
     const before = solveCount.value;
     fitLineList(lines, masses);
     const solves = solveCount.value - before;
@@ -141,26 +159,27 @@ for (const bands of [1, 3]) {
     buf.set(yv, 2 + n * p);
     buf.set(w, 2 + n * p + n);
     writeFileSync(file, Buffer.from(buf.buffer));
-    rows.push({ bands, n, p, distinct: distinctRows(obs), kernel, full, solves, file });
+    rows.push({ bands, n, p, distinct: distinctRows(obs), kernel, solveOnly, full, solves, file });
   }
 }
 
 let numpy = new Map<string, number>();
-try {
-  const out = execFileSync('python3', ['bench/numpy-lstsq.py', ...rows.map((r) => r.file)], {
-    env: { ...process.env, OPENBLAS_NUM_THREADS: '1' },
-    encoding: 'utf8',
-  });
-  numpy = new Map(
-    out
-      .trim()
-      .split('\n')
-      .map((l) => JSON.parse(l) as { name: string; median_us: number })
-      .map((x) => [x.name, x.median_us / 1000]),
-  );
-} catch {
-  console.log('(python3 with numpy not found here: the numpy column is empty and its ratio not measured)\n');
-}
+if (rows.length > 0)
+  try {
+    const out = execFileSync('python3', ['bench/numpy-lstsq.py', ...rows.map((r) => r.file)], {
+      env: { ...process.env, OPENBLAS_NUM_THREADS: '1' },
+      encoding: 'utf8',
+    });
+    numpy = new Map(
+      out
+        .trim()
+        .split('\n')
+        .map((l) => JSON.parse(l) as { name: string; median_us: number })
+        .map((x) => [x.name, x.median_us / 1000]),
+    );
+  } catch {
+    console.log('(python3 with numpy not found here: the numpy column is empty and its ratio not measured)\n');
+  }
 
 console.log('Times are CPU time of this process (mean per call), not wall time: on a shared machine the wall');
 console.log('time of a call mostly measures who else is running. numpy in CPU time too (time.process_time, median).\n');
@@ -168,15 +187,19 @@ console.log(
   'Least squares (mean CPU per call). kernel = weighted QR solve with covariance and leverages; a line list of n lines',
 );
 console.log('repeats its transitions (distinct rows), which the kernel merges exactly before the QR. Goals: numpy /');
-console.log('kernel ≥ 1 at every size; whole fitLineList ≤ 3× the kernel time of the solves it makes.');
+console.log('kernel ≥ 1 at every size; whole fitLineList ≤ 3× the kernel time of the solves it makes. The kernel also');
 console.log(
-  '| fit | lines | distinct rows | params | kernel | numpy lstsq | numpy / kernel (goal ≥ 1) | fitLineList | solves | fitLineList / (solves × kernel) (goal ≤ 3) |',
+  'gives the covariance, leverages and condition number, which lstsq does not: "solve only" asks it for what',
 );
-console.log('| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |');
+console.log('lstsq gives (coefficients, with the covariance, which costs p³), the like-for-like comparison.');
+console.log(
+  '| fit | lines | distinct rows | params | kernel | solve only | numpy lstsq | numpy / kernel (goal ≥ 1) | numpy / solve only | fitLineList | solves | fitLineList / (solves × kernel) (goal ≤ 3) |',
+);
+console.log('| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |');
 for (const r of rows) {
   const np = numpy.get(r.file.split('/').pop() as string);
   console.log(
-    `| ${r.bands} band${r.bands > 1 ? 's' : ''} | ${r.n} | ${r.distinct} | ${r.p} | ${fmt(r.kernel)} | ${np !== undefined ? fmt(np) : '–'} | ${np !== undefined ? `${(np / r.kernel).toFixed(2)}` : '–'} | ${fmt(r.full)} | ${r.solves} | ${(r.full / (r.solves * r.kernel)).toFixed(1)} |`,
+    `| ${r.bands} band${r.bands > 1 ? 's' : ''} | ${r.n} | ${r.distinct} | ${r.p} | ${fmt(r.kernel)} | ${fmt(r.solveOnly)} | ${np !== undefined ? fmt(np) : '–'} | ${np !== undefined ? `${(np / r.kernel).toFixed(2)}` : '–'} | ${np !== undefined ? `${(np / r.solveOnly).toFixed(2)}` : '–'} | ${fmt(r.full)} | ${r.solves} | ${(r.full / (r.solves * r.kernel)).toFixed(1)} |`,
   );
 }
 for (const r of rows) {
@@ -199,7 +222,7 @@ for (const r of rows) {
     met: over <= 3,
   });
 }
-for (const bands of [1, 3]) {
+for (const bands of rows.length >= 2 ? [1, 3] : []) {
   const these = rows.filter((r) => r.bands === bands);
   const kernelExp = growthExponent(these.map((r) => ({ n: r.n, t: r.kernel })));
   const fullExp = growthExponent(these.map((r) => ({ n: r.n, t: r.full })));
@@ -219,7 +242,7 @@ for (const bands of [1, 3]) {
     });
 }
 
-{
+if (parts.has('scan')) {
   const scan = hotCoScan();
   const co = parseSpecies('CO');
   const bare = scan.peaks.map((p) => ({
@@ -241,7 +264,7 @@ for (const bands of [1, 3]) {
   );
 }
 
-{
+if (parts.has('peaks')) {
   console.log('\nPeaks against points: 400 cm⁻¹ holding the same 80 lines, sampled finer (widths in samples fixed)');
   console.log('| points | step | peaks found | findPeaks | per point |');
   console.log('| ---: | ---: | ---: | ---: | ---: |');
