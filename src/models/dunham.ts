@@ -71,7 +71,8 @@ export function dunhamModel(parameters: readonly Parameter[], reducedMass?: Read
       const out = new Float64Array(obs.length);
       const k = p.k as number;
       const l = p.l as number;
-      const basis = levelValues((v, j) => dunhamBasis(k, l, v, j));
+      const direct = (v: number, j: number) => dunhamBasis(k, l, v, j);
+      const basis = obs.length >= REMEMBER_FROM ? levelValues(direct) : direct;
       for (let i = 0; i < obs.length; i++) {
         const o = obs[i] as Observation;
         if (p.kind === 'Y' && p.species !== o.species) continue;
@@ -86,6 +87,9 @@ export function dunhamModel(parameters: readonly Parameter[], reducedMass?: Read
     },
   };
 }
+
+/** Columns of at least this many rows take their powers from `levelValues` (below it the tables cost more). */
+export const REMEMBER_FROM = 200;
 
 /**
  * f(v, J) remembered per level: a line list meets each level many times (every line to it, repeats of a line), and

@@ -1,4 +1,4 @@
-import { levelValues } from './dunham.js';
+import { levelValues, REMEMBER_FROM } from './dunham.js';
 import type { LinearModel, Observation, Parameter } from './linear-model.js';
 
 /**
@@ -138,7 +138,8 @@ export function levelModel(parameters: readonly Parameter[]): LinearModel {
       const out = new Float64Array(obs.length);
       const l = p.kind === 'T' ? 0 : (POWER[p.kind] as number);
       const sign = l > 0 ? (CENTRIFUGAL_SIGN[l - 1] as number) : 1;
-      const power = levelValues((_v, j) => (j * (j + 1)) ** l);
+      const direct = (_v: number, j: number) => (j * (j + 1)) ** l;
+      const power = obs.length >= REMEMBER_FROM ? levelValues(direct) : direct;
       for (let i = 0; i < obs.length; i++) {
         const o = obs[i] as Observation;
         if (p.species !== o.species) continue;

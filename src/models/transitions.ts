@@ -47,9 +47,9 @@ export function upperJ(t: Pick<Transition, 'branch' | 'j'>): number {
  * rotational "band" 0-0 style (v′ = v″) only in absorption, R(J″). Throws ASSIGNMENT_INVALID naming the fault.
  */
 export function validateTransition(t: Transition): void {
-  const label = `${t.branch}(${t.j}) of band ${formatBand(t.band)}`;
+  // The label is written only for a fault (every line of every fit passes here).
   const fail = (why: string) => {
-    throw new ScienceError('ASSIGNMENT_INVALID', `${label}: ${why}`, {
+    throw new ScienceError('ASSIGNMENT_INVALID', `${t.branch}(${t.j}) of band ${formatBand(t.band)}: ${why}`, {
       band: formatBand(t.band),
       branch: t.branch,
       j: t.j,
