@@ -1,8 +1,8 @@
 import { ScienceError } from '../errors.js';
 import { compileDunham } from '../models/dunham.js';
 import { type Band, type Branch, upperJ } from '../models/transitions.js';
-import { constantsFor, dunhamFromEntry, libraryEntries } from '../species/library.js';
-import { elementsOnly, enrichedAtomsOnly, parseSpecies } from '../species/parse.js';
+import { constantsFor, dunhamFromEntry, libraryEntries, libraryEntry } from '../species/library.js';
+import { elementsOnly, enrichedAtomsOnly, type Isotopologue, parseSpecies } from '../species/parse.js';
 import { type CandidateOptions, candidateLines, isotopologuesMeant } from './candidates.js';
 import { uninformativeIntensities } from './intensity.js';
 import { matchLines } from './match.js';
@@ -75,6 +75,37 @@ export function identifySpecies(
       });
     }
   }
+  return rankMixtures(tests, strongObserved, lo, hi, options);
+}
+
+/**
+ * Each natural isotopologue of a species' elements on its own (abundance ≥ minAbundance, default 1e-6), ranked as
+ * identifySpecies ranks molecules: which isotopologue lines left over by an assignment against another one are.
+ */
+export function identifyIsotopologues(
+  peaks: readonly { position: number; intensity?: number }[],
+  species: Isotopologue,
+  options: CandidateOptions & { maxOffset?: number } = {},
+): IdentificationCandidate[] {
+  if (peaks.length === 0) return [];
+  const { lo, hi, strongObserved } = identificationWindow(peaks);
+  const name = libraryEntry(parseSpecies(species.formula))?.name ?? species.formula;
+  const tests = isotopologuesMeant(elementsOnly(species), options.minAbundance ?? 1e-6).map(({ iso }) => ({
+    formula: iso.formula,
+    name: `${name} (${iso.formula})`,
+    mixture: [{ iso, abundance: 1 }],
+  }));
+  return rankMixtures(tests, strongObserved, lo, hi, options);
+}
+
+/** Score each mixture's strongest predictions (J″ ≤ 12) against the strong observed lines; best first. */
+function rankMixtures(
+  tests: readonly { formula: string; name: string; mixture: ReturnType<typeof isotopologuesMeant> }[],
+  strongObserved: ReturnType<typeof identificationWindow>['strongObserved'],
+  lo: number,
+  hi: number,
+  options: CandidateOptions & { maxOffset?: number },
+): IdentificationCandidate[] {
   const out: IdentificationCandidate[] = [];
   for (const { formula, name, mixture } of tests) {
     const e = { formula, name };

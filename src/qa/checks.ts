@@ -1,7 +1,7 @@
 import type { Analysis } from '../assign/analyse.js';
 import type { PeakInput } from '../assign/assign-lines.js';
 import { candidateLines, naturalAbundances } from '../assign/candidates.js';
-import { type IdentificationCandidate, identifySpecies } from '../assign/identify.js';
+import { type IdentificationCandidate, identifyIsotopologues, identifySpecies } from '../assign/identify.js';
 import { relativeIntensity, withoutUninformativeIntensities } from '../assign/intensity.js';
 import { compileDunham } from '../models/dunham.js';
 import type { Branch } from '../models/transitions.js';
@@ -324,6 +324,8 @@ function unexplainedCheck(peaks: readonly PeakInput[], analysis: Analysis, tol: 
           .filter((c) => c.score >= 0.3)
           .map((c) => ({ species: c.species, name: c.name, score: c.score }))
       : [];
+  const isotopologues = explainedBy.length === 0 ? otherIsotopologues(peaks, idx, analysis) : [];
+  explainedBy.push(...isotopologues);
   const byShare: CheckStatus =
     fraction > tol.unexplainedFraction ? 'fail' : fraction > tol.unexplainedFraction / 2 ? 'warn' : 'pass';
   const missed = bandsMissedAtTheirBestOffset(analysis, idx.length);
@@ -340,13 +342,47 @@ function unexplainedCheck(peaks: readonly PeakInput[], analysis: Analysis, tol: 
       bandsNotMatched: missed,
     },
     limit: { fraction: tol.unexplainedFraction, linesMatchingAMissedBand: MISSED_BAND_LINES },
-    message: `${idx.length} line(s), ${(fraction * 100).toFixed(1)} % of the ${withI ? 'intensity' : 'lines'}, are explained by no band${explainedBy.length ? `; they would fit ${explainedBy.map((c) => c.name).join(', ')} (a possible impurity)` : ''}${missed
+    message: `${idx.length} line(s), ${(fraction * 100).toFixed(1)} % of the ${withI ? 'intensity' : 'lines'}, are explained by no band${explainedBy.length ? `; they would fit ${explainedBy.map((c) => c.name).join(', ')} ${isotopologues.length > 0 ? `(another isotopologue than the one assigned against: declare the molecule, "${moleculeOf(analysis)}", to assign every isotopologue)` : '(a possible impurity)'}` : ''}${missed
       .map(
         (m) =>
           `; ${m.matches} of them would match ${m.species} band ${m.band} at its best offset ${m.offset >= 0 ? '+' : ''}${m.offset.toFixed(3)} cm-1, a band the library predicts in the window that was not found (see BAND_NOT_FOUND): a weak share of the intensity is no proof the lines are noise`,
       )
       .join('')}`,
   };
+}
+
+/**
+ * Unexplained lines that another isotopologue of the assigned species explains on its own (a list declared as
+ * 12C16O holding 13C16O lines): score ≥ 0.3 as identifySpecies scores molecules, isotopologues already assigned
+ * against left out.
+ */
+function otherIsotopologues(
+  peaks: readonly PeakInput[],
+  idx: readonly number[],
+  analysis: Analysis,
+): { species: string; name: string; score: number }[] {
+  const main = analysis.assignment.species[0];
+  if (idx.length < 5 || !main) return [];
+  const used = new Set(analysis.assignment.species);
+  return identifyIsotopologues(
+    idx.map((i) => peaks[i] as PeakInput),
+    parseSpecies(main),
+  )
+    .filter((c) => c.score >= 0.3 && !used.has(c.species))
+    .map((c) => ({ species: c.species, name: c.name, score: c.score }));
+}
+
+/** The assigned molecule with only D or T named ("CO" for 12C-16O, "DCl" for 2H-35Cl), as a caller would declare it. */
+function moleculeOf(analysis: Analysis): string {
+  const main = analysis.assignment.species[0];
+  if (!main) return '';
+  const symbol = (a: { element: { symbol: string }; isotope: { massNumber: number } }) =>
+    a.element.symbol === 'H' && a.isotope.massNumber === 2
+      ? 'D'
+      : a.element.symbol === 'H' && a.isotope.massNumber === 3
+        ? 'T'
+        : a.element.symbol;
+  return parseSpecies(main).atoms.map(symbol).join('');
 }
 
 /** Lines of a band the library predicts but the assignment did not find that make the unexplained-lines check warn. */
