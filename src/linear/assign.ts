@@ -768,15 +768,68 @@ function identity(
   };
 }
 
+/** The assigned lines' offset (and scale, with four lines or more over a span) against the library's positions. */
 function calibration(
   peaks: readonly LinearPeak[],
   result: LinearAssignResult,
   ref: ReferenceSpecies,
   tol: Tolerances,
 ): Check {
+  const { pts, recalled } = calibrationPoints(peaks, result, ref);
+  const limit = { offset: tol.calibrationOffset, scalePpm: tol.calibrationScalePpm };
+  if (pts.length < 3) {
+    return {
+      id: 'calibration',
+      status: 'not-evaluated',
+      measured: { lines: pts.length, leftOutRecalled: recalled },
+      limit,
+      message:
+        recalled > 0
+          ? `the reference constants of these bands are recalled, not read: no wavenumber calibration against them`
+          : 'fewer than 3 assigned lines with reference positions',
+    };
+  }
+  const f = offsetAndScale(pts);
+  let status: CheckStatus = guardBandedStatus(f.offset, f.uOffset, tol.calibrationOffset);
+  const measured: Record<string, unknown> = {
+    offset: quantity(f.offset, f.uOffset, 'cm-1'),
+    centre: f.centre,
+    lines: pts.length,
+    leftOutRecalled: recalled,
+    standard: ref.formula,
+  };
+  if (f.scale) {
+    const { value: scale, uncertainty: uScale } = f.scale;
+    if (uScale <= tol.calibrationScalePpm / 3) {
+      measured.scalePpm = quantity(scale, uScale, 'ppm');
+      status = worse(status, guardBandedStatus(scale, uScale, tol.calibrationScalePpm));
+    } else measured.scaleUndeterminedPpm = uScale;
+  }
+  return {
+    id: 'calibration',
+    status,
+    measured,
+    limit,
+    message: `offset ${f.offset.toFixed(5)} ± ${f.uOffset.toFixed(5)} cm-1 at ${f.centre.toFixed(2)} cm-1 against ${ref.name} from ${pts.length} lines`,
+  };
+}
+
+/** An assigned line against the library: its position, observed − reference, and the σ of that difference. */
+interface CalibrationPoint {
+  readonly nu: number;
+  readonly d: number;
+  readonly s: number;
+}
+
+/** The assigned lines whose levels the library states from read values (those with a recalled value are counted). */
+function calibrationPoints(
+  peaks: readonly LinearPeak[],
+  result: LinearAssignResult,
+  ref: ReferenceSpecies,
+): { pts: CalibrationPoint[]; recalled: number } {
   const byKey = new Map(ref.levels.map((l) => [levelKey(l), l]));
   const rms = result.fit?.statistics.rms ?? 0;
-  const pts: { nu: number; d: number; s: number }[] = [];
+  const pts: CalibrationPoint[] = [];
   let recalled = 0;
   for (const l of result.lines) {
     if (!l.assignment) continue;
@@ -805,19 +858,19 @@ function calibration(
       s: Math.hypot(sObs, predictionSigma(up, lo, Jp, l.assignment.j)),
     });
   }
-  const limit = { offset: tol.calibrationOffset, scalePpm: tol.calibrationScalePpm };
-  if (pts.length < 3) {
-    return {
-      id: 'calibration',
-      status: 'not-evaluated',
-      measured: { lines: pts.length, leftOutRecalled: recalled },
-      limit,
-      message:
-        recalled > 0
-          ? `the reference constants of these bands are recalled, not read: no wavenumber calibration against them`
-          : 'fewer than 3 assigned lines with reference positions',
-    };
-  }
+  return { pts, recalled };
+}
+
+/**
+ * Weighted least squares of the differences on an offset at the weighted centre and, with four points or more over
+ * a span, a scale in ppm; σ scaled a posteriori when the scatter exceeds the stated σ (never shrunk below them).
+ */
+function offsetAndScale(pts: readonly CalibrationPoint[]): {
+  centre: number;
+  offset: number;
+  uOffset: number;
+  scale?: { value: number; uncertainty: number };
+} {
   const n = pts.length;
   const centre = pts.reduce((s, p) => s + p.nu / (p.s * p.s), 0) / pts.reduce((s, p) => s + 1 / (p.s * p.s), 0);
   const span = Math.max(...pts.map((p) => p.nu)) - Math.min(...pts.map((p) => p.nu));
@@ -835,32 +888,19 @@ function calibration(
     observations: Float64Array.from(pts, (p) => p.d),
     weights: Float64Array.from(pts, (p) => 1 / (p.s * p.s)),
   });
-  // A-posteriori scale when the scatter exceeds the stated σ (never shrink below them).
   const s2 = Math.max(1, n > cols ? fit.chiSquare / (n - cols) : 1);
-  const offset = fit.coefficients[0] as number;
-  const uOffset = Math.sqrt(s2 * (fit.covariance[0] as number));
-  let status: CheckStatus = guardBandedStatus(offset, uOffset, tol.calibrationOffset);
-  const measured: Record<string, unknown> = {
-    offset: quantity(offset, uOffset, 'cm-1'),
-    centre,
-    lines: n,
-    leftOutRecalled: recalled,
-    standard: ref.formula,
-  };
-  if (useScale) {
-    const scale = fit.coefficients[1] as number;
-    const uScale = Math.sqrt(s2 * (fit.covariance[3] as number));
-    if (uScale <= tol.calibrationScalePpm / 3) {
-      measured.scalePpm = quantity(scale, uScale, 'ppm');
-      status = worse(status, guardBandedStatus(scale, uScale, tol.calibrationScalePpm));
-    } else measured.scaleUndeterminedPpm = uScale;
-  }
   return {
-    id: 'calibration',
-    status,
-    measured,
-    limit,
-    message: `offset ${offset.toFixed(5)} ± ${uOffset.toFixed(5)} cm-1 at ${centre.toFixed(2)} cm-1 against ${ref.name} from ${n} lines`,
+    centre,
+    offset: fit.coefficients[0] as number,
+    uOffset: Math.sqrt(s2 * (fit.covariance[0] as number)),
+    ...(useScale
+      ? {
+          scale: {
+            value: fit.coefficients[1] as number,
+            uncertainty: Math.sqrt(s2 * (fit.covariance[3] as number)),
+          },
+        }
+      : {}),
   };
 }
 
