@@ -37,7 +37,7 @@ export const CLI_NOTICE =
   'branchwise computes constants from data; it certifies nothing about the safety or purity of a gas. ' +
   'Follow local codes, the safety data sheets and licensed practice.';
 
-const USAGE = `branchwise — molecular constants from line lists and spectra of diatomic gases
+const USAGE = `branchwise — molecular constants from line lists and spectra of diatomic and linear gases
 
   branchwise fit <file...>     [--species S] [--unit U] [--temperature K] [--format table|json|csv] [--table lines|constants]
                                [--detail lean|full]

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { POSITION_UNITS } from '../../src/units.js';
+import type { PositionUnit } from '../../src/units.js';
 import { DisplaySchema, MatrixSchema, QuantitySchema, WarningSchema } from './common.js';
 import { provenanceAndSampleFields, SampleSchema } from './provenance.js';
 
@@ -207,6 +207,22 @@ export const XUnitSchema = z
   .transform((spelling) => X_UNIT_SPELLINGS[spelling])
   .describe('wavenumber (cm-1, also written 1/cm, cm^-1, wavenumbers), or vacuum wavelength (um, µm; nm)');
 
+/** Spellings of a line list's unit: the spectrum's x-unit spellings and the frequency units of pure rotation. */
+const POSITION_UNIT_SPELLINGS = {
+  ...X_UNIT_SPELLINGS,
+  MHz: 'MHz',
+  GHz: 'GHz',
+  THz: 'THz',
+} as const satisfies Record<string, PositionUnit>;
+type PositionUnitSpelling = keyof typeof POSITION_UNIT_SPELLINGS;
+
+export const PositionUnitSchema = z
+  .enum(Object.keys(POSITION_UNIT_SPELLINGS) as [PositionUnitSpelling, ...PositionUnitSpelling[]])
+  .transform((spelling): PositionUnit => POSITION_UNIT_SPELLINGS[spelling])
+  .describe(
+    'unit of line positions and uncertainties: wavenumber (cm-1, also written 1/cm, cm^-1, wavenumbers), frequency (MHz, GHz, THz) or vacuum wavelength (um, µm; nm); default cm-1',
+  );
+
 export const SpectrumSchema = z
   .strictObject({
     x: z
@@ -243,7 +259,7 @@ export const PeakOptionsSchema = z
 export function fitRequestFields(maxLines: number) {
   return {
     species: SpeciesStringSchema.optional(),
-    unit: z.enum(POSITION_UNITS).optional().describe('unit of line positions and uncertainties (default cm-1)'),
+    unit: PositionUnitSchema.optional(),
     lines: z.array(LineSchema).min(1).max(maxLines).optional(),
     spectrum: SpectrumSchema.optional().describe(
       'a spectrum instead of lines: peaks are found, then assigned and fitted',

@@ -1,6 +1,5 @@
 import { z } from 'zod';
-import { POSITION_UNITS } from '../../src/units.js';
-import { LinearLevelSchema, SpeciesStringSchema } from './fit.js';
+import { LinearLevelSchema, PositionUnitSchema, SpeciesStringSchema } from './fit.js';
 import { provenanceAndSampleFields, SampleSchema } from './provenance.js';
 
 const CONSTANTS = [
@@ -72,7 +71,7 @@ export const PredictionRequestSchema = z
       ),
     jMax: z.number().int().min(0).max(200).default(30),
     temperature: z.number().min(10).max(6000).default(296).describe('K, for relative intensities'),
-    unit: z.enum(POSITION_UNITS).default('cm-1'),
+    unit: PositionUnitSchema.default('cm-1'),
     sample: SampleSchema.optional(),
   })
   .meta({ id: 'PredictionRequest' });

@@ -223,9 +223,13 @@ export function potentialCurves(input: PotentialInput): PotentialResult {
 function checkInput({ coefficients, vMax }: PotentialInput): void {
   const has = (k: number, l: number) => coefficients.some((c) => c.k === k && c.l === l);
   if (!has(1, 0) || !has(0, 1)) {
-    throw new ScienceError('POTENTIAL_UNDETERMINED', 'turning points need at least omega_e (Y10) and B_e (Y01)', {
-      given: coefficients.map((c) => `Y${c.k}${c.l}`),
-    });
+    throw new ScienceError(
+      'POTENTIAL_UNDETERMINED',
+      'turning points need at least omega_e (Y10) and B_e (Y01): from a fit, send lines of two or more vibrational levels (a fundamental with an overtone or a hot band); or send the constants in constants.values, or the species alone to use the reference library',
+      {
+        given: coefficients.map((c) => `Y${c.k}${c.l}`),
+      },
+    );
   }
   if (!Number.isInteger(vMax) || vMax < 0 || vMax > MAX_V) {
     throw new ScienceError('INPUT_INVALID', `vMax must be an integer from 0 to ${MAX_V}`, { vMax });

@@ -8,6 +8,7 @@ import type { Branch } from '../models/transitions.js';
 import { constantsFor, dunhamFromEntry } from '../species/library.js';
 import { type Isotopologue, parseSpecies } from '../species/parse.js';
 import { type CalibrationPoint, calibrateAgainstLibrary, guardBandedStatus } from './calibration.js';
+import { plusMinus } from './plus-minus.js';
 import { boltzmannTemperature } from './temperature.js';
 
 export type CheckStatus = 'pass' | 'warn' | 'fail' | 'not-evaluated';
@@ -174,11 +175,12 @@ function identityCheck(
 ): Check {
   const ranking: readonly IdentificationCandidate[] = analysis.assignment.identification ?? identifySpecies(peaks);
   const best = ranking[0];
-  const runnerUp = ranking[1];
   const limit = { origin: tol.identityOrigin, relativeB: tol.identityB };
   if (!main) return notEvaluated('identity', 'no species was fitted');
   const iso = parseSpecies(main);
   const entry = constantsFor(iso);
+  // the runner-up is the best-ranked other molecule (an isotopologue of the fitted one is no rival)
+  const runnerUp = ranking.find((c) => moleculeKey(parseSpecies(c.species)) !== moleculeKey(iso));
   const measured: Record<string, unknown> = {
     declared: declared?.formula ?? null,
     fitted: main,
@@ -233,9 +235,15 @@ function identityCheck(
     limit,
     message:
       problems.length === 0
-        ? `${main} agrees with the reference library${runnerUp ? `; runner-up ${runnerUp.species} (score ${runnerUp.score.toFixed(2)})` : ''}`
+        ? `${main} agrees with the reference library${inconclusiveRanking(best, iso) ?? (runnerUp ? `; runner-up ${runnerUp.species} (score ${runnerUp.score.toFixed(2)})` : '')}`
         : problems.join('; '),
   };
+}
+
+/** A note when the ranking of the bare lines put another molecule first, though below the score that names it. */
+function inconclusiveRanking(best: IdentificationCandidate | undefined, fitted: Isotopologue): string | undefined {
+  if (!best || moleculeKey(parseSpecies(best.species)) === moleculeKey(fitted)) return undefined;
+  return ` (the ranking of the lines alone put ${best.species} first with score ${best.score.toFixed(2)}, below the 0.5 that names a species: not conclusive, and the fit to ${fitted.formula} is what is judged)`;
 }
 
 function calibrationCheck(
@@ -282,7 +290,7 @@ function calibrationCheck(
   const beyondButNotSignificant =
     Math.abs(c.offset.value) > tol.calibrationOffset ||
     (c.scale !== undefined && Math.abs(c.scale.value) > tol.calibrationScalePpm);
-  const found = `offset ${c.offset.value.toFixed(4)} ± ${c.offset.uncertainty.toFixed(4)} cm-1 at ${c.centre.toFixed(1)} cm-1 (the weighted centre of ${c.lines} lines, fitted against the library with its missing terms carried; fit.assignment.calibration is the assignment's search estimate, which leaves them out)${c.scale ? `, scale ${c.scale.value.toFixed(1)} ± ${c.scale.uncertainty.toFixed(1)} ppm` : ''}`;
+  const found = `offset ${plusMinus(c.offset.value, c.offset.uncertainty, 4)} cm-1 at ${c.centre.toFixed(1)} cm-1 (the weighted centre of ${c.lines} lines, fitted against the library with its missing terms carried; fit.assignment.calibration is the assignment's search estimate, which leaves them out)${c.scale ? `, scale ${plusMinus(c.scale.value, c.scale.uncertainty, 1)} ppm` : ''}`;
   const scaleNote =
     c.scaleUndetermined !== undefined
       ? `; the scale is not determined by these lines (σ would be ${c.scaleUndetermined.toFixed(0)} ppm, more than a third of the ${tol.calibrationScalePpm} ppm limit) and is not judged`
@@ -484,7 +492,7 @@ function isotopeCheck(
     message: ratios
       .map(
         (x) =>
-          `${x.species}: ${describeAbundanceRatio(main, x, natural)}${x.measured.toFixed(3)} ± ${x.uncertainty.toFixed(3)} of the natural abundance ratio (${x.pairs} line pairs)`,
+          `${x.species}: ${describeAbundanceRatio(main, x, natural)}${plusMinus(x.measured, x.uncertainty, 3)} of the natural abundance ratio (${x.pairs} line pairs)`,
       )
       .join('; ')
       .concat(status === 'warn' ? ' — isotopic composition differs from natural (enriched or depleted sample?)' : ''),
@@ -566,7 +574,7 @@ function temperatureCheck(
     );
   const t = plot.temperature;
   let status: CheckStatus = 'pass';
-  let message = `rotational temperature ${t.value.toFixed(1)} ± ${t.uncertainty.toFixed(1)} K from ${pts.length} lines of band ${band.band} (Boltzmann plot; Herman–Wallis effects neglected)`;
+  let message = `rotational temperature ${plusMinus(t.value, t.uncertainty, 1)} K from ${pts.length} lines of band ${band.band} (Boltzmann plot; Herman–Wallis effects neglected)`;
   if (tol.temperature) {
     const d = Math.abs(t.value - tol.temperature.expected);
     status = guardBandedStatus(d, t.uncertainty, tol.temperature.tolerance);

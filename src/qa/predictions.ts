@@ -120,7 +120,11 @@ interface Constants {
 function constantsWithCovariance(input: ConstantsInput): Constants {
   const names = (Object.keys(CONSTANT_TO_DUNHAM) as PredictionConstant[]).filter((n) => input.values[n] !== undefined);
   if (!names.includes('B_e') || !names.includes('omega_e')) {
-    throw new ScienceError('INPUT_INVALID', 'constants need at least omega_e and B_e', { given: names });
+    throw new ScienceError(
+      'INPUT_INVALID',
+      'constants need at least omega_e and B_e (in constants.values; leave constants out to use the reference library)',
+      { given: names },
+    );
   }
   const p = names.length;
   const x = names.map((n) => input.values[n]?.value as number);

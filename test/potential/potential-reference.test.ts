@@ -197,7 +197,9 @@ describe('warnings and refusals of potentialCurves', () => {
   it('ω_e and B_e are required, and the refusal names what was given', () => {
     const e = refusal({ coefficients: BASE.slice(1), covariance: diagonal(SIGMA.slice(1)) });
     expect(e.code).toBe('POTENTIAL_UNDETERMINED');
-    expect(e.message).toBe('turning points need at least omega_e (Y10) and B_e (Y01)');
+    expect(e.message).toBe(
+      'turning points need at least omega_e (Y10) and B_e (Y01): from a fit, send lines of two or more vibrational levels (a fundamental with an overtone or a hot band); or send the constants in constants.values, or the species alone to use the reference library',
+    );
     expect(e.details).toEqual({ given: ['Y20', 'Y01', 'Y11'] });
     const noB = refusal({ coefficients: [BASE[0], BASE[1]] as DunhamCoefficient[], covariance: diagonal([0.5, 0.01]) });
     expect(noB.code).toBe('POTENTIAL_UNDETERMINED');

@@ -453,7 +453,9 @@ describe('predicted lines by hand', () => {
     expect(missing.details).toEqual({ species: '23Na-35Cl' });
     const noB = err(() => predictLines(species, { values: { omega_e: { value: 2000 } } }, { bands: [] }));
     expect(noB.code).toBe('INPUT_INVALID');
-    expect(noB.message).toBe('constants need at least omega_e and B_e');
+    expect(noB.message).toBe(
+      'constants need at least omega_e and B_e (in constants.values; leave constants out to use the reference library)',
+    );
     expect(noB.details).toEqual({ given: ['omega_e'] });
     const badName = err(() =>
       predictLines(

@@ -4,6 +4,7 @@
  * tolerance keys. Lines come from the independent generator (test/helpers/independent-lines.ts, published HCl
  * constants with the higher terms), never from src/models.
  */
+import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { useApp } from '../helpers/app.js';
 import {
@@ -206,5 +207,44 @@ describe('a wrong tolerance key lists the accepted ones', () => {
     const text = JSON.stringify(g.json().errors);
     expect(text).toContain('calibration');
     for (const k of accepted) expect(text).toContain(k);
+  });
+});
+
+/** Real 12C16O lines (Gendriesch et al. 2009 via the database list of test/fixtures/co-database-lines/SOURCE.md). */
+const CO_DATABASE = JSON.parse(
+  readFileSync(new URL('../fixtures/co-database-lines/lines.json', import.meta.url), 'utf8'),
+) as { lines: { band: string; j: number; branch: string; position: number; uncertainty: number }[] };
+
+describe('identity and calibration messages on real CO lines', () => {
+  it('the runner-up named is another molecule, and a bare-line ranking that put another molecule first is said to be inconclusive', async () => {
+    // the fundamental with its saturated centre removed (J 3–14), positions only, CO declared: the ranking of the
+    // bare lines once put 1H-79Br first (0.15) while the message named 12C-16O as its own runner-up
+    const lines = CO_DATABASE.lines
+      .filter((l) => l.band === '1-0' && (l.j < 3 || l.j > 14))
+      .map((l) => ({ position: l.position }));
+    const { byId } = await check({ species: 'CO', lines });
+    const identity = byId('identity');
+    const runnerUp = identity.measured.runnerUp as string | null;
+    if (runnerUp !== null) expect(runnerUp).not.toMatch(/^1[23]C-1[678]O$/);
+    expect(identity.message).not.toMatch(/runner-up 1[23]C-1[678]O/);
+    const bestMatch = identity.measured.bestMatch as string | null;
+    if (identity.status === 'pass' && bestMatch !== null && !/C-1[678]O$/.test(bestMatch)) {
+      expect(identity.message).toContain(`put ${bestMatch} first`);
+      expect(identity.message).toContain('not conclusive');
+    }
+  });
+
+  it('a calibration uncertainty far below 1e-4 cm-1 is printed with two significant digits, not as 0.0000', async () => {
+    // 1-0 and 2-0 with their database uncertainties (1e-6 … 1e-5 cm-1): the offset's σ is ~1e-6 cm-1
+    const lines = CO_DATABASE.lines
+      .filter((l) => l.band === '1-0' || l.band === '2-0')
+      .map((l) => ({ position: l.position, uncertainty: l.uncertainty }));
+    const { byId } = await check({ species: 'CO', lines });
+    const calibration = byId('calibration');
+    expect(calibration.message).toMatch(/offset -?\d\.\d+ ± \d\.\d+ cm-1/);
+    expect(calibration.message).not.toMatch(/± 0\.0+ /);
+    const sigma = /offset -?\d\.\d+ ± (\d\.\d+) cm-1/.exec(calibration.message)?.[1] ?? '';
+    // two significant digits: the uncertainty printed is its first two non-zero digits
+    expect(sigma.replace(/^0\.0*/, '')).toHaveLength(2);
   });
 });

@@ -59,6 +59,27 @@ describe('POST /v1/fits', () => {
     expect(r.statusCode).toBe(200);
     expect(Math.abs(r.json().bands[0].origin.value - 2885.98)).toBeLessThan(0.1);
   });
+
+  it.each(['1/cm', 'cm^-1', 'cm⁻¹', 'wavenumbers'])(
+    'a line list in %s (a spelling the spectrum x unit accepts) fits as cm-1, to the same digits',
+    async (unit) => {
+      const body = assignedFitBody('HCl', ['1-0'], 8, 0.002, 2);
+      const plain = await app().inject({ method: 'POST', url: '/v1/fits', payload: { ...body, unit: 'cm-1' } });
+      const spelled = await app().inject({ method: 'POST', url: '/v1/fits', payload: { ...body, unit } });
+      expect(spelled.statusCode).toBe(200);
+      expect(spelled.json().bands[0].origin).toEqual(plain.json().bands[0].origin);
+      expect(spelled.json().levels[0].B).toEqual(plain.json().levels[0].B);
+    },
+  );
+
+  it('an unknown line-list unit is a 400 naming the accepted spellings', async () => {
+    const body = assignedFitBody('HCl', ['1-0'], 8, 0.002, 2);
+    const r = await app().inject({ method: 'POST', url: '/v1/fits', payload: { ...body, unit: 'kayser' } });
+    expect(r.statusCode).toBe(400);
+    expect(r.headers['content-type']).toMatch(/^application\/problem\+json/);
+    expect(r.json().detail).toContain('cm^-1');
+    expect(r.json().detail).toContain('MHz');
+  });
 });
 
 describe('GET /v1/species', () => {
