@@ -192,10 +192,10 @@ export interface components {
       spectrum?: components["schemas"]["Spectrum"];
       tolerances?: components["schemas"]["Tolerances"];
       /**
-       * @description unit of line positions and uncertainties (default cm-1)
+       * @description unit of line positions and uncertainties: wavenumber (cm-1, also written 1/cm, cm^-1, wavenumbers), frequency (MHz, GHz, THz) or vacuum wavelength (um, µm; nm); default cm-1
        * @enum {string}
        */
-      unit?: "cm-1" | "MHz" | "GHz" | "THz" | "um" | "nm";
+      unit?: "cm-1" | "1/cm" | "1/CM" | "cm^-1" | "cm⁻¹" | "CM-1" | "wavenumber" | "wavenumbers" | "WAVENUMBERS" | "um" | "µm" | "μm" | "micrometers" | "micrometres" | "microns" | "MICROMETERS" | "nm" | "nanometers" | "nanometres" | "NANOMETERS" | "MHz" | "GHz" | "THz";
     };
     CheckResponse: {
       checks: ({
@@ -535,10 +535,10 @@ export interface components {
       /** @description a spectrum instead of lines: peaks are found, then assigned and fitted */
       spectrum?: components["schemas"]["Spectrum"];
       /**
-       * @description unit of line positions and uncertainties (default cm-1)
+       * @description unit of line positions and uncertainties: wavenumber (cm-1, also written 1/cm, cm^-1, wavenumbers), frequency (MHz, GHz, THz) or vacuum wavelength (um, µm; nm); default cm-1
        * @enum {string}
        */
-      unit?: "cm-1" | "MHz" | "GHz" | "THz" | "um" | "nm";
+      unit?: "cm-1" | "1/cm" | "1/CM" | "cm^-1" | "cm⁻¹" | "CM-1" | "wavenumber" | "wavenumbers" | "WAVENUMBERS" | "um" | "µm" | "μm" | "micrometers" | "micrometres" | "microns" | "MICROMETERS" | "nm" | "nanometers" | "nanometres" | "NANOMETERS" | "MHz" | "GHz" | "THz";
     };
     FitResponse: {
       assignment: components["schemas"]["AssignmentReport"];
@@ -1087,10 +1087,10 @@ export interface components {
       /** @description a spectrum instead of lines: peaks are found, then assigned and fitted */
       spectrum?: components["schemas"]["Spectrum"];
       /**
-       * @description unit of line positions and uncertainties (default cm-1)
+       * @description unit of line positions and uncertainties: wavenumber (cm-1, also written 1/cm, cm^-1, wavenumbers), frequency (MHz, GHz, THz) or vacuum wavelength (um, µm; nm); default cm-1
        * @enum {string}
        */
-      unit?: "cm-1" | "MHz" | "GHz" | "THz" | "um" | "nm";
+      unit?: "cm-1" | "1/cm" | "1/CM" | "cm^-1" | "cm⁻¹" | "CM-1" | "wavenumber" | "wavenumbers" | "WAVENUMBERS" | "um" | "µm" | "μm" | "micrometers" | "micrometres" | "microns" | "MICROMETERS" | "nm" | "nanometers" | "nanometres" | "NANOMETERS" | "MHz" | "GHz" | "THz";
       /** @description with constants: the highest vibrational level the data behind them reached (vMax above it is warned about, above 2·vData + 3 refused) */
       vData?: number;
       /**
@@ -1261,10 +1261,10 @@ export interface components {
        */
       temperature?: number;
       /**
-       * @default cm-1
+       * @description unit of line positions and uncertainties: wavenumber (cm-1, also written 1/cm, cm^-1, wavenumbers), frequency (MHz, GHz, THz) or vacuum wavelength (um, µm; nm); default cm-1
        * @enum {string}
        */
-      unit?: "cm-1" | "MHz" | "GHz" | "THz" | "um" | "nm";
+      unit?: "cm-1" | "1/cm" | "1/CM" | "cm^-1" | "cm⁻¹" | "CM-1" | "wavenumber" | "wavenumbers" | "WAVENUMBERS" | "um" | "µm" | "μm" | "micrometers" | "micrometres" | "microns" | "MICROMETERS" | "nm" | "nanometers" | "nanometres" | "NANOMETERS" | "MHz" | "GHz" | "THz";
     };
     PredictionResponse: {
       constants: ({
