@@ -92,6 +92,8 @@ const bandKey = (c: BandOf): string => {
 const START_J = 4;
 /** How far past the highest matched J a fitted band may reach in one step (at least; half the reach beyond). */
 const GROWTH_J = 3;
+/** In the gap pass, the widest tolerance of a reference prediction past the low-J seeds, as a fraction of its band's line spacing. */
+const WIDE_SPACING_FRACTION = 0.2;
 /** Highest J″ a fitted band may grow to. */
 const MAX_J = 150;
 /** Half-width of a tolerance for a fitted band, in standard deviations of (prediction − observation). */
@@ -100,6 +102,8 @@ const K_FITTED = 5;
 const FEW_LINES = 30;
 /** Largest ratio of a fitted prediction's standard uncertainty to the scatter of the lines. */
 const MAX_MODEL_TO_NOISE = 2;
+/** The same in the gap pass, where the lines beyond a gap or in a sparse list are too few to grow a few at a time. */
+const WIDE_MODEL_TO_NOISE = 10;
 /**
  * The inner fits take their weights for lines without σ from the scatter the last round's fit left on its residuals
  * (DetailedFit.scatterOfResiduals: no extra fits) while each group (band or source) has changed by at most this
@@ -135,7 +139,7 @@ export function assignAndFit(
     });
     return finishAssignment(ctx, new Map(), undefined);
   }
-  const offsets = voteOffsets(
+  let offsets = voteOffsets(
     ctx.cands.filter((c, i) => ctx.seedable[i] && c.j <= START_J),
     ctx.freeBySource,
     ctx.maxOffset,
@@ -156,6 +160,16 @@ export function assignAndFit(
     // band whose lower level the fundamental fixed); their fitted B_v must still agree with the reference.
     if (pass > 0 || !state.detailed || !widenSeeds(ctx, state.auto, state.detailed)) break;
     state.swept = false;
+  }
+  // Gaps: a list without the low-J lines of a band (a saturated band centre cut out, a sparse random subset) leaves
+  // bands that never seeded, or fitted bands whose next lines lie beyond a gap. When enough lines are left, the
+  // reference predictions of every J are let in (their tolerance widening with J, and below a fifth of the line
+  // spacing), after a vote over the strong lines of every J; fitted predictions still take a peak first.
+  if (ctx.free.filter((p) => !state.auto.has(p.index)).length >= ctx.minLines) {
+    ctx.wide = true;
+    offsets = widenedOffsets(ctx, offsets, state.auto);
+    state.swept = false;
+    iterateAssignment(ctx, offsets, state);
   }
   noteCompetitions(ctx, state);
   return finishAssignment(ctx, state.auto, offsets);
@@ -200,6 +214,10 @@ interface AssignContext {
   readonly inputs: readonly LineInput[];
   /** Median σ of the lines that carry one. */
   readonly typicalSigma: number | undefined;
+  /** Whether reference predictions of every J are let in (the gap pass, see assignAndFit). */
+  wide: boolean;
+  /** Lines a band matched by position but pruneImplausibleBands dropped for their intensity, and why. */
+  readonly intensityLeftOut: Map<number, string>;
   readonly maxOffset: number;
   readonly minLines: number;
   readonly warnings: Warning[];
@@ -264,6 +282,8 @@ function prepareAssignment(
     inputs: baseInputs(peaks),
     referenceDunham: referenceDunham(species),
     typicalSigma: withSigma.length > 0 ? robustMedian(withSigma) : undefined,
+    wide: false,
+    intensityLeftOut: new Map(),
     maxOffset: options.maxOffset ?? 0.5,
     minLines: options.minLinesPerBand ?? 4,
     warnings: [],
@@ -381,7 +401,7 @@ function iterateAssignment(ctx: AssignContext, offsets: OffsetVotes, state: Loop
     const next = round.next;
     resolveDoublets(next, ctx.peaks);
     pruneThinBands(next, ctx.minLines, ctx.given);
-    pruneImplausibleBands(next, ctx.peaks);
+    pruneImplausibleBands(ctx, offsets, next);
     if (next.size === 0 && ctx.given.length === 0) break;
     const fit = roundFit(ctx, state, next);
     if (!fit) break;
@@ -472,7 +492,7 @@ function withinReach(ctx: AssignContext, reach: Int32Array): Int32Array {
     const r = reach[b] as number;
     const rr = r >= 0 ? r : START_J;
     for (const ci of list) {
-      if (outOfReach((ctx.cands[ci] as CandidateLine).j, rr)) break;
+      if (!ctx.wide && outOfReach((ctx.cands[ci] as CandidateLine).j, rr)) break;
       out.push(ci);
     }
   });
@@ -514,17 +534,20 @@ function predictionOf(
   const reach = b >= 0 ? b : undefined;
   // Beyond the farthest either placement may reach (a band without lines reaches from START_J): no prediction, and
   // none of the fit is asked for.
-  if (outOfReach(c.j, reach ?? START_J)) return undefined;
+  if (!ctx.wide && outOfReach(c.j, reach ?? START_J)) return undefined;
   // A band whose two levels are both fitted (through other bands) is predicted by the fit, matched or not.
   const fitted = model.detailed?.predict(c);
   const r = reach ?? (fitted ? START_J : undefined);
   const placed =
-    fitted && r !== undefined && model.residuals
+    (fitted && r !== undefined && model.residuals
       ? fittedPrediction(ctx, offsets, model.residuals, cand, fitted, r, src)
-      : referencePrediction(ctx, offsets, cand, r, src.name);
+      : referencePrediction(ctx, offsets, cand, r, src.name)) ??
+    // Beyond a gap the fitted model may have run out while the reference still places the line well.
+    (ctx.wide && fitted ? referencePrediction(ctx, offsets, cand, undefined, src.name) : undefined);
   if (!placed) return undefined;
-  const own = model.scale.get(bk);
-  const k = own ?? classScale(model.scale, c);
+  const own = model.scale.get(scaleKey(bk, src.name));
+  // A band its positions establish is not held to another band's intensity scale before it has its own.
+  const k = own ?? (offsets.of(bk, src.name).established ? undefined : classScale(model.scale, c, src.name));
   return {
     // The candidate's number (matches are mapped back by the prediction object; the key only names it).
     key: String(ci),
@@ -566,13 +589,16 @@ function fittedPrediction(
   r: number,
   { name: src, n: srcNumber }: SourceRef,
 ): Placement | undefined {
-  if (outOfReach(c.j, r)) return undefined;
+  if (!ctx.wide && outOfReach(c.j, r)) return undefined;
   const st = residuals.of(band, srcNumber);
   // Where the model's own uncertainty exceeds the scatter of the lines (twice it), the data have run out
   // for this model: it must not reach further until nearer lines have sharpened it.
   // Beyond the reach, a few lines at a time; further only where the model is still as sharp as the data.
   const noise = Math.max(st.scatter, st.sigmaFactor * (ctx.typicalSigma ?? 0));
-  if (c.j > r + GROWTH_J && noise > 0 && Math.sqrt(fitted.variance) > MAX_MODEL_TO_NOISE * noise) return undefined;
+  // In the gap pass (sparse lists, bands cut by gaps) the model may reach further, as long as its tolerance stays
+  // well inside the line spacing (below).
+  const limit = ctx.wide ? WIDE_MODEL_TO_NOISE : MAX_MODEL_TO_NOISE;
+  if (c.j > r + GROWTH_J && noise > 0 && Math.sqrt(fitted.variance) > limit * noise) return undefined;
   // The fitted model's variance ignores the terms it could not yet determine: where it extrapolates, the
   // reference prediction (with its offset) is a second opinion, and the tolerance spans the two.
   const second = c.j > r ? Math.abs(fitted.value + st.shift - (c.position + offsets.of(bk, src).offset)) : 0;
@@ -598,9 +624,15 @@ function referencePrediction(
   r: number | undefined,
   src: string,
 ): Placement | undefined {
-  if (!ctx.seedable[ci] || c.j > (r ?? START_J) + GROWTH_J) return undefined;
+  if (!ctx.seedable[ci] || (!ctx.wide && c.j > (r ?? START_J) + GROWTH_J)) return undefined;
   const o = offsets.of(bk, src);
-  return { position: c.position + o.offset, tolerance: o.tolerance * (1 + (c.j / 20) ** 2), tier: 1 };
+  // In the gap pass, past the low-J seeds, the tolerance stays that of the offset vote: a line list whose lines the
+  // reference places that well is assigned from it at any J, while a reference too rough for it only seeds at low J
+  // (widened like the low-J seeds, ten spurious peaks of a hot scan made a coincidence band of 13C16O 2-1).
+  const beyondSeeds = ctx.wide && c.j > START_J + GROWTH_J;
+  const tolerance = beyondSeeds ? o.tolerance : o.tolerance * (1 + (c.j / 20) ** 2);
+  if (beyondSeeds && tolerance > WIDE_SPACING_FRACTION * (ctx.spacing.get(bk) ?? 0)) return undefined;
+  return { position: c.position + o.offset, tolerance, tier: 1 };
 }
 
 /** The fit of a round; when it cannot be made (too few lines or rank deficient), the thinnest band goes and again. */
@@ -833,16 +865,28 @@ function finishAssignment(
   if (!lines.some((l) => l.assignment)) throw nothingAssigned(ctx);
   const fit = fitLineListDetailed(lines, ctx.masses, ctx.options.fit ?? {});
   const unexplained = ctx.peaks.flatMap((p, i) => (p.assignment || auto.has(i) ? [] : [i]));
-  if (unexplained.length > 0) {
-    const repeats = repeatedPositions(ctx.peaks, unexplained);
+  if (offsets) noteIntensityRefusals(ctx, auto, offsets, unexplained);
+  const forIntensity = unexplained.filter((i) => ctx.intensityLeftOut.has(i));
+  for (const i of forIntensity) ctx.notes.set(i, ctx.intensityLeftOut.get(i) as string);
+  if (forIntensity.length > 0) {
+    ctx.warnings.push({
+      code: 'LINES_LEFT_OUT_FOR_INTENSITY',
+      message: `${forIntensity.length} line(s) match a predicted band by position but were left out for their intensity (its observed-to-predicted intensity ratio strays more than ×${BAND_RATIO_LIMIT} from the main band's): if the intensities of different scans were normalised separately, label the lines with "source"`,
+      lines: forIntensity,
+    });
+  }
+  ctx.warnings.push(...intensityScaleWarnings(ctx, auto));
+  const byNoBand = unexplained.filter((i) => !ctx.intensityLeftOut.has(i));
+  if (byNoBand.length > 0) {
+    const repeats = repeatedPositions(ctx.peaks, byNoBand);
     const why =
       repeats.length > 0
         ? `; ${repeats.length} of them repeat the position of an earlier line (a duplicated row?): lines ${repeats.slice(0, 10).join(', ')}${repeats.length > 10 ? ', …' : ''}`
         : '';
     ctx.warnings.push({
       code: 'LINES_UNEXPLAINED',
-      message: `${unexplained.length} line(s) are explained by no band of ${speciesNames(ctx)}; they stay unassigned and out of the fit${why}`,
-      lines: unexplained,
+      message: `${byNoBand.length} line(s) are explained by no band of ${speciesNames(ctx)}; they stay unassigned and out of the fit${why}`,
+      lines: byNoBand,
     });
   }
   const bands = bandSummaries(ctx, auto, offsets);
@@ -856,6 +900,54 @@ function finishAssignment(
     unexplained,
     warnings: ctx.warnings,
   };
+}
+
+/**
+ * Unassigned lines that a band's reference prediction takes by position but the matcher refused for their intensity
+ * (against the main band's scale, before the band had its own): noted as left out for their intensity.
+ */
+function noteIntensityRefusals(
+  ctx: AssignContext,
+  auto: ReadonlyMap<number, CandidateLine>,
+  offsets: OffsetVotes,
+  unexplained: readonly number[],
+): void {
+  const scale = intensityScales(auto, ctx.peaks);
+  const seeds = ctx.cands.filter((_, ci) => ctx.seedable[ci]).sort((a, b) => a.position - b.position);
+  const at = Float64Array.from(seeds, (c) => c.position);
+  for (const i of unexplained) {
+    const p = ctx.peaks[i] as PeakInput;
+    if (p.intensity === undefined || !(p.intensity > 0) || ctx.intensityLeftOut.has(i)) continue;
+    const source = p.source ?? '';
+    const limit = ctx.maxOffset + 0.3;
+    for (let k = lowerBound(at, p.position - limit); k < at.length && (at[k] as number) <= p.position + limit; k++) {
+      const c = seeds[k] as CandidateLine;
+      const bk = bandKey(c);
+      const o = offsets.of(bk, source);
+      if (Math.abs(p.position - c.position - o.offset) > o.tolerance) continue;
+      if (scale.has(scaleKey(bk, source)) || o.established) continue;
+      const ref = classScale(scale, c, source);
+      if (ref === undefined) continue;
+      const ratio = p.intensity / (ref * c.intensity);
+      if (Math.abs(Math.log(ratio)) <= Math.log(BAND_RATIO_LIMIT)) continue;
+      ctx.intensityLeftOut.set(
+        i,
+        `left out for its intensity: its position matches ${transitionLabel(c)} (${signed(p.position - c.position - o.offset)} cm-1 from the reference with its offset), but its intensity is ×${ratioText(ratio)} the one expected on the main band's scale${source ? ` of source "${source}"` : ''} (more than ×${BAND_RATIO_LIMIT} either way), so it was taken for a coincidence`,
+      );
+      break;
+    }
+  }
+}
+
+/**
+ * A band kept for its positions although its intensities are on a scale far from the main band's of the same source:
+ * a warning naming the intensity scale (scans normalised separately?), since intensity-derived results would differ.
+ */
+function intensityScaleWarnings(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>): Warning[] {
+  return [...strayingScales(auto, ctx.peaks).values()].map((b) => ({
+    code: 'INTENSITY_SCALE_DIFFERS',
+    message: `band ${b.bk.replace('|', ' ')}${b.source ? ` of source "${b.source}"` : ''} was assigned by its positions, but its observed-to-predicted intensity ratio is ×${ratioText(b.ratio)} that of the main band (more than ×${BAND_RATIO_LIMIT}): were its intensities normalised separately? Label the lines of each scan with "source" so that intensities are compared only within a scan`,
+  }));
 }
 
 type BandCount = BandSummary & { seeds: CandidateLine[] };
@@ -964,7 +1056,15 @@ interface OffsetChoice {
   readonly tolerance: number;
   /** Found by the band's own vote, not the source's. */
   readonly own: boolean;
+  /**
+   * Most of the band's strong predicted lines (at least 2 × minLines) lie on peaks at this offset that no other band
+   * predicts: its intensities are not held against those of other bands (they may be on their own scale).
+   */
+  readonly established?: boolean;
 }
+
+/** Share of a band's strong predicted lines that must lie on peaks for its positions alone to establish it. */
+const ESTABLISHED_SHARE = 0.6;
 
 interface OffsetVotes {
   readonly bySource: Map<string, OffsetChoice & { ambiguous: boolean }>;
@@ -982,6 +1082,7 @@ function voteOffsets(
   freeBySource: ReadonlyMap<string, readonly ObservedPeak[]>,
   maxOffset: number,
   minLines: number,
+  voters = { source: 80, band: 30 },
 ): OffsetVotes {
   const bySource = new Map<string, OffsetChoice & { ambiguous: boolean }>();
   const perBand = new Map<string, OffsetChoice>();
@@ -993,7 +1094,7 @@ function voteOffsets(
   }
   for (const [src, peaks] of freeBySource) {
     const observed = peaks.map((p) => p.position);
-    const strong = [...seeds].sort((a, b) => b.intensity - a.intensity).slice(0, 80);
+    const strong = [...seeds].sort((a, b) => b.intensity - a.intensity).slice(0, voters.source);
     const est = estimateOffset(strong, observed, maxOffset, 0.06);
     const choice = {
       offset: est?.offset ?? 0,
@@ -1004,7 +1105,7 @@ function voteOffsets(
     bySource.set(src, choice);
     const sorted = Float64Array.from(observed).sort();
     for (const [bk, list] of bands) {
-      const top = [...list].sort((a, b) => b.intensity - a.intensity).slice(0, 30);
+      const top = [...list].sort((a, b) => b.intensity - a.intensity).slice(0, voters.band);
       let use: OffsetChoice = choice;
       if (top.length >= minLines) {
         const withSource = countNear(top, sorted, choice.offset, choice.tolerance);
@@ -1019,10 +1120,54 @@ function voteOffsets(
           if (n >= minLines && n >= withSource + 3 && n >= 2 * withSource)
             use = { offset: own.offset, tolerance: tol, own: true };
         }
+        // Most of the band's strong lines on peaks no other band predicts: its positions establish it, whatever
+        // scale its intensities are on.
+        const alone = countNear(
+          top,
+          sorted,
+          use.offset,
+          use.tolerance,
+          claimedByOthers(seeds, bk, use.offset),
+          use.tolerance,
+        );
+        if (alone >= 2 * minLines && alone >= ESTABLISHED_SHARE * top.length) use = { ...use, established: true };
       }
       perBand.set(`${bk}#${src}`, use);
     }
   }
+  return {
+    bySource,
+    perBand,
+    of: (band, source) =>
+      perBand.get(`${band}#${source}`) ??
+      bySource.get(source) ?? { offset: 0, tolerance: 0.1, own: false, ambiguous: false },
+  };
+}
+
+/**
+ * The offsets of the gap pass: a source whose lines the low-J vote already assigned (at least minLines of them) keeps
+ * its offsets; any other votes again over the strong lines of every J (more of them: a band may have lost its
+ * strongest lines to a gap).
+ */
+function widenedOffsets(ctx: AssignContext, first: OffsetVotes, auto: ReadonlyMap<number, CandidateLine>): OffsetVotes {
+  const assigned = new Map<string, number>();
+  for (const i of auto.keys()) {
+    const s = ctx.peaks[i]?.source ?? '';
+    assigned.set(s, (assigned.get(s) ?? 0) + 1);
+  }
+  const again = new Map([...ctx.freeBySource].filter(([s]) => (assigned.get(s) ?? 0) < ctx.minLines));
+  if (again.size === 0) return first;
+  const wide = voteOffsets(
+    ctx.cands.filter((_, i) => ctx.seedable[i]),
+    again,
+    ctx.maxOffset,
+    ctx.minLines,
+    { source: 300, band: 60 },
+  );
+  const bySource = new Map(first.bySource);
+  const perBand = new Map(first.perBand);
+  for (const [s, o] of wide.bySource) bySource.set(s, o);
+  for (const [k, o] of wide.perBand) perBand.set(k, o);
   return {
     bySource,
     perBand,
@@ -1231,23 +1376,51 @@ const BAND_RATIO_LIMIT = 20;
 
 const bandClass = (c: CandidateLine) => (c.band.upper === c.band.lower ? 'rot' : 'ir');
 
-/** The intensity scale of the band with the most matched lines of the candidate's class (same units). */
-function classScale(scale: ReadonlyMap<string, number>, c: CandidateLine): number | undefined {
-  return scale.get(`#${bandClass(c)}`);
+/** Key of a band's intensity scale within one source of lines: each source has its own scale. */
+const scaleKey = (bk: string, source: string) => `${bk}@${source}`;
+
+/** The intensity scale of the band with the most matched lines of the candidate's class in the same source. */
+function classScale(scale: ReadonlyMap<string, number>, c: CandidateLine, source: string): number | undefined {
+  return scale.get(scaleKey(`#${bandClass(c)}`, source));
 }
 
-/** Bands whose matched lines are far stronger or weaker than their predictions relative to the main band. */
-function pruneImplausibleBands(auto: Map<number, CandidateLine>, peaks: readonly PeakInput[]): void {
+/** Per band and source, how far its intensity scale strays from that of the main band of its class (a ratio). */
+function strayingScales(
+  auto: ReadonlyMap<number, CandidateLine>,
+  peaks: readonly PeakInput[],
+): Map<string, { bk: string; source: string; ratio: number }> {
   const scale = intensityScales(auto, peaks);
-  const bad = new Set<string>();
-  for (const c of auto.values()) {
-    const own = scale.get(bandKey(c));
-    const ref = classScale(scale, c);
+  const out = new Map<string, { bk: string; source: string; ratio: number }>();
+  for (const [i, c] of auto) {
+    const source = peaks[i]?.source ?? '';
+    const bk = bandKey(c);
+    const own = scale.get(scaleKey(bk, source));
+    const ref = classScale(scale, c, source);
     if (own !== undefined && ref !== undefined && Math.abs(Math.log(own / ref)) > Math.log(BAND_RATIO_LIMIT))
-      bad.add(bandKey(c));
+      out.set(scaleKey(bk, source), { bk, source, ratio: own / ref });
   }
-  for (const [i, c] of auto) if (bad.has(bandKey(c))) auto.delete(i);
+  return out;
 }
+
+/**
+ * Bands whose matched lines are far stronger or weaker than their predictions relative to the main band of the same
+ * source, unless their positions establish them (OffsetChoice.established); the lines dropped get a note saying so.
+ */
+function pruneImplausibleBands(ctx: AssignContext, offsets: OffsetVotes, auto: Map<number, CandidateLine>): void {
+  const bad = strayingScales(auto, ctx.peaks);
+  for (const [i, c] of auto) {
+    const source = ctx.peaks[i]?.source ?? '';
+    const b = bad.get(scaleKey(bandKey(c), source));
+    if (!b || offsets.of(b.bk, source).established) continue;
+    auto.delete(i);
+    ctx.intensityLeftOut.set(
+      i,
+      `left out for its intensity: a match for ${transitionLabel(c)} by position, but that band's observed-to-predicted intensity ratio is ×${ratioText(b.ratio)} that of the main band${source ? ` of source "${source}"` : ''} (more than ×${BAND_RATIO_LIMIT} either way), so it was taken for a coincidence`,
+    );
+  }
+}
+
+const ratioText = (r: number) => (r >= 1 ? r.toPrecision(3) : `1/${(1 / r).toPrecision(3)}`);
 
 /**
  * Isotopologues of one molecule assigned jointly: where the same transition of two isotopologues lies closer than
@@ -1412,8 +1585,8 @@ function intensityScales(auto: ReadonlyMap<number, CandidateLine>, peaks: readon
   for (const [i, c] of auto) {
     const obs = peaks[i]?.intensity;
     if (obs === undefined || !(obs > 0)) continue;
-    const k = bandKey(c);
-    classOf.set(k, bandClass(c));
+    const k = scaleKey(bandKey(c), peaks[i]?.source ?? '');
+    classOf.set(k, scaleKey(`#${bandClass(c)}`, peaks[i]?.source ?? ''));
     const list = ratios.get(k) ?? [];
     list.push(obs / c.intensity);
     ratios.set(k, list);
@@ -1426,7 +1599,7 @@ function intensityScales(auto: ReadonlyMap<number, CandidateLine>, peaks: readon
     const cls = classOf.get(k) as string;
     if (r.length > (best.get(cls) ?? 0)) {
       best.set(cls, r.length);
-      out.set(`#${cls}`, median(r));
+      out.set(cls, median(r));
     }
   }
   return out;
