@@ -35,6 +35,8 @@ function withWhatItMatches<T>(
   } catch (e) {
     if (!(e instanceof ScienceError) || e.code !== 'FIT_NO_ASSIGNED_LINES' || !/nothing matches/.test(e.message))
       throw e;
+    // lines that read like wavelengths sent as wavenumbers: the unit is the answer, not another molecule
+    if (e.details.suggestedUnit !== undefined) throw e;
     const ranking = identifySpecies(peaks, {
       ...(options.temperature ? { temperature: options.temperature } : {}),
       maxOffset: options.maxOffset ?? 0.5,

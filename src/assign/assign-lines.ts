@@ -771,6 +771,14 @@ function nothingAssigned(ctx: AssignContext): ScienceError {
       { lines: ctx.free.length, minLinesPerBand: min },
     );
   }
+  const hint = wavelengthHint(ctx.lo, ctx.hi);
+  if (hint) {
+    // the likeliest cause first: a problem's detail is cut at 300 characters
+    return new ScienceError('FIT_NO_ASSIGNED_LINES', `nothing matches the declared species ${names}${hint}`, {
+      window: [ctx.lo, ctx.hi],
+      suggestedUnit: 'um',
+    });
+  }
   if (ctx.cands.length === 0) {
     return new ScienceError(
       'FIT_NO_ASSIGNED_LINES',
@@ -804,6 +812,15 @@ function nothingAssigned(ctx: AssignContext): ScienceError {
     }`,
     { species: names },
   );
+}
+
+/**
+ * Positions between 0.5 and 50 that match nothing read like vacuum wavelengths in µm sent without a unit (the
+ * infrared from 200 to 20 000 cm⁻¹): say so, with the wavenumbers they would be.
+ */
+function wavelengthHint(lo: number, hi: number): string {
+  if (lo < 0.5 || hi > 50) return '';
+  return ` between ${lo.toFixed(2)} and ${hi.toFixed(2)} cm-1; read as wavelengths in µm the lines would lie at ${(1e4 / hi).toFixed(1)}–${(1e4 / lo).toFixed(1)} cm-1: if they are, send "unit": "um"`;
 }
 
 const signed = (x: number) => `${x >= 0 ? '+' : ''}${x.toFixed(3)}`;

@@ -72,6 +72,25 @@ describe('POST /v1/fits', () => {
     },
   );
 
+  it('wavelengths in µm sent without a unit: the 422 says what they would be in cm-1 and to send "unit": "um"', async () => {
+    const body = assignedFitBody('HCl', ['1-0'], 8, 0.002, 2);
+    const asMicrometres = {
+      species: 'HCl',
+      lines: body.lines.map((l) => ({ position: 1e4 / l.position })),
+    };
+    const r = await app().inject({ method: 'POST', url: '/v1/fits', payload: asMicrometres });
+    expect(r.statusCode).toBe(422);
+    expect(r.headers['content-type']).toMatch(/^application\/problem\+json/);
+    const detail = r.json().detail as string;
+    expect(detail).toContain('"unit": "um"');
+    expect(detail).not.toMatch(/declared wrongly/);
+    // the HCl fundamental lies near 2 886 cm-1 (HITRAN, from memory): the wavenumbers quoted bracket it
+    const m = /lie at (\d+\.\d)–(\d+\.\d) cm-1/.exec(detail);
+    expect(m).not.toBeNull();
+    expect(Number(m?.[1])).toBeLessThan(2886);
+    expect(Number(m?.[2])).toBeGreaterThan(2886);
+  });
+
   it('an unknown line-list unit is a 400 naming the accepted spellings', async () => {
     const body = assignedFitBody('HCl', ['1-0'], 8, 0.002, 2);
     const r = await app().inject({ method: 'POST', url: '/v1/fits', payload: { ...body, unit: 'kayser' } });
