@@ -1,9 +1,9 @@
-import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { analyseLineList } from '../../src/assign/analyse.js';
 import type { PeakInput } from '../../src/assign/assign-lines.js';
 import { runChecks } from '../../src/qa/checks.js';
 import { parseSpecies } from '../../src/species/parse.js';
+import { type CoDatabaseLine as DbLine, CO_DATABASE as fixture } from '../helpers/co-database.js';
 
 /**
  * Real database lines of 12C16O (test/fixtures/co-database-lines/: HITRAN2020, Gordon et al., JQSRT 277, 107949
@@ -13,16 +13,6 @@ import { parseSpecies } from '../../src/species/parse.js';
  * (any other label), unassigned. Required: ≥ 98 % correct and none wrong (issue #12). The shares measured before the
  * gap pass, per-source intensity scales and position-established bands are in each comment (after: all 100 %).
  */
-interface DbLine {
-  band: string;
-  branch: 'P' | 'R';
-  j: number;
-  position: number;
-  uncertainty: number;
-}
-const fixture = JSON.parse(
-  readFileSync(new URL('../fixtures/co-database-lines/lines.json', import.meta.url), 'utf8'),
-) as { lines: DbLine[] };
 const band = (b: string) => fixture.lines.filter((l) => l.band === b);
 const fundamental = band('1-0');
 const overtone = band('2-0');

@@ -1,4 +1,3 @@
-import { readFileSync } from 'node:fs';
 import { afterAll, describe, expect, it } from 'vitest';
 import { analyseLineList } from '../../src/assign/analyse.js';
 import { assignByStructure } from '../../src/assign/structure.js';
@@ -6,6 +5,7 @@ import { ScienceError } from '../../src/errors.js';
 import { parseSpecies } from '../../src/species/parse.js';
 import { reducedMass } from '../../src/species/reduced-mass.js';
 import { CS, NACL, SIO } from '../helpers/absent-species.js';
+import { CO_DATABASE } from '../helpers/co-database.js';
 import { independentLines, type MoleculeConstants } from '../helpers/independent-lines.js';
 
 /**
@@ -121,9 +121,7 @@ describe('hot bands numbered from structure beside their fundamental', () => {
   });
 
   it('real CO: the 2-1 hot band numbered from structure beside the published 1-0 lines, P cut at J = 1, 2, 3, 5, with and without σ: every line right', () => {
-    const db = JSON.parse(
-      readFileSync(new URL('../fixtures/co-database-lines/lines.json', import.meta.url), 'utf8'),
-    ) as { lines: { band: string; branch: 'P' | 'R'; j: number; position: number; uncertainty: number }[] };
+    const db = CO_DATABASE;
     const co = parseSpecies('12C16O');
     for (const pMin of [1, 2, 3, 5])
       for (const withSigma of [true, false]) {

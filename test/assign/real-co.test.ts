@@ -1,25 +1,15 @@
-import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { analyseLineList } from '../../src/assign/analyse.js';
 import type { PeakInput } from '../../src/assign/assign-lines.js';
 import { runChecks } from '../../src/qa/checks.js';
 import { parseSpecies } from '../../src/species/parse.js';
+import { type CoDatabaseLine as DbLine, CO_DATABASE as fixture } from '../helpers/co-database.js';
 
 /**
  * Real database lines of 12C16O (test/fixtures/co-database-lines/, a copy of ../shared/fixtures/co-database-lines/: HITRAN2020, Gordon et al., JQSRT 277,
  * 107949 (2022)) sent WITHOUT their assignments: the assignment must give back the published labels. Shares are
  * counted over every line: correct (the published label), wrong (another label), unassigned.
  */
-interface DbLine {
-  band: string;
-  branch: 'P' | 'R';
-  j: number;
-  position: number;
-  uncertainty: number;
-}
-const fixture = JSON.parse(
-  readFileSync(new URL('../fixtures/co-database-lines/lines.json', import.meta.url), 'utf8'),
-) as { lines: DbLine[] };
 
 function shares(lines: readonly DbLine[], withUncertainty: boolean) {
   const peaks: PeakInput[] = lines.map((l) => ({

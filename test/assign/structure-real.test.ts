@@ -1,8 +1,8 @@
-import { readFileSync } from 'node:fs';
 import { afterAll, describe, expect, it } from 'vitest';
 import { assignByStructure } from '../../src/assign/structure.js';
 import { parseSpecies } from '../../src/species/parse.js';
 import { reducedMass } from '../../src/species/reduced-mass.js';
+import { type CoDatabaseLine as DbLine, CO_DATABASE as fixture } from '../helpers/co-database.js';
 
 /**
  * Numbering from structure alone on REAL lines: the 12C16O fundamental, hot band and overtones 2-0, 3-0 from the
@@ -15,16 +15,6 @@ import { reducedMass } from '../../src/species/reduced-mass.js';
  * 8.7, until Pekeris's bias was removed), 2-0 and 3-0 refused in all (3-0 with σ: χ²/ν 3.6 against the database's
  * lower-bound σ, now accepted as its lines lie within 1e-4 of the spacing).
  */
-interface DbLine {
-  band: string;
-  branch: 'P' | 'R';
-  j: number;
-  position: number;
-  uncertainty: number;
-}
-const fixture = JSON.parse(
-  readFileSync(new URL('../fixtures/co-database-lines/lines.json', import.meta.url), 'utf8'),
-) as { lines: DbLine[] };
 const co = parseSpecies('12C16O');
 const measured: string[] = [];
 

@@ -1,8 +1,8 @@
-import { readFileSync } from 'node:fs';
 import { afterAll, describe, expect, it } from 'vitest';
 import { analyseLineList } from '../../src/assign/analyse.js';
 import { runChecks } from '../../src/qa/checks.js';
 import { parseSpecies } from '../../src/species/parse.js';
+import { CO_DATABASE as db } from '../helpers/co-database.js';
 import { CO_12_16, HBR_1_79, HCL_1_35, independentLines } from '../helpers/independent-lines.js';
 import { isotopologue, type ScanOptions, type ScanTruth, scan, shares } from '../helpers/scan-scenarios.js';
 
@@ -352,17 +352,6 @@ describe('scenario sweep (issue 12), shares summed over three seeds per scenario
     expectGoals(t);
   });
 });
-
-interface DbLine {
-  band: string;
-  branch: 'P' | 'R';
-  j: number;
-  position: number;
-  uncertainty: number;
-}
-const db = JSON.parse(readFileSync(new URL('../fixtures/co-database-lines/lines.json', import.meta.url), 'utf8')) as {
-  lines: DbLine[];
-};
 
 describe('real CO database lines sent without labels: every line must come back as published', () => {
   for (const withSigma of [true, false]) {

@@ -1,8 +1,8 @@
-import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { analyseLineList } from '../../src/assign/analyse.js';
 import { runChecks } from '../../src/qa/checks.js';
 import { parseSpecies } from '../../src/species/parse.js';
+import { CO_DATABASE as db } from '../helpers/co-database.js';
 import { CO_12_16, HCL_1_35, independentLines } from '../helpers/independent-lines.js';
 import { isotopologue } from '../helpers/scan-scenarios.js';
 
@@ -13,16 +13,6 @@ import { isotopologue } from '../helpers/scan-scenarios.js';
  * (test/helpers/independent-lines.ts: Huber & Herzberg's 12C16O set with ω_e y_e, γ_e, β_e, H_e, mass-scaled to
  * 13C16O with AME2020 masses), with the database's typical σ of 1e-4 cm⁻¹ as noise and stated σ.
  */
-interface DbLine {
-  band: string;
-  branch: 'P' | 'R';
-  j: number;
-  position: number;
-  uncertainty: number;
-}
-const db = JSON.parse(readFileSync(new URL('../fixtures/co-database-lines/lines.json', import.meta.url), 'utf8')) as {
-  lines: DbLine[];
-};
 const CO13 = isotopologue(CO_12_16, ['12C', '16O'], ['13C', '16O']);
 
 function list() {

@@ -4,9 +4,9 @@
  * tolerance keys. Lines come from the independent generator (test/helpers/independent-lines.ts, published HCl
  * constants with the higher terms), never from src/models.
  */
-import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { useApp } from '../helpers/app.js';
+import { CO_DATABASE } from '../helpers/co-database.js';
 import {
   type CustomaryConstants,
   HCL_1_35,
@@ -209,11 +209,6 @@ describe('a wrong tolerance key lists the accepted ones', () => {
     for (const k of accepted) expect(text).toContain(k);
   });
 });
-
-/** Real 12C16O lines (Gendriesch et al. 2009 via the database list of test/fixtures/co-database-lines/SOURCE.md). */
-const CO_DATABASE = JSON.parse(
-  readFileSync(new URL('../fixtures/co-database-lines/lines.json', import.meta.url), 'utf8'),
-) as { lines: { band: string; j: number; branch: string; position: number; uncertainty: number }[] };
 
 describe('identity and calibration messages on real CO lines', () => {
   it('the runner-up named is another molecule, and a bare-line ranking that put another molecule first is said to be inconclusive', async () => {

@@ -10,6 +10,7 @@ import { runCheck } from '../../services/usecases/check.js';
 import { assertFinite } from '../../services/usecases/finite.js';
 import { runFit } from '../../services/usecases/fit.js';
 import { getSpecies } from '../../services/usecases/species.js';
+import { CO_DATABASE as real } from '../helpers/co-database.js';
 
 /**
  * Production answers are written by serialisers compiled from the zod schemas (services/serializer.ts), not by
@@ -17,16 +18,6 @@ import { getSpecies } from '../../services/usecases/species.js';
  * of test/fixtures/co-database-lines/, HITRAN2020), and the texts must hold the same members with the same values,
  * number for number (compared with Object.is after parsing, so a digit lost or added shows), nothing dropped.
  */
-interface DbLine {
-  band: string;
-  branch: 'P' | 'R';
-  j: number;
-  position: number;
-  uncertainty: number;
-}
-const real = JSON.parse(readFileSync(new URL('../fixtures/co-database-lines/lines.json', import.meta.url), 'utf8')) as {
-  lines: DbLine[];
-};
 
 /** The path of the first difference between two parsed JSON values (numbers compared with Object.is), or undefined. */
 function firstDifference(a: unknown, b: unknown, path = ''): string | undefined {
