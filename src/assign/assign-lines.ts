@@ -80,7 +80,7 @@ export interface AssignResult {
 type BandOf = { readonly species: string; readonly band: { readonly upper: number; readonly lower: number } };
 /** "species|v′-v″", made once per candidate or given transition (the loop asks for it many times a round). */
 const bandKeys = new WeakMap<BandOf, string>();
-const bandKey = (c: BandOf): string => {
+export const bandKey = (c: BandOf): string => {
   let k = bandKeys.get(c);
   if (k === undefined) {
     k = `${c.species}|${formatBand(c.band)}`;
@@ -176,7 +176,7 @@ export function assignAndFit(
 }
 
 /** What every stage of the assignment reads: the lines, their window, the candidates and the free lines per source. */
-interface AssignContext {
+export interface AssignContext {
   readonly peaks: readonly PeakInput[];
   readonly species: readonly { iso: Isotopologue; abundance: number }[];
   readonly masses: ReadonlyMap<string, MassValue>;
@@ -226,7 +226,7 @@ interface AssignContext {
 }
 
 /** What the iterations carry from one to the next. */
-interface LoopState {
+export interface LoopState {
   auto: Map<number, CandidateLine>;
   detailed: DetailedFit | undefined;
   /** Whether `detailed` is the fit of exactly `auto` (a refit after withdrawals can fail). */
@@ -241,7 +241,7 @@ interface LoopState {
   readonly banned: Map<number, { at: number; count: number }>;
 }
 
-function prepareAssignment(
+export function prepareAssignment(
   peaks: readonly PeakInput[],
   species: readonly { iso: Isotopologue; abundance: number }[],
   masses: ReadonlyMap<string, MassValue>,
@@ -292,7 +292,7 @@ function prepareAssignment(
 }
 
 /** The candidates' numbers and band numbers, made once for the loop's look-ups. */
-function candidateIndex(
+export function candidateIndex(
   cands: readonly CandidateLine[],
   given: readonly { readonly t: Transition }[],
 ): Pick<AssignContext, 'candBand' | 'bands' | 'candIndex' | 'candGiven' | 'bandCands'> {
@@ -331,11 +331,11 @@ function candidateIndex(
 }
 
 /** A withdrawn pair (peak, candidate) as one number. */
-const pairKey = (ctx: AssignContext, peak: number, c: CandidateLine) =>
+export const pairKey = (ctx: AssignContext, peak: number, c: CandidateLine) =>
   peak * ctx.cands.length + (ctx.candIndex.get(c) as number);
 
 /** The lines sent without an assignment, as the matcher takes them. */
-function freePeaks(peaks: readonly PeakInput[]): ObservedPeak[] {
+export function freePeaks(peaks: readonly PeakInput[]): ObservedPeak[] {
   return peaks.flatMap((p, index) =>
     p.assignment
       ? []
@@ -354,7 +354,7 @@ const sourceNumber = (ctx: AssignContext, i: number) => ctx.sourceNumbers[i] as 
 const speciesNames = (ctx: AssignContext) => ctx.species.map((s) => s.iso.formula).join(', ');
 
 /** The line list as the fit takes it: given assignments as sent, automatic ones from the map. */
-function lineInputs(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>): LineInput[] {
+export function lineInputs(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>): LineInput[] {
   return ctx.inputs.map((base, index) => {
     const c = auto.get(index);
     if (!c) return base;
@@ -366,7 +366,7 @@ function lineInputs(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>
 }
 
 /** Each line as the fit takes it, given assignment included, without an automatic one (made once). */
-function baseInputs(peaks: readonly PeakInput[]): LineInput[] {
+export function baseInputs(peaks: readonly PeakInput[]): LineInput[] {
   return peaks.map((p) => ({
     position: p.position,
     ...(p.uncertainty !== undefined ? { uncertainty: p.uncertainty } : {}),
@@ -376,7 +376,7 @@ function baseInputs(peaks: readonly PeakInput[]): LineInput[] {
   }));
 }
 
-function ambiguousOffsetWarnings(offsets: OffsetVotes): Warning[] {
+export function ambiguousOffsetWarnings(offsets: OffsetVotes): Warning[] {
   return [...offsets.bySource].flatMap(([s, o]) =>
     o.ambiguous
       ? [
@@ -394,7 +394,7 @@ function ambiguousOffsetWarnings(offsets: OffsetVotes): Warning[] {
  * withdrawn fewer than three times gets one more chance against the final model (it may have been withdrawn by an
  * early fit that a wrong line had bent).
  */
-function iterateAssignment(ctx: AssignContext, offsets: OffsetVotes, state: LoopState): void {
+export function iterateAssignment(ctx: AssignContext, offsets: OffsetVotes, state: LoopState): void {
   for (let iter = 0; iter < 60; iter++) {
     const round = matchRound(ctx, offsets, state, iter);
     state.competitions = round.competitions;
@@ -425,19 +425,23 @@ function iterateAssignment(ctx: AssignContext, offsets: OffsetVotes, state: Loop
  * The fit of this round's assignment: the last round's when the assignment has not changed since (the same lines
  * with the same weights give the same fit), else a new one.
  */
-function roundFit(ctx: AssignContext, state: LoopState, next: Map<number, CandidateLine>): DetailedFit | undefined {
+export function roundFit(
+  ctx: AssignContext,
+  state: LoopState,
+  next: Map<number, CandidateLine>,
+): DetailedFit | undefined {
   if (state.detailed && state.detailedIsOfAuto && sameAssignments(state.auto, next)) return state.detailed;
   const last = state.detailed;
   return fitDroppingThinBands(ctx, next, last && (last.scatterOfResiduals() ?? last.scatterEstimate));
 }
 
-const isBanned = (banned: LoopState['banned'], k: number, iter: number) => {
+export const isBanned = (banned: LoopState['banned'], k: number, iter: number) => {
   const b = banned.get(k);
   return b !== undefined && (b.count >= 3 || iter - b.at < 4);
 };
 
 /** What the predictions of one round are made from: the last fit and what it has assigned. */
-interface RoundModel {
+export interface RoundModel {
   /** Highest J″ assigned per band (by its number in AssignContext.bands; −1 when none). */
   readonly reach: Int32Array;
   /** Observed/predicted intensity per band (and per class under '#ir' and '#rot'). */
@@ -447,7 +451,7 @@ interface RoundModel {
 }
 
 /** One round of predictions matched one-to-one against the free lines of each source. */
-function matchRound(
+export function matchRound(
   ctx: AssignContext,
   offsets: OffsetVotes,
   state: LoopState,
@@ -486,7 +490,7 @@ function matchRound(
  * The candidates a round may predict, in their order in `cands`: per band those up to the farthest J″ its reach
  * allows (see outOfReach); the rest of the band's candidates are not looked at.
  */
-function withinReach(ctx: AssignContext, reach: Int32Array): Int32Array {
+export function withinReach(ctx: AssignContext, reach: Int32Array): Int32Array {
   const out: number[] = [];
   ctx.bandCands.forEach((list, b) => {
     const r = reach[b] as number;
@@ -500,7 +504,7 @@ function withinReach(ctx: AssignContext, reach: Int32Array): Int32Array {
 }
 
 /** Highest J″ assigned per band (by number; −1 when none), automatic or given. */
-function bandReach(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>): Int32Array {
+export function bandReach(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>): Int32Array {
   const reach = new Int32Array(ctx.bands.length).fill(-1);
   const raise = (b: number | undefined, j: number) => {
     if (b !== undefined && j > (reach[b] as number)) reach[b] = j;
@@ -518,7 +522,7 @@ function bandReach(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>)
  * other bands), else from the reference positions and the voted offset. Undefined when the candidate is given, out
  * of reach, or too uncertain to tell.
  */
-function predictionOf(
+export function predictionOf(
   ctx: AssignContext,
   offsets: OffsetVotes,
   model: RoundModel,
@@ -557,10 +561,10 @@ function predictionOf(
   };
 }
 
-type Placement = Omit<Prediction, 'key'>;
+export type Placement = Omit<Prediction, 'key'>;
 
 /** A candidate with its number, its band's number and its band key. */
-interface CandidateRef {
+export interface CandidateRef {
   readonly c: CandidateLine;
   readonly ci: number;
   readonly band: number;
@@ -568,7 +572,7 @@ interface CandidateRef {
 }
 
 /** A source of lines by name and by its number in AssignContext.sources. */
-interface SourceRef {
+export interface SourceRef {
   readonly name: string;
   readonly n: number;
 }
@@ -577,10 +581,10 @@ interface SourceRef {
  * Whether J″ lies past what a band of reach r may take in one round: a fitted band grows by max(GROWTH_J, r/2), a
  * reference placement by GROWTH_J (never further).
  */
-const outOfReach = (j: number, r: number) => j > r + Math.max(GROWTH_J, Math.floor(r / 2));
+export const outOfReach = (j: number, r: number) => j > r + Math.max(GROWTH_J, Math.floor(r / 2));
 
 /** A fitted band's prediction, grown a few lines past its reach; undefined where the model has run out. */
-function fittedPrediction(
+export function fittedPrediction(
   ctx: AssignContext,
   offsets: OffsetVotes,
   residuals: ResidualStatistics,
@@ -617,7 +621,7 @@ function fittedPrediction(
 }
 
 /** A seedable candidate of a band not yet fitted: its reference position shifted by the voted offset. */
-function referencePrediction(
+export function referencePrediction(
   ctx: AssignContext,
   offsets: OffsetVotes,
   { c, ci, bk }: CandidateRef,
@@ -636,7 +640,7 @@ function referencePrediction(
 }
 
 /** The fit of a round; when it cannot be made (too few lines or rank deficient), the thinnest band goes and again. */
-function fitDroppingThinBands(
+export function fitDroppingThinBands(
   ctx: AssignContext,
   next: Map<number, CandidateLine>,
   scatter: ScatterEstimate | undefined,
@@ -655,7 +659,7 @@ function fitDroppingThinBands(
  * robust scatter and the line's σ, not the fit's pooled scale: a line a correct model explains stays, however noisy
  * its band. Returns how many were withdrawn.
  */
-function withdrawRejected(
+export function withdrawRejected(
   ctx: AssignContext,
   fit: DetailedFit,
   next: Map<number, CandidateLine>,
@@ -684,7 +688,7 @@ function withdrawRejected(
  * A band whose fitted rotational constants stray from the reference ones by more than a real band can (1 %) was made
  * of coincidences: all its automatic lines go, for good. Returns how many were withdrawn.
  */
-function withdrawStrayBands(
+export function withdrawStrayBands(
   ctx: AssignContext,
   fit: DetailedFit,
   next: Map<number, CandidateLine>,
@@ -711,7 +715,11 @@ function withdrawStrayBands(
  * With many lines left, candidates of weaker bands that share a level with the fit may seed too. Returns whether any
  * was added.
  */
-function widenSeeds(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>, detailed: DetailedFit): boolean {
+export function widenSeeds(
+  ctx: AssignContext,
+  auto: ReadonlyMap<number, CandidateLine>,
+  detailed: DetailedFit,
+): boolean {
   const left = ctx.free.filter((p) => !auto.has(p.index)).length;
   if (left < 8) return false;
   const fittedLevels = new Set(detailed.result.levels.map((l) => `${l.species}|${l.v}`));
@@ -727,7 +735,7 @@ function widenSeeds(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>
 }
 
 /** A note on each unassigned line that lost a competition, naming the winner. */
-function noteCompetitions(ctx: AssignContext, state: LoopState): void {
+export function noteCompetitions(ctx: AssignContext, state: LoopState): void {
   for (const c of state.competitions) {
     if (state.auto.has(c.peak)) continue;
     const winner = state.auto.get(c.winner);
@@ -740,7 +748,7 @@ function noteCompetitions(ctx: AssignContext, state: LoopState): void {
 }
 
 /** Whether a line the fit rejected lies within the tolerance a correct model of its band leaves. */
-function explained(
+export function explained(
   ctx: AssignContext,
   fit: DetailedFit,
   stats: ResidualStatistics,
@@ -761,7 +769,7 @@ function explained(
 }
 
 /** Why no line could be assigned, in the terms a caller can act on. */
-function nothingAssigned(ctx: AssignContext): ScienceError {
+export function nothingAssigned(ctx: AssignContext): ScienceError {
   const min = ctx.minLines;
   const names = speciesNames(ctx);
   if (ctx.free.length < min) {
@@ -818,18 +826,18 @@ function nothingAssigned(ctx: AssignContext): ScienceError {
  * Positions between 0.5 and 50 that match nothing read like vacuum wavelengths in µm sent without a unit (the
  * infrared from 200 to 20 000 cm⁻¹): say so, with the wavenumbers they would be.
  */
-function wavelengthHint(lo: number, hi: number): string {
+export function wavelengthHint(lo: number, hi: number): string {
   if (lo < 0.5 || hi > 50) return '';
   return ` between ${lo.toFixed(2)} and ${hi.toFixed(2)} cm-1; read as wavelengths in µm the lines would lie at ${(1e4 / hi).toFixed(1)}–${(1e4 / lo).toFixed(1)} cm-1: if they are, send "unit": "um"`;
 }
 
-const signed = (x: number) => `${x >= 0 ? '+' : ''}${x.toFixed(3)}`;
+export const signed = (x: number) => `${x >= 0 ? '+' : ''}${x.toFixed(3)}`;
 
 /**
  * A band that matches too few lines within ±maxOffset but enough just beyond it (searched up to 4× maxOffset, within
  * half its line spacing, as bandNotFound does): the offset it finds there, its matches and a window that reaches it.
  */
-function beyondWindow(
+export function beyondWindow(
   ctx: AssignContext,
   k: string,
   strong: readonly CandidateLine[],
@@ -843,7 +851,7 @@ function beyondWindow(
 }
 
 /** The level fit of a round; undefined when too few lines or a rank deficiency leave it impossible. */
-function tryFit(ctx: AssignContext, lines: LineInput[], scatter?: ScatterEstimate): DetailedFit | undefined {
+export function tryFit(ctx: AssignContext, lines: LineInput[], scatter?: ScatterEstimate): DetailedFit | undefined {
   try {
     // Few lines: B and D only, so that extrapolation to the next lines is not led astray by terms fitted to noise.
     const n = lines.filter((l) => l.assignment).length;
@@ -866,14 +874,14 @@ function tryFit(ctx: AssignContext, lines: LineInput[], scatter?: ScatterEstimat
 }
 
 /** The lines among `which` whose position equals that of a line sent before them (exact repeats, in index order). */
-function repeatedPositions(peaks: readonly PeakInput[], which: readonly number[]): number[] {
+export function repeatedPositions(peaks: readonly PeakInput[], which: readonly number[]): number[] {
   const firstAt = new Map<number, number>();
   for (const [i, p] of peaks.entries()) if (!firstAt.has(p.position)) firstAt.set(p.position, i);
   return which.filter((i) => (firstAt.get((peaks[i] as PeakInput).position) as number) < i);
 }
 
 /** The final fit of the settled assignment (Dunham included), the unexplained lines, the bands and the calibration. */
-function finishAssignment(
+export function finishAssignment(
   ctx: AssignContext,
   auto: ReadonlyMap<number, CandidateLine>,
   offsets: OffsetVotes | undefined,
@@ -923,7 +931,7 @@ function finishAssignment(
  * Unassigned lines that a band's reference prediction takes by position but the matcher refused for their intensity
  * (against the main band's scale, before the band had its own): noted as left out for their intensity.
  */
-function noteIntensityRefusals(
+export function noteIntensityRefusals(
   ctx: AssignContext,
   auto: ReadonlyMap<number, CandidateLine>,
   offsets: OffsetVotes,
@@ -960,7 +968,7 @@ function noteIntensityRefusals(
  * A band kept for its positions although its intensities are on a scale far from the main band's of the same source:
  * a warning naming the intensity scale (scans normalised separately?), since intensity-derived results would differ.
  */
-function intensityScaleWarnings(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>): Warning[] {
+export function intensityScaleWarnings(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>): Warning[] {
   return [...strayingScales(auto, ctx.peaks).values()].map((b) => ({
     code: 'INTENSITY_SCALE_DIFFERS',
     message: `band ${b.bk.replace('|', ' ')}${b.source ? ` of source "${b.source}"` : ''} was assigned by its positions, but its observed-to-predicted intensity ratio is ×${ratioText(b.ratio)} that of the main band (more than ×${BAND_RATIO_LIMIT}): were its intensities normalised separately? Label the lines of each scan with "source" so that intensities are compared only within a scan`,
@@ -970,7 +978,7 @@ function intensityScaleWarnings(ctx: AssignContext, auto: ReadonlyMap<number, Ca
 type BandCount = BandSummary & { seeds: CandidateLine[] };
 
 /** Per band: lines predicted (seedable) and matched, with the strong seeds kept for the not-found search. */
-function bandCounts(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>): Map<string, BandCount> {
+export function bandCounts(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>): Map<string, BandCount> {
   type Mutable = { -readonly [K in keyof BandCount]: BandCount[K] };
   const counts = new Map<string, Mutable>();
   ctx.cands.forEach((c, ci) => {
@@ -995,7 +1003,7 @@ function bandCounts(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>
 }
 
 /** A summary per band worth naming, and a BAND_NOT_FOUND warning for each band with strong lines but few matches. */
-function bandSummaries(
+export function bandSummaries(
   ctx: AssignContext,
   auto: ReadonlyMap<number, CandidateLine>,
   offsets: OffsetVotes | undefined,
@@ -1020,7 +1028,12 @@ function bandSummaries(
  * A band with strong lines predicted but too few matched: its best offset, searched wider than maxOffset (up to 4×,
  * within half the line spacing), since the answer may be to widen it; and a warning saying so.
  */
-function bandNotFound(ctx: AssignContext, k: string, b: BandSummary, strong: readonly CandidateLine[]): BandSummary {
+export function bandNotFound(
+  ctx: AssignContext,
+  k: string,
+  b: BandSummary,
+  strong: readonly CandidateLine[],
+): BandSummary {
   const { maxOffset, minLines: min } = ctx;
   const wide = Math.min(4 * maxOffset, 0.45 * (ctx.spacing.get(k) ?? 4 * maxOffset));
   const best = bestBandOffset(strong, ctx.free, Math.max(maxOffset, wide));
@@ -1041,10 +1054,10 @@ function bandNotFound(ctx: AssignContext, k: string, b: BandSummary, strong: rea
   return { ...b, ...(best ? { bestOffset: best } : {}) };
 }
 
-const round = (x: number) => Math.round(x * 1e5) / 1e5;
+export const round = (x: number) => Math.round(x * 1e5) / 1e5;
 
 /** Why a band whose best offset lies within reach and matches enough lines still has too few: what refused them. */
-function refusedWithinReach(ctx: AssignContext, maxOffset: number): string {
+export function refusedWithinReach(ctx: AssignContext, maxOffset: number): string {
   const withIntensity = ctx.free.some((p) => p.intensity !== undefined);
   return ` (within the ±${maxOffset} cm-1 searched, yet refused: ${
     withIntensity
@@ -1058,7 +1071,7 @@ function refusedWithinReach(ctx: AssignContext, maxOffset: number): string {
  * (Δv = 0) is its own class: its strength comes from the permanent dipole, not from the vibrational transition
  * moment, so it cannot be ranked against infrared bands.
  */
-function seedFilter(cands: readonly CandidateLine[], floor: number): boolean[] {
+export function seedFilter(cands: readonly CandidateLine[], floor: number): boolean[] {
   let maxIr = 0;
   let maxRot = 0;
   for (const c of cands) {
@@ -1068,7 +1081,7 @@ function seedFilter(cands: readonly CandidateLine[], floor: number): boolean[] {
   return cands.map((c) => c.intensity >= floor * (c.band.upper === c.band.lower ? maxRot : maxIr));
 }
 
-interface OffsetChoice {
+export interface OffsetChoice {
   readonly offset: number;
   readonly tolerance: number;
   /** Found by the band's own vote, not the source's. */
@@ -1083,7 +1096,7 @@ interface OffsetChoice {
 /** Share of a band's strong predicted lines that must lie on peaks for its positions alone to establish it. */
 const ESTABLISHED_SHARE = 0.6;
 
-interface OffsetVotes {
+export interface OffsetVotes {
   readonly bySource: Map<string, OffsetChoice & { ambiguous: boolean }>;
   readonly perBand: Map<string, OffsetChoice>;
   of(band: string, source: string): OffsetChoice;
@@ -1094,7 +1107,7 @@ interface OffsetVotes {
  * band votes alone, and keeps its own offset when that explains clearly more of its strong lines than the
  * source's (a band measured on another instrument, or against another calibration).
  */
-function voteOffsets(
+export function voteOffsets(
   seeds: readonly CandidateLine[],
   freeBySource: ReadonlyMap<string, readonly ObservedPeak[]>,
   maxOffset: number,
@@ -1166,7 +1179,11 @@ function voteOffsets(
  * its offsets; any other votes again over the strong lines of every J (more of them: a band may have lost its
  * strongest lines to a gap).
  */
-function widenedOffsets(ctx: AssignContext, first: OffsetVotes, auto: ReadonlyMap<number, CandidateLine>): OffsetVotes {
+export function widenedOffsets(
+  ctx: AssignContext,
+  first: OffsetVotes,
+  auto: ReadonlyMap<number, CandidateLine>,
+): OffsetVotes {
   const assigned = new Map<string, number>();
   for (const i of auto.keys()) {
     const s = ctx.peaks[i]?.source ?? '';
@@ -1198,7 +1215,7 @@ function widenedOffsets(ctx: AssignContext, first: OffsetVotes, auto: ReadonlyMa
  * How many predictions, shifted by the offset, have a peak within the tolerance; with `claimed` (sorted positions),
  * only peaks farther than `claimTol` from every claimed position count.
  */
-function countNear(
+export function countNear(
   preds: readonly { position: number }[],
   sorted: Float64Array,
   offset: number,
@@ -1219,20 +1236,20 @@ function countNear(
 }
 
 /** Whether a sorted array holds a value within tol of x. */
-function isNear(sorted: Float64Array, x: number, tol: number): boolean {
+export function isNear(sorted: Float64Array, x: number, tol: number): boolean {
   const i = lowerBound(sorted, x - tol);
   return i < sorted.length && (sorted[i] as number) <= x + tol;
 }
 
 /** Where the seeds of every band but `band` are predicted at the given offset, sorted. */
-function claimedByOthers(seeds: readonly CandidateLine[], band: string, offset: number): Float64Array {
+export function claimedByOthers(seeds: readonly CandidateLine[], band: string, offset: number): Float64Array {
   const out: number[] = [];
   for (const c of seeds) if (bandKey(c) !== band) out.push(c.position + offset);
   return Float64Array.from(out).sort();
 }
 
 /** The best offset a band's own strong predictions find among the free peaks, and how many they then match. */
-function bestBandOffset(
+export function bestBandOffset(
   strong: readonly CandidateLine[],
   free: readonly ObservedPeak[],
   maxOffset: number,
@@ -1247,19 +1264,19 @@ function bestBandOffset(
   };
 }
 
-interface ResidualStatistics {
+export interface ResidualStatistics {
   /** For a band and a source, by their numbers (AssignContext.bands, AssignContext.sources). */
   of(band: number, source: number): ResidualStat;
 }
 
-interface ResidualStat {
+export interface ResidualStat {
   readonly shift: number;
   readonly scatter: number;
   readonly sigmaFactor: number;
 }
 
 /** Residuals of one band and source: in cm⁻¹ for lines without σ, in units of σ for lines with one (and that σ). */
-interface ResidualGroup {
+export interface ResidualGroup {
   readonly r: number[];
   readonly z: number[];
   readonly sigma: number[];
@@ -1275,7 +1292,7 @@ interface ResidualGroup {
  * a band's scatter drops its noisiest lines: matching must not shrink the variance); bands with few lines take
  * the pooled scatter, and where the fit gives no finite σ the robust scatter alone.
  */
-function residualStatistics(
+export function residualStatistics(
   ctx: AssignContext,
   fit: DetailedFit,
   auto: ReadonlyMap<number, CandidateLine>,
@@ -1327,7 +1344,7 @@ function residualStatistics(
 }
 
 /** A transition of a band given by its key (`species|v′-v″`), for asking the fit the σ of its lines. */
-function transitionOfBand(band: string): Transition | undefined {
+export function transitionOfBand(band: string): Transition | undefined {
   const [species, vs] = band.split('|');
   const [upper, lower] = (vs ?? '').split('-').map(Number);
   if (species === undefined || !Number.isInteger(upper) || !Number.isInteger(lower)) return undefined;
@@ -1338,7 +1355,7 @@ function transitionOfBand(band: string): Transition | undefined {
  * The fitted automatic lines grouped by band and source (key band × sources + source): each group's median residual
  * (0 under three lines), and the residuals about it per group and pooled.
  */
-function residualGroups(
+export function residualGroups(
   ctx: AssignContext,
   fit: DetailedFit,
   auto: ReadonlyMap<number, CandidateLine>,
@@ -1378,7 +1395,7 @@ function residualGroups(
   return { shifts, groups, pooled };
 }
 
-function sameAssignments(a: ReadonlyMap<number, CandidateLine>, b: ReadonlyMap<number, CandidateLine>): boolean {
+export function sameAssignments(a: ReadonlyMap<number, CandidateLine>, b: ReadonlyMap<number, CandidateLine>): boolean {
   if (a.size !== b.size) return false;
   for (const [k, v] of a) if (b.get(k) !== v) return false;
   return true;
@@ -1391,18 +1408,18 @@ function sameAssignments(a: ReadonlyMap<number, CandidateLine>, b: ReadonlyMap<n
  */
 const BAND_RATIO_LIMIT = 20;
 
-const bandClass = (c: CandidateLine) => (c.band.upper === c.band.lower ? 'rot' : 'ir');
+export const bandClass = (c: CandidateLine) => (c.band.upper === c.band.lower ? 'rot' : 'ir');
 
 /** Key of a band's intensity scale within one source of lines: each source has its own scale. */
-const scaleKey = (bk: string, source: string) => `${bk}@${source}`;
+export const scaleKey = (bk: string, source: string) => `${bk}@${source}`;
 
 /** The intensity scale of the band with the most matched lines of the candidate's class in the same source. */
-function classScale(scale: ReadonlyMap<string, number>, c: CandidateLine, source: string): number | undefined {
+export function classScale(scale: ReadonlyMap<string, number>, c: CandidateLine, source: string): number | undefined {
   return scale.get(scaleKey(`#${bandClass(c)}`, source));
 }
 
 /** Per band and source, how far its intensity scale strays from that of the main band of its class (a ratio). */
-function strayingScales(
+export function strayingScales(
   auto: ReadonlyMap<number, CandidateLine>,
   peaks: readonly PeakInput[],
 ): Map<string, { bk: string; source: string; ratio: number }> {
@@ -1423,7 +1440,11 @@ function strayingScales(
  * Bands whose matched lines are far stronger or weaker than their predictions relative to the main band of the same
  * source, unless their positions establish them (OffsetChoice.established); the lines dropped get a note saying so.
  */
-function pruneImplausibleBands(ctx: AssignContext, offsets: OffsetVotes, auto: Map<number, CandidateLine>): void {
+export function pruneImplausibleBands(
+  ctx: AssignContext,
+  offsets: OffsetVotes,
+  auto: Map<number, CandidateLine>,
+): void {
   const bad = strayingScales(auto, ctx.peaks);
   for (const [i, c] of auto) {
     const source = ctx.peaks[i]?.source ?? '';
@@ -1437,7 +1458,7 @@ function pruneImplausibleBands(ctx: AssignContext, offsets: OffsetVotes, auto: M
   }
 }
 
-const ratioText = (r: number) => (r >= 1 ? r.toPrecision(3) : `1/${(1 / r).toPrecision(3)}`);
+export const ratioText = (r: number) => (r >= 1 ? r.toPrecision(3) : `1/${(1 / r).toPrecision(3)}`);
 
 /**
  * Isotopologues of one molecule assigned jointly: where the same transition of two isotopologues lies closer than
@@ -1446,7 +1467,7 @@ const ratioText = (r: number) => (r >= 1 ? r.toPrecision(3) : `1/${(1 / r).toPre
  * of matched peaks keeps the labelling that fits the predicted splitting and, when intensities were sent, the
  * abundance ratio (a soft constraint, ln-ratio σ 0.3), or swaps its two labels when the swap fits better.
  */
-function resolveDoublets(auto: Map<number, CandidateLine>, peaks: readonly PeakInput[]): void {
+export function resolveDoublets(auto: Map<number, CandidateLine>, peaks: readonly PeakInput[]): void {
   // Keyed by band, branch and J″ as one number (every species' line of one transition in one group).
   const groups = new Map<number, number[]>();
   for (const [i, c] of auto) {
@@ -1494,7 +1515,7 @@ const MAX_B_DEVIATION = 0.01;
  * Bands with automatic lines whose levels' fitted B_v differ from the reference library's by more than
  * MAX_B_DEVIATION (relative). Reference B_v = Σ_k Y_k1 (v + ½)^k.
  */
-function strayBands(
+export function strayBands(
   fit: DetailedFit,
   auto: ReadonlyMap<number, CandidateLine>,
   ref: AssignContext['referenceDunham'],
@@ -1524,7 +1545,7 @@ function strayBands(
 }
 
 /** The library's Dunham coefficients of each isotopologue that has them (made once per assignment). */
-function referenceDunham(species: readonly { iso: Isotopologue }[]): Map<string, Map<string, number>> {
+export function referenceDunham(species: readonly { iso: Isotopologue }[]): Map<string, Map<string, number>> {
   const ref = new Map<string, Map<string, number>>();
   for (const s of species) {
     const e = constantsFor(s.iso);
@@ -1534,7 +1555,7 @@ function referenceDunham(species: readonly { iso: Isotopologue }[]): Map<string,
 }
 
 /** Per band, the median distance between neighbouring lines of one branch (about 2B). */
-function lineSpacings(ctx: Pick<AssignContext, 'cands' | 'candBand' | 'bands'>): Map<string, number> {
+export function lineSpacings(ctx: Pick<AssignContext, 'cands' | 'candBand' | 'bands'>): Map<string, number> {
   // Per band and branch (3b + 0, 1, 2 for P, Q, R), the position of each J″: the last candidate of a J wins.
   const byBranch = new Map<number, Map<number, number>>();
   ctx.cands.forEach((c, ci) => {
@@ -1561,7 +1582,7 @@ function lineSpacings(ctx: Pick<AssignContext, 'cands' | 'candBand' | 'bands'>):
   return out;
 }
 
-function groupBy<T>(xs: readonly T[], key: (x: T) => string): Map<string, T[]> {
+export function groupBy<T>(xs: readonly T[], key: (x: T) => string): Map<string, T[]> {
   const out = new Map<string, T[]>();
   for (const x of xs) {
     const k = key(x);
@@ -1573,7 +1594,7 @@ function groupBy<T>(xs: readonly T[], key: (x: T) => string): Map<string, T[]> {
 }
 
 /** The band with the fewest automatically assigned lines. */
-function thinnestBand(auto: ReadonlyMap<number, CandidateLine>): string {
+export function thinnestBand(auto: ReadonlyMap<number, CandidateLine>): string {
   const count = new Map<string, number>();
   for (const c of auto.values()) count.set(bandKey(c), (count.get(bandKey(c)) ?? 0) + 1);
   return [...count].sort((a, b) => a[1] - b[1])[0]?.[0] ?? '';
@@ -1584,7 +1605,7 @@ function thinnestBand(auto: ReadonlyMap<number, CandidateLine>): string {
  * count: a band anchored by given lines is no coincidence, and its first automatic lines (R(4)–R(6) past given
  * J ≤ 3) are how it grows.
  */
-function pruneThinBands(
+export function pruneThinBands(
   auto: Map<number, CandidateLine>,
   min: number,
   given: readonly { readonly t: Parameters<typeof bandKey>[0] }[],
@@ -1596,7 +1617,10 @@ function pruneThinBands(
 }
 
 /** Per band, the median ratio of observed to predicted intensity over the matched lines (three or more). */
-function intensityScales(auto: ReadonlyMap<number, CandidateLine>, peaks: readonly PeakInput[]): Map<string, number> {
+export function intensityScales(
+  auto: ReadonlyMap<number, CandidateLine>,
+  peaks: readonly PeakInput[],
+): Map<string, number> {
   const ratios = new Map<string, number[]>();
   const classOf = new Map<string, string>();
   for (const [i, c] of auto) {
@@ -1622,7 +1646,7 @@ function intensityScales(auto: ReadonlyMap<number, CandidateLine>, peaks: readon
   return out;
 }
 
-function estimateCalibration(
+export function estimateCalibration(
   auto: ReadonlyMap<number, CandidateLine>,
   peaks: readonly PeakInput[],
   mainSpecies: string | undefined,
