@@ -219,7 +219,11 @@ describe('candidates: seeds, band numbers, line spacing', () => {
   it('line spacing: the median step between neighbouring J″ of one branch (real CO 1-0, P(1)–P(6), R(0)–R(5))', () => {
     const c = coFundamental(6);
     // A second band on its own: two R lines 4 apart, plus a Q line alone (no neighbour: no step).
-    c.push(cand('13C-16O', 1, 0, 'R', 0, 2100), cand('13C-16O', 1, 0, 'R', 1, 2104), cand('13C-16O', 1, 0, 'Q', 3, 2090));
+    c.push(
+      cand('13C-16O', 1, 0, 'R', 0, 2100),
+      cand('13C-16O', 1, 0, 'R', 1, 2104),
+      cand('13C-16O', 1, 0, 'Q', 3, 2090),
+    );
     // A band with a single line has no spacing.
     c.push(cand(CO, 3, 0, 'R', 0, 6354));
     const ix = candidateIndex(c, []);
@@ -581,14 +585,46 @@ describe('stray bands: fitted B_v against the reference B_v = Σ Y_k1 (v + ½)^k
   it('the published B_0, B_1 are no stray; 1.1 % off is, 0.9 % off is not', () => {
     const b0 = 57635.968019 / 29979.2458;
     const b1 = 57111.24312 / 29979.2458;
-    expect(strayBands(fitWith([{ v: 0, B: b0 }, { v: 1, B: b1 }]), auto, ref).size).toBe(0);
-    expect([...strayBands(fitWith([{ v: 0, B: b0 }, { v: 1, B: b1 * 1.011 }]), auto, ref)]).toEqual([
-      '12C-16O|1-0',
-    ]);
-    expect([...strayBands(fitWith([{ v: 0, B: b0 * 0.989 }, { v: 1, B: b1 }]), auto, ref)]).toEqual([
-      '12C-16O|1-0',
-    ]);
-    expect(strayBands(fitWith([{ v: 0, B: b0 * 1.009 }, { v: 1, B: b1 * 0.991 }]), auto, ref).size).toBe(0);
+    expect(
+      strayBands(
+        fitWith([
+          { v: 0, B: b0 },
+          { v: 1, B: b1 },
+        ]),
+        auto,
+        ref,
+      ).size,
+    ).toBe(0);
+    expect([
+      ...strayBands(
+        fitWith([
+          { v: 0, B: b0 },
+          { v: 1, B: b1 * 1.011 },
+        ]),
+        auto,
+        ref,
+      ),
+    ]).toEqual(['12C-16O|1-0']);
+    expect([
+      ...strayBands(
+        fitWith([
+          { v: 0, B: b0 * 0.989 },
+          { v: 1, B: b1 },
+        ]),
+        auto,
+        ref,
+      ),
+    ]).toEqual(['12C-16O|1-0']);
+    expect(
+      strayBands(
+        fitWith([
+          { v: 0, B: b0 * 1.009 },
+          { v: 1, B: b1 * 0.991 },
+        ]),
+        auto,
+        ref,
+      ).size,
+    ).toBe(0);
     // Another species' level, or a species without reference constants, is not compared.
     expect(strayBands(fitWith([{ v: 1, B: 1.5, species: '13C-16O' }]), auto, ref).size).toBe(0);
     expect(strayBands(fitWith([{ v: 1, B: 1.5 }]), auto, new Map()).size).toBe(0);
@@ -662,10 +698,10 @@ describe('calibration: offset and scale of the wavenumber axis', () => {
     expect(three?.scale).toBeUndefined();
     const w = [1, 0.25, 1];
     const y = [0.01, 0.01, 0.012];
-    const mean = (w[0] * y[0] + w[1] * y[1] + w[2] * y[2]) / 2.25;
+    const mean = (1 * 0.01 + 0.25 * 0.01 + 1 * 0.012) / 2.25;
     expect(three?.offset.value).toBeCloseTo(mean, 12);
     const chi = w.reduce((s, wi, i) => s + wi * 1e6 * ((y[i] as number) - mean) ** 2, 0);
-    expect(three?.offset.uncertainty).toBeCloseTo(Math.sqrt((chi / 2) * (1 / (2.25e6))), 12);
+    expect(three?.offset.uncertainty).toBeCloseTo(Math.sqrt((chi / 2) * (1 / 2.25e6)), 12);
     // Span 19 cm⁻¹ < 1 % of the centre (≈ 20): no scale even with 4 points.
     const narrow = [2000, 2005, 2012, 2019].map((r) => ({ reference: r, observed: r + 0.01 }));
     expect(calibrationFromPoints(narrow, 'n')?.scale).toBeUndefined();
@@ -710,8 +746,7 @@ describe('ambiguous-offset warnings', () => {
     expect(ambiguousOffsetWarnings(votes)).toEqual([
       {
         code: 'OFFSET_AMBIGUOUS',
-        message:
-          'the instrument offset is ambiguous: a second value explains nearly as many lines as 0.123 cm-1',
+        message: 'the instrument offset is ambiguous: a second value explains nearly as many lines as 0.123 cm-1',
       },
       {
         code: 'OFFSET_AMBIGUOUS',
