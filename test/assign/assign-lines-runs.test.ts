@@ -156,6 +156,37 @@ describe('refusals when nothing can be assigned (FIT_NO_ASSIGNED_LINES)', () => 
     expect(expectPublishedLabels(r, lines)).toBe(lines.length);
     expect(Math.abs((r.bands[0]?.offsets?.[0]?.offset ?? 0) - 0.8)).toBeLessThan(1e-3);
   });
+  it('two real lines among spurious ones: the best band finds only 2 of its 9 strong lines at any offset', () => {
+    // Peaks on 1-0 R(0) and R(1), and two midway between P(5)/P(6) and R(5)/R(6) (≈ 1.9 cm⁻¹ from any line, beyond
+    // even the 1.7 cm⁻¹ = 0.45 × 2B searched past maxOffset).
+    const at = (b: string, j: number) => band('1-0', 10).find((l) => l.branch === b && l.j === j)?.position as number;
+    const e = refusal(() =>
+      assignAndFit(
+        [at('R', 0), at('R', 1), (at('P', 5) + at('P', 6)) / 2, (at('R', 5) + at('R', 6)) / 2].map((position) => ({
+          position,
+        })),
+        species,
+        masses,
+      ),
+    );
+    expect(e.message).toBe(
+      'nothing matches the declared species 12C-16O: its best band in the window, 12C-16O 1-0, finds only 2 of its 9 strongest predicted lines at any offset within ±0.5 cm-1, and a band needs 4',
+    );
+    expect(e.details).toEqual({ species: CO });
+  });
+
+  it('lines where CO has only weak lines (1850 cm⁻¹, the 1-0 P branch near J″ = 75): no strong line there', () => {
+    const e = refusal(() =>
+      assignAndFit(
+        [1850, 1851.3, 1852.7, 1854.1].map((position) => ({ position })),
+        species,
+        masses,
+      ),
+    );
+    expect(e.message).toBe(
+      'nothing matches the declared species 12C-16O: none of its bands has a strong line predicted where the lines lie',
+    );
+  });
 });
 
 describe('real CO lines assigned back to their published labels', () => {
@@ -298,6 +329,77 @@ describe('warnings and notes of a run', () => {
       `competed with line 3 for 12C-16O 1-0 ${copy.branch}(${copy.j}); residual and intensity decided for line 3`,
     );
     expect(r.notes.has(18)).toBe(false);
+  });
+
+  it('a line 0.012 cm⁻¹ off its place (a blend): withdrawn with a note naming its label, left unexplained', () => {
+    const { species, masses } = setup('12C16O');
+    const lines = band('1-0', 15);
+    const k = lines.findIndex((l) => l.branch === 'R' && l.j === 7);
+    for (const sigma of [undefined, 0.001]) {
+      const r = assignAndFit(
+        lines.map((l, i) => ({
+          position: l.position + (i === k ? 0.012 : 0),
+          ...(sigma !== undefined ? { uncertainty: sigma } : {}),
+        })),
+        species,
+        masses,
+      );
+      expect(expectPublishedLabels(r, lines)).toBe(30);
+      expect(r.unexplained).toEqual([k]);
+      expect(r.notes.get(k)?.startsWith('automatic assignment to 12C-16O 1-0 R(7) withdrawn: ')).toBe(true);
+      expect(r.warnings).toEqual([
+        {
+          code: 'LINES_UNEXPLAINED',
+          message: '1 line(s) are explained by no band of 12C-16O; they stay unassigned and out of the fit',
+          lines: [k],
+        },
+      ]);
+    }
+  });
+
+  it('an overtone 0.8 cm⁻¹ off (maxOffset 0.5) and a band with only given lines: BAND_NOT_FOUND says which', () => {
+    const { species, masses } = setup('12C16O');
+    const fundamental = band('1-0', 12);
+    const overtone = band('2-0', 12);
+    const r = assignAndFit(
+      [...fundamental.map((l) => ({ position: l.position })), ...overtone.map((l) => ({ position: l.position + 0.8 }))],
+      species,
+      masses,
+    );
+    expect(expectPublishedLabels(r, fundamental)).toBe(25);
+    expect(r.unexplained).toEqual(overtone.map((_, k) => 25 + k));
+    const w = r.warnings.find((x) => x.message.startsWith('12C-16O band 2-0'));
+    expect(w?.code).toBe('BAND_NOT_FOUND');
+    expect(w?.message).toMatch(
+      /^12C-16O band 2-0: 9 strong lines are predicted in the window but none was matched; its best offset is \+0\.80\d cm-1, which matches 9 of them \(beyond the ±0\.5 cm-1 searched: send a larger "maxOffset"\)$/,
+    );
+    // Two given 2-0 lines (P(4), R(5)) and no free line there: only 2 matched, no best offset to tell.
+    const at = (br: 'P' | 'R', j: number) => overtone.find((l) => l.branch === br && l.j === j)?.position as number;
+    const g = assignAndFit(
+      [
+        ...fundamental.map((l) => ({ position: l.position })),
+        ...(
+          [
+            ['P', 4],
+            ['R', 5],
+          ] as const
+        ).map(([branch, j]) => ({
+          position: at(branch, j),
+          assignment: { species: CO, band: { upper: 2, lower: 0 }, branch, j, source: 'given' as const },
+        })),
+      ],
+      species,
+      masses,
+    );
+    expect(g.warnings).toEqual([
+      {
+        code: 'BAND_NOT_FOUND',
+        message:
+          '12C-16O band 2-0: 9 strong lines are predicted in the window but only 2 were matched (the band is absent, too weak, or shifted further)',
+      },
+    ]);
+    expect(g.bands.find((b) => b.band === '2-0')).toMatchObject({ matched: 2 });
+    expect(g.bands.find((b) => b.band === '2-0')?.bestOffset).toBeUndefined();
   });
 
   it('CO as its natural mixture with only 12C16O lines: the rare isotopologues named as not found', () => {
