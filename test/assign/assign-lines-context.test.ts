@@ -1,0 +1,578 @@
+import { describe, expect, it } from 'vitest';
+import {
+  type AssignContext,
+  bandReach,
+  beyondWindow,
+  type CandidateRef,
+  explained,
+  fittedPrediction,
+  type LoopState,
+  lineInputs,
+  noteCompetitions,
+  type OffsetVotes,
+  type PeakInput,
+  pairKey,
+  prepareAssignment,
+  pruneImplausibleBands,
+  type ResidualStatistics,
+  referenceDunham,
+  referencePrediction,
+  residualStatistics,
+  tryFit,
+  widenSeeds,
+  withdrawRejected,
+  withdrawStrayBands,
+  withinReach,
+} from '../../src/assign/assign-lines.js';
+import type { CandidateLine } from '../../src/assign/candidates.js';
+import type { DetailedFit } from '../../src/fit/fit-lines.js';
+import { parseSpecies } from '../../src/species/parse.js';
+import { reducedMass } from '../../src/species/reduced-mass.js';
+import { CO_DATABASE, type CoDatabaseLine } from '../helpers/co-database.js';
+
+// The stages of the automatic assignment that read its context (src/assign/assign-lines.ts), called directly on a
+// context prepared from real 12C16O lines (test/fixtures/co-database-lines: HITRAN2020, Gordon et al., JQSRT 277,
+// 107949 (2022)), with offsets, residual statistics and fits made by hand where the stage only reads them: the
+// expected tolerances are the formulas of SCIENCE.md §6 worked out here. Everything runs inside `it`.
+
+const CO = '12C-16O';
+const BK = '12C-16O|1-0';
+
+const band = (b: string, jMax: number, jMin = 0) =>
+  CO_DATABASE.lines.filter((l) => l.band === b && l.j <= jMax && l.j >= jMin);
+
+function coContext(peaks: readonly PeakInput[], options = {}): AssignContext {
+  const iso = parseSpecies('12C16O');
+  return prepareAssignment(peaks, [{ iso, abundance: 1 }], new Map([[iso.formula, reducedMass(iso)]]), options);
+}
+
+const fundamental = (jMax = 10, sigma?: number) =>
+  coContext(
+    band('1-0', jMax).map((l) => ({ position: l.position, ...(sigma !== undefined ? { uncertainty: sigma } : {}) })),
+  );
+
+/** The candidate of a transition in the context, as the stages take it. */
+function ref(ctx: AssignContext, upper: number, lower: number, branch: 'P' | 'R', j: number): CandidateRef {
+  const ci = ctx.cands.findIndex(
+    (c) => c.band.upper === upper && c.band.lower === lower && c.branch === branch && c.j === j,
+  );
+  if (ci < 0) throw new Error('no such candidate');
+  const b = ctx.candBand[ci] as number;
+  return { c: ctx.cands[ci] as CandidateLine, ci, band: b, bk: ctx.bands[b] as string };
+}
+
+/** Offsets fixed by hand: every band and source the same. */
+const fixed = (offset: number, tolerance: number, established = false): OffsetVotes => ({
+  bySource: new Map(),
+  perBand: new Map(),
+  of: () => ({ offset, tolerance, own: false, ...(established ? { established } : {}) }),
+});
+
+const stats = (shift: number, scatter: number, sigmaFactor: number): ResidualStatistics => ({
+  of: () => ({ shift, scatter, sigmaFactor }),
+});
+
+/** The fixture's lines assigned to their published labels among the context's candidates. */
+function published(ctx: AssignContext, lines: readonly CoDatabaseLine[]): Map<number, CandidateLine> {
+  const auto = new Map<number, CandidateLine>();
+  lines.forEach((l, i) => {
+    const [u, lo] = l.band.split('-').map(Number) as [number, number];
+    auto.set(i, ref(ctx, u, lo, l.branch, l.j).c);
+  });
+  return auto;
+}
+
+describe('reference predictions (bands not yet fitted)', () => {
+  it('the reference position plus the offset; tolerance × (1 + (J″/20)²); seeds reach J″ ≤ 4 + 3', () => {
+    const ctx = fundamental();
+    const o = fixed(0.05, 0.1);
+    const r2 = ref(ctx, 1, 0, 'R', 2);
+    const p = referencePrediction(ctx, o, r2, undefined, '');
+    expect(p?.position).toBe(r2.c.position + 0.05);
+    expect(p?.tolerance).toBeCloseTo(0.101, 14); // 0.1 × (1 + 0.01)
+    expect(p?.tier).toBe(1);
+    // R(7): 7 ≤ 4 + 3, tolerance 0.1 × (1 + 0.35²) = 0.11225; R(8) and P(8) beyond.
+    expect(referencePrediction(ctx, o, ref(ctx, 1, 0, 'R', 7), undefined, '')?.tolerance).toBeCloseTo(0.11225, 14);
+    expect(referencePrediction(ctx, o, ref(ctx, 1, 0, 'R', 8), undefined, '')).toBeUndefined();
+    expect(referencePrediction(ctx, o, ref(ctx, 1, 0, 'P', 8), undefined, '')).toBeUndefined();
+    // With reach 5 the limit is 8.
+    expect(referencePrediction(ctx, o, ref(ctx, 1, 0, 'R', 8), 5, '')?.tolerance).toBeCloseTo(0.1 * (1 + 0.16), 14);
+    expect(referencePrediction(ctx, o, ref(ctx, 1, 0, 'R', 9), 5, '')).toBeUndefined();
+    // A candidate that may not seed is never placed from the reference.
+    ctx.seedable[r2.ci] = false;
+    expect(referencePrediction(ctx, o, r2, undefined, '')).toBeUndefined();
+  });
+
+  it('gap pass: any J″, past the seeds with the vote tolerance itself, refused above a fifth of the line spacing', () => {
+    const ctx = fundamental(25);
+    ctx.wide = true;
+    const spacing = ctx.spacing.get(BK) as number;
+    // About 2B = 3.84 cm⁻¹ (B₀ = 1.9225 cm⁻¹, fixture SOURCE.md).
+    expect(spacing).toBeGreaterThan(3.7);
+    expect(spacing).toBeLessThan(3.95);
+    const r20 = ref(ctx, 1, 0, 'R', 20);
+    expect(referencePrediction(ctx, fixed(0, 0.1), r20, undefined, '')?.tolerance).toBe(0.1);
+    expect(referencePrediction(ctx, fixed(0, 0.2 * spacing), r20, undefined, '')?.tolerance).toBe(0.2 * spacing);
+    expect(referencePrediction(ctx, fixed(0, 0.2 * spacing * 1.001), r20, undefined, '')).toBeUndefined();
+    // J″ = 7 is still a seed (≤ 4 + 3): widened by (1 + (7/20)²), and not held to the spacing.
+    const r7 = referencePrediction(ctx, fixed(0, 0.8), ref(ctx, 1, 0, 'R', 7), undefined, '');
+    expect(r7?.tolerance).toBeCloseTo(0.8 * 1.1225, 14);
+    const r8 = referencePrediction(ctx, fixed(0, 0.1), ref(ctx, 1, 0, 'R', 8), undefined, '');
+    expect(r8?.tolerance).toBe(0.1);
+  });
+});
+
+describe('fitted predictions (a band the fit has reached)', () => {
+  it('inside the reach: the fitted value plus the band shift, tolerance √((5σ_model + 1e-6)² + (5·scatter)²)', () => {
+    const ctx = fundamental();
+    const r5 = ref(ctx, 1, 0, 'R', 5);
+    const fitted = { value: r5.c.position + 0.01, variance: 1e-6 };
+    const p = fittedPrediction(ctx, fixed(0.05, 0.1), stats(0.001, 0.002, 1.5), r5, fitted, 10, { name: '', n: 0 });
+    const model = 5 * 1e-3 + 1e-6;
+    expect(p?.position).toBe(fitted.value + 0.001);
+    expect(p?.tolerance).toBeCloseTo(Math.hypot(model, 0.01), 10);
+    expect(p?.withSigma?.model).toBeCloseTo(model, 10);
+    expect(p?.withSigma?.perSigma).toBe(7.5);
+    expect(p?.tier).toBeUndefined();
+  });
+
+  it('past the reach: the distance to the reference prediction with its offset widens the tolerance', () => {
+    const ctx = fundamental(25);
+    const r12 = ref(ctx, 1, 0, 'R', 12);
+    const fitted = { value: r12.c.position + 0.01, variance: 1e-6 };
+    const p = fittedPrediction(ctx, fixed(0.05, 0.1), stats(0.001, 0.002, 1.5), r12, fitted, 10, { name: '', n: 0 });
+    // second = |0.01 + 0.001 − 0.05| = 0.039.
+    const model = Math.hypot(5e-3, 0.039) + 1e-6;
+    expect(p?.withSigma?.model).toBeCloseTo(model, 10);
+    expect(p?.tolerance).toBeCloseTo(Math.hypot(model, 0.01), 10);
+    // At the reach itself (J″ = r) no second opinion.
+    const at = fittedPrediction(ctx, fixed(0.05, 0.1), stats(0.001, 0.002, 1.5), r12, fitted, 12, { name: '', n: 0 });
+    expect(at?.withSigma?.model).toBeCloseTo(5e-3 + 1e-6, 10);
+  });
+
+  it('more than 3 past the reach only while the model is as sharp as twice the noise (ten times in the gap pass)', () => {
+    const ctx = fundamental(25);
+    const r14 = ref(ctx, 1, 0, 'R', 14);
+    const src = { name: '', n: 0 };
+    const at = (sd: number, r = 10) =>
+      fittedPrediction(
+        ctx,
+        fixed(0.0, 0.1),
+        stats(0, 0.002, 1),
+        r14,
+        { value: r14.c.position, variance: sd * sd },
+        r,
+        src,
+      );
+    // noise = scatter 0.002: σ_model 0.0039 < 0.004 passes, 0.0041 does not.
+    expect(at(0.0039)).toBeDefined();
+    expect(at(0.0041)).toBeUndefined();
+    // J″ = 13 = r + 3 is not held to it.
+    const r13 = ref(ctx, 1, 0, 'R', 13);
+    expect(
+      fittedPrediction(
+        ctx,
+        fixed(0, 0.1),
+        stats(0, 0.002, 1),
+        r13,
+        { value: r13.c.position, variance: 0.0041 ** 2 },
+        10,
+        src,
+      ),
+    ).toBeDefined();
+    // Beyond max(3, ⌊r/2⌋) past the reach (J″ 16 for r = 10): none, except in the gap pass.
+    const r16 = ref(ctx, 1, 0, 'R', 16);
+    const f16 = { value: r16.c.position, variance: 1e-8 };
+    expect(fittedPrediction(ctx, fixed(0, 0.1), stats(0, 0.002, 1), r16, f16, 10, src)).toBeUndefined();
+    ctx.wide = true;
+    expect(at(0.0041)).toBeDefined();
+    expect(at(0.0199)).toBeDefined();
+    expect(at(0.0201)).toBeUndefined();
+    expect(fittedPrediction(ctx, fixed(0, 0.1), stats(0, 0.002, 1), r16, f16, 10, src)).toBeDefined();
+  });
+
+  it('the noise is the larger of the scatter and the σ factor × the typical σ of the list; none without either', () => {
+    // Every line σ = 0.01: noise = max(0.002, 1.5 × 0.01) = 0.015, so σ_model up to 0.03 passes.
+    const ctx = fundamental(25, 0.01);
+    expect(ctx.typicalSigma).toBe(0.01);
+    const r14 = ref(ctx, 1, 0, 'R', 14);
+    const src = { name: '', n: 0 };
+    const at = (sd: number, st = stats(0, 0.002, 1.5)) =>
+      fittedPrediction(ctx, fixed(0, 0.1), st, r14, { value: r14.c.position, variance: sd * sd }, 10, src);
+    expect(at(0.029)).toBeDefined();
+    expect(at(0.031)).toBeUndefined();
+    // Without σ and with no scatter the model is not held back (only by the spacing).
+    const bare = fundamental(25);
+    const b14 = ref(bare, 1, 0, 'R', 14);
+    expect(
+      fittedPrediction(
+        bare,
+        fixed(0, 0.1),
+        stats(0, 0, 1),
+        b14,
+        { value: b14.c.position, variance: 0.01 ** 2 },
+        10,
+        src,
+      ),
+    ).toBeDefined();
+  });
+
+  it('a tolerance above a quarter of the line spacing tells nothing; a perfect model keeps a floor of 1e-4 spacing', () => {
+    const ctx = fundamental();
+    const spacing = ctx.spacing.get(BK) as number;
+    const r5 = ref(ctx, 1, 0, 'R', 5);
+    const src = { name: '', n: 0 };
+    const withSd = (sd: number) =>
+      fittedPrediction(ctx, fixed(0, 0.1), stats(0, 0, 1), r5, { value: r5.c.position, variance: sd * sd }, 10, src);
+    // 5 σ + 1e-6 against 0.25 × spacing.
+    expect(withSd((0.25 * spacing - 1e-6) / 5 - 1e-9)).toBeDefined();
+    expect(withSd((0.25 * spacing - 1e-6) / 5 + 1e-9)).toBeUndefined();
+    const perfect = withSd(0);
+    expect(perfect?.tolerance).toBeCloseTo(1e-4 * spacing, 15);
+    expect(perfect?.withSigma?.model).toBe(1e-6);
+  });
+});
+
+describe('which candidates a round looks at', () => {
+  it('reach per band: the highest J″ assigned, automatic or given; −1 for a band without lines', () => {
+    const lines = band('1-0', 10);
+    const ctx = fundamental();
+    const auto = new Map([
+      [0, ref(ctx, 1, 0, 'R', 6).c],
+      [1, ref(ctx, 1, 0, 'P', 3).c],
+    ]);
+    const reach = bandReach(ctx, auto);
+    const b10 = ref(ctx, 1, 0, 'R', 0).band;
+    expect(reach[b10]).toBe(6);
+    expect([...reach].filter((r, b) => b !== b10 && r !== -1)).toEqual([]);
+    // A given P(9) of 1-0 raises it to 9.
+    const withGiven = coContext(
+      lines.map((l) => ({
+        position: l.position,
+        ...(l.branch === 'P' && l.j === 9
+          ? {
+              assignment: {
+                species: CO,
+                band: { upper: 1, lower: 0 },
+                branch: 'P' as const,
+                j: 9,
+                source: 'given' as const,
+              },
+            }
+          : {}),
+      })),
+    );
+    expect(bandReach(withGiven, new Map())[ref(withGiven, 1, 0, 'R', 0).band]).toBe(9);
+    expect(bandReach(withGiven, auto)[ref(withGiven, 1, 0, 'R', 0).band]).toBe(9);
+  });
+
+  it('within reach: per band the candidates up to r + max(3, ⌊r/2⌋) (from J″ 4 when unfitted), every one in the gap pass', () => {
+    const ctx = fundamental();
+    const reach = new Int32Array(ctx.bands.length).fill(-1);
+    const b10 = ref(ctx, 1, 0, 'R', 0).band;
+    reach[b10] = 10;
+    const limit = (b: number) => (b === b10 ? 15 : 7);
+    const expected = ctx.cands.flatMap((c, ci) => (c.j <= limit(ctx.candBand[ci] as number) ? [ci] : []));
+    expect([...withinReach(ctx, reach)]).toEqual(expected);
+    ctx.wide = true;
+    expect([...withinReach(ctx, reach)]).toEqual(ctx.cands.map((_, ci) => ci));
+  });
+});
+
+describe('judging lines the fit rejected', () => {
+  const predicting = (variance: number | undefined) =>
+    ({ predict: () => (variance === undefined ? undefined : { value: 0, variance }) }) as unknown as DetailedFit;
+
+  it('explained when |residual − shift| ≤ √((5σ_model)² + (5·scatter)²), or 5·factor·σ for a line with σ', () => {
+    const ctx = fundamental();
+    const c = ref(ctx, 1, 0, 'R', 2).c;
+    const st = stats(0.001, 0.002, 1.5);
+    const tol = Math.hypot(5e-3, 0.01);
+    const ex = (residual: number | undefined, cx = ctx, fit = predicting(1e-6)) =>
+      explained(cx, fit, st, c, { index: 3, ...(residual !== undefined ? { residual } : {}) });
+    expect(ex(0.001 + tol * 0.999)).toBe(true);
+    expect(ex(0.001 - tol * 0.999)).toBe(true);
+    expect(ex(0.001 + tol * 1.001)).toBe(false);
+    expect(ex(0.001 - tol * 1.001)).toBe(false);
+    expect(ex(undefined)).toBe(false);
+    expect(ex(0.001, ctx, predicting(undefined))).toBe(false);
+    // Lines with σ = 0.004: tolerance √(0.005² + (5 × 1.5 × 0.004)²) = √(0.005² + 0.03²).
+    const withSigma = fundamental(10, 0.004);
+    const ts = Math.hypot(5e-3, 0.03);
+    expect(ex(0.001 + ts * 0.999, withSigma)).toBe(true);
+    expect(ex(0.001 + ts * 1.001, withSigma)).toBe(false);
+  });
+
+  it('a perfect model keeps lines within 1e-4 of the line spacing (noise-free database positions)', () => {
+    const ctx = fundamental();
+    const c = ref(ctx, 1, 0, 'R', 2).c;
+    const floor = 1e-4 * (ctx.spacing.get(BK) as number);
+    const ex = (residual: number) => explained(ctx, predicting(0), stats(0, 0, 1), c, { index: 3, residual });
+    expect(ex(floor * 0.99)).toBe(true);
+    expect(ex(floor * 1.01)).toBe(false);
+  });
+
+  it('withdrawRejected: rejected and unexplained lines go with a note and a ban; explained or fitted ones stay', () => {
+    const ctx = fundamental();
+    const lines = band('1-0', 10);
+    const next = published(ctx, lines);
+    const fit = {
+      result: {
+        lines: [
+          { index: 0, status: 'rejected', residual: 0.5, reason: 'studentised residual 9.0 exceeds 4.00' },
+          { index: 1, status: 'rejected', residual: 0.5 },
+          { index: 2, status: 'rejected', residual: 1e-9 },
+          { index: 3, status: 'fitted', residual: 0.5 },
+        ],
+        levels: [],
+      },
+      predict: () => ({ value: 0, variance: 1e-10 }),
+      lineSigma: () => Number.NaN,
+    } as unknown as DetailedFit;
+    const banned: LoopState['banned'] = new Map();
+    const c0 = next.get(0) as CandidateLine;
+    const c1 = next.get(1) as CandidateLine;
+    expect(withdrawRejected(ctx, fit, next, banned, 7)).toBe(2);
+    expect(next.has(0)).toBe(false);
+    expect(next.has(1)).toBe(false);
+    expect(next.has(2)).toBe(true);
+    expect(next.has(3)).toBe(true);
+    const l0 = lines[0] as CoDatabaseLine;
+    expect(ctx.notes.get(0)).toBe(
+      `automatic assignment to 12C-16O 1-0 ${l0.branch}(${l0.j}) withdrawn: studentised residual 9.0 exceeds 4.00`,
+    );
+    const l1 = lines[1] as CoDatabaseLine;
+    expect(ctx.notes.get(1)).toBe(
+      `automatic assignment to 12C-16O 1-0 ${l1.branch}(${l1.j}) withdrawn: rejected by the fit`,
+    );
+    expect(banned.get(pairKey(ctx, 0, c0))).toEqual({ at: 7, count: 1 });
+    // Withdrawn again later: the count grows.
+    next.set(1, c1);
+    withdrawRejected(ctx, fit, next, banned, 9);
+    expect(banned.get(pairKey(ctx, 1, c1))).toEqual({ at: 9, count: 2 });
+    expect(pairKey(ctx, 1, c1)).toBe(ctx.cands.length + ctx.cands.indexOf(c1));
+  });
+
+  it('withdrawStrayBands: a band whose fitted B_v is far from the reference loses every automatic line for good', () => {
+    const ctx = fundamental();
+    const lines = band('1-0', 10);
+    const next = published(ctx, lines);
+    const far = {
+      result: { levels: [{ species: CO, v: 0, B: { value: 2.5 } }] },
+    } as unknown as DetailedFit;
+    const banned: LoopState['banned'] = new Map();
+    const c4 = next.get(4) as CandidateLine;
+    expect(withdrawStrayBands(ctx, far, next, banned, 2)).toBe(21);
+    expect(next.size).toBe(0);
+    expect(banned.get(pairKey(ctx, 4, c4))).toEqual({ at: 2, count: 3 });
+    const l4 = lines[4] as CoDatabaseLine;
+    expect(ctx.notes.get(4)).toBe(
+      `automatic assignment to 12C-16O 1-0 ${l4.branch}(${l4.j}) withdrawn: its band's fitted constants are far from the reference ones (chance coincidences)`,
+    );
+    // B_0 as published (57 635.968019 MHz, Gendriesch et al. 2009): nothing withdrawn.
+    const good = {
+      result: { levels: [{ species: CO, v: 0, B: { value: 57635.968019 / 29979.2458 } }] },
+    } as unknown as DetailedFit;
+    const again = published(ctx, lines);
+    expect(withdrawStrayBands(ctx, good, again, new Map(), 2)).toBe(0);
+    expect(again.size).toBe(21);
+  });
+});
+
+describe('the second pass and the notes', () => {
+  it('widenSeeds: with 8 or more lines left, weak candidates of bands sharing a fitted level may seed', () => {
+    const ctx = fundamental(); // 21 free lines
+    const fitted = { result: { levels: [{ species: CO, v: 1 }] } } as unknown as DetailedFit;
+    const hot = ref(ctx, 2, 1, 'R', 3);
+    const fundamentalR3 = ref(ctx, 1, 0, 'R', 3);
+    expect(ctx.seedable[hot.ci]).toBe(false);
+    // 13 of 21 assigned: 8 left.
+    const auto = new Map([...Array(13).keys()].map((i) => [i, fundamentalR3.c]));
+    expect(widenSeeds(ctx, auto, fitted)).toBe(true);
+    expect(ctx.seedable[hot.ci]).toBe(true);
+    // A band with neither level fitted (3-2) stays out.
+    const ctx2 = fundamental();
+    const far = ctx2.cands.findIndex((c) => c.band.upper === 3 && c.band.lower === 2);
+    if (far >= 0) {
+      widenSeeds(ctx2, new Map(), fitted);
+      expect(ctx2.seedable[far]).toBe(false);
+    }
+    // 14 assigned, 7 left: nothing widened.
+    const ctx3 = fundamental();
+    const auto14 = new Map([...Array(14).keys()].map((i) => [i, fundamentalR3.c]));
+    expect(widenSeeds(ctx3, auto14, fitted)).toBe(false);
+    expect(ctx3.seedable[ref(ctx3, 2, 1, 'R', 3).ci]).toBe(false);
+    // The upper level counts too: v = 2 fitted lets 2-1 in.
+    const ctx4 = fundamental();
+    const upper = { result: { levels: [{ species: CO, v: 2 }] } } as unknown as DetailedFit;
+    expect(widenSeeds(ctx4, new Map(), upper)).toBe(true);
+    expect(ctx4.seedable[ref(ctx4, 2, 1, 'R', 3).ci]).toBe(true);
+    // Another species' level does not.
+    const ctx5 = fundamental();
+    const other = { result: { levels: [{ species: '13C-16O', v: 1 }] } } as unknown as DetailedFit;
+    expect(widenSeeds(ctx5, new Map(), other)).toBe(false);
+  });
+
+  it('noteCompetitions: an unassigned loser gets a note naming the winner and its label', () => {
+    const ctx = fundamental();
+    const c = ref(ctx, 1, 0, 'R', 2).c;
+    const state = {
+      auto: new Map([[3, c]]),
+      competitions: [
+        { peak: 5, winner: 3, prediction: 'x' },
+        { peak: 3, winner: 5, prediction: 'y' },
+        { peak: 6, winner: 7, prediction: 'z' },
+      ],
+    } as unknown as LoopState;
+    noteCompetitions(ctx, state);
+    expect([...ctx.notes]).toEqual([
+      [5, 'competed with line 3 for 12C-16O 1-0 R(2); residual and intensity decided for line 3'],
+    ]);
+  });
+
+  it('beyondWindow: the offset found past maxOffset (up to 4× it, under 0.45 × spacing) and a maxOffset reaching it', () => {
+    const lines = band('1-0', 10);
+    const at = (maxOffset: number, minLinesPerBand = 4) => {
+      const ctx = coContext(
+        lines.map((l) => ({ position: l.position + 0.8 })),
+        { maxOffset, minLinesPerBand },
+      );
+      const strong = ctx.cands.filter(
+        (c, i) => ctx.seedable[i] && c.j <= 4 && c.band.upper === 1 && c.band.lower === 0,
+      );
+      return { ctx, strong, r: beyondWindow(ctx, BK, strong) };
+    };
+    const { r, strong } = at(0.5);
+    expect(strong).toHaveLength(9);
+    expect(r?.matches).toBe(9);
+    expect(Math.abs((r?.offset ?? 0) - 0.8)).toBeLessThan(1e-3);
+    expect(r?.reach).toBe(0.9);
+    // Found within maxOffset: nothing to suggest.
+    expect(at(0.9).r).toBeUndefined();
+    // maxOffset 0.3: 4 × 0.3 = 1.2 reaches 0.8; maxOffset 0.19: 0.76 does not.
+    expect(at(0.3).r?.reach).toBe(0.9);
+    expect(at(0.19).r).toBeUndefined();
+    // maxOffset 2: 0.45 × spacing (≈ 1.7) is below it: no wider search.
+    expect(at(2).r).toBeUndefined();
+    // More lines needed than found.
+    expect(at(0.5, 10).r).toBeUndefined();
+    expect(at(0.5, 9).r?.matches).toBe(9);
+  });
+});
+
+describe('fits of a round and their residual statistics', () => {
+  it('tryFit: B and D only below 30 assigned lines; undefined when nothing is assigned', () => {
+    const lines = band('1-0', 14); // 29 lines
+    const ctx = coContext(lines.map((l) => ({ position: l.position })));
+    const auto = published(ctx, lines);
+    const fit = tryFit(ctx, lineInputs(ctx, auto));
+    const v0 = fit?.result.levels.find((l) => l.v === 0) as unknown as Record<string, unknown>;
+    expect(v0?.B).toBeDefined();
+    expect(v0?.H).toBeUndefined();
+    expect(tryFit(ctx, lineInputs(ctx, new Map()))).toBeUndefined();
+    // The order cap of the options is kept: maxCentrifugalOrder 1 fits B only.
+    const bOnly = coContext(
+      lines.map((l) => ({ position: l.position })),
+      { fit: { maxCentrifugalOrder: 1 } },
+    );
+    const f1 = tryFit(bOnly, lineInputs(bOnly, published(bOnly, lines)));
+    expect((f1?.result.levels[0] as unknown as Record<string, unknown>)?.D).toBeUndefined();
+  });
+
+  it('residual statistics of a band without σ: median shift, scatter ≥ the robust σ of its residuals, factor 1', () => {
+    const lines = band('1-0', 12); // 25 lines
+    const ctx = coContext(lines.map((l) => ({ position: l.position })));
+    const auto = published(ctx, lines);
+    const fit = tryFit(ctx, lineInputs(ctx, auto)) as DetailedFit;
+    const r = fit.result.lines.filter((l) => l.status === 'fitted').map((l) => l.residual as number);
+    expect(r.length).toBeGreaterThanOrEqual(8);
+    const med = (xs: number[]) => {
+      const s = [...xs].sort((a, b) => a - b);
+      const m = s.length >> 1;
+      return s.length % 2 ? (s[m] as number) : ((s[m - 1] as number) + (s[m] as number)) / 2;
+    };
+    const shift = med(r);
+    const robust = 1.4826 * med(r.map((x) => Math.abs(x - shift - med(r.map((y) => y - shift)))));
+    const b10 = ref(ctx, 1, 0, 'R', 0).band;
+    const st = residualStatistics(ctx, fit, auto).of(b10, 0);
+    expect(st.shift).toBeCloseTo(shift, 15);
+    const lineSigma = fit.lineSigma({ species: CO, band: { upper: 1, lower: 0 }, branch: 'R', j: 0 }, {});
+    expect(st.scatter).toBeCloseTo(
+      Number.isFinite(lineSigma) && lineSigma > 0 ? Math.max(lineSigma, robust) : robust,
+      15,
+    );
+    expect(st.scatter).toBeGreaterThanOrEqual(robust);
+    expect(st.sigmaFactor).toBe(1);
+    // A band without fitted lines: no shift, the pooled scatter (floor: the fit's σ for it when finite).
+    const b21 = ref(ctx, 2, 1, 'R', 0).band;
+    const other = residualStatistics(ctx, fit, auto).of(b21, 0);
+    expect(other.shift).toBe(0);
+    expect(other.scatter).toBeGreaterThanOrEqual(robust);
+  });
+
+  it("with σ: the factor is at least 1 and at least the fit's own σ for that σ over it", () => {
+    const lines = band('1-0', 12);
+    const ctx = coContext(lines.map((l) => ({ position: l.position, uncertainty: 1e-3 })));
+    const auto = published(ctx, lines);
+    const fit = tryFit(ctx, lineInputs(ctx, auto)) as DetailedFit;
+    const b10 = ref(ctx, 1, 0, 'R', 0).band;
+    const st = residualStatistics(ctx, fit, auto).of(b10, 0);
+    const t = { species: CO, band: { upper: 1, lower: 0 }, branch: 'R' as const, j: 0 };
+    const scaled = fit.lineSigma(t, { uncertainty: 1e-3 });
+    expect(st.sigmaFactor).toBeGreaterThanOrEqual(1);
+    if (Number.isFinite(scaled) && scaled > 0) expect(st.sigmaFactor).toBeGreaterThanOrEqual(scaled / 1e-3 - 1e-12);
+    // No line without σ: the scatter of lines without σ falls back to 0.01 cm⁻¹ (or the fit's σ when larger).
+    expect(st.scatter).toBeGreaterThanOrEqual(0.01);
+    // Asked twice: the same object (computed once per band and source).
+    const rs = residualStatistics(ctx, fit, auto);
+    expect(rs.of(b10, 0)).toBe(rs.of(b10, 0));
+  });
+});
+
+describe('bands dropped for their intensity', () => {
+  it("a band ×100 off the main band's intensity scale goes, with a note, unless its positions establish it", () => {
+    const f = band('1-0', 6); // 13 lines
+    const h = band('2-1', 2); // P(1), P(2), R(0)–R(2): 5 lines
+    const build = (source?: string) => {
+      const iso = parseSpecies('12C16O');
+      const peaks0 = [...f, ...h].map((l) => ({ position: l.position, ...(source ? { source } : {}) }));
+      const ctx0 = prepareAssignment(peaks0, [{ iso, abundance: 1 }], new Map([[iso.formula, reducedMass(iso)]]), {});
+      const auto = published(ctx0, [...f, ...h]);
+      // Observed intensity = candidate intensity × 2 (1-0) or × 200 (2-1).
+      const peaks = [...f, ...h].map((l, i) => ({
+        position: l.position,
+        intensity: (auto.get(i) as CandidateLine).intensity * (i < f.length ? 2 : 200),
+        ...(source ? { source } : {}),
+      }));
+      const ctx = prepareAssignment(peaks, [{ iso, abundance: 1 }], new Map([[iso.formula, reducedMass(iso)]]), {});
+      return { ctx, auto: published(ctx, [...f, ...h]) };
+    };
+    const { ctx, auto } = build();
+    pruneImplausibleBands(ctx, fixed(0, 0.1), auto);
+    expect(auto.size).toBe(13);
+    expect([...ctx.intensityLeftOut.keys()]).toEqual([13, 14, 15, 16, 17]);
+    const l = h[0] as CoDatabaseLine;
+    expect(ctx.intensityLeftOut.get(13)).toBe(
+      `left out for its intensity: a match for 12C-16O 2-1 ${l.branch}(${l.j}) by position, but that band's observed-to-predicted intensity ratio is ×100 that of the main band (more than ×20 either way), so it was taken for a coincidence`,
+    );
+    const s = build('scan');
+    pruneImplausibleBands(s.ctx, fixed(0, 0.1), s.auto);
+    expect(s.ctx.intensityLeftOut.get(13)).toContain('that of the main band of source "scan" (more than');
+    const kept = build();
+    pruneImplausibleBands(kept.ctx, fixed(0, 0.1, true), kept.auto);
+    expect(kept.auto.size).toBe(18);
+    expect(kept.ctx.intensityLeftOut.size).toBe(0);
+  });
+});
+
+describe('reference constants', () => {
+  it('the library Dunham coefficients of 12C16O: Y01 ≈ B_e, Y11 ≈ −α_e, Y10 ≈ ω_e (Huber & Herzberg 1979, from memory; 1e-3 relative)', () => {
+    const ref0 = referenceDunham([{ iso: parseSpecies('12C16O') }]);
+    const y = ref0.get(CO);
+    expect(y).toBeDefined();
+    expect(Math.abs((y?.get('0,1') as number) / 1.93128 - 1)).toBeLessThan(1e-3);
+    expect(Math.abs((y?.get('1,1') as number) / -0.0175044 - 1)).toBeLessThan(1e-3);
+    expect(Math.abs((y?.get('1,0') as number) / 2169.81 - 1)).toBeLessThan(1e-3);
+    expect(ref0.size).toBe(1);
+  });
+});
