@@ -8,17 +8,21 @@ import {
   fittedPrediction,
   type LoopState,
   lineInputs,
+  matchRound,
   noteCompetitions,
   type OffsetVotes,
   type PeakInput,
   pairKey,
+  predictionOf,
   prepareAssignment,
   pruneImplausibleBands,
   type ResidualStatistics,
+  type RoundModel,
   referenceDunham,
   referencePrediction,
   residualStatistics,
   tryFit,
+  voteOffsets,
   widenSeeds,
   withdrawRejected,
   withdrawStrayBands,
@@ -457,6 +461,145 @@ describe('the second pass and the notes', () => {
     // More lines needed than found.
     expect(at(0.5, 10).r).toBeUndefined();
     expect(at(0.5, 9).r?.matches).toBe(9);
+  });
+});
+
+describe('one round: predictions and matches', () => {
+  const noModel = (ctx: AssignContext, scale = new Map<string, number>()): RoundModel => ({
+    reach: new Int32Array(ctx.bands.length).fill(-1),
+    scale,
+    residuals: undefined,
+    detailed: undefined,
+  });
+  const src = { name: '', n: 0 };
+
+  it('without a fit: the reference placement, keyed by the candidate number; none for a given transition', () => {
+    const ctx = fundamental();
+    const r2 = ref(ctx, 1, 0, 'R', 2);
+    const p = predictionOf(ctx, fixed(0.05, 0.1), noModel(ctx), r2.ci, src);
+    expect(p).toEqual({ key: String(r2.ci), position: r2.c.position + 0.05, tolerance: 0.1 * 1.01, tier: 1 });
+    // Beyond the seeds: nothing placed, nothing returned.
+    expect(predictionOf(ctx, fixed(0.05, 0.1), noModel(ctx), ref(ctx, 1, 0, 'R', 8).ci, src)).toBeUndefined();
+    const lines = band('1-0', 10);
+    const given = coContext(
+      lines.map((l) => ({
+        position: l.position,
+        ...(l.branch === 'R' && l.j === 2
+          ? {
+              assignment: {
+                species: CO,
+                band: { upper: 1, lower: 0 },
+                branch: 'R' as const,
+                j: 2,
+                source: 'given' as const,
+              },
+            }
+          : {}),
+      })),
+    );
+    const g2 = ref(given, 1, 0, 'R', 2);
+    expect(predictionOf(given, fixed(0.05, 0.1), noModel(given), g2.ci, src)).toBeUndefined();
+  });
+
+  it('reach 0 (only J″ = 0 assigned) reaches J″ 3, not the J″ 7 of a band without lines', () => {
+    const ctx = fundamental();
+    const m = noModel(ctx);
+    const r0 = ref(ctx, 1, 0, 'R', 0);
+    m.reach[r0.band] = 0;
+    expect(predictionOf(ctx, fixed(0, 0.1), m, ref(ctx, 1, 0, 'R', 3).ci, src)).toBeDefined();
+    expect(predictionOf(ctx, fixed(0, 0.1), m, ref(ctx, 1, 0, 'R', 4).ci, src)).toBeUndefined();
+    const near = [...withinReach(ctx, m.reach)];
+    expect(near).toContain(ref(ctx, 1, 0, 'R', 3).ci);
+    expect(near).not.toContain(ref(ctx, 1, 0, 'R', 4).ci);
+  });
+
+  it("intensity: the band's own scale, else the main band's with a ×20 limit, none for a band its positions establish", () => {
+    const ctx = fundamental();
+    const r2 = ref(ctx, 1, 0, 'R', 2);
+    const own = predictionOf(ctx, fixed(0, 0.1), noModel(ctx, new Map([[`${BK}@`, 4]])), r2.ci, src);
+    expect(own?.intensity).toBe(4 * r2.c.intensity);
+    expect(own?.intensityRatioLimit).toBeUndefined();
+    const cls = predictionOf(ctx, fixed(0, 0.1), noModel(ctx, new Map([['#ir@', 3]])), r2.ci, src);
+    expect(cls?.intensity).toBe(3 * r2.c.intensity);
+    expect(cls?.intensityRatioLimit).toBe(20);
+    const est = predictionOf(ctx, fixed(0, 0.1, true), noModel(ctx, new Map([['#ir@', 3]])), r2.ci, src);
+    expect(est?.intensity).toBeUndefined();
+    expect(est?.intensityRatioLimit).toBeUndefined();
+    // The established band still uses its own scale once it has one.
+    const both = predictionOf(ctx, fixed(0, 0.1, true), noModel(ctx, new Map([[`${BK}@`, 4]])), r2.ci, src);
+    expect(both?.intensity).toBe(4 * r2.c.intensity);
+    const none = predictionOf(ctx, fixed(0, 0.1), noModel(ctx), r2.ci, src);
+    expect(none && 'intensity' in none).toBe(false);
+    expect(none && 'intensityRatioLimit' in none).toBe(false);
+  });
+
+  it('with a fit: the fitted placement; where it runs out in the gap pass, the reference placement instead', () => {
+    const ctx = fundamental(25);
+    const r12 = ref(ctx, 1, 0, 'R', 12);
+    const sharp = { predict: () => ({ value: r12.c.position + 0.002, variance: 1e-8 }) } as unknown as DetailedFit;
+    const m: RoundModel = { ...noModel(ctx), residuals: stats(0, 0.001, 1), detailed: sharp };
+    m.reach[r12.band] = 10;
+    const p = predictionOf(ctx, fixed(0, 0.1), m, r12.ci, src);
+    expect(p?.position).toBe(r12.c.position + 0.002);
+    expect(p?.tier).toBeUndefined();
+    // A fit too uncertain for the spacing places nothing, except through the reference in the gap pass.
+    const vague = { predict: () => ({ value: r12.c.position, variance: 1 }) } as unknown as DetailedFit;
+    const mv: RoundModel = { ...m, detailed: vague };
+    expect(predictionOf(ctx, fixed(0, 0.1), mv, r12.ci, src)).toBeUndefined();
+    ctx.wide = true;
+    const wide = predictionOf(ctx, fixed(0.01, 0.1), mv, r12.ci, src);
+    expect(wide?.tier).toBe(1);
+    expect(wide?.position).toBe(r12.c.position + 0.01);
+    expect(wide?.tolerance).toBe(0.1);
+    // A band fitted through other bands (both levels known, no line yet): predicted from the fit from J″ 4 on.
+    ctx.wide = false;
+    const r6 = ref(ctx, 1, 0, 'R', 6);
+    const m0: RoundModel = { ...m, reach: new Int32Array(ctx.bands.length).fill(-1) };
+    expect(predictionOf(ctx, fixed(0, 0.1), m0, r6.ci, src)?.tier).toBeUndefined();
+    // Without residual statistics the fit is not used: the reference placement.
+    const noStats: RoundModel = { ...m, residuals: undefined };
+    expect(predictionOf(ctx, fixed(0, 0.1), noStats, ref(ctx, 1, 0, 'R', 5).ci, src)?.tier).toBe(1);
+  });
+
+  it('matchRound: the seeds J″ ≤ 7 matched to their published labels; a banned pair stays out; no competition', () => {
+    const lines = band('1-0', 10);
+    const ctx = coContext(lines.map((l) => ({ position: l.position + 0.02 })));
+    const offsets = voteOffsets(
+      ctx.cands.filter((c, i) => ctx.seedable[i] && c.j <= 4),
+      ctx.freeBySource,
+      ctx.maxOffset,
+      ctx.minLines,
+    );
+    const state: LoopState = {
+      auto: new Map(),
+      detailed: undefined,
+      detailedIsOfAuto: false,
+      competitions: [],
+      swept: false,
+      banned: new Map(),
+    };
+    const { next, competitions } = matchRound(ctx, offsets, state, 0);
+    expect(competitions).toEqual([]);
+    const want = lines.flatMap((l, i) => (l.j <= 7 ? [[i, `${l.branch}(${l.j})`]] : []));
+    expect(
+      [...next].map(([i, c]) => [i, `${c.branch}(${c.j})`]).sort((a, b) => (a[0] as number) - (b[0] as number)),
+    ).toEqual(want);
+    // Ban line 3's pair for good: it is left out.
+    const c3 = next.get(3) as CandidateLine;
+    state.banned.set(pairKey(ctx, 3, c3), { at: 0, count: 3 });
+    const again = matchRound(ctx, offsets, state, 5);
+    expect(again.next.has(3)).toBe(false);
+    expect(again.next.size).toBe(next.size - 1);
+    // A second peak on R(0) loses it: one competition, naming both.
+    const r0 = lines.findIndex((l) => l.branch === 'R' && l.j === 0);
+    const dup = coContext([
+      ...lines.map((l) => ({ position: l.position + 0.02 })),
+      { position: (lines[r0]?.position as number) + 0.025 },
+    ]);
+    const d = matchRound(dup, offsets, { ...state, banned: new Map() }, 0);
+    expect(d.competitions).toHaveLength(1);
+    expect(d.competitions[0]?.winner).toBe(r0);
+    expect(d.competitions[0]?.peak).toBe(lines.length);
   });
 });
 
