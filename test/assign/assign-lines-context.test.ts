@@ -5,11 +5,13 @@ import {
   beyondWindow,
   type CandidateRef,
   explained,
+  fitDroppingThinBands,
   fittedPrediction,
   type LoopState,
   lineInputs,
   matchRound,
   noteCompetitions,
+  nothingAssigned,
   type OffsetVotes,
   type PeakInput,
   pairKey,
@@ -426,8 +428,10 @@ describe('the second pass and the notes', () => {
         { peak: 5, winner: 3, prediction: 'x' },
         { peak: 3, winner: 5, prediction: 'y' },
         { peak: 6, winner: 7, prediction: 'z' },
+        { peak: 4, winner: 3, prediction: 'w' },
       ],
     } as unknown as LoopState;
+    state.auto.set(4, ref(ctx, 1, 0, 'R', 3).c);
     noteCompetitions(ctx, state);
     expect([...ctx.notes]).toEqual([
       [5, 'competed with line 3 for 12C-16O 1-0 R(2); residual and intensity decided for line 3'],
@@ -600,6 +604,88 @@ describe('one round: predictions and matches', () => {
     expect(d.competitions).toHaveLength(1);
     expect(d.competitions[0]?.winner).toBe(r0);
     expect(d.competitions[0]?.peak).toBe(lines.length);
+  });
+});
+
+describe('stage edge cases', () => {
+  it('a round whose fit fails (a band of one line) drops its thinnest band and fits the rest', () => {
+    const f = band('1-0', 10);
+    const one = band('3-0', 0).filter((l) => l.branch === 'R'); // 3-0 R(0) alone
+    const lines = [...f, ...one];
+    const ctx = coContext(lines.map((l) => ({ position: l.position })));
+    const next = published(ctx, lines);
+    const fit = fitDroppingThinBands(ctx, next, undefined);
+    expect(fit).toBeDefined();
+    expect(next.size).toBe(21);
+    expect([...next.values()].every((c) => c.band.upper === 1)).toBe(true);
+  });
+
+  it('withdrawStrayBands takes only the stray band: 2-1 with a wrong B_2, not 1-0 beside it', () => {
+    const lines = [...band('1-0', 6), ...band('2-1', 6)];
+    const ctx = coContext(lines.map((l) => ({ position: l.position })));
+    const next = published(ctx, lines);
+    const levels = [
+      { species: CO, v: 0, B: { value: 57635.968019 / 29979.2458 } },
+      { species: CO, v: 1, B: { value: 57111.24312 / 29979.2458 } },
+      { species: CO, v: 2, B: { value: 2.5 } },
+    ];
+    const fit = { result: { levels } } as unknown as DetailedFit;
+    expect(withdrawStrayBands(ctx, fit, next, new Map(), 0)).toBe(13);
+    expect(next.size).toBe(13);
+    expect([...next.values()].every((c) => c.band.upper === 1 && c.band.lower === 0)).toBe(true);
+  });
+
+  it('widenSeeds: nothing to widen when every candidate of the fitted level already seeds', () => {
+    // In 2100–2190 cm⁻¹ every candidate with v = 0 is a seed (1-0, J″ ≤ 11).
+    const ctx = fundamental();
+    const v0 = { result: { levels: [{ species: CO, v: 0 }] } } as unknown as DetailedFit;
+    const before = [...ctx.seedable];
+    expect(widenSeeds(ctx, new Map(), v0)).toBe(false);
+    expect(ctx.seedable).toEqual(before);
+  });
+
+  it('nothingAssigned: the best of several bands is named, and a band whose strong lines find no peak at all', () => {
+    // The natural mixture; three peaks on predicted 13C16O 1-0 lines and one on the real 12C16O R(5): the best band
+    // is 13C16O's (the first band in the list is 12C16O's).
+    const species = [
+      { iso: parseSpecies('12C16O'), abundance: 0.986 },
+      { iso: parseSpecies('13C16O'), abundance: 0.011 },
+      { iso: parseSpecies('12C18O'), abundance: 0.002 },
+    ];
+    const masses = new Map(species.map((x) => [x.iso.formula, reducedMass(x.iso)]));
+    const probe = prepareAssignment([{ position: 2080 }, { position: 2170 }], species, masses, {});
+    const at = (j: number) =>
+      probe.cands.find(
+        (c) => c.species === '13C-16O' && c.band.upper === 1 && c.band.lower === 0 && c.branch === 'R' && c.j === j,
+      )?.position as number;
+    const r5 = band('1-0', 5).find((l) => l.branch === 'R' && l.j === 5)?.position as number;
+    const ctx = prepareAssignment(
+      [at(0), at(1), at(2), r5].map((position) => ({ position })),
+      species,
+      masses,
+      {},
+    );
+    const e = nothingAssigned(ctx);
+    expect(e.code).toBe('FIT_NO_ASSIGNED_LINES');
+    expect(e.message).toContain('its best band in the window, 13C-16O 1-0, finds only 3 of its ');
+    // Four peaks midway between CO 1-0 lines (1.9 cm⁻¹ from each): strong lines, but no offset at all.
+    const mid = (j: number) =>
+      ((band('1-0', 10).find((l) => l.branch === 'R' && l.j === j)?.position as number) +
+        (band('1-0', 10).find((l) => l.branch === 'R' && l.j === j + 1)?.position as number)) /
+      2;
+    const none = coContext([mid(0), mid(1), mid(2), mid(3)].map((position) => ({ position })));
+    expect(nothingAssigned(none).message).toMatch(
+      /^nothing matches the declared species 12C-16O: its best band in the window, 12C-16O 1-0, finds only 0 of its \d+ strongest predicted lines at any offset within ±0\.5 cm-1, and a band needs 4$/,
+    );
+  });
+
+  it('tryFit counts the assigned lines only: 29 of them and 6 unassigned still fit B and D only', () => {
+    const lines = band('1-0', 14); // 29 lines
+    const extra = band('1-0', 17, 15).slice(0, 6);
+    const ctx = coContext([...lines, ...extra].map((l) => ({ position: l.position, uncertainty: 1e-6 })));
+    const auto = published(ctx, lines);
+    const f = tryFit(ctx, lineInputs(ctx, auto));
+    expect((f?.result.levels.find((l) => l.v === 0) as unknown as Record<string, unknown>)?.H).toBeUndefined();
   });
 });
 

@@ -119,6 +119,7 @@ describe('refusals when nothing can be assigned (FIT_NO_ASSIGNED_LINES)', () => 
         masses,
       ),
     );
+    expect(e.code).toBe('FIT_NO_ASSIGNED_LINES');
     // Window 3.6–5.8; 10⁴ / 5.8 = 1724.1, 10⁴ / 3.6 = 2777.8.
     expect(e.message).toBe(
       'nothing matches the declared species 12C-16O between 3.60 and 5.80 cm-1; read as wavelengths in µm the lines would lie at 1724.1–2777.8 cm-1: if they are, send "unit": "um"',
@@ -137,6 +138,7 @@ describe('refusals when nothing can be assigned (FIT_NO_ASSIGNED_LINES)', () => 
         masses,
       ),
     );
+    expect(e.code).toBe('FIT_NO_ASSIGNED_LINES');
     // The strong seeds are J″ ≤ 4: P(1)–P(4), R(0)–R(4) = 9, all found at +0.8; ⌈(0.8 + 0.05) × 10⌉ / 10 = 0.9.
     expect(e.message).toBe(
       'nothing matches the declared species 12C-16O within ±0.5 cm-1 ("options.maxOffset"), but at offset +0.800 cm-1 its band 12C-16O 1-0 finds 9 of its 9 strongest predicted lines: if the calibration is that far off, send a larger "options.maxOffset" (e.g. 0.9)',
@@ -169,6 +171,7 @@ describe('refusals when nothing can be assigned (FIT_NO_ASSIGNED_LINES)', () => 
         masses,
       ),
     );
+    expect(e.code).toBe('FIT_NO_ASSIGNED_LINES');
     expect(e.message).toBe(
       'nothing matches the declared species 12C-16O: its best band in the window, 12C-16O 1-0, finds only 2 of its 9 strongest predicted lines at any offset within ±0.5 cm-1, and a band needs 4',
     );
@@ -183,6 +186,7 @@ describe('refusals when nothing can be assigned (FIT_NO_ASSIGNED_LINES)', () => 
         masses,
       ),
     );
+    expect(e.code).toBe('FIT_NO_ASSIGNED_LINES');
     expect(e.message).toBe(
       'nothing matches the declared species 12C-16O: none of its bands has a strong line predicted where the lines lie',
     );
