@@ -88,6 +88,62 @@ function published(ctx: AssignContext, lines: readonly CoDatabaseLine[]): Map<nu
   return auto;
 }
 
+describe('the prepared context', () => {
+  it('sources numbered by first appearance among the free lines; −1 for a given line of a source no free line has', () => {
+    const lines = band('1-0', 3);
+    const peaks: PeakInput[] = lines.map((l, i) => ({ position: l.position, source: i % 2 ? 'b' : 'a' }));
+    peaks.push({
+      position: 2200,
+      source: 'c',
+      assignment: { species: CO, band: { upper: 1, lower: 0 }, branch: 'R', j: 13, source: 'given' },
+    });
+    const ctx = coContext(peaks);
+    expect(ctx.sources).toEqual(['a', 'b']);
+    expect([...ctx.sourceNumbers]).toEqual([...lines.map((_, i) => i % 2), -1]);
+    expect(ctx.freeBySource.get('b')?.map((p) => p.index)).toEqual([1, 3, 5]);
+    expect(ctx.given.map((g) => g.index)).toEqual([lines.length]);
+    expect(ctx.typicalSigma).toBeUndefined();
+    expect(ctx.maxOffset).toBe(0.5);
+    expect(ctx.minLines).toBe(4);
+    // The window is the lines' range widened by 1 cm⁻¹.
+    expect(ctx.hi).toBe(2201);
+  });
+
+  it('the typical σ is the median of the σ sent (lines without one not counted)', () => {
+    const lines = band('1-0', 3);
+    const ctx = coContext(
+      lines.map((l, i) => ({ position: l.position, ...(i < 3 ? { uncertainty: [3e-3, 1e-3, 2e-3][i] } : {}) })),
+    );
+    expect(ctx.typicalSigma).toBe(2e-3);
+  });
+
+  it('candidates of each band by J″, ties in list order (P and R of one J″), up to J″ 150 by default', () => {
+    const ctx = fundamental();
+    ctx.bandCands.forEach((list, b) => {
+      const mine = ctx.cands
+        .map((c, i) => ({ j: c.j, i, b: ctx.candBand[i] }))
+        .filter((x) => x.b === b)
+        .sort((x, y) => x.j - y.j || x.i - y.i)
+        .map((x) => x.i);
+      expect([...list]).toEqual(mine);
+    });
+    // 1-0 P(100) of 12C16O near 1585.5 cm⁻¹: ν₀ − (B₁ + B₀) J + (B₁ − B₀) J² with ν₀ = 2143.27 (from memory) and
+    // B₀, B₁ of Gendriesch et al. 2009 (fixture SOURCE.md): 2143.27 − 3.8276 × 100 − 0.0175 × 10⁴.
+    const b0 = 57635.968019 / 29979.2458;
+    const b1 = 57111.24312 / 29979.2458;
+    const p100 = 2143.27 - (b0 + b1) * 100 + (b1 - b0) * 100 ** 2;
+    expect(p100).toBeGreaterThan(1580);
+    expect(p100).toBeLessThan(1590);
+    const far = coContext([p100 - 3, p100 + 3].map((position) => ({ position })));
+    expect(far.cands.some((c) => c.band.upper === 1 && c.branch === 'P' && c.j > 80)).toBe(true);
+    const capped = coContext(
+      [p100 - 3, p100 + 3].map((position) => ({ position })),
+      { maxJ: 80 },
+    );
+    expect(capped.cands.some((c) => c.j > 80)).toBe(false);
+  });
+});
+
 describe('reference predictions (bands not yet fitted)', () => {
   it('the reference position plus the offset; tolerance × (1 + (J″/20)²); seeds reach J″ ≤ 4 + 3', () => {
     const ctx = fundamental();
@@ -667,7 +723,11 @@ describe('stage edge cases', () => {
     );
     const e = nothingAssigned(ctx);
     expect(e.code).toBe('FIT_NO_ASSIGNED_LINES');
-    expect(e.message).toContain('its best band in the window, 13C-16O 1-0, finds only 3 of its ');
+    expect(
+      e.message.startsWith(
+        'nothing matches the declared species 12C-16O, 13C-16O, 12C-18O: its best band in the window, 13C-16O 1-0, finds only 3 of its ',
+      ),
+    ).toBe(true);
     // Four peaks midway between CO 1-0 lines (1.9 cm⁻¹ from each): strong lines, but no offset at all.
     const mid = (j: number) =>
       ((band('1-0', 10).find((l) => l.branch === 'R' && l.j === j)?.position as number) +

@@ -129,6 +129,41 @@ describe('refusals when nothing can be assigned (FIT_NO_ASSIGNED_LINES)', () => 
     expect((e.details as { window: number[] }).window[1]).toBeCloseTo(5.8, 12);
   });
 
+  it('given lines only, where the declared species has no band: NO_BAND_IN_WINDOW, and the given lines are fitted', () => {
+    // Given H35Cl 1-0 lines of a rigid rotor with B = 10.44 cm⁻¹ (near H35Cl's B_0, from memory) about an invented
+    // origin of 1000 cm⁻¹: 12C16O, declared, has no line between 936 and 1085 cm⁻¹ (its 1-0 P branch ends near
+    // 1500 cm⁻¹ at J″ = 150, its pure rotation below 600 cm⁻¹).
+    const co = parseSpecies('12C16O');
+    const hcl = parseSpecies('H35Cl');
+    const masses = new Map([
+      [co.formula, reducedMass(co)],
+      [hcl.formula, reducedMass(hcl)],
+    ]);
+    const B = 10.44;
+    const given = (branch: 'P' | 'R', j: number) => ({
+      position: 1000 + (branch === 'R' ? 2 * B * (j + 1) : -2 * B * j),
+      assignment: { species: hcl.formula, band: { upper: 1, lower: 0 }, branch, j, source: 'given' as const },
+    });
+    const peaks = [
+      given('R', 0),
+      given('R', 1),
+      given('R', 2),
+      given('R', 3),
+      given('P', 1),
+      given('P', 2),
+      given('P', 3),
+    ];
+    const r = assignAndFit(peaks, [{ iso: co, abundance: 1 }], masses);
+    // Window: 1000 − 6B − 1 = 936.36 to 1000 + 8B + 1 = 1084.52.
+    expect(r.warnings).toEqual([
+      { code: 'NO_BAND_IN_WINDOW', message: 'no band of 12C-16O is predicted between 936.4 and 1084.5 cm-1' },
+    ]);
+    expect(r.bands).toEqual([]);
+    expect(r.unexplained).toEqual([]);
+    expect(r.calibration).toBeUndefined();
+    expect(r.fit.result.lines.filter((l) => l.status === 'fitted')).toHaveLength(7);
+  });
+
   it('a calibration 0.8 cm⁻¹ off with maxOffset 0.5: found beyond it, and a maxOffset that reaches it suggested', () => {
     const lines = band('1-0', 10);
     const e = refusal(() =>

@@ -156,7 +156,7 @@ describe('the lines as the matcher and the fit take them', () => {
   ];
 
   it('free peaks: the lines without assignment, with σ and intensity when sent', () => {
-    expect(freePeaks(peaks)).toEqual([
+    expect(freePeaks(peaks)).toStrictEqual([
       { index: 0, position: 2147.081134, intensity: 3, sigma: 1e-6 },
       { index: 1, position: 2143.0 },
     ]);
@@ -164,7 +164,7 @@ describe('the lines as the matcher and the fit take them', () => {
 
   it('fit inputs: every line, given assignment kept, nothing added', () => {
     const inputs = baseInputs(peaks);
-    expect(inputs).toEqual([
+    expect(inputs).toStrictEqual([
       { position: 2147.081134, uncertainty: 1e-6, intensity: 3, source: 'a' },
       { position: 2143.0 },
       { position: 2139.426073, intensity: 0, assignment: peaks[2]?.assignment },
