@@ -33,6 +33,7 @@ import {
   transitionOfBand,
   voteOffsets,
   wavelengthHint,
+  widenedOffsets,
 } from '../../src/assign/assign-lines.js';
 import type { CandidateLine } from '../../src/assign/candidates.js';
 import type { DetailedFit } from '../../src/fit/fit-lines.js';
@@ -264,6 +265,9 @@ describe('offsets by voting', () => {
     expect(isNear(sorted, 400.1, 0.04)).toBe(false);
     expect(isNear(sorted, 500, 50)).toBe(false);
     expect(isNear(new Float64Array(0), 1, 1)).toBe(false);
+    // Strictly inside the window, and exactly on its upper edge (1.25 + 0.25 = 1.5, exact in binary).
+    expect(isNear(sorted, 300.22, 0.05)).toBe(true);
+    expect(isNear(Float64Array.from([1.5]), 1.25, 0.25)).toBe(true);
   });
 
   it('claimed: where the other bands put their seeds at the offset, sorted', () => {
@@ -342,7 +346,154 @@ describe('offsets by voting', () => {
     const free = seeds.slice(0, 6).map((c, i) => ({ index: i, position: c.position - 0.123456 }));
     const best = bestBandOffset(seeds, free, 0.5);
     expect(best).toEqual({ offset: -0.12346, matches: 6 });
+    // A seventh peak 0.05 off that offset is outside the tolerance (spread 0: the floor 0.03).
+    const seventh = [...free, { index: 6, position: (seeds[6] as CandidateLine).position - 0.123456 + 0.05 }];
+    expect(bestBandOffset(seeds, seventh, 0.5)?.matches).toBe(6);
     expect(bestBandOffset(seeds, free, 0.1)).toBeUndefined();
+  });
+});
+
+describe("offset votes: the thresholds of a band's own offset and of a band its positions establish", () => {
+  /** A hand-made band of n lines 5 cm⁻¹ apart from `start`, intensity 1. */
+  const grid = (species: string, start: number, n: number, intensity = 1) =>
+    Array.from({ length: n }, (_, j) => cand(species, 1, 0, 'R', j, start + 5 * j, intensity));
+  const peaksAt = (cands: CandidateLine[], offsets: number[], from = 0) =>
+    cands.map((c, i) => ({ index: from + i, position: c.position + (offsets[i] ?? 0) }));
+
+  it('own offset only with n ≥ minLines, n ≥ (lines at the source offset) + 3 and n ≥ 2 × them; at equality it is taken', () => {
+    // Main band (20 lines at +0.1) sets the source offset. Band B (13C, 10 lines): k at +0.1, m at −0.3, rest no peak.
+    const main = grid(CO, 1000, 20, 4);
+    const run = (k: number, m: number, minLines: number) => {
+      const b = grid('13C-16O', 2000, 10);
+      const offs = b.map((_, i) => (i < k ? 0.1 : i < k + m ? -0.3 : 99));
+      const peaks = [
+        ...peaksAt(
+          main,
+          main.map(() => 0.1),
+        ),
+        ...peaksAt(b, offs, 100).filter((_, i) => i < k + m),
+      ];
+      return voteOffsets([...main, ...b], new Map([['', peaks]]), 0.5, minLines).of('13C-16O|1-0', '');
+    };
+    // withSource 3, n 6, minLines 6: 6 ≥ 6, 6 ≥ 3 + 3, 6 ≥ 2 × 3: own.
+    expect(run(3, 6, 6).own).toBe(true);
+    expect(run(3, 6, 6).offset).toBeCloseTo(-0.3, 9);
+    // n 6 < minLines 7: not own.
+    expect(run(3, 6, 7).own).toBe(false);
+    // withSource 4, n 7: 7 ≥ 4 + 3 but 7 < 8: not own.
+    expect(run(4, 7, 4).own).toBe(false);
+    // withSource 1, n 3 (minLines 3): 3 ≥ 2 × 1 but 3 < 1 + 3: not own.
+    expect(run(1, 3, 3).own).toBe(false);
+    // withSource 0, n 4, minLines 4: own (4 ≥ 4, 4 ≥ 3, 4 ≥ 0).
+    expect(run(0, 4, 4).own).toBe(true);
+  });
+
+  it('a band of exactly minLines strong lines may have its own offset', () => {
+    const main = grid(CO, 1000, 20, 4);
+    const b = grid('13C-16O', 2000, 4);
+    const peaks = [
+      ...peaksAt(
+        main,
+        main.map(() => 0.1),
+      ),
+      ...peaksAt(
+        b,
+        b.map(() => -0.3),
+        100,
+      ),
+    ];
+    const o = voteOffsets([...main, ...b], new Map([['', peaks]]), 0.5, 4).of('13C-16O|1-0', '');
+    expect(o.own).toBe(true);
+  });
+
+  it('established: at least 2 × minLines and at least 60 % of its strong lines on peaks no other band predicts', () => {
+    const run = (n: number, onPeaks: number, minLines: number) => {
+      const b = grid(CO, 1000, n);
+      const peaks = peaksAt(
+        b,
+        b.map(() => 0.1),
+      ).filter((_, i) => i < onPeaks);
+      return voteOffsets(b, new Map([['', peaks]]), 0.5, minLines).of('12C-16O|1-0', '').established === true;
+    };
+    // 8 of 10 with minLines 4: 8 ≥ 8 and 8 ≥ 6.
+    expect(run(10, 8, 4)).toBe(true);
+    expect(run(10, 7, 4)).toBe(false);
+    // 6 of 10 with minLines 3: 6 ≥ 6 and 6 ≥ 0.6 × 10; 6 of 11: 6 < 6.6.
+    expect(run(10, 6, 3)).toBe(true);
+    expect(run(11, 6, 3)).toBe(false);
+  });
+
+  it('the strongest voters count: 30 per band, 80 per source (weak lines listed first do not decide)', () => {
+    // One band of 61 lines: the first 31 weak (0.25) with peaks at −0.2, then 30 strong (1) with peaks at +0.1.
+    const weak = grid(CO, 1000, 31, 0.25);
+    const strong = grid(CO, 2000, 30, 1);
+    const band = [...weak, ...strong];
+    const peaks = peaksAt(
+      band,
+      band.map((_, i) => (i < 31 ? -0.2 : 0.1)),
+    );
+    const v = voteOffsets(band, new Map([['', peaks]]), 0.5, 4);
+    expect(v.of('12C-16O|1-0', '').offset).toBeCloseTo(0.1, 9);
+    expect(v.of('12C-16O|1-0', '').own).toBe(false);
+    // 161 lines: 81 weak first at −0.2 (weight 81 × 0.5), 80 strong at +0.1 (80 × 1): the source votes +0.1.
+    const w2 = grid(CO, 1000, 81, 0.25);
+    const s2 = grid('13C-16O', 3000, 80, 1);
+    const all = [...w2, ...s2];
+    const v2 = voteOffsets(
+      all,
+      new Map([
+        [
+          '',
+          peaksAt(
+            all,
+            all.map((_, i) => (i < 81 ? -0.2 : 0.1)),
+          ),
+        ],
+      ]),
+      0.5,
+      4,
+    );
+    expect(v2.bySource.get('')?.offset).toBeCloseTo(0.1, 9);
+  });
+
+  it('a source where no strong line finds a peak: offset 0, tolerance 4 × 0.05 = 0.2', () => {
+    const b = grid(CO, 1000, 10);
+    const v = voteOffsets(b, new Map([['', [{ index: 0, position: 3 }]]]), 0.5, 4);
+    expect(v.bySource.get('')).toEqual({ offset: 0, tolerance: 0.2, own: false, ambiguous: false });
+  });
+
+  it('gap pass: a source with minLines assigned keeps its votes; any other votes again over the seeds of every J″', () => {
+    // Real CO 1-0 lines J″ 12–20 only, 0.05 high: the low-J vote finds nothing.
+    const lines = CO_DATABASE.lines.filter((l) => l.band === '1-0' && l.j >= 12 && l.j <= 20);
+    const c = lines.map((l) => cand(CO, 1, 0, l.branch, l.j, l.position));
+    const seeds = c.filter((x) => x.j <= 4);
+    expect(seeds).toEqual([]);
+    const byA = lines.map((l, i) => ({ index: i, position: l.position + 0.05 }));
+    const byB = lines.map((l, i) => ({ index: 100 + i, position: l.position - 0.07 }));
+    const freeBySource = new Map([
+      ['a', byA],
+      ['b', byB],
+    ]);
+    const peaks: PeakInput[] = [];
+    for (const p of byA) peaks[p.index] = { position: p.position, source: 'a' };
+    for (const p of byB) peaks[p.index] = { position: p.position, source: 'b' };
+    const first = voteOffsets(seeds, freeBySource, 0.5, 4);
+    expect(first.bySource.get('a')?.offset).toBe(0);
+    const ctx = { peaks, freeBySource, cands: c, seedable: c.map(() => true), maxOffset: 0.5, minLines: 4 };
+    type Ctx = Parameters<typeof widenedOffsets>[0];
+    // Four lines of source a assigned: a keeps the first votes; b votes again.
+    const auto = new Map([0, 1, 2, 3].map((i) => [i, c[i] as CandidateLine]));
+    const w = widenedOffsets(ctx as unknown as Ctx, first, auto);
+    expect(w.bySource.get('a')).toBe(first.bySource.get('a'));
+    expect(w.bySource.get('b')?.offset).toBeCloseTo(-0.07, 9);
+    expect(w.of('12C-16O|1-0', 'b').offset).toBeCloseTo(-0.07, 9);
+    expect(w.of('12C-16O|1-0', 'zz')).toEqual({ offset: 0, tolerance: 0.1, own: false, ambiguous: false });
+    // Every source with enough lines: the first votes themselves.
+    const both = new Map([...auto, ...[100, 101, 102, 103].map((i) => [i, c[i - 100] as CandidateLine] as const)]);
+    expect(widenedOffsets(ctx as unknown as Ctx, first, both)).toBe(first);
+    // Only seedable candidates vote: with none seedable, b finds nothing.
+    const none = widenedOffsets({ ...ctx, seedable: c.map(() => false) } as unknown as Ctx, first, auto);
+    expect(none.bySource.get('b')?.offset).toBe(0);
   });
 });
 
