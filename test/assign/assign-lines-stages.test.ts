@@ -219,11 +219,12 @@ describe('candidates: seeds, band numbers, line spacing', () => {
 
   it('line spacing: the median step between neighbouring J″ of one branch (real CO 1-0, P(1)–P(6), R(0)–R(5))', () => {
     const c = coFundamental(6);
-    // A second band on its own: two R lines 4 apart, plus a Q line alone (no neighbour: no step).
+    // A second band on its own: two R lines 4 apart, plus a Q(2) line alone (no Q neighbour: no step; nor is it a
+    // neighbour of R(1)).
     c.push(
       cand('13C-16O', 1, 0, 'R', 0, 2100),
       cand('13C-16O', 1, 0, 'R', 1, 2104),
-      cand('13C-16O', 1, 0, 'Q', 3, 2090),
+      cand('13C-16O', 1, 0, 'Q', 2, 2090),
     );
     // A band with a single line has no spacing.
     c.push(cand(CO, 3, 0, 'R', 0, 6354));
@@ -517,6 +518,10 @@ describe('bands: thinnest, too thin, same assignment', () => {
     const anchored = new Map(auto);
     pruneThinBands(anchored, 3, [{ t: { species: CO, band: { upper: 2, lower: 1 } } }]);
     expect(anchored.size).toBe(7);
+    // One given line and one automatic line of 2-1 are 2 < 3: dropped.
+    const short = new Map([[10, b[0] as CandidateLine]]);
+    pruneThinBands(short, 3, [{ t: { species: CO, band: { upper: 2, lower: 1 } } }]);
+    expect(short.size).toBe(0);
     const strict = new Map(auto);
     pruneThinBands(strict, 6, []);
     expect(strict.size).toBe(0);
@@ -863,6 +868,27 @@ describe('calibration: offset and scale of the wavenumber axis', () => {
     // One point repeated: rank deficient for the scale? No: span 0 → offset only; its σ with n − 1 = 2.
     const same = [1, 2, 3].map(() => ({ reference: 2000, observed: 2000.01 }));
     expect(calibrationFromPoints(same, 's')?.offset.value).toBeCloseTo(0.01, 12);
+  });
+
+  it('a span of exactly 1 % of the centre gives a scale (1990–2010 about 2000)', () => {
+    const pts = [1990, 1995, 2005, 2010].map((reference) => ({ reference, observed: reference + 0.01 }));
+    expect(calibrationFromPoints(pts, 'e')?.scale).toBeDefined();
+  });
+
+  it('from an assignment with σ: the lines weigh 1/σ² (centre the weighted mean of the references)', () => {
+    const auto = new Map<number, CandidateLine>();
+    const peaks: PeakInput[] = [];
+    const sig = [0.001, 0.002, 0.001, 0.004];
+    [0, 1, 2, 3].forEach((j, i) => {
+      const x = coLine('1-0', 'R', j);
+      auto.set(i, cand(CO, 1, 0, 'R', j, x));
+      peaks.push({ position: x + 0.02, uncertainty: sig[i] as number });
+    });
+    const w = sig.map((s) => 1 / (s * s));
+    const centre =
+      [0, 1, 2, 3].reduce((acc, j, i) => acc + (w[i] as number) * coLine('1-0', 'R', j), 0) /
+      w.reduce((a, b) => a + b, 0);
+    expect(estimateCalibration(auto, peaks, CO)?.centre).toBeCloseTo(centre, 9);
   });
 
   it('from an assignment: lines of the main species up to J″ = 20 only', () => {
