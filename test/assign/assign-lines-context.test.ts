@@ -818,6 +818,105 @@ describe('fits of a round and their residual statistics', () => {
   });
 });
 
+describe('residual statistics worked out by hand (a fit made by hand: residuals and σ chosen here)', () => {
+  const med = (xs: number[]) => {
+    const v = [...xs].sort((a, b) => a - b);
+    const m = v.length >> 1;
+    return v.length % 2 ? (v[m] as number) : ((v[m - 1] as number) + (v[m] as number)) / 2;
+  };
+  /** 1 / Φ⁻¹(3/4) = 1.482602218505602 (Φ⁻¹(0.75) = 0.6744897501960817, normal quantile, from memory). */
+  const K = 1 / 0.6744897501960817;
+  const robust = (xs: number[]) => {
+    const m = med(xs);
+    return K * med(xs.map((x) => Math.abs(x - m)));
+  };
+
+  it("per band and source: median shift (3 lines or more), scatter and σ factor from own, pooled or the fit's σ", () => {
+    // 1-0 J″ ≤ 10 (21 lines): lines 0–17 from source "a" without σ, lines 18–20 from "b" with σ = 0.002.
+    const lines = band('1-0', 10);
+    const peaks: PeakInput[] = lines.map((l, i) => ({
+      position: l.position,
+      source: i < 18 ? 'a' : 'b',
+      ...(i < 18 ? {} : { uncertainty: 0.002 }),
+    }));
+    const ctx = coContext(peaks);
+    const auto = published(ctx, lines);
+    const rA = Array.from({ length: 18 }, (_, i) => 0.001 * ((i % 5) - 2) + 0.0005 + 1e-5 * i);
+    const rB = [0.004, -0.002, 0.001];
+    const fitLines = lines.map((_, i) => ({
+      index: i,
+      status: i === 16 ? 'rejected' : 'fitted',
+      ...(i === 17 ? {} : { residual: i < 18 ? (rA[i] as number) : (rB[i - 18] as number) }),
+    }));
+    const calls: string[] = [];
+    const fit = {
+      result: { lines: fitLines, levels: [] },
+      lineSigma: (t: { band: { upper: number } }, own?: { uncertainty?: number; source?: string }) => {
+        calls.push(`${t.band.upper}|${own?.source ?? '-'}|${own?.uncertainty ?? '-'}`);
+        if (t.band.upper === 2) return Number.POSITIVE_INFINITY;
+        if (own?.uncertainty !== undefined) return own.uncertainty;
+        return own?.source === 'b' ? 0.004 : 0.0001;
+      },
+    } as unknown as DetailedFit;
+    const st = residualStatistics(ctx, fit, auto);
+    const b10 = ref(ctx, 1, 0, 'R', 0).band;
+    const b21 = ref(ctx, 2, 1, 'R', 0).band;
+    // Source a: the 16 usable residuals (line 16 rejected, line 17 without residual).
+    const a = rA.slice(0, 16);
+    const shiftA = med(a);
+    const pooledR = a.map((r) => r - shiftA);
+    // Source b: 3 lines, shift their median 0.001; z = (r − 0.001) / 0.002 = 1.5, −1.5, 0 → robust σ K × 1.5.
+    const zB = rB.map((r) => (r - 0.001) / 0.002);
+    const factor = robust(zB);
+    expect(factor).toBeCloseTo(K * 1.5, 12);
+    const sa = st.of(b10, 0);
+    expect(sa.shift).toBeCloseTo(shiftA, 15);
+    // 16 ≥ 8 lines: its own robust σ, above the fit's 1e-4.
+    expect(sa.scatter).toBeCloseTo(robust(pooledR), 15);
+    // No σ in group a: the pooled σ (0.002) is typical; the fit's σ for it is 0.002 (ratio 1); pooled z (3 ≥ 3).
+    expect(sa.sigmaFactor).toBeCloseTo(factor, 12);
+    const sb = st.of(b10, 1);
+    expect(sb.shift).toBeCloseTo(0.001, 15);
+    // Group b has no line without σ: pooled robust σ of a, but the fit says 0.004 for source b.
+    expect(sb.scatter).toBe(Math.max(0.004, robust(pooledR)));
+    expect(sb.sigmaFactor).toBeCloseTo(factor, 12);
+    // A band without lines: no shift, pooled scatter (the fit's σ is infinite there: not used).
+    const s21 = st.of(b21, 0);
+    expect(s21.shift).toBe(0);
+    expect(s21.scatter).toBeCloseTo(robust(pooledR), 15);
+    expect(s21.sigmaFactor).toBeCloseTo(factor, 12);
+    // The fit was asked per source by name, and at the typical σ.
+    expect(calls).toContain('1|a|-');
+    expect(calls).toContain('1|b|-');
+    expect(calls).toContain('1|b|0.002');
+    expect(calls).toContain('1|a|0.002');
+  });
+
+  it("the fit's σ for lines with σ raises the factor when it exceeds the scatter of their z", () => {
+    const lines = band('1-0', 10);
+    const peaks: PeakInput[] = lines.map((l) => ({ position: l.position, uncertainty: 0.001 }));
+    const ctx = coContext(peaks);
+    const auto = published(ctx, lines);
+    // z = r / 0.001 = −0.5 (11 lines), +0.5 (10): robust σ of z is 0, so the factor floor 1 holds.
+    const fitLines = lines.map((_, i) => ({ index: i, status: 'fitted', residual: i % 2 ? 0.0005 : -0.0005 }));
+    const mk = (k: number) =>
+      ({
+        result: { lines: fitLines, levels: [] },
+        lineSigma: (_t: unknown, own?: { uncertainty?: number }) => (own?.uncertainty ?? 0.0002) * k,
+      }) as unknown as DetailedFit;
+    const b10 = ref(ctx, 1, 0, 'R', 0).band;
+    expect(residualStatistics(ctx, mk(1), auto).of(b10, 0).sigmaFactor).toBe(1);
+    expect(residualStatistics(ctx, mk(3), auto).of(b10, 0).sigmaFactor).toBeCloseTo(3, 12);
+    // No line without σ: the scatter falls back to 0.01 cm⁻¹, below the fit's 0.0002 × 60.
+    expect(residualStatistics(ctx, mk(1), auto).of(b10, 0).scatter).toBe(0.01);
+    expect(residualStatistics(ctx, mk(60), auto).of(b10, 0).scatter).toBeCloseTo(0.012, 15);
+    // Eight or more z: the group's own robust σ of z counts: z = −2, 0, 2 (7 lines each), median 0, MAD 2.
+    const wide = fitLines.map((l, i) => ({ ...l, residual: 0.002 * ((i % 3) - 1) }));
+    const fw = { ...mk(1), result: { lines: wide, levels: [] } } as unknown as DetailedFit;
+    expect(residualStatistics(ctx, fw, auto).of(b10, 0).sigmaFactor).toBeCloseTo(K * 2, 12);
+  });
+});
+
 describe('bands dropped for their intensity', () => {
   it("a band ×100 off the main band's intensity scale goes, with a note, unless its positions establish it", () => {
     const f = band('1-0', 6); // 13 lines

@@ -674,6 +674,56 @@ describe('isotopologue doublets (labels kept or swapped by the predicted splitti
     expect(kept.get(0)).toBe(a);
   });
 
+  it('positions against intensities: the splitting weighs (Δ/5 % of it)², the ln-ratio (Δ/0.3)²', () => {
+    // a − b predicted +0.2; intensities expected 3 : 1 (ln 3).
+    // Positions right (observed +0.2), intensities reversed: keep = (2 ln 3 / 0.3)² ≈ 53.6, swap = (0.4 / 0.01)² =
+    // 1600: kept.
+    const kept = new Map([
+      [0, a],
+      [1, b],
+    ]);
+    resolveDoublets(kept, [
+      { position: 2963.3, intensity: 1 },
+      { position: 2963.1, intensity: 3 },
+    ]);
+    expect(kept.get(0)).toBe(a);
+    // σ = 0.05 sets the scale; observed +0.15: keep = 1 + 53.6, swap = (0.35 / 0.05)² = 49: swapped.
+    const swapped = new Map([
+      [0, a],
+      [1, b],
+    ]);
+    resolveDoublets(swapped, [
+      { position: 2963.25, intensity: 1, uncertainty: 0.05 },
+      { position: 2963.1, intensity: 3, uncertainty: 0.05 },
+    ]);
+    expect(swapped.get(0)).toBe(b);
+  });
+
+  it('intensities count only when both peaks and both candidates have one above 0', () => {
+    // Positions say swap (observed −0.2 against +0.2); one peak without intensity: still swapped.
+    const one = new Map([
+      [0, a],
+      [1, b],
+    ]);
+    resolveDoublets(one, [{ position: 2963.1, intensity: 1 }, { position: 2963.3 }]);
+    expect(one.get(0)).toBe(b);
+    // A candidate of intensity 0: the ratio is not used, positions decide.
+    for (const zero of [
+      [{ ...a, intensity: 0 }, b],
+      [a, { ...b, intensity: 0 }],
+    ] as const) {
+      const m = new Map<number, CandidateLine>([
+        [0, zero[0]],
+        [1, zero[1]],
+      ]);
+      resolveDoublets(m, [
+        { position: 2963.1, intensity: 1 },
+        { position: 2963.3, intensity: 3 },
+      ]);
+      expect(m.get(0)).toBe(zero[1]);
+    }
+  });
+
   it('no doublet: one species, other transitions, more than 1 cm⁻¹ apart, or three lines', () => {
     const far = cand('1H-37Cl', 1, 0, 'R', 3, 2961.2, 0.25); // 2.1 apart: beyond 1 cm⁻¹
     const auto = new Map([
