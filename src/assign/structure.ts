@@ -31,6 +31,9 @@ import { lowerBound, matchLines, type Prediction } from './match.js';
  *    Fortrat polynomial with other B′, B″): only the origin line, the intensities and the priors can.
  * 4. The numbering with the least total is chosen when the runner-up's total is at least MIN_MARGIN more;
  *    otherwise there is no numbering to report, and the caller refuses.
+ *
+ * The stage functions below are exported for their direct tests (test/assign/structure-stages.test.ts); the
+ * service and the rest of src/assign use assignByStructure, extendByFit and MIN_MARGIN only.
  */
 
 export interface NumberingEvidence {
@@ -108,18 +111,18 @@ const PEKERIS_DOUBT = 0.08;
 /** Cost of a line lying at a numbering's band origin. */
 const ORIGIN_LINE_COST = 25;
 
-interface Point {
+export interface Point {
   m: number;
   index: number;
   position: number;
 }
 
-type Peak = { position: number; uncertainty?: number; intensity?: number };
+export type Peak = { position: number; uncertainty?: number; intensity?: number };
 /** Index of a peak → its transition (lower J and branch) in the band being numbered. */
-type Numbering = Map<number, { branch: Branch; j: number }>;
+export type Numbering = Map<number, { branch: Branch; j: number }>;
 
 /** What every numbering of one call is judged against. */
-interface StructureContext {
+export interface StructureContext {
   readonly peaks: readonly Peak[];
   readonly species: string;
   readonly band: Band;
@@ -160,7 +163,7 @@ export function assignByStructure(
  * weakest lines of a band, and a spurious peak may sit inside the gap: b may also be the second or third peak
  * after a), longest first.
  */
-function progressions(order: readonly { index: number; position: number }[], pos: Float64Array): Point[][] {
+export function progressions(order: readonly { index: number; position: number }[], pos: Float64Array): Point[][] {
   const chains: Point[][] = [];
   /** The smooth progressions (by their place in `chains`) each line belongs to. */
   const inChain = new Map<number, number[]>();
@@ -191,7 +194,7 @@ function progressions(order: readonly { index: number; position: number }[], pos
 }
 
 /** The longest progressions (within 90 % of the longest), at most four distinct: several gap pairs usually grow the same one. */
-function longestProgressions(chains: readonly Point[][]): Point[][] {
+export function longestProgressions(chains: readonly Point[][]): Point[][] {
   const longest = (chains[0] as Point[]).length;
   const seen = new Set<string>();
   const contenders: Point[][] = [];
@@ -211,7 +214,7 @@ function longestProgressions(chains: readonly Point[][]): Point[][] {
 }
 
 /** A numbering's identity: two progressions may number the same lines the same way. */
-function numberingKey(map: Numbering): string {
+export function numberingKey(map: Numbering): string {
   return [...map]
     .map(([i, t]) => `${i}${t.branch}${t.j}`)
     .sort()
@@ -219,7 +222,7 @@ function numberingKey(map: Numbering): string {
 }
 
 /** Every numbering of the contending progressions judged once (`tried` collects their keys). */
-function judgeProgressions(contenders: readonly Point[][], ctx: StructureContext, tried: Set<string>): Trial[] {
+export function judgeProgressions(contenders: readonly Point[][], ctx: StructureContext, tried: Set<string>): Trial[] {
   const trials: Trial[] = [];
   for (const chain of contenders) {
     for (const { q, delta } of numberingsOf(chain)) {
@@ -239,7 +242,7 @@ function judgeProgressions(contenders: readonly Point[][], ctx: StructureContext
  * The nearest rivals of the best numbering, always judged: the whole numbering moved by up to three lines, and the
  * R side moved by one against the P side (a line lying at a rival's origin then counts against it).
  */
-function judgeRivals(first: Trial, ctx: StructureContext, tried: Set<string>): Trial[] {
+export function judgeRivals(first: Trial, ctx: StructureContext, tried: Set<string>): Trial[] {
   const trials: Trial[] = [];
   for (let shift = -3; shift <= 3; shift++)
     for (const delta of [-1, 0, 1]) {
@@ -259,13 +262,13 @@ function judgeRivals(first: Trial, ctx: StructureContext, tried: Set<string>): T
   return trials;
 }
 
-type ScoredTrial = Trial & { evidence: NumberingEvidence };
+export type ScoredTrial = Trial & { evidence: NumberingEvidence };
 
 /**
  * Different progressions (one with a stray line more, say) give the same numbering: one entry per band origin
  * (within a quarter of the line spacing), the best scored.
  */
-function onePerOrigin(scored: readonly ScoredTrial[], peaks: readonly Peak[]): ScoredTrial[] {
+export function onePerOrigin(scored: readonly ScoredTrial[], peaks: readonly Peak[]): ScoredTrial[] {
   const spacing = localSpacing(scored[0]?.map ?? new Map(), peaks);
   const evidence: ScoredTrial[] = [];
   for (const t of scored) {
@@ -282,7 +285,7 @@ function onePerOrigin(scored: readonly ScoredTrial[], peaks: readonly Peak[]): S
 
 /** The best numbering, its margin over the runner-up, and whether it passes its own tests. */
 /** Root mean square residual of the fitted lines among the first `count` (the numbered ones, not the anchors). */
-function fittedRms(r: FitResult, count: number): number {
+export function fittedRms(r: FitResult, count: number): number {
   let sum = 0;
   let n = 0;
   for (const l of r.lines) {
@@ -293,7 +296,7 @@ function fittedRms(r: FitResult, count: number): number {
   return n > 0 ? Math.sqrt(sum / n) : Number.POSITIVE_INFINITY;
 }
 
-function verdict(evidence: readonly ScoredTrial[], peaks: readonly Peak[]): StructureAssignment {
+export function verdict(evidence: readonly ScoredTrial[], peaks: readonly Peak[]): StructureAssignment {
   const best = evidence[0] as ScoredTrial;
   const runnerUp = evidence[1];
   const margin = runnerUp ? runnerUp.evidence.score - best.evidence.score : Number.POSITIVE_INFINITY;
@@ -322,7 +325,7 @@ function verdict(evidence: readonly ScoredTrial[], peaks: readonly Peak[]): Stru
 }
 
 /** The peaks as a line list numbered by `map` (the others unassigned). */
-function numberedLines(map: Numbering, ctx: StructureContext): LineInput[] {
+export function numberedLines(map: Numbering, ctx: StructureContext): LineInput[] {
   const { peaks, species, band } = ctx;
   return peaks.map((pk, index) => {
     const t = map.get(index);
@@ -332,7 +335,12 @@ function numberedLines(map: Numbering, ctx: StructureContext): LineInput[] {
 }
 
 /** Whether a peak lies within the fit's tolerance of the numbering's band origin. */
-function lineAtOriginOf(origin: number | undefined, rms: number, map: Numbering, ctx: StructureContext): boolean {
+export function lineAtOriginOf(
+  origin: number | undefined,
+  rms: number,
+  map: Numbering,
+  ctx: StructureContext,
+): boolean {
   if (origin === undefined) return false;
   const { peaks, pos } = ctx;
   const spacing = localSpacing(map, peaks);
@@ -343,7 +351,7 @@ function lineAtOriginOf(origin: number | undefined, rms: number, map: Numbering,
 }
 
 /** One numbering fitted and tested; undefined when the fit refuses it. */
-function judge(map: Numbering, q: number, delta: number, ctx: StructureContext): Trial | undefined {
+export function judge(map: Numbering, q: number, delta: number, ctx: StructureContext): Trial | undefined {
   const { peaks, band, anchors, masses } = ctx;
   try {
     // Lines already numbered (another band of the species) are fitted with it: a level the two bands share must
@@ -379,7 +387,7 @@ function judge(map: Numbering, q: number, delta: number, ctx: StructureContext):
   }
 }
 
-interface Trial {
+export interface Trial {
   map: Map<number, { branch: Branch; j: number }>;
   q: number;
   delta: number;
@@ -404,7 +412,7 @@ interface Trial {
  * hot band's lower level fixed by the band below, a misaligned numbering can fit its lines at χ²/ν 0.59 against the
  * true numbering's 0.99), and must not make the true one look bad.
  */
-function positionScale(trials: readonly Trial[]): number {
+export function positionScale(trials: readonly Trial[]): number {
   const own = (t: Trial) => {
     const d = t.intercept
       ? Math.min(1e6, (t.intercept.value / (t.intercept.uncertainty * t.intercept.ownScale || 1)) ** 2)
@@ -422,7 +430,7 @@ function positionScale(trials: readonly Trial[]): number {
 }
 
 /** Evidence totals of every trial, best first. */
-function score(trials: readonly Trial[]): (Trial & { evidence: NumberingEvidence })[] {
+export function score(trials: readonly Trial[]): (Trial & { evidence: NumberingEvidence })[] {
   const minRed = positionScale(trials);
   const rssMin = Math.min(...trials.flatMap((t) => (t.boltzmann ? [t.boltzmann.rss / t.boltzmann.n] : [])));
   // The lines' scale, from the numbering that fits them best (a misaligned one inflates its own).
@@ -476,7 +484,7 @@ function score(trials: readonly Trial[]): (Trial & { evidence: NumberingEvidence
   return out.sort((a, b) => a.evidence.score - b.evidence.score);
 }
 
-function describeShift(q: number, delta: number): string {
+export function describeShift(q: number, delta: number): string {
   const f = (x: number) => (x > 0 ? `+${x}` : `${x}`);
   return `origin at slot ${q} of the progression${delta !== 0 ? `, R side moved ${f(delta)} against the P side` : ''}`;
 }
@@ -487,7 +495,7 @@ function describeShift(q: number, delta: number): string {
  * slot q (those nearest the seed gap first, at most 16, and up to 12 inside the progression), and the R side of the seed gap moved by δ = −1, 0, +1
  * against the P side (in case the gap was misjudged by a line).
  */
-function numberingsOf(chain: readonly Point[]): { q: number; delta: number }[] {
+export function numberingsOf(chain: readonly Point[]): { q: number; delta: number }[] {
   const ms = new Set(chain.map((p) => p.m));
   const lo = Math.min(...ms);
   const hi = Math.max(...ms);
@@ -507,7 +515,7 @@ function numberingsOf(chain: readonly Point[]): { q: number; delta: number }[] {
  * The chain numbered with the origin at slot q and the R side of the seed gap (m ≥ 0) moved by δ: index m − q
  * (after the move) is the running number, R(J) at J + 1, P(J) at −J. Undefined when a line would sit at the origin.
  */
-function numbered(
+export function numbered(
   chain: readonly Point[],
   q: number,
   delta: number,
@@ -521,7 +529,7 @@ function numbered(
   return map;
 }
 
-function localSpacing(map: ReadonlyMap<number, { branch: Branch; j: number }>, peaks: readonly Peak[]): number {
+export function localSpacing(map: ReadonlyMap<number, { branch: Branch; j: number }>, peaks: readonly Peak[]): number {
   const byM = [...map]
     .map(([i, t]) => ({ m: t.branch === 'R' ? t.j + 1 : -t.j, x: (peaks[i] as Peak).position }))
     .sort((a, b) => a.m - b.m);
@@ -540,7 +548,7 @@ function localSpacing(map: ReadonlyMap<number, { branch: Branch; j: number }>, p
  * are again R(J−1), P(J+1) of a polynomial in m: this test catches misaligned sides, not a whole shift. Weighted by
  * the lines' σ when given; the uncertainty is the a-priori one, for unit σ where none is given.
  */
-function differenceIntercept(
+export function differenceIntercept(
   map: ReadonlyMap<number, { branch: Branch; j: number }>,
   peaks: readonly Peak[],
 ): { value: number; uncertainty: number; ownScale: number } | undefined {
@@ -601,7 +609,7 @@ function differenceIntercept(
 }
 
 /** Residual sum of squares of the Boltzmann plot ln(I/(S·ν)) = a − b·E″ over both branches (six lines or more). */
-function boltzmannResiduals(
+export function boltzmannResiduals(
   map: ReadonlyMap<number, { branch: Branch; j: number }>,
   peaks: readonly Peak[],
   r: FitResult,
@@ -635,7 +643,7 @@ function boltzmannResiduals(
  * estimates σ per band for lines without, either of which lets a misnumbered band, its residuals blown up, pass for
  * a noisy one (real CO 2-1 numbered wrong beside 1-0 without σ). Undefined for a mix.
  */
-function statedChiSquare(r: FitResult, lines: readonly LineInput[]): number | undefined {
+export function statedChiSquare(r: FitResult, lines: readonly LineInput[]): number | undefined {
   let chi = 0;
   let rss = 0;
   let withSigma = 0;
@@ -657,7 +665,7 @@ function statedChiSquare(r: FitResult, lines: readonly LineInput[]): number | un
 }
 
 /** The fitted origin of `band` (the fit may hold other bands of the species too). */
-function originOf(r: FitResult, band: Band): number | undefined {
+export function originOf(r: FitResult, band: Band): number | undefined {
   return r.bands.find((b) => b.band === `${band.upper}-${band.lower}`)?.origin?.value;
 }
 
@@ -780,7 +788,7 @@ export function grow(
 }
 
 /** A progression grown from a seed pair whose gap spans `slots` spacings. */
-function growWithSlots(
+export function growWithSlots(
   p1: { index: number; position: number },
   r0: { index: number; position: number },
   slots: number,
@@ -814,7 +822,7 @@ function growWithSlots(
  * the band origin, so a seed gap that is the origin loses nothing, while a spurious line taken as the seed beyond
  * one end of a band, its whole band then grown on the other side, is dropped rather than numbered as P(42).
  */
-function withoutStraySeedSide(points: Point[], spacing0: number): Point[] {
+export function withoutStraySeedSide(points: Point[], spacing0: number): Point[] {
   const pSide = points.filter((p) => p.m < 0);
   const rSide = points.filter((p) => p.m >= 0);
   const [small, large] = pSide.length <= rSide.length ? [pSide, rSide] : [rSide, pSide];
@@ -836,7 +844,7 @@ function withoutStraySeedSide(points: Point[], spacing0: number): Point[] {
  * points or more share one residue of m + 1 modulo 2 or 3, those are kept and renumbered, the others dropped; the
  * seed's P-side line stays at m = −1.
  */
-function byCommonStep(points: readonly Point[]): Point[] {
+export function byCommonStep(points: readonly Point[]): Point[] {
   for (const g of [3, 2]) {
     const count = new Map<number, number>();
     for (const p of points) {
@@ -860,7 +868,7 @@ function byCommonStep(points: readonly Point[]): Point[] {
  * leaves them out): the P side upwards and the R side downwards, from the side's own polynomial, until the other
  * side is reached or two indices in a row are empty (the origin is one, a lost P(1) or R(0) another).
  */
-function extendInwards(
+export function extendInwards(
   points: Point[],
   used: Set<number>,
   pos: Float64Array,
@@ -902,14 +910,14 @@ function extendInwards(
  * A local polynomial's points: the twelve nearest in m to the one sought, from its own side of the seed gap once
  * that side has four (the two sides may be misaligned by a line until a numbering says otherwise).
  */
-function localPoints(points: readonly Point[], m: number): readonly Point[] {
+export function localPoints(points: readonly Point[], m: number): readonly Point[] {
   const same = points.filter((p) => p.m < 0 === m < 0);
   const pool = same.length >= 4 ? same : points;
   return pool.length <= 12 ? pool : [...pool].sort((x, y) => Math.abs(x.m - m) - Math.abs(y.m - m)).slice(0, 12);
 }
 
 /** The free line nearest to `predicted` within `tol`, or undefined. */
-function nearestFree(
+export function nearestFree(
   predicted: number,
   tol: number,
   used: ReadonlySet<number>,
@@ -930,7 +938,7 @@ function nearestFree(
  * filled with the nearest free line within a fifth of the spacing of the polynomial through the twelve nearest
  * points: interpolated, far sharper than the extrapolation that grew past it.
  */
-function fillHoles(
+export function fillHoles(
   points: Point[],
   used: Set<number>,
   pos: Float64Array,
@@ -957,7 +965,7 @@ function fillHoles(
 }
 
 /** Grow both sides of a progression outwards (each until three lines in a row are missing). */
-function extendBothSides(
+export function extendBothSides(
   points: Point[],
   used: Set<number>,
   pos: Float64Array,
@@ -1011,7 +1019,7 @@ function extendBothSides(
  * refitted without those beyond (twice). A side of fewer than eight points is kept as it is; undefined when a side
  * would keep fewer than six.
  */
-function withoutStrays(points: readonly Point[]): Point[] | undefined {
+export function withoutStrays(points: readonly Point[]): Point[] | undefined {
   const out: Point[] = [];
   for (const side of [points.filter((p) => p.m < 0), points.filter((p) => p.m >= 0)]) {
     if (side.length < 8) {
@@ -1030,7 +1038,7 @@ function withoutStrays(points: readonly Point[]): Point[] | undefined {
  * that polynomial may lie (six of it) — a spurious line a tenth of a spacing off is not taken for a lost one.
  * Infinite when the side has too few points to tell.
  */
-function sideScatter(points: readonly Point[], pSide: boolean): number {
+export function sideScatter(points: readonly Point[], pSide: boolean): number {
   const side = points.filter((p) => p.m < 0 === pSide);
   if (side.length < 8) return Number.POSITIVE_INFINITY;
   const r = polynomialResiduals(side);
@@ -1047,7 +1055,7 @@ function sideScatter(points: readonly Point[], pSide: boolean): number {
 }
 
 /** Residuals of the points about one polynomial in m (degree up to 4), or undefined when it cannot be fitted. */
-function polynomialResiduals(points: readonly Point[]): Float64Array | undefined {
+export function polynomialResiduals(points: readonly Point[]): Float64Array | undefined {
   const n = points.length;
   const cols = Math.min(5, n - 3);
   if (cols < 2) return undefined;
@@ -1062,7 +1070,7 @@ function polynomialResiduals(points: readonly Point[]): Float64Array | undefined
   return r.rankDeficient ? undefined : r.residuals;
 }
 
-function strayFree(points: readonly Point[]): Point[] | undefined {
+export function strayFree(points: readonly Point[]): Point[] | undefined {
   let kept = [...points];
   for (let round = 0; round < 2; round++) {
     const r = polynomialResiduals(kept);
@@ -1078,7 +1086,7 @@ function strayFree(points: readonly Point[]): Point[] | undefined {
 }
 
 /** The Fortrat polynomial through the points so far (degree up to 3 in m), evaluated at m. */
-function fortrat(points: readonly Point[], m: number, spacing0: number, maxDegree = 3): number {
+export function fortrat(points: readonly Point[], m: number, spacing0: number, maxDegree = 3): number {
   const n = points.length;
   const degree = Math.min(maxDegree, n - 1);
   if (degree < 2) {
