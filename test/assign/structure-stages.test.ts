@@ -1629,4 +1629,43 @@ describe('growth along the fit', () => {
     const tiny = new Map([[0, { branch: 'P' as Branch, j: 24 }]]);
     expect(extendByFit(peaks, tiny, cs.formula, reducedMass(cs), BAND10)).toEqual(tiny);
   });
+
+  it('a wrong line in the start is dropped by the fit and the right one taken; anchors are never numbered', () => {
+    const lines = csLines({ pMax: 16, rMax: 16, sigma: 0.001, seed: 34 });
+    const stray = { position: CS_ORIGIN + 20.1, uncertainty: 0.001 };
+    const peaks = [...lines.map((l) => ({ position: l.position, uncertainty: 0.001 })), stray];
+    const start: Numbering = new Map();
+    lines.forEach((l, i) => {
+      if (l.j <= 8 && !(l.branch === 'R' && l.j === 5)) start.set(i, { branch: l.branch, j: l.j });
+    });
+    start.set(peaks.length - 1, { branch: 'R', j: 5 });
+    const out = extendByFit(peaks, start, cs.formula, reducedMass(cs), BAND10);
+    expect(out.has(peaks.length - 1)).toBe(false);
+    expect(out.size).toBe(lines.length);
+    for (const [i, t] of out) expect(t).toEqual({ branch: (lines[i] as Made).branch, j: (lines[i] as Made).j });
+    // Anchors: the CS 2-1 hot band's lines, numbered, made here (G(2) − G(1) = ω_e − 4ω_e x_e).
+    const l1 = csLevel(1);
+    const l2 = csLevel(2);
+    const hot = [2, 3, 4, 5, 6, 7, 8, 9].flatMap((j) => [
+      {
+        position: CS.we - 4 * CS.wexe + term(l2, j + 1) - term(l1, j),
+        uncertainty: 0.001,
+        assignment: { species: cs.formula, band: { upper: 2, lower: 1 }, branch: 'R' as Branch, j, source: 'given' as const },
+      },
+      {
+        position: CS.we - 4 * CS.wexe + term(l2, j - 1) - term(l1, j),
+        uncertainty: 0.001,
+        assignment: { species: cs.formula, band: { upper: 2, lower: 1 }, branch: 'P' as Branch, j, source: 'given' as const },
+      },
+    ]);
+    const small: Numbering = new Map();
+    lines.forEach((l, i) => {
+      if (l.j <= 8) small.set(i, { branch: l.branch, j: l.j });
+    });
+    const withAnchors = extendByFit(peaks, small, cs.formula, reducedMass(cs), BAND10, hot);
+    expect(Math.max(...withAnchors.keys())).toBeLessThan(peaks.length);
+    expect(withAnchors.size).toBe(lines.length);
+    for (const [i, t] of withAnchors)
+      expect(t).toEqual({ branch: (lines[i] as Made).branch, j: (lines[i] as Made).j });
+  });
 });
