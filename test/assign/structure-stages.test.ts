@@ -1650,12 +1650,24 @@ describe('growth along the fit', () => {
       {
         position: CS.we - 4 * CS.wexe + term(l2, j + 1) - term(l1, j),
         uncertainty: 0.001,
-        assignment: { species: cs.formula, band: { upper: 2, lower: 1 }, branch: 'R' as Branch, j, source: 'given' as const },
+        assignment: {
+          species: cs.formula,
+          band: { upper: 2, lower: 1 },
+          branch: 'R' as Branch,
+          j,
+          source: 'given' as const,
+        },
       },
       {
         position: CS.we - 4 * CS.wexe + term(l2, j - 1) - term(l1, j),
         uncertainty: 0.001,
-        assignment: { species: cs.formula, band: { upper: 2, lower: 1 }, branch: 'P' as Branch, j, source: 'given' as const },
+        assignment: {
+          species: cs.formula,
+          band: { upper: 2, lower: 1 },
+          branch: 'P' as Branch,
+          j,
+          source: 'given' as const,
+        },
       },
     ]);
     const small: Numbering = new Map();
@@ -1665,7 +1677,6 @@ describe('growth along the fit', () => {
     const withAnchors = extendByFit(peaks, small, cs.formula, reducedMass(cs), BAND10, hot);
     expect(Math.max(...withAnchors.keys())).toBeLessThan(peaks.length);
     expect(withAnchors.size).toBe(lines.length);
-    for (const [i, t] of withAnchors)
-      expect(t).toEqual({ branch: (lines[i] as Made).branch, j: (lines[i] as Made).j });
+    for (const [i, t] of withAnchors) expect(t).toEqual({ branch: (lines[i] as Made).branch, j: (lines[i] as Made).j });
   });
 });
