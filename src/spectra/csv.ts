@@ -177,6 +177,8 @@ export function parseCsv(text: string, limits: CsvLimits = {}): CsvData {
     throw new ScienceError('INPUT_INVALID', `the CSV holds no rows of numbers${read}`, {});
   }
   const decimalComma = delimiter !== ',';
+  if (header !== undefined)
+    refuseExtraFields(data, header.cells.length, `the header has ${header.cells.length}`, delimiter);
 
   const columns = header?.cells.map(readHeaderCell);
   const has = (c: Column) => columns?.some((x) => x.column === c) ?? false;
@@ -187,11 +189,58 @@ export function parseCsv(text: string, limits: CsvLimits = {}): CsvData {
       : has('absorbance') || has('transmittance')
         ? false
         : (data[0]?.cells.length ?? 0) === 1 || !looksUniform(firstColumn());
+  if (header === undefined) {
+    refuseExtraFields(data, lineList ? 3 : 2, lineList ? HEADERLESS_LIST : HEADERLESS_SPECTRUM, delimiter);
+    if (delimiter === ',') refuseLeadingZeros(data);
+  }
   if (!lineList) {
     const yUnit = has('transmittance') ? 'transmittance' : has('absorbance') ? 'absorbance' : undefined;
     return readSpectrum(data, decimalComma, yUnit);
   }
   return readLineList(data, decimalComma, header?.line ?? 1, columns, unitsRow);
+}
+
+const HEADERLESS_LIST = 'without a header a line list has at most 3 (position, intensity, uncertainty)';
+const HEADERLESS_SPECTRUM = 'without a header a spectrum has 2 (x, y)';
+const DECIMAL_COMMA_HINT =
+  "decimal commas with ',' as the separator? Use ';' or tab as the separator, or decimal points";
+
+/**
+ * A row with more fields than the header allows is refused, never cut: with ',' as the separator, decimal commas
+ * split every number in two ("2082,0023,0,002" under "position,uncertainty"), and the extra fields would be
+ * dropped without a word.
+ */
+function refuseExtraFields(
+  data: readonly { line: number; cells: string[] }[],
+  allowed: number,
+  reference: string,
+  delimiter: string | undefined,
+): void {
+  const row = data.find((r) => r.cells.length > allowed);
+  if (row === undefined) return;
+  const numeric = row.cells.every((c) => /^[+-]?\d+(?:[eE][+-]?\d+)?$/.test(c));
+  const cause =
+    delimiter === ',' && numeric
+      ? DECIMAL_COMMA_HINT
+      : reference.startsWith('the header')
+        ? 'a separator inside a cell that is not quoted?'
+        : 'name the columns in a header row';
+  fail(row.line, `has ${row.cells.length} fields, ${reference}: ${cause}`, {
+    fields: row.cells.length,
+    allowedFields: allowed,
+    ...(delimiter === ',' && numeric ? { likelyCause: 'decimal commas with "," as the separator' } : {}),
+  });
+}
+
+/** A cell such as "0023" is the decimal part of a number split at its decimal comma, never a number of its own. */
+function refuseLeadingZeros(data: readonly { line: number; cells: string[] }[]): void {
+  for (const r of data) {
+    const cell = r.cells.find((c) => /^[+-]?0\d/.test(c));
+    if (cell !== undefined)
+      fail(r.line, `"${cell.slice(0, 30)}" is not a number of its own (${DECIMAL_COMMA_HINT})`, {
+        likelyCause: 'decimal commas with "," as the separator',
+      });
+  }
 }
 
 function isLineListHeader(cells: readonly string[]): boolean {
