@@ -243,10 +243,21 @@ function refuseLeadingZeros(data: readonly { line: number; cells: string[] }[]):
   }
 }
 
+/**
+ * A header of a line list: a column only lines have (uncertainty, intensity, band, branch, j), or a position column
+ * without an absorbance or transmittance beside it ("position (cm-1),absorbance" is a spectrum, as README says).
+ */
 function isLineListHeader(cells: readonly string[]): boolean {
   const cols = cells.map((c) => readHeaderCell(c).column);
+  const spectrumY = cols.includes('absorbance') || cols.includes('transmittance');
   return cols.some(
-    (c) => c === 'position' || c === 'uncertainty' || c === 'intensity' || c === 'band' || c === 'branch' || c === 'j',
+    (c) =>
+      (c === 'position' && !spectrumY) ||
+      c === 'uncertainty' ||
+      c === 'intensity' ||
+      c === 'band' ||
+      c === 'branch' ||
+      c === 'j',
   );
 }
 
