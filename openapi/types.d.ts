@@ -1811,6 +1811,8 @@ export interface operations {
          * @example 296
          */
         temperature?: string;
+        /** @description for CSV and JCAMP-DX bodies: the unit of the line positions, or of a spectrum's x (cm-1, um or nm), when the file does not name it (a unit the file names must agree) */
+        unit?: "cm-1" | "1/cm" | "1/CM" | "cm^-1" | "cm⁻¹" | "CM-1" | "wavenumber" | "wavenumbers" | "WAVENUMBERS" | "um" | "µm" | "μm" | "micrometers" | "micrometres" | "microns" | "MICROMETERS" | "nm" | "nanometers" | "nanometres" | "NANOMETERS" | "MHz" | "GHz" | "THz";
         /** @description sample.id, for JCAMP-DX and CSV bodies */
         "sample.id"?: string;
         "sample.description"?: string;
@@ -1940,6 +1942,8 @@ export interface operations {
          * @example 296
          */
         temperature?: string;
+        /** @description for CSV and JCAMP-DX bodies: the unit of the line positions, or of a spectrum's x (cm-1, um or nm), when the file does not name it (a unit the file names must agree) */
+        unit?: "cm-1" | "1/cm" | "1/CM" | "cm^-1" | "cm⁻¹" | "CM-1" | "wavenumber" | "wavenumbers" | "WAVENUMBERS" | "um" | "µm" | "μm" | "micrometers" | "micrometres" | "microns" | "MICROMETERS" | "nm" | "nanometers" | "nanometres" | "NANOMETERS" | "MHz" | "GHz" | "THz";
         /** @description sample.id, for JCAMP-DX and CSV bodies */
         "sample.id"?: string;
         "sample.description"?: string;
@@ -2350,6 +2354,8 @@ export interface operations {
          * @example 296
          */
         temperature?: string;
+        /** @description for CSV and JCAMP-DX bodies: the unit of the line positions, or of a spectrum's x (cm-1, um or nm), when the file does not name it (a unit the file names must agree) */
+        unit?: "cm-1" | "1/cm" | "1/CM" | "cm^-1" | "cm⁻¹" | "CM-1" | "wavenumber" | "wavenumbers" | "WAVENUMBERS" | "um" | "µm" | "μm" | "micrometers" | "micrometres" | "microns" | "MICROMETERS" | "nm" | "nanometers" | "nanometres" | "NANOMETERS" | "MHz" | "GHz" | "THz";
         /** @description sample.id, for JCAMP-DX and CSV bodies */
         "sample.id"?: string;
         "sample.description"?: string;

@@ -1,7 +1,8 @@
 import type { FastifyError, FastifyReply, FastifyRequest } from 'fastify';
 import { hasZodFastifySchemaValidationErrors } from 'fastify-type-provider-zod';
 import { ScienceError, type ScienceErrorCode } from '../src/errors.js';
-import { acceptedBodiesAdvice } from './text-bodies.js';
+import { RawBody } from './raw-body.js';
+import { acceptedBodiesAdvice, CSV_TYPES, JCAMP_TYPES } from './text-bodies.js';
 import { NonFiniteResult } from './usecases/finite.js';
 
 /**
@@ -110,6 +111,35 @@ export const truncate = (s: string, max = MAX_DETAIL_CHARS): string =>
 /** Request path without the query string, shortened: a problem's `instance`. */
 export const instanceOf = (request: FastifyRequest): string => truncate(request.url.split('?')[0] ?? '', 200);
 
+const JSON_UNIT_ADVICE = 'send "unit": "um"';
+
+/**
+ * The assignment's hint that positions read like wavelengths in µm ends with the remedy for a JSON line list
+ * (`"unit": "um"`); a JSON spectrum, a CSV and a JCAMP-DX body say their unit elsewhere, so the remedy is the one
+ * for the body that was sent.
+ */
+function withUnitAdvice(e: ScienceError, request: FastifyRequest): ScienceError {
+  if (e.details.suggestedUnit !== 'um' || !e.message.endsWith(JSON_UNIT_ADVICE)) return e;
+  const type =
+    String(request.headers['content-type'] ?? '')
+      .split(';')[0]
+      ?.trim()
+      .toLowerCase() ?? '';
+  const body = request.body;
+  const spectrum =
+    body instanceof RawBody
+      ? body.text.includes('"spectrum"')
+      : typeof body === 'object' && body !== null && 'spectrum' in body;
+  const advice = (CSV_TYPES as readonly string[]).includes(type)
+    ? `name the unit in the CSV header (${spectrum ? '"wavelength (um),absorbance"' : '"position (um)"'}) or send ?unit=um`
+    : (JCAMP_TYPES as readonly string[]).includes(type)
+      ? "the file's ##XUNITS should say MICROMETERS"
+      : spectrum
+        ? 'send "spectrum": {"xUnit": "um", …}'
+        : JSON_UNIT_ADVICE;
+  return new ScienceError(e.code, `${e.message.slice(0, -JSON_UNIT_ADVICE.length)}${advice}`, { ...e.details });
+}
+
 export function toProblem(error: unknown, request: FastifyRequest): Problem {
   const p = toProblemUntruncated(error, request);
   return {
@@ -124,7 +154,7 @@ export function toProblem(error: unknown, request: FastifyRequest): Problem {
 function toProblemUntruncated(error: unknown, request: FastifyRequest): Problem {
   const instance = instanceOf(request);
   if (error instanceof HttpProblem) return { ...error.problem, instance };
-  if (error instanceof ScienceError) return scienceProblem(error, instance);
+  if (error instanceof ScienceError) return scienceProblem(withUnitAdvice(error, request), instance);
   if (error instanceof NonFiniteResult) return nonFiniteProblem(error, instance);
   if (hasZodFastifySchemaValidationErrors(error)) {
     // A query-string parameter is named as such: `(body)` sent readers of a CSV upload looking in the file.

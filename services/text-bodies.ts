@@ -1,6 +1,8 @@
 import { ScienceError } from '../src/errors.js';
 import { parseCsv } from '../src/spectra/csv.js';
 import { parseJcamp } from '../src/spectra/jcamp.js';
+import type { PositionUnit } from '../src/units.js';
+import { PositionUnitSchema } from './schemas/fit.js';
 
 /** Media types of spectra and line lists accepted besides JSON. */
 export const JCAMP_TYPES = ['chemical/x-jcamp-dx', 'chemical/x-jcamp'] as const;
@@ -42,6 +44,45 @@ function yUnitOf(units: string): 'absorbance' | 'transmittance' {
   });
 }
 
+/** `?unit=` of a CSV or JCAMP-DX body, in any spelling the JSON `unit` takes. */
+function queryUnitOf(query: Record<string, unknown>): PositionUnit | undefined {
+  if (query.unit === undefined || query.unit === '') return undefined;
+  const u = PositionUnitSchema.safeParse(query.unit);
+  if (!u.success)
+    throw new ScienceError(
+      'UNIT_INVALID',
+      `unit=${String(query.unit).slice(0, 20)} is not one of cm-1, MHz, GHz, THz, um, nm`,
+      {
+        unit: String(query.unit).slice(0, 20),
+      },
+    );
+  return u.data;
+}
+
+/** The unit the file names, else the query's; both, and different, is a contradiction to refuse. */
+function agreedUnit<U extends string>(
+  inFile: U | undefined,
+  inQuery: PositionUnit | undefined,
+  where: string,
+): U | PositionUnit | undefined {
+  if (inFile !== undefined && inQuery !== undefined && inFile !== inQuery)
+    throw new ScienceError(
+      'INPUT_INVALID',
+      `${where} names the unit ${inFile}, the query unit=${inQuery}; send one or make them agree`,
+      {
+        fileUnit: inFile,
+        queryUnit: inQuery,
+      },
+    );
+  return inFile ?? inQuery;
+}
+
+/** A spectrum's x is a wavenumber or a vacuum wavelength; frequencies are for line lists. */
+function spectrumUnit(u: PositionUnit | undefined): 'cm-1' | 'um' | 'nm' | undefined {
+  if (u === undefined || u === 'cm-1' || u === 'um' || u === 'nm') return u;
+  throw new ScienceError('UNIT_INVALID', `a spectrum's x is in cm-1, um or nm, not ${u}`, { unit: u });
+}
+
 /**
  * A JCAMP-DX or CSV body turned into the JSON body of the same endpoint: a spectrum or a line list, with the
  * species (and temperature) taken from the query string.
@@ -66,10 +107,11 @@ export function textBodyToJson(
     if (typeof v === 'string' && v !== '') sample[k] = v;
   }
   if (Object.keys(sample).length > 0) extra.sample = sample;
+  const queryUnit = queryUnitOf(query);
   if ((JCAMP_TYPES as readonly string[]).some((t) => contentType.startsWith(t))) {
     const d = parseJcamp(text, { maxPoints: limits.maxPoints, maxPeaks: limits.maxLines });
     if (d.kind === 'peaks') {
-      const xUnit = xUnitOf(d.xUnits);
+      const xUnit = agreedUnit(xUnitOf(d.xUnits), queryUnit, "the file's ##XUNITS");
       return {
         ...extra,
         unit: xUnit,
@@ -78,11 +120,27 @@ export function textBodyToJson(
     }
     return {
       ...extra,
-      spectrum: { x: Array.from(d.x), y: Array.from(d.y), xUnit: xUnitOf(d.xUnits), yUnit: yUnitOf(d.yUnits) },
+      spectrum: {
+        x: Array.from(d.x),
+        y: Array.from(d.y),
+        xUnit: agreedUnit(xUnitOf(d.xUnits), queryUnit, "the file's ##XUNITS"),
+        yUnit: yUnitOf(d.yUnits),
+      },
     };
   }
   const c = parseCsv(text, { maxRows: limits.maxPoints, maxLines: limits.maxLines });
-  if (c.kind === 'lines')
-    return { ...extra, ...(c.unit ? { unit: c.unit } : {}), lines: c.lines.map((l) => ({ ...l })) };
-  return { ...extra, spectrum: { x: Array.from(c.x), y: Array.from(c.y), ...(c.yUnit ? { yUnit: c.yUnit } : {}) } };
+  if (c.kind === 'lines') {
+    const unit = agreedUnit(c.unit, queryUnit, 'the CSV header');
+    return { ...extra, ...(unit ? { unit } : {}), lines: c.lines.map((l) => ({ ...l })) };
+  }
+  const xUnit = spectrumUnit(agreedUnit(c.xUnit, queryUnit, 'the CSV header'));
+  return {
+    ...extra,
+    spectrum: {
+      x: Array.from(c.x),
+      y: Array.from(c.y),
+      ...(c.yUnit ? { yUnit: c.yUnit } : {}),
+      ...(xUnit ? { xUnit } : {}),
+    },
+  };
 }

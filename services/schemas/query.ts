@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { PositionUnitSchema } from './fit.js';
 
 /** Query string of the routes that also take JCAMP-DX or CSV bodies (which carry no species of their own). */
 export const SpeciesQuerySchema = z.strictObject({
@@ -8,6 +9,9 @@ export const SpeciesQuerySchema = z.strictObject({
     .regex(/^\d+(\.\d+)?$/)
     .optional()
     .describe('gas temperature in K, for JCAMP-DX and CSV bodies'),
+  unit: PositionUnitSchema.optional().describe(
+    "for CSV and JCAMP-DX bodies: the unit of the line positions, or of a spectrum's x (cm-1, um or nm), when the file does not name it (a unit the file names must agree)",
+  ),
   // The sample of a JCAMP-DX or CSV body, field by field (JSON bodies carry a `sample` object instead).
   'sample.id': z.string().max(200).optional().describe('sample.id, for JCAMP-DX and CSV bodies'),
   'sample.description': z.string().max(2000).optional(),

@@ -14,6 +14,8 @@ export type CsvData =
       readonly x: Float64Array;
       readonly y: Float64Array;
       readonly yUnit?: 'absorbance' | 'transmittance';
+      /** The unit of x, when the header or a units row names it. */
+      readonly xUnit?: SpectrumXUnit;
     }
   | {
       readonly kind: 'lines';
@@ -21,6 +23,8 @@ export type CsvData =
       /** The unit of positions and uncertainties, when the header or a units row names it. */
       readonly unit?: PositionUnit;
     };
+
+export type SpectrumXUnit = 'cm-1' | 'um' | 'nm';
 
 /** Bounds checked while reading, so that an oversized body is refused at its first row too many. */
 export interface CsvLimits {
@@ -156,7 +160,7 @@ export function parseCsv(text: string, limits: CsvLimits = {}): CsvData {
     const numeric = cells.filter((c) => c !== '' && Number.isFinite(numberOf(c, decimalComma))).length;
     if (data.length === 0 && numeric === 0) {
       if (header === undefined) {
-        header = { line: i + 1, cells };
+        header = { line: i + 1, cells: delimiter === ' ' ? joinUnitCells(cells) : cells };
         if (isLineListHeader(cells)) limit = maxLines;
         continue;
       }
@@ -195,7 +199,11 @@ export function parseCsv(text: string, limits: CsvLimits = {}): CsvData {
   }
   if (!lineList) {
     const yUnit = has('transmittance') ? 'transmittance' : has('absorbance') ? 'absorbance' : undefined;
-    return readSpectrum(data, decimalComma, yUnit);
+    // y where the header names it, x the first other column ("absorbance,wavenumber" is read the right way round)
+    const y = columns?.findIndex((c) => c.column === 'absorbance' || c.column === 'transmittance') ?? -1;
+    const at = y === 0 ? { x: 1, y: 0 } : { x: 0, y: y > 0 ? y : 1 };
+    const xUnit = spectrumXUnit(columns?.[at.x]?.unit ?? unitsRow?.[at.x]);
+    return readSpectrum(data, decimalComma, yUnit, at, xUnit);
   }
   return readLineList(data, decimalComma, header?.line ?? 1, columns, unitsRow);
 }
@@ -269,23 +277,44 @@ function looksUniform(xs: readonly number[]): boolean {
   return mean !== 0 && d.every((v) => Math.abs(v - mean) <= 0.05 * Math.abs(mean));
 }
 
+/** A header-less single cell split at its spaces: "frequency (MHz)" and "frequency / MHz" stay one name. */
+function joinUnitCells(cells: readonly string[]): string[] {
+  const out: string[] = [];
+  for (const c of cells) {
+    const last = out.length - 1;
+    if (last >= 0 && (/^[([]/.test(c) || c === '/' || out[last]?.endsWith('/'))) out[last] = `${out[last]} ${c}`;
+    else out.push(c);
+  }
+  return out;
+}
+
+/** A spectrum's x unit from its header or units row: a wavenumber or a vacuum wavelength. */
+function spectrumXUnit(raw: string | undefined): SpectrumXUnit | undefined {
+  if (raw === undefined || raw.trim() === '') return undefined;
+  const u = unitOf(raw);
+  if (u === 'cm-1' || u === 'um' || u === 'nm') return u;
+  throw new ScienceError('UNIT_INVALID', `the spectrum's x unit "${raw}" is not one of cm-1, um, nm`, { unit: raw });
+}
+
 function readSpectrum(
   data: readonly { line: number; cells: string[] }[],
   decimalComma: boolean,
   yUnit: 'absorbance' | 'transmittance' | undefined,
+  at: { readonly x: number; readonly y: number },
+  xUnit: SpectrumXUnit | undefined,
 ): CsvData {
   const x = new Float64Array(data.length);
   const y = new Float64Array(data.length);
   data.forEach((r, k) => {
     if (r.cells.length < 2) fail(r.line, 'a spectrum needs two columns, x and y');
-    const a = numberOf(r.cells[0] as string, decimalComma);
-    const b = numberOf(r.cells[1] as string, decimalComma);
+    const a = numberOf(r.cells[at.x] ?? '', decimalComma);
+    const b = numberOf(r.cells[at.y] ?? '', decimalComma);
     if (!Number.isFinite(a) || !Number.isFinite(b))
       fail(r.line, `"${r.cells.join(',').slice(0, 60)}" is not a row of numbers`);
     x[k] = a;
     y[k] = b;
   });
-  return { kind: 'spectrum', x, y, ...(yUnit ? { yUnit } : {}) };
+  return { kind: 'spectrum', x, y, ...(yUnit ? { yUnit } : {}), ...(xUnit ? { xUnit } : {}) };
 }
 
 function readLineList(

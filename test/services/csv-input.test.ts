@@ -115,3 +115,109 @@ describe('a CSV header naming absorbance or transmittance is a spectrum, whateve
     await fitsAsCoSpectrum(csv);
   });
 });
+
+/** 1 cm⁻¹ = 29 979.2458 MHz (c, exact in the SI). */
+const MHZ_PER_CM = 29979.2458;
+const um = (nu: number) => 1e4 / nu;
+
+describe('a unit in the CSV header is honoured for one column and for spectra', () => {
+  // The first ten 12C16O pure-rotation lines of the real list (cm⁻¹, 6 decimals as published), sent in MHz.
+  const rotation = CO_DATABASE.lines.filter((l) => l.band === '0-0' && l.j < 10).sort((a, b) => a.j - b.j);
+  const B0_PUBLISHED_MHZ = CO_DATABASE.published.B_v_MHz.value[0] as number; // Gendriesch et al. 2009 (fixture)
+
+  it.each(['frequency (MHz)', 'position (MHz)', 'frequency / MHz', 'freq [MHz]'])(
+    'a single column headed "%s" is read in MHz: B0 of 12C16O comes out, not "nothing predicted near 115270 cm-1"',
+    async (header) => {
+      const csv = `${header}\n${rotation.map((l) => (l.position * MHZ_PER_CM).toFixed(4)).join('\n')}\n`;
+      const r = await post('/v1/fits?species=CO', csv);
+      expect(r.statusCode, r.body.slice(0, 300)).toBe(200);
+      const b = r.json().levels[0].B;
+      // B0 in cm⁻¹ against Gendriesch et al. 2009; the list's 6 decimals (±5e-7 cm⁻¹ rounding on each line) allow
+      // about 1e-7 cm⁻¹ on B0 from ten lines: 2e-6 cm⁻¹ (1e-6 relative) is a tolerance of twenty such units.
+      expect(Math.abs(b.value - B0_PUBLISHED_MHZ / MHZ_PER_CM)).toBeLessThan(2e-6);
+    },
+  );
+
+  it('a units row under a one-column header ("frequency" / "MHz") works the same', async () => {
+    const csv = `frequency\nMHz\n${rotation.map((l) => (l.position * MHZ_PER_CM).toFixed(4)).join('\n')}\n`;
+    const r = await post('/v1/fits?species=CO', csv);
+    expect(r.statusCode, r.body.slice(0, 300)).toBe(200);
+    expect(Math.abs(r.json().levels[0].B.value - B0_PUBLISHED_MHZ / MHZ_PER_CM)).toBeLessThan(2e-6);
+  });
+
+  it('a single column headed "position (um)": the CO 1-0 lines are found at their wavenumbers', async () => {
+    const csv = `position (um)\n${CO_10.map((l) => (1e4 / l.position).toFixed(8)).join('\n')}\n`;
+    const r = await post('/v1/fits?species=CO', csv);
+    expect(r.statusCode, r.body.slice(0, 300)).toBe(200);
+    // 2143.2711 cm⁻¹ as above; 1e-8 µm on 4.67 µm is 5e-5 cm⁻¹ per line, 0.005 cm⁻¹ is ample.
+    expect(Math.abs(r.json().bands[0].origin.value - 2143.2711)).toBeLessThan(0.005);
+  });
+
+  it.each([
+    ['wavelength (um),absorbance', undefined],
+    ['position [um],absorbance', undefined],
+    ['wavelength (µm),absorbance', undefined],
+    ['wavelength,absorbance', 'um,'],
+  ])('a spectrum headed "%s" (units row %s) is read in µm', async (header, unitsRow) => {
+    await fitsAsCoSpectrum(spectrumCsv(header, um, unitsRow));
+  });
+
+  it('?unit=um names the unit of a CSV whose header does not', async () => {
+    const r = await post('/v1/fits?species=CO&unit=um', spectrumCsv('wavelength,absorbance', um));
+    expect(r.statusCode, r.body.slice(0, 300)).toBe(200);
+    expect(Math.abs(r.json().bands[0].origin.value - TRUE_ORIGIN)).toBeLessThan(0.005);
+    const lines = `position\n${CO_10.map((l) => (1e4 / l.position).toFixed(8)).join('\n')}\n`;
+    const r2 = await post('/v1/fits?species=CO&unit=%C2%B5m', lines);
+    expect(r2.statusCode, r2.body.slice(0, 300)).toBe(200);
+  });
+
+  it('?unit= that contradicts the header, or a frequency for a spectrum, is refused', async () => {
+    const r = await post('/v1/fits?species=CO&unit=nm', spectrumCsv('wavelength (um),absorbance', um));
+    expect(r.statusCode).toBe(422);
+    expect(r.json().detail).toMatch(/the CSV header names the unit um, the query unit=nm/);
+    const r2 = await post('/v1/fits?species=CO&unit=MHz', spectrumCsv('wavelength,absorbance', um));
+    expect(r2.statusCode).toBe(400);
+    expect(r2.json().detail).toMatch(/a spectrum's x is in cm-1, um or nm, not MHz/);
+    const r3 = await post(
+      '/v1/fits?species=CO',
+      spectrumCsv('frequency (MHz),absorbance', (nu) => nu * MHZ_PER_CM),
+    );
+    expect(r3.statusCode).toBe(400);
+    expect(r3.json().detail).toMatch(/x unit "MHz" is not one of cm-1, um, nm/);
+  });
+});
+
+describe('the 422 for positions that read like µm gives the remedy for the body that was sent', () => {
+  it('a CSV spectrum without a unit: name it in the header or send ?unit=um (a CSV body has no "unit" key)', async () => {
+    const r = await post('/v1/fits?species=CO', spectrumCsv('wavelength,absorbance', um));
+    expect(r.statusCode).toBe(422);
+    const detail: string = r.json().detail;
+    expect(detail).toMatch(/read as wavelengths in µm/);
+    expect(detail).toMatch(/name the unit in the CSV header \("wavelength \(um\),absorbance"\) or send \?unit=um$/);
+    expect(detail).not.toMatch(/"unit": "um"/);
+  });
+
+  it('a CSV line list: the header "position (um)" or ?unit=um', async () => {
+    const r = await post(
+      '/v1/fits?species=CO',
+      `position\n${CO_10.map((l) => (1e4 / l.position).toFixed(8)).join('\n')}\n`,
+    );
+    expect(r.statusCode).toBe(422);
+    expect(r.json().detail).toMatch(/"position \(um\)"\) or send \?unit=um$/);
+  });
+
+  it('a JSON spectrum: "spectrum": {"xUnit": "um"}; a JSON line list: "unit": "um"', async () => {
+    // 2120–2170 cm⁻¹ of the spectrum, as µm
+    const spectrum = {
+      x: Array.from(coSpectrum.x.subarray(2000, 7000), um),
+      y: Array.from(coSpectrum.y.subarray(2000, 7000)),
+    };
+    const r = await app().inject({ method: 'POST', url: '/v1/fits', payload: { species: 'CO', spectrum } });
+    expect(r.statusCode).toBe(422);
+    expect(r.json().detail).toMatch(/send "spectrum": \{"xUnit": "um", …\}$/);
+    const lines = CO_10.map((l) => ({ position: 1e4 / l.position }));
+    const r2 = await app().inject({ method: 'POST', url: '/v1/fits', payload: { species: 'CO', lines } });
+    expect(r2.statusCode).toBe(422);
+    expect(r2.json().detail).toMatch(/send "unit": "um"$/);
+  });
+});

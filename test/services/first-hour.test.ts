@@ -127,10 +127,10 @@ describe('an unknown query parameter with a CSV body', () => {
   it('is named as a query-string parameter, not as part of the body', async () => {
     const csv = 'position\n2139.4262\n2135.5465\n2147.0812\n2150.8561\n2131.6313\n2154.5961\n';
     const headers = { 'content-type': 'text/csv' };
-    const r = await app().inject({ method: 'POST', url: '/v1/fits?species=CO&unit=MHz', headers, payload: csv });
+    const r = await app().inject({ method: 'POST', url: '/v1/fits?species=CO&units=MHz', headers, payload: csv });
     expect(r.statusCode).toBe(400);
     expect(r.json().code).toBe('VALIDATION_FAILED');
-    expect(r.json().detail).toMatch(/^\(query string\).*"unit"/);
+    expect(r.json().detail).toMatch(/^\(query string\).*"units"/);
     expect(r.json().detail).not.toContain('(body)');
   });
 });

@@ -34,3 +34,36 @@ describe('CSV header: spectrum or line list', () => {
     },
   );
 });
+
+describe('CSV units of one-column lists and of spectra', () => {
+  it.each(['frequency (MHz)', 'frequency / MHz', 'freq [MHz]', 'position (MHz)'])(
+    'a single column "%s" keeps its unit although the header holds spaces',
+    (header) => {
+      const d = parseCsv(`${header}\n115271.2018\n230538.0000\n`);
+      expect(d).toMatchObject({ kind: 'lines', unit: 'MHz' });
+      if (d.kind === 'lines') expect(d.lines.map((l) => l.position)).toEqual([115271.2018, 230538]);
+    },
+  );
+
+  it.each([
+    ['wavelength (um),absorbance', 'um'],
+    ['position [nm],absorbance', 'nm'],
+    ['wavenumber (cm-1),transmittance', 'cm-1'],
+    ['wavelength,absorbance\num,', 'um'],
+  ])('a spectrum "%s" carries xUnit %s', (header, unit) => {
+    expect(parseCsv(`${header}\n${body}\n`)).toMatchObject({ kind: 'spectrum', xUnit: unit });
+  });
+
+  it('"absorbance,wavenumber": y is read from the absorbance column, x from the other', () => {
+    const d = parseCsv(`absorbance,wavenumber\n0.11,2140.01\n0.12,2140.02\n`);
+    expect(d.kind).toBe('spectrum');
+    if (d.kind === 'spectrum') {
+      expect(Array.from(d.x)).toEqual([2140.01, 2140.02]);
+      expect(Array.from(d.y)).toEqual([0.11, 0.12]);
+    }
+  });
+
+  it('a spectrum in MHz is refused: its x is a wavenumber or a wavelength', () => {
+    expect(() => parseCsv(`frequency (MHz),absorbance\n${body}\n`)).toThrow(/x unit "MHz" is not one of cm-1, um, nm/);
+  });
+});
