@@ -15,7 +15,7 @@ import { rejectOutliers } from './outliers.js';
 import { rescaleStatedUncertainties } from './stated-scale.js';
 import { constrainLevelModel, type TermConstraint } from './truncation.js';
 import type { DetailedFit, DunhamFit, FitOptions, FitResult, LineInput, Statistics, Warning } from './types.js';
-import { absoluteScaleWarnings, checkRepeats, qualityWarnings } from './warnings.js';
+import { absoluteScaleWarnings, checkDuplicates, checkRepeats, qualityWarnings } from './warnings.js';
 import { type ScatterReuse, scatterOfFit, type WeightedLines, weighLines } from './weights.js';
 
 export type { TermConstraint } from './truncation.js';
@@ -110,6 +110,7 @@ export function fitLineListDetailed(
     : combinationChecks(fit, level.orders, kept.mode, report.quantityOf, reducedChiSquare(selected));
   warnings.push(...cds.warnings);
   checkRepeats(selected, prepared.given > 0, warnings);
+  checkDuplicates(prepared.observations, kept.rejected, warnings);
   absoluteScaleWarnings(selected, kept.mode, warnings);
   qualityWarnings(selected, report.correlation, report.names, warnings);
 

@@ -41,6 +41,55 @@ export function checkRepeats(fit: SolvedModel, uncertaintiesGiven: boolean, warn
   }
 }
 
+/**
+ * Lines sent twice: the same transition at the same position (a duplicated row, which counts twice in the fit and
+ * narrows every uncertainty), and the same transition claimed by lines at different positions of which the fit
+ * rejected some (named as a double claim, not only as an outlier). Over every line read, kept or rejected.
+ */
+export function checkDuplicates(
+  observations: readonly Observation[],
+  rejected: ReadonlyMap<number, string>,
+  warnings: Warning[],
+): void {
+  const copies: string[] = [];
+  const copyLines: number[] = [];
+  for (const g of repeatGroups(observations)) {
+    if (g.length < 2) continue;
+    const distinct: Observation[] = [];
+    for (const o of g) {
+      const first = distinct.find((d) => Math.abs(d.position - o.position) <= 1e-9 * Math.abs(o.position));
+      if (first === undefined) distinct.push(o);
+      else {
+        copies.push(`${o.index} (= ${first.index})`);
+        copyLines.push(o.index);
+      }
+    }
+    if (distinct.length > 1 && distinct.some((o) => rejected.has(o.index))) {
+      const fmt = (o: Observation) =>
+        `line ${o.index} at ${o.position.toFixed(4)} cm-1${rejected.has(o.index) ? ' (rejected)' : ''}`;
+      warnings.push({
+        code: 'TRANSITION_CLAIMED_TWICE',
+        message: `${distinct.length} lines claim ${labelOf(g[0] as Observation)} at different positions: ${distinct.map(fmt).join(', ')}; check the assignment of the rejected one`,
+        lines: distinct.map((o) => o.index),
+      });
+    }
+  }
+  if (copies.length > 0)
+    warnings.push({
+      code: 'LINES_DUPLICATED',
+      message: `${copies.length} line(s) repeat an earlier line's assignment and position (a duplicated row?) and count twice in the fit: lines ${copies.slice(0, 10).join(', ')}${copies.length > 10 ? ', …' : ''}`,
+      lines: copyLines,
+    });
+}
+
+const labelOf = (o: Observation) =>
+  transitionLabel({
+    species: o.species,
+    band: { upper: o.upperV, lower: o.lowerV },
+    branch: o.upperJ > o.lowerJ ? 'R' : o.upperJ < o.lowerJ ? 'P' : 'Q',
+    j: o.lowerJ,
+  });
+
 export function qualityWarnings(
   fit: SolvedModel,
   corr: readonly (readonly number[])[],
