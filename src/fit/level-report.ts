@@ -6,6 +6,7 @@ import { formatBand, type Transition } from '../models/transitions.js';
 import type { MassValue } from '../species/reduced-mass.js';
 import { correlationOf, type SolvedModel, studentisedResiduals, toRows } from './engine.js';
 import { excludedStudentisedResidual, predictWithVariance } from './level-selection.js';
+import { rejectionReason } from './outliers.js';
 import type { FitResult, LineInput, LineOutcome, NamedQuantity, Warning } from './types.js';
 
 export interface LevelReport {
@@ -111,10 +112,25 @@ function lineOutcomes(
       out.calculated = calculated;
       out.residual = l.position - calculated;
       const t = excludedStudentisedResidual(fit, ob);
-      if (t !== undefined) out.studentisedResidual = t;
+      if (t !== undefined) {
+        out.studentisedResidual = t;
+        out.reason = reasonWithFinalFigure(out.reason, t);
+      }
     }
     return out;
   });
+}
+
+/**
+ * A rejection reason printed with the line's own `studentisedResidual` (against the final fit) while that still
+ * exceeds the threshold; otherwise the figure at rejection stays, and the final one is added.
+ */
+function reasonWithFinalFigure(reason: string, t: number): string {
+  const m = /^studentised residual (\S+) exceeds (\d+\.\d+)$/.exec(reason);
+  if (!m) return reason;
+  const threshold = Number(m[2]);
+  if (Math.abs(t) > threshold) return rejectionReason(t, threshold);
+  return `${reason} when rejected (${t.toFixed(2)} against the final fit)`;
 }
 
 /** A result type with its members writable, for building it member by member. */

@@ -50,7 +50,7 @@ export function rejectOutliers(
     const drop = new Set(take.map((i) => (kept[i] as Observation).index));
     for (const i of take) {
       const ob = kept[i] as Observation;
-      rejected.set(ob.index, `studentised residual ${(t[i] as number).toFixed(1)} exceeds ${threshold.toFixed(2)}`);
+      rejected.set(ob.index, rejectionReason(t[i] as number, threshold));
     }
     const next = kept.filter((x) => !drop.has(x.index));
     if (next.length <= level.fit.model.parameters.length + 1) {
@@ -78,4 +78,14 @@ export function rejectOutliers(
     }
   }
   return { kept, rejected, level };
+}
+
+/**
+ * "studentised residual −4.05 exceeds 4.00": residual and threshold with two decimals, or as many more as it takes
+ * for the printed residual to lie beyond the printed threshold (−4.0 beside 4.00 read as false).
+ */
+export function rejectionReason(t: number, threshold: number): string {
+  let d = 2;
+  while (d < 8 && !(Math.abs(Number(t.toFixed(d))) > Number(threshold.toFixed(d)))) d++;
+  return `studentised residual ${t.toFixed(d)} exceeds ${threshold.toFixed(d)}`;
 }

@@ -62,7 +62,8 @@ describe('reportLevels', () => {
       position: input[10]?.position,
       assignment: rej?.assignment,
       status: 'rejected',
-      reason: 'studentised residual 9.9 exceeds 4.00',
+      // the final figure no longer exceeds the threshold: the one at rejection stays, and the final one is added
+      reason: `studentised residual 9.9 exceeds 4.00 when rejected (${t10.toFixed(2)} against the final fit)`,
       calculated: pred?.value,
       residual: (input[10]?.position as number) - (pred?.value as number),
       studentisedResidual: t10,
