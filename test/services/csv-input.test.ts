@@ -1,3 +1,4 @@
+import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { useApp } from '../helpers/app.js';
 import { CO_DATABASE } from '../helpers/co-database.js';
@@ -219,5 +220,22 @@ describe('the 422 for positions that read like µm gives the remedy for the body
     const r2 = await app().inject({ method: 'POST', url: '/v1/fits', payload: { species: 'CO', lines } });
     expect(r2.statusCode).toBe(422);
     expect(r2.json().detail).toMatch(/send "unit": "um"$/);
+  });
+});
+
+describe("the README's CSV example", () => {
+  it('fits as the README says: 12C16O 1-0 with the origin of the constants it was computed from', async () => {
+    const readme = readFileSync(new URL('../../README.md', import.meta.url), 'utf8');
+    const block = readme.match(/### CSV line lists[\s\S]*?```\n(Position;[\s\S]*?)```/)?.[1];
+    expect(block).toBeDefined();
+    const r = await post('/v1/fits?species=CO', block as string);
+    expect(r.statusCode, r.body.slice(0, 300)).toBe(200);
+    const j = r.json();
+    expect(j.statistics.lines).toBe(10);
+    // The README says 2143.271; the constants give 2143.2711 (the independent generator's G(1) − G(0)), and the
+    // made-up deviations (≤ 0.0016 cm⁻¹) move it by less than 0.001 cm⁻¹.
+    expect(j.bands[0].origin.value.toFixed(3)).toBe('2143.271');
+    expect(Math.abs(j.bands[0].origin.value - TRUE_ORIGIN)).toBeLessThan(0.001);
+    expect(readme).toContain('gives a band origin of 2143.271 cm⁻¹');
   });
 });
