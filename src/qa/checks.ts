@@ -532,7 +532,7 @@ function describeAbundanceRatio(
   const r = abundanceRatio(main, x, natural).abundanceRatio;
   if (!r) return '';
   const digits = r.value >= 100 ? 1 : 3;
-  return `${r.ratio} = ${r.value.toFixed(digits)} ± ${r.uncertainty.toFixed(digits)} (natural ${r.natural.toFixed(digits)}), `;
+  return `${r.ratio} = ${plusMinus(r.value, r.uncertainty, digits)} (natural ${r.natural.toFixed(digits)}), `;
 }
 
 function temperatureCheck(

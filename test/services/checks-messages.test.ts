@@ -115,12 +115,12 @@ function hcl37(): MoleculeConstants {
 }
 
 /** An HCl 1-0 list of both isotopologues, the ³⁷Cl lines' intensities times `abundance37 / abundance35`, 3 % noise. */
-function mixedList(abundance35: number, abundance37: number) {
+function mixedList(abundance35: number, abundance37: number, intensityNoise = 0.03) {
   const opts = {
     bands: [{ upper: 1, lower: 0, jMax: 9 }],
     sigma: 0.001,
     temperature: 296,
-    intensityNoise: 0.03,
+    intensityNoise,
     unassigned: true,
   };
   const a = independentLines({ ...opts, molecule: HCL_1_35, seed: 11 });
@@ -149,6 +149,23 @@ describe('isotope-ratio gives the measured abundance ratio', () => {
     expect(u).toBeLessThan(0.03 * expected);
     expect(Math.abs((r?.abundanceRatio.value as number) - expected)).toBeLessThan(3 * u + 0.005 * expected);
     expect(iso.message).toContain(`1H-35Cl/1H-37Cl = ${r?.abundanceRatio.value.toFixed(3)} ±`);
+  });
+});
+
+describe('isotope-ratio prints its uncertainty with two significant digits', () => {
+  it('intensities good to 0.03 %: the ratio is not printed as "± 0.000"', async () => {
+    const { byId } = await check({ species: 'HCl', lines: mixedList(0.7576, 0.2424, 0.0003) });
+    const iso = byId('isotope-ratio');
+    const r = (iso.measured.ratios as { abundanceRatio: { value: number; uncertainty: number } }[])[0];
+    const u = r?.abundanceRatio.uncertainty as number;
+    expect(u).toBeLessThan(0.0005); // small enough that three decimals printed it as 0.000
+    const m = /1H-35Cl\/1H-37Cl = (\d+\.\d+) ± (\d+\.\d+) \(natural/.exec(iso.message);
+    expect(m, iso.message).not.toBeNull();
+    const [, value = '', printed = ''] = m as RegExpExecArray;
+    expect(Number(printed)).toBeGreaterThan(0);
+    // two significant digits of u, and the value to the same decimal place
+    expect(Number(printed)).toBeCloseTo(Number(u.toPrecision(2)), 12);
+    expect(value.split('.')[1]?.length).toBe(printed.split('.')[1]?.length);
   });
 });
 
