@@ -362,10 +362,10 @@ describe("offset votes: the thresholds of a band's own offset and of a band its 
     cands.map((c, i) => ({ index: from + i, position: c.position + (offsets[i] ?? 0) }));
 
   it('own offset only with n ≥ minLines, n ≥ (lines at the source offset) + 3 and n ≥ 2 × them; at equality it is taken', () => {
-    // Main band (20 lines at +0.1) sets the source offset. Band B (13C, 10 lines): k at +0.1, m at −0.3, rest no peak.
+    // Main band (20 lines at +0.1) sets the source offset. Band B (13C, 12 lines): k at +0.1, m at −0.3, rest no peak.
     const main = grid(CO, 1000, 20, 4);
     const run = (k: number, m: number, minLines: number) => {
-      const b = grid('13C-16O', 2000, 10);
+      const b = grid('13C-16O', 2000, 12);
       const offs = b.map((_, i) => (i < k ? 0.1 : i < k + m ? -0.3 : 99));
       const peaks = [
         ...peaksAt(
@@ -436,8 +436,9 @@ describe("offset votes: the thresholds of a band's own offset and of a band its 
     const v = voteOffsets(band, new Map([['', peaks]]), 0.5, 4);
     expect(v.of('12C-16O|1-0', '').offset).toBeCloseTo(0.1, 9);
     expect(v.of('12C-16O|1-0', '').own).toBe(false);
-    // 161 lines: 81 weak first at −0.2 (weight 81 × 0.5), 80 strong at +0.1 (80 × 1): the source votes +0.1.
-    const w2 = grid(CO, 1000, 81, 0.25);
+    // 180 lines: 100 weak (0.81, weight 0.9) first at −0.2, then 80 strong (1) at +0.1: all of them would vote −0.2
+    // (90 against 80); the 80 strongest vote +0.1.
+    const w2 = grid(CO, 1000, 100, 0.81);
     const s2 = grid('13C-16O', 3000, 80, 1);
     const all = [...w2, ...s2];
     const v2 = voteOffsets(
@@ -447,7 +448,7 @@ describe("offset votes: the thresholds of a band's own offset and of a band its 
           '',
           peaksAt(
             all,
-            all.map((_, i) => (i < 81 ? -0.2 : 0.1)),
+            all.map((_, i) => (i < 100 ? -0.2 : 0.1)),
           ),
         ],
       ]),
