@@ -147,6 +147,12 @@ describe('peak-candidates', () => {
     expect(f([0, 4, 3, 3, 3, 4, 0, 0, 0, 10, 0], 1, 2).index).toEqual([1, 5, 9]);
   });
 
+  it('prominence: the walk goes on in its own direction, never back over the line', () => {
+    // Maxima 1 (5), 4 (4), 7 (3), 10 (6), half widths 1; dips 0, 1.5, 1.5; prominence 3. The 4 walks right past the
+    // lower 3 over shallow dips (1.5 below it: 2.5 < 3) to the higher 6: dropped, though its left dip is deep.
+    expect(f([0, 5, 0, 0, 4, 1.5, 1.5, 3, 1.5, 1.5, 6, 0, 0], 1, 3).index).toEqual([1, 10]);
+  });
+
   it('groups: closer than 3 half widths (the larger of the two); windows 4 widest half widths out, half-way at most', () => {
     // 10 and 14: 4 < 3·max(2, 1) = 6, one group. 14 and 24: 10 ≥ 6; 24 and 32: 8 ≥ 6; 32 and 97: far.
     const g = groupCandidates({ index: [10, 14, 24, 32, 97], halfWidth: [2, 1, 2, 2, 2] }, 100);
