@@ -98,6 +98,8 @@ describe('ASDF decoding written out by hand', () => {
     expectRefusal(xyData(1, 4, 4, ['1 J']), 7, 'a DIF value with no value before it');
     expectRefusal(xyData(1, 4, 4, ['1 2 ! 3']), 7, 'unexpected character "!" in the data');
     expectRefusal(xyData(1, 4, 4, ['1 2 3 ##END']), 7, 'unexpected character "#" in the data');
+    // A lone "$" is no comment.
+    expectRefusal(xyData(1, 4, 4, ['1 2 $ 3']), 7, 'unexpected character "$" in the data');
     expectRefusal(xyData(1, 4, 4, ['J1 2']), 7, 'a data line must start with its X value');
     expectRefusal(xyData(1, 4, 4, [',']), 7, 'a data line must start with its X value');
     // Lines 7 and 8; ##END= is line 9 and the count is checked at the last data line.
@@ -253,6 +255,12 @@ describe('##XYPOINTS= and ##PEAK TABLE=', () => {
       { x: 2160.2, y: 0.2 },
       { x: 100, y: 2 },
       { x: 200, y: 4 },
+    ]);
+    // Values separated by runs of spaces, a comment after them.
+    const sp = peaks(parseJcamp('##TITLE=s\n##PEAK TABLE=(XY..XY)\n2143.27   0.5  2147.08 0.4 $$ two lines\n##END='));
+    expect(sp.peaks).toEqual([
+      { x: 2143.27, y: 0.5 },
+      { x: 2147.08, y: 0.4 },
     ]);
     const w = peaks(parseJcamp('##TITLE=w\n##PEAK TABLE=(XYW..XYW)\n2143.27 0.5 0.1 2147.08 0.4 0.1\n##END='));
     expect(w.peaks).toEqual([
