@@ -95,6 +95,8 @@ describe('ASDF decoding written out by hand', () => {
     expectRefusal(xyData(1, 4, 4, ['1 S2']), 7, 'a DUP count with nothing to repeat');
     expectRefusal(xyData(1, 4, 4, ['1 5 S.5']), 7, 'DUP count 1.5 is not a whole number ≥ 1');
     expectRefusal(xyData(1, 4, 4, ['1 1 2 3 4 5']), 7, 'more Y values than ##NPOINTS= leaves for this line (4)');
+    // On a later line the budget is what the lines before left: 4 − 2 = 2.
+    expectRefusal(xyData(1, 4, 4, ['1 1 2', '3 3 4 5']), 8, 'more Y values than ##NPOINTS= leaves for this line (2)');
     expectRefusal(xyData(1, 4, 4, ['1 J']), 7, 'a DIF value with no value before it');
     expectRefusal(xyData(1, 4, 4, ['1 2 ! 3']), 7, 'unexpected character "!" in the data');
     expectRefusal(xyData(1, 4, 4, ['1 2 3 ##END']), 7, 'unexpected character "#" in the data');
@@ -119,6 +121,8 @@ describe('ASDF decoding written out by hand', () => {
       8,
       'DIF Y-value check failed: the line starts with undefined but the line before ended with 3',
     );
+    // At 0 the check allows 1e-9 absolute, boundary included: A j = 1, 0; the next line repeats 0 as 1e-9.
+    expect(ys(xyData(1, 3, 3, ['1 Aj', '2 @.000000001J']))).toEqual([1, 0, 1.000000001]);
     // The check is relative, 1e-9: at 3·10⁹ a check value off by 1 is the same value.
     expect(ys(xyData(1, 3, 3, ['1 C000000000J', '2 C000000002J']))).toEqual([3e9, 3000000001, 3000000003]);
   });
@@ -183,6 +187,9 @@ describe('labels and the header', () => {
     const d = spectrum(parseJcamp(text));
     expect(d.title).toBe('CO band');
     expect(d.xUnits).toBe('MICROMETERS');
+    expect(spectrum(parseJcamp(text.replace('##y units=ABSORBANCE', '##YUNITS=TRANSMITTANCE'))).yUnits).toBe(
+      'TRANSMITTANCE',
+    );
     expect(d.yUnits).toBe('ABSORBANCE');
     expect(Array.from(d.y)).toEqual([7, 8]);
     expect(d.labels.get('NPOINTS')).toBe('2');
@@ -283,6 +290,8 @@ describe('##XYPOINTS= and ##PEAK TABLE=', () => {
     expectRefusal(pk('1,1\n2,2\n3,3'), 5, 'more than 2 peaks', { maxPoints: 2 });
     expect(peaks(parseJcamp(pk('1,1\n2,2\n3,3'), { maxPeaks: 3, maxPoints: 1 })).peaks).toHaveLength(3);
     const pts = '##TITLE=t\n##XYPOINTS=(XY..XY)\n1,1\n2,2\n3,3\n##END=';
+    // A peak limit does not bound ##XYPOINTS=.
+    expect(spectrum(parseJcamp(pts, { maxPeaks: 1, maxPoints: 3 })).x).toHaveLength(3);
     expectRefusal(pts, 5, 'more than 2 points', { maxPoints: 2 });
     expect(spectrum(parseJcamp(pts, { maxPoints: 3 })).x).toHaveLength(3);
   });
