@@ -42,8 +42,8 @@ describe('what makes a line list', () => {
   });
 
   it('unknown, absorbance and transmittance columns of a line list are skipped however many', () => {
-    const d = lines(parseCsv('position,note,comment,abs,signal,transmission,%T\n2143.27,a,b,1,2,3,4\n'));
-    expect(d.lines).toStrictEqual([{ position: 2143.27 }]);
+    const d = lines(parseCsv('position,intensity,note,comment,abs,signal,transmission,%T\n2143.27,1,a,b,1,2,3,4\n'));
+    expect(d.lines).toStrictEqual([{ position: 2143.27, intensity: 1 }]);
   });
 
   it('header names with dots, underscores or dashes, and a unit in brackets', () => {
@@ -93,7 +93,6 @@ describe('refusals name the line and what is wrong', () => {
       message: 'CSV line 3: ",0.5" is not a row of numbers',
       details: { line: 3 },
     });
-    expect(refusal(`${head}2000,,0.5\n`).message).toBe('CSV line 2: "2000,,0.5" is not a row of numbers');
     const long = `2000,${'9'.repeat(70)}x`;
     expect(refusal(`${head}${long}\n`).message).toBe(`CSV line 2: "${long.slice(0, 60)}" is not a row of numbers`);
   });
