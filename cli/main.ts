@@ -455,23 +455,50 @@ function fitTable(file: string, r: ReturnType<typeof runFit>): string {
     `${b.jRange[0] ?? ''}–${b.jRange[1] ?? ''}`,
   ]);
   const hasQ = r.levels.some((l) => l.q);
+  // L_v and M_v, and the higher equilibrium constants, only when the fit has them (fitted, not constrained)
+  const hasL = r.levels.some((l) => l.L);
+  const hasM = r.levels.some((l) => l.M);
   const levels = r.levels.map((l) => [
     l.species,
     l.label ?? `v=${l.v}`,
     q(l.B),
     q(l.D),
     q(l.H),
+    ...(hasL ? [q(l.L)] : []),
+    ...(hasM ? [q(l.M)] : []),
     ...(hasQ ? [q(l.q)] : []),
   ]);
+  const eqKeys = [
+    'omega_e',
+    'omega_e_x_e',
+    'omega_e_y_e',
+    'B_e',
+    'alpha_e',
+    'gamma_e',
+    'D_e',
+    'beta_e',
+    'H_e',
+    'r_e',
+  ] as const;
   const eq = r.equilibrium.flatMap((e) =>
-    (['omega_e', 'omega_e_x_e', 'B_e', 'alpha_e', 'D_e', 'r_e'] as const).flatMap((k) =>
-      e[k] ? [[e.species, k, q(e[k]), e[k]?.unit ?? '']] : [],
-    ),
+    eqKeys.flatMap((k) => (e[k] ? [[e.species, k, q(e[k]), e[k]?.unit ?? '']] : [])),
   );
   return [
     `${file}: ${r.statistics.fitted} of ${r.statistics.lines} lines fitted, rms ${fmt(r.statistics.rms, 3)} cm-1`,
     table([['species', 'band', 'origin (cm-1)', 'lines', 'J range'], ...bands]),
-    table([['species', 'level', 'B (cm-1)', 'D (cm-1)', 'H (cm-1)', ...(hasQ ? ['q (cm-1)'] : [])], ...levels]),
+    table([
+      [
+        'species',
+        'level',
+        'B (cm-1)',
+        'D (cm-1)',
+        'H (cm-1)',
+        ...(hasL ? ['L (cm-1)'] : []),
+        ...(hasM ? ['M (cm-1)'] : []),
+        ...(hasQ ? ['q (cm-1)'] : []),
+      ],
+      ...levels,
+    ]),
     ...(r.convention ? [`convention: ${r.convention}`] : []),
     ...(eq.length ? [table([['species', 'constant', 'value ± u', 'unit'], ...eq])] : []),
     ...r.warnings.map((w) => `warning: ${w.message}`),
