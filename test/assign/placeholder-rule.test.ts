@@ -70,7 +70,9 @@ describe('intensities that carry no information', () => {
     expect(uninformativeIntensities(of([...repeat(1, 97), 30, 50, 100]))).toBeUndefined();
     // 2 odd among 50 (floor(1) = 1) is more than allowed; 1 odd among 50 is fine.
     expect(uninformativeIntensities(of([...repeat(1, 48), 50, 100]))).toBeUndefined();
-    expect(uninformativeIntensities(of([...repeat(1, 49), 100]))).toBe('every line but 1 carries the same intensity (1)');
+    expect(uninformativeIntensities(of([...repeat(1, 49), 100]))).toBe(
+      'every line but 1 carries the same intensity (1)',
+    );
     // 149 lines: floor(2.98) = 2, so three odd ones are refused; 150 lines: floor(3) = 3 allowed.
     expect(uninformativeIntensities(of([...repeat(1, 146), 30, 50, 100]))).toBeUndefined();
     expect(uninformativeIntensities(of([...repeat(1, 147), 30, 50, 100]))).toBe(
@@ -101,7 +103,10 @@ describe('intensities that carry no information', () => {
     ];
     const r = withoutUninformativeIntensities(flat);
     expect(r.why).toBe('every line carries the same intensity (1)');
-    expect(r.peaks).toEqual([{ position: 2000, uncertainty: 0.001 }, { position: 2001, source: 'a' }]);
+    expect(r.peaks).toEqual([
+      { position: 2000, uncertainty: 0.001 },
+      { position: 2001, source: 'a' },
+    ]);
     for (const p of r.peaks) expect('intensity' in p).toBe(false);
     // Informative: the same array back, no reason.
     const used = [
