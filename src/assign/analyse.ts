@@ -24,7 +24,7 @@ export { uninformativeIntensities } from './intensity.js';
  * When nothing matches the declared species, say what the lines do match (the library's best identification, when
  * it is another molecule and scores at least 0.5).
  */
-function withWhatItMatches<T>(
+export function withWhatItMatches<T>(
   peaks: readonly PeakInput[],
   declared: Isotopologue,
   options: AnalyseOptions,
@@ -53,7 +53,7 @@ function withWhatItMatches<T>(
 }
 
 /** The fit's result with, for each rejected line that another label fits, that label in its reason and a warning. */
-function withLabelSuggestions(fit: DetailedFit, lines: readonly LineInput[]): FitResult {
+export function withLabelSuggestions(fit: DetailedFit, lines: readonly LineInput[]): FitResult {
   const labels = likelyLabels(fit, lines);
   if (labels.size === 0) return fit.result;
   const r = fit.result;
@@ -78,7 +78,7 @@ function withLabelSuggestions(fit: DetailedFit, lines: readonly LineInput[]): Fi
 }
 
 /** Weakest over strongest intensity when every line carries a positive one; undefined otherwise. */
-function dynamicRange(peaks: readonly PeakInput[]): number | undefined {
+export function dynamicRange(peaks: readonly PeakInput[]): number | undefined {
   let lo = Number.POSITIVE_INFINITY;
   let hi = 0;
   for (const p of peaks) {
@@ -90,7 +90,10 @@ function dynamicRange(peaks: readonly PeakInput[]): number | undefined {
 }
 
 /** The peaks without their intensities when these say nothing (the shared rule of ./intensity.ts), and a warning. */
-function withoutFlatIntensities(sent: readonly PeakInput[]): { peaks: readonly PeakInput[]; warnings: Warning[] } {
+export function withoutFlatIntensities(sent: readonly PeakInput[]): {
+  peaks: readonly PeakInput[];
+  warnings: Warning[];
+} {
   const { peaks, why } = withoutUninformativeIntensities(sent);
   if (!why) return { peaks, warnings: [] };
   return {
@@ -181,7 +184,7 @@ export function analyseLineList(
 }
 
 /** Reduced masses of the species the given assignments name. */
-function givenMasses(peaks: readonly PeakInput[]): Map<string, MassValue> {
+export function givenMasses(peaks: readonly PeakInput[]): Map<string, MassValue> {
   const masses = new Map<string, MassValue>();
   for (const p of peaks) {
     if (p.assignment && !masses.has(p.assignment.species))
@@ -191,7 +194,11 @@ function givenMasses(peaks: readonly PeakInput[]): Map<string, MassValue> {
 }
 
 /** Every line came assigned: fit them as they are. */
-function fitAsGiven(peaks: readonly PeakInput[], masses: Map<string, MassValue>, options: AnalyseOptions): Analysis {
+export function fitAsGiven(
+  peaks: readonly PeakInput[],
+  masses: Map<string, MassValue>,
+  options: AnalyseOptions,
+): Analysis {
   const fit = fitLineListDetailed(peaks, masses, options.fit ?? {});
   return {
     result: withLabelSuggestions(fit, peaks),
@@ -204,7 +211,7 @@ function fitAsGiven(peaks: readonly PeakInput[], masses: Map<string, MassValue>,
  * The species to assign against: the declared one, else that of the first given assignment, else the library's
  * identification (its natural mixture), refused below the minimum score and warned when the runner-up is close.
  */
-function resolveSpecies(
+export function resolveSpecies(
   peaks: readonly PeakInput[],
   declared: Isotopologue | undefined,
   options: AnalyseOptions,
@@ -256,7 +263,7 @@ function resolveSpecies(
  * When the identification within ±maxOffset found nothing good enough: the molecule that the same ranking, searched up
  * to 4× maxOffset, accepts, at what offset, and the option that reaches it; else ''. Only on this refusal path.
  */
-function matchBeyondWindow(peaks: readonly PeakInput[], options: AnalyseOptions, min: number): string {
+export function matchBeyondWindow(peaks: readonly PeakInput[], options: AnalyseOptions, min: number): string {
   const maxOffset = options.maxOffset ?? 0.5;
   const wide = identifySpecies(peaks, {
     ...(options.temperature ? { temperature: options.temperature } : {}),
@@ -271,7 +278,7 @@ function matchBeyondWindow(peaks: readonly PeakInput[], options: AnalyseOptions,
  * A species the library identified (none was declared) that then matches nothing: the refusal says so, naming the
  * candidates, instead of speaking of a declared species.
  */
-function asIdentified<T>(identification: readonly IdentificationCandidate[] | undefined, f: () => T): T {
+export function asIdentified<T>(identification: readonly IdentificationCandidate[] | undefined, f: () => T): T {
   try {
     return f();
   } catch (e) {
@@ -297,7 +304,7 @@ function asIdentified<T>(identification: readonly IdentificationCandidate[] | un
 }
 
 /** Assignment against the reference library's predictions for the species' isotopologues, then the fit. */
-function assignFromLibrary(
+export function assignFromLibrary(
   peaks: readonly PeakInput[],
   species: Isotopologue,
   masses: Map<string, MassValue>,
@@ -341,7 +348,7 @@ function assignFromLibrary(
  * No reference constants for these elements: the band structure alone numbers one band (refused when no structure
  * is found or no numbering is clearly best), the numbering grows along its own fit, then the fit.
  */
-function assignFromStructure(
+export function assignFromStructure(
   peaks: readonly PeakInput[],
   species: Isotopologue,
   masses: Map<string, MassValue>,
@@ -411,7 +418,7 @@ function assignFromStructure(
 }
 
 /** Fewest free lines worth searching for a further band (two progressions of six). */
-const MIN_HOT_LINES = 12;
+export const MIN_HOT_LINES = 12;
 
 /**
  * Hot bands from structure: with the first band numbered, the lines left are searched for the band one quantum up
@@ -420,7 +427,7 @@ const MIN_HOT_LINES = 12;
  * off by one line cannot fit both (Δ₂F moves by about 4B). Kept only when decisive and probable; `lines` is
  * completed in place.
  */
-function numberHotBands(
+export function numberHotBands(
   lines: PeakInput[],
   free: readonly { p: PeakInput; index: number }[],
   species: Isotopologue,
@@ -471,7 +478,7 @@ function numberHotBands(
  * one quantum up jointly with them, the choice of fundamental is open — refused (NUMBERING_AMBIGUOUS) rather than
  * numbered wrong.
  */
-function refuseIfFundamentalLeft(
+export function refuseIfFundamentalLeft(
   lines: readonly PeakInput[],
   free: readonly { p: PeakInput; index: number }[],
   left: readonly { p: PeakInput; index: number }[],
@@ -512,10 +519,10 @@ function refuseIfFundamentalLeft(
   );
 }
 
-type Numbering = NonNullable<ReturnType<typeof assignByStructure>>;
+export type Numbering = NonNullable<ReturnType<typeof assignByStructure>>;
 
 /** The band's numbering from its structure, refused when none is found or none is clearly best. */
-function decisiveNumbering(free: readonly PeakInput[], species: Isotopologue, band: Band): Numbering {
+export function decisiveNumbering(free: readonly PeakInput[], species: Isotopologue, band: Band): Numbering {
   const s = assignByStructure(free, species.formula, reducedMass(species), band);
   if (!s) {
     throw new ScienceError(
@@ -537,7 +544,7 @@ function decisiveNumbering(free: readonly PeakInput[], species: Isotopologue, ba
 }
 
 /** What a numbering from structure tells the caller: how it was chosen, what stayed out, what it rests on. */
-function structureWarnings(
+export function structureWarnings(
   species: Isotopologue,
   band: Band,
   s: Numbering,
@@ -574,7 +581,7 @@ function structureWarnings(
  * offset is known: BAND_NOT_FOUND): say that band was in the window but not matched, rather than suggesting an
  * overtone the list may already hold.
  */
-function namingBandsNotFound(warnings: readonly Warning[], bands: readonly BandSummary[]): Warning[] {
+export function namingBandsNotFound(warnings: readonly Warning[], bands: readonly BandSummary[]): Warning[] {
   return warnings.map((w) => {
     if (w.code !== 'VIBRATION_NEEDS_TWO_INTERVALS') return w;
     const missed = bands.filter(
