@@ -602,6 +602,54 @@ describe('the whole path on small lists', () => {
     expect(flat.assignment.unexplained).toEqual(spurious);
   }, 20_000);
 
+  it('LiH 1-0 with its 2-1 hot band interleaved, no intensities: numbered right, or refused saying why', () => {
+    const list = independentLines({
+      molecule: LIH,
+      seed: 15,
+      sigma: 0.001,
+      withUncertainties: true,
+      unassigned: true,
+      bands: [
+        { upper: 1, lower: 0, jMax: 14 },
+        { upper: 2, lower: 1, jMin: 1, jMax: 11 },
+      ],
+    });
+    let a: ReturnType<typeof analyseLineList> | undefined;
+    let e: ScienceError | undefined;
+    try {
+      a = analyseLineList(list.lines, parseSpecies('7Li1H'));
+    } catch (x) {
+      if (!(x instanceof ScienceError)) throw x;
+      e = x;
+    }
+    if (a) {
+      // Never a wrong number: every assigned line carries its true label.
+      a.result.lines.forEach((l, i) => {
+        if (l.assignment)
+          expect(`${l.assignment.band} ${l.assignment.branch}(${l.assignment.j})`).toBe(
+            `${list.truth[i]?.band} ${list.truth[i]?.branch}(${list.truth[i]?.j})`,
+          );
+      });
+      return;
+    }
+    const r = e as ScienceError;
+    expect(r.code).toBe('NUMBERING_AMBIGUOUS');
+    expect(r.message).toMatch(/^7Li-1H \(not in the reference library\): no numbering of its band is clearly best, /);
+    expect(r.message).toMatch(
+      /evidence margin -?\d+\.\d where 9 is needed; send intensities, the lines near the band origin, or a few given assignments\. Best: .+\. Next: .+$/,
+    );
+    const numberings = r.details.numberings as NumberingEvidence[];
+    expect(r.details.species).toBe('7Li-1H');
+    expect(typeof r.details.margin).toBe('number');
+    expect(numberings.length).toBeGreaterThan(0);
+    expect(numberings.length).toBeLessThanOrEqual(4);
+    expect(r.message).toContain(`Best: ${describeEvidence(numberings[0] as NumberingEvidence)}. Next: `);
+    expect(r.message).toContain(`evidence margin ${(r.details.margin as number).toFixed(1)} where`);
+    // The reasons for doubt are named when they hold, and only then.
+    const chi = /the best fits its lines at χ²\/ν = ([-0-9.e+]+), far beyond their uncertainties/.exec(r.message);
+    if (chi) expect(Number(chi[1])).toBeGreaterThan(1);
+  }, 20_000);
+
   it('too few lines for a band structure: FIT_NO_ASSIGNED_LINES naming the species', () => {
     const li = independentLines({
       molecule: LIH,
