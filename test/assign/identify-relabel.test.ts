@@ -131,6 +131,10 @@ describe('identifying the molecule of bare lines', () => {
         );
       }
       expect((r[1] as { score: number }).score).toBeLessThan(0.5);
+      // Each molecule once: the library's parents (DCl and DF as their enriched selves), no derived isotopologue.
+      expect(r.map((x) => x.species).sort()).toEqual(
+        ['12C-16O', '1H-127I', '1H-19F', '1H-35Cl', '1H-79Br', '2H-19F', '2H-35Cl'].sort(),
+      );
     }
   });
 
@@ -182,6 +186,19 @@ describe('the species of labelled lines without one', () => {
     expect([...(r[0]?.isotopologueOf.keys() ?? [])]).toEqual(Array.from({ length: 41 }, (_, i) => i));
     for (const x of r.slice(1)) expect(x.explained).toBe(0);
     expect(identifyLabelledSpecies([])).toEqual([]);
+    // Each molecule once, as its mixture: a line takes one of the mixture's own isotopologues.
+    expect(r.map((x) => x.species).sort()).toEqual(
+      ['12C-16O', '1H-127I', '1H-19F', '1H-35Cl', '1H-79Br', '2H-19F', '2H-35Cl'].sort(),
+    );
+    const members: Record<string, string[]> = {
+      '1H-35Cl': ['1H-35Cl', '1H-37Cl'],
+      '2H-35Cl': ['2H-35Cl', '2H-37Cl'],
+      '1H-79Br': ['1H-79Br', '1H-81Br'],
+    };
+    for (const [species, isos] of Object.entries(members)) {
+      const x = r.find((y) => y.species === species);
+      for (const v of x?.isotopologueOf.values() ?? []) expect(isos).toContain(v);
+    }
   });
 
   it('shifted by 0.3 cm⁻¹ the offset is voted back (within the reference error) and still explains all', () => {
