@@ -176,6 +176,115 @@ describe('identifying the molecule of bare lines', () => {
   });
 });
 
+describe('identification: edges of the ranking', () => {
+  it('a species the library lacks is named by its formula, and with no line near any prediction scores 0', () => {
+    const r = identifyIsotopologues([{ position: 1876 }, { position: 1900 }], parseSpecies('NO'));
+    expect(r.length).toBeGreaterThan(0);
+    for (const x of r) {
+      // Named by the formula asked for (the natural 14N-16O) and the isotopologue's own.
+      expect(x.name).toBe(`14N-16O (${x.species})`);
+      expect(x).toEqual(expect.objectContaining({ score: 0, matched: 0, offset: 0 }));
+    }
+    // CO lines with peaks only half-way between its lines (1.9 cm⁻¹ from each): no vote within ±0.5, offset 0.
+    const between = [0, 1, 2, 3].map((j) => ({ position: 0.5 * (coLine('R', j) + coLine('R', j + 1)) }));
+    const co = identifyIsotopologues(between, parseSpecies('CO'), { minAbundance: 0.5, maxOffset: 0.5 });
+    expect(co).toHaveLength(1);
+    expect(co[0]?.predicted).toBeGreaterThanOrEqual(3);
+    expect(co[0]).toEqual(expect.objectContaining({ species: '12C-16O', score: 0, matched: 0, offset: 0 }));
+  });
+
+  it('scattered positions widen the tolerance to 4 × their spread: lines 0.055 off the median are still matched', () => {
+    // R(0)…R(12), P(1)…P(12): 11 lines on their HITRAN positions, 3 at +0.01, 11 at +0.055. The winning window
+    // (0.06) holds them all: median +0.01, MAD 0.01, spread 0.0148, tolerance 0.059 (the floor alone, 0.03, would
+    // lose the eleven at +0.055, 0.045 from the median).
+    const low = coFundamental().filter((x) => x.j <= 12);
+    expect(low).toHaveLength(25);
+    const shifted = low.map((x, i) => ({ position: x.position + (i < 11 ? 0 : i < 14 ? 0.01 : 0.055) }));
+    const r = identifyIsotopologues(shifted, parseSpecies('CO'), { minAbundance: 0.5 });
+    expect(r[0]?.matched).toBe(25);
+    expect(Math.abs((r[0]?.offset as number) - 0.01)).toBeLessThan(2e-3);
+  });
+
+  it('every line sent twice (two instruments): 25 matches of at most 60 explain less than half, the score drops', () => {
+    const twice = coFundamental().flatMap((x) => [{ position: x.position }, { position: x.position + 0.001 }]);
+    const r = identifySpecies(twice);
+    const best = r[0] as NonNullable<(typeof r)[number]>;
+    const once = identifySpecies(coFundamental().map((x) => ({ position: x.position })))[0] as { score: number };
+    expect(best.species).toBe('12C-16O');
+    // Every 1-0 line with J″ ≤ 12 is matched, and a copy may give a weak candidate (a hot-band line) a peak too.
+    expect(best.matched).toBeGreaterThanOrEqual(25);
+    expect(best.matched).toBeLessThanOrEqual(27);
+    // Factor min(1, (m / min(82, 60)) / 0.5) = m/30 instead of 1 (the single list's 25/41 ≥ 0.5); the weight share
+    // grows by the extra weak matches only (√I ≈ 0.01 against about 20 for the 25 lines): within 1 %.
+    const ratio = best.score / once.score;
+    expect(ratio).toBeGreaterThanOrEqual(best.matched / 30 - 1e-9);
+    expect(ratio).toBeLessThan((best.matched / 30) * 1.01);
+  });
+});
+
+describe('labelled lines: the vote', () => {
+  const line = (index: number, branch: 'P' | 'R', j: number, shift: number): LabelledLine => ({
+    index,
+    position: coLine(branch, j) + shift,
+    band: { upper: 1, lower: 0 },
+    branch,
+    j,
+  });
+  const co = (r: ReturnType<typeof identifyLabelledSpecies>) => r.find((x) => x.species === '12C-16O');
+
+  it('of two offsets that explain as many lines the smaller wins, whatever the order of the lines', () => {
+    // R(0) 0.3 high and R(1) 0.2 high: each offset explains one line (they differ by 0.1 > tol 0.093).
+    for (const lines of [
+      [line(0, 'R', 0, 0.3), line(1, 'R', 1, 0.2)],
+      [line(0, 'R', 1, 0.2), line(1, 'R', 0, 0.3)],
+    ]) {
+      const x = co(identifyLabelledSpecies(lines));
+      expect(x?.explained).toBe(1);
+      expect(Math.abs((x?.offset as number) - 0.2)).toBeLessThan(0.01);
+    }
+  });
+
+  it('an offset exactly at maxOffset is searched', () => {
+    const one = [line(0, 'R', 3, 0.3)];
+    const free = co(identifyLabelledSpecies(one, { maxOffset: 1 }))?.offset as number;
+    expect(Math.abs(free - 0.3)).toBeLessThan(0.01);
+    expect(co(identifyLabelledSpecies(one, { maxOffset: Math.abs(free) }))).toEqual(
+      expect.objectContaining({ explained: 1, offset: free }),
+    );
+    expect(co(identifyLabelledSpecies(one, { maxOffset: Math.abs(free) * 0.999 }))?.explained).toBe(0);
+  });
+
+  it('only the first 200 lines vote: a CO line after 200 lines no molecule predicts is not voted for', () => {
+    const junk: LabelledLine[] = Array.from({ length: 200 }, (_, i) => ({
+      index: i,
+      position: 1000 + 1.37 * i,
+      band: { upper: 1, lower: 0 },
+      branch: 'R',
+      j: 0,
+    }));
+    const x = co(identifyLabelledSpecies([...junk, line(200, 'R', 3, 0.3)]));
+    expect(x?.explained).toBe(0);
+    expect(x?.offset).toBe(0);
+    // Among the first 200 it is voted for.
+    expect(co(identifyLabelledSpecies([line(0, 'R', 3, 0.3), ...junk]))?.explained).toBe(1);
+  });
+
+  it('molecules explaining as many lines rank by the smaller offset', () => {
+    // Two CO lines 0.3 high, two H35Cl lines on their positions: 2 each, HCl at offset ~0 first.
+    const lines: LabelledLine[] = [
+      line(0, 'R', 0, 0.3),
+      line(1, 'R', 1, 0.3),
+      { index: 2, position: HCL['1H-35Cl'].R0, band: { upper: 1, lower: 0 }, branch: 'R', j: 0 },
+      { index: 3, position: HCL['1H-35Cl'].R1, band: { upper: 1, lower: 0 }, branch: 'R', j: 1 },
+    ];
+    const r = identifyLabelledSpecies(lines);
+    expect(r.slice(0, 2).map((x) => [x.species, x.explained])).toEqual([
+      ['1H-35Cl', 2],
+      ['12C-16O', 2],
+    ]);
+  });
+});
+
 describe('the species of labelled lines without one', () => {
   it('the CO fundamental explains all 41 labels at offset 0; every line is 12C16O', () => {
     const r = identifyLabelledSpecies(labelled());
@@ -377,5 +486,60 @@ describe('labels suggested for rejected lines', () => {
       expect(s.has(all.length)).toBe(told);
       if (told) expect(s.get(all.length)).toContain(`P(${j})`);
     }
+  });
+  it('with a σ of 2 cm⁻¹ several labels lie within 3σ: the nearest free one is told, never a held one or its own', () => {
+    // Lines J″ ≤ 20, P(4), P(7) and R(0) left out; P(5)/P(6) swapped; R(8) sent 0.3 high; a line at R(0) sent as
+    // R(12); a line at the band origin (2143.2711 cm⁻¹, HITRAN's 1-0 origin, from memory) sent as R(14).
+    const base = asInput(swapP5P6).filter((_, i) => {
+      const x = coFundamental()[i] as { branch: string; j: number };
+      return !((x.branch === 'P' && (x.j === 4 || x.j === 7)) || (x.branch === 'R' && x.j === 0));
+    });
+    const at = (branch: 'P' | 'R', j: number) => base.findIndex((l) => Math.abs(l.position - coLine(branch, j)) < 1e-9);
+    const r8 = at('R', 8);
+    base[r8] = { ...(base[r8] as LineInput), position: coLine('R', 8) + 0.3 };
+    const label = (branch: 'P' | 'R', j: number) => ({
+      species: '12C-16O',
+      band: { upper: 1, lower: 0 },
+      branch,
+      j,
+      source: 'given' as const,
+    });
+    const lines: LineInput[] = [
+      ...base,
+      { position: coLine('R', 0), uncertainty: 0.001, assignment: label('R', 12) },
+      { position: 2143.2711, uncertainty: 0.001, assignment: label('R', 14) },
+    ];
+    const [atR0, atOrigin] = [lines.length - 2, lines.length - 1];
+    const fit = fitLineListDetailed(lines, mass());
+    const rejected = fit.result.lines.filter((l) => l.status === 'rejected').map((l) => l.index);
+    expect(rejected.sort((a, b) => a - b)).toEqual([at('P', 6), at('P', 5), r8, atR0, atOrigin].sort((a, b) => a - b));
+    const wide = lines.map((l) => ({ ...l, uncertainty: 2 }));
+    const s = likelyLabels(fit, wide);
+    // z = |Δ| / √(var + 2²): the neighbours 3.9 cm⁻¹ away are at 1.95σ, the right label at 0.
+    const told = new Map([...s].map(([i, m]) => [i, /fits 12C-16O 1-0 ([PR]\(\d+\))/.exec(m)?.[1]]));
+    expect(told).toEqual(
+      new Map([
+        // The line at P(6)'s position (sent as P(5)) is told P(6), and the other way round.
+        [at('P', 6), 'P(6)'],
+        [at('P', 5), 'P(5)'],
+        [atR0, 'R(0)'],
+        // P(0) is no transition: the origin line is told R(0), 3.8 cm⁻¹ (1.9σ) away.
+        [atOrigin, 'R(0)'],
+      ]),
+    );
+    expect(s.get(atOrigin)).toContain(', 1.9σ)');
+    // R(8) 0.3 high: its own label and its held neighbours are all it is near, so nothing is told.
+    expect(s.has(r8)).toBe(false);
+  });
+
+  it('a line without σ is judged by the fit’s rms (2e-7 here): 0.0025 off is far beyond 3σ', () => {
+    const lines = asInput(swapP5P6, (i) => (i === iP5() ? 0.0025 : 0)).map(({ uncertainty: _u, ...l }) => l);
+    const fit = fitLineListDetailed(lines, mass());
+    expect(fit.result.statistics.rms).toBeLessThan(1e-5);
+    const s = likelyLabels(fit, lines);
+    expect(s.has(iP5())).toBe(false);
+    expect(s.get(iP6())).toContain('P(6)');
+    // Lines not passed at all: the rms for every one, the same outcome.
+    expect([...likelyLabels(fit, []).keys()]).toEqual([...s.keys()]);
   });
 });

@@ -52,6 +52,15 @@ describe('tolerances', () => {
       ],
     );
     expect(n.matches).toEqual([]);
+    // The reach follows the largest σ sent, wherever it stands in the list (a smaller one after it).
+    const o = matchLines(
+      [wide],
+      [
+        { index: 5, position: 100.05, sigma: 0.02 },
+        { index: 6, position: 103, sigma: 0.001 },
+      ],
+    );
+    expect(keysToPeaks(o)).toEqual({ w: 5 });
     // …and one 0.008 away is taken (|r| = 0.8).
     expect(keysToPeaks(matchLines([wide], [{ index: 4, position: 100.008 }]))).toEqual({ w: 4 });
   });
@@ -93,8 +102,9 @@ describe('who takes a peak', () => {
     expect(matchLines([pr(10)], pk(80)).matches).toHaveLength(1);
     expect(matchLines([pr(10)], pk(70)).matches).toHaveLength(1);
     expect(matchLines([pr(10, 20)], pk(100)).matches).toHaveLength(1);
-    // A peak of intensity 0 cannot be a predicted line of positive intensity.
+    // A peak of intensity 0 (or a negative one, a baseline artefact) cannot be a predicted line of positive intensity.
     expect(matchLines([pr(10)], pk(0)).matches).toEqual([]);
+    expect(matchLines([pr(10)], pk(-5)).matches).toEqual([]);
     // Unknown on either side, or a prediction of 0: position alone.
     expect(matchLines([pr(10)], pk()).matches).toHaveLength(1);
     expect(matchLines([pr(0)], pk(1000)).matches).toHaveLength(1);
