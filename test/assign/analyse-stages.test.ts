@@ -20,7 +20,7 @@ import { ScienceError } from '../../src/errors.js';
 import { fitLineListDetailed } from '../../src/fit/fit-lines.js';
 import { parseSpecies } from '../../src/species/parse.js';
 import { reducedMass } from '../../src/species/reduced-mass.js';
-import { LIH } from '../helpers/absent-species.js';
+import { CS, LIH } from '../helpers/absent-species.js';
 import { CO_DATABASE } from '../helpers/co-database.js';
 import { independentLines } from '../helpers/independent-lines.js';
 
@@ -649,6 +649,51 @@ describe('the whole path on small lists', () => {
     const chi = /the best fits its lines at χ²\/ν = ([-0-9.e+]+), far beyond their uncertainties/.exec(r.message);
     if (chi) expect(Number(chi[1])).toBeGreaterThan(1);
   }, 20_000);
+
+  it('CS 1-0 and its 2-1 hot band at 1000 K with intensities: both numbered from structure, each line right', () => {
+    const list = independentLines({
+      molecule: CS,
+      seed: 8,
+      sigma: 0.001,
+      withUncertainties: true,
+      unassigned: true,
+      spurious: 2,
+      temperature: 1000,
+      intensityNoise: 0.1,
+      bands: [
+        { upper: 1, lower: 0, jMin: 1, jMax: 20, branches: ['P'] },
+        { upper: 1, lower: 0, jMax: 20, branches: ['R'] },
+        { upper: 2, lower: 1, jMin: 2, jMax: 15, branches: ['P'] },
+        { upper: 2, lower: 1, jMin: 1, jMax: 15, branches: ['R'] },
+      ],
+    });
+    const a = analyseLineList(list.lines, parseSpecies('12C32S'));
+    const spurious = list.truth.flatMap((t, i) => (t.spurious ? [i] : []));
+    expect(a.assignment.unexplained).toEqual(spurious);
+    a.result.lines.forEach((l, i) => {
+      const t = list.truth[i];
+      if (t?.spurious) expect(l.assignment).toBeUndefined();
+      else
+        expect(`${l.assignment?.band} ${l.assignment?.branch}(${l.assignment?.j})`).toBe(
+          `${t?.band} ${t?.branch}(${t?.j})`,
+        );
+    });
+    // 1-0: P(1)…P(20) and R(0)…R(20), 41 lines; 2-1: P(2)…P(15) and R(1)…R(15), 29 lines.
+    expect(a.assignment.bands).toEqual([
+      { species: '12C-32S', band: '1-0', predicted: 0, matched: 41 },
+      { species: '12C-32S', band: '2-1', predicted: 0, matched: 29 },
+    ]);
+    const codes = a.result.warnings.map((w) => w.code);
+    expect(codes.slice(0, 3)).toEqual(['ASSIGNED_FROM_STRUCTURE', 'LINES_UNEXPLAINED', 'ASSIGNED_FROM_STRUCTURE']);
+    // With intensities there is no doubt about the runner-up's origin to raise.
+    expect(codes).not.toContain('NUMBERING_UNCERTAIN');
+    expect(a.result.warnings[2]?.message).toMatch(
+      /^29 further line\(s\) numbered from structure as the hot band 2-1, judged in one fit with the bands below \(shared level v = 1\): .+; runner-up: .+; evidence margin (\d+\.\d|∞)$/,
+    );
+    // The numbering of the first band is reported, decisive (margin ≥ 9, or none left to compare: null).
+    const margin = a.assignment.numbering?.margin;
+    expect(margin === null || (margin as number) >= 9).toBe(true);
+  }, 30_000);
 
   it('too few lines for a band structure: FIT_NO_ASSIGNED_LINES naming the species', () => {
     const li = independentLines({
