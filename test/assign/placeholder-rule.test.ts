@@ -91,6 +91,10 @@ describe('intensities that carry no information', () => {
     expect(uninformativeIntensities(of([0, 5, 5, 5, 5, 5, 5, 5, 5, 5.01]))).toBe(
       `all but 1 of the 10 intensities lie within a factor 1.002 of each other (≤ 1.2), ${FAR_LESS}`,
     );
+    // Negative values (a baseline taken off): no factor is spread, so −5 … 1 is no flat run; among ten, the nine
+    // equal ones beside the odd −5 are a placeholder, and −1 beside five 1s is no flat list.
+    expect(uninformativeIntensities(of([-5, ...repeat(1, 9)]))).toBe('every line but 1 carries the same intensity (1)');
+    expect(uninformativeIntensities(of([-1, 1, 1, 1, 1, 1]))).toBeUndefined();
     // An informative envelope: a Boltzmann-like spread over 20 lines (ratio ≫ 1.2) says nothing is wrong.
     const envelope = Array.from({ length: 20 }, (_, j) => (2 * j + 1) * Math.exp(-0.02 * j * (j + 1)));
     expect(uninformativeIntensities(of(envelope))).toBeUndefined();
