@@ -1,0 +1,248 @@
+import { describe, expect, it } from 'vitest';
+import { ROTATIONAL_FACTOR } from '../../src/constants/codata-2018.js';
+import { solveRadialLevels } from '../../src/potential/numerov.js';
+import {
+  CHECK_MARGIN,
+  type DunhamCoefficient,
+  numerovCheck,
+  type PotentialInput,
+  potentialCurves,
+  ROUND_TRIP_GOALS,
+} from '../../src/potential/potential-curve.js';
+import { compareLevels, refineRkrCurve, solveOnRkrCurve } from '../../src/potential/refine.js';
+import { rkrCurveModel } from '../../src/potential/rkr-curve.js';
+
+// Fast stage tests of the Numerov check and the refinement (potential-curve.ts, refine.ts): few levels and, where
+// the function takes it, a grid of 600 points instead of 6000, so that each case costs milliseconds to a few tenths
+// of a second. All computed inside `it`.
+//
+// The constants are invented (not a molecule): G(v) = 2000x − 10x², B(v) = 2 − 0.02x with x = v + ½, μ = 1 u, so
+// C = ħ²/2μ = ROTATIONAL_FACTOR cm⁻¹ Å² (CODATA 2018): a light, hydride-like oscillator whose first-order RKR curve
+// misses its intervals by ≈ 0.1 cm⁻¹, so that the refinement has something to do.
+const SERIES = { g: [2000, -10], b: [2, -0.02] };
+const C = ROTATIONAL_FACTOR;
+const G = (v: number) => 2000 * (v + 0.5) - 10 * (v + 0.5) ** 2;
+const Bv = (v: number) => 2 - 0.02 * (v + 0.5);
+const BASE: DunhamCoefficient[] = [
+  { k: 1, l: 0, value: 2000 },
+  { k: 2, l: 0, value: -10 },
+  { k: 0, l: 1, value: 2 },
+  { k: 1, l: 1, value: -0.02 },
+];
+// Dunham's Y00 = B_e/4 + α_e ω_e/(12 B_e) + α_e² ω_e²/(144 B_e³) − ω_e x_e/4 (J. L. Dunham, Phys. Rev. 41, 721
+// (1932), from memory) = 0.5 + 40/24 + 1600/1152 − 2.5 = 1.05556 cm⁻¹: the v-independent shift of the quantum
+// levels from G(v), left out of the Dunham G(v).
+const Y00 = 0.5 + 40 / 24 + 1600 / 1152 - 2.5;
+
+const curves = (over: Partial<PotentialInput> = {}) =>
+  potentialCurves({
+    coefficients: BASE,
+    covariance: new Float64Array(16),
+    reducedMass: { value: 1, uncertainty: 0 },
+    vMax: 1,
+    vData: 1,
+    ...over,
+  });
+
+describe('compareLevels by hand', () => {
+  it('intervals against G(v) − G(0), B against B(v), the shift E₀ − G₀ and the worst of each', () => {
+    const grid = { from: 1, to: 2, step: 0.1, points: 11 };
+    // E₀ = G(0) + 1, E₁ = G(1) + 1 + 0.03, E₂ = G(2) + 1 − 0.05; B off by +1e-4, −3e-4, +2e-4 relative.
+    const solved = [
+      { v: 0, energy: G(0) + 1, rotational: Bv(0) * (1 + 1e-4) },
+      { v: 1, energy: G(1) + 1.03, rotational: Bv(1) * (1 - 3e-4) },
+      { v: 2, energy: G(2) + 0.95, rotational: Bv(2) * (1 + 2e-4) },
+    ];
+    const c = compareLevels(SERIES, grid, solved);
+    expect(c.grid).toBe(grid);
+    expect(c.zeroPointShift).toBeCloseTo(1, 9);
+    expect(c.levels.map((l) => l.v)).toEqual([0, 1, 2]);
+    expect(c.levels.map((l) => l.energy)).toEqual(solved.map((s) => s.energy));
+    expect(c.levels.map((l) => l.B)).toEqual(solved.map((s) => s.rotational));
+    const ie = c.levels.map((l) => l.intervalError);
+    expect(ie[0]).toBe(0);
+    expect(ie[1]).toBeCloseTo(0.03, 9);
+    expect(ie[2]).toBeCloseTo(-0.05, 9);
+    const re = c.levels.map((l) => l.rotationalRelativeError);
+    expect(re[0]).toBeCloseTo(1e-4, 12);
+    expect(re[1]).toBeCloseTo(-3e-4, 12);
+    expect(re[2]).toBeCloseTo(2e-4, 12);
+    expect(c.worstIntervalError).toBeCloseTo(0.05, 9);
+    expect(c.worstRotationalRelativeError).toBeCloseTo(3e-4, 12);
+  });
+});
+
+describe('the Numerov solve on the RKR curve', () => {
+  it('the grid reaches a quarter of the well width inside and half of it outside the points at vTop', () => {
+    const s = solveOnRkrCurve(SERIES, C, 4, 2, 600);
+    if (!s) throw new Error('no curve');
+    const w = s.model.outer - s.model.inner;
+    expect(s.grid.from).toBeCloseTo(s.model.inner - 0.25 * w, 12);
+    expect(s.grid.to).toBeCloseTo(s.model.outer + 0.5 * w, 12);
+    expect(s.grid.points).toBe(600);
+    expect(s.grid.step).toBeCloseTo((s.grid.to - s.grid.from) / 599, 15);
+    expect(s.levels.length).toBe(2);
+    // The levels lie within 0.2 cm⁻¹ of G(v) + Y00 (first order misses the interval by ≈ 0.06).
+    s.levels.forEach((l) => {
+      expect(Math.abs(l.energy - (G(l.v) + Y00))).toBeLessThan(0.2);
+    });
+    // A curve that is not single-valued gives no solve: B(v) = 2 + 3x doubles by v = 1.
+    expect(solveOnRkrCurve({ g: [2000, -10], b: [2, 3] }, C, 4, 2, 600)).toBeUndefined();
+  });
+
+  it('a narrow well on a wide-inner grid: the grid starts at no less than a fifth of the inner point', () => {
+    // A shallow well (ω = 40, ω_e x_e = 2: dissociation near G = 200 cm⁻¹) filled to v = 7 (G = 187.5) with
+    // B = 2 (r_e ≈ 2.9 Å): the outer point runs out to ≈ 12.7 Å, the inner one in to ≈ 0.7 Å, so inner − w/4 < 0.
+    const wide = { g: [40, -2], b: [2, -0.01] };
+    const s = solveOnRkrCurve(wide, C, 7, 1, 600);
+    if (!s) throw new Error('no curve');
+    const w = s.model.outer - s.model.inner;
+    expect(s.model.inner - 0.25 * w).toBeLessThan(0.2 * s.model.inner);
+    expect(s.grid.from).toBeCloseTo(0.2 * s.model.inner, 12);
+  });
+
+  it('numerovCheck: levels 0…vMax on the curve to vTop, the shift ≈ Y00 and the first-order interval error', () => {
+    const check = numerovCheck(SERIES, C, 1, 4);
+    if (!check) throw new Error('no check');
+    expect(check.vTop).toBe(4);
+    expect(check.grid.points).toBe(6000);
+    expect(check.levels.map((l) => l.v)).toEqual([0, 1]);
+    // First order leaves the shift within 0.05 of Y00 and the interval within 0.1 cm⁻¹ (measured 1.087 and 0.063).
+    expect(Math.abs(check.zeroPointShift - Y00)).toBeLessThan(0.05);
+    expect(check.worstIntervalError).toBeGreaterThan(0.01);
+    expect(check.worstIntervalError).toBeLessThan(0.1);
+    expect(numerovCheck({ g: [2000, -10], b: [2, 3] }, C, 1, 4)).toBeUndefined();
+  });
+});
+
+describe('refineRkrCurve on 600 points', () => {
+  it('gives back G(v) − G(0) within 0.01 cm⁻¹ and B(v) within 1e-4, checked on its own curve with another grid', () => {
+    const r = refineRkrCurve({ series: SERIES, hbar2Over2mu: C, vMax: 2, vTop: 5, points: 600 });
+    if (!r) throw new Error('no refinement');
+    expect(r.start).toBe('identity');
+    expect(r.rounds.length).toBeGreaterThanOrEqual(2);
+    expect(r.solves).toBe(r.rounds.length);
+    // The first round is the first-order curve (interval error ≈ 0.13 cm⁻¹ at v = 2); the kept one within goals.
+    expect((r.rounds[0] as { worstIntervalError: number }).worstIntervalError).toBeGreaterThan(0.05);
+    expect(r.check.worstIntervalError).toBeLessThan(ROUND_TRIP_GOALS.interval);
+    expect(r.check.worstRotationalRelativeError).toBeLessThan(ROUND_TRIP_GOALS.rotationalRelative);
+    // Independent check: the RKR curve of the corrected series solved here on 1500 points.
+    const model = rkrCurveModel(r.series, C, 5);
+    if (!model) throw new Error('no model');
+    const w = model.outer - model.inner;
+    const from = model.inner - 0.25 * w;
+    const to = model.outer + 0.5 * w;
+    const levels = solveRadialLevels(model.potential, C, { from, to, step: (to - from) / 1499 }, 3);
+    const e0 = (levels[0] as { energy: number }).energy;
+    levels.forEach((l) => {
+      expect(Math.abs(l.energy - e0 - (G(l.v) - G(0)))).toBeLessThan(0.01);
+      expect(Math.abs(l.rotational / Bv(l.v) - 1)).toBeLessThan(1e-4);
+    });
+    // Dunham's Y00 is what is left above G(0) (higher orders: ±0.005 cm⁻¹; measured 1.0539 against 1.0556).
+    expect(Math.abs(r.check.zeroPointShift - Y00)).toBeLessThan(0.005);
+    // The turning points of each level lie on the refined curve at E_v (1e-6 cm⁻¹ of 1000–5000), r₋ < r₊.
+    expect(r.levels.map((l) => l.v)).toEqual([0, 1, 2]);
+    for (const l of r.levels) {
+      expect(l.rMin).toBeLessThan(l.rMax);
+      expect(Math.abs(model.potential(l.rMin) - l.energy)).toBeLessThan(1e-6 * l.energy);
+      expect(Math.abs(model.potential(l.rMax) - l.energy)).toBeLessThan(1e-6 * l.energy);
+      expect(l.energy).toBe((r.check.levels[l.v] as { energy: number }).energy);
+    }
+  });
+
+  it('with one round the identity run cannot reach the goals: damped Gauss–Newton takes over and does', () => {
+    const r = refineRkrCurve({ series: SERIES, hbar2Over2mu: C, vMax: 2, vTop: 5, points: 600, maxRounds: 1 });
+    if (!r) throw new Error('no refinement');
+    expect(r.start).toBe('finite-difference');
+    // The Newton run's rounds: its first-order start and one step.
+    expect(r.rounds.length).toBe(2);
+    expect((r.rounds[0] as { worstIntervalError: number }).worstIntervalError).toBeGreaterThan(0.05);
+    expect(r.check.worstIntervalError).toBeLessThan(ROUND_TRIP_GOALS.interval);
+    // Solves: 1 of the identity run, then 1 + one per parameter (ΔG to x², ΔB to x²: 5) + at least 1 trial step.
+    expect(r.solves).toBeGreaterThanOrEqual(8);
+    expect(r.solves).toBeLessThanOrEqual(4 * (5 + 2) + 1);
+    // The corrected series carries the corrections: G to degree 2, B to degree 2.
+    expect(r.series.g.length).toBe(2);
+    expect(r.series.b.length).toBe(3);
+  });
+
+  it('a target whose curve is not single-valued gives no refinement', () => {
+    expect(
+      refineRkrCurve({ series: { g: [2000, -10], b: [2, 3] }, hbar2Over2mu: C, vMax: 1, vTop: 4, points: 600 }),
+    ).toBe(undefined);
+  });
+});
+
+describe('potentialCurves with the Numerov check and the refinement', () => {
+  it('verification from vMax + 3 and a refinement within the goals: no warning beyond the range notes', () => {
+    const r = curves();
+    expect(CHECK_MARGIN).toBe(3);
+    const v = r.verification;
+    if (!v) throw new Error('no verification');
+    expect(v.vTop).toBe(1 + CHECK_MARGIN);
+    expect(v.levels.length).toBe(2);
+    expect(Math.abs(v.zeroPointShift - Y00)).toBeLessThan(0.05);
+    const f = r.refined;
+    if (!f) throw new Error('no refinement');
+    expect(f.vTop).toBe(4);
+    expect(f.withinGoals).toBe(true);
+    expect(f.worstIntervalError).toBeLessThan(0.01);
+    expect(f.worstRotationalRelativeError).toBeLessThan(1e-4);
+    expect(f.grid.points).toBe(6000);
+    expect(Math.abs(f.zeroPointShift - Y00)).toBeLessThan(0.005);
+    expect(f.start).toBe('identity');
+    expect(f.solves).toBeGreaterThan(1);
+    expect(f.rounds.length).toBe(f.solves);
+    expect(f.levels.map((l) => l.v)).toEqual([0, 1]);
+    f.levels.forEach((l, i) => {
+      const fo = r.levels[i];
+      if (!fo) throw new Error('no level');
+      // E_v = G_v − G_0 + E_0 of the refined curve: G_v + Y00 within 0.01.
+      expect(Math.abs(l.energy.value - (G(l.v) + f.zeroPointShift))).toBeLessThan(0.01);
+      expect(l.energy.uncertainty).toBe(fo.energy.uncertainty);
+      expect(l.rMin.uncertainty).toBe(fo.rMin.uncertainty);
+      expect(l.rMax.uncertainty).toBe(fo.rMax.uncertainty);
+      expect([l.energy.unit, l.rMin.unit, l.rMax.unit]).toEqual(['cm-1', 'angstrom', 'angstrom']);
+      // The refined turning points move by < 1e-3 Å from first order (measured ≤ 1.1e-4).
+      expect(Math.abs(l.rMin.value - fo.rMin.value)).toBeLessThan(1e-3);
+      expect(Math.abs(l.rMax.value - fo.rMax.value)).toBeLessThan(1e-3);
+      expect(l.rMin.value).not.toBe(fo.rMin.value);
+      expect(Math.abs(l.B / Bv(l.v) - 1)).toBeLessThan(1e-4);
+      expect(l.intervalError).toBe((f.levels[i] as { intervalError: number }).intervalError);
+    });
+    expect(r.warnings.map((w) => w.code)).toEqual([]);
+  });
+
+  it('refine: false keeps the check only; verify: false drops both (refine follows verify by default)', () => {
+    const checkOnly = curves({ refine: false });
+    expect(checkOnly.verification).toBeDefined();
+    expect(checkOnly.refined).toBeUndefined();
+    const none = curves({ verify: false });
+    expect(none.verification).toBeUndefined();
+    expect(none.refined).toBeUndefined();
+    const refineWithoutCheck = curves({ verify: false, refine: true });
+    expect(refineWithoutCheck.refined).toBeUndefined();
+    expect(refineWithoutCheck.warnings.map((w) => w.code)).toEqual([]);
+  });
+
+  it('vTop steps down by halves from vMax + 3 until G(v) is increasing up to it (ω_e x_e = 100: dG/dv = 0 at v = 9.5)', () => {
+    // dG/dv = 2000 − 200x vanishes at x = 10 (v = 9.5): vTop = 11, 10.5, 10, 9.5 are refused, 9 is the first kept.
+    const steep = BASE.map((c) => (c.k === 2 && c.l === 0 ? { ...c, value: -100 } : c));
+    const r = curves({ coefficients: steep, vMax: 8, vData: 8, refine: false });
+    expect(r.verification?.vTop).toBe(9);
+    expect(r.verification?.levels.length).toBe(9);
+  });
+
+  it('a curve that is not single-valued: no check, no refinement, and the warning says why', () => {
+    // B(v) = 2 + 3x keeps G(v) increasing and B(v) positive but makes the turning points cross by v = 1.
+    const crossing = BASE.map((c) => (c.k === 1 && c.l === 1 ? { ...c, value: 3 } : c));
+    const r = curves({ coefficients: crossing, vMax: 2, vData: 2 });
+    expect(r.verification).toBeUndefined();
+    expect(r.refined).toBeUndefined();
+    expect(r.warnings).toContainEqual({
+      code: 'POTENTIAL_NOT_VERIFIED',
+      message: 'the RKR curve is not single-valued on each side of the minimum; the Numerov check was skipped',
+    });
+    expect(r.warnings.filter((w) => w.code === 'POTENTIAL_NOT_REFINED')).toEqual([]);
+  });
+});
