@@ -102,6 +102,30 @@ describe('wide forbidden regions: the running solution is rescaled before it ove
   });
 });
 
+describe('forbidden regions too wide for a double: rescaling in the node count and in the wavefunction', () => {
+  // The well moved to r₀ = 15 on a grid 0.5…30: on either side the solution grows by about
+  // exp(∫√(V/C) dr) = exp(10 · 14.5²/2) ≈ e^{1051} and exp(10 · 15²/2) ≈ e^{1125}, far past 1e308, before the well
+  // (outward) and before the join (inward). Without rescaling the node count and ⟨1/r²⟩ would be NaN.
+  it('E = 0.1, 0.3 within 1e-6 and B₀ = C⟨1/r²⟩ of the Gaussian |ψ₀|² about 15 Å within 1e-7 relative', () => {
+    const C = 0.01;
+    const levels = solveRadialLevels((r) => (r - 15) ** 2, C, { from: 0.5, to: 30, step: 0.02 }, 2);
+    expect(levels.length).toBe(2);
+    energies(levels).forEach((e, v) => {
+      expect(Math.abs(e - 0.2 * (v + 0.5))).toBeLessThan(1e-6);
+    });
+    let num = 0;
+    let den = 0;
+    for (let i = 0; i < 40_000; i++) {
+      const r = 13 + (i + 0.5) * 1e-4;
+      const w = Math.exp(-10 * (r - 15) ** 2);
+      num += w / (r * r);
+      den += w;
+    }
+    const b0 = (C * num) / den;
+    expect(Math.abs((levels[0] as RadialLevel).rotational - b0) / b0).toBeLessThan(1e-7);
+  });
+});
+
 describe('which levels the grid holds', () => {
   it('the top of the well is the lower end of the grid: a plateau of 12 on the left leaves six levels (1, 3 to 1e-4, 5 to 1e-3)', () => {
     // V = (r − 10)² on the right, min((r − 10)², 12) on the left, grid 2…18: V(2) = 12 < V(18) = 64, so levels
@@ -130,6 +154,7 @@ describe('which levels the grid holds', () => {
     expect(() => solveRadialLevels(flat, 1, { from: 1, to: 3, step: 0.25 }, 0)).toThrow(message);
     expect(solveRadialLevels(flat, 1, { from: 1, to: 1 + 1_999_999 * 0.5, step: 0.5 }, 0)).toEqual([]);
     expect(() => solveRadialLevels(flat, 1, { from: 1, to: 1 + 2_000_000 * 0.5, step: 0.5 }, 0)).toThrow(message);
+    expect(() => solveRadialLevels(flat, 1, { from: 0, to: 3, step: 0.25 }, 0)).toThrow(message);
     expect(() => solveRadialLevels(flat, 1, { from: -1, to: 3, step: 0.25 }, 0)).toThrow(message);
     expect(() => solveRadialLevels(flat, 1, { from: Number.NaN, to: 3, step: 0.25 }, 0)).toThrow(message);
     expect(solveRadialLevels(flat, 1, { from: 1e-9, to: 3, step: 0.25 }, 0)).toEqual([]);
