@@ -260,7 +260,9 @@ describe('identity', () => {
     expect(Math.abs((warn.measured.relativeBDeviation as number) + 1.1e-3)).toBeLessThan(1e-9);
     expect(at(2.9e-3).status).toBe('warn');
     expect(at(3.1e-3).status).toBe('fail');
-    expect(at(-3.1e-3).status).toBe('fail');
+    const fail = at(-3.1e-3);
+    expect(fail.status).toBe('fail');
+    expect(fail.message).toBe('band origin off by 0.000 cm-1 and B″ by -3100 ppm from the reference');
   });
 
   it('the main band is the one with most lines and an origin; its lower level gives B″ (a hot band 2-1 here)', () => {
@@ -356,6 +358,46 @@ describe('identity', () => {
     // The fitted species stands in when the assignment names none.
     const fittedOnly = build({ lines: branches(3), species: [], fittedSpecies: [MAIN] });
     expect(check(fittedOnly, 'identity').measured.fitted).toBe(MAIN);
+  });
+
+  it('limits are exclusive: a deviation exactly at the limit passes, exactly at three times it warns', () => {
+    // The deviations as the check computes them, then tolerances that put them exactly on the boundaries.
+    const b = build({ lines: branches(3), bands: [{ species: MAIN, band: '1-0', origin: ORIGIN_10 + 0.6, lines: 6 }] });
+    const d = Math.abs(check(b, 'identity').measured.originDeviation as number);
+    expect(check(b, 'identity', { identityOrigin: d }).status).toBe('pass');
+    const third = d / 3;
+    expect(3 * third).toBe(d); // the boundary is hit exactly in floating point
+    expect(check(b, 'identity', { identityOrigin: third }).status).toBe('warn');
+    const bB = build({ lines: branches(3), levels: [{ species: MAIN, v: 0, B: B0 * (1 + 1.5e-3) }] });
+    const dB = Math.abs(check(bB, 'identity').measured.relativeBDeviation as number);
+    expect(check(bB, 'identity', { identityB: dB }).status).toBe('pass');
+    const thirdB = dB / 3;
+    expect(3 * thirdB).toBe(dB);
+    expect(check(bB, 'identity', { identityB: thirdB }).status).toBe('warn');
+  });
+
+  it('an empty ranking: no best match, score 0; hydrogen isotopes make different molecules (DCl is not HCl)', () => {
+    const empty = check(build({ lines: branches(3), identification: [] }), 'identity');
+    expect([empty.measured.bestMatch, empty.measured.bestScore, empty.measured.runnerUp]).toEqual([null, 0, null]);
+    expect(empty.status).toBe('pass');
+    const hcl = (best: IdentificationCandidate) =>
+      check(
+        build({
+          lines: branches(3),
+          species: ['1H-35Cl'],
+          bands: [{ species: '1H-35Cl', band: '1-0', lines: 6 }],
+          identification: [best],
+        }),
+        'identity',
+      );
+    const dcl = hcl(candidate('2H-35Cl', 'deuterium chloride', 0.8));
+    expect(dcl.status).toBe('fail');
+    expect(dcl.message).toBe('the lines match deuterium chloride (score 0.80) better than the declared 1H-35Cl');
+    expect(dcl.measured.runnerUp).toBe('2H-35Cl');
+    // H³⁷Cl is the same molecule as H³⁵Cl: no rival.
+    const h37 = hcl(candidate('1H-37Cl', 'hydrogen chloride (1H-37Cl)', 0.8));
+    expect(h37.status).toBe('pass');
+    expect(h37.measured.runnerUp).toBeNull();
   });
 
   it('without an identification from the assignment, the lines are ranked here (CO lines: carbon monoxide first)', () => {
@@ -970,6 +1012,11 @@ describe('the whole report', () => {
     );
     expect(id.measured.declared).toBe('1H-35Cl');
     expect(id.measured.bestMatch).toBe(MAIN);
+    expect(id.measured.bestScore as number).toBeGreaterThanOrEqual(0.5);
+    expect(id.measured.runnerUp).not.toBeNull();
+    expect(id.measured.runnerUp).not.toBe(MAIN);
+    expect(id.measured.runnerUpScore as number).toBeGreaterThanOrEqual(0);
+    expect(id.measured.runnerUpScore as number).toBeLessThan(id.measured.bestScore as number);
     expect(r.checks.slice(1).map((c) => [c.id, c.status, c.message])).toEqual(
       ['calibration', 'unexplained-lines', 'isotope-ratio', 'temperature', 'fit-quality'].map((x) => [
         x,
