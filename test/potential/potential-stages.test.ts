@@ -246,3 +246,66 @@ describe('potentialCurves with the Numerov check and the refinement', () => {
     expect(r.warnings.filter((w) => w.code === 'POTENTIAL_NOT_REFINED')).toEqual([]);
   });
 });
+
+describe('potentialCurves without the check: series, mass and the finiteness guards', () => {
+  const fast = (over: Partial<PotentialInput> = {}) => curves({ vMax: 4, vData: 4, verify: false, ...over });
+  const diag = (s: readonly number[]) => {
+    const m = new Float64Array(s.length * s.length);
+    s.forEach((v, i) => {
+      m[i * s.length + i] = v;
+    });
+    return m;
+  };
+  const refusal = (over: Partial<PotentialInput>) => {
+    try {
+      fast(over);
+    } catch (e) {
+      return e as { code: string; message: string; details: unknown };
+    }
+    throw new Error('expected a refusal');
+  };
+
+  it('missing middle terms count as 0: G = 2000x + 0.5x³ without ω_e x_e, B = 2 + 1e-3 x² without α_e (1e-9)', () => {
+    const r = fast({
+      coefficients: [
+        { k: 1, l: 0, value: 2000 },
+        { k: 3, l: 0, value: 0.5 },
+        { k: 0, l: 1, value: 2 },
+        { k: 2, l: 1, value: 1e-3 },
+        { k: 0, l: 2, value: -6e-6 }, // an l = 2 term after B_e: not part of B(v)
+      ],
+      covariance: new Float64Array(25),
+    });
+    for (const l of r.levels) {
+      const x = l.v + 0.5;
+      expect(Math.abs(l.energy.value - (2000 * x + 0.5 * x ** 3))).toBeLessThan(1e-9);
+      expect(Math.abs(l.B.value - (2 + 1e-3 * x * x))).toBeLessThan(1e-12);
+    }
+  });
+
+  it('C = ħ²/2μ: μ = 2 u halves C and shrinks every turning point by √2 (r ∝ √C for the same G and B; 1e-12)', () => {
+    const one = fast();
+    const two = fast({ reducedMass: { value: 2, uncertainty: 0 } });
+    expect(two.hbar2Over2mu).toBe(ROTATIONAL_FACTOR / 2);
+    two.levels.forEach((l, v) => {
+      const o = one.levels[v];
+      if (!o) throw new Error('no level');
+      expect(Math.abs(l.rMin.value * Math.SQRT2 - o.rMin.value)).toBeLessThan(1e-12);
+      expect(Math.abs(l.rMax.value * Math.SQRT2 - o.rMax.value)).toBeLessThan(1e-12);
+    });
+  });
+
+  it('an infinite σ of E or of B refuses the levels, with vMax in the details', () => {
+    // An infinite var(Y20) makes σ(G) infinite; var(Y11) = 1e308 makes σ²(B) = x² · 1e308 overflow from x = 1.5.
+    const message = 'the constants give turning points that are not finite numbers';
+    for (const cov of [diag([0, Number.POSITIVE_INFINITY, 0, 0]), diag([0, 0, 0, 1e308])]) {
+      const e = refusal({ covariance: cov });
+      expect([e.code, e.message]).toEqual(['POTENTIAL_CONSTANTS_INVALID', message]);
+      expect(e.details).toEqual({ vMax: 4 });
+    }
+  });
+
+  it('vMax out of range is refused with vMax in the details', () => {
+    expect(refusal({ vMax: 101 }).details).toEqual({ vMax: 101 });
+  });
+});

@@ -434,7 +434,7 @@ describe('calibration', () => {
     expect(Math.abs(off.value)).toBeLessThan(1e-6);
     expect(c.limit).toEqual({ offset: 0.05, scalePpm: 20, guardBand: '2u (k = 2)' });
     expect(c.message).toMatch(/^offset .* cm-1 at 21\d\d\.\d cm-1 \(the weighted centre of 25 lines, /);
-    expect(c.message).toMatch(/: within limits/);
+    expect(c.message).toMatch(/, which leaves them out\): within limits \(library prediction uncertainty included: /);
     expect(c.message).toMatch(
       /; the scale is not determined by these lines \(σ would be \d+ ppm, more than a third of the 20 ppm limit\) and is not judged$/,
     );
@@ -536,6 +536,21 @@ describe('calibration', () => {
     expect(floor).toBeLessThan(0.7 * given);
   });
 
+  it('an offset exactly at the limit is within it (not "beyond"); a scatter of another band falls back to the rms', () => {
+    const b = build({ lines, offset: 0.03 });
+    const x = Math.abs((check(b, 'calibration').measured.offset as { value: number }).value);
+    const at = check(b, 'calibration', { calibrationOffset: x });
+    expect(at.status).toBe('pass');
+    expect(at.message).toMatch(/: within limits/);
+    // No σ given, a scatter only for another band and no pooled one: the rms (1e-3) is the σ.
+    const u = (bb: Built) => (check(bb, 'calibration').measured.offset as { uncertainty: number }).uncertainty;
+    const bare = branches(12);
+    const viaRms = u(
+      build({ lines: bare, scatter: [{ group: '12C-16O 2-0', by: 'band', sigma: 1 }], statistics: { rms: 1e-3 } }),
+    );
+    expect(viaRms / u(build({ lines }))).toBeCloseTo(1, 6);
+  });
+
   it('fewer than three usable lines: not evaluated, with the reason', () => {
     const c = check(
       build({
@@ -558,11 +573,16 @@ describe('calibration', () => {
     const s = ok.measured.scale as { value: number; uncertainty: number };
     expect(Math.abs(s.value)).toBeLessThan(1);
     expect(s.uncertainty).toBeLessThan(20 / 3);
-    expect(ok.measured.scaleUncertaintyIfFitted).toBeUndefined();
+    expect('scaleUncertaintyIfFitted' in ok.measured).toBe(false);
     expect(ok.message).toMatch(
       /, scale .* ppm: within limits \(library prediction uncertainty included: .* missing from the library, carried with priors\)$/,
     );
-    expect((ok.measured.libraryTermsCarried as string[]).length).toBeGreaterThan(0);
+    // CO's library lacks ω_e z_e (next to ω_e y_e), γ_e, β_e and H_e (from D_e): four terms, named with commas.
+    const carried = ok.measured.libraryTermsCarried as string[];
+    expect(carried).toEqual(['ω_e z_e', 'γ_e', 'β_e', 'H_e']);
+    expect(ok.message).toContain(
+      `(library prediction uncertainty included: ${carried.join(', ')} missing from the library`,
+    );
     const bad = check(build({ lines: two, scale: 100e-6 }), 'calibration');
     expect(bad.status).toBe('fail');
     expect(Math.abs((bad.measured.scale as { value: number }).value - 100)).toBeLessThan(2);
@@ -578,6 +598,12 @@ describe('calibration', () => {
     expect(warn.status).toBe('warn');
   });
 });
+
+// H³⁵Cl X¹Σ⁺, Huber & Herzberg (1979): ω_e = 2990.9463, ω_e x_e = 52.8186, ω_e y_e = 0.2243, ω_e z_e = −0.0122
+// (from memory), B_e = 10.593416, α_e = 0.307181, D_e = 5.3194e-4 cm⁻¹: G(1) − G(0) = 2885.977 cm⁻¹.
+const HCL = { we: 2990.9463, wexe: 52.8186, weye: 0.2243, Be: 10.593416, ae: 0.307181, De: 5.3194e-4 };
+const hclLine = (branch: Branch, j: number) =>
+  termOf(HCL)(1, upperJ(branch, j)) - termOf(HCL)(0, j) - 0.0122 * (1.5 ** 4 - 0.5 ** 4);
 
 describe('unexplained lines', () => {
   // 20 assigned lines with intensities of a 296 K gas scaled to sum to 95, and unassigned lines sharing the rest
@@ -634,6 +660,53 @@ describe('unexplained lines', () => {
     expect(fail.message).toBe('1 line(s), 6.0 % of the intensity, are explained by no band');
   });
 
+  it('limits are exclusive: 1 line of 20 (5 %) warns, 1 of 40 (2.5 %) passes; a line of intensity 0 keeps the intensity basis', () => {
+    const count = (assigned: number) =>
+      check(
+        build({
+          lines: [
+            ...Array.from({ length: assigned }, (_, i) => ({ branch: 'R' as const, j: i })),
+            { branch: 'R', j: 0, status: 'unassigned', position: 2300 },
+          ],
+        }),
+        'unexplained-lines',
+      );
+    expect(count(19).status).toBe('warn');
+    expect(count(19).measured.fraction).toBe(0.05);
+    expect(count(39).status).toBe('pass');
+    const zero = check(withShare([0]), 'unexplained-lines');
+    expect(zero.measured.basis).toBe('intensity');
+    expect([zero.status, zero.measured.fraction]).toEqual(['pass', 0]);
+    // No lines at all: a share of 0, not NaN.
+    const empty = check(build({ lines: [] }), 'unexplained-lines');
+    expect([empty.measured.count, empty.measured.fraction, empty.status]).toEqual([0, 0, 'pass']);
+  });
+
+  it('five or more unexplained lines another molecule explains are named as a possible impurity; four are not', () => {
+    const hcl = (n: number) =>
+      build({
+        lines: [
+          ...branches(10),
+          ...branches(6)
+            .slice(0, n)
+            .map((l) => ({ ...l, status: 'unassigned' as const, position: hclLine(l.branch, l.j) })),
+        ],
+      });
+    const c = check(hcl(12), 'unexplained-lines');
+    const by = c.measured.explainedBy as { species: string; name: string; score: number }[];
+    expect(by.map((x) => [x.species, x.name])).toEqual([['1H-35Cl', 'hydrogen chloride']]);
+    expect(by[0]?.score as number).toBeGreaterThanOrEqual(0.3);
+    expect(Object.keys(by[0] as object).sort()).toEqual(['name', 'score', 'species']);
+    expect(c.message).toBe(
+      '12 line(s), 37.5 % of the lines, are explained by no band; they would fit hydrogen chloride (a possible impurity)',
+    );
+    const five = check(hcl(5), 'unexplained-lines');
+    expect((five.measured.explainedBy as unknown[]).length).toBeGreaterThan(0);
+    const four = check(hcl(4), 'unexplained-lines');
+    expect(four.measured.explainedBy).toEqual([]);
+    expect(four.message).toBe('4 line(s), 16.7 % of the lines, are explained by no band');
+  });
+
   it('by line count when an intensity is missing or negative, or all are 0', () => {
     // 1 unassigned of 21 lines: 4.8 %, a warning.
     const missing = build({
@@ -686,6 +759,21 @@ describe('unexplained lines', () => {
     expect(check(withShare([0.1, 0.1, 0.1, 0.1], { assignmentBands: [noOffset] }), 'unexplained-lines').status).toBe(
       'pass',
     );
+    // An offset of exactly 0 is printed as +0.000; two missed bands are both named, one after the other.
+    const two = check(
+      withShare([0.1, 0.1, 0.1, 0.1], {
+        assignmentBands: [
+          { ...band, bestOffset: { offset: 0, matches: 4 } },
+          { species: MAIN, band: '3-0', matched: 1, bestOffset: { offset: 0.125, matches: 5 } },
+        ],
+      }),
+      'unexplained-lines',
+    );
+    const tail =
+      ', a band the library predicts in the window that was not found (see BAND_NOT_FOUND): a weak share of the intensity is no proof the lines are noise';
+    expect(two.message).toBe(
+      `4 line(s), 0.4 % of the intensity, are explained by no band; 4 of them would match 12C-16O band 2-0 at its best offset +0.000 cm-1${tail}; 5 of them would match 12C-16O band 3-0 at its best offset +0.125 cm-1${tail}`,
+    );
     // A share that fails already stays a failure.
     expect(check(withShare([3, 3, 0.1, 0.1], { assignmentBands: [band] }), 'unexplained-lines').status).toBe('fail');
   });
@@ -701,6 +789,7 @@ describe('unexplained lines', () => {
     expect(c.measured.count).toBe(12);
     const by = c.measured.explainedBy as { species: string; score: number }[];
     expect(by.map((x) => x.species)).toContain(MINOR);
+    for (const x of by) expect(x.score).toBeGreaterThanOrEqual(0.3);
     expect(c.message).toMatch(
       /; they would fit .*\(another isotopologue than the one assigned against: declare the molecule, "CO", to assign every isotopologue\)/,
     );
