@@ -893,6 +893,14 @@ describe('numberings of a progression', () => {
     expect(got).toHaveLength(48);
     expect(got.slice(0, 3).map((x) => x.q)).toEqual([0, 0, 0]);
     expect(new Set(got.map((x) => x.q))).toEqual(new Set([0, 1, 2, -3, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13, 14]));
+    // The slot below the lowest line (−31) is not among the sixteen nearest, and no inside slot brings it in.
+    const far = [-30, -29, -28, 1, 2, 3].map((m) => pt(m, m, m + 30));
+    const farSlots = new Set(numberingsOf(far).map((x) => x.q));
+    expect(farSlots.size).toBe(16);
+    expect(farSlots.has(-31)).toBe(false);
+    expect(farSlots.has(4)).toBe(true);
+    expect(farSlots.has(-14)).toBe(true);
+    expect(farSlots.has(-15)).toBe(false);
   });
   it('the lines numbered from the slot: R(J) at index J + 1, P(J) at −J; a line at the origin refuses', () => {
     const at0 = numbered(chain, 0, 0) as Numbering;
@@ -916,6 +924,10 @@ describe('numberings of a progression', () => {
     const back = numbered(chain, -4, -1) as Numbering;
     expect([...back].map(([, t]) => `${t.branch}${t.j}`)).toEqual(['R0', 'R1', 'R2', 'R3', 'R4', 'R5']);
     expect(numbered(chain, 1, 0)).toBeUndefined();
+    // A line at m = 0 belongs to the R side of the seed gap and moves with it.
+    const withZero = [-3, -2, -1, 0, 1, 2].map((m) => pt(m, 100 + m, m + 3));
+    const up = numbered(withZero, -4, 1) as Numbering;
+    expect([...up].map(([, t]) => `${t.branch}${t.j}`)).toEqual(['R0', 'R1', 'R2', 'R4', 'R5', 'R6']);
     expect(numbered(chain, 0, -1)).toBeUndefined();
   });
   it('keys: the same numbering in any order is one key, another numbering another', () => {
@@ -1286,6 +1298,11 @@ describe('scores', () => {
     const F = trial({ reducedChiSquare: 0.6, intercept: { value: 3.1, uncertainty: 0, ownScale: 1 } });
     expect(positionScale([trial({ reducedChiSquare: 2 }), F])).toBe(2);
     expect(positionScale([trial({ reducedChiSquare: 0 })])).toBe(1e-300);
+    // Exactly 9 above the best still passes: an intercept 3 (σ·scale 0 counts as 1) costs 3² = 9.
+    const G = trial({ reducedChiSquare: 0.6, intercept: { value: 3, uncertainty: 0, ownScale: 1 } });
+    expect(positionScale([trial({ reducedChiSquare: 2 }), G])).toBe(0.6);
+    // An implausible Kratzer costs 25, not an infinite z²: beside a best of 25 (a line at its origin) it passes.
+    expect(positionScale([trial({ reducedChiSquare: 2, lineAtOrigin: true }), D])).toBe(0.7);
   });
 
   it('each part of the total as documented, worked out by hand', () => {
@@ -1395,6 +1412,19 @@ describe('scores', () => {
     ]);
     expect(k.find((t) => t.q === 0)?.evidence.parts.kratzer).toBeCloseTo(1e6 + 2 * Math.log(1e-6 / 1e-6), 6);
     expect(k.find((t) => t.q === 1)?.evidence.parts.kratzer).toBeCloseTo(2 * Math.log(0.01 / 1e-6), 9);
+    // The sharpest σ is taken over plausible numberings only (an implausible one's σ of 1 is no test).
+    const loose = score([
+      trial({ q: 0, kratzer: { ratio: 1, uncertainty: 2 } }),
+      trial({ q: 1, kratzer: { ratio: 0, uncertainty: 1 } }),
+    ]);
+    expect(loose.find((t) => t.q === 0)?.evidence.parts.kratzer).toBe(0);
+    expect(loose.find((t) => t.q === 1)?.evidence.parts.kratzer).toBe(25);
+    // Only implausible ones: no numbering has a test, so one without any costs nothing.
+    const none = score([trial({ q: 0 }), trial({ q: 1, kratzer: { ratio: 0, uncertainty: 1 } })]);
+    expect(none.find((t) => t.q === 0)?.evidence.parts.kratzer).toBe(0);
+    // A Boltzmann plot with a zero sum (no floor): no intensity evidence rather than an infinite one.
+    const flat = score([trial({ q: 0, boltzmann: { rss: 0, n: 6 } }), trial({ q: 1, boltzmann: { rss: 0.6, n: 6 } })]);
+    expect(flat.map((t) => t.evidence.parts.intensities)).toEqual([0, 0]);
   });
 
   it('one numbering per band origin (a quarter of the line spacing), the best scored first', () => {
