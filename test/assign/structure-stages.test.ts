@@ -372,6 +372,19 @@ describe('Kratzer test', () => {
         BAND10,
       );
     const a = kFor(1.331e-6, 1e-9);
+    // The levels found by v, whatever their order in the result.
+    const swapped = kratzerTest(
+      levelsFit({
+        levels: [
+          { v: 1, B: base.B1 },
+          { v: 0, B: base.B0, D: 1.331e-6, sigmaD: 1e-9 },
+        ],
+        band: '1-0',
+        origin: base.origin,
+      }),
+      BAND10,
+    );
+    expect(swapped).toEqual(a);
     const b = kFor(2 * 1.331e-6, 1e-9);
     expect((b?.ratio as number) / (a?.ratio as number)).toBeCloseTo(2, 12);
     const own = ownKratzer(base.B0, base.B1, 1.331e-6, 0, base.origin, 0, 1);
@@ -417,6 +430,8 @@ describe('Kratzer test', () => {
     expect(t(0.817, 0.811, 1e-6, 1272, Number.POSITIVE_INFINITY)).toEqual(implausible); // σ not finite
     expect(t(0.817, 0.811, 1e-6, 1272, Number.NaN)).toEqual(implausible);
     expect(t(0.817, 0.811, 1e-6, 1272)?.ratio).toBeGreaterThan(0);
+    // α_e large beside B_e: Dunham's β_e/D_e (−α_e²ω_e/(24B_e³) ≈ −53 here) would make D_e negative.
+    expect(t(0.1, 0.05, 1e-6, 1000)).toEqual(implausible);
   });
 
   it('is undefined for pure rotation, a downward band, or a missing level, origin or D″', () => {
@@ -474,6 +489,9 @@ describe('smooth sides', () => {
     expect(smoothSides([...P, pt(0, 0), pt(1, 2), pt(3, 6), pt(4, 8), pt(5, 10)])).toBe(true);
     // A side whose positions fall with m (a spacing of −2 per line) is as smooth as one that rises.
     expect(smoothSides([...P, ...[0, 1, 2, 3].map((m) => pt(m, 50 - 2 * m))])).toBe(true);
+    // Sorted by m before the spacings are taken: spacings 2, 3, 2 jump (false), though taken in the order given
+    // (m = 0, 2, 1, 3) the slopes 2.5, 3, 2.5 would not.
+    expect(smoothSides([...P, pt(0, 0), pt(2, 5), pt(1, 2), pt(3, 7)])).toBe(false);
     // A jump on the P side counts as well.
     expect(smoothSides([pt(-5, 89), pt(-4, 92), pt(-3, 94), pt(-2, 96), pt(-1, 98), ...R])).toBe(false);
   });
