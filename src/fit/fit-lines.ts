@@ -111,8 +111,9 @@ export function fitLineListDetailed(
   warnings.push(...cds.warnings);
   checkRepeats(selected, prepared.given > 0, warnings);
   checkDuplicates(prepared.observations, kept.rejected, warnings);
-  absoluteScaleWarnings(selected, kept.mode, warnings);
-  qualityWarnings(selected, report.correlation, report.names, warnings);
+  // A mode turned absolute to keep the stated σ already says why; "consider a-posteriori" would contradict it.
+  if (!kept.statedKept) absoluteScaleWarnings(selected, kept.mode, warnings);
+  qualityWarnings(selected, report.correlation, report.names, warnings, kept.mode);
 
   const result: FitResult = {
     species: [...masses.entries()]
@@ -160,6 +161,8 @@ interface PreparedObservations {
   readonly initialLevel: LevelSelection;
   /** Lines that came with an uncertainty. */
   readonly given: number;
+  /** Every assigned line came with an uncertainty (none filled or estimated). */
+  readonly allStated: boolean;
   readonly mode: UncertaintyMode;
   readonly warnings: Warning[];
 }
@@ -200,7 +203,8 @@ function prepareObservations(
   const observations = stated?.observations ?? weighted.observations;
   const initialLevel =
     observations === weighted.observations ? firstLevel : selectLevelModel(observations, maxOrder, mode, alpha);
-  return { read, weighted, stated, observations, initialLevel, given, mode, warnings };
+  const allStated = read.observations.every((o) => input[o.index]?.uncertainty !== undefined);
+  return { read, weighted, stated, observations, initialLevel, given, allStated, mode, warnings };
 }
 
 /** Stages 2 and 3: the level model selected, outliers rejected; the mode turned absolute when no freedom is left. */
@@ -208,9 +212,10 @@ function selectAndReject(
   prepared: PreparedObservations,
   opt: { readonly rejectionThreshold: number; readonly maxRejectedFraction: number },
   settings: FitSettings,
-): { level: LevelSelection; rejected: ReadonlyMap<number, string>; mode: UncertaintyMode } {
+): { level: LevelSelection; rejected: ReadonlyMap<number, string>; mode: UncertaintyMode; statedKept: boolean } {
   const { observations, warnings, given } = prepared;
   let mode = prepared.mode;
+  let statedKept = false;
   const outliers = rejectOutliers(observations, prepared.initialLevel, {
     maxOrder: settings.maxOrder,
     mode,
@@ -243,8 +248,34 @@ function selectAndReject(
         'no degrees of freedom are left to scale the covariance a posteriori: the line uncertainties are taken as absolute',
     });
     level = selectLevelModel(outliers.kept, settings.maxOrder, mode, settings.alpha);
+  } else if (mode === 'a-posteriori' && keepsStatedUncertainties(prepared, level.fit)) {
+    const nu = level.fit.degreesOfFreedom;
+    const r = level.fit.chiSquare / nu;
+    mode = 'absolute';
+    statedKept = true;
+    warnings.push({
+      code: 'UNCERTAINTY_MODE_CHANGED',
+      message: `χ²/ν = ${r < 0.01 ? r.toExponential(1) : r.toFixed(2)} on ${nu} degree(s) of freedom: too few to show that the stated line uncertainties are too large, so they are taken as absolute instead of being scaled down by √(χ²/ν) = ${Math.sqrt(r).toPrecision(2)}`,
+    });
+    level = selectLevelModel(outliers.kept, settings.maxOrder, mode, settings.alpha);
   }
-  return { level, rejected, mode };
+  return { level, rejected, mode, statedKept };
+}
+
+/**
+ * Below this many degrees of freedom the a-posteriori scale does not shrink stated uncertainties. s² = χ²/ν has a
+ * relative standard deviation of √(2/ν) (0.45 at ν = 10, 1.4 at ν = 1), and a small χ² on few lines more often
+ * means that a few precise lines fix the parameters than that every σ is overstated (three CO rotation lines of
+ * which one is 1 000 times less precise scaled σ(B_0) down 1 000-fold, putting the published value 47σ away). The
+ * value 10 is our choice; above it the scale still goes both ways, so overstated σ of a long list are corrected.
+ */
+export const MIN_DOF_TO_SCALE_DOWN = 10;
+
+/** a-posteriori, every fitted line's σ stated by the caller, 0 < ν < MIN_DOF_TO_SCALE_DOWN and χ²/ν < 1. */
+function keepsStatedUncertainties(prepared: PreparedObservations, fit: SolvedModel): boolean {
+  const nu = fit.degreesOfFreedom;
+  if (nu <= 0 || nu >= MIN_DOF_TO_SCALE_DOWN || fit.chiSquare >= nu) return false;
+  return prepared.allStated && prepared.observations === prepared.weighted.observations;
 }
 
 /** The statistics describe the model the term test selected, not the constrained one (which changes the covariance). */

@@ -95,11 +95,15 @@ export function qualityWarnings(
   corr: readonly (readonly number[])[],
   names: readonly string[],
   warnings: Warning[],
+  mode: 'a-posteriori' | 'absolute' = 'a-posteriori',
 ): void {
   if (fit.degreesOfFreedom < 3) {
     warnings.push({
       code: 'FEW_DEGREES_OF_FREEDOM',
-      message: `only ${fit.degreesOfFreedom} degree(s) of freedom: the a-posteriori uncertainties are themselves very uncertain`,
+      message:
+        mode === 'absolute'
+          ? `only ${fit.degreesOfFreedom} degree(s) of freedom: χ² can hardly test the stated uncertainties or the model`
+          : `only ${fit.degreesOfFreedom} degree(s) of freedom: the a-posteriori uncertainties are themselves very uncertain`,
     });
   }
   if (fit.conditionNumber > 1e10) {
