@@ -126,13 +126,15 @@ export const FALSE_ALARM_Z = 2.5758293035489;
 /**
  * Guard-banded decision (after JCGM 106:2012, §8, with a guard band w = 2u): pass when |x| ≤ L; warn when the limit
  * is exceeded but not by more than 2u (not significant); fail when |x| > L + 2u (beyond the limit at about 98 %
- * one-sided confidence). A deviation that does not differ from zero at the FALSE_ALARM_RATE level (|x| ≤ 2.576u)
- * also passes, whatever the limit: the data cannot tell it from a clean scan, and calling it would make a clean
- * scan whose u is comparable to the limit warn far more often than 1 % (u = L/2: 4.6 %; u = L: 32 %). So a clean
- * scan warns or fails on one judged quantity with probability at most 1 %, whatever its uncertainty.
+ * one-sided confidence). A deviation beyond the limit that does not differ from zero at the FALSE_ALARM_RATE level
+ * (|x| ≤ 2.576u) also passes while u ≤ L: the data cannot tell it from a clean scan, and calling it would make a
+ * clean scan whose u is comparable to the limit warn far more often than 1 % (u = L/2: 4.6 %; u = L: 32 %). When
+ * u > L the lines cannot judge the limit at all, and a result beyond it is inconclusive: it warns (otherwise an
+ * inflated uncertainty column turns an offset six times the limit into a pass). So a clean scan with u ≤ L warns or
+ * fails on one judged quantity with probability at most 1 %; with u > L it warns with probability P(|x| > L) > 32 %.
  */
 export function guardBandedStatus(x: number, u: number, limit: number): 'pass' | 'warn' | 'fail' {
   const a = Math.abs(x);
-  if (a <= limit || a <= FALSE_ALARM_Z * u) return 'pass';
+  if (a <= limit || (a <= FALSE_ALARM_Z * u && u <= limit)) return 'pass';
   return a > limit + 2 * u ? 'fail' : 'warn';
 }

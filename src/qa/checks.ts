@@ -3,6 +3,7 @@ import type { PeakInput } from '../assign/assign-lines.js';
 import { candidateLines, naturalAbundances } from '../assign/candidates.js';
 import { type IdentificationCandidate, identifyIsotopologues, identifySpecies } from '../assign/identify.js';
 import { relativeIntensity, withoutUninformativeIntensities } from '../assign/intensity.js';
+import { MIN_DOF_TO_SCALE_DOWN } from '../fit/fit-lines.js';
 import { compileDunham } from '../models/dunham.js';
 import type { Branch } from '../models/transitions.js';
 import { constantsFor, dunhamFromEntry } from '../species/library.js';
@@ -258,11 +259,13 @@ function calibrationCheck(
   if (!entry) return notEvaluated('calibration', `${main} has no reference positions to calibrate against`);
   const r = analysis.result;
   const st = r.statistics;
-  // Each line's σ as the fit used it: given (scaled by √(χ²/ν) when that exceeds 1 in a-posteriori mode), or the
-  // scatter estimated for its band, or the rms of the fit.
+  // Each line's σ as the fit used it: given (scaled by √(χ²/ν) in a-posteriori mode: up always, down only on
+  // MIN_DOF_TO_SCALE_DOWN or more degrees of freedom, as the fit does, so that a stated σ 200 times the scatter
+  // cannot hide an offset), or the scatter estimated for its band, or the rms of the fit.
+  const s2 = st.reducedChiSquare ?? 1;
   const inflate =
     st.uncertaintyMode === 'a-posteriori' && st.reducedChiSquare !== null && r.scatter === undefined
-      ? Math.sqrt(Math.max(1, st.reducedChiSquare))
+      ? Math.sqrt(st.degreesOfFreedom >= MIN_DOF_TO_SCALE_DOWN ? s2 : Math.max(1, s2))
       : 1;
   const sigmaOf = (index: number, band: string) =>
     peaks[index]?.uncertainty !== undefined
@@ -314,7 +317,7 @@ function calibrationCheck(
     message:
       status === 'pass'
         ? `${found}: ${beyondButNotSignificant ? `beyond the limits (${tol.calibrationOffset} cm-1, ${tol.calibrationScalePpm} ppm) but not different from zero at the 1 % false-alarm level (|x| ≤ 2.576u): the lines cannot tell it from a calibrated scan` : 'within limits'}${library}${scaleNote}`
-        : `${found} against limits ${tol.calibrationOffset} cm-1 and ${tol.calibrationScalePpm} ppm${status === 'warn' ? ' (beyond the limit, but by less than the 2σ guard band: not significant)' : ' (beyond the limit by more than the 2σ guard band)'}${library}${scaleNote}`,
+        : `${found} against limits ${tol.calibrationOffset} cm-1 and ${tol.calibrationScalePpm} ppm${status === 'fail' ? ' (beyond the limit by more than the 2σ guard band)' : c.offset.uncertainty > tol.calibrationOffset ? ` (inconclusive: the lines determine the offset only to ±${c.offset.uncertainty.toPrecision(2)} cm-1, more than the limit itself; check the stated uncertainties)` : ' (beyond the limit, but by less than the 2σ guard band: not significant)'}${library}${scaleNote}`,
   };
 }
 

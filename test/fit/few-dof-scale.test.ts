@@ -15,10 +15,17 @@ const masses = new Map([[SPECIES, reducedMass(parseSpecies(SPECIES))]]);
 describe('three measured CO rotation lines (REFERENCE-DATA §4b), σ stated from their printed digits', () => {
   it('B_0 keeps the σ the stated uncertainties give and covers the published value (Gendriesch et al. 2009)', () => {
     // 115271.2018 and 345795.9899 MHz printed to 0.1 kHz: σ 0.5 kHz stated; 230538.0 printed to 0.1 MHz: 0.5 MHz.
+    const rot = (j: number) => ({
+      species: SPECIES,
+      band: { upper: 0, lower: 0 },
+      branch: 'R' as const,
+      j,
+      source: 'given' as const,
+    });
     const lines: LineInput[] = [
-      { position: 115271.2018, uncertainty: 0.0005, assignment: { band: '0-0', branch: 'R', j: 0, species: SPECIES } },
-      { position: 230538.0, uncertainty: 0.5, assignment: { band: '0-0', branch: 'R', j: 1, species: SPECIES } },
-      { position: 345795.9899, uncertainty: 0.0005, assignment: { band: '0-0', branch: 'R', j: 2, species: SPECIES } },
+      { position: 115271.2018, uncertainty: 0.0005, assignment: rot(0) },
+      { position: 230538.0, uncertainty: 0.5, assignment: rot(1) },
+      { position: 345795.9899, uncertainty: 0.0005, assignment: rot(2) },
     ].map((l) => ({ ...l, position: l.position / C_CM, uncertainty: l.uncertainty / C_CM }));
     const r = fitLineList(lines, masses);
     expect(r.statistics.degreesOfFreedom).toBe(1);
