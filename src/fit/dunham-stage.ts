@@ -18,9 +18,18 @@ import { dunhamPriors, type TermConstraint } from './truncation.js';
 import type { DunhamFit, Warning } from './types.js';
 
 /** The customary constant each constrained Dunham term is, and the reported constants it moves. */
-const SYMBOL: Record<string, string> = { Y30: 'ω_e y_e', Y21: 'γ_e', Y12: '−β_e', Y02: '−D_e', Y03: 'H_e', Y04: 'L_e' };
+const SYMBOL: Record<string, string> = {
+  Y30: 'ω_e y_e',
+  Y40: 'ω_e z_e',
+  Y21: 'γ_e',
+  Y12: '−β_e',
+  Y02: '−D_e',
+  Y03: 'H_e',
+  Y04: 'L_e',
+};
 const AFFECTS: Record<string, string> = {
   Y30: 'ω_e and ω_e x_e',
+  Y40: 'ω_e, ω_e x_e and ω_e y_e',
   Y21: 'B_e and α_e',
   Y12: 'D_e',
   Y02: 'B_e and α_e',

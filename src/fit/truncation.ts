@@ -55,6 +55,7 @@ interface Reference {
   omega_e?: number;
   omega_e_x_e?: number;
   omega_e_y_e?: number;
+  omega_e_z_e?: number;
   B_e?: number;
   alpha_e?: number;
   gamma_e?: number;
@@ -89,6 +90,7 @@ function lookUpReference(species: string): Reference {
     'omega_e',
     'omega_e_x_e',
     'omega_e_y_e',
+    'omega_e_z_e',
     'B_e',
     'alpha_e',
     'gamma_e',
@@ -423,6 +425,12 @@ export function dunhamPriors(
     });
   };
   add(3, 0, ref.omega_e_y_e, 'ω_e y_e');
+  // One further in the vibrational column when the lines fixed ω_e y_e too: four levels fit Y10, Y20, Y30 with no
+  // freedom left, and without a prior on Y40 its truncation error was in no σ (real CO v = 0–3 gave ω_e 355σ from
+  // Huber & Herzberg at σ 2e-6 cm⁻¹; with the prior 0.6σ at σ 1e-3). Not in the rotational columns: there the
+  // extrapolation to v = −½ is short, and a Y31 prior of 5κ|Y21| made B_e of three-level fits over-cover (1σ 0.86
+  // over 200 H³⁵Cl fits, test/fit/pulls.test.ts).
+  add(4, 0, ref.omega_e_z_e, 'ω_e z_e');
   add(2, 1, ref.gamma_e, 'γ_e');
   add(1, 2, ref.beta_e !== undefined ? -ref.beta_e : undefined, 'β_e');
   if (!has(0, 2) && has(0, 1) && omega !== undefined && B !== undefined) {

@@ -61,8 +61,9 @@ describe('forward selection of Dunham terms', () => {
   it('H³⁵Cl 1-0, 2-0, 3-0 to J″ = 30 (σ 2e-4): Y12, Y21, Y03 added in that order, Y04 constrained; γ_e, β_e, H_e with their signs', () => {
     const obs = lines(HCL_1_35, HCL3, 2e-4, { override: { omega_e_z_e: 0 } });
     const { r, warnings } = stage('1H-35Cl', obs, ordersFor('1H-35Cl', 3, 3));
-    expect(r?.report.terms).toEqual(['Y10', 'Y20', 'Y30', 'Y01', 'Y11', 'Y02', 'Y12', 'Y21', 'Y03', 'Y04']);
-    expect(r?.report.constrained?.map((c) => c.parameter)).toEqual(['Y04']);
+    // Y40 follows the fitted Y30 as a prior (the library's ω_e z_e ± 50 %), L_e (Y04) follows H_e.
+    expect(r?.report.terms).toEqual(['Y10', 'Y20', 'Y30', 'Y01', 'Y11', 'Y02', 'Y12', 'Y21', 'Y03', 'Y40', 'Y04']);
+    expect(r?.report.constrained?.map((c) => c.parameter)).toEqual(['Y40', 'Y04']);
     const c = HCL_1_35.constants;
     // Y_kl of the customary expansion (test/helpers/independent-lines.ts): Y30 = ω_e y_e, Y21 = γ_e, Y12 = −β_e,
     // Y03 = H_e, exactly (the generator's E(v, J) is that sum term by term).
@@ -80,9 +81,13 @@ describe('forward selection of Dunham terms', () => {
       const q = paramOf(r, n);
       expect(Math.abs(q?.value as number), n).toBeGreaterThan(10 * (q?.uncertainty as number));
     }
-    // The only warning: the constrained L_e, named with what it moves.
-    expect(warnings.map((w) => w.code)).toEqual(['TERMS_CONSTRAINED']);
-    expect(warnings[0]?.message).toMatch(
+    // The two warnings: ω_e z_e at the library's value (Huber & Herzberg −0.0122 cm⁻¹, from memory) ± 50 %, and the
+    // constrained L_e, each named with what it moves.
+    expect(warnings.map((w) => w.code)).toEqual(['TERMS_CONSTRAINED', 'TERMS_CONSTRAINED']);
+    expect(warnings[0]?.message).toBe(
+      '1H-35Cl: the uncertainties of ω_e, ω_e x_e and ω_e y_e include that of ω_e z_e (Y40), which the lines cannot determine and which is constrained to -0.0122 ± 0.00610 cm-1 (ω_e z_e of the reference library, ± 50 %)',
+    );
+    expect(warnings[1]?.message).toMatch(
       /^1H-35Cl: the uncertainties of D_e and H_e include that of L_e \(Y04\), which the lines cannot determine and which is constrained to /,
     );
     // The report: species on every parameter, covariance p × p with σ² on its diagonal, statistics of the fit.
@@ -103,7 +108,7 @@ describe('forward selection of Dunham terms', () => {
   it('¹²C¹⁶O 1-0, 2-0, 3-0 (σ 1e-4): Y21 is added before Y12 (the smaller p first), then Y03', () => {
     const obs = lines(CO_12_16, HCL3, 1e-4);
     const { r } = stage('12C-16O', obs, ordersFor('12C-16O', 3, 3));
-    expect(r?.report.terms).toEqual(['Y10', 'Y20', 'Y30', 'Y01', 'Y11', 'Y02', 'Y21', 'Y12', 'Y03', 'Y04']);
+    expect(r?.report.terms).toEqual(['Y10', 'Y20', 'Y30', 'Y01', 'Y11', 'Y02', 'Y21', 'Y12', 'Y03', 'Y40', 'Y04']);
     const c = CO_12_16.constants;
     within4Sigma(paramOf(r, 'Y21'), c.gamma_e.value, 'γ_e');
     within4Sigma(paramOf(r, 'Y12'), -c.beta_e.value, 'β_e');
@@ -121,7 +126,7 @@ describe('forward selection of Dunham terms', () => {
     );
     const { r } = stage('12C-16O', obs, ordersFor('12C-16O', 3, 2));
     expect(r?.report.terms.slice(0, 6)).toEqual(['Y10', 'Y20', 'Y30', 'Y01', 'Y11', 'Y02']);
-    expect(r?.report.constrained?.map((c) => c.parameter)).toEqual(['Y21', 'Y12', 'Y03']);
+    expect(r?.report.constrained?.map((c) => c.parameter)).toEqual(['Y40', 'Y21', 'Y12', 'Y03']);
   });
 });
 
@@ -129,10 +134,10 @@ describe('forward selection: which candidates are ready', () => {
   it('H³⁵Cl with L_e and no H_e, fitted to L: Y03 must come in before Y04 can be tried; both determined', () => {
     const obs = lines(HCL_1_35, HCL3, 2e-4, { override: { omega_e_z_e: 0, H_e: 0, L_e: -5e-12 } });
     const { r, warnings } = stage('1H-35Cl', obs, ordersFor('1H-35Cl', 3, 4));
-    expect(r?.report.terms).toEqual(['Y10', 'Y20', 'Y30', 'Y01', 'Y11', 'Y02', 'Y12', 'Y21', 'Y03', 'Y04']);
-    // Every term determined by the lines: nothing constrained, no warning.
-    expect(r?.report).not.toHaveProperty('constrained');
-    expect(warnings).toEqual([]);
+    expect(r?.report.terms).toEqual(['Y10', 'Y20', 'Y30', 'Y01', 'Y11', 'Y02', 'Y12', 'Y21', 'Y03', 'Y04', 'Y40']);
+    // Every rotational term determined by the lines; only Y40, one beyond the fitted Y30, constrained.
+    expect(r?.report.constrained?.map((c) => c.parameter)).toEqual(['Y40']);
+    expect(warnings.map((w) => w.code)).toEqual(['TERMS_CONSTRAINED']);
     within4Sigma(paramOf(r, 'Y04'), -5e-12, 'L_e');
     within4Sigma(paramOf(r, 'Y03'), 0, 'H_e');
   });
