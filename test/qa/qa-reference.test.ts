@@ -296,7 +296,7 @@ describe('guard-banded decision (JCGM 106:2012, guard band 2u)', () => {
     expect(Math.abs(FALSE_ALARM_Z - 2.5758293035489004)).toBeLessThan(1e-12);
   });
   it.each([
-    // x, u, limit, status: worked out from the rule |x| ≤ L or |x| ≤ 2.576u → pass; |x| > L + 2u → fail; else warn.
+    // x, u, limit, status: worked out from the rule |x| ≤ L, or |x| ≤ 2.576u while u ≤ L → pass; |x| > L + 2u → fail; else warn.
     [0.05, 0.001, 0.05, 'pass'],
     [-0.05, 0.001, 0.05, 'pass'],
     [0.0501, 0.001, 0.05, 'warn'],
