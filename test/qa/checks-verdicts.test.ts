@@ -864,6 +864,25 @@ describe('isotope ratio', () => {
     expect(Math.abs((r?.relativeToNatural.uncertainty ?? 0) - Math.log(1.1) / Math.sqrt(3))).toBeLessThan(1e-4);
   });
 
+  it('a factor 1.2 with jitter ×1.05, ×1, ×1.1: mean and sd of the ln-ratios by hand; abundance ratio natural/1.2', () => {
+    // ln f_i = ln 1.2 + (ln 1.05, 0, ln 1.1): mean m = ln 1.2 + (ln 1.05 + ln 1.1)/3, factor e^m,
+    // sd = √(Σ(x − x̄)²/2), σ(factor) = e^m sd/√3; abundance ratio = natural/e^m with the same relative σ.
+    const c = check(built(1.2, [1.05, 1, 1.1]), 'isotope-ratio');
+    const xs = [Math.log(1.05), 0, Math.log(1.1)];
+    const mean = xs.reduce((t, x) => t + x, 0) / 3;
+    const sd = Math.sqrt(xs.reduce((t, x) => t + (x - mean) ** 2, 0) / 2);
+    const factor = 1.2 * Math.exp(mean);
+    const r = (c.measured.ratios as Record<string, unknown>[])[0] as {
+      relativeToNatural: { value: number; uncertainty: number };
+      abundanceRatio: { value: number; uncertainty: number };
+    };
+    expect(Math.abs(r.relativeToNatural.value / factor - 1)).toBeLessThan(1e-3);
+    expect(Math.abs(r.relativeToNatural.uncertainty / ((factor * sd) / Math.sqrt(3)) - 1)).toBeLessThan(1e-3);
+    expect(Math.abs(r.abundanceRatio.value / (natural / factor) - 1)).toBeLessThan(1e-3);
+    expect(Math.abs(r.abundanceRatio.uncertainty / ((natural / factor) * (sd / Math.sqrt(3))) - 1)).toBeLessThan(1e-3);
+    expect(c.status).toBe('warn');
+  });
+
   it('not evaluated: one isotopologue, no intensities, flat intensities, fewer than three pairs', () => {
     const one = check(build({ lines: branches(3, { intensity: 1 }) }), 'isotope-ratio');
     expect([one.status, one.message]).toEqual(['not-evaluated', 'only one isotopologue was assigned against']);
