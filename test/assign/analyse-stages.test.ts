@@ -190,6 +190,13 @@ describe('warnings that name what was found', () => {
       ],
     );
     expect(w[1]).toBe(other);
+    // Another warning of the same species (its message also starts "12C-16O: ") is left as it is.
+    const constrained = co('TERMS_CONSTRAINED', '12C-16O: the uncertainties of B_e and α_e include that of γ_e');
+    const kept = namingBandsNotFound(
+      [constrained],
+      [{ species: '12C-16O', band: '2-0', predicted: 30, matched: 0, bestOffset: { offset: 0.0123, matches: 12 } }],
+    );
+    expect(kept[0]).toBe(constrained);
     expect(w[0]).toEqual({
       code: 'VIBRATION_NEEDS_TWO_INTERVALS',
       message:
