@@ -445,6 +445,27 @@ describe('warnings and notes of a run', () => {
     ]);
     expect(g.bands.find((b) => b.band === '2-0')).toMatchObject({ matched: 2 });
     expect(g.bands.find((b) => b.band === '2-0')?.bestOffset).toBeUndefined();
+    // Four given 2-0 lines (P(3), P(4), R(4), R(5)): as many as a band needs, no warning.
+    const four = assignAndFit(
+      [
+        ...fundamental.map((l) => ({ position: l.position })),
+        ...(
+          [
+            ['P', 3],
+            ['P', 4],
+            ['R', 4],
+            ['R', 5],
+          ] as const
+        ).map(([branch, j]) => ({
+          position: at(branch, j),
+          assignment: { species: CO, band: { upper: 2, lower: 0 }, branch, j, source: 'given' as const },
+        })),
+      ],
+      species,
+      masses,
+    );
+    expect(four.warnings).toEqual([]);
+    expect(four.bands.find((b) => b.band === '2-0')).toMatchObject({ matched: 4 });
   });
 
   it('CO as its natural mixture with only 12C16O lines: the rare isotopologues named as not found', () => {
@@ -548,7 +569,7 @@ describe('warnings and notes of a run', () => {
     });
   });
 
-  it('eleven repeated rows: the warning lists the first ten and "…"', () => {
+  it('ten and eleven repeated rows: the warning lists at most ten, then "…"', () => {
     const { species, masses } = setup('12C16O');
     const lines = band('1-0', 8); // 17 lines
     const copies = lines.slice(0, 11).map((l) => ({ position: l.position }));
@@ -556,6 +577,15 @@ describe('warnings and notes of a run', () => {
     const w = r.warnings.find((x) => x.code === 'LINES_UNEXPLAINED');
     expect(w?.message).toBe(
       '11 line(s) are explained by no band of 12C-16O; they stay unassigned and out of the fit; 11 of them repeat the position of an earlier line (a duplicated row?): lines 17, 18, 19, 20, 21, 22, 23, 24, 25, 26, …',
+    );
+    // Exactly ten: all listed, no "…".
+    const ten = assignAndFit(
+      [...lines.map((l) => ({ position: l.position })), ...copies.slice(0, 10)],
+      species,
+      masses,
+    );
+    expect(ten.warnings.find((x) => x.code === 'LINES_UNEXPLAINED')?.message).toBe(
+      '10 line(s) are explained by no band of 12C-16O; they stay unassigned and out of the fit; 10 of them repeat the position of an earlier line (a duplicated row?): lines 17, 18, 19, 20, 21, 22, 23, 24, 25, 26',
     );
   });
 
