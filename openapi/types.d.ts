@@ -409,6 +409,8 @@ export interface components {
           reason?: string;
           /** @description observed − calculated, cm-1 */
           residual?: number;
+          /** @description the instrument or file the line came from, as sent (absent in a lean answer) */
+          source?: string;
           /** @enum {string} */
           status: "fitted" | "rejected" | "unassigned";
           studentisedResidual?: number;
@@ -709,6 +711,8 @@ export interface components {
           reason?: string;
           /** @description observed − calculated, cm-1 */
           residual?: number;
+          /** @description the instrument or file the line came from, as sent (absent in a lean answer) */
+          source?: string;
           /** @enum {string} */
           status: "fitted" | "rejected" | "unassigned";
           studentisedResidual?: number;

@@ -293,6 +293,10 @@ export const LineOutcomeSchema = z.object({
       'standard uncertainty of the position, cm-1: as sent, or from the peak fit; absent when none was given or in a lean answer',
     ),
   intensity: z.number().optional().describe('as sent'),
+  source: z
+    .string()
+    .optional()
+    .describe('the instrument or file the line came from, as sent (absent in a lean answer)'),
   assignment: z
     .object({
       band: z.string().describe('diatomic "v\'-v\'\'"; linear polyatomic: the band label, e.g. "00⁰1–00⁰0"'),

@@ -179,11 +179,16 @@ export function presentFit(a: AnalysedFit): FitResponse {
   const lean = a.options?.lean === true;
   const lines = result.lines.map((l) => {
     // Object.assign, not a spread: ~7× faster on these outcomes, built member by member (measured on Node 20).
-    const out: Writable<LineOutcome> & { id?: string | number; uncertainty?: number } = Object.assign({}, l);
+    const out: Writable<LineOutcome> & { id?: string | number; uncertainty?: number; source?: string } = Object.assign(
+      {},
+      l,
+    );
     const id = a.lineIds?.[l.index];
     if (id !== undefined) out.id = id;
     const sigma = peaks[l.index]?.uncertainty;
     if (sigma !== undefined && !lean) out.uncertainty = sigma;
+    const source = peaks[l.index]?.source;
+    if (source !== undefined && !lean) out.source = source;
     const shaped: Writable<Omit<LineOutcome, 'assignment'>> = lean ? withoutEchoes(out) : out;
     const note = notes.get(l.index);
     if (note && !l.reason) shaped.reason = note;

@@ -15,7 +15,13 @@ import { rejectOutliers } from './outliers.js';
 import { rescaleStatedUncertainties } from './stated-scale.js';
 import { constrainLevelModel, type TermConstraint } from './truncation.js';
 import type { DetailedFit, DunhamFit, FitOptions, FitResult, LineInput, Statistics, Warning } from './types.js';
-import { absoluteScaleWarnings, checkDuplicates, checkRepeats, qualityWarnings } from './warnings.js';
+import {
+  absoluteScaleWarnings,
+  checkDuplicates,
+  checkRepeats,
+  checkSourceOffsets,
+  qualityWarnings,
+} from './warnings.js';
 import { type ScatterReuse, scatterOfFit, type WeightedLines, weighLines } from './weights.js';
 
 export type { TermConstraint } from './truncation.js';
@@ -111,6 +117,11 @@ export function fitLineListDetailed(
   warnings.push(...cds.warnings);
   checkRepeats(selected, prepared.given > 0, warnings);
   checkDuplicates(prepared.observations, kept.rejected, warnings);
+  checkSourceOffsets(
+    input.map((l) => l.source),
+    report.lines,
+    warnings,
+  );
   // A mode turned absolute to keep the stated σ already says why; "consider a-posteriori" would contradict it.
   if (!kept.statedKept) absoluteScaleWarnings(selected, kept.mode, warnings);
   qualityWarnings(selected, report.correlation, report.names, warnings, kept.mode);

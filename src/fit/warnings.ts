@@ -1,5 +1,6 @@
 import type { Observation } from '../models/linear-model.js';
 import { transitionLabel } from '../models/transitions.js';
+import { plusMinus } from '../qa/plus-minus.js';
 import { chiSquareCdf, chiSquareSurvival } from '../stats/distributions.js';
 import { reducedChiSquare, type SolvedModel } from './engine.js';
 import type { Warning } from './types.js';
@@ -80,6 +81,42 @@ export function checkDuplicates(
       message: `${copies.length} line(s) repeat an earlier line's assignment and position (a duplicated row?) and count twice in the fit: lines ${copies.slice(0, 10).join(', ')}${copies.length > 10 ? ', …' : ''}`,
       lines: copyLines,
     });
+}
+
+/**
+ * Lines from two or more sources (the line's `source`): each source's mean residual against the joint fit, with its
+ * standard error (SD/√n), when some source's mean lies more than 3 standard errors from zero. A calibration offset
+ * between instruments shows here, before it is taken for scatter (`UNCERTAINTY_RESCALED`).
+ */
+export function checkSourceOffsets(
+  sources: readonly (string | undefined)[],
+  lines: readonly { readonly index: number; readonly status: string; readonly residual?: number }[],
+  warnings: Warning[],
+): void {
+  const bySource = new Map<string, { index: number; residual: number }[]>();
+  for (const l of lines) {
+    const s = sources[l.index];
+    if (s === undefined || l.status !== 'fitted' || l.residual === undefined) continue;
+    const g = bySource.get(s) ?? [];
+    g.push({ index: l.index, residual: l.residual });
+    bySource.set(s, g);
+  }
+  if (bySource.size < 2) return;
+  const stats = [...bySource].map(([source, g]) => {
+    const n = g.length;
+    const mean = g.reduce((a, x) => a + x.residual, 0) / n;
+    const sd = n > 1 ? Math.sqrt(g.reduce((a, x) => a + (x.residual - mean) ** 2, 0) / (n - 1)) : Number.NaN;
+    return { source, n, mean, se: sd / Math.sqrt(n), lines: g.map((x) => x.index) };
+  });
+  const offset = stats.filter((x) => x.n >= 3 && x.se >= 0 && Math.abs(x.mean) > 3 * x.se);
+  if (offset.length === 0) return;
+  const fmt = (x: (typeof stats)[number]) =>
+    `${x.source} ${x.mean >= 0 ? '+' : ''}${Number.isFinite(x.se) && x.se > 0 ? plusMinus(x.mean, x.se, 4) : x.mean.toFixed(4)} cm-1 (${x.n} lines)`;
+  warnings.push({
+    code: 'SOURCE_MEAN_RESIDUALS',
+    message: `mean residual per source: ${stats.map(fmt).join(', ')}; ${offset.map((x) => x.source).join(', ')} lie${offset.length === 1 ? 's' : ''} off zero beyond 3 standard errors: a calibration offset between instruments?`,
+    lines: offset.flatMap((x) => x.lines),
+  });
 }
 
 const labelOf = (o: Observation) =>
