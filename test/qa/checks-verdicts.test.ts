@@ -474,25 +474,38 @@ describe('calibration', () => {
     expect(check(build({ lines, offset: 0.03 }), 'calibration').status).toBe('pass');
   });
 
-  it('beyond the limit but within 2.576u of zero: pass, and the message says so', () => {
-    // σ = 0.05 per line: u ≈ 0.01 or more, and an offset of 0.015 is beyond a limit of 0.01 but not significant.
-    const b = build({ lines: branches(12, { uncertainty: 0.05 }), offset: 0.015 });
-    const c = check(b, 'calibration', { calibrationOffset: 0.01 });
+  it('beyond the limit but within 2.576u of zero with u ≤ L: pass; with u > L: inconclusive, a warning', () => {
+    // σ = 0.05 per line; u read from a run without offset, then L = 1.1u and an offset of 2u: beyond L, within 2.576u.
+    const lines05 = branches(12, { uncertainty: 0.05 });
+    const u = (check(build({ lines: lines05 }), 'calibration').measured.offset as { uncertainty: number }).uncertainty;
+    const b = build({ lines: lines05, offset: 2 * u });
+    const c = check(b, 'calibration', { calibrationOffset: 1.1 * u });
     expect(c.status).toBe('pass');
     expect(c.message).toMatch(
-      /: beyond the limits \(0\.01 cm-1, 20 ppm\) but not different from zero at the 1 % false-alarm level \(\|x\| ≤ 2\.576u\): the lines cannot tell it from a calibrated scan/,
+      /: beyond the limits \(\S+ cm-1, 20 ppm\) but not different from zero at the 1 % false-alarm level \(\|x\| ≤ 2\.576u\): the lines cannot tell it from a calibrated scan/,
+    );
+    // The same offset against a limit below u: the lines cannot judge it, a warning that says so.
+    const w = check(b, 'calibration', { calibrationOffset: 0.9 * u });
+    expect(w.status).toBe('warn');
+    expect(w.message).toMatch(
+      /\(inconclusive: the lines determine the offset only to ±\S+ cm-1, more than the limit itself; check the stated uncertainties\)/,
     );
   });
 
   it('the σ of a line: given (× √(χ²/ν) in a-posteriori mode when above 1), else its band scatter, pooled scatter, rms', () => {
     const u = (b: Built) => (check(b, 'calibration').measured.offset as { uncertainty: number }).uncertainty;
     const given = u(build({ lines }));
-    // Inflation by √4 = 2 when χ²/ν = 4 a posteriori; none below 1, none in absolute mode, none with a scatter.
+    // Inflation by √4 = 2 when χ²/ν = 4 a posteriori; below 1 a shrink by √(χ²/ν) only on ≥ 10 degrees of
+    // freedom (as the fit does), none in absolute mode, none with a scatter.
     const inflated = u(build({ lines, statistics: { uncertaintyMode: 'a-posteriori', reducedChiSquare: 4 } }));
     // (Not exactly 2: the priors of the library's missing terms do not scale with σ; measured 1.70.)
     expect(inflated / given).toBeGreaterThan(1.5);
+    const shrunk = u(build({ lines, statistics: { uncertaintyMode: 'a-posteriori', reducedChiSquare: 0.25 } }));
+    expect(shrunk / given).toBeLessThan(0.8); // ν = 20: σ halved (measured ratio 0.72, priors again)
     expect(
-      u(build({ lines, statistics: { uncertaintyMode: 'a-posteriori', reducedChiSquare: 0.25 } })) / given,
+      u(
+        build({ lines, statistics: { uncertaintyMode: 'a-posteriori', reducedChiSquare: 0.25, degreesOfFreedom: 9 } }),
+      ) / given,
     ).toBeCloseTo(1, 6);
     expect(u(build({ lines, statistics: { uncertaintyMode: 'absolute', reducedChiSquare: 4 } })) / given).toBeCloseTo(
       1,
