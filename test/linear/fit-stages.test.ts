@@ -531,3 +531,108 @@ describe('outcomes of each line and warnings', () => {
     expect(r.scatter).toBeUndefined();
   });
 });
+
+describe('reference levels, eligibility and priors in corner cases', () => {
+  const V20 = { v: [0, 2, 0], l: 0 };
+  // 02⁰0 of HCN: G ≈ 1411.4 cm⁻¹ (2ν2 l = 0, from memory), B, D invented near 01¹0's: generator input only.
+  const C20: Consts = { G: 1411.4, B: 1.4855, D: 3.0e-6 };
+  /** 00⁰1–02⁰0 (positions about 685 cm⁻¹: the upper level has fewer quanta but more energy). */
+  function diff(n: number, seed: number): LinearLineInput[] {
+    const z = ownNormal(seed);
+    const out: LinearLineInput[] = [];
+    for (let j = 1; j <= n; j++) out.push(line(V3, C3, V20, C20, 'P', j, 'e', 2e-5, 2e-5 * z()));
+    for (let j = 0; j < n; j++) out.push(line(V3, C3, V20, C20, 'R', j, 'e', 2e-5, 2e-5 * z()));
+    return out;
+  }
+
+  it('the reference is the level never seen as an upper level, even with more quanta; pure rotation does not make a level upper', () => {
+    // 00⁰1–02⁰0 alone, plus pure-rotation R lines within 02⁰0: 02⁰0 is never an upper level of a band, so it is
+    // the reference although 00⁰1 has fewer quanta. G(00⁰1) − G(02⁰0) = 2096.8 − 1411.4 = 685.4.
+    const z = ownNormal(61);
+    const rot = [0, 1, 2, 3, 4].map((j) => line(V20, C20, V20, C20, 'R', j, 'e', 2e-5, 2e-5 * z()));
+    const r = fitLinearLines(HCN, [...diff(12, 62), ...rot]);
+    expect(level(r, '0,2,0|0').term).toBeUndefined();
+    expect(level(r, '0,0,1|0').term?.relativeTo).toBe('0,2,0|0');
+    within(level(r, '0,0,1|0').term, C3.G - C20.G, 4);
+    expect(r.parameters.map((p) => p.name)).toContain('G(00⁰1)-G(02⁰0)');
+  });
+
+  it('two levels never upper in one set: the one with fewer quanta is the reference, whatever the line order', () => {
+    // ν3 00⁰1–00⁰0 first, then 00⁰1–02⁰0: both 00⁰0 and 02⁰0 are never upper; 00⁰0 has fewer quanta.
+    for (const lines of [
+      [...nu3(10, 2e-5, 63), ...diff(10, 64)],
+      [...diff(10, 64), ...nu3(10, 2e-5, 63)],
+    ]) {
+      const r = fitLinearLines(HCN, lines);
+      expect(level(r, '0,0,0|0').term).toBeUndefined();
+      expect(level(r, '0,2,0|0').term?.relativeTo).toBe('0,0,0|0');
+      within(level(r, '0,2,0|0').term, C20.G, 4);
+      within(r.bands.find((b) => b.label === '00⁰1–02⁰0')?.origin, C3.G - C20.G, 4);
+    }
+  });
+
+  it('a level with exactly four distinct J gets D; with H fitted elsewhere it alone gets the H prior', () => {
+    // 10⁰0 reached by R(0), R(1), R(2), P(1): J′ = 1, 2, 3, 0 (four distinct J: enough for D, not for H).
+    // 00⁰1 carries H = 1e-9 (far above D²/B) so that 00⁰0 and 00⁰1 reach H; 10⁰0 then has D and an H prior only.
+    const V1 = { v: [1, 0, 0], l: 0 };
+    const C1: Consts = { G: 3311.5, B: 1.469, D: 2.9e-6 };
+    const z = ownNormal(65);
+    const lines = [
+      ...nu3(20, 2e-5, 66, { ...C3, H: 1e-9 }, { ...C0, H: 0 }),
+      ...(
+        [
+          ['R', 0],
+          ['R', 1],
+          ['R', 2],
+          ['P', 1],
+        ] as const
+      ).map(([b, j]) => line(V1, C1, G0, { ...C0, H: 0 }, b, j, 'e', 2e-5, 2e-5 * z())),
+    ];
+    const r = fitLinearLines(HCN, lines);
+    const terms = r.model.levelTerms.find((x) => x.level === '1,0,0|0')?.terms ?? [];
+    expect(terms).toContain('D(10⁰0)');
+    expect(r.model.constraints.map((c) => c.parameter)).toEqual(['H(10⁰0)']);
+    expect(level(r, '0,0,1|0').H).toBeDefined();
+  });
+
+  it('an l-type-only level gets no prior; q_J enters only with D (maxCentrifugalOrder 1: q alone)', () => {
+    // ν3 (D fitted on both levels) and three l-type Q(J) e→f lines of 01¹0 (three J: order 1).
+    const qLines = [1, 2, 3].map((j) => line(V2, C2, V2, C2, 'Q', j, 'e', 2e-6));
+    const r = fitLinearLines(HCN, [...nu3(15, 2e-5, 67), ...qLines]);
+    expect(r.model.constraints.map((c) => c.parameter).sort()).toEqual(['H(00⁰0)', 'H(00⁰1)']);
+    expect(r.lTypeLevels.map((x) => x.key)).toEqual(['0,1,0|1']);
+    // q from Q(J) = q x − … (q_J not fitted at order 1): within 4σ plus q_J x² ≈ 1e-6 relative share.
+    const lt = r.lTypeLevels[0];
+    expect(Math.abs((lt?.q?.value ?? 0) - (C2.q ?? 0))).toBeLessThan(4 * (lt?.q?.uncertainty ?? 0) + 2e-6);
+    expect(lt?.qJ).toBeUndefined();
+    const one = fitLinearLines(HCN, nu2(15, 2e-5, 68, true), { maxCentrifugalOrder: 1 });
+    const names = one.parameters.map((p) => p.name);
+    expect(names).toContain('q(01¹0)');
+    expect(names).not.toContain('qJ(01¹0)');
+  });
+
+  it('a Q branch alone cannot tell B′ from B″ (one combination of them): refused as rank deficient', () => {
+    const z = ownNormal(69);
+    const q = [];
+    for (let j = 1; j <= 12; j++) q.push(line(V2, C2, G0, C0, 'Q', j, 'e', 2e-5, 2e-5 * z()));
+    const e = thrown(() => fitLinearLines(HCN, q));
+    expect(e.code).toBe('FIT_RANK_DEFICIENT');
+  });
+
+  it('the priors keep their width when the stated σ are 10× too small (a-posteriori scaling)', () => {
+    // Lines to J = 8: D·y² ≈ 0.015 cm⁻¹ (D selected), H·y³ ≈ 2e-6 cm⁻¹ (below the 2e-5 noise: H rests on its
+    // prior 0 ± D²/B). σ stated 2e-6 while the noise is 2e-5: χ²_ν ≈ 100. The posterior σ of H must stay at
+    // most the prior width (within 5 %): the prior is not scaled with the lines' σ.
+    const z = ownNormal(70);
+    const lines: LinearLineInput[] = [];
+    for (let j = 1; j <= 8; j++) lines.push(line(V3, C3, G0, C0, 'P', j, 'e', 2e-6, 2e-5 * z()));
+    for (let j = 0; j < 8; j++) lines.push(line(V3, C3, G0, C0, 'R', j, 'e', 2e-6, 2e-5 * z()));
+    const r = fitLinearLines(HCN, lines);
+    expect(r.statistics.reducedChiSquare).toBeGreaterThan(30);
+    const c = r.model.constraints.find((x) => x.parameter === 'H(00⁰0)');
+    expect(c).toBeDefined();
+    const h = r.parameters.find((p) => p.name === 'H(00⁰0)');
+    expect(h?.uncertainty).toBeLessThan(1.05 * (c?.prior.uncertainty ?? 0));
+    expect(h?.uncertainty).toBeGreaterThan(0.2 * (c?.prior.uncertainty ?? 0));
+  });
+});
