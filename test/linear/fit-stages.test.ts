@@ -613,7 +613,7 @@ describe('reference levels, eligibility and priors in corner cases', () => {
 
   it('a Q branch alone cannot tell B′ from B″ (one combination of them): refused as rank deficient', () => {
     const z = ownNormal(69);
-    const q = [];
+    const q: LinearLineInput[] = [];
     for (let j = 1; j <= 12; j++) q.push(line(V2, C2, G0, C0, 'Q', j, 'e', 2e-5, 2e-5 * z()));
     const e = thrown(() => fitLinearLines(HCN, q));
     expect(e.code).toBe('FIT_RANK_DEFICIENT');
