@@ -42,6 +42,22 @@ function weightsOf(obs: readonly Observation[]): Float64Array {
   return out;
 }
 
+/**
+ * Positions and weights of an observation array, made once per array (never changed once built, as the columns
+ * shared in linear-model.ts assume): every trial model of a term selection solves over the same array. The solver
+ * does not modify them; nothing else is handed them.
+ */
+const vectors = new WeakMap<readonly Observation[], { positions: Float64Array; weights: Float64Array }>();
+
+function vectorsOf(obs: readonly Observation[]): { positions: Float64Array; weights: Float64Array } {
+  let v = vectors.get(obs);
+  if (!v || v.positions.length !== obs.length) {
+    v = { positions: positionsOf(obs), weights: weightsOf(obs) };
+    vectors.set(obs, v);
+  }
+  return v;
+}
+
 export function solveModel(
   model: LinearModel,
   observations: readonly Observation[],
@@ -72,12 +88,13 @@ export function solveModel(
   if (n < p) {
     return { rankDeficient: true, groups: [model.parameters.slice()] };
   }
+  const { positions, weights } = vectorsOf(observations);
   const r = solveLeastSquares({
     rows: n,
     cols: p,
     design: buildDesign(model, observations),
-    observations: positionsOf(observations),
-    weights: weightsOf(observations),
+    observations: positions,
+    weights,
     leverage: withLeverage,
     // Trial fits of term selection need neither leverages nor the condition number.
     conditionNumber: withLeverage,
@@ -90,7 +107,8 @@ export function solveModel(
   }
   const dof = n - p;
   const s2 = mode === 'absolute' ? 1 : dof > 0 ? r.chiSquare / dof : Number.NaN;
-  const covariance = r.covariance.map((c) => c * s2);
+  // The solver's covariance is this solve's own array: scaled in place.
+  const covariance = scaled(r.covariance, s2);
   const solved: SolvedModel = {
     model,
     observations,
@@ -104,6 +122,11 @@ export function solveModel(
   };
   if (!withLeverage && r.later) completions.set(solved, r.later);
   return solved;
+}
+
+function scaled(m: Float64Array, s: number): Float64Array {
+  for (let i = 0; i < m.length; i++) m[i] = (m[i] as number) * s;
+  return m;
 }
 
 /** What a trial fit (solved without leverages) needs to become a full one, kept as long as the fit itself. */
@@ -265,7 +288,7 @@ export function solveModelWithPriors(
     model,
     observations,
     values: r.coefficients,
-    covariance: r.covariance.map((c) => c * s2),
+    covariance: scaled(r.covariance, s2),
     residuals: r.residuals.slice(0, n),
     leverages: r.leverages ? r.leverages.slice(0, n) : new Float64Array(0),
     chiSquare: r.chiSquare,

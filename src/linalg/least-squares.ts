@@ -112,7 +112,10 @@ export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult 
   const residuals = merged ? residualsByGroup(merged, observations, coefficients, p) : observations.slice();
   if (!merged) subtractDesignTimes(residuals, design, coefficients, n, p);
   let chiSquare = 0;
-  for (let i = 0; i < n; i++) chiSquare += (residuals[i] as number) ** 2 * (weights ? (weights[i] as number) : 1);
+  for (let i = 0; i < n; i++) {
+    const e = residuals[i] as number;
+    chiSquare += e * e * (weights ? (weights[i] as number) : 1);
+  }
   // Every array these read is this solve's own (the caller's design and weights are never modified).
   const allLeverages = () => {
     const h = leveragesOf(sys.rows, p, sys.design, sys.weights, rinv, perm, scale);

@@ -1,3 +1,4 @@
+import { levelStates, rotationalPowers, vibrationalPowers } from './level-states.js';
 import type { LinearModel, Observation, Parameter } from './linear-model.js';
 
 /**
@@ -65,18 +66,23 @@ export function dunhamModel(parameters: readonly Parameter[], reducedMass?: Read
       return c;
     },
     // A mass-reduced column depends on the reduced masses this model was given: not shared.
-    columnKey: (p) => (p.kind === 'Y' ? `dunham|${p.key}` : undefined),
+    // The parameter's own key ("species|Y|k,l"), apart from every level-model key by its kind letter.
+    columnKey: (p) => (p.kind === 'Y' ? p.key : undefined),
     column(p: Parameter, obs: readonly Observation[]): Float64Array {
-      // The same operations as `coefficient`, row by row, without its look-ups per element.
+      // The same operations as `coefficient`, with the basis taken once per level state (levelStates).
       const out = new Float64Array(obs.length);
       const k = p.k as number;
       const l = p.l as number;
-      const direct = (v: number, j: number) => dunhamBasis(k, l, v, j);
-      const basis = obs.length >= REMEMBER_FROM ? levelValues(direct) : direct;
+      const st = levelStates(obs);
+      const basis = new Float64Array(st.count);
+      // (v+½)^k · [J(J+1)]^l, the operations of dunhamBasis, from powers kept per state.
+      const vk = vibrationalPowers(st, k);
+      const xl = rotationalPowers(st, l);
+      for (let s = 0; s < st.count; s++) basis[s] = (vk[s] as number) * (xl[s] as number);
       for (let i = 0; i < obs.length; i++) {
         const o = obs[i] as Observation;
         if (p.kind === 'Y' && p.species !== o.species) continue;
-        const c = basis(o.upperV, o.upperJ) - basis(o.lowerV, o.lowerJ);
+        const c = (basis[st.upper[i] as number] as number) - (basis[st.lower[i] as number] as number);
         if (p.kind === 'U') {
           const mu = reducedMass?.get(o.species);
           if (mu === undefined) throw new Error(`no reduced mass for ${o.species}`);
@@ -85,32 +91,6 @@ export function dunhamModel(parameters: readonly Parameter[], reducedMass?: Read
       }
       return out;
     },
-  };
-}
-
-/** Columns of at least this many rows take their powers from `levelValues` (below it the tables cost more). */
-export const REMEMBER_FROM = 200;
-
-/**
- * f(v, J) remembered per level: a line list meets each level many times (every line to it, repeats of a line), and
- * the powers cost more than the look-up. The values are f's own, so a column built through it has the same bits.
- */
-export function levelValues(f: (v: number, j: number) => number): (v: number, j: number) => number {
-  const byV = new Map<number, Float64Array>();
-  return (v, j) => {
-    let row = byV.get(v);
-    if (!row || row.length <= j) {
-      const grown = new Float64Array(Math.max(64, 2 * (j + 1))).fill(Number.NaN);
-      if (row) grown.set(row);
-      row = grown;
-      byV.set(v, row);
-    }
-    let x = row[j] as number;
-    if (Number.isNaN(x)) {
-      x = f(v, j);
-      row[j] = x;
-    }
-    return x;
   };
 }
 

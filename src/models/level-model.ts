@@ -1,4 +1,4 @@
-import { levelValues, REMEMBER_FROM } from './dunham.js';
+import { levelStates, rotationalPowers } from './level-states.js';
 import type { LinearModel, Observation, Parameter } from './linear-model.js';
 
 /**
@@ -133,24 +133,29 @@ export function levelModel(parameters: readonly Parameter[]): LinearModel {
       const xl = o.lowerJ * (o.lowerJ + 1);
       return (CENTRIFUGAL_SIGN[l - 1] as number) * (up * xu ** l - lo * xl ** l);
     },
-    columnKey: (p) => `level|${p.key}`,
+    // The parameter's own key (species, kind letter, level): no other model's shared key has a level kind letter.
+    columnKey: (p) => p.key,
     column(p: Parameter, obs: readonly Observation[]): Float64Array {
+      // The same operations as `coefficient`, with the power taken once per level state (levelStates).
       const out = new Float64Array(obs.length);
       const l = p.kind === 'T' ? 0 : (POWER[p.kind] as number);
       const sign = l > 0 ? (CENTRIFUGAL_SIGN[l - 1] as number) : 1;
-      const direct = (_v: number, j: number) => (j * (j + 1)) ** l;
-      const power = obs.length >= REMEMBER_FROM ? levelValues(direct) : direct;
+      const st = levelStates(obs);
+      // Per state: whether it is a state of the parameter's level (which implies its species), and x^l there.
+      const on = new Uint8Array(st.count);
+      for (let k = 0; k < st.count; k++) if (st.species[k] === p.species && st.v[k] === p.v) on[k] = 1;
+      const power = rotationalPowers(st, l);
       for (let i = 0; i < obs.length; i++) {
-        const o = obs[i] as Observation;
-        if (p.species !== o.species) continue;
-        const up = o.upperV === p.v ? 1 : 0;
-        const lo = o.lowerV === p.v ? 1 : 0;
+        const u = st.upper[i] as number;
+        const w = st.lower[i] as number;
+        const up = on[u] as number;
+        const lo = on[w] as number;
         if (up === 0 && lo === 0) continue;
         if (l === 0) {
           out[i] = up - lo;
           continue;
         }
-        out[i] = sign * (up * power(0, o.upperJ) - lo * power(0, o.lowerJ));
+        out[i] = sign * (up * (power[u] as number) - lo * (power[w] as number));
       }
       return out;
     },
