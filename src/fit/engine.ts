@@ -1,5 +1,17 @@
-import { type LeastSquaresResult, solveLeastSquares } from '../linalg/least-squares.js';
-import { buildDesign, type LinearModel, type Observation, type Parameter } from '../models/linear-model.js';
+import {
+  type LeastSquaresResult,
+  mergesRows,
+  solveGroupedLeastSquares,
+  solveLeastSquares,
+} from '../linalg/least-squares.js';
+import { transitionGroups } from '../models/level-states.js';
+import {
+  buildDesign,
+  distinctTransitions,
+  type LinearModel,
+  type Observation,
+  type Parameter,
+} from '../models/linear-model.js';
 import { fDistributionSurvival } from '../stats/distributions.js';
 
 /**
@@ -58,6 +70,42 @@ function vectorsOf(obs: readonly Observation[]): { positions: Float64Array; weig
   return v;
 }
 
+/**
+ * The kernel's solve of a model over observations. Where the kernel would merge repeated rows anyway (`mergesRows`)
+ * and the model's rows depend on the transition only, the design is built over the distinct transitions and handed
+ * over with each line's transition: the same answers, without building, hashing and comparing every row.
+ */
+function solveLines(
+  model: LinearModel,
+  observations: readonly Observation[],
+  leverage: boolean,
+  conditionNumber: boolean,
+): LeastSquaresResult {
+  const n = observations.length;
+  const p = model.parameters.length;
+  const { positions, weights } = vectorsOf(observations);
+  if (model.rowsByTransition) {
+    const { group, firstRow } = transitionGroups(observations);
+    if (mergesRows(n, p, firstRow.length)) {
+      const distinct = buildDesign(model, distinctTransitions(observations));
+      const count = firstRow.length;
+      return solveGroupedLeastSquares({
+        rows: n,
+        cols: p,
+        distinct,
+        group,
+        count,
+        observations: positions,
+        weights,
+        leverage,
+        conditionNumber,
+      });
+    }
+  }
+  const design = buildDesign(model, observations);
+  return solveLeastSquares({ rows: n, cols: p, design, observations: positions, weights, leverage, conditionNumber });
+}
+
 export function solveModel(
   model: LinearModel,
   observations: readonly Observation[],
@@ -88,17 +136,8 @@ export function solveModel(
   if (n < p) {
     return { rankDeficient: true, groups: [model.parameters.slice()] };
   }
-  const { positions, weights } = vectorsOf(observations);
-  const r = solveLeastSquares({
-    rows: n,
-    cols: p,
-    design: buildDesign(model, observations),
-    observations: positions,
-    weights,
-    leverage: withLeverage,
-    // Trial fits of term selection need neither leverages nor the condition number.
-    conditionNumber: withLeverage,
-  });
+  // Trial fits of term selection need neither leverages nor the condition number.
+  const r = solveLines(model, observations, withLeverage, withLeverage);
   if (r.rankDeficient) {
     return {
       rankDeficient: true,
@@ -216,6 +255,47 @@ export function toRows(m: Float64Array, p: number): number[][] {
   return rows;
 }
 
+/**
+ * The prior-augmented solve of a model whose rows depend on the transition only: over the distinct transitions and
+ * the prior rows (each its own group, after the lines' groups, as the kernel would number them) where the kernel
+ * merges, else over every row.
+ */
+function solveWithPriorsByTransition(
+  model: LinearModel,
+  observations: readonly Observation[],
+  at: readonly number[],
+  settings: Omit<Parameters<typeof solveLeastSquares>[0], 'design' | 'rows'>,
+): LeastSquaresResult {
+  const n = observations.length;
+  const m = at.length;
+  const p = model.parameters.length;
+  const lines = transitionGroups(observations);
+  const count = lines.firstRow.length + m;
+  if (!mergesRows(n + m, p, count)) {
+    return solveLeastSquares({
+      ...settings,
+      rows: n + m,
+      design: withPriorRows(buildDesign(model, observations), n, p, at),
+    });
+  }
+  const group = new Int32Array(n + m);
+  group.set(lines.group);
+  for (let k = 0; k < m; k++) group[n + k] = count - m + k;
+  const distinct = withPriorRows(buildDesign(model, distinctTransitions(observations)), count - m, p, at);
+  return solveGroupedLeastSquares({ ...settings, rows: n + m, distinct, group, count });
+}
+
+/** A design of `n` rows with one row per prior below it, 1 in the prior's column (`at`) and 0 elsewhere. */
+function withPriorRows(base: Float64Array, n: number, p: number, at: readonly number[]): Float64Array {
+  const rows = n + at.length;
+  const design = new Float64Array(rows * p);
+  for (let j = 0; j < p; j++) design.set(base.subarray(j * n, j * n + n), j * rows);
+  at.forEach((j, k) => {
+    design[j * rows + n + k] = 1;
+  });
+  return design;
+}
+
 /** A prior on one parameter: a pseudo-observation p_k = value ± sigma. */
 export interface Prior {
   /** Key of the parameter in the model. */
@@ -248,34 +328,24 @@ export function solveModelWithPriors(
   const p = model.parameters.length;
   const rows = n + m;
   if (rows < p) return { rankDeficient: true, groups: [model.parameters.slice()] };
-  const base = buildDesign(model, observations);
-  const design = new Float64Array(rows * p);
-  const column = new Map(model.parameters.map((q, j) => [q.key, j]));
-  for (let j = 0; j < p; j++) design.set(base.subarray(j * n, j * n + n), j * rows);
   const y = new Float64Array(rows);
   const w = new Float64Array(rows);
-  observations.forEach((o, i) => {
-    y[i] = o.position;
-    w[i] = o.weight;
-  });
+  const { positions, weights } = vectorsOf(observations);
+  y.set(positions);
+  w.set(weights);
   const s2prior = mode === 'absolute' ? 1 : priorScale;
-  priors.forEach((pr, k) => {
-    const j = column.get(pr.key);
-    if (j === undefined) throw new Error(`prior on ${pr.key}, which the model does not hold`);
-    design[j * rows + n + k] = 1;
+  const at = priors.map((pr, k) => {
+    const j = model.parameters.findIndex((q) => q.key === pr.key);
+    if (j < 0) throw new Error(`prior on ${pr.key}, which the model does not hold`);
     y[n + k] = pr.value;
     w[n + k] = s2prior / (pr.sigma * pr.sigma);
+    return j;
   });
   // The condition number of a constrained fit is never reported (the statistics describe the selected model).
-  const r = solveLeastSquares({
-    rows,
-    cols: p,
-    design,
-    observations: y,
-    weights: w,
-    leverage: withLeverage,
-    conditionNumber: false,
-  });
+  const settings = { cols: p, observations: y, weights: w, leverage: withLeverage, conditionNumber: false };
+  const r = model.rowsByTransition
+    ? solveWithPriorsByTransition(model, observations, at, settings)
+    : solveLeastSquares({ ...settings, rows, design: withPriorRows(buildDesign(model, observations), n, p, at) });
   if (r.rankDeficient) {
     return {
       rankDeficient: true,

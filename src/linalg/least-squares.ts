@@ -80,8 +80,55 @@ export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult 
   }
   if (n < p) throw new RangeError(`least squares: ${n} observations cannot determine ${p} parameters`);
   // Repeated design rows (the same transition measured again) merge exactly into one row of summed weight.
-  const merged = compressRows(design, n, p, observations, weights);
-  const sys = merged ?? { rows: n, design, observations, weights };
+  return solveSystem(input, compressRows(design, n, p, observations, weights));
+}
+
+/** Whether n rows of p columns with `distinct` different rows are merged before the factorisation. */
+export function mergesRows(n: number, p: number, distinct: number): boolean {
+  return n >= 64 && n >= 4 * p && distinct - 1 < n / 2;
+}
+
+/**
+ * The same solve, with the design given by its distinct rows (`distinct`, count × cols, column-major) and each
+ * row's index among them (`group`, numbered in order of first appearance): for a caller that knows which rows are
+ * identical (the same transition measured again), so that it builds only the distinct rows and the kernel neither
+ * hashes nor compares them. Where `mergesRows` says no, the full design is expanded and solved as
+ * `solveLeastSquares` would. Same answers as `solveLeastSquares` on the full design when the groups are exactly
+ * its identical rows.
+ */
+export function solveGroupedLeastSquares(
+  input: Omit<LeastSquaresInput, 'design'> & {
+    readonly distinct: Float64Array;
+    readonly group: Int32Array;
+    readonly count: number;
+  },
+): LeastSquaresResult {
+  const { rows: n, cols: p, distinct, group, count: m, observations, weights } = input;
+  if (distinct.length !== m * p || group.length !== n || observations.length !== n) {
+    throw new RangeError(`least squares: inconsistent sizes (rows ${n}, cols ${p}, distinct rows ${m})`);
+  }
+  if (!mergesRows(n, p, m)) {
+    const design = new Float64Array(n * p);
+    for (let j = 0; j < p; j++)
+      for (let i = 0; i < n; i++) design[j * n + i] = distinct[j * m + (group[i] as number)] as number;
+    return solveLeastSquares({ ...input, design });
+  }
+  solveCount.value++;
+  if (n < p) throw new RangeError(`least squares: ${n} observations cannot determine ${p} parameters`);
+  return solveSystem(input, mergeGroups(distinct, m, group, observations, weights));
+}
+
+function solveSystem(
+  input: Omit<LeastSquaresInput, 'design'> & { readonly design?: Float64Array },
+  merged: MergedRows | undefined,
+): LeastSquaresResult {
+  const { rows: n, cols: p, observations, weights } = input;
+  const sys = merged ?? {
+    rows: n,
+    design: input.design as Float64Array,
+    observations,
+    weights,
+  };
   const qr = pivotedQR(sys.rows, p, sys.design, sys.observations, sys.weights);
   // Numerical rank.
   const { rdiag, r, perm, scale } = qr;
@@ -110,7 +157,7 @@ export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult 
   const rinv = invertUpperTriangular(r, p);
   const covariance = covarianceFrom(rinv, perm, scale, p);
   const residuals = merged ? residualsByGroup(merged, observations, coefficients, p) : observations.slice();
-  if (!merged) subtractDesignTimes(residuals, design, coefficients, n, p);
+  if (!merged) subtractDesignTimes(residuals, sys.design, coefficients, n, p);
   let chiSquare = 0;
   for (let i = 0; i < n; i++) {
     const e = residuals[i] as number;
@@ -421,6 +468,18 @@ function compressRows(
     const offM = j * m;
     for (let i = 0; i < n; i++) if (design[off + i] !== merged[offM + (group[i] as number)]) return undefined;
   }
+  return mergeGroups(merged, m, group, observations, weights);
+}
+
+/** The merged system of `m` distinct rows: Σw and the weighted mean of y per group, in the rows' order. */
+function mergeGroups(
+  design: Float64Array,
+  m: number,
+  group: Int32Array,
+  observations: Float64Array,
+  weights: Float64Array | undefined,
+): MergedRows {
+  const n = group.length;
   const w = new Float64Array(m);
   const wy = new Float64Array(m);
   for (let i = 0; i < n; i++) {
@@ -430,7 +489,7 @@ function compressRows(
     wy[g] = (wy[g] as number) + wi * (observations[i] as number);
   }
   for (let g = 0; g < m; g++) wy[g] = (w[g] as number) > 0 ? (wy[g] as number) / (w[g] as number) : 0;
-  return { rows: m, design: merged, observations: wy, weights: w, group };
+  return { rows: m, design, observations: wy, weights: w, group };
 }
 
 /**

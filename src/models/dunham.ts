@@ -68,6 +68,7 @@ export function dunhamModel(parameters: readonly Parameter[], reducedMass?: Read
     // A mass-reduced column depends on the reduced masses this model was given: not shared.
     // The parameter's own key ("species|Y|k,l"), apart from every level-model key by its kind letter.
     columnKey: (p) => (p.kind === 'Y' ? p.key : undefined),
+    rowsByTransition: true,
     column(p: Parameter, obs: readonly Observation[]): Float64Array {
       // The same operations as `coefficient`, with the basis taken once per level state (levelStates).
       const out = new Float64Array(obs.length);

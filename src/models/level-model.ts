@@ -135,6 +135,7 @@ export function levelModel(parameters: readonly Parameter[]): LinearModel {
     },
     // The parameter's own key (species, kind letter, level): no other model's shared key has a level kind letter.
     columnKey: (p) => p.key,
+    rowsByTransition: true,
     column(p: Parameter, obs: readonly Observation[]): Float64Array {
       // The same operations as `coefficient`, with the power taken once per level state (levelStates).
       const out = new Float64Array(obs.length);

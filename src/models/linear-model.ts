@@ -50,7 +50,14 @@ export interface LinearModel {
   columnKey?(p: Parameter): string | undefined;
   /** The column of `p` over all observations at once, equal to `coefficient` row by row (a faster loop). */
   column?(p: Parameter, obs: readonly Observation[]): Float64Array;
+  /**
+   * True when a line's row depends on nothing but its transition (species, v′, v″, J′, J″): lines of the same
+   * transition then have identical rows, and the solve builds and merges the distinct ones only.
+   */
+  readonly rowsByTransition?: boolean;
 }
+
+import { transitionGroups } from './level-states.js';
 
 /**
  * Columns already computed, per observation array (which is never changed once built): every trial model of a
@@ -81,6 +88,19 @@ export function reweighted(
   });
   columns.set(out, columnsOf(obs));
   return out;
+}
+
+/** The first observation of each transition, in order (one per row of a design over distinct transitions). */
+const distinct = new WeakMap<readonly Observation[], readonly Observation[]>();
+
+export function distinctTransitions(obs: readonly Observation[]): readonly Observation[] {
+  let d = distinct.get(obs);
+  const { firstRow } = transitionGroups(obs);
+  if (!d || d.length !== firstRow.length) {
+    d = Array.from(firstRow, (i) => obs[i] as Observation);
+    distinct.set(obs, d);
+  }
+  return d;
 }
 
 /** Column-major design matrix of a model over observations. */
