@@ -6,7 +6,7 @@ import {
 } from '../linalg/least-squares.js';
 import { transitionGroups } from '../models/level-states.js';
 import {
-  buildDesign,
+  designColumns,
   distinctTransitions,
   type LinearModel,
   type Observation,
@@ -87,7 +87,7 @@ function solveLines(
   if (model.rowsByTransition) {
     const { group, firstRow } = transitionGroups(observations);
     if (mergesRows(n, p, firstRow.length)) {
-      const distinct = buildDesign(model, distinctTransitions(observations));
+      const distinct = designColumns(model, distinctTransitions(observations));
       const count = firstRow.length;
       return solveGroupedLeastSquares({
         rows: n,
@@ -102,7 +102,7 @@ function solveLines(
       });
     }
   }
-  const design = buildDesign(model, observations);
+  const design = designColumns(model, observations);
   return solveLeastSquares({ rows: n, cols: p, design, observations: positions, weights, leverage, conditionNumber });
 }
 
@@ -275,21 +275,21 @@ function solveWithPriorsByTransition(
     return solveLeastSquares({
       ...settings,
       rows: n + m,
-      design: withPriorRows(buildDesign(model, observations), n, p, at),
+      design: withPriorRows(designColumns(model, observations), n, p, at),
     });
   }
   const group = new Int32Array(n + m);
   group.set(lines.group);
   for (let k = 0; k < m; k++) group[n + k] = count - m + k;
-  const distinct = withPriorRows(buildDesign(model, distinctTransitions(observations)), count - m, p, at);
+  const distinct = withPriorRows(designColumns(model, distinctTransitions(observations)), count - m, p, at);
   return solveGroupedLeastSquares({ ...settings, rows: n + m, distinct, group, count });
 }
 
-/** A design of `n` rows with one row per prior below it, 1 in the prior's column (`at`) and 0 elsewhere. */
-function withPriorRows(base: Float64Array, n: number, p: number, at: readonly number[]): Float64Array {
+/** A design of `n` rows (given by its columns) with one row per prior below it, 1 in the prior's column (`at`). */
+function withPriorRows(base: readonly Float64Array[], n: number, p: number, at: readonly number[]): Float64Array {
   const rows = n + at.length;
   const design = new Float64Array(rows * p);
-  for (let j = 0; j < p; j++) design.set(base.subarray(j * n, j * n + n), j * rows);
+  for (let j = 0; j < p; j++) design.set(base[j] as Float64Array, j * rows);
   at.forEach((j, k) => {
     design[j * rows + n + k] = 1;
   });
@@ -345,7 +345,7 @@ export function solveModelWithPriors(
   const settings = { cols: p, observations: y, weights: w, leverage: withLeverage, conditionNumber: false };
   const r = model.rowsByTransition
     ? solveWithPriorsByTransition(model, observations, at, settings)
-    : solveLeastSquares({ ...settings, rows, design: withPriorRows(buildDesign(model, observations), n, p, at) });
+    : solveLeastSquares({ ...settings, rows, design: withPriorRows(designColumns(model, observations), n, p, at) });
   if (r.rankDeficient) {
     return {
       rankDeficient: true,

@@ -18,8 +18,11 @@ export interface LeastSquaresInput {
   readonly rows: number;
   /** Number of parameters. */
   readonly cols: number;
-  /** Design matrix, column-major: element (i, j) at design[j * rows + i]. Not modified. */
-  readonly design: Float64Array;
+  /**
+   * Design matrix, column-major: element (i, j) at design[j * rows + i]; or its columns, each of length rows (a caller
+   * that keeps its columns hands them over without copying them into one array). Not modified.
+   */
+  readonly design: Float64Array | Columns;
   /** Observations, length rows. */
   readonly observations: Float64Array;
   /** Weights wᵢ = 1/σᵢ², length rows; all 1 when absent. */
@@ -67,6 +70,24 @@ export interface LeastSquaresResult {
   };
 }
 
+/** A design as its columns (each of length rows). */
+export type Columns = readonly Float64Array[];
+
+/** The columns of a design given either way (views into a column-major array, which copy nothing). */
+function columnsOf(design: Float64Array | Columns, n: number, p: number): Columns {
+  if (!(design instanceof Float64Array)) return design;
+  const cols: Float64Array[] = [];
+  for (let j = 0; j < p; j++) cols.push(design.subarray(j * n, j * n + n));
+  return cols;
+}
+
+function sizeOf(design: Float64Array | Columns, n: number): number {
+  if (design instanceof Float64Array) return design.length;
+  let size = 0;
+  for (const c of design) size += c.length === n ? n : Number.NaN;
+  return size;
+}
+
 const EPS = 2.220446049250313e-16;
 
 /** Solves since the process started: read by `npm run bench` to price a whole fit in solves. */
@@ -74,13 +95,15 @@ export const solveCount = { value: 0 };
 
 export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult {
   solveCount.value++;
-  const { rows: n, cols: p, design, observations, weights } = input;
-  if (design.length !== n * p || observations.length !== n || (weights && weights.length !== n)) {
-    throw new RangeError(`least squares: inconsistent sizes (rows ${n}, cols ${p}, design ${design.length})`);
+  const { rows: n, cols: p, observations, weights } = input;
+  const size = sizeOf(input.design, n);
+  if (size !== n * p || observations.length !== n || (weights && weights.length !== n)) {
+    throw new RangeError(`least squares: inconsistent sizes (rows ${n}, cols ${p}, design ${size})`);
   }
   if (n < p) throw new RangeError(`least squares: ${n} observations cannot determine ${p} parameters`);
+  const design = columnsOf(input.design, n, p);
   // Repeated design rows (the same transition measured again) merge exactly into one row of summed weight.
-  return solveSystem(input, compressRows(design, n, p, observations, weights));
+  return solveSystem({ ...input, design }, compressRows(design, n, p, observations, weights));
 }
 
 /** Whether n rows of p columns with `distinct` different rows are merged before the factorisation. */
@@ -98,19 +121,22 @@ export function mergesRows(n: number, p: number, distinct: number): boolean {
  */
 export function solveGroupedLeastSquares(
   input: Omit<LeastSquaresInput, 'design'> & {
-    readonly distinct: Float64Array;
+    readonly distinct: Float64Array | Columns;
     readonly group: Int32Array;
     readonly count: number;
   },
 ): LeastSquaresResult {
-  const { rows: n, cols: p, distinct, group, count: m, observations, weights } = input;
-  if (distinct.length !== m * p || group.length !== n || observations.length !== n) {
+  const { rows: n, cols: p, group, count: m, observations, weights } = input;
+  if (sizeOf(input.distinct, m) !== m * p || group.length !== n || observations.length !== n) {
     throw new RangeError(`least squares: inconsistent sizes (rows ${n}, cols ${p}, distinct rows ${m})`);
   }
+  const distinct = columnsOf(input.distinct, m, p);
   if (!mergesRows(n, p, m)) {
-    const design = new Float64Array(n * p);
-    for (let j = 0; j < p; j++)
-      for (let i = 0; i < n; i++) design[j * n + i] = distinct[j * m + (group[i] as number)] as number;
+    const design = distinct.map((c) => {
+      const full = new Float64Array(n);
+      for (let i = 0; i < n; i++) full[i] = c[group[i] as number] as number;
+      return full;
+    });
     return solveLeastSquares({ ...input, design });
   }
   solveCount.value++;
@@ -119,13 +145,13 @@ export function solveGroupedLeastSquares(
 }
 
 function solveSystem(
-  input: Omit<LeastSquaresInput, 'design'> & { readonly design?: Float64Array },
+  input: Omit<LeastSquaresInput, 'design'> & { readonly design?: Columns },
   merged: MergedRows | undefined,
 ): LeastSquaresResult {
   const { rows: n, cols: p, observations, weights } = input;
   const sys = merged ?? {
     rows: n,
-    design: input.design as Float64Array,
+    design: input.design as Columns,
     observations,
     weights,
   };
@@ -197,7 +223,7 @@ export function reduceToTriangle(
   design: Float64Array,
   observations: Float64Array,
 ): { readonly m: Float64Array; readonly c: Float64Array } {
-  const qr = pivotedQR(rows, cols, design, observations, undefined);
+  const qr = pivotedQR(rows, cols, columnsOf(design, rows, cols), observations, undefined);
   const m = new Float64Array(cols * cols);
   for (let k = 0; k < cols; k++) {
     const j = qr.perm[k] as number;
@@ -234,7 +260,7 @@ interface Factorisation {
 function pivotedQR(
   n: number,
   p: number,
-  design: Float64Array,
+  design: Columns,
   observations: Float64Array,
   weights: Float64Array | undefined,
 ): Factorisation {
@@ -281,13 +307,14 @@ function pivotedQR(
 }
 
 /** a = design · diag(√w) with unit-norm columns; returns the column norms (1 for an all-zero column). */
-function scaledCopy(a: Float64Array, design: Float64Array, sw: Float64Array, n: number, p: number): Float64Array {
+function scaledCopy(a: Float64Array, design: Columns, sw: Float64Array, n: number, p: number): Float64Array {
   const scale = new Float64Array(p);
   for (let j = 0; j < p; j++) {
     const off = j * n;
+    const c = design[j] as Float64Array;
     let ss = 0;
     for (let i = 0; i < n; i++) {
-      const v = (design[off + i] as number) * (sw[i] as number);
+      const v = (c[i] as number) * (sw[i] as number);
       a[off + i] = v;
       ss += v * v;
     }
@@ -399,11 +426,11 @@ function covarianceFrom(rinv: Float64Array, perm: Int32Array, scale: Float64Arra
 }
 
 /** y −= A x, column by column (contiguous access in the column-major design). */
-function subtractDesignTimes(y: Float64Array, design: Float64Array, x: Float64Array, n: number, p: number) {
+function subtractDesignTimes(y: Float64Array, design: Columns, x: Float64Array, n: number, p: number) {
   for (let j = 0; j < p; j++) {
-    const off = j * n;
+    const col = design[j] as Float64Array;
     const c = x[j] as number;
-    for (let i = 0; i < n; i++) y[i] = (y[i] as number) - (design[off + i] as number) * c;
+    for (let i = 0; i < n; i++) y[i] = (y[i] as number) - (col[i] as number) * c;
   }
 }
 
@@ -411,7 +438,7 @@ function subtractDesignTimes(y: Float64Array, design: Float64Array, x: Float64Ar
 function leveragesOf(
   n: number,
   p: number,
-  design: Float64Array,
+  design: Columns,
   weights: Float64Array | undefined,
   rinv: Float64Array,
   perm: Int32Array,
@@ -424,8 +451,8 @@ function leveragesOf(
     for (let k = 0; k <= c; k++) {
       const f = (rinv[k * p + c] as number) / (scale[perm[k] as number] as number);
       if (f === 0) continue;
-      const off = (perm[k] as number) * n;
-      for (let i = 0; i < n; i++) q[i] = (q[i] as number) + (design[off + i] as number) * f;
+      const col = design[perm[k] as number] as Float64Array;
+      for (let i = 0; i < n; i++) q[i] = (q[i] as number) + (col[i] as number) * f;
     }
     for (let i = 0; i < n; i++) leverages[i] = (leverages[i] as number) + (q[i] as number) ** 2;
   }
@@ -436,7 +463,7 @@ function leveragesOf(
 /** Rows merged from identical design rows: Σw and the weighted mean of y, and the merged row of each input row. */
 interface MergedRows {
   readonly rows: number;
-  readonly design: Float64Array;
+  readonly design: Columns;
   readonly observations: Float64Array;
   readonly weights: Float64Array;
   readonly group: Int32Array;
@@ -448,7 +475,7 @@ interface MergedRows {
  * rows distinct); otherwise undefined.
  */
 function compressRows(
-  design: Float64Array,
+  design: Columns,
   n: number,
   p: number,
   observations: Float64Array,
@@ -459,21 +486,25 @@ function compressRows(
   if (!groups) return undefined;
   const { group, firstRow } = groups;
   const m = firstRow.length;
-  const merged = new Float64Array(m * p);
-  for (let j = 0; j < p; j++)
-    for (let g = 0; g < m; g++) merged[j * m + g] = design[j * n + (firstRow[g] as number)] as number;
+  const merged: Float64Array[] = [];
+  for (let j = 0; j < p; j++) {
+    const c = design[j] as Float64Array;
+    const out = new Float64Array(m);
+    for (let g = 0; g < m; g++) out[g] = c[firstRow[g] as number] as number;
+    merged.push(out);
+  }
   // Equal keys are checked for equal rows, column by column; a collision (never seen) means no merging.
   for (let j = 0; j < p; j++) {
-    const off = j * n;
-    const offM = j * m;
-    for (let i = 0; i < n; i++) if (design[off + i] !== merged[offM + (group[i] as number)]) return undefined;
+    const c = design[j] as Float64Array;
+    const out = merged[j] as Float64Array;
+    for (let i = 0; i < n; i++) if (c[i] !== out[group[i] as number]) return undefined;
   }
   return mergeGroups(merged, m, group, observations, weights);
 }
 
 /** The merged system of `m` distinct rows: Σw and the weighted mean of y per group, in the rows' order. */
 function mergeGroups(
-  design: Float64Array,
+  design: Columns,
   m: number,
   group: Int32Array,
   observations: Float64Array,
@@ -498,12 +529,12 @@ function mergeGroups(
  * bits in a table that doubles as groups appear. Returns each row's group and each group's first row; undefined
  * once there are more than `most` groups.
  */
-function groupsByKey(design: Float64Array, n: number, p: number, most: number) {
+function groupsByKey(design: Columns, n: number, p: number, most: number) {
   const key = new Float64Array(n);
   for (let j = 0; j < p; j++) {
-    const off = j * n;
+    const c = design[j] as Float64Array;
     const w = 1 + j * 0.6180339887498949;
-    for (let i = 0; i < n; i++) key[i] = (key[i] as number) + (design[off + i] as number) * w;
+    for (let i = 0; i < n; i++) key[i] = (key[i] as number) + (c[i] as number) * w;
   }
   const bits = new Int32Array(key.buffer);
   let size = 64;
@@ -550,9 +581,9 @@ function residualsByGroup(merged: MergedRows, observations: Float64Array, x: Flo
   const m = merged.rows;
   const fitted = new Float64Array(m);
   for (let j = 0; j < p; j++) {
-    const off = j * m;
+    const col = merged.design[j] as Float64Array;
     const c = x[j] as number;
-    for (let g = 0; g < m; g++) fitted[g] = (fitted[g] as number) + (merged.design[off + g] as number) * c;
+    for (let g = 0; g < m; g++) fitted[g] = (fitted[g] as number) + (col[g] as number) * c;
   }
   const residuals = new Float64Array(observations.length);
   for (let i = 0; i < residuals.length; i++)

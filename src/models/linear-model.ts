@@ -103,23 +103,33 @@ export function distinctTransitions(obs: readonly Observation[]): readonly Obser
   return d;
 }
 
-/** Column-major design matrix of a model over observations. */
-export function buildDesign(model: LinearModel, obs: readonly Observation[]): Float64Array {
-  const n = obs.length;
-  const params = model.parameters;
-  const a = new Float64Array(n * params.length);
+/**
+ * The columns of a model's design over observations: a shared column as it is kept (not copied; nobody modifies
+ * them), the others computed.
+ */
+export function designColumns(model: LinearModel, obs: readonly Observation[]): Float64Array[] {
   const shared = model.columnKey ? columnsOf(obs) : undefined;
-  params.forEach((p, j) => {
-    const off = j * n;
+  return model.parameters.map((p) => {
     const key = model.columnKey?.(p);
     const known = key !== undefined ? shared?.get(key) : undefined;
-    if (known) {
-      a.set(known, off);
-      return;
+    if (known) return known;
+    let col: Float64Array;
+    if (model.column) col = model.column(p, obs);
+    else {
+      col = new Float64Array(obs.length);
+      for (let i = 0; i < obs.length; i++) col[i] = model.coefficient(p, obs[i] as Observation);
     }
-    if (model.column) a.set(model.column(p, obs), off);
-    else for (let i = 0; i < n; i++) a[off + i] = model.coefficient(p, obs[i] as Observation);
-    if (key !== undefined) shared?.set(key, a.slice(off, off + n));
+    if (key !== undefined) shared?.set(key, col);
+    return col;
+  });
+}
+
+/** Column-major design matrix of a model over observations (a fresh array). */
+export function buildDesign(model: LinearModel, obs: readonly Observation[]): Float64Array {
+  const n = obs.length;
+  const a = new Float64Array(n * model.parameters.length);
+  designColumns(model, obs).forEach((c, j) => {
+    a.set(c, j * n);
   });
   return a;
 }
