@@ -434,18 +434,21 @@ describe('lines of repeated transitions, solved over their distinct transitions 
     [150, 40],
     [130, 64],
     [130, 65],
-  ])('%i lines of %i transitions with two priors (merged up to 64 transitions): solveModelWithPriors gives the same bits', (n, t) => {
-    const obs = repeatedLines(n, t);
-    const priors = [
-      { key: 'c2', value: -0.01, sigma: 0.002 },
-      { key: 'c1', value: 0.5, sigma: 0.05 },
-    ];
-    for (const mode of ['a-posteriori', 'absolute'] as const) {
-      const plain = solveModelWithPriors(polynomial(3), obs, priors, mode, 0.7);
-      const byTransition = solveModelWithPriors(flagged(polynomial(3)), obs, priors, mode, 0.7);
-      if (isRankDeficient(plain) || isRankDeficient(byTransition)) throw new Error('rank deficient');
-      expect(bits(byTransition)).toEqual(bits(plain));
-      expect(byTransition.residuals.length).toBe(n);
-    }
-  });
+  ])(
+    '%i lines of %i transitions with two priors (merged up to 64 transitions): solveModelWithPriors gives the same bits',
+    (n, t) => {
+      const obs = repeatedLines(n, t);
+      const priors = [
+        { key: 'c2', value: -0.01, sigma: 0.002 },
+        { key: 'c1', value: 0.5, sigma: 0.05 },
+      ];
+      for (const mode of ['a-posteriori', 'absolute'] as const) {
+        const plain = solveModelWithPriors(polynomial(3), obs, priors, mode, 0.7);
+        const byTransition = solveModelWithPriors(flagged(polynomial(3)), obs, priors, mode, 0.7);
+        if (isRankDeficient(plain) || isRankDeficient(byTransition)) throw new Error('rank deficient');
+        expect(bits(byTransition)).toEqual(bits(plain));
+        expect(byTransition.residuals.length).toBe(n);
+      }
+    },
+  );
 });
