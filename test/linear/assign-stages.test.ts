@@ -1,6 +1,5 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { ScienceError } from '../../src/errors.js';
 import {
   assignLinearLines,
   identifyLinearSpecies,
@@ -8,6 +7,7 @@ import {
   linearChecks,
   mergeIdentifications,
 } from '../../src/linear/assign.js';
+import { thrown } from '../helpers/thrown.js';
 
 /**
  * Fast checks of the stages of the automatic assignment of linear molecules on real, small lists: the 17 HITRAN
@@ -30,16 +30,6 @@ const labels = (r: ReturnType<typeof assignLinearLines>) =>
   r.lines.map((l) => (l.assignment ? `${l.assignment.branch}${l.assignment.j}` : '-'));
 // 2B″ of OCS: 2 × 0.2028567535 cm⁻¹ (NIST triatomic / Reinartz & Dymanus 1974, via the note) = 0.4057 cm⁻¹.
 const SPACING = 2 * 0.2028567535;
-
-function thrown(f: () => unknown): ScienceError {
-  try {
-    f();
-  } catch (e) {
-    if (e instanceof ScienceError) return e;
-    throw e;
-  }
-  throw new Error('no ScienceError thrown');
-}
 
 describe('refusals', () => {
   it('empty list, bad position, bad σ and a species without reference constants, with code, message, details', () => {

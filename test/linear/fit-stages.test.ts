@@ -1,8 +1,8 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { ScienceError } from '../../src/errors.js';
 import { fitLinearLines, LINEAR_TERM_CONVENTION, type LinearLineInput } from '../../src/linear/fit.js';
 import { parseLinearSpecies } from '../../src/linear/species.js';
+import { thrown } from '../helpers/thrown.js';
 import { ownNormal } from './own-linear-lines.js';
 
 /**
@@ -86,16 +86,6 @@ function nu2(n: number, sigma: number, seed: number, withQ: boolean): LinearLine
   for (let j = 0; j < n; j++) out.push(line(V2, C2, G0, C0, 'R', j, 'e', sigma, sigma * z()));
   if (withQ) for (let j = 1; j <= n; j++) out.push(line(V2, C2, G0, C0, 'Q', j, 'e', sigma, sigma * z()));
   return out;
-}
-
-function thrown(f: () => unknown): ScienceError {
-  try {
-    f();
-  } catch (e) {
-    if (e instanceof ScienceError) return e;
-    throw e;
-  }
-  throw new Error('no ScienceError thrown');
 }
 
 const level = (r: ReturnType<typeof fitLinearLines>, key: string) => {

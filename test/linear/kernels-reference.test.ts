@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { ScienceError } from '../../src/errors.js';
+import type { ScienceError } from '../../src/errors.js';
 import { linearCombinationDifferences } from '../../src/linear/combination-differences.js';
 import { parseLinearSpecies } from '../../src/linear/species.js';
 import { powerSeriesOrigin, termOriginFromPowerSeries, termValue } from '../../src/linear/terms.js';
@@ -19,6 +19,7 @@ import {
   parityComponents,
   parseLevelKey,
 } from '../../src/linear/types.js';
+import { thrown } from '../helpers/thrown.js';
 
 /**
  * Fast direct checks of the small kernels of src/linear: level identities and labels, the selection rules of
@@ -26,15 +27,6 @@ import {
  * and the combination-difference fit of a lower Σ level from differences computed here. Values worked out by
  * hand in the comments.
  */
-function thrown(f: () => unknown): ScienceError {
-  try {
-    f();
-  } catch (e) {
-    if (e instanceof ScienceError) return e;
-    throw e;
-  }
-  throw new Error('no ScienceError thrown');
-}
 const HCN = parseLinearSpecies('HCN');
 const CO2 = parseLinearSpecies('CO2');
 const G0 = { v: [0, 0, 0], l: 0 };

@@ -1,5 +1,4 @@
 import { describe, expect, it } from 'vitest';
-import { ScienceError } from '../../src/errors.js';
 import {
   hasZeroNuclearSpin,
   isLinearSpeciesString,
@@ -18,6 +17,7 @@ import {
   levelSpinWeight,
   speciesStatistics,
 } from '../../src/linear/spin-statistics.js';
+import { thrown } from '../helpers/thrown.js';
 
 /**
  * Species strings and nuclear-spin statistics against values worked out by hand in the comments: spin weights
@@ -27,15 +27,6 @@ import {
  * (ν3, ν5 u), and CIAAW 2013 best measurements of isotopic abundances (12C 0.988922, 13C 0.011078, 16O 0.99762,
  * from memory).
  */
-function thrown(f: () => unknown): ScienceError {
-  try {
-    f();
-  } catch (e) {
-    if (e instanceof ScienceError) return e;
-    throw e;
-  }
-  throw new Error('no ScienceError thrown');
-}
 
 describe('species strings', () => {
   it('what counts as a linear species string', () => {

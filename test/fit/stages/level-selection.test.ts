@@ -1,8 +1,8 @@
 import { describe, expect, it } from 'vitest';
-import { ScienceError } from '../../../src/errors.js';
 import { predictWithVariance, rankError, selectLevelModel } from '../../../src/fit/level-selection.js';
 import type { Observation } from '../../../src/models/linear-model.js';
 import { CO_12_16, levelConstants, termValue } from '../../helpers/independent-lines.js';
+import { thrown } from '../../helpers/thrown.js';
 import { generated } from './observations-of.js';
 
 // Stage 2 on its own, on lines of the independent generator (Huber & Herzberg constants of ¹²C¹⁶O, from memory,
@@ -15,16 +15,6 @@ const fittedValue = (fit: ReturnType<typeof selectLevelModel>['fit'], name: stri
   const p = fit.model.parameters.length;
   return { value: fit.values[i] as number, sigma: Math.sqrt(fit.covariance[i * p + i] as number) };
 };
-
-function thrown(f: () => unknown): ScienceError {
-  try {
-    f();
-  } catch (e) {
-    if (e instanceof ScienceError) return e;
-    throw e;
-  }
-  throw new Error('nothing was thrown');
-}
 
 describe('selectLevelModel: the centrifugal order of each level', () => {
   it('H_e = 0 and σ = 0.001 cm⁻¹: D is found in every level and H in none; B_v, D_v, T within 4σ', () => {

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { ScienceError } from '../../../src/errors.js';
 import { readLines } from '../../../src/fit/observations.js';
 import type { LineInput } from '../../../src/fit/types.js';
+import { thrown } from '../../helpers/thrown.js';
 
 // Stage 1a on its own: every line checked, assigned lines turned into observations. Expected values are written
 // out by hand here (J′ = J″ + 1 for R, J″ − 1 for P; weight 1/σ²). Computed inside `it` (mutation testing).
@@ -12,16 +12,6 @@ const line = (position: number, branch: 'P' | 'R', j: number, extra: Partial<Lin
   assignment: { species: '12C-16O', band: { upper: 1, lower: 0 }, branch, j, source: 'given' },
   ...extra,
 });
-
-function thrown(f: () => unknown): ScienceError {
-  try {
-    f();
-  } catch (e) {
-    if (e instanceof ScienceError) return e;
-    throw e;
-  }
-  throw new Error('nothing was thrown');
-}
 
 describe('readLines', () => {
   it('assigned lines become observations in input order with J′, J″, v′, v″ and weight 1/σ² (1 without σ)', () => {
