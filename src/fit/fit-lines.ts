@@ -88,11 +88,9 @@ export function fitLineListDetailed(
   const prepared = prepareObservations(input, masses, opt.uncertaintyMode, settings, opt.reuseScatter);
   const { warnings } = prepared;
   const kept = selectAndReject(prepared, opt, settings);
-  const selected = kept.level.fit;
   const truncation = constrainLevelModel(kept.level, kept.mode);
   if (truncation.constraints.length > 0) warnings.push(constrainedWarning(truncation.constraints, settings.alpha));
-  const level = truncation.level;
-  const fit = level.fit;
+  const fit = truncation.level.fit;
   const report = reportLevels(
     input,
     prepared.observations,
@@ -104,17 +102,12 @@ export function fitLineListDetailed(
   );
   warnings.push(...report.warnings);
   const structure = levelStructure(fit.observations);
-  const dunham = opt.levelsOnly
-    ? { equilibrium: [], dunham: [], checks: [] }
-    : dunhamStage(fit, structure.species, level.orders, masses, kept.mode, settings.alpha, warnings);
-  const massReducedDunham =
-    opt.massReducedDunham && !opt.levelsOnly
-      ? massReducedStage(fit, structure.species, level.orders, masses, kept.mode, settings.alpha, warnings)
-      : undefined;
-  const cds = opt.levelsOnly
-    ? { checks: [], warnings: [] }
-    : combinationChecks(fit, level.orders, kept.mode, report.quantityOf, reducedChiSquare(selected));
-  warnings.push(...cds.warnings);
+  const derived = derivedStages(fit, structure.species, truncation.level.orders, masses, kept, report, opt, {
+    alpha: settings.alpha,
+    warnings,
+  });
+  warnings.push(...derived.combination.warnings);
+  const selected = kept.level.fit;
   checkRepeats(selected, prepared.given > 0, warnings);
   checkDuplicates(prepared.observations, kept.rejected, warnings);
   checkSourceOffsets(
@@ -125,10 +118,72 @@ export function fitLineListDetailed(
   // A mode turned absolute to keep the stated σ already says why; "consider a-posteriori" would contradict it.
   if (!kept.statedKept) absoluteScaleWarnings(selected, kept.mode, warnings);
   qualityWarnings(selected, report.correlation, report.names, warnings, kept.mode);
+  const result = resultOf(
+    input,
+    masses,
+    structure.species,
+    prepared,
+    kept,
+    truncation.constraints,
+    report,
+    derived,
+    settings,
+  );
+  return detailedFit(result, fit, structure.reference, selected, kept.mode, prepared, input);
+}
 
-  const result: FitResult = {
+type LevelReport = ReturnType<typeof reportLevels>;
+type KeptLevels = ReturnType<typeof selectAndReject>;
+
+/** Stages 5 and 6: what is derived from the level fit (Dunham, mass-reduced Dunham, combination differences). */
+interface DerivedStages {
+  readonly dunham: ReturnType<typeof dunhamStage>;
+  readonly massReducedDunham: FitResult['massReducedDunham'];
+  readonly combination: ReturnType<typeof combinationChecks>;
+}
+
+function derivedStages(
+  fit: SolvedModel,
+  species: readonly string[],
+  orders: LevelSelection['orders'],
+  masses: ReadonlyMap<string, MassValue>,
+  kept: KeptLevels,
+  report: LevelReport,
+  opt: Required<Pick<FitOptions, 'levelsOnly' | 'massReducedDunham'>>,
+  { alpha, warnings }: { readonly alpha: number; readonly warnings: Warning[] },
+): DerivedStages {
+  if (opt.levelsOnly) {
+    return {
+      dunham: { equilibrium: [], dunham: [], checks: [] },
+      massReducedDunham: undefined,
+      combination: { checks: [], warnings: [] },
+    };
+  }
+  const dunham = dunhamStage(fit, species, orders, masses, kept.mode, alpha, warnings);
+  const massReducedDunham = opt.massReducedDunham
+    ? massReducedStage(fit, species, orders, masses, kept.mode, alpha, warnings)
+    : undefined;
+  const combination = combinationChecks(fit, orders, kept.mode, report.quantityOf, reducedChiSquare(kept.level.fit));
+  return { dunham, massReducedDunham, combination };
+}
+
+/** The result as the service shapes it, from the stages' results. */
+function resultOf(
+  input: readonly LineInput[],
+  masses: ReadonlyMap<string, MassValue>,
+  species: readonly string[],
+  prepared: PreparedObservations,
+  kept: KeptLevels,
+  constraints: readonly TermConstraint[],
+  report: LevelReport,
+  { dunham, massReducedDunham, combination }: DerivedStages,
+  { alpha }: FitSettings,
+): FitResult {
+  const { mode, rejected } = kept;
+  const selected = kept.level.fit;
+  return {
     species: [...masses.entries()]
-      .filter(([f]) => structure.species.includes(f))
+      .filter(([f]) => species.includes(f))
       .map(([formula, m]) => ({ formula, reducedMass: quantity(m.value, m.uncertainty, 'u') })),
     lines: report.lines,
     bands: report.bands,
@@ -137,20 +192,19 @@ export function fitLineListDetailed(
     parameters: report.parameters,
     covariance: { parameters: report.names, matrix: report.covariance },
     correlation: { parameters: report.names, matrix: report.correlation },
-    statistics: statisticsOf(input.length, prepared.observations.length, selected, kept.rejected.size, kept.mode),
+    statistics: statisticsOf(input.length, prepared.observations.length, selected, rejected.size, mode),
     model: {
       levelTerms: report.levelTerms,
-      selection: `centrifugal and Dunham terms added while ${kept.mode === 'absolute' ? 'a χ²-difference test' : 'an F test'} gives p < ${settings.alpha}; the next term beyond them constrained by a prior`,
-      constraints: [...truncation.constraints, ...dunham.dunham.flatMap((d) => d.constrained ?? [])],
+      selection: `centrifugal and Dunham terms added while ${mode === 'absolute' ? 'a χ²-difference test' : 'an F test'} gives p < ${alpha}; the next term beyond them constrained by a prior`,
+      constraints: [...constraints, ...dunham.dunham.flatMap((d) => d.constrained ?? [])],
     },
     dunham: dunham.dunham,
     ...(massReducedDunham ? { massReducedDunham } : {}),
-    combinationDifferences: cds.checks,
+    combinationDifferences: combination.checks,
     crossChecks: dunham.checks,
     ...(prepared.weighted.groups.length > 0 ? { scatter: prepared.weighted.groups } : {}),
-    warnings,
+    warnings: prepared.warnings,
   };
-  return detailedFit(result, fit, structure.reference, selected, kept.mode, prepared, input);
 }
 
 interface FitSettings {

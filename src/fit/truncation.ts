@@ -393,14 +393,36 @@ export function dunhamPriors(
   species: string,
   terms: readonly DunhamTerm[],
   values: ReadonlyMap<string, number>,
-): (Prior & { term: DunhamTerm; basis: string })[] {
+): DunhamPrior[] {
   const ref = referenceOf(species);
-  const has = (k: number, l: number) => terms.some((t) => t.k === k && t.l === l);
   const y = (k: number, l: number) => values.get(`${k},${l}`);
-  const omega = y(1, 0) ?? ref.omega_e;
-  const B = y(0, 1) ?? ref.B_e;
+  const known: KnownTerms = {
+    species,
+    ref,
+    has: (k, l) => terms.some((t) => t.k === k && t.l === l),
+    y,
+    omega: y(1, 0) ?? ref.omega_e,
+    B: y(0, 1) ?? ref.B_e,
+  };
+  return [...neighbourPriors(known), ...centrifugalDunhamPriors(known)];
+}
+
+type DunhamPrior = Prior & { term: DunhamTerm; basis: string };
+
+/** The kept Dunham terms, their fitted values ("k,l"), the library entry, and ω_e and B_e (fitted, else library). */
+interface KnownTerms {
+  readonly species: string;
+  readonly ref: Reference;
+  has(k: number, l: number): boolean;
+  y(k: number, l: number): number | undefined;
+  readonly omega: number | undefined;
+  readonly B: number | undefined;
+}
+
+/** Y30, Y21, Y12 next to Y20, Y11, Y02: the library's value ± 50 %, else 0 ± 5κ|Y_{k−1,l}|. */
+function neighbourPriors({ species, ref, has, y, omega, B }: KnownTerms): DunhamPrior[] {
   const kappa = omega !== undefined && B !== undefined && omega > 0 ? B / omega : undefined;
-  const out: (Prior & { term: DunhamTerm; basis: string })[] = [];
+  const out: DunhamPrior[] = [];
   const add = (k: number, l: number, libValue: number | undefined, libName: string) => {
     if (!has(k - 1, l) || has(k, l)) return;
     const key = `${species}|Y|${k},${l}`;
@@ -433,6 +455,13 @@ export function dunhamPriors(
   add(4, 0, ref.omega_e_z_e, 'ω_e z_e');
   add(2, 1, ref.gamma_e, 'γ_e');
   add(1, 2, ref.beta_e !== undefined ? -ref.beta_e : undefined, 'β_e');
+  return out;
+}
+
+/** Y02 (−D_e) when no level fitted D, Y03 (H_e) next to Y02, Y04 (L_e) next to Y03. */
+function centrifugalDunhamPriors(known: KnownTerms): DunhamPrior[] {
+  const { species, ref, has, y, omega, B } = known;
+  const out: DunhamPrior[] = [];
   if (!has(0, 2) && has(0, 1) && omega !== undefined && B !== undefined) {
     const D = ref.D_e ?? kratzerD(B, omega);
     out.push({
@@ -444,19 +473,8 @@ export function dunhamPriors(
     });
   }
   if (has(0, 2) && !has(0, 3)) {
-    const D = -(y(0, 2) as number);
-    const alpha = -(y(1, 1) ?? -(ref.alpha_e ?? 0));
-    if (omega !== undefined && B !== undefined && D > 0) {
-      const H = ref.H_e ?? hFromRelation(D, B, alpha, omega);
-      if (Number.isFinite(H) && H !== 0)
-        out.push({
-          key: `${species}|Y|0,3`,
-          value: H,
-          sigma: RELATION_PRIOR_FRACTION * Math.abs(H),
-          term: { k: 0, l: 3 },
-          basis: 'H_e ≈ 2D_e(12B_e² − α_e ω_e)/(3ω_e²) (Dunham relation), ± 50 %',
-        });
-    }
+    const h = hePrior(known);
+    if (h) out.push(h);
   }
   if (has(0, 3) && !has(0, 4) && B !== undefined) {
     const fittedAlpha = y(1, 1);
@@ -464,4 +482,20 @@ export function dunhamPriors(
     if (l) out.push({ key: `${species}|Y|0,4`, value: l.value, sigma: l.sigma, term: { k: 0, l: 4 }, basis: l.basis });
   }
   return out;
+}
+
+/** Y03 from the library's H_e, else the H_e relation with the fitted D_e (and α_e, ω_e, B_e). */
+function hePrior({ species, ref, y, omega, B }: KnownTerms): DunhamPrior | undefined {
+  const D = -(y(0, 2) as number);
+  const alpha = -(y(1, 1) ?? -(ref.alpha_e ?? 0));
+  if (omega === undefined || B === undefined || !(D > 0)) return undefined;
+  const H = ref.H_e ?? hFromRelation(D, B, alpha, omega);
+  if (!Number.isFinite(H) || H === 0) return undefined;
+  return {
+    key: `${species}|Y|0,3`,
+    value: H,
+    sigma: RELATION_PRIOR_FRACTION * Math.abs(H),
+    term: { k: 0, l: 3 },
+    basis: 'H_e ≈ 2D_e(12B_e² − α_e ω_e)/(3ω_e²) (Dunham relation), ± 50 %',
+  };
 }

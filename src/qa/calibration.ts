@@ -34,6 +34,19 @@ export interface ReferenceCalibration {
 
 const basis = (k: number, l: number, v: number, j: number) => (v + 0.5) ** k * (j * (j + 1)) ** l;
 
+/** A Dunham term the library lacks, carried as a parameter with a prior (mean ± sigma). */
+interface NuisanceTerm {
+  readonly k: number;
+  readonly l: number;
+  readonly mean: number;
+  readonly sigma: number;
+  readonly name: string;
+}
+
+/**
+ * Stages: nuisanceTerms (what the library lacks) → referencePositions (the library's predictions) → calibrationSystem
+ * (offset, scale about the centre, nuisance terms with their prior rows) → the solve → the reported calibration.
+ */
 export function calibrateAgainstLibrary(
   pts: readonly CalibrationPoint[],
   y: ReadonlyMap<string, number>,
@@ -41,20 +54,35 @@ export function calibrateAgainstLibrary(
   scaleLimitPpm: number,
 ): ReferenceCalibration | undefined {
   if (pts.length < 3) return undefined;
-  const Y = (k: number, l: number) => y.get(`${k},${l}`);
-  const energy = (v: number, j: number) => {
-    let e = 0;
-    for (const [key, val] of y) {
-      const [k, l] = key.split(',').map(Number) as [number, number];
-      e += val * basis(k, l, v, j);
-    }
-    return e;
+  const nuisance = nuisanceTerms(y);
+  const refs = referencePositions(pts, y);
+  const system = calibrationSystem(pts, refs, nuisance);
+  const { cols } = system;
+  const r = solveLeastSquares({ ...system, conditionNumber: false });
+  if (r.rankDeficient) return undefined;
+  // The line σ are the fit's (given or estimated from the scatter): absolute here, not rescaled again.
+  const sd = (j: number) => Math.sqrt(Math.max(r.covariance[j * cols + j] as number, 0));
+  const scaleSigma = sd(1) * 1e6;
+  const determined = scaleSigma <= scaleLimitPpm / 3;
+  return {
+    offset: quantity(r.coefficients[0] as number, sd(0), 'cm-1'),
+    ...(determined
+      ? { scale: quantity((r.coefficients[1] as number) * 1e6, scaleSigma, 'ppm') }
+      : { scaleUndetermined: scaleSigma }),
+    centre: system.centre,
+    lines: pts.length,
+    nuisance: nuisance.map((t) => t.name),
+    reference,
   };
+}
+
+/** Nuisance terms: those the library lacks, next to one it has (0 ± 5κ|Y_{k−1,l}|; H_e from the relation ± 50 %). */
+function nuisanceTerms(y: ReadonlyMap<string, number>): NuisanceTerm[] {
+  const Y = (k: number, l: number) => y.get(`${k},${l}`);
   const omega = Y(1, 0);
   const B = Y(0, 1);
   const kappa = omega && B ? B / omega : undefined;
-  // Nuisance terms: those the library lacks, next to one it has.
-  const nuisance: { k: number; l: number; mean: number; sigma: number; name: string }[] = [];
+  const nuisance: NuisanceTerm[] = [];
   const scalePrior = (k: number, l: number, name: string) => {
     const lower = Y(k - 1, l);
     if (Y(k, l) !== undefined || lower === undefined || kappa === undefined) return;
@@ -70,9 +98,33 @@ export function calibrateAgainstLibrary(
     const H = hFromRelation(-D, B, -(alpha ?? 0), omega);
     if (Number.isFinite(H) && H !== 0) nuisance.push({ k: 0, l: 3, mean: H, sigma: 0.5 * Math.abs(H), name: 'H_e' });
   }
+  return nuisance;
+}
+
+/** Each point's position predicted from the library's Dunham coefficients. */
+function referencePositions(pts: readonly CalibrationPoint[], y: ReadonlyMap<string, number>): number[] {
+  const energy = (v: number, j: number) => {
+    let e = 0;
+    for (const [key, val] of y) {
+      const [k, l] = key.split(',').map(Number) as [number, number];
+      e += val * basis(k, l, v, j);
+    }
+    return e;
+  };
+  return pts.map((p) => energy(p.upperV, p.upperJ) - energy(p.lowerV, p.lowerJ));
+}
+
+/**
+ * observed − reference = offset + scale · (reference − centre) + Σ nuisance terms, weighted by 1/σ², with one prior
+ * row per nuisance term; the centre is the weighted mean of the reference positions.
+ */
+function calibrationSystem(
+  pts: readonly CalibrationPoint[],
+  refs: readonly number[],
+  nuisance: readonly NuisanceTerm[],
+) {
   const n = pts.length;
   const m = nuisance.length;
-  const refs = pts.map((p) => energy(p.upperV, p.upperJ) - energy(p.lowerV, p.lowerJ));
   let sw = 0;
   let swx = 0;
   pts.forEach((p, i) => {
@@ -84,7 +136,7 @@ export function calibrateAgainstLibrary(
   const cols = 2 + m;
   const rows = n + m;
   const design = new Float64Array(rows * cols);
-  const obs = new Float64Array(rows);
+  const observations = new Float64Array(rows);
   const weights = new Float64Array(rows);
   pts.forEach((p, i) => {
     design[i] = 1;
@@ -92,30 +144,15 @@ export function calibrateAgainstLibrary(
     nuisance.forEach((t, a) => {
       design[(2 + a) * rows + i] = basis(t.k, t.l, p.upperV, p.upperJ) - basis(t.k, t.l, p.lowerV, p.lowerJ);
     });
-    obs[i] = p.observed - (refs[i] as number);
+    observations[i] = p.observed - (refs[i] as number);
     weights[i] = 1 / p.sigma ** 2;
   });
   nuisance.forEach((t, a) => {
     design[(2 + a) * rows + n + a] = 1;
-    obs[n + a] = t.mean;
+    observations[n + a] = t.mean;
     weights[n + a] = 1 / t.sigma ** 2;
   });
-  const r = solveLeastSquares({ rows, cols, design, observations: obs, weights, conditionNumber: false });
-  if (r.rankDeficient) return undefined;
-  // The line σ are the fit's (given or estimated from the scatter): absolute here, not rescaled again.
-  const sd = (j: number) => Math.sqrt(Math.max(r.covariance[j * cols + j] as number, 0));
-  const scaleSigma = sd(1) * 1e6;
-  const determined = scaleSigma <= scaleLimitPpm / 3;
-  return {
-    offset: quantity(r.coefficients[0] as number, sd(0), 'cm-1'),
-    ...(determined
-      ? { scale: quantity((r.coefficients[1] as number) * 1e6, scaleSigma, 'ppm') }
-      : { scaleUndetermined: scaleSigma }),
-    centre,
-    lines: n,
-    nuisance: nuisance.map((t) => t.name),
-    reference,
-  };
+  return { rows, cols, design, observations, weights, centre };
 }
 
 /** Stated false-alarm rate of one guard-banded judgement on a clean scan (true deviation 0): 1 %, two-sided. */
