@@ -1153,3 +1153,115 @@ describe('the whole report', () => {
     expect(n.measured.runnerUpScore).toBe(0);
   });
 });
+
+describe('temperature and fit quality: the edges', () => {
+  const energy = (j: number) => term12(0, j) - term12(0, 0);
+  /** P(1…n), R(0…n−1) of 1-0 with the intensities of a gas at T, E″ from the term values above. */
+  const bandAt = (T: number, n: number, e: (j: number) => number = energy): LineSpec[] =>
+    branches(n).map((l) => {
+      const nu = positionOf(MAIN, '1-0', l.branch, l.j);
+      return { ...l, intensity: 1e3 * lineIntensity(nu, l.branch, l.j, e(l.j), T) };
+    });
+
+  it('one line without an intensity: the temperature is not evaluated (every line must carry one)', () => {
+    const lines = bandAt(250, 12).map((l, i) => (i === 3 ? { branch: l.branch, j: l.j } : l));
+    const c = check(build({ lines }), 'temperature');
+    expect(c.status).toBe('not-evaluated');
+    expect(c.message).toBe('the lines carry no intensities');
+  });
+
+  it('the lower level is found by species and v, whatever the order of the levels (v = 1 and ¹³C¹⁶O v = 0 listed first)', () => {
+    const b = build({
+      lines: bandAt(250, 12),
+      levels: [
+        { species: MAIN, v: 1, B: CO.Be - 1.5 * CO.ae, D: CO.De },
+        { species: MINOR, v: 0, B: B0 * RHO ** 2, D: CO.De * RHO ** 4 },
+        { species: MAIN, v: 0, B: B0, D: CO.De },
+      ],
+    });
+    const t = check(b, 'temperature').measured.temperature as { value: number };
+    expect(Math.abs(t.value - 250)).toBeLessThan(1e-3);
+  });
+
+  it('E″ = B x − D x² + H x³ with H > 0: intensities made with that E″ give 1500 K back (0.01 K)', () => {
+    // x = J(J+1); H = 1e-8 cm⁻¹ adds 1e-8·552³ = 1.7 cm⁻¹ at J = 23 (invented, to make H count).
+    const H = 1e-8;
+    const withH = (j: number) => energy(j) + H * (j * (j + 1)) ** 3;
+    const b = build({ lines: bandAt(1500, 24, withH), levels: [{ species: MAIN, v: 0, B: B0, D: CO.De, H }] });
+    const t = check(b, 'temperature').measured.temperature as { value: number };
+    expect(Math.abs(t.value - 1500)).toBeLessThan(0.01);
+  });
+
+  it('χ² is judged when some lines carry σ (not only when all do)', () => {
+    const lines = branches(5).map((l, i) => (i % 2 ? { ...l, uncertainty: 1e-3 } : l));
+    const c = check(build({ lines, statistics: { reducedChiSquare: 3.5 } }), 'fit-quality');
+    expect(c.status).toBe('fail');
+    expect(c.message).toBe('reduced χ² 3.50 exceeds 3');
+  });
+
+  it('a χ² failure stays a failure when strong lines are also missing; both problems are named', () => {
+    const holes = branches(25, { uncertainty: 1e-3 }).map((l) =>
+      l.branch === 'R' && l.j >= 5 && l.j <= 9 ? { ...l, status: 'unassigned' as const } : l,
+    );
+    const c = check(build({ lines: holes, method: 'reference', statistics: { reducedChiSquare: 5 } }), 'fit-quality');
+    expect(c.status).toBe('fail');
+    expect(c.message).toMatch(/^reduced χ² 5\.00 exceeds 3; 5 of \d+ predicted strong lines are missing$/);
+  });
+
+  it('completeness exactly at the bar passes (the limit is exclusive): 100 % against a bar of 1', () => {
+    const c = check(build({ lines: branches(25), method: 'reference' }), 'fit-quality', { minCompleteness: 1 });
+    expect(c.measured.completeness).toBe(1);
+    expect(c.status).toBe('pass');
+  });
+
+  it('the strong lines are those inside the window of the sent lines: an R branch alone is complete', () => {
+    // R(0…24) of CO 1-0 span 2147–2230 cm⁻¹; the P branch lies below 2140 cm⁻¹, outside the window.
+    const rOnly = branches(25).filter((l) => l.branch === 'R');
+    const c = check(build({ lines: rOnly, method: 'reference' }), 'fit-quality');
+    expect(c.measured.completeness).toBe(1);
+    expect(c.status).toBe('pass');
+  });
+
+  it('¹³C¹⁶O declared beside ¹²C¹⁶O: its lines (1.1 % natural abundance, CIAAW) are not strong, so none is missing', () => {
+    const c = check(build({ lines: branches(25), method: 'reference', species: [MAIN, MINOR] }), 'fit-quality');
+    expect(c.measured.completeness).toBe(1);
+    expect(c.measured.missingStrongLines).toEqual([]);
+  });
+
+  it('a window where the library predicts no strong line: completeness is not measured (null), no warning', () => {
+    // Nine lines near 3000 cm⁻¹, far from the CO fundamental (2143) and overtone (4260).
+    const lines = Array.from({ length: 9 }, (_, i) => ({ branch: 'R' as const, j: i, position: 3000 + 0.7 * i }));
+    const c = check(build({ lines, method: 'reference' }), 'fit-quality');
+    expect(c.measured.completeness).toBeNull();
+    expect(c.status).toBe('pass');
+    expect(c.message).toBe('rms 1.00e-3 cm-1, reduced χ² 1.00, 0 outlier(s)');
+  });
+
+  it('reference assignments without a declared species: completeness is not measured', () => {
+    const c = check(
+      build({ lines: branches(10), method: 'reference', species: [], fittedSpecies: [MAIN] }),
+      'fit-quality',
+    );
+    expect(c.measured.completeness).toBeNull();
+  });
+
+  it('the strong lines are predicted at the measured temperature: at 1000 K the lines above J = 24 are missed', () => {
+    // At 1000 K (kT/hc = 695 cm⁻¹, CODATA c₂ above) the population (2J+1)exp(−B J(J+1)hc/kT) at J = 30 is 0.29 of
+    // that at its maximum near J = 13 (√(kT/2hcB) − ½): strong. At 296 K it is 1.2e-3 of the maximum (hand values).
+    const band = bandAt(1000, 25);
+    const lines = [
+      ...band,
+      { branch: 'R' as const, j: 0, status: 'unassigned' as const, position: 1990, intensity: 1 },
+      { branch: 'R' as const, j: 0, status: 'unassigned' as const, position: 2300, intensity: 1 },
+    ];
+    const checks = run(build({ lines, method: 'reference' })).checks;
+    const t = byId(checks, 'temperature').measured.temperature as { value: number };
+    expect(Math.abs(t.value - 1000)).toBeLessThan(0.01);
+    const c = byId(checks, 'fit-quality');
+    expect(c.status).toBe('warn');
+    const missing = c.measured.missingStrongLines as { branch: string; j: number }[];
+    expect(missing.length).toBeGreaterThan(10);
+    // P(1…25) and R(0…24) were sent: only P(≥ 26) and R(≥ 25) can be missing.
+    expect(missing.every((m) => (m.branch === 'P' ? m.j >= 26 : m.j >= 25))).toBe(true);
+  });
+});
