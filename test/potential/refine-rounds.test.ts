@@ -95,4 +95,61 @@ describe('the damped Gauss–Newton run', () => {
       expect(r.check.worstRotationalRelativeError).toBeLessThan(1e-4);
     });
   }
+
+  it('HF v ≤ 5 on 600 points: every Newton round ends for a stated reason (goals, gain, budget, rounds)', () => {
+    // X ¹Σ⁺ HF, Huber & Herzberg (1979), recalled to fewer digits (as in refine.test.ts): ω_e 4138.32, ω_e x_e 89.88,
+    // ω_e y_e 0.9, B_e 20.9557, α_e 0.798 cm⁻¹. The identity start falls short here (refine.test.ts), so the damped
+    // Gauss–Newton run is taken. Its rules (refine.ts): a round is made while the residuals are above half the
+    // goals, fewer than maxRounds rounds were made and the round cannot pass 4(p + 2) solves; it ends after a round
+    // that gains less than 30 % (badness ratio > 0.7). Degree for v ≤ 5: min(6, max(4, 5 − 1)) = 4, so ΔG to x⁴
+    // (kg = 4) and ΔB to x⁴ (kb = 5): p = 9, a budget of 44 solves, p + 1 or more per round.
+    const series = { g: [4138.32, -89.88, 0.9], b: [20.9557, -0.798] };
+    const hf = ROTATIONAL_FACTOR / reducedMass(parseSpecies('HF')).value;
+    const at = (maxRounds?: number) => {
+      const r = refineRkrCurve({
+        series,
+        hbar2Over2mu: hf,
+        vMax: 5,
+        vTop: 8,
+        points: 600,
+        ...(maxRounds !== undefined ? { maxRounds } : {}),
+      });
+      if (!r) throw new Error('no refinement');
+      return r;
+    };
+    const p = 9;
+    const budget = 4 * (p + 2);
+    const r = at();
+    expect(r.start).toBe('finite-difference');
+    expect(r.series.g).toHaveLength(4);
+    expect(r.series.b).toHaveLength(5);
+    const b = r.rounds.map(inGoals);
+    const made = b.length - 1; // rounds[0] is the start
+    expect(made).toBeGreaterThanOrEqual(2);
+    expect(made).toBeLessThanOrEqual(10);
+    // Every round but the last was followed by another: above half the goals and a gain of at least 30 %.
+    for (let k = 1; k < made; k++) {
+      expect(b[k] as number).toBeGreaterThan(0.5);
+      expect((b[k] as number) / (b[k - 1] as number)).toBeLessThanOrEqual(0.7);
+    }
+    // Each accepted step lowered the residuals.
+    for (let k = 1; k <= made; k++) expect(b[k] as number).toBeLessThan(b[k - 1] as number);
+    // The identity run costs at most 10 rounds + 4 halvings, a Newton round p + 1 to p + 6 solves after the start.
+    const newtonMin = 1 + made * (p + 1);
+    expect(r.solves).toBeGreaterThanOrEqual(1 + newtonMin);
+    expect(r.solves).toBeLessThanOrEqual(14 + 1 + made * (p + 6));
+    // The last round ended the run for one of the stated reasons (the identity run's solves are not counted in the
+    // budget, so r.solves − 1 bounds the Newton run's from above).
+    const last = b[made] as number;
+    const stopped = last <= 0.5 || last / (b[made - 1] as number) > 0.7 || made === 10 || newtonMin + p + 1 > budget;
+    expect(stopped).toBe(true);
+    // The result is within the goals (0.01 cm⁻¹, 1e-4).
+    expect(r.check.worstIntervalError).toBeLessThan(0.01);
+    expect(r.check.worstRotationalRelativeError).toBeLessThan(1e-4);
+    // maxRounds bounds each run: with 1, the Newton run makes one round after its start.
+    const one = at(1);
+    expect(one.start).toBe('finite-difference');
+    expect(one.rounds).toHaveLength(2);
+    expect(inGoals(one.rounds[1] as Round)).toBeLessThan(inGoals(one.rounds[0] as Round));
+  });
 });
