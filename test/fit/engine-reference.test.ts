@@ -11,6 +11,7 @@ import {
   solveModelWithPriors,
   studentisedResiduals,
   toRows,
+  withLeverages,
 } from '../../src/fit/engine.js';
 import { termTest } from '../../src/fit/term-test.js';
 import type { LinearModel, Observation, Parameter } from '../../src/models/linear-model.js';
@@ -451,4 +452,33 @@ describe('lines of repeated transitions, solved over their distinct transitions 
       }
     },
   );
+});
+
+describe('a trial fit completed with its leverages (withLeverages)', () => {
+  it("gives the hat-matrix diagonal of ml-matrix (1e-9) and the full fit's condition number; a full fit needs none", () => {
+    // Norris's straight line with unequal weights, solved as a trial (no leverages, no condition number).
+    const obs = observationsOf(NORRIS).map((o, i) => ({ ...o, weight: 0.5 + (i % 4) * 0.5 }));
+    const model = polynomial(1);
+    const trial = solved(model, obs, 'a-posteriori', false);
+    expect(trial.leverages.length).toBe(0);
+    const done = withLeverages(trial);
+    if (!done) throw new Error('the trial fit was not completed');
+    const n = obs.length;
+    const aw = new Matrix(n, 2);
+    for (let i = 0; i < n; i++) {
+      const o = obs[i] as Observation;
+      aw.set(i, 0, Math.sqrt(o.weight));
+      aw.set(i, 1, Math.sqrt(o.weight) * o.lowerJ);
+    }
+    const hat = aw.mmul(inverse(aw.transpose().mmul(aw))).mmul(aw.transpose());
+    expect(done.leverages.length).toBe(n);
+    for (let i = 0; i < n; i++) expect(Math.abs((done.leverages[i] as number) - hat.get(i, i))).toBeLessThan(1e-9);
+    // Σ hᵢᵢ = p (the trace of a projection).
+    expect(done.leverages.reduce((a, h) => a + h, 0)).toBeCloseTo(2, 9);
+    const full = solved(model, obs, 'a-posteriori');
+    expect(done.conditionNumber).toBeCloseTo(full.conditionNumber, 6);
+    expect(Array.from(done.values)).toEqual(Array.from(trial.values));
+    // A fit solved with its leverages has nothing to complete.
+    expect(withLeverages(full)).toBeUndefined();
+  });
 });
