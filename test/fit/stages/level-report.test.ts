@@ -148,4 +148,38 @@ describe('reportLevels', () => {
       },
     ]);
   });
+
+  it('a rejected line still beyond its threshold is reported with the final figure; other reasons stay as given', () => {
+    const { input, observations, transitions, sel } = setting();
+    // Line 10 moved by +0.05 cm⁻¹ (50σ of the 0.001 cm⁻¹ noise): against the fit that left it out, t = e/√(s²/w +
+    // var), worked out here from the prediction.
+    const moved = observations.map((o) => (o.index === 10 ? { ...o, position: o.position + 0.05 } : o));
+    const ob10 = moved.find((o) => o.index === 10) as (typeof moved)[0];
+    const pred = predictWithVariance(sel.fit, ob10);
+    const t10 =
+      (ob10.position - (pred?.value as number)) /
+      Math.sqrt((reducedChiSquare(sel.fit) as number) / ob10.weight + (pred?.variance as number));
+    expect(t10).toBeGreaterThan(10);
+    const reasonOf = (reason: string) =>
+      reportLevels(input, moved, transitions, new Map([[10, reason]]), sel.fit, MU).lines[10]?.reason;
+    // A threshold of two digits before the point (10.00): the final figure replaces the one at rejection.
+    expect(reasonOf('studentised residual 12.5 exceeds 10.00')).toBe(
+      `studentised residual ${t10.toFixed(2)} exceeds 10.00`,
+    );
+    expect(reasonOf('studentised residual 9.9 exceeds 4.00')).toBe(
+      `studentised residual ${t10.toFixed(2)} exceeds 4.00`,
+    );
+    // Exactly at the threshold (written with every digit, so that it reads back as t itself) is not beyond it: the
+    // figure at rejection stays and the final one is added.
+    expect(reasonOf(`studentised residual 99 exceeds ${String(t10)}`)).toBe(
+      `studentised residual 99 exceeds ${String(t10)} when rejected (${t10.toFixed(2)} against the final fit)`,
+    );
+    // Reasons of another form (text before or after the figure, or another rule) are left as they are.
+    for (const other of [
+      'taken out by hand',
+      'note: studentised residual 9.9 exceeds 4.00',
+      'studentised residual 9.9 exceeds 4.00 in round 2',
+    ])
+      expect(reasonOf(other)).toBe(other);
+  });
 });
