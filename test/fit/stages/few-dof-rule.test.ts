@@ -23,14 +23,18 @@ const list = (jMax: number, factor: number): LineInput[] =>
     reportedSigmaFactor: factor,
     seed: 7001,
   }).lines as LineInput[];
-const fit = (lines: LineInput[], mode: 'a-posteriori' | 'absolute' = 'a-posteriori') =>
+const fitList = (lines: LineInput[], mode: 'a-posteriori' | 'absolute' = 'a-posteriori') =>
   fitLineList(lines, masses, { levelsOnly: true, uncertaintyMode: mode });
-const sigmaB0 = (r: FitResult) => (r.levels.find((l) => l.v === 0)?.B as { uncertainty: number }).uncertainty;
+const sigmaB0 = (r: FitResult): number => {
+  const b = r.levels.find((l) => l.v === 0)?.B;
+  if (!b) throw new Error('no B_0');
+  return b.uncertainty;
+};
 const modeChange = (r: FitResult) => r.warnings.filter((w) => w.code === 'UNCERTAINTY_MODE_CHANGED');
 
 describe('few degrees of freedom: stated σ kept, not scaled down', () => {
   it('ν = 8 (11 lines), σ stated 3× too large: taken as absolute, σ(B₀) follows the stated σ (×10 → ×9 to ×10)', () => {
-    const r3 = fit(list(5, 3));
+    const r3 = fitList(list(5, 3));
     expect(r3.statistics.degreesOfFreedom).toBe(8);
     expect(r3.statistics.uncertaintyMode).toBe('absolute');
     const rc = r3.statistics.reducedChiSquare as number;
@@ -43,7 +47,7 @@ describe('few degrees of freedom: stated σ kept, not scaled down', () => {
     // The stated σ were kept on purpose: no advice to scale a posteriori beside it (CHI_SQUARE_LOW is for σ the
     // caller asked to be taken as absolute).
     expect(r3.warnings.map((w) => w.code)).not.toContain('CHI_SQUARE_LOW');
-    const r30 = fit(list(5, 30));
+    const r30 = fitList(list(5, 30));
     expect(r30.statistics.uncertaintyMode).toBe('absolute');
     // Not scaled down: ten times the stated σ give about ten times σ(B₀) (a little less, 9.55 here: the priors on
     // the centrifugal terms the lines cannot determine carry σ of their own); scaled a posteriori it would be 1×.
@@ -58,8 +62,8 @@ describe('few degrees of freedom: stated σ kept, not scaled down', () => {
   });
 
   it('ν = 10 (13 lines): scaled a posteriori both ways, so σ(B₀) does not depend on a common factor (1e-9)', () => {
-    const r3 = fit(list(6, 3));
-    const r30 = fit(list(6, 30));
+    const r3 = fitList(list(6, 3));
+    const r30 = fitList(list(6, 30));
     expect(r3.statistics.degreesOfFreedom).toBe(10);
     expect(r3.statistics.uncertaintyMode).toBe('a-posteriori');
     expect(r30.statistics.uncertaintyMode).toBe('a-posteriori');
@@ -69,23 +73,23 @@ describe('few degrees of freedom: stated σ kept, not scaled down', () => {
 
   it('one line without σ: the rule needs every σ stated, so nothing is kept as absolute', () => {
     const lines = list(5, 3).map((l, i) => (i === 4 ? { position: l.position, assignment: l.assignment } : l));
-    const r = fit(lines);
+    const r = fitList(lines);
     expect(r.statistics.uncertaintyMode).toBe('a-posteriori');
     expect(modeChange(r)).toEqual([]);
   });
 
   it('absolute mode asked for: no change of mode to report, σ(B₀) as stated (the same as the kept a-posteriori fit)', () => {
-    const abs = fit(list(5, 3), 'absolute');
+    const abs = fitList(list(5, 3), 'absolute');
     expect(abs.statistics.uncertaintyMode).toBe('absolute');
     expect(modeChange(abs)).toEqual([]);
     // χ²/ν ≈ 0.066 on 8 degrees of freedom, χ² ≈ 0.53: P(χ² ≤ 0.53) ≈ (x/2)⁴e^(−x/2)/4! ≈ 1.6e-4 (the first term of
     // the lower-tail series, by hand), below the 0.001 of CHI_SQUARE_LOW: σ asked to be absolute look overstated.
     expect(abs.warnings.map((w) => w.code)).toContain('CHI_SQUARE_LOW');
-    expect(sigmaB0(abs) / sigmaB0(fit(list(5, 3)))).toBeCloseTo(1, 9);
+    expect(sigmaB0(abs) / sigmaB0(fitList(list(5, 3)))).toBeCloseTo(1, 9);
   });
 
   it('ν = 8, σ stated 3× too small (χ²/ν ≈ 9 > 1): scaled up a posteriori, nothing kept', () => {
-    const r = fit(list(5, 1 / 3));
+    const r = fitList(list(5, 1 / 3));
     expect(r.statistics.degreesOfFreedom).toBe(8);
     expect(r.statistics.reducedChiSquare as number).toBeGreaterThan(1);
     expect(r.statistics.uncertaintyMode).toBe('a-posteriori');
