@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import {
+  assignByStructure,
   boltzmannResiduals,
   byCommonStep,
   describeShift,
@@ -1726,5 +1727,198 @@ describe('growth along the fit', () => {
     expect(Math.max(...withAnchors.keys())).toBeLessThan(peaks.length);
     expect(withAnchors.size).toBe(lines.length);
     for (const [i, t] of withAnchors) expect(t).toEqual({ branch: (lines[i] as Made).branch, j: (lines[i] as Made).j });
+  });
+});
+
+// ---------------------------------------------------------------------------------------------------------------
+// Edges of the stages: seeds at the ends of a list, exact thresholds, the order of the input, refusals
+
+/** A fixed shuffle (stride 7 through the list, coprime with its length) so that no order of the input is assumed. */
+function shuffled<T>(xs: readonly T[]): { item: T; from: number }[] {
+  const n = xs.length;
+  let stride = 7;
+  while (n % stride === 0) stride++;
+  return Array.from({ length: n }, (_, k) => ({ item: xs[(k * stride) % n] as T, from: (k * stride) % n }));
+}
+
+/** The running numbers of a chain relative to its first point's, as the true labels give them. */
+function relativeMs(chain: readonly Point[], labels: readonly { branch: Branch; j: number }[]) {
+  const base = chain[0] as Point;
+  const m0 = mOf(labels[base.index] as { branch: Branch; j: number });
+  return chain.map((p) => ({ got: p.m - base.m, want: mOf(labels[p.index] as { branch: Branch; j: number }) - m0 }));
+}
+
+describe('edges of the numbering stages', () => {
+  it('the real CO fundamental numbered the same whatever the order of its lines', () => {
+    const lines = coBand('1-0', 9);
+    const mixed = shuffled(lines);
+    const s = assignByStructure(
+      mixed.map((x) => ({ position: x.item.position, uncertainty: x.item.uncertainty })),
+      co.formula,
+      reducedMass(co),
+      BAND10,
+    );
+    expect(s?.decisive).toBe(true);
+    expect(s?.assigned.size).toBe(lines.length);
+    for (const [i, t] of s?.assigned ?? []) {
+      const l = mixed[i]?.item as { branch: Branch; j: number };
+      expect(t).toEqual({ branch: l.branch, j: l.j });
+    }
+  });
+
+  it('a band whose every numbering the fit refuses (upper level 0 below lower level 1): no numbering, no throw', () => {
+    const lines = coBand('1-0', 9).map((l) => ({ position: l.position, uncertainty: l.uncertainty }));
+    expect(assignByStructure(lines, co.formula, reducedMass(co), { upper: 0, lower: 1 })).toBeUndefined();
+  });
+
+  it('the seed pair may be the first or the last line of the list; six lines make a progression', () => {
+    const band = coBand('1-0', 12);
+    const cases = [
+      // P(1) the lowest line, the R branch to R(8).
+      band.filter((l) => (l.branch === 'P' && l.j === 1) || (l.branch === 'R' && l.j <= 8)),
+      // R(0) the highest line, the P branch to P(9).
+      band.filter((l) => (l.branch === 'P' && l.j <= 9) || (l.branch === 'R' && l.j === 0)),
+      // Six lines, P(3)…P(1), R(0)…R(2): the fewest a progression holds.
+      band.filter((l) => l.j <= 3 && !(l.branch === 'R' && l.j === 3)),
+    ];
+    for (const lines of cases) {
+      const { order, pos } = orderOf(lines.map((l) => l.position));
+      const chains = progressions(order, pos);
+      const first = chains[0] as Point[];
+      expect(first).toHaveLength(lines.length);
+      for (const { got, want } of relativeMs(first, lines)) expect(got).toBe(want);
+    }
+  });
+
+  it('two bands in one list: the longer progression first, wherever it lies', () => {
+    // Real 12C16O: the fundamental to J = 6 (13 lines near 2143 cm⁻¹) and the overtone 2-0 to J = 15 (31 lines near
+    // 4260 cm⁻¹, above it): the 2-0 progression, grown second, must come first.
+    const lines = [...coBand('1-0', 6), ...coBand('2-0', 15)];
+    const { order, pos } = orderOf(lines.map((l) => l.position));
+    const chains = progressions(order, pos);
+    const first = chains[0] as Point[];
+    expect(first).toHaveLength(31);
+    for (const p of first) expect(p.index).toBeGreaterThanOrEqual(13);
+    expect(chains.some((c) => c.length === 13 && c.every((p) => p.index < 13))).toBe(true);
+    for (let k = 1; k < chains.length; k++)
+      expect((chains[k] as Point[]).length).toBeLessThanOrEqual((chains[k - 1] as Point[]).length);
+  });
+
+  it('distinct progressions: the same lines numbered otherwise are two, the same in another order one', () => {
+    const base = Array.from({ length: 30 }, (_, k) => pt(k < 15 ? k - 15 : k - 14, 100 + k, k));
+    // 27 of 30 is 0.9 of the longest exactly: kept.
+    const cut = base.slice(0, 27).map((p) => ({ ...p, index: p.index + 1000 }));
+    expect(longestProgressions([base, cut])).toHaveLength(2);
+    // The R side moved by one against the P side: the same lines, another numbering.
+    const moved = base.map((p) => (p.m > 0 ? { ...p, m: p.m + 1 } : p));
+    expect(longestProgressions([base, moved])).toHaveLength(2);
+    // The same numbering listed backwards: one.
+    expect(longestProgressions([base, [...base].reverse()])).toHaveLength(1);
+    // Index/running-number pairs whose texts run together alike ("1@2" + "34@5" and "1@23" + "4@5") stay apart.
+    const a = [pt(0, 1, 5), pt(2, 2, 1), pt(5, 3, 34)];
+    const b = [pt(0, 1, 5), pt(23, 2, 1), pt(5, 3, 4)];
+    expect(longestProgressions([a, b])).toHaveLength(2);
+    // Numbering keys alike: {1: R(2), 34: P(5)} and {1: R(23), 4: P(5)}.
+    expect(
+      numberingKey(
+        new Map([
+          [1, { branch: 'R', j: 2 }],
+          [34, { branch: 'P', j: 5 }],
+        ]),
+      ),
+    ).not.toBe(
+      numberingKey(
+        new Map([
+          [1, { branch: 'R', j: 23 }],
+          [4, { branch: 'P', j: 5 }],
+        ]),
+      ),
+    );
+  });
+
+  it('the rivals never include the numbering itself, and label m > 0 as R(m − 1), m < 0 as P(−m)', () => {
+    const lines = csLines({ pMax: 6, rMax: 6, sigma: 0.001, seed: 25 });
+    const ctx = contextOf(lines, cs.formula);
+    const first = judge(truth(lines), 0, 0, ctx) as Trial;
+    const rivals = judgeRivals(first, ctx, new Set());
+    // 7 shifts × 3 alignments, less the numbering itself.
+    expect(rivals).toHaveLength(20);
+    const own = numberingKey(first.map);
+    for (const t of rivals) {
+      expect(numberingKey(t.map)).not.toBe(own);
+      const shift = -t.q;
+      for (const [i, lab] of t.map) {
+        const m0 = mOf(lines[i] as Made);
+        const m = m0 + shift + (m0 > 0 ? t.delta : 0);
+        expect(lab).toEqual(m > 0 ? { branch: 'R', j: m - 1 } : { branch: 'P', j: -m });
+      }
+    }
+  });
+
+  it('numberings the fit refuses are left out of the trials, not listed as empty ones', () => {
+    const lines = csLines({ pMax: 6, rMax: 6, sigma: 0.001, seed: 26 });
+    const down = { ...contextOf(lines, cs.formula), band: { upper: 0, lower: 1 } };
+    const chain = lines.map((l, i) => pt(mOf(l), l.position, i));
+    expect(judgeProgressions([chain], down, new Set())).toEqual([]);
+    const first = judge(truth(lines), 0, 0, contextOf(lines, cs.formula)) as Trial;
+    expect(judgeRivals(first, down, new Set())).toEqual([]);
+  });
+
+  it('a numbered line list carries no uncertainty key for a line sent without one', () => {
+    const ctx = contextOf([{ position: 5 }, { position: 7, uncertainty: 0.01 }], cs.formula);
+    const nl = numberedLines(new Map([[0, { branch: 'R', j: 0 }]]), ctx);
+    expect('uncertainty' in (nl[0] as object)).toBe(false);
+    expect(nl[1]).toStrictEqual({ position: 7, uncertainty: 0.01 });
+  });
+
+  it('judging fits every numbered line, an outlier included (no rejection), and takes a mix’s scale from the fit', () => {
+    const lines = csLines({ pMax: 10, rMax: 10, sigma: 0.001, seed: 27 });
+    // One line 0.05 cm⁻¹ off (50σ): kept, its residual alone is worth χ² of order (0.05/0.001)² × (1 − leverage).
+    const bad = lines.map((l, i) => (i === 4 ? { ...l, position: l.position + 0.05 } : l));
+    const t = judge(truth(bad), 0, 0, contextOf(bad, cs.formula)) as Trial;
+    expect(t.result.lines.every((l) => l.status === 'fitted')).toBe(true);
+    expect(t.chiSquare).toBeGreaterThan(0.5 * 2500);
+    // Lines with and without σ: the unit σ is the fit's scatter of the lines without (not 1, not the rms).
+    const mix = lines.map((l, i) => (i % 2 ? { ...l, uncertainty: undefined } : l));
+    const tm = judge(truth(mix), 0, 0, contextOf(mix, cs.formula)) as Trial;
+    expect(tm.unitSigma).toBe(tm.result.scatter?.[0]?.sigma);
+    expect(tm.unitSigma).not.toBe(1);
+    expect(tm.unitSigma).not.toBe(tm.result.statistics.rms);
+  });
+
+  it('Δ₂F″ starts with 4, 5, 6 columns from exactly 12, 20, 30 pairs (as documented, worked out here)', () => {
+    for (const [pairs, cols] of [
+      [12, 4],
+      [20, 5],
+      [30, 6],
+    ] as const) {
+      // R(0)…R(pairs − 1) with P(2)…P(pairs + 1): `pairs` pairs R(J−1), P(J+1).
+      const lines = csLines({ pMax: pairs + 1, rMax: pairs - 1, sigma: 0.002, seed: 40 + pairs });
+      const d = differenceIntercept(truth(lines), lines);
+      const own = ownIntercept(truth(lines), lines);
+      expect(own?.cols).toBe(cols);
+      expect(d?.uncertainty).toBeCloseTo(own?.uncertainty as number, 9);
+      expect(d?.value).toBeCloseTo(own?.value as number, 8);
+    }
+  });
+
+  it('Δ₂F″ of a light molecule over few pairs takes the (J+½)⁵ term it needs: intercept zero within 3σ', () => {
+    // Term values B x − D x² + H x³ (x = J(J+1)) with LiH-like magnitudes (B 7.5, D 8.6e-4, H 8e-8 cm⁻¹; invented,
+    // not a published set): Δ₂F″ is an odd polynomial of degree 5 in J + ½, zero at J = −½ exactly. Ten pairs start
+    // with the columns 1, u, u³; H makes 12H(J+½)⁵ ≈ 0.01 cm⁻¹ at J = 10, far beyond σ = 1e-4, so the F-test
+    // must add u⁵ or the intercept is biased far beyond its σ.
+    const lo = { B: 7.5, D: 8.6e-4, H: 8e-8 };
+    const up = { B: 7.3, D: 8.5e-4, H: 7.8e-8 };
+    const g = normals(77);
+    const made: Made[] = [];
+    for (let j = 11; j >= 1; j--)
+      made.push({ position: 1360 + term(up, j - 1) - term(lo, j) + 1e-4 * g(), uncertainty: 1e-4, branch: 'P', j });
+    for (let j = 0; j <= 9; j++)
+      made.push({ position: 1360 + term(up, j + 1) - term(lo, j) + 1e-4 * g(), uncertainty: 1e-4, branch: 'R', j });
+    const d = differenceIntercept(truth(made), made) as { value: number; uncertainty: number };
+    const own = ownIntercept(truth(made), made);
+    expect(own?.cols).toBeGreaterThanOrEqual(4);
+    expect(Math.abs(d.value)).toBeLessThan(3 * d.uncertainty);
+    expect(d.uncertainty).toBeCloseTo(own?.uncertainty as number, 9);
   });
 });
