@@ -1922,3 +1922,60 @@ describe('edges of the numbering stages', () => {
     expect(d.uncertainty).toBeCloseTo(own?.uncertainty as number, 9);
   });
 });
+
+describe('a line near where a lost line belongs', () => {
+  it('fillHoles: a line 0.05 cm⁻¹ from a lost P(6) of real CO (beyond 6 side scatters) is not taken; the nearer of two is', () => {
+    const lines = coBand('1-0', 20);
+    const pts = lines.map((l, i) => pt(mOf(l), l.position, i));
+    const p6 = pts.find((p) => p.m === -6) as Point;
+    // The lines' scatter about the local polynomial is far below 0.05 / 6 (HITRAN positions, 1e-5 and better).
+    expect(6 * sideScatter(pts, true)).toBeLessThan(0.05);
+    const spurious = p6.position + 0.05;
+    const lost = pts.filter((p) => p.m !== -6);
+    const o1 = orderOf([...lines.map((l) => l.position), spurious]);
+    // The lost line's own index is marked used, so only the spurious line (index lines.length) is free.
+    fillHoles(lost, new Set([...lost.map((p) => p.index), p6.index]), o1.pos, o1.order);
+    expect(lost.some((p) => p.m === -6)).toBe(false);
+    // The true line back with a second candidate three side scatters off (within the tolerance of six): the true
+    // one, nearer to where the polynomial puts it, is taken.
+    const tenth = p6.position - 3 * sideScatter(pts, true);
+    const both = pts.filter((p) => p.m !== -6);
+    const o2 = orderOf([...lines.map((l) => l.position), tenth]);
+    fillHoles(both, new Set(both.map((p) => p.index)), o2.pos, o2.order);
+    expect(both.find((p) => p.m === -6)?.index).toBe(p6.index);
+  });
+
+  it('extendInwards: a line 0.05 from a lost P(1) of CS (σ 0.001) is not taken; the true P(1) beside it is', () => {
+    const lines = csLines({ pMax: 20, rMax: 20, sigma: 0.001, seed: 41 });
+    const p1 = lines.findIndex((l) => l.branch === 'P' && l.j === 1);
+    const spurious = (lines[p1] as Made).position + 0.05;
+    const positions = [...lines.map((l) => l.position), spurious];
+    const { order, pos } = orderOf(positions);
+    const start = lines.map((l, i) => pt(mOf(l), l.position, i)).filter((p) => p.m < -1 || p.m > 1);
+    extendInwards(start, new Set([...start.map((p) => p.index), p1]), pos, order);
+    expect(start.some((p) => p.m === -1)).toBe(false);
+    expect(start.some((p) => p.index === lines.length)).toBe(false);
+    // With P(1) free as well, P(1) (0.001 from where the side puts it) is taken, not the line 0.05 off.
+    const again = lines.map((l, i) => pt(mOf(l), l.position, i)).filter((p) => p.m < -1 || p.m > 1);
+    extendInwards(again, new Set(again.map((p) => p.index)), pos, order);
+    expect(again.find((p) => p.m === -1)?.index).toBe(p1);
+  });
+
+  it('extendBothSides: a line 0.1 from a lost R(15) of real CO is not taken, growth goes on past it', () => {
+    const lines = coBand('1-0', 25);
+    const r15 = lines.findIndex((l) => l.branch === 'R' && l.j === 15);
+    const spurious = (lines[r15] as (typeof lines)[number]).position + 0.1;
+    const { order, pos } = orderOf([...lines.map((l) => l.position), spurious]);
+    const inner = lines.map((l, i) => pt(mOf(l), l.position, i)).filter((p) => p.m >= -4 && p.m <= 5);
+    extendBothSides(inner, new Set([...inner.map((p) => p.index), r15]), pos, order, 3.8);
+    expect(inner.some((p) => p.index === lines.length)).toBe(false);
+    expect(inner.some((p) => p.m === 16)).toBe(false);
+    expect(Math.max(...inner.map((p) => p.m))).toBe(26);
+    for (const p of inner) expect(p.m).toBe(mOf(lines[p.index] as { branch: Branch; j: number }));
+    // R(15) free too, with the line 0.1 off beside it: R(15) is taken.
+    const all = lines.map((l, i) => pt(mOf(l), l.position, i)).filter((p) => p.m >= -4 && p.m <= 5);
+    extendBothSides(all, new Set(all.map((p) => p.index)), pos, order, 3.8);
+    expect(all.find((p) => p.m === 16)?.index).toBe(r15);
+    expect(all).toHaveLength(lines.length);
+  });
+});
