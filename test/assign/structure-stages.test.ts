@@ -1979,3 +1979,37 @@ describe('a line near where a lost line belongs', () => {
     expect(all).toHaveLength(lines.length);
   });
 });
+
+describe('growth along the fit, its noise and its reach', () => {
+  it('σ stated ten times too small: the factor of the normalised residuals widens the reach, the band is still taken', () => {
+    // Noise 0.001 cm⁻¹, stated σ 0.0001: the residuals in units of σ scatter about 10, so predictions are searched
+    // within 5 × 10 stated σ; without that factor every line beyond the start would lie 10 "σ" off and be missed.
+    const lines = csLines({ pMax: 24, rMax: 24, sigma: 0.001, seed: 35 });
+    const peaks = lines.map((l) => ({ position: l.position, uncertainty: 1e-4 }));
+    const start: Numbering = new Map();
+    lines.forEach((l, i) => {
+      if (l.j <= 6) start.set(i, { branch: l.branch, j: l.j });
+    });
+    const out = extendByFit(peaks, start, cs.formula, reducedMass(cs), BAND10);
+    expect(out.size).toBe(lines.length);
+    for (const [i, t] of out) expect(t).toEqual({ branch: (lines[i] as Made).branch, j: (lines[i] as Made).j });
+  });
+
+  it('from J ≤ 4 to J = 45 in steps of half again the highest J (several rounds; three J a round would not reach)', () => {
+    // Reach per round: jTop + max(3, ⌊jTop/2⌋): 4 → 7 → 10 → 15 → 22 → 33 → 49, six rounds of the twelve allowed;
+    // three J a round would stop at 4 + 12·3 = 40.
+    const lines = csLines({ pMax: 45, rMax: 45, sigma: 0.001, seed: 36 });
+    const peaks = lines.map((l) => ({ position: l.position, uncertainty: 0.001 }));
+    const start: Numbering = new Map();
+    lines.forEach((l, i) => {
+      if (l.j <= 4) start.set(i, { branch: l.branch, j: l.j });
+    });
+    const out = extendByFit(peaks, start, cs.formula, reducedMass(cs), BAND10);
+    expect(out.size).toBe(lines.length);
+    for (const [i, t] of out) expect(t).toEqual({ branch: (lines[i] as Made).branch, j: (lines[i] as Made).j });
+    // Without σ, the lines' own scatter stands for the noise: the same.
+    const bare = lines.map((l) => ({ position: l.position }));
+    const out2 = extendByFit(bare, start, cs.formula, reducedMass(cs), BAND10);
+    expect(out2.size).toBe(lines.length);
+  });
+});
