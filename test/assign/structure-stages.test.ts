@@ -2013,3 +2013,27 @@ describe('growth along the fit, its noise and its reach', () => {
     expect(out2.size).toBe(lines.length);
   });
 });
+
+describe('growth along the fit stops where the data run out', () => {
+  it('lines beyond three J past the reach are taken only where the fit predicts them within twice the noise', () => {
+    // CS 1-0 to J = 10 only, σ 0.001; two extra lines where R(14) and P(14) would lie (by this file's term values)
+    // plus 0.004 cm⁻¹: four J past the highest found, the fit of J ≤ 10 extrapolated there is far less sharp than
+    // twice the noise, so they are not taken, though within five of the prediction's σ.
+    const lines = csLines({ pMax: 10, rMax: 10, sigma: 0.001, seed: 37 });
+    const lo = csLevel(0);
+    const up = csLevel(1);
+    const far = [CS_ORIGIN + term(up, 15) - term(lo, 14) + 0.004, CS_ORIGIN + term(up, 13) - term(lo, 14) + 0.004];
+    const peaks = [
+      ...lines.map((l) => ({ position: l.position, uncertainty: 0.001 })),
+      ...far.map((position) => ({ position, uncertainty: 0.001 })),
+    ];
+    const start: Numbering = new Map();
+    lines.forEach((l, i) => {
+      if (l.j <= 6) start.set(i, { branch: l.branch, j: l.j });
+    });
+    const out = extendByFit(peaks, start, cs.formula, reducedMass(cs), BAND10);
+    expect(out.has(lines.length)).toBe(false);
+    expect(out.has(lines.length + 1)).toBe(false);
+    expect(out.size).toBe(lines.length);
+  });
+});
