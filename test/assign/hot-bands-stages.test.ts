@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { numberHotBands, refuseIfFundamentalLeft } from '../../src/assign/analyse.js';
+import { assignFromStructure, numberHotBands, refuseIfFundamentalLeft } from '../../src/assign/analyse.js';
 import type { PeakInput } from '../../src/assign/assign-lines.js';
+import type { NumberingEvidence } from '../../src/assign/structure.js';
 import { ScienceError } from '../../src/errors.js';
 import { parseSpecies } from '../../src/species/parse.js';
 import { CS } from '../helpers/absent-species.js';
@@ -123,5 +124,70 @@ describe('hot bands from structure', () => {
         BAND10,
       ),
     ).not.toThrow();
+  });
+});
+
+describe('the whole numbering from structure, called directly (assignFromStructure)', () => {
+  const csBand = (seed: number, temperature?: number) =>
+    independentLines({
+      molecule: CS,
+      seed,
+      sigma: 0.001,
+      withUncertainties: true,
+      unassigned: true,
+      ...(temperature ? { temperature, intensityNoise: 0.05 } : {}),
+      bands: fundamental(1, 20),
+    });
+
+  it('CS 1-0 without intensities: every line right and marked auto, NUMBERING_UNCERTAIN, runners-up after the chosen', () => {
+    const list = csBand(5);
+    const a = assignFromStructure(list.lines, cs, new Map(), {});
+    a.result.lines.forEach((l, i) => {
+      const t = list.truth[i];
+      expect(`${l.assignment?.band} ${l.assignment?.branch}(${l.assignment?.j})`).toBe(
+        `${t?.band} ${t?.branch}(${t?.j})`,
+      );
+    });
+    expect(a.assignment.method).toBe('structure');
+    expect(a.assignment.bands).toEqual([{ species: '12C-32S', band: '1-0', predicted: 0, matched: 41 }]);
+    const codes = a.result.warnings.map((w) => w.code);
+    expect(codes[0]).toBe('ASSIGNED_FROM_STRUCTURE');
+    // No intensities: the choice rests on Δ₂F″ and Kratzer, which the caller is told.
+    expect(codes).toContain('NUMBERING_UNCERTAIN');
+    const n = a.assignment.numbering;
+    const chosen = n?.chosen as NumberingEvidence;
+    const next = n?.runnersUp[0] as NumberingEvidence;
+    expect(next.score).toBeGreaterThan(chosen.score);
+    expect(next.score - chosen.score).toBeCloseTo(n?.margin as number, 9);
+    expect(n?.runnersUp.some((e) => e.label === chosen.label && e.score === chosen.score)).toBe(false);
+  });
+
+  it('a line sent with its assignment keeps it; the fit options are passed on', () => {
+    const list = csBand(5);
+    const k = list.truth.findIndex((t) => t.branch === 'R' && t.j === 5);
+    const given = list.lines.map((l, i) =>
+      i === k
+        ? {
+            ...l,
+            assignment: {
+              species: '12C-32S',
+              band: { upper: 1, lower: 0 },
+              branch: 'R' as const,
+              j: 5,
+              source: 'given' as const,
+            },
+          }
+        : l,
+    );
+    const masses = new Map();
+    const a = assignFromStructure(given, cs, masses, {});
+    // The 40 free lines numbered; the given one is not among the numbered (matched) lines.
+    expect(a.assignment.bands[0]?.matched).toBe(40);
+    expect(a.result.lines[k]?.assignment?.j).toBe(5);
+    // levelsOnly passed to the final fit: no Dunham stage in the result.
+    const plain = assignFromStructure(list.lines, cs, new Map(), {});
+    const levels = assignFromStructure(list.lines, cs, new Map(), { fit: { levelsOnly: true } });
+    expect(plain.result.dunham.length).toBeGreaterThan(0);
+    expect(levels.result.dunham).toEqual([]);
   });
 });
