@@ -13,7 +13,7 @@ import { elementsOnly, enrichedAtomsOnly, type Isotopologue, parseSpecies } from
 import { type MassValue, reducedMass } from '../species/reduced-mass.js';
 import { assignAndFit, type BandSummary, type Calibration, type PeakInput } from './assign-lines.js';
 import { isotopologuesMeant } from './candidates.js';
-import { type IdentificationCandidate, identifySpecies } from './identify.js';
+import { type IdentificationCandidate, identifySpecies, matchNotBeyondChance } from './identify.js';
 import { withoutUninformativeIntensities } from './intensity.js';
 import { likelyLabels } from './relabel.js';
 import { assignByStructure, extendByFit, MIN_MARGIN, type NumberingEvidence } from './structure.js';
@@ -218,7 +218,7 @@ export function resolveSpecies(
 ): { species: Isotopologue; identification?: IdentificationCandidate[]; warnings: Warning[] } {
   const firstGiven = peaks.find((p) => p.assignment)?.assignment;
   const known = declared ?? (firstGiven ? parseSpecies(firstGiven.species) : undefined);
-  if (known) return { species: known, warnings: [] };
+  if (known) return { species: known, warnings: declared ? declaredAgainstChance(peaks, declared, options) : [] };
   const identification = identifySpecies(peaks, {
     ...(options.temperature ? { temperature: options.temperature } : {}),
     maxOffset: options.maxOffset ?? 0.5,
@@ -598,4 +598,28 @@ export function namingBandsNotFound(warnings: readonly Warning[], bands: readonl
       message: `${species}: ω_e and ω_e x_e need two or more vibrational intervals, and only one was fitted: band ${names.join(', ')} is predicted in the window and its lines may be in the list, but it was not matched (see BAND_NOT_FOUND); the band origin is ΔG, not ω_e`,
     };
   });
+}
+
+/**
+ * ASSIGNMENT_NOT_BEYOND_CHANCE when the declared species' strong predictions find lines no more often than lines
+ * at random would (identify.ts, matchNotBeyondChance): the assignment then numbers coincidences, and the constants
+ * fitted to them say nothing about the sample.
+ */
+export function declaredAgainstChance(
+  peaks: readonly PeakInput[],
+  declared: Isotopologue,
+  options: AnalyseOptions,
+): Warning[] {
+  if (!constantsFor(declared)) return [];
+  const own = matchNotBeyondChance(peaks, declared, {
+    ...(options.temperature ? { temperature: options.temperature } : {}),
+    maxOffset: options.maxOffset ?? 0.5,
+  });
+  if (!own) return [];
+  return [
+    {
+      code: 'ASSIGNMENT_NOT_BEYOND_CHANCE',
+      message: `${own.matched} of the ${own.predicted} strongest predicted lines of ${declared.formula} (J″ ≤ 12) find a line, no more than lines at random would at this line density: the lines may not be ${own.name}`,
+    },
+  ];
 }

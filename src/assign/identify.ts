@@ -3,6 +3,7 @@ import { compileDunham } from '../models/dunham.js';
 import { type Band, type Branch, upperJ } from '../models/transitions.js';
 import { constantsFor, dunhamFromEntry, libraryEntries, libraryEntry } from '../species/library.js';
 import { elementsOnly, enrichedAtomsOnly, type Isotopologue, parseSpecies } from '../species/parse.js';
+import { incompleteBeta } from '../stats/distributions.js';
 import { type CandidateOptions, candidateLines, isotopologuesMeant } from './candidates.js';
 import { uninformativeIntensities } from './intensity.js';
 import { matchLines } from './match.js';
@@ -98,6 +99,29 @@ export function identifyIsotopologues(
   return rankMixtures(tests, strongObserved, lo, hi, options);
 }
 
+/**
+ * The declared isotopologue's own match to the lines, scored as identifySpecies scores a molecule, when that match
+ * is no better than lines at random would reach (score 0 by the chance rule; at least 3 strong predictions in the
+ * window); undefined when the match is beyond chance or there is too little to judge.
+ */
+export function matchNotBeyondChance(
+  peaks: readonly { position: number; intensity?: number }[],
+  species: Isotopologue,
+  options: CandidateOptions & { maxOffset?: number } = {},
+): IdentificationCandidate | undefined {
+  if (peaks.length === 0) return undefined;
+  const { lo, hi, strongObserved } = identificationWindow(peaks);
+  const name = libraryEntry(species)?.name ?? species.formula;
+  const [own] = rankMixtures(
+    [{ formula: species.formula, name, mixture: [{ iso: species, abundance: 1 }] }],
+    strongObserved,
+    lo,
+    hi,
+    options,
+  );
+  return own && own.score === 0 && own.predicted >= 3 ? own : undefined;
+}
+
 /** Score each mixture's strongest predictions (J″ ≤ 12) against the strong observed lines; best first. */
 function rankMixtures(
   tests: readonly { formula: string; name: string; mixture: ReturnType<typeof isotopologuesMeant> }[],
@@ -106,7 +130,8 @@ function rankMixtures(
   hi: number,
   options: CandidateOptions & { maxOffset?: number },
 ): IdentificationCandidate[] {
-  const out: IdentificationCandidate[] = [];
+  // Each candidate with its score before the chance rule, which orders those the rule set to 0.
+  const out: (IdentificationCandidate & { uncorrected: number })[] = [];
   for (const { formula, name, mixture } of tests) {
     const e = { formula, name };
     const cands = candidateLines(mixture, lo, hi, options)
@@ -114,7 +139,15 @@ function rankMixtures(
       .sort((a, b) => b.intensity - a.intensity)
       .slice(0, 60);
     if (cands.length < 3) {
-      out.push({ species: e.formula, name: e.name, score: 0, matched: 0, predicted: cands.length, offset: 0 });
+      out.push({
+        species: e.formula,
+        name: e.name,
+        score: 0,
+        matched: 0,
+        predicted: cands.length,
+        offset: 0,
+        uncorrected: 0,
+      });
       continue;
     }
     const est = estimateOffset(
@@ -136,16 +169,43 @@ function rankMixtures(
     );
     // Share of the strong observed lines explained, out of as many as the predictions could explain at most.
     const observedShare = matches.length / Math.min(strongObserved.length, cands.length);
+    const score = (matchedWeight / predictedWeight) * Math.min(1, observedShare / 0.5);
+    const chance = chanceMatchProbability(tol, strongObserved.length / (hi - lo));
+    const falseAlarm = chanceFalseAlarm(matches.length, cands.length, chance, (options.maxOffset ?? 0.5) / tol);
     out.push({
       species: e.formula,
       name: e.name,
-      score: (matchedWeight / predictedWeight) * Math.min(1, observedShare / 0.5),
+      // A match that as many lines at random would reach as often as once in a thousand lists identifies nothing.
+      score: falseAlarm > MAX_FALSE_ALARM ? 0 : score,
       matched: matches.length,
       predicted: cands.length,
       offset,
+      uncorrected: score,
     });
   }
-  return out.sort((a, b) => b.score - a.score);
+  return out.sort((a, b) => b.score - a.score || b.uncorrected - a.uncorrected).map(({ uncorrected: _, ...c }) => c);
+}
+
+/** Highest chance (over offsets tried) of a random list matching as well, for a match to identify anything. */
+export const MAX_FALSE_ALARM = 1e-3;
+
+/**
+ * Chance that a prediction finds an observed line within ±tolerance when the observed lines lie at random with
+ * `density` lines per cm⁻¹ (Poisson): 1 − exp(−2 · tolerance · density).
+ */
+export function chanceMatchProbability(tolerance: number, density: number): number {
+  return 1 - Math.exp(-2 * tolerance * density);
+}
+
+/**
+ * Chance that lines at random match at least `matched` of `predicted` predictions, each matched with probability
+ * `p`, at one of `trials` independent offsets (the voted offset ranges over ±maxOffset in steps of a tolerance):
+ * trials · P(Binomial(predicted, p) ≥ matched) = trials · I_p(matched, predicted − matched + 1), at most 1.
+ */
+export function chanceFalseAlarm(matched: number, predicted: number, p: number, trials: number): number {
+  if (matched <= 0) return 1;
+  if (matched > predicted) return 0;
+  return Math.min(1, Math.max(1, trials) * incompleteBeta(p, matched, predicted - matched + 1));
 }
 
 /** A line that carries a label (band, branch, J″) but no species. */

@@ -199,6 +199,11 @@ function identityCheck(
     problems.push(`the lines match ${best.name} (score ${best.score.toFixed(2)}) better than the declared ${main}`);
     raise('fail');
   }
+  const byChance = analysis.result.warnings.find((w) => w.code === 'ASSIGNMENT_NOT_BEYOND_CHANCE');
+  if (byChance) {
+    problems.push(byChance.message);
+    raise('fail');
+  }
   const band = mainBand(analysis, main);
   const level = analysis.result.levels.find(
     (l) => l.species === main && l.v === (band ? Number(band.band.split('-')[1]) : 0),

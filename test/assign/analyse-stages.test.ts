@@ -425,10 +425,17 @@ describe('what the refusals add', () => {
 
 describe('the species to assign against', () => {
   it('declared first, else the first given assignment, else the identification', () => {
-    const declared = resolveSpecies(coBare(), parseSpecies('13C16O'), {});
-    expect(declared.species.formula).toBe('13C-16O');
+    const declared = resolveSpecies(coBare(), parseSpecies('12C16O'), {});
+    expect(declared.species.formula).toBe('12C-16O');
     expect(declared.warnings).toEqual([]);
     expect(declared.identification).toBeUndefined();
+    // ¹³C¹⁶O declared for ¹²C¹⁶O lines: its predictions find lines only as often as chance would.
+    const wrong = resolveSpecies(coBare(), parseSpecies('13C16O'), {});
+    expect(wrong.species.formula).toBe('13C-16O');
+    expect(wrong.warnings.map((w) => w.code)).toEqual(['ASSIGNMENT_NOT_BEYOND_CHANCE']);
+    expect(wrong.warnings[0]?.message).toMatch(
+      /^\d+ of the \d+ strongest predicted lines of 13C-16O \(J″ ≤ 12\) find a line, no more than lines at random would/,
+    );
     const given: PeakInput[] = [
       { position: 2906.25 },
       {
@@ -441,7 +448,7 @@ describe('the species to assign against', () => {
     // The natural mixture of carbon and oxygen (no enriched atom).
     expect(found.species.formula).toBe(parseSpecies('CO').formula);
     expect(found.identification?.[0]?.species).toBe('12C-16O');
-    // Runner-up hydrogen iodide at 0.24 against 0.89: not close (0.8 × best).
+    // Runner-up hydrogen iodide at 0 (0.24 before the chance rule) against 0.89: not close (0.8 × best).
     expect(found.warnings).toEqual([]);
   });
 
@@ -449,7 +456,8 @@ describe('the species to assign against', () => {
     const e = refusal(() => resolveSpecies(coBare(), undefined, { minIdentificationScore: 0.95 }));
     expect(e.code).toBe('SPECIES_UNIDENTIFIED');
     expect(e.message).toMatch(
-      /^no species of the reference library explains these lines within ±0\.5 cm-1 \("options\.maxOffset"; best: 12C-16O, score 0\.89; 1H-127I, score 0\.2\d; 2H-35Cl, score 0\.01; needed 0\.95\); declare "species"$/,
+      // Hydrogen iodide's 0.24 and deuterium chloride's 0.01 were coincidences: the chance rule sets them to 0.
+      /^no species of the reference library explains these lines within ±0\.5 cm-1 \("options\.maxOffset"; best: 12C-16O, score 0\.89; needed 0\.95\); declare "species"$/,
     );
     const candidates = e.details.candidates as { species: string; name: string; score: number }[];
     expect(candidates).toHaveLength(5);

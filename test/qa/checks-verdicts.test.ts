@@ -95,6 +95,7 @@ interface BuildOptions {
     bestOffset?: { offset: number; matches: number };
   }[];
   readonly method?: 'given' | 'reference' | 'structure';
+  readonly warnings?: readonly { code: string; message: string }[];
 }
 
 /** A hand-built analysis: the lines as a fit would report them, and the peaks that were sent. */
@@ -151,6 +152,7 @@ function build(o: BuildOptions): Built {
       ...(l.H !== undefined ? { H: { value: l.H, uncertainty: 1e-12, unit: 'cm-1' } } : {}),
     })),
     statistics,
+    warnings: o.warnings ?? [],
     ...(o.scatter ? { scatter: o.scatter } : {}),
   };
   const assignment = {
@@ -213,6 +215,22 @@ describe('identity', () => {
     expect(Math.abs(c.measured.originDeviation as number)).toBeLessThan(1e-6);
     expect(Math.abs(c.measured.relativeBDeviation as number)).toBeLessThan(1e-9);
     expect(c.message).toBe('12C-16O agrees with the reference library; runner-up 2H-35Cl (score 0.20)');
+  });
+
+  it('a fit whose declared species matched no better than chance (ASSIGNMENT_NOT_BEYOND_CHANCE) fails, however well its origin agrees', () => {
+    const message =
+      '1 of the 25 strongest predicted lines of 12C-16O (J″ ≤ 12) find a line, no more than lines at random would';
+    const b = build({
+      lines: branches(6, { uncertainty: 1e-3 }),
+      warnings: [{ code: 'ASSIGNMENT_NOT_BEYOND_CHANCE', message }],
+    });
+    const c = check(b, 'identity');
+    expect(c.status).toBe('fail');
+    expect(c.message).toBe(message);
+    // Another warning leaves the identity to the origin and B″.
+    expect(
+      check(build({ lines: branches(6), warnings: [{ code: 'LINES_REJECTED', message: 'x' }] }), 'identity').status,
+    ).toBe('pass');
   });
 
   it('no runner-up: the message ends with the agreement; no declared species gives null', () => {

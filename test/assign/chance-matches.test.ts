@@ -1,0 +1,123 @@
+import { describe, expect, it } from 'vitest';
+import { analyseLineList } from '../../src/assign/analyse.js';
+import {
+  chanceFalseAlarm,
+  chanceMatchProbability,
+  identifySpecies,
+  MAX_FALSE_ALARM,
+  matchNotBeyondChance,
+} from '../../src/assign/identify.js';
+import { runChecks } from '../../src/qa/checks.js';
+import { parseSpecies } from '../../src/species/parse.js';
+import { CO_DATABASE } from '../helpers/co-database.js';
+
+/**
+ * Identification against chance (src/assign/identify.ts): a molecule's strong predictions that find lines no more
+ * often than lines thrown at random would identify nothing. Random lists come from a generator of this file (a
+ * linear congruential sequence, no model of any molecule); the real lines are the HITRAN2020 ¹²C¹⁶O fundamental of
+ * test/fixtures/co-database-lines.
+ */
+function randomSequence(seed: number): () => number {
+  let s = seed;
+  return () => {
+    s = (s * 1103515245 + 12345) % 2147483648;
+    return s / 2147483648;
+  };
+}
+
+/** n lines spread uniformly over a window of the given width centred on `centre`, with random intensities. */
+function randomList(rnd: () => number, centre: number, width: number, n: number) {
+  return Array.from({ length: n }, () => ({ position: centre - width / 2 + rnd() * width, intensity: rnd() }));
+}
+
+const coFundamental = () =>
+  CO_DATABASE.lines.filter((x) => x.band === '1-0' && x.j <= 20).map((x) => ({ position: x.position }));
+
+describe('the chance of a match', () => {
+  it('a prediction meets a random line within ±tol with probability 1 − exp(−2·tol·density) (Poisson)', () => {
+    expect(chanceMatchProbability(0.05, 2)).toBeCloseTo(1 - Math.exp(-0.2), 15);
+    expect(chanceMatchProbability(0.05, 2)).toBeCloseTo(0.18126924692201818, 15);
+    expect(chanceMatchProbability(0.3, 0)).toBe(0);
+  });
+
+  it('false alarm: trials × P(Binomial(n, p) ≥ k), summed by hand for n = 10, p = 0.1, k = 3', () => {
+    // P(X ≤ 2) = 0.9¹⁰ + 10·0.1·0.9⁹ + 45·0.01·0.9⁸.
+    const below = 0.9 ** 10 + 10 * 0.1 * 0.9 ** 9 + 45 * 0.01 * 0.9 ** 8;
+    expect(chanceFalseAlarm(3, 10, 0.1, 1)).toBeCloseTo(1 - below, 12);
+    expect(chanceFalseAlarm(3, 10, 0.1, 2)).toBeCloseTo(2 * (1 - below), 12);
+    // All ten matched: p¹⁰.
+    expect(chanceFalseAlarm(10, 10, 0.1, 1)).toBeCloseTo(1e-10, 20);
+    // Fewer trials than one count as one; the figure is a probability (at most 1); no match is always reachable.
+    expect(chanceFalseAlarm(3, 10, 0.1, 0.2)).toBeCloseTo(1 - below, 12);
+    expect(chanceFalseAlarm(3, 10, 0.1, 1e6)).toBe(1);
+    expect(chanceFalseAlarm(0, 10, 0.1, 1)).toBe(1);
+    expect(chanceFalseAlarm(11, 10, 0.1, 1)).toBe(0);
+    expect(MAX_FALSE_ALARM).toBe(1e-3);
+  });
+});
+
+describe('random lists identify nothing', () => {
+  it('200 seeded random lists of 40–300 lines in windows of 150–450 cm⁻¹ around diatomic bands: no score ≥ 0.5 (without the rule 8 of these 200 did, and 563 scorings were above 0)', () => {
+    const rnd = randomSequence(20261203);
+    const centres = [2143, 2886, 2559, 3961, 2230, 4260];
+    let identified = 0;
+    let nonzero = 0;
+    for (let t = 0; t < 200; t++) {
+      const peaks = randomList(
+        rnd,
+        centres[t % centres.length] as number,
+        150 + 300 * rnd(),
+        [40, 150, 300][t % 3] as number,
+      );
+      const ranking = identifySpecies(peaks);
+      if ((ranking[0]?.score ?? 0) >= 0.5) identified++;
+      nonzero += ranking.filter((c) => c.score > 0).length;
+    }
+    expect(identified).toBe(0);
+    // At most one false alarm in a thousand per molecule and list: ~2 000 scorings here.
+    expect(nonzero).toBeLessThanOrEqual(4);
+  });
+
+  it('real CO lines still identify CO, with 150 random lines mixed into the same window', () => {
+    const real = coFundamental();
+    expect(identifySpecies(real)[0]).toMatchObject({ species: '12C-16O' });
+    const rnd = randomSequence(7);
+    const mixed = [...real, ...randomList(rnd, 2145, 170, 150)];
+    const best = identifySpecies(mixed)[0];
+    expect(best?.species).toBe('12C-16O');
+    expect(best?.score).toBeGreaterThan(0.5);
+  });
+});
+
+describe('a declared species that the lines do not show', () => {
+  it('CO declared for 12 seeded random lists: every fit warns ASSIGNMENT_NOT_BEYOND_CHANCE and its identity check fails', () => {
+    const rnd = randomSequence(99);
+    const co = parseSpecies('CO');
+    let fitted = 0;
+    for (let t = 0; t < 12; t++) {
+      const peaks = randomList(rnd, 2150, 300, [80, 150, 300][t % 3] as number);
+      let analysis: ReturnType<typeof analyseLineList>;
+      try {
+        analysis = analyseLineList(peaks, co);
+      } catch {
+        continue; // refused outright (nothing assigned): also no constants
+      }
+      fitted++;
+      expect(analysis.result.warnings.map((w) => w.code)).toContain('ASSIGNMENT_NOT_BEYOND_CHANCE');
+      const identity = runChecks(peaks, co, analysis).checks.find((c) => c.id === 'identity');
+      expect(identity?.status).toBe('fail');
+      expect(identity?.message).toMatch(/no more than lines at random would/);
+    }
+    expect(fitted).toBeGreaterThanOrEqual(8);
+  });
+
+  it('the real CO fundamental declared as CO is beyond chance; declared as ¹³C¹⁶O it is not', () => {
+    expect(matchNotBeyondChance(coFundamental(), parseSpecies('12C16O'))).toBeUndefined();
+    const wrong = matchNotBeyondChance(coFundamental(), parseSpecies('13C16O'));
+    expect(wrong?.score).toBe(0);
+    expect(wrong?.predicted).toBeGreaterThanOrEqual(3);
+    // Too little to judge: a window holding fewer than three strong predictions says nothing.
+    expect(matchNotBeyondChance([{ position: 1000 }, { position: 1001 }], parseSpecies('CO'))).toBeUndefined();
+    expect(matchNotBeyondChance([], parseSpecies('CO'))).toBeUndefined();
+  });
+});
