@@ -75,77 +75,94 @@ export interface CrossCheck {
  * a = ω_e √(2π²cμ/(D_e h)) (P. M. Morse, Phys. Rev. 34, 57 (1929)). Uncertainties propagate the fitted covariance.
  */
 export function crossChecks(set: DunhamSet, eq: EquilibriumConstants, mu: MassValue): CrossCheck[] {
-  const out: CrossCheck[] = [];
-  const p = set.keys.length;
-  const pick = (keys: string[]) => {
-    const idx = keys.map((k) => set.keys.indexOf(k));
-    if (idx.some((i) => i < 0)) return undefined;
-    return { x: idx.map((i) => set.values[i] as number), cov: subCovariance(set.covariance, p, idx) };
-  };
-  // Variables are the Dunham coefficients themselves: Y10 = ω_e, Y20 = −ω_e x_e, Y01 = B_e, Y30 = ω_e y_e.
-  const kr = pick(['1,0', '0,1']);
-  if (kr && eq.omega_e && eq.B_e) {
-    const f = (x: readonly number[]) => (4 * (x[1] as number) ** 3) / (x[0] as number) ** 2;
-    out.push({
+  const out = [...kratzerCheck(set, eq), ...pekerisCheck(set, eq), ...morseChecks(set, eq, mu)];
+  // An approximation that does not apply to these numbers (a square root of a negative) is left out.
+  return out.filter((c) => Number.isFinite(c.value.value) && Number.isFinite(c.value.uncertainty));
+}
+
+/** Some Dunham coefficients with their covariance block; undefined when one was not fitted. */
+function pickCoefficients(set: DunhamSet, keys: readonly string[]) {
+  const idx = keys.map((k) => set.keys.indexOf(k));
+  if (idx.some((i) => i < 0)) return undefined;
+  return { x: idx.map((i) => set.values[i] as number), cov: subCovariance(set.covariance, set.keys.length, idx) };
+}
+
+// Variables of the relations below are the Dunham coefficients themselves: Y10 = ω_e, Y20 = −ω_e x_e, Y01 = B_e,
+// Y30 = ω_e y_e.
+
+/** Kratzer: D_e ≈ 4B_e³/ω_e². */
+function kratzerCheck(set: DunhamSet, eq: EquilibriumConstants): CrossCheck[] {
+  const kr = pickCoefficients(set, ['1,0', '0,1']);
+  if (!kr || !eq.omega_e || !eq.B_e) return [];
+  const f = (x: readonly number[]) => (4 * (x[1] as number) ** 3) / (x[0] as number) ** 2;
+  return [
+    {
       id: 'kratzer-D_e',
       description: 'centrifugal distortion constant from the Kratzer relation',
       formula: 'D_e ≈ 4 B_e³ / ω_e²',
       value: quantity(f(kr.x), propagate(f, kr.x, kr.cov), 'cm-1'),
       ...(eq.D_e ? { fitted: eq.D_e } : {}),
       approximation: true,
-    });
-  }
-  const pk = pick(['1,0', '2,0', '0,1']);
-  if (pk && eq.alpha_e) {
-    const f = (x: readonly number[]) => {
-      const [we, y20, be] = x as [number, number, number];
-      return (6 * Math.sqrt(-y20 * be ** 3)) / we - (6 * be * be) / we;
-    };
-    out.push({
+    },
+  ];
+}
+
+/** Pekeris: α_e ≈ 6√(ω_e x_e B_e³)/ω_e − 6B_e²/ω_e. */
+function pekerisCheck(set: DunhamSet, eq: EquilibriumConstants): CrossCheck[] {
+  const pk = pickCoefficients(set, ['1,0', '2,0', '0,1']);
+  if (!pk || !eq.alpha_e) return [];
+  const f = (x: readonly number[]) => {
+    const [we, y20, be] = x as [number, number, number];
+    return (6 * Math.sqrt(-y20 * be ** 3)) / we - (6 * be * be) / we;
+  };
+  return [
+    {
       id: 'pekeris-alpha_e',
       description: 'vibration–rotation constant from the Pekeris relation (Morse potential)',
       formula: 'α_e ≈ 6 √(ω_e x_e B_e³) / ω_e − 6 B_e² / ω_e',
       value: quantity(f(pk.x), propagate(f, pk.x, pk.cov), 'cm-1'),
       fitted: eq.alpha_e,
       approximation: true,
-    });
-  }
-  const mw = pick(['1,0', '2,0']);
+    },
+  ];
+}
+
+/** The Morse well depth, D_0 and the range parameter a. */
+function morseChecks(set: DunhamSet, eq: EquilibriumConstants, mu: MassValue): CrossCheck[] {
+  const mw = pickCoefficients(set, ['1,0', '2,0']);
   // A Morse well exists only for ω_e x_e > 0 (Y20 < 0); with Y20 ≥ 0 the relations would give a depth ≤ 0 or ∞.
-  if (mw && eq.omega_e && (mw.x[1] as number) < 0) {
-    const well = (x: readonly number[]) => (x[0] as number) ** 2 / (4 * -(x[1] as number));
-    out.push({
+  if (!mw || !eq.omega_e || !((mw.x[1] as number) < 0)) return [];
+  const well = (x: readonly number[]) => (x[0] as number) ** 2 / (4 * -(x[1] as number));
+  const g0 = (x: readonly number[]) => (x[0] as number) / 2 + (x[1] as number) / 4 + ((x[2] ?? 0) as number) / 8;
+  const base = pickCoefficients(set, ['1,0', '2,0', '3,0']) ?? mw;
+  const d0 = (x: readonly number[]) => well(x) - g0(x);
+  const muKg = mu.value * ATOMIC_MASS_CONSTANT;
+  const a = (x: readonly number[]) => {
+    const we = (x[0] as number) * 100; // m⁻¹
+    const depth = well(x) * 100 * PLANCK_H * SPEED_OF_LIGHT; // J
+    return 2 * Math.PI * SPEED_OF_LIGHT * we * Math.sqrt(muKg / (2 * depth)) * 1e-10; // Å⁻¹
+  };
+  return [
+    {
       id: 'morse-well-depth',
       description: 'dissociation energy from the minimum (Morse, Birge–Sponer limit)',
       formula: 'D_e ≈ ω_e² / (4 ω_e x_e)',
       value: quantity(well(mw.x), propagate(well, mw.x, mw.cov), 'cm-1'),
       approximation: true,
-    });
-    const y30 = pick(['1,0', '2,0', '3,0']);
-    const g0 = (x: readonly number[]) => (x[0] as number) / 2 + (x[1] as number) / 4 + ((x[2] ?? 0) as number) / 8;
-    const base = y30 ?? mw;
-    const d0 = (x: readonly number[]) => well(x) - g0(x);
-    out.push({
+    },
+    {
       id: 'morse-D_0',
       description: 'dissociation energy from v = 0 (Morse well depth less the zero-point energy G(0))',
       formula: 'D_0 ≈ ω_e² / (4 ω_e x_e) − G(0), G(0) = ω_e/2 − ω_e x_e/4 + ω_e y_e/8',
       value: quantity(d0(base.x), propagate(d0, base.x, base.cov), 'cm-1'),
       approximation: true,
-    });
-    const muKg = mu.value * ATOMIC_MASS_CONSTANT;
-    const a = (x: readonly number[]) => {
-      const we = (x[0] as number) * 100; // m⁻¹
-      const depth = well(x) * 100 * PLANCK_H * SPEED_OF_LIGHT; // J
-      return 2 * Math.PI * SPEED_OF_LIGHT * we * Math.sqrt(muKg / (2 * depth)) * 1e-10; // Å⁻¹
-    };
-    out.push({
+    },
+    {
       id: 'morse-a',
       description: 'Morse range parameter',
       formula: 'a = ω_e √(2π² c μ / (D_e h))',
       value: quantity(a(mw.x), propagate(a, mw.x, mw.cov), 'angstrom-1'),
       approximation: true,
-    });
-  }
-  // An approximation that does not apply to these numbers (a square root of a negative) is left out.
-  return out.filter((c) => Number.isFinite(c.value.value) && Number.isFinite(c.value.uncertainty));
+    },
+  ];
 }
