@@ -204,31 +204,19 @@ function identityCheck(
     problems.push(byChance.message);
     raise('fail');
   }
-  const band = mainBand(analysis, main);
-  const level = analysis.result.levels.find(
-    (l) => l.species === main && l.v === (band ? Number(band.band.split('-')[1]) : 0),
-  );
-  if (entry && band?.origin && level) {
-    const y = dunhamFromEntry(entry);
-    const e = compileDunham(y);
-    const [u, l] = band.band.split('-').map(Number) as [number, number];
-    const refOrigin = e(u, 0) - e(l, 0);
-    const refB = (y.get('0,1') ?? 0) + (y.get('1,1') ?? 0) * (l + 0.5);
-    const dOrigin = band.origin.value - refOrigin;
-    const dB = level.B.value / refB - 1;
-    measured.band = band.band;
+  const deviation = entry ? referenceDeviation(analysis, main, entry) : undefined;
+  if (deviation) {
+    const { band, dOrigin, dB } = deviation;
+    measured.band = band;
     measured.originDeviation = dOrigin;
     measured.relativeBDeviation = dB;
+    const off = `band origin off by ${dOrigin.toFixed(3)} cm-1 and B″ by ${(dB * 1e6).toFixed(0)} ppm from the reference`;
     if (Math.abs(dOrigin) > 3 * tol.identityOrigin || Math.abs(dB) > 3 * tol.identityB) {
       raise('fail');
-      problems.push(
-        `band origin off by ${dOrigin.toFixed(3)} cm-1 and B″ by ${(dB * 1e6).toFixed(0)} ppm from the reference`,
-      );
+      problems.push(off);
     } else if (Math.abs(dOrigin) > tol.identityOrigin || Math.abs(dB) > tol.identityB) {
       raise('warn');
-      problems.push(
-        `band origin off by ${dOrigin.toFixed(3)} cm-1 and B″ by ${(dB * 1e6).toFixed(0)} ppm from the reference`,
-      );
+      problems.push(off);
     }
   } else if (!entry) {
     raise('warn');
@@ -244,6 +232,28 @@ function identityCheck(
         ? `${main} agrees with the reference library${inconclusiveRanking(best, iso) ?? (runnerUp ? `; runner-up ${runnerUp.species} (score ${runnerUp.score.toFixed(2)})` : '')}`
         : problems.join('; '),
   };
+}
+
+/**
+ * The main band's origin and its lower level's B against the library's: origin − reference origin (cm⁻¹) and
+ * B/B_ref − 1, B_ref = Y01 + Y11 (v″ + ½); undefined without a main band with an origin and its lower level.
+ */
+function referenceDeviation(
+  analysis: Analysis,
+  main: string,
+  entry: NonNullable<ReturnType<typeof constantsFor>>,
+): { band: string; dOrigin: number; dB: number } | undefined {
+  const band = mainBand(analysis, main);
+  const level = analysis.result.levels.find(
+    (l) => l.species === main && l.v === (band ? Number(band.band.split('-')[1]) : 0),
+  );
+  if (!band?.origin || !level) return undefined;
+  const y = dunhamFromEntry(entry);
+  const e = compileDunham(y);
+  const [u, l] = band.band.split('-').map(Number) as [number, number];
+  const refOrigin = e(u, 0) - e(l, 0);
+  const refB = (y.get('0,1') ?? 0) + (y.get('1,1') ?? 0) * (l + 0.5);
+  return { band: band.band, dOrigin: band.origin.value - refOrigin, dB: level.B.value / refB - 1 };
 }
 
 /** A note when the ranking of the bare lines put another molecule first, though below the score that names it. */
