@@ -1121,55 +1121,16 @@ export function extendByFit(
   const masses = new Map([[species, mass]]);
   let map = new Map(assigned);
   for (let iter = 0; iter < 12; iter++) {
-    const lines: LineInput[] = peaks.map((pk, index) => {
-      const t = map.get(index);
-      const base = { position: pk.position, ...(pk.uncertainty !== undefined ? { uncertainty: pk.uncertainty } : {}) };
-      return t ? { ...base, assignment: { species, band, branch: t.branch, j: t.j, source: 'auto' as const } } : base;
-    });
     let fit: ReturnType<typeof fitLineListDetailed>;
     try {
-      fit = fitLineListDetailed([...lines, ...anchors], masses, { levelsOnly: true });
+      fit = fitLineListDetailed([...labelledLines(peaks, map, species, band), ...anchors], masses, {
+        levelsOnly: true,
+      });
     } catch (e) {
       if (e instanceof ScienceError) return map;
       throw e;
     }
-    const res: number[] = [];
-    const z: number[] = [];
-    for (const l of fit.result.lines) {
-      if (l.status !== 'fitted' || l.residual === undefined || l.index >= peaks.length) continue;
-      const s = peaks[l.index]?.uncertainty;
-      if (s === undefined) res.push(l.residual);
-      else z.push(l.residual / s);
-    }
-    const scatter = res.length >= 3 ? robustSigmaOf(res) : 0;
-    const factor = Math.max(1, z.length >= 3 ? robustSigmaOf(z) : 1);
-    const jTop = Math.max(...[...map.values()].map((t) => t.j));
-    const taken = new Map<string, number>();
-    for (const [i, t] of map) taken.set(`${t.branch}${t.j}`, i);
-    const preds: Prediction[] = [];
-    const jMax = jTop + Math.max(3, Math.floor(jTop / 2));
-    // The scale of a line's own noise: the scatter of lines without σ, or the typical σ times its factor.
-    const sigmas = peaks.flatMap((p) => (p.uncertainty !== undefined ? [p.uncertainty] : []));
-    const noise = Math.max(scatter, factor * (sigmas.length > 0 ? median(sigmas) : 0));
-    const spacing = localSpacing(map, peaks);
-    for (const branch of ['P', 'R'] as const)
-      for (let j = branch === 'P' ? 1 : 0; j <= jMax; j++) {
-        if (taken.has(`${branch}${j}`)) continue;
-        const p = fit.predict({ species, band, branch, j });
-        if (!p) continue;
-        const model = 5 * Math.sqrt(p.variance) + 1e-6;
-        // Beyond three lines past the reach the prediction must be as sharp as twice the noise (there the data
-        // have run out for this model), and nowhere may its tolerance span a quarter of the line spacing: a light
-        // molecule's fit extrapolated from J ≤ 15 to J = 45 took a hot band's lines and spurious ones.
-        if (j > jTop + 3 && noise > 0 && Math.sqrt(p.variance) > 2 * noise) continue;
-        if (model > 0.25 * spacing) continue;
-        preds.push({
-          key: `${branch}${j}`,
-          position: p.value,
-          tolerance: Math.hypot(model, 5 * scatter),
-          withSigma: { model, perSigma: 5 * factor },
-        });
-      }
+    const preds = extensionPredictions(fit, peaks, map, species, band);
     const free = peaks.flatMap((pk, index) =>
       map.has(index)
         ? []
@@ -1187,4 +1148,79 @@ export function extendByFit(
     map = next;
   }
   return map;
+}
+
+/** The peaks as a line list, those numbered so far labelled (source auto) in the band. */
+function labelledLines(
+  peaks: readonly Peak[],
+  map: ReadonlyMap<number, { branch: Branch; j: number }>,
+  species: string,
+  band: Band,
+): LineInput[] {
+  return peaks.map((pk, index) => {
+    const t = map.get(index);
+    const base = { position: pk.position, ...(pk.uncertainty !== undefined ? { uncertainty: pk.uncertainty } : {}) };
+    return t ? { ...base, assignment: { species, band, branch: t.branch, j: t.j, source: 'auto' as const } } : base;
+  });
+}
+
+/**
+ * The scale of the fitted lines' residuals: the robust scatter of those without σ (0 below three) and the robust
+ * spread of the normalised residuals of those with σ (at least 1; 1 below three).
+ */
+function residualScales(
+  fit: ReturnType<typeof fitLineListDetailed>,
+  peaks: readonly Peak[],
+): { scatter: number; factor: number } {
+  const res: number[] = [];
+  const z: number[] = [];
+  for (const l of fit.result.lines) {
+    if (l.status !== 'fitted' || l.residual === undefined || l.index >= peaks.length) continue;
+    const s = peaks[l.index]?.uncertainty;
+    if (s === undefined) res.push(l.residual);
+    else z.push(l.residual / s);
+  }
+  return {
+    scatter: res.length >= 3 ? robustSigmaOf(res) : 0,
+    factor: Math.max(1, z.length >= 3 ? robustSigmaOf(z) : 1),
+  };
+}
+
+/** The P and R lines not yet numbered, up to half again the highest J found, each with its 5σ tolerance. */
+function extensionPredictions(
+  fit: ReturnType<typeof fitLineListDetailed>,
+  peaks: readonly Peak[],
+  map: ReadonlyMap<number, { branch: Branch; j: number }>,
+  species: string,
+  band: Band,
+): Prediction[] {
+  const { scatter, factor } = residualScales(fit, peaks);
+  const jTop = Math.max(...[...map.values()].map((t) => t.j));
+  const taken = new Map<string, number>();
+  for (const [i, t] of map) taken.set(`${t.branch}${t.j}`, i);
+  const preds: Prediction[] = [];
+  const jMax = jTop + Math.max(3, Math.floor(jTop / 2));
+  // The scale of a line's own noise: the scatter of lines without σ, or the typical σ times its factor.
+  const sigmas = peaks.flatMap((p) => (p.uncertainty !== undefined ? [p.uncertainty] : []));
+  const noise = Math.max(scatter, factor * (sigmas.length > 0 ? median(sigmas) : 0));
+  const spacing = localSpacing(map, peaks);
+  for (const branch of ['P', 'R'] as const)
+    for (let j = branch === 'P' ? 1 : 0; j <= jMax; j++) {
+      if (taken.has(`${branch}${j}`)) continue;
+      const p = fit.predict({ species, band, branch, j });
+      if (!p) continue;
+      const model = 5 * Math.sqrt(p.variance) + 1e-6;
+      // Beyond three lines past the reach the prediction must be as sharp as twice the noise (there the data
+      // have run out for this model), and nowhere may its tolerance span a quarter of the line spacing: a light
+      // molecule's fit extrapolated from J ≤ 15 to J = 45 took a hot band's lines and spurious ones.
+      if (j > jTop + 3 && noise > 0 && Math.sqrt(p.variance) > 2 * noise) continue;
+      if (model > 0.25 * spacing) continue;
+      preds.push({
+        key: `${branch}${j}`,
+        position: p.value,
+        tolerance: Math.hypot(model, 5 * scatter),
+        withSigma: { model, perSigma: 5 * factor },
+      });
+    }
+  return preds;
 }
