@@ -324,71 +324,87 @@ function readLineList(
   columns: readonly { column?: Column; unit?: string }[] | undefined,
   unitsRow: readonly string[] | undefined,
 ): CsvData {
-  // Where each field is: by header name, or position[, intensity[, uncertainty]] without a header.
-  const at: Partial<Record<Column, number>> = {};
-  if (columns) {
-    columns.forEach((c, k) => {
-      const col = c.column === 'x' ? 'position' : c.column;
-      if (col === undefined || col === 'absorbance' || col === 'transmittance') return;
-      if (at[col] !== undefined) fail(headerLine, `two columns are named as "${col}"`);
-      at[col] = k;
-    });
-    if (at.position === undefined) {
-      throw new ScienceError('INPUT_INVALID', 'the CSV header names no position column (position, line, peak, …)', {
-        header: columns.map((c) => c.column ?? null),
-      });
-    }
-  } else {
-    at.position = 0;
-    at.intensity = 1;
-    at.uncertainty = 2;
-  }
+  const at = lineListColumns(headerLine, columns);
   const p = at.position as number;
-  const rawUnit = columns?.[p]?.unit ?? unitsRow?.[p];
-  const unit = rawUnit !== undefined && rawUnit.trim() !== '' ? unitOf(rawUnit) : undefined;
-  if (rawUnit !== undefined && rawUnit.trim() !== '' && unit === undefined) {
+  const unit = positionUnit(columns?.[p]?.unit ?? unitsRow?.[p]);
+  const assigned = at.band !== undefined || at.branch !== undefined || at.j !== undefined;
+  if (assigned && (at.band === undefined || at.branch === undefined || at.j === undefined))
+    throw new ScienceError('INPUT_INVALID', 'an assignment needs all three columns: band, branch and j', {});
+  const lines = data.map((r) => lineOfRow(r, at, assigned, decimalComma));
+  return { kind: 'lines', lines, ...(unit ? { unit } : {}) };
+}
+
+/** Where each field is: by header name, or position[, intensity[, uncertainty]] without a header. */
+function lineListColumns(
+  headerLine: number,
+  columns: readonly { column?: Column; unit?: string }[] | undefined,
+): Partial<Record<Column, number>> {
+  const at: Partial<Record<Column, number>> = {};
+  if (!columns) return { position: 0, intensity: 1, uncertainty: 2 };
+  columns.forEach((c, k) => {
+    const col = c.column === 'x' ? 'position' : c.column;
+    if (col === undefined || col === 'absorbance' || col === 'transmittance') return;
+    if (at[col] !== undefined) fail(headerLine, `two columns are named as "${col}"`);
+    at[col] = k;
+  });
+  if (at.position === undefined) {
+    throw new ScienceError('INPUT_INVALID', 'the CSV header names no position column (position, line, peak, …)', {
+      header: columns.map((c) => c.column ?? null),
+    });
+  }
+  return at;
+}
+
+/** The position column's unit from its header or units row; refused when given but not one we read. */
+function positionUnit(rawUnit: string | undefined): ReturnType<typeof unitOf> {
+  if (rawUnit === undefined || rawUnit.trim() === '') return undefined;
+  const unit = unitOf(rawUnit);
+  if (unit === undefined) {
     throw new ScienceError('UNIT_INVALID', `the position unit "${rawUnit}" is not one of cm-1, MHz, GHz, THz, um, nm`, {
       unit: rawUnit,
     });
   }
-  const assigned = at.band !== undefined || at.branch !== undefined || at.j !== undefined;
-  if (assigned && (at.band === undefined || at.branch === undefined || at.j === undefined))
-    throw new ScienceError('INPUT_INVALID', 'an assignment needs all three columns: band, branch and j', {});
+  return unit;
+}
 
-  const lines = data.map((r): CsvLine => {
-    const cell = (k: number | undefined) => (k === undefined ? '' : (r.cells[k] ?? ''));
-    const num = (name: Column, required: boolean): number | undefined => {
-      const c = cell(at[name]);
-      if (c === '') {
-        if (required) fail(r.line, `the ${name} is missing`);
-        return undefined;
-      }
-      const v = numberOf(c, decimalComma);
-      if (!Number.isFinite(v)) fail(r.line, `${name} "${c.slice(0, 30)}" is not a number`);
-      return v;
-    };
-    const position = num('position', true) as number;
-    const uncertainty = num('uncertainty', false);
-    const intensity = num('intensity', false);
-    let assignment: CsvLine['assignment'];
-    if (assigned) {
-      const band = cell(at.band).replace(/[–−]/g, '-');
-      const branch = cell(at.branch).toUpperCase();
-      const j = cell(at.j);
-      if (band !== '' || branch !== '' || j !== '') {
-        if (!/^\d{1,2}-\d{1,2}$/.test(band)) fail(r.line, `band "${band}" is not "v'-v''" (e.g. 1-0)`);
-        if (branch !== 'P' && branch !== 'Q' && branch !== 'R') fail(r.line, `branch "${branch}" is not P, Q or R`);
-        const jv = Number(j);
-        if (!Number.isInteger(jv) || jv < 0) fail(r.line, `j "${j}" is not a whole number ≥ 0`);
-        assignment = { band, branch, j: jv };
-      }
+/** One row of a line list: position (required), uncertainty, intensity and, when the columns exist, its label. */
+function lineOfRow(
+  r: { line: number; cells: string[] },
+  at: Partial<Record<Column, number>>,
+  assigned: boolean,
+  decimalComma: boolean,
+): CsvLine {
+  const cell = (k: number | undefined) => (k === undefined ? '' : (r.cells[k] ?? ''));
+  const num = (name: Column, required: boolean): number | undefined => {
+    const c = cell(at[name]);
+    if (c === '') {
+      if (required) fail(r.line, `the ${name} is missing`);
+      return undefined;
     }
-    return {
-      position,
-      ...(uncertainty !== undefined ? { uncertainty } : {}),
-      ...(intensity !== undefined ? { intensity } : {}),
-      ...(assignment ? { assignment } : {}),
-    };
-  });
-  return { kind: 'lines', lines, ...(unit ? { unit } : {}) };
+    const v = numberOf(c, decimalComma);
+    if (!Number.isFinite(v)) fail(r.line, `${name} "${c.slice(0, 30)}" is not a number`);
+    return v;
+  };
+  const position = num('position', true) as number;
+  const uncertainty = num('uncertainty', false);
+  const intensity = num('intensity', false);
+  let assignment: CsvLine['assignment'];
+  if (assigned) {
+    const band = cell(at.band).replace(/[–−]/g, '-');
+    const branch = cell(at.branch).toUpperCase();
+    const j = cell(at.j);
+    if (band !== '' || branch !== '' || j !== '') {
+      if (!/^\d{1,2}-\d{1,2}$/.test(band)) fail(r.line, `band "${band}" is not "v'-v''" (e.g. 1-0)`);
+      if (branch !== 'P' && branch !== 'Q' && branch !== 'R') fail(r.line, `branch "${branch}" is not P, Q or R`);
+      const jv = Number(j);
+      if (!Number.isInteger(jv) || jv < 0) fail(r.line, `j "${j}" is not a whole number ≥ 0`);
+      assignment = { band, branch, j: jv };
+    }
+  }
+  return {
+    position,
+    ...(uncertainty !== undefined ? { uncertainty } : {}),
+    ...(intensity !== undefined ? { intensity } : {}),
+    ...(assignment ? { assignment } : {}),
+  };
 }
