@@ -619,7 +619,7 @@ export function declaredAgainstChance(
   return [
     {
       code: 'ASSIGNMENT_NOT_BEYOND_CHANCE',
-      message: `${own.matched} of the ${own.predicted} strongest predicted lines of ${declared.formula} (J″ ≤ 12) find a line, no more than lines at random would at this line density: the lines may not be ${own.name}`,
+      message: `${own.matched} of the ${own.predicted} strongest predicted lines of ${own.species} (J″ ≤ 12) find a line, no more than lines at random would at this line density: the lines may not be ${declared.formula}`,
     },
   ];
 }

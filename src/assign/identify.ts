@@ -100,9 +100,12 @@ export function identifyIsotopologues(
 }
 
 /**
- * The declared isotopologue's own match to the lines, scored as identifySpecies scores a molecule, when that match
- * is no better than lines at random would reach (score 0 by the chance rule; at least 3 strong predictions in the
- * window); undefined when the match is beyond chance or there is too little to judge.
+ * The declared species' own match to the lines when it is no better than lines at random would reach: each
+ * isotopologue the declaration stands for (`isotopologuesMeant`: "CO" its natural mixture above 1e-3, "13C16O"
+ * itself) is scored alone, as identifySpecies scores a molecule, so that an enriched sample declared by its
+ * elements is judged by the isotopologue it holds. Returns the best of them (by the score before the chance rule)
+ * when every one scores 0 and it has at least 3 strong predictions in the window; undefined when one matches beyond
+ * chance or there is too little to judge.
  */
 export function matchNotBeyondChance(
   peaks: readonly { position: number; intensity?: number }[],
@@ -111,15 +114,13 @@ export function matchNotBeyondChance(
 ): IdentificationCandidate | undefined {
   if (peaks.length === 0) return undefined;
   const { lo, hi, strongObserved } = identificationWindow(peaks);
-  const name = libraryEntry(species)?.name ?? species.formula;
-  const [own] = rankMixtures(
-    [{ formula: species.formula, name, mixture: [{ iso: species, abundance: 1 }] }],
-    strongObserved,
-    lo,
-    hi,
-    options,
-  );
-  return own && own.score === 0 && own.predicted >= 3 ? own : undefined;
+  const tests = isotopologuesMeant(species, options.minAbundance ?? 1e-3).map(({ iso }) => ({
+    formula: iso.formula,
+    name: iso.formula,
+    mixture: [{ iso, abundance: 1 }],
+  }));
+  const [best] = rankMixtures(tests, strongObserved, lo, hi, options);
+  return best && best.score === 0 && best.predicted >= 3 ? best : undefined;
 }
 
 /** Score each mixture's strongest predictions (J″ ≤ 12) against the strong observed lines; best first. */

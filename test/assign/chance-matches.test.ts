@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { analyseLineList } from '../../src/assign/analyse.js';
+import { analyseLineList, declaredAgainstChance, resolveSpecies } from '../../src/assign/analyse.js';
 import {
   chanceFalseAlarm,
   chanceMatchProbability,
@@ -119,5 +119,60 @@ describe('a declared species that the lines do not show', () => {
     // Too little to judge: a window holding fewer than three strong predictions says nothing.
     expect(matchNotBeyondChance([{ position: 1000 }, { position: 1001 }], parseSpecies('CO'))).toBeUndefined();
     expect(matchNotBeyondChance([], parseSpecies('CO'))).toBeUndefined();
+  });
+
+  it('a declaration is judged by every isotopologue it stands for: a ¹³C-enriched sample declared as "CO" is beyond chance', () => {
+    // ¹³C¹⁶O 1-0, P(1)…P(20) and R(0)…R(20), by the isotopic scaling of Dunham coefficients Y_kl ∝ ρ^(k+2l),
+    // ρ = √(μ(¹²C¹⁶O)/μ(¹³C¹⁶O)), from ¹²C¹⁶O constants (Huber & Herzberg, from memory: ω_e 2169.81358, ω_e x_e
+    // 13.28831, B_e 1.93128087, α_e 0.01750441, D_e 6.1214e-6 cm⁻¹) and AME2020 masses (12, 13.003354835,
+    // 15.994914620 u). Our own generator: no code of src/ is used.
+    const m12 = 12;
+    const m13 = 13.003354835;
+    const m16 = 15.99491462;
+    const rho = Math.sqrt(((m12 * m16) / (m12 + m16)) * ((m13 + m16) / (m13 * m16)));
+    const we = 2169.81358 * rho;
+    const wexe = 13.28831 * rho ** 2;
+    const be = 1.93128087 * rho ** 2;
+    const ae = 0.01750441 * rho ** 3;
+    const de = 6.1214e-6 * rho ** 4;
+    const term = (v: number, j: number) =>
+      we * (v + 0.5) - wexe * (v + 0.5) ** 2 + (be - ae * (v + 0.5)) * j * (j + 1) - de * (j * (j + 1)) ** 2;
+    const lines: { position: number }[] = [];
+    for (let j = 0; j <= 20; j++) {
+      lines.push({ position: term(1, j + 1) - term(0, j) });
+      if (j >= 1) lines.push({ position: term(1, j - 1) - term(0, j) });
+    }
+    // The band origin of ¹³C¹⁶O, 2096.07 cm⁻¹ (from memory), checks the generator to 0.05 cm⁻¹.
+    expect(Math.abs(term(1, 0) - term(0, 0) - 2096.07)).toBeLessThan(0.05);
+    expect(declaredAgainstChance(lines, parseSpecies('CO'), {})).toEqual([]);
+    expect(declaredAgainstChance(lines, parseSpecies('13C16O'), {})).toEqual([]);
+    // Declared as ¹²C¹⁶O alone, nothing of it is there.
+    const [w] = declaredAgainstChance(lines, parseSpecies('12C16O'), {});
+    expect(w?.code).toBe('ASSIGNMENT_NOT_BEYOND_CHANCE');
+    expect(w?.message).toMatch(/ lines of 12C-16O \(J″ ≤ 12\) find a line, .*: the lines may not be 12C-16O$/);
+  });
+
+  it("the offset searched is the caller's: CO 0.8 cm⁻¹ off is beyond chance within ±1, not within the default ±0.5", () => {
+    const shifted = coFundamental().map((x) => ({ position: x.position + 0.8 }));
+    expect(declaredAgainstChance(shifted, parseSpecies('CO'), { maxOffset: 1 })).toEqual([]);
+    expect(declaredAgainstChance(shifted, parseSpecies('CO'), {}).map((w) => w.code)).toEqual([
+      'ASSIGNMENT_NOT_BEYOND_CHANCE',
+    ]);
+    // Lines that carry their own assignments are not judged: only a declared species is.
+    const given = coFundamental().map((x, i) =>
+      i === 0
+        ? {
+            ...x,
+            assignment: {
+              species: '12C-16O',
+              band: { upper: 1, lower: 0 },
+              branch: 'R' as const,
+              j: 0,
+              source: 'given' as const,
+            },
+          }
+        : x,
+    );
+    expect(resolveSpecies(given, undefined, {}).warnings).toEqual([]);
   });
 });
