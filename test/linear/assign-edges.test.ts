@@ -1,0 +1,389 @@
+import { describe, expect, it } from 'vitest';
+import {
+  type LinearAssignedLine,
+  type LinearAssignResult,
+  type LinearIdentification,
+  linearChecks,
+} from '../../src/linear/assign.js';
+import type { LinearFitResult } from '../../src/linear/fit.js';
+import type { LinearAssignment } from '../../src/linear/transitions.js';
+
+/**
+ * Edges of the QA checks of src/linear/assign.ts (identity, calibration, unexplained-lines) on assignment results
+ * written out by hand: every line position below is computed here from term values
+ *   F(J) = G + B x − D x² + H x³ (∓ ½ q x for the e/f components of a Π level), x = J(J+1),
+ * with the constants of 16O12C32S that the shared reference note fitted to HITRAN level energies
+ * (test/fixtures/linear-reference/linear-reference.json, entries with source THIS_NOTE, rounded to the digits the
+ * library prints). The calibration is then a weighted straight-line fit done again here by hand.
+ */
+
+type Level = { v: number[]; l: number; r?: number };
+type Consts = { G: number; B: number; D: number; H: number };
+const GROUND: Level = { v: [0, 0, 0], l: 0 };
+const NU1: Level = { v: [1, 0, 0], l: 0 };
+const NU2: Level = { v: [0, 1, 0], l: 1 };
+const TWO_NU2: Level = { v: [0, 2, 0], l: 0 };
+const NU3: Level = { v: [0, 0, 1], l: 0 };
+
+// OCS (note refits, THIS_NOTE): ground B0, D0, H0; ν1 1000 G, B, D, H; 0200 G, B, D, H; 0110 per-parity series.
+const C_GROUND: Consts = { G: 0, B: 0.2028567424, D: 4.341088657e-8, H: -2.995842839e-15 };
+const C_NU1: Consts = { G: 858.9669714, B: 0.2022518269, D: 4.43417588e-8, H: 1.276756478e-15 };
+const C_2NU2: Consts = { G: 1047.042058, B: 0.2034803387, D: 3.643964959e-8, H: 1.298960939e-14 };
+const C_NU2_E: Consts = { G: 520.4221066, B: 0.2031038244, D: 4.404089114e-8, H: -2.997602166e-15 };
+const C_NU2_F: Consts = { G: 520.4220957, B: 0.2033160376, D: 4.419307876e-8, H: -1.33226763e-15 };
+// Stated 1σ of the same fits (THIS_NOTE): the ground G is the zero (no σ).
+const S_NU1 = { G: 7e-6, B: 1.5e-8, D: 7.3e-12 };
+const S_GROUND = { G: 0, B: 3.8e-9, D: 7.6e-13 };
+
+const F = (c: Consts, J: number) => {
+  const x = J * (J + 1);
+  return c.G + c.B * x - c.D * x * x + c.H * x * x * x;
+};
+const upperJ = (branch: 'P' | 'Q' | 'R', j: number) => (branch === 'R' ? j + 1 : branch === 'P' ? j - 1 : j);
+/** ν1 line (10⁰0 ← 00⁰0) from the term values. */
+const nu1 = (branch: 'P' | 'R', j: number) => F(C_NU1, upperJ(branch, j)) - F(C_GROUND, j);
+
+const assigned = (
+  index: number,
+  position: number,
+  upper: Level,
+  lower: Level,
+  branch: 'P' | 'Q' | 'R',
+  j: number,
+  parity?: 'e' | 'f',
+): LinearAssignedLine => {
+  const assignment: LinearAssignment = { upper, lower, branch, j, ...(parity ? { parity } : {}) };
+  return { index, position, status: 'assigned', assignment };
+};
+const unassigned = (index: number, position: number): LinearAssignedLine => ({
+  index,
+  position,
+  status: 'unassigned',
+});
+const result = (lines: LinearAssignedLine[], extra: Partial<LinearAssignResult> = {}): LinearAssignResult => ({
+  species: '16O-12C-32S',
+  offset: { value: 0, uncertainty: 0, unit: 'cm-1' },
+  lines,
+  bands: [],
+  numbering: [],
+  unexplainedFraction: 0,
+  warnings: [],
+  ...extra,
+});
+
+/**
+ * Weighted least squares of d on [1, z] with z = (ν − c)/c × 1e6 about the weighted centre c (the two columns are
+ * then orthogonal under the weights), or on [1] alone; σ scaled by √(χ²/(n − cols)) when that exceeds 1.
+ */
+function handCalibration(pts: { nu: number; d: number; s: number }[], withScale: boolean) {
+  const w = pts.map((p) => 1 / (p.s * p.s));
+  const sw = w.reduce((a, b) => a + b, 0);
+  const centre = pts.reduce((a, p, i) => a + (w[i] as number) * p.nu, 0) / sw;
+  const z = pts.map((p) => ((p.nu - centre) / centre) * 1e6);
+  const a = pts.reduce((s, p, i) => s + (w[i] as number) * p.d, 0) / sw;
+  const swzz = z.reduce((s, zi, i) => s + (w[i] as number) * zi * zi, 0);
+  const b = withScale ? pts.reduce((s, p, i) => s + (w[i] as number) * (z[i] as number) * p.d, 0) / swzz : 0;
+  const chi2 = pts.reduce((s, p, i) => s + (w[i] as number) * (p.d - a - b * (z[i] as number)) ** 2, 0);
+  const cols = withScale ? 2 : 1;
+  const s2 = Math.max(1, chi2 / (pts.length - cols));
+  return { centre, offset: a, uOffset: Math.sqrt(s2 / sw), scale: b, uScale: Math.sqrt(s2 / swzz), chi2 };
+}
+
+/** σ of a ν1 line's reference prediction from the stated σ of G, B, D of both levels (the rule of assign.ts). */
+const nu1Sigma = (branch: 'P' | 'R', j: number) => {
+  const xp = upperJ(branch, j) * (upperJ(branch, j) + 1);
+  const xpp = j * (j + 1);
+  return Math.hypot(S_NU1.G, S_GROUND.G, S_NU1.B * xp, S_GROUND.B * xpp, S_NU1.D * xp * xp, S_GROUND.D * xpp * xpp);
+};
+
+describe('calibration check on hand-made assignments', () => {
+  it('six ν1 lines at J″ 20–40 shifted by 0.03 cm⁻¹: offset, its σ from the predictions’ σ, centre, scale', () => {
+    const picks: ['P' | 'R', number][] = [
+      ['P', 20],
+      ['P', 30],
+      ['P', 40],
+      ['R', 20],
+      ['R', 30],
+      ['R', 40],
+    ];
+    // σ of each line sent: 1e-7 cm⁻¹, so that the prediction's σ (up to 2e-5 at J″ = 40) dominates.
+    const peaks = picks.map(([b, j]) => ({ position: nu1(b, j) + 0.03, uncertainty: 1e-7 }));
+    const r = result(picks.map(([b, j], i) => assigned(i, peaks[i]?.position as number, NU1, GROUND, b, j, 'e')));
+    const cal = linearChecks(peaks, r, [])[1];
+    const hand = handCalibration(
+      picks.map(([b, j], i) => ({
+        nu: peaks[i]?.position as number,
+        d: 0.03,
+        s: Math.hypot(1e-7, nu1Sigma(b, j)),
+      })),
+      true,
+    );
+    expect(cal?.id).toBe('calibration');
+    // |0.03| ≤ 0.05: pass.
+    expect(cal?.status).toBe('pass');
+    const off = cal?.measured.offset as { value: number; uncertainty: number; unit: string };
+    expect(off.unit).toBe('cm-1');
+    // Positions near 860 cm⁻¹ in double precision: the differences are 0.03 to 1e-10.
+    expect(Math.abs(off.value - 0.03)).toBeLessThan(1e-9);
+    expect(off.uncertainty / hand.uOffset).toBeCloseTo(1, 6);
+    // The σ of a prediction grows with J: the weighted centre is pulled towards the band origin (858.97) from the
+    // plain mean of the six positions.
+    expect(cal?.measured.centre as number).toBeCloseTo(hand.centre, 6);
+    const scale = cal?.measured.scalePpm as { value: number; uncertainty: number; unit: string };
+    expect(scale.unit).toBe('ppm');
+    expect(Math.abs(scale.value)).toBeLessThan(1e-6);
+    expect(scale.uncertainty / hand.uScale).toBeCloseTo(1, 6);
+    expect(cal?.measured.lines).toBe(6);
+    expect(cal?.measured.leftOutRecalled).toBe(0);
+  });
+
+  it('a scale error and a scatter larger than the stated σ: offset and scale coefficient, σ scaled by √(χ²/(n − 2))', () => {
+    const js = [2, 6, 10, 14, 18, 22, 26];
+    // Observed = reference × (1 + 40e-6) + 0.01, plus ±2e-4 alternating (stated σ 1e-4: χ²/dof ≫ 1).
+    const pts = js.flatMap((j, k) =>
+      (['P', 'R'] as const).map((b, m) => {
+        const ref = nu1(b, j);
+        return { b, j, ref, position: ref * (1 + 40e-6) + 0.01 + ((k + m) % 2 === 0 ? 2e-4 : -2e-4) };
+      }),
+    );
+    const peaks = pts.map((p) => ({ position: p.position, uncertainty: 1e-4 }));
+    const r = result(pts.map((p, i) => assigned(i, p.position, NU1, GROUND, p.b, p.j, 'e')));
+    const cal = linearChecks(peaks, r, [])[1];
+    const hand = handCalibration(
+      pts.map((p) => ({ nu: p.position, d: p.position - p.ref, s: Math.hypot(1e-4, nu1Sigma(p.b, p.j)) })),
+      true,
+    );
+    expect(hand.chi2 / (pts.length - 2)).toBeGreaterThan(1);
+    const off = cal?.measured.offset as { value: number; uncertainty: number };
+    expect(off.value).toBeCloseTo(hand.offset, 9);
+    expect(off.uncertainty / hand.uOffset).toBeCloseTo(1, 6);
+    // The coefficient on z = (ν − c)/c × 1e6 (the column assign.ts regresses on; test/MUTANTS.md reports that it
+    // is not the scale in ppm that its name says: here 40 ppm × c × 1e-12 ≈ 3.4e-8).
+    const scale = cal?.measured.scalePpm as { value: number; uncertainty: number };
+    expect(scale.value / hand.scale).toBeCloseTo(1, 5);
+    expect(scale.uncertainty / hand.uScale).toBeCloseTo(1, 6);
+  });
+
+  it('three lines: offset only (no scale), σ scaled by √(χ²/2); four lines at one position: no scale either', () => {
+    const three: ['P' | 'R', number][] = [
+      ['P', 4],
+      ['R', 4],
+      ['R', 12],
+    ];
+    const shifts = [0.0203, 0.0197, 0.0206];
+    const peaks = three.map(([b, j], i) => ({ position: nu1(b, j) + (shifts[i] as number), uncertainty: 1e-4 }));
+    const r = result(three.map(([b, j], i) => assigned(i, peaks[i]?.position as number, NU1, GROUND, b, j, 'e')));
+    const cal = linearChecks(peaks, r, [])[1];
+    const hand = handCalibration(
+      three.map(([b, j], i) => ({
+        nu: peaks[i]?.position as number,
+        d: shifts[i] as number,
+        s: Math.hypot(1e-4, nu1Sigma(b, j)),
+      })),
+      false,
+    );
+    // Scatter 4.5e-4 about the mean against σ ≈ 1e-4: χ²/2 ≈ 23.
+    expect(hand.chi2 / 2).toBeGreaterThan(10);
+    expect(cal?.measured.lines).toBe(3);
+    const off = cal?.measured.offset as { value: number; uncertainty: number };
+    expect(off.value).toBeCloseTo(hand.offset, 9);
+    expect(off.uncertainty / hand.uOffset).toBeCloseTo(1, 6);
+    expect(cal?.measured.scalePpm).toBeUndefined();
+    expect(cal?.measured.scaleUndeterminedPpm).toBeUndefined();
+    expect(cal?.message).toBe(
+      `offset ${hand.offset.toFixed(5)} ± ${hand.uOffset.toFixed(5)} cm-1 at ${hand.centre.toFixed(2)} cm-1 against carbonyl sulfide (16O12C32S) from 3 lines`,
+    );
+
+    // Four lines sent at one and the same position (a list that repeats a peak): no span, so no scale.
+    const same = [1, 2, 3, 4].map((j) => assigned(j - 1, 860, NU1, GROUND, 'R', j, 'e'));
+    const samePeaks = same.map(() => ({ position: 860, uncertainty: 1e-3 }));
+    const c4 = linearChecks(samePeaks, result(same), [])[1];
+    const h4 = handCalibration(
+      [1, 2, 3, 4].map((j) => ({ nu: 860, d: 860 - nu1('R', j), s: Math.hypot(1e-3, nu1Sigma('R', j)) })),
+      false,
+    );
+    expect(c4?.measured.lines).toBe(4);
+    expect((c4?.measured.offset as { value: number }).value).toBeCloseTo(h4.offset, 9);
+    expect(c4?.measured.scalePpm).toBeUndefined();
+    expect(c4?.measured.scaleUndeterminedPpm).toBeUndefined();
+  });
+
+  it('a scale whose σ is above a third of the limit is undetermined; at exactly a third it is reported', () => {
+    // Four lines within 1.3 cm⁻¹ (R(0)–R(2), P(1)) with σ 1e-3.
+    const four: ['P' | 'R', number][] = [
+      ['P', 1],
+      ['R', 0],
+      ['R', 1],
+      ['R', 2],
+    ];
+    const peaks = four.map(([b, j]) => ({ position: nu1(b, j), uncertainty: 1e-3 }));
+    const r = result(four.map(([b, j], i) => assigned(i, peaks[i]?.position as number, NU1, GROUND, b, j, 'e')));
+    const hand = handCalibration(
+      four.map(([b, j], i) => ({ nu: peaks[i]?.position as number, d: 0, s: Math.hypot(1e-3, nu1Sigma(b, j)) })),
+      true,
+    );
+    // With the default limit (20): determined, its σ that of the hand fit.
+    const cal = linearChecks(peaks, r, [])[1];
+    const u = (cal?.measured.scalePpm as { uncertainty: number }).uncertainty;
+    expect(u / hand.uScale).toBeCloseTo(1, 6);
+    expect(cal?.measured.scaleUndeterminedPpm).toBeUndefined();
+    // A limit of 2σ: σ > limit/3 (though σ < 3 × limit): undetermined, its σ reported.
+    const two = linearChecks(peaks, r, [], { calibrationScalePpm: 2 * u })[1];
+    expect(two?.measured.scalePpm).toBeUndefined();
+    expect(two?.measured.scaleUndeterminedPpm).toBe(u);
+    // A limit of exactly 3σ (σ = limit/3 in floating point, checked first): determined.
+    expect((3 * u) / 3).toBe(u);
+    const at = linearChecks(peaks, r, [], { calibrationScalePpm: 3 * u })[1];
+    expect((at?.measured.scalePpm as { uncertainty: number }).uncertainty).toBe(u);
+    expect(at?.measured.scaleUndeterminedPpm).toBeUndefined();
+  });
+
+  it('lines resting on recalled constants are left out and counted; lines of levels the library lacks are skipped', () => {
+    // ν3 (00⁰1) of OCS is recalled in the library (G 2062.2, B 0.2022: "approximate", note). Positions: any in the band.
+    const recalled = [2050.1, 2052.3, 2054.4].map((p, i) => assigned(i, p, NU3, GROUND, 'P', 10 + i, 'e'));
+    const onlyRecalled = linearChecks(
+      recalled.map((l) => ({ position: l.position })),
+      result(recalled),
+      [],
+    )[1];
+    expect(onlyRecalled).toEqual({
+      id: 'calibration',
+      status: 'not-evaluated',
+      measured: { lines: 0, leftOutRecalled: 3 },
+      limit: { offset: 0.05, scalePpm: 20 },
+      message: 'the reference constants of these bands are recalled, not read: no wavenumber calibration against them',
+    });
+    // Three ν1 lines (read-derived constants), two recalled ν3 lines, one line into 20⁰0 and one from 00⁰2 (levels
+    // the library does not hold): three points, two left out as recalled, the last two skipped without a count.
+    const good = [5, 7, 9].map((j, i) => assigned(i, nu1('R', j) + 0.01, NU1, GROUND, 'R', j, 'e'));
+    const lines = [
+      ...good,
+      assigned(3, 2050.1, NU3, GROUND, 'P', 10, 'e'),
+      assigned(4, 2052.3, NU3, GROUND, 'P', 9, 'e'),
+      assigned(5, 1700.0, { v: [2, 0, 0], l: 0 }, GROUND, 'R', 3, 'e'),
+      assigned(6, 2000.0, NU1, { v: [0, 0, 2], l: 0 }, 'P', 3, 'e'),
+    ];
+    const peaks = lines.map((l) => ({ position: l.position, uncertainty: 1e-4 }));
+    const cal = linearChecks(peaks, result(lines), [])[1];
+    expect(cal?.measured.lines).toBe(3);
+    expect(cal?.measured.leftOutRecalled).toBe(2);
+    expect(Math.abs((cal?.measured.offset as { value: number }).value - 0.01)).toBeLessThan(1e-9);
+  });
+
+  it('lines sent without σ are weighted by the fit’s rms (at least 1e-5 cm⁻¹)', () => {
+    const js = [3, 8, 13, 18];
+    const pts = js.map((j, i) => ({ j, position: nu1('R', j) + (i % 2 === 0 ? 0.012 : 0.008) }));
+    const peaks = pts.map((p) => ({ position: p.position }));
+    const lines = pts.map((p, i) => assigned(i, p.position, NU1, GROUND, 'R', p.j, 'e'));
+    for (const rms of [2e-3, 1e-7]) {
+      const fit = { statistics: { rms } } as unknown as LinearFitResult;
+      const cal = linearChecks(peaks, result(lines, { fit }), [])[1];
+      const hand = handCalibration(
+        pts.map((p, i) => ({
+          nu: p.position,
+          d: i % 2 === 0 ? 0.012 : 0.008,
+          s: Math.hypot(Math.max(rms, 1e-5), nu1Sigma('R', p.j)),
+        })),
+        true,
+      );
+      const off = cal?.measured.offset as { value: number; uncertainty: number };
+      expect(off.value).toBeCloseTo(hand.offset, 9);
+      expect(off.uncertainty / hand.uOffset).toBeCloseTo(1, 6);
+    }
+  });
+
+  it('Q lines, e/f components and omitted parities of 01¹0 are predicted with their own term values', () => {
+    // E_e, E_f of 01¹0 from the note's per-parity series; 02⁰0 and the ground as Σ levels.
+    const Fe = (J: number) => F(C_NU2_E, J);
+    const Ff = (J: number) => F(C_NU2_F, J);
+    const off = 0.01;
+    type Row = [Level, Level, 'P' | 'Q' | 'R', number, 'e' | 'f' | undefined, number];
+    const rows: Row[] = [
+      // ν2 band 01¹0 ← 00⁰0: P and R reach e levels, Q reaches f levels.
+      [NU2, GROUND, 'P', 5, 'e', Fe(4) - F(C_GROUND, 5)],
+      [NU2, GROUND, 'Q', 5, 'e', Ff(5) - F(C_GROUND, 5)],
+      [NU2, GROUND, 'R', 5, 'e', Fe(6) - F(C_GROUND, 5)],
+      [NU2, GROUND, 'Q', 10, 'e', Ff(10) - F(C_GROUND, 10)],
+      // Parity omitted: e understood.
+      [NU2, GROUND, 'R', 8, undefined, Fe(9) - F(C_GROUND, 8)],
+      // Pure rotation within 01¹0: f → f, and e → e with the parity omitted.
+      [NU2, NU2, 'R', 5, 'f', Ff(6) - Ff(5)],
+      [NU2, NU2, 'R', 7, undefined, Fe(8) - Fe(7)],
+      // Hot band 02⁰0 ← 01¹0: Q from the f component, R from the e one.
+      [TWO_NU2, NU2, 'Q', 5, 'f', F(C_2NU2, 5) - Ff(5)],
+      [TWO_NU2, NU2, 'R', 5, 'e', F(C_2NU2, 6) - Fe(5)],
+    ];
+    const lines = rows.map(([u, l, b, j, p, nu], i) => assigned(i, nu + off, u, l, b, j, p));
+    const peaks = lines.map((l) => ({ position: l.position, uncertainty: 1e-4 }));
+    const cal = linearChecks(peaks, result(lines), [])[1];
+    expect(cal?.measured.lines).toBe(9);
+    // Each difference is 0.01 to within what the library's single G_v of 01¹0 drops (the e and f series start at
+    // G 520.4221066 and 520.4220957: ±5.5e-6) and H_f − H_e (< 1e-9 at J ≤ 10): the offset within 2e-5. The other
+    // component's q J(J+1) would move one line by 2.1e-4 × 30 = 6e-3 and the offset by 6e-3/9 = 7e-4.
+    expect(Math.abs((cal?.measured.offset as { value: number }).value - off)).toBeLessThan(2e-5);
+  });
+});
+
+describe('unexplained-lines and identity at their limits', () => {
+  it('unexplained share exactly at the limit warns, exactly at half of it passes', () => {
+    const lines = [unassigned(0, 860)];
+    const at = (f: number) => linearChecks([{ position: 860 }], result(lines, { unexplainedFraction: f }), [])[2];
+    // 0.05 (DEFAULT_TOLERANCES.unexplainedFraction) is not above 0.05: warn (it is above 0.025).
+    expect(at(0.05)?.status).toBe('warn');
+    expect(at(0.025)?.status).toBe('pass');
+    expect(at(0.0500001)?.status).toBe('fail');
+    expect(at(0.05)?.limit).toEqual({ fraction: 0.05 });
+    expect(at(0.05)?.measured).toEqual({ fraction: 0.05, lines: 1, unassigned: [0] });
+  });
+
+  it('identity: a score of exactly 0.5 fails; a B″ off by exactly the limit (or 3×) is at the lower grade', () => {
+    const r1 = [assigned(0, nu1('R', 3), NU1, GROUND, 'R', 3, 'e')];
+    const other = (species: string, score: number): LinearIdentification => ({
+      species,
+      name: 'hydrogen cyanide (H12C14N)',
+      score,
+      matched: 10,
+      predicted: 20,
+      offset: 0,
+    });
+    expect(linearChecks([], result(r1), [other('1H-12C-14N', 0.5)])[0]?.status).toBe('fail');
+    // ratio 1 + 3·2⁻¹² = 4099/4096 (exact in binary): relB = 3·2⁻¹² exactly.
+    const relB = 3 * 2 ** -12;
+    const numbering = [
+      {
+        level: '00⁰0',
+        fittedB: { value: 0.2, uncertainty: 1e-6, unit: 'cm-1' },
+        referenceB: 0.2,
+        ratio: 4099 / 4096,
+        ok: false,
+      },
+    ];
+    expect(Math.abs(4099 / 4096 - 1)).toBe(relB);
+    const id = (identityB: number, ranking: LinearIdentification[] = []) =>
+      linearChecks([], result(r1, { numbering }), ranking, { identityB })[0];
+    // identityB = 2⁻¹²: relB = 3 × identityB exactly, not above it: warn, not fail.
+    expect(id(2 ** -12)?.status).toBe('warn');
+    // identityB = relB: not above: pass.
+    expect(id(relB)?.status).toBe('pass');
+    // Just below: warn, with the difference in % to 3 decimals: 3·2⁻¹² × 100 = 0.0732… %.
+    const w = id(relB * 0.999);
+    expect(w?.status).toBe('warn');
+    expect(w?.message).toBe("fitted B of 00⁰0 differs from the library's by 0.073 %");
+    expect(w?.measured.relativeB).toBe(relB);
+    // Two problems together are joined with "; ".
+    expect(id(relB * 0.999, [other('1H-12C-14N', 0.8)])?.message).toBe(
+      "the lines match hydrogen cyanide (H12C14N) (score 0.80) better than 16O-12C-32S; fitted B of 00⁰0 differs from the library's by 0.073 %",
+    );
+  });
+
+  it('identity without a numbering: fails only when no line at all is assigned', () => {
+    const some = [assigned(0, nu1('R', 3), NU1, GROUND, 'R', 3, 'e'), unassigned(1, 861.7)];
+    const c = linearChecks([], result(some), [])[0];
+    expect(c?.status).toBe('pass');
+    expect(c?.measured).toEqual({ species: '16O-12C-32S', bestMatch: null, bestScore: 0, relativeB: null });
+    expect(c?.message).toBe('the lines are those of carbonyl sulfide (16O12C32S)');
+    const none = linearChecks([], result([unassigned(0, 860), unassigned(1, 861.7)]), [])[0];
+    expect(none?.status).toBe('fail');
+    expect(none?.message).toBe('no line was assigned to carbonyl sulfide (16O12C32S)');
+  });
+});
