@@ -1,6 +1,8 @@
+import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import {
   assignLinearLines,
+  identifyLinearSpecies,
   type LinearAssignedLine,
   type LinearAssignResult,
   type LinearIdentification,
@@ -399,8 +401,6 @@ const ocsNu1 = (jMax: number) =>
   ].map((l) => ({ ...l, p: nu1(l.b, l.j) }));
 const labelsOf = (r: ReturnType<typeof assignLinearLines>) =>
   r.lines.map((l) => (l.assignment ? `${l.assignment.branch}${l.assignment.j}` : '-'));
-const assignedCount = (r: ReturnType<typeof assignLinearLines>) =>
-  r.lines.filter((l) => l.status === 'assigned').length;
 
 // 12C16O2 ground and 00⁰1 (Rothman & Young 1981, read-secondary, as in the shared reference note): only even J″
 // exist in the ground level, so the ν3 lines are 4B″ = 1.56 cm⁻¹ apart near the origin.
@@ -511,5 +511,166 @@ describe('assignment of lists built from term values', () => {
       expect(Math.abs(r.offset.value - shift)).toBeLessThan(0.15);
       expect(r.numbering.map((n) => n.ok)).toEqual([true]);
     }
+  });
+});
+
+/** 12C2H2 ν1+ν3 line centres of NIST SRM 2517a (vacuum nm, test/fixtures/linear/published-lines.json) in cm⁻¹. */
+const SRM2517A = (
+  JSON.parse(readFileSync(new URL('../fixtures/linear/published-lines.json', import.meta.url), 'utf8')) as {
+    c2h2_srm2517a_nm: { branch: string; j: number; vacuumWavelengthNm: number }[];
+  }
+).c2h2_srm2517a_nm.map((x) => ({ b: x.branch, j: x.j, p: 1e7 / x.vacuumWavelengthNm }));
+
+describe('tolerances of the first match (no fit: three lines, search ±0.1 cm⁻¹)', () => {
+  it('OCS: a line 0.01 cm⁻¹ from its reference prediction is not taken (σ of the prediction ≈ 1e-5)', () => {
+    // The stated σ of the note's OCS constants make the prediction's σ about 1e-5 cm⁻¹: the tolerance is the 0.005
+    // floor, and the vote (two lines exactly on their predictions) puts the offset at 0.
+    const r = assignLinearLines(
+      'OCS',
+      [{ position: nu1('P', 1) }, { position: nu1('R', 0) }, { position: nu1('R', 1) + 0.01 }],
+      { maxOffset: 0.1 },
+    );
+    expect(labelsOf(r)).toEqual(['P1', 'R0', '-']);
+    expect(r.offset.value).toBe(0);
+  });
+
+  it('C2H2: a prediction resting on a recalled B″ (σ 1e-4 relative) takes a line within 3σ, not beyond', () => {
+    // P(10) of ν1+ν3: σ from the library's constants: the recalled ground B″ = 1.1766462 with no stated σ counts as
+    // 1e-4 × B″ × J″(J″+1) = 1e-4 × 1.1766462 × 110 = 0.012943; the rest (upper G 5e-5, upper B 4.1e-7 × 90,
+    // D terms) adds < 1e-6 in quadrature: 3σ = 0.0388 cm⁻¹.
+    const three = SRM2517A.filter((x) => x.b === 'P' && [9, 10, 11].includes(x.j));
+    const sigma = Math.hypot(5e-5, 4.1e-7 * 90, 1e-4 * 1.1766462 * 110, 6.2e-10 * 8100, 1e-4 * 1.627e-6 * 12100);
+    expect(3 * sigma).toBeCloseTo(0.0388, 4);
+    const moved = (d: number) =>
+      assignLinearLines(
+        'C2H2',
+        three.map((x, i) => ({ position: x.p + (i === 1 ? d : 0) })),
+        { maxOffset: 0.1 },
+      );
+    expect(labelsOf(moved(0.036))).toEqual(['P9', 'P10', 'P11']);
+    expect(labelsOf(moved(0.042))).toEqual(['P9', '-', 'P11']);
+  });
+});
+
+describe('band summaries, a failed fit and the unexplained share', () => {
+  it('stray lines under other bands: each band counts its own predictions, kinds, J ranges; the fit fails, said so', () => {
+    // 61 ν1 lines (J″ ≤ 30) plus a line at 500.0 and one at 1047.0. 500.0 lies within 0.005 of ν2 P(52)
+    // (01¹0 e, J′ = 51 ← 00⁰0, J″ = 52, the note's e series); 1047.0 lies in the gap of 02⁰0–00⁰0 (P(1) 1046.63,
+    // R(0) 1047.45).
+    const Fe = (J: number) => F(C_NU2_E, J);
+    const p52 = Fe(51) - F(C_GROUND, 52);
+    expect(Math.abs(500.0 - p52)).toBeLessThan(0.005);
+    expect(F(C_2NU2, 0) - F(C_GROUND, 1)).toBeLessThan(1046.7);
+    expect(F(C_2NU2, 1) - F(C_GROUND, 0)).toBeGreaterThan(1047.4);
+    const lines = ocsNu1(30);
+    const r = assignLinearLines('OCS', [
+      ...lines.map((l) => ({ position: l.p })),
+      { position: 500.0 },
+      { position: 1047.0 },
+    ]);
+    expect(labelsOf(r)).toEqual([...lines.map((l) => `${l.b}${l.j}`), 'P52', '-']);
+    // One line of 01¹0 cannot fix its G, B and D: the level fit is rank deficient and the reference predictions
+    // are kept (no fit, no numbering check).
+    expect(r.warnings).toEqual(['fit of the matched lines failed (FIT_RANK_DEFICIENT): reference predictions kept']);
+    expect(r.fit).toBeUndefined();
+    expect(r.numbering).toEqual([]);
+    const band = (label: string) => r.bands.find((b) => b.label === label);
+    expect(r.bands.map((b) => [b.label, b.kind, b.assigned, b.jRange])).toEqual([
+      ['01¹0–00⁰0', 'perpendicular', 1, [52, 52]],
+      ['10⁰0–00⁰0', 'parallel', 61, [0, 30]],
+      ['02⁰0–00⁰0', 'parallel', 0, undefined],
+    ]);
+    // Predictions per band within [499, 1048] and J″ ≤ 120: ν1 at most P(1..120) + R(0..120) = 241; 02⁰0 at most
+    // P(1..120) + R(0), R(1) = 122 (R(2) lies at 1048.3); ν2 at most P, Q, R of J″ ≤ 120 = 361.
+    expect(band('10⁰0–00⁰0')?.predicted).toBeGreaterThanOrEqual(61);
+    expect(band('10⁰0–00⁰0')?.predicted).toBeLessThanOrEqual(241);
+    expect(band('02⁰0–00⁰0')?.predicted).toBeGreaterThan(0);
+    expect(band('02⁰0–00⁰0')?.predicted).toBeLessThanOrEqual(122);
+    expect(band('01¹0–00⁰0')?.predicted).toBeLessThanOrEqual(361);
+  });
+
+  it('the unexplained share is by intensity only when every line has a positive one', () => {
+    const lines = ocsNu1(30);
+    // A stray line with intensity 0: counted by lines, 1 of 62.
+    const zero = assignLinearLines('OCS', [
+      ...lines.map((l, i) => ({ position: l.p, intensity: 1 + i / 100 })),
+      { position: 1047.0, intensity: 0 },
+    ]);
+    expect(zero.unexplainedFraction).toBeCloseTo(1 / 62, 12);
+    // Half the lines without intensity: by lines too.
+    const half = assignLinearLines('OCS', [
+      ...lines.map((l, i) => ({ position: l.p, ...(i % 2 === 0 ? { intensity: 1 + i / 100 } : {}) })),
+      { position: 1047.0, intensity: 5 },
+    ]);
+    expect(half.unexplainedFraction).toBeCloseTo(1 / 62, 12);
+  });
+});
+
+describe('identification of OCS among the linear molecules', () => {
+  it('every ν1 line to J″ = 60, shifted by +0.5 cm⁻¹: the 60 strongest predictions all found, score 1', () => {
+    const lines = ocsNu1(60);
+    const ranking = identifyLinearSpecies(lines.map((l) => ({ position: l.p + 0.5 })));
+    const ocs = ranking.find((x) => x.species === '16O-12C-32S');
+    // 121 lines in the window, of which the 60 strongest are sought; all are observed, and the observed lines
+    // (121, no intensities) are at least as many: share of predicted weight 1, share of observed lines 60/60.
+    expect(ocs?.predicted).toBe(60);
+    expect(ocs?.matched).toBe(60);
+    expect(ocs?.score).toBeCloseTo(1, 12);
+    // The vote's window is 0.06 cm⁻¹ wide.
+    expect(Math.abs((ocs?.offset ?? 0) - 0.5)).toBeLessThan(0.03);
+    expect(ranking[0]?.species).toBe('16O-12C-32S');
+  });
+
+  it('at the J″ = 60 edge of the predictions: fewer than 10 predicted lines scale the score down', () => {
+    // Only P(58), P(59), P(60) observed: the window [P(60) − 1, P(58) + 1] holds the ν1 lines counted here from the
+    // term values (no other OCS band lies near 834 cm⁻¹), J″ ≤ 60.
+    const all = ocsNu1(60);
+    const pos = [58, 59, 60].map((j) => nu1('P', j));
+    const lo = Math.min(...pos) - 1;
+    const hi = Math.max(...pos) + 1;
+    const inWindow = all.filter((l) => l.p >= lo && l.p <= hi);
+    expect(inWindow.map((l) => `${l.b}${l.j}`)).toEqual(['P56', 'P57', 'P58', 'P59', 'P60']);
+    const ocs = identifyLinearSpecies(pos.map((position) => ({ position }))).find((x) => x.species === '16O-12C-32S');
+    expect(ocs?.predicted).toBe(5);
+    expect(ocs?.matched).toBe(3);
+    // No fit here: the vote (each observed − predicted difference within ±1.2 cm⁻¹ weighted by √I) favours the
+    // alias whose three pairs have the strongest predictions, P(56..58) ← observed P(58..60), offset
+    // P(58) − P(56) ≈ −0.82 (the lines weaken with J: I ∝ J″ exp(−B″J″(J″+1)/0.695T) ν, SCIENCE.md §5).
+    expect(Math.abs((ocs?.offset ?? 0) - (nu1('P', 58) - nu1('P', 56)))).toBeLessThan(0.03);
+    // Score = (√I share of P(56..58) among P(56..60)) × 1 × 5/10. That share is at least 3/5 and at most
+    // 3/(3 + 2√(I60/I56)) with I60/I56 = (60/56) exp(−0.2029 × (3660 − 3192)/205.7) = 0.675: 0.647. Score in
+    // [0.3, 0.324].
+    expect(ocs?.score).toBeGreaterThanOrEqual(0.3);
+    expect(ocs?.score).toBeLessThan(0.324);
+    // P(60) alone: P(58), P(59), P(60) within ±1 cm⁻¹ (three predictions, the least that is scored).
+    const one = identifyLinearSpecies([{ position: nu1('P', 60) }]).find((x) => x.species === '16O-12C-32S');
+    const win = all.filter((l) => Math.abs(l.p - nu1('P', 60)) <= 1);
+    expect(win.map((l) => `${l.b}${l.j}`)).toEqual(['P58', 'P59', 'P60']);
+    expect(one?.predicted).toBe(3);
+    expect(one?.matched).toBe(1);
+    expect(one?.score).toBeGreaterThan(0);
+  });
+});
+
+describe('the numbering check judges the fit’s scatter', () => {
+  it('OCS ν1 with a smooth ±0.01 cm⁻¹ error is kept; with ±0.03 the fit scatters beyond 2B″/20 and nothing is kept', () => {
+    const lines = ocsNu1(30);
+    const noisy = (a: number) => lines.map((l, i) => ({ position: l.p + a * Math.sin(2.4 * i) }));
+    // a sin(2.4 i) over 61 lines: rms ≈ a/√2 (0.0071 and 0.021), against 2B″/20 = 0.4057/20 = 0.0203.
+    const small = assignLinearLines('OCS', noisy(0.01));
+    expect(labelsOf(small)).toEqual(lines.map((l) => `${l.b}${l.j}`));
+    expect(small.numbering.map((n) => n.ok)).toEqual([true]);
+    expect(small.fit?.statistics.rms).toBeLessThan(0.4057 / 20);
+    const large = assignLinearLines('OCS', noisy(0.03));
+    expect(large.lines.every((l) => l.status === 'unassigned')).toBe(true);
+    expect(large.numbering.map((n) => n.ok)).toEqual([false]);
+    const ratio = large.numbering[0]?.ratio as number;
+    expect(large.warnings).toEqual([
+      "no numbering within ±1.2 cm-1 passes the check of the lower level's B against the library: lines left unassigned (a larger offset needs options.maxOffset)",
+      expect.stringMatching(
+        /^the fit of this numbering scatters by 0\.0[23]\d? cm-1, more than a twentieth of the line spacing$/,
+      ),
+      `numbering suspect: fitted B of 00⁰0 is ${ratio.toFixed(4)} × the library's`,
+    ]);
   });
 });
