@@ -368,8 +368,9 @@ describe('unexplained-lines and identity at their limits', () => {
       linearChecks([], result(r1, { numbering }), ranking, { identityB })[0] as Check;
     // identityB = 2⁻¹²: relB = 3 × identityB exactly, not above it: warn, not fail.
     expect(id(2 ** -12).status).toBe('warn');
-    // identityB = relB: not above: pass.
+    // identityB = relB: not above: pass, with no problem named.
     expect(id(relB).status).toBe('pass');
+    expect(id(relB).message).toBe('the lines are those of carbonyl sulfide (16O12C32S)');
     // Just below: warn, with the difference in % to 3 decimals: 3·2⁻¹² × 100 = 0.0732… %.
     const w = id(relB * 0.999);
     expect(w.status).toBe('warn');
@@ -535,20 +536,43 @@ describe('tolerances of the first match (no fit: three lines, search ±0.1 cm⁻
   });
 
   it('C2H2: a prediction resting on a recalled B″ (σ 1e-4 relative) takes a line within 3σ, not beyond', () => {
-    // P(10) of ν1+ν3: σ from the library's constants: the recalled ground B″ = 1.1766462 with no stated σ counts as
-    // 1e-4 × B″ × J″(J″+1) = 1e-4 × 1.1766462 × 110 = 0.012943; the rest (upper G 5e-5, upper B 4.1e-7 × 90,
-    // D terms) adds < 1e-6 in quadrature: 3σ = 0.0388 cm⁻¹.
-    const three = SRM2517A.filter((x) => x.b === 'P' && [9, 10, 11].includes(x.j));
-    const sigma = Math.hypot(5e-5, 4.1e-7 * 90, 1e-4 * 1.1766462 * 110, 6.2e-10 * 8100, 1e-4 * 1.627e-6 * 12100);
-    expect(3 * sigma).toBeCloseTo(0.0388, 4);
+    // P(20) of ν1+ν3 (J′ = 19): σ from the library's constants: the recalled ground B″ = 1.1766462 with no stated
+    // σ counts as 1e-4 × B″ × J″(J″+1) = 1e-4 × 1.1766462 × 420 = 0.04942; upper G 5e-5, upper B 4.1e-7 × 380,
+    // upper D 6.2e-10 × 380², recalled D″ 1e-4 × 1.627e-6 × 420² add < 1e-6 in quadrature: 3σ = 0.148 cm⁻¹. The
+    // lines moved by more than the vote's 0.06 cm⁻¹ window leave the offset to the two others.
+    const three = SRM2517A.filter((x) => x.b === 'P' && [19, 20, 21].includes(x.j));
+    const sigma = Math.hypot(
+      5e-5,
+      4.1e-7 * 380,
+      1e-4 * 1.1766462 * 420,
+      6.2e-10 * 380 ** 2,
+      1e-4 * 1.627e-6 * 420 ** 2,
+    );
+    expect(3 * sigma).toBeCloseTo(0.148, 3);
     const moved = (d: number) =>
       assignLinearLines(
         'C2H2',
         three.map((x, i) => ({ position: x.p + (i === 1 ? d : 0) })),
         { maxOffset: 0.1 },
       );
-    expect(labelsOf(moved(0.036))).toEqual(['P9', 'P10', 'P11']);
-    expect(labelsOf(moved(0.042))).toEqual(['P9', '-', 'P11']);
+    expect(labelsOf(moved(0.12))).toEqual(['P19', 'P20', 'P21']);
+    expect(labelsOf(moved(0.16))).toEqual(['P19', '-', 'P21']);
+  });
+
+  it('CO2: constants read without a stated σ count as 1e-6 relative (3σ of a ν3 line ≈ 0.007 cm⁻¹)', () => {
+    // R(4) of ν3: σ = 1e-6 × hypot(G′ 2349.1433, B′ × 30, B″ × 20, …) = 2.349e-3: 3σ = 0.00705, above the 0.005 floor.
+    const sigma = 1e-6 * Math.hypot(2349.1433, 0.3871414 * 30, 0.39021894 * 20, 1.33034e-7 * 900, 1.33373e-7 * 400);
+    expect(3 * sigma).toBeCloseTo(0.00705, 5);
+    const three = co2Nu3(6).filter((l) => l.b === 'R' && l.j >= 2);
+    expect(three.map((l) => `${l.b}${l.j}`)).toEqual(['R2', 'R4', 'R6']);
+    const moved = (d: number) =>
+      assignLinearLines(
+        'CO2',
+        three.map((l, i) => ({ position: l.p + (i === 1 ? d : 0) })),
+        { maxOffset: 0.1 },
+      );
+    expect(labelsOf(moved(0.0065))).toEqual(['R2', 'R4', 'R6']);
+    expect(labelsOf(moved(0.009))).toEqual(['R2', '-', 'R6']);
   });
 });
 
