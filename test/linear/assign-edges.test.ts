@@ -698,3 +698,27 @@ describe('the numbering check judges the fit’s scatter', () => {
     ]);
   });
 });
+
+describe('numberings tried when the first fails', () => {
+  it('a neighbour numbering with too few lines to fit does not count as passing', () => {
+    // P(1), R(0), R(1), R(2) shifted down by 3 × 2B″ = 1.217 cm⁻¹ (beyond a 0.5 cm⁻¹ search). Relative to the
+    // origin ν0 (2B″ steps, B′ ≈ B″) they sit at ν0 − 8B, −4B, −2B, 0. Read with offset +2B″ (0.406, within the
+    // search) they are P(5), P(3), P(2), P(1): four lines, a fit, B″ wrong. Its neighbours within 0.5 + B″: offset 0
+    // and −2B″ put one line in the band gap at ν0 (no line between P(1) and R(0)), leaving 3 lines, too few for a
+    // fit and so for a check; the numbering 3 × 2B″ away is out of reach. Nothing passes: nothing is assigned.
+    const S = 2 * 0.2028567424;
+    const r = assignLinearLines(
+      'OCS',
+      [nu1('P', 1), nu1('R', 0), nu1('R', 1), nu1('R', 2)].map((p) => ({ position: p - 3 * S })),
+      { maxOffset: 0.5 },
+    );
+    expect(labelsOf(r)).toEqual(['-', '-', '-', '-']);
+    expect(r.numbering.map((n) => n.ok)).toEqual([false]);
+    expect(r.warnings).toEqual([
+      "no numbering within ±0.5 cm-1 passes the check of the lower level's B against the library: lines left unassigned (a larger offset needs options.maxOffset)",
+      `numbering suspect: fitted B of 00⁰0 is ${(r.numbering[0]?.ratio as number).toFixed(4)} × the library's`,
+    ]);
+    // B″ of a numbering two lines off in four low-J lines: off by about 1 %.
+    expect(Math.abs((r.numbering[0]?.ratio as number) - 1)).toBeGreaterThan(3e-3);
+  });
+});
