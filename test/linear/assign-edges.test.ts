@@ -722,3 +722,39 @@ describe('numberings tried when the first fails', () => {
     expect(Math.abs((r.numbering[0]?.ratio as number) - 1)).toBeGreaterThan(3e-3);
   });
 });
+
+describe('predictions weaker than minRelativeIntensity are not sought', () => {
+  it('OCS ν1 to J″ = 60 with minRelativeIntensity 0.5: the weak low- and high-J lines stay unassigned', () => {
+    // Relative intensity (SCIENCE.md §5): S exp(−c₂E″/T) ν (1 − e^(−c₂ν/T)), S = J″ + 1 (R) or J″ (P), E″ = B″J″(J″+1),
+    // c₂ = 1.4388 cm K, T = 296 K. Against the strongest (R(21), J″ near √(kT/2hcB″)):
+    const I = (b: 'P' | 'R', j: number) => {
+      const nu = nu1(b, j);
+      return (
+        (b === 'R' ? j + 1 : j) * Math.exp((-1.4388 * F(C_GROUND, j)) / 296) * nu * -Math.expm1((-1.4388 * nu) / 296)
+      );
+    };
+    const lines = ocsNu1(60);
+    const top = Math.max(...lines.map((l) => I(l.b, l.j)));
+    expect(I('R', 0) / top).toBeLessThan(0.1);
+    expect(I('P', 1) / top).toBeLessThan(0.1);
+    expect(I('P', 60) / top).toBeLessThan(0.2);
+    expect(I('R', 60) / top).toBeLessThan(0.2);
+    expect(I('P', 20) / top).toBeGreaterThan(0.9);
+    expect(I('R', 20) / top).toBeGreaterThan(0.9);
+    const r = assignLinearLines(
+      'OCS',
+      lines.map((l) => ({ position: l.p })),
+      { minRelativeIntensity: 0.5 },
+    );
+    const at = (b: 'P' | 'R', j: number) => labelsOf(r)[lines.findIndex((l) => l.b === b && l.j === j)];
+    expect([at('R', 0), at('P', 1), at('P', 60), at('R', 60)]).toEqual(['-', '-', '-', '-']);
+    expect([at('P', 20), at('R', 20)]).toEqual(['P20', 'R20']);
+    // Every line sought is numbered as built, and only those above half the strongest are.
+    labelsOf(r).forEach((got, i) => {
+      const l = lines[i] as { b: 'P' | 'R'; j: number };
+      if (got !== '-') expect(got).toBe(`${l.b}${l.j}`);
+      if (I(l.b, l.j) / top < 0.45) expect(got).toBe('-');
+      if (I(l.b, l.j) / top > 0.55) expect(got).toBe(`${l.b}${l.j}`);
+    });
+  });
+});
