@@ -758,3 +758,45 @@ describe('predictions weaker than minRelativeIntensity are not sought', () => {
     });
   });
 });
+
+describe('the B″ allowed by the numbering check: 5 combined σ, at least 3e-4', () => {
+  it('CO2 ν3 (B″ read without σ: 1e-6 relative): a scale of 2e-4 about the origin passes, 4e-4 does not', () => {
+    // ν_obs = ν0 + (ν − ν0)(1 + s) scales every spacing, so the fitted B″ by 1 + s. Allowed: max(5 × 1e-6, 3e-4).
+    const lines = co2Nu3(40);
+    const scaled = (s: number) =>
+      assignLinearLines(
+        'CO2',
+        lines.map((l) => ({ position: 2349.1433 + (l.p - 2349.1433) * (1 + s) })),
+      );
+    const two = scaled(2e-4);
+    expect(labelsOf(two)).toEqual(lines.map((l) => `${l.b}${l.j}`));
+    expect((two.numbering[0]?.ratio as number) - 1).toBeCloseTo(2e-4, 8);
+    const four = scaled(4e-4);
+    expect(four.lines.every((l) => l.status === 'unassigned')).toBe(true);
+    expect((four.numbering[0]?.ratio as number) - 1).toBeCloseTo(4e-4, 8);
+    expect(four.numbering[0]?.ok).toBe(false);
+  });
+
+  it('C2H2 ν1+ν3 (recalled B″: 1e-4 relative, so 5σ ≈ 5e-4): the SRM 2517a centres scaled by 4e-4 pass, 6e-4 not', () => {
+    const scaled = (s: number) =>
+      assignLinearLines(
+        'C2H2',
+        SRM2517A.map((x) => ({ position: 6556.46432 + (x.p - 6556.46432) * (1 + s) })),
+      );
+    for (const [s, ok] of [
+      [4e-4, true],
+      [6e-4, false],
+    ] as const) {
+      const r = scaled(s);
+      const n = r.numbering[0];
+      // The rule: |ratio − 1| ≤ max(5 × hypot(σ of the fitted B″, 1e-4 × 1.1766462) / 1.1766462, 3e-4).
+      const allowed = Math.max((5 * Math.hypot(n?.fittedB.uncertainty as number, 1e-4 * 1.1766462)) / 1.1766462, 3e-4);
+      expect(allowed).toBeGreaterThan(5e-4);
+      expect(allowed).toBeLessThan(5.2e-4);
+      // The library's ν1+ν3 was fitted to these centres: ratio − 1 is s within 3e-5.
+      expect(Math.abs((n?.ratio as number) - 1 - s)).toBeLessThan(3e-5);
+      expect(n?.ok).toBe(ok);
+      expect(r.lines.every((l) => l.status === (ok ? 'assigned' : 'unassigned'))).toBe(true);
+    }
+  });
+});
