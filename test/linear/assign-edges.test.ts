@@ -800,3 +800,26 @@ describe('the B″ allowed by the numbering check: 5 combined σ, at least 3e-4'
     }
   });
 });
+
+describe('lines bent away from the model at the band’s ends', () => {
+  it('OCS ν1 to J″ = 60 with a ±1e-3 scatter and a nonlinearity beyond 12 cm⁻¹ from the origin', () => {
+    // Observed = term-value position + 1e-3 sin(2.4 i) + A (|ν − ν0| − 12)² beyond 12 cm⁻¹ from ν0 = 858.97 (an
+    // instrument's nonlinearity at the edges: A = 2e-4 gives 0.029 cm⁻¹ at J″ = 60, far beyond 4σ of the scatter
+    // about the reference prediction, so the edge lines are reached only through the fitted constants).
+    const lines = ocsNu1(60);
+    const bent = (A: number) =>
+      lines.map((l, i) => ({
+        position: l.p + 1e-3 * Math.sin(2.4 * i) + A * Math.max(0, Math.abs(l.p - 858.97) - 12) ** 2,
+      }));
+    const mild = assignLinearLines('OCS', bent(2e-4));
+    expect(labelsOf(mild)).toEqual(lines.map((l) => `${l.b}${l.j}`));
+    // Five times stronger (0.15 cm⁻¹ at J″ = 60): the edges may be left, but no line is numbered wrong and every line
+    // within 12 cm⁻¹ of the origin (no bend there) is assigned.
+    const strong = assignLinearLines('OCS', bent(1e-3));
+    labelsOf(strong).forEach((got, i) => {
+      const l = lines[i] as { b: 'P' | 'R'; j: number; p: number };
+      if (got !== '-') expect(got).toBe(`${l.b}${l.j}`);
+      if (Math.abs(l.p - 858.97) <= 12) expect(got).toBe(`${l.b}${l.j}`);
+    });
+  });
+});
