@@ -1,8 +1,9 @@
 // Mutation testing of the science (src/). Run with `npm run mutation`, or one folder at a time:
 //   npm run mutation -- --mutate 'src/derive/**/*.ts'
 // Not in CI: on two cores a folder takes from minutes to an hour. Incremental mode keeps the results of the last
-// run in test/mutation/incremental.json (committed), so only mutants in changed code, or covered by changed
-// tests, are tested again.
+// run of each folder in test/mutation/<folder>.json (committed; scripts/mutation.mjs passes it), so only mutants in
+// changed code, or covered by changed tests, are tested again. A run rewrites that file: commit it with the tests
+// it measured, or `git checkout test/mutation` to drop it.
 /** @type {import('@stryker-mutator/api/core').PartialStrykerOptions} */
 export default {
   testRunner: 'vitest',
@@ -19,6 +20,7 @@ export default {
   coverageAnalysis: 'perTest',
   ignoreStatic: true,
   incremental: true,
+  // Used only when stryker is run by hand without --incrementalFile; scripts/mutation.mjs always passes one.
   incrementalFile: 'test/mutation/incremental.json',
   concurrency: 1,
   timeoutMS: 20000,

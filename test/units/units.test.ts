@@ -71,6 +71,7 @@ describe('from wavenumber (predictions in the caller’s unit)', () => {
   it('cm⁻¹ passes through; frequencies multiply by 29 979.2458 MHz per cm⁻¹ (σ alike)', () => {
     expect(fromWavenumber(2143.27, 'cm-1', 0.001)).toEqual({ value: 2143.27, uncertainty: 0.001 });
     expect(fromWavenumber(2143.27, 'cm-1')).toEqual({ value: 2143.27 });
+    expect('uncertainty' in fromWavenumber(2143.27, 'cm-1')).toBe(false);
     const mhz = fromWavenumber(3.845033, 'MHz', 1e-6);
     expect(mhz.value).toBeCloseTo(3.845033 * 29979.2458, 6);
     expect(mhz.uncertainty).toBeCloseTo(1e-6 * 29979.2458, 12);
@@ -88,5 +89,17 @@ describe('from wavenumber (predictions in the caller’s unit)', () => {
     expect(nm.value).toBeCloseTo(4600, 9);
     expect(nm.uncertainty).toBeCloseTo(0.1, 9);
     expect(fromWavenumber(nu, 'nm')).toEqual({ value: 1e7 / nu });
+  });
+});
+
+describe("the science layer's error", () => {
+  it('carries its name, code, message and details (empty when none are given)', () => {
+    const e = new ScienceError('UNIT_INVALID', 'no such unit');
+    expect(e).toBeInstanceOf(Error);
+    expect(e.name).toBe('ScienceError');
+    expect(e.code).toBe('UNIT_INVALID');
+    expect(e.message).toBe('no such unit');
+    expect(e.details).toEqual({});
+    expect(new ScienceError('INPUT_INVALID', 'x', { point: 3 }).details).toEqual({ point: 3 });
   });
 });
