@@ -333,7 +333,8 @@ export function assignLinearLines(
   const offsetSigma = Math.min(est?.spread ?? maxOffset, spacing / 8);
   const ctx: Attempt = { species, ref, peaks, observed, libEntries, bands, usedBands, lo, hi, o, spacing };
   const first = attemptAssignment(ctx, est?.offset ?? 0, offsetSigma);
-  if (first.numbering.every((n) => n.ok) || cands.length === 0) return withWarnings(first, warnings);
+  if (first.numbering.every((n) => n.ok) || cands.length === 0)
+    return withWarnings(first, [...warnings, ...uncheckedNumbering(first, maxOffset, spacing)]);
   // The numbering check failed: searched over more than half a line spacing, the vote can land a whole spacing (or
   // several) off, where a shifted numbering explains the lines almost as well. Try the neighbouring numberings
   // within the range searched and keep one that passes, with most lines.
@@ -364,6 +365,19 @@ export function assignLinearLines(
     );
   }
   return withWarnings(best, warnings);
+}
+
+/**
+ * A warning when lines were numbered but no level could be fitted to check the numbering against the library's B″
+ * (fewer than four lines, or a fit that failed) while the offset was searched over more than half a line spacing:
+ * the vote may then have landed whole spacings off (three OCS lines came back two lines off without a word).
+ */
+function uncheckedNumbering(r: LinearAssignResult, maxOffset: number, spacing: number): string[] {
+  const n = r.lines.filter((l) => l.status === 'assigned').length;
+  if (n === 0 || r.numbering.length > 0 || maxOffset <= 0.5 * spacing) return [];
+  return [
+    `numbering not checked: ${n} line(s) assigned but no level fitted to compare its B with the library (a fit needs at least four lines, and it may fail); searched within ±${maxOffset} cm-1, more than half the line spacing (${spacing.toPrecision(3)} cm-1), the numbering may be whole lines off: send more lines or a smaller options.maxOffset`,
+  ];
 }
 
 /** The result with every line unassigned (the bands' predictions kept, nothing matched). */
@@ -879,7 +893,8 @@ function offsetAndScale(pts: readonly CalibrationPoint[]): {
   const design = new Float64Array(n * cols);
   pts.forEach((p, i) => {
     design[i] = 1;
-    if (useScale) design[n + i] = ((p.nu - centre) / centre) * 1e6; // scale in ppm
+    // d = offset + s·(ν − c): the coefficient of (ν − c) is the relative scale s, reported × 1e6 in ppm.
+    if (useScale) design[n + i] = p.nu - centre;
   });
   const fit = solveLeastSquares({
     rows: n,
@@ -896,8 +911,8 @@ function offsetAndScale(pts: readonly CalibrationPoint[]): {
     ...(useScale
       ? {
           scale: {
-            value: fit.coefficients[1] as number,
-            uncertainty: Math.sqrt(s2 * (fit.covariance[3] as number)),
+            value: (fit.coefficients[1] as number) * 1e6,
+            uncertainty: Math.sqrt(s2 * (fit.covariance[3] as number)) * 1e6,
           },
         }
       : {}),

@@ -76,21 +76,22 @@ const result = (lines: LinearAssignedLine[], extra: Partial<LinearAssignResult> 
 });
 
 /**
- * Weighted least squares of d on [1, z] with z = (ν − c)/c × 1e6 about the weighted centre c (the two columns are
- * then orthogonal under the weights), or on [1] alone; σ scaled by √(χ²/(n − cols)) when that exceeds 1.
+ * Weighted least squares of d on [1, z] with z = ν − c about the weighted centre c (the two columns are then
+ * orthogonal under the weights), or on [1] alone; σ scaled by √(χ²/(n − cols)) when that exceeds 1. The slope is
+ * the relative scale; scale and uScale are in ppm (× 1e6).
  */
 function handCalibration(pts: { nu: number; d: number; s: number }[], withScale: boolean) {
   const w = pts.map((p) => 1 / (p.s * p.s));
   const sw = w.reduce((a, b) => a + b, 0);
   const centre = pts.reduce((a, p, i) => a + (w[i] as number) * p.nu, 0) / sw;
-  const z = pts.map((p) => ((p.nu - centre) / centre) * 1e6);
+  const z = pts.map((p) => p.nu - centre);
   const a = pts.reduce((s, p, i) => s + (w[i] as number) * p.d, 0) / sw;
   const swzz = z.reduce((s, zi, i) => s + (w[i] as number) * zi * zi, 0);
   const b = withScale ? pts.reduce((s, p, i) => s + (w[i] as number) * (z[i] as number) * p.d, 0) / swzz : 0;
   const chi2 = pts.reduce((s, p, i) => s + (w[i] as number) * (p.d - a - b * (z[i] as number)) ** 2, 0);
   const cols = withScale ? 2 : 1;
   const s2 = Math.max(1, chi2 / (pts.length - cols));
-  return { centre, offset: a, uOffset: Math.sqrt(s2 / sw), scale: b, uScale: Math.sqrt(s2 / swzz), chi2 };
+  return { centre, offset: a, uOffset: Math.sqrt(s2 / sw), scale: b * 1e6, uScale: Math.sqrt(s2 / swzz) * 1e6, chi2 };
 }
 
 /** σ of a ν1 line's reference prediction from the stated σ of G, B, D of both levels (the rule of assign.ts). */
@@ -142,30 +143,35 @@ describe('calibration check on hand-made assignments', () => {
   });
 
   it('a scale error and a scatter larger than the stated σ: offset and scale coefficient, σ scaled by √(χ²/(n − 2))', () => {
-    const js = [2, 6, 10, 14, 18, 22, 26];
-    // Observed = reference × (1 + 40e-6) + 0.01, plus ±2e-4 alternating (stated σ 1e-4: χ²/dof ≫ 1).
+    const js = [5, 13, 21, 29, 37, 45, 53];
+    // Observed = reference × (1 + 40e-6) + 0.01, plus ±5e-5 alternating (stated σ 2.5e-5: χ²/dof > 1); J″ up to
+    // 53 spread the lines over about 45 cm⁻¹, so the scale is determined to about a ppm.
     const pts = js.flatMap((j, k) =>
       (['P', 'R'] as const).map((b, m) => {
         const ref = nu1(b, j);
-        return { b, j, ref, position: ref * (1 + 40e-6) + 0.01 + ((k + m) % 2 === 0 ? 2e-4 : -2e-4) };
+        return { b, j, ref, position: ref * (1 + 40e-6) + 0.01 + ((k + m) % 2 === 0 ? 5e-5 : -5e-5) };
       }),
     );
-    const peaks = pts.map((p) => ({ position: p.position, uncertainty: 1e-4 }));
+    const peaks = pts.map((p) => ({ position: p.position, uncertainty: 2.5e-5 }));
     const r = result(pts.map((p, i) => assigned(i, p.position, NU1, GROUND, p.b, p.j, 'e')));
     const cal = linearChecks(peaks, r, [])[1] as Check;
     const hand = handCalibration(
-      pts.map((p) => ({ nu: p.position, d: p.position - p.ref, s: Math.hypot(1e-4, nu1Sigma(p.b, p.j)) })),
+      pts.map((p) => ({ nu: p.position, d: p.position - p.ref, s: Math.hypot(2.5e-5, nu1Sigma(p.b, p.j)) })),
       true,
     );
     expect(hand.chi2 / (pts.length - 2)).toBeGreaterThan(1);
     const off = cal.measured.offset as { value: number; uncertainty: number };
     expect(off.value).toBeCloseTo(hand.offset, 9);
     expect(off.uncertainty / hand.uOffset).toBeCloseTo(1, 6);
-    // The coefficient on z = (ν − c)/c × 1e6 (the column assign.ts regresses on; test/MUTANTS.md reports that it
-    // is not the scale in ppm that its name says: here 40 ppm × c × 1e-12 ≈ 3.4e-8).
+    // The scale in ppm: the 40 ppm the list was made with, within 3σ (it read 3.4e-8 before the design column was
+    // fixed: the coefficient of (ν − c)/c × 1e6 is 40 ppm × c × 1e-12).
     const scale = cal.measured.scalePpm as { value: number; uncertainty: number };
     expect(scale.value / hand.scale).toBeCloseTo(1, 5);
     expect(scale.uncertainty / hand.uScale).toBeCloseTo(1, 6);
+    expect(Math.abs(scale.value - 40)).toBeLessThan(3 * scale.uncertainty);
+    expect(scale.uncertainty).toBeLessThan(10);
+    // 40 ppm against the default limit of 20 ppm, beyond it by more than 2u: the check fails.
+    expect(cal.status).toBe('fail');
   });
 
   it('three lines: offset only (no scale), σ scaled by √(χ²/2); four lines at one position: no scale either', () => {
@@ -226,11 +232,13 @@ describe('calibration check on hand-made assignments', () => {
       four.map(([b, j], i) => ({ nu: peaks[i]?.position as number, d: 0, s: Math.hypot(1e-3, nu1Sigma(b, j)) })),
       true,
     );
-    // With the default limit (20): determined, its σ that of the hand fit.
+    // With the default limit (20 ppm): σ of several hundred ppm over 1.3 cm⁻¹ is far above 20/3, so undetermined,
+    // its σ that of the hand fit.
     const cal = linearChecks(peaks, r, [])[1] as Check;
-    const u = (cal.measured.scalePpm as { uncertainty: number }).uncertainty;
+    expect(cal.measured.scalePpm).toBeUndefined();
+    const u = cal.measured.scaleUndeterminedPpm as number;
     expect(u / hand.uScale).toBeCloseTo(1, 6);
-    expect(cal.measured.scaleUndeterminedPpm).toBeUndefined();
+    expect(u).toBeGreaterThan(100);
     // A limit of 2σ: σ > limit/3 (though σ < 3 × limit): undetermined, its σ reported.
     const two = linearChecks(peaks, r, [], { calibrationScalePpm: 2 * u })[1] as Check;
     expect(two.measured.scalePpm).toBeUndefined();
@@ -460,8 +468,7 @@ describe('assignment of lists built from term values', () => {
     expect(four.fit?.statistics.fitted).toBe(4);
     expect(four.numbering.map((n) => [n.level, n.ok])).toEqual([['00⁰0', true]]);
     // Three lines: too few for the fit, so nothing checks the numbering; the search is kept within 0.1 cm⁻¹ (a
-    // quarter of 2B″), where no other numbering lies (test/MUTANTS.md: with the default ±1.2 these three come back
-    // two lines off, without a warning).
+    // quarter of 2B″), where no other numbering lies, and nothing is said.
     const three = assignLinearLines(
       'OCS',
       (
@@ -479,6 +486,21 @@ describe('assignment of lists built from term values', () => {
     expect(three.warnings).toEqual([]);
     // Assigned from the reference constants (the note's, which built the list): residuals below 1e-6 cm⁻¹.
     for (const l of three.lines) expect(Math.abs(l.residual ?? 1)).toBeLessThan(1e-6);
+    // With the default ±1.2 cm⁻¹ (three line spacings of 2B″ = 0.41) the same three lines may be numbered whole
+    // lines off, and they are: the answer says the numbering is unchecked and what to do.
+    const wide = assignLinearLines(
+      'OCS',
+      (
+        [
+          ['P', 1],
+          ['R', 0],
+          ['R', 1],
+        ] as const
+      ).map(([b, j]) => ({ position: nu1(b, j) })),
+    );
+    expect(wide.numbering).toEqual([]);
+    expect(wide.warnings.filter((w) => w.startsWith('numbering not checked: 3 line(s) assigned'))).toHaveLength(1);
+    expect(wide.warnings.join(' ')).toMatch(/searched within ±1\.2 cm-1, more than half the line spacing/);
   });
 
   it('a wavenumber scale off by 300 ppm: every line to J″ = 60 numbered as built', () => {
@@ -594,8 +616,10 @@ describe('band summaries, a failed fit and the unexplained share', () => {
     ]);
     expect(labelsOf(r)).toEqual([...lines.map((l) => `${l.b}${l.j}`), 'P52', '-']);
     // One line of 01¹0 cannot fix its G, B and D: the level fit is rank deficient and the reference predictions
-    // are kept (no fit, no numbering check).
-    expect(r.warnings).toEqual(['fit of the matched lines failed (FIT_RANK_DEFICIENT): reference predictions kept']);
+    // are kept (no fit, no numbering check), and the answer says the numbering of its 62 lines went unchecked.
+    expect(r.warnings).toHaveLength(2);
+    expect(r.warnings[0]).toMatch(/^numbering not checked: 62 line\(s\) assigned but no level fitted/);
+    expect(r.warnings[1]).toBe('fit of the matched lines failed (FIT_RANK_DEFICIENT): reference predictions kept');
     expect(r.fit).toBeUndefined();
     expect(r.numbering).toEqual([]);
     const band = (label: string) => r.bands.find((b) => b.label === label);
