@@ -26,11 +26,15 @@ const full = independentLines({
 const fewer = full.filter((_, i) => i % 25 !== 7);
 const sigmas = (f: ReturnType<typeof fitLineListDetailed>) => (f.result.scatter ?? []).map((g) => [g.group, g.sigma]);
 
-describe('scatter estimate reused between fits of a growing list', () => {
+/** The earlier fit (of the list less every 25th line), made inside each test so that a mutation run sees it. */
+function earlierFit() {
   const earlier = fitLineListDetailed(fewer, masses);
-  const estimate = earlier.scatterEstimate;
+  return { earlier, estimate: earlier.scatterEstimate };
+}
 
+describe('scatter estimate reused between fits of a growing list', () => {
   it('the earlier fit exposes its estimate, one σ per band, and the two bands differ as their noise does', () => {
+    const { earlier, estimate } = earlierFit();
     expect(estimate).toBeDefined();
     const s = sigmas(earlier);
     expect(s).toHaveLength(2);
@@ -41,8 +45,9 @@ describe('scatter estimate reused between fits of a growing list', () => {
   });
 
   it('within the growth allowed the earlier σ are taken as they were, and the groups report the lines they now hold', () => {
+    const { earlier, estimate } = earlierFit();
     const reused = fitLineListDetailed(full, masses, {
-      reuseScatter: { from: estimate as NonNullable<typeof estimate>, growth: 0.1 },
+      reuseScatter: { from: estimate as NonNullable<ReturnType<typeof earlierFit>['estimate']>, growth: 0.1 },
     });
     expect(sigmas(reused)).toEqual(sigmas(earlier));
     const lines = (f: typeof reused) => (f.result.scatter ?? []).reduce((n, g) => n + g.lines, 0);
@@ -51,9 +56,10 @@ describe('scatter estimate reused between fits of a growing list', () => {
   });
 
   it('beyond the growth allowed the scatter is estimated afresh: the same σ and constants as a fit without reuse', () => {
+    const { earlier, estimate } = earlierFit();
     const fresh = fitLineListDetailed(full, masses);
     const again = fitLineListDetailed(full, masses, {
-      reuseScatter: { from: estimate as NonNullable<typeof estimate>, growth: 0.01 },
+      reuseScatter: { from: estimate as NonNullable<ReturnType<typeof earlierFit>['estimate']>, growth: 0.01 },
     });
     expect(sigmas(again)).toEqual(sigmas(fresh));
     expect(sigmas(again)).not.toEqual(sigmas(earlier));
@@ -63,7 +69,10 @@ describe('scatter estimate reused between fits of a growing list', () => {
   it('a fit reusing its own estimate on the same lines gives the same constants to the last bit', () => {
     const fresh = fitLineListDetailed(full, masses);
     const same = fitLineListDetailed(full, masses, {
-      reuseScatter: { from: fresh.scatterEstimate as NonNullable<typeof estimate>, growth: 0 },
+      reuseScatter: {
+        from: fresh.scatterEstimate as NonNullable<ReturnType<typeof earlierFit>['estimate']>,
+        growth: 0,
+      },
     });
     expect(same.result.levels.map((l) => [l.B.value, l.B.uncertainty])).toEqual(
       fresh.result.levels.map((l) => [l.B.value, l.B.uncertainty]),
@@ -75,7 +84,10 @@ describe('scatter estimate reused between fits of a growing list', () => {
     const oneBand = full.filter((l) => l.assignment?.band.upper === 1);
     const first = fitLineListDetailed(oneBand, masses);
     const both = fitLineListDetailed(full, masses, {
-      reuseScatter: { from: first.scatterEstimate as NonNullable<typeof estimate>, growth: 10 },
+      reuseScatter: {
+        from: first.scatterEstimate as NonNullable<ReturnType<typeof earlierFit>['estimate']>,
+        growth: 10,
+      },
     });
     expect(sigmas(both)).toEqual(sigmas(fitLineListDetailed(full, masses)));
   });

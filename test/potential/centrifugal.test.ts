@@ -17,7 +17,11 @@ import { reducedMass } from '../../src/species/reduced-mass.js';
 const HCL: VibrationalSeries = { g: [2990.9463, -52.8186, 0.2243, -0.0122], b: [10.593416, -0.307181] };
 const C = ROTATIONAL_FACTOR / reducedMass(parseSpecies('HCl')).value;
 
-describe('B_v and D_v of the refined HCl curve from rotating levels (J = 0, 1, 2)', () => {
+/**
+ * The refined curve's levels for J = 0, 1, 2 (v ≤ 3). Computed inside each test, not while the file is collected,
+ * so that a mutation run (which switches a mutant on per test) sees it, and a failure is the test's, not the file's.
+ */
+function rotatingLevels() {
   const refined = refineRkrCurve({ series: HCL, hbar2Over2mu: C, vMax: 3, vTop: 6 });
   if (!refined) throw new Error('no refined curve');
   const model = rkrCurveModel(refined.series, C, 6);
@@ -25,13 +29,16 @@ describe('B_v and D_v of the refined HCl curve from rotating levels (J = 0, 1, 2
   const { from, to, step } = refined.check.grid;
   const levelsAt = (j: number) =>
     solveRadialLevels((r) => model.potential(r) + (C * j * (j + 1)) / (r * r), C, { from, to, step }, 4);
-  const [e0, e1, e2] = [0, 1, 2].map(levelsAt) as [
+  return [0, 1, 2].map(levelsAt) as [
     ReturnType<typeof levelsAt>,
     ReturnType<typeof levelsAt>,
     ReturnType<typeof levelsAt>,
   ];
+}
 
+describe('B_v and D_v of the refined HCl curve from rotating levels (J = 0, 1, 2)', () => {
   it('gives the ⟨1/r²⟩ B_v within 1e-6 relative once D_v is taken out (B_v from J = 0 → 1 alone is 1e-4 low)', () => {
+    const [e0, e1, e2] = rotatingLevels();
     for (let v = 0; v <= 3; v++) {
       const d1 = (e1[v]?.energy as number) - (e0[v]?.energy as number); // 2B − 4D
       const d2 = (e2[v]?.energy as number) - (e0[v]?.energy as number); // 6B − 36D
@@ -46,6 +53,7 @@ describe('B_v and D_v of the refined HCl curve from rotating levels (J = 0, 1, 2
   });
 
   it("gives D_v whose value at v = −½ is Huber & Herzberg's D_e within 0.5 %", () => {
+    const [e0, e1, e2] = rotatingLevels();
     const D = [0, 1, 2, 3].map((v) => {
       const d1 = (e1[v]?.energy as number) - (e0[v]?.energy as number);
       const d2 = (e2[v]?.energy as number) - (e0[v]?.energy as number);
