@@ -501,6 +501,10 @@ describe('assignment of lists built from term values', () => {
     expect(wide.numbering).toEqual([]);
     expect(wide.warnings.filter((w) => w.startsWith('numbering not checked: 3 line(s) assigned'))).toHaveLength(1);
     expect(wide.warnings.join(' ')).toMatch(/searched within ±1\.2 cm-1, more than half the line spacing/);
+    // Nothing assigned (lines where OCS has no band): no numbering to call unchecked.
+    const none = assignLinearLines('OCS', [{ position: 5000 }, { position: 5001.3 }, { position: 5002.9 }]);
+    expect(none.lines.every((l) => l.status === 'unassigned')).toBe(true);
+    expect(none.warnings.some((w) => w.startsWith('numbering not checked'))).toBe(false);
   });
 
   it('a wavenumber scale off by 300 ppm: every line to J″ = 60 numbered as built', () => {
