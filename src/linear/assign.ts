@@ -335,21 +335,7 @@ export function assignLinearLines(
   const first = attemptAssignment(ctx, est?.offset ?? 0, offsetSigma);
   if (first.numbering.every((n) => n.ok) || cands.length === 0)
     return withWarnings(first, [...warnings, ...uncheckedNumbering(first, maxOffset, spacing)]);
-  // The numbering check failed: searched over more than half a line spacing, the vote can land a whole spacing (or
-  // several) off, where a shifted numbering explains the lines almost as well. Try the neighbouring numberings
-  // within the range searched and keep one that passes, with most lines.
-  let best = first;
-  const passes = (r: LinearAssignResult) => r.numbering.length > 0 && r.numbering.every((n) => n.ok);
-  const assigned = (r: LinearAssignResult) => r.lines.filter((l) => l.status === 'assigned').length;
-  for (let k = 1; k * spacing <= 2 * maxOffset + spacing; k++) {
-    for (const sign of [1, -1]) {
-      const off = (est?.offset ?? 0) + sign * k * spacing;
-      if (Math.abs(off) > maxOffset + 0.5 * spacing) continue;
-      const alt = attemptAssignment(ctx, off, offsetSigma);
-      if ((passes(alt) && !passes(best)) || (passes(alt) === passes(best) && assigned(alt) > assigned(best)))
-        best = alt;
-    }
-  }
+  const best = bestNeighbourNumbering(ctx, first, est?.offset ?? 0, offsetSigma, maxOffset);
   if (!passes(best)) {
     // No numbering passes: an assignment that may be a whole line spacing off is worse than none.
     warnings.push(
@@ -365,6 +351,36 @@ export function assignLinearLines(
     );
   }
   return withWarnings(best, warnings);
+}
+
+/** A numbering passes when it has levels checked and every one agrees with the library. */
+const passes = (r: LinearAssignResult) => r.numbering.length > 0 && r.numbering.every((n) => n.ok);
+const assignedCount = (r: LinearAssignResult) => r.lines.filter((l) => l.status === 'assigned').length;
+
+/**
+ * The numbering check failed: searched over more than half a line spacing, the vote can land a whole spacing (or
+ * several) off, where a shifted numbering explains the lines almost as well. Tries the neighbouring numberings
+ * within the range searched and keeps one that passes, with most lines (the first when none does better).
+ */
+function bestNeighbourNumbering(
+  ctx: Attempt,
+  first: LinearAssignResult,
+  voted: number,
+  offsetSigma: number,
+  maxOffset: number,
+): LinearAssignResult {
+  let best = first;
+  const { spacing } = ctx;
+  for (let k = 1; k * spacing <= 2 * maxOffset + spacing; k++) {
+    for (const sign of [1, -1]) {
+      const off = voted + sign * k * spacing;
+      if (Math.abs(off) > maxOffset + 0.5 * spacing) continue;
+      const alt = attemptAssignment(ctx, off, offsetSigma);
+      if ((passes(alt) && !passes(best)) || (passes(alt) === passes(best) && assignedCount(alt) > assignedCount(best)))
+        best = alt;
+    }
+  }
+  return best;
 }
 
 /**
