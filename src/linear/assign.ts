@@ -430,7 +430,7 @@ function attemptAssignment(ctx: Attempt, offset: number, offsetSigma: number): L
   const { species, ref, peaks, observed, libEntries, bands, usedBands, lo, hi, o, spacing } = ctx;
   const warnings: string[] = [];
   let cands = predictCandidates(species, ref, libEntries, bands, lo, hi, o);
-  let tolFor = (c: Candidate) => Math.min(Math.max(4 * offsetSigma, 3 * c.sigma, 0.005), spacing / 3);
+  const tolFor = (c: Candidate) => Math.min(Math.max(4 * offsetSigma, 3 * c.sigma, 0.005), spacing / 3);
   let shifted = (c: Candidate) => c.position + offset;
   let matches = matchLines(
     cands.map((c) => ({ key: c.key, position: shifted(c), tolerance: tolFor(c) })),
@@ -454,36 +454,7 @@ function attemptAssignment(ctx: Attempt, offset: number, offsetSigma: number): L
     }
     fit = attempt;
     fittedKeys = keysOf(matches);
-    const fitted = fittedEntries(ref, fit);
-    const entries = libEntries.map((e) => ({
-      level: e.level,
-      constants: fitted.get(levelKey(e.level)) ?? e.constants,
-    }));
-    cands = predictCandidates(species, ref, entries, bands, lo, hi, o);
-    const rms = Math.max(fit.statistics.rms, 1e-5);
-    const jTop = new Map<string, number>();
-    for (const b of fit.bands) jTop.set(`${levelKey(b.upper)}>${levelKey(b.lower)}`, b.jRange[1]);
-    const bothFitted = (c: Candidate) => fitted.has(levelKey(c.line.upper)) && fitted.has(levelKey(c.line.lower));
-    shifted = (c: Candidate) => c.position + (bothFitted(c) ? 0 : offset);
-    tolFor = (c: Candidate) => {
-      if (!bothFitted(c)) return Math.min(Math.max(4 * offsetSigma, 3 * c.sigma, 0.005), spacing / 3);
-      const top = jTop.get(`${levelKey(c.line.upper)}>${levelKey(c.line.lower)}`) ?? 0;
-      const beyond = Math.max(0, c.line.j - top);
-      return Math.min(4 * rms * (1 + (beyond / 5) ** 2), spacing / 3);
-    };
-    // A line that carries its own σ (a peak finder's, a caller's) is also matched within 4 of them: the fit's rms
-    // can be far below what the lines state (a profile fit's σ), and a line within its own σ is no stranger. Each σ
-    // is capped at a twelfth of the line spacing so that 4σ stays within the spacing/3 of the other tolerances.
-    matches = matchLines(
-      cands.map((c) => ({
-        key: c.key,
-        position: shifted(c),
-        tolerance: tolFor(c),
-        tier: bothFitted(c) ? 0 : 1,
-        ...(bothFitted(c) ? { withSigma: { model: tolFor(c), perSigma: 4 } } : {}),
-      })),
-      cappedSigma,
-    ).matches;
+    ({ cands, shifted, matches } = matchAgainstFit(ctx, fit, offset, offsetSigma, cappedSigma));
     if (keysOf(matches) === fittedKeys) break;
   }
   // The last round may have moved lines: the reported fit is that of the final assignment.
@@ -503,6 +474,52 @@ function attemptAssignment(ctx: Attempt, offset: number, offsetSigma: number): L
     shifted,
     warnings,
   );
+}
+
+/**
+ * One round of refinement: the candidates predicted again from the levels the fit determined (the library's for the
+ * others), lines of fitted levels taken without the offset and within 4 × rms (growing beyond the J″ fitted), the
+ * others as before, and the matching made again.
+ */
+function matchAgainstFit(
+  ctx: Attempt,
+  fit: LinearFitResult,
+  offset: number,
+  offsetSigma: number,
+  cappedSigma: readonly ObservedPeak[],
+): { cands: Candidate[]; shifted: (c: Candidate) => number; matches: ReturnType<typeof matchLines>['matches'] } {
+  const { species, ref, libEntries, bands, lo, hi, o, spacing } = ctx;
+  const fitted = fittedEntries(ref, fit);
+  const entries = libEntries.map((e) => ({
+    level: e.level,
+    constants: fitted.get(levelKey(e.level)) ?? e.constants,
+  }));
+  const cands = predictCandidates(species, ref, entries, bands, lo, hi, o);
+  const rms = Math.max(fit.statistics.rms, 1e-5);
+  const jTop = new Map<string, number>();
+  for (const b of fit.bands) jTop.set(`${levelKey(b.upper)}>${levelKey(b.lower)}`, b.jRange[1]);
+  const bothFitted = (c: Candidate) => fitted.has(levelKey(c.line.upper)) && fitted.has(levelKey(c.line.lower));
+  const shifted = (c: Candidate) => c.position + (bothFitted(c) ? 0 : offset);
+  const tolFor = (c: Candidate) => {
+    if (!bothFitted(c)) return Math.min(Math.max(4 * offsetSigma, 3 * c.sigma, 0.005), spacing / 3);
+    const top = jTop.get(`${levelKey(c.line.upper)}>${levelKey(c.line.lower)}`) ?? 0;
+    const beyond = Math.max(0, c.line.j - top);
+    return Math.min(4 * rms * (1 + (beyond / 5) ** 2), spacing / 3);
+  };
+  // A line that carries its own σ (a peak finder's, a caller's) is also matched within 4 of them: the fit's rms
+  // can be far below what the lines state (a profile fit's σ), and a line within its own σ is no stranger. Each σ
+  // is capped at a twelfth of the line spacing so that 4σ stays within the spacing/3 of the other tolerances.
+  const matches = matchLines(
+    cands.map((c) => ({
+      key: c.key,
+      position: shifted(c),
+      tolerance: tolFor(c),
+      tier: bothFitted(c) ? 0 : 1,
+      ...(bothFitted(c) ? { withSigma: { model: tolFor(c), perSigma: 4 } } : {}),
+    })),
+    cappedSigma,
+  ).matches;
+  return { cands, shifted, matches };
 }
 
 /** The result, in stages: lines as matched → band summaries → numbering checks against the library → share unexplained. */
