@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { ScienceError } from '../../src/errors.js';
 import { fromWavenumber, type PositionUnit, toWavenumber } from '../../src/units.js';
+import { thrown } from '../helpers/thrown.js';
 
 /**
  * Position units against hand values. 1 cm⁻¹ = c · 1 cm⁻¹ = 29 979.2458 MHz exactly (c = 299 792 458 m/s, SI
@@ -9,15 +10,6 @@ import { fromWavenumber, type PositionUnit, toWavenumber } from '../../src/units
  * The ¹²C¹⁶O J = 1 ← 0 line: 3.845033 cm⁻¹ (HITRAN2020, test/fixtures/co-database-lines) and 115 271.2018 MHz
  * (laboratory microwave value, from memory).
  */
-const refusal = (f: () => unknown): ScienceError => {
-  try {
-    f();
-  } catch (e) {
-    if (e instanceof ScienceError) return e;
-    throw e;
-  }
-  throw new Error('no refusal');
-};
 
 describe('to wavenumber', () => {
   it('cm⁻¹ passes through, σ kept, and no σ key when none is given', () => {
@@ -55,12 +47,12 @@ describe('to wavenumber', () => {
 
   it('refuses a position that is not a positive finite number, and an unknown unit', () => {
     for (const v of [0, -1, Number.NaN, Number.POSITIVE_INFINITY]) {
-      const e = refusal(() => toWavenumber(v, 'cm-1'));
+      const e = thrown(() => toWavenumber(v, 'cm-1'));
       expect(e.code).toBe('INPUT_INVALID');
       expect(e.message).toBe(`position ${v} cm-1 must be a positive finite number`);
       expect(e.details).toEqual({ value: v });
     }
-    const e = refusal(() => toWavenumber(1, 'furlong' as PositionUnit));
+    const e = thrown(() => toWavenumber(1, 'furlong' as PositionUnit));
     expect(e.code).toBe('UNIT_INVALID');
     expect(e.message).toBe('unit "furlong" is not one of cm-1, MHz, GHz, THz, um, nm');
     expect(e.details).toEqual({ unit: 'furlong' });
