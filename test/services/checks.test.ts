@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { useApp } from '../helpers/app.js';
+import { seededRandom } from '../helpers/random.js';
 import { syntheticScan } from '../helpers/scans.js';
 
 const app = useApp();
@@ -52,6 +53,26 @@ describe('POST /v1/checks and POST /v1/predictions', () => {
     expect(gc.checks.map((c: { id: string; status: string; message: string }) => [c.id, c.status, c.message])).toEqual(
       rest.checks.map((c: { id: string; status: string; message: string }) => [c.id, c.status, c.message]),
     );
+  });
+
+  it('CO declared for 150 random lines (no σ, seeded): the fit warns ASSIGNMENT_NOT_BEYOND_CHANCE, identity fails', async () => {
+    const rnd = seededRandom(4242);
+    const lines = Array.from({ length: 150 }, () => ({ position: 2000 + 300 * rnd(), intensity: rnd() }));
+    const fit = await app().inject({ method: 'POST', url: '/v1/fits', payload: { species: 'CO', lines } });
+    expect(fit.statusCode).toBe(200);
+    const codes = fit.json().warnings.map((w: { code: string }) => w.code);
+    expect(codes).toContain('ASSIGNMENT_NOT_BEYOND_CHANCE');
+    const r = await app().inject({ method: 'POST', url: '/v1/checks', payload: { species: 'CO', lines } });
+    expect(r.statusCode).toBe(200);
+    const identity = r.json().checks[0];
+    expect(identity.id).toBe('identity');
+    expect(identity.status).toBe('fail');
+    expect(identity.message).toMatch(
+      /no more than lines at random would at this line density: the lines may not be 12C-16O/,
+    );
+    // The CO scan of this file is judged beyond chance: no such warning in its fit.
+    const real = await app().inject({ method: 'POST', url: '/v1/fits', payload: { species: 'CO', lines: scan.peaks } });
+    expect(real.json().warnings.map((w: { code: string }) => w.code)).not.toContain('ASSIGNMENT_NOT_BEYOND_CHANCE');
   });
 
   it('a check whose lines cannot be fitted still answers 200 with a failed identity', async () => {
