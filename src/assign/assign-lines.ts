@@ -206,12 +206,16 @@ export interface AssignContext {
   readonly free: readonly ObservedPeak[];
   readonly sources: readonly string[];
   readonly freeBySource: ReadonlyMap<string, readonly ObservedPeak[]>;
+  /** The same lists sorted by position, as matchLines sorts them (already in order, its sort is a single pass). */
+  readonly freeByPosition: ReadonlyMap<string, readonly ObservedPeak[]>;
   /** Per line, the number of its source in `sources` (−1 for a given line whose source no free line has). */
   readonly sourceNumbers: Int32Array;
   /** The library's Dunham coefficients per isotopologue (for the B_v test of strayBands). */
   readonly referenceDunham: ReadonlyMap<string, ReadonlyMap<string, number>>;
   /** The lines as the fit takes them before any automatic assignment (`lineInputs` adds those). */
   readonly inputs: readonly LineInput[];
+  /** The lines as the fit takes them with an automatic assignment, by pairKey (made once per pair, see autoInput). */
+  readonly autoInputs: Map<number, LineInput>;
   /** Median σ of the lines that carry one. */
   readonly typicalSigma: number | undefined;
   /** Whether reference predictions of every J are let in (the gap pass, see assignAndFit). */
@@ -263,6 +267,7 @@ export function prepareAssignment(
   const withSigma = peaks.flatMap((p) => (p.uncertainty !== undefined ? [p.uncertainty] : []));
   const sources = [...new Set(free.map((p) => sourceOf(p.index)))];
   const index = candidateIndex(cands, given);
+  const freeBySource = new Map(sources.map((s) => [s, free.filter((p) => sourceOf(p.index) === s)]));
   return {
     peaks,
     species,
@@ -277,9 +282,11 @@ export function prepareAssignment(
     given,
     free,
     sources,
-    freeBySource: new Map(sources.map((s) => [s, free.filter((p) => sourceOf(p.index) === s)])),
+    freeBySource,
+    freeByPosition: new Map([...freeBySource].map(([s, f]) => [s, [...f].sort((a, b) => a.position - b.position)])),
     sourceNumbers: Int32Array.from(peaks, (_, i) => sources.indexOf(sourceOf(i))),
     inputs: baseInputs(peaks),
+    autoInputs: new Map(),
     referenceDunham: referenceDunham(species),
     typicalSigma: withSigma.length > 0 ? robustMedian(withSigma) : undefined,
     wide: false,
@@ -357,12 +364,22 @@ const speciesNames = (ctx: AssignContext) => ctx.species.map((s) => s.iso.formul
 export function lineInputs(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>): LineInput[] {
   return ctx.inputs.map((base, index) => {
     const c = auto.get(index);
-    if (!c) return base;
-    return {
-      ...base,
+    return c ? autoInput(ctx, index, c) : base;
+  });
+}
+
+/** A line as the fit takes it with an automatic assignment: made once per pair (line, candidate) and kept in ctx. */
+export function autoInput(ctx: AssignContext, index: number, c: CandidateLine): LineInput {
+  const k = pairKey(ctx, index, c);
+  let line = ctx.autoInputs.get(k);
+  if (!line) {
+    line = {
+      ...(ctx.inputs[index] as LineInput),
       assignment: { species: c.species, band: c.band, branch: c.branch, j: c.j, source: 'auto' as const },
     };
-  });
+    ctx.autoInputs.set(k, line);
+  }
+  return line;
 }
 
 /** Each line as the fit takes it, given assignment included, without an automatic one (made once). */
@@ -395,8 +412,12 @@ export function ambiguousOffsetWarnings(offsets: OffsetVotes): Warning[] {
  * early fit that a wrong line had bent).
  */
 export function iterateAssignment(ctx: AssignContext, offsets: OffsetVotes, state: LoopState): void {
+  let proposed: ProposedMatches | undefined;
   for (let iter = 0; iter < 60; iter++) {
-    const round = matchRound(ctx, offsets, state, iter);
+    const round = stillProposed(proposed, state)
+      ? matchRound(ctx, offsets, state, iter, proposed)
+      : matchRound(ctx, offsets, state, iter);
+    proposed = round.proposed;
     state.competitions = round.competitions;
     const next = round.next;
     resolveDoublets(next, ctx.peaks);
@@ -450,40 +471,81 @@ export interface RoundModel {
   readonly detailed: DetailedFit | undefined;
 }
 
-/** One round of predictions matched one-to-one against the free lines of each source. */
+/**
+ * One round of predictions matched one-to-one against the free lines of each source, banned pairs left out. The
+ * matches before the bans (`proposed`) depend only on the last fit and assignment: a round whose model has not
+ * changed passes the last round's in (see iterateAssignment).
+ */
 export function matchRound(
   ctx: AssignContext,
   offsets: OffsetVotes,
   state: LoopState,
   iter: number,
-): { next: Map<number, CandidateLine>; competitions: Competition[] } {
-  const model: RoundModel = {
+  proposed: ProposedMatches = proposeMatches(ctx, offsets, state),
+): { next: Map<number, CandidateLine>; competitions: Competition[]; proposed: ProposedMatches } {
+  const next = new Map<number, CandidateLine>();
+  proposed.peaks.forEach((peak, m) => {
+    const c = ctx.cands[proposed.cands[m] as number] as CandidateLine;
+    if (!isBanned(state.banned, pairKey(ctx, peak, c), iter)) next.set(peak, c);
+  });
+  return { next, competitions: [...proposed.competitions], proposed };
+}
+
+/** A round's matches before the bans, in order: peak and candidate numbers, and the competitions. */
+export interface ProposedMatches {
+  readonly peaks: readonly number[];
+  readonly cands: readonly number[];
+  readonly competitions: readonly Competition[];
+  /** What they were predicted from. */
+  readonly detailed: DetailedFit | undefined;
+  readonly auto: ReadonlyMap<number, CandidateLine>;
+}
+
+/** Each source's predictions from the last fit and assignment (`roundModel`), matched to its free lines. */
+export function proposeMatches(ctx: AssignContext, offsets: OffsetVotes, state: LoopState): ProposedMatches {
+  const model = roundModel(ctx, state);
+  const out = { peaks: [] as number[], cands: [] as number[], competitions: [] as Competition[] };
+  const near = withinReach(ctx, model.reach);
+  ctx.sources.forEach((name, n) => {
+    const src: SourceRef = { name, n };
+    const preds: Prediction[] = [];
+    for (const ci of near) {
+      const p = predictionOf(ctx, offsets, model, ci, src);
+      if (p) preds.push(p);
+    }
+    const m = matchLines(preds, ctx.freeByPosition.get(name) ?? []);
+    for (const x of m.matches) {
+      out.peaks.push(x.peak.index);
+      // A prediction's key is its candidate's number (see predictionOf).
+      out.cands.push(Number(x.prediction.key));
+    }
+    out.competitions.push(...m.competitions);
+  });
+  return { ...out, detailed: state.detailed, auto: state.auto };
+}
+
+/** What a round predicts from: the reach and intensity scale of the assignment, the last fit and its residuals. */
+export function roundModel(ctx: AssignContext, state: LoopState): RoundModel {
+  return {
     reach: bandReach(ctx, state.auto),
     scale: intensityScales(state.auto, ctx.peaks),
     residuals: state.detailed ? residualStatistics(ctx, state.detailed, state.auto) : undefined,
     detailed: state.detailed,
   };
-  const next = new Map<number, CandidateLine>();
-  const competitions: Competition[] = [];
-  const near = withinReach(ctx, model.reach);
-  ctx.sources.forEach((name, n) => {
-    const candOf = new Map<Prediction, CandidateLine>();
-    const preds: Prediction[] = [];
-    for (const ci of near) {
-      const p = predictionOf(ctx, offsets, model, ci, { name, n });
-      if (!p) continue;
-      candOf.set(p, ctx.cands[ci] as CandidateLine);
-      preds.push(p);
-    }
-    const m = matchLines(preds, ctx.freeBySource.get(name) ?? []);
-    for (const x of m.matches) {
-      const c = candOf.get(x.prediction) as CandidateLine;
-      if (isBanned(state.banned, pairKey(ctx, x.peak.index, c), iter)) continue;
-      next.set(x.peak.index, c);
-    }
-    competitions.push(...m.competitions);
-  });
-  return { next, competitions };
+}
+
+/**
+ * Whether a round's proposed matches still hold: made from the same fit and from an assignment with the same pairs
+ * in the same order (the order of a band's intensity ratios is that of the map).
+ */
+export function stillProposed(p: ProposedMatches | undefined, state: LoopState): p is ProposedMatches {
+  if (!p || p.detailed !== state.detailed || p.auto.size !== state.auto.size) return false;
+  const a = p.auto.entries();
+  for (const [k, v] of state.auto) {
+    const [k0, v0] = a.next().value as [number, CandidateLine];
+    if (k0 !== k || v0 !== v) return false;
+  }
+  return true;
 }
 
 /**
@@ -532,13 +594,13 @@ export function predictionOf(
   if (ctx.candGiven[ci] === 1) return undefined;
   const c = ctx.cands[ci] as CandidateLine;
   const band = ctx.candBand[ci] as number;
-  const cand: CandidateRef = { c, ci, band, bk: ctx.bands[band] as string };
-  const bk = cand.bk;
   const b = model.reach[band] as number;
   const reach = b >= 0 ? b : undefined;
   // Beyond the farthest either placement may reach (a band without lines reaches from START_J): no prediction, and
   // none of the fit is asked for.
   if (!ctx.wide && outOfReach(c.j, reach ?? START_J)) return undefined;
+  const bk = ctx.bands[band] as string;
+  const cand: CandidateRef = { c, ci, band, bk };
   // A band whose two levels are both fitted (through other bands) is predicted by the fit, matched or not.
   const fitted = model.detailed?.predict(c);
   const r = reach ?? (fitted ? START_J : undefined);
@@ -553,7 +615,7 @@ export function predictionOf(
   // A band its positions establish is not held to another band's intensity scale before it has its own.
   const k = own ?? (offsets.of(bk, src.name).established ? undefined : classScale(model.scale, c, src.name));
   return {
-    // The candidate's number (matches are mapped back by the prediction object; the key only names it).
+    // The candidate's number: matchRound maps a match back to its candidate by it.
     key: String(ci),
     ...placed,
     ...(k !== undefined ? { intensity: k * c.intensity } : {}),

@@ -55,7 +55,10 @@ export function matchLines(
 ): { matches: Match[]; competitions: Competition[] } {
   const sorted = [...peaks].sort((a, b) => a.position - b.position);
   const pos = Float64Array.from(sorted, (p) => p.position);
-  const pairs: { cost: number; pi: number; ki: number }[] = [];
+  // Admissible pairs as parallel lists (cost, peak, prediction): no object per pair.
+  const costs: number[] = [];
+  const peakOf: number[] = [];
+  const predOf: number[] = [];
   let maxSigma = 0;
   for (const p of peaks) if (p.sigma !== undefined && p.sigma > maxSigma) maxSigma = p.sigma;
   predictions.forEach((pr, ki) => {
@@ -70,32 +73,37 @@ export function matchLines(
       if (Math.abs(r) > 1) continue;
       // The negative log-likelihood of a Gaussian: a vague prediction (a long extrapolation) must not take a peak
       // from a sharp one that explains it as well in units of its own tolerance.
-      let cost = r * r + 2 * Math.log(tol) + 100 * (pr.tier ?? 0);
+      let c = r * r + 2 * Math.log(tol) + 100 * (pr.tier ?? 0);
       if (pr.intensity !== undefined && pk.intensity !== undefined && pr.intensity > 0) {
         if (!(pk.intensity > 0)) continue;
         const lr = Math.log(pk.intensity / pr.intensity);
         if (Math.abs(lr) > Math.log(pr.intensityRatioLimit ?? INTENSITY_RATIO_LIMIT)) continue;
-        cost += 0.5 * lr * lr;
+        c += 0.5 * lr * lr;
       }
-      pairs.push({ cost, pi: i, ki });
+      costs.push(c);
+      peakOf.push(i);
+      predOf.push(ki);
     }
   });
-  pairs.sort((a, b) => a.cost - b.cost);
+  // A stable sort of the pairs' numbers by cost: ties keep the order in which the pairs were found.
+  const order = Array.from(costs, (_, n) => n).sort((a, b) => (costs[a] as number) - (costs[b] as number));
   const usedPeak = new Map<number, number>();
   const usedPred = new Map<number, number>();
   const matches: Match[] = [];
   const competitions: Competition[] = [];
-  for (const p of pairs) {
-    const pk = sorted[p.pi] as ObservedPeak;
-    const pr = predictions[p.ki] as Prediction;
-    if (usedPeak.has(p.pi)) continue;
-    const winner = usedPred.get(p.ki);
+  for (const n of order) {
+    const pi = peakOf[n] as number;
+    const ki = predOf[n] as number;
+    const pk = sorted[pi] as ObservedPeak;
+    const pr = predictions[ki] as Prediction;
+    if (usedPeak.has(pi)) continue;
+    const winner = usedPred.get(ki);
     if (winner !== undefined) {
       competitions.push({ peak: pk.index, winner: (sorted[winner] as ObservedPeak).index, prediction: pr.key });
       continue;
     }
-    usedPeak.set(p.pi, p.ki);
-    usedPred.set(p.ki, p.pi);
+    usedPeak.set(pi, ki);
+    usedPred.set(ki, pi);
     matches.push({ prediction: pr, peak: pk, residual: pk.position - pr.position });
   }
   // A competition whose loser was matched elsewhere is no competition worth reporting.
