@@ -23,6 +23,7 @@ import {
   referenceDunham,
   referencePrediction,
   residualStatistics,
+  stillProposed,
   tryFit,
   voteOffsets,
   widenSeeds,
@@ -660,6 +661,40 @@ describe('one round: predictions and matches', () => {
     expect(d.competitions).toHaveLength(1);
     expect(d.competitions[0]?.winner).toBe(r0);
     expect(d.competitions[0]?.peak).toBe(lines.length);
+  });
+
+  it("a round passed the last round's matches applies the bans anew; they stand while fit and assignment do", () => {
+    const lines = band('1-0', 10);
+    const ctx = coContext(lines.map((l) => ({ position: l.position + 0.02 })));
+    const offsets = voteOffsets(
+      ctx.cands.filter((c, i) => ctx.seedable[i] && c.j <= 4),
+      ctx.freeBySource,
+      ctx.maxOffset,
+      ctx.minLines,
+    );
+    const state: LoopState = {
+      auto: new Map(),
+      detailed: undefined,
+      detailedIsOfAuto: false,
+      competitions: [],
+      swept: false,
+      banned: new Map(),
+    };
+    const first = matchRound(ctx, offsets, state, 0);
+    expect(stillProposed(first.proposed, state)).toBe(true);
+    const c3 = first.next.get(3) as CandidateLine;
+    state.banned.set(pairKey(ctx, 3, c3), { at: 0, count: 3 });
+    const reused = matchRound(ctx, offsets, state, 5, first.proposed);
+    const fresh = matchRound(ctx, offsets, state, 5);
+    expect(reused.next.has(3)).toBe(false);
+    expect([...reused.next]).toEqual([...fresh.next]);
+    expect(reused.competitions).toEqual(fresh.competitions);
+    // Another assignment (the same pairs in another order, or one pair more) or another fit: made afresh.
+    const auto = new Map([...first.next].reverse());
+    expect(stillProposed(first.proposed, { ...state, auto })).toBe(false);
+    expect(stillProposed(first.proposed, { ...state, auto: first.next })).toBe(false);
+    expect(stillProposed(fresh.proposed, { ...state, detailed: {} as DetailedFit })).toBe(false);
+    expect(stillProposed(undefined, state)).toBe(false);
   });
 });
 
