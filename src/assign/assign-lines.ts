@@ -413,10 +413,16 @@ export function ambiguousOffsetWarnings(offsets: OffsetVotes): Warning[] {
  */
 export function iterateAssignment(ctx: AssignContext, offsets: OffsetVotes, state: LoopState): void {
   let proposed: ProposedMatches | undefined;
+  // The residual statistics of state.detailed over state.auto, when the last round left both as it judged them.
+  let residuals: ResidualStatistics | undefined;
   for (let iter = 0; iter < 60; iter++) {
-    const round = stillProposed(proposed, state)
-      ? matchRound(ctx, offsets, state, iter, proposed)
-      : matchRound(ctx, offsets, state, iter);
+    const round = matchRound(
+      ctx,
+      offsets,
+      state,
+      iter,
+      stillProposed(proposed, state) ? proposed : proposeMatches(ctx, offsets, state, residuals),
+    );
     proposed = round.proposed;
     state.competitions = round.competitions;
     const next = round.next;
@@ -426,9 +432,12 @@ export function iterateAssignment(ctx: AssignContext, offsets: OffsetVotes, stat
     if (next.size === 0 && ctx.given.length === 0) break;
     const fit = roundFit(ctx, state, next);
     if (!fit) break;
-    const rejected = withdrawRejected(ctx, fit, next, state.banned, iter);
+    const stats = residualStatistics(ctx, fit, next);
+    const rejected = withdrawRejected(ctx, fit, next, state.banned, iter, stats);
     const stray = withdrawStrayBands(ctx, fit, next, state.banned, iter);
     const withdrawn = rejected + stray;
+    // Nothing withdrawn: the fit stays that of `next`, which the statistics were taken over.
+    residuals = withdrawn === 0 ? stats : undefined;
     const same = withdrawn === 0 && sameAssignments(state.auto, next);
     state.auto = next;
     const refit = withdrawn > 0 ? tryFit(ctx, lineInputs(ctx, next), fit.scatterEstimate) : fit;
@@ -502,8 +511,13 @@ export interface ProposedMatches {
 }
 
 /** Each source's predictions from the last fit and assignment (`roundModel`), matched to its free lines. */
-export function proposeMatches(ctx: AssignContext, offsets: OffsetVotes, state: LoopState): ProposedMatches {
-  const model = roundModel(ctx, state);
+export function proposeMatches(
+  ctx: AssignContext,
+  offsets: OffsetVotes,
+  state: LoopState,
+  residuals?: ResidualStatistics,
+): ProposedMatches {
+  const model = roundModel(ctx, state, residuals);
   const out = { peaks: [] as number[], cands: [] as number[], competitions: [] as Competition[] };
   const near = withinReach(ctx, model.reach);
   ctx.sources.forEach((name, n) => {
@@ -524,12 +538,15 @@ export function proposeMatches(ctx: AssignContext, offsets: OffsetVotes, state: 
   return { ...out, detailed: state.detailed, auto: state.auto };
 }
 
-/** What a round predicts from: the reach and intensity scale of the assignment, the last fit and its residuals. */
-export function roundModel(ctx: AssignContext, state: LoopState): RoundModel {
+/**
+ * What a round predicts from: the reach and intensity scale of the assignment, the last fit and its residuals (when
+ * known, those of the last fit over the assignment).
+ */
+export function roundModel(ctx: AssignContext, state: LoopState, residuals?: ResidualStatistics): RoundModel {
   return {
     reach: bandReach(ctx, state.auto),
     scale: intensityScales(state.auto, ctx.peaks),
-    residuals: state.detailed ? residualStatistics(ctx, state.detailed, state.auto) : undefined,
+    residuals: state.detailed ? (residuals ?? residualStatistics(ctx, state.detailed, state.auto)) : undefined,
     detailed: state.detailed,
   };
 }
@@ -727,9 +744,9 @@ export function withdrawRejected(
   next: Map<number, CandidateLine>,
   banned: LoopState['banned'],
   iter: number,
+  stats: ResidualStatistics = residualStatistics(ctx, fit, next),
 ): number {
   let withdrawn = 0;
-  const stats = residualStatistics(ctx, fit, next);
   for (const l of fit.result.lines) {
     const c = next.get(l.index);
     if (c && l.status === 'rejected' && !explained(ctx, fit, stats, c, l)) {
