@@ -127,9 +127,7 @@ function withUnitAdvice(e: ScienceError, request: FastifyRequest): ScienceError 
       .toLowerCase() ?? '';
   const body = request.body;
   const spectrum =
-    body instanceof RawBody
-      ? body.text.includes('"spectrum"')
-      : typeof body === 'object' && body !== null && 'spectrum' in body;
+    body instanceof RawBody ? body.namesSpectrum : typeof body === 'object' && body !== null && 'spectrum' in body;
   const advice = (CSV_TYPES as readonly string[]).includes(type)
     ? `name the unit in the CSV header (${spectrum ? '"wavelength (um),absorbance"' : '"position (um)"'}) or send ?unit=um`
     : (JCAMP_TYPES as readonly string[]).includes(type)

@@ -21,6 +21,8 @@ export interface RunOptions {
   readonly signal?: AbortSignal;
   /** The request was admitted (and its size reserved) before its body was read: no second admission. */
   readonly admitted?: boolean;
+  /** Buffers moved to the worker with the job, not copied (a large body's bytes); unusable here afterwards. */
+  readonly transfer?: readonly ArrayBuffer[];
 }
 
 export interface Pool {
@@ -82,7 +84,7 @@ export function createPool(config: Config): Pool {
   const unwrap = <T>(r: JobResult): T => {
     if (r.ok) return r.value as T;
     if ('nonFinite' in r) throw new NonFiniteResult(r.nonFinite.quantity, r.nonFinite.value);
-    if ('budget' in r) throw new NeedsBudget(r.budget);
+    if ('budget' in r) throw new NeedsBudget(r.budget, r.bytes);
     if ('validation' in r) {
       const errors = r.validation;
       throw new HttpProblem(
@@ -131,7 +133,8 @@ export function createPool(config: Config): Pool {
       const signals = [deadline, options.signal].filter((s): s is AbortSignal => s !== undefined);
       const signal = signals.length > 0 ? AbortSignal.any(signals) : undefined;
       try {
-        return unwrap<T>((await piscina.run(job, signal ? { signal } : {})) as JobResult);
+        const transferList = options.transfer ? { transferList: [...options.transfer] } : {};
+        return unwrap<T>((await piscina.run(job, { ...(signal ? { signal } : {}), ...transferList })) as JobResult);
       } catch (e) {
         if (deadline?.aborted)
           throw new HttpProblem(
@@ -161,7 +164,11 @@ export { jobSize } from './job-size.js';
  * many; the caller reserves the rest of the budget or refuses, then runs the job again.
  */
 export class NeedsBudget extends Error {
-  constructor(readonly lines: number) {
+  constructor(
+    readonly lines: number,
+    /** The body's bytes, moved back from the worker for the run that follows. */
+    readonly bytes?: Uint8Array,
+  ) {
     super(`the body holds ${lines} lines, more than were reserved for it`);
   }
 }

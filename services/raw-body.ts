@@ -1,22 +1,36 @@
+import { Buffer } from 'node:buffer';
 import { ScienceError } from '../src/errors.js';
 import type { Config } from './config.js';
 import { CSV_TYPES, JCAMP_TYPES, textBodyToJson } from './text-bodies.js';
 
 /**
- * A large body left unparsed on the event loop: the worker that does the work also parses it (JSON, JCAMP-DX or
- * CSV), validates it with the route's schema and serialises the answer, so that none of those steps, each
- * proportional to the size of the body, freezes /healthz or the other requests.
+ * A large body left unparsed on the event loop: the worker that does the work also decodes it (UTF-8), parses it
+ * (JSON, JCAMP-DX or CSV), validates it with the route's schema and serialises the answer, so that none of those
+ * steps, each proportional to the size of the body, freezes /healthz or the other requests. The bytes as read are
+ * moved to the worker (transferred, not copied; services/rest/timed.ts), where a string of tens of MB was decoded
+ * here, copied into the worker's message and out of it again.
  */
 export class RawBody {
+  /** The body's bytes, in an ArrayBuffer of their own (so that it can be transferred). */
+  readonly bytes: Uint8Array;
+  /** Whether the body holds a `"spectrum"` key, read before the bytes leave (for the advice of an error). */
+  readonly namesSpectrum: boolean;
   constructor(
-    readonly text: string,
+    body: Uint8Array,
     readonly contentType: string,
     readonly query: Record<string, unknown>,
-  ) {}
-  /** Estimated size in lines, for admission and the metrics: about 100 bytes a line (a spectrum point 20). */
-  get size(): number {
-    return Math.ceil(this.text.length / 100);
+  ) {
+    this.bytes = body.byteOffset === 0 && body.byteLength === body.buffer.byteLength ? body : body.slice();
+    this.size = Math.ceil(body.byteLength / 100);
+    this.namesSpectrum = Buffer.from(body.buffer, body.byteOffset, body.byteLength).includes('"spectrum"');
   }
+  /** Estimated size in lines, for admission and the metrics: about 100 bytes a line (a spectrum point 20). */
+  readonly size: number;
+}
+
+/** The body's text: UTF-8 decoded as fastify decodes a body it parses itself (invalid bytes become U+FFFD). */
+export function bodyText(bytes: Uint8Array): string {
+  return Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength).toString('utf8');
 }
 
 /** Deepest JSON nesting accepted; the contract's bodies need 4 levels. */
@@ -58,13 +72,14 @@ export function tooDeep(): Error {
 export type Limits = Pick<Config, 'maxLines' | 'maxPoints'>;
 
 /** The body as the route's JSON, parsed where it is called (in a worker for large bodies). */
-export function decodeBody(raw: Pick<RawBody, 'text' | 'contentType' | 'query'>, limits: Limits): unknown {
+export function decodeBody(raw: Pick<RawBody, 'bytes' | 'contentType' | 'query'>, limits: Limits): unknown {
+  const text = bodyText(raw.bytes);
   const type = raw.contentType.split(';')[0]?.trim().toLowerCase() ?? '';
   if ((JCAMP_TYPES as readonly string[]).includes(type) || (CSV_TYPES as readonly string[]).includes(type))
-    return textBodyToJson(type, raw.text, raw.query, limits);
+    return textBodyToJson(type, text, raw.query, limits);
   let parsed: unknown;
   try {
-    parsed = JSON.parse(raw.text);
+    parsed = JSON.parse(text);
   } catch (e) {
     throw new ScienceError('INPUT_INVALID', `the body is not valid JSON: ${(e as Error).message.slice(0, 200)}`, {});
   }

@@ -35,7 +35,8 @@ export type Job =
 export interface RawJob {
   readonly kind: 'raw';
   readonly route: 'fit' | 'check' | 'report' | 'peaks';
-  readonly text: string;
+  /** The body's bytes (a view on a SharedArrayBuffer: services/raw-body.ts). */
+  readonly bytes: Uint8Array;
   readonly contentType: string;
   readonly query: Record<string, unknown>;
   readonly limits: Limits;
@@ -60,7 +61,7 @@ export type JobResult =
   | { ok: true; value: unknown }
   | { ok: false; error: { code: string; message: string; details: Record<string, unknown> } }
   | { ok: false; nonFinite: { quantity: string; value: string } }
-  | { ok: false; budget: number }
+  | { ok: false; budget: number; bytes?: Uint8Array }
   | { ok: false; validation: { path: string; message: string }[] };
 
 class NeedsBudget extends Error {
@@ -191,7 +192,11 @@ function failed(e: unknown): JobResult {
  */
 export default async function runInWorker(job: Job): Promise<JobResult | ReturnType<typeof move>> {
   const r = await runJob(job);
-  if (!r.ok || job.kind !== 'raw') return r;
+  if (job.kind !== 'raw') return r;
+  // A body that must wait for more budget goes back with its bytes (they were moved here) for the next run.
+  if (!r.ok && 'budget' in r)
+    return move({ [transferableSymbol]: job.bytes.buffer, [valueSymbol]: { ...r, bytes: job.bytes } });
+  if (!r.ok) return r;
   const bytes = (r.value as RawAnswer).body;
   return move({ [transferableSymbol]: bytes.buffer, [valueSymbol]: r });
 }

@@ -35,14 +35,16 @@ export function parseBodies(app: FastifyInstance, config: Config): void {
   // text/plain to the schema as a string ("expected object, received string"); now it is a 415 naming the types.
   app.removeContentTypeParser('text/plain');
   const defaultJson = app.getDefaultJsonParser('error', 'error');
-  // Large bodies of the work routes go to a worker unparsed (services/raw-body.ts).
-  const offload = (req: { url: string }, body: string) =>
+  // Large bodies of the work routes go to a worker unparsed, as bytes (services/raw-body.ts); the others are decoded
+  // here exactly as fastify decodes a body it reads as a string (UTF-8, invalid bytes as U+FFFD).
+  const offload = (req: { url: string }, body: Buffer) =>
     config.workers > 0 && config.offloadBytes > 0 && body.length >= config.offloadBytes && req.url.includes('/v1/');
-  app.addContentTypeParser('application/json', { parseAs: 'string' }, (req, body, done) => {
-    if (offload(req, body as string))
-      return done(null, new RawBody(body as string, 'application/json', req.query as Record<string, unknown>));
-    defaultJson(req, body as string, (err: Error | null, parsed?: unknown) => {
-      if (err) return done(forbiddenPropertyOr(err, body as string), undefined);
+  app.addContentTypeParser('application/json', { parseAs: 'buffer' }, (req, bytes, done) => {
+    if (offload(req, bytes as Buffer))
+      return done(null, new RawBody(bytes as Buffer, 'application/json', req.query as Record<string, unknown>));
+    const body = (bytes as Buffer).toString('utf8');
+    defaultJson(req, body, (err: Error | null, parsed?: unknown) => {
+      if (err) return done(forbiddenPropertyOr(err, body), undefined);
       try {
         if (jsonDepth(parsed) > MAX_JSON_DEPTH) return done(tooDeep(), undefined);
       } catch (e) {
@@ -51,18 +53,18 @@ export function parseBodies(app: FastifyInstance, config: Config): void {
       done(null, parsed);
     });
   });
-  app.addContentTypeParser([...JCAMP_TYPES, ...CSV_TYPES], { parseAs: 'string' }, (req, body, done) => {
-    if (offload(req, body as string))
+  app.addContentTypeParser([...JCAMP_TYPES, ...CSV_TYPES], { parseAs: 'buffer' }, (req, bytes, done) => {
+    if (offload(req, bytes as Buffer))
       return done(
         null,
-        new RawBody(body as string, String(req.headers['content-type']), req.query as Record<string, unknown>),
+        new RawBody(bytes as Buffer, String(req.headers['content-type']), req.query as Record<string, unknown>),
       );
     try {
       done(
         null,
         textBodyToJson(
           String(req.headers['content-type'] ?? ''),
-          body as string,
+          (bytes as Buffer).toString('utf8'),
           req.query as Record<string, unknown>,
           config,
         ),

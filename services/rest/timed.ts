@@ -48,7 +48,7 @@ export async function answerRawBody(
   const job: RawJob = {
     kind: 'raw',
     route,
-    text: raw.text,
+    bytes: raw.bytes,
     contentType: raw.contentType,
     query: raw.query,
     limits: { maxLines: config.maxLines, maxPoints: config.maxPoints },
@@ -59,20 +59,23 @@ export async function answerRawBody(
   // Admission reserved the Content-Length's estimate (or the pool reserves it now); the worker checks it against
   // the lines it parses and, when there are more, the rest is reserved before the job runs again.
   const estimate = req.admittedLines ?? Math.max(raw.size, config.workerThreshold);
-  const run = (reservedLines: number, admitted: boolean) =>
+  // The bytes move to the worker with the job (services/raw-body.ts); a job stopped for more budget sends them back.
+  const run = (reservedLines: number, admitted: boolean, bytes: Uint8Array) =>
     timed(app, route, reservedLines, () =>
-      app.pool.run<RawAnswer>({ ...job, reservedLines }, reservedLines, {
+      app.pool.run<RawAnswer>({ ...job, bytes, reservedLines }, reservedLines, {
         ...workOptions(req, reply),
         admitted,
+        transfer: [bytes.buffer as ArrayBuffer],
       }),
     );
   let a: RawAnswer;
   try {
-    a = await run(estimate, req.admittedLines !== undefined);
+    a = await run(estimate, req.admittedLines !== undefined, raw.bytes);
   } catch (e) {
     if (!(e instanceof NeedsBudget)) throw e;
+    const bytes = e.bytes ?? raw.bytes;
     const held = req.admittedLines;
-    if (held === undefined) a = await run(e.lines, false);
+    if (held === undefined) a = await run(e.lines, false, bytes);
     else {
       const extra = e.lines - held;
       if (!app.pool.reserveMore(held, extra))
@@ -80,7 +83,7 @@ export async function answerRawBody(
           `${app.pool.activeLines} lines are being processed and this request adds ${e.lines}, more than its Content-Length suggested (MAX_ACTIVE_LINES ${config.maxActiveLines})`,
         );
       reply.raw.once('close', () => app.pool.release(extra));
-      a = await run(e.lines, true);
+      a = await run(e.lines, true, bytes);
     }
   }
   if (a.verdict) app.metrics.verdicts.labels(a.verdict).inc();

@@ -1,5 +1,6 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
+import { DEFAULT_CONFIG } from '../../services/config.js';
 import { useApp } from '../helpers/app.js';
 import { CO_DATABASE } from '../helpers/co-database.js';
 import { CO_12_16, termValue } from '../helpers/independent-lines.js';
@@ -220,6 +221,21 @@ describe('the 422 for positions that read like µm gives the remedy for the body
     const r2 = await app().inject({ method: 'POST', url: '/v1/fits', payload: { species: 'CO', lines } });
     expect(r2.statusCode).toBe(422);
     expect(r2.json().detail).toMatch(/send "unit": "um"$/);
+  });
+
+  it('the same advice for a JSON spectrum too large for the event loop (parsed in a worker, its bytes moved there)', async () => {
+    // The advice reads the body's form before its bytes leave for the worker (services/raw-body.ts).
+    const spectrum = { x: Array.from(coSpectrum.x, um), y: Array.from(coSpectrum.y) };
+    const payload = JSON.stringify({ species: 'CO', spectrum });
+    expect(payload.length).toBeGreaterThan(DEFAULT_CONFIG.offloadBytes);
+    const r = await app().inject({
+      method: 'POST',
+      url: '/v1/fits',
+      payload,
+      headers: { 'content-type': 'application/json' },
+    });
+    expect(r.statusCode).toBe(422);
+    expect(r.json().detail).toMatch(/send "spectrum": \{"xUnit": "um", …\}$/);
   });
 });
 

@@ -116,6 +116,29 @@ describe('large bodies off the event loop', () => {
     await hurried.close();
   });
 
+  it("a large body's bytes are moved to the worker, not copied: after the job, the request's copy is empty", async () => {
+    const a = await buildApp();
+    const sent: Uint8Array[] = [];
+    const run = a.pool.run.bind(a.pool);
+    a.pool.run = (job, size, options) => {
+      if (job.kind === 'raw') sent.push(job.bytes);
+      return run(job, size, options);
+    };
+    const payload = JSON.stringify(large);
+    const r = await a.inject({
+      method: 'POST',
+      url: '/v1/fits',
+      payload,
+      headers: { 'content-type': 'application/json' },
+    });
+    expect(r.statusCode).toBe(200);
+    expect(r.json().statistics.lines).toBe(large.lines.length);
+    expect(sent).toHaveLength(1);
+    // A transferred ArrayBuffer is detached on this side: a copied one would still hold the body.
+    expect(sent[0]?.byteLength).toBe(0);
+    await a.close();
+  });
+
   it('a large body is run once: the handler ends with the answer of the worker (no second, inline run after it)', async () => {
     // Regression: the handler awaited the reply (a thenable, which resolves to undefined once the response is
     // written) and went on to run the use case again, inline, on the unparsed body.
