@@ -631,13 +631,33 @@ export function predictionOf(
   const own = model.scale.get(scaleKey(bk, src.name));
   // A band its positions establish is not held to another band's intensity scale before it has its own.
   const k = own ?? (offsets.of(bk, src.name).established ? undefined : classScale(model.scale, c, src.name));
-  return {
-    // The candidate's number: matchRound maps a match back to its candidate by it.
+  return keyedPrediction(ci, placed, k !== undefined ? k * c.intensity : undefined, own === undefined);
+}
+
+/**
+ * A placement as the matcher takes it, keyed by the candidate's number (proposeMatches maps a match back to its
+ * candidate by it), with the expected intensity when known (held to BAND_RATIO_LIMIT when it is another band's
+ * scale). Built member by member: object spreads cost more than the rest of a prediction here.
+ */
+export function keyedPrediction(
+  ci: number,
+  placed: Placement,
+  intensity: number | undefined,
+  borrowedScale: boolean,
+): Prediction {
+  const p: { -readonly [K in keyof Prediction]: Prediction[K] } = {
     key: String(ci),
-    ...placed,
-    ...(k !== undefined ? { intensity: k * c.intensity } : {}),
-    ...(own === undefined && k !== undefined ? { intensityRatioLimit: BAND_RATIO_LIMIT } : {}),
+    position: placed.position,
+    tolerance: placed.tolerance,
   };
+  if (placed.withSigma !== undefined) p.withSigma = placed.withSigma;
+  if (placed.tier !== undefined) p.tier = placed.tier;
+  if (placed.intensity !== undefined) p.intensity = placed.intensity;
+  if (placed.intensityRatioLimit !== undefined) p.intensityRatioLimit = placed.intensityRatioLimit;
+  if (intensity === undefined) return p;
+  p.intensity = intensity;
+  if (borrowedScale) p.intensityRatioLimit = BAND_RATIO_LIMIT;
+  return p;
 }
 
 export type Placement = Omit<Prediction, 'key'>;
@@ -1706,10 +1726,13 @@ export function intensityScales(
     const obs = peaks[i]?.intensity;
     if (obs === undefined || !(obs > 0)) continue;
     const k = scaleKey(bandKey(c), peaks[i]?.source ?? '');
-    classOf.set(k, scaleKey(`#${bandClass(c)}`, peaks[i]?.source ?? ''));
-    const list = ratios.get(k) ?? [];
-    list.push(obs / c.intensity);
-    ratios.set(k, list);
+    const list = ratios.get(k);
+    if (list) list.push(obs / c.intensity);
+    else {
+      // The band (and so its class) and the source make the key: its class's key is made once.
+      ratios.set(k, [obs / c.intensity]);
+      classOf.set(k, scaleKey(`#${bandClass(c)}`, peaks[i]?.source ?? ''));
+    }
   }
   const out = new Map<string, number>();
   const best = new Map<string, number>();
