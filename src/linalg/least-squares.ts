@@ -184,11 +184,7 @@ function solveSystem(
   const covariance = covarianceFrom(rinv, perm, scale, p);
   const residuals = merged ? residualsByGroup(merged, observations, coefficients, p) : observations.slice();
   if (!merged) subtractDesignTimes(residuals, sys.design, coefficients, n, p);
-  let chiSquare = 0;
-  for (let i = 0; i < n; i++) {
-    const e = residuals[i] as number;
-    chiSquare += e * e * (weights ? (weights[i] as number) : 1);
-  }
+  const chiSquare = weightedSquares(residuals, weights);
   // Every array these read is this solve's own (the caller's design and weights are never modified).
   const allLeverages = () => {
     const h = leveragesOf(sys.rows, p, sys.design, sys.weights, rinv, perm, scale);
@@ -434,6 +430,14 @@ function subtractDesignTimes(y: Float64Array, design: Columns, x: Float64Array, 
   }
 }
 
+/** Σ wᵢ eᵢ² (wᵢ = 1 without weights), summed in row order. */
+function weightedSquares(e: Float64Array, weights: Float64Array | undefined): number {
+  let sum = 0;
+  if (weights) for (let i = 0; i < e.length; i++) sum += (e[i] as number) * (e[i] as number) * (weights[i] as number);
+  else for (let i = 0; i < e.length; i++) sum += (e[i] as number) * (e[i] as number);
+  return sum;
+}
+
 /** hᵢᵢ = ‖row i of Ã R⁻¹‖², Ã the weighted, scaled, permuted design; built one column of Ã R⁻¹ at a time. */
 function leveragesOf(
   n: number,
@@ -482,22 +486,17 @@ function compressRows(
   weights: Float64Array | undefined,
 ): MergedRows | undefined {
   if (n < 64 || n < 4 * p) return undefined;
-  const groups = groupsByKey(design, n, p, n / 2);
+  const groups = groupsOfRows(design, n, p, n / 2);
   if (!groups) return undefined;
   const { group, firstRow } = groups;
   const m = firstRow.length;
+  const all = new Float64Array(m * p);
   const merged: Float64Array[] = [];
   for (let j = 0; j < p; j++) {
     const c = design[j] as Float64Array;
-    const out = new Float64Array(m);
+    const out = all.subarray(j * m, j * m + m);
     for (let g = 0; g < m; g++) out[g] = c[firstRow[g] as number] as number;
     merged.push(out);
-  }
-  // Equal keys are checked for equal rows, column by column; a collision (never seen) means no merging.
-  for (let j = 0; j < p; j++) {
-    const c = design[j] as Float64Array;
-    const out = merged[j] as Float64Array;
-    for (let i = 0; i < n; i++) if (c[i] !== out[group[i] as number]) return undefined;
   }
   return mergeGroups(merged, m, group, observations, weights);
 }
@@ -524,54 +523,111 @@ function mergeGroups(
 }
 
 /**
- * Rows grouped by an exact key: each row's projection on fixed weights, summed column by column (identical rows
- * give bit-identical keys; different rows almost never do, and the caller checks). Open addressing on the key's
- * bits in a table that doubles as groups appear. Returns each row's group and each group's first row; undefined
- * once there are more than `most` groups.
+ * Hash of every row from the bits of its entries (multiply, xor and shift, column by column into `h`, a scratch of length
+ * n); the sign bit is left out so that 0 and −0, which compare equal, hash alike.
  */
-function groupsByKey(design: Columns, n: number, p: number, most: number) {
-  const key = new Float64Array(n);
+function rowHashes(design: Columns, n: number, p: number, h: Int32Array): void {
+  h.fill(0x811c9dc5 | 0);
   for (let j = 0; j < p; j++) {
     const c = design[j] as Float64Array;
-    const w = 1 + j * 0.6180339887498949;
-    for (let i = 0; i < n; i++) key[i] = (key[i] as number) + (c[i] as number) * w;
-  }
-  const bits = new Int32Array(key.buffer);
-  let size = 64;
-  let table = new Int32Array(size).fill(-1);
-  const group = new Int32Array(n);
-  const firstRow = new Int32Array(Math.floor(most) + 1);
-  const keys = new Float64Array(Math.floor(most) + 1);
-  let m = 0;
-  const slotOf = (i: number) => Math.imul((bits[2 * i] as number) ^ (bits[2 * i + 1] as number), 0x9e3779b1) >>> 0;
-  for (let i = 0; i < n; i++) {
-    const k = key[i] as number;
-    let slot = slotOf(i) & (size - 1);
-    for (;;) {
-      const g = table[slot] as number;
-      if (g < 0) {
-        if (m >= most) return undefined;
-        table[slot] = m;
-        firstRow[m] = i;
-        keys[m] = k;
-        group[i] = m++;
-        if (2 * m > size) {
-          size *= 2;
-          table = new Int32Array(size).fill(-1);
-          for (let g2 = 0; g2 < m; g2++) {
-            let s2 = slotOf(firstRow[g2] as number) & (size - 1);
-            while ((table[s2] as number) >= 0) s2 = (s2 + 1) & (size - 1);
-            table[s2] = g2;
-          }
-        }
-        break;
-      }
-      if (keys[g] === k) {
-        group[i] = g;
-        break;
-      }
-      slot = (slot + 1) & (size - 1);
+    const w = new Int32Array(c.buffer, c.byteOffset, 2 * n);
+    for (let i = 0; i < n; i++) {
+      const x = Math.imul((h[i] as number) ^ (w[2 * i] as number), 0x01000193);
+      const y = Math.imul(x ^ ((w[2 * i + 1] as number) & 0x7fffffff), 0x9e3779b1);
+      h[i] = y ^ (y >>> 16);
     }
+  }
+}
+
+/** The final avalanche of MurmurHash3 (Appleby): every bit of the result depends on every bit of h. */
+function finalMix(h: number): number {
+  let x = Math.imul(h ^ (h >>> 16), 0x85ebca6b);
+  x = Math.imul(x ^ (x >>> 13), 0xc2b2ae35);
+  return x ^ (x >>> 16);
+}
+
+function sameRow(design: Columns, p: number, a: number, b: number): boolean {
+  for (let j = 0; j < p; j++) {
+    const c = design[j] as Float64Array;
+    if (c[a] !== c[b]) return false;
+  }
+  return true;
+}
+
+/** One grow-only integer buffer for the grouping's scratch (hashes, table, first rows), as `workspace`. */
+let intPool = new Int32Array(0);
+function intWorkspace(length: number): Int32Array {
+  if (intPool.length < length) intPool = new Int32Array(Math.max(length, Math.ceil(intPool.length * 1.5)));
+  return intPool;
+}
+
+/**
+ * Open-addressing table of group numbers keyed by the hash of each group's first row, doubled in place as groups
+ * appear (re-filled from the groups' hashes). Its arrays are views into the integer workspace.
+ */
+class RowTable {
+  size = 64;
+  readonly slots: Int32Array;
+  readonly hashes: Int32Array;
+  constructor(scratch: Int32Array, most: number) {
+    this.hashes = scratch.subarray(0, most + 1);
+    this.slots = scratch.subarray(most + 1);
+    this.slots.fill(-1, 0, this.size);
+  }
+  insert(g: number, hash: number): void {
+    this.hashes[g] = hash;
+    this.place(g, hash);
+    if (2 * (g + 1) > this.size) this.grow(g + 1);
+  }
+  private place(g: number, hash: number): void {
+    let s = hash & (this.size - 1);
+    while ((this.slots[s] as number) >= 0) s = (s + 1) & (this.size - 1);
+    this.slots[s] = g;
+  }
+  private grow(m: number): void {
+    this.size *= 2;
+    this.slots.fill(-1, 0, this.size);
+    for (let g = 0; g < m; g++) this.place(g, this.hashes[g] as number);
+  }
+}
+
+/** Length of the table for at most `most` groups: the power of two the doublings stop at. */
+function tableLength(most: number): number {
+  let size = 64;
+  while (2 * most >= size) size *= 2;
+  return size;
+}
+
+/**
+ * Rows grouped exactly, in one pass: each row is hashed from its bits and compared entry by entry with the first
+ * row of each group whose hash it meets (identical rows only share a group). Returns each row's group (numbered in
+ * order of first appearance) and each group's first row (a view into the integer workspace, valid until the next
+ * grouping); undefined once there are more than `most` groups.
+ */
+function groupsOfRows(design: Columns, n: number, p: number, most: number) {
+  const cap = Math.floor(most) + 1;
+  const scratch = intWorkspace(n + 2 * cap + 1 + tableLength(cap));
+  const hashes = scratch.subarray(0, n);
+  rowHashes(design, n, p, hashes);
+  const firstRow = scratch.subarray(n, n + cap);
+  const table = new RowTable(scratch.subarray(n + cap), cap);
+  const group = new Int32Array(n);
+  let m = 0;
+  for (let i = 0; i < n; i++) {
+    const hash = finalMix(hashes[i] as number) | 0;
+    let s = hash & (table.size - 1);
+    let g = table.slots[s] as number;
+    while (g >= 0 && ((table.hashes[g] as number) !== hash || !sameRow(design, p, firstRow[g] as number, i))) {
+      s = (s + 1) & (table.size - 1);
+      g = table.slots[s] as number;
+    }
+    if (g < 0) {
+      if (m >= most) return undefined;
+      g = m++;
+      firstRow[g] = i;
+      table.insert(g, hash);
+    }
+    group[i] = g;
   }
   return { group, firstRow: firstRow.subarray(0, m) };
 }
