@@ -154,3 +154,55 @@ describe('column pivoting picks the column with the largest remaining norm (Busi
     expect([...g].sort()).toEqual([0, 1, 2]);
   });
 });
+
+describe('rows are grouped by their entries, compared exactly', () => {
+  it('0 and −0 are the same entry: a straight line through x ∈ {±0, 1, 2, 3} is merged to 4 rows and fits in closed form', () => {
+    // 128 rows, columns (1, x), x cycling through 0, 1, 2, 3 with every other 0 written as −0.
+    const n = 128;
+    const u = seededRandom(7);
+    const design = new Float64Array(2 * n);
+    const plus = new Float64Array(2 * n);
+    const y = new Float64Array(n);
+    const w = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      const x = i % 4;
+      design[i] = 1;
+      design[n + i] = x === 0 && i % 8 === 0 ? -0 : x;
+      plus[i] = 1;
+      plus[n + i] = x;
+      y[i] = 2 + 0.5 * x + 0.01 * (u() - 0.5);
+      w[i] = 1 + u();
+    }
+    const counted = solveCount.value;
+    const r = solveLeastSquares({ rows: n, cols: 2, design, observations: y, weights: w, leverage: true });
+    const r0 = solveLeastSquares({ rows: n, cols: 2, design: plus, observations: y, weights: w, leverage: true });
+    expect(solveCount.value - counted).toBe(2);
+    // Bit for bit the design written with +0 only: the −0 rows joined the groups of the +0 rows.
+    expect([...r.coefficients]).toEqual([...r0.coefficients]);
+    expect([...(r.leverages ?? [])]).toEqual([...(r0.leverages ?? [])]);
+    // Weighted straight line in closed form: slope = Σw(x−x̄)(y−ȳ) / Σw(x−x̄)², intercept = ȳ − slope·x̄.
+    let sw = 0;
+    let sx = 0;
+    let sy = 0;
+    for (let i = 0; i < n; i++) {
+      sw += w[i] as number;
+      sx += (w[i] as number) * (plus[n + i] as number);
+      sy += (w[i] as number) * (y[i] as number);
+    }
+    const xm = sx / sw;
+    const ym = sy / sw;
+    let sxy = 0;
+    let sxx = 0;
+    for (let i = 0; i < n; i++) {
+      const dx = (plus[n + i] as number) - xm;
+      sxy += (w[i] as number) * dx * ((y[i] as number) - ym);
+      sxx += (w[i] as number) * dx * dx;
+    }
+    const slope = sxy / sxx;
+    expect(r.coefficients[1]).toBeCloseTo(slope, 12);
+    expect(r.coefficients[0]).toBeCloseTo(ym - slope * xm, 12);
+    // Leverages of a straight line: hᵢ = wᵢ (1/Σw + (xᵢ − x̄)² / Σw(x−x̄)²), summing to 2.
+    const h0 = (w[0] as number) * (1 / sw + xm ** 2 / sxx);
+    expect(r.leverages?.[0]).toBeCloseTo(h0, 12);
+  });
+});
