@@ -10,7 +10,6 @@
  */
 import { execFileSync } from 'node:child_process';
 import { mkdirSync, writeFileSync } from 'node:fs';
-import { performance } from 'node:perf_hooks';
 import { analyseLineList } from '../src/assign/analyse.js';
 import { fitLineList, type LineInput } from '../src/fit/fit-lines.js';
 import { solveCount, solveLeastSquares } from '../src/linalg/least-squares.js';
@@ -53,14 +52,15 @@ function lineList(n: number, bands: number): LineInput[] {
 
 /**
  * CPU milliseconds per call (process.cpuUsage: the time this process ran, which the other work on a shared machine
- * does not inflate the way it inflates wall time): after a warm-up of at least 50 ms (so that the optimising
- * compiler, which runs on other threads of this process, has done its work), the mean over as many calls as make up
- * minMs of CPU time (a quarter with BENCH_QUICK=1), at least 3.
+ * does not inflate the way it inflates wall time), in the steady state a running service is in: after a warm-up of
+ * WARM_MS of CPU time (1 s; 0.5 s with BENCH_QUICK=1) and at least 3 calls, then the mean over as many calls as make
+ * up minMs of CPU time (a quarter with BENCH_QUICK=1), at least 3. The optimising compiler and the collector run on
+ * other threads of this process and count in its CPU time: a 50-line fitLineList measured after the 50 ms warm-up
+ * used before cost 2.0–2.7 ms per call, and settled at 0.65 ms (wall 0.48 ms) only after about 2 s of calls, most of
+ * the difference being compilation (bench/run.ts, 2026-12-04).
  */
 function time(f: () => void, minMs = 300): number {
-  const warm = performance.now();
-  do f();
-  while (performance.now() - warm < 50);
+  warmUp(f);
   const target = quick ? minMs / 4 : minMs;
   const c0 = process.cpuUsage();
   let calls = 0;
@@ -69,6 +69,17 @@ function time(f: () => void, minMs = 300): number {
     calls++;
   }
   return cpuMs(process.cpuUsage(c0)) / calls;
+}
+
+const WARM_MS = quick ? 500 : 1000;
+
+function warmUp(f: () => void): void {
+  const c0 = process.cpuUsage();
+  let calls = 0;
+  while (calls < 3 || cpuMs(process.cpuUsage(c0)) < WARM_MS) {
+    f();
+    calls++;
+  }
 }
 
 const cpuMs = (u: NodeJS.CpuUsage) => (u.user + u.system) / 1000;

@@ -9,6 +9,7 @@ import {
 } from '../fit/fit-lines.js';
 import type { ScatterEstimate } from '../fit/weights.js';
 import { solveLeastSquares } from '../linalg/least-squares.js';
+import { copyFloats, copyInts, floats, ints, mapFloats, mapInts } from '../linalg/small-arrays.js';
 import { formatBand, type Transition, transitionKey, transitionLabel } from '../models/transitions.js';
 import { constantsFor, dunhamFromEntry } from '../species/library.js';
 import type { Isotopologue } from '../species/parse.js';
@@ -284,7 +285,7 @@ export function prepareAssignment(
     sources,
     freeBySource,
     freeByPosition: new Map([...freeBySource].map(([s, f]) => [s, [...f].sort((a, b) => a.position - b.position)])),
-    sourceNumbers: Int32Array.from(peaks, (_, i) => sources.indexOf(sourceOf(i))),
+    sourceNumbers: mapInts(peaks, (_, i) => sources.indexOf(sourceOf(i))),
     inputs: baseInputs(peaks),
     autoInputs: new Map(),
     referenceDunham: referenceDunham(species),
@@ -304,7 +305,7 @@ export function candidateIndex(
   given: readonly { readonly t: Transition }[],
 ): Pick<AssignContext, 'candBand' | 'bands' | 'candIndex' | 'candGiven' | 'bandCands'> {
   const number = new Map<string, number>();
-  const candBand = new Int32Array(cands.length);
+  const candBand = ints(cands.length);
   let last: CandidateLine | undefined;
   cands.forEach((c, ci) => {
     // Lines of one band come together and share its band object: the key is made once per band, not per line.
@@ -329,7 +330,7 @@ export function candidateIndex(
   return {
     candBand,
     bandCands: members.map((m) =>
-      Int32Array.from(m.sort((x, y) => (cands[x] as CandidateLine).j - (cands[y] as CandidateLine).j || x - y)),
+      copyInts(m.sort((x, y) => (cands[x] as CandidateLine).j - (cands[y] as CandidateLine).j || x - y)),
     ),
     bands: [...number.keys()],
     candIndex: new Map(cands.map((c, i) => [c, i])),
@@ -579,12 +580,12 @@ export function withinReach(ctx: AssignContext, reach: Int32Array): Int32Array {
       out.push(ci);
     }
   });
-  return Int32Array.from(out).sort();
+  return copyInts(out).sort();
 }
 
 /** Highest J″ assigned per band (by number; −1 when none), automatic or given. */
 export function bandReach(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>): Int32Array {
-  const reach = new Int32Array(ctx.bands.length).fill(-1);
+  const reach = ints(ctx.bands.length).fill(-1);
   const raise = (b: number | undefined, j: number) => {
     if (b !== undefined && j > (reach[b] as number)) reach[b] = j;
   };
@@ -1038,7 +1039,7 @@ export function noteIntensityRefusals(
 ): void {
   const scale = intensityScales(auto, ctx.peaks);
   const seeds = ctx.cands.filter((_, ci) => ctx.seedable[ci]).sort((a, b) => a.position - b.position);
-  const at = Float64Array.from(seeds, (c) => c.position);
+  const at = mapFloats(seeds, (c) => c.position);
   for (const i of unexplained) {
     const p = ctx.peaks[i] as PeakInput;
     if (p.intensity === undefined || !(p.intensity > 0) || ctx.intensityLeftOut.has(i)) continue;
@@ -1232,7 +1233,7 @@ export function voteOffsets(
       ambiguous: est !== undefined && est.runnerUpVotes > 0.7 * est.votes,
     };
     bySource.set(src, choice);
-    const sorted = Float64Array.from(observed).sort();
+    const sorted = copyFloats(observed).sort();
     for (const [bk, list] of bands) {
       const top = [...list].sort((a, b) => b.intensity - a.intensity).slice(0, voters.band);
       let use: OffsetChoice = choice;
@@ -1344,7 +1345,7 @@ export function isNear(sorted: Float64Array, x: number, tol: number): boolean {
 export function claimedByOthers(seeds: readonly CandidateLine[], band: string, offset: number): Float64Array {
   const out: number[] = [];
   for (const c of seeds) if (bandKey(c) !== band) out.push(c.position + offset);
-  return Float64Array.from(out).sort();
+  return copyFloats(out).sort();
 }
 
 /** The best offset a band's own strong predictions find among the free peaks, and how many they then match. */
@@ -1359,7 +1360,7 @@ export function bestBandOffset(
   const tol = Math.min(Math.max(4 * est.spread, 0.03), 0.3);
   return {
     offset: round(est.offset),
-    matches: countNear(strong, Float64Array.from(observed).sort(), est.offset, tol),
+    matches: countNear(strong, copyFloats(observed).sort(), est.offset, tol),
   };
 }
 
@@ -1793,7 +1794,7 @@ export function calibrationFromPoints(pts: readonly CalibrationPoint[], referenc
   const withScale = span >= 0.01 * centre && pts.length >= 4;
   const n = pts.length;
   const cols = withScale ? 2 : 1;
-  const design = new Float64Array(n * cols);
+  const design = floats(n * cols);
   pts.forEach((p, i) => {
     design[i] = 1;
     if (withScale) design[n + i] = p.reference - centre;
@@ -1802,8 +1803,8 @@ export function calibrationFromPoints(pts: readonly CalibrationPoint[], referenc
     rows: n,
     cols,
     design,
-    observations: Float64Array.from(pts, (p) => p.observed - p.reference),
-    weights: Float64Array.from(w),
+    observations: mapFloats(pts, (p) => p.observed - p.reference),
+    weights: copyFloats(w),
   });
   if (r.rankDeficient) return undefined;
   const s2 = n > cols ? r.chiSquare / (n - cols) : 1;

@@ -7,6 +7,8 @@
  * or two predictions for one peak, the losers are recorded so that the response can say why.
  */
 
+import { floats } from '../linalg/small-arrays.js';
+
 export interface Prediction {
   readonly key: string;
   readonly position: number;
@@ -55,7 +57,7 @@ export function matchLines(
 ): { matches: Match[]; competitions: Competition[] } {
   const sorted = [...peaks].sort((a, b) => a.position - b.position);
   // Filled by a plain loop: Float64Array.from with a mapping function is several times slower here.
-  const pos = new Float64Array(sorted.length);
+  const pos = floats(sorted.length);
   for (let i = 0; i < sorted.length; i++) pos[i] = (sorted[i] as ObservedPeak).position;
   // Admissible pairs as parallel lists (cost, peak, prediction): no object per pair.
   const costs: number[] = [];

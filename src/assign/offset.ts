@@ -1,3 +1,4 @@
+import { copyFloats } from '../linalg/small-arrays.js';
 import { lowerBound } from './match.js';
 
 export interface OffsetEstimate {
@@ -22,7 +23,7 @@ export function estimateOffset(
   maxOffset: number,
   window: number,
 ): OffsetEstimate | undefined {
-  const obs = Float64Array.from(observed).sort();
+  const obs = copyFloats(observed).sort();
   const diffs: { d: number; w: number }[] = [];
   for (const p of predicted) {
     const lo = lowerBound(obs, p.position - maxOffset);

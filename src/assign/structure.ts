@@ -1,6 +1,7 @@
 import { ScienceError } from '../errors.js';
 import { type FitResult, fitLineListDetailed, type LineInput } from '../fit/fit-lines.js';
 import { solveLeastSquares } from '../linalg/least-squares.js';
+import { copyFloats, floats, mapFloats } from '../linalg/small-arrays.js';
 import type { Band, Branch } from '../models/transitions.js';
 import type { MassValue } from '../species/reduced-mass.js';
 import { chiSquareSurvival } from '../stats/distributions.js';
@@ -147,7 +148,7 @@ export function assignByStructure(
   const order = peaks
     .map((p, index) => ({ index, position: p.position, intensity: p.intensity ?? 1 }))
     .sort((a, b) => a.position - b.position);
-  const pos = Float64Array.from(order, (p) => p.position);
+  const pos = mapFloats(order, (p) => p.position);
   const chains = progressions(order, pos);
   if (chains.length === 0) return undefined;
   const ctx: StructureContext = { peaks, species, band, anchors, masses: new Map([[species, mass]]), pos };
@@ -568,7 +569,7 @@ export function differenceIntercept(
   }
   const n = xs.length;
   const fitWith = (cols: number) => {
-    const design = new Float64Array(n * cols);
+    const design = floats(n * cols);
     xs.forEach((x, k) => {
       design[k] = 1;
       for (let c = 1; c < cols; c++) design[c * n + k] = x ** (2 * c - 1);
@@ -577,8 +578,8 @@ export function differenceIntercept(
       rows: n,
       cols,
       design,
-      observations: Float64Array.from(ys),
-      weights: Float64Array.from(ws),
+      observations: copyFloats(ys),
+      weights: copyFloats(ws),
     });
   };
   let cols = n >= 30 ? 6 : n >= 20 ? 5 : n >= 12 ? 4 : n >= 7 ? 3 : 2;
@@ -620,8 +621,8 @@ export function boltzmannResiduals(
   const withI = [...map].filter(([i, t]) => (peaks[i]?.intensity ?? 0) > 0 && (t.branch === 'R' || t.j > 0));
   if (withI.length < 6) return undefined;
   const n = withI.length;
-  const design = new Float64Array(n * 2);
-  const obs = new Float64Array(n);
+  const design = floats(n * 2);
+  const obs = floats(n);
   const B = lower.B.value;
   const D = lower.D?.value ?? 0;
   withI.forEach(([i, t], k) => {
@@ -1062,11 +1063,11 @@ export function polynomialResiduals(points: readonly Point[]): Float64Array | un
   const ms = points.map((p) => p.m);
   const centre = (Math.max(...ms) + Math.min(...ms)) / 2;
   const half = Math.max(1, (Math.max(...ms) - Math.min(...ms)) / 2);
-  const design = new Float64Array(n * cols);
+  const design = floats(n * cols);
   points.forEach((p, i) => {
     for (let k = 0; k < cols; k++) design[k * n + i] = ((p.m - centre) / half) ** k;
   });
-  const r = solveLeastSquares({ rows: n, cols, design, observations: Float64Array.from(points, (p) => p.position) });
+  const r = solveLeastSquares({ rows: n, cols, design, observations: mapFloats(points, (p) => p.position) });
   return r.rankDeficient ? undefined : r.residuals;
 }
 
@@ -1094,11 +1095,11 @@ export function fortrat(points: readonly Point[], m: number, spacing0: number, m
     return centre + m * spacing0;
   }
   const cols = degree + 1;
-  const design = new Float64Array(n * cols);
+  const design = floats(n * cols);
   points.forEach((p, i) => {
     for (let k = 0; k < cols; k++) design[k * n + i] = p.m ** k;
   });
-  const r = solveLeastSquares({ rows: n, cols, design, observations: Float64Array.from(points, (p) => p.position) });
+  const r = solveLeastSquares({ rows: n, cols, design, observations: mapFloats(points, (p) => p.position) });
   if (r.rankDeficient) return points[0]?.position ?? 0;
   let v = 0;
   for (let k = 0; k < cols; k++) v += (r.coefficients[k] as number) * m ** k;

@@ -1,5 +1,6 @@
 import { type Quantity, quantity } from '../derive/quantity.js';
 import { solveLeastSquares } from '../linalg/least-squares.js';
+import { floats } from '../linalg/small-arrays.js';
 import { CENTRIFUGAL_SIGN, MAX_CENTRIFUGAL_ORDER } from '../models/level-model.js';
 import type { Observation } from '../models/linear-model.js';
 import type { UncertaintyMode } from './engine.js';
@@ -129,10 +130,10 @@ function fitDifferences(
   // Keep at least two degrees of freedom, so that the check can say something.
   const order = Math.min(wantedOrder, n - 2);
   if (order < 1) return undefined;
-  const design = new Float64Array(n * order);
+  const design = floats(n * order);
   // Plain loops: Float64Array.from with a map function is many times slower.
-  const values = new Float64Array(n);
-  const weights = new Float64Array(n);
+  const values = floats(n);
+  const weights = floats(n);
   for (let i = 0; i < n; i++) {
     const pt = pts[i] as (typeof pts)[number];
     const xu = (pt.j + 1) * (pt.j + 2);

@@ -4,6 +4,7 @@ import {
   solveGroupedLeastSquares,
   solveLeastSquares,
 } from '../linalg/least-squares.js';
+import { copyFloats, floats, ints } from '../linalg/small-arrays.js';
 import { transitionGroups } from '../models/level-states.js';
 import {
   designColumns,
@@ -43,13 +44,13 @@ export interface RankDeficiency {
 
 /** Positions and weights as typed arrays (a plain loop: Float64Array.from with a map function is many times slower). */
 function positionsOf(obs: readonly Observation[]): Float64Array {
-  const out = new Float64Array(obs.length);
+  const out = floats(obs.length);
   for (let i = 0; i < obs.length; i++) out[i] = (obs[i] as Observation).position;
   return out;
 }
 
 function weightsOf(obs: readonly Observation[]): Float64Array {
-  const out = new Float64Array(obs.length);
+  const out = floats(obs.length);
   for (let i = 0; i < obs.length; i++) out[i] = (obs[i] as Observation).weight;
   return out;
 }
@@ -124,10 +125,10 @@ export function solveModel(
     return {
       model,
       observations,
-      values: new Float64Array(0),
-      covariance: new Float64Array(0),
+      values: floats(0),
+      covariance: floats(0),
       residuals,
-      leverages: new Float64Array(n),
+      leverages: floats(n),
       chiSquare: chi,
       degreesOfFreedom: n,
       conditionNumber: 1,
@@ -154,7 +155,7 @@ export function solveModel(
     values: r.coefficients,
     covariance,
     residuals: r.residuals,
-    leverages: r.leverages ?? new Float64Array(0),
+    leverages: r.leverages ?? floats(0),
     chiSquare: r.chiSquare,
     degreesOfFreedom: dof,
     conditionNumber: r.conditionNumber,
@@ -193,7 +194,7 @@ export function isRankDeficient(x: SolvedModel | RankDeficiency): x is RankDefic
  */
 export function studentisedResiduals(fit: SolvedModel): Float64Array {
   const n = fit.observations.length;
-  const out = new Float64Array(n);
+  const out = floats(n);
   const dof = fit.degreesOfFreedom;
   if (dof < 2 || fit.leverages.length !== n) return out.fill(0);
   for (let i = 0; i < n; i++) {
@@ -234,7 +235,7 @@ export function rmsResidual(fit: SolvedModel): number {
 
 /** Row-major p × p correlation matrix from a covariance. */
 export function correlationOf(cov: Float64Array, p: number): Float64Array {
-  const out = new Float64Array(p * p);
+  const out = floats(p * p);
   for (let i = 0; i < p; i++) {
     for (let j = 0; j < p; j++) {
       const d = Math.sqrt((cov[i * p + i] as number) * (cov[j * p + j] as number));
@@ -278,7 +279,7 @@ function solveWithPriorsByTransition(
       design: withPriorRows(designColumns(model, observations), n, p, at),
     });
   }
-  const group = new Int32Array(n + m);
+  const group = ints(n + m);
   group.set(lines.group);
   for (let k = 0; k < m; k++) group[n + k] = count - m + k;
   const distinct = withPriorRows(designColumns(model, distinctTransitions(observations)), count - m, p, at);
@@ -288,7 +289,7 @@ function solveWithPriorsByTransition(
 /** A design of `n` rows (given by its columns) with one row per prior below it, 1 in the prior's column (`at`). */
 function withPriorRows(base: readonly Float64Array[], n: number, p: number, at: readonly number[]): Float64Array {
   const rows = n + at.length;
-  const design = new Float64Array(rows * p);
+  const design = floats(rows * p);
   for (let j = 0; j < p; j++) design.set(base[j] as Float64Array, j * rows);
   at.forEach((j, k) => {
     design[j * rows + n + k] = 1;
@@ -328,8 +329,8 @@ export function solveModelWithPriors(
   const p = model.parameters.length;
   const rows = n + m;
   if (rows < p) return { rankDeficient: true, groups: [model.parameters.slice()] };
-  const y = new Float64Array(rows);
-  const w = new Float64Array(rows);
+  const y = floats(rows);
+  const w = floats(rows);
   const { positions, weights } = vectorsOf(observations);
   y.set(positions);
   w.set(weights);
@@ -359,8 +360,8 @@ export function solveModelWithPriors(
     observations,
     values: r.coefficients,
     covariance: scaled(r.covariance, s2),
-    residuals: r.residuals.slice(0, n),
-    leverages: r.leverages ? r.leverages.slice(0, n) : new Float64Array(0),
+    residuals: copyFloats(r.residuals.subarray(0, n)),
+    leverages: r.leverages ? copyFloats(r.leverages.subarray(0, n)) : floats(0),
     chiSquare: r.chiSquare,
     degreesOfFreedom: dof,
     conditionNumber: r.conditionNumber,

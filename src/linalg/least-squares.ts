@@ -13,6 +13,8 @@
  * covarianceFrom → residuals → leveragesOf.
  */
 
+import { copyFloats, floats, ints } from './small-arrays.js';
+
 export interface LeastSquaresInput {
   /** Number of observations. */
   readonly rows: number;
@@ -133,7 +135,7 @@ export function solveGroupedLeastSquares(
   const distinct = columnsOf(input.distinct, m, p);
   if (!mergesRows(n, p, m)) {
     const design = distinct.map((c) => {
-      const full = new Float64Array(n);
+      const full = floats(n);
       for (let i = 0; i < n; i++) full[i] = c[group[i] as number] as number;
       return full;
     });
@@ -172,9 +174,9 @@ function solveSystem(
       rank,
       rankDeficient: true,
       dependencies: dependentGroups(r, p, rank, perm),
-      coefficients: new Float64Array(p).fill(Number.NaN),
-      covariance: new Float64Array(p * p).fill(Number.NaN),
-      residuals: new Float64Array(n).fill(Number.NaN),
+      coefficients: floats(p).fill(Number.NaN),
+      covariance: floats(p * p).fill(Number.NaN),
+      residuals: floats(n).fill(Number.NaN),
       chiSquare: Number.NaN,
       conditionNumber,
     };
@@ -182,7 +184,7 @@ function solveSystem(
   const coefficients = backSubstitute(qr, p);
   const rinv = invertUpperTriangular(r, p);
   const covariance = covarianceFrom(rinv, perm, scale, p);
-  const residuals = merged ? residualsByGroup(merged, observations, coefficients, p) : observations.slice();
+  const residuals = merged ? residualsByGroup(merged, observations, coefficients, p) : copyFloats(observations);
   if (!merged) subtractDesignTimes(residuals, sys.design, coefficients, n, p);
   const chiSquare = weightedSquares(residuals, weights);
   // Every array these read is this solve's own (the caller's design and weights are never modified).
@@ -220,13 +222,13 @@ export function reduceToTriangle(
   observations: Float64Array,
 ): { readonly m: Float64Array; readonly c: Float64Array } {
   const qr = pivotedQR(rows, cols, columnsOf(design, rows, cols), observations, undefined);
-  const m = new Float64Array(cols * cols);
+  const m = floats(cols * cols);
   for (let k = 0; k < cols; k++) {
     const j = qr.perm[k] as number;
     const sj = qr.scale[j] as number;
     for (let i = 0; i <= k; i++) m[j * cols + i] = (qr.r[i * cols + k] as number) * sj;
   }
-  return { m, c: Float64Array.from(qr.b.subarray(0, cols)) };
+  return { m, c: copyFloats(qr.b.subarray(0, cols)) };
 }
 
 /**
@@ -271,16 +273,16 @@ function pivotedQR(
     b[i] = (observations[i] as number) * s;
   }
   const scale = scaledCopy(a, design, sw, n, p);
-  const perm = new Int32Array(p);
-  const colNorm = new Float64Array(p);
-  const colNormRef = new Float64Array(p);
+  const perm = ints(p);
+  const colNorm = floats(p);
+  const colNormRef = floats(p);
   for (let j = 0; j < p; j++) {
     perm[j] = j;
     // Columns were just scaled to unit norm (or are all zero).
     colNorm[j] = scale[j] === 1 && !hasNonZero(a, j * n, n) ? 0 : 1;
     colNormRef[j] = colNorm[j] as number;
   }
-  const rdiag = new Float64Array(p);
+  const rdiag = floats(p);
   for (let k = 0; k < p; k++) {
     let best = k;
     for (let j = k + 1; j < p; j++) if ((colNorm[j] as number) > (colNorm[best] as number)) best = j;
@@ -294,7 +296,7 @@ function pivotedQR(
     }
     rdiag[k] = householderStep(a, b, n, p, k, colNorm, colNormRef);
   }
-  const r = new Float64Array(p * p);
+  const r = floats(p * p);
   for (let i = 0; i < p; i++) {
     r[i * p + i] = rdiag[i] as number;
     for (let j = i + 1; j < p; j++) r[i * p + j] = a[j * n + i] as number;
@@ -304,7 +306,7 @@ function pivotedQR(
 
 /** a = design · diag(√w) with unit-norm columns; returns the column norms (1 for an all-zero column). */
 function scaledCopy(a: Float64Array, design: Columns, sw: Float64Array, n: number, p: number): Float64Array {
-  const scale = new Float64Array(p);
+  const scale = floats(p);
   for (let j = 0; j < p; j++) {
     const off = j * n;
     const c = design[j] as Float64Array;
@@ -390,13 +392,13 @@ function reflect(y: Float64Array, oy: number, v: Float64Array, ov: number, n: nu
 /** Back substitution R z = (Qᵀb)[0:p], unpermuted and unscaled. */
 function backSubstitute(qr: Factorisation, p: number): Float64Array {
   const { r, b, perm, scale } = qr;
-  const z = new Float64Array(p);
+  const z = floats(p);
   for (let i = p - 1; i >= 0; i--) {
     let s = b[i] as number;
     for (let j = i + 1; j < p; j++) s -= (r[i * p + j] as number) * (z[j] as number);
     z[i] = s / (r[i * p + i] as number);
   }
-  const coefficients = new Float64Array(p);
+  const coefficients = floats(p);
   for (let k = 0; k < p; k++) {
     const j = perm[k] as number;
     coefficients[j] = (z[k] as number) / (scale[j] as number);
@@ -406,7 +408,7 @@ function backSubstitute(qr: Factorisation, p: number): Float64Array {
 
 /** (AᵀWA)⁻¹ = S⁻¹P R⁻¹R⁻ᵀ PᵀS⁻¹, row-major. */
 function covarianceFrom(rinv: Float64Array, perm: Int32Array, scale: Float64Array, p: number): Float64Array {
-  const covariance = new Float64Array(p * p);
+  const covariance = floats(p * p);
   for (let i = 0; i < p; i++) {
     for (let j = i; j < p; j++) {
       let s = 0;
@@ -448,7 +450,7 @@ function leveragesOf(
   perm: Int32Array,
   scale: Float64Array,
 ): Float64Array {
-  const leverages = new Float64Array(n);
+  const leverages = floats(n);
   const q = workspace(n).subarray(0, n);
   for (let c = 0; c < p; c++) {
     q.fill(0);
@@ -490,7 +492,7 @@ function compressRows(
   if (!groups) return undefined;
   const { group, firstRow } = groups;
   const m = firstRow.length;
-  const all = new Float64Array(m * p);
+  const all = floats(m * p);
   const merged: Float64Array[] = [];
   for (let j = 0; j < p; j++) {
     const c = design[j] as Float64Array;
@@ -510,8 +512,8 @@ function mergeGroups(
   weights: Float64Array | undefined,
 ): MergedRows {
   const n = group.length;
-  const w = new Float64Array(m);
-  const wy = new Float64Array(m);
+  const w = floats(m);
+  const wy = floats(m);
   for (let i = 0; i < n; i++) {
     const g = group[i] as number;
     const wi = weights ? (weights[i] as number) : 1;
@@ -611,7 +613,7 @@ function groupsOfRows(design: Columns, n: number, p: number, most: number) {
   rowHashes(design, n, p, hashes);
   const firstRow = scratch.subarray(n, n + cap);
   const table = new RowTable(scratch.subarray(n + cap), cap);
-  const group = new Int32Array(n);
+  const group = ints(n);
   let m = 0;
   for (let i = 0; i < n; i++) {
     const hash = finalMix(hashes[i] as number) | 0;
@@ -635,13 +637,13 @@ function groupsOfRows(design: Columns, n: number, p: number, most: number) {
 /** yᵢ − (Ax)ᵢ for every row, (Ax)ᵢ taken from its merged row (identical design rows give identical fits). */
 function residualsByGroup(merged: MergedRows, observations: Float64Array, x: Float64Array, p: number): Float64Array {
   const m = merged.rows;
-  const fitted = new Float64Array(m);
+  const fitted = floats(m);
   for (let j = 0; j < p; j++) {
     const col = merged.design[j] as Float64Array;
     const c = x[j] as number;
     for (let g = 0; g < m; g++) fitted[g] = (fitted[g] as number) + (col[g] as number) * c;
   }
-  const residuals = new Float64Array(observations.length);
+  const residuals = floats(observations.length);
   for (let i = 0; i < residuals.length; i++)
     residuals[i] = (observations[i] as number) - (fitted[merged.group[i] as number] as number);
   return residuals;
@@ -654,7 +656,7 @@ function spreadLeverages(
   weights: Float64Array | undefined,
   n: number,
 ): Float64Array {
-  const out = new Float64Array(n);
+  const out = floats(n);
   for (let i = 0; i < n; i++) {
     const g = merged.group[i] as number;
     const wg = merged.weights[g] as number;
@@ -680,7 +682,7 @@ function swapF(arr: Float64Array, i: number, j: number): void {
 }
 
 function invertUpperTriangular(r: Float64Array, p: number): Float64Array {
-  const inv = new Float64Array(p * p);
+  const inv = floats(p * p);
   for (let j = 0; j < p; j++) {
     inv[j * p + j] = 1 / (r[j * p + j] as number);
     for (let i = j - 1; i >= 0; i--) {
@@ -699,7 +701,7 @@ function invertUpperTriangular(r: Float64Array, p: number): Float64Array {
 function dependentGroups(r: Float64Array, p: number, rank: number, perm: Int32Array): number[][] {
   const groups: number[][] = [];
   for (let c = rank; c < p; c++) {
-    const z = new Float64Array(rank);
+    const z = floats(rank);
     for (let i = rank - 1; i >= 0; i--) {
       let s = r[i * p + c] as number;
       for (let j = i + 1; j < rank; j++) s -= (r[i * p + j] as number) * (z[j] as number);
@@ -732,7 +734,7 @@ export function triangularConditionNumber(r: Float64Array, p: number): number {
 
 /** Singular values of a row-major m × n matrix (m ≥ n) by one-sided Jacobi on its columns. */
 export function singularValues(m0: Float64Array, m: number, n: number): number[] {
-  const u = Float64Array.from(m0);
+  const u = copyFloats(m0);
   for (let sweep = 0; sweep < 60; sweep++) {
     let off = 0;
     for (let i = 0; i < n - 1; i++) {

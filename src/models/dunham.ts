@@ -1,3 +1,4 @@
+import { floats, mapFloats, mapInts } from '../linalg/small-arrays.js';
 import { levelStates, rotationalPowers, vibrationalPowers } from './level-states.js';
 import type { LinearModel, Observation, Parameter } from './linear-model.js';
 
@@ -71,11 +72,11 @@ export function dunhamModel(parameters: readonly Parameter[], reducedMass?: Read
     rowsByTransition: true,
     column(p: Parameter, obs: readonly Observation[]): Float64Array {
       // The same operations as `coefficient`, with the basis taken once per level state (levelStates).
-      const out = new Float64Array(obs.length);
+      const out = floats(obs.length);
       const k = p.k as number;
       const l = p.l as number;
       const st = levelStates(obs);
-      const basis = new Float64Array(st.count);
+      const basis = floats(st.count);
       // (v+½)^k · [J(J+1)]^l, the operations of dunhamBasis, from powers kept per state.
       const vk = vibrationalPowers(st, k);
       const xl = rotationalPowers(st, l);
@@ -111,14 +112,14 @@ export function compileDunham(y: ReadonlyMap<string, number>): (v: number, j: nu
     const [k, l] = key.split(',').map(Number) as [number, number];
     return { k, l, value };
   });
-  const ls = Int32Array.from(terms, (t) => t.l);
-  const xp = new Float64Array(Math.max(0, ...ls) + 1);
+  const ls = mapInts(terms, (t) => t.l);
+  const xp = floats(Math.max(0, ...ls) + 1);
   const perV = new Map<number, Float64Array>();
   const weights = (v: number): Float64Array => {
     let w = perV.get(v);
     if (!w) {
       const a = v + 0.5;
-      w = Float64Array.from(terms, (t) => t.value * a ** t.k);
+      w = mapFloats(terms, (t) => t.value * a ** t.k);
       perV.set(v, w);
     }
     return w;

@@ -1,3 +1,4 @@
+import { floats } from '../linalg/small-arrays.js';
 import { levelStates, rotationalPowers } from './level-states.js';
 import type { LinearModel, Observation, Parameter } from './linear-model.js';
 
@@ -138,7 +139,7 @@ export function levelModel(parameters: readonly Parameter[]): LinearModel {
     rowsByTransition: true,
     column(p: Parameter, obs: readonly Observation[]): Float64Array {
       // The same operations as `coefficient`, with the power taken once per level state (levelStates).
-      const out = new Float64Array(obs.length);
+      const out = floats(obs.length);
       const l = p.kind === 'T' ? 0 : (POWER[p.kind] as number);
       const sign = l > 0 ? (CENTRIFUGAL_SIGN[l - 1] as number) : 1;
       const st = levelStates(obs);

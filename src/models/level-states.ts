@@ -1,3 +1,4 @@
+import { copyInts, floats, ints } from '../linalg/small-arrays.js';
 import type { Observation } from './linear-model.js';
 
 /**
@@ -35,8 +36,8 @@ export function levelStates(obs: readonly Observation[]): LevelStates {
 
 function findStates(obs: readonly Observation[]): LevelStates {
   const n = obs.length;
-  const upper = new Int32Array(n);
-  const lower = new Int32Array(n);
+  const upper = ints(n);
+  const lower = ints(n);
   const species: string[] = [];
   const vs: number[] = [];
   const js: number[] = [];
@@ -50,7 +51,7 @@ function findStates(obs: readonly Observation[]): LevelStates {
     }
     let byJ = byV.get(v);
     if (!byJ || byJ.length <= j) {
-      const grown = new Int32Array(Math.max(64, 2 * (j + 1))).fill(-1);
+      const grown = ints(Math.max(64, 2 * (j + 1))).fill(-1);
       if (byJ) grown.set(byJ);
       byJ = grown;
       byV.set(v, byJ);
@@ -73,8 +74,8 @@ function findStates(obs: readonly Observation[]): LevelStates {
   return {
     count: species.length,
     species,
-    v: Int32Array.from(vs),
-    j: Int32Array.from(js),
+    v: copyInts(vs),
+    j: copyInts(js),
     upper,
     lower,
     xPowers: [],
@@ -86,7 +87,7 @@ function findStates(obs: readonly Observation[]): LevelStates {
 export function rotationalPowers(st: LevelStates, l: number): Float64Array {
   let out = st.xPowers[l];
   if (!out) {
-    out = new Float64Array(st.count);
+    out = floats(st.count);
     for (let s = 0; s < st.count; s++) {
       const j = st.j[s] as number;
       out[s] = (j * (j + 1)) ** l;
@@ -100,7 +101,7 @@ export function rotationalPowers(st: LevelStates, l: number): Float64Array {
 export function vibrationalPowers(st: LevelStates, k: number): Float64Array {
   let out = st.vPowers[k];
   if (!out) {
-    out = new Float64Array(st.count);
+    out = floats(st.count);
     for (let s = 0; s < st.count; s++) out[s] = ((st.v[s] as number) + 0.5) ** k;
     st.vPowers[k] = out;
   }
@@ -123,7 +124,7 @@ export function transitionGroups(obs: readonly Observation[]): TransitionGroups 
   let g = groupsKnown.get(obs);
   if (!g || g.group.length !== obs.length) {
     const s = levelStates(obs);
-    const group = new Int32Array(obs.length);
+    const group = ints(obs.length);
     const first: number[] = [];
     const byPair = new Map<number, number>();
     for (let i = 0; i < obs.length; i++) {
@@ -136,7 +137,7 @@ export function transitionGroups(obs: readonly Observation[]): TransitionGroups 
       }
       group[i] = k;
     }
-    g = { group, firstRow: Int32Array.from(first) };
+    g = { group, firstRow: copyInts(first) };
     groupsKnown.set(obs, g);
   }
   return g;

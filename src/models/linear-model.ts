@@ -57,6 +57,7 @@ export interface LinearModel {
   readonly rowsByTransition?: boolean;
 }
 
+import { floats } from '../linalg/small-arrays.js';
 import { transitionGroups } from './level-states.js';
 
 /**
@@ -116,7 +117,7 @@ export function designColumns(model: LinearModel, obs: readonly Observation[]): 
     let col: Float64Array;
     if (model.column) col = model.column(p, obs);
     else {
-      col = new Float64Array(obs.length);
+      col = floats(obs.length);
       for (let i = 0; i < obs.length; i++) col[i] = model.coefficient(p, obs[i] as Observation);
     }
     if (key !== undefined) shared?.set(key, col);
@@ -127,7 +128,7 @@ export function designColumns(model: LinearModel, obs: readonly Observation[]): 
 /** Column-major design matrix of a model over observations (a fresh array). */
 export function buildDesign(model: LinearModel, obs: readonly Observation[]): Float64Array {
   const n = obs.length;
-  const a = new Float64Array(n * model.parameters.length);
+  const a = floats(n * model.parameters.length);
   designColumns(model, obs).forEach((c, j) => {
     a.set(c, j * n);
   });

@@ -5,6 +5,8 @@
  * Shared by the fit (scatter of lists without uncertainties), the assignment (tolerances) and the peak finder.
  */
 
+import { copyFloats, floats } from '../linalg/small-arrays.js';
+
 /** Normal-consistency factor of the MAD: 1 / Φ⁻¹(3/4). */
 export const MAD_TO_SIGMA = 1.482602218505602;
 
@@ -43,7 +45,7 @@ function medianOfThree(x: number, y: number, z: number): number {
 export function quantile(values: ArrayLike<number>, q: number): number {
   const n = values.length;
   if (n === 0) return Number.NaN;
-  const a = Float64Array.from(values);
+  const a = copyFloats(values);
   const h = (n - 1) * Math.min(1, Math.max(0, q));
   const lo = Math.floor(h);
   const vLo = selectInPlace(a, lo);
@@ -62,7 +64,7 @@ export function median(values: ArrayLike<number>): number {
 /** Normal-consistent robust standard deviation 1.4826 · median |x − median(x)|; NaN for an empty input. */
 export function robustSigma(values: ArrayLike<number>): number {
   const m = median(values);
-  const dev = new Float64Array(values.length);
+  const dev = floats(values.length);
   for (let i = 0; i < values.length; i++) dev[i] = Math.abs((values[i] as number) - m);
   return MAD_TO_SIGMA * median(dev);
 }
