@@ -53,14 +53,14 @@ function lineList(n: number, bands: number): LineInput[] {
 /**
  * CPU milliseconds per call (process.cpuUsage: the time this process ran, which the other work on a shared machine
  * does not inflate the way it inflates wall time), in the steady state a running service is in: after a warm-up of
- * WARM_MS of CPU time (1 s; 0.5 s with BENCH_QUICK=1) and at least 3 calls, then the mean over as many calls as make
- * up minMs of CPU time (a quarter with BENCH_QUICK=1), at least 3. The optimising compiler and the collector run on
- * other threads of this process and count in its CPU time: a 50-line fitLineList measured after the 50 ms warm-up
- * used before cost 2.0–2.7 ms per call, and settled at 0.65 ms (wall 0.48 ms) only after about 2 s of calls, most of
- * the difference being compilation (bench/run.ts, 2026-12-04).
+ * WARM_MS of CPU time and at least 3 calls, the mean over as many calls as make up minMs of CPU time (a quarter with
+ * BENCH_QUICK=1), at least 3. The optimising compiler and the collector run on other threads of this process and
+ * count in its CPU time: a 50-line fitLineList cost 2.0–3.3 ms per call in its first 0.4 s of calls and settled at
+ * 0.65 ms (0.25 ms with the slab-allocated small arrays) only after about 2 s (bench/run.ts before 2026-12-04 warmed
+ * up for 50 ms). `warmUpOnce` gives the fit code that time once, before the first table.
  */
 function time(f: () => void, minMs = 300): number {
-  warmUp(f);
+  warmUp(f, WARM_MS);
   const target = quick ? minMs / 4 : minMs;
   const c0 = process.cpuUsage();
   let calls = 0;
@@ -71,15 +71,25 @@ function time(f: () => void, minMs = 300): number {
   return cpuMs(process.cpuUsage(c0)) / calls;
 }
 
-const WARM_MS = quick ? 500 : 1000;
+const WARM_MS = quick ? 250 : 500;
 
-function warmUp(f: () => void): void {
+function warmUp(f: () => void, ms: number): void {
   const c0 = process.cpuUsage();
   let calls = 0;
-  while (calls < 3 || cpuMs(process.cpuUsage(c0)) < WARM_MS) {
+  while (calls < 3 || cpuMs(process.cpuUsage(c0)) < ms) {
     f();
     calls++;
   }
+}
+
+/** The fit and assignment code run for 2.5 s of CPU (1.2 s quick) before anything is timed: see `time`. */
+function warmUpOnce(): void {
+  const few = lineList(50, 1);
+  const three = lineList(500, 3);
+  warmUp(() => {
+    fitLineList(few, masses);
+    fitLineList(three, masses);
+  }, quick ? 1200 : 2500);
 }
 
 const cpuMs = (u: NodeJS.CpuUsage) => (u.user + u.system) / 1000;
@@ -121,6 +131,7 @@ function distinctRows(obs: readonly Observation[]): number {
 mkdirSync('bench/out', { recursive: true });
 console.log(`Load average 1 / 5 / 15 min at the start: ${load()} (2 cores shared: read the ratios, not the times)\n`);
 const ratios: Ratio[] = [];
+warmUpOnce();
 const rows: Row[] = [];
 for (const bands of parts.has('fits') ? [1, 3] : []) {
   for (const n of lineCounts) {
