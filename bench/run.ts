@@ -86,10 +86,13 @@ function warmUp(f: () => void, ms: number): void {
 function warmUpOnce(): void {
   const few = lineList(50, 1);
   const three = lineList(500, 3);
-  warmUp(() => {
-    fitLineList(few, masses);
-    fitLineList(three, masses);
-  }, quick ? 1200 : 2500);
+  warmUp(
+    () => {
+      fitLineList(few, masses);
+      fitLineList(three, masses);
+    },
+    quick ? 1200 : 2500,
+  );
 }
 
 const cpuMs = (u: NodeJS.CpuUsage) => (u.user + u.system) / 1000;
