@@ -82,8 +82,9 @@ function lineOutcomes(
   fit: SolvedModel,
 ): LineOutcome[] {
   const t = studentisedResiduals(fit);
-  const keptPos = new Map(fit.observations.map((o, i) => [o.index, i]));
-  const byIndex = new Map(observations.map((o) => [o.index, o]));
+  const keptAt = keptPositions(fit.observations, input.length);
+  const byIndex = observationsByLine(observations, input.length);
+  const bandLabel = bandLabels();
   return input.map((l, index) => {
     // Built member by member (no spreads of optional parts: this runs for every line of every fit); the members
     // come in the order the answer has always had.
@@ -94,9 +95,9 @@ function lineOutcomes(
       out.status = 'unassigned';
       return out;
     }
-    out.assignment = { band: formatBand(a.band), branch: a.branch, j: a.j, species: a.species, source: a.source };
-    const ki = keptPos.get(index);
-    if (ki !== undefined) {
+    out.assignment = { band: bandLabel(a.band), branch: a.branch, j: a.j, species: a.species, source: a.source };
+    const ki = keptAt[index] as number;
+    if (ki >= 0) {
       const residual = fit.residuals[ki] as number;
       out.calculated = l.position - residual;
       out.residual = residual;
@@ -106,7 +107,7 @@ function lineOutcomes(
     }
     out.status = 'rejected';
     out.reason = rejected.get(index) ?? 'rejected';
-    const ob = byIndex.get(index) as Observation;
+    const ob = byIndex[index] as Observation;
     const calculated = predictWithVariance(fit, ob)?.value;
     if (calculated !== undefined) {
       out.calculated = calculated;
@@ -119,6 +120,33 @@ function lineOutcomes(
     }
     return out;
   });
+}
+
+/** Each line's place among the kept observations of the fit, by line index (−1: not kept). */
+function keptPositions(kept: readonly Observation[], lines: number): Int32Array {
+  const at = new Int32Array(lines).fill(-1);
+  for (let i = 0; i < kept.length; i++) at[(kept[i] as Observation).index] = i;
+  return at;
+}
+
+/** The observation read from each line, by line index (undefined for an unassigned line). */
+function observationsByLine(observations: readonly Observation[], lines: number): (Observation | undefined)[] {
+  const at = new Array<Observation | undefined>(lines).fill(undefined);
+  for (const o of observations) at[o.index] = o;
+  return at;
+}
+
+/** formatBand, written once per band object (a list's lines share a few). */
+function bandLabels(): (band: Transition['band']) => string {
+  const known = new Map<Transition['band'], string>();
+  return (band) => {
+    let label = known.get(band);
+    if (label === undefined) {
+      label = formatBand(band);
+      known.set(band, label);
+    }
+    return label;
+  };
 }
 
 /**

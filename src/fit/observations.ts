@@ -17,7 +17,8 @@ export interface ReadLines {
  * and FIT_NO_ASSIGNED_LINES when nothing is assigned.
  */
 export function readLines(input: readonly LineInput[], masses: ReadonlyMap<string, MassValue>): ReadLines {
-  for (const [i, l] of input.entries()) {
+  for (let i = 0; i < input.length; i++) {
+    const l = input[i] as LineInput;
     if (l.uncertainty !== undefined && !(l.uncertainty > 0 && Number.isFinite(l.uncertainty))) {
       throw new ScienceError('INPUT_INVALID', `line ${i}: uncertainty ${l.uncertainty} must be positive and finite`, {
         line: i,
@@ -27,14 +28,15 @@ export function readLines(input: readonly LineInput[], masses: ReadonlyMap<strin
   }
   const observations: Observation[] = [];
   const transitions = new Map<number, Transition & { readonly source: 'given' | 'auto' }>();
-  input.forEach((l, index) => {
+  for (let index = 0; index < input.length; index++) {
+    const l = input[index] as LineInput;
     if (!(l.position > 0) || !Number.isFinite(l.position)) {
       throw new ScienceError('INPUT_INVALID', `line ${index}: position ${l.position} must be positive and finite`, {
         line: index,
       });
     }
     const a = l.assignment;
-    if (!a) return;
+    if (!a) continue;
     try {
       validateTransition(a);
     } catch (e) {
@@ -58,7 +60,7 @@ export function readLines(input: readonly LineInput[], masses: ReadonlyMap<strin
       position: l.position,
       weight: 1 / (sigma * sigma),
     });
-  });
+  }
   if (observations.length === 0) {
     throw new ScienceError('FIT_NO_ASSIGNED_LINES', 'no line carries an assignment, so there is nothing to fit', {
       lines: input.length,
