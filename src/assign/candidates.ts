@@ -79,34 +79,26 @@ function isotopologueCandidates(
 ): CandidateLine[] {
   const T = options.temperature ?? 296;
   const maxJ = options.maxJ ?? 80;
-  const energy = compileDunham(y);
-  const e00 = energy(0, 0);
-  const rising = new Map<number, number>();
-  const risingOf = (v: number) => {
-    let r = rising.get(v);
-    if (r === undefined) {
-      r = risingUpTo(energy, v);
-      rising.set(v, r);
-    }
-    return r;
-  };
+  const levels = levelEnergies(compileDunham(y));
+  const e00 = levels.of(0)[0] as number;
   const out: CandidateLine[] = [];
   for (let lower = 0; lower <= (options.maxLowerV ?? 4); lower++) {
-    const population = Math.exp((-SECOND_RADIATION_CM_K / T) * (energy(lower, 0) - e00));
+    const el = levels.of(lower);
+    const population = Math.exp((-SECOND_RADIATION_CM_K / T) * ((el[0] as number) - e00));
     if (population < 1e-6) break;
     for (let dv = 0; dv <= (options.maxDeltaV ?? 4); dv++) {
       const band = { upper: lower + dv, lower };
       const strength = bandStrengthGuess(band) * abundance;
       // Beyond the J where a level's energy polynomial stops rising, its predictions are artefacts of the
       // truncated expansion (hydrides reach it near J ≈ 100): no line is predicted past the first such J.
-      const jTop = Math.min(maxJ, risingOf(lower), risingOf(lower + dv) - 1);
+      const jTop = Math.min(maxJ, levels.risingUpTo(lower), levels.risingUpTo(lower + dv) - 1);
+      const eu = levels.of(band.upper);
       // The band's lines as predictBand gives them (P then R; pure rotation R only), kept when in the window.
       for (const branch of band.upper === band.lower ? (['R'] as const) : (['P', 'R'] as const)) {
         for (let j = branch === 'P' ? 1 : 0; j <= jTop; j++) {
-          const el = energy(band.lower, j);
-          const position = energy(band.upper, upperJ({ branch, j })) - el;
+          const position = (eu[upperJ({ branch, j })] as number) - (el[j] as number);
           if (position < lo || position > hi) continue;
-          const lowerEnergy = el - e00;
+          const lowerEnergy = (el[j] as number) - e00;
           const intensity = strength * relativeIntensity(position, branch, j, lowerEnergy, T);
           out.push({ species: formula, band, branch, j, position, lowerEnergy, intensity });
         }
@@ -116,15 +108,45 @@ function isotopologueCandidates(
   return out;
 }
 
-/** The highest J up to which E(v, J) rises with J (at most 400). */
-function risingUpTo(energy: (v: number, j: number) => number, v: number): number {
-  let prev = energy(v, 0);
-  for (let j = 1; j <= 400; j++) {
-    const e = energy(v, j);
-    if (!(e > prev)) return j - 1;
-    prev = e;
-  }
-  return 400;
+/** Highest J whose energy is tabulated (and highest J up to which a level may be found rising). */
+const TABLE_J = 400;
+
+/**
+ * The energies E(v, J), J = 0 … TABLE_J + 1, of each level asked for (each evaluated once, where every band and
+ * branch through the level would evaluate it again), and the highest J up to which E(v, J) rises with J (at most
+ * TABLE_J).
+ */
+function levelEnergies(energy: (v: number, j: number) => number): {
+  of: (v: number) => Float64Array;
+  risingUpTo: (v: number) => number;
+} {
+  const tables = new Map<number, Float64Array>();
+  const of = (v: number) => {
+    let t = tables.get(v);
+    if (!t) {
+      t = new Float64Array(TABLE_J + 2);
+      for (let j = 0; j <= TABLE_J + 1; j++) t[j] = energy(v, j);
+      tables.set(v, t);
+    }
+    return t;
+  };
+  const rising = new Map<number, number>();
+  const risingUpTo = (v: number) => {
+    let r = rising.get(v);
+    if (r === undefined) {
+      const t = of(v);
+      r = TABLE_J;
+      for (let j = 1; j <= TABLE_J; j++) {
+        if (!((t[j] as number) > (t[j - 1] as number))) {
+          r = j - 1;
+          break;
+        }
+      }
+      rising.set(v, r);
+    }
+    return r;
+  };
+  return { of, risingUpTo };
 }
 
 /** Natural abundance of every isotopologue of the molecule a formula belongs to, by normalised formula. */

@@ -108,10 +108,13 @@ export function predictWithVariance(fit: SolvedModel, o: Observation): { value: 
   const params = fit.model.parameters;
   const p = params.length;
   // Only the parameters of the line's two levels have a coefficient: the sums run over those, in the order of the
-  // full sums (the terms left out are zeros, so the bits are the same).
+  // full sums (the terms left out are zeros, so the bits are the same); a model that knows them lists them.
   const nz: number[] = [];
   const g: number[] = [];
-  for (let i = 0; i < p; i++) {
+  const only = fit.model.parametersOf?.(o);
+  const n = only ? only.length : p;
+  for (let a = 0; a < n; a++) {
+    const i = only ? (only[a] as number) : a;
     const c = fit.model.coefficient(params[i] as Parameter, o);
     if (c !== 0) {
       nz.push(i);

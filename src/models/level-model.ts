@@ -120,9 +120,56 @@ export function levelParameters(structure: LevelStructure, order: ReadonlyMap<st
 
 const POWER: Record<string, number> = { B: 1, D: 2, H: 3, L: 4, M: 5 };
 
+/** The map under `key` in `outer`, made empty on first use. */
+function inner<K, V>(outer: Map<K, V>, key: K, make: () => V): V {
+  let m = outer.get(key);
+  if (m === undefined) {
+    m = make();
+    outer.set(key, m);
+  }
+  return m;
+}
+
+/**
+ * For each species, upper and lower level: the numbers of the parameters of either level, ascending (the only ones
+ * with a coefficient in a line between them). Built on first use, per transition's levels.
+ */
+function parametersByLevels(parameters: readonly Parameter[]): (o: Observation) => Int32Array {
+  const byLevel = new Map<string, Map<number, number[]>>();
+  parameters.forEach((p, i) => {
+    inner(
+      inner(byLevel, p.species as string, () => new Map<number, number[]>()),
+      p.v as number,
+      () => [],
+    ).push(i);
+  });
+  const known = new Map<string, Map<number, Map<number, Int32Array>>>();
+  return (o) => {
+    const byLower = inner(
+      inner(known, o.species, () => new Map()),
+      o.upperV,
+      () => new Map<number, Int32Array>(),
+    );
+    let out = byLower.get(o.lowerV);
+    if (!out) {
+      const levels = byLevel.get(o.species);
+      const up = levels?.get(o.upperV) ?? [];
+      const lo = o.lowerV === o.upperV ? [] : (levels?.get(o.lowerV) ?? []);
+      out = Int32Array.from([...up, ...lo]).sort();
+      byLower.set(o.lowerV, out);
+    }
+    return out;
+  };
+}
+
 export function levelModel(parameters: readonly Parameter[]): LinearModel {
+  let byLevels: ((o: Observation) => Int32Array) | undefined;
   return {
     parameters,
+    parametersOf(o: Observation): Int32Array {
+      byLevels ??= parametersByLevels(parameters);
+      return byLevels(o);
+    },
     coefficient(p: Parameter, o: Observation): number {
       if (p.species !== o.species) return 0;
       const up = o.upperV === p.v ? 1 : 0;

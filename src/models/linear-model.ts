@@ -55,6 +55,11 @@ export interface LinearModel {
    * transition then have identical rows, and the solve builds and merges the distinct ones only.
    */
   readonly rowsByTransition?: boolean;
+  /**
+   * The numbers of the parameters whose coefficient in `o` may be non-zero, ascending (every other parameter's is
+   * zero): a prediction then asks `coefficient` for these only.
+   */
+  parametersOf?(o: Observation): Int32Array;
 }
 
 import { floats } from '../linalg/small-arrays.js';
