@@ -1739,11 +1739,13 @@ export function intensityScales(
   const best = new Map<string, number>();
   for (const [k, r] of ratios) {
     if (r.length < 3) continue;
-    out.set(k, median(r));
+    // One median per band and source: its class takes the same value when this band has the most lines.
+    const m = median(r);
+    out.set(k, m);
     const cls = classOf.get(k) as string;
     if (r.length > (best.get(cls) ?? 0)) {
       best.set(cls, r.length);
-      out.set(cls, median(r));
+      out.set(cls, m);
     }
   }
   return out;
