@@ -64,6 +64,36 @@ describe('columns from level states', () => {
     expectColumnsAsCoefficients(levelModel(params), obs);
   });
 
+  it("a level model lists exactly its parameters with a coefficient in a line, ascending (a prediction's sums)", () => {
+    const obs = observations(300, 13);
+    // Mixed orders: some levels stop at B, others reach M, so the lists differ in length between levels.
+    const structure = levelStructure(obs);
+    const orders = new Map([
+      ['12C-16O|0', 5],
+      ['12C-16O|1', 1],
+      ['12C-16O|2', 3],
+      ['13C-16O|0', 2],
+      ['13C-16O|1', 4],
+    ]);
+    const model = levelModel(levelParameters(structure, orders));
+    let wrong = 0;
+    for (const o of obs) {
+      const listed = [...(model.parametersOf?.(o) ?? [])];
+      // Every parameter of the line's two levels, whatever its coefficient (B of J = 0 is 0 and still listed).
+      const expected = model.parameters.flatMap((p, i) =>
+        p.species === o.species && (p.v === o.upperV || p.v === o.lowerV) ? [i] : [],
+      );
+      const nonZero = model.parameters.flatMap((p, i) => (model.coefficient(p, o) !== 0 ? [i] : []));
+      if (JSON.stringify(listed) !== JSON.stringify(expected) || nonZero.some((i) => !listed.includes(i))) wrong++;
+    }
+    expect(wrong).toBe(0);
+    // A pure-rotation line lists its one level once; asked again, the same list.
+    const rot = obs.find((o) => o.upperV === o.lowerV) as Observation;
+    const first = model.parametersOf?.(rot);
+    expect(new Set(first).size).toBe(first?.length);
+    expect(model.parametersOf?.(rot)).toBe(first);
+  });
+
   it('Dunham and mass-reduced columns equal the coefficients bit for bit', () => {
     const obs = observations(200, 11);
     const terms = [
