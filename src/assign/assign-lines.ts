@@ -499,8 +499,9 @@ export function matchRound(
 ): { next: Map<number, CandidateLine>; competitions: Competition[]; proposed: ProposedMatches } {
   const next = new Map<number, CandidateLine>();
   proposed.peaks.forEach((peak, m) => {
-    const c = ctx.cands[proposed.cands[m] as number] as CandidateLine;
-    if (!isBanned(state.banned, pairKey(ctx, peak, c), iter)) next.set(peak, c);
+    const ci = proposed.cands[m] as number;
+    // pairKey from the candidate's number at hand (no look-up of it by candidate).
+    if (!isBanned(state.banned, peak * ctx.cands.length + ci, iter)) next.set(peak, ctx.cands[ci] as CandidateLine);
   });
   return { next, competitions: [...proposed.competitions], proposed };
 }

@@ -213,7 +213,7 @@ describe('fitted predictions (a band the fit has reached)', () => {
     expect(at?.withSigma?.model).toBeCloseTo(5e-3 + 1e-6, 10);
   });
 
-  it('more than 3 past the reach only while the model is as sharp as twice the noise (ten times in the gap pass)', () => {
+  it('more than 3 past the reach only while the model is as sharp as four times the noise (ten times in the gap pass)', () => {
     const ctx = fundamental(25);
     const r14 = ref(ctx, 1, 0, 'R', 14);
     const src = { name: '', n: 0 };
@@ -227,9 +227,9 @@ describe('fitted predictions (a band the fit has reached)', () => {
         r,
         src,
       );
-    // noise = scatter 0.002: σ_model 0.0039 < 0.004 passes, 0.0041 does not.
-    expect(at(0.0039)).toBeDefined();
-    expect(at(0.0041)).toBeUndefined();
+    // noise = scatter 0.002: σ_model 0.0079 < 0.008 passes, 0.0081 does not.
+    expect(at(0.0079)).toBeDefined();
+    expect(at(0.0081)).toBeUndefined();
     // J″ = 13 = r + 3 is not held to it.
     const r13 = ref(ctx, 1, 0, 'R', 13);
     expect(
@@ -238,32 +238,32 @@ describe('fitted predictions (a band the fit has reached)', () => {
         fixed(0, 0.1),
         stats(0, 0.002, 1),
         r13,
-        { value: r13.c.position, variance: 0.0041 ** 2 },
+        { value: r13.c.position, variance: 0.0081 ** 2 },
         10,
         src,
       ),
     ).toBeDefined();
-    // Beyond max(3, ⌊r/2⌋) past the reach (J″ 16 for r = 10): none, except in the gap pass.
-    const r16 = ref(ctx, 1, 0, 'R', 16);
-    const f16 = { value: r16.c.position, variance: 1e-8 };
-    expect(fittedPrediction(ctx, fixed(0, 0.1), stats(0, 0.002, 1), r16, f16, 10, src)).toBeUndefined();
+    // Beyond max(3, r) past the reach (J″ 21 for r = 10): none, except in the gap pass.
+    const r21 = ref(ctx, 1, 0, 'R', 21);
+    const f21 = { value: r21.c.position, variance: 1e-8 };
+    expect(fittedPrediction(ctx, fixed(0, 0.1), stats(0, 0.002, 1), r21, f21, 10, src)).toBeUndefined();
     ctx.wide = true;
-    expect(at(0.0041)).toBeDefined();
+    expect(at(0.0081)).toBeDefined();
     expect(at(0.0199)).toBeDefined();
     expect(at(0.0201)).toBeUndefined();
-    expect(fittedPrediction(ctx, fixed(0, 0.1), stats(0, 0.002, 1), r16, f16, 10, src)).toBeDefined();
+    expect(fittedPrediction(ctx, fixed(0, 0.1), stats(0, 0.002, 1), r21, f21, 10, src)).toBeDefined();
   });
 
   it('the noise is the larger of the scatter and the σ factor × the typical σ of the list; none without either', () => {
-    // Every line σ = 0.01: noise = max(0.002, 1.5 × 0.01) = 0.015, so σ_model up to 0.03 passes.
+    // Every line σ = 0.01: noise = max(0.002, 1.5 × 0.01) = 0.015, so σ_model up to 0.06 passes.
     const ctx = fundamental(25, 0.01);
     expect(ctx.typicalSigma).toBe(0.01);
     const r14 = ref(ctx, 1, 0, 'R', 14);
     const src = { name: '', n: 0 };
     const at = (sd: number, st = stats(0, 0.002, 1.5)) =>
       fittedPrediction(ctx, fixed(0, 0.1), st, r14, { value: r14.c.position, variance: sd * sd }, 10, src);
-    expect(at(0.029)).toBeDefined();
-    expect(at(0.031)).toBeUndefined();
+    expect(at(0.059)).toBeDefined();
+    expect(at(0.061)).toBeUndefined();
     // Without σ and with no scatter the model is not held back (only by the spacing).
     const bare = fundamental(25);
     const b14 = ref(bare, 1, 0, 'R', 14);
@@ -329,12 +329,12 @@ describe('which candidates a round looks at', () => {
     expect(bandReach(withGiven, auto)[ref(withGiven, 1, 0, 'R', 0).band]).toBe(9);
   });
 
-  it('within reach: per band the candidates up to r + max(3, ⌊r/2⌋) (from J″ 4 when unfitted), every one in the gap pass', () => {
+  it('within reach: per band the candidates up to r + max(3, r) (J″ 8 when unfitted: 4 + 4), every one in the gap pass', () => {
     const ctx = fundamental();
     const reach = new Int32Array(ctx.bands.length).fill(-1);
     const b10 = ref(ctx, 1, 0, 'R', 0).band;
     reach[b10] = 10;
-    const limit = (b: number) => (b === b10 ? 15 : 7);
+    const limit = (b: number) => (b === b10 ? 20 : 8);
     const expected = ctx.cands.flatMap((c, ci) => (c.j <= limit(ctx.candBand[ci] as number) ? [ci] : []));
     expect([...withinReach(ctx, reach)]).toEqual(expected);
     ctx.wide = true;

@@ -78,14 +78,14 @@ function coFundamental(n: number, shared = { upper: 1, lower: 0 }): CandidateLin
 }
 
 describe('small rules of the assignment', () => {
-  it('reach: a band of reach r may take J″ up to r + max(3, ⌊r/2⌋) in one round', () => {
-    // r = 4: 4 + max(3, 2) = 7; r = 7: 7 + max(3, 3) = 10; r = 8: 8 + 4 = 12; r = 10: 10 + 5 = 15; r = 0: 3.
+  it('reach: a band of reach r may take J″ up to r + max(3, r) in one round', () => {
+    // r = 2: 2 + max(3, 2) = 5; r = 3: 6; r = 4: 4 + 4 = 8; r = 7: 14; r = 10: 20; r = 0: 3.
     const cases: [number, number][] = [
-      [4, 7],
-      [7, 10],
-      [8, 12],
-      [9, 13],
-      [10, 15],
+      [2, 5],
+      [3, 6],
+      [4, 8],
+      [7, 14],
+      [10, 20],
       [0, 3],
     ];
     for (const [r, last] of cases) {
