@@ -79,7 +79,9 @@ function isotopologueCandidates(
 ): CandidateLine[] {
   const T = options.temperature ?? 296;
   const maxJ = options.maxJ ?? 80;
-  const levels = levelEnergies(compileDunham(y));
+  // Levels are tabulated to ⌊maxJ⌋ + 2 only: whether a level rises past ⌊maxJ⌋ + 1 is all jTop below needs to know.
+  const top = maxJ < TABLE_J ? Math.max(0, Math.floor(maxJ)) + 1 : TABLE_J;
+  const levels = levelEnergies(compileDunham(y), top);
   const e00 = levels.of(0)[0] as number;
   const out: CandidateLine[] = [];
   for (let lower = 0; lower <= (options.maxLowerV ?? 4); lower++) {
@@ -112,11 +114,13 @@ function isotopologueCandidates(
 const TABLE_J = 400;
 
 /**
- * The energies E(v, J), J = 0 … TABLE_J + 1, of each level asked for (each evaluated once, where every band and
- * branch through the level would evaluate it again), and the highest J up to which E(v, J) rises with J (at most
- * TABLE_J).
+ * The energies E(v, J), J = 0 … top + 1, of each level asked for (each evaluated once, where every band and branch
+ * through the level would evaluate it again), and the highest J up to which E(v, J) rises with J (at most top).
  */
-function levelEnergies(energy: (v: number, j: number) => number): {
+function levelEnergies(
+  energy: (v: number, j: number) => number,
+  top: number,
+): {
   of: (v: number) => Float64Array;
   risingUpTo: (v: number) => number;
 } {
@@ -124,8 +128,8 @@ function levelEnergies(energy: (v: number, j: number) => number): {
   const of = (v: number) => {
     let t = tables.get(v);
     if (!t) {
-      t = new Float64Array(TABLE_J + 2);
-      for (let j = 0; j <= TABLE_J + 1; j++) t[j] = energy(v, j);
+      t = new Float64Array(top + 2);
+      for (let j = 0; j <= top + 1; j++) t[j] = energy(v, j);
       tables.set(v, t);
     }
     return t;
@@ -135,8 +139,8 @@ function levelEnergies(energy: (v: number, j: number) => number): {
     let r = rising.get(v);
     if (r === undefined) {
       const t = of(v);
-      r = TABLE_J;
-      for (let j = 1; j <= TABLE_J; j++) {
+      r = top;
+      for (let j = 1; j <= top; j++) {
         if (!((t[j] as number) > (t[j - 1] as number))) {
           r = j - 1;
           break;

@@ -148,6 +148,24 @@ describe('candidate lines: bounds, cuts and intensities', () => {
       expect(Math.max(...js)).toBe(top);
     }
   });
+
+  it('maxJ near the turning J of H35Cl: the highest J″ is the smaller of ⌊maxJ⌋ and the turning J, fractions included', () => {
+    const iso = parseSpecies('1H35Cl');
+    const energy = compileDunham(dunhamFromEntry(constantsFor(iso) as NonNullable<ReturnType<typeof constantsFor>>));
+    let turn = 1;
+    while (energy(0, turn) > energy(0, turn - 1)) turn++;
+    turn--;
+    // Pure rotation of v = 0: the upper level (J″ + 1) stops rising first, so the band ends at turn − 1.
+    const highest = (maxJ: number) =>
+      Math.max(
+        ...candidateLines([{ iso, abundance: 1 }], -1e6, 1e6, { maxJ, minRelativeIntensity: 0, maxLowerV: 0 })
+          .filter((x) => x.band.upper === 0 && x.band.lower === 0)
+          .map((x) => x.j),
+      );
+    for (const maxJ of [turn - 3, turn - 2, turn - 1.5, turn - 1, turn, turn + 0.5, turn + 1, turn + 2, 400]) {
+      expect({ maxJ, j: highest(maxJ) }).toEqual({ maxJ, j: Math.min(Math.floor(maxJ), turn - 1) });
+    }
+  });
 });
 
 describe('offset voting: edges', () => {
