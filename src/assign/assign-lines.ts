@@ -964,6 +964,8 @@ export function tryFit(ctx: AssignContext, lines: LineInput[], scatter?: Scatter
     return fitLineListDetailed(lines, ctx.masses, {
       ...(ctx.options.fit ?? {}),
       levelsOnly: true,
+      // The loop reads the lines, levels and predictions of its fits, never their warnings.
+      withoutChecks: true,
       maxCentrifugalOrder: order,
       ...(scatter ? { reuseScatter: { from: scatter, growth: SCATTER_REUSE_GROWTH } } : {}),
     });

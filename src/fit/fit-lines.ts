@@ -47,6 +47,7 @@ const DEFAULTS = {
   maxCentrifugalOrder: MAX_CENTRIFUGAL_ORDER,
   massReducedDunham: false,
   levelsOnly: false,
+  withoutChecks: false,
 };
 
 /**
@@ -89,7 +90,8 @@ export function fitLineListDetailed(
   const { warnings } = prepared;
   const kept = selectAndReject(prepared, opt, settings);
   const truncation = constrainLevelModel(kept.level, kept.mode);
-  if (truncation.constraints.length > 0) warnings.push(constrainedWarning(truncation.constraints, settings.alpha));
+  if (truncation.constraints.length > 0 && !opt.withoutChecks)
+    warnings.push(constrainedWarning(truncation.constraints, settings.alpha));
   const fit = truncation.level.fit;
   const report = reportLevels(
     input,
@@ -108,16 +110,7 @@ export function fitLineListDetailed(
   });
   warnings.push(...derived.combination.warnings);
   const selected = kept.level.fit;
-  checkRepeats(selected, prepared.given > 0, warnings);
-  checkDuplicates(prepared.observations, kept.rejected, warnings);
-  checkSourceOffsets(
-    input.map((l) => l.source),
-    report.lines,
-    warnings,
-  );
-  // A mode turned absolute to keep the stated σ already says why; "consider a-posteriori" would contradict it.
-  if (!kept.statedKept) absoluteScaleWarnings(selected, kept.mode, warnings);
-  qualityWarnings(selected, report.correlation, report.names, warnings, kept.mode);
+  if (!opt.withoutChecks) listChecks(input, prepared, kept, report, warnings);
   const result = resultOf(
     input,
     masses,
@@ -134,6 +127,27 @@ export function fitLineListDetailed(
 
 type LevelReport = ReturnType<typeof reportLevels>;
 type KeptLevels = ReturnType<typeof selectAndReject>;
+
+/** Stage 7: the checks that only add warnings (repeats, duplicates, source offsets, the absolute scale, quality). */
+function listChecks(
+  input: readonly LineInput[],
+  prepared: PreparedObservations,
+  kept: KeptLevels,
+  report: LevelReport,
+  warnings: Warning[],
+): void {
+  const selected = kept.level.fit;
+  checkRepeats(selected, prepared.given > 0, warnings);
+  checkDuplicates(prepared.observations, kept.rejected, warnings);
+  checkSourceOffsets(
+    input.map((l) => l.source),
+    report.lines,
+    warnings,
+  );
+  // A mode turned absolute to keep the stated σ already says why; "consider a-posteriori" would contradict it.
+  if (!kept.statedKept) absoluteScaleWarnings(selected, kept.mode, warnings);
+  qualityWarnings(selected, report.correlation, report.names, warnings, kept.mode);
+}
 
 /** Stages 5 and 6: what is derived from the level fit (Dunham, mass-reduced Dunham, combination differences). */
 interface DerivedStages {

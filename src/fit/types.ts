@@ -38,6 +38,12 @@ export interface FitOptions {
    */
   readonly levelsOnly?: boolean;
   /**
+   * Skip the checks that only add warnings (repeats, duplicates, source offsets, scale and quality, constrained
+   * terms): for the inner fits of automatic assignment, which read the lines, levels and predictions only. The
+   * lines, parameters and everything else are those of the full fit. Default false.
+   */
+  readonly withoutChecks?: boolean;
+  /**
    * An earlier fit's scatter estimate for the lines without σ, reused while their groups stand (see
    * weights.ts#ScatterReuse; for the inner loop of automatic assignment, whose list grows a few lines a round).
    */

@@ -179,3 +179,27 @@ describe('more of the glue', () => {
     expect(result.statistics.reducedChiSquare as number).toBeLessThan(2);
   });
 });
+
+describe('withoutChecks (the inner fits of automatic assignment)', () => {
+  it('the same lines, parameters and constraints; only the warnings of the checks and of constrained terms go', () => {
+    // B only on 1-0 to J 15: D is constrained (TERMS_CONSTRAINED); the first line sent again: LINES_DUPLICATED.
+    const base = lines([{ upper: 1, lower: 0, jMax: 15 }], 0.01);
+    const first = base.find((x) => x.assignment) as LineInput;
+    const l = [...base, { ...first }];
+    const masses = new Map([['12C-16O', MU_CO]]);
+    const opts = { maxCentrifugalOrder: 1, levelsOnly: true };
+    const full = fitLineListDetailed(l, masses, opts).result;
+    const lean = fitLineListDetailed(l, masses, { ...opts, withoutChecks: true }).result;
+    const codes = (r: typeof full) => r.warnings.map((w) => w.code);
+    expect(codes(full)).toContain('TERMS_CONSTRAINED');
+    expect(codes(full)).toContain('LINES_DUPLICATED');
+    expect(codes(lean)).not.toContain('TERMS_CONSTRAINED');
+    expect(codes(lean)).not.toContain('LINES_DUPLICATED');
+    // Every warning left is one the full fit gives too, in the same order.
+    expect(codes(full).filter((c) => codes(lean).includes(c))).toEqual(codes(lean));
+    expect(lean.lines).toEqual(full.lines);
+    expect(lean.parameters).toEqual(full.parameters);
+    expect(lean.model.constraints).toEqual(full.model.constraints);
+    expect(lean.statistics).toEqual(full.statistics);
+  });
+});
