@@ -524,28 +524,33 @@ function mergeGroups(
   return { rows: m, design, observations: wy, weights: w, group };
 }
 
-/**
- * Hash of every row from the bits of its entries (multiply, xor and shift, column by column into `h`, a scratch of length
- * n); the sign bit is left out so that 0 and −0, which compare equal, hash alike.
- */
-function rowHashes(design: Columns, n: number, p: number, h: Int32Array): void {
-  h.fill(0x811c9dc5 | 0);
-  for (let j = 0; j < p; j++) {
-    const c = design[j] as Float64Array;
-    const w = new Int32Array(c.buffer, c.byteOffset, 2 * n);
-    for (let i = 0; i < n; i++) {
-      const x = Math.imul((h[i] as number) ^ (w[2 * i] as number), 0x01000193);
-      const y = Math.imul(x ^ ((w[2 * i + 1] as number) & 0x7fffffff), 0x9e3779b1);
-      h[i] = y ^ (y >>> 16);
-    }
-  }
+/** One grow-only integer buffer for the grouping's scratch (first rows, hashes, table), as `workspace`. */
+let intPool = new Int32Array(0);
+function intWorkspace(length: number): Int32Array {
+  if (intPool.length < length) intPool = new Int32Array(Math.max(length, Math.ceil(intPool.length * 1.5)));
+  return intPool;
 }
 
-/** The final avalanche of MurmurHash3 (Appleby): every bit of the result depends on every bit of h. */
-function finalMix(h: number): number {
-  let x = Math.imul(h ^ (h >>> 16), 0x85ebca6b);
-  x = Math.imul(x ^ (x >>> 13), 0xc2b2ae35);
-  return x ^ (x >>> 16);
+/** Each column's 64-bit entries as pairs of 32-bit words (views, nothing copied). */
+function wordsOf(design: Columns, n: number): Int32Array[] {
+  return design.map((c) => new Int32Array(c.buffer, c.byteOffset, 2 * n));
+}
+
+/**
+ * Hash of row i from the bits of its entries (multiply and xor per word, then the final avalanche of MurmurHash3,
+ * Appleby); the sign bit is left out so that 0 and −0, which compare equal, hash alike.
+ */
+function rowHash(words: readonly Int32Array[], p: number, i: number): number {
+  let h = 0x811c9dc5 | 0;
+  for (let j = 0; j < p; j++) {
+    const w = words[j] as Int32Array;
+    h = Math.imul(h ^ (w[2 * i] as number), 0x01000193);
+    h = Math.imul(h ^ ((w[2 * i + 1] as number) & 0x7fffffff), 0x9e3779b1);
+    h ^= h >>> 16;
+  }
+  h = Math.imul(h ^ (h >>> 16), 0x85ebca6b);
+  h = Math.imul(h ^ (h >>> 13), 0xc2b2ae35);
+  return h ^ (h >>> 16);
 }
 
 function sameRow(design: Columns, p: number, a: number, b: number): boolean {
@@ -556,43 +561,6 @@ function sameRow(design: Columns, p: number, a: number, b: number): boolean {
   return true;
 }
 
-/** One grow-only integer buffer for the grouping's scratch (hashes, table, first rows), as `workspace`. */
-let intPool = new Int32Array(0);
-function intWorkspace(length: number): Int32Array {
-  if (intPool.length < length) intPool = new Int32Array(Math.max(length, Math.ceil(intPool.length * 1.5)));
-  return intPool;
-}
-
-/**
- * Open-addressing table of group numbers keyed by the hash of each group's first row, doubled in place as groups
- * appear (re-filled from the groups' hashes). Its arrays are views into the integer workspace.
- */
-class RowTable {
-  size = 64;
-  readonly slots: Int32Array;
-  readonly hashes: Int32Array;
-  constructor(scratch: Int32Array, most: number) {
-    this.hashes = scratch.subarray(0, most + 1);
-    this.slots = scratch.subarray(most + 1);
-    this.slots.fill(-1, 0, this.size);
-  }
-  insert(g: number, hash: number): void {
-    this.hashes[g] = hash;
-    this.place(g, hash);
-    if (2 * (g + 1) > this.size) this.grow(g + 1);
-  }
-  private place(g: number, hash: number): void {
-    let s = hash & (this.size - 1);
-    while ((this.slots[s] as number) >= 0) s = (s + 1) & (this.size - 1);
-    this.slots[s] = g;
-  }
-  private grow(m: number): void {
-    this.size *= 2;
-    this.slots.fill(-1, 0, this.size);
-    for (let g = 0; g < m; g++) this.place(g, this.hashes[g] as number);
-  }
-}
-
 /** Length of the table for at most `most` groups: the power of two the doublings stop at. */
 function tableLength(most: number): number {
   let size = 64;
@@ -600,38 +568,88 @@ function tableLength(most: number): number {
   return size;
 }
 
+/** The open-addressing table of `m` groups re-filled at `size` slots from the groups' hashes. */
+function refill(slots: Int32Array, hashes: Int32Array, m: number, size: number): void {
+  slots.fill(-1, 0, size);
+  for (let g = 0; g < m; g++) {
+    let s = (hashes[g] as number) & (size - 1);
+    while ((slots[s] as number) >= 0) s = (s + 1) & (size - 1);
+    slots[s] = g;
+  }
+}
+
 /**
- * Rows grouped exactly, in one pass: each row is hashed from its bits and compared entry by entry with the first
- * row of each group whose hash it meets (identical rows only share a group). Returns each row's group (numbered in
- * order of first appearance) and each group's first row (a view into the integer workspace, valid until the next
- * grouping); undefined once there are more than `most` groups.
+ * Rows grouped exactly, in one pass: each row is compared entry by entry with the first row of a group it may
+ * belong to (identical rows only share a group). Rows repeat in runs and in cycles (a list sorted by position, a
+ * band scanned again), so the group that followed the previous row's group last time and the previous row's group
+ * are tried first; otherwise the row's hash finds its candidates in an open-addressing table of group numbers
+ * (`HashedGroups`). Returns each row's group (numbered in order of first appearance) and each group's first row (a
+ * view into the integer workspace, valid until the next grouping); undefined once there are more than `most` groups.
  */
 function groupsOfRows(design: Columns, n: number, p: number, most: number) {
-  const cap = Math.floor(most) + 1;
-  const scratch = intWorkspace(n + 2 * cap + 1 + tableLength(cap));
-  const hashes = scratch.subarray(0, n);
-  rowHashes(design, n, p, hashes);
-  const firstRow = scratch.subarray(n, n + cap);
-  const table = new RowTable(scratch.subarray(n + cap), cap);
+  const table = new HashedGroups(design, n, p, most);
+  const { firstRow, successor } = table;
   const group = ints(n);
-  let m = 0;
+  let prev = -1;
   for (let i = 0; i < n; i++) {
-    const hash = finalMix(hashes[i] as number) | 0;
-    let s = hash & (table.size - 1);
-    let g = table.slots[s] as number;
-    while (g >= 0 && ((table.hashes[g] as number) !== hash || !sameRow(design, p, firstRow[g] as number, i))) {
-      s = (s + 1) & (table.size - 1);
-      g = table.slots[s] as number;
-    }
-    if (g < 0) {
-      if (m >= most) return undefined;
-      g = m++;
-      firstRow[g] = i;
-      table.insert(g, hash);
+    let g = prev >= 0 ? (successor[prev] as number) : -1;
+    if (g < 0 || !sameRow(design, p, firstRow[g] as number, i)) {
+      g = prev >= 0 && sameRow(design, p, firstRow[prev] as number, i) ? prev : table.groupOf(i);
+      if (g < 0) return undefined;
+      if (prev >= 0) successor[prev] = g;
     }
     group[i] = g;
+    prev = g;
   }
-  return { group, firstRow: firstRow.subarray(0, m) };
+  return { group, firstRow: firstRow.subarray(0, table.count) };
+}
+
+/**
+ * Groups of identical rows found by hashing: each group's first row, its hash and the group that last followed it
+ * (-1 before any), in the integer workspace; the table of group numbers doubles as groups appear.
+ */
+class HashedGroups {
+  count = 0;
+  private size = 64;
+  readonly firstRow: Int32Array;
+  readonly successor: Int32Array;
+  private readonly hashes: Int32Array;
+  private readonly slots: Int32Array;
+  private readonly words: Int32Array[];
+  constructor(
+    private readonly design: Columns,
+    n: number,
+    private readonly p: number,
+    private readonly most: number,
+  ) {
+    const cap = Math.floor(most) + 1;
+    const scratch = intWorkspace(3 * cap + tableLength(cap));
+    this.firstRow = scratch.subarray(0, cap);
+    this.successor = scratch.subarray(cap, 2 * cap).fill(-1);
+    this.hashes = scratch.subarray(2 * cap, 3 * cap);
+    this.slots = scratch.subarray(3 * cap);
+    this.slots.fill(-1, 0, this.size);
+    this.words = wordsOf(design, n);
+  }
+  /** The group of row i, a new one if no group's first row equals it; -1 past `most` groups. */
+  groupOf(i: number): number {
+    const { design, p, slots, hashes, firstRow } = this;
+    const hash = rowHash(this.words, p, i);
+    let s = hash & (this.size - 1);
+    let g = slots[s] as number;
+    while (g >= 0 && ((hashes[g] as number) !== hash || !sameRow(design, p, firstRow[g] as number, i))) {
+      s = (s + 1) & (this.size - 1);
+      g = slots[s] as number;
+    }
+    if (g >= 0) return g;
+    if (this.count >= this.most) return -1;
+    g = this.count++;
+    firstRow[g] = i;
+    hashes[g] = hash;
+    slots[s] = g;
+    if (2 * this.count > this.size) refill(slots, hashes, this.count, (this.size *= 2));
+    return g;
+  }
 }
 
 /** yᵢ − (Ax)ᵢ for every row, (Ax)ᵢ taken from its merged row (identical design rows give identical fits). */
