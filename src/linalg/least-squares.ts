@@ -386,7 +386,14 @@ function reflect(y: Float64Array, oy: number, v: Float64Array, ov: number, n: nu
   }
   for (; i < n; i++) s0 += (v[ov + i] as number) * (y[oy + i] as number);
   const f = -(s0 + s1 + s2 + s3) * beta;
-  for (let t = k; t < n; t++) y[oy + t] = (y[oy + t] as number) + f * (v[ov + t] as number);
+  let t = k;
+  for (; t + 3 < n; t += 4) {
+    y[oy + t] = (y[oy + t] as number) + f * (v[ov + t] as number);
+    y[oy + t + 1] = (y[oy + t + 1] as number) + f * (v[ov + t + 1] as number);
+    y[oy + t + 2] = (y[oy + t + 2] as number) + f * (v[ov + t + 2] as number);
+    y[oy + t + 3] = (y[oy + t + 3] as number) + f * (v[ov + t + 3] as number);
+  }
+  for (; t < n; t++) y[oy + t] = (y[oy + t] as number) + f * (v[ov + t] as number);
 }
 
 /** Back substitution R z = (Qᵀb)[0:p], unpermuted and unscaled. */
@@ -667,19 +674,23 @@ function residualsByGroup(merged: MergedRows, observations: Float64Array, x: Flo
   return residuals;
 }
 
-/** A row's share of its merged row's leverage is its share of the merged weight: hᵢ = h_g wᵢ / W_g. */
+/** A row's share of its merged row's leverage is its share of the merged weight: hᵢ = (h_g / W_g) wᵢ. */
 function spreadLeverages(
   h: Float64Array,
   merged: MergedRows,
   weights: Float64Array | undefined,
   n: number,
 ): Float64Array {
-  const out = floats(n);
-  for (let i = 0; i < n; i++) {
-    const g = merged.group[i] as number;
+  const m = merged.rows;
+  const perWeight = workspace(m).subarray(0, m);
+  for (let g = 0; g < m; g++) {
     const wg = merged.weights[g] as number;
-    out[i] = wg > 0 ? ((h[g] as number) * (weights ? (weights[i] as number) : 1)) / wg : 0;
+    perWeight[g] = wg > 0 ? (h[g] as number) / wg : 0;
   }
+  const out = floats(n);
+  const group = merged.group;
+  if (weights) for (let i = 0; i < n; i++) out[i] = (perWeight[group[i] as number] as number) * (weights[i] as number);
+  else for (let i = 0; i < n; i++) out[i] = perWeight[group[i] as number] as number;
   return out;
 }
 
@@ -736,18 +747,67 @@ function dependentGroups(r: Float64Array, p: number, rank: number, perm: Int32Ar
 }
 
 /**
- * κ₂(R) = σ_max/σ_min from the singular values of the p × p triangle, by one-sided Jacobi rotations
- * (Hestenes 1958; Demmel & Veselić, SIAM J. Matrix Anal. Appl. 13, 1204 (1992)), accurate for small p.
+ * κ₂(R) = σ_max/σ_min from the singular values of the p × p triangle, by one-sided Jacobi rotations (Hestenes 1958;
+ * Demmel & Veselić, SIAM J. Matrix Anal. Appl. 13, 1204 (1992)) on the rows of R, which column pivoting leaves
+ * nearly orthogonal (fewer sweeps than on its columns); accurate for small p.
  */
 export function triangularConditionNumber(r: Float64Array, p: number): number {
-  const sv = singularValues(r, p, p);
+  // Row i of the row-major R is column i of Rᵀ, whose singular values are R's.
+  const u = copyFloats(r);
+  const d = floats(p);
+  rotateToOrthogonal(u, d, p, p);
   let max = 0;
   let min = Number.POSITIVE_INFINITY;
-  for (const s of sv) {
+  for (let j = 0; j < p; j++) {
+    const s = Math.sqrt(d[j] as number);
     max = Math.max(max, s);
     min = Math.min(min, s);
   }
   return min > 0 ? max / min : Number.POSITIVE_INFINITY;
+}
+
+/** Σₖ u[a + k]·u[b + k] for k < m. */
+function dotAt(u: Float64Array, a: number, b: number, m: number): number {
+  let s = 0;
+  for (let k = 0; k < m; k++) s += (u[a + k] as number) * (u[b + k] as number);
+  return s;
+}
+
+/**
+ * One-sided Jacobi on the n columns of length m of `u` (column j at j·m), rotated in place until every pair is
+ * orthogonal to 1e-15; `d` receives the squared column norms (the squared singular values). Within a sweep the norms
+ * of a rotated pair are updated (α − tγ, β + tγ) instead of summed again; each sweep starts from summed norms.
+ */
+function rotateToOrthogonal(u: Float64Array, d: Float64Array, m: number, n: number): void {
+  for (let sweep = 0; sweep < 60; sweep++) {
+    for (let j = 0; j < n; j++) d[j] = dotAt(u, j * m, j * m, m);
+    let off = 0;
+    for (let i = 0; i < n - 1; i++) {
+      for (let j = i + 1; j < n; j++) {
+        const gamma = dotAt(u, i * m, j * m, m);
+        if (gamma === 0) continue;
+        const alpha = d[i] as number;
+        const beta = d[j] as number;
+        const conv = Math.abs(gamma) / Math.sqrt(alpha * beta);
+        off = Math.max(off, conv);
+        if (conv < 1e-15) continue;
+        const zeta = (beta - alpha) / (2 * gamma);
+        const t = Math.sign(zeta || 1) / (Math.abs(zeta) + Math.sqrt(1 + zeta * zeta));
+        const c = 1 / Math.sqrt(1 + t * t);
+        const s = c * t;
+        for (let k = 0; k < m; k++) {
+          const ui = u[i * m + k] as number;
+          const uj = u[j * m + k] as number;
+          u[i * m + k] = c * ui - s * uj;
+          u[j * m + k] = s * ui + c * uj;
+        }
+        d[i] = alpha - t * gamma;
+        d[j] = beta + t * gamma;
+      }
+    }
+    if (off < 1e-15) break;
+  }
+  for (let j = 0; j < n; j++) d[j] = dotAt(u, j * m, j * m, m);
 }
 
 /** Singular values of a row-major m × n matrix (m ≥ n) by one-sided Jacobi on its columns. */
