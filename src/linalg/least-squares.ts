@@ -654,7 +654,10 @@ class HashedGroups {
     firstRow[g] = i;
     hashes[g] = hash;
     slots[s] = g;
-    if (2 * this.count > this.size) refill(slots, hashes, this.count, (this.size *= 2));
+    if (2 * this.count > this.size) {
+      this.size *= 2;
+      refill(slots, hashes, this.count, this.size);
+    }
     return g;
   }
 }
