@@ -54,32 +54,38 @@ function lineList(n: number, bands: number): LineInput[] {
  * CPU milliseconds per call (process.cpuUsage: the time this process ran, which the other work on a shared machine
  * does not inflate the way it inflates wall time), in the steady state a running service is in: after a warm-up of
  * WARM_MS of CPU time and at least 3 calls, the mean over as many calls as make up minMs of CPU time (a quarter with
- * BENCH_QUICK=1), at least 3. The optimising compiler and the collector run on other threads of this process and
- * count in its CPU time: a 50-line fitLineList cost 2.0–3.3 ms per call in its first 0.4 s of calls and settled at
- * 0.65 ms (0.25 ms with the slab-allocated small arrays) only after about 2 s (bench/run.ts before 2026-12-04 warmed
- * up for 50 ms). `warmUpOnce` gives the fit code that time once, before the first table.
+ * BENCH_QUICK=1), at least 3. The calls run in batches of about BATCH_MS between two readings of the clock: one
+ * reading costs about 2.6 µs of CPU here (measured 2026-12-04, getrusage), as much as a 50-line solve, and timing
+ * every call added it to every call. The optimising compiler and the collector run on other threads of this process
+ * and count in its CPU time: a 50-line fitLineList cost 2.0–3.3 ms per call in its first 0.4 s of calls and settled
+ * at 0.65 ms (0.25 ms with the slab-allocated small arrays) only after about 2 s (bench/run.ts before 2026-12-04
+ * warmed up for 50 ms). `warmUpOnce` gives the fit code that time once, before the first table.
  */
 function time(f: () => void, minMs = 300): number {
-  warmUp(f, WARM_MS);
+  const batch = Math.max(1, Math.floor(BATCH_MS / warmUp(f, WARM_MS)));
   const target = quick ? minMs / 4 : minMs;
   const c0 = process.cpuUsage();
   let calls = 0;
   while (calls < 3 || cpuMs(process.cpuUsage(c0)) < target) {
-    f();
-    calls++;
+    for (let k = 0; k < batch; k++) f();
+    calls += batch;
   }
   return cpuMs(process.cpuUsage(c0)) / calls;
 }
 
 const WARM_MS = quick ? 250 : 500;
+/** CPU milliseconds of calls between two readings of the clock. */
+const BATCH_MS = 1;
 
-function warmUp(f: () => void, ms: number): void {
+/** Calls f for at least `ms` of CPU time and 3 calls; returns the CPU milliseconds per call. */
+function warmUp(f: () => void, ms: number): number {
   const c0 = process.cpuUsage();
   let calls = 0;
   while (calls < 3 || cpuMs(process.cpuUsage(c0)) < ms) {
     f();
     calls++;
   }
+  return cpuMs(process.cpuUsage(c0)) / calls;
 }
 
 /** The fit and assignment code run for 2.5 s of CPU (1.2 s quick) before anything is timed: see `time`. */
