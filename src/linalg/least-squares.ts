@@ -544,17 +544,19 @@ function wordsOf(design: Columns, n: number): Int32Array[] {
 }
 
 /**
- * Hash of row i from the bits of its entries (multiply and xor per word, then the final avalanche of MurmurHash3,
- * Appleby); the sign bit is left out so that 0 and −0, which compare equal, hash alike.
+ * Hash of row i from the bits of its entries: the low and the high words in two independent multiply-xor chains (so
+ * that neither waits for the other), then the final avalanche of MurmurHash3 (Appleby). The sign bit is left out so
+ * that 0 and −0, which compare equal, hash alike.
  */
 function rowHash(words: readonly Int32Array[], p: number, i: number): number {
-  let h = 0x811c9dc5 | 0;
+  let lo = 0x811c9dc5 | 0;
+  let hi = 0x2545f491;
   for (let j = 0; j < p; j++) {
     const w = words[j] as Int32Array;
-    h = Math.imul(h ^ (w[2 * i] as number), 0x01000193);
-    h = Math.imul(h ^ ((w[2 * i + 1] as number) & 0x7fffffff), 0x9e3779b1);
-    h ^= h >>> 16;
+    lo = Math.imul(lo ^ (w[2 * i] as number), 0x01000193);
+    hi = Math.imul(hi ^ ((w[2 * i + 1] as number) & 0x7fffffff), 0x9e3779b1);
   }
+  let h = lo ^ ((hi << 16) | (hi >>> 16));
   h = Math.imul(h ^ (h >>> 16), 0x85ebca6b);
   h = Math.imul(h ^ (h >>> 13), 0xc2b2ae35);
   return h ^ (h >>> 16);
