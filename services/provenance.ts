@@ -64,7 +64,7 @@ export function provenanceOf(req: FastifyRequest): Provenance {
 
 /** Hash every request body as its bytes pass by (compressed or not, exactly as sent). */
 export function hashRequestBodies(app: FastifyInstance): void {
-  app.addHook('preParsing', async (request, _reply, payload) => {
+  app.addHook('preParsing', async (request, reply, payload) => {
     const hash = createHash('sha256');
     const tap = new Transform({
       transform(chunk: Buffer, _enc, done) {
@@ -77,6 +77,14 @@ export function hashRequestBodies(app: FastifyInstance): void {
       },
     });
     payload.on('error', (e) => tap.destroy(e));
+    // An answer sent before the body was read (a content type no route takes: 415) left the piped body stalled
+    // once the tap's buffer filled, and Node no longer discards an unread body it sees being consumed: the next
+    // request on the keep-alive connection then waited behind it unanswered. The rest is discarded, as Node does.
+    reply.raw.once('finish', () => {
+      if (payload.readableEnded || payload.destroyed) return;
+      payload.unpipe(tap);
+      payload.resume();
+    });
     return payload.pipe(tap);
   });
 }
