@@ -85,6 +85,8 @@ export function createPool(config: Config): Pool {
     if (r.ok) return r.value as T;
     if ('nonFinite' in r) throw new NonFiniteResult(r.nonFinite.quantity, r.nonFinite.value);
     if ('budget' in r) throw new NeedsBudget(r.budget, r.bytes);
+    // The status, code and title fastify's parser gives a small body of broken JSON (services/errors.ts).
+    if ('invalidJson' in r) throw new HttpProblem('INVALID_JSON', 400, 'Body is not valid JSON', r.invalidJson);
     if ('validation' in r) {
       const errors = r.validation;
       throw new HttpProblem(

@@ -1,5 +1,4 @@
 import { Buffer } from 'node:buffer';
-import { ScienceError } from '../src/errors.js';
 import type { Config } from './config.js';
 import { CSV_TYPES, JCAMP_TYPES, textBodyToJson } from './text-bodies.js';
 
@@ -69,6 +68,9 @@ export function tooDeep(): Error {
   return Object.assign(new Error(`JSON nested deeper than ${MAX_JSON_DEPTH} levels`), { statusCode: 400 });
 }
 
+/** A large body that is not JSON: the 400 INVALID_JSON problem a small one gets (services/pool.ts rebuilds it). */
+export class InvalidJsonBody extends Error {}
+
 export type Limits = Pick<Config, 'maxLines' | 'maxPoints'>;
 
 /** The body as the route's JSON, parsed where it is called (in a worker for large bodies). */
@@ -79,9 +81,10 @@ export function decodeBody(raw: Pick<RawBody, 'bytes' | 'contentType' | 'query'>
     return textBodyToJson(type, text, raw.query, limits);
   let parsed: unknown;
   try {
-    parsed = JSON.parse(text);
+    // A leading byte order mark is skipped, as fastify's parser skips it for a small body.
+    parsed = JSON.parse(text.charCodeAt(0) === 0xfeff ? text.slice(1) : text);
   } catch (e) {
-    throw new ScienceError('INPUT_INVALID', `the body is not valid JSON: ${(e as Error).message.slice(0, 200)}`, {});
+    throw new InvalidJsonBody(`the body is not valid JSON: ${(e as Error).message.slice(0, 200)}`);
   }
   if (jsonDepth(parsed) > MAX_JSON_DEPTH) throw tooDeep();
   return parsed;

@@ -6,7 +6,7 @@ import { withDetail } from './formats/respond.js';
 import { withDisplay } from './formats/round.js';
 import { jobSize } from './job-size.js';
 import type { Provenance } from './provenance.js';
-import { decodeBody, type Limits } from './raw-body.js';
+import { decodeBody, InvalidJsonBody, type Limits } from './raw-body.js';
 import { type CheckRequest, CheckResponseSchema, checkRequestSchema } from './schemas/checks.js';
 import { type FitRequest, FitResponseSchema, fitRequestSchema } from './schemas/fit.js';
 import { type PeaksRequest, type PeaksResponse, PeaksResponseSchema, parsePeaksRequest } from './schemas/peaks.js';
@@ -62,6 +62,7 @@ export type JobResult =
   | { ok: false; error: { code: string; message: string; details: Record<string, unknown> } }
   | { ok: false; nonFinite: { quantity: string; value: string } }
   | { ok: false; budget: number; bytes?: Uint8Array }
+  | { ok: false; invalidJson: string }
   | { ok: false; validation: { path: string; message: string }[] };
 
 class NeedsBudget extends Error {
@@ -175,6 +176,7 @@ function failed(e: unknown): JobResult {
     return { ok: false, error: { code: e.code, message: e.message, details: { ...e.details } } };
   if (e instanceof NonFiniteResult) return { ok: false, nonFinite: { quantity: e.quantity, value: e.value } };
   if (e instanceof NeedsBudget) return { ok: false, budget: e.lines };
+  if (e instanceof InvalidJsonBody) return { ok: false, invalidJson: e.message };
   if (e instanceof ValidationFailed)
     return {
       ok: false,

@@ -73,6 +73,33 @@ describe('large bodies off the event loop', () => {
     expect(d.statusCode).toBe(400);
   });
 
+  it('a byte order mark, or JSON cut short, gets the answer below the threshold and above it alike', async () => {
+    const json = JSON.stringify(small);
+    // The same lines padded with blanks to just under and just over OFFLOAD_BYTES (three bytes of BOM included).
+    const padded = (n: number) => `${json.slice(0, -1)}${' '.repeat(n - json.length - 3)}}`;
+    const bom = Buffer.from([0xef, 0xbb, 0xbf]);
+    const post = (body: Buffer) =>
+      app().inject({
+        method: 'POST',
+        url: '/v1/fits',
+        payload: body,
+        headers: { 'content-type': 'application/json' },
+        remoteAddress: nextClient(),
+      });
+    const sizes = [DEFAULT_CONFIG.offloadBytes - 1, DEFAULT_CONFIG.offloadBytes + 1];
+    const [below, above] = await Promise.all(sizes.map((n) => post(Buffer.concat([bom, Buffer.from(padded(n))]))));
+    expect(below?.statusCode).toBe(200);
+    expect(above?.statusCode).toBe(200);
+    expect(above?.json().parameters).toEqual(below?.json().parameters);
+    const [cutBelow, cutAbove] = await Promise.all(sizes.map((n) => post(Buffer.from(padded(n).slice(0, -1)))));
+    for (const r of [cutBelow, cutAbove]) {
+      expect(r?.statusCode).toBe(400);
+      expect(r?.headers['content-type']).toMatch(/^application\/problem\+json/);
+    }
+    expect(cutAbove?.json().code).toBe(cutBelow?.json().code);
+    expect(cutAbove?.json().title).toBe(cutBelow?.json().title);
+  });
+
   it('admission: a second large request while the budget is taken is a 503 with Retry-After, before its body is read', async () => {
     const tight = await buildApp({ config: { ...DEFAULT_CONFIG, maxActiveLines: 3000 } });
     const payload = JSON.stringify(large);
