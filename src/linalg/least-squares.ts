@@ -262,11 +262,10 @@ function pivotedQR(
   observations: Float64Array,
   weights: Float64Array | undefined,
 ): Factorisation {
-  const buf = workspace(n * p + 3 * n);
+  const buf = workspace(n * p + 2 * n);
   const a = buf.subarray(0, n * p);
   const b = buf.subarray(n * p, n * p + n);
   const sw = buf.subarray(n * p + n, n * p + 2 * n);
-  const tmp = buf.subarray(n * p + 2 * n, n * p + 3 * n);
   for (let i = 0; i < n; i++) {
     const s = weights ? Math.sqrt(weights[i] as number) : 1;
     sw[i] = s;
@@ -287,9 +286,11 @@ function pivotedQR(
     let best = k;
     for (let j = k + 1; j < p; j++) if ((colNorm[j] as number) > (colNorm[best] as number)) best = j;
     if (best !== k) {
-      tmp.set(a.subarray(k * n, k * n + n));
-      a.copyWithin(k * n, best * n, best * n + n);
-      a.set(tmp, best * n);
+      for (let i = 0; i < n; i++) {
+        const t = a[k * n + i] as number;
+        a[k * n + i] = a[best * n + i] as number;
+        a[best * n + i] = t;
+      }
       swap(perm, k, best);
       swapF(colNorm, k, best);
       swapF(colNormRef, k, best);
@@ -538,23 +539,22 @@ function intWorkspace(length: number): Int32Array {
   return intPool;
 }
 
-/** Each column's 64-bit entries as pairs of 32-bit words (views, nothing copied). */
-function wordsOf(design: Columns, n: number): Int32Array[] {
-  return design.map((c) => new Int32Array(c.buffer, c.byteOffset, 2 * n));
-}
+/** One entry's 64 bits as two 32-bit words (shared scratch: the kernel is synchronous). */
+const entry = new Float64Array(1);
+const entryWords = new Int32Array(entry.buffer);
 
 /**
  * Hash of row i from the bits of its entries: the low and the high words in two independent multiply-xor chains (so
  * that neither waits for the other), then the final avalanche of MurmurHash3 (Appleby). The sign bit is left out so
  * that 0 and −0, which compare equal, hash alike.
  */
-function rowHash(words: readonly Int32Array[], p: number, i: number): number {
+function rowHash(design: Columns, p: number, i: number): number {
   let lo = 0x811c9dc5 | 0;
   let hi = 0x2545f491;
   for (let j = 0; j < p; j++) {
-    const w = words[j] as Int32Array;
-    lo = Math.imul(lo ^ (w[2 * i] as number), 0x01000193);
-    hi = Math.imul(hi ^ ((w[2 * i + 1] as number) & 0x7fffffff), 0x9e3779b1);
+    entry[0] = (design[j] as Float64Array)[i] as number;
+    lo = Math.imul(lo ^ (entryWords[0] as number), 0x01000193);
+    hi = Math.imul(hi ^ ((entryWords[1] as number) & 0x7fffffff), 0x9e3779b1);
   }
   let h = lo ^ ((hi << 16) | (hi >>> 16));
   h = Math.imul(h ^ (h >>> 16), 0x85ebca6b);
@@ -596,7 +596,7 @@ function refill(slots: Int32Array, hashes: Int32Array, m: number, size: number):
  * view into the integer workspace, valid until the next grouping); undefined once there are more than `most` groups.
  */
 function groupsOfRows(design: Columns, n: number, p: number, most: number) {
-  const table = new HashedGroups(design, n, p, most);
+  const table = new HashedGroups(design, p, most);
   const { firstRow, successor } = table;
   const group = ints(n);
   let prev = -1;
@@ -624,10 +624,8 @@ class HashedGroups {
   readonly successor: Int32Array;
   private readonly hashes: Int32Array;
   private readonly slots: Int32Array;
-  private readonly words: Int32Array[];
   constructor(
     private readonly design: Columns,
-    n: number,
     private readonly p: number,
     private readonly most: number,
   ) {
@@ -638,12 +636,11 @@ class HashedGroups {
     this.hashes = scratch.subarray(2 * cap, 3 * cap);
     this.slots = scratch.subarray(3 * cap);
     this.slots.fill(-1, 0, this.size);
-    this.words = wordsOf(design, n);
   }
   /** The group of row i, a new one if no group's first row equals it; -1 past `most` groups. */
   groupOf(i: number): number {
     const { design, p, slots, hashes, firstRow } = this;
-    const hash = rowHash(this.words, p, i);
+    const hash = rowHash(design, p, i);
     let s = hash & (this.size - 1);
     let g = slots[s] as number;
     while (g >= 0 && ((hashes[g] as number) !== hash || !sameRow(design, p, firstRow[g] as number, i))) {
