@@ -1,6 +1,6 @@
 import type { FastifyInstance } from 'fastify';
 import type { Config } from '../config.js';
-import { HttpProblem } from '../errors.js';
+import { HttpProblem, problem, sendProblem } from '../errors.js';
 import { jsonDepth, MAX_JSON_DEPTH, RawBody, tooDeep } from '../raw-body.js';
 import { NDJSON } from '../rest/batch.js';
 import { CSV_TYPES, JCAMP_TYPES, textBodyToJson } from '../text-bodies.js';
@@ -34,6 +34,27 @@ export function parseBodies(app: FastifyInstance, config: Config): void {
   // No route takes plain text: without this, fastify's text/plain parser handed a JSON or CSV body sent as
   // text/plain to the schema as a string ("expected object, received string"); now it is a 415 naming the types.
   app.removeContentTypeParser('text/plain');
+  // No content coding is decoded: a gzip or deflate body reached the parsers as its compressed bytes and was
+  // answered "Body is not valid JSON" (or a CSV error quoting binary); now it is a 415 naming the coding, sent
+  // before the body is read.
+  app.addHook('onRequest', async (request, reply) => {
+    const coding = String(request.headers['content-encoding'] ?? '')
+      .trim()
+      .toLowerCase();
+    if (coding === '' || coding === 'identity') return;
+    const hasBody = request.headers['transfer-encoding'] !== undefined || Number(request.headers['content-length']) > 0;
+    if (!hasBody) return;
+    return sendProblem(
+      reply,
+      problem(
+        'UNSUPPORTED_MEDIA_TYPE',
+        415,
+        'Unsupported media type',
+        `Content-Encoding "${coding}" is not accepted: send the body uncompressed`,
+        request,
+      ),
+    );
+  });
   const defaultJson = app.getDefaultJsonParser('error', 'error');
   // Large bodies of the work routes go to a worker unparsed, as bytes (services/raw-body.ts); the others are decoded
   // here exactly as fastify decodes a body it reads as a string (UTF-8, invalid bytes as U+FFFD).

@@ -1,3 +1,4 @@
+import { gzipSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
 import { buildApp } from '../../services/app.js';
 import { DEFAULT_CONFIG } from '../../services/config.js';
@@ -126,5 +127,32 @@ describe('bad input gets RFC 9457 problem+json, never a 5xx', () => {
     expect(big.statusCode).toBe(413);
     expect(big.headers['content-type']).toMatch(/problem\+json/);
     await small.close();
+  });
+});
+
+describe('a compressed body (no content coding is decoded)', () => {
+  it('gzip or deflate, small or past OFFLOAD_BYTES, JSON or CSV: 415 naming the coding, not a parse error of its bytes', async () => {
+    const json = JSON.stringify(good);
+    for (const text of [json, `${json.slice(0, -1)}${' '.repeat(DEFAULT_CONFIG.offloadBytes)}}`])
+      for (const [coding, type] of [
+        ['gzip', 'application/json'],
+        ['deflate', 'application/json'],
+        ['gzip', 'text/csv'],
+      ] as const) {
+        const r = await app().inject({
+          method: 'POST',
+          url: '/v1/fits?species=HCl',
+          payload: gzipSync(text),
+          headers: { 'content-type': type, 'content-encoding': coding },
+        });
+        const p = expectProblem(r, 415);
+        expect(p.code).toBe('UNSUPPORTED_MEDIA_TYPE');
+        expect(p.detail).toContain(coding);
+      }
+  });
+
+  it('"identity" is no coding: the body is read as sent', async () => {
+    const r = await post(good, { 'content-type': 'application/json', 'content-encoding': 'identity' });
+    expect(r.statusCode).toBe(200);
   });
 });
