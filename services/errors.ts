@@ -224,6 +224,11 @@ export function problem(code: string, status: number, title: string, detail: str
   return { type: problemType(code), title, status, detail: truncate(detail), instance: instanceOf(request), code };
 }
 
+/** The 415 answer, sent before the body is read: `detail` says what the route takes instead. */
+export function sendUnsupportedMediaType(reply: FastifyReply, detail: string, request: FastifyRequest): FastifyReply {
+  return sendProblem(reply, problem('UNSUPPORTED_MEDIA_TYPE', 415, 'Unsupported media type', detail, request));
+}
+
 /** Human-readable descriptions behind each problem type URI. */
 export const PROBLEM_DESCRIPTIONS: Record<string, string> = {
   'validation-failed': 'The body does not match the request schema; `errors` lists each offending path.',

@@ -1,6 +1,6 @@
 import type { FastifyInstance } from 'fastify';
 import type { Config } from '../config.js';
-import { HttpProblem, problem, sendProblem } from '../errors.js';
+import { HttpProblem, sendUnsupportedMediaType } from '../errors.js';
 import { jsonDepth, MAX_JSON_DEPTH, RawBody, tooDeep } from '../raw-body.js';
 import { NDJSON } from '../rest/batch.js';
 import { CSV_TYPES, JCAMP_TYPES, textBodyToJson } from '../text-bodies.js';
@@ -44,15 +44,10 @@ export function parseBodies(app: FastifyInstance, config: Config): void {
     if (coding === '' || coding === 'identity') return;
     const hasBody = request.headers['transfer-encoding'] !== undefined || Number(request.headers['content-length']) > 0;
     if (!hasBody) return;
-    return sendProblem(
+    return sendUnsupportedMediaType(
       reply,
-      problem(
-        'UNSUPPORTED_MEDIA_TYPE',
-        415,
-        'Unsupported media type',
-        `Content-Encoding "${coding}" is not accepted: send the body uncompressed`,
-        request,
-      ),
+      `Content-Encoding "${coding}" is not accepted: send the body uncompressed`,
+      request,
     );
   });
   const defaultJson = app.getDefaultJsonParser('error', 'error');

@@ -2,7 +2,7 @@ import { PassThrough, type Readable } from 'node:stream';
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import type { Config } from '../config.js';
-import { problem, sendProblem, toProblem } from '../errors.js';
+import { sendUnsupportedMediaType, toProblem } from '../errors.js';
 import { jobSize } from '../pool.js';
 import { stampedBytes } from '../provenance.js';
 import { checkRequestSchema } from '../schemas/checks.js';
@@ -37,16 +37,7 @@ export const batchRoutes =
                 .toLowerCase() === NDJSON
             )
               return;
-            return sendProblem(
-              reply,
-              problem(
-                'UNSUPPORTED_MEDIA_TYPE',
-                415,
-                'Unsupported media type',
-                `send ${NDJSON}, one request a line`,
-                req,
-              ),
-            );
+            return sendUnsupportedMediaType(reply, `send ${NDJSON}, one request a line`, req);
           },
           schema: {
             operationId: path === 'fits' ? 'fitBatch' : 'checkBatch',
