@@ -355,28 +355,8 @@ export function assignFromStructure(
   options: AnalyseOptions,
 ): Analysis {
   const band = options.structureBand ?? { upper: 1, lower: 0 };
-  const free = peaks.map((p, index) => ({ p, index })).filter((x) => !x.p.assignment);
-  const s = decisiveNumbering(
-    free.map((x) => x.p),
-    species,
-    band,
-  );
-  const extended = extendByFit(
-    free.map((x) => x.p),
-    s.assigned,
-    species.formula,
-    reducedMass(species),
-    band,
-  );
-  const lines: PeakInput[] = peaks.map((p) => p);
-  free.forEach((x, k) => {
-    const t = extended.get(k);
-    if (t)
-      lines[x.index] = {
-        ...x.p,
-        assignment: { species: species.formula, band, branch: t.branch, j: t.j, source: 'auto' },
-      };
-  });
+  const first = numberFirstBand(peaks, species, band);
+  const { lines, free, numbering: s } = first;
   const hot = numberHotBands(lines, free, species, band);
   masses.set(species.formula, reducedMass(species));
   const fit = fitLineListDetailed(lines, masses, options.fit ?? {});
@@ -394,26 +374,77 @@ export function assignFromStructure(
   const suggested = withLabelSuggestions(fit, lines);
   return {
     result: { ...suggested, warnings: [...warnings, ...suggested.warnings] },
-    assignment: {
-      method: 'structure',
-      species: [species.formula],
-      bands: [
-        { species: species.formula, band: `${band.upper}-${band.lower}`, predicted: 0, matched: extended.size },
-        ...hot.bands.map((b) => ({
-          species: species.formula,
-          band: `${b.band.upper}-${b.band.lower}`,
-          predicted: 0,
-          matched: b.matched,
-        })),
-      ],
-      unexplained,
-      numbering: {
-        chosen: s.evidence[0] as NumberingEvidence,
-        runnersUp: s.evidence.slice(1),
-        margin: Number.isFinite(s.margin) ? s.margin : null,
-      },
-    },
+    assignment: structureReport(species, band, first, hot.bands, unexplained),
     notes: new Map(),
+  };
+}
+
+/** The first band numbered from structure alone and grown along its own fit. */
+export interface FirstBand {
+  /** Every peak, those numbered now carrying their assignment (source 'auto'). */
+  readonly lines: PeakInput[];
+  /** The peaks that came without an assignment, with their index in the list. */
+  readonly free: readonly { p: PeakInput; index: number }[];
+  /** The decisive numbering the growth started from. */
+  readonly numbering: Numbering;
+  /** How many free lines the grown numbering assigns. */
+  readonly matched: number;
+}
+
+/** The unassigned peaks' decisive numbering of `band` (refused when there is none), grown along its own fit. */
+export function numberFirstBand(peaks: readonly PeakInput[], species: Isotopologue, band: Band): FirstBand {
+  const free = peaks.map((p, index) => ({ p, index })).filter((x) => !x.p.assignment);
+  const numbering = decisiveNumbering(
+    free.map((x) => x.p),
+    species,
+    band,
+  );
+  const extended = extendByFit(
+    free.map((x) => x.p),
+    numbering.assigned,
+    species.formula,
+    reducedMass(species),
+    band,
+  );
+  const lines: PeakInput[] = peaks.map((p) => p);
+  free.forEach((x, k) => {
+    const t = extended.get(k);
+    if (t)
+      lines[x.index] = {
+        ...x.p,
+        assignment: { species: species.formula, band, branch: t.branch, j: t.j, source: 'auto' },
+      };
+  });
+  return { lines, free, numbering, matched: extended.size };
+}
+
+/** What the structure path assigned: each band with its count, and the evidence for the numbering. */
+export function structureReport(
+  species: Isotopologue,
+  band: Band,
+  first: FirstBand,
+  hot: readonly { band: Band; matched: number }[],
+  unexplained: readonly number[],
+): AssignmentReport {
+  const s = first.numbering;
+  return {
+    method: 'structure',
+    species: [species.formula],
+    bands: [
+      { species: species.formula, band: `${band.upper}-${band.lower}`, predicted: 0, matched: first.matched },
+      ...hot.map((b) => ({
+        species: species.formula,
+        band: `${b.band.upper}-${b.band.lower}`,
+        predicted: 0,
+        matched: b.matched,
+      })),
+    ],
+    unexplained,
+    numbering: {
+      chosen: s.evidence[0] as NumberingEvidence,
+      runnersUp: s.evidence.slice(1),
+      margin: Number.isFinite(s.margin) ? s.margin : null,
+    },
   };
 }
 
