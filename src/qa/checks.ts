@@ -187,56 +187,70 @@ function identityCheck(
   const entry = constantsFor(iso);
   // the runner-up is the best-ranked other molecule (an isotopologue of the fitted one is no rival)
   const runnerUp = ranking.find((c) => moleculeKey(parseSpecies(c.species)) !== moleculeKey(iso));
-  const measured: Record<string, unknown> = {
-    declared: declared?.formula ?? null,
-    fitted: main,
-    bestMatch: best?.species ?? null,
-    bestScore: best?.score ?? 0,
-    runnerUp: runnerUp?.species ?? null,
-    runnerUpScore: runnerUp?.score ?? 0,
-  };
-  const problems: string[] = [];
-  let worst: CheckStatus = 'pass';
-  const raise = (s: CheckStatus) => {
-    if (RANK[s] > RANK[worst]) worst = s;
-  };
-  if (best && best.score >= 0.5 && moleculeKey(parseSpecies(best.species)) !== moleculeKey(iso)) {
-    problems.push(`the lines match ${best.name} (score ${best.score.toFixed(2)}) better than the declared ${main}`);
-    raise('fail');
-  }
-  const byChance = analysis.result.warnings.find((w) => w.code === 'ASSIGNMENT_NOT_BEYOND_CHANCE');
-  if (byChance) {
-    problems.push(byChance.message);
-    raise('fail');
-  }
+  const rivals = identityRivals(best, iso, main, analysis);
   const deviation = entry ? referenceDeviation(analysis, main, entry) : undefined;
-  if (deviation) {
-    const { band, dOrigin, dB } = deviation;
-    measured.band = band;
-    measured.originDeviation = dOrigin;
-    measured.relativeBDeviation = dB;
-    const off = `band origin off by ${dOrigin.toFixed(3)} cm-1 and B″ by ${(dB * 1e6).toFixed(0)} ppm from the reference`;
-    if (Math.abs(dOrigin) > 3 * tol.identityOrigin || Math.abs(dB) > 3 * tol.identityB) {
-      raise('fail');
-      problems.push(off);
-    } else if (Math.abs(dOrigin) > tol.identityOrigin || Math.abs(dB) > tol.identityB) {
-      raise('warn');
-      problems.push(off);
-    }
-  } else if (!entry) {
-    raise('warn');
-    problems.push(`${main} has no reference constants: identity rests on the band structure only`);
-  }
+  const reference = referenceVerdict(deviation, Boolean(entry), main, tol);
+  const problems = reference.problem === undefined ? rivals : [...rivals, reference.problem];
   return {
     id: 'identity',
-    status: worst,
-    measured,
+    status: rivals.length > 0 ? 'fail' : reference.status,
+    measured: {
+      declared: declared?.formula ?? null,
+      fitted: main,
+      bestMatch: best?.species ?? null,
+      bestScore: best?.score ?? 0,
+      runnerUp: runnerUp?.species ?? null,
+      runnerUpScore: runnerUp?.score ?? 0,
+      ...(deviation
+        ? { band: deviation.band, originDeviation: deviation.dOrigin, relativeBDeviation: deviation.dB }
+        : {}),
+    },
     limit,
     message:
       problems.length === 0
         ? `${main} agrees with the reference library${inconclusiveRanking(best, iso) ?? (runnerUp ? `; runner-up ${runnerUp.species} (score ${runnerUp.score.toFixed(2)})` : '')}`
         : problems.join('; '),
   };
+}
+
+/**
+ * What fails identity whatever the reference says: another molecule ranked first with a score that names it, or an
+ * assignment no better than chance.
+ */
+function identityRivals(
+  best: IdentificationCandidate | undefined,
+  iso: Isotopologue,
+  main: string,
+  analysis: Analysis,
+): string[] {
+  const problems: string[] = [];
+  if (best && best.score >= 0.5 && moleculeKey(parseSpecies(best.species)) !== moleculeKey(iso))
+    problems.push(`the lines match ${best.name} (score ${best.score.toFixed(2)}) better than the declared ${main}`);
+  const byChance = analysis.result.warnings.find((w) => w.code === 'ASSIGNMENT_NOT_BEYOND_CHANCE');
+  if (byChance) problems.push(byChance.message);
+  return problems;
+}
+
+/**
+ * The fitted band against the library's: warn beyond the limits, fail beyond three times them; without reference
+ * constants a warning that identity rests on the band structure only.
+ */
+function referenceVerdict(
+  deviation: { dOrigin: number; dB: number } | undefined,
+  hasReference: boolean,
+  main: string,
+  tol: Tolerances,
+): { status: CheckStatus; problem?: string } {
+  if (!deviation)
+    return hasReference
+      ? { status: 'pass' }
+      : { status: 'warn', problem: `${main} has no reference constants: identity rests on the band structure only` };
+  const { dOrigin, dB } = deviation;
+  const off = `band origin off by ${dOrigin.toFixed(3)} cm-1 and B″ by ${(dB * 1e6).toFixed(0)} ppm from the reference`;
+  if (Math.abs(dOrigin) > 3 * tol.identityOrigin || Math.abs(dB) > 3 * tol.identityB)
+    return { status: 'fail', problem: off };
+  if (Math.abs(dOrigin) > tol.identityOrigin || Math.abs(dB) > tol.identityB) return { status: 'warn', problem: off };
+  return { status: 'pass' };
 }
 
 /**
