@@ -95,62 +95,71 @@ export function tokenizeAsdf(text: string, lineNo: number): Token[] {
       i++;
       continue;
     }
-    let kind: Token['kind'];
-    let lead: number | undefined;
-    let sign = 1;
-    let digits = '';
-    if (ch in SQZ) {
-      kind = 'abs';
-      lead = SQZ[ch] as number;
-    } else if (ch in DIF) {
-      kind = 'dif';
-      lead = DIF[ch] as number;
-    } else if (ch in DUP) {
-      kind = 'dup';
-      lead = DUP[ch] as number;
-    } else if (ch === '+' || ch === '-' || ch === '.' || (ch >= '0' && ch <= '9')) {
-      kind = 'abs';
-      if (ch === '+' || ch === '-') {
-        sign = ch === '-' ? -1 : 1;
-        i++;
-      }
-    } else if (ch === '?') {
+    if (ch === '?') {
       // A missing value: kept as NaN so that the X grid stays aligned.
       out.push({ kind: 'abs', value: Number.NaN });
       i++;
       continue;
-    } else if (ch === '$' && text[i + 1] === '$') {
-      break; // a comment runs to the end of the line
-    } else {
-      fail(lineNo, `unexpected character "${ch}" in the data`);
     }
-    if (lead !== undefined) {
-      i++;
-      // The lead character's digit is the first digit; its sign is the value's sign.
-      sign = lead < 0 ? -1 : 1;
-      digits = String(Math.abs(lead));
-    }
-    const start = i;
-    while (i < n) {
-      const c = text[i] as string;
-      if ((c >= '0' && c <= '9') || c === '.') i++;
-      else if (
-        (c === 'E' || c === 'e') &&
-        kind === 'abs' &&
-        lead === undefined &&
-        !compressed &&
-        /^[Ee][+-]?\d{1,3}(?=[\s,;]|$)/.test(text.slice(i))
-      ) {
-        i += text[i + 1] === '+' || text[i + 1] === '-' ? 2 : 1;
-      } else break;
-    }
-    digits += text.slice(start, i);
-    if (digits === '' || digits === '.') fail(lineNo, 'a number was expected');
-    const v = Number(digits);
-    if (!Number.isFinite(v)) fail(lineNo, `"${digits}" is not a number`);
-    out.push({ kind, value: kind === 'dup' ? v : sign * v });
+    if (ch === '$' && text[i + 1] === '$') break; // a comment runs to the end of the line
+    const start = tokenStart(ch, lineNo);
+    i += start.width;
+    const end = endOfNumber(text, i, start.kind === 'abs' && start.lead === undefined && !compressed);
+    out.push(tokenOf(start, start.digits + text.slice(i, end), lineNo));
+    i = end;
   }
   return out;
+}
+
+/**
+ * How a token starts: its kind, the characters taken and the sign and first digit they carry. A lead character
+ * (SQZ, DIF, DUP) is the first digit, its sign the value's sign; an explicit sign is taken; a digit or point
+ * starts a plain number.
+ */
+interface TokenStart {
+  readonly kind: Token['kind'];
+  readonly lead?: number;
+  readonly sign: number;
+  readonly digits: string;
+  readonly width: number;
+}
+
+function tokenStart(ch: string, lineNo: number): TokenStart {
+  const led = (kind: Token['kind'], lead: number): TokenStart => ({
+    kind,
+    lead,
+    sign: lead < 0 ? -1 : 1,
+    digits: String(Math.abs(lead)),
+    width: 1,
+  });
+  if (ch in SQZ) return led('abs', SQZ[ch] as number);
+  if (ch in DIF) return led('dif', DIF[ch] as number);
+  if (ch in DUP) return led('dup', DUP[ch] as number);
+  if (ch === '+' || ch === '-') return { kind: 'abs', sign: ch === '-' ? -1 : 1, digits: '', width: 1 };
+  if (ch === '.' || (ch >= '0' && ch <= '9')) return { kind: 'abs', sign: 1, digits: '', width: 0 };
+  fail(lineNo, `unexpected character "${ch}" in the data`);
+}
+
+/** Where the digits and points from `i` end; with `exponent`, a short exponent that ends the number is taken too. */
+function endOfNumber(text: string, i: number, exponent: boolean): number {
+  const n = text.length;
+  let end = i;
+  while (end < n) {
+    const c = text[end] as string;
+    if ((c >= '0' && c <= '9') || c === '.') end++;
+    else if ((c === 'E' || c === 'e') && exponent && /^[Ee][+-]?\d{1,3}(?=[\s,;]|$)/.test(text.slice(end))) {
+      end += text[end + 1] === '+' || text[end + 1] === '-' ? 2 : 1;
+    } else break;
+  }
+  return end;
+}
+
+/** The token of the digits read after its start: a repeat count as it is, any other value with its sign. */
+function tokenOf(start: TokenStart, digits: string, lineNo: number): Token {
+  if (digits === '' || digits === '.') fail(lineNo, 'a number was expected');
+  const v = Number(digits);
+  if (!Number.isFinite(v)) fail(lineNo, `"${digits}" is not a number`);
+  return { kind: start.kind, value: start.kind === 'dup' ? v : start.sign * v };
 }
 
 /**
