@@ -143,13 +143,58 @@ function numberOf(cell: string, decimalComma: boolean): number {
  * Trailing delimiters, blank lines and "#" comment lines are ignored. Errors name the line.
  */
 export function parseCsv(text: string, limits: CsvLimits = {}): CsvData {
+  const { delimiter, header, unitsRow, data } = readRows(text, limits);
+  if (data.length === 0) {
+    // Name what was read instead: a second row without numbers is taken as the row of units under the header.
+    const read = header
+      ? ` (header ${header.cells.join(', ')}${unitsRow ? `; the row under it, ${unitsRow.join(', ')}, was read as its units` : ''})`
+      : '';
+    throw new ScienceError('INPUT_INVALID', `the CSV holds no rows of numbers${read}`, {});
+  }
+  const decimalComma = delimiter !== ',';
+  if (header !== undefined)
+    refuseExtraFields(data, header.cells.length, `the header has ${header.cells.length}`, delimiter);
+
+  const columns = header?.cells.map(readHeaderCell);
+  const lineList = isLineList(header, columns, data, decimalComma);
+  if (header === undefined) {
+    refuseExtraFields(data, lineList ? 3 : 2, lineList ? HEADERLESS_LIST : HEADERLESS_SPECTRUM, delimiter);
+    if (delimiter === ',') refuseLeadingZeros(data);
+  }
+  if (!lineList) {
+    const has = (c: Column) => columns?.some((x) => x.column === c) ?? false;
+    const yUnit = has('transmittance') ? 'transmittance' : has('absorbance') ? 'absorbance' : undefined;
+    // y where the header names it, x the first other column ("absorbance,wavenumber" is read the right way round)
+    const y = columns?.findIndex((c) => c.column === 'absorbance' || c.column === 'transmittance') ?? -1;
+    const at = y === 0 ? { x: 1, y: 0 } : { x: 0, y: y > 0 ? y : 1 };
+    const xUnit = spectrumXUnit(columns?.[at.x]?.unit ?? unitsRow?.[at.x]);
+    return readSpectrum(data, decimalComma, yUnit, at, xUnit);
+  }
+  return readLineList(data, decimalComma, header?.line ?? 1, columns, unitsRow);
+}
+
+/** A row of the CSV with its line number (1-based). */
+interface CsvRow {
+  line: number;
+  cells: string[];
+}
+
+/**
+ * The rows as read: the delimiter chosen from the first row, the header (a first row without numbers), the row of
+ * units under it (a second one), and the data rows, refused past the row limit (maxLines once the header names a
+ * line list or the first row has one cell, else maxRows). Blank lines and "#" comments are skipped.
+ */
+function readRows(
+  text: string,
+  limits: CsvLimits,
+): { delimiter: string | undefined; header: CsvRow | undefined; unitsRow: string[] | undefined; data: CsvRow[] } {
   const maxRows = limits.maxRows ?? 5_000_000;
   const maxLines = limits.maxLines ?? maxRows;
   const rows = text.split(/\r\n|\r|\n/);
   let delimiter: string | undefined;
-  let header: { line: number; cells: string[] } | undefined;
+  let header: CsvRow | undefined;
   let unitsRow: string[] | undefined;
-  const data: { line: number; cells: string[] }[] = [];
+  const data: CsvRow[] = [];
   let limit = maxRows;
   for (let i = 0; i < rows.length; i++) {
     const raw = (rows[i] as string).trim();
@@ -173,39 +218,22 @@ export function parseCsv(text: string, limits: CsvLimits = {}): CsvData {
     if (data.length >= limit) fail(i + 1, `more than ${limit} rows`, { limit });
     data.push({ line: i + 1, cells });
   }
-  if (data.length === 0) {
-    // Name what was read instead: a second row without numbers is taken as the row of units under the header.
-    const read = header
-      ? ` (header ${header.cells.join(', ')}${unitsRow ? `; the row under it, ${unitsRow.join(', ')}, was read as its units` : ''})`
-      : '';
-    throw new ScienceError('INPUT_INVALID', `the CSV holds no rows of numbers${read}`, {});
-  }
-  const decimalComma = delimiter !== ',';
-  if (header !== undefined)
-    refuseExtraFields(data, header.cells.length, `the header has ${header.cells.length}`, delimiter);
+  return { delimiter, header, unitsRow, data };
+}
 
-  const columns = header?.cells.map(readHeaderCell);
-  const has = (c: Column) => columns?.some((x) => x.column === c) ?? false;
-  const firstColumn = () => data.map((r) => numberOf(r.cells[0] ?? '', decimalComma));
-  const lineList =
-    header !== undefined && isLineListHeader(header.cells)
-      ? true
-      : has('absorbance') || has('transmittance')
-        ? false
-        : (data[0]?.cells.length ?? 0) === 1 || !looksUniform(firstColumn());
-  if (header === undefined) {
-    refuseExtraFields(data, lineList ? 3 : 2, lineList ? HEADERLESS_LIST : HEADERLESS_SPECTRUM, delimiter);
-    if (delimiter === ',') refuseLeadingZeros(data);
-  }
-  if (!lineList) {
-    const yUnit = has('transmittance') ? 'transmittance' : has('absorbance') ? 'absorbance' : undefined;
-    // y where the header names it, x the first other column ("absorbance,wavenumber" is read the right way round)
-    const y = columns?.findIndex((c) => c.column === 'absorbance' || c.column === 'transmittance') ?? -1;
-    const at = y === 0 ? { x: 1, y: 0 } : { x: 0, y: y > 0 ? y : 1 };
-    const xUnit = spectrumXUnit(columns?.[at.x]?.unit ?? unitsRow?.[at.x]);
-    return readSpectrum(data, decimalComma, yUnit, at, xUnit);
-  }
-  return readLineList(data, decimalComma, header?.line ?? 1, columns, unitsRow);
+/**
+ * Whether the rows are a line list: a header naming line-list columns says so, one naming absorbance or
+ * transmittance says not; otherwise one column, or first-column values that are not evenly spaced, make a line list.
+ */
+function isLineList(
+  header: CsvRow | undefined,
+  columns: readonly { column?: Column }[] | undefined,
+  data: readonly CsvRow[],
+  decimalComma: boolean,
+): boolean {
+  if (header !== undefined && isLineListHeader(header.cells)) return true;
+  if (columns?.some((x) => x.column === 'absorbance' || x.column === 'transmittance')) return false;
+  return (data[0]?.cells.length ?? 0) === 1 || !looksUniform(data.map((r) => numberOf(r.cells[0] ?? '', decimalComma)));
 }
 
 const HEADERLESS_LIST = 'without a header a line list has at most 3 (position, intensity, uncertainty)';
@@ -219,7 +247,7 @@ const DECIMAL_COMMA_HINT =
  * dropped without a word.
  */
 function refuseExtraFields(
-  data: readonly { line: number; cells: string[] }[],
+  data: readonly CsvRow[],
   allowed: number,
   reference: string,
   delimiter: string | undefined,
@@ -241,7 +269,7 @@ function refuseExtraFields(
 }
 
 /** A cell such as "0023" is the decimal part of a number split at its decimal comma, never a number of its own. */
-function refuseLeadingZeros(data: readonly { line: number; cells: string[] }[]): void {
+function refuseLeadingZeros(data: readonly CsvRow[]): void {
   for (const r of data) {
     const cell = r.cells.find((c) => /^[+-]?0\d/.test(c));
     if (cell !== undefined)
@@ -297,7 +325,7 @@ function spectrumXUnit(raw: string | undefined): SpectrumXUnit | undefined {
 }
 
 function readSpectrum(
-  data: readonly { line: number; cells: string[] }[],
+  data: readonly CsvRow[],
   decimalComma: boolean,
   yUnit: 'absorbance' | 'transmittance' | undefined,
   at: { readonly x: number; readonly y: number },
@@ -318,7 +346,7 @@ function readSpectrum(
 }
 
 function readLineList(
-  data: readonly { line: number; cells: string[] }[],
+  data: readonly CsvRow[],
   decimalComma: boolean,
   headerLine: number,
   columns: readonly { column?: Column; unit?: string }[] | undefined,
@@ -368,12 +396,7 @@ function positionUnit(rawUnit: string | undefined): ReturnType<typeof unitOf> {
 }
 
 /** One row of a line list: position (required), uncertainty, intensity and, when the columns exist, its label. */
-function lineOfRow(
-  r: { line: number; cells: string[] },
-  at: Partial<Record<Column, number>>,
-  assigned: boolean,
-  decimalComma: boolean,
-): CsvLine {
+function lineOfRow(r: CsvRow, at: Partial<Record<Column, number>>, assigned: boolean, decimalComma: boolean): CsvLine {
   const cell = (k: number | undefined) => (k === undefined ? '' : (r.cells[k] ?? ''));
   const num = (name: Column, required: boolean): number | undefined => {
     const c = cell(at[name]);
