@@ -58,11 +58,35 @@ export function rescaleStatedUncertainties(
   /** The level fit of `observations` as weighted (the first round reuses it: lists whose groups agree cost nothing). */
   first: LevelSelection,
 ): StatedScale {
-  const stated = (o: Observation) => input[o.index]?.uncertainty !== undefined;
   const none: StatedScale = { observations, groups: [], factorFor: () => 1, warnings: [] };
   if (oneStatedGroup(observations, input)) return none;
   const keyOf = statedGroupKeys(observations, input);
   if (!canDiffer(observations, keyOf)) return none;
+  const scaled = groupScales(input, observations, fit, first, keyOf);
+  if (scaled.factors.size === 0) return none;
+  return statedScaleOf(observations, scaled, keyOf);
+}
+
+/** The scale of each differing group (and REST) after the last round that found one, and the lines reweighted by them. */
+interface GroupScales {
+  readonly factors: ReadonlyMap<string, number>;
+  readonly observations: readonly Observation[];
+}
+
+/**
+ * Up to ROUNDS rounds: residual/σ of the stated lines per group from a level fit (the first round's is `first`,
+ * later ones refit the reweighted lines without the gross errors), the groups that differ, and the stated σ
+ * multiplied by their scale. Stops at the first round where no group differs or the fit fails; no factors when
+ * none ever did.
+ */
+function groupScales(
+  input: readonly LineInput[],
+  observations: readonly Observation[],
+  fit: { readonly maxOrder: number; readonly termSignificance: number },
+  first: LevelSelection,
+  keyOf: (o: Observation) => string | undefined,
+): GroupScales {
+  const stated = (o: Observation) => input[o.index]?.uncertainty !== undefined;
   let factors = new Map<string, number>();
   let gross = new Set<number>();
   let obs = observations;
@@ -77,17 +101,7 @@ export function rescaleStatedUncertainties(
       }
     const f = level.fit;
     if (f.degreesOfFreedom < 2 || f.leverages.length !== f.observations.length) break;
-    const byGroup = new Map<string, number[]>();
-    f.observations.forEach((o, i) => {
-      if (!stated(o)) return;
-      const h = Math.min(f.leverages[i] as number, 1 - 1e-9);
-      // Scaled by the stated σ only (the factor of this round is what is being estimated).
-      const z = (f.residuals[i] as number) / (input[o.index]?.uncertainty as number) / Math.sqrt(1 - h);
-      const k = keyOf(o) as string;
-      const list = byGroup.get(k) ?? [];
-      list.push(z);
-      byGroup.set(k, list);
-    });
+    const byGroup = statedResiduals(f, input, keyOf);
     const next = differingGroups(byGroup);
     if (next.size === 0) break;
     factors = next;
@@ -95,7 +109,39 @@ export function rescaleStatedUncertainties(
     const factorOf = (o: Observation) => factors.get(keyOf(o) as string) ?? (factors.get(REST) as number);
     obs = reweighted(observations, (o) => (stated(o) ? o.weight / factorOf(o) ** 2 : undefined));
   }
-  if (factors.size === 0) return none;
+  return { factors, observations: obs };
+}
+
+/**
+ * Leverage-corrected residual over the stated σ, e/σ/√(1 − h), of each stated line of the fit, by group, in the
+ * order of the fit's observations.
+ */
+function statedResiduals(
+  f: LevelSelection['fit'],
+  input: readonly LineInput[],
+  keyOf: (o: Observation) => string | undefined,
+): Map<string, number[]> {
+  const byGroup = new Map<string, number[]>();
+  f.observations.forEach((o, i) => {
+    if (input[o.index]?.uncertainty === undefined) return;
+    const h = Math.min(f.leverages[i] as number, 1 - 1e-9);
+    // Scaled by the stated σ only (the factor of this round is what is being estimated).
+    const z = (f.residuals[i] as number) / (input[o.index]?.uncertainty as number) / Math.sqrt(1 - h);
+    const k = keyOf(o) as string;
+    const list = byGroup.get(k) ?? [];
+    list.push(z);
+    byGroup.set(k, list);
+  });
+  return byGroup;
+}
+
+/** The rescaled lines, the groups with their line counts and factors, the factor lookup and the warning naming them. */
+function statedScaleOf(
+  observations: readonly Observation[],
+  scaled: GroupScales,
+  keyOf: (o: Observation) => string | undefined,
+): StatedScale {
+  const { factors } = scaled;
   const groups: StatedScaleGroup[] = [];
   for (const [k, factor] of factors) {
     if (k === REST) continue;
@@ -103,7 +149,7 @@ export function rescaleStatedUncertainties(
     groups.push({ group: labelOf(k), lines, factor });
   }
   return {
-    observations: obs,
+    observations: scaled.observations,
     groups,
     factorFor(species, band, sigma, source) {
       const key = source !== undefined ? `source|${source}` : `band|${species}|${band}|${sigma.toPrecision(3)}`;
