@@ -65,10 +65,36 @@ export function fitCombinationDifferences(
   orderOf: (species: string, v: number) => number,
   mode: UncertaintyMode,
 ): CombinationDifferenceResult[] {
-  const groups = new Map<
-    string,
-    { species: string; upper: number; lower: number; r: Map<number, Observation[]>; p: Map<number, Observation[]> }
-  >();
+  const out: CombinationDifferenceResult[] = [];
+  for (const g of bandBranches(observations)) {
+    const band = `${g.upper}-${g.lower}`;
+    const { lowerPts, upperPts } = differencePoints(g);
+    for (const [kind, pts, v] of [
+      ['lower', lowerPts, g.lower],
+      ['upper', upperPts, g.upper],
+    ] as const) {
+      const fit = fitDifferences(pts, Math.min(orderOf(g.species, v), MAX_CENTRIFUGAL_ORDER), mode);
+      if (fit) {
+        const { statedUncertaintyOfB, ...rest } = fit;
+        out.push({ fit: { species: g.species, band, kind, v, ...rest }, statedUncertaintyOfB });
+      }
+    }
+  }
+  return out;
+}
+
+/** The R and P lines of one band of one species, by J″. */
+interface BandBranches {
+  readonly species: string;
+  readonly upper: number;
+  readonly lower: number;
+  readonly r: Map<number, Observation[]>;
+  readonly p: Map<number, Observation[]>;
+}
+
+/** The lines of each vibrational band (pure rotation left out), in the order the bands first appear. */
+function bandBranches(observations: readonly Observation[]): Iterable<BandBranches> {
+  const groups = new Map<string, BandBranches>();
   for (const o of observations) {
     if (o.upperV === o.lowerV) continue;
     const key = `${o.species}|${o.upperV}-${o.lowerV}`;
@@ -82,43 +108,37 @@ export function fitCombinationDifferences(
     list.push(o);
     branch.set(o.lowerJ, list);
   }
-  const out: CombinationDifferenceResult[] = [];
-  for (const g of groups.values()) {
-    const band = `${g.upper}-${g.lower}`;
-    const lowerPts: { j: number; m: Mean }[] = [];
-    const upperPts: { j: number; m: Mean }[] = [];
-    // Every J from 1 up to one past the highest J″ seen: a difference needs a line at J − 1, J or J + 1.
-    let top = 0;
-    for (const j of g.r.keys()) top = Math.max(top, j + 1);
-    for (const j of g.p.keys()) top = Math.max(top, j + 1);
-    for (let j = 1; j <= top; j++) {
-      const rPrev = g.r.get(j - 1);
-      const pNext = g.p.get(j + 1);
-      if (rPrev && pNext) {
-        const a = mean(rPrev);
-        const b = mean(pNext);
-        lowerPts.push({ j, m: { value: a.value - b.value, variance: a.variance + b.variance } });
-      }
-      const rj = g.r.get(j);
-      const pj = g.p.get(j);
-      if (rj && pj) {
-        const a = mean(rj);
-        const b = mean(pj);
-        upperPts.push({ j, m: { value: a.value - b.value, variance: a.variance + b.variance } });
-      }
+  return groups.values();
+}
+
+/** Δ₂F″(J) = R(J−1) − P(J+1) and Δ₂F′(J) = R(J) − P(J) of one band, each line the weighted mean of its repeats. */
+function differencePoints(g: BandBranches): {
+  lowerPts: { j: number; m: Mean }[];
+  upperPts: { j: number; m: Mean }[];
+} {
+  const lowerPts: { j: number; m: Mean }[] = [];
+  const upperPts: { j: number; m: Mean }[] = [];
+  // Every J from 1 up to one past the highest J″ seen: a difference needs a line at J − 1, J or J + 1.
+  let top = 0;
+  for (const j of g.r.keys()) top = Math.max(top, j + 1);
+  for (const j of g.p.keys()) top = Math.max(top, j + 1);
+  for (let j = 1; j <= top; j++) {
+    const rPrev = g.r.get(j - 1);
+    const pNext = g.p.get(j + 1);
+    if (rPrev && pNext) {
+      const a = mean(rPrev);
+      const b = mean(pNext);
+      lowerPts.push({ j, m: { value: a.value - b.value, variance: a.variance + b.variance } });
     }
-    for (const [kind, pts, v] of [
-      ['lower', lowerPts, g.lower],
-      ['upper', upperPts, g.upper],
-    ] as const) {
-      const fit = fitDifferences(pts, Math.min(orderOf(g.species, v), MAX_CENTRIFUGAL_ORDER), mode);
-      if (fit) {
-        const { statedUncertaintyOfB, ...rest } = fit;
-        out.push({ fit: { species: g.species, band, kind, v, ...rest }, statedUncertaintyOfB });
-      }
+    const rj = g.r.get(j);
+    const pj = g.p.get(j);
+    if (rj && pj) {
+      const a = mean(rj);
+      const b = mean(pj);
+      upperPts.push({ j, m: { value: a.value - b.value, variance: a.variance + b.variance } });
     }
   }
-  return out;
+  return { lowerPts, upperPts };
 }
 
 function fitDifferences(
