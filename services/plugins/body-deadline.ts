@@ -15,8 +15,18 @@ export function limitBodyTime(app: FastifyInstance, config: Config): void {
   if (config.requestTimeoutMs <= 0) return;
   app.addHook('preParsing', async (request, reply, payload) => {
     if (String(request.headers['content-type'] ?? '').startsWith(NDJSON)) return payload;
+    // Only a body can be late. A request without one (a GET) was armed too, and cleared only when its answer was
+    // sent: a GET pipelined behind a request whose answer closed the connection (broken JSON: 400, connection
+    // close) is never answered, and when its timer fired the body stream it destroyed had no reader listening for
+    // the error: the process exited (measured: POST of "{bad" with GET /healthz in the same write, then dead
+    // REQUEST_TIMEOUT_MS later).
+    const hasBody =
+      request.headers['transfer-encoding'] !== undefined || Number(request.headers['content-length'] ?? 0) > 0;
+    if (!hasBody) return payload;
     const left = Math.max(0, config.requestTimeoutMs - reply.elapsedTime);
     const timer = setTimeout(() => {
+      // Nobody waits for this body any more (connection gone, answer sent): nothing to answer, nothing to destroy.
+      if (reply.sent || request.raw.destroyed || request.raw.socket?.destroyed) return;
       payload.destroy(
         new HttpProblem(
           'REQUEST_TIMEOUT',
@@ -31,6 +41,8 @@ export function limitBodyTime(app: FastifyInstance, config: Config): void {
     payload.once('end', clear);
     payload.once('close', clear);
     reply.raw.once('close', clear);
+    // The request itself closes when its body has been received or its connection has gone.
+    request.raw.once('close', clear);
     return payload;
   });
 }

@@ -209,6 +209,32 @@ describe('the built server: slow clients and signals (npm start defaults, one ti
     40_000,
   );
 
+  // Regression (measured on the built server before the fix: the process exited REQUEST_TIMEOUT_MS after this one
+  // write, "Unhandled 'error' event" from the body deadline): a GET pipelined behind a body the server refuses and
+  // closes the connection on (broken JSON: 400, connection close) is never answered, and its deadline fired on a
+  // body stream no reader listened to.
+  it('a GET pipelined behind broken JSON: 400 problem, connection closed, and the server lives on past REQUEST_TIMEOUT_MS (1500)', async () => {
+    const server = await start({ REQUEST_TIMEOUT_MS: '1500' });
+    try {
+      const sent =
+        `POST /v1/fits HTTP/1.1\r\nHost: h\r\nAuthorization: Bearer ${KEY}\r\nContent-Type: application/json\r\n` +
+        'Content-Length: 4\r\n\r\n{badGET /healthz HTTP/1.1\r\nHost: h\r\n\r\n';
+      const answer = await stalledClient(server.base, 20_000, sent);
+      expect(answer).toMatch(/^HTTP\/1\.1 400 /);
+      expect(answer).toMatch(/"code":"INVALID_JSON"/);
+      expect(answer).toMatch(/connection: close/i);
+      // Past the deadline of both requests (1.5 s, checked every 0.15 s) with room for a loaded machine.
+      const exited = await Promise.race([
+        server.exit.then(() => true),
+        new Promise((r) => setTimeout(() => r(false), 4_000)),
+      ]);
+      expect(exited, server.log()).toBe(false);
+      expect((await fetch(`${server.base}/healthz`)).status).toBe(200);
+    } finally {
+      server.child.kill('SIGKILL');
+    }
+  }, 40_000);
+
   it('SHUTDOWN_GRACE_MS bounds the wait for a request that never finishes: exit status 1 with the reason logged', async () => {
     const server = await start({ SHUTDOWN_GRACE_MS: '1000' });
     const stalled = stalledClient(server.base, 20_000);
