@@ -13,7 +13,7 @@
  * covarianceFrom → residuals → leveragesOf.
  */
 
-import { copyFloats, floats, ints } from './small-arrays.js';
+import { copyFloats, copyInts, floats, ints } from './small-arrays.js';
 
 export interface LeastSquaresInput {
   /** Number of observations. */
@@ -146,50 +146,33 @@ export function solveGroupedLeastSquares(
   return solveSystem(input, mergeGroups(distinct, m, group, observations, weights));
 }
 
+/** The system the QR factorises: the merged rows, or every row of the caller's design. */
+type System = Pick<MergedRows, 'rows' | 'design' | 'rowOf' | 'observations'> & {
+  readonly weights: Float64Array | undefined;
+};
+
 function solveSystem(
   input: Omit<LeastSquaresInput, 'design'> & { readonly design?: Columns },
   merged: MergedRows | undefined,
 ): LeastSquaresResult {
   const { rows: n, cols: p, observations, weights } = input;
-  const sys = merged ?? {
-    rows: n,
-    design: input.design as Columns,
-    observations,
-    weights,
-  };
-  const qr = pivotedQR(sys.rows, p, sys.design, sys.observations, sys.weights);
-  // Numerical rank.
+  const sys: System = merged ?? { rows: n, design: input.design as Columns, rowOf: undefined, observations, weights };
+  const qr = pivotedQR(sys.rows, p, sys.design, sys.rowOf, sys.observations, sys.weights);
   const { rdiag, r, perm, scale } = qr;
+  // Numerical rank.
   const tol = (input.rankTolerance ?? Math.max(n, p) * EPS) * Math.abs(rdiag[0] as number);
   let rank = 0;
   while (rank < p && Math.abs(rdiag[rank] as number) > tol) rank++;
-  const conditionNumber =
-    rank < p
-      ? Number.POSITIVE_INFINITY
-      : input.conditionNumber === false
-        ? Number.NaN
-        : triangularConditionNumber(r, p);
-  if (rank < p) {
-    return {
-      rank,
-      rankDeficient: true,
-      dependencies: dependentGroups(r, p, rank, perm),
-      coefficients: floats(p).fill(Number.NaN),
-      covariance: floats(p * p).fill(Number.NaN),
-      residuals: floats(n).fill(Number.NaN),
-      chiSquare: Number.NaN,
-      conditionNumber,
-    };
-  }
+  if (rank < p) return rankDeficientResult(r, n, p, rank, perm);
+  const conditionNumber = input.conditionNumber === false ? Number.NaN : triangularConditionNumber(r, p);
   const coefficients = backSubstitute(qr, p);
   const rinv = invertUpperTriangular(r, p);
   const covariance = covarianceFrom(rinv, perm, scale, p);
   const residuals = merged ? residualsByGroup(merged, observations, coefficients, p) : copyFloats(observations);
   if (!merged) subtractDesignTimes(residuals, sys.design, coefficients, n, p);
-  const chiSquare = weightedSquares(residuals, weights);
-  // Every array these read is this solve's own (the caller's design and weights are never modified).
+  // Every array these read is this solve's own or the caller's (never modified).
   const allLeverages = () => {
-    const h = leveragesOf(sys.rows, p, sys.design, sys.weights, rinv, perm, scale);
+    const h = leveragesOf(sys.rows, p, sys.design, sys.rowOf, sys.weights, rinv, perm, scale);
     return merged ? spreadLeverages(h, merged, weights, n) : h;
   };
   const leverages = input.leverage ? allLeverages() : undefined;
@@ -200,13 +183,33 @@ function solveSystem(
     coefficients,
     covariance,
     residuals,
-    chiSquare,
+    chiSquare: weightedSquares(residuals, weights),
     conditionNumber,
     ...(leverages ? { leverages } : {}),
     later: {
       leverages: () => leverages ?? allLeverages(),
       conditionNumber: () => (Number.isNaN(conditionNumber) ? triangularConditionNumber(r, p) : conditionNumber),
     },
+  };
+}
+
+/** A rank-deficient solve: the dependent groups, an infinite condition number, NaN everywhere else. */
+function rankDeficientResult(
+  r: Float64Array,
+  n: number,
+  p: number,
+  rank: number,
+  perm: Int32Array,
+): LeastSquaresResult {
+  return {
+    rank,
+    rankDeficient: true,
+    dependencies: dependentGroups(r, p, rank, perm),
+    coefficients: floats(p).fill(Number.NaN),
+    covariance: floats(p * p).fill(Number.NaN),
+    residuals: floats(n).fill(Number.NaN),
+    chiSquare: Number.NaN,
+    conditionNumber: Number.POSITIVE_INFINITY,
   };
 }
 
@@ -221,7 +224,7 @@ export function reduceToTriangle(
   design: Float64Array,
   observations: Float64Array,
 ): { readonly m: Float64Array; readonly c: Float64Array } {
-  const qr = pivotedQR(rows, cols, columnsOf(design, rows, cols), observations, undefined);
+  const qr = pivotedQR(rows, cols, columnsOf(design, rows, cols), undefined, observations, undefined);
   const m = floats(cols * cols);
   for (let k = 0; k < cols; k++) {
     const j = qr.perm[k] as number;
@@ -259,6 +262,7 @@ function pivotedQR(
   n: number,
   p: number,
   design: Columns,
+  rowOf: Int32Array | undefined,
   observations: Float64Array,
   weights: Float64Array | undefined,
 ): Factorisation {
@@ -271,7 +275,7 @@ function pivotedQR(
     sw[i] = s;
     b[i] = (observations[i] as number) * s;
   }
-  const scale = scaledCopy(a, design, sw, n, p);
+  const scale = scaledCopy(a, design, rowOf, sw, n, p);
   const perm = ints(p);
   const colNorm = floats(p);
   const colNormRef = floats(p);
@@ -305,18 +309,35 @@ function pivotedQR(
   return { a, b, rdiag, r, perm, scale };
 }
 
-/** a = design · diag(√w) with unit-norm columns; returns the column norms (1 for an all-zero column). */
-function scaledCopy(a: Float64Array, design: Columns, sw: Float64Array, n: number, p: number): Float64Array {
+/**
+ * a = design · diag(√w) with unit-norm columns (row i of a is row rowOf[i] of the design, or row i without rowOf);
+ * returns the column norms (1 for an all-zero column).
+ */
+function scaledCopy(
+  a: Float64Array,
+  design: Columns,
+  rowOf: Int32Array | undefined,
+  sw: Float64Array,
+  n: number,
+  p: number,
+): Float64Array {
   const scale = floats(p);
   for (let j = 0; j < p; j++) {
     const off = j * n;
     const c = design[j] as Float64Array;
     let ss = 0;
-    for (let i = 0; i < n; i++) {
-      const v = (c[i] as number) * (sw[i] as number);
-      a[off + i] = v;
-      ss += v * v;
-    }
+    if (rowOf)
+      for (let i = 0; i < n; i++) {
+        const v = (c[rowOf[i] as number] as number) * (sw[i] as number);
+        a[off + i] = v;
+        ss += v * v;
+      }
+    else
+      for (let i = 0; i < n; i++) {
+        const v = (c[i] as number) * (sw[i] as number);
+        a[off + i] = v;
+        ss += v * v;
+      }
     const norm = Math.sqrt(ss);
     scale[j] = norm > 0 ? norm : 1;
     if (norm > 0) {
@@ -349,27 +370,79 @@ function householderStep(
   a[off + k] = (a[off + k] as number) - alpha;
   // 2 / vᵀv with vᵀv = −2α·v₁ (v₁ = x₁ − α), which avoids cancellation.
   const beta = -1 / (alpha * (a[off + k] as number));
-  for (let j = k + 1; j < p; j++) {
-    const oj = j * n;
-    reflect(a, oj, a, off, n, k, beta);
-    // Norm downdate of the remaining part of column j, recomputed when too much has cancelled.
-    const rkj = a[oj + k] as number;
-    const cn = colNorm[j] as number;
-    if (cn > 0) {
-      const t = Math.max(1 - (rkj / cn) ** 2, 0);
-      const ratio = cn / (colNormRef[j] as number);
-      if (t * ratio * ratio <= Math.sqrt(EPS)) {
-        let s2 = 0;
-        for (let i = k + 1; i < n; i++) s2 += (a[oj + i] as number) ** 2;
-        colNorm[j] = Math.sqrt(s2);
-        colNormRef[j] = colNorm[j] as number;
-      } else {
-        colNorm[j] = cn * Math.sqrt(t);
-      }
-    }
-  }
+  let j = k + 1;
+  for (; j + 1 < p; j += 2) reflectPair(a, j * n, (j + 1) * n, off, n, k, beta);
+  if (j < p) reflect(a, j * n, a, off, n, k, beta);
+  for (j = k + 1; j < p; j++) downdateNorm(a, n, k, j, colNorm, colNormRef);
   reflect(b, 0, a, off, n, k, beta);
   return alpha;
+}
+
+/** Norm downdate of the remaining part of column j after step k, recomputed when too much has cancelled. */
+function downdateNorm(
+  a: Float64Array,
+  n: number,
+  k: number,
+  j: number,
+  colNorm: Float64Array,
+  colNormRef: Float64Array,
+) {
+  const oj = j * n;
+  const rkj = a[oj + k] as number;
+  const cn = colNorm[j] as number;
+  if (cn > 0) {
+    const t = Math.max(1 - (rkj / cn) ** 2, 0);
+    const ratio = cn / (colNormRef[j] as number);
+    if (t * ratio * ratio <= Math.sqrt(EPS)) {
+      let s2 = 0;
+      for (let i = k + 1; i < n; i++) s2 += (a[oj + i] as number) ** 2;
+      colNorm[j] = Math.sqrt(s2);
+      colNormRef[j] = colNorm[j] as number;
+    } else {
+      colNorm[j] = cn * Math.sqrt(t);
+    }
+  }
+}
+
+/**
+ * `reflect` on two columns of `a` at once (at oy and oz, reflector at ov): each column's sums and updates are those
+ * `reflect` makes, in the same order, so the same bits; the reflector is read once for both.
+ */
+function reflectPair(a: Float64Array, oy: number, oz: number, ov: number, n: number, k: number, beta: number) {
+  let s0 = 0;
+  let s1 = 0;
+  let s2 = 0;
+  let s3 = 0;
+  let t0 = 0;
+  let t1 = 0;
+  let t2 = 0;
+  let t3 = 0;
+  let i = k;
+  for (; i + 3 < n; i += 4) {
+    const v0 = a[ov + i] as number;
+    const v1 = a[ov + i + 1] as number;
+    const v2 = a[ov + i + 2] as number;
+    const v3 = a[ov + i + 3] as number;
+    s0 += v0 * (a[oy + i] as number);
+    s1 += v1 * (a[oy + i + 1] as number);
+    s2 += v2 * (a[oy + i + 2] as number);
+    s3 += v3 * (a[oy + i + 3] as number);
+    t0 += v0 * (a[oz + i] as number);
+    t1 += v1 * (a[oz + i + 1] as number);
+    t2 += v2 * (a[oz + i + 2] as number);
+    t3 += v3 * (a[oz + i + 3] as number);
+  }
+  for (; i < n; i++) {
+    s0 += (a[ov + i] as number) * (a[oy + i] as number);
+    t0 += (a[ov + i] as number) * (a[oz + i] as number);
+  }
+  const f = -(s0 + s1 + s2 + s3) * beta;
+  const g = -(t0 + t1 + t2 + t3) * beta;
+  for (let t = k; t < n; t++) {
+    const v = a[ov + t] as number;
+    a[oy + t] = (a[oy + t] as number) + f * v;
+    a[oz + t] = (a[oz + t] as number) + g * v;
+  }
 }
 
 /** y[oy + i] −= β (v·y) v[ov + i] for i ≥ k: one reflector applied to one column (four accumulators in the dot). */
@@ -448,36 +521,54 @@ function weightedSquares(e: Float64Array, weights: Float64Array | undefined): nu
   return sum;
 }
 
-/** hᵢᵢ = ‖row i of Ã R⁻¹‖², Ã the weighted, scaled, permuted design; built one column of Ã R⁻¹ at a time. */
+/**
+ * hᵢᵢ = ‖row i of Ã R⁻¹‖², Ã the weighted, scaled, permuted design, one row at a time: entry c of the row is
+ * Σ_{k ≤ c} ã_ik (R⁻¹)_kc, summed in ascending k; a zero ã_ik (most entries of a level model's row) adds nothing and is
+ * skipped, which leaves every sum as it was (it starts at +0 and the terms are finite).
+ */
 function leveragesOf(
   n: number,
   p: number,
   design: Columns,
+  rowOf: Int32Array | undefined,
   weights: Float64Array | undefined,
   rinv: Float64Array,
   perm: Int32Array,
   scale: Float64Array,
 ): Float64Array {
   const leverages = floats(n);
-  const q = workspace(n).subarray(0, n);
-  for (let c = 0; c < p; c++) {
-    q.fill(0);
-    for (let k = 0; k <= c; k++) {
-      const f = (rinv[k * p + c] as number) / (scale[perm[k] as number] as number);
-      if (f === 0) continue;
-      const col = design[perm[k] as number] as Float64Array;
-      for (let i = 0; i < n; i++) q[i] = (q[i] as number) + (col[i] as number) * f;
-    }
-    for (let i = 0; i < n; i++) leverages[i] = (leverages[i] as number) + (q[i] as number) ** 2;
+  const f = workspace(p * p + p);
+  const s = f.subarray(p * p, p * p + p);
+  const cols: Float64Array[] = [];
+  for (let k = 0; k < p; k++) {
+    const sk = scale[perm[k] as number] as number;
+    for (let c = k; c < p; c++) f[k * p + c] = (rinv[k * p + c] as number) / sk;
+    cols.push(design[perm[k] as number] as Float64Array);
   }
-  if (weights) for (let i = 0; i < n; i++) leverages[i] = (leverages[i] as number) * (weights[i] as number);
+  for (let i = 0; i < n; i++) {
+    for (let c = 0; c < p; c++) s[c] = 0;
+    const row = rowOf ? (rowOf[i] as number) : i;
+    for (let k = 0; k < p; k++) {
+      const a = (cols[k] as Float64Array)[row] as number;
+      if (a === 0) continue;
+      for (let c = k; c < p; c++) {
+        const fkc = f[k * p + c] as number;
+        if (fkc !== 0) s[c] = (s[c] as number) + a * fkc;
+      }
+    }
+    let h = 0;
+    for (let c = 0; c < p; c++) h += (s[c] as number) ** 2;
+    leverages[i] = weights ? h * (weights[i] as number) : h;
+  }
   return leverages;
 }
 
 /** Rows merged from identical design rows: Σw and the weighted mean of y, and the merged row of each input row. */
 interface MergedRows {
   readonly rows: number;
+  /** The merged rows: row rowOf[g] of `design`, or row g without rowOf. */
   readonly design: Columns;
+  readonly rowOf: Int32Array | undefined;
   readonly observations: Float64Array;
   readonly weights: Float64Array;
   readonly group: Int32Array;
@@ -498,17 +589,8 @@ function compressRows(
   if (n < 64 || n < 4 * p) return undefined;
   const groups = groupsOfRows(design, n, p, n / 2);
   if (!groups) return undefined;
-  const { group, firstRow } = groups;
-  const m = firstRow.length;
-  const all = floats(m * p);
-  const merged: Float64Array[] = [];
-  for (let j = 0; j < p; j++) {
-    const c = design[j] as Float64Array;
-    const out = all.subarray(j * m, j * m + m);
-    for (let g = 0; g < m; g++) out[g] = c[firstRow[g] as number] as number;
-    merged.push(out);
-  }
-  return mergeGroups(merged, m, group, observations, weights);
+  // Each merged row is read from the design at its first row (not copied).
+  return mergeGroups(design, groups.firstRow.length, groups.group, observations, weights, copyInts(groups.firstRow));
 }
 
 /** The merged system of `m` distinct rows: Σw and the weighted mean of y per group, in the rows' order. */
@@ -518,6 +600,7 @@ function mergeGroups(
   group: Int32Array,
   observations: Float64Array,
   weights: Float64Array | undefined,
+  rowOf?: Int32Array,
 ): MergedRows {
   const n = group.length;
   const w = floats(m);
@@ -529,7 +612,7 @@ function mergeGroups(
     wy[g] = (wy[g] as number) + wi * (observations[i] as number);
   }
   for (let g = 0; g < m; g++) wy[g] = (w[g] as number) > 0 ? (wy[g] as number) / (w[g] as number) : 0;
-  return { rows: m, design, observations: wy, weights: w, group };
+  return { rows: m, design, rowOf, observations: wy, weights: w, group };
 }
 
 /** One grow-only integer buffer for the grouping's scratch (first rows, hashes, table), as `workspace`. */
@@ -663,12 +746,13 @@ class HashedGroups {
 
 /** yᵢ − (Ax)ᵢ for every row, (Ax)ᵢ taken from its merged row (identical design rows give identical fits). */
 function residualsByGroup(merged: MergedRows, observations: Float64Array, x: Float64Array, p: number): Float64Array {
-  const m = merged.rows;
+  const { rows: m, rowOf } = merged;
   const fitted = floats(m);
   for (let j = 0; j < p; j++) {
     const col = merged.design[j] as Float64Array;
     const c = x[j] as number;
-    for (let g = 0; g < m; g++) fitted[g] = (fitted[g] as number) + (col[g] as number) * c;
+    if (rowOf) for (let g = 0; g < m; g++) fitted[g] = (fitted[g] as number) + (col[rowOf[g] as number] as number) * c;
+    else for (let g = 0; g < m; g++) fitted[g] = (fitted[g] as number) + (col[g] as number) * c;
   }
   const residuals = floats(observations.length);
   for (let i = 0; i < residuals.length; i++)
@@ -757,7 +841,7 @@ export function triangularConditionNumber(r: Float64Array, p: number): number {
   // Row i of the row-major R is column i of Rᵀ, whose singular values are R's.
   const u = copyFloats(r);
   const d = floats(p);
-  rotateToOrthogonal(u, d, p, p);
+  rotateToOrthogonal(u, d, p, p, true);
   let max = 0;
   let min = Number.POSITIVE_INFINITY;
   for (let j = 0; j < p; j++) {
@@ -766,6 +850,18 @@ export function triangularConditionNumber(r: Float64Array, p: number): number {
     min = Math.min(min, s);
   }
   return min > 0 ? max / min : Number.POSITIVE_INFINITY;
+}
+
+/** Singular values of a row-major m × n matrix (m ≥ n) by one-sided Jacobi on its columns. */
+export function singularValues(m0: Float64Array, m: number, n: number): number[] {
+  // Column j of the row-major matrix, made contiguous (at j·m).
+  const u = floats(m * n);
+  for (let k = 0; k < m; k++) for (let j = 0; j < n; j++) u[j * m + k] = m0[k * n + j] as number;
+  const d = floats(n);
+  rotateToOrthogonal(u, d, m, n, false);
+  const out: number[] = [];
+  for (let j = 0; j < n; j++) out.push(Math.sqrt(d[j] as number));
+  return out;
 }
 
 /** Σₖ u[a + k]·u[b + k] for k < m. */
@@ -777,32 +873,26 @@ function dotAt(u: Float64Array, a: number, b: number, m: number): number {
 
 /**
  * One-sided Jacobi on the n columns of length m of `u` (column j at j·m), rotated in place until every pair is
- * orthogonal to 1e-15; `d` receives the squared column norms (the squared singular values). Within a sweep the norms
- * of a rotated pair are updated (α − tγ, β + tγ) instead of summed again; each sweep starts from summed norms.
+ * orthogonal to 1e-15; `d` receives the squared column norms (the squared singular values). With `updateNorms` the
+ * norms are summed at the start of each sweep and, within it, those of a rotated pair updated (α − tγ, β + tγ);
+ * without, both are summed again for every pair.
  */
-function rotateToOrthogonal(u: Float64Array, d: Float64Array, m: number, n: number): void {
+function rotateToOrthogonal(u: Float64Array, d: Float64Array, m: number, n: number, updateNorms: boolean): void {
   for (let sweep = 0; sweep < 60; sweep++) {
-    for (let j = 0; j < n; j++) d[j] = dotAt(u, j * m, j * m, m);
+    if (updateNorms) for (let j = 0; j < n; j++) d[j] = dotAt(u, j * m, j * m, m);
     let off = 0;
     for (let i = 0; i < n - 1; i++) {
       for (let j = i + 1; j < n; j++) {
         const gamma = dotAt(u, i * m, j * m, m);
         if (gamma === 0) continue;
-        const alpha = d[i] as number;
-        const beta = d[j] as number;
+        const alpha = updateNorms ? (d[i] as number) : dotAt(u, i * m, i * m, m);
+        const beta = updateNorms ? (d[j] as number) : dotAt(u, j * m, j * m, m);
         const conv = Math.abs(gamma) / Math.sqrt(alpha * beta);
         off = Math.max(off, conv);
         if (conv < 1e-15) continue;
         const zeta = (beta - alpha) / (2 * gamma);
         const t = Math.sign(zeta || 1) / (Math.abs(zeta) + Math.sqrt(1 + zeta * zeta));
-        const c = 1 / Math.sqrt(1 + t * t);
-        const s = c * t;
-        for (let k = 0; k < m; k++) {
-          const ui = u[i * m + k] as number;
-          const uj = u[j * m + k] as number;
-          u[i * m + k] = c * ui - s * uj;
-          u[j * m + k] = s * ui + c * uj;
-        }
+        rotatePair(u, i * m, j * m, m, t);
         d[i] = alpha - t * gamma;
         d[j] = beta + t * gamma;
       }
@@ -812,46 +902,14 @@ function rotateToOrthogonal(u: Float64Array, d: Float64Array, m: number, n: numb
   for (let j = 0; j < n; j++) d[j] = dotAt(u, j * m, j * m, m);
 }
 
-/** Singular values of a row-major m × n matrix (m ≥ n) by one-sided Jacobi on its columns. */
-export function singularValues(m0: Float64Array, m: number, n: number): number[] {
-  const u = copyFloats(m0);
-  for (let sweep = 0; sweep < 60; sweep++) {
-    let off = 0;
-    for (let i = 0; i < n - 1; i++) {
-      for (let j = i + 1; j < n; j++) {
-        let alpha = 0;
-        let beta = 0;
-        let gamma = 0;
-        for (let k = 0; k < m; k++) {
-          const ui = u[k * n + i] as number;
-          const uj = u[k * n + j] as number;
-          alpha += ui * ui;
-          beta += uj * uj;
-          gamma += ui * uj;
-        }
-        if (gamma === 0) continue;
-        const conv = Math.abs(gamma) / Math.sqrt(alpha * beta);
-        off = Math.max(off, conv);
-        if (conv < 1e-15) continue;
-        const zeta = (beta - alpha) / (2 * gamma);
-        const t = Math.sign(zeta || 1) / (Math.abs(zeta) + Math.sqrt(1 + zeta * zeta));
-        const c = 1 / Math.sqrt(1 + t * t);
-        const s = c * t;
-        for (let k = 0; k < m; k++) {
-          const ui = u[k * n + i] as number;
-          const uj = u[k * n + j] as number;
-          u[k * n + i] = c * ui - s * uj;
-          u[k * n + j] = s * ui + c * uj;
-        }
-      }
-    }
-    if (off < 1e-15) break;
+/** The plane rotation of tangent t on columns a and b of length m: (uₐ, u_b) ← (c·uₐ − s·u_b, s·uₐ + c·u_b). */
+function rotatePair(u: Float64Array, a: number, b: number, m: number, t: number): void {
+  const c = 1 / Math.sqrt(1 + t * t);
+  const s = c * t;
+  for (let k = 0; k < m; k++) {
+    const ua = u[a + k] as number;
+    const ub = u[b + k] as number;
+    u[a + k] = c * ua - s * ub;
+    u[b + k] = s * ua + c * ub;
   }
-  const out: number[] = [];
-  for (let j = 0; j < n; j++) {
-    let ss = 0;
-    for (let k = 0; k < m; k++) ss += (u[k * n + j] as number) ** 2;
-    out.push(Math.sqrt(ss));
-  }
-  return out;
 }

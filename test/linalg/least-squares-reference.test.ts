@@ -31,6 +31,37 @@ function polynomialProblem(rows: number, cols: number, seed: number, repeatEvery
   return { rows, cols, design, y, ...(weighted ? { w } : {}) };
 }
 
+/**
+ * Rows shaped as a level model builds them for `bands` bands sharing a lower level: band b's row holds 1, t, t² in its
+ * own three columns and −x, −x² in the last two (x = 0 on every seventh distinct row, so −0), the other entries 0; t
+ * and x drawn at random so that the reference's normal equations stay well conditioned. Rows cycle through `perBand`
+ * distinct rows per band (every row distinct when 0), weighted.
+ */
+function bandProblem(rows: number, bands: number, seed: number, perBand: number): Problem {
+  const u = seededRandom(seed);
+  const cols = 3 * bands + 2;
+  const distinct = perBand > 0 ? bands * perBand : rows;
+  const ts = Array.from({ length: distinct }, () => 2 * u() - 1);
+  const xs = Array.from({ length: distinct }, (_, k) => (k % 7 === 0 ? 0 : u()));
+  const design = new Float64Array(rows * cols);
+  const y = new Float64Array(rows);
+  const w = new Float64Array(rows);
+  for (let i = 0; i < rows; i++) {
+    const k = i % distinct;
+    const band = perBand > 0 ? Math.floor(k / perBand) : k % bands;
+    const t = ts[k] as number;
+    const x = xs[k] as number;
+    design[3 * band * rows + i] = 1;
+    design[(3 * band + 1) * rows + i] = t;
+    design[(3 * band + 2) * rows + i] = t * t;
+    design[3 * bands * rows + i] = -x;
+    design[(3 * bands + 1) * rows + i] = -(x * x);
+    w[i] = 0.5 + u();
+    y[i] = 3 * (band + 1) + 1.9 * t - 1.7 * x - 0.2 * (t * t - x * x) + (u() - 0.5) * 1e-2;
+  }
+  return { rows, cols, design, y, w };
+}
+
 /** √W A and √W y as ml-matrix matrices, and the reference normal matrix inverse, hat diagonal and coefficients. */
 function reference(pr: Problem) {
   const { rows: n, cols: p, design, y, w } = pr;
@@ -62,7 +93,23 @@ describe('least squares against ml-matrix on the full weighted design', () => {
     ['256 weighted rows, each of 128 distinct rows twice (merged at the limit)', 256, 4, 9, 128, true],
     ['258 weighted rows, 129 distinct (one more than half: not merged)', 258, 4, 10, 129, true],
   ] as const)('%s: coefficients, full covariance, residuals, χ², leverages', (_name, n, p, seed, every, weighted) => {
-    const pr = polynomialProblem(n, p, seed, every, weighted);
+    matchesReference(polynomialProblem(n, p, seed, every, weighted));
+  });
+
+  // Rows of a line list's level model: each band's rows are non-zero only in its own upper-level columns (1, x, x²)
+  // and the shared lower-level ones (−x, −x², −0 where x = 0), so most entries are zero; 5, 8 and 11 columns (odd
+  // and even counts), merged and not.
+  it.each([
+    ['1 band, 300 rows of 30 distinct (merged)', 300, 1, 21, 30],
+    ['2 bands, 400 rows of 80 distinct (merged)', 400, 2, 22, 40],
+    ['3 bands, 500 rows of 243 distinct (merged)', 500, 3, 23, 81],
+    ['3 bands, 150 rows, all distinct (not merged)', 150, 3, 24, 0],
+  ] as const)('sparse band rows, %s: the same checks', (_name, n, bands, seed, perBand) => {
+    matchesReference(bandProblem(n, bands, seed, perBand));
+  });
+
+  function matchesReference(pr: Problem) {
+    const { rows: n, cols: p } = pr;
     const r = solveLeastSquares({
       rows: n,
       cols: p,
@@ -108,7 +155,7 @@ describe('least squares against ml-matrix on the full weighted design', () => {
       );
     }
     expect(relErr(r.conditionNumber, new SingularValueDecomposition(scaled).condition)).toBeLessThan(1e-9);
-  });
+  }
 
   it('the condition number is skipped on request (NaN) and leverages only on request', () => {
     const pr = polynomialProblem(20, 3, 2);
