@@ -6,6 +6,7 @@ import { formatBand, type Transition } from '../models/transitions.js';
 import type { MassValue } from '../species/reduced-mass.js';
 import { correlationOf, type SolvedModel, studentisedResiduals, toRows } from './engine.js';
 import { excludedStudentisedResidual, predictWithVariance } from './level-selection.js';
+import type { AssignmentsByLine } from './observations.js';
 import { rejectionReason } from './outliers.js';
 import type { FitResult, LineInput, LineOutcome, NamedQuantity, Warning } from './types.js';
 
@@ -31,7 +32,7 @@ export interface LevelReport {
 export function reportLevels(
   input: readonly LineInput[],
   observations: readonly Observation[],
-  transitions: ReadonlyMap<number, Transition & { readonly source: 'given' | 'auto' }>,
+  transitions: AssignmentsByLine,
   rejected: ReadonlyMap<number, string>,
   fit: SolvedModel,
   masses: ReadonlyMap<string, MassValue>,
@@ -77,7 +78,7 @@ export function reportLevels(
 function lineOutcomes(
   input: readonly LineInput[],
   observations: readonly Observation[],
-  transitions: ReadonlyMap<number, Transition & { readonly source: 'given' | 'auto' }>,
+  transitions: AssignmentsByLine,
   rejected: ReadonlyMap<number, string>,
   fit: SolvedModel,
 ): LineOutcome[] {

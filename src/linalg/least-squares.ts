@@ -363,7 +363,12 @@ function householderStep(
 ): number {
   const off = k * n;
   let ss = 0;
-  for (let i = k; i < n; i++) ss += (a[off + i] as number) ** 2;
+  let nonZero = 0;
+  for (let i = k; i < n; i++) {
+    const x = a[off + i] as number;
+    ss += x ** 2;
+    if (x !== 0) nonZero++;
+  }
   let alpha = Math.sqrt(ss);
   if (alpha === 0) return 0;
   if ((a[off + k] as number) > 0) alpha = -alpha;
@@ -371,11 +376,62 @@ function householderStep(
   // 2 / vᵀv with vᵀv = −2α·v₁ (v₁ = x₁ − α), which avoids cancellation.
   const beta = -1 / (alpha * (a[off + k] as number));
   let j = k + 1;
-  for (; j + 1 < p; j += 2) reflectPair(a, j * n, (j + 1) * n, off, n, k, beta);
-  if (j < p) reflect(a, j * n, a, off, n, k, beta);
+  if (4 * (nonZero + 1) <= 3 * (n - k)) {
+    const support = supportOf(a, off, n, k);
+    for (; j < p; j++) reflectSparse(a, j * n, a, off, support, n, k, beta);
+    reflectSparse(b, 0, a, off, support, n, k, beta);
+  } else {
+    for (; j + 1 < p; j += 2) reflectPair(a, j * n, (j + 1) * n, off, n, k, beta);
+    if (j < p) reflect(a, j * n, a, off, n, k, beta);
+    reflect(b, 0, a, off, n, k, beta);
+  }
   for (j = k + 1; j < p; j++) downdateNorm(a, n, k, j, colNorm, colNormRef);
-  reflect(b, 0, a, off, n, k, beta);
   return alpha;
+}
+
+/** The rows i ≥ k where reflector k (at `off`) is non-zero, ascending (in the shared integer workspace). */
+function supportOf(a: Float64Array, off: number, n: number, k: number): Int32Array {
+  const rows = intWorkspace(n - k);
+  let count = 0;
+  for (let i = k; i < n; i++) if (a[off + i] !== 0) rows[count++] = i;
+  return rows.subarray(0, count);
+}
+
+/**
+ * `reflect` over the rows where the reflector is non-zero (`support`): each product goes to the partial sum `reflect`
+ * puts it in ((i − k) mod 4 in its blocks of four, the first for the rows after them), and the terms left out are
+ * v_i·y_i = ±0, which change no sum (each starts at +0 and +0 + −0 = +0); y_i + f·0 = y_i, up to the sign of a zero
+ * y_i, which no later step reads as anything but zero.
+ */
+function reflectSparse(
+  y: Float64Array,
+  oy: number,
+  v: Float64Array,
+  ov: number,
+  support: Int32Array,
+  n: number,
+  k: number,
+  beta: number,
+) {
+  const blocks = k + 4 * Math.floor((n - k) / 4);
+  let s0 = 0;
+  let s1 = 0;
+  let s2 = 0;
+  let s3 = 0;
+  for (let t = 0; t < support.length; t++) {
+    const i = support[t] as number;
+    const term = (v[ov + i] as number) * (y[oy + i] as number);
+    const slot = i < blocks ? (i - k) & 3 : 0;
+    if (slot === 0) s0 += term;
+    else if (slot === 1) s1 += term;
+    else if (slot === 2) s2 += term;
+    else s3 += term;
+  }
+  const f = -(s0 + s1 + s2 + s3) * beta;
+  for (let t = 0; t < support.length; t++) {
+    const i = support[t] as number;
+    y[oy + i] = (y[oy + i] as number) + f * (v[ov + i] as number);
+  }
 }
 
 /** Norm downdate of the remaining part of column j after step k, recomputed when too much has cancelled. */

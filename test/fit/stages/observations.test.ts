@@ -27,8 +27,9 @@ describe('readLines', () => {
       { index: 2, species: '12C-16O', upperV: 1, lowerV: 0, upperJ: 0, lowerJ: 1, position: 2139.43, weight: 1 },
       { index: 3, species: '12C-16O', upperV: 1, lowerV: 0, upperJ: 1, lowerJ: 2, position: 2135.55, weight: 4 },
     ]);
-    expect([...r.transitions.keys()]).toEqual([0, 2, 3]);
+    expect([0, 1, 2, 3].map((i) => r.transitions.get(i) !== undefined)).toEqual([true, false, true, true]);
     expect(r.transitions.get(2)?.branch).toBe('P');
+    expect(r.transitions.get(4)).toBeUndefined();
   });
 
   it.each([
