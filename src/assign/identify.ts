@@ -59,7 +59,7 @@ export function identifySpecies(
   // elements (DCl, DF) as its enriched atom with the other's natural mixture (DCl: 2H-35Cl and 2H-37Cl), for
   // isotopically enriched samples.
   const seen = new Set<string>();
-  const tests: { formula: string; name: string; mixture: ReturnType<typeof isotopologuesMeant> }[] = [];
+  const tests: MixtureTest[] = [];
   for (const e of libraryEntries().filter((x) => !x.derivedFrom)) {
     const iso = parseSpecies(e.formula);
     const natural = isotopologuesMeant(elementsOnly(iso), options.minAbundance ?? 1e-3);
@@ -123,68 +123,111 @@ export function matchNotBeyondChance(
   return best && best.score === 0 && best.predicted >= 3 ? best : undefined;
 }
 
+/** A mixture to score: the molecule's formula and name, and its isotopologues with their abundances. */
+interface MixtureTest {
+  readonly formula: string;
+  readonly name: string;
+  readonly mixture: ReturnType<typeof isotopologuesMeant>;
+}
+
+type StrongObserved = ReturnType<typeof identificationWindow>['strongObserved'];
+
+/** A candidate with its score before the chance rule, which orders those the rule set to 0. */
+type ScoredCandidate = IdentificationCandidate & { readonly uncorrected: number };
+
 /** Score each mixture's strongest predictions (J″ ≤ 12) against the strong observed lines; best first. */
 function rankMixtures(
-  tests: readonly { formula: string; name: string; mixture: ReturnType<typeof isotopologuesMeant> }[],
-  strongObserved: ReturnType<typeof identificationWindow>['strongObserved'],
+  tests: readonly MixtureTest[],
+  strongObserved: StrongObserved,
   lo: number,
   hi: number,
   options: CandidateOptions & { maxOffset?: number },
 ): IdentificationCandidate[] {
-  // Each candidate with its score before the chance rule, which orders those the rule set to 0.
-  const out: (IdentificationCandidate & { uncorrected: number })[] = [];
-  for (const { formula, name, mixture } of tests) {
-    const e = { formula, name };
-    const cands = candidateLines(mixture, lo, hi, options)
-      .filter((c) => c.j <= 12)
-      .sort((a, b) => b.intensity - a.intensity)
-      .slice(0, 60);
-    if (cands.length < 3) {
-      out.push({
-        species: e.formula,
-        name: e.name,
-        score: 0,
-        matched: 0,
-        predicted: cands.length,
-        offset: 0,
-        uncorrected: 0,
-      });
-      continue;
-    }
-    const est = estimateOffset(
-      cands,
-      strongObserved.map((p) => p.position),
-      options.maxOffset ?? 0.5,
-      0.06,
-    );
-    const offset = est?.offset ?? 0;
-    const tol = Math.min(Math.max(4 * (est?.spread ?? 0.05), 0.03), 0.3);
-    const { matches } = matchLines(
-      cands.map((c, i) => ({ key: String(i), position: c.position + offset, tolerance: tol })),
-      strongObserved,
-    );
-    const predictedWeight = cands.reduce((s, c) => s + Math.sqrt(c.intensity), 0);
-    const matchedWeight = matches.reduce(
-      (s, m) => s + Math.sqrt((cands[Number(m.prediction.key)] as { intensity: number }).intensity),
-      0,
-    );
-    // Share of the strong observed lines explained, out of as many as the predictions could explain at most.
-    const observedShare = matches.length / Math.min(strongObserved.length, cands.length);
-    const score = (matchedWeight / predictedWeight) * Math.min(1, observedShare / 0.5);
-    const chance = chanceMatchProbability(tol, strongObserved.length / (hi - lo));
-    const falseAlarm = chanceFalseAlarm(matches.length, cands.length, chance, (options.maxOffset ?? 0.5) / tol);
-    out.push({
-      species: e.formula,
-      name: e.name,
-      // A match that as many lines at random would reach as often as once in a thousand lists identifies nothing.
-      score: falseAlarm > MAX_FALSE_ALARM ? 0 : score,
-      matched: matches.length,
-      predicted: cands.length,
-      offset,
-      uncorrected: score,
-    });
-  }
+  const out = tests.map((t) => scoreMixture(t, strongObserved, lo, hi, options));
   return out.sort((a, b) => b.score - a.score || b.uncorrected - a.uncorrected).map(({ uncorrected: _, ...c }) => c);
+}
+
+/**
+ * One mixture's candidate: its strongest predictions shifted by their own voted offset and matched to the strong
+ * observed lines; the score set to 0 when lines at random would match as well too often.
+ */
+function scoreMixture(
+  test: MixtureTest,
+  strongObserved: StrongObserved,
+  lo: number,
+  hi: number,
+  options: CandidateOptions & { maxOffset?: number },
+): ScoredCandidate {
+  const cands = strongestPredictions(test.mixture, lo, hi, options);
+  if (cands.length < 3) {
+    return {
+      species: test.formula,
+      name: test.name,
+      score: 0,
+      matched: 0,
+      predicted: cands.length,
+      offset: 0,
+      uncorrected: 0,
+    };
+  }
+  const est = estimateOffset(
+    cands,
+    strongObserved.map((p) => p.position),
+    options.maxOffset ?? 0.5,
+    0.06,
+  );
+  const offset = est?.offset ?? 0;
+  const tol = Math.min(Math.max(4 * (est?.spread ?? 0.05), 0.03), 0.3);
+  const { matched, score } = matchScore(cands, strongObserved, offset, tol);
+  const chance = chanceMatchProbability(tol, strongObserved.length / (hi - lo));
+  const falseAlarm = chanceFalseAlarm(matched, cands.length, chance, (options.maxOffset ?? 0.5) / tol);
+  return {
+    species: test.formula,
+    name: test.name,
+    // A match that as many lines at random would reach as often as once in a thousand lists identifies nothing.
+    score: falseAlarm > MAX_FALSE_ALARM ? 0 : score,
+    matched,
+    predicted: cands.length,
+    offset,
+    uncorrected: score,
+  };
+}
+
+/** The mixture's 60 strongest predicted lines with J″ ≤ 12 in [lo, hi], strongest first. */
+function strongestPredictions(
+  mixture: MixtureTest['mixture'],
+  lo: number,
+  hi: number,
+  options: CandidateOptions,
+): ReturnType<typeof candidateLines> {
+  return candidateLines(mixture, lo, hi, options)
+    .filter((c) => c.j <= 12)
+    .sort((a, b) => b.intensity - a.intensity)
+    .slice(0, 60);
+}
+
+/**
+ * The predictions shifted by `offset`, matched one-to-one within ±tol: how many matched, and the score — the share
+ * of the predicted weight (√intensity) found × the share of the strong observed lines explained, out of as many as
+ * the predictions could explain at most (full at half).
+ */
+function matchScore(
+  cands: readonly { position: number; intensity: number }[],
+  strongObserved: StrongObserved,
+  offset: number,
+  tol: number,
+): { matched: number; score: number } {
+  const { matches } = matchLines(
+    cands.map((c, i) => ({ key: String(i), position: c.position + offset, tolerance: tol })),
+    strongObserved,
+  );
+  const predictedWeight = cands.reduce((s, c) => s + Math.sqrt(c.intensity), 0);
+  const matchedWeight = matches.reduce(
+    (s, m) => s + Math.sqrt((cands[Number(m.prediction.key)] as { intensity: number }).intensity),
+    0,
+  );
+  const observedShare = matches.length / Math.min(strongObserved.length, cands.length);
+  return { matched: matches.length, score: (matchedWeight / predictedWeight) * Math.min(1, observedShare / 0.5) };
 }
 
 /** Highest chance (over offsets tried) of a random list matching as well, for a match to identify anything. */
