@@ -293,10 +293,35 @@ export function identifyLabelledSpecies(
   const maxOffset = options.maxOffset ?? 0.5;
   const out: LabelIdentification[] = [];
   if (lines.length === 0) return out;
+  for (const { name, mixture } of labelMixtures()) {
+    const residuals = labelResiduals(lines, mixture);
+    const best = votedLabelOffset(lines, residuals, maxOffset);
+    out.push({
+      species: (mixture[0] as LabelPredictor).formula,
+      name,
+      explained: best.count,
+      lines: lines.length,
+      offset: best.offset,
+      isotopologueOf: nearestIsotopologues(lines, residuals, mixture, best.offset),
+    });
+  }
+  return out.sort((a, b) => b.explained - a.explained || Math.abs(a.offset) - Math.abs(b.offset));
+}
+
+/** One isotopologue's prediction of a label: its formula and its level energies from the reference constants. */
+interface LabelPredictor {
+  readonly formula: string;
+  readonly energy: ReturnType<typeof compileDunham>;
+}
+
+/**
+ * Each molecule of the library once, as in identifySpecies: its natural mixture, or a parent that is not the most
+ * abundant isotopologue of its elements (DCl, DF) as itself; the isotopologues the library has constants for.
+ */
+function labelMixtures(): { name: string; mixture: LabelPredictor[] }[] {
+  const out: { name: string; mixture: LabelPredictor[] }[] = [];
   const seen = new Set<string>();
   for (const e of libraryEntries().filter((x) => !x.derivedFrom)) {
-    // As in identifySpecies: a molecule once as its natural mixture; a parent that is not the most abundant
-    // isotopologue of its elements (DCl, DF) as itself.
     const iso = parseSpecies(e.formula);
     const natural = isotopologuesMeant(elementsOnly(iso), 1e-3);
     const members = natural[0]?.iso.formula === e.formula ? natural : isotopologuesMeant(enrichedAtomsOnly(iso), 1e-3);
@@ -307,48 +332,65 @@ export function identifyLabelledSpecies(
       const entry = constantsFor(m);
       return entry ? [{ formula: m.formula, energy: compileDunham(dunhamFromEntry(entry)) }] : [];
     });
-    if (mixture.length === 0) continue;
-    // Residual of each line against each isotopologue's prediction of its label.
-    const residuals = lines.map((l) =>
-      mixture.map((m) => {
-        const p = m.energy(l.band.upper, upperJ(l)) - m.energy(l.band.lower, l.j);
-        return Number.isFinite(p) ? l.position - p : Number.POSITIVE_INFINITY;
-      }),
-    );
-    const tolOf = (l: LabelledLine) => 0.05 * (1 + (l.j / 10) ** 2) + 2e-5 * Math.abs(l.position);
-    const countAt = (offset: number) =>
-      lines.reduce(
-        (n, l, i) => n + ((residuals[i] as number[]).some((r) => Math.abs(r - offset) <= tolOf(l)) ? 1 : 0),
-        0,
-      );
-    let best = { offset: 0, count: countAt(0) };
-    residuals.slice(0, MAX_VOTERS).forEach((rs) => {
-      for (const r of rs) {
-        if (!(Math.abs(r) <= maxOffset)) continue;
-        const count = countAt(r);
-        if (count > best.count || (count === best.count && Math.abs(r) < Math.abs(best.offset)))
-          best = { offset: r, count };
-      }
-    });
-    const isotopologueOf = new Map<number, string>();
-    lines.forEach((l, i) => {
-      const rs = residuals[i] as number[];
-      let k = 0;
-      rs.forEach((r, m) => {
-        if (Math.abs(r - best.offset) < Math.abs((rs[k] as number) - best.offset)) k = m;
-      });
-      isotopologueOf.set(l.index, (mixture[k] as { formula: string }).formula);
-    });
-    out.push({
-      species: (mixture[0] as { formula: string }).formula,
-      name: e.name,
-      explained: best.count,
-      lines: lines.length,
-      offset: best.offset,
-      isotopologueOf,
-    });
+    if (mixture.length > 0) out.push({ name: e.name, mixture });
   }
-  return out.sort((a, b) => b.explained - a.explained || Math.abs(a.offset) - Math.abs(b.offset));
+  return out;
+}
+
+/** Residual of each line against each isotopologue's prediction of its label (+∞ where there is none). */
+function labelResiduals(lines: readonly LabelledLine[], mixture: readonly LabelPredictor[]): number[][] {
+  return lines.map((l) =>
+    mixture.map((m) => {
+      const p = m.energy(l.band.upper, upperJ(l)) - m.energy(l.band.lower, l.j);
+      return Number.isFinite(p) ? l.position - p : Number.POSITIVE_INFINITY;
+    }),
+  );
+}
+
+/**
+ * The offset (|offset| ≤ maxOffset, one of the first voters' residuals, else 0) that brings most lines within the
+ * tolerance of one of their predictions, the smaller offset on a tie; with that count.
+ */
+function votedLabelOffset(
+  lines: readonly LabelledLine[],
+  residuals: readonly (readonly number[])[],
+  maxOffset: number,
+): { offset: number; count: number } {
+  const tolOf = (l: LabelledLine) => 0.05 * (1 + (l.j / 10) ** 2) + 2e-5 * Math.abs(l.position);
+  const countAt = (offset: number) =>
+    lines.reduce(
+      (n, l, i) => n + ((residuals[i] as number[]).some((r) => Math.abs(r - offset) <= tolOf(l)) ? 1 : 0),
+      0,
+    );
+  let best = { offset: 0, count: countAt(0) };
+  residuals.slice(0, MAX_VOTERS).forEach((rs) => {
+    for (const r of rs) {
+      if (!(Math.abs(r) <= maxOffset)) continue;
+      const count = countAt(r);
+      if (count > best.count || (count === best.count && Math.abs(r) < Math.abs(best.offset)))
+        best = { offset: r, count };
+    }
+  });
+  return best;
+}
+
+/** The isotopologue of each line (by input index): the one whose prediction of its label lies nearest after `offset`. */
+function nearestIsotopologues(
+  lines: readonly LabelledLine[],
+  residuals: readonly (readonly number[])[],
+  mixture: readonly LabelPredictor[],
+  offset: number,
+): Map<number, string> {
+  const isotopologueOf = new Map<number, string>();
+  lines.forEach((l, i) => {
+    const rs = residuals[i] as number[];
+    let k = 0;
+    rs.forEach((r, m) => {
+      if (Math.abs(r - offset) < Math.abs((rs[k] as number) - offset)) k = m;
+    });
+    isotopologueOf.set(l.index, (mixture[k] as LabelPredictor).formula);
+  });
+  return isotopologueOf;
 }
 
 /**
