@@ -1,7 +1,7 @@
 import { identificationWindow } from '../assign/identify.js';
 import { withoutUninformativeIntensities } from '../assign/intensity.js';
 import { type Match, matchLines, type ObservedPeak } from '../assign/match.js';
-import { estimateOffset } from '../assign/offset.js';
+import { estimateOffset, type OffsetEstimate } from '../assign/offset.js';
 import { type Quantity, quantity } from '../derive/quantity.js';
 import { ScienceError } from '../errors.js';
 import { solveLeastSquares } from '../linalg/least-squares.js';
@@ -290,7 +290,32 @@ export function assignLinearLines(
   options: LinearAssignOptions = {},
 ): LinearAssignResult {
   checkPeaks(sent);
-  // Placeholder intensities (the diatomic path's rule, src/assign/intensity.ts) weigh nothing.
+  const { ctx, cands, why } = assignmentSetting(speciesInput, sent, options);
+  const warnings: string[] = why
+    ? [`intensities ignored: ${why}, so they carry no information about which line is which (a placeholder?)`]
+    : [];
+  if (cands.length === 0)
+    warnings.push(
+      `no band of ${ctx.species.formula} in the library falls in ${ctx.lo.toFixed(1)}–${ctx.hi.toFixed(1)} cm-1`,
+    );
+  const maxOffset = options.maxOffset ?? DEFAULT_MAX_OFFSET;
+  const vote = voteLinearOffset(ctx, cands, maxOffset);
+  const first = attemptAssignment(ctx, vote.offset, vote.offsetSigma);
+  if (first.numbering.every((n) => n.ok) || cands.length === 0)
+    return withWarnings(first, [...warnings, ...uncheckedNumbering(first, maxOffset, ctx.spacing)]);
+  return neighbourOrNone(ctx, first, vote, maxOffset, warnings);
+}
+
+/**
+ * What every attempt shares: the species and its reference, the peaks (placeholder intensities dropped, the diatomic
+ * path's rule, src/assign/intensity.ts) and their range widened by 1 cm⁻¹, the bands and the predictions in it, and
+ * the line spacing of the densest band present; with why the intensities were dropped.
+ */
+function assignmentSetting(
+  speciesInput: string,
+  sent: readonly LinearPeak[],
+  options: LinearAssignOptions,
+): { ctx: Attempt; cands: Candidate[]; why: string | undefined } {
   const { peaks, why } = withoutUninformativeIntensities(sent);
   const species = parseLinearSpecies(speciesInput);
   const ref = referenceFor(species);
@@ -305,9 +330,6 @@ export function assignLinearLines(
   const bands = options.bands ?? referenceBands(ref).map((b) => ({ upper: b.upper, lower: b.lower }));
   const libEntries = levelEntries(ref);
   const cands = predictCandidates(species, ref, libEntries, bands, lo, hi, o);
-  const warnings: string[] = why
-    ? [`intensities ignored: ${why}, so they carry no information about which line is which (a placeholder?)`]
-    : [];
   const observed: ObservedPeak[] = peaks.map((p, index) => ({
     index,
     position: p.position,
@@ -316,26 +338,57 @@ export function assignLinearLines(
   }));
   const present = new Set(cands.map((c) => `${levelKey(c.line.upper)}>${levelKey(c.line.lower)}`));
   const usedBands = bands.filter((b) => present.has(`${levelKey(b.upper)}>${levelKey(b.lower)}`));
-  if (cands.length === 0)
-    warnings.push(`no band of ${species.formula} in the library falls in ${lo.toFixed(1)}–${hi.toFixed(1)} cm-1`);
-  // Offset by voting, searched within less than half the line spacing of the densest band.
+  const spacing = densestSpacing(ref, usedBands);
+  return { ctx: { species, ref, peaks, observed, libEntries, bands, usedBands, lo, hi, o, spacing }, cands, why };
+}
+
+/** The line spacing of the densest of the bands (at most 10 cm⁻¹; 1 for a band whose lower level is not listed). */
+function densestSpacing(
+  ref: ReferenceSpecies,
+  usedBands: readonly { upper: LinearLevel; lower: LinearLevel }[],
+): number {
   const byKey = new Map(ref.levels.map((l) => [levelKey(l), l]));
-  const spacing = Math.min(
+  return Math.min(
     ...usedBands.map((b) => {
       const lower = byKey.get(levelKey(b.lower));
       return lower ? lineSpacing(ref, lower) : 1;
     }),
     10,
   );
-  const maxOffset = options.maxOffset ?? DEFAULT_MAX_OFFSET;
+}
+
+/** The offset voted by the 80 strongest predictions, and the σ the first matching allows it. */
+interface OffsetVote {
+  /** The voted offset (0 when nothing voted). */
+  readonly offset: number;
+  /** Its spread, at most maxOffset and an eighth of the line spacing. */
+  readonly offsetSigma: number;
+  readonly est: OffsetEstimate | undefined;
+}
+
+/** Offset by voting, searched within less than half the line spacing of the densest band. */
+function voteLinearOffset(ctx: Attempt, cands: readonly Candidate[], maxOffset: number): OffsetVote {
+  const { spacing } = ctx;
+  const positions = ctx.peaks.map((p) => p.position);
   const strong = [...cands].sort((a, b) => b.intensity - a.intensity).slice(0, 80);
   const est = cands.length > 0 ? estimateOffset(strong, positions, maxOffset, Math.min(0.06, spacing / 8)) : undefined;
   const offsetSigma = Math.min(est?.spread ?? maxOffset, spacing / 8);
-  const ctx: Attempt = { species, ref, peaks, observed, libEntries, bands, usedBands, lo, hi, o, spacing };
-  const first = attemptAssignment(ctx, est?.offset ?? 0, offsetSigma);
-  if (first.numbering.every((n) => n.ok) || cands.length === 0)
-    return withWarnings(first, [...warnings, ...uncheckedNumbering(first, maxOffset, spacing)]);
-  const best = bestNeighbourNumbering(ctx, first, est?.offset ?? 0, offsetSigma, maxOffset);
+  return { offset: est?.offset ?? 0, offsetSigma, est };
+}
+
+/**
+ * The first numbering failed its check: the neighbouring numbering that passes (warned when it moved, or when the
+ * vote was ambiguous), else every line unassigned with a warning naming maxOffset.
+ */
+function neighbourOrNone(
+  ctx: Attempt,
+  first: LinearAssignResult,
+  vote: OffsetVote,
+  maxOffset: number,
+  before: readonly string[],
+): LinearAssignResult {
+  const warnings = [...before];
+  const best = bestNeighbourNumbering(ctx, first, vote.offset, vote.offsetSigma, maxOffset);
   if (!passes(best)) {
     // No numbering passes: an assignment that may be a whole line spacing off is worse than none.
     warnings.push(
@@ -345,6 +398,7 @@ export function assignLinearLines(
   }
   if (best !== first)
     warnings.push(`numbering moved by the band's line spacing (offset ${best.offset.value.toFixed(4)} cm-1)`);
+  const { est } = vote;
   if (est && est.runnerUpVotes > 0.8 * est.votes && best === first) {
     warnings.push(
       `offset ambiguous: a second offset ${'≥'} 2 windows away gathered ${((100 * est.runnerUpVotes) / est.votes).toFixed(0)} % of the votes`,
