@@ -409,26 +409,9 @@ function readLinearLines(
   const obs: LinearObservation[] = [];
   const transitions = new Map<number, LinearTransition>();
   input.forEach((l, index) => {
-    if (!(l.position > 0) || !Number.isFinite(l.position)) {
-      throw new ScienceError('INPUT_INVALID', `line ${index}: position ${l.position} must be positive and finite`, {
-        line: index,
-      });
-    }
-    if (l.uncertainty !== undefined && !(l.uncertainty > 0 && Number.isFinite(l.uncertainty))) {
-      throw new ScienceError('INPUT_INVALID', `line ${index}: uncertainty ${l.uncertainty} must be positive`, {
-        line: index,
-      });
-    }
+    checkLinearLine(l, index);
     if (!l.assignment) return;
-    let t: LinearTransition;
-    try {
-      t = resolveTransition(species, l.assignment);
-    } catch (e) {
-      if (e instanceof ScienceError) {
-        throw new ScienceError(e.code, `line ${index}: ${e.message}`, { ...e.details, line: index });
-      }
-      throw e;
-    }
+    const t = lineTransition(species, l.assignment, index);
     if (mode === 'absolute' && l.uncertainty === undefined) {
       throw new ScienceError(
         'INPUT_INVALID',
@@ -437,23 +420,7 @@ function readLinearLines(
       );
     }
     transitions.set(index, t);
-    const sigma = l.uncertainty ?? 1;
-    obs.push({
-      index,
-      species: species.formula,
-      upperV: 0,
-      lowerV: 0,
-      upperJ: t.upperJ,
-      lowerJ: t.j,
-      position: l.position,
-      weight: 1 / (sigma * sigma),
-      upperKey: levelKey(t.upper),
-      lowerKey: levelKey(t.lower),
-      upperL: t.upper.l,
-      lowerL: t.lower.l,
-      upperParity: t.upperParity,
-      lowerParity: t.lowerParity,
-    });
+    obs.push(linearObservation(species, l, index, t));
   });
   if (obs.length === 0) {
     throw new ScienceError('FIT_NO_ASSIGNED_LINES', 'no line carries an assignment, so there is nothing to fit', {
@@ -461,6 +428,58 @@ function readLinearLines(
     });
   }
   return { obs, transitions };
+}
+
+/** INPUT_INVALID for a position that is not positive and finite, or an uncertainty given that is not positive. */
+function checkLinearLine(l: LinearLineInput, index: number): void {
+  if (!(l.position > 0) || !Number.isFinite(l.position)) {
+    throw new ScienceError('INPUT_INVALID', `line ${index}: position ${l.position} must be positive and finite`, {
+      line: index,
+    });
+  }
+  if (l.uncertainty !== undefined && !(l.uncertainty > 0 && Number.isFinite(l.uncertainty))) {
+    throw new ScienceError('INPUT_INVALID', `line ${index}: uncertainty ${l.uncertainty} must be positive`, {
+      line: index,
+    });
+  }
+}
+
+/** The transition a line's assignment names; a refusal of it names the line. */
+function lineTransition(species: LinearSpecies, assignment: LinearAssignment, index: number): LinearTransition {
+  try {
+    return resolveTransition(species, assignment);
+  } catch (e) {
+    if (e instanceof ScienceError) {
+      throw new ScienceError(e.code, `line ${index}: ${e.message}`, { ...e.details, line: index });
+    }
+    throw e;
+  }
+}
+
+/** The observation of an assigned line: its levels, J, parities and the weight 1/σ² (σ = 1 when none is given). */
+function linearObservation(
+  species: LinearSpecies,
+  l: LinearLineInput,
+  index: number,
+  t: LinearTransition,
+): LinearObservation {
+  const sigma = l.uncertainty ?? 1;
+  return {
+    index,
+    species: species.formula,
+    upperV: 0,
+    lowerV: 0,
+    upperJ: t.upperJ,
+    lowerJ: t.j,
+    position: l.position,
+    weight: 1 / (sigma * sigma),
+    upperKey: levelKey(t.upper),
+    lowerKey: levelKey(t.lower),
+    upperL: t.upper.l,
+    lowerL: t.lower.l,
+    upperParity: t.upperParity,
+    lowerParity: t.lowerParity,
+  };
 }
 
 /**
