@@ -39,6 +39,9 @@ import { compiledSerializerCompiler } from './serializer.js';
 
 export { MAX_JSON_DEPTH } from './plugins/body-parsers.js';
 
+/** What a caller's X-Request-Id may be to be used as the request's id. */
+const REQUEST_ID = /^[A-Za-z0-9._:-]{1,128}$/;
+
 export interface AppOptions {
   readonly config?: Config;
   readonly logger?: FastifyServerOptions['logger'];
@@ -71,8 +74,13 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
     bodyLimit: config.bodyLimit,
     onProtoPoisoning: 'error',
     onConstructorPoisoning: 'error',
-    requestIdHeader: 'x-request-id',
-    genReqId: () => randomUUID(),
+    // A caller's X-Request-Id is taken when it looks like an id (1–128 of A–Z a–z 0–9 . _ : -); anything else gets a
+    // fresh one: a 10 000-character or markup value was echoed in the response header and written to every log line.
+    requestIdHeader: false,
+    genReqId: (req) => {
+      const given = req.headers['x-request-id'];
+      return typeof given === 'string' && REQUEST_ID.test(given) ? given : randomUUID();
+    },
     ajv: { customOptions: { strict: false } },
     requestTimeout: config.requestTimeoutMs,
     // A request that reached the server on an open connection while it closes is served (within the grace period),

@@ -80,6 +80,19 @@ const FASTIFY_CODES: Record<string, { status: number; code: string; title: strin
   FST_ERR_CTP_INVALID_HEADER: { status: 400, code: 'BAD_REQUEST', title: 'Bad request' },
 };
 
+/** Client errors other than 400 that fastify or its plugins raise with a status only. */
+const OTHER_CLIENT_ERRORS: Record<number, { code: string; title: string }> = {
+  403: { code: 'FORBIDDEN', title: 'Forbidden' },
+  404: { code: 'NOT_FOUND', title: 'Not found' },
+  405: { code: 'METHOD_NOT_ALLOWED', title: 'Method not allowed' },
+  406: { code: 'NOT_ACCEPTABLE', title: 'Not acceptable' },
+  411: { code: 'LENGTH_REQUIRED', title: 'Length required' },
+  413: { code: 'BODY_TOO_LARGE', title: 'Request body too large' },
+  414: { code: 'URI_TOO_LONG', title: 'URI too long' },
+  415: { code: 'UNSUPPORTED_MEDIA_TYPE', title: 'Unsupported media type' },
+  431: { code: 'HEADERS_TOO_LARGE', title: 'Request Header Fields Too Large' },
+};
+
 /**
  * A problem raised by the service itself (rate limit, shedding, admission, deadlines): it travels as an error and
  * is sent as it is.
@@ -196,6 +209,18 @@ function toProblemUntruncated(error: unknown, request: FastifyRequest): Problem 
   if (error instanceof SyntaxError || (typeof status === 'number' && status >= 400 && status < 500)) {
     const s = typeof status === 'number' && status >= 400 && status < 500 ? status : 400;
     const message = fe.message ?? 'bad request';
+    // Type, title and code say the status: a 403 (a static path outside the docs) or 414 (a path parameter over its
+    // length) was typed /problems/bad-request, titled "Bad request".
+    const named = OTHER_CLIENT_ERRORS[s];
+    if (named && !/prototype|constructor/i.test(message))
+      return {
+        type: problemType(named.code),
+        title: named.title,
+        status: s,
+        detail: message,
+        instance,
+        code: named.code,
+      };
     return {
       type: problemType('BAD_REQUEST'),
       title: 'Bad request',
@@ -237,6 +262,11 @@ export const PROBLEM_DESCRIPTIONS: Record<string, string> = {
   'unsupported-media-type': 'The Content-Type is not one this endpoint accepts.',
   'body-too-large': 'The body exceeds the configured limit (BODY_LIMIT).',
   'bad-request': 'The request is malformed.',
+  forbidden: 'The path is outside what the service serves (e.g. a static path leaving its folder).',
+  'not-acceptable': 'None of the media types the Accept header asks for can be produced.',
+  'length-required': 'The request needs a Content-Length.',
+  'headers-too-large': "The request line and headers together exceed the server's limit.",
+  'uri-too-long': 'A path parameter is longer than the router accepts; the route documents the limit.',
   'not-found': 'No such route.',
   'method-not-allowed': 'The route exists, but not with this method; the Allow header lists the methods it takes.',
   unauthorized: 'The route needs an API key: send "Authorization: Bearer <key>".',
