@@ -1231,47 +1231,22 @@ export function voteOffsets(
   }
   for (const [src, peaks] of freeBySource) {
     const observed = peaks.map((p) => p.position);
-    const strong = [...seeds].sort((a, b) => b.intensity - a.intensity).slice(0, voters.source);
-    const est = estimateOffset(strong, observed, maxOffset, 0.06);
-    const choice = {
-      offset: est?.offset ?? 0,
-      tolerance: Math.min(Math.max(4 * (est?.spread ?? 0.05), 0.03), 0.3),
-      own: false,
-      ambiguous: est !== undefined && est.runnerUpVotes > 0.7 * est.votes,
-    };
+    const choice = sourceOffset(seeds, observed, maxOffset, voters.source);
     bySource.set(src, choice);
-    const sorted = copyFloats(observed).sort();
+    const vote: BandVote = { seeds, observed, sorted: copyFloats(observed).sort(), choice, maxOffset, minLines };
     for (const [bk, list] of bands) {
       const top = [...list].sort((a, b) => b.intensity - a.intensity).slice(0, voters.band);
-      let use: OffsetChoice = choice;
-      if (top.length >= minLines) {
-        const withSource = countNear(top, sorted, choice.offset, choice.tolerance);
-        const own = estimateOffset(top, observed, maxOffset, 0.06);
-        if (own) {
-          const tol = Math.min(Math.max(4 * own.spread, 0.03), 0.3);
-          // Peaks another band predicts at the source's offset are its, not evidence for this band's own offset:
-          // the H81Br band moved by the isotope splitting lands on H79Br lines (a scan missing H81Br's strongest
-          // lines gave it that offset, and every H79Br line went to H81Br).
-          const claimed = claimedByOthers(seeds, bk, choice.offset);
-          const n = countNear(top, sorted, own.offset, tol, claimed, choice.tolerance);
-          if (n >= minLines && n >= withSource + 3 && n >= 2 * withSource)
-            use = { offset: own.offset, tolerance: tol, own: true };
-        }
-        // Most of the band's strong lines on peaks no other band predicts: its positions establish it, whatever
-        // scale its intensities are on.
-        const alone = countNear(
-          top,
-          sorted,
-          use.offset,
-          use.tolerance,
-          claimedByOthers(seeds, bk, use.offset),
-          use.tolerance,
-        );
-        if (alone >= 2 * minLines && alone >= ESTABLISHED_SHARE * top.length) use = { ...use, established: true };
-      }
-      perBand.set(`${bk}#${src}`, use);
+      perBand.set(`${bk}#${src}`, bandOffset(vote, bk, top));
     }
   }
+  return offsetVotes(bySource, perBand);
+}
+
+/** The offsets found, looked up per band and source (the source's when the band has none, else 0 ± 0.1). */
+function offsetVotes(
+  bySource: Map<string, OffsetChoice & { ambiguous: boolean }>,
+  perBand: Map<string, OffsetChoice>,
+): OffsetVotes {
   return {
     bySource,
     perBand,
@@ -1279,6 +1254,69 @@ export function voteOffsets(
       perBand.get(`${band}#${source}`) ??
       bySource.get(source) ?? { offset: 0, tolerance: 0.1, own: false, ambiguous: false },
   };
+}
+
+/** One source's offset, voted by the strongest `voters` predictions against its peaks (ambiguous near a tie). */
+function sourceOffset(
+  seeds: readonly CandidateLine[],
+  observed: readonly number[],
+  maxOffset: number,
+  voters: number,
+): OffsetChoice & { ambiguous: boolean } {
+  const strong = [...seeds].sort((a, b) => b.intensity - a.intensity).slice(0, voters);
+  const est = estimateOffset(strong, observed, maxOffset, 0.06);
+  return {
+    offset: est?.offset ?? 0,
+    tolerance: Math.min(Math.max(4 * (est?.spread ?? 0.05), 0.03), 0.3),
+    own: false,
+    ambiguous: est !== undefined && est.runnerUpVotes > 0.7 * est.votes,
+  };
+}
+
+/** What a band's own vote is held against: every seed, one source's peaks (as sent and sorted) and its offset. */
+interface BandVote {
+  readonly seeds: readonly CandidateLine[];
+  readonly observed: readonly number[];
+  readonly sorted: Float64Array;
+  readonly choice: OffsetChoice;
+  readonly maxOffset: number;
+  readonly minLines: number;
+}
+
+/**
+ * A band's offset within one source from its strongest predictions (`top`): its own when that explains clearly more
+ * of them than the source's, and established when most of them lie on peaks no other band predicts.
+ */
+function bandOffset(
+  { seeds, observed, sorted, choice, maxOffset, minLines }: BandVote,
+  bk: string,
+  top: readonly CandidateLine[],
+): OffsetChoice {
+  if (top.length < minLines) return choice;
+  let use: OffsetChoice = choice;
+  const withSource = countNear(top, sorted, choice.offset, choice.tolerance);
+  const own = estimateOffset(top, observed, maxOffset, 0.06);
+  if (own) {
+    const tol = Math.min(Math.max(4 * own.spread, 0.03), 0.3);
+    // Peaks another band predicts at the source's offset are its, not evidence for this band's own offset:
+    // the H81Br band moved by the isotope splitting lands on H79Br lines (a scan missing H81Br's strongest
+    // lines gave it that offset, and every H79Br line went to H81Br).
+    const claimed = claimedByOthers(seeds, bk, choice.offset);
+    const n = countNear(top, sorted, own.offset, tol, claimed, choice.tolerance);
+    if (n >= minLines && n >= withSource + 3 && n >= 2 * withSource)
+      use = { offset: own.offset, tolerance: tol, own: true };
+  }
+  // Most of the band's strong lines on peaks no other band predicts: its positions establish it, whatever scale
+  // its intensities are on.
+  const alone = countNear(
+    top,
+    sorted,
+    use.offset,
+    use.tolerance,
+    claimedByOthers(seeds, bk, use.offset),
+    use.tolerance,
+  );
+  return alone >= 2 * minLines && alone >= ESTABLISHED_SHARE * top.length ? { ...use, established: true } : use;
 }
 
 /**
@@ -1309,13 +1347,7 @@ export function widenedOffsets(
   const perBand = new Map(first.perBand);
   for (const [s, o] of wide.bySource) bySource.set(s, o);
   for (const [k, o] of wide.perBand) perBand.set(k, o);
-  return {
-    bySource,
-    perBand,
-    of: (band, source) =>
-      perBand.get(`${band}#${source}`) ??
-      bySource.get(source) ?? { offset: 0, tolerance: 0.1, own: false, ambiguous: false },
-  };
+  return offsetVotes(bySource, perBand);
 }
 
 /**

@@ -56,43 +56,74 @@ export function matchLines(
   peaks: readonly ObservedPeak[],
 ): { matches: Match[]; competitions: Competition[] } {
   const sorted = [...peaks].sort((a, b) => a.position - b.position);
+  const pairs = admissiblePairs(predictions, sorted);
+  // A stable sort of the pairs' numbers by cost: ties keep the order in which the pairs were found.
+  const order: number[] = [];
+  for (let n = 0; n < pairs.costs.length; n++) order.push(n);
+  order.sort((a, b) => (pairs.costs[a] as number) - (pairs.costs[b] as number));
+  return takeGreedily(predictions, sorted, pairs, order);
+}
+
+/** Admissible pairs as parallel lists (cost, peak by its number in `sorted`, prediction): no object per pair. */
+interface Pairs {
+  readonly costs: number[];
+  readonly peakOf: number[];
+  readonly predOf: number[];
+}
+
+/** Every pair of a prediction and a peak (sorted by position) within the tolerance and intensity limits, scored. */
+function admissiblePairs(predictions: readonly Prediction[], sorted: readonly ObservedPeak[]): Pairs {
   // Filled by a plain loop: Float64Array.from with a mapping function is several times slower here.
   const pos = floats(sorted.length);
   for (let i = 0; i < sorted.length; i++) pos[i] = (sorted[i] as ObservedPeak).position;
-  // Admissible pairs as parallel lists (cost, peak, prediction): no object per pair.
-  const costs: number[] = [];
-  const peakOf: number[] = [];
-  const predOf: number[] = [];
+  const pairs: Pairs = { costs: [], peakOf: [], predOf: [] };
   let maxSigma = 0;
-  for (const p of peaks) if (p.sigma !== undefined && p.sigma > maxSigma) maxSigma = p.sigma;
+  for (const p of sorted) if (p.sigma !== undefined && p.sigma > maxSigma) maxSigma = p.sigma;
   predictions.forEach((pr, ki) => {
     const reach = pr.withSigma
       ? Math.max(pr.tolerance, Math.hypot(pr.withSigma.model, pr.withSigma.perSigma * maxSigma))
       : pr.tolerance;
     const lo = lowerBound(pos, pr.position - reach);
     for (let i = lo; i < pos.length && (pos[i] as number) <= pr.position + reach; i++) {
-      const pk = sorted[i] as ObservedPeak;
-      const tol = toleranceFor(pr, pk);
-      const r = (pk.position - pr.position) / tol;
-      if (Math.abs(r) > 1) continue;
-      // The negative log-likelihood of a Gaussian: a vague prediction (a long extrapolation) must not take a peak
-      // from a sharp one that explains it as well in units of its own tolerance.
-      let c = r * r + 2 * Math.log(tol) + 100 * (pr.tier ?? 0);
-      if (pr.intensity !== undefined && pk.intensity !== undefined && pr.intensity > 0) {
-        if (!(pk.intensity > 0)) continue;
-        const lr = Math.log(pk.intensity / pr.intensity);
-        if (Math.abs(lr) > Math.log(pr.intensityRatioLimit ?? INTENSITY_RATIO_LIMIT)) continue;
-        c += 0.5 * lr * lr;
-      }
-      costs.push(c);
-      peakOf.push(i);
-      predOf.push(ki);
+      const c = pairCost(pr, sorted[i] as ObservedPeak);
+      if (c === undefined) continue;
+      pairs.costs.push(c);
+      pairs.peakOf.push(i);
+      pairs.predOf.push(ki);
     }
   });
-  // A stable sort of the pairs' numbers by cost: ties keep the order in which the pairs were found.
-  const order: number[] = [];
-  for (let n = 0; n < costs.length; n++) order.push(n);
-  order.sort((a, b) => (costs[a] as number) - (costs[b] as number));
+  return pairs;
+}
+
+/**
+ * The cost of matching a peak to a prediction, undefined when the peak lies beyond the tolerance or its intensity
+ * strays beyond the limit: the negative log-likelihood of a Gaussian, so that a vague prediction (a long
+ * extrapolation) does not take a peak from a sharp one that explains it as well in units of its own tolerance.
+ */
+function pairCost(pr: Prediction, pk: ObservedPeak): number | undefined {
+  const tol = toleranceFor(pr, pk);
+  const r = (pk.position - pr.position) / tol;
+  if (Math.abs(r) > 1) return undefined;
+  let c = r * r + 2 * Math.log(tol) + 100 * (pr.tier ?? 0);
+  if (pr.intensity !== undefined && pk.intensity !== undefined && pr.intensity > 0) {
+    if (!(pk.intensity > 0)) return undefined;
+    const lr = Math.log(pk.intensity / pr.intensity);
+    if (Math.abs(lr) > Math.log(pr.intensityRatioLimit ?? INTENSITY_RATIO_LIMIT)) return undefined;
+    c += 0.5 * lr * lr;
+  }
+  return c;
+}
+
+/**
+ * The pairs taken in the given order, each peak and prediction once; a peak that finds its prediction taken lost a
+ * competition, reported unless the peak was matched elsewhere.
+ */
+function takeGreedily(
+  predictions: readonly Prediction[],
+  sorted: readonly ObservedPeak[],
+  { peakOf, predOf }: Pairs,
+  order: readonly number[],
+): { matches: Match[]; competitions: Competition[] } {
   const usedPeak = new Map<number, number>();
   const usedPred = new Map<number, number>();
   const matches: Match[] = [];
