@@ -225,6 +225,8 @@ export interface AssignContext {
   readonly typicalSigma: number | undefined;
   /** Whether reference predictions of every J are let in (the gap pass, see assignAndFit). */
   wide: boolean;
+  /** The last fit's predictions by candidate number, each asked of it once (see fittedPosition). */
+  readonly fitted: { fit: DetailedFit | undefined; at: (FittedPosition | undefined | null)[] };
   /** Lines a band matched by position but pruneImplausibleBands dropped for their intensity, and why. */
   readonly intensityLeftOut: Map<number, string>;
   readonly maxOffset: number;
@@ -295,6 +297,7 @@ export function prepareAssignment(
     referenceDunham: referenceDunham(species),
     typicalSigma: withSigma.length > 0 ? robustMedian(withSigma) : undefined,
     wide: false,
+    fitted: { fit: undefined, at: [] },
     intensityLeftOut: new Map(),
     maxOffset: options.maxOffset ?? 0.5,
     minLines: options.minLinesPerBand ?? 4,
@@ -625,7 +628,7 @@ export function predictionOf(
   const bk = ctx.bands[band] as string;
   const cand: CandidateRef = { c, ci, band, bk };
   // A band whose two levels are both fitted (through other bands) is predicted by the fit, matched or not.
-  const fitted = model.detailed?.predict(c);
+  const fitted = model.detailed ? fittedPosition(ctx, model.detailed, ci) : undefined;
   const r = reach ?? (fitted ? START_J : undefined);
   const placed =
     (fitted && r !== undefined && model.residuals
@@ -638,6 +641,26 @@ export function predictionOf(
   // A band its positions establish is not held to another band's intensity scale before it has its own.
   const k = own ?? (offsets.of(bk, src.name).established ? undefined : classScale(model.scale, c, src.name));
   return keyedPrediction(ci, placed, k !== undefined ? k * c.intensity : undefined, own === undefined);
+}
+
+type FittedPosition = { readonly value: number; readonly variance: number };
+
+/**
+ * A fit's prediction of a candidate (undefined when the fit holds not both its levels), asked of each fit once per
+ * candidate: the rounds that settle the assignment and the passes after it predict from the same fit again.
+ */
+export function fittedPosition(ctx: AssignContext, fit: DetailedFit, ci: number): FittedPosition | undefined {
+  const memo = ctx.fitted;
+  if (memo.fit !== fit) {
+    memo.fit = fit;
+    memo.at = new Array(ctx.cands.length).fill(null);
+  }
+  let p = memo.at[ci];
+  if (p === null) {
+    p = fit.predict(ctx.cands[ci] as CandidateLine);
+    memo.at[ci] = p;
+  }
+  return p;
 }
 
 /**
