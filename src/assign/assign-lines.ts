@@ -530,7 +530,7 @@ export function proposeMatches(
   const out = { peaks: [] as number[], cands: [] as number[], competitions: [] as Competition[] };
   const near = withinReach(ctx, model.reach);
   ctx.sources.forEach((name, n) => {
-    const src: SourceRef = { name, n };
+    const src: SourceRef = { name, n, bands: [] };
     const preds: Prediction[] = [];
     for (const ci of near) {
       const p = predictionOf(ctx, offsets, model, ci, src);
@@ -625,22 +625,58 @@ export function predictionOf(
   // Beyond the farthest either placement may reach (a band without lines reaches from START_J): no prediction, and
   // none of the fit is asked for.
   if (!ctx.wide && outOfReach(c.j, reach ?? START_J)) return undefined;
-  const bk = ctx.bands[band] as string;
-  const cand: CandidateRef = { c, ci, band, bk };
+  const view = bandInSource(ctx, offsets, model, src, band, c);
+  const cand: CandidateRef = { c, ci, band, bk: view.bk };
   // A band whose two levels are both fitted (through other bands) is predicted by the fit, matched or not.
   const fitted = model.detailed ? fittedPosition(ctx, model.detailed, ci) : undefined;
   const r = reach ?? (fitted ? START_J : undefined);
   const placed =
     (fitted && r !== undefined && model.residuals
-      ? fittedPrediction(ctx, offsets, model.residuals, cand, fitted, r, src)
-      : referencePrediction(ctx, offsets, cand, r, src.name)) ??
+      ? fittedPrediction(ctx, offsets, model.residuals, cand, fitted, r, src, view)
+      : referencePrediction(ctx, offsets, cand, r, src.name, view)) ??
     // Beyond a gap the fitted model may have run out while the reference still places the line well.
-    (ctx.wide && fitted ? referencePrediction(ctx, offsets, cand, undefined, src.name) : undefined);
+    (ctx.wide && fitted ? referencePrediction(ctx, offsets, cand, undefined, src.name, view) : undefined);
   if (!placed) return undefined;
+  return keyedPrediction(ci, placed, view.scale !== undefined ? view.scale * c.intensity : undefined, view.borrowed);
+}
+
+/** Where a band's lines are placed within one source: its offset there and its line spacing (undefined: none). */
+export interface BandPlacement {
+  readonly offset: OffsetChoice;
+  readonly spacing: number | undefined;
+}
+
+/** What the predictions of one band within one source share in a round, looked up once rather than per candidate. */
+export interface BandInSource extends BandPlacement {
+  readonly bk: string;
+  /**
+   * The observed/predicted intensity scale its predictions carry: its own, else (unless its positions establish it)
+   * that of its class's main band.
+   */
+  readonly scale: number | undefined;
+  /** Whether `scale` is not the band's own (and so held to BAND_RATIO_LIMIT). */
+  readonly borrowed: boolean;
+}
+
+/** The band's view within the source (`c` one of its candidates, for its class), made once per round and source. */
+export function bandInSource(
+  ctx: AssignContext,
+  offsets: OffsetVotes,
+  model: RoundModel,
+  src: SourceRef,
+  band: number,
+  c: CandidateLine,
+): BandInSource {
+  const known = src.bands?.[band];
+  if (known !== undefined) return known;
+  const bk = ctx.bands[band] as string;
+  const offset = offsets.of(bk, src.name);
   const own = model.scale.get(scaleKey(bk, src.name));
   // A band its positions establish is not held to another band's intensity scale before it has its own.
-  const k = own ?? (offsets.of(bk, src.name).established ? undefined : classScale(model.scale, c, src.name));
-  return keyedPrediction(ci, placed, k !== undefined ? k * c.intensity : undefined, own === undefined);
+  const scale = own ?? (offset.established ? undefined : classScale(model.scale, c, src.name));
+  const view = { bk, offset, spacing: ctx.spacing.get(bk), scale, borrowed: own === undefined };
+  if (src.bands) src.bands[band] = view;
+  return view;
 }
 
 type FittedPosition = { readonly value: number; readonly variance: number };
@@ -703,6 +739,8 @@ export interface CandidateRef {
 export interface SourceRef {
   readonly name: string;
   readonly n: number;
+  /** Its bands as a round's predictions see them, by band number (bandInSource; kept when given). */
+  readonly bands?: (BandInSource | undefined)[];
 }
 
 /**
@@ -711,7 +749,10 @@ export interface SourceRef {
  */
 export const outOfReach = (j: number, r: number) => j > r + Math.max(GROWTH_J, r);
 
-/** A fitted band's prediction, grown a few lines past its reach; undefined where the model has run out. */
+/**
+ * A fitted band's prediction, grown a few lines past its reach; undefined where the model has run out. `at`: the
+ * band's offset and spacing in the source (looked up when not given).
+ */
 export function fittedPrediction(
   ctx: AssignContext,
   offsets: OffsetVotes,
@@ -720,6 +761,7 @@ export function fittedPrediction(
   fitted: { value: number; variance: number },
   r: number,
   { name: src, n: srcNumber }: SourceRef,
+  { offset, spacing }: BandPlacement = { offset: offsets.of(bk, src), spacing: ctx.spacing.get(bk) },
 ): Placement | undefined {
   if (!ctx.wide && outOfReach(c.j, r)) return undefined;
   const st = residuals.of(band, srcNumber);
@@ -733,14 +775,13 @@ export function fittedPrediction(
   if (c.j > r + GROWTH_J && noise > 0 && Math.sqrt(fitted.variance) > limit * noise) return undefined;
   // The fitted model's variance ignores the terms it could not yet determine: where it extrapolates, the
   // reference prediction (with its offset) is a second opinion, and the tolerance spans the two.
-  const second = c.j > r ? Math.abs(fitted.value + st.shift - (c.position + offsets.of(bk, src).offset)) : 0;
+  const second = c.j > r ? Math.abs(fitted.value + st.shift - (c.position + offset.offset)) : 0;
   const model = Math.hypot(K_FITTED * Math.sqrt(fitted.variance), second) + 1e-6;
   // A tolerance wider than a quarter of the line spacing tells nothing.
-  if (model > 0.25 * (ctx.spacing.get(bk) ?? Number.POSITIVE_INFINITY)) return undefined;
-  const spacing = ctx.spacing.get(bk) ?? 0;
+  if (model > 0.25 * (spacing ?? Number.POSITIVE_INFINITY)) return undefined;
   return {
     position: fitted.value + st.shift,
-    tolerance: Math.max(Math.hypot(model, K_FITTED * st.scatter), COINCIDENCE_FRACTION * spacing),
+    tolerance: Math.max(Math.hypot(model, K_FITTED * st.scatter), COINCIDENCE_FRACTION * (spacing ?? 0)),
     // No coincidence floor for lines with σ (tried): real CO 3-0 R(34) and R(40), 8 and 13.7 times their stated σ of
     // 1e-5 from the band's fit, would carry their labels, but in the fit they move the pooled scale of the stated σ
     // (0.39 → 0.42, src/fit/stated-scale.ts) and seven 2-0 and 3-0 lines near 4σ are rejected (491 → 484 fitted).
@@ -748,22 +789,25 @@ export function fittedPrediction(
   };
 }
 
-/** A seedable candidate of a band not yet fitted: its reference position shifted by the voted offset. */
+/**
+ * A seedable candidate of a band not yet fitted: its reference position shifted by the voted offset. `at`: the
+ * band's offset and spacing in the source (looked up when not given).
+ */
 export function referencePrediction(
   ctx: AssignContext,
   offsets: OffsetVotes,
   { c, ci, bk }: CandidateRef,
   r: number | undefined,
   src: string,
+  { offset: o, spacing }: BandPlacement = { offset: offsets.of(bk, src), spacing: ctx.spacing.get(bk) },
 ): Placement | undefined {
   if (!ctx.seedable[ci] || (!ctx.wide && c.j > (r ?? START_J) + GROWTH_J)) return undefined;
-  const o = offsets.of(bk, src);
   // In the gap pass, past the low-J seeds, the tolerance stays that of the offset vote: a line list whose lines the
   // reference places that well is assigned from it at any J, while a reference too rough for it only seeds at low J
   // (widened like the low-J seeds, ten spurious peaks of a hot scan made a coincidence band of 13C16O 2-1).
   const beyondSeeds = ctx.wide && c.j > START_J + GROWTH_J;
   const tolerance = beyondSeeds ? o.tolerance : o.tolerance * (1 + (c.j / 20) ** 2);
-  if (beyondSeeds && tolerance > WIDE_SPACING_FRACTION * (ctx.spacing.get(bk) ?? 0)) return undefined;
+  if (beyondSeeds && tolerance > WIDE_SPACING_FRACTION * (spacing ?? 0)) return undefined;
   return { position: c.position + o.offset, tolerance, tier: 1 };
 }
 

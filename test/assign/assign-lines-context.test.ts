@@ -594,6 +594,21 @@ describe('one round: predictions and matches', () => {
     expect(none && 'intensityRatioLimit' in none).toBe(false);
   });
 
+  it("a source that keeps its bands' views: the same predictions, each band looked up once per round", () => {
+    const ctx = fundamental();
+    const model = noModel(ctx, new Map([['#ir@', 3]]));
+    const kept = { name: '', n: 0, bands: [] };
+    const r2 = ref(ctx, 1, 0, 'R', 2);
+    const r3 = ref(ctx, 1, 0, 'R', 3);
+    expect(predictionOf(ctx, fixed(0.05, 0.1), model, r2.ci, kept)).toEqual(
+      predictionOf(ctx, fixed(0.05, 0.1), model, r2.ci, src),
+    );
+    expect(kept.bands[r2.band]).toMatchObject({ bk: BK, offset: { offset: 0.05 }, scale: 3, borrowed: true });
+    // Kept for the round: a later candidate of the band is placed with the view made first (offset 0.05, not 0.2).
+    expect(predictionOf(ctx, fixed(0.2, 0.1), model, r3.ci, kept)?.position).toBe(r3.c.position + 0.05);
+    expect(predictionOf(ctx, fixed(0.2, 0.1), model, r3.ci, src)?.position).toBe(r3.c.position + 0.2);
+  });
+
   it('with a fit: the fitted placement; where it runs out in the gap pass, the reference placement instead', () => {
     const ctx = fundamental(25);
     const r12 = ref(ctx, 1, 0, 'R', 12);
