@@ -103,34 +103,46 @@ export function selectLevelModel(
   return { fit: isRankDeficient(final) ? current : final, orders };
 }
 
+/** Scratch for predictWithVariance: the numbers and coefficients of a line's non-zero parameters (grown on demand). */
+let nzScratch = new Int32Array(32);
+let gScratch = new Float64Array(32);
+
 /** Position and variance (from the covariance) of an observation predicted by a solved model. */
 export function predictWithVariance(fit: SolvedModel, o: Observation): { value: number; variance: number } | undefined {
   const params = fit.model.parameters;
   const p = params.length;
+  if (nzScratch.length < p) {
+    nzScratch = new Int32Array(p);
+    gScratch = new Float64Array(p);
+  }
+  const nz = nzScratch;
+  const g = gScratch;
   // Only the parameters of the line's two levels have a coefficient: the sums run over those, in the order of the
   // full sums (the terms left out are zeros, so the bits are the same); a model that knows them lists them.
-  const nz: number[] = [];
-  const g: number[] = [];
+  let m = 0;
   const only = fit.model.parametersOf?.(o);
   const n = only ? only.length : p;
   for (let a = 0; a < n; a++) {
     const i = only ? (only[a] as number) : a;
     const c = fit.model.coefficient(params[i] as Parameter, o);
     if (c !== 0) {
-      nz.push(i);
-      g.push(c);
+      nz[m] = i;
+      g[m] = c;
+      m++;
     }
   }
   // A line of a level the fit no longer holds (all its lines rejected) has no prediction.
-  if (nz.length === 0 && p > 0) return undefined;
+  if (m === 0 && p > 0) return undefined;
   let value = 0;
   let variance = 0;
-  for (let a = 0; a < nz.length; a++) {
+  const values = fit.values;
+  const cov = fit.covariance;
+  for (let a = 0; a < m; a++) {
     const i = nz[a] as number;
     const gi = g[a] as number;
-    value += gi * (fit.values[i] as number);
-    for (let b = 0; b < nz.length; b++)
-      variance += gi * (fit.covariance[i * p + (nz[b] as number)] as number) * (g[b] as number);
+    value += gi * (values[i] as number);
+    const row = i * p;
+    for (let b = 0; b < m; b++) variance += gi * (cov[row + (nz[b] as number)] as number) * (g[b] as number);
   }
   return { value, variance: Math.max(variance, 0) };
 }
