@@ -1674,6 +1674,17 @@ export const ratioText = (r: number) => (r >= 1 ? r.toPrecision(3) : `1/${(1 / r
  * abundance ratio (a soft constraint, ln-ratio σ 0.3), or swaps its two labels when the swap fits better.
  */
 export function resolveDoublets(auto: Map<number, CandidateLine>, peaks: readonly PeakInput[]): void {
+  // A doublet needs two isotopologues: with one species among the lines there is nothing to judge.
+  let species: string | undefined;
+  let mixed = false;
+  for (const c of auto.values()) {
+    if (species === undefined) species = c.species;
+    else if (c.species !== species) {
+      mixed = true;
+      break;
+    }
+  }
+  if (!mixed) return;
   // Keyed by band, branch and J″ as one number (every species' line of one transition in one group).
   const groups = new Map<number, number[]>();
   for (const [i, c] of auto) {
