@@ -50,6 +50,18 @@ export function parseBodies(app: FastifyInstance, config: Config): void {
       request,
     );
   });
+  // Bodies are read as UTF-8. One declared in UTF-16 or UTF-32 (a Windows "Unicode" export) was read as UTF-8
+  // anyway: JSON answered 400 "Body is not valid JSON", a CSV 422 "the CSV header names no position column", a
+  // JCAMP-DX file "does not start with ##TITLE=": none said what to change. Now a 415 names the charset.
+  app.addHook('onRequest', async (request, reply) => {
+    const charset = /;\s*charset\s*=\s*"?([^";\s]+)/i.exec(String(request.headers['content-type'] ?? ''))?.[1];
+    if (charset === undefined || !/^(utf-?(16|32)(le|be)?|ucs-?2|unicode)$/i.test(charset)) return;
+    return sendUnsupportedMediaType(
+      reply,
+      `charset=${charset.slice(0, 20)} is not read: bodies are read as UTF-8 (JSON must be, RFC 8259 §8.1); send the body in UTF-8`,
+      request,
+    );
+  });
   const defaultJson = app.getDefaultJsonParser('error', 'error');
   // Large bodies of the work routes go to a worker unparsed, as bytes (services/raw-body.ts); the others are decoded
   // here exactly as fastify decodes a body it reads as a string (UTF-8, invalid bytes as U+FFFD).

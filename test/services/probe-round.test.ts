@@ -72,3 +72,34 @@ describe('NDJSON batch opening with a byte order mark', () => {
     expect(inside.map((o) => o.status)).toEqual([200, 400]);
   });
 });
+
+describe('a body declared in UTF-16 or UTF-32', () => {
+  it('JSON, CSV, JCAMP-DX and NDJSON in UTF-16 get 415 naming the charset (were 400/422 errors about their content); UTF-8 declared is read', async () => {
+    const json = JSON.stringify(assignedFitBody('HCl', ['1-0'], 8, 0.002, 1));
+    const csv = 'position\n2906.25\n2925.9\n2944.9\n2865.1\n2843.6\n2821.6\n';
+    const jcamp = '##TITLE=x\n##JCAMP-DX=4.24\n##END=\n';
+    const cases: [string, string, string][] = [
+      ['/v1/fits', 'application/json; charset=utf-16', json],
+      ['/v1/fits', 'application/json; charset="UTF-16LE"', json],
+      ['/v1/fits?species=HCl', 'text/csv; charset=utf-16', csv],
+      ['/v1/fits?species=HCl', 'chemical/x-jcamp-dx; charset=utf-32', jcamp],
+      ['/v1/batch/fits', 'application/x-ndjson; charset=utf-16', `${json}\n`],
+    ];
+    for (const [url, type, text] of cases) {
+      const bom = Buffer.from([0xff, 0xfe]);
+      const payload = Buffer.concat([bom, Buffer.from(text, 'utf16le')]);
+      const r = await app().inject({ method: 'POST', url, payload, headers: { 'content-type': type } });
+      expect(r.statusCode, `${url} ${type}`).toBe(415);
+      expect(r.headers['content-type']).toMatch(/^application\/problem\+json/);
+      expect(r.json().code).toBe('UNSUPPORTED_MEDIA_TYPE');
+      expect(r.json().detail).toMatch(/charset=.*UTF-8/i);
+    }
+    const utf8 = await app().inject({
+      method: 'POST',
+      url: '/v1/fits',
+      payload: json,
+      headers: { 'content-type': 'application/json; charset=UTF-8' },
+    });
+    expect(utf8.statusCode).toBe(200);
+  });
+});
