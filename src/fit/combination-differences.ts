@@ -150,19 +150,7 @@ function fitDifferences(
   // Keep at least two degrees of freedom, so that the check can say something.
   const order = Math.min(wantedOrder, n - 2);
   if (order < 1) return undefined;
-  const design = floats(n * order);
-  // Plain loops: Float64Array.from with a map function is many times slower.
-  const values = floats(n);
-  const weights = floats(n);
-  for (let i = 0; i < n; i++) {
-    const pt = pts[i] as (typeof pts)[number];
-    const xu = (pt.j + 1) * (pt.j + 2);
-    const xl = (pt.j - 1) * pt.j;
-    for (let l = 1; l <= order; l++)
-      design[(l - 1) * n + i] = (CENTRIFUGAL_SIGN[l - 1] as number) * (xu ** l - xl ** l);
-    values[i] = pt.m.value;
-    weights[i] = 1 / pt.m.variance;
-  }
+  const { design, values, weights } = differenceSystem(pts, order);
   const r = solveLeastSquares({
     rows: n,
     cols: order,
@@ -195,4 +183,29 @@ function fitDifferences(
     degreesOfFreedom: dof,
     statedUncertaintyOfB: Math.sqrt(r.covariance[0] as number),
   };
+}
+
+/**
+ * The weighted system of the differences, column-major: Δ₂F(J) = Σ_l sign_l [(x′)^l − (x″)^l] c_l with x′ =
+ * (J+1)(J+2) and x″ = (J−1)J (c_1 = B, c_2 = D, …, the level model's signs), weights 1/variance of each difference.
+ */
+function differenceSystem(
+  pts: readonly { j: number; m: Mean }[],
+  order: number,
+): { design: Float64Array<ArrayBuffer>; values: Float64Array<ArrayBuffer>; weights: Float64Array<ArrayBuffer> } {
+  const n = pts.length;
+  const design = floats(n * order);
+  // Plain loops: Float64Array.from with a map function is many times slower.
+  const values = floats(n);
+  const weights = floats(n);
+  for (let i = 0; i < n; i++) {
+    const pt = pts[i] as (typeof pts)[number];
+    const xu = (pt.j + 1) * (pt.j + 2);
+    const xl = (pt.j - 1) * pt.j;
+    for (let l = 1; l <= order; l++)
+      design[(l - 1) * n + i] = (CENTRIFUGAL_SIGN[l - 1] as number) * (xu ** l - xl ** l);
+    values[i] = pt.m.value;
+    weights[i] = 1 / pt.m.variance;
+  }
+  return { design, values, weights };
 }
