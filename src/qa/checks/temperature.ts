@@ -2,7 +2,7 @@ import type { Analysis } from '../../assign/analyse.js';
 import type { PeakInput } from '../../assign/assign-lines.js';
 import { guardBandedStatus } from '../calibration.js';
 import { plusMinus } from '../plus-minus.js';
-import { boltzmannTemperature } from '../temperature.js';
+import { type BoltzmannPoint, boltzmannTemperature } from '../temperature.js';
 import { type Check, type CheckStatus, mainBand, notEvaluated, type Tolerances } from './common.js';
 
 /** The temperature check: the rotational temperature of the main band from a Boltzmann plot. */
@@ -21,23 +21,7 @@ export function temperatureCheck(
   const lowerV = Number(band.band.split('-')[1]);
   const level = analysis.result.levels.find((l) => l.species === main && l.v === lowerV);
   if (!level) return notEvaluated('temperature', 'the lower level was not fitted');
-  const energy = (j: number) => {
-    const x = j * (j + 1);
-    return level.B.value * x - (level.D?.value ?? 0) * x * x + (level.H?.value ?? 0) * x ** 3;
-  };
-  const pts = analysis.result.lines.flatMap((l) => {
-    const a = l.assignment;
-    if (l.status !== 'fitted' || !a || a.species !== main || a.band !== band.band) return [];
-    return [
-      {
-        position: l.position,
-        intensity: peaks[l.index]?.intensity as number,
-        branch: a.branch,
-        j: a.j,
-        lowerEnergy: energy(a.j),
-      },
-    ];
-  });
+  const pts = boltzmannPoints(peaks, analysis, main, band.band, level);
   const plot = boltzmannTemperature(pts);
   if (!plot)
     return notEvaluated(
@@ -59,4 +43,34 @@ export function temperatureCheck(
     limit,
     message,
   };
+}
+
+/**
+ * The fitted lines of the main species in its main band with the intensity sent, E″ from the fitted lower level
+ * (B x − D x² + H x³, x = J(J+1)).
+ */
+function boltzmannPoints(
+  peaks: readonly PeakInput[],
+  analysis: Analysis,
+  main: string | undefined,
+  band: string,
+  level: Analysis['result']['levels'][number],
+): BoltzmannPoint[] {
+  const energy = (j: number) => {
+    const x = j * (j + 1);
+    return level.B.value * x - (level.D?.value ?? 0) * x * x + (level.H?.value ?? 0) * x ** 3;
+  };
+  return analysis.result.lines.flatMap((l) => {
+    const a = l.assignment;
+    if (l.status !== 'fitted' || !a || a.species !== main || a.band !== band) return [];
+    return [
+      {
+        position: l.position,
+        intensity: peaks[l.index]?.intensity as number,
+        branch: a.branch,
+        j: a.j,
+        lowerEnergy: energy(a.j),
+      },
+    ];
+  });
 }
