@@ -268,6 +268,8 @@ export const PROBLEM_DESCRIPTIONS: Record<string, string> = {
   'headers-too-large': "The request line and headers together exceed the server's limit.",
   'uri-too-long': 'A path parameter is longer than the router accepts; the route documents the limit.',
   'not-found': 'No such route.',
+  'expectation-failed':
+    'The request carries an Expect header other than 100-continue, which the service does not meet.',
   'method-not-allowed': 'The route exists, but not with this method; the Allow header lists the methods it takes.',
   unauthorized: 'The route needs an API key: send "Authorization: Bearer <key>".',
   'rate-limited': 'Too many requests from this client (API key, or address without a key) in the time window.',

@@ -1,5 +1,7 @@
+import type { Server } from 'node:http';
+import type { Socket } from 'node:net';
 import type { FastifyInstance } from 'fastify';
-import { HttpProblem, problem, sendProblem, toProblem } from '../errors.js';
+import { HttpProblem, problem, problemType, sendProblem, toProblem } from '../errors.js';
 
 /**
  * Every error as RFC 9457 problem+json: one error handler, a not-found handler that answers 405 with Allow when
@@ -70,7 +72,7 @@ export function answerWithProblems(app: FastifyInstance): void {
  * too large, a malformed request line): answered as problem+json on the socket, then the connection is closed.
  * @see https://fastify.dev/docs/latest/Reference/Server/#clienterrorhandler
  */
-export function clientErrorHandler(err: Error & { code?: string }, socket: import('node:net').Socket): void {
+export function clientErrorHandler(err: Error & { code?: string }, socket: Socket): void {
   const [status, code, title] =
     err.code === 'ERR_HTTP_REQUEST_TIMEOUT'
       ? [408, 'REQUEST_TIMEOUT', 'Request Timeout']
@@ -81,15 +83,57 @@ export function clientErrorHandler(err: Error & { code?: string }, socket: impor
     socket.destroy();
     return;
   }
-  const body = JSON.stringify({
-    type: `/problems/${code.toLowerCase().replaceAll('_', '-')}`,
-    title,
-    status,
-    detail:
-      status === 408 ? 'the request was not received completely within REQUEST_TIMEOUT_MS' : 'the request is malformed',
-    code,
+  const detail =
+    status === 408 ? 'the request was not received completely within REQUEST_TIMEOUT_MS' : 'the request is malformed';
+  socket.end(rawProblem(status, code, title, detail));
+}
+
+/** A whole HTTP/1.1 answer holding one problem, for the places Node answers before fastify has a request. */
+function rawProblem(status: number, code: string, title: string, detail: string, extra = ''): string {
+  const body = JSON.stringify({ type: problemType(code), title, status, detail, code });
+  return `HTTP/1.1 ${status} ${title}\r\nContent-Type: application/problem+json\r\nContent-Length: ${Buffer.byteLength(body)}\r\n${extra}Connection: close\r\n\r\n${body}`;
+}
+
+/**
+ * The requests Node's HTTP server answers on its own, with an empty body, unless told otherwise: CONNECT (the
+ * connection was closed with no answer at all), an Expect other than 100-continue (a bare 417) and an HTTP/1.1
+ * request without Host (a bare 400; buildApp turns Node's check off and `requireHost` below answers it). Each is a
+ * problem+json now, and the connection is closed.
+ */
+export function answerProtocolEdges(server: Server): void {
+  server.on('connect', (_req, socket: Socket) => {
+    if (!socket.writable) return socket.destroy();
+    socket.end(
+      rawProblem(
+        405,
+        'METHOD_NOT_ALLOWED',
+        'Method not allowed',
+        'CONNECT is not served: this service is not a proxy',
+        'Allow: GET, HEAD, POST\r\n',
+      ),
+    );
   });
-  socket.end(
-    `HTTP/1.1 ${status} ${title}\r\nContent-Type: application/problem+json\r\nContent-Length: ${Buffer.byteLength(body)}\r\nConnection: close\r\n\r\n${body}`,
-  );
+  server.on('checkExpectation', (req, res) => {
+    const body = JSON.stringify({
+      type: problemType('EXPECTATION_FAILED'),
+      title: 'Expectation failed',
+      status: 417,
+      detail: `Expect "${String(req.headers.expect).slice(0, 100)}" is not supported: only 100-continue is`,
+      code: 'EXPECTATION_FAILED',
+    });
+    res.writeHead(417, { 'content-type': 'application/problem+json', connection: 'close' });
+    res.end(body);
+  });
+}
+
+/** HTTP/1.1 requires a Host header (RFC 9112 §3.2): a request without one is a 400 problem. */
+export function requireHost(app: FastifyInstance): void {
+  app.addHook('onRequest', async (request, reply) => {
+    if (request.raw.httpVersion !== '1.1' || request.headers.host !== undefined) return;
+    reply.header('connection', 'close');
+    return sendProblem(
+      reply,
+      problem('BAD_REQUEST', 400, 'Bad request', 'an HTTP/1.1 request must carry a Host header', request),
+    );
+  });
 }
