@@ -27,9 +27,43 @@ export class RawBody {
   readonly size: number;
 }
 
-/** The body's text: UTF-8 decoded as fastify decodes a body it parses itself (invalid bytes become U+FFFD). */
-export function bodyText(bytes: Uint8Array): string {
-  return Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength).toString('utf8');
+/** Charset labels read as UTF-8, as fastify reads a body itself (ASCII is a subset). */
+const UTF8_LABELS = new Set(['utf-8', 'utf8', 'us-ascii', 'ascii']);
+
+/** The charset a Content-Type declares, lower-cased; undefined when it declares none. */
+export function declaredCharset(contentType: string): string | undefined {
+  return /;\s*charset\s*=\s*"?([^";\s]+)/i.exec(contentType)?.[1]?.toLowerCase();
+}
+
+/**
+ * The body's text. UTF-8 (none declared, utf-8 or us-ascii) is decoded as fastify decodes a body it parses itself
+ * (invalid bytes become U+FFFD); another charset the WHATWG Encoding Standard names (ISO-8859-1, windows-1252, …) by
+ * that decoder: a CSV exported in Latin-1 with "position (µm)" in its header was read as "�m" and refused. Labels
+ * no decoder knows never get here (`unreadableCharset`, a 415 before the body is read).
+ * @see https://encoding.spec.whatwg.org/#names-and-labels
+ */
+export function bodyText(bytes: Uint8Array, contentType = ''): string {
+  const charset = declaredCharset(contentType);
+  if (charset === undefined || UTF8_LABELS.has(charset))
+    return Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength).toString('utf8');
+  return new TextDecoder(charset).decode(bytes);
+}
+
+/**
+ * The declared charset when the service cannot read a body in it, else undefined: UTF-16 and UTF-32 (a Windows
+ * "Unicode" export: lines are split and numbers read byte-wise, so these are refused rather than decoded), labels
+ * no decoder knows, and any charset but UTF-8 on an NDJSON stream (read line by line as UTF-8).
+ */
+export function unreadableCharset(contentType: string, ndjson: boolean): string | undefined {
+  const charset = declaredCharset(contentType);
+  if (charset === undefined || UTF8_LABELS.has(charset)) return undefined;
+  if (ndjson || /^(utf-?(16|32)(le|be)?|ucs-?2|unicode)$/.test(charset)) return charset;
+  try {
+    new TextDecoder(charset);
+    return undefined;
+  } catch {
+    return charset;
+  }
 }
 
 /** Deepest JSON nesting accepted; the contract's bodies need 4 levels. */
@@ -75,7 +109,7 @@ export type Limits = Pick<Config, 'maxLines' | 'maxPoints'>;
 
 /** The body as the route's JSON, parsed where it is called (in a worker for large bodies). */
 export function decodeBody(raw: Pick<RawBody, 'bytes' | 'contentType' | 'query'>, limits: Limits): unknown {
-  const text = bodyText(raw.bytes);
+  const text = bodyText(raw.bytes, raw.contentType);
   const type = raw.contentType.split(';')[0]?.trim().toLowerCase() ?? '';
   if ((JCAMP_TYPES as readonly string[]).includes(type) || (CSV_TYPES as readonly string[]).includes(type))
     return textBodyToJson(type, text, raw.query, limits);

@@ -1,7 +1,7 @@
 import type { FastifyInstance } from 'fastify';
 import type { Config } from '../config.js';
-import { HttpProblem, sendUnsupportedMediaType } from '../errors.js';
-import { jsonDepth, MAX_JSON_DEPTH, RawBody, tooDeep } from '../raw-body.js';
+import { HttpProblem, problem, sendProblem, sendUnsupportedMediaType } from '../errors.js';
+import { bodyText, jsonDepth, MAX_JSON_DEPTH, RawBody, tooDeep, unreadableCharset } from '../raw-body.js';
 import { NDJSON } from '../rest/batch.js';
 import { CSV_TYPES, JCAMP_TYPES, textBodyToJson } from '../text-bodies.js';
 
@@ -23,6 +23,14 @@ function forbiddenPropertyOr(err: Error, body: string): Error {
     'Forbidden property',
     'the body is valid JSON but holds a "__proto__" or "constructor.prototype" key, which is refused',
   );
+}
+
+/** Every Content-Type header value as sent, in order (a request normally has one or none). */
+function contentTypesSent(rawHeaders: readonly string[]): string[] {
+  const types: string[] = [];
+  for (let i = 0; i + 1 < rawHeaders.length; i += 2)
+    if ((rawHeaders[i] as string).toLowerCase() === 'content-type') types.push((rawHeaders[i + 1] as string).trim());
+  return types;
 }
 
 /**
@@ -50,27 +58,43 @@ export function parseBodies(app: FastifyInstance, config: Config): void {
       request,
     );
   });
-  // Bodies are read as UTF-8. One declared in UTF-16 or UTF-32 (a Windows "Unicode" export) was read as UTF-8
-  // anyway: JSON answered 400 "Body is not valid JSON", a CSV 422 "the CSV header names no position column", a
-  // JCAMP-DX file "does not start with ##TITLE=": none said what to change. Now a 415 names the charset.
+  // Bodies are read in the charset they declare, UTF-8 when none. One declared in UTF-16 or UTF-32 (a Windows
+  // "Unicode" export) was read as UTF-8 anyway: JSON answered 400 "Body is not valid JSON", a CSV 422 "the CSV header
+  // names no position column", a JCAMP-DX file "does not start with ##TITLE=": none said what to change. Those, and
+  // labels no decoder knows, are a 415 naming the charset, before the body is read.
   app.addHook('onRequest', async (request, reply) => {
-    const charset = /;\s*charset\s*=\s*"?([^";\s]+)/i.exec(String(request.headers['content-type'] ?? ''))?.[1];
-    if (charset === undefined || !/^(utf-?(16|32)(le|be)?|ucs-?2|unicode)$/i.test(charset)) return;
+    const types = contentTypesSent(request.raw.rawHeaders);
+    // Node keeps the first of two Content-Type headers: a JSON body sent with "text/csv" before "application/json"
+    // was read as CSV ("the CSV holds no rows"). Two different types are a 400 naming both.
+    if (types.length > 1 && types.some((t) => t !== types[0]))
+      return sendProblem(
+        reply,
+        problem(
+          'BAD_REQUEST',
+          400,
+          'Bad request',
+          `Content-Type is sent ${types.length} times (${types.map((t) => `"${t.slice(0, 60)}"`).join(', ')}): send one`,
+          request,
+        ),
+      );
+    const type = String(request.headers['content-type'] ?? '');
+    const charset = unreadableCharset(type, type.split(';')[0]?.trim().toLowerCase() === NDJSON);
+    if (charset === undefined) return;
     return sendUnsupportedMediaType(
       reply,
-      `charset=${charset.slice(0, 20)} is not read: bodies are read as UTF-8 (JSON must be, RFC 8259 §8.1); send the body in UTF-8`,
+      `charset=${charset.slice(0, 20)} is not read: send the body in UTF-8 (JSON must be, RFC 8259 §8.1; CSV and JCAMP-DX may also be ISO-8859-1 or windows-1252)`,
       request,
     );
   });
   const defaultJson = app.getDefaultJsonParser('error', 'error');
   // Large bodies of the work routes go to a worker unparsed, as bytes (services/raw-body.ts); the others are decoded
-  // here exactly as fastify decodes a body it reads as a string (UTF-8, invalid bytes as U+FFFD).
+  // here by bodyText, as the worker decodes them: the declared charset, else UTF-8 as fastify reads a body itself.
   const offload = (req: { url: string }, body: Buffer) =>
     config.workers > 0 && config.offloadBytes > 0 && body.length >= config.offloadBytes && req.url.includes('/v1/');
   app.addContentTypeParser('application/json', { parseAs: 'buffer' }, (req, bytes, done) => {
     if (offload(req, bytes as Buffer))
       return done(null, new RawBody(bytes as Buffer, 'application/json', req.query as Record<string, unknown>));
-    const body = (bytes as Buffer).toString('utf8');
+    const body = bodyText(bytes as Buffer, String(req.headers['content-type'] ?? ''));
     defaultJson(req, body, (err: Error | null, parsed?: unknown) => {
       if (err) return done(forbiddenPropertyOr(err, body), undefined);
       try {
@@ -92,7 +116,7 @@ export function parseBodies(app: FastifyInstance, config: Config): void {
         null,
         textBodyToJson(
           String(req.headers['content-type'] ?? ''),
-          (bytes as Buffer).toString('utf8'),
+          bodyText(bytes as Buffer, String(req.headers['content-type'] ?? '')),
           req.query as Record<string, unknown>,
           config,
         ),
