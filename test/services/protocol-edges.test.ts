@@ -1,8 +1,6 @@
-import type { AddressInfo } from 'node:net';
 import { connect } from 'node:net';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { buildApp } from '../../services/app.js';
-import { DEFAULT_CONFIG } from '../../services/config.js';
+import { describe, expect, it } from 'vitest';
+import { useListeningApp } from '../helpers/app.js';
 
 /**
  * Requests Node's HTTP server used to answer by itself, with no problem body: CONNECT (the connection closed with no
@@ -10,20 +8,12 @@ import { DEFAULT_CONFIG } from '../../services/config.js';
  * §3.2 (Host required in HTTP/1.1), RFC 9110 §10.1.1 (Expect, 417), §9.3.6 (CONNECT). Raw sockets, since inject and
  * HTTP clients cannot send these; the app with the defaults of `npm start`.
  */
-const app = await buildApp({ config: DEFAULT_CONFIG });
-let port = 0;
-beforeAll(async () => {
-  await app.listen({ host: '127.0.0.1', port: 0 });
-  port = (app.server.address() as AddressInfo).port;
-});
-afterAll(async () => {
-  await app.close();
-});
+const { app, port } = useListeningApp();
 
 /** Everything the server sends on one connection until it closes it (or 5 s pass). */
 function exchange(text: string): Promise<string> {
   return new Promise((resolve) => {
-    const socket = connect(port, '127.0.0.1');
+    const socket = connect(port(), '127.0.0.1');
     let out = '';
     socket.setEncoding('latin1');
     socket.on('data', (d: string) => {
@@ -114,7 +104,7 @@ describe('answers Node used to give on its own are problems', () => {
   });
 
   it('the problem pages describe the new type', async () => {
-    const r = await app.inject({ method: 'GET', url: '/problems/expectation-failed' });
+    const r = await app().inject({ method: 'GET', url: '/problems/expectation-failed' });
     expect(r.statusCode).toBe(200);
     expect(r.body).toMatch(/Expect/);
   });

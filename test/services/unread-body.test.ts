@@ -1,23 +1,14 @@
 import { Agent, request } from 'node:http';
-import type { AddressInfo } from 'node:net';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { buildApp } from '../../services/app.js';
+import { describe, expect, it } from 'vitest';
 import { DEFAULT_CONFIG } from '../../services/config.js';
+import { useListeningApp } from '../helpers/app.js';
 
 /**
  * A body the service answers without reading (a content type no route takes) must not leave its connection
  * stuck: a client that keeps the connection alive, as Node's and most HTTP clients do, sends its next request on
  * it. Real sockets (inject has none); the defaults of `npm start`.
  */
-const app = await buildApp({ config: DEFAULT_CONFIG });
-let port = 0;
-beforeAll(async () => {
-  await app.listen({ host: '127.0.0.1', port: 0 });
-  port = (app.server.address() as AddressInfo).port;
-});
-afterAll(async () => {
-  await app.close();
-});
+const { port } = useListeningApp();
 
 interface Answer {
   status: number;
@@ -29,7 +20,7 @@ interface Answer {
 function send(agent: Agent, method: string, path: string, body?: Buffer, type?: string): Promise<Answer> {
   return new Promise((resolve, reject) => {
     const headers = body ? { 'content-type': type ?? 'application/json', 'content-length': body.length } : {};
-    const r = request({ host: '127.0.0.1', port, method, path, agent, headers }, (res) => {
+    const r = request({ host: '127.0.0.1', port: port(), method, path, agent, headers }, (res) => {
       const chunks: Buffer[] = [];
       res.on('data', (c: Buffer) => chunks.push(c));
       res.on('end', () =>
