@@ -16,7 +16,7 @@ import type { Isotopologue } from '../species/parse.js';
 import type { MassValue } from '../species/reduced-mass.js';
 import { median as robustMedian, robustSigma } from '../stats/robust.js';
 import { type CandidateLine, type CandidateOptions, candidateLines } from './candidates.js';
-import { type Competition, lowerBound, matchLines, type ObservedPeak, type Prediction } from './match.js';
+import { type Competition, lowerBound, matchLines, type ObservedPeak, type Prediction, toleranceFor } from './match.js';
 import { estimateOffset, median } from './offset.js';
 
 /**
@@ -176,6 +176,7 @@ export function assignAndFit(
     state.swept = false;
     iterateAssignment(ctx, offsets, state);
   }
+  withholdAmbiguous(ctx, offsets, state);
   noteCompetitions(ctx, state);
   return finishAssignment(ctx, state.auto, offsets);
 }
@@ -779,13 +780,16 @@ export function fittedPrediction(
   const model = Math.hypot(K_FITTED * Math.sqrt(fitted.variance), second) + 1e-6;
   // A tolerance wider than a quarter of the line spacing tells nothing.
   if (model > 0.25 * (spacing ?? Number.POSITIVE_INFINITY)) return undefined;
+  const coincidence = COINCIDENCE_FRACTION * (spacing ?? 0);
   return {
     position: fitted.value + st.shift,
-    tolerance: Math.max(Math.hypot(model, K_FITTED * st.scatter), COINCIDENCE_FRACTION * (spacing ?? 0)),
-    // No coincidence floor for lines with σ (tried): real CO 3-0 R(34) and R(40), 8 and 13.7 times their stated σ of
-    // 1e-5 from the band's fit, would carry their labels, but in the fit they move the pooled scale of the stated σ
-    // (0.39 → 0.42, src/fit/stated-scale.ts) and seven 2-0 and 3-0 lines near 4σ are rejected (491 → 484 fitted).
-    withSigma: { model, perSigma: K_FITTED * st.sigmaFactor },
+    tolerance: Math.max(Math.hypot(model, K_FITTED * st.scatter), coincidence),
+    // The same floor for lines with σ: a database's stated σ is a lower bound. Real CO 3-0 R(34) and R(40) by the
+    // band head lie 8e-5 and 1.3e-4 cm⁻¹ (8 and 13 times their stated σ) from the band's fit, under the floor of
+    // 8.3e-4 (the band's median spacing is 8.3 cm⁻¹), their nearest other predictions 0.027 and 0.31 cm⁻¹ away; they
+    // were left unassigned. The fit rejects them, as it does when the published labels are sent (484 of 494 fitted
+    // either way; withholdAmbiguous guards pairs that sit closer).
+    withSigma: { model: Math.max(model, coincidence), perSigma: K_FITTED * st.sigmaFactor },
   };
 }
 
@@ -917,6 +921,123 @@ export function noteCompetitions(ctx: AssignContext, state: LoopState): void {
         `competed with line ${c.winner} for ${transitionLabel(winner)}; residual and intensity decided for line ${c.winner}`,
       );
   }
+}
+
+/**
+ * Least margin, in χ² (−2 ln of the likelihood ratio), by which a line's label must beat every other label the
+ * settled model admits for it: 16, a 4σ step, as the fit's rejection threshold (a pair of predictions 4σ apart or
+ * closer cannot tell its lines apart; a line taken by the wrong one of a pair stays only past 4σ of its own).
+ */
+const AMBIGUITY_MARGIN = 16;
+
+/**
+ * Lines that two fitted predictions explain about equally well are withheld: near a band head R(J) and R(J′) close
+ * in on one another (CO 3-0 R(0) and R(68) 0.007 cm⁻¹ apart, 2-0 R(50) and R(51) 0.011, R(28) and R(73) 0.017), a
+ * pair may sit within the lines' noise, and where one of the pair is missing the other's prediction may take its
+ * line. The settled model predicts every candidate of its fitted bands up to each band's highest J″ assigned, as a
+ * round would (beyond it the model extrapolates to lines the list need not hold: a line the matcher took for a sharp
+ * low-J prediction is not given up for them). A line whose label beats another admissible prediction of its source
+ * (free, or held by a line of the source that would take this label in exchange) by less than AMBIGUITY_MARGIN is
+ * left unassigned, with a note naming both labels; so is the other line of an exchange. Reference predictions of
+ * bands not fitted are not judged here. Returns how many lines were withheld.
+ */
+export function withholdAmbiguous(ctx: AssignContext, offsets: OffsetVotes, state: LoopState): number {
+  const fit = state.detailed;
+  if (!fit || state.auto.size === 0) return 0;
+  const model = roundModel(ctx, state);
+  const holder = new Map<number, number>();
+  for (const [i, c] of state.auto) holder.set(ctx.candIndex.get(c) as number, i);
+  const withheld = new Map<number, string>();
+  const free = new Map(ctx.free.map((p) => [p.index, p]));
+  const peakOf = (i: number) => free.get(i) as ObservedPeak;
+  ctx.sources.forEach((name, n) => {
+    const src: SourceRef = { name, n, bands: [] };
+    const preds = new Map<number, Prediction>();
+    ctx.bandCands.forEach((list, b) => {
+      const r = model.reach[b] as number;
+      if (r < 0) return;
+      for (const ci of list) {
+        if ((ctx.cands[ci] as CandidateLine).j > r) break;
+        const p = predictionOf(ctx, offsets, model, ci, src);
+        if (p && (p.tier ?? 0) === 0) preds.set(ci, p);
+      }
+    });
+    const sorted = [...preds].sort((a, b) => a[1].position - b[1].position);
+    const at = copyFloats(sorted.map(([, p]) => p.position));
+    // The widest tolerance any prediction has for a line of the source bounds the search around each line.
+    const span = widestTolerance(
+      sorted.map(([, p]) => p),
+      (ctx.freeBySource.get(name) ?? []).reduce((m, p) => Math.max(m, p.sigma ?? 0), 0),
+    );
+    for (const [i, c] of state.auto) {
+      if (sourceNumber(ctx, i) !== n) continue;
+      const ci = ctx.candIndex.get(c) as number;
+      const own = preds.get(ci);
+      if (!own) continue;
+      const pk = peakOf(i);
+      const mine = labelChiSquare(own, pk);
+      if (mine === undefined) continue;
+      for (let k = lowerBound(at, pk.position - span); k < sorted.length; k++) {
+        const [cj, q] = sorted[k] as [number, Prediction];
+        if (q.position > pk.position + span) break;
+        if (cj === ci) continue;
+        const other = labelChiSquare(q, pk);
+        if (other === undefined) continue;
+        const h = holder.get(cj);
+        let margin = other - mine;
+        if (h !== undefined) {
+          if (sourceNumber(ctx, h) !== n) continue;
+          // Held by another line: the exchange must be admissible for that line too.
+          const hp = peakOf(h);
+          const theirs = labelChiSquare(q, hp);
+          const swapped = labelChiSquare(own, hp);
+          if (theirs === undefined || swapped === undefined) continue;
+          margin += swapped - theirs;
+        }
+        if (margin >= AMBIGUITY_MARGIN) continue;
+        const why = `left unassigned: ${transitionLabel(c)} and ${transitionLabel(ctx.cands[cj] as CandidateLine)} are predicted ${Math.abs(q.position - own.position).toPrecision(2)} cm-1 apart, and this line fits either within its uncertainty (χ² differs by ${margin.toFixed(1)}, less than ${AMBIGUITY_MARGIN})`;
+        withheld.set(i, why);
+        if (h !== undefined) withheld.set(h, why);
+      }
+    }
+  });
+  for (const [i, why] of withheld) {
+    state.auto.delete(i);
+    ctx.notes.set(i, why);
+  }
+  return withheld.size;
+}
+
+/** The widest tolerance any of the predictions has for a line whose σ is at most `maxSigma` (as the matcher bounds it). */
+export function widestTolerance(predictions: readonly Prediction[], maxSigma: number): number {
+  let w = 0;
+  for (const p of predictions) {
+    const t = p.withSigma
+      ? Math.max(p.tolerance, Math.hypot(p.withSigma.model, p.withSigma.perSigma * maxSigma))
+      : p.tolerance;
+    if (t > w) w = t;
+  }
+  return w;
+}
+
+/**
+ * −2 ln of the likelihood of a line under a label, up to a constant: (Δ/s)² + 2 ln s with s the prediction's
+ * standard deviation (its tolerance / K_FITTED), plus, when both intensities are known, the matcher's intensity term
+ * on the same scale (0.5 (ln ratio)² against (Δ/tol)² there, so K_FITTED²/2 (ln ratio)² against (Δ/s)²: a ln-intensity
+ * scatter of 0.28); undefined where the matcher would not admit the pair (beyond the tolerance or the intensity limit).
+ */
+export function labelChiSquare(pr: Prediction, pk: ObservedPeak): number | undefined {
+  const s = toleranceFor(pr, pk) / K_FITTED;
+  const z = (pk.position - pr.position) / s;
+  if (Math.abs(z) > K_FITTED) return undefined;
+  let chi = z * z + 2 * Math.log(s);
+  if (pr.intensity !== undefined && pk.intensity !== undefined && pr.intensity > 0) {
+    if (!(pk.intensity > 0)) return undefined;
+    const lr = Math.log(pk.intensity / pr.intensity);
+    if (Math.abs(lr) > Math.log(pr.intensityRatioLimit ?? 8)) return undefined;
+    chi += 0.5 * K_FITTED * K_FITTED * lr * lr;
+  }
+  return chi;
 }
 
 /** Whether a line the fit rejected lies within the tolerance a correct model of its band leaves. */

@@ -280,7 +280,7 @@ describe('fitted predictions (a band the fit has reached)', () => {
     ).toBeDefined();
   });
 
-  it('a tolerance above a quarter of the line spacing tells nothing; a perfect model keeps a floor of 1e-4 spacing', () => {
+  it('a tolerance above a quarter of the line spacing tells nothing; a perfect model keeps a floor of 1e-4 spacing, for lines with σ too', () => {
     const ctx = fundamental();
     const spacing = ctx.spacing.get(BK) as number;
     const r5 = ref(ctx, 1, 0, 'R', 5);
@@ -292,7 +292,12 @@ describe('fitted predictions (a band the fit has reached)', () => {
     expect(withSd((0.25 * spacing - 1e-6) / 5 + 1e-9)).toBeUndefined();
     const perfect = withSd(0);
     expect(perfect?.tolerance).toBeCloseTo(1e-4 * spacing, 15);
-    expect(perfect?.withSigma?.model).toBe(1e-6);
+    // Lines with σ keep the same floor (a database's stated σ is a lower bound): 1e-4 spacing, not the model's 1e-6.
+    expect(perfect?.withSigma?.model).toBeCloseTo(1e-4 * spacing, 15);
+    expect(perfect?.withSigma?.model).toBeGreaterThan(1e-6);
+    // A model wider than the floor keeps its own width.
+    const wide = withSd(1e-4);
+    expect(wide?.withSigma?.model).toBeCloseTo(5 * 1e-4 + 1e-6, 12);
   });
 });
 
