@@ -72,31 +72,56 @@ export const MAX_JSON_DEPTH = 32;
 /**
  * The nesting depth of a parsed JSON value, iteratively; stops counting past the limit. Keys that could poison a
  * prototype when the value is merged later ("__proto__", "constructor") are refused, as fastify's parser does.
+ * Values and depths go on two stacks kept between calls: a pair per value cost 47 kB of garbage a 60-line fit request
+ * (measured with V8's sampling heap profiler).
  */
 export function jsonDepth(value: unknown): number {
+  if (value === null || typeof value !== 'object') return 0;
+  const values = depthStack.values;
+  const depths = depthStack.depths;
+  let top = 0;
+  values[0] = value;
+  depths[0] = 1;
   let max = 0;
-  const stack: [unknown, number][] = [[value, 1]];
-  while (stack.length > 0) {
-    const [v, d] = stack.pop() as [unknown, number];
-    if (v === null || typeof v !== 'object') continue;
-    if (d > max) max = d;
-    if (max > MAX_JSON_DEPTH) return max;
-    // Numbers and strings add no depth: only objects and arrays are stacked (a 10⁶-point spectrum is two arrays).
-    if (Array.isArray(v)) {
-      // Indexed: for…of over the 10⁶ numbers of a spectrum took about five times as long.
-      for (let i = 0, n = v.length; i < n; i++) {
-        const x: unknown = v[i];
-        if (x !== null && typeof x === 'object') stack.push([x, d + 1]);
-      }
-    } else
-      for (const [k, x] of Object.entries(v as object)) {
-        if (k === '__proto__' || k === 'constructor')
-          throw Object.assign(new Error(`Object contains forbidden prototype property "${k}"`), { statusCode: 400 });
-        stack.push([x, d + 1]);
-      }
+  try {
+    while (top >= 0) {
+      const v = values[top] as object;
+      const d = depths[top] as number;
+      top--;
+      if (d > max) max = d;
+      if (max > MAX_JSON_DEPTH) return max;
+      // Numbers and strings add no depth: only objects and arrays are stacked (a 10⁶-point spectrum is two arrays).
+      if (Array.isArray(v)) {
+        // Indexed: for…of over the 10⁶ numbers of a spectrum took about five times as long.
+        for (let i = 0, n = v.length; i < n; i++) {
+          const x: unknown = v[i];
+          if (x !== null && typeof x === 'object') {
+            values[++top] = x;
+            depths[top] = d + 1;
+          }
+        }
+      } else
+        for (const k in v) {
+          if (!Object.hasOwn(v, k)) continue;
+          if (k === '__proto__' || k === 'constructor')
+            throw Object.assign(new Error(`Object contains forbidden prototype property "${k}"`), { statusCode: 400 });
+          const x: unknown = (v as Record<string, unknown>)[k];
+          if (x !== null && typeof x === 'object') {
+            values[++top] = x;
+            depths[top] = d + 1;
+          }
+        }
+    }
+    return max;
+  } finally {
+    // Emptied, so that no request's data stays reachable; a stack grown past a few thousand entries is dropped.
+    if (values.length > 4096) values.length = depths.length = 0;
+    else values.fill(undefined);
   }
-  return max;
 }
+
+/** jsonDepth's stacks (the service is single-threaded per isolate and jsonDepth does not re-enter). */
+const depthStack = { values: [] as unknown[], depths: [] as number[] };
 
 export function tooDeep(): Error {
   return Object.assign(new Error(`JSON nested deeper than ${MAX_JSON_DEPTH} levels`), { statusCode: 400 });

@@ -31,17 +31,28 @@ export function assertFinite<T>(value: T): T {
   return value;
 }
 
+/** Whether every number in `value` is finite: numbers are tested where they are met, only objects are stacked. */
 function allFinite(value: unknown): boolean {
+  if (typeof value === 'number') return Number.isFinite(value);
   const stack: unknown[] = [value];
   while (stack.length > 0) {
     const v = stack.pop();
-    if (typeof v === 'number') {
-      if (!Number.isFinite(v)) return false;
-    } else if (Array.isArray(v)) {
-      for (let i = v.length - 1; i >= 0; i--) stack.push(v[i]);
-    } else if (v !== null && typeof v === 'object') {
-      for (const k in v) if (Object.hasOwn(v, k)) stack.push((v as Record<string, unknown>)[k]);
-    }
+    if (v === null || typeof v !== 'object') continue;
+    if (Array.isArray(v)) {
+      for (let i = v.length - 1; i >= 0; i--) {
+        const x: unknown = v[i];
+        if (typeof x === 'number') {
+          if (!Number.isFinite(x)) return false;
+        } else if (x !== null && typeof x === 'object') stack.push(x);
+      }
+    } else
+      for (const k in v) {
+        if (!Object.hasOwn(v, k)) continue;
+        const x: unknown = (v as Record<string, unknown>)[k];
+        if (typeof x === 'number') {
+          if (!Number.isFinite(x)) return false;
+        } else if (x !== null && typeof x === 'object') stack.push(x);
+      }
   }
   return true;
 }
