@@ -147,6 +147,43 @@ describe('the built server (node dist/services/server.js, as npm start)', () => 
     expect(log.toLowerCase()).not.toMatch(/"authorization"/);
   });
 
+  // Regression: small fits run on the event loop, and a burst of them arriving together ran back to back, /healthz
+  // waiting behind all of them (64 concurrent 116-line fits from one client: /healthz unanswered for 9.8 s, measured
+  // from outside at load ~13). They now take turns with the loop. Order, not time, is checked: /healthz, sent while
+  // the burst runs, is answered before most of the fits; and one client's burst gets no 503.
+  it('a burst of small fits from one client: all 200, and /healthz sent meanwhile is answered before most of them', async () => {
+    const { lines } = independentLines({
+      molecule: CO_12_16,
+      bands: [{ upper: 1, lower: 0, jMax: 30 }],
+      sigma: 0.002,
+      seed: 7,
+    });
+    const body = JSON.stringify({ species: 'CO', lines: lines.map((l) => ({ position: l.position })) });
+    const n = 24;
+    const order: string[] = [];
+    const fits = Array.from({ length: n }, () =>
+      fetch(`${server.base}/v1/fits`, {
+        method: 'POST',
+        headers: { 'content-type': 'application/json', authorization: `Bearer ${KEY}` },
+        body,
+      }).then(async (r) => {
+        await r.arrayBuffer();
+        order.push('fit');
+        return r.status;
+      }),
+    );
+    await new Promise((r) => setTimeout(r, 150));
+    const health = fetch(`${server.base}/healthz`).then(async (r) => {
+      await r.text();
+      order.push('healthz');
+      return r.status;
+    });
+    const statuses = await Promise.all(fits);
+    expect(await health).toBe(200);
+    expect(statuses).toEqual(Array.from({ length: n }, () => 200));
+    expect(order.indexOf('healthz'), order.join(' ')).toBeLessThan(n / 2);
+  }, 120_000);
+
   it('shuts down on SIGTERM: says so in the log and exits with status 0', async () => {
     server.child.kill('SIGTERM');
     const code = await Promise.race([server.exit, new Promise((r) => setTimeout(() => r('timeout'), 20_000))]);
