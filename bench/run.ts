@@ -10,19 +10,36 @@
  */
 import { execFileSync } from 'node:child_process';
 import { mkdirSync, writeFileSync } from 'node:fs';
-import { analyseLineList } from '../src/assign/analyse.js';
-import { fitLineList, type LineInput } from '../src/fit/fit-lines.js';
-import { solveCount, solveLeastSquares } from '../src/linalg/least-squares.js';
+import type * as Analyse from '../src/assign/analyse.js';
+import type * as FitLines from '../src/fit/fit-lines.js';
+import type { LineInput } from '../src/fit/fit-lines.js';
+import type * as LeastSquares from '../src/linalg/least-squares.js';
 import { levelModel, levelParameters, levelStructure } from '../src/models/level-model.js';
 import { buildDesign, type Observation } from '../src/models/linear-model.js';
 import { predictBand } from '../src/models/predict.js';
 import { constantsFor, dunhamFromEntry } from '../src/species/library.js';
 import { parseSpecies } from '../src/species/parse.js';
 import { reducedMass } from '../src/species/reduced-mass.js';
-import { findPeaks } from '../src/spectra/peaks.js';
+import type * as Peaks from '../src/spectra/peaks.js';
 import { hotCoScan } from './hot-co-scan.js';
 import { largeSpectrum } from './large-spectrum.js';
 import { load, type Ratio, recordRatios } from './summary.js';
+
+/**
+ * The timed code as `npm start` runs it: the built dist/ (tsc's output, rebuilt first when a source changed), not the
+ * TypeScript sources through tsx, which compiles them with esbuild's keepNames: every closure a call creates is named
+ * by a defineProperty call. Measured 2026-12-04, same machine, one after the other: a steady 50-line fitLineList
+ * 384 µs through tsx against 248 µs from dist/ (esbuild's own bundle: 245 µs), the 3-band 500-row kernel solve 142
+ * against 118 µs. The data generators below stay on the sources (they are not timed).
+ */
+async function built<T>(module: string): Promise<T> {
+  return (await import(new URL(`../dist/src/${module}.js`, import.meta.url).href)) as T;
+}
+execFileSync(process.execPath, ['scripts/build.mjs', '--if-stale'], { stdio: 'ignore' });
+const { analyseLineList } = await built<typeof Analyse>('assign/analyse');
+const { fitLineList } = await built<typeof FitLines>('fit/fit-lines');
+const { solveCount, solveLeastSquares } = await built<typeof LeastSquares>('linalg/least-squares');
+const { findPeaks } = await built<typeof Peaks>('spectra/peaks');
 
 const iso = parseSpecies('CO');
 const y = dunhamFromEntry(constantsFor(iso) ?? (undefined as never));
