@@ -633,12 +633,52 @@ export function predictionOf(
   const r = reach ?? (fitted ? START_J : undefined);
   const placed =
     (fitted && r !== undefined && model.residuals
-      ? fittedPrediction(ctx, offsets, model.residuals, cand, fitted, r, src, view)
+      ? fittedPrediction(
+          ctx,
+          offsets,
+          model.residuals,
+          cand,
+          fitted,
+          r,
+          src,
+          view,
+          model.detailed && c.j > r ? disagreementAt(ctx, model.detailed, band, c, r) : undefined,
+        )
       : referencePrediction(ctx, offsets, cand, r, src.name, view)) ??
     // Beyond a gap the fitted model may have run out while the reference still places the line well.
     (ctx.wide && fitted ? referencePrediction(ctx, offsets, cand, undefined, src.name, view) : undefined);
   if (!placed) return undefined;
   return keyedPrediction(ci, placed, view.scale !== undefined ? view.scale * c.intensity : undefined, view.borrowed);
+}
+
+/**
+ * The fit's position minus the reference one for the line of `c`'s band and branch at J″ = j (undefined when the
+ * band has no such candidate or the fit does not predict it): how far the reference is off where the band has lines.
+ */
+export function disagreementAt(
+  ctx: AssignContext,
+  fit: DetailedFit,
+  band: number,
+  c: CandidateLine,
+  j: number,
+): number | undefined {
+  const list = ctx.bandCands[band] as Int32Array;
+  let lo = 0;
+  let hi = list.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if ((ctx.cands[list[mid] as number] as CandidateLine).j < j) lo = mid + 1;
+    else hi = mid;
+  }
+  for (let k = lo; k < list.length; k++) {
+    const ci = list[k] as number;
+    const x = ctx.cands[ci] as CandidateLine;
+    if (x.j !== j) break;
+    if (x.branch !== c.branch) continue;
+    const p = fittedPosition(ctx, fit, ci);
+    return p ? p.value - x.position : undefined;
+  }
+  return undefined;
 }
 
 /** Where a band's lines are placed within one source: its offset there and its line spacing (undefined: none). */
@@ -763,6 +803,7 @@ export function fittedPrediction(
   r: number,
   { name: src, n: srcNumber }: SourceRef,
   { offset, spacing }: BandPlacement = { offset: offsets.of(bk, src), spacing: ctx.spacing.get(bk) },
+  atReach?: number,
 ): Placement | undefined {
   if (!ctx.wide && outOfReach(c.j, r)) return undefined;
   const st = residuals.of(band, srcNumber);
@@ -775,8 +816,15 @@ export function fittedPrediction(
   const limit = ctx.wide ? WIDE_MODEL_TO_NOISE : MAX_MODEL_TO_NOISE;
   if (c.j > r + GROWTH_J && noise > 0 && Math.sqrt(fitted.variance) > limit * noise) return undefined;
   // The fitted model's variance ignores the terms it could not yet determine: where it extrapolates, the
-  // reference prediction (with its offset) is a second opinion, and the tolerance spans the two.
-  const second = c.j > r ? Math.abs(fitted.value + st.shift - (c.position + offset.offset)) : 0;
+  // reference prediction (with its offset) is a second opinion, and the tolerance spans the two. Where the reference
+  // is already off at the reach (`atReach`: fit − reference in the same branch there; a library without γ_e puts
+  // H35Cl 2-0 R(19) 7.3 cm⁻¹ off, and the band stopped growing), only the change of that disagreement counts, when
+  // smaller: a reference off by a smooth amount still says where the extrapolation bends.
+  const apart = fitted.value + st.shift - (c.position + offset.offset);
+  const second =
+    c.j > r
+      ? Math.min(Math.abs(apart), atReach !== undefined ? Math.abs(fitted.value - c.position - atReach) : Infinity)
+      : 0;
   const model = Math.hypot(K_FITTED * Math.sqrt(fitted.variance), second) + 1e-6;
   // A tolerance wider than a quarter of the line spacing tells nothing.
   if (model > 0.25 * (spacing ?? Number.POSITIVE_INFINITY)) return undefined;
