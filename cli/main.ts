@@ -7,10 +7,12 @@ import { DEFAULT_CONFIG } from '../services/config.js';
 import { type Cell, resultRows, type TableName, toCsv } from '../services/formats/csv-tables.js';
 import { roundedDisplay } from '../services/formats/round.js';
 import { SOFTWARE } from '../services/provenance.js';
+import { nonFiniteLiteral } from '../services/raw-body.js';
 import { checkRequestSchema, TolerancesSchema } from '../services/schemas/checks.js';
 import { fitRequestSchema } from '../services/schemas/fit.js';
 import { PeaksRequestSchema } from '../services/schemas/peaks.js';
 import { PredictionRequestSchema } from '../services/schemas/predictions.js';
+import { queryTemperature, TEMPERATURE_MESSAGE } from '../services/schemas/query.js';
 import { CSV_TYPES, JCAMP_TYPES, textBodyToJson } from '../services/text-bodies.js';
 import { runCheck } from '../services/usecases/check.js';
 import { runFit } from '../services/usecases/fit.js';
@@ -122,6 +124,8 @@ function bodyOf(path: string, extra: Record<string, unknown>): Record<string, un
     try {
       body = JSON.parse(text) as Record<string, unknown>;
     } catch (e) {
+      const literal = nonFiniteLiteral(text);
+      if (literal) throw new FileError(path, 'VALIDATION_FAILED', literal.message);
       throw new FileError(path, 'INVALID_JSON', `not valid JSON (${(e as Error).message})`);
     }
     if (extra.species !== undefined) body.species = extra.species;
@@ -233,6 +237,12 @@ export function main(argv: readonly string[], io: Io): number {
   };
   if (v.table !== undefined && !(tables[command] ?? []).includes(v.table as TableName)) {
     io.err(`--table ${String(v.table)} is not one of ${(tables[command] ?? ['(none for this command)']).join(', ')}\n`);
+    return EXIT.usage;
+  }
+  // The rule of ?temperature= (services/schemas/query.ts): a CSV file's temperature that broke it was a 422-like
+  // input error, a JSON file's was never read, predict's went to the body's range check.
+  if (typeof v.temperature === 'string' && queryTemperature(v.temperature) === undefined) {
+    io.err(`--temperature ${v.temperature}: ${TEMPERATURE_MESSAGE}\n`);
     return EXIT.usage;
   }
   try {

@@ -821,7 +821,7 @@ export interface components {
       position: number;
       /** @description label of the instrument or file the line came from: lines without an uncertainty get σ from the scatter of their source */
       source?: string;
-      /** @description standard uncertainty in the request unit */
+      /** @description standard uncertainty in the request unit; at least 1e-15 of the position (a double resolves the position to about 2e-16 of it) */
       uncertainty?: number;
     };
     LinearLevel: {
@@ -1070,6 +1070,7 @@ export interface components {
       /** @description equilibrium constants in cm-1 (default: the reference library) */
       constants?: {
         covariance?: {
+          /** @description covariance of the named constants, cm-2; its diagonal (the variances) ≥ 0 */
           matrix: number[][];
           names: ("omega_e" | "omega_e_x_e" | "omega_e_y_e" | "omega_e_z_e" | "B_e" | "alpha_e" | "gamma_e" | "D_e" | "beta_e" | "H_e")[];
         };
@@ -1242,6 +1243,7 @@ export interface components {
       /** @description equilibrium constants in cm-1 (default: the reference library) */
       constants?: {
         covariance?: {
+          /** @description covariance of the named constants, cm-2; its diagonal (the variances) ≥ 0 */
           matrix: number[][];
           names: ("omega_e" | "omega_e_x_e" | "omega_e_y_e" | "omega_e_z_e" | "B_e" | "alpha_e" | "gamma_e" | "D_e" | "beta_e" | "H_e")[];
         };
@@ -1811,7 +1813,7 @@ export interface operations {
          */
         species?: string;
         /**
-         * @description gas temperature in K, for JCAMP-DX and CSV bodies
+         * @description gas temperature in K from 10 to 6000 (a decimal number), for JCAMP-DX and CSV bodies
          * @example 296
          */
         temperature?: string;
@@ -1899,7 +1901,7 @@ export interface operations {
           "text/csv": string;
         };
       };
-      /** @description malformed request: invalid JSON, schema violations (with paths), forbidden properties */
+      /** @description malformed request: invalid JSON, forbidden properties, nesting beyond 32 levels; schema violations (VALIDATION_FAILED, `errors` name each field): any number that is not finite (NaN, ±Infinity, 1e400), a string, null or empty where a number is due, outside its stated range, subnormal, or an uncertainty below 1e-15 of its position */
       400: {
         content: {
           "application/problem+json": components["schemas"]["Problem"];
@@ -1919,7 +1921,7 @@ export interface operations {
           "application/problem+json": components["schemas"]["Problem"];
         };
       };
-      /** @description well formed, but refused by the science (impossible assignment, too few lines, rank deficiency …) */
+      /** @description every value in range, but refused by the science (impossible assignment, too few lines, rank deficiency, constants that give no potential, a result that overflows …) */
       422: {
         content: {
           "application/problem+json": components["schemas"]["Problem"];
@@ -1942,7 +1944,7 @@ export interface operations {
          */
         species?: string;
         /**
-         * @description gas temperature in K, for JCAMP-DX and CSV bodies
+         * @description gas temperature in K from 10 to 6000 (a decimal number), for JCAMP-DX and CSV bodies
          * @example 296
          */
         temperature?: string;
@@ -2030,7 +2032,7 @@ export interface operations {
           "text/csv": string;
         };
       };
-      /** @description malformed request: invalid JSON, schema violations (with paths), forbidden properties */
+      /** @description malformed request: invalid JSON, forbidden properties, nesting beyond 32 levels; schema violations (VALIDATION_FAILED, `errors` name each field): any number that is not finite (NaN, ±Infinity, 1e400), a string, null or empty where a number is due, outside its stated range, subnormal, or an uncertainty below 1e-15 of its position */
       400: {
         content: {
           "application/problem+json": components["schemas"]["Problem"];
@@ -2050,7 +2052,7 @@ export interface operations {
           "application/problem+json": components["schemas"]["Problem"];
         };
       };
-      /** @description well formed, but refused by the science (impossible assignment, too few lines, rank deficiency …) */
+      /** @description every value in range, but refused by the science (impossible assignment, too few lines, rank deficiency, constants that give no potential, a result that overflows …) */
       422: {
         content: {
           "application/problem+json": components["schemas"]["Problem"];
@@ -2065,6 +2067,30 @@ export interface operations {
    * @description Baseline, noise, and pseudo-Voigt line-shape fits (blends fitted together) give each peak position with its standard uncertainty, integrated intensity and width. The body is JSON, a JCAMP-DX file (chemical/x-jcamp-dx) or CSV (text/csv).
    */
   findPeaks: {
+    parameters: {
+      query?: {
+        /**
+         * @description species, for JCAMP-DX and CSV bodies
+         * @example 12C16O
+         */
+        species?: string;
+        /**
+         * @description gas temperature in K from 10 to 6000 (a decimal number), for JCAMP-DX and CSV bodies
+         * @example 296
+         */
+        temperature?: string;
+        /** @description for CSV and JCAMP-DX bodies: the unit of the line positions, or of a spectrum's x (cm-1, um or nm), when the file does not name it (a unit the file names must agree) */
+        unit?: "cm-1" | "1/cm" | "1/CM" | "cm^-1" | "cm⁻¹" | "CM-1" | "wavenumber" | "wavenumbers" | "WAVENUMBERS" | "um" | "µm" | "μm" | "micrometers" | "micrometres" | "microns" | "MICROMETERS" | "nm" | "nanometers" | "nanometres" | "NANOMETERS" | "MHz" | "GHz" | "THz";
+        /** @description sample.id, for JCAMP-DX and CSV bodies */
+        "sample.id"?: string;
+        "sample.description"?: string;
+        "sample.instrument"?: string;
+        "sample.operator"?: string;
+        /** @description ISO 8601; checked as in the JSON `sample` */
+        "sample.measuredAt"?: string;
+        "sample.notes"?: string;
+      };
+    };
     requestBody: {
       content: {
         "application/json": components["schemas"]["PeaksRequest"];
@@ -2210,7 +2236,7 @@ export interface operations {
           "application/json": components["schemas"]["PeaksResponse"];
         };
       };
-      /** @description malformed request: invalid JSON, schema violations (with paths), forbidden properties */
+      /** @description malformed request: invalid JSON, forbidden properties, nesting beyond 32 levels; schema violations (VALIDATION_FAILED, `errors` name each field): any number that is not finite (NaN, ±Infinity, 1e400), a string, null or empty where a number is due, outside its stated range, subnormal, or an uncertainty below 1e-15 of its position */
       400: {
         content: {
           "application/problem+json": components["schemas"]["Problem"];
@@ -2230,7 +2256,7 @@ export interface operations {
           "application/problem+json": components["schemas"]["Problem"];
         };
       };
-      /** @description well formed, but refused by the science (impossible assignment, too few lines, rank deficiency …) */
+      /** @description every value in range, but refused by the science (impossible assignment, too few lines, rank deficiency, constants that give no potential, a result that overflows …) */
       422: {
         content: {
           "application/problem+json": components["schemas"]["Problem"];
@@ -2257,7 +2283,7 @@ export interface operations {
           "application/json": components["schemas"]["PotentialResponse"];
         };
       };
-      /** @description malformed request: invalid JSON, schema violations (with paths), forbidden properties */
+      /** @description malformed request: invalid JSON, forbidden properties, nesting beyond 32 levels; schema violations (VALIDATION_FAILED, `errors` name each field): any number that is not finite (NaN, ±Infinity, 1e400), a string, null or empty where a number is due, outside its stated range, subnormal, or an uncertainty below 1e-15 of its position */
       400: {
         content: {
           "application/problem+json": components["schemas"]["Problem"];
@@ -2283,7 +2309,7 @@ export interface operations {
           "application/problem+json": components["schemas"]["Problem"];
         };
       };
-      /** @description well formed, but refused by the science (impossible assignment, too few lines, rank deficiency …) */
+      /** @description every value in range, but refused by the science (impossible assignment, too few lines, rank deficiency, constants that give no potential, a result that overflows …) */
       422: {
         content: {
           "application/problem+json": components["schemas"]["Problem"];
@@ -2310,7 +2336,7 @@ export interface operations {
           "application/json": components["schemas"]["PredictionResponse"];
         };
       };
-      /** @description malformed request: invalid JSON, schema violations (with paths), forbidden properties */
+      /** @description malformed request: invalid JSON, forbidden properties, nesting beyond 32 levels; schema violations (VALIDATION_FAILED, `errors` name each field): any number that is not finite (NaN, ±Infinity, 1e400), a string, null or empty where a number is due, outside its stated range, subnormal, or an uncertainty below 1e-15 of its position */
       400: {
         content: {
           "application/problem+json": components["schemas"]["Problem"];
@@ -2331,7 +2357,7 @@ export interface operations {
           "application/problem+json": components["schemas"]["Problem"];
         };
       };
-      /** @description well formed, but refused by the science (impossible assignment, too few lines, rank deficiency …) */
+      /** @description every value in range, but refused by the science (impossible assignment, too few lines, rank deficiency, constants that give no potential, a result that overflows …) */
       422: {
         content: {
           "application/problem+json": components["schemas"]["Problem"];
@@ -2354,7 +2380,7 @@ export interface operations {
          */
         species?: string;
         /**
-         * @description gas temperature in K, for JCAMP-DX and CSV bodies
+         * @description gas temperature in K from 10 to 6000 (a decimal number), for JCAMP-DX and CSV bodies
          * @example 296
          */
         temperature?: string;
@@ -2435,7 +2461,7 @@ export interface operations {
           "text/html": string;
         };
       };
-      /** @description malformed request: invalid JSON, schema violations (with paths), forbidden properties */
+      /** @description malformed request: invalid JSON, forbidden properties, nesting beyond 32 levels; schema violations (VALIDATION_FAILED, `errors` name each field): any number that is not finite (NaN, ±Infinity, 1e400), a string, null or empty where a number is due, outside its stated range, subnormal, or an uncertainty below 1e-15 of its position */
       400: {
         content: {
           "application/problem+json": components["schemas"]["Problem"];
@@ -2455,7 +2481,7 @@ export interface operations {
           "application/problem+json": components["schemas"]["Problem"];
         };
       };
-      /** @description well formed, but refused by the science (impossible assignment, too few lines, rank deficiency …) */
+      /** @description every value in range, but refused by the science (impossible assignment, too few lines, rank deficiency, constants that give no potential, a result that overflows …) */
       422: {
         content: {
           "application/problem+json": components["schemas"]["Problem"];
@@ -2500,7 +2526,7 @@ export interface operations {
       401: components["responses"]["Unauthorized"];
       404: components["responses"]["NotFound"];
       405: components["responses"]["MethodNotAllowed"];
-      /** @description well formed, but refused by the science (impossible assignment, too few lines, rank deficiency …) */
+      /** @description every value in range, but refused by the science (impossible assignment, too few lines, rank deficiency, constants that give no potential, a result that overflows …) */
       422: {
         content: {
           "application/problem+json": components["schemas"]["Problem"];

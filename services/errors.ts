@@ -1,7 +1,7 @@
 import type { FastifyError, FastifyReply, FastifyRequest } from 'fastify';
 import { hasZodFastifySchemaValidationErrors } from 'fastify-type-provider-zod';
 import { ScienceError, type ScienceErrorCode } from '../src/errors.js';
-import { RawBody } from './raw-body.js';
+import { NonFiniteLiteral, RawBody } from './raw-body.js';
 import { acceptedBodiesAdvice, CSV_TYPES, JCAMP_TYPES } from './text-bodies.js';
 import { NonFiniteResult } from './usecases/finite.js';
 
@@ -162,9 +162,37 @@ export function toProblem(error: unknown, request: FastifyRequest): Problem {
   };
 }
 
+/** The 400 of one bad value: what a schema violation gets, naming where the value stands. */
+function badValue(path: string, message: string, instance: string): Problem {
+  return {
+    type: problemType('VALIDATION_FAILED'),
+    title: 'Request does not match the schema',
+    status: 400,
+    detail: `${path}: ${message}`,
+    instance,
+    code: 'VALIDATION_FAILED',
+    errors: [{ path, message }],
+  };
+}
+
 function toProblemUntruncated(error: unknown, request: FastifyRequest): Problem {
   const instance = instanceOf(request);
   if (error instanceof HttpProblem) return { ...error.problem, instance };
+  if (error instanceof NonFiniteLiteral) return badValue(error.field, error.reason, instance);
+  // A CSV cell that is not a number where the column wants one is the same kind of bad value as a JSON field (it
+  // was a 422 where the JSON body's NaN or 1e400 was a 400); the file's structure (field counts, decimal commas)
+  // stays a 422 INPUT_INVALID.
+  if (
+    error instanceof ScienceError &&
+    error.code === 'INPUT_INVALID' &&
+    typeof error.details.column === 'string' &&
+    typeof error.details.line === 'number'
+  )
+    return badValue(
+      `(CSV line ${error.details.line}) ${error.details.column}`,
+      `${error.message}: expected a finite number, e.g. 2143.27`,
+      instance,
+    );
   if (error instanceof ScienceError) return scienceProblem(withUnitAdvice(error, request), instance);
   if (error instanceof NonFiniteResult) return nonFiniteProblem(error, instance);
   if (hasZodFastifySchemaValidationErrors(error)) {

@@ -3,6 +3,7 @@ import { ScienceError, type ScienceErrorCode } from '../src/errors.js';
 import type { Config } from './config.js';
 import { HttpProblem } from './errors.js';
 import { RETRY_AFTER_S } from './plugins/shedding.js';
+import { ClientError } from './raw-body.js';
 import { NonFiniteResult } from './usecases/finite.js';
 import { type Job, type JobResult, runJob } from './worker.js';
 
@@ -120,6 +121,7 @@ export function createPool(config: Config): Pool {
     if ('budget' in r) throw new NeedsBudget(r.budget, r.bytes);
     // The status, code and title fastify's parser gives a small body of broken JSON (services/errors.ts).
     if ('invalidJson' in r) throw new HttpProblem('INVALID_JSON', 400, 'Body is not valid JSON', r.invalidJson);
+    if ('clientError' in r) throw new ClientError(r.clientError);
     if ('validation' in r) {
       const errors = r.validation;
       throw new HttpProblem(

@@ -130,6 +130,75 @@ export function tooDeep(): Error {
 /** A large body that is not JSON: the 400 INVALID_JSON problem a small one gets (services/pool.ts rebuilds it). */
 export class InvalidJsonBody extends Error {}
 
+/**
+ * A body that is JSON but for a NaN or Infinity where a number goes (Python's json.dumps writes them unless
+ * allow_nan=False): the 400 VALIDATION_FAILED a finite number out of range gets, naming the field, not the parser's
+ * "Unexpected token N" with no field. services/pool.ts rebuilds it from a worker.
+ */
+export class NonFiniteLiteral extends Error {
+  /** A client error (GraphQL answers it 400, as a body that is not JSON). */
+  readonly statusCode = 400;
+  readonly reason: string;
+  constructor(
+    readonly field: string,
+    readonly token: string,
+  ) {
+    const reason = `expected a finite number, received ${token} (JSON has no NaN or Infinity): send a finite number or leave the field out`;
+    super(`${field}: ${reason}`);
+    this.reason = reason;
+  }
+}
+
+const NON_FINITE_TOKEN = /^[+-]?(?:nan|inf(?:inity)?)(?![\w.])/i;
+
+/**
+ * Where the first NaN or ±Infinity literal of a JSON text stands, as a path ("lines/3/position"; "(body)" for the
+ * whole body), or undefined when there is none outside strings. Run only on a body JSON.parse refused: one pass
+ * over the text, tracking the containers and the current key or index.
+ */
+export function nonFiniteLiteral(text: string): NonFiniteLiteral | undefined {
+  const path: (string | number)[] = [];
+  const inArray: boolean[] = [];
+  let key = false;
+  for (let i = 0, n = text.length; i < n; i++) {
+    const c = text.charCodeAt(i);
+    if (c === 0x22) {
+      let j = i + 1;
+      while (j < n && text.charCodeAt(j) !== 0x22) j += text.charCodeAt(j) === 0x5c ? 2 : 1;
+      if (key) {
+        let name: string;
+        try {
+          name = JSON.parse(text.slice(i, j + 1)) as string;
+        } catch {
+          name = text.slice(i + 1, j);
+        }
+        path[path.length - 1] = name;
+      }
+      i = j;
+    } else if (c === 0x7b || c === 0x5b) {
+      inArray.push(c === 0x5b);
+      path.push(c === 0x5b ? 0 : '');
+      key = c === 0x7b;
+    } else if (c === 0x7d || c === 0x5d) {
+      inArray.pop();
+      path.pop();
+    } else if (c === 0x2c) {
+      if (inArray.at(-1)) path[path.length - 1] = (path.at(-1) as number) + 1;
+      else key = true;
+    } else if (c === 0x3a) key = false;
+    else if (c === 0x4e || c === 0x6e || c === 0x49 || c === 0x69 || c === 0x2b || c === 0x2d) {
+      const m = NON_FINITE_TOKEN.exec(text.slice(i, i + 10));
+      if (m) return new NonFiniteLiteral(path.join('/') || '(body)', m[0]);
+    }
+  }
+  return undefined;
+}
+
+/** A 400 the parser raises (nesting, a forbidden key): crosses from a worker as its message, the same answer. */
+export class ClientError extends Error {
+  readonly statusCode = 400;
+}
+
 export type Limits = Pick<Config, 'maxLines' | 'maxPoints'>;
 
 /** The body as the route's JSON, parsed where it is called (in a worker for large bodies). */
@@ -143,7 +212,9 @@ export function decodeBody(raw: Pick<RawBody, 'bytes' | 'contentType' | 'query'>
     // A leading byte order mark is skipped, as fastify's parser skips it for a small body.
     parsed = JSON.parse(text.charCodeAt(0) === 0xfeff ? text.slice(1) : text);
   } catch (e) {
-    throw new InvalidJsonBody(`the body is not valid JSON: ${(e as Error).message.slice(0, 200)}`);
+    throw (
+      nonFiniteLiteral(text) ?? new InvalidJsonBody(`the body is not valid JSON: ${(e as Error).message.slice(0, 200)}`)
+    );
   }
   if (jsonDepth(parsed) > MAX_JSON_DEPTH) throw tooDeep();
   return parsed;

@@ -3,6 +3,7 @@ import { parseCsv } from '../src/spectra/csv.js';
 import { parseJcamp } from '../src/spectra/jcamp.js';
 import type { PositionUnit } from '../src/units.js';
 import { PositionUnitSchema } from './schemas/fit.js';
+import { queryTemperature } from './schemas/query.js';
 
 /** Media types of spectra and line lists accepted besides JSON. */
 export const JCAMP_TYPES = ['chemical/x-jcamp-dx', 'chemical/x-jcamp'] as const;
@@ -95,12 +96,9 @@ export function textBodyToJson(
 ): Record<string, unknown> {
   const extra: Record<string, unknown> = {};
   if (typeof query.species === 'string' && query.species !== '') extra.species = query.species;
-  if (typeof query.temperature === 'string' && query.temperature !== '') {
-    const t = Number(query.temperature);
-    if (!Number.isFinite(t))
-      throw new ScienceError('INPUT_INVALID', `temperature=${query.temperature} is not a number`, {});
-    extra.options = { temperature: t };
-  }
+  // A temperature out of its rule is left to the query's schema, which refuses it naming the query parameter.
+  const temperature = typeof query.temperature === 'string' ? queryTemperature(query.temperature) : undefined;
+  if (temperature !== undefined) extra.options = { temperature };
   const sample: Record<string, string> = {};
   for (const k of ['id', 'description', 'instrument', 'operator', 'measuredAt', 'notes']) {
     const v = query[`sample.${k}`];

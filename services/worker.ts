@@ -6,7 +6,7 @@ import { withDetail } from './formats/respond.js';
 import { withDisplay } from './formats/round.js';
 import { jobSize } from './job-size.js';
 import type { Provenance } from './provenance.js';
-import { decodeBody, InvalidJsonBody, type Limits } from './raw-body.js';
+import { decodeBody, InvalidJsonBody, type Limits, NonFiniteLiteral } from './raw-body.js';
 import { type CheckRequest, CheckResponseSchema, checkRequestSchema } from './schemas/checks.js';
 import { type FitRequest, FitResponseSchema, fitRequestSchema } from './schemas/fit.js';
 import { type PeaksRequest, type PeaksResponse, PeaksResponseSchema, parsePeaksRequest } from './schemas/peaks.js';
@@ -63,6 +63,7 @@ export type JobResult =
   | { ok: false; nonFinite: { quantity: string; value: string } }
   | { ok: false; budget: number; bytes?: Uint8Array }
   | { ok: false; invalidJson: string }
+  | { ok: false; clientError: string }
   | { ok: false; validation: { path: string; message: string }[] };
 
 class NeedsBudget extends Error {
@@ -177,13 +178,17 @@ function failed(e: unknown): JobResult {
   if (e instanceof NonFiniteResult) return { ok: false, nonFinite: { quantity: e.quantity, value: e.value } };
   if (e instanceof NeedsBudget) return { ok: false, budget: e.lines };
   if (e instanceof InvalidJsonBody) return { ok: false, invalidJson: e.message };
+  if (e instanceof NonFiniteLiteral) return { ok: false, validation: [{ path: e.field, message: e.reason }] };
   if (e instanceof ValidationFailed)
     return {
       ok: false,
       validation: e.issues.map((i) => ({ path: i.path.map(String).join('/') || '(body)', message: i.message })),
     };
+  // The parser's own 400s (nesting, a forbidden key) get the answer they get inline: a 100 000-deep body of
+  // objects, large enough for a worker, was a VALIDATION_FAILED where the same depth of arrays, parsed inline, was
+  // a BAD_REQUEST.
   if (e instanceof Error && (e as { statusCode?: number }).statusCode === 400)
-    return { ok: false, validation: [{ path: '(body)', message: e.message }] };
+    return { ok: false, clientError: e.message };
   throw e;
 }
 

@@ -1,7 +1,15 @@
 import type { FastifyInstance } from 'fastify';
 import type { Config } from '../config.js';
 import { HttpProblem, problem, sendProblem, sendUnsupportedMediaType } from '../errors.js';
-import { bodyText, jsonDepth, MAX_JSON_DEPTH, RawBody, tooDeep, unreadableCharset } from '../raw-body.js';
+import {
+  bodyText,
+  jsonDepth,
+  MAX_JSON_DEPTH,
+  nonFiniteLiteral,
+  RawBody,
+  tooDeep,
+  unreadableCharset,
+} from '../raw-body.js';
 import { NDJSON } from '../rest/batch.js';
 import { CSV_TYPES, JCAMP_TYPES, textBodyToJson } from '../text-bodies.js';
 
@@ -96,7 +104,7 @@ export function parseBodies(app: FastifyInstance, config: Config): void {
       return done(null, new RawBody(bytes as Buffer, 'application/json', req.query as Record<string, unknown>));
     const body = bodyText(bytes as Buffer, String(req.headers['content-type'] ?? ''));
     defaultJson(req, body, (err: Error | null, parsed?: unknown) => {
-      if (err) return done(forbiddenPropertyOr(err, body), undefined);
+      if (err) return done(nonFiniteLiteral(body) ?? forbiddenPropertyOr(err, body), undefined);
       try {
         if (jsonDepth(parsed) > MAX_JSON_DEPTH) return done(tooDeep(), undefined);
       } catch (e) {

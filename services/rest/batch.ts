@@ -5,6 +5,7 @@ import type { Config } from '../config.js';
 import { sendUnsupportedMediaType, toProblem } from '../errors.js';
 import { jobSize } from '../pool.js';
 import { stampedBytes } from '../provenance.js';
+import { nonFiniteLiteral } from '../raw-body.js';
 import { checkRequestSchema } from '../schemas/checks.js';
 import { fitRequestSchema } from '../schemas/fit.js';
 import { ndjsonLines } from './ndjson-lines.js';
@@ -114,7 +115,8 @@ export const batchRoutes =
                 // A line that is not JSON gets the code the single endpoints give a body that is not JSON.
                 const p = toProblem(
                   e instanceof SyntaxError
-                    ? Object.assign(e, { statusCode: 400, code: 'FST_ERR_CTP_INVALID_JSON_BODY' })
+                    ? (nonFiniteLiteral(line) ??
+                        Object.assign(e, { statusCode: 400, code: 'FST_ERR_CTP_INVALID_JSON_BODY' }))
                     : e,
                   req,
                 );

@@ -4,6 +4,7 @@ import { jobSize } from '../pool.js';
 import { stamped } from '../provenance.js';
 import { problemResponses } from '../schemas/common.js';
 import { PeaksRequestSchema, type PeaksResponse, PeaksResponseSchema } from '../schemas/peaks.js';
+import { SpeciesQuerySchema } from '../schemas/query.js';
 import { answerRawBody, timed, workOptions } from './timed.js';
 
 /** POST /v1/peaks. */
@@ -21,6 +22,8 @@ export const peakRoutes =
           description:
             'Baseline, noise, and pseudo-Voigt line-shape fits (blends fitted together) give each peak position with its standard uncertainty, integrated intensity and width. The body is JSON, a JCAMP-DX file (chemical/x-jcamp-dx) or CSV (text/csv).',
           body: PeaksRequestSchema,
+          // What a JCAMP-DX or CSV body takes from the query (unit, sample), checked as on /v1/fits.
+          querystring: SpeciesQuerySchema,
           response: { 200: PeaksResponseSchema, ...problemResponses },
         },
       },

@@ -1,5 +1,6 @@
 import { z } from 'zod';
-import { exactlyOne, exactlyOneMessage, FitSchema, fitRequestFields } from './fit.js';
+import { positiveNumber, realNumber } from './common.js';
+import { exactlyOne, exactlyOneMessage, FitSchema, fitRequestFields, MAX_MAGNITUDE } from './fit.js';
 import { provenanceAndSampleFields } from './provenance.js';
 
 const TOLERANCE_KEYS = [
@@ -25,23 +26,28 @@ function unknownToleranceKeys(issue: { code?: string; keys?: readonly PropertyKe
 export const TolerancesSchema = z
   .strictObject(
     {
-      identityOrigin: z.number().positive().optional().describe('cm-1; default 0.5'),
-      identityB: z.number().positive().optional().describe('relative; default 1e-3'),
-      calibrationOffset: z.number().positive().optional().describe('cm-1; default 0.05'),
-      calibrationScalePpm: z.number().positive().optional().describe('ppm; default 20'),
-      unexplainedFraction: z.number().min(0).max(1).optional().describe('default 0.05 (fail above, warn above half)'),
-      isotopeRatio: z
-        .number()
-        .positive()
+      identityOrigin: positiveNumber().max(MAX_MAGNITUDE).optional().describe('cm-1; default 0.5'),
+      identityB: positiveNumber().max(MAX_MAGNITUDE).optional().describe('relative; default 1e-3'),
+      calibrationOffset: positiveNumber().max(MAX_MAGNITUDE).optional().describe('cm-1; default 0.05'),
+      calibrationScalePpm: positiveNumber().max(MAX_MAGNITUDE).optional().describe('ppm; default 20'),
+      unexplainedFraction: realNumber().min(0).max(1).optional().describe('default 0.05 (fail above, warn above half)'),
+      isotopeRatio: positiveNumber()
+        .max(MAX_MAGNITUDE)
         .optional()
         .describe('relative deviation from natural; default 0.15 (warn above)'),
       temperature: z
-        .strictObject({ expected: z.number().positive().max(10000), tolerance: z.number().positive() })
+        .strictObject({
+          expected: positiveNumber().max(10000),
+          tolerance: positiveNumber().max(MAX_MAGNITUDE),
+        })
         .optional()
         .describe('expected rotational temperature and tolerance, K; default none (reported only)'),
-      maxReducedChiSquare: z.number().positive().optional().describe('default 3 (only with line uncertainties)'),
-      maxRejectedFraction: z.number().min(0).max(1).optional().describe('default 0.05'),
-      minCompleteness: z.number().min(0).max(1).optional().describe('default 0.9'),
+      maxReducedChiSquare: positiveNumber()
+        .max(MAX_MAGNITUDE)
+        .optional()
+        .describe('default 3 (only with line uncertainties)'),
+      maxRejectedFraction: realNumber().min(0).max(1).optional().describe('default 0.05'),
+      minCompleteness: realNumber().min(0).max(1).optional().describe('default 0.9'),
     } satisfies Record<(typeof TOLERANCE_KEYS)[number], z.ZodType>,
     { error: unknownToleranceKeys },
   )

@@ -1,5 +1,30 @@
 import { z } from 'zod';
 
+/**
+ * One rule for a bad number, wherever a request carries one (DEVELOPERS.md, "Bad values"): a value that is not a
+ * finite JSON number or lies outside its field's stated range is a 400 VALIDATION_FAILED naming the field.
+ */
+export const MIN_NORMAL = 2.2250738585072014e-308;
+
+/** A request's number: finite (NaN and ±Infinity, e.g. a literal 1e400, refused by name). */
+export const realNumber = () =>
+  z.number({
+    error: (issue) =>
+      issue.code === 'invalid_type' && typeof issue.input === 'number'
+        ? `expected a finite number, received ${issue.input}`
+        : undefined,
+  });
+
+/**
+ * A number that must be positive: from the smallest normal double up. A subnormal one (below 2.2e-308) keeps fewer
+ * than 53 significant bits and its reciprocal overflows: an uncertainty of 1e-320 passed `positive()`, its weight
+ * 1/σ² was Infinity and the fit answered 422 "parameters cannot be told apart". The minimum is in the document.
+ */
+export const positiveNumber = () =>
+  realNumber().min(MIN_NORMAL, {
+    message: 'expected a positive number, at least 2.2e-308 (a subnormal number carries no precision)',
+  });
+
 /** The rounded form of a value with its uncertainty, present only when asked for with `?display=rounded`. */
 export const DisplaySchema = z
   .string()
@@ -49,8 +74,12 @@ const problem = (description: string) => ({
 });
 
 export const problemResponses = {
-  400: problem('malformed request: invalid JSON, schema violations (with paths), forbidden properties'),
+  400: problem(
+    'malformed request: invalid JSON, forbidden properties, nesting beyond 32 levels; schema violations (VALIDATION_FAILED, `errors` name each field): any number that is not finite (NaN, ±Infinity, 1e400), a string, null or empty where a number is due, outside its stated range, subnormal, or an uncertainty below 1e-15 of its position',
+  ),
   413: problem('body larger than the configured limit'),
   415: problem('unsupported media type'),
-  422: problem('well formed, but refused by the science (impossible assignment, too few lines, rank deficiency …)'),
+  422: problem(
+    'every value in range, but refused by the science (impossible assignment, too few lines, rank deficiency, constants that give no potential, a result that overflows …)',
+  ),
 } as const;

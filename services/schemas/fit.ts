@@ -1,6 +1,14 @@
 import { z } from 'zod';
 import type { PositionUnit } from '../../src/units.js';
-import { DisplaySchema, MatrixSchema, QuantitySchema, WarningSchema } from './common.js';
+import {
+  DisplaySchema,
+  MatrixSchema,
+  MIN_NORMAL,
+  positiveNumber,
+  QuantitySchema,
+  realNumber,
+  WarningSchema,
+} from './common.js';
 import { provenanceAndSampleFields, SampleSchema } from './provenance.js';
 
 /** Zod schemas of POST /v1/fits: the single source of the wire format, of its validation and of the OpenAPI. */
@@ -74,6 +82,9 @@ export const LineIdSchema = z
  */
 export const MAX_MAGNITUDE = 1e12;
 
+/** Smallest uncertainty a line may state, as a fraction of its position (about 5 units in the last place). */
+export const MIN_RELATIVE_UNCERTAINTY = 1e-15;
+
 const ASSIGNMENT_KEYS = new Set(['band', 'branch', 'j', 'species']);
 
 /**
@@ -94,14 +105,14 @@ export const LineSchema = z
   .strictObject(
     {
       id: LineIdSchema.optional(),
-      position: z.number().positive().max(MAX_MAGNITUDE).describe('line position in the request unit'),
-      uncertainty: z
-        .number()
-        .positive()
+      position: positiveNumber().max(MAX_MAGNITUDE).describe('line position in the request unit'),
+      uncertainty: positiveNumber()
         .max(MAX_MAGNITUDE)
         .optional()
-        .describe('standard uncertainty in the request unit'),
-      intensity: z.number().min(0).max(MAX_MAGNITUDE).optional().describe('any linear scale'),
+        .describe(
+          'standard uncertainty in the request unit; at least 1e-15 of the position (a double resolves the position to about 2e-16 of it)',
+        ),
+      intensity: realNumber().min(0).max(MAX_MAGNITUDE).optional().describe('any linear scale'),
       source: z
         .string()
         .min(1)
@@ -114,6 +125,20 @@ export const LineSchema = z
     },
     { error: unknownLineKeys },
   )
+  .superRefine((line, ctx) => {
+    // Below ~5 units in the last place of its position an uncertainty cannot be meant (2139.4218 cm-1 is resolved to
+    // 4.5e-13); its weight then swamps every other line's (σ = 1e-30 among 0.002: 422 "cannot be told apart").
+    const u = line.uncertainty;
+    const floor = MIN_RELATIVE_UNCERTAINTY * line.position;
+    if (u === undefined || !(u >= MIN_NORMAL && u < floor)) return;
+    const step = 10 ** (Math.floor(Math.log10(floor)) - 1);
+    const shown = Number((Math.ceil(floor / step) * step).toPrecision(2));
+    ctx.addIssue({
+      code: 'custom',
+      path: ['uncertainty'],
+      message: `uncertainty ${u} is below 1e-15 of the position ${line.position}, finer than a double resolves it: send at least ${shown}`,
+    });
+  })
   .meta({ id: 'Line' });
 
 export const FitOptionsSchema = z
@@ -122,16 +147,13 @@ export const FitOptionsSchema = z
       .enum(['a-posteriori', 'absolute'])
       .optional()
       .describe('a-posteriori (default): covariance scaled by χ²/(n−p); absolute: line uncertainties taken as given'),
-    rejectionThreshold: z
-      .number()
+    rejectionThreshold: realNumber()
       .min(0)
       .max(1000)
       .optional()
       .describe('studentised-residual threshold for rejecting a line (default 4; 0 turns rejection off)'),
-    maxRejectedFraction: z.number().min(0).max(0.5).optional().describe('default 0.2'),
-    termSignificance: z
-      .number()
-      .gt(0)
+    maxRejectedFraction: realNumber().min(0).max(0.5).optional().describe('default 0.2'),
+    termSignificance: positiveNumber()
       .lt(0.5)
       .optional()
       .describe('F-test p-value below which an added term is kept (default 0.01)'),
@@ -143,14 +165,12 @@ export const FitOptionsSchema = z
       .optional()
       .describe('1 = B, 2 = D, 3 = H, 4 = L, 5 = M (default 5)'),
     massReducedDunham: z.boolean().optional().describe('also fit U_kl across isotopologues (default false)'),
-    temperature: z
-      .number()
+    temperature: realNumber()
       .min(10)
       .max(6000)
       .optional()
       .describe('gas temperature in K for the Boltzmann weights of automatic assignment (default 296)'),
-    maxOffset: z
-      .number()
+    maxOffset: realNumber()
       .min(0)
       .max(5)
       .optional()
@@ -226,11 +246,11 @@ export const PositionUnitSchema = z
 export const SpectrumSchema = z
   .strictObject({
     x: z
-      .array(z.number().min(-MAX_MAGNITUDE).max(MAX_MAGNITUDE))
+      .array(realNumber().min(-MAX_MAGNITUDE).max(MAX_MAGNITUDE))
       .min(7)
       .max(MAX_SPECTRUM_POINTS)
       .describe('abscissa, increasing or decreasing'),
-    y: z.array(z.number().min(-MAX_MAGNITUDE).max(MAX_MAGNITUDE)).min(7).max(MAX_SPECTRUM_POINTS),
+    y: z.array(realNumber().min(-MAX_MAGNITUDE).max(MAX_MAGNITUDE)).min(7).max(MAX_SPECTRUM_POINTS),
     yUnit: z
       .enum(['absorbance', 'transmittance'])
       .default('absorbance')
@@ -242,8 +262,7 @@ export const SpectrumSchema = z
 
 export const PeakOptionsSchema = z
   .strictObject({
-    threshold: z
-      .number()
+    threshold: realNumber()
       .min(2)
       .max(1000)
       .optional()

@@ -1,5 +1,6 @@
 import { z } from 'zod';
-import { LinearLevelSchema, PositionUnitSchema, SpeciesStringSchema } from './fit.js';
+import { positiveNumber, realNumber } from './common.js';
+import { LinearLevelSchema, MAX_MAGNITUDE, PositionUnitSchema, SpeciesStringSchema } from './fit.js';
 import { provenanceAndSampleFields, SampleSchema } from './provenance.js';
 
 const CONSTANTS = [
@@ -14,9 +15,13 @@ const CONSTANTS = [
   'beta_e',
   'H_e',
 ] as const;
-const ConstantValue = z.strictObject({ value: z.number(), uncertainty: z.number().min(0).optional() });
-
-const finite = z.number().min(-1e6).max(1e6);
+/** Largest magnitude of a caller's constant, its uncertainty or a linear level's term (cm-1): ω_e of H2 is 4401. */
+const MAX_CONSTANT = 1e6;
+const finite = realNumber().min(-MAX_CONSTANT).max(MAX_CONSTANT);
+const ConstantValue = z.strictObject({
+  value: finite,
+  uncertainty: realNumber().min(0).max(MAX_CONSTANT).optional(),
+});
 
 /** Constants of one level of a linear polyatomic molecule, cm⁻¹, in the convention of the fit responses. */
 export const LinearLevelConstantsSchema = z
@@ -25,7 +30,7 @@ export const LinearLevelConstantsSchema = z
     l: LinearLevelSchema.shape.l,
     rank: LinearLevelSchema.shape.rank,
     G: finite.describe('G_v of F = G_v + B[J(J+1) − l²] − …'),
-    B: z.number().positive().max(1000),
+    B: positiveNumber().max(1000),
     D: finite.default(0),
     H: finite.optional(),
     q: finite.optional().describe('l ≥ 1: E(f) − E(e) = q J(J+1) + q_J [J(J+1)]²'),
@@ -42,7 +47,22 @@ export const PredictionRequestSchema = z
         covariance: z
           .strictObject({
             names: z.array(z.enum(CONSTANTS)).min(1).max(CONSTANTS.length),
-            matrix: z.array(z.array(z.number()).max(CONSTANTS.length)).max(CONSTANTS.length),
+            matrix: z
+              .array(z.array(realNumber().min(-MAX_MAGNITUDE).max(MAX_MAGNITUDE)).max(CONSTANTS.length))
+              .max(CONSTANTS.length)
+              .describe('covariance of the named constants, cm-2; its diagonal (the variances) ≥ 0')
+              .superRefine((m, ctx) => {
+                // A variance below zero has no square root: it came back as 422 "constants/0/uncertainty is NaN".
+                m.forEach((row, i) => {
+                  const v = row[i];
+                  if (v !== undefined && v < 0)
+                    ctx.addIssue({
+                      code: 'custom',
+                      path: [i, i],
+                      message: `expected a variance ≥ 0 on the diagonal, received ${v}`,
+                    });
+                });
+              }),
           })
           .optional(),
       })
@@ -70,7 +90,7 @@ export const PredictionRequestSchema = z
         'linear polyatomic: the constants of every level the bands join (cm-1); absent: the reference library, with its sources (and, when no bands are sent, every infrared band it holds for the species)',
       ),
     jMax: z.number().int().min(0).max(200).default(30),
-    temperature: z.number().min(10).max(6000).default(296).describe('K, for relative intensities'),
+    temperature: realNumber().min(10).max(6000).default(296).describe('K, for relative intensities'),
     unit: PositionUnitSchema.default('cm-1'),
     sample: SampleSchema.optional(),
   })

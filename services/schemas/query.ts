@@ -1,14 +1,28 @@
 import { z } from 'zod';
 import { PositionUnitSchema } from './fit.js';
 
+export const TEMPERATURE_MESSAGE =
+  'expected a temperature in K from 10 to 6000, written as a decimal number (e.g. 296 or 296.5)';
+
+/**
+ * `?temperature=` as a number, or undefined when it is not a decimal number from 10 to 6000 K (the range of
+ * `options.temperature`). Checked the same way whatever the body: with a CSV body NaN was a 422 and −5 a 400 that
+ * named `options/temperature`; with a JSON body 0 and 99999999 passed.
+ */
+export function queryTemperature(raw: string): number | undefined {
+  if (!/^\d+(\.\d+)?$/.test(raw)) return undefined;
+  const t = Number(raw);
+  return t >= 10 && t <= 6000 ? t : undefined;
+}
+
 /** Query string of the routes that also take JCAMP-DX or CSV bodies (which carry no species of their own). */
 export const SpeciesQuerySchema = z.strictObject({
   species: z.string().min(1).max(40).optional().describe('species, for JCAMP-DX and CSV bodies'),
   temperature: z
     .string()
-    .regex(/^\d+(\.\d+)?$/)
+    .refine((t) => queryTemperature(t) !== undefined, { message: TEMPERATURE_MESSAGE })
     .optional()
-    .describe('gas temperature in K, for JCAMP-DX and CSV bodies'),
+    .describe('gas temperature in K from 10 to 6000 (a decimal number), for JCAMP-DX and CSV bodies'),
   unit: PositionUnitSchema.optional().describe(
     "for CSV and JCAMP-DX bodies: the unit of the line positions, or of a spectrum's x (cm-1, um or nm), when the file does not name it (a unit the file names must agree)",
   ),

@@ -405,7 +405,10 @@ function lineOfRow(r: CsvRow, at: Partial<Record<Column, number>>, assigned: boo
       return undefined;
     }
     const v = numberOf(c, decimalComma);
-    if (!Number.isFinite(v)) fail(r.line, `${name} "${c.slice(0, 30)}" is not a number`);
+    if (!Number.isFinite(v))
+      fail(r.line, `${name} "${c.slice(0, 30)}" is not a number`, {
+        column: name,
+      });
     return v;
   };
   const position = num('position', true) as number;

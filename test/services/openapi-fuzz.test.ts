@@ -104,6 +104,23 @@ function conform(body: unknown, linesOrSpectrum: boolean): unknown {
     delete b.constants;
     delete b.vData;
   }
+  // Rules the document states in words: a line's uncertainty is at least 1e-15 of its position, a covariance's
+  // diagonal is ≥ 0.
+  if (Array.isArray(b.lines))
+    b.lines = b.lines.map((l: Record<string, unknown>) =>
+      typeof l?.uncertainty === 'number' && typeof l.position === 'number'
+        ? { ...l, uncertainty: Math.max(l.uncertainty, 1e-15 * l.position) }
+        : l,
+    );
+  const constants = b.constants as { covariance?: { matrix?: number[][] } } | undefined;
+  if (constants?.covariance?.matrix)
+    b.constants = {
+      ...constants,
+      covariance: {
+        ...constants.covariance,
+        matrix: constants.covariance.matrix.map((row, i) => row.map((v, j) => (i === j ? Math.abs(v) : v))),
+      },
+    };
   const sample = b.sample as Record<string, unknown> | undefined;
   if (sample && 'measuredAt' in sample) b.sample = { ...sample, measuredAt: '2026-12-02T09:30:00Z' };
   return b;

@@ -75,7 +75,7 @@ describe('decimal commas and delimiters', () => {
     expect(refusal('position,intensity\n"2143,27",0.5\n')).toStrictEqual({
       code: 'INPUT_INVALID',
       message: 'CSV line 2: position "2143,27" is not a number',
-      details: { line: 2 },
+      details: { line: 2, column: 'position' },
     });
   });
 
@@ -108,7 +108,7 @@ describe('refusals name the line and what is wrong', () => {
     expect(refusal('2143.27\n2147.08\nend\n')).toStrictEqual({
       code: 'INPUT_INVALID',
       message: 'CSV line 3: position "end" is not a number',
-      details: { line: 3 },
+      details: { line: 3, column: 'position' },
     });
     expect(refusal('position\ncm-1\nremark\n2143.27\n').message).toBe('CSV line 3: position "remark" is not a number');
   });
