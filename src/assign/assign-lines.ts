@@ -137,7 +137,7 @@ export function assignAndFit(
   options: AssignOptions = {},
 ): AssignResult {
   const ctx = prepareAssignment(peaks, species, masses, options);
-  if (ctx.cands.length === 0) {
+  if (ctx.inWindow === 0) {
     ctx.warnings.push({
       code: 'NO_BAND_IN_WINDOW',
       message: `no band of ${speciesNames(ctx)} is predicted between ${ctx.lo.toFixed(1)} and ${ctx.hi.toFixed(1)} cm-1`,
@@ -204,6 +204,11 @@ export interface AssignContext {
   readonly bandCands: readonly Int32Array[];
   /** Which candidates may seed a band (strong enough); the second pass widens it. */
   readonly seedable: boolean[];
+  /**
+   * How many candidates (the first ones) the reference places in the window; those after them lie up to EDGE_WIDTH
+   * beyond it, for growth along a fitted band only (see edgeCandidates).
+   */
+  readonly inWindow: number;
   /** Per band, the median distance between neighbouring lines of one branch. */
   readonly spacing: ReadonlyMap<string, number>;
   /** Lines sent with an assignment. */
@@ -237,6 +242,35 @@ export interface AssignContext {
   readonly notes: Map<number, string>;
 }
 
+/**
+ * How far beyond the observed window (cm⁻¹) the reference may place a line the list holds at its edge: the library's
+ * H35Cl, without γ_e, β_e, H_e, places 2-0 P(20) 8 cm⁻¹ off, and the lowest line of a list was never a candidate.
+ */
+const EDGE_WIDTH = 25;
+
+/**
+ * The candidates the reference places within EDGE_WIDTH beyond [lo, hi], for growth along a fitted band (never
+ * seeds, not in the line spacing), their intensities on the scale of `inner` (the candidates in the window).
+ */
+export function edgeCandidates(
+  species: readonly { iso: Isotopologue; abundance: number }[],
+  lo: number,
+  hi: number,
+  options: AssignOptions,
+  inner: readonly CandidateLine[],
+): CandidateLine[] {
+  const wide = candidateLines(species, lo - EDGE_WIDTH, hi + EDGE_WIDTH, {
+    ...options,
+    minRelativeIntensity: 0,
+    maxJ: options.maxJ ?? MAX_J,
+  });
+  const first = inner[0];
+  const same = first && wide.find((c) => transitionKey(c) === transitionKey(first));
+  if (!first || !same) return [];
+  const scale = first.intensity / same.intensity;
+  return wide.filter((c) => c.position < lo || c.position > hi).map((c) => ({ ...c, intensity: c.intensity * scale }));
+}
+
 /** What the iterations carry from one to the next. */
 export interface LoopState {
   auto: Map<number, CandidateLine>;
@@ -264,11 +298,12 @@ export function prepareAssignment(
   const hi = Math.max(...positions) + 1;
   // Every line of every plausible band, down to any intensity: bands are seeded from their strong lines only, but a
   // fitted band grows for as long as the data carry it.
-  const cands = candidateLines(species, lo, hi, {
+  const inner = candidateLines(species, lo, hi, {
     ...options,
     minRelativeIntensity: 0,
     maxJ: options.maxJ ?? MAX_J,
   });
+  const cands = [...inner, ...edgeCandidates(species, lo, hi, options, inner)];
   const given = peaks.flatMap((p, index) => (p.assignment ? [{ index, t: p.assignment }] : []));
   const free = freePeaks(peaks);
   const sourceOf = (i: number) => peaks[i]?.source ?? '';
@@ -285,8 +320,12 @@ export function prepareAssignment(
     hi,
     cands,
     ...index,
-    seedable: seedFilter(cands, options.minRelativeIntensity ?? 1e-4),
-    spacing: lineSpacings({ cands, ...index }),
+    seedable: [
+      ...seedFilter(inner, options.minRelativeIntensity ?? 1e-4),
+      ...cands.slice(inner.length).map(() => false),
+    ],
+    inWindow: inner.length,
+    spacing: lineSpacings({ cands: inner, ...index }),
     given,
     free,
     sources,
@@ -949,7 +988,7 @@ export function widenSeeds(
   const fittedLevels = new Set(detailed.result.levels.map((l) => `${l.species}|${l.v}`));
   let widened = 0;
   ctx.cands.forEach((c, i) => {
-    if (ctx.seedable[i] || c.intensity < 1e-9) return;
+    if (ctx.seedable[i] || c.intensity < 1e-9 || i >= ctx.inWindow) return;
     if (fittedLevels.has(`${c.species}|${c.band.lower}`) || fittedLevels.has(`${c.species}|${c.band.upper}`)) {
       ctx.seedable[i] = true;
       widened++;
@@ -1128,7 +1167,7 @@ export function nothingAssigned(ctx: AssignContext): ScienceError {
       suggestedUnit: 'um',
     });
   }
-  if (ctx.cands.length === 0) {
+  if (ctx.inWindow === 0) {
     return new ScienceError(
       'FIT_NO_ASSIGNED_LINES',
       `nothing matches the declared species: no band of ${names} is predicted between ${ctx.lo.toFixed(1)} and ${ctx.hi.toFixed(1)} cm-1, where the lines lie`,

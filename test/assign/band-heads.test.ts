@@ -1,6 +1,7 @@
 import { afterAll, describe, expect, it } from 'vitest';
 import { analyseLineList } from '../../src/assign/analyse.js';
-import { labelChiSquare, type PeakInput, widestTolerance } from '../../src/assign/assign-lines.js';
+import { edgeCandidates, labelChiSquare, type PeakInput, widestTolerance } from '../../src/assign/assign-lines.js';
+import { candidateLines } from '../../src/assign/candidates.js';
 import { parseSpecies } from '../../src/species/parse.js';
 import { CO_DATABASE } from '../helpers/co-database.js';
 import {
@@ -179,13 +180,14 @@ describe('generated overtones through their R heads (σ 1e-3 cm⁻¹): with σ, 
         { right: 262, wrong: 0, left: 0 },
       ],
     ],
-    // HCl and HBr: 2-0 P(20), the last line at the low edge of the list, is left: the library (no γ_e, β_e, H_e)
-    // places it more than 1 cm⁻¹ below the lowest line, outside the window its candidates are drawn from. R(20) was
-    // left too (72 / 0 / 2) until the reference's second opinion counted only the change of its disagreement from
-    // the band's reach (7.3 cm⁻¹ at R(19) already).
-    ['HCl 2-0 + 3-0, σ', HCL_1_35, 'HCl', HX, { withSigma: true }, [{ right: 73, wrong: 0, left: 1 }]],
-    ['HCl 2-0 + 3-0, no σ', HCL_1_35, 'HCl', HX, { withSigma: false }, [{ right: 73, wrong: 0, left: 1 }]],
+    // HCl and HBr: before, 2-0 R(20) and P(20) were left (72 / 0 / 2): R(20) until the reference's second opinion
+    // counted only the change of its disagreement from the band's reach (7.3 cm⁻¹ at R(19) already; the library has
+    // no γ_e, β_e, H_e), P(20), the lowest line, until candidates were drawn from beyond the window's edges too (the
+    // library places it more than 1 cm⁻¹ below the lowest line).
+    ['HCl 2-0 + 3-0, σ', HCL_1_35, 'HCl', HX, { withSigma: true }, [{ right: 74, wrong: 0, left: 0 }]],
+    ['HCl 2-0 + 3-0, no σ', HCL_1_35, 'HCl', HX, { withSigma: false }, [{ right: 74, wrong: 0, left: 0 }]],
     // Further past the heads (2-0 to J = 24, 3-0 to J = 18): 80 / 0 / 6 before (2-0 P and R of J = 22–24 left).
+    // The fundamentals to J = 22: 44 / 0 / 1 before (P(22), the lowest line, left).
     [
       'HCl 2-0 to J 24 + 3-0 to J 18, σ',
       HCL_1_35,
@@ -195,7 +197,23 @@ describe('generated overtones through their R heads (σ 1e-3 cm⁻¹): with σ, 
         { upper: 3, lower: 0, jMax: 18 },
       ],
       { withSigma: true },
-      [{ right: 85, wrong: 0, left: 1 }],
+      [{ right: 86, wrong: 0, left: 0 }],
+    ],
+    [
+      'HCl 1-0 to J 22, σ',
+      HCL_1_35,
+      'HCl',
+      [{ upper: 1, lower: 0, jMax: 22 }],
+      { withSigma: true },
+      [{ right: 45, wrong: 0, left: 0 }],
+    ],
+    [
+      'HBr 1-0 to J 22, no σ',
+      HBR_1_79,
+      'HBr',
+      [{ upper: 1, lower: 0, jMax: 22 }],
+      { withSigma: false },
+      [{ right: 45, wrong: 0, left: 0 }],
     ],
     // One seed in three: the 3-0 band, its lines split over two offsets, is not found at all (BAND_NOT_FOUND, best
     // offset +0.038 cm⁻¹ matching 2 of 9 strong lines): its 33 lines left, none wrong.
@@ -206,13 +224,13 @@ describe('generated overtones through their R heads (σ 1e-3 cm⁻¹): with σ, 
       HX,
       { withSigma: true, twoInstruments: true },
       [
-        { right: 73, wrong: 0, left: 1 },
-        { right: 40, wrong: 0, left: 34 },
-        { right: 73, wrong: 0, left: 1 },
+        { right: 74, wrong: 0, left: 0 },
+        { right: 41, wrong: 0, left: 33 },
+        { right: 74, wrong: 0, left: 0 },
       ],
     ],
-    ['HBr 2-0 + 3-0, σ', HBR_1_79, 'HBr', HX, { withSigma: true }, [{ right: 73, wrong: 0, left: 1 }]],
-    ['HBr 2-0 + 3-0, no σ', HBR_1_79, 'HBr', HX, { withSigma: false }, [{ right: 73, wrong: 0, left: 1 }]],
+    ['HBr 2-0 + 3-0, σ', HBR_1_79, 'HBr', HX, { withSigma: true }, [{ right: 74, wrong: 0, left: 0 }]],
+    ['HBr 2-0 + 3-0, no σ', HBR_1_79, 'HBr', HX, { withSigma: false }, [{ right: 74, wrong: 0, left: 0 }]],
     [
       'HBr 2-0 + 3-0, two instruments',
       HBR_1_79,
@@ -220,9 +238,9 @@ describe('generated overtones through their R heads (σ 1e-3 cm⁻¹): with σ, 
       HX,
       { withSigma: true, twoInstruments: true },
       [
-        { right: 40, wrong: 0, left: 34 },
-        { right: 73, wrong: 0, left: 1 },
-        { right: 73, wrong: 0, left: 1 },
+        { right: 41, wrong: 0, left: 33 },
+        { right: 74, wrong: 0, left: 0 },
+        { right: 74, wrong: 0, left: 0 },
       ],
     ],
   ];
@@ -329,5 +347,33 @@ describe('the χ² a label leaves a line (labelChiSquare), worked by hand', () =
     const preds = [pr, { key: '2', position: 101, tolerance: 0.002, withSigma: { model: 0.001, perSigma: 5 } }];
     expect(widestTolerance(preds, 0)).toBe(0.005);
     expect(widestTolerance(preds, 0.002)).toBeCloseTo(Math.hypot(0.001, 0.01), 15);
+  });
+});
+
+describe('candidates beyond the window edges (edgeCandidates)', () => {
+  it('lie within 25 cm⁻¹ outside [lo, hi], on the intensity scale of the candidates inside', () => {
+    const species = [{ iso: parseSpecies('H35Cl'), abundance: 1 }];
+    const options = { minRelativeIntensity: 0, maxJ: 150 };
+    const inner = candidateLines(species, 5100, 5800, options);
+    const edge = edgeCandidates(species, 5100, 5800, {}, inner);
+    expect(edge.length).toBeGreaterThan(0);
+    for (const c of edge) {
+      expect(c.position < 5100 || c.position > 5800).toBe(true);
+      expect(c.position).toBeGreaterThanOrEqual(5100 - 25);
+      expect(c.position).toBeLessThanOrEqual(5800 + 25);
+    }
+    // One call over the whole span gives the same ratios between lines inside and beyond the window.
+    const all = candidateLines(species, 5100 - 25, 5800 + 25, options);
+    const key = (c: { band: { upper: number }; branch: string; j: number; species: string }) =>
+      `${c.species} ${c.band.upper} ${c.branch}${c.j}`;
+    const inAll = new Map(all.map((c) => [key(c), c.intensity]));
+    const first = inner[0] as (typeof inner)[number];
+    for (const c of edge) {
+      expect(c.intensity / first.intensity).toBeCloseTo(
+        (inAll.get(key(c)) as number) / (inAll.get(key(first)) as number),
+        12,
+      );
+    }
+    expect(edgeCandidates(species, 5100, 5800, {}, [])).toEqual([]);
   });
 });
