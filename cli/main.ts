@@ -55,6 +55,7 @@ Files: .json (the body of the matching HTTP endpoint), .csv (a spectrum or a lin
 JSON answers of lists of more than 1 000 lines are lean: each line leaves out the uncertainty, intensity and
 assignment the file already holds (assignments the fit made stay); --detail full keeps them, --detail lean asks
 for it at any size.
+--format csv writes the table alone to stdout; each file's warnings and the caution below go to stderr.
 A file that cannot be read is reported under its name; the other files are still processed.
 Exit status: 0 pass, 1 warn, 2 fail (check, report); 3 bad input; 4 usage.
 ${CLI_NOTICE}`;
@@ -284,6 +285,8 @@ export function main(argv: readonly string[], io: Io): number {
         worst = Math.max(worst, r.exit);
         const rows = r.rows;
         if (format === 'csv') {
+          // stdout is the table alone; what qualifies its numbers goes to stderr, as the table form prints it.
+          for (const w of warningsOf(r.result)) io.err(`${file}: warning: ${w}\n`);
           // One table for all files: a leading "file" column when there are several.
           const body = csvRows.length === 0 ? rows : rows.slice(1);
           csvRows.push(
@@ -303,6 +306,7 @@ export function main(argv: readonly string[], io: Io): number {
     progress(io, files.length, files.length, '');
     if (format === 'json') io.out(`${JSON.stringify(files.length === 1 ? results[0] : results, null, 2)}\n`);
     if (format === 'csv' && csvRows.length > 0) io.out(toCsv(csvRows));
+    if (format === 'csv') io.err(`${CLI_NOTICE}\n`);
     if (format === 'table') io.out(`${CLI_NOTICE}\n`);
     // A single file that could not be read prints no JSON: its error went to stderr.
     if (format === 'json' && files.length === 1 && (results[0] as { error?: unknown }).error) return EXIT.input;
@@ -340,8 +344,10 @@ function predict(v: Record<string, string | boolean | undefined>, format: Format
     ...r.lines.map((l) => [l.band, l.branch, l.j, l.position.value, l.position.uncertainty, l.relativeIntensity]),
   ];
   if (format === 'json') io.out(`${JSON.stringify(r, null, 2)}\n`);
-  else if (format === 'csv') io.out(toCsv(rows));
-  else
+  else if (format === 'csv') {
+    io.out(toCsv(rows));
+    io.err(`${CLI_NOTICE}\n`);
+  } else
     io.out(
       `${table([['band', 'line', `position (${req.unit})`, 'rel. intensity'], ...r.lines.map((l) => [l.band, `${l.branch}(${l.j})`, l.position.uncertainty === null ? exactPosition(l.position.value) : q({ value: l.position.value, uncertainty: l.position.uncertainty }), fmt(l.relativeIntensity, 3)])])}\n${CLI_NOTICE}\n`,
     );
@@ -438,6 +444,12 @@ function runOne(
     rows: resultRows('check', r, tableName ?? 'checks'),
     exit: EXIT[r.verdict],
   };
+}
+
+/** The warning messages of a fit, or of the fit inside a check (none for peaks). */
+function warningsOf(result: Record<string, unknown>): string[] {
+  const fit = (result.fit ?? result) as { warnings?: readonly { message: string }[] };
+  return (fit.warnings ?? []).map((w) => w.message);
 }
 
 /** Lists longer than this are answered lean in JSON unless --detail full or the file's own options.lean says otherwise. */

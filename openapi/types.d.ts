@@ -245,6 +245,7 @@ export interface components {
       assignment: components["schemas"]["AssignmentReport"];
       bands: ({
           band: string;
+          /** @description lowest and highest J″ of those lines */
           jRange: number[];
           /**
            * @description linear polyatomic: Δl = 0 or ±1
@@ -253,6 +254,7 @@ export interface components {
           kind?: "parallel" | "perpendicular";
           /** @description linear polyatomic: the band in the trade notation, e.g. "00⁰1–00⁰0" */
           label?: string;
+          /** @description lines of this band in the fit (rejected lines not counted) */
           lines: number;
           /** @description linear polyatomic */
           lower?: components["schemas"]["LinearLevel"];
@@ -511,9 +513,9 @@ export interface components {
       maxCentrifugalOrder?: number;
       /** @description largest instrument wavenumber offset searched by automatic assignment, cm-1 (default 0.5; linear polyatomic species 1.2) */
       maxOffset?: number;
-      /** @description default 0.2 */
+      /** @description largest fraction of the lines that outlier rejection may take out (default 0.2) */
       maxRejectedFraction?: number;
-      /** @description studentised-residual threshold for rejecting a line (default 4; 0 turns rejection off) */
+      /** @description externally studentised residual beyond which a line is rejected (default 4; raised to the two-sided normal quantile of 0.25/n for n lines when that is larger, i.e. from about 4 000 lines; 0 turns rejection off) */
       rejectionThreshold?: number;
       /** @description band to number when a species without reference constants is assigned from its structure (default 1-0) */
       structureBand?: string;
@@ -522,7 +524,7 @@ export interface components {
       /** @description F-test p-value below which an added term is kept (default 0.01) */
       termSignificance?: number;
       /**
-       * @description a-posteriori (default): covariance scaled by χ²/(n−p); absolute: line uncertainties taken as given
+       * @description a-posteriori (default): stated uncertainties are relative weights and the covariance is scaled by χ²/(n−p) (scaled down only on 10 or more degrees of freedom when every line states its σ, else the stated σ stand: UNCERTAINTY_MODE_CHANGED); absolute: line uncertainties taken as given, and a χ² improbable for its degrees of freedom is warned of (CHI_SQUARE_HIGH, CHI_SQUARE_LOW)
        * @enum {string}
        */
       uncertaintyMode?: "a-posteriori" | "absolute";
@@ -546,6 +548,7 @@ export interface components {
       assignment: components["schemas"]["AssignmentReport"];
       bands: ({
           band: string;
+          /** @description lowest and highest J″ of those lines */
           jRange: number[];
           /**
            * @description linear polyatomic: Δl = 0 or ±1
@@ -554,6 +557,7 @@ export interface components {
           kind?: "parallel" | "perpendicular";
           /** @description linear polyatomic: the band in the trade notation, e.g. "00⁰1–00⁰0" */
           label?: string;
+          /** @description lines of this band in the fit (rejected lines not counted) */
           lines: number;
           /** @description linear polyatomic */
           lower?: components["schemas"]["LinearLevel"];
@@ -819,7 +823,7 @@ export interface components {
       intensity?: number;
       /** @description line position in the request unit */
       position: number;
-      /** @description label of the instrument or file the line came from: lines without an uncertainty get σ from the scatter of their source */
+      /** @description label of the instrument or file the line came from: lines without an uncertainty get σ from the scatter of their source; stated σ that disagree with the other sources are rescaled per source (UNCERTAINTY_RESCALED); a source whose mean residual lies off zero is named (SOURCE_MEAN_RESIDUALS: an offset between sources, which the fit does not remove) */
       source?: string;
       /** @description standard uncertainty in the request unit; at least 1e-15 of the position (a double resolves the position to about 2e-16 of it) */
       uncertainty?: number;

@@ -33,6 +33,8 @@ export const typeDefs = /* GraphQL */ `
   }
 
   input LineInput {
+    "the caller's identifier of the line, a string or an integer (echoed in lines[].id)"
+    id: JSON
     position: Float!
     uncertainty: Float
     intensity: Float
@@ -197,8 +199,14 @@ export const typeDefs = /* GraphQL */ `
 
   type LineOutcome {
     index: Int!
+    "the caller's identifier of the line, as sent (a string or an integer)"
+    id: JSON
     position: Float!
+    "standard uncertainty of the position, cm-1: as sent, or from the peak fit; null when none was given or in a lean answer"
+    uncertainty: Float
     intensity: Float
+    "the instrument or file the line came from, as sent (null in a lean answer)"
+    source: String
     assignment: LineAssignment
     calculated: Float
     residual: Float

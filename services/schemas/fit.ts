@@ -119,7 +119,7 @@ export const LineSchema = z
         .max(100)
         .optional()
         .describe(
-          'label of the instrument or file the line came from: lines without an uncertainty get σ from the scatter of their source',
+          'label of the instrument or file the line came from: lines without an uncertainty get σ from the scatter of their source; stated σ that disagree with the other sources are rescaled per source (UNCERTAINTY_RESCALED); a source whose mean residual lies off zero is named (SOURCE_MEAN_RESIDUALS: an offset between sources, which the fit does not remove)',
         ),
       assignment: AssignmentSchema.optional(),
     },
@@ -146,13 +146,21 @@ export const FitOptionsSchema = z
     uncertaintyMode: z
       .enum(['a-posteriori', 'absolute'])
       .optional()
-      .describe('a-posteriori (default): covariance scaled by χ²/(n−p); absolute: line uncertainties taken as given'),
+      .describe(
+        'a-posteriori (default): stated uncertainties are relative weights and the covariance is scaled by χ²/(n−p) (scaled down only on 10 or more degrees of freedom when every line states its σ, else the stated σ stand: UNCERTAINTY_MODE_CHANGED); absolute: line uncertainties taken as given, and a χ² improbable for its degrees of freedom is warned of (CHI_SQUARE_HIGH, CHI_SQUARE_LOW)',
+      ),
     rejectionThreshold: realNumber()
       .min(0)
       .max(1000)
       .optional()
-      .describe('studentised-residual threshold for rejecting a line (default 4; 0 turns rejection off)'),
-    maxRejectedFraction: realNumber().min(0).max(0.5).optional().describe('default 0.2'),
+      .describe(
+        'externally studentised residual beyond which a line is rejected (default 4; raised to the two-sided normal quantile of 0.25/n for n lines when that is larger, i.e. from about 4 000 lines; 0 turns rejection off)',
+      ),
+    maxRejectedFraction: realNumber()
+      .min(0)
+      .max(0.5)
+      .optional()
+      .describe('largest fraction of the lines that outlier rejection may take out (default 0.2)'),
     termSignificance: positiveNumber()
       .lt(0.5)
       .optional()
@@ -511,8 +519,8 @@ const fitFields = {
       species: z.string(),
       band: z.string(),
       origin: Q.optional().describe('linear polyatomic: ν₀ = G_v′ − G_v″ of the B[J(J+1) − l²] form'),
-      lines: z.number().int(),
-      jRange: z.array(z.number().int()),
+      lines: z.number().int().describe('lines of this band in the fit (rejected lines not counted)'),
+      jRange: z.array(z.number().int()).describe('lowest and highest J″ of those lines'),
       upper: LinearLevelSchema.optional().describe('linear polyatomic'),
       lower: LinearLevelSchema.optional().describe('linear polyatomic'),
       label: z.string().optional().describe('linear polyatomic: the band in the trade notation, e.g. "00⁰1–00⁰0"'),
