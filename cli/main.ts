@@ -436,7 +436,11 @@ function runOne(
   );
   if (format === 'table') {
     io.out(
-      `${file}: ${r.verdict.toUpperCase()}\n${table([['check', 'status', 'message'], ...r.checks.map((c) => [c.id, c.status, c.message])])}\n`,
+      `${file}: ${r.verdict.toUpperCase()}\n${table([['check', 'status', 'message'], ...r.checks.map((c) => [c.id, c.status, c.message])])}\n${warningsOf(
+        r as unknown as Record<string, unknown>,
+      )
+        .map((w) => `warning: ${w}\n`)
+        .join('')}`,
     );
   }
   return {

@@ -103,6 +103,17 @@ describe('the CLI in CSV form', () => {
     expect(errLines).toEqual([...warnings.map((w) => `${file}: warning: ${w.message}`), CLI_NOTICE]);
   });
 
+  it('check as a table prints the fit’s warnings under the checks, as fit does', () => {
+    const json = run(['check', file, '--format', 'json']);
+    const warnings = (JSON.parse(json.out) as { fit: { warnings: { code: string; message: string }[] } }).fit.warnings;
+    expect(warnings.map((w) => w.code)).toContain('UNCERTAINTY_RESCALED');
+    const t = run(['check', file]);
+    expect(t.code).toBe(json.code);
+    const printed = t.out.split('\n').filter((l) => l.startsWith('warning: '));
+    expect(printed).toEqual(warnings.map((w) => `warning: ${w.message}`));
+    expect(t.out.trimEnd().endsWith(CLI_NOTICE)).toBe(true);
+  });
+
   it('predictions in CSV form carry the caution on stderr, the table alone on stdout', () => {
     const r = run(['predict', '--species', 'CO', '--bands', '1-0', '--jmax', '2', '--format', 'csv']);
     expect(r.code).toBe(0);
