@@ -5,6 +5,7 @@ import {
   type FitOptions,
   fitLineListDetailed,
   type LineInput,
+  type LineOutcome,
   type Warning,
 } from '../fit/fit-lines.js';
 import type { ScatterEstimate } from '../fit/weights.js';
@@ -374,15 +375,43 @@ export function candidateIndex(
     members[b]?.push(ci);
   });
   const givenKeys = new Set(given.map((g) => transitionKey(g.t)));
+  const candIndex = new Map<CandidateLine, number>();
+  for (let ci = 0; ci < cands.length; ci++) candIndex.set(cands[ci] as CandidateLine, ci);
+  const candGiven = new Uint8Array(cands.length);
+  if (givenKeys.size > 0)
+    for (let ci = 0; ci < cands.length; ci++)
+      if (givenKeys.has(transitionKey(cands[ci] as CandidateLine))) candGiven[ci] = 1;
   return {
     candBand,
-    bandCands: members.map((m) =>
-      copyInts(m.sort((x, y) => (cands[x] as CandidateLine).j - (cands[y] as CandidateLine).j || x - y)),
-    ),
+    bandCands: members.map((m) => byJ(cands, m)),
     bands: [...number.keys()],
-    candIndex: new Map(cands.map((c, i) => [c, i])),
-    candGiven: Uint8Array.from(cands, (c) => (givenKeys.size > 0 && givenKeys.has(transitionKey(c)) ? 1 : 0)),
+    candIndex,
+    candGiven,
   };
+}
+
+/** Largest candidate number byJ sorts as one number with its J″ (J″ · 2²¹ + number stays an exact double). */
+const BY_J_NUMBERS = 1 << 21;
+
+/**
+ * A band's candidate numbers in ascending J″, then number: sorted as numbers J″ · 2²¹ + number (no comparator),
+ * the same order as the comparison of (J″, number).
+ */
+export function byJ(cands: readonly CandidateLine[], members: readonly number[]): Int32Array {
+  const keys = floats(members.length);
+  for (let k = 0; k < members.length; k++) {
+    const ci = members[k] as number;
+    const j = (cands[ci] as CandidateLine).j;
+    if (!(ci < BY_J_NUMBERS && Number.isInteger(j) && j >= 0 && j < BY_J_NUMBERS))
+      return copyInts(
+        [...members].sort((x, y) => (cands[x] as CandidateLine).j - (cands[y] as CandidateLine).j || x - y),
+      );
+    keys[k] = j * BY_J_NUMBERS + ci;
+  }
+  keys.sort();
+  const out = ints(members.length);
+  for (let k = 0; k < keys.length; k++) out[k] = (keys[k] as number) % BY_J_NUMBERS;
+  return out;
 }
 
 /** A withdrawn pair (peak, candidate) as one number. */
@@ -931,7 +960,7 @@ export function withdrawRejected(
   stats: ResidualStatistics = residualStatistics(ctx, fit, next),
 ): number {
   let withdrawn = 0;
-  for (const l of fit.result.lines) {
+  for (const l of autoLines(fit, next)) {
     const c = next.get(l.index);
     if (c && l.status === 'rejected' && !explained(ctx, fit, stats, c, l)) {
       const k = pairKey(ctx, l.index, c);
@@ -1775,38 +1804,65 @@ export function residualGroups(
   auto: ReadonlyMap<number, CandidateLine>,
 ): { shifts: Map<number, number>; groups: Map<number, ResidualGroup>; pooled: ResidualGroup } {
   const nSources = ctx.sources.length;
-  const members: { key: number; index: number; residual: number }[] = [];
+  // The members as parallel lists (key, line, residual): no object per line.
+  const keys: number[] = [];
+  const lines: number[] = [];
+  const residuals: number[] = [];
   const byKey = new Map<number, number[]>();
-  for (const l of fit.result.lines) {
+  for (const l of autoLines(fit, auto)) {
     const c = auto.get(l.index);
     if (!c || l.status !== 'fitted' || l.residual === undefined) continue;
     const key = (ctx.candBand[ctx.candIndex.get(c) as number] as number) * nSources + sourceNumber(ctx, l.index);
-    members.push({ key, index: l.index, residual: l.residual });
-    const list = byKey.get(key) ?? [];
-    list.push(l.residual);
-    byKey.set(key, list);
+    keys.push(key);
+    lines.push(l.index);
+    residuals.push(l.residual);
+    const list = byKey.get(key);
+    if (list) list.push(l.residual);
+    else byKey.set(key, [l.residual]);
   }
   const shifts = new Map<number, number>();
   for (const [k, list] of byKey) shifts.set(k, list.length >= 3 ? robustMedian(list) : 0);
   const groups = new Map<number, ResidualGroup>();
   const pooled: ResidualGroup = { r: [], z: [], sigma: [] };
-  for (const m of members) {
-    const r = m.residual - (shifts.get(m.key) ?? 0);
-    const sigma = ctx.peaks[m.index]?.uncertainty;
-    let g = groups.get(m.key);
+  for (let m = 0; m < keys.length; m++) {
+    const key = keys[m] as number;
+    const r = (residuals[m] as number) - (shifts.get(key) ?? 0);
+    const sigma = ctx.peaks[lines[m] as number]?.uncertainty;
+    let g = groups.get(key);
     if (!g) {
       g = { r: [], z: [], sigma: [] };
-      groups.set(m.key, g);
+      groups.set(key, g);
     }
-    for (const into of [g, pooled]) {
-      if (sigma === undefined) into.r.push(r);
-      else {
-        into.z.push(r / sigma);
-        into.sigma.push(sigma);
-      }
-    }
+    addResidual(g, r, sigma);
+    addResidual(pooled, r, sigma);
   }
   return { shifts, groups, pooled };
+}
+
+/**
+ * The fit's records of the automatically assigned lines, in the order of the lines (ascending index): looked up by
+ * index (a fit's lines are those it was given, in order) rather than by scanning every line sent.
+ */
+export function autoLines(fit: DetailedFit, auto: ReadonlyMap<number, CandidateLine>): readonly LineOutcome[] {
+  const lines = fit.result.lines;
+  const at = copyInts([...auto.keys()]).sort();
+  const out: LineOutcome[] = [];
+  for (const i of at) {
+    const l = lines[i];
+    // Not the fit of these lines: every line, as they come.
+    if (l === undefined || l.index !== i) return lines;
+    out.push(l);
+  }
+  return out;
+}
+
+/** A residual into its group: in cm⁻¹ for a line without σ, in units of σ (and that σ) for a line with one. */
+function addResidual(into: ResidualGroup, r: number, sigma: number | undefined): void {
+  if (sigma === undefined) into.r.push(r);
+  else {
+    into.z.push(r / sigma);
+    into.sigma.push(sigma);
+  }
 }
 
 export function sameAssignments(a: ReadonlyMap<number, CandidateLine>, b: ReadonlyMap<number, CandidateLine>): boolean {
@@ -1836,16 +1892,19 @@ export function classScale(scale: ReadonlyMap<string, number>, c: CandidateLine,
 export function strayingScales(
   auto: ReadonlyMap<number, CandidateLine>,
   peaks: readonly PeakInput[],
+  groups: ReturnType<typeof scaleGroups> = scaleGroups(auto, peaks),
 ): Map<string, { bk: string; source: string; ratio: number }> {
-  const scale = intensityScales(auto, peaks);
+  const scale = intensityScales(auto, peaks, groups);
   const out = new Map<string, { bk: string; source: string; ratio: number }>();
-  for (const [i, c] of auto) {
-    const source = peaks[i]?.source ?? '';
-    const bk = bandKey(c);
-    const own = scale.get(scaleKey(bk, source));
-    const ref = classScale(scale, c, source);
+  // Judged once per group, in the order of its first line (the order the warnings are listed in).
+  const judged = new Set<ScaleGroup>();
+  for (const g of groups.ofLine) {
+    if (judged.has(g)) continue;
+    judged.add(g);
+    const own = scale.get(g.key);
+    const ref = scale.get(g.cls);
     if (own !== undefined && ref !== undefined && Math.abs(Math.log(own / ref)) > Math.log(BAND_RATIO_LIMIT))
-      out.set(scaleKey(bk, source), { bk, source, ratio: own / ref });
+      out.set(g.key, { bk: g.bk, source: g.source, ratio: own / ref });
   }
   return out;
 }
@@ -1859,15 +1918,18 @@ export function pruneImplausibleBands(
   offsets: OffsetVotes,
   auto: Map<number, CandidateLine>,
 ): void {
-  const bad = strayingScales(auto, ctx.peaks);
+  const groups = scaleGroups(auto, ctx.peaks);
+  const bad = strayingScales(auto, ctx.peaks, groups);
+  if (bad.size === 0) return;
+  let n = 0;
   for (const [i, c] of auto) {
-    const source = ctx.peaks[i]?.source ?? '';
-    const b = bad.get(scaleKey(bandKey(c), source));
-    if (!b || offsets.of(b.bk, source).established) continue;
+    const g = groups.ofLine[n++] as ScaleGroup;
+    const b = bad.get(g.key);
+    if (!b || offsets.of(b.bk, g.source).established) continue;
     auto.delete(i);
     ctx.intensityLeftOut.set(
       i,
-      `left out for its intensity: a match for ${transitionLabel(c)} by position, but that band's observed-to-predicted intensity ratio is ×${ratioText(b.ratio)} that of the main band${source ? ` of source "${source}"` : ''} (more than ×${BAND_RATIO_LIMIT} either way), so it was taken for a coincidence`,
+      `left out for its intensity: a match for ${transitionLabel(c)} by position, but that band's observed-to-predicted intensity ratio is ×${ratioText(b.ratio)} that of the main band${g.source ? ` of source "${g.source}"` : ''} (more than ×${BAND_RATIO_LIMIT} either way), so it was taken for a coincidence`,
     );
   }
 }
@@ -2037,37 +2099,90 @@ export function pruneThinBands(
 ): void {
   const count = new Map<string, number>();
   for (const g of given) count.set(bandKey(g.t), (count.get(bandKey(g.t)) ?? 0) + 1);
-  for (const c of auto.values()) count.set(bandKey(c), (count.get(bandKey(c)) ?? 0) + 1);
-  for (const [i, c] of auto) if ((count.get(bandKey(c)) ?? 0) < min) auto.delete(i);
+  // Each line's band key looked up once, in the map's order.
+  const keys: string[] = [];
+  for (const c of auto.values()) {
+    const k = bandKey(c);
+    keys.push(k);
+    count.set(k, (count.get(k) ?? 0) + 1);
+  }
+  let n = 0;
+  for (const i of auto.keys()) if ((count.get(keys[n++] as string) ?? 0) < min) auto.delete(i);
+}
+
+/** The automatic lines of one band within one source, with the observed/predicted intensity ratios of those that carry an intensity. */
+export interface ScaleGroup {
+  readonly species: string;
+  readonly bk: string;
+  readonly source: string;
+  /** scaleKey of the band and of its class within the source. */
+  readonly key: string;
+  readonly cls: string;
+  readonly ratios: number[];
+}
+
+/**
+ * The automatic lines grouped by band and source: each line's group (in the map's order), and the groups in the
+ * order of their first line with an intensity. A band's candidates share its band object: the keys are made once
+ * per band and source, not per line.
+ */
+export function scaleGroups(
+  auto: ReadonlyMap<number, CandidateLine>,
+  peaks: readonly PeakInput[],
+): { readonly ofLine: ScaleGroup[]; readonly withRatios: ScaleGroup[] } {
+  const byBand = new Map<CandidateLine['band'], Map<string, ScaleGroup>>();
+  const byKey = new Map<string, ScaleGroup>();
+  const ofLine: ScaleGroup[] = [];
+  const withRatios: ScaleGroup[] = [];
+  for (const [i, c] of auto) {
+    const source = peaks[i]?.source ?? '';
+    let bySource = byBand.get(c.band);
+    if (!bySource) {
+      bySource = new Map();
+      byBand.set(c.band, bySource);
+    }
+    let g = bySource.get(source);
+    if (!g || g.species !== c.species) g = scaleGroupOf(byKey, c, source, bySource);
+    ofLine.push(g);
+    const obs = peaks[i]?.intensity;
+    if (obs === undefined || !(obs > 0)) continue;
+    if (g.ratios.length === 0) withRatios.push(g);
+    g.ratios.push(obs / c.intensity);
+  }
+  return { ofLine, withRatios };
+}
+
+/** The group of a candidate's band within a source, by its key (made on first use; kept by band object when it may). */
+function scaleGroupOf(
+  byKey: Map<string, ScaleGroup>,
+  c: CandidateLine,
+  source: string,
+  bySource: Map<string, ScaleGroup>,
+): ScaleGroup {
+  const bk = bandKey(c);
+  const key = scaleKey(bk, source);
+  let g = byKey.get(key);
+  if (!g) {
+    g = { species: c.species, bk, source, key, cls: scaleKey(`#${bandClass(c)}`, source), ratios: [] };
+    byKey.set(key, g);
+  }
+  if (!bySource.has(source)) bySource.set(source, g);
+  return g;
 }
 
 /** Per band, the median ratio of observed to predicted intensity over the matched lines (three or more). */
 export function intensityScales(
   auto: ReadonlyMap<number, CandidateLine>,
   peaks: readonly PeakInput[],
+  groups: ReturnType<typeof scaleGroups> = scaleGroups(auto, peaks),
 ): Map<string, number> {
-  const ratios = new Map<string, number[]>();
-  const classOf = new Map<string, string>();
-  for (const [i, c] of auto) {
-    const obs = peaks[i]?.intensity;
-    if (obs === undefined || !(obs > 0)) continue;
-    const k = scaleKey(bandKey(c), peaks[i]?.source ?? '');
-    const list = ratios.get(k);
-    if (list) list.push(obs / c.intensity);
-    else {
-      // The band (and so its class) and the source make the key: its class's key is made once.
-      ratios.set(k, [obs / c.intensity]);
-      classOf.set(k, scaleKey(`#${bandClass(c)}`, peaks[i]?.source ?? ''));
-    }
-  }
   const out = new Map<string, number>();
   const best = new Map<string, number>();
-  for (const [k, r] of ratios) {
+  for (const { key, cls, ratios: r } of groups.withRatios) {
     if (r.length < 3) continue;
     // One median per band and source: its class takes the same value when this band has the most lines.
     const m = median(r);
-    out.set(k, m);
-    const cls = classOf.get(k) as string;
+    out.set(key, m);
     if (r.length > (best.get(cls) ?? 0)) {
       best.set(cls, r.length);
       out.set(cls, m);

@@ -45,14 +45,16 @@ export function bandStrengthGuess(band: Band): number {
  * when the intensities may be used.
  */
 export function uninformativeIntensities(peaks: readonly { intensity?: number }[]): string | undefined {
-  const values: number[] = [];
-  for (const p of peaks) {
-    if (p.intensity === undefined) return undefined;
-    values.push(p.intensity);
+  const n = peaks.length;
+  // Sorted as a typed array: numerically without a comparator (several times faster for a few hundred lines).
+  const values = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    const x = (peaks[i] as { intensity?: number }).intensity;
+    if (x === undefined) return undefined;
+    values[i] = x;
   }
-  const n = values.length;
   if (n < 2) return undefined;
-  values.sort((a, b) => a - b);
+  values.sort();
   const odd = n >= FLAT_WITH_ODD_MIN_LINES ? Math.max(1, Math.floor(n * FLAT_ODD_SHARE)) : 0;
   for (let skip = 0; skip <= odd; skip++) {
     // The n − skip consecutive values (in sorted order) with the smallest spread, `skip` odd lines left out.

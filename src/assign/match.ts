@@ -124,23 +124,24 @@ function takeGreedily(
   { peakOf, predOf }: Pairs,
   order: readonly number[],
 ): { matches: Match[]; competitions: Competition[] } {
-  const usedPeak = new Map<number, number>();
-  const usedPred = new Map<number, number>();
+  // Which peak took each prediction (−1: none yet), and whether each peak is taken: by number, no maps.
+  const peakTaken = new Uint8Array(sorted.length);
+  const winnerOf = new Int32Array(predictions.length).fill(-1);
   const matches: Match[] = [];
   const competitions: Competition[] = [];
   for (const n of order) {
     const pi = peakOf[n] as number;
     const ki = predOf[n] as number;
+    if (peakTaken[pi] === 1) continue;
     const pk = sorted[pi] as ObservedPeak;
     const pr = predictions[ki] as Prediction;
-    if (usedPeak.has(pi)) continue;
-    const winner = usedPred.get(ki);
-    if (winner !== undefined) {
+    const winner = winnerOf[ki] as number;
+    if (winner >= 0) {
       competitions.push({ peak: pk.index, winner: (sorted[winner] as ObservedPeak).index, prediction: pr.key });
       continue;
     }
-    usedPeak.set(pi, ki);
-    usedPred.set(ki, pi);
+    peakTaken[pi] = 1;
+    winnerOf[ki] = pi;
     matches.push({ prediction: pr, peak: pk, residual: pk.position - pr.position });
   }
   // A competition whose loser was matched elsewhere is no competition worth reporting.

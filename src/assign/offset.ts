@@ -65,7 +65,8 @@ function bestWindow(
 
 export function median(xs: readonly number[]): number {
   if (xs.length === 0) return Number.NaN;
-  const s = [...xs].sort((a, b) => a - b);
+  // A typed copy sorts numerically without a comparator (several times faster for a few hundred values).
+  const s = copyFloats(xs).sort();
   const m = s.length >> 1;
   return s.length % 2 ? (s[m] as number) : 0.5 * ((s[m - 1] as number) + (s[m] as number));
 }

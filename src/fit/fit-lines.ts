@@ -449,6 +449,17 @@ function detailedFit(
   input: readonly LineInput[],
 ): DetailedFit {
   const scale = mode === 'absolute' ? 1 : (reducedChiSquare(selected) ?? 1);
+  // The line predict asks about, one object refilled per call (predictWithVariance keeps nothing of it).
+  const asked: { -readonly [K in keyof Observation]: Observation[K] } = {
+    index: -1,
+    species: '',
+    upperV: 0,
+    lowerV: 0,
+    upperJ: 0,
+    lowerJ: 0,
+    position: 0,
+    weight: 1,
+  };
   return {
     result,
     ...(weighted.estimate ? { scatterEstimate: weighted.estimate } : {}),
@@ -458,16 +469,12 @@ function detailedFit(
       const ru = r?.get(tr.band.upper);
       const rl = r?.get(tr.band.lower);
       if (ru === undefined || rl === undefined || ru !== rl) return undefined;
-      return predictWithVariance(fit, {
-        index: -1,
-        species: tr.species,
-        upperV: tr.band.upper,
-        lowerV: tr.band.lower,
-        upperJ: upperJ(tr),
-        lowerJ: tr.j,
-        position: 0,
-        weight: 1,
-      });
+      asked.species = tr.species;
+      asked.upperV = tr.band.upper;
+      asked.lowerV = tr.band.lower;
+      asked.upperJ = upperJ(tr);
+      asked.lowerJ = tr.j;
+      return predictWithVariance(fit, asked);
     },
     scatterOfResiduals: () => scatterOfFit(input, observations, selected),
     lineSigma(tr, own) {

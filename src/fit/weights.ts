@@ -142,10 +142,28 @@ function scatterGroupOf(
   hooks: WeighHooks | undefined,
   labels: Map<string, string>,
 ): (o: Observation) => string {
+  // Each band's key made once per species and levels (asked once or twice per line and fit).
+  const bandKeys = new Map<string, Map<number, string>>();
+  const small = (v: number) => (v | 0) === v && v >= 0 && v < 65536;
+  const bandGroup = (o: Observation) => {
+    if (!small(o.upperV) || !small(o.lowerV)) return `band|${bandKeyOf(o)}`;
+    let bySpecies = bandKeys.get(o.species);
+    if (!bySpecies) {
+      bySpecies = new Map();
+      bandKeys.set(o.species, bySpecies);
+    }
+    const n = o.upperV * 65536 + o.lowerV;
+    let k = bySpecies.get(n);
+    if (k === undefined) {
+      k = `band|${bandKeyOf(o)}`;
+      bySpecies.set(n, k);
+    }
+    return k;
+  };
   return (o) => {
     const source = input[o.index]?.source;
     if (source !== undefined) return `source|${source}`;
-    if (!hooks) return `band|${bandKeyOf(o)}`;
+    if (!hooks) return bandGroup(o);
     const b = hooks.band(o);
     labels.set(b.key, b.label);
     return `band|${b.key}`;
@@ -182,14 +200,18 @@ function reusedScatter(
     if (n >= MIN_SCATTER_GROUP !== n0 >= MIN_SCATTER_GROUP) return undefined;
   }
   const sigmaOf = (k: string) => from.sigmas.get(k) ?? from.pooled;
+  // Member by member, not by spreading `from`: its reweighted observations are not needed here (see scatterOfFit).
   return {
-    ...from,
     observations: reweighted(observations, (o) => {
       const k = groupOfLine.get(o);
       return k === undefined ? undefined : 1 / sigmaOf(k) ** 2;
     }),
+    sigmas: from.sigmas,
+    pooled: from.pooled,
     counts,
     labels: new Map([...from.labels, ...labels]),
+    fallback: from.fallback,
+    estimatedAt: from.estimatedAt,
   };
 }
 
@@ -296,10 +318,15 @@ export function scatterOfFit(
     const k = groupOf(o);
     counts.set(k, (counts.get(k) ?? 0) + 1);
   }
+  // The reweighted observations only when asked for: a later fit that reuses the estimate weighs its own lines.
+  let reweighedLines: Observation[] | undefined;
   return {
-    observations: reweighted(observations, (o) =>
-      withoutSigma(o) ? 1 / (sigmas.get(groupOf(o)) ?? pooled) ** 2 : undefined,
-    ),
+    get observations() {
+      reweighedLines ??= reweighted(observations, (o) =>
+        withoutSigma(o) ? 1 / (sigmas.get(groupOf(o)) ?? pooled) ** 2 : undefined,
+      );
+      return reweighedLines;
+    },
     sigmas,
     pooled,
     counts,

@@ -177,9 +177,11 @@ export function levelModel(parameters: readonly Parameter[]): LinearModel {
       if (up === 0 && lo === 0) return 0;
       if (p.kind === 'T') return up - lo;
       const l = POWER[p.kind] as number;
-      const xu = o.upperJ * (o.upperJ + 1);
-      const xl = o.lowerJ * (o.lowerJ + 1);
-      return (CENTRIFUGAL_SIGN[l - 1] as number) * (up * xu ** l - lo * xl ** l);
+      // up·x_u^l − lo·x_l^l with the power of a level the parameter is not on left out: x^l is finite and ≥ 0, so
+      // 0·x^l is +0 and the difference has the same bits (a − 0 = a, 0 − b = 0 − b).
+      const a = up === 0 ? 0 : (o.upperJ * (o.upperJ + 1)) ** l;
+      const b = lo === 0 ? 0 : (o.lowerJ * (o.lowerJ + 1)) ** l;
+      return (CENTRIFUGAL_SIGN[l - 1] as number) * (a - b);
     },
     // The parameter's own key (species, kind letter, level): no other model's shared key has a level kind letter.
     columnKey: (p) => p.key,
