@@ -56,7 +56,12 @@ export const AssignmentSchema = z
   .strictObject({
     band: z
       .string()
-      .regex(/^\d{1,2}-\d{1,2}$/, 'band must be "v\'-v\'\'" (upper-lower, each 0 to 99), e.g. "1-0"')
+      .regex(/^\d{1,2}-\d{1,2}$/, {
+        error: (iss) =>
+          typeof iss.input === 'string' && /^\d{1,2}[‐‑‒–—−]\d{1,2}$/.test(iss.input)
+            ? `band "${iss.input}" is written with a dash; write the plain hyphen-minus "-", e.g. "1-0"`
+            : 'band must be "v\'-v\'\'" (upper-lower, each 0 to 99), e.g. "1-0"',
+      })
       .optional()
       .describe('diatomic: v\'-v\'\' (upper-lower), e.g. "1-0", "2-0", "0-0" for pure rotation'),
     upper: LinearLevelSchema.optional().describe('linear polyatomic: the upper level (instead of band)'),

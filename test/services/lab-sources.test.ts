@@ -122,3 +122,19 @@ describe('the CLI in CSV form', () => {
     expect(r.err.trimEnd()).toBe(CLI_NOTICE);
   });
 });
+
+describe('a band label copied from a paper', () => {
+  it.each(['1–0', '1−0', '2—0'])('"%s" is told to use the plain hyphen-minus', async (band) => {
+    const payload = { species: 'CO', lines: [{ position: 2147.0812, assignment: { band, branch: 'R', j: 0 } }] };
+    const r = await app().inject({ method: 'POST', url: '/v1/fits', payload });
+    expect(r.statusCode).toBe(400);
+    expect(r.json().code).toBe('VALIDATION_FAILED');
+    expect(r.json().detail).toContain(`band "${band}" is written with a dash; write the plain hyphen-minus "-"`);
+  });
+  it('a band that is no band keeps the form it must have', async () => {
+    const payload = { species: 'CO', lines: [{ position: 2147.0812, assignment: { band: 'v1', branch: 'R', j: 0 } }] };
+    const r = await app().inject({ method: 'POST', url: '/v1/fits', payload });
+    expect(r.statusCode).toBe(400);
+    expect(r.json().detail).toContain("band must be \"v'-v''\" (upper-lower, each 0 to 99)");
+  });
+});
