@@ -1067,17 +1067,7 @@ export function withholdAmbiguous(ctx: AssignContext, offsets: OffsetVotes, stat
   const free = new Map(ctx.free.map((p) => [p.index, p]));
   const peakOf = (i: number) => free.get(i) as ObservedPeak;
   ctx.sources.forEach((name, n) => {
-    const src: SourceRef = { name, n, bands: [] };
-    const preds = new Map<number, Prediction>();
-    ctx.bandCands.forEach((list, b) => {
-      const r = model.reach[b] as number;
-      if (r < 0) return;
-      for (const ci of list) {
-        if ((ctx.cands[ci] as CandidateLine).j > r) break;
-        const p = predictionOf(ctx, offsets, model, ci, src);
-        if (p && (p.tier ?? 0) === 0) preds.set(ci, p);
-      }
-    });
+    const preds = settledPredictions(ctx, offsets, model, { name, n, bands: [] });
     const sorted = [...preds].sort((a, b) => a[1].position - b[1].position);
     const at = copyFloats(sorted.map(([, p]) => p.position));
     // The widest tolerance any prediction has for a line of the source bounds the search around each line.
@@ -1100,16 +1090,10 @@ export function withholdAmbiguous(ctx: AssignContext, offsets: OffsetVotes, stat
         const other = labelChiSquare(q, pk);
         if (other === undefined) continue;
         const h = holder.get(cj);
-        let margin = other - mine;
-        if (h !== undefined) {
-          if (sourceNumber(ctx, h) !== n) continue;
-          // Held by another line: the exchange must be admissible for that line too.
-          const hp = peakOf(h);
-          const theirs = labelChiSquare(q, hp);
-          const swapped = labelChiSquare(own, hp);
-          if (theirs === undefined || swapped === undefined) continue;
-          margin += swapped - theirs;
-        }
+        if (h !== undefined && sourceNumber(ctx, h) !== n) continue;
+        const exchange = h === undefined ? 0 : exchangeCost(own, q, peakOf(h));
+        if (exchange === undefined) continue;
+        const margin = other - mine + exchange;
         if (margin >= AMBIGUITY_MARGIN) continue;
         const why = `left unassigned: ${transitionLabel(c)} and ${transitionLabel(ctx.cands[cj] as CandidateLine)} are predicted ${Math.abs(q.position - own.position).toPrecision(2)} cm-1 apart, and this line fits either within its uncertainty (χ² differs by ${margin.toFixed(1)}, less than ${AMBIGUITY_MARGIN})`;
         withheld.set(i, why);
@@ -1122,6 +1106,39 @@ export function withholdAmbiguous(ctx: AssignContext, offsets: OffsetVotes, stat
     ctx.notes.set(i, why);
   }
   return withheld.size;
+}
+
+/**
+ * The predictions the settled model makes for one source: every candidate of each fitted band up to the band's
+ * highest J″ assigned (its reach), first-tier predictions only, by candidate index.
+ */
+function settledPredictions(
+  ctx: AssignContext,
+  offsets: OffsetVotes,
+  model: ReturnType<typeof roundModel>,
+  src: SourceRef,
+): Map<number, Prediction> {
+  const preds = new Map<number, Prediction>();
+  ctx.bandCands.forEach((list, b) => {
+    const r = model.reach[b] as number;
+    if (r < 0) return;
+    for (const ci of list) {
+      if ((ctx.cands[ci] as CandidateLine).j > r) break;
+      const p = predictionOf(ctx, offsets, model, ci, src);
+      if (p && (p.tier ?? 0) === 0) preds.set(ci, p);
+    }
+  });
+  return preds;
+}
+
+/**
+ * What an exchange of labels costs the line that holds the other label (χ² of its taking `own` less that of keeping
+ * `theirs`); undefined when either label is inadmissible for it, so no exchange is possible.
+ */
+function exchangeCost(own: Prediction, theirs: Prediction, holder: ObservedPeak): number | undefined {
+  const kept = labelChiSquare(theirs, holder);
+  const swapped = labelChiSquare(own, holder);
+  return kept === undefined || swapped === undefined ? undefined : swapped - kept;
 }
 
 /** The widest tolerance any of the predictions has for a line whose σ is at most `maxSigma` (as the matcher bounds it). */
