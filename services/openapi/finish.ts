@@ -67,11 +67,11 @@ const jcampBody = text(
   'a JCAMP-DX 4.24 or 5 file: XYDATA (AFFN, PAC, SQZ, DIF, DUP), XYPOINTS or PEAK TABLE; species and temperature go in the query string',
   jcampExample,
 );
-const synonyms = (['position', 'uncertainty', 'intensity', 'band', 'branch', 'j'] as const)
+const synonyms = (['position', 'uncertainty', 'intensity', 'band', 'branch', 'j', 'source', 'id'] as const)
   .map((c) => `${c} (${CSV_COLUMN_NAMES[c].slice(1).join(', ') || 'no synonym'})`)
   .join('; ');
 const csvBody = text(
-  `a CSV line list read by header name, in any order, with the accepted synonyms in parentheses: ${synonyms}. A unit may follow a name ("position (MHz)") or stand in a row of units under the header; band, branch and j together give the assignment. Separators ",", ";", tab or spaces; with ";" or tab, decimal commas. Or a two-column spectrum whose header names absorbance or transmittance.`,
+  `a CSV line list read by header name, in any order, with the accepted synonyms in parentheses: ${synonyms}. A unit may follow a name ("position (MHz)") or stand in a row of units under the header; band, branch and j together give the assignment; source names the instrument a line came from. A name one or two typing slips from a known one is refused naming the column meant; other columns are not read. Separators ",", ";", tab or spaces; with ";" or tab, decimal commas. Or a two-column spectrum whose header names absorbance or transmittance.`,
   csvExample,
 );
 

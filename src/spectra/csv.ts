@@ -6,6 +6,10 @@ export interface CsvLine {
   readonly uncertainty?: number;
   readonly intensity?: number;
   readonly assignment?: { band: string; branch: 'P' | 'Q' | 'R'; j: number };
+  /** The instrument or file the line came from (lines without σ get it from their source's scatter). */
+  readonly source?: string;
+  /** The caller's name for the line, echoed in the answer. */
+  readonly id?: string;
 }
 
 export type CsvData =
@@ -34,7 +38,18 @@ export interface CsvLimits {
   readonly maxLines?: number;
 }
 
-type Column = 'position' | 'uncertainty' | 'intensity' | 'band' | 'branch' | 'j' | 'x' | 'absorbance' | 'transmittance';
+type Column =
+  | 'position'
+  | 'uncertainty'
+  | 'intensity'
+  | 'band'
+  | 'branch'
+  | 'j'
+  | 'source'
+  | 'id'
+  | 'x'
+  | 'absorbance'
+  | 'transmittance';
 
 /**
  * Column names a header may use, compared after lower-casing and removing spaces, dots, underscores, dashes,
@@ -55,11 +70,26 @@ export const CSV_COLUMN_NAMES: Readonly<Record<Column, readonly string[]>> = {
     'frequency',
     'freq',
   ],
-  uncertainty: ['uncertainty', 'unc', 'u', 'sigma', 'σ', 'stdev', 'sd', 'std', 'error', 'err', 'positionuncertainty'],
+  uncertainty: [
+    'uncertainty',
+    'unc',
+    'u',
+    'sigma',
+    'σ',
+    'stdev',
+    'stddev',
+    'sd',
+    'std',
+    'error',
+    'err',
+    'positionuncertainty',
+  ],
   intensity: ['intensity', 'int', 'strength', 'area', 'height', 'integratedintensity'],
   band: ['band', 'vibrationalband', 'transition', 'vv'],
   branch: ['branch'],
   j: ['j', 'jlower', 'jlow', "j''", 'j"', 'lowerj'],
+  source: ['source', 'instrument', 'spectrometer'],
+  id: ['id', 'lineid'],
   x: ['wavenumber', 'wavenumbers', 'x', 'wavelength', 'xvalue'],
   absorbance: ['absorbance', 'abs', 'y', 'signal'],
   transmittance: ['transmittance', 'transmission', '%t'],
@@ -84,12 +114,12 @@ function unitOf(raw: string): PositionUnit | undefined {
 }
 
 /** A header cell → its column (or undefined) and the unit written beside it. */
-function readHeaderCell(cell: string): { column?: Column; unit?: string } {
+function readHeaderCell(cell: string): { column?: Column; unit?: string; name?: string } {
   const m = UNIT_IN_HEADER.exec(cell);
   const unit = m ? (m[1] ?? m[2] ?? m[3]) : undefined;
   const name = (m ? cell.slice(0, m.index) : cell).toLowerCase().replace(/[\s._\-"`]/g, '');
   const column = LOOKUP.get(name) ?? LOOKUP.get(cell.toLowerCase().replace(/\s/g, ''));
-  return { ...(column ? { column } : {}), ...(unit !== undefined ? { unit } : {}) };
+  return { ...(column ? { column } : { name }), ...(unit !== undefined ? { unit } : {}) };
 }
 
 function fail(line: number, message: string, details: Record<string, unknown> = {}): never {
@@ -365,10 +395,11 @@ function readLineList(
 /** Where each field is: by header name, or position[, intensity[, uncertainty]] without a header. */
 function lineListColumns(
   headerLine: number,
-  columns: readonly { column?: Column; unit?: string }[] | undefined,
+  columns: readonly { column?: Column; unit?: string; name?: string }[] | undefined,
 ): Partial<Record<Column, number>> {
   const at: Partial<Record<Column, number>> = {};
   if (!columns) return { position: 0, intensity: 1, uncertainty: 2 };
+  refuseNearMisses(headerLine, columns);
   columns.forEach((c, k) => {
     const col = c.column === 'x' ? 'position' : c.column;
     if (col === undefined || col === 'absorbance' || col === 'transmittance') return;
@@ -381,6 +412,55 @@ function lineListColumns(
     });
   }
   return at;
+}
+
+/**
+ * A header name the reader does not know but that is one or two typing slips from one it reads ("uncertainity",
+ * "postion", "intesity") is refused naming the column meant: read as an unknown column it would be left out
+ * silently, and the lines fitted without their σ. Other unknown columns (a peak picker's "fwhm" or "snr") are not
+ * read, as before.
+ */
+function refuseNearMisses(headerLine: number, columns: readonly { column?: Column; name?: string }[]): void {
+  for (const c of columns) {
+    if (c.column !== undefined || c.name === undefined || c.name.length < 5) continue;
+    const meant = nearestColumnName(c.name);
+    if (meant)
+      fail(
+        headerLine,
+        `the column "${c.name}" is not one the reader knows; did you mean "${meant}"? Rename it, or remove the column`,
+        { column: c.name, meant },
+      );
+  }
+}
+
+/**
+ * The documented or synonym name near `name`: one edit from a name of 4 to 6 characters, two from a longer one (so
+ * that a short name of another meaning, "time" beside "line", is not taken for a slip).
+ */
+function nearestColumnName(name: string): string | undefined {
+  for (const known of LOOKUP.keys())
+    if (known.length >= 4 && editDistance(name, known) <= (known.length > 6 ? 2 : 1)) return known;
+  return undefined;
+}
+
+/** Insertions, deletions, substitutions and adjacent swaps that turn a into b (Damerau, optimal string alignment). */
+function editDistance(a: string, b: string): number {
+  if (Math.abs(a.length - b.length) > 2) return 3;
+  let prev2: number[] = [];
+  let prev = Array.from({ length: b.length + 1 }, (_, j) => j);
+  for (let i = 1; i <= a.length; i++) {
+    const row = [i];
+    for (let j = 1; j <= b.length; j++) {
+      const cost = a[i - 1] === b[j - 1] ? 0 : 1;
+      let d = Math.min((prev[j] as number) + 1, (row[j - 1] as number) + 1, (prev[j - 1] as number) + cost);
+      if (i > 1 && j > 1 && a[i - 1] === b[j - 2] && a[i - 2] === b[j - 1])
+        d = Math.min(d, (prev2[j - 2] as number) + 1);
+      row.push(d);
+    }
+    prev2 = prev;
+    prev = row;
+  }
+  return prev[b.length] as number;
 }
 
 /** The position column's unit from its header or units row; refused when given but not one we read. */
@@ -427,10 +507,16 @@ function lineOfRow(r: CsvRow, at: Partial<Record<Column, number>>, assigned: boo
       assignment = { band, branch, j: jv };
     }
   }
+  const source = cell(at.source).trim();
+  const id = cell(at.id).trim();
+  if (source.length > 100 || id.length > 100)
+    fail(r.line, `a ${source.length > 100 ? 'source' : 'id'} is longer than 100 characters`);
   return {
     position,
     ...(uncertainty !== undefined ? { uncertainty } : {}),
     ...(intensity !== undefined ? { intensity } : {}),
     ...(assignment ? { assignment } : {}),
+    ...(source !== '' ? { source } : {}),
+    ...(id !== '' ? { id } : {}),
   };
 }

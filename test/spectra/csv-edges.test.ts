@@ -48,8 +48,12 @@ describe('what makes a line list', () => {
 
   it('header names with dots, underscores or dashes, and a unit in brackets', () => {
     const d = lines(parseCsv('Line_Centre [MHz],std.dev,Integrated-Intensity\n115271.2018,0.0005,3\n'));
-    // "std.dev" is no documented name: left out; the other two are position and intensity.
-    expect(d).toStrictEqual({ kind: 'lines', lines: [{ position: 115271.2018, intensity: 3 }], unit: 'MHz' });
+    // "std.dev" is a synonym of uncertainty (before 2026-12-04 it was left out, and the line fitted without its σ).
+    expect(d).toStrictEqual({
+      kind: 'lines',
+      lines: [{ position: 115271.2018, uncertainty: 0.0005, intensity: 3 }],
+      unit: 'MHz',
+    });
   });
 
   it('spaces after the delimiter do not reach the band and branch', () => {
