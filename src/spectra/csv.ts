@@ -428,7 +428,7 @@ function refuseNearMisses(headerLine: number, columns: readonly { column?: Colum
       fail(
         headerLine,
         `the column "${c.name}" is not one the reader knows; did you mean "${meant}"? Rename it, or remove the column`,
-        { column: c.name, meant },
+        { header: c.name, meant },
       );
   }
 }

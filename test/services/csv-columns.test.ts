@@ -82,5 +82,8 @@ describe('CSV line-list columns', () => {
     expect(r.statusCode).toBeLessThan(500);
     expect(r.headers['content-type']).toContain('application/problem+json');
     expect(r.json().detail).toContain('did you mean "uncertainty"');
+    // A header the reader cannot take is the file's structure (422 INPUT_INVALID), not a bad number in a cell.
+    expect(r.statusCode).toBe(422);
+    expect(r.json().detail).not.toContain('finite number');
   });
 });
