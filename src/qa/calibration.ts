@@ -29,6 +29,8 @@ export interface ReferenceCalibration {
   readonly centre: number;
   readonly lines: number;
   readonly nuisance: readonly string[];
+  /** The library's own constants carried with their uncertainties ("ω_e ± 3e-4"), when those were given. */
+  readonly libraryConstants: readonly string[];
   readonly reference: string;
 }
 
@@ -52,11 +54,13 @@ export function calibrateAgainstLibrary(
   y: ReadonlyMap<string, number>,
   reference: string,
   scaleLimitPpm: number,
+  librarySigma?: ReadonlyMap<string, number>,
 ): ReferenceCalibration | undefined {
   if (pts.length < 3) return undefined;
   const nuisance = nuisanceTerms(y);
+  const own = libraryCorrections(y, librarySigma);
   const refs = referencePositions(pts, y);
-  const system = calibrationSystem(pts, refs, nuisance);
+  const system = calibrationSystem(pts, refs, [...nuisance, ...own]);
   const { cols } = system;
   const r = solveLeastSquares({ ...system, conditionNumber: false });
   if (r.rankDeficient) return undefined;
@@ -72,6 +76,7 @@ export function calibrateAgainstLibrary(
     centre: system.centre,
     lines: pts.length,
     nuisance: nuisance.map((t) => t.name),
+    libraryConstants: own.map((t) => `${t.name} ± ${t.sigma.toPrecision(2)}`),
     reference,
   };
 }
@@ -99,6 +104,31 @@ function nuisanceTerms(y: ReadonlyMap<string, number>): NuisanceTerm[] {
     if (Number.isFinite(H) && H !== 0) nuisance.push({ k: 0, l: 3, mean: H, sigma: 0.5 * Math.abs(H), name: 'H_e' });
   }
   return nuisance;
+}
+
+const CUSTOMARY: Record<string, string> = {
+  '1,0': 'ω_e',
+  '2,0': 'ω_e x_e',
+  '3,0': 'ω_e y_e',
+  '4,0': 'ω_e z_e',
+  '0,1': 'B_e',
+  '1,1': 'α_e',
+  '0,2': 'D_e',
+};
+
+/**
+ * The library's own constants as corrections 0 ± σ to the values the positions were predicted with: the constants
+ * are not exact (finite digits, older data, recalled values, mass scaling), and the offset of a single band is
+ * exactly as uncertain as the library's band origin. Without σ (or σ = 0) a constant is taken as exact.
+ */
+function libraryCorrections(y: ReadonlyMap<string, number>, sigma?: ReadonlyMap<string, number>): NuisanceTerm[] {
+  if (!sigma) return [];
+  return [...y.keys()].flatMap((key) => {
+    const s = sigma.get(key);
+    if (s === undefined || !(s > 0)) return [];
+    const [k, l] = key.split(',').map(Number) as [number, number];
+    return [{ k, l, mean: 0, sigma: s, name: CUSTOMARY[key] ?? `Y${k}${l}` }];
+  });
 }
 
 /** Each point's position predicted from the library's Dunham coefficients. */

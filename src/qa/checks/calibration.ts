@@ -9,6 +9,7 @@ import {
   guardBandedStatus,
   type ReferenceCalibration,
 } from '../calibration.js';
+import { libraryUncertainties } from '../library-uncertainty.js';
 import { plusMinus } from '../plus-minus.js';
 import { type Check, type CheckStatus, notEvaluated, RANK, type Tolerances } from './common.js';
 
@@ -29,6 +30,7 @@ export function calibrationCheck(
     dunhamFromEntry(entry),
     `reference-library positions of ${main}`,
     tol.calibrationScalePpm,
+    libraryUncertainties(entry),
   );
   if (!c) return notEvaluated('calibration', 'fewer than three fitted lines of the main species with J″ ≤ 20');
   const status = calibrationStatus(c, tol);
@@ -43,6 +45,7 @@ export function calibrationCheck(
       lines: c.lines,
       reference: c.reference,
       libraryTermsCarried: c.nuisance,
+      libraryConstantsCarried: c.libraryConstants,
     },
     limit,
     message: calibrationMessage(c, status, tol),
@@ -97,7 +100,7 @@ function calibrationMessage(c: ReferenceCalibration, status: CheckStatus, tol: T
   const beyondButNotSignificant =
     Math.abs(c.offset.value) > tol.calibrationOffset ||
     (c.scale !== undefined && Math.abs(c.scale.value) > tol.calibrationScalePpm);
-  const found = `offset ${plusMinus(c.offset.value, c.offset.uncertainty, 4)} cm-1 at ${c.centre.toFixed(1)} cm-1 (the weighted centre of ${c.lines} lines, fitted against the library with its missing terms carried; fit.assignment.calibration is the assignment's search estimate, which leaves them out)${c.scale ? `, scale ${plusMinus(c.scale.value, c.scale.uncertainty, 1)} ppm` : ''}`;
+  const found = `offset ${plusMinus(c.offset.value, c.offset.uncertainty, 4)} cm-1 at ${c.centre.toFixed(1)} cm-1 (the weighted centre of ${c.lines} lines, fitted against the library with its missing terms and the uncertainty of its own constants carried; fit.assignment.calibration is the assignment's search estimate, which leaves them out)${c.scale ? `, scale ${plusMinus(c.scale.value, c.scale.uncertainty, 1)} ppm` : ''}`;
   const scaleNote =
     c.scaleUndetermined !== undefined
       ? `; the scale is not determined by these lines (σ would be ${c.scaleUndetermined.toFixed(0)} ppm, more than a third of the ${tol.calibrationScalePpm} ppm limit) and is not judged`
