@@ -31,9 +31,10 @@ import type { LevelSelection } from './level-selection.js';
  * Prior uncertainties (stated, conservative):
  * - a relation or library value without uncertainty: ± 50 % of its value (the Kratzer and H_e relations hold to a
  *   few per cent for CO and the hydrogen halides; the margin covers molecules where they do not);
- * - no value at all (γ_e, β_e and ω_e y_e of most molecules): 0 ± 5 κ |Y_{k−1,l}|, κ = B_e/ω_e, Dunham's ordering
- *   parameter (each step in k scales a coefficient by about κ; |β_e/D_e| of HCl reaches about 8κ, which this
- *   covers at 1.6σ).
+ * - no value at all (γ_e and ω_e y_e of most molecules): 0 ± 5 κ |Y_{k−1,l}|, κ = B_e/ω_e, Dunham's ordering
+ *   parameter (each step in k scales a coefficient by about κ);
+ * - β_e without a library value: its relation to D_e, ω_e x_e, α_e, B_e, ω_e (betaPrior), σ on the bracket. At 0 ±
+ *   5κ|Y02| it sat 0.8σ from H³⁵Cl's β_e and biased B_e and D_e of short lists by half their σ.
  */
 export interface TermConstraint {
   /** Parameter name, e.g. "H_0" or "Y30". */
@@ -454,8 +455,43 @@ function neighbourPriors({ species, ref, has, y, omega, B }: KnownTerms): Dunham
   // over 200 H³⁵Cl fits, test/fit/pulls.test.ts).
   add(4, 0, ref.omega_e_z_e, 'ω_e z_e');
   add(2, 1, ref.gamma_e, 'γ_e');
+  if (ref.beta_e === undefined && !has(1, 2) && has(0, 2)) {
+    const b = betaPrior(species, y, omega, B);
+    if (b) {
+      out.push(b);
+      return out;
+    }
+  }
   add(1, 2, ref.beta_e !== undefined ? -ref.beta_e : undefined, 'β_e');
   return out;
+}
+
+/**
+ * Y12 = −β_e from the relation β_e = D_e (8 ω_e x_e/ω_e − 5 α_e/B_e − α_e² ω_e/(24 B_e³)) with the fitted D_e,
+ * ω_e x_e, α_e, B_e, ω_e. The bracket cancels (H³⁵Cl −0.014 of terms near 0.14; ¹²C¹⁶O −1.8e-4 of terms near
+ * 0.049), so σ is stated on the bracket: max(½|bracket|, 5 % of 8 ω_e x_e/ω_e).
+ */
+function betaPrior(
+  species: string,
+  y: (k: number, l: number) => number | undefined,
+  omega: number | undefined,
+  B: number | undefined,
+): DunhamPrior | undefined {
+  const D = -(y(0, 2) ?? 0);
+  const x = -(y(2, 0) ?? Number.NaN);
+  const alpha = -(y(1, 1) ?? Number.NaN);
+  if (omega === undefined || B === undefined || !(D > 0) || !(omega > 0) || !(B > 0)) return undefined;
+  const first = (8 * x) / omega;
+  const bracket = first - (5 * alpha) / B - (alpha * alpha * omega) / (24 * B ** 3);
+  if (!Number.isFinite(bracket)) return undefined;
+  const sigma = D * Math.max(0.5 * Math.abs(bracket), 0.05 * Math.abs(first));
+  return {
+    key: `${species}|Y|1,2`,
+    value: -D * bracket,
+    sigma,
+    term: { k: 1, l: 2 },
+    basis: 'β_e ≈ D_e(8ω_e x_e/ω_e − 5α_e/B_e − α_e²ω_e/(24B_e³)), σ on the bracket',
+  };
 }
 
 /** Y02 (−D_e) when no level fitted D, Y03 (H_e) next to Y02, Y04 (L_e) next to Y03. */

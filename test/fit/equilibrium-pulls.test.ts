@@ -105,8 +105,8 @@ const summaries = (jMax: number) => {
 };
 
 describe('equilibrium constants: pulls over 600 seeded lists with higher terms than the models (3 molecules × 200)', () => {
-  // Measured (2026-12-04): ω_e 1σ 0.898, 2σ 0.983; ω_e x_e 0.885, 0.985; B_e and r_e 0.673, 0.947; α_e 0.670,
-  // 0.918; D_e 0.683, 0.952 (SD of the pulls 0.56–1.10).
+  // Measured (2026-12-04, β_e prior from the relation): ω_e 1σ 0.898, 2σ 0.983; ω_e x_e 0.885, 0.985; B_e and r_e
+  // 0.675, 0.950; α_e 0.672, 0.918; D_e 0.680, 0.952 (SD of the pulls 0.56–1.10).
   it('many lines (J″ ≤ 20): every quantity has |pull| ≤ 1 in ≥ 60 % and ≤ 2 in ≥ 90 % of the lists', () => {
     const t = summaries(20);
     for (const q of QUANTITIES) {
@@ -117,26 +117,21 @@ describe('equilibrium constants: pulls over 600 seeded lists with higher terms t
     }
   });
 
-  // Few lines (J″ ≤ 5, 22–44 lines): ω_e, ω_e x_e and α_e meet the bar (measured 0.885/0.980, 0.888/0.975,
-  // 0.632/0.902). B_e, r_e and D_e do NOT (measured B_e, r_e 0.613/0.895, SD 1.21; D_e 0.526/0.882, SD 1.34, in
-  // the 441 lists where it is determined): known overconfidence, left open (DEVELOPERS.md, "Equilibrium constants:
-  // pulls"). Its causes, measured on 300 H³⁵Cl 1-0 + 2-0 lists with σ given: β_e (Y12) carried at its prior 0 while
-  // the truth is 0.8 prior σ away (B_e mean pull −0.47, D_e −0.65, RMS 1.05–1.10, 80 % of the lists); Y12 chosen by
-  // the term test when the noise favours it (16 %: RMS 1.26 and 1.37, means +0.75 and +1.16); one of the 22 lines
-  // rejected as an outlier (4 %: RMS 1.7–2.5); without σ, the Student-t of a scatter from 13–35 degrees of freedom.
-  // The bars below only keep it from getting worse.
-  it('few lines (J″ ≤ 5): ω_e, ω_e x_e, α_e at the bar; B_e, r_e, D_e at the known shortfall', () => {
+  // Few lines (J″ ≤ 5, 22–44 lines), measured: ω_e 0.885/0.980, ω_e x_e 0.888/0.975, α_e 0.627/0.907, B_e and r_e
+  // 0.630/0.900 (pull SD 1.18), D_e 0.567/0.900 (SD 1.26, in the 441 lists where it is determined). Before β_e was
+  // centred on its relation (src/fit/truncation.ts, betaPrior) B_e and r_e were 0.613/0.895 and D_e 0.526/0.882:
+  // β_e carried at 0 ± 5κ|Y02| while the truth is 0.8 prior σ away put B_e and D_e mean pulls at −0.47 and −0.65 in
+  // the 80 % of H³⁵Cl 1-0 + 2-0 lists where Y12 is constrained (now −0.07, −0.14). D_e still falls short at 1σ: the
+  // term test adds Y12 when the noise favours it (16 % of those lists: B_e, D_e RMS 1.26, 1.37, means +0.75, +1.16),
+  // a good line is rejected as an outlier out of 22 (4 %: RMS 1.7–2.5), and without σ the scatter has only 13–35
+  // degrees of freedom (Student t). Left open (DEVELOPERS.md, "Equilibrium constants: pulls"); its bar keeps it from
+  // getting worse.
+  it('few lines (J″ ≤ 5): every quantity at the bar but D_e at 1σ (known shortfall)', () => {
     const t = summaries(5);
-    for (const q of ['omega_e', 'omega_e_x_e', 'alpha_e'] as const) {
-      expect(t.summary(q).within1, q).toBeGreaterThanOrEqual(0.6);
+    for (const q of QUANTITIES) {
+      expect(t.summary(q).within1, q).toBeGreaterThanOrEqual(q === 'D_e' ? 0.55 : 0.6);
       expect(t.summary(q).within2, q).toBeGreaterThanOrEqual(0.9);
     }
-    for (const q of ['B_e', 'r_e'] as const) {
-      expect(t.summary(q).within1, q).toBeGreaterThanOrEqual(0.6);
-      expect(t.summary(q).within2, q).toBeGreaterThanOrEqual(0.88);
-    }
     expect(t.summary('D_e').n).toBeGreaterThanOrEqual(400);
-    expect(t.summary('D_e').within1).toBeGreaterThanOrEqual(0.5);
-    expect(t.summary('D_e').within2).toBeGreaterThanOrEqual(0.87);
   });
 });

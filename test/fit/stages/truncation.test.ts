@@ -36,6 +36,20 @@ describe('the relations behind the priors, against published CO constants', () =
   });
 });
 
+describe('the β_e relation against published CO level constants', () => {
+  it('β_e from the relation and Huber & Herzberg is within its prior σ of D_1 − D_0 (Gendriesch et al. 2009)', () => {
+    // D_0 = 183.50489, D_1 = 183.4903 kHz (Gendriesch et al., A&A 497, 927 (2009), Table 2, shared fixture).
+    const beta = (183.4903 - 183.50489) / 1e3 / MHZ_PER_WAVENUMBER;
+    const first = (8 * HH.omega_e_x_e) / HH.omega_e;
+    const bracket = first - (5 * HH.alpha_e) / HH.B_e - (HH.alpha_e ** 2 * HH.omega_e) / (24 * HH.B_e ** 3);
+    const sigma = D_E * Math.max(Math.abs(bracket) / 2, 0.05 * first);
+    expect(Math.abs(D_E * bracket - beta)).toBeLessThan(sigma);
+    // The relation's sign is right for CO, and the bracket cancels to under 1 % of its first term.
+    expect(Math.sign(D_E * bracket)).toBe(Math.sign(beta));
+    expect(Math.abs(bracket / first)).toBeLessThan(0.01);
+  });
+});
+
 describe('dunhamPriors', () => {
   const values = new Map([
     ['1,0', HH.omega_e],
@@ -49,7 +63,7 @@ describe('dunhamPriors', () => {
     return { k: a, l: b };
   });
 
-  it('CO with Y10, Y20, Y01, Y11, Y02: Y30 from the library, Y21 and Y12 scale priors, Y03 from the H relation', () => {
+  it('CO with Y10, Y20, Y01, Y11, Y02: Y30 from the library, Y21 a scale prior, Y12 and Y03 from relations', () => {
     const p = dunhamPriors('12C-16O', terms, values);
     expect(p.map((x) => x.key)).toEqual(['12C-16O|Y|3,0', '12C-16O|Y|2,1', '12C-16O|Y|1,2', '12C-16O|Y|0,3']);
     const kappa = HH.B_e / HH.omega_e;
@@ -60,7 +74,12 @@ describe('dunhamPriors', () => {
     expect(y21?.value).toBe(0);
     expect(y21?.sigma).toBeCloseTo(SCALE_PRIOR_FACTOR * kappa * HH.alpha_e, 15);
     expect(y21?.basis).toBe('not determined by the lines: 0 ± 5 (B_e/ω_e) |Y11| (Dunham ordering)');
-    expect(y12?.sigma).toBeCloseTo(SCALE_PRIOR_FACTOR * kappa * D_E, 20);
+    // β_e = D_e (8 ω_e x_e/ω_e − 5 α_e/B_e − α_e² ω_e/(24 B_e³)), Y12 = −β_e; σ = D_e max(|bracket|/2, 0.05 · 8 ω_e x_e/ω_e).
+    const first = (8 * HH.omega_e_x_e) / HH.omega_e;
+    const bracket = first - (5 * HH.alpha_e) / HH.B_e - (HH.alpha_e ** 2 * HH.omega_e) / (24 * HH.B_e ** 3);
+    expect(y12?.value).toBeCloseTo(-D_E * bracket, 22);
+    expect(y12?.sigma).toBeCloseTo(D_E * Math.max(Math.abs(bracket) / 2, 0.05 * first), 22);
+    expect(y12?.basis).toBe('β_e ≈ D_e(8ω_e x_e/ω_e − 5α_e/B_e − α_e²ω_e/(24B_e³)), σ on the bracket');
     const h = hFromRelation(D_E, HH.B_e, HH.alpha_e, HH.omega_e);
     expect(y03?.value).toBeCloseTo(h, 25);
     expect(y03?.sigma).toBeCloseTo(0.5 * h, 25);
