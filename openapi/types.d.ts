@@ -823,7 +823,7 @@ export interface components {
       intensity?: number;
       /** @description line position in the request unit */
       position: number;
-      /** @description label of the instrument or file the line came from: lines without an uncertainty get σ from the scatter of their source; stated σ that disagree with the other sources are rescaled per source (UNCERTAINTY_RESCALED); a source whose mean residual lies off zero is named (SOURCE_MEAN_RESIDUALS: an offset between sources, which the fit does not remove) */
+      /** @description label of the instrument or file the line came from: lines without an uncertainty get σ from the scatter of their source; stated σ that disagree with the other sources are rescaled per source (UNCERTAINTY_RESCALED); the offset of each source that the shared levels determine (against the source of most weight when only relative offsets are determined) is reported in SOURCE_MEAN_RESIDUALS, which names the source that lies off beyond 3σ, and a source whose bands share no level or loop with those of another source is named in SOURCE_OFFSET_UNIDENTIFIABLE; the fit does not remove an offset, and the calibration check does not pass while the sources disagree */
       source?: string;
       /** @description standard uncertainty in the request unit; at least 1e-15 of the position (a double resolves the position to about 2e-16 of it) */
       uncertainty?: number;

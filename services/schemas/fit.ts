@@ -124,7 +124,7 @@ export const LineSchema = z
         .max(100)
         .optional()
         .describe(
-          'label of the instrument or file the line came from: lines without an uncertainty get σ from the scatter of their source; stated σ that disagree with the other sources are rescaled per source (UNCERTAINTY_RESCALED); a source whose mean residual lies off zero is named (SOURCE_MEAN_RESIDUALS: an offset between sources, which the fit does not remove)',
+          'label of the instrument or file the line came from: lines without an uncertainty get σ from the scatter of their source; stated σ that disagree with the other sources are rescaled per source (UNCERTAINTY_RESCALED); the offset of each source that the shared levels determine (against the source of most weight when only relative offsets are determined) is reported in SOURCE_MEAN_RESIDUALS, which names the source that lies off beyond 3σ, and a source whose bands share no level or loop with those of another source is named in SOURCE_OFFSET_UNIDENTIFIABLE; the fit does not remove an offset, and the calibration check does not pass while the sources disagree',
         ),
       assignment: AssignmentSchema.optional(),
     },

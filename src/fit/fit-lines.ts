@@ -143,6 +143,7 @@ function listChecks(
     input.map((l) => l.source),
     report.lines,
     warnings,
+    { fit: selected, mode: kept.mode },
   );
   // A mode turned absolute to keep the stated σ already says why; "consider a-posteriori" would contradict it.
   if (!kept.statedKept) absoluteScaleWarnings(selected, kept.mode, warnings);

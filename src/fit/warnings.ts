@@ -2,7 +2,8 @@ import type { Observation } from '../models/linear-model.js';
 import { transitionLabel } from '../models/transitions.js';
 import { plusMinus } from '../qa/plus-minus.js';
 import { chiSquareCdf, chiSquareSurvival } from '../stats/distributions.js';
-import { reducedChiSquare, type SolvedModel } from './engine.js';
+import { reducedChiSquare, type SolvedModel, type UncertaintyMode } from './engine.js';
+import { estimateSourceOffsets, type SourceOffset, type SourceOffsets } from './source-offsets.js';
 import type { Warning } from './types.js';
 
 /* Stage 7: warnings about the fit as a whole (repeated lines that disagree, few degrees of freedom, conditioning,
@@ -130,15 +131,63 @@ class DistinctPositions {
 }
 
 /**
- * Lines from two or more sources (the line's `source`): each source's mean residual against the joint fit, with its
- * standard error (SD/√n), when some source's mean lies more than 3 standard errors from zero. A calibration offset
- * between instruments shows here, before it is taken for scatter (`UNCERTAINTY_RESCALED`).
+ * Lines from two or more sources (the line's `source`). Each source's mean residual against the joint fit is listed
+ * (SD/√n), but a fit absorbs much of a shift between instruments into the origins, and what is left spreads over
+ * every source: the source named is the one whose relative offset (`estimateSourceOffsets`: the offset against the
+ * reference source that the shared levels determine) lies more than 3σ from zero. A source whose bands share no
+ * level with another source's cannot be compared: `SOURCE_OFFSET_UNIDENTIFIABLE` names it and its bands.
  */
 export function checkSourceOffsets(
   sources: readonly (string | undefined)[],
   lines: readonly { readonly index: number; readonly status: string; readonly residual?: number }[],
   warnings: Warning[],
-): void {
+  level?: { readonly fit: SolvedModel; readonly mode: UncertaintyMode },
+): SourceOffsets | undefined {
+  const stats = meanResidualsBySource(sources, lines);
+  if (stats.length < 2) return undefined;
+  const offsets = level ? estimateSourceOffsets(level.fit, sources, level.mode) : undefined;
+  if (!offsets) return undefined;
+  // Most significant first: a large shift of one source leaks a little into the others' estimates (the level model
+  // was chosen with the shift in the lines), so the first named is the one shifted, the rest are noted after it.
+  const z = (x: SourceOffset) => Math.abs((x.offset as number) / (x.uncertainty as number));
+  const off = offsets.offsets
+    .filter((x) => x.offset !== undefined && x.uncertainty !== undefined && Math.abs(x.offset) > 3 * x.uncertainty)
+    .sort((a, b) => z(b) - z(a));
+  for (const x of offsets.unidentified) {
+    warnings.push({
+      code: 'SOURCE_OFFSET_UNIDENTIFIABLE',
+      message: `band${x.bands.length === 1 ? '' : 's'} ${x.bands.join(', ')} of source ${x.source} cannot be compared with the lines of another source (no shared level or loop of bands): an offset of ${x.source} cannot be told from a change of ${x.bands.length === 1 ? 'its origin' : 'their origins'}, which ${x.bands.length === 1 ? 'is' : 'are'} only as good as the calibration of ${x.source}`,
+      lines: stats.find((s) => s.source === x.source)?.lines ?? [],
+    });
+  }
+  if (off.length === 0) return offsets;
+  const fmt = (x: (typeof stats)[number]) =>
+    `${x.source} ${x.mean >= 0 ? '+' : ''}${Number.isFinite(x.se) && x.se > 0 ? plusMinus(x.mean, x.se, 4) : x.mean.toFixed(4)} cm-1 (${x.n} lines)`;
+  const rel = (x: SourceOffset) =>
+    `${x.source} ${(x.offset as number) >= 0 ? '+' : ''}${plusMinus(x.offset as number, x.uncertainty as number, 4)} cm-1`;
+  const also =
+    off.length > 1
+      ? ` (and, less far, ${off
+          .slice(1)
+          .map((x) => x.source)
+          .join(', ')})`
+      : '';
+  const against =
+    offsets.reference === undefined
+      ? 'offset of each source that the level model determines'
+      : `offset against ${offsets.reference} (the reference: most weight) on the levels the sources share`;
+  warnings.push({
+    code: 'SOURCE_MEAN_RESIDUALS',
+    message: `mean residual per source: ${stats.map(fmt).join(', ')}; ${against}: ${off.map(rel).join(', ')}; ${(off[0] as SourceOffset).source} lies off zero beyond 3 standard errors${also}: a calibration offset between instruments?`,
+    lines: off.slice(0, 1).flatMap((x) => stats.find((s) => s.source === x.source)?.lines ?? []),
+  });
+  return offsets;
+}
+
+function meanResidualsBySource(
+  sources: readonly (string | undefined)[],
+  lines: readonly { readonly index: number; readonly status: string; readonly residual?: number }[],
+) {
   const bySource = new Map<string, { index: number; residual: number }[]>();
   for (const l of lines) {
     const s = sources[l.index];
@@ -147,21 +196,11 @@ export function checkSourceOffsets(
     g.push({ index: l.index, residual: l.residual });
     bySource.set(s, g);
   }
-  if (bySource.size < 2) return;
-  const stats = [...bySource].map(([source, g]) => {
+  return [...bySource].map(([source, g]) => {
     const n = g.length;
     const mean = g.reduce((a, x) => a + x.residual, 0) / n;
     const sd = n > 1 ? Math.sqrt(g.reduce((a, x) => a + (x.residual - mean) ** 2, 0) / (n - 1)) : Number.NaN;
     return { source, n, mean, se: sd / Math.sqrt(n), lines: g.map((x) => x.index) };
-  });
-  const offset = stats.filter((x) => x.n >= 3 && x.se >= 0 && Math.abs(x.mean) > 3 * x.se);
-  if (offset.length === 0) return;
-  const fmt = (x: (typeof stats)[number]) =>
-    `${x.source} ${x.mean >= 0 ? '+' : ''}${Number.isFinite(x.se) && x.se > 0 ? plusMinus(x.mean, x.se, 4) : x.mean.toFixed(4)} cm-1 (${x.n} lines)`;
-  warnings.push({
-    code: 'SOURCE_MEAN_RESIDUALS',
-    message: `mean residual per source: ${stats.map(fmt).join(', ')}; ${offset.map((x) => x.source).join(', ')} lie${offset.length === 1 ? 's' : ''} off zero beyond 3 standard errors: a calibration offset between instruments?`,
-    lines: offset.flatMap((x) => x.lines),
   });
 }
 

@@ -33,11 +33,15 @@ export function calibrationCheck(
     libraryUncertainties(entry),
   );
   if (!c) return notEvaluated('calibration', 'fewer than three fitted lines of the main species with J″ ≤ 20');
-  const status = calibrationStatus(c, tol);
+  const disagree = analysis.result.warnings.find((w) => w.code === 'SOURCE_MEAN_RESIDUALS');
+  const own = calibrationStatus(c, tol);
+  // Sources that disagree beyond their uncertainties: the axis is not one calibrated axis, whatever the mean says.
+  const status: CheckStatus = disagree && RANK[own] < RANK.warn ? 'warn' : own;
   return {
     id: 'calibration',
     status,
     measured: {
+      ...(disagree ? { sourcesDisagree: disagree.message } : {}),
       offset: c.offset,
       ...(c.scale ? { scale: c.scale } : {}),
       ...(c.scaleUndetermined !== undefined ? { scaleUncertaintyIfFitted: c.scaleUndetermined } : {}),
@@ -48,7 +52,7 @@ export function calibrationCheck(
       libraryConstantsCarried: c.libraryConstants,
     },
     limit,
-    message: calibrationMessage(c, status, tol),
+    message: `${calibrationMessage(c, own, tol)}${disagree ? `; the line sources disagree with each other beyond their uncertainties (warning SOURCE_MEAN_RESIDUALS of the fit), so the scan is not on one calibrated axis` : ''}`,
   };
 }
 
