@@ -1,4 +1,5 @@
 import { CO_DATABASE } from './co-database.js';
+import { MASS } from './scan-scenarios.js';
 
 /**
  * Held-out scans: unassigned peak lists of the library's diatomics as an instrument would report them, built here
@@ -151,22 +152,6 @@ const HF: MoleculeSet = {
 
 export const MOLECULES = { CO, HCl: HCL, HBr: HBR, HF } as const;
 export type Molecule = keyof typeof MOLECULES;
-
-/** Atomic masses in u, AME2020 (Wang et al., Chin. Phys. C 45, 030003 (2021)), from memory to the digits shown. */
-const MASS: Readonly<Record<string, number>> = {
-  '1H': 1.00782503223,
-  '2H': 2.01410177812,
-  '12C': 12,
-  '13C': 13.00335483507,
-  '16O': 15.99491461957,
-  '17O': 16.9991317565,
-  '18O': 17.99915961286,
-  '19F': 18.99840316273,
-  '35Cl': 34.968852682,
-  '37Cl': 36.965902602,
-  '79Br': 78.9183376,
-  '81Br': 80.9162897,
-};
 
 /** Natural isotopic abundances, CIAAW (Meija et al., Pure Appl. Chem. 88, 293 (2016)), from memory. */
 const ABUNDANCE: Readonly<Record<string, number>> = {
