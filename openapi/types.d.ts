@@ -474,6 +474,25 @@ export interface components {
           /** @description cm-1 */
           sigma: number;
         })[];
+      /** @description lines of two or more sources: each source's wavenumber offset against the reference source */
+      sourceOffsets?: {
+        /** @description true: the offsets were carried in the fit, so band origins, levels and constants are free of them and their σ include the offsets' uncertainty; a line's calculated position includes its source's offset */
+        applied: boolean;
+        /**
+         * @description flagged: an offset lay beyond 3σ and was carried; flagged, reference unverified: beyond 3σ but resting on a loop of bands alone, which cannot tell the reference's own miscalibration from the other's, so not carried (SOURCE_OFFSET_NOT_CARRIED); asked / not asked: options.fitSourceOffsets
+         * @enum {string}
+         */
+        basis: "flagged" | "flagged, reference unverified" | "asked" | "not flagged" | "not asked";
+        /** @description the source the offsets are measured against (options.referenceSource) */
+        reference: string;
+        sources: {
+            /** @description fitted lines of this source */
+            lines: number;
+            /** @description this source's positions minus the reference's, cm-1 (0 for the reference); absent when no level or loop of bands shared with the other sources determines it */
+            offset?: components["schemas"]["Quantity"];
+            source: string;
+          }[];
+      };
       species: {
           formula: string;
           /** @description linear polyatomic species: molecular mass, u (AME2020) */
@@ -505,6 +524,8 @@ export interface components {
       warnings: components["schemas"]["Warning"][];
     };
     FitOptions: {
+      /** @description lines of two or more sources (diatomic fits): true carries each source's wavenumber offset against the reference source as a fitted parameter, so band origins and constants are free of it and their σ include its uncertainty; false never; default: carried when an offset lies more than 3σ from zero (the answer's sourceOffsets says which) */
+      fitSourceOffsets?: boolean;
       /** @description true: each entry of `lines` leaves out what the request already holds (uncertainty, intensity, an assignment the caller gave), keeping index, id and position to match lines by; smaller answers for large lists (default false) */
       lean?: boolean;
       /** @description also fit U_kl across isotopologues (default false) */
@@ -515,6 +536,8 @@ export interface components {
       maxOffset?: number;
       /** @description largest fraction of the lines that outlier rejection may take out (default 0.2) */
       maxRejectedFraction?: number;
+      /** @description the line source that the other sources' offsets are measured against (sourceOffsets); must be the source of at least one line; default: the source with most fitted lines */
+      referenceSource?: string;
       /** @description externally studentised residual beyond which a line is rejected (default 4; raised to the two-sided normal quantile of 0.25/n for n lines when that is larger, i.e. from about 4 000 lines; 0 turns rejection off) */
       rejectionThreshold?: number;
       /** @description band to number when a species without reference constants is assigned from its structure (default 1-0) */
@@ -781,6 +804,25 @@ export interface components {
           sigma: number;
         })[];
       software: components["schemas"]["Software"];
+      /** @description lines of two or more sources: each source's wavenumber offset against the reference source */
+      sourceOffsets?: {
+        /** @description true: the offsets were carried in the fit, so band origins, levels and constants are free of them and their σ include the offsets' uncertainty; a line's calculated position includes its source's offset */
+        applied: boolean;
+        /**
+         * @description flagged: an offset lay beyond 3σ and was carried; flagged, reference unverified: beyond 3σ but resting on a loop of bands alone, which cannot tell the reference's own miscalibration from the other's, so not carried (SOURCE_OFFSET_NOT_CARRIED); asked / not asked: options.fitSourceOffsets
+         * @enum {string}
+         */
+        basis: "flagged" | "flagged, reference unverified" | "asked" | "not flagged" | "not asked";
+        /** @description the source the offsets are measured against (options.referenceSource) */
+        reference: string;
+        sources: {
+            /** @description fitted lines of this source */
+            lines: number;
+            /** @description this source's positions minus the reference's, cm-1 (0 for the reference); absent when no level or loop of bands shared with the other sources determines it */
+            offset?: components["schemas"]["Quantity"];
+            source: string;
+          }[];
+      };
       species: {
           formula: string;
           /** @description linear polyatomic species: molecular mass, u (AME2020) */
@@ -823,7 +865,7 @@ export interface components {
       intensity?: number;
       /** @description line position in the request unit */
       position: number;
-      /** @description label of the instrument or file the line came from: lines without an uncertainty get σ from the scatter of their source; stated σ that disagree with the other sources are rescaled per source (UNCERTAINTY_RESCALED); the offset of each source that the shared levels determine (against the source of most weight when only relative offsets are determined) is reported in SOURCE_MEAN_RESIDUALS, which names the source that lies off beyond 3σ, and a source whose bands share no level or loop with those of another source is named in SOURCE_OFFSET_UNIDENTIFIABLE; the fit does not remove an offset, and the calibration check does not pass while the sources disagree */
+      /** @description label of the instrument or file the line came from: lines without an uncertainty get σ from the scatter of their source; stated σ that disagree with the other sources are rescaled per source (UNCERTAINTY_RESCALED); the offset of each source that the shared levels determine (against the source of most weight when only relative offsets are determined) is reported in SOURCE_MEAN_RESIDUALS, which names the source that lies off beyond 3σ, and a source whose bands share no level or loop with those of another source is named in SOURCE_OFFSET_UNIDENTIFIABLE; an offset beyond 3σ (or any, with options.fitSourceOffsets) is carried in the fit as a parameter, keeping it out of the band origins and constants, and the offset of every source against the reference source is in sourceOffsets; the calibration check does not pass while the sources disagree */
       source?: string;
       /** @description standard uncertainty in the request unit; at least 1e-15 of the position (a double resolves the position to about 2e-16 of it) */
       uncertainty?: number;

@@ -53,6 +53,24 @@ export const typeDefs = /* GraphQL */ `
     sigma: Float!
   }
 
+  "One line source's wavenumber offset against the reference source"
+  type SourceOffset {
+    source: String!
+    "fitted lines of this source"
+    lines: Int!
+    "this source's positions minus the reference's, cm-1; null when the shared levels do not determine it"
+    offset: Quantity
+  }
+
+  type SourceOffsets {
+    reference: String!
+    "true: carried in the fit, so band origins and constants are free of the offsets and their σ include them"
+    applied: Boolean!
+    "flagged, flagged, reference unverified (not carried), asked, not flagged or not asked"
+    basis: String!
+    sources: [SourceOffset!]!
+  }
+
   input FitOptionsInput {
     uncertaintyMode: String
     rejectionThreshold: Float
@@ -63,6 +81,10 @@ export const typeDefs = /* GraphQL */ `
     temperature: Float
     maxOffset: Float
     structureBand: String
+    "carry each source's offset against the reference source in the fit: true always, false never; default when one lies beyond 3σ"
+    fitSourceOffsets: Boolean
+    "the source the other sources' offsets are measured against (default: the one with most fitted lines)"
+    referenceSource: String
   }
 
   input SpectrumInput {
@@ -346,6 +368,8 @@ export const typeDefs = /* GraphQL */ `
     crossChecks: JSON!
     "σ estimated from the residual scatter for the lines sent without an uncertainty (per source, band or pooled)"
     scatter: [ScatterGroup!]
+    "lines of two or more sources: each source's wavenumber offset against the reference source"
+    sourceOffsets: SourceOffsets
     assignment: AssignmentReport!
     spectrum: SpectrumSummary
     warnings: [Warning!]!

@@ -1,6 +1,13 @@
 import { z } from 'zod';
 import { positiveNumber, realNumber } from './common.js';
-import { exactlyOne, exactlyOneMessage, FitSchema, fitRequestFields, MAX_MAGNITUDE } from './fit.js';
+import {
+  exactlyOne,
+  exactlyOneMessage,
+  FitSchema,
+  fitRequestFields,
+  knownReferenceSource,
+  MAX_MAGNITUDE,
+} from './fit.js';
 import { provenanceAndSampleFields } from './provenance.js';
 
 const TOLERANCE_KEYS = [
@@ -57,6 +64,7 @@ export function checkRequestSchema(maxLines: number) {
   return z
     .strictObject({ ...fitRequestFields(maxLines), tolerances: TolerancesSchema.optional() })
     .refine(exactlyOne, exactlyOneMessage)
+    .superRefine(knownReferenceSource)
     .meta({ id: 'CheckRequest' });
 }
 export type CheckRequest = z.output<ReturnType<typeof checkRequestSchema>>;

@@ -124,7 +124,7 @@ export const LineSchema = z
         .max(100)
         .optional()
         .describe(
-          'label of the instrument or file the line came from: lines without an uncertainty get σ from the scatter of their source; stated σ that disagree with the other sources are rescaled per source (UNCERTAINTY_RESCALED); the offset of each source that the shared levels determine (against the source of most weight when only relative offsets are determined) is reported in SOURCE_MEAN_RESIDUALS, which names the source that lies off beyond 3σ, and a source whose bands share no level or loop with those of another source is named in SOURCE_OFFSET_UNIDENTIFIABLE; the fit does not remove an offset, and the calibration check does not pass while the sources disagree',
+          'label of the instrument or file the line came from: lines without an uncertainty get σ from the scatter of their source; stated σ that disagree with the other sources are rescaled per source (UNCERTAINTY_RESCALED); the offset of each source that the shared levels determine (against the source of most weight when only relative offsets are determined) is reported in SOURCE_MEAN_RESIDUALS, which names the source that lies off beyond 3σ, and a source whose bands share no level or loop with those of another source is named in SOURCE_OFFSET_UNIDENTIFIABLE; an offset beyond 3σ (or any, with options.fitSourceOffsets) is carried in the fit as a parameter, keeping it out of the band origins and constants, and the offset of every source against the reference source is in sourceOffsets; the calibration check does not pass while the sources disagree',
         ),
       assignment: AssignmentSchema.optional(),
     },
@@ -202,6 +202,20 @@ export const FitOptionsSchema = z
       .optional()
       .describe(
         'band to number when a species without reference constants is assigned from its structure (default 1-0)',
+      ),
+    fitSourceOffsets: z
+      .boolean()
+      .optional()
+      .describe(
+        "lines of two or more sources (diatomic fits): true carries each source's wavenumber offset against the reference source as a fitted parameter, so band origins and constants are free of it and their σ include its uncertainty; false never; default: carried when an offset lies more than 3σ from zero (the answer's sourceOffsets says which)",
+      ),
+    referenceSource: z
+      .string()
+      .min(1)
+      .max(200)
+      .optional()
+      .describe(
+        "the line source that the other sources' offsets are measured against (sourceOffsets); must be the source of at least one line; default: the source with most fitted lines",
       ),
   })
   .meta({ id: 'FitOptions' });
@@ -306,11 +320,33 @@ const exactlyOne = (b: { lines?: unknown; spectrum?: unknown }) =>
   (b.lines === undefined) !== (b.spectrum === undefined);
 const exactlyOneMessage = { message: 'give either "lines" or "spectrum", not both and not neither', path: ['lines'] };
 
+/** options.referenceSource, when sent, must be the `source` of a line of the request. */
+function knownReferenceSource(
+  b: {
+    lines?: readonly { source?: string | undefined }[] | undefined;
+    options?: { referenceSource?: string | undefined } | undefined;
+  },
+  ctx: z.core.$RefinementCtx,
+): void {
+  const ref = b.options?.referenceSource;
+  if (ref === undefined || b.lines?.some((l) => l.source === ref)) return;
+  const known = [...new Set((b.lines ?? []).flatMap((l) => (l.source !== undefined ? [l.source] : [])))].sort();
+  ctx.addIssue({
+    code: 'custom',
+    path: ['options', 'referenceSource'],
+    message: `"${ref}" is the source of no line; the lines' sources are ${known.length > 0 ? known.map((k) => `"${k}"`).join(', ') : 'none'}`,
+  });
+}
+
 export function fitRequestSchema(maxLines: number) {
-  return z.strictObject(fitRequestFields(maxLines)).refine(exactlyOne, exactlyOneMessage).meta({ id: 'FitRequest' });
+  return z
+    .strictObject(fitRequestFields(maxLines))
+    .refine(exactlyOne, exactlyOneMessage)
+    .superRefine(knownReferenceSource)
+    .meta({ id: 'FitRequest' });
 }
 export type FitRequest = z.output<ReturnType<typeof fitRequestSchema>>;
-export { exactlyOne, exactlyOneMessage };
+export { exactlyOne, exactlyOneMessage, knownReferenceSource };
 
 const Q = QuantitySchema;
 
@@ -616,6 +652,31 @@ const fitFields = {
     )
     .optional()
     .describe('σ estimated from the residual scatter (robust) for the lines sent without an uncertainty'),
+  sourceOffsets: z
+    .object({
+      reference: z.string().describe('the source the offsets are measured against (options.referenceSource)'),
+      applied: z
+        .boolean()
+        .describe(
+          "true: the offsets were carried in the fit, so band origins, levels and constants are free of them and their σ include the offsets' uncertainty; a line's calculated position includes its source's offset",
+        ),
+      basis: z
+        .enum(['flagged', 'flagged, reference unverified', 'asked', 'not flagged', 'not asked'])
+        .describe(
+          "flagged: an offset lay beyond 3σ and was carried; flagged, reference unverified: beyond 3σ but resting on a loop of bands alone, which cannot tell the reference's own miscalibration from the other's, so not carried (SOURCE_OFFSET_NOT_CARRIED); asked / not asked: options.fitSourceOffsets",
+        ),
+      sources: z.array(
+        z.object({
+          source: z.string(),
+          lines: z.number().int().describe('fitted lines of this source'),
+          offset: Q.optional().describe(
+            "this source's positions minus the reference's, cm-1 (0 for the reference); absent when no level or loop of bands shared with the other sources determines it",
+          ),
+        }),
+      ),
+    })
+    .optional()
+    .describe("lines of two or more sources: each source's wavenumber offset against the reference source"),
   crossChecks: z.array(
     z.object({
       species: z.string(),

@@ -151,6 +151,8 @@ export function runLinearFit(sent: FitRequest): FitResponse {
     structureBand: _s,
     lean: _l,
     massReducedDunham: _u,
+    fitSourceOffsets: _f,
+    referenceSource: _r,
     ...options
   } = req.options ?? {};
   // No assignment at all: the library's bands are assigned first (services/usecases/linear-assign.ts).

@@ -153,6 +153,8 @@ export function fitDunhamForSpecies(
   alpha: number,
   orders: ReadonlyMap<string, number>,
   warnings: Warning[],
+  /** Applied to the final fit (the covariance widened by source offsets carried in the fit). */
+  adjust?: (fit: SolvedModel) => SolvedModel,
 ) {
   const plan = dunhamTermPlan(obs, orders, species);
   if (plan.nLevels < 2) {
@@ -173,7 +175,8 @@ export function fitDunhamForSpecies(
     });
     return undefined;
   }
-  const { fit, terms, constrained } = withDunhamPriors(species, obs, sel, mode);
+  const { fit: unadjusted, terms, constrained } = withDunhamPriors(species, obs, sel, mode);
+  const fit = adjust ? adjust(unadjusted) : unadjusted;
   const isConstrained = (k: number, l: number) => constrained.has(`${k},${l}`);
   warnings.push(...neglectedTermWarnings(species, plan, sel.terms, isConstrained));
   const constraints: TermConstraint[] = [...constrained.values()].map((p) => ({
@@ -183,12 +186,7 @@ export function fitDunhamForSpecies(
     prior: quantity(p.value, p.sigma, 'cm-1'),
     basis: p.basis,
   }));
-  for (const c of constraints) {
-    warnings.push({
-      code: 'TERMS_CONSTRAINED',
-      message: `${species}: the uncertainties of ${AFFECTS[c.parameter] ?? 'the equilibrium constants'} include that of ${SYMBOL[c.parameter] ?? c.parameter} (${c.parameter}), which the lines cannot determine and which is constrained to ${formatValue(c.prior.value)} ± ${formatValue(c.prior.uncertainty)} cm-1 (${c.basis})`,
-    });
-  }
+  warnings.push(...constraints.map((c) => constrainedTermWarning(species, c)));
   const label = plan.nVib === 1 ? singleIntervalLabel(plan.levels) : undefined;
   const rename = new Map(label ? [['Y10', label]] : []);
   const report = {
@@ -205,6 +203,13 @@ export function fitDunhamForSpecies(
     covariance: subCovariance(fit.covariance, p, keep),
   };
   return { report, set };
+}
+
+function constrainedTermWarning(species: string, c: TermConstraint): Warning {
+  return {
+    code: 'TERMS_CONSTRAINED',
+    message: `${species}: the uncertainties of ${AFFECTS[c.parameter] ?? 'the equilibrium constants'} include that of ${SYMBOL[c.parameter] ?? c.parameter} (${c.parameter}), which the lines cannot determine and which is constrained to ${formatValue(c.prior.value)} ± ${formatValue(c.prior.uncertainty)} cm-1 (${c.basis})`,
+  };
 }
 
 type DunhamSelection = NonNullable<ReturnType<typeof selectDunham>>;
@@ -278,6 +283,7 @@ export function fitMassReduced(
   alpha: number,
   orders: ReadonlyMap<string, number>,
   warnings: Warning[],
+  adjust?: (fit: SolvedModel) => SolvedModel,
 ): (DunhamFit & { species: 'all' }) | undefined {
   // The richest isotopologue sets the plan; the F test decides the rest.
   const structure = levelStructure(obs);
@@ -304,5 +310,5 @@ export function fitMassReduced(
     });
     return undefined;
   }
-  return { ...reportOf('all', sel.fit), species: 'all' };
+  return { ...reportOf('all', adjust ? adjust(sel.fit) : sel.fit), species: 'all' };
 }

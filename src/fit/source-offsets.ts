@@ -1,4 +1,4 @@
-import type { Observation } from '../models/linear-model.js';
+import { designColumns, type Observation } from '../models/linear-model.js';
 import { isRankDeficient, type SolvedModel, solveModel, type UncertaintyMode } from './engine.js';
 
 /**
@@ -93,7 +93,7 @@ function jointOffsets(
   fit: SolvedModel,
   projected: readonly { readonly group: Group; readonly mz: Float64Array }[],
   mode: UncertaintyMode,
-): { value: number; uncertainty: number }[] | undefined {
+): { value: number; uncertainty: number; covariance: number[] }[] | undefined {
   const w = fit.observations.map((o) => o.weight);
   const dot = (x: Float64Array, y: Float64Array) =>
     x.reduce((acc, v, i) => acc + (w[i] as number) * v * (y[i] as number), 0);
@@ -105,7 +105,11 @@ function jointOffsets(
   const explained = solved.x.reduce((acc, v, i) => acc + v * (b[i] as number), 0);
   const nu = fit.degreesOfFreedom - k;
   const scale = mode === 'absolute' ? 1 : nu > 0 ? Math.max(fit.chiSquare - explained, 0) / nu : Number.NaN;
-  return solved.x.map((value, i) => ({ value, uncertainty: Math.sqrt(scale * (solved.inverse[i]?.[i] as number)) }));
+  return solved.x.map((value, i) => ({
+    value,
+    uncertainty: Math.sqrt(scale * (solved.inverse[i]?.[i] as number)),
+    covariance: (solved.inverse[i] as number[]).map((c) => scale * c),
+  }));
 }
 
 /**
@@ -148,4 +152,159 @@ export function estimateSourceOffsets(
       .filter((g) => !seen.has(g.source))
       .map((g) => ({ source: g.source, bands: [...g.bands].sort() })),
   };
+}
+
+/**
+ * Offsets of every other source against one reference source, for carrying them in the fit as nuisance
+ * parameters: the model "levels + Σ_{s ≠ reference} δ_s z_s", solved for δ by the same partialling-out as above.
+ * The joint least-squares estimate of the level parameters is then the level fit of the positions less Zδ, and
+ * their covariance that fit's plus A Σ_δ A′ (A = the regression of the indicators on the level design; see
+ * `withOffsetCovariance`), so correcting the positions and widening the covariance is the joint fit, exactly.
+ */
+export interface RelativeOffsets {
+  readonly reference: string;
+  /** Every source among the fitted lines, reference first, then by line count (ties: weight, name). */
+  readonly sources: readonly {
+    readonly source: string;
+    readonly lines: number;
+    /** Undefined when the shared levels cannot determine it (never for the reference, whose offset is 0). */
+    readonly offset?: number;
+    readonly uncertainty?: number;
+  }[];
+  /** The sources with a determined offset (the reference excluded), in the order of `values` and `covariance`. */
+  readonly fitted: readonly string[];
+  readonly values: readonly number[];
+  readonly covariance: readonly (readonly number[])[];
+  /** Largest |δ_s|/σ_s over the fitted sources (0 when none). */
+  readonly largestZ: number;
+}
+
+/** Orders sources by lines, then weight, then name (the default reference is the first). */
+function byLines(groups: readonly Group[]): Group[] {
+  return [...groups].sort(
+    (a, b) => b.rows.length - a.rows.length || b.weight - a.weight || (a.source < b.source ? -1 : 1),
+  );
+}
+
+/**
+ * The offsets of all sources against `reference` (default: the source with most lines); undefined with fewer than
+ * two sources among the fitted lines. A named reference with no fitted line is an error of the caller's: thrown.
+ */
+export function estimateRelativeOffsets(
+  fit: SolvedModel,
+  sources: readonly (string | undefined)[],
+  mode: UncertaintyMode,
+  reference?: string,
+): RelativeOffsets | undefined {
+  const groups = byLines(groupBySource(fit.observations, sources));
+  if (groups.length < 2) return undefined;
+  const ref = reference === undefined ? (groups[0] as Group) : groups.find((g) => g.source === reference);
+  if (!ref) throw new RangeError(`reference source ${reference} has no fitted line`);
+  const projected: { group: Group; mz: Float64Array }[] = [];
+  for (const g of groups) {
+    if (g === ref) continue;
+    const mz = projectedIndicator(fit, g.rows);
+    if (!mz) continue;
+    const left = mz.reduce((acc, x, i) => acc + (fit.observations[i] as Observation).weight * x * x, 0);
+    if (left > IDENTIFIABLE * g.weight) projected.push({ group: g, mz });
+  }
+  const joint = projected.length > 0 ? jointOffsets(fit, projected, mode) : undefined;
+  const used = joint ? projected : [];
+  const at = new Map(used.map((p, i) => [p.group.source, joint?.[i]]));
+  const values = used.map((_, i) => joint?.[i]?.value as number);
+  const covariance = used.map((_, i) => used.map((_, j) => joint?.[i]?.covariance[j] as number));
+  return {
+    reference: ref.source,
+    sources: [ref, ...groups.filter((g) => g !== ref)].map((g) => {
+      const o = g === ref ? { value: 0, uncertainty: 0 } : at.get(g.source);
+      const lines = g.rows.length;
+      return o ? { source: g.source, lines, offset: o.value, uncertainty: o.uncertainty } : { source: g.source, lines };
+    }),
+    fitted: used.map((p) => p.group.source),
+    values,
+    covariance,
+    largestZ: Math.max(0, ...values.map((v, i) => Math.abs(v) / Math.sqrt(covariance[i]?.[i] as number))),
+  };
+}
+
+/**
+ * The fit's covariance widened by the offsets' uncertainty: with the fit solved on positions corrected by the
+ * offsets, the joint fit's covariance is C + A Σ_δ A′, A_s = C X′W z_s / s² (C already scaled by s²; a fit with
+ * priors counts them in C, so A is the regression of z_s on the lines and the priors, the prior rows' z being 0).
+ * `sourceOf` gives an observation's source by its line index.
+ */
+export function withOffsetCovariance(
+  fit: SolvedModel,
+  mode: UncertaintyMode,
+  sourceOf: (index: number) => string | undefined,
+  offsets: Pick<RelativeOffsets, 'fitted' | 'covariance'>,
+): SolvedModel {
+  const p = fit.model.parameters.length;
+  const s2 = mode === 'absolute' ? 1 : fit.chiSquare / fit.degreesOfFreedom;
+  if (offsets.fitted.length === 0 || !(s2 > 0) || p === 0) return fit;
+  const cols = designColumns(fit.model, fit.observations);
+  const a = offsets.fitted.map((s) => {
+    const g = new Float64Array(p);
+    fit.observations.forEach((o, i) => {
+      if (sourceOf(o.index) !== s) return;
+      for (let j = 0; j < p; j++) g[j] = (g[j] as number) + o.weight * ((cols[j] as Float64Array)[i] as number);
+    });
+    const out = new Float64Array(p);
+    for (let r = 0; r < p; r++) {
+      let acc = 0;
+      for (let j = 0; j < p; j++) acc += (fit.covariance[r * p + j] as number) * (g[j] as number);
+      out[r] = acc / s2;
+    }
+    return out;
+  });
+  const covariance = Float64Array.from(fit.covariance);
+  a.forEach((as, si) => {
+    a.forEach((at, ti) => {
+      const c = offsets.covariance[si]?.[ti] as number;
+      for (let r = 0; r < p; r++) {
+        for (let q = 0; q < p; q++)
+          covariance[r * p + q] = (covariance[r * p + q] as number) + (as[r] as number) * c * (at[q] as number);
+      }
+    });
+  });
+  return { ...fit, covariance };
+}
+
+/**
+ * How far the reference's own offset may lie from zero, as a fraction of the largest offset carried against it,
+ * for a flagged offset to be carried without the caller's word (see `referenceVouched`).
+ */
+export const REFERENCE_DRIFT = 0.05;
+
+/**
+ * Whether offsets against the reference may be carried by default. Yes when the lines fix only relative offsets
+ * (with another source as the reference every offset moves by that source's: the choice is a convention), or when
+ * they fix every source's own offset and the reference's lies within REFERENCE_DRIFT of the largest carried one
+ * (the lines vouch for its calibration, e.g. through a pure-rotation band). No when a loop of bands alone
+ * determines a combination such as δ_B − 2δ_A (2-0 against 1-0 + 2-1): the value against the reference then
+ * holds the reference's own miscalibration, doubled, which the lines cannot tell.
+ */
+export function referenceVouched(
+  fit: SolvedModel,
+  sources: readonly (string | undefined)[],
+  mode: UncertaintyMode,
+  offsets: RelativeOffsets,
+): boolean {
+  const other = offsets.fitted[0];
+  if (other === undefined) return false;
+  const against = new Map(offsets.sources.map((s) => [s.source, s.offset]));
+  const moved = against.get(other) as number;
+  const tolerance = 1e-3 * Math.sqrt(offsets.covariance[0]?.[0] as number);
+  const swapped = estimateRelativeOffsets(fit, sources, mode, other);
+  const invariant = swapped?.sources.every((s) => {
+    const before = against.get(s.source);
+    if (before === undefined || s.offset === undefined) return before === s.offset;
+    return Math.abs(s.offset - (before - moved)) <= tolerance;
+  });
+  if (invariant) return true;
+  const absolute = estimateSourceOffsets(fit, sources, mode);
+  if (!absolute || absolute.reference !== undefined) return false;
+  const own = absolute.offsets.find((o) => o.source === offsets.reference)?.offset;
+  const largest = Math.max(...offsets.values.map((v) => Math.abs(v)));
+  return own !== undefined && Math.abs(own) <= REFERENCE_DRIFT * largest;
 }

@@ -48,6 +48,35 @@ export interface FitOptions {
    * weights.ts#ScatterReuse; for the inner loop of automatic assignment, whose list grows a few lines a round).
    */
   readonly reuseScatter?: ScatterReuse;
+  /**
+   * Carry each source's wavenumber offset (against the reference source) as a nuisance parameter of the fit, so
+   * that band origins and constants are free of it and their σ include its uncertainty: true always (with two or
+   * more sources), false never; default: when an offset lies beyond SOURCE_OFFSET_FLAG standard errors.
+   */
+  readonly fitSourceOffsets?: boolean;
+  /** The source the others' offsets are measured against. Default: the source with most fitted lines. */
+  readonly referenceSource?: string;
+}
+
+/** Each source's wavenumber offset against the reference source (present with lines of two or more sources). */
+export interface SourceOffsetReport {
+  readonly reference: string;
+  /** Whether the offsets were carried in the fit (band origins and constants are then free of them). */
+  readonly applied: boolean;
+  /**
+   * Why: 'flagged' (an offset beyond 3σ), 'flagged, reference unverified' (not carried: a loop of bands alone
+   * determines it, see source-offsets.ts#referenceVouched) or 'not flagged' by default; 'asked' / 'not asked' with
+   * fitSourceOffsets
+   * (asked but not applied: no offset is determined by the lines).
+   */
+  readonly basis: 'flagged' | 'flagged, reference unverified' | 'asked' | 'not flagged' | 'not asked';
+  readonly sources: readonly {
+    readonly source: string;
+    /** Lines of this source in the fit. */
+    readonly lines: number;
+    /** Offset (this source's positions minus the reference's) and σ; absent when the lines cannot determine it. */
+    readonly offset?: Quantity;
+  }[];
 }
 
 export interface Warning {
@@ -154,6 +183,8 @@ export interface FitResult {
    * without one (absent when every line came with its uncertainty).
    */
   readonly scatter?: readonly ScatterGroup[];
+  /** Per-source offsets against a reference source, with lines of two or more sources. */
+  readonly sourceOffsets?: SourceOffsetReport;
   readonly warnings: readonly Warning[];
 }
 

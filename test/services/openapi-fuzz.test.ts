@@ -121,6 +121,15 @@ function conform(body: unknown, linesOrSpectrum: boolean): unknown {
         matrix: constants.covariance.matrix.map((row, i) => row.map((v, j) => (i === j ? Math.abs(v) : v))),
       },
     };
+  // options.referenceSource names the source of a line (stated in words): the first line gets it; no lines, no option.
+  const options = b.options as Record<string, unknown> | undefined;
+  if (typeof options?.referenceSource === 'string') {
+    const lines = Array.isArray(b.lines) ? (b.lines as Record<string, unknown>[]) : [];
+    const first = lines[0];
+    if (first && typeof first === 'object')
+      b.lines = [{ ...first, source: options.referenceSource }, ...lines.slice(1)];
+    else b.options = Object.fromEntries(Object.entries(options).filter(([k]) => k !== 'referenceSource'));
+  }
   const sample = b.sample as Record<string, unknown> | undefined;
   if (sample && 'measuredAt' in sample) b.sample = { ...sample, measuredAt: '2026-12-02T09:30:00Z' };
   return b;
