@@ -56,6 +56,9 @@ JSON answers of lists of more than 1 000 lines are lean: each line leaves out th
 assignment the file already holds (assignments the fit made stay); --detail full keeps them, --detail lean asks
 for it at any size.
 --format csv writes the table alone to stdout; each file's warnings and the caution below go to stderr.
+--table picks one table for --format table or csv: lines (each line's residual, status and the reason for a
+rejection), constants, or checks; without it the table form prints bands, levels and equilibrium constants (fit)
+or the checks (check), and csv the lines (fit) or the checks (check).
 A file that cannot be read is reported under its name; the other files are still processed.
 Exit status: 0 pass, 1 warn, 2 fail (check, report); 3 bad input; 4 usage.
 ${CLI_NOTICE}`;
@@ -424,30 +427,43 @@ function runOne(
   if (command === 'fit' || command === 'check') setDetail(body, v.detail, format);
   if (command === 'fit') {
     const r = runFit(parseOrThrow(fitRequestSchema(DEFAULT_CONFIG.maxLines), body, file));
-    if (format === 'table') io.out(fitTable(file, r));
-    return {
-      result: r as unknown as Record<string, unknown>,
-      rows: resultRows('fit', r, tableName ?? 'lines'),
-      exit: EXIT.pass,
-    };
+    const rows = resultRows('fit', r, tableName ?? 'lines');
+    if (format === 'table')
+      io.out(
+        tableName === undefined
+          ? fitTable(file, r)
+          : chosenTable(
+              `${file}: ${r.statistics.fitted} of ${r.statistics.lines} lines fitted, rms ${fmt(r.statistics.rms, 3)} cm-1`,
+              rows,
+              r.warnings.map((w) => w.message),
+            ),
+      );
+    return { result: r as unknown as Record<string, unknown>, rows, exit: EXIT.pass };
   }
   const r = runCheck(
     parseOrThrow(checkRequestSchema(DEFAULT_CONFIG.maxLines), { ...body, ...(tolerances ? { tolerances } : {}) }, file),
   );
-  if (format === 'table') {
+  const rows = resultRows('check', r, tableName ?? 'checks');
+  const warnings = warningsOf(r as unknown as Record<string, unknown>);
+  if (format === 'table' && (tableName === undefined || tableName === 'checks')) {
     io.out(
-      `${file}: ${r.verdict.toUpperCase()}\n${table([['check', 'status', 'message'], ...r.checks.map((c) => [c.id, c.status, c.message])])}\n${warningsOf(
-        r as unknown as Record<string, unknown>,
-      )
+      `${file}: ${r.verdict.toUpperCase()}\n${table([['check', 'status', 'message'], ...r.checks.map((c) => [c.id, c.status, c.message])])}\n${warnings
         .map((w) => `warning: ${w}\n`)
         .join('')}`,
     );
-  }
-  return {
-    result: r as unknown as Record<string, unknown>,
-    rows: resultRows('check', r, tableName ?? 'checks'),
-    exit: EXIT[r.verdict],
-  };
+  } else if (format === 'table') io.out(chosenTable(`${file}: ${r.verdict.toUpperCase()}`, rows, warnings));
+  return { result: r as unknown as Record<string, unknown>, rows, exit: EXIT[r.verdict] };
+}
+
+/**
+ * The table --table names, in the table form: the rows of the CSV form aligned in columns (numbers to 10 significant
+ * digits, the constants' `display` column rounded to their uncertainties), under the file's summary and over its
+ * warnings, so `--table lines` shows each line's residual and status, and the reason for a rejection, in a terminal.
+ */
+function chosenTable(summary: string, rows: readonly Cell[][], warnings: readonly string[]): string {
+  const text = (c: Cell) =>
+    c === undefined || c === null ? '' : typeof c === 'number' ? String(Number(c.toPrecision(10))) : c;
+  return `${summary}\n${table(rows.map((r) => r.map(text)))}\n${warnings.map((w) => `warning: ${w}\n`).join('')}`;
 }
 
 /** The warning messages of a fit, or of the fit inside a check (none for peaks). */

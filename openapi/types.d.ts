@@ -338,10 +338,13 @@ export interface components {
       levels: ({
           /** @description always present for diatomic levels; absent for a linear level seen only through l-type transitions */
           B?: components["schemas"]["Quantity"];
+          /** @description diatomic: D_v of E_v(J) = T_v + B_v x − D_v x² + H_v x³ + L_v x⁴ + M_v x⁵, x = J(J+1), cm-1 (positive for a normal molecule); H_v, L_v, M_v only when the model carries them (model.levelTerms); linear polyatomic: the formula in `convention` */
           D?: components["schemas"]["Quantity"];
+          /** @description H_v, the x³ term (sign as in the formula of D) */
           H?: components["schemas"]["Quantity"];
           /** @description linear polyatomic: vibrational angular momentum */
           l?: number;
+          /** @description L_v, the x⁴ term (sign as in the formula of D) */
           L?: components["schemas"]["Quantity"];
           /** @description linear polyatomic: the level in the trade notation, e.g. "01¹0" */
           label?: string;
@@ -356,7 +359,7 @@ export interface components {
           q?: components["schemas"]["Quantity"];
           /** @description linear polyatomic, l ≥ 1: centrifugal correction of the l-type doubling */
           qJ?: components["schemas"]["Quantity"];
-          /** @description effective bond length from B_v (absent when B_v is not positive) */
+          /** @description effective bond length of this level from B_v, Å (absent when B_v is not positive); not r_e */
           r?: components["schemas"]["Quantity"];
           /** @description linear polyatomic: rank within a Fermi polyad */
           rank?: number;
@@ -665,10 +668,13 @@ export interface components {
       levels: ({
           /** @description always present for diatomic levels; absent for a linear level seen only through l-type transitions */
           B?: components["schemas"]["Quantity"];
+          /** @description diatomic: D_v of E_v(J) = T_v + B_v x − D_v x² + H_v x³ + L_v x⁴ + M_v x⁵, x = J(J+1), cm-1 (positive for a normal molecule); H_v, L_v, M_v only when the model carries them (model.levelTerms); linear polyatomic: the formula in `convention` */
           D?: components["schemas"]["Quantity"];
+          /** @description H_v, the x³ term (sign as in the formula of D) */
           H?: components["schemas"]["Quantity"];
           /** @description linear polyatomic: vibrational angular momentum */
           l?: number;
+          /** @description L_v, the x⁴ term (sign as in the formula of D) */
           L?: components["schemas"]["Quantity"];
           /** @description linear polyatomic: the level in the trade notation, e.g. "01¹0" */
           label?: string;
@@ -683,7 +689,7 @@ export interface components {
           q?: components["schemas"]["Quantity"];
           /** @description linear polyatomic, l ≥ 1: centrifugal correction of the l-type doubling */
           qJ?: components["schemas"]["Quantity"];
-          /** @description effective bond length from B_v (absent when B_v is not positive) */
+          /** @description effective bond length of this level from B_v, Å (absent when B_v is not positive); not r_e */
           r?: components["schemas"]["Quantity"];
           /** @description linear polyatomic: rank within a Fermi polyad */
           rank?: number;

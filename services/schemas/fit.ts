@@ -579,11 +579,15 @@ const fitFields = {
       B: Q.optional().describe(
         'always present for diatomic levels; absent for a linear level seen only through l-type transitions',
       ),
-      D: Q.optional(),
-      H: Q.optional(),
-      L: Q.optional(),
+      D: Q.optional().describe(
+        'diatomic: D_v of E_v(J) = T_v + B_v x − D_v x² + H_v x³ + L_v x⁴ + M_v x⁵, x = J(J+1), cm-1 (positive for a normal molecule); H_v, L_v, M_v only when the model carries them (model.levelTerms); linear polyatomic: the formula in `convention`',
+      ),
+      H: Q.optional().describe('H_v, the x³ term (sign as in the formula of D)'),
+      L: Q.optional().describe('L_v, the x⁴ term (sign as in the formula of D)'),
       M: Q.optional().describe('M_v, the x⁵ term (pure-rotation lines to high J)'),
-      r: Q.optional().describe('effective bond length from B_v (absent when B_v is not positive)'),
+      r: Q.optional().describe(
+        'effective bond length of this level from B_v, Å (absent when B_v is not positive); not r_e',
+      ),
       q: Q.optional().describe('linear polyatomic, l ≥ 1: l-type doubling, E(f) − E(e) = q J(J+1) + q_J [J(J+1)]²'),
       qJ: Q.optional().describe('linear polyatomic, l ≥ 1: centrifugal correction of the l-type doubling'),
       parity: z

@@ -73,6 +73,37 @@ describe('a CLI scripts can trust', () => {
     expect(c.out).toMatch(/\r\nband,12C-16O,1-0,origin,2143\.\d+,/);
   });
 
+  it('--table in the table form prints the table it names (each line with its status and reason), not the summary', () => {
+    // One line 0.05 cm-1 (25 σ) off: the fit rejects it, and the lines table must show which line and why.
+    const off = join(dir, 'one-off.json');
+    writeFileSync(
+      off,
+      JSON.stringify({
+        ...fitExample,
+        lines: fitExample.lines.map((l, i) => ({
+          ...l,
+          id: `L${i}`,
+          position: i === 3 ? l.position + 0.05 : l.position,
+        })),
+      }),
+    );
+    const r = run(['fit', off, '--table', 'lines']);
+    expect(r.code).toBe(EXIT.pass);
+    const rows = r.out.split('\n');
+    expect(rows[1]).toMatch(
+      /^index\s+id\s+species\s+band\s+branch\s+j\s+position \(cm-1\).*studentised residual\s+status/,
+    );
+    expect(rows.filter((l) => /^\d+\s+L\d+\s+12C-16O\s+1-0\s/.test(l))).toHaveLength(fitExample.lines.length);
+    expect(rows.find((l) => /^3\s+L3\s/.test(l))).toMatch(/\srejected\s.*exceeds/);
+    expect(r.out).not.toMatch(/species\s+level\s+B \(cm-1\)/);
+    const c = run(['check', off, '--table', 'constants']);
+    expect(c.out.split('\n')[1]).toMatch(
+      /^group\s+species\s+band or level\s+name\s+value\s+uncertainty\s+unit\s+display$/,
+    );
+    expect(c.out).toMatch(/\nband\s+12C-16O\s+1-0\s+origin\s+2143\.\d+\s+\d/);
+    expect(c.out).not.toMatch(/\nidentity\s+pass/);
+  });
+
   it('one bad file in a multi-file run: the others keep their JSON, the bad one is named, exit 3', () => {
     const r = run(['fit', good, bad, good, '--format', 'json']);
     expect(r.code).toBe(EXIT.input);
