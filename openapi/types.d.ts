@@ -1468,6 +1468,7 @@ export interface components {
       name: string;
       /** @description product of the isotopic amount fractions (CIAAW 2013, Meija et al. 2016) */
       naturalAbundance: number;
+      notice: string;
       reducedMass: {
         uncertainty: number;
         /** @constant */
@@ -1576,6 +1577,7 @@ export interface components {
       name: string;
       /** @description product of the isotopic amount fractions (CIAAW 2013, Meija et al. 2016) */
       naturalAbundance: number;
+      notice: string;
       otherModes?: ({
           centre: {
             note?: string;

@@ -64,7 +64,10 @@ export const LinearSpeciesEntrySchema = z
   .meta({ id: 'LinearSpeciesEntry' });
 
 const SpeciesEntryResponseSchema = z
-  .union([SpeciesEntrySchema.extend(provenanceFields), LinearSpeciesEntrySchema.extend(provenanceFields)])
+  .union([
+    SpeciesEntrySchema.extend({ notice: z.string(), ...provenanceFields }),
+    LinearSpeciesEntrySchema.extend({ notice: z.string(), ...provenanceFields }),
+  ])
   .meta({ id: 'SpeciesEntryResponse' });
 
 export const SpeciesListSchema = z

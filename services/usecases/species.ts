@@ -97,10 +97,13 @@ export function listSpecies() {
   };
 }
 
-/** GET /v1/species/{formula}: a diatomic entry, or a linear polyatomic entry for chains and everyday formulas. */
+/**
+ * GET /v1/species/{formula}: a diatomic entry, or a linear polyatomic entry for chains and everyday formulas, with
+ * the safety notice every result carries.
+ */
 export function getSpecies(formula: string) {
-  if (isLinearSpeciesString(formula)) return getLinearSpecies(formula);
-  return getDiatomicSpecies(formula);
+  const entry = isLinearSpeciesString(formula) ? getLinearSpecies(formula) : getDiatomicSpecies(formula);
+  return { ...entry, notice: SAFETY_NOTICE };
 }
 
 export function getLinearSpecies(formula: string) {
