@@ -5,6 +5,7 @@ import type { z } from 'zod';
 import { ScienceError } from '../../src/errors.js';
 import type { Config } from '../config.js';
 import { HttpProblem, nonFiniteProblem, scienceProblem } from '../errors.js';
+import { SAFETY_NOTICE } from '../notice.js';
 import { jobSize } from '../pool.js';
 import { stamped } from '../provenance.js';
 import { checkRequestSchema } from '../schemas/checks.js';
@@ -69,6 +70,9 @@ export function resolvers(config: Config, app: FastifyInstance) {
   const checkSchema = checkRequestSchema(config.maxLines);
   return {
     JSON: JSONScalar,
+    // A library entry carries the caution too, as GET /v1/species/{formula} does.
+    SpeciesEntry: { notice: () => SAFETY_NOTICE },
+    LinearSpeciesEntry: { notice: () => SAFETY_NOTICE },
     Query: {
       fit: async (_: unknown, args: { input: unknown }, ctx: Ctx) => {
         const parsed = schema.safeParse(dropNulls(args.input));

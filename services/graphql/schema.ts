@@ -390,6 +390,8 @@ export const typeDefs = /* GraphQL */ `
     hazard: String!
     "constant name → { value, unit, source, provenance, note }"
     constants: JSON!
+    "safety caution: the service certifies nothing about a gas"
+    notice: String!
   }
 
   "An entry of the linear polyatomic library (GET /v1/species/{formula} for CO2, 16O-12C-16O, …)."
@@ -408,6 +410,8 @@ export const typeDefs = /* GraphQL */ `
     otherModes: JSON
     "source key → { cite, address }"
     sources: JSON!
+    "safety caution: the service certifies nothing about a gas"
+    notice: String!
   }
 
   type CheckEntry {

@@ -32,4 +32,12 @@ describe('every JSON result carries the safety notice', () => {
       expect(r.json().notice).toBe(SAFETY_NOTICE);
     });
   }
+  it('GraphQL library entries (species, linearSpecies)', async () => {
+    const query = '{ species(formula: "CO") { formula notice } linearSpecies(formula: "CO2") { formula notice } }';
+    const r = await app().inject({ method: 'POST', url: '/graphql', payload: { query } });
+    expect(r.statusCode).toBe(200);
+    const data = r.json().data as Record<string, { notice: string }[]>;
+    expect(data.species?.[0]?.notice).toBe(SAFETY_NOTICE);
+    expect(data.linearSpecies?.[0]?.notice).toBe(SAFETY_NOTICE);
+  });
 });
