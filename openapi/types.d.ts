@@ -1127,7 +1127,43 @@ export interface components {
           names: ("omega_e" | "omega_e_x_e" | "omega_e_y_e" | "omega_e_z_e" | "B_e" | "alpha_e" | "gamma_e" | "D_e" | "beta_e" | "H_e")[];
         };
         values: {
-          [key: string]: {
+          alpha_e?: {
+            uncertainty?: number;
+            value: number;
+          };
+          B_e?: {
+            uncertainty?: number;
+            value: number;
+          };
+          beta_e?: {
+            uncertainty?: number;
+            value: number;
+          };
+          D_e?: {
+            uncertainty?: number;
+            value: number;
+          };
+          gamma_e?: {
+            uncertainty?: number;
+            value: number;
+          };
+          H_e?: {
+            uncertainty?: number;
+            value: number;
+          };
+          omega_e?: {
+            uncertainty?: number;
+            value: number;
+          };
+          omega_e_x_e?: {
+            uncertainty?: number;
+            value: number;
+          };
+          omega_e_y_e?: {
+            uncertainty?: number;
+            value: number;
+          };
+          omega_e_z_e?: {
             uncertainty?: number;
             value: number;
           };
@@ -1300,7 +1336,43 @@ export interface components {
           names: ("omega_e" | "omega_e_x_e" | "omega_e_y_e" | "omega_e_z_e" | "B_e" | "alpha_e" | "gamma_e" | "D_e" | "beta_e" | "H_e")[];
         };
         values: {
-          [key: string]: {
+          alpha_e?: {
+            uncertainty?: number;
+            value: number;
+          };
+          B_e?: {
+            uncertainty?: number;
+            value: number;
+          };
+          beta_e?: {
+            uncertainty?: number;
+            value: number;
+          };
+          D_e?: {
+            uncertainty?: number;
+            value: number;
+          };
+          gamma_e?: {
+            uncertainty?: number;
+            value: number;
+          };
+          H_e?: {
+            uncertainty?: number;
+            value: number;
+          };
+          omega_e?: {
+            uncertainty?: number;
+            value: number;
+          };
+          omega_e_x_e?: {
+            uncertainty?: number;
+            value: number;
+          };
+          omega_e_y_e?: {
+            uncertainty?: number;
+            value: number;
+          };
+          omega_e_z_e?: {
             uncertainty?: number;
             value: number;
           };
@@ -1610,7 +1682,7 @@ export interface components {
       species: components["schemas"]["SpeciesEntry"][];
     };
     Spectrum: {
-      /** @description abscissa, increasing or decreasing */
+      /** @description abscissa, increasing or decreasing; in a wavelength unit (xUnit um or nm) each x is at least 1e-8 µm or 1e-5 nm (a wavenumber up to 1e12 cm-1) */
       x: number[];
       /**
        * @description wavenumber (cm-1, also written 1/cm, cm^-1, wavenumbers), or vacuum wavelength (um, µm; nm)
@@ -1887,6 +1959,8 @@ export interface operations {
         detail?: "full" | "lean";
         /** @description with Accept: text/csv, which table: lines (default), constants, or checks (/v1/checks only) */
         table?: "lines" | "constants" | "checks";
+        /** @description with Accept: text/csv, true: the table is preceded by comment lines starting "# " (the safety notice, then one "# warning CODE: message" line per warning). Every CSV answer carries them in the Branchwise-Notice and Branchwise-Warnings response headers */
+        comments?: "true" | "false";
       };
     };
     requestBody: {
@@ -1950,6 +2024,12 @@ export interface operations {
     responses: {
       /** @description the result: JSON, or CSV when Accept prefers text/csv */
       200: {
+        headers: {
+          /** @description CSV answers only: the safety notice of the JSON answer (`notice`) */
+          "Branchwise-Notice"?: string;
+          /** @description CSV answers only: the distinct codes of the fit's warnings, comma-separated, or "none"; ?comments=true also writes each warning with its message as a "# warning CODE: message" line above the table */
+          "Branchwise-Warnings"?: string;
+        };
         content: {
           "application/json": components["schemas"]["CheckResponse"];
           "text/csv": string;
@@ -2018,6 +2098,8 @@ export interface operations {
         detail?: "full" | "lean";
         /** @description with Accept: text/csv, which table: lines (default), constants, or checks (/v1/checks only) */
         table?: "lines" | "constants" | "checks";
+        /** @description with Accept: text/csv, true: the table is preceded by comment lines starting "# " (the safety notice, then one "# warning CODE: message" line per warning). Every CSV answer carries them in the Branchwise-Notice and Branchwise-Warnings response headers */
+        comments?: "true" | "false";
       };
     };
     requestBody: {
@@ -2081,6 +2163,12 @@ export interface operations {
     responses: {
       /** @description the result: JSON, or CSV when Accept prefers text/csv */
       200: {
+        headers: {
+          /** @description CSV answers only: the safety notice of the JSON answer (`notice`) */
+          "Branchwise-Notice"?: string;
+          /** @description CSV answers only: the distinct codes of the fit's warnings, comma-separated, or "none"; ?comments=true also writes each warning with its message as a "# warning CODE: message" line above the table */
+          "Branchwise-Warnings"?: string;
+        };
         content: {
           "application/json": components["schemas"]["FitResponse"];
           "text/csv": string;

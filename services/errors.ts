@@ -189,7 +189,7 @@ function toProblemUntruncated(error: unknown, request: FastifyRequest): Problem 
     typeof error.details.line === 'number'
   )
     return badValue(
-      `(CSV line ${error.details.line}) ${error.details.column}`,
+      `(${typeof error.details.file === 'string' ? error.details.file : 'CSV'} line ${error.details.line}) ${error.details.column}`,
       `${error.message}: expected a finite number, e.g. 2143.27`,
       instance,
     );

@@ -1,7 +1,7 @@
 import { move, transferableSymbol, valueSymbol } from 'piscina';
 import type { z } from 'zod';
 import { ScienceError } from '../src/errors.js';
-import { prefersCsv, resultCsv, type TableName } from './formats/csv-tables.js';
+import { cautionHeaders, prefersCsv, resultCsvAnswer, type TableName } from './formats/csv-tables.js';
 import { withDetail } from './formats/respond.js';
 import { withDisplay } from './formats/round.js';
 import { jobSize } from './job-size.js';
@@ -55,6 +55,8 @@ export interface RawAnswer {
   readonly type: string;
   /** The QA verdict, for the metrics. */
   readonly verdict?: string;
+  /** Response headers beside the type (a CSV answer's cautions). */
+  readonly headers?: Record<string, string>;
 }
 
 export type JobResult =
@@ -129,9 +131,14 @@ function rawAnswer(
   // The same forms as a small body gets (services/formats/respond.ts): CSV tables, or rounded display strings.
   if (job.route !== 'peaks' && prefersCsv(job.accept)) {
     const table = (job.query.table as TableName | undefined) ?? 'lines';
+    const kind = job.route as 'fit' | 'check';
     return {
-      body: utf8(resultCsv(job.route as 'fit' | 'check', stamped as never, table)),
+      body: utf8(resultCsvAnswer(kind, stamped as never, table, job.query.comments === 'true')),
       type: 'text/csv; charset=utf-8',
+      headers: {
+        'content-disposition': `inline; filename="${kind}-${table}.csv"`,
+        ...cautionHeaders(kind, stamped as never),
+      },
       ...verdict,
     };
   }

@@ -143,3 +143,52 @@ export function prefersCsv(accept: string | undefined): boolean {
   }
   return csv > 0 && csv > json;
 }
+
+/** Response headers of every CSV answer: the safety notice and the codes of the fit's warnings (or "none"). */
+export const NOTICE_HEADER = 'Branchwise-Notice';
+export const WARNINGS_HEADER = 'Branchwise-Warnings';
+
+interface Cautions {
+  readonly notice: string;
+  readonly warnings: readonly { readonly code: string; readonly message: string }[];
+}
+
+/** The cautions a JSON answer carries and its CSV tables leave out: the notice and the fit's warnings. */
+function cautionsOf(kind: 'fit' | 'check', result: FitResponse | CheckResponse): Cautions {
+  const fit = kind === 'check' ? ((result as CheckResponse).fit as FitResponse | null) : (result as FitResponse);
+  return { notice: result.notice, warnings: fit?.warnings ?? [] };
+}
+
+/** A header value: printable ASCII only (a warning's message may hold σ or ″, which HTTP headers cannot carry). */
+const headerText = (s: string) => s.replace(/[^\x20-\x7e]/g, '?');
+
+/** The two caution headers of a CSV answer: the notice as it is, the distinct warning codes comma-separated. */
+export function cautionHeaders(kind: 'fit' | 'check', result: FitResponse | CheckResponse): Record<string, string> {
+  const c = cautionsOf(kind, result);
+  const codes = [...new Set(c.warnings.map((w) => w.code))];
+  return {
+    [NOTICE_HEADER]: headerText(c.notice),
+    [WARNINGS_HEADER]: codes.length > 0 ? headerText(codes.join(', ')) : 'none',
+  };
+}
+
+/**
+ * The table in CSV, preceded when asked (`?comments=true`) by comment lines: "# notice: …" and one
+ * "# warning CODE: message" line per warning. The table below them is the same bytes as without them.
+ */
+export function resultCsvAnswer(
+  kind: 'fit' | 'check',
+  result: FitResponse | CheckResponse,
+  table: TableName,
+  comments: boolean,
+): string {
+  const csv = resultCsv(kind, result, table);
+  if (!comments) return csv;
+  const c = cautionsOf(kind, result);
+  const oneLine = (s: string) => s.replace(/[\r\n]+/g, ' ');
+  const lines = [
+    `# notice: ${oneLine(c.notice)}`,
+    ...c.warnings.map((w) => `# warning ${oneLine(w.code)}: ${oneLine(w.message)}`),
+  ];
+  return `${lines.join('\r\n')}\r\n${csv}`;
+}

@@ -1,7 +1,7 @@
 import type { FastifyReply, FastifyRequest } from 'fastify';
 import type { CheckResponse } from '../schemas/checks.js';
 import type { FitResponse } from '../schemas/fit.js';
-import { prefersCsv, resultCsv, type TableName } from './csv-tables.js';
+import { cautionHeaders, prefersCsv, resultCsvAnswer, type TableName } from './csv-tables.js';
 import { withDisplay } from './round.js';
 
 /**
@@ -15,13 +15,14 @@ export function resultInForm<T extends FitResponse | CheckResponse>(
   kind: 'fit' | 'check',
   result: T,
 ): T | FastifyReply {
-  const q = (req.query ?? {}) as { display?: string; table?: TableName };
+  const q = (req.query ?? {}) as { display?: string; table?: TableName; comments?: string };
   if (prefersCsv(req.headers.accept)) {
     const table = q.table ?? 'lines';
     return reply
       .type('text/csv; charset=utf-8')
       .header('content-disposition', `inline; filename="${kind}-${table}.csv"`)
-      .send(resultCsv(kind, result, table));
+      .headers(cautionHeaders(kind, result))
+      .send(resultCsvAnswer(kind, result, table, q.comments === 'true'));
   }
   return q.display === 'rounded' ? withDisplay(result) : result;
 }

@@ -327,6 +327,18 @@ export function finishDocument<T>(generated: T, version: string): T {
       if (csvResult && isObj(ok.content)) {
         ok.content['text/csv'] = { schema: { type: 'string', description: csvResult } };
         ok.description = 'the result: JSON, or CSV when Accept prefers text/csv';
+        // The CSV table has no room for the notice and warnings a JSON answer carries: they travel as headers.
+        ok.headers = {
+          'Branchwise-Notice': {
+            description: 'CSV answers only: the safety notice of the JSON answer (`notice`)',
+            schema: { type: 'string' },
+          },
+          'Branchwise-Warnings': {
+            description:
+              'CSV answers only: the distinct codes of the fit\'s warnings, comma-separated, or "none"; ?comments=true also writes each warning with its message as a "# warning CODE: message" line above the table',
+            schema: { type: 'string' },
+          },
+        };
       }
       if (path.startsWith('/v1/')) {
         op.security = [{ bearerAuth: [] }, {}];

@@ -87,6 +87,7 @@ export async function answerRawBody(
     }
   }
   if (a.verdict) app.metrics.verdicts.labels(a.verdict).inc();
+  if (a.headers) reply.headers(a.headers);
   reply.type(a.type).send(Buffer.from(a.body.buffer, a.body.byteOffset, a.body.byteLength));
   return true;
 }

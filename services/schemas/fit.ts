@@ -276,7 +276,9 @@ export const SpectrumSchema = z
       .array(realNumber().min(-MAX_MAGNITUDE).max(MAX_MAGNITUDE))
       .min(7)
       .max(MAX_SPECTRUM_POINTS)
-      .describe('abscissa, increasing or decreasing'),
+      .describe(
+        'abscissa, increasing or decreasing; in a wavelength unit (xUnit um or nm) each x is at least 1e-8 µm or 1e-5 nm (a wavenumber up to 1e12 cm-1)',
+      ),
     y: z.array(realNumber().min(-MAX_MAGNITUDE).max(MAX_MAGNITUDE)).min(7).max(MAX_SPECTRUM_POINTS),
     yUnit: z
       .enum(['absorbance', 'transmittance'])
@@ -285,6 +287,23 @@ export const SpectrumSchema = z
     xUnit: XUnitSchema,
   })
   .refine((s) => s.x.length === s.y.length, { message: 'x and y must have the same number of points', path: ['y'] })
+  .superRefine((s, ctx) => {
+    // A wavelength becomes the wavenumber 1e4/x (um) or 1e7/x (nm): it must be positive and give a wavenumber up to
+    // MAX_MAGNITUDE cm-1. A subnormal x in um overflowed to Infinity and came back as a 422 "point 5 is not a finite
+    // number", 0 or a negative x as a 422 from the conversion; they are bad values of the field (400 naming it).
+    if (s.xUnit !== 'um' && s.xUnit !== 'nm') return;
+    const least = (s.xUnit === 'um' ? 1e4 : 1e7) / MAX_MAGNITUDE;
+    let named = 0;
+    s.x.forEach((x, i) => {
+      if (x >= least || named >= 5) return;
+      named++;
+      ctx.addIssue({
+        code: 'custom',
+        path: ['x', i],
+        message: `a vacuum wavelength in ${s.xUnit} must be at least ${least} (a wavenumber up to ${MAX_MAGNITUDE} cm-1), received ${x}`,
+      });
+    });
+  })
   .meta({ id: 'Spectrum' });
 
 export const PeakOptionsSchema = z

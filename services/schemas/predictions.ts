@@ -18,10 +18,28 @@ const CONSTANTS = [
 /** Largest magnitude of a caller's constant, its uncertainty or a linear level's term (cm-1): ω_e of H2 is 4401. */
 const MAX_CONSTANT = 1e6;
 const finite = realNumber().min(-MAX_CONSTANT).max(MAX_CONSTANT);
-const ConstantValue = z.strictObject({
-  value: finite,
-  uncertainty: realNumber().min(0).max(MAX_CONSTANT).optional(),
-});
+const uncertainty = realNumber().min(0).max(MAX_CONSTANT).optional();
+const ConstantValue = z.strictObject({ value: finite, uncertainty });
+/**
+ * ω_e and B_e are positive for any bound diatomic (a harmonic frequency and h/(8π²c μ r_e²)), D_e ≥ 0 (4B_e³/ω_e² to
+ * first order): a negative ω_e or a B_e ≤ 0 gave 200 with negative positions or inverted branches. The range is in the
+ * document, and a value outside it is a 400 naming `constants/values/<name>/value`.
+ */
+const PositiveConstantValue = z.strictObject({ value: positiveNumber().max(MAX_CONSTANT), uncertainty });
+const NonNegativeConstantValue = z.strictObject({ value: realNumber().min(0).max(MAX_CONSTANT), uncertainty });
+const ConstantValues = z.strictObject(
+  Object.fromEntries(
+    CONSTANTS.map((name) => [
+      name,
+      (name === 'omega_e' || name === 'B_e'
+        ? PositiveConstantValue
+        : name === 'D_e'
+          ? NonNegativeConstantValue
+          : ConstantValue
+      ).optional(),
+    ]),
+  ) as Record<(typeof CONSTANTS)[number], z.ZodOptional<typeof ConstantValue>>,
+);
 
 /** Constants of one level of a linear polyatomic molecule, cm⁻¹, in the convention of the fit responses. */
 export const LinearLevelConstantsSchema = z
@@ -43,7 +61,7 @@ export const PredictionRequestSchema = z
     species: SpeciesStringSchema,
     constants: z
       .strictObject({
-        values: z.partialRecord(z.enum(CONSTANTS), ConstantValue),
+        values: ConstantValues,
         covariance: z
           .strictObject({
             names: z.array(z.enum(CONSTANTS)).min(1).max(CONSTANTS.length),

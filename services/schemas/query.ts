@@ -53,4 +53,10 @@ export const ResultQuerySchema = SpeciesQuerySchema.extend({
     .enum(['lines', 'constants', 'checks'])
     .optional()
     .describe('with Accept: text/csv, which table: lines (default), constants, or checks (/v1/checks only)'),
+  comments: z
+    .enum(['true', 'false'])
+    .optional()
+    .describe(
+      'with Accept: text/csv, true: the table is preceded by comment lines starting "# " (the safety notice, then one "# warning CODE: message" line per warning). Every CSV answer carries them in the Branchwise-Notice and Branchwise-Warnings response headers',
+    ),
 });

@@ -45,7 +45,8 @@ export function checksWithoutFit(
       declared: declared?.formula ?? null,
       bestMatch: best?.species ?? null,
       bestScore: best?.score ?? 0,
-      runnerUp: ranking[1]?.species ?? null,
+      // a runner-up that scores 0 (no better than chance) is not named
+      runnerUp: ranking[1] && ranking[1].score > 0 ? ranking[1].species : null,
       runnerUpScore: ranking[1]?.score ?? 0,
     },
     limit: {},

@@ -35,6 +35,19 @@ function fail(line: number, message: string): never {
   throw new ScienceError('INPUT_INVALID', `JCAMP-DX line ${line}: ${message}`, { line });
 }
 
+/**
+ * A value of the data that is not a finite number (1e400, NaN, text), or that overflows once scaled by its ##XFACTOR=
+ * or ##YFACTOR=: the file's line and the column are named (`details.column`), so the service answers it as the bad
+ * value it is (400 naming the line and value) rather than as a file it cannot read.
+ */
+function badValue(line: number, column: 'X' | 'Y', text: string, why: string): never {
+  throw new ScienceError('INPUT_INVALID', `JCAMP-DX line ${line}: ${column} value "${text}" ${why}`, {
+    line,
+    column,
+    file: 'JCAMP-DX',
+  });
+}
+
 const SQZ: Record<string, number> = {
   '@': 0,
   A: 1,
@@ -347,8 +360,12 @@ function readPairs(
     for (const fields of tuplesOfLine(lines[i] as string, width, i + 1)) {
       const x = Number(fields[0]);
       const y = fields[1] !== undefined && fields[1] !== '?' ? Number(fields[1]) : undefined;
-      if (!Number.isFinite(x) || (y !== undefined && !Number.isFinite(y)))
-        fail(i + 1, `"${fields.join(',')}" is not an X,Y pair`);
+      if (!Number.isFinite(x)) badValue(i + 1, 'X', String(fields[0]), 'is not a finite number');
+      if (y !== undefined && !Number.isFinite(y)) badValue(i + 1, 'Y', String(fields[1]), 'is not a finite number');
+      if (!Number.isFinite(x * xFactor))
+        badValue(i + 1, 'X', String(fields[0]), `times ##XFACTOR=${xFactor} is not a finite number`);
+      if (y !== undefined && !Number.isFinite(y * yFactor))
+        badValue(i + 1, 'Y', String(fields[1]), `times ##YFACTOR=${yFactor} is not a finite number`);
       if (pairs.length >= maxPairs)
         fail(i + 1, `more than ${maxPairs} ${dataLabel === 'PEAKTABLE' ? 'peaks' : 'points'}`);
       pairs.push({ x: x * xFactor, ...(y !== undefined ? { y: y * yFactor } : {}) });
@@ -440,6 +457,8 @@ function readDataLine(
   }
   for (const v of vs) {
     if (state.count >= nPoints) fail(lineNo, `more Y values than ##NPOINTS=${nPoints}`);
+    if (!Number.isFinite(v * yFactor))
+      badValue(lineNo, 'Y', String(v), `times ##YFACTOR=${yFactor} is not a finite number`);
     ys[state.count++] = v * yFactor;
   }
   // The last Y of a DIF line is a data point here and is repeated, as a check, at the start of the next line.

@@ -130,6 +130,15 @@ function conform(body: unknown, linesOrSpectrum: boolean): unknown {
       b.lines = [{ ...first, source: options.referenceSource }, ...lines.slice(1)];
     else b.options = Object.fromEntries(Object.entries(options).filter(([k]) => k !== 'referenceSource'));
   }
+  // A spectrum's x in a wavelength unit is at least 1e-8 µm or 1e-5 nm (its wavenumber at most 1e12 cm-1).
+  const spectrum = b.spectrum as { x?: unknown; xUnit?: unknown } | undefined;
+  if (
+    spectrum &&
+    Array.isArray(spectrum.x) &&
+    typeof spectrum.xUnit === 'string' &&
+    !/^(1\/|cm|wave)/i.test(spectrum.xUnit)
+  )
+    b.spectrum = { ...spectrum, x: spectrum.x.map((v: number) => Math.max(Math.abs(v), 1e-5)) };
   const sample = b.sample as Record<string, unknown> | undefined;
   if (sample && 'measuredAt' in sample) b.sample = { ...sample, measuredAt: '2026-12-02T09:30:00Z' };
   return b;

@@ -144,8 +144,8 @@ describe('POST /v1/potentials', () => {
       [{ species: 'Xq', vMax: 3 }, 422],
       [{ species: '12C-32S', vMax: 3 }, 404],
       [{ species: 'CO', vMax: 3, constants: { values: { B_e: { value: 1.9 } } } }, 422],
-      [{ species: 'CO', vMax: 3, constants: { values: { ...publishedCO, omega_e: { value: -2000 } } } }, 422],
-      [{ species: 'CO', vMax: 3, constants: { values: { ...publishedCO, B_e: { value: 0 } } } }, 422],
+      [{ species: 'CO', vMax: 3, constants: { values: { ...publishedCO, omega_e: { value: -2000 } } } }, 400],
+      [{ species: 'CO', vMax: 3, constants: { values: { ...publishedCO, B_e: { value: 0 } } } }, 400],
       [{ species: 'CO', vMax: 3, constants: { values: { ...publishedCO, B_e: { value: 1e-300 } } } }, 422],
       [{ species: 'CO', vMax: 3, constants: { values: { ...publishedCO, omega_e: { value: 1e300 } } } }, 0],
       [

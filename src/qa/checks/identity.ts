@@ -21,8 +21,9 @@ export function identityCheck(
   if (!main) return notEvaluated('identity', 'no species was fitted');
   const iso = parseSpecies(main);
   const entry = constantsFor(iso);
-  // the runner-up is the best-ranked other molecule (an isotopologue of the fitted one is no rival)
-  const runnerUp = ranking.find((c) => moleculeKey(parseSpecies(c.species)) !== moleculeKey(iso));
+  // the runner-up is the best-ranked other molecule (an isotopologue of the fitted one is no rival) with some support:
+  // one that scores 0 matches no better than lines at random and is not named (it was, "runner-up 2H-19F (score 0.00)")
+  const runnerUp = ranking.find((c) => c.score > 0 && moleculeKey(parseSpecies(c.species)) !== moleculeKey(iso));
   const rivals = identityRivals(best, iso, main, analysis);
   const deviation = entry ? referenceDeviation(analysis, main, entry) : undefined;
   const reference = referenceVerdict(deviation, Boolean(entry), main, tol);
