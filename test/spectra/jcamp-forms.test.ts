@@ -23,7 +23,9 @@ function expectRefusal(text: string, line: number, message: string, limits?: Jca
   const e = refusal(text, limits);
   expect(e.code).toBe('INPUT_INVALID');
   expect(e.message).toBe(`JCAMP-DX line ${line}: ${message}`);
-  expect(e.details).toEqual({ line });
+  // A bad value also names its column, so that the service answers it as a bad value (400), not a bad file.
+  const column = /^([XY]) value /.exec(message)?.[1];
+  expect(e.details).toEqual(column ? { line, column, file: 'JCAMP-DX' } : { line });
 }
 function spectrum(d: JcampData) {
   if (d.kind !== 'spectrum') throw new Error(`read as ${d.kind}`);
@@ -283,8 +285,8 @@ describe('##XYPOINTS= and ##PEAK TABLE=', () => {
       4,
       '3 values cannot be read as 2-value tuples separated by spaces',
     );
-    expectRefusal(pk('abc,1'), 3, '"abc,1" is not an X,Y pair');
-    expectRefusal(pk('2143.27,abc'), 3, '"2143.27,abc" is not an X,Y pair');
+    expectRefusal(pk('abc,1'), 3, 'X value "abc" is not a finite number');
+    expectRefusal(pk('2143.27,abc'), 3, 'Y value "abc" is not a finite number');
     expectRefusal(pk(''), 2, 'the data block is empty');
     expectRefusal(pk('1,1\n2,2\n3,3'), 5, 'more than 2 peaks', { maxPeaks: 2 });
     expectRefusal(pk('1,1\n2,2\n3,3'), 5, 'more than 2 peaks', { maxPoints: 2 });
