@@ -17,8 +17,11 @@ import type { Isotopologue } from '../species/parse.js';
 import type { MassValue } from '../species/reduced-mass.js';
 import { median as robustMedian, robustSigma } from '../stats/robust.js';
 import { type CandidateLine, type CandidateOptions, candidateLines } from './candidates.js';
+import { driftedVote, driftLimit, shiftAt } from './drift.js';
 import { type Competition, lowerBound, matchLines, type ObservedPeak, type Prediction, toleranceFor } from './match.js';
-import { estimateOffset, median } from './offset.js';
+import { countNear, estimateOffset, isNear, median } from './offset.js';
+
+export { countNear, isNear };
 
 /**
  * Automatic assignment of a line list against the reference library (SCIENCE.md §6): predict every plausible band
@@ -150,6 +153,8 @@ export function assignAndFit(
     ctx.freeBySource,
     ctx.maxOffset,
     ctx.minLines,
+    undefined,
+    ctx.referenceDunham,
   );
   ctx.warnings.push(...ambiguousOffsetWarnings(offsets));
   const state: LoopState = {
@@ -888,7 +893,7 @@ export function fittedPrediction(
   // is already off at the reach (`atReach`: fit − reference in the same branch there; a library without γ_e puts
   // H35Cl 2-0 R(19) 7.3 cm⁻¹ off, and the band stopped growing), only the change of that disagreement counts, when
   // smaller: a reference off by a smooth amount still says where the extrapolation bends.
-  const apart = fitted.value + st.shift - (c.position + offset.offset);
+  const apart = fitted.value + st.shift - (c.position + shiftAt(offset, c));
   const second =
     c.j > r
       ? Math.min(Math.abs(apart), atReach !== undefined ? Math.abs(fitted.value - c.position - atReach) : Infinity)
@@ -928,7 +933,7 @@ export function referencePrediction(
   const beyondSeeds = ctx.wide && c.j > START_J + GROWTH_J;
   const tolerance = beyondSeeds ? o.tolerance : o.tolerance * (1 + (c.j / 20) ** 2);
   if (beyondSeeds && tolerance > WIDE_SPACING_FRACTION * (spacing ?? 0)) return undefined;
-  return { position: c.position + o.offset, tolerance, tier: 1 };
+  return { position: c.position + shiftAt(o, c), tolerance, tier: 1 };
 }
 
 /** The fit of a round; when it cannot be made (too few lines or rank deficient), the thinnest band goes and again. */
@@ -1377,7 +1382,7 @@ export function noteIntensityRefusals(
       const c = seeds[k] as CandidateLine;
       const bk = bandKey(c);
       const o = offsets.of(bk, source);
-      if (Math.abs(p.position - c.position - o.offset) > o.tolerance) continue;
+      if (Math.abs(p.position - c.position - shiftAt(o, c)) > o.tolerance) continue;
       if (scale.has(scaleKey(bk, source)) || o.established) continue;
       const ref = classScale(scale, c, source);
       if (ref === undefined) continue;
@@ -1385,7 +1390,7 @@ export function noteIntensityRefusals(
       if (Math.abs(Math.log(ratio)) <= Math.log(BAND_RATIO_LIMIT)) continue;
       ctx.intensityLeftOut.set(
         i,
-        `left out for its intensity: its position matches ${transitionLabel(c)} (${signed(p.position - c.position - o.offset)} cm-1 from the reference with its offset), but its intensity is ×${ratioText(ratio)} the one expected on the main band's scale${source ? ` of source "${source}"` : ''} (more than ×${BAND_RATIO_LIMIT} either way), so it was taken for a coincidence`,
+        `left out for its intensity: its position matches ${transitionLabel(c)} (${signed(p.position - c.position - shiftAt(o, c))} cm-1 from the reference with its offset), but its intensity is ×${ratioText(ratio)} the one expected on the main band's scale${source ? ` of source "${source}"` : ''} (more than ×${BAND_RATIO_LIMIT} either way), so it was taken for a coincidence`,
       );
       break;
     }
@@ -1515,6 +1520,11 @@ export interface OffsetChoice {
   /** Found by the band's own vote, not the source's. */
   readonly own: boolean;
   /**
+   * The band's own vote found it only with its reference positions drifting with J (src/assign/drift.ts): the
+   * coefficient g, cm⁻¹, of g[(v′ + ½)² J′(J′ + 1) − (v″ + ½)² J″(J″ + 1)] added to every reference position.
+   */
+  readonly drift?: number;
+  /**
    * Most of the band's strong predicted lines (at least 2 × minLines) lie on peaks at this offset that no other band
    * predicts: its intensities are not held against those of other bands (they may be on their own scale).
    */
@@ -1541,6 +1551,7 @@ export function voteOffsets(
   maxOffset: number,
   minLines: number,
   voters = { source: 80, band: 30 },
+  reference?: ReadonlyMap<string, ReadonlyMap<string, number>>,
 ): OffsetVotes {
   const bySource = new Map<string, OffsetChoice & { ambiguous: boolean }>();
   const perBand = new Map<string, OffsetChoice>();
@@ -1554,7 +1565,16 @@ export function voteOffsets(
     const observed = peaks.map((p) => p.position);
     const choice = sourceOffset(seeds, observed, maxOffset, voters.source);
     bySource.set(src, choice);
-    const vote: BandVote = { seeds, observed, sorted: copyFloats(observed).sort(), choice, maxOffset, minLines };
+    const sorted = copyFloats(observed).sort();
+    const vote: BandVote = {
+      seeds,
+      observed,
+      sorted,
+      choice,
+      maxOffset,
+      minLines,
+      ...(reference ? { reference } : {}),
+    };
     for (const [bk, list] of bands) {
       const top = [...list].sort((a, b) => b.intensity - a.intensity).slice(0, voters.band);
       perBand.set(`${bk}#${src}`, bandOffset(vote, bk, top));
@@ -1602,17 +1622,16 @@ interface BandVote {
   readonly choice: OffsetChoice;
   readonly maxOffset: number;
   readonly minLines: number;
+  /** The reference's Dunham coefficients per species: with them a band that finds too few lines may drift. */
+  readonly reference?: ReadonlyMap<string, ReadonlyMap<string, number>>;
 }
 
 /**
  * A band's offset within one source from its strongest predictions (`top`): its own when that explains clearly more
  * of them than the source's, and established when most of them lie on peaks no other band predicts.
  */
-function bandOffset(
-  { seeds, observed, sorted, choice, maxOffset, minLines }: BandVote,
-  bk: string,
-  top: readonly CandidateLine[],
-): OffsetChoice {
+function bandOffset(vote: BandVote, bk: string, top: readonly CandidateLine[]): OffsetChoice {
+  const { seeds, observed, sorted, choice, maxOffset, minLines } = vote;
   if (top.length < minLines) return choice;
   let use: OffsetChoice = choice;
   const withSource = countNear(top, sorted, choice.offset, choice.tolerance);
@@ -1626,11 +1645,13 @@ function bandOffset(
     const n = countNear(top, sorted, own.offset, tol, claimed, choice.tolerance);
     if (n >= minLines && n >= withSource + 3 && n >= 2 * withSource)
       use = { offset: own.offset, tolerance: tol, own: true };
+    else if (n < minLines && withSource < minLines && (top[0] as CandidateLine).band.lower === 0)
+      use = driftedOffset(top, vote, claimed, withSource) ?? use;
   }
   // Most of the band's strong lines on peaks no other band predicts: its positions establish it, whatever scale
   // its intensities are on.
   const alone = countNear(
-    top,
+    use.drift === undefined ? top : top.map((c) => ({ position: c.position + shiftAt(use, c) - use.offset })),
     sorted,
     use.offset,
     use.tolerance,
@@ -1638,6 +1659,25 @@ function bandOffset(
     use.tolerance,
   );
   return alone >= 2 * minLines && alone >= ESTABLISHED_SHARE * top.length ? { ...use, established: true } : use;
+}
+
+/**
+ * A band that finds too few of its strong lines at any one offset, tried once more with its reference positions
+ * drifting with J (src/assign/drift.ts): kept when the drift explains at least minLines of them on peaks no other
+ * band claims, three more and twice as many as the source's offset does.
+ */
+function driftedOffset(
+  top: readonly CandidateLine[],
+  vote: BandVote,
+  claimed: Float64Array,
+  withSource: number,
+): OffsetChoice | undefined {
+  const { observed, sorted, choice, maxOffset, minLines } = vote;
+  const maxDrift = driftLimit(vote.reference?.get((top[0] as CandidateLine).species));
+  const d = driftedVote(top, observed, sorted, maxOffset, maxDrift, claimed, choice.tolerance);
+  if (!d || d.drift === 0 || d.matches < minLines || d.matches < withSource + 3 || d.matches < 2 * withSource)
+    return undefined;
+  return { offset: d.offset, tolerance: d.tolerance, own: true, drift: d.drift };
 }
 
 /**
@@ -1663,42 +1703,13 @@ export function widenedOffsets(
     ctx.maxOffset,
     ctx.minLines,
     { source: 300, band: 60 },
+    ctx.referenceDunham,
   );
   const bySource = new Map(first.bySource);
   const perBand = new Map(first.perBand);
   for (const [s, o] of wide.bySource) bySource.set(s, o);
   for (const [k, o] of wide.perBand) perBand.set(k, o);
   return offsetVotes(bySource, perBand);
-}
-
-/**
- * How many predictions, shifted by the offset, have a peak within the tolerance; with `claimed` (sorted positions),
- * only peaks farther than `claimTol` from every claimed position count.
- */
-export function countNear(
-  preds: readonly { position: number }[],
-  sorted: Float64Array,
-  offset: number,
-  tol: number,
-  claimed?: Float64Array,
-  claimTol = 0,
-): number {
-  let n = 0;
-  for (const p of preds) {
-    const hi = p.position + offset + tol;
-    for (let i = lowerBound(sorted, p.position + offset - tol); i < sorted.length && (sorted[i] as number) <= hi; i++) {
-      if (claimed && isNear(claimed, sorted[i] as number, claimTol)) continue;
-      n++;
-      break;
-    }
-  }
-  return n;
-}
-
-/** Whether a sorted array holds a value within tol of x. */
-export function isNear(sorted: Float64Array, x: number, tol: number): boolean {
-  const i = lowerBound(sorted, x - tol);
-  return i < sorted.length && (sorted[i] as number) <= x + tol;
 }
 
 /** Where the seeds of every band but `band` are predicted at the given offset, sorted. */

@@ -70,3 +70,33 @@ export function median(xs: readonly number[]): number {
   const m = s.length >> 1;
   return s.length % 2 ? (s[m] as number) : 0.5 * ((s[m - 1] as number) + (s[m] as number));
 }
+
+/**
+ * How many predictions, shifted by the offset, have a peak within the tolerance; with `claimed` (sorted positions),
+ * only peaks farther than `claimTol` from every claimed position count.
+ */
+export function countNear(
+  preds: readonly { position: number }[],
+  sorted: Float64Array,
+  offset: number,
+  tol: number,
+  claimed?: Float64Array,
+  claimTol = 0,
+): number {
+  let n = 0;
+  for (const p of preds) {
+    const hi = p.position + offset + tol;
+    for (let i = lowerBound(sorted, p.position + offset - tol); i < sorted.length && (sorted[i] as number) <= hi; i++) {
+      if (claimed && isNear(claimed, sorted[i] as number, claimTol)) continue;
+      n++;
+      break;
+    }
+  }
+  return n;
+}
+
+/** Whether a sorted array holds a value within tol of x. */
+export function isNear(sorted: Float64Array, x: number, tol: number): boolean {
+  const i = lowerBound(sorted, x - tol);
+  return i < sorted.length && (sorted[i] as number) <= x + tol;
+}

@@ -13,7 +13,8 @@ import { heldoutScan, type ScanScore, scoreScan, sweepOptions } from '../helpers
  * transition, 5× above the detection limit, abundance ≥ 1e-3) a person would assign without doubt. Pulls: test/assign/heldout-pulls.test.ts.
  * The full sweep (240 seeds, npx tsx scripts/heldout-sweep.ts 240) measured on this change, before → after:
  * clear lines assigned right 64.0 % → 85.6 %, wrong 790 → 619 of ~46 000 peaks; without a temperature but with
- * intensities 36.3 % → 84.6 % (the temperature read from the intensities, src/assign/temperature.ts).
+ * intensities 36.3 % → 84.6 % (the temperature read from the intensities, src/assign/temperature.ts). The drift vote
+ * (src/assign/drift.ts), same sweep: 85.6 % → 87.1 %, wrong 619 → 612, scans refused 9 → 1; CO classes unchanged.
  * Thresholds, measured on seeds 1–30 (see the table printed): stated beside each.
  */
 const SEEDS = Array.from({ length: 30 }, (_, i) => i + 1);
@@ -45,13 +46,13 @@ describe('held-out scans of CO, HCl, HBr and HF (30 seeds)', () => {
   const outcomes = SEEDS.map(run);
   const sum = (k: keyof ScanScore) => outcomes.reduce((s, o) => s + ((o.score?.[k] as number | undefined) ?? 0), 0);
 
-  it('assigns the clear lines: ≥ 82 % of them right over the 30 scans (measured 84.3 %; 68.2 % before)', () => {
+  it('assigns the clear lines: ≥ 83 % of them right over the 30 scans (measured 85.6 %; 84.3 % before the drift vote, 68.2 % before the temperature was read)', () => {
     const share = sum('clearRight') / sum('clear');
     rows.push(`clear lines right ${sum('clearRight')} / ${sum('clear')} = ${(100 * share).toFixed(1)} %`);
-    expect(share).toBeGreaterThanOrEqual(0.82);
+    expect(share).toBeGreaterThanOrEqual(0.83);
   });
 
-  it('numbers few lines wrong: ≤ 2 % of the lines assigned (measured 1.73 %; 2.43 % before), ≤ 5 % of spurious peaks taken (3.9 %)', () => {
+  it('numbers few lines wrong: ≤ 2 % of the lines assigned (measured 1.69 %; 2.43 % before), ≤ 5 % of spurious peaks taken (3.9 %)', () => {
     const wrong = sum('wrong') / (sum('right') + sum('wrong'));
     rows.push(
       `wrong ${sum('wrong')} of ${sum('right') + sum('wrong')} assigned; spurious taken ${sum('spuriousTaken')} / ${sum('spurious')}`,
@@ -60,7 +61,7 @@ describe('held-out scans of CO, HCl, HBr and HF (30 seeds)', () => {
     expect(sum('spuriousTaken') / sum('spurious')).toBeLessThanOrEqual(0.05);
   });
 
-  it('fails at most 1 of the 30 scans outright (measured 1: seed 18, an HF list of 23 peaks whose 1-0 band shows 5 of its 9 strongest lines)', () => {
-    expect(outcomes.filter((o) => !o.score).length).toBeLessThanOrEqual(1);
+  it('fails none of the 30 scans outright (seed 18, an HF 1-0 + 2-0 list of 23 peaks, failed until bands could vote with a drift: src/assign/drift.ts)', () => {
+    expect(outcomes.filter((o) => !o.score).map((o) => o.seed)).toEqual([]);
   });
 });
