@@ -1316,12 +1316,11 @@ export function repeatedPositions(peaks: readonly PeakInput[], which: readonly n
 /** The final fit of the settled assignment (Dunham included), the unexplained lines, the bands and the calibration. */
 export function finishAssignment(
   ctx: AssignContext,
-  auto: ReadonlyMap<number, CandidateLine>,
+  assigned: ReadonlyMap<number, CandidateLine>,
   offsets: OffsetVotes | undefined,
 ): AssignResult {
-  const lines = lineInputs(ctx, auto);
-  if (!lines.some((l) => l.assignment)) throw nothingAssigned(ctx);
-  const fit = fitLineListDetailed(lines, ctx.masses, ctx.options.fit ?? {});
+  if (!lineInputs(ctx, assigned).some((l) => l.assignment)) throw nothingAssigned(ctx);
+  const { fit, auto, lines } = finalFit(ctx, assigned);
   const unexplained = ctx.peaks.flatMap((p, i) => (p.assignment || auto.has(i) ? [] : [i]));
   if (offsets) noteIntensityRefusals(ctx, auto, offsets, unexplained);
   const forIntensity = unexplained.filter((i) => ctx.intensityLeftOut.has(i));
@@ -1334,7 +1333,8 @@ export function finishAssignment(
     });
   }
   ctx.warnings.push(...intensityScaleWarnings(ctx, auto));
-  const byNoBand = unexplained.filter((i) => !ctx.intensityLeftOut.has(i));
+  // Lines of a band withdrawn by finalFit carry their own note and warning.
+  const byNoBand = unexplained.filter((i) => !ctx.intensityLeftOut.has(i) && !assigned.has(i));
   if (byNoBand.length > 0) {
     const repeats = repeatedPositions(ctx.peaks, byNoBand);
     const why =
@@ -1358,6 +1358,43 @@ export function finishAssignment(
     unexplained,
     warnings: ctx.warnings,
   };
+}
+
+/**
+ * The final fit of the assignment. The rounds fit levels only, with fewer centrifugal terms; when the full fit finds
+ * the level model undetermined (FIT_RANK_DEFICIENT: a 837 K H79Br/H81Br 2-0 + 3-0 scan whose H81Br levels hung on
+ * one thin hot band), the thinnest automatic band is withdrawn, its lines noted, and the fit made again, rather than
+ * the whole list refused.
+ */
+export function finalFit(
+  ctx: AssignContext,
+  assigned: ReadonlyMap<number, CandidateLine>,
+): { fit: DetailedFit; auto: ReadonlyMap<number, CandidateLine>; lines: LineInput[] } {
+  let auto = assigned;
+  for (;;) {
+    const lines = lineInputs(ctx, auto);
+    try {
+      return { fit: fitLineListDetailed(lines, ctx.masses, ctx.options.fit ?? {}), auto, lines };
+    } catch (e) {
+      if (!(e instanceof ScienceError && e.code === 'FIT_RANK_DEFICIENT') || auto.size === 0) throw e;
+      const thinnest = thinnestBand(auto);
+      const kept = new Map([...auto].filter(([, c]) => bandKey(c) !== thinnest));
+      if (!lineInputs(ctx, kept).some((l) => l.assignment)) throw e;
+      for (const [i, c] of auto) {
+        if (kept.has(i)) continue;
+        ctx.notes.set(
+          i,
+          `automatic assignment to ${transitionLabel(c)} withdrawn: with its band the level model could not be determined (${e.message.slice(0, 160)})`,
+        );
+      }
+      ctx.warnings.push({
+        code: 'BAND_WITHDRAWN_UNDETERMINED',
+        message: `${thinnest.replace('|', ' band ')}: its ${auto.size - kept.size} automatically assigned line(s) were withdrawn because with them ${e.message}`,
+        lines: [...auto.keys()].filter((i) => !kept.has(i)),
+      });
+      auto = kept;
+    }
+  }
 }
 
 /**
@@ -1645,8 +1682,7 @@ function bandOffset(vote: BandVote, bk: string, top: readonly CandidateLine[]): 
     const n = countNear(top, sorted, own.offset, tol, claimed, choice.tolerance);
     if (n >= minLines && n >= withSource + 3 && n >= 2 * withSource)
       use = { offset: own.offset, tolerance: tol, own: true };
-    else if (n < minLines && withSource < minLines && (top[0] as CandidateLine).band.lower === 0)
-      use = driftedOffset(top, vote, claimed, withSource) ?? use;
+    else if (n < minLines && withSource < minLines) use = driftedOffset(top, vote, claimed, withSource) ?? use;
   }
   // Most of the band's strong lines on peaks no other band predicts: its positions establish it, whatever scale
   // its intensities are on.
