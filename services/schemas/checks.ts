@@ -7,6 +7,7 @@ import {
   fitRequestFields,
   knownReferenceSource,
   MAX_MAGNITUDE,
+  unknownKeysOf,
 } from './fit.js';
 import { provenanceAndSampleFields } from './provenance.js';
 
@@ -61,8 +62,9 @@ export const TolerancesSchema = z
   .meta({ id: 'Tolerances', description: 'A tolerance profile; every field overrides one documented default.' });
 
 export function checkRequestSchema(maxLines: number) {
+  const fields = { ...fitRequestFields(maxLines), tolerances: TolerancesSchema.optional() };
   return z
-    .strictObject({ ...fitRequestFields(maxLines), tolerances: TolerancesSchema.optional() })
+    .strictObject(fields, { error: unknownKeysOf('a check request', () => Object.keys(fields)) })
     .refine(exactlyOne, exactlyOneMessage)
     .superRefine(knownReferenceSource)
     .meta({ id: 'CheckRequest' });

@@ -106,6 +106,18 @@ function unknownLineKeys(issue: { code?: string; keys?: readonly PropertyKey[] }
   return `Unrecognized key(s) ${listed}: a line has position, uncertainty, intensity, id, source and assignment${hint}`;
 }
 
+/**
+ * The answer to an unknown key of an object with a fixed set of keys (a request, its options): the keys it has, so a
+ * misspelt or misplaced key says what to write instead.
+ */
+export function unknownKeysOf(what: string, keys: () => readonly string[]) {
+  return (issue: { code?: string; keys?: readonly PropertyKey[] }): string | undefined => {
+    if (issue.code !== 'unrecognized_keys' || !issue.keys) return undefined;
+    const listed = issue.keys.map((k) => `"${String(k)}"`).join(', ');
+    return `Unrecognized key(s) ${listed}: ${what} has ${keys().join(', ')}`;
+  };
+}
+
 export const LineSchema = z
   .strictObject(
     {
@@ -146,78 +158,78 @@ export const LineSchema = z
   })
   .meta({ id: 'Line' });
 
+const fitOptionsShape = {
+  uncertaintyMode: z
+    .enum(['a-posteriori', 'absolute'])
+    .optional()
+    .describe(
+      'a-posteriori (default): stated uncertainties are relative weights and the covariance is scaled by χ²/(n−p) (scaled down only on 10 or more degrees of freedom when every line states its σ, else the stated σ stand: UNCERTAINTY_MODE_CHANGED); absolute: line uncertainties taken as given, and a χ² improbable for its degrees of freedom is warned of (CHI_SQUARE_HIGH, CHI_SQUARE_LOW)',
+    ),
+  rejectionThreshold: realNumber()
+    .min(0)
+    .max(1000)
+    .optional()
+    .describe(
+      'externally studentised residual beyond which a line is rejected (default 4; raised to the two-sided normal quantile of 0.25/n for n lines when that is larger, i.e. from about 4 000 lines; 0 turns rejection off)',
+    ),
+  maxRejectedFraction: realNumber()
+    .min(0)
+    .max(0.5)
+    .optional()
+    .describe('largest fraction of the lines that outlier rejection may take out (default 0.2)'),
+  termSignificance: positiveNumber()
+    .lt(0.5)
+    .optional()
+    .describe('F-test p-value below which an added term is kept (default 0.01)'),
+  maxCentrifugalOrder: z
+    .number()
+    .int()
+    .min(1)
+    .max(5)
+    .optional()
+    .describe('1 = B, 2 = D, 3 = H, 4 = L, 5 = M (default 5)'),
+  massReducedDunham: z.boolean().optional().describe('also fit U_kl across isotopologues (default false)'),
+  temperature: realNumber()
+    .min(10)
+    .max(6000)
+    .optional()
+    .describe('gas temperature in K for the Boltzmann weights of automatic assignment (default 296)'),
+  maxOffset: realNumber()
+    .min(0)
+    .max(5)
+    .optional()
+    .describe(
+      'largest instrument wavenumber offset searched by automatic assignment, cm-1 (default 0.5; linear polyatomic species 1.2)',
+    ),
+  lean: z
+    .boolean()
+    .optional()
+    .describe(
+      'true: each entry of `lines` leaves out what the request already holds (uncertainty, intensity, an assignment the caller gave), keeping index, id and position to match lines by; smaller answers for large lists (default false)',
+    ),
+  structureBand: z
+    .string()
+    .regex(/^\d{1,2}-\d{1,2}$/)
+    .optional()
+    .describe('band to number when a species without reference constants is assigned from its structure (default 1-0)'),
+  fitSourceOffsets: z
+    .boolean()
+    .optional()
+    .describe(
+      "lines of two or more sources (diatomic fits): true carries each source's wavenumber offset against the reference source as a fitted parameter, so band origins and constants are free of it and their σ include its uncertainty; false never; default: carried when an offset lies more than 3σ from zero (the answer's sourceOffsets says which)",
+    ),
+  referenceSource: z
+    .string()
+    .min(1)
+    .max(200)
+    .optional()
+    .describe(
+      "the line source that the other sources' offsets are measured against (sourceOffsets); must be the source of at least one line; default: the source with most fitted lines",
+    ),
+};
+
 export const FitOptionsSchema = z
-  .strictObject({
-    uncertaintyMode: z
-      .enum(['a-posteriori', 'absolute'])
-      .optional()
-      .describe(
-        'a-posteriori (default): stated uncertainties are relative weights and the covariance is scaled by χ²/(n−p) (scaled down only on 10 or more degrees of freedom when every line states its σ, else the stated σ stand: UNCERTAINTY_MODE_CHANGED); absolute: line uncertainties taken as given, and a χ² improbable for its degrees of freedom is warned of (CHI_SQUARE_HIGH, CHI_SQUARE_LOW)',
-      ),
-    rejectionThreshold: realNumber()
-      .min(0)
-      .max(1000)
-      .optional()
-      .describe(
-        'externally studentised residual beyond which a line is rejected (default 4; raised to the two-sided normal quantile of 0.25/n for n lines when that is larger, i.e. from about 4 000 lines; 0 turns rejection off)',
-      ),
-    maxRejectedFraction: realNumber()
-      .min(0)
-      .max(0.5)
-      .optional()
-      .describe('largest fraction of the lines that outlier rejection may take out (default 0.2)'),
-    termSignificance: positiveNumber()
-      .lt(0.5)
-      .optional()
-      .describe('F-test p-value below which an added term is kept (default 0.01)'),
-    maxCentrifugalOrder: z
-      .number()
-      .int()
-      .min(1)
-      .max(5)
-      .optional()
-      .describe('1 = B, 2 = D, 3 = H, 4 = L, 5 = M (default 5)'),
-    massReducedDunham: z.boolean().optional().describe('also fit U_kl across isotopologues (default false)'),
-    temperature: realNumber()
-      .min(10)
-      .max(6000)
-      .optional()
-      .describe('gas temperature in K for the Boltzmann weights of automatic assignment (default 296)'),
-    maxOffset: realNumber()
-      .min(0)
-      .max(5)
-      .optional()
-      .describe(
-        'largest instrument wavenumber offset searched by automatic assignment, cm-1 (default 0.5; linear polyatomic species 1.2)',
-      ),
-    lean: z
-      .boolean()
-      .optional()
-      .describe(
-        'true: each entry of `lines` leaves out what the request already holds (uncertainty, intensity, an assignment the caller gave), keeping index, id and position to match lines by; smaller answers for large lists (default false)',
-      ),
-    structureBand: z
-      .string()
-      .regex(/^\d{1,2}-\d{1,2}$/)
-      .optional()
-      .describe(
-        'band to number when a species without reference constants is assigned from its structure (default 1-0)',
-      ),
-    fitSourceOffsets: z
-      .boolean()
-      .optional()
-      .describe(
-        "lines of two or more sources (diatomic fits): true carries each source's wavenumber offset against the reference source as a fitted parameter, so band origins and constants are free of it and their σ include its uncertainty; false never; default: carried when an offset lies more than 3σ from zero (the answer's sourceOffsets says which)",
-      ),
-    referenceSource: z
-      .string()
-      .min(1)
-      .max(200)
-      .optional()
-      .describe(
-        "the line source that the other sources' offsets are measured against (sourceOffsets); must be the source of at least one line; default: the source with most fitted lines",
-      ),
-  })
+  .strictObject(fitOptionsShape, { error: unknownKeysOf('options', () => Object.keys(fitOptionsShape)) })
   .meta({ id: 'FitOptions' });
 
 /** Most points of a spectrum in one request. */
@@ -358,8 +370,9 @@ function knownReferenceSource(
 }
 
 export function fitRequestSchema(maxLines: number) {
+  const fields = fitRequestFields(maxLines);
   return z
-    .strictObject(fitRequestFields(maxLines))
+    .strictObject(fields, { error: unknownKeysOf('a fit request', () => Object.keys(fields)) })
     .refine(exactlyOne, exactlyOneMessage)
     .superRefine(knownReferenceSource)
     .meta({ id: 'FitRequest' });

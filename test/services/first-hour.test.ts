@@ -47,6 +47,36 @@ describe('a JSON line with its assignment written as in a CSV row', () => {
   });
 });
 
+describe('an unknown key of a request or of its options', () => {
+  // A list kept with the published constants beside it, a misspelt option, a profile under a singular name: each
+  // answer names the key and lists the keys that object has, as a line's and a tolerance profile's answers do.
+  const lines = [{ position: 2139.4261 }];
+  it('of a fit request lists the keys a fit request has', async () => {
+    const body = { species: 'CO', published: { B_v_MHz: [57635.968] }, lines };
+    const r = await app().inject({ method: 'POST', url: '/v1/fits', payload: body });
+    expect(r.statusCode).toBe(400);
+    expect(r.json().detail).toBe(
+      '(body): Unrecognized key(s) "published": a fit request has species, unit, lines, spectrum, peakOptions, options, sample',
+    );
+  });
+  it('of a check request lists tolerances too', async () => {
+    const body = { species: 'CO', tolerance: { calibrationOffset: 0.02 }, lines };
+    const r = await app().inject({ method: 'POST', url: '/v1/checks', payload: body });
+    expect(r.statusCode).toBe(400);
+    expect(r.json().detail).toMatch(
+      /^\(body\): Unrecognized key\(s\) "tolerance": a check request has .*, tolerances$/,
+    );
+  });
+  it('of the options lists the options', async () => {
+    const body = { species: 'CO', options: { rejectionTreshold: 3 }, lines };
+    const r = await app().inject({ method: 'POST', url: '/v1/fits', payload: body });
+    expect(r.statusCode).toBe(400);
+    expect(r.json().detail).toMatch(
+      /^options: Unrecognized key\(s\) "rejectionTreshold": options has uncertaintyMode, rejectionThreshold, .*structureBand$/,
+    );
+  });
+});
+
 describe('an assigned CSV line list without a species', () => {
   // 12C16O fundamental, P(1) and R(0)…R(2) from ν0 = 2143.2712 cm⁻¹, B0 = 1.92253, B1 = 1.90502 cm⁻¹ (from memory,
   // close to Huber & Herzberg); no uncertainties.
