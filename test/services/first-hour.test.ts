@@ -72,7 +72,7 @@ describe('an unknown key of a request or of its options', () => {
     const r = await app().inject({ method: 'POST', url: '/v1/fits', payload: body });
     expect(r.statusCode).toBe(400);
     expect(r.json().detail).toMatch(
-      /^options: Unrecognized key\(s\) "rejectionTreshold": options has uncertaintyMode, rejectionThreshold, .*structureBand$/,
+      /^options: Unrecognized key\(s\) "rejectionTreshold": options has uncertaintyMode, rejectionThreshold, .*structureBand, fitSourceOffsets, referenceSource$/,
     );
   });
 });
