@@ -4,6 +4,7 @@ import {
   type DetailedFit,
   type FitOptions,
   fitLineListDetailed,
+  fitRoundWithOffsets,
   type LineInput,
   type LineOutcome,
   type Warning,
@@ -11,7 +12,7 @@ import {
 import type { ScatterEstimate } from '../fit/weights.js';
 import { solveLeastSquares } from '../linalg/least-squares.js';
 import { copyFloats, copyInts, floats, ints, mapFloats, mapInts } from '../linalg/small-arrays.js';
-import { formatBand, type Transition, transitionKey, transitionLabel } from '../models/transitions.js';
+import { type Band, formatBand, type Transition, transitionKey, transitionLabel } from '../models/transitions.js';
 import { constantsFor, dunhamFromEntry } from '../species/library.js';
 import type { Isotopologue } from '../species/parse.js';
 import type { MassValue } from '../species/reduced-mass.js';
@@ -48,6 +49,12 @@ export interface AssignOptions extends CandidateOptions {
   /** Fewest automatically assigned lines a band needs to be kept. Default 4. */
   readonly minLinesPerBand?: number;
   readonly fit?: FitOptions;
+  /**
+   * Lines of two or more sources that do not all reach the same levels: carry the sources' offsets in the round fits
+   * and place a band through another source's levels with the two sources' offset difference (tryFit,
+   * crossSourceShift). Set by assignAndFit for its second attempt; default false.
+   */
+  readonly crossSources?: boolean;
 }
 
 export interface Calibration {
@@ -139,6 +146,28 @@ export function assignAndFit(
   species: readonly { iso: Isotopologue; abundance: number }[],
   masses: ReadonlyMap<string, MassValue>,
   options: AssignOptions = {},
+): AssignResult {
+  const plain = assignOnce(peaks, species, masses, { ...options, crossSources: false });
+  if (!levelsSeenByOneSource(plain.lines)) return plain;
+  // Sources that reach different levels: assigned again with their offsets carried between them (tryFit,
+  // crossSourceShift), kept when that fits more lines. Not the only way: on held-out hot two-instrument scans
+  // assigned at the default temperature before their own is read, the carried offsets, estimated from a poor first
+  // assignment, led it astray (seeds 32 and 140: 732 and 102 lines right, 6 and 26 so), and the temperature read
+  // from it with them.
+  let crossed: AssignResult | undefined;
+  try {
+    crossed = assignOnce(peaks, species, masses, { ...options, crossSources: true });
+  } catch (e) {
+    if (!(e instanceof ScienceError)) throw e;
+  }
+  return crossed && crossed.fit.result.statistics.fitted > plain.fit.result.statistics.fitted ? crossed : plain;
+}
+
+function assignOnce(
+  peaks: readonly PeakInput[],
+  species: readonly { iso: Isotopologue; abundance: number }[],
+  masses: ReadonlyMap<string, MassValue>,
+  options: AssignOptions,
 ): AssignResult {
   const ctx = prepareAssignment(peaks, species, masses, options);
   if (ctx.inWindow === 0) {
@@ -603,8 +632,17 @@ export function proposeMatches(
   const model = roundModel(ctx, state, residuals);
   const out = { peaks: [] as number[], cands: [] as number[], competitions: [] as Competition[] };
   const near = withinReach(ctx, model.reach);
+  const levels = sourceLevels(ctx, state.auto);
+  const carried = ctx.options.crossSources ? carriedOffsets(state.detailed) : undefined;
   ctx.sources.forEach((name, n) => {
-    const src: SourceRef = { name, n, bands: [] };
+    const src: SourceRef = {
+      name,
+      n,
+      bands: [],
+      levels: levels[n] as Map<string, number>,
+      allLevels: levels,
+      carried,
+    };
     const preds: Prediction[] = [];
     for (const ci of near) {
       const p = predictionOf(ctx, offsets, model, ci, src);
@@ -716,6 +754,9 @@ export function predictionOf(
           src,
           view,
           model.detailed && c.j > r ? disagreementAt(ctx, model.detailed, band, c, r) : undefined,
+          ctx.options.crossSources && src.allLevels
+            ? crossSourceShift(offsets, src, c, src.allLevels, ctx.sources)
+            : undefined,
         )
       : referencePrediction(ctx, offsets, cand, r, src.name, view)) ??
     // Beyond a gap the fitted model may have run out while the reference still places the line well.
@@ -855,6 +896,81 @@ export interface SourceRef {
   readonly n: number;
   /** Its bands as a round's predictions see them, by band number (bandInSource; kept when given). */
   readonly bands?: (BandInSource | undefined)[];
+  /** How many of its assigned lines reach each vibrational level ("species|v"; sourceLevels; unknown when not given). */
+  readonly levels?: ReadonlyMap<string, number>;
+  /** Every source's levels, by source number (sourceLevels). */
+  readonly allLevels?: readonly ReadonlyMap<string, number>[];
+  /** The offsets the last round fit carried, by source (carriedOffsets; the reference source's is 0). */
+  readonly carried?: ReadonlyMap<string, number>;
+}
+
+/**
+ * Per source (by number), how many of its assigned lines (automatic and given) reach each vibrational level
+ * ("species|v"), as upper or lower level. A band whose upper or lower level no line of a source reaches is placed by
+ * the round fit only through other sources' lines, and so off by their offset against this source, as far as the
+ * round fit could not carry it (crossSourceShift).
+ */
+export function sourceLevels(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>): Map<string, number>[] {
+  const out = ctx.sources.map(() => new Map<string, number>());
+  const add = (index: number, t: { species: string; band: Band }) => {
+    const counts = out[ctx.sourceNumbers[index] as number];
+    if (!counts) return;
+    for (const v of t.band.upper === t.band.lower ? [t.band.upper] : [t.band.upper, t.band.lower]) {
+      const k = `${t.species}|${v}`;
+      counts.set(k, (counts.get(k) ?? 0) + 1);
+    }
+  };
+  for (const [index, c] of auto) add(index, c);
+  for (const g of ctx.given) add(g.index, g.t);
+  return out;
+}
+
+/** The source offsets a round fit carried (none when it carried none). */
+export function carriedOffsets(fit: DetailedFit | undefined): Map<string, number> {
+  const out = new Map<string, number>();
+  const so = fit?.result.sourceOffsets;
+  if (!so?.applied) return out;
+  for (const s of so.sources) if (s.offset) out.set(s.source, s.offset.value);
+  return out;
+}
+
+/**
+ * How a fitted placement of `c` in `src` must move and widen when the fit holds one of its band's levels only
+ * through another source's lines: by the difference of the two sources' voted offsets, within the wider of their
+ * vote tolerances. Undefined when the source's own lines reach both levels (or for pure rotation).
+ */
+export function crossSourceShift(
+  offsets: OffsetVotes,
+  src: SourceRef,
+  c: CandidateLine,
+  all: readonly ReadonlyMap<string, number>[],
+  sources: readonly string[],
+): { shift: number; tolerance: number } | undefined {
+  const own = src.levels;
+  if (!own || c.band.upper === c.band.lower) return undefined;
+  const missing = [c.band.upper, c.band.lower].map((v) => `${c.species}|${v}`).filter((k) => !own.has(k));
+  if (missing.length === 0) return undefined;
+  // The other source whose lines reach the missing level(s) most.
+  let best = -1;
+  let most = 0;
+  all.forEach((counts, n) => {
+    if (n === src.n) return;
+    const reach = missing.reduce((a, k) => a + (counts.get(k) ?? 0), 0);
+    if (reach > most) {
+      most = reach;
+      best = n;
+    }
+  });
+  if (best < 0) return undefined;
+  const other = sources[best] as string;
+  const mine = offsets.bySource.get(src.name);
+  const theirs = offsets.bySource.get(other);
+  if (!mine || !theirs) return undefined;
+  // What the fit already carried of the two sources' difference (its placement adds this source's carried offset):
+  // a pure rotation band fixes its source's offset while a vibrational band's absorbs into the band origin, so a
+  // carried offset need not be the whole difference.
+  const carried = (src.carried?.get(src.name) ?? 0) - (src.carried?.get(other) ?? 0);
+  return { shift: mine.offset - theirs.offset - carried, tolerance: Math.max(mine.tolerance, theirs.tolerance) };
 }
 
 /**
@@ -874,9 +990,10 @@ export function fittedPrediction(
   { c, band, bk }: CandidateRef,
   fitted: { value: number; variance: number },
   r: number,
-  { name: src, n: srcNumber }: SourceRef,
+  { name: src, n: srcNumber, carried }: SourceRef,
   { offset, spacing }: BandPlacement = { offset: offsets.of(bk, src), spacing: ctx.spacing.get(bk) },
   atReach?: number,
+  cross?: { readonly shift: number; readonly tolerance: number },
 ): Placement | undefined {
   if (!ctx.wide && outOfReach(c.j, r)) return undefined;
   const st = residuals.of(band, srcNumber);
@@ -898,12 +1015,12 @@ export function fittedPrediction(
     c.j > r
       ? Math.min(Math.abs(apart), atReach !== undefined ? Math.abs(fitted.value - c.position - atReach) : Infinity)
       : 0;
-  const model = Math.hypot(K_FITTED * Math.sqrt(fitted.variance), second) + 1e-6;
+  const model = Math.hypot(K_FITTED * Math.sqrt(fitted.variance), second, cross?.tolerance ?? 0) + 1e-6;
   // A tolerance wider than a quarter of the line spacing tells nothing.
   if (model > 0.25 * (spacing ?? Number.POSITIVE_INFINITY)) return undefined;
   const coincidence = COINCIDENCE_FRACTION * (spacing ?? 0);
   return {
-    position: fitted.value + st.shift,
+    position: fitted.value + st.shift + (cross?.shift ?? 0) + (carried?.get(src) ?? 0),
     tolerance: Math.max(Math.hypot(model, K_FITTED * st.scatter), coincidence),
     // The same floor for lines with σ: a database's stated σ is a lower bound. Real CO 3-0 R(34) and R(40) by the
     // band head lie 8e-5 and 1.3e-4 cm⁻¹ (8 and 13 times their stated σ) from the band's fit, under the floor of
@@ -1283,11 +1400,58 @@ export function beyondWindow(
 
 /** The level fit of a round; undefined when too few lines or a rank deficiency leave it impossible. */
 export function tryFit(ctx: AssignContext, lines: LineInput[], scatter?: ScatterEstimate): DetailedFit | undefined {
+  // Lines of two or more sources that do not all reach the same levels: the sources' offsets carried
+  // (fitRoundWithOffsets), so that lines of a level seen by two instruments do not pull against each other
+  // (fittedPrediction adds them back); when no offset is determined or that fit fails, the round is fitted without.
+  if (ctx.options.crossSources && ctx.sources.length > 1 && levelsSeenByOneSource(lines)) {
+    const carried = loopFit(ctx, lines, scatter, (o) => fitRoundWithOffsets(lines, ctx.masses, o));
+    if (carried) return carried;
+  }
+  return loopFit(ctx, lines, scatter, (o) => fitLineListDetailed(lines, ctx.masses, o));
+}
+
+/**
+ * Whether some vibrational level is reached by the assigned lines of one source and not of another: only then can a
+ * source's offset not be taken up per band and source (the shift of residualStatistics) and must be carried in the
+ * round fits. When every source reaches every level (a list split line by line) the offsets stay out of the rounds:
+ * carried there, estimated from a round's assignment, they took up the isotope shift of H79Br/H81Br and H35Cl/H37Cl
+ * lines exchanged in one source and led the next rounds further astray (held-out seeds 93, 219: 171 and 204 lines
+ * right before, 3 and 96 with them).
+ */
+export function levelsSeenByOneSource(lines: readonly LineInput[]): boolean {
+  const bySource = new Map<string, Set<string>>();
+  const all = new Set<string>();
+  for (const l of lines) {
+    const a = l.assignment;
+    if (!a || l.source === undefined) continue;
+    let set = bySource.get(l.source);
+    if (!set) {
+      set = new Set();
+      bySource.set(l.source, set);
+    }
+    for (const v of [a.band.upper, a.band.lower]) {
+      const k = `${a.species}|${v}`;
+      set.add(k);
+      all.add(k);
+    }
+  }
+  if (bySource.size < 2) return false;
+  for (const set of bySource.values()) if (set.size < all.size) return true;
+  return false;
+}
+
+/** A round's fit with the loop's options (levels only, no checks), undefined when the lines cannot support one. */
+function loopFit(
+  ctx: AssignContext,
+  lines: readonly LineInput[],
+  scatter: ScatterEstimate | undefined,
+  solve: (options: FitOptions) => DetailedFit | undefined,
+): DetailedFit | undefined {
   try {
     // Few lines: B and D only, so that extrapolation to the next lines is not led astray by terms fitted to noise.
     const n = lines.filter((l) => l.assignment).length;
     const order = Math.min(ctx.options.fit?.maxCentrifugalOrder ?? 4, n < FEW_LINES ? 2 : 4);
-    return fitLineListDetailed(lines, ctx.masses, {
+    return solve({
       ...(ctx.options.fit ?? {}),
       levelsOnly: true,
       // The loop reads the lines, levels and predictions of its fits, never their warnings.
