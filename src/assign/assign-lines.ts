@@ -18,9 +18,10 @@ import type { Isotopologue } from '../species/parse.js';
 import type { MassValue } from '../species/reduced-mass.js';
 import { median as robustMedian, robustSigma } from '../stats/robust.js';
 import { type CandidateLine, type CandidateOptions, candidateLines } from './candidates.js';
-import { driftedVote, driftLimit, shiftAt } from './drift.js';
+import { driftedVote, driftFactor, driftLimit, shiftAt } from './drift.js';
 import { type Competition, lowerBound, matchLines, type ObservedPeak, type Prediction, toleranceFor } from './match.js';
 import { countNear, estimateOffset, isNear, median } from './offset.js';
+import { chanceOfPlacement, FARTHER_CHANCE, offsetReach } from './reach.js';
 
 export { countNear, isNear };
 
@@ -44,7 +45,10 @@ export interface PeakInput {
 }
 
 export interface AssignOptions extends CandidateOptions {
-  /** Largest instrument offset searched, cm⁻¹. Default 0.5. */
+  /**
+   * Largest instrument offset searched, cm⁻¹. Default 0.5. A band whose library origin is less certain may search
+   * farther (src/assign/reach.ts).
+   */
   readonly maxOffset?: number;
   /** Fewest automatically assigned lines a band needs to be kept. Default 4. */
   readonly minLinesPerBand?: number;
@@ -1848,6 +1852,7 @@ function bandOffset(vote: BandVote, bk: string, top: readonly CandidateLine[]): 
       use = { offset: own.offset, tolerance: tol, own: true };
     else if (n < minLines && withSource < minLines) use = driftedOffset(top, vote, claimed, withSource) ?? use;
   }
+  if (use === choice && withSource < minLines && vote.reference) use = fartherOffset(top, vote, bk, withSource) ?? use;
   // Most of the band's strong lines on peaks no other band predicts: its positions establish it, whatever scale
   // its intensities are on.
   const alone = countNear(
@@ -1878,6 +1883,82 @@ function driftedOffset(
   if (!d || d.drift === 0 || d.matches < minLines || d.matches < withSource + 3 || d.matches < 2 * withSource)
     return undefined;
   return { offset: d.offset, tolerance: d.tolerance, own: true, drift: d.drift };
+}
+
+/**
+ * A band that finds too few of its strong lines within ±maxOffset, plainly or drifting, searched farther: as far as
+ * its reference origin is uncertain (src/assign/reach.ts), the reach doubling from 2 maxOffset, plainly and drifting
+ * at each reach. The placement that puts most of its strong lines on peaks no other band claims wins (ties: the
+ * smaller reach, plain before drifting): a wider reach or a drift can put a few lines on coincidences (a 3-0 R
+ * branch folding back at its head onto the lines of lower J), not as many as the true placement. Only placements
+ * beyond the window count (an H79Br 4-1 placed inside it this way, 7 of 9 lines, turned a dense 2-0 + 3-0 list from
+ * 345 lines right into 6 right and 47 wrong). Kept on the terms of the band's own offset (at least minLines such
+ * lines, three more and twice as many as the source's offset puts) and when chance would give as many with
+ * probability below FARTHER_CHANCE (chanceOfFarther: a dense list needs far more matches than a sparse one).
+ */
+function fartherOffset(
+  top: readonly CandidateLine[],
+  vote: BandVote,
+  bk: string,
+  withSource: number,
+): OffsetChoice | undefined {
+  const { seeds, observed, sorted, choice, maxOffset, minLines } = vote;
+  const cap = offsetReach(top, maxOffset);
+  if (!(cap > maxOffset)) return undefined;
+  const claimed = claimedByOthers(seeds, bk, choice.offset);
+  const maxDrift = driftLimit(vote.reference?.get((top[0] as CandidateLine).species));
+  let best: { choice: OffsetChoice; matches: number } | undefined;
+  // Only placements beyond the window: within it the band's own vote, plain and drifting, had its say.
+  const consider = (c: OffsetChoice, matches: number) => {
+    if (Math.abs(c.offset) > maxOffset && (!best || matches > best.matches)) best = { choice: c, matches };
+  };
+  for (let reach = Math.min(2 * maxOffset, cap); ; reach = Math.min(2 * reach, cap)) {
+    const est = estimateOffset(top, observed, reach, 0.06);
+    if (est) {
+      const tol = Math.min(Math.max(4 * est.spread, 0.03), 0.3);
+      consider(
+        { offset: est.offset, tolerance: tol, own: true },
+        countNear(top, sorted, est.offset, tol, claimed, choice.tolerance),
+      );
+    }
+    const d = driftedVote(top, observed, sorted, reach, maxDrift, claimed, choice.tolerance);
+    if (d && d.drift !== 0)
+      consider({ offset: d.offset, tolerance: d.tolerance, own: true, drift: d.drift }, d.matches);
+    if (reach >= cap) break;
+  }
+  const found = best as { choice: OffsetChoice; matches: number } | undefined;
+  if (!found) return undefined;
+  const n = found.matches;
+  if (n < minLines || n < withSource + 3 || n < 2 * withSource) return undefined;
+  return chanceOfFarther(top, sorted, found.choice, n, cap, maxDrift) < FARTHER_CHANCE ? found.choice : undefined;
+}
+
+/**
+ * How likely chance alone explains a farther placement (src/assign/reach.ts#chanceOfPlacement): the peak density
+ * over the band's strong lines widened by the reach, the placements tried the reach over the tolerance, times the
+ * drifts that move the band's strong lines apart by more than the tolerance when a drift was searched.
+ */
+function chanceOfFarther(
+  top: readonly CandidateLine[],
+  sorted: Float64Array,
+  choice: OffsetChoice,
+  matches: number,
+  cap: number,
+  maxDrift: number,
+): number {
+  let lo = Number.POSITIVE_INFINITY;
+  let hi = Number.NEGATIVE_INFINITY;
+  let largest = 0;
+  for (const c of top) {
+    lo = Math.min(lo, c.position);
+    hi = Math.max(hi, c.position);
+    largest = Math.max(largest, Math.abs(driftFactor(c)));
+  }
+  const peaks = lowerBound(sorted, hi + cap + 1e-12) - lowerBound(sorted, lo - cap);
+  const density = peaks / (hi - lo + 2 * cap);
+  const tol = choice.tolerance;
+  const drifts = choice.drift === undefined ? 1 : 1 + (2 * maxDrift * largest) / tol;
+  return chanceOfPlacement(matches, top.length, tol, density, (cap / tol) * drifts);
 }
 
 /**

@@ -130,7 +130,8 @@ const HBR: MoleculeSet = {
 
 /**
  * H¹⁹F. Y10, Y20, Y01, Y11, Y02: Huber & Herzberg, from memory; Y30, Y21, Y12, Y03 from memory, magnitude and sign
- * only. Band strengths from memory (2-0/1-0 ≈ 1.5e-2, 3-0/1-0 ≈ 3e-4).
+ * only; Y40 fitted to the real band origins (from memory), so that 3-0 lies 2.1 cm⁻¹ below what Y10–Y30 alone
+ * give, as the real band does. Band strengths from memory (2-0/1-0 ≈ 1.5e-2, 3-0/1-0 ≈ 3e-4).
  */
 const HF: MoleculeSet = {
   parent: ['1H', '19F'],
@@ -138,6 +139,12 @@ const HF: MoleculeSet = {
     { k: 1, l: 0, value: 4138.32, source: `Huber & Herzberg ω_e, ${MEM}` },
     { k: 2, l: 0, value: -89.88, source: `Huber & Herzberg −ω_e x_e, ${MEM}` },
     { k: 3, l: 0, value: 0.9, source: `ω_e y_e, ${MEM}, magnitude only` },
+    {
+      k: 4,
+      l: 0,
+      value: -0.0139,
+      source: `least squares here to the HITRAN band origins 1-0 3961.4229, 2-0 7750.7945, 3-0 11372.7891 cm⁻¹ (${MEM}) with Y10–Y30 held: residuals 0.007, 0.025, −0.007 cm⁻¹. Without it the origins lie 0.06, 0.52, 2.09 cm⁻¹ above those, as the library's (which has no Y40) do`,
+    },
     { k: 0, l: 1, value: 20.9557, source: `Huber & Herzberg B_e, ${MEM}` },
     { k: 1, l: 1, value: -0.798, source: `Huber & Herzberg −α_e, ${MEM}` },
     { k: 2, l: 1, value: 5.4e-3, source: `γ_e, ${MEM}, magnitude only` },
