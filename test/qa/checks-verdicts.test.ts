@@ -451,7 +451,7 @@ describe('calibration', () => {
     const off = c.measured.offset as { value: number; uncertainty: number };
     expect(Math.abs(off.value)).toBeLessThan(1e-6);
     expect(c.limit).toEqual({ offset: 0.05, scalePpm: 20, guardBand: '2u (k = 2)' });
-    expect(c.message).toMatch(/^offset .* cm-1 at 21\d\d\.\d cm-1 \(the weighted centre of 25 lines, /);
+    expect(c.message).toMatch(/^offset .* cm-1 at 21\d\d\.\d cm-1 \(the weighted centre of 25 lines with J″ ≤ 20, /);
     expect(c.message).toMatch(/, which leaves them out\): within limits \(library prediction uncertainty included: /);
     expect(c.message).toMatch(
       /; the scale is not determined by these lines \(σ would be \d+ ppm, more than a third of the 20 ppm limit\) and is not judged$/,

@@ -178,7 +178,9 @@ describe('calibration says where the offset is quoted and which estimate it is',
     const positions = lines.map((l) => l.position);
     expect(centre).toBeGreaterThan(Math.min(...positions));
     expect(centre).toBeLessThan(Math.max(...positions));
-    expect(c.message).toContain(`cm-1 at ${centre.toFixed(1)} cm-1 (the weighted centre of ${c.measured.lines} lines`);
+    expect(c.message).toContain(
+      `cm-1 at ${centre.toFixed(1)} cm-1 (the weighted centre of ${c.measured.lines} lines with J″ ≤ 20,`,
+    );
     expect(c.message).toMatch(/fit\.assignment\.calibration is the assignment's search estimate/);
     expect(j.fit.assignment.calibration).toBeDefined();
     const spec = (await app().inject({ method: 'GET', url: '/openapi.json' })).json();

@@ -104,7 +104,7 @@ function calibrationMessage(c: ReferenceCalibration, status: CheckStatus, tol: T
   const beyondButNotSignificant =
     Math.abs(c.offset.value) > tol.calibrationOffset ||
     (c.scale !== undefined && Math.abs(c.scale.value) > tol.calibrationScalePpm);
-  const found = `offset ${plusMinus(c.offset.value, c.offset.uncertainty, 4)} cm-1 at ${c.centre.toFixed(1)} cm-1 (the weighted centre of ${c.lines} lines, fitted against the library with its missing terms and the uncertainty of its own constants carried; fit.assignment.calibration is the assignment's search estimate, which leaves them out)${c.scale ? `, scale ${plusMinus(c.scale.value, c.scale.uncertainty, 1)} ppm` : ''}`;
+  const found = `offset ${plusMinus(c.offset.value, c.offset.uncertainty, 4)} cm-1 at ${c.centre.toFixed(1)} cm-1 (the weighted centre of ${c.lines} lines with J″ ≤ 20, fitted against the library with its missing terms and the uncertainty of its own constants carried; fit.assignment.calibration is the assignment's search estimate, which leaves them out)${c.scale ? `, scale ${plusMinus(c.scale.value, c.scale.uncertainty, 1)} ppm` : ''}`;
   const scaleNote =
     c.scaleUndetermined !== undefined
       ? `; the scale is not determined by these lines (σ would be ${c.scaleUndetermined.toFixed(0)} ppm, more than a third of the ${tol.calibrationScalePpm} ppm limit) and is not judged`
