@@ -34,6 +34,8 @@ import { peakRoutes } from './rest/peaks.js';
 import { potentialRoutes } from './rest/potentials.js';
 import { reportRoutes } from './rest/reports.js';
 import { speciesRoutes } from './rest/species.js';
+import type { fitRequestSchema } from './schemas/fit.js';
+import { quickFitRequest } from './schemas/fit-quick.js';
 import { quickPeaksRequest } from './schemas/peaks.js';
 import { compiledSerializerCompiler } from './serializer.js';
 
@@ -183,9 +185,16 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
         v1.setValidatorCompiler((route) => {
           const validate = validatorCompiler(route as Parameters<typeof validatorCompiler>[0]);
           const peaksBody = route.httpPart === 'body' && route.url.endsWith('/peaks');
+          // A fit request's lines of the commonest form are checked by a loop (schemas/fit-quick.ts).
+          const fitsBody = route.httpPart === 'body' && route.url === '/v1/fits';
+          const fitSchema = fitsBody ? (route.schema as ReturnType<typeof fitRequestSchema>) : undefined;
           return (data: unknown) => {
             if (data instanceof RawBody) return { value: data };
-            const quick = peaksBody ? quickPeaksRequest(data) : undefined;
+            const quick = peaksBody
+              ? quickPeaksRequest(data)
+              : fitSchema
+                ? quickFitRequest(data, config.maxLines, fitSchema)
+                : undefined;
             return quick ? { value: quick } : validate(data);
           };
         });
