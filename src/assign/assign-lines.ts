@@ -636,17 +636,14 @@ export function proposeMatches(
   const model = roundModel(ctx, state, residuals);
   const out = { peaks: [] as number[], cands: [] as number[], competitions: [] as Competition[] };
   const near = withinReach(ctx, model.reach);
-  const levels = sourceLevels(ctx, state.auto);
-  const carried = ctx.options.crossSources ? carriedOffsets(state.detailed) : undefined;
+  // Only the second attempt for sources that reach different levels places bands across sources (crossSourceShift).
+  const cross = ctx.options.crossSources === true;
+  const levels = cross ? sourceLevels(ctx, state.auto) : undefined;
+  const carried = cross ? carriedOffsets(state.detailed) : undefined;
   ctx.sources.forEach((name, n) => {
-    const src: SourceRef = {
-      name,
-      n,
-      bands: [],
-      levels: levels[n] as Map<string, number>,
-      allLevels: levels,
-      carried,
-    };
+    const src: SourceRef = levels
+      ? { name, n, bands: [], levels: levels[n] as Map<string, number>, allLevels: levels, carried }
+      : { name, n, bands: [] };
     const preds: Prediction[] = [];
     for (const ci of near) {
       const p = predictionOf(ctx, offsets, model, ci, src);
