@@ -34,17 +34,17 @@ const GROSS = 5;
 /** Key of the pooled scale of the lines in no differing group. */
 const REST = 'rest';
 
-const groupKey = (o: Observation, line: LineInput | undefined): string =>
-  line?.source !== undefined
-    ? `source|${line.source}`
-    : `band|${o.species}|${o.upperV}-${o.lowerV}|${(line?.uncertainty ?? 0).toPrecision(3)}`;
+/** The key of a band and stated σ, within a source when the line names one. */
+const bandKey = (species: string, band: string, sigma: number, source: string | undefined): string =>
+  `band|${species}|${band}|${sigma.toPrecision(3)}${source !== undefined ? `|${source}` : ''}`;
+const sourceKey = (source: string): string => `source|${source}`;
 
 /**
  * Stage 1c (a-posteriori mode only), stated uncertainties that disagree between groups. With one scale s² for the
  * whole list, a list that mixes lines whose σ overstate their scatter a hundredfold with lines whose σ are right
  * (a database list: computed positions stated to 1e-4 beside measured ones stated to 1e-5) makes the second kind
- * look like 5–9σ outliers, and weighs them wrongly. Each group of ≥ MIN_SCATTER_GROUP lines — the line's source
- * when it names one, else its band and stated σ — whose scale of leverage-corrected residual/σ (`differingGroups`)
+ * look like 5–9σ outliers, and weighs them wrongly. Each group of ≥ MIN_SCATTER_GROUP lines — the lines of one
+ * band stating one σ (within one source when they name it), and the other lines of a source together — whose scale of leverage-corrected residual/σ (`differingGroups`)
  * differs from that of the other lines with p < 0.001 (F test of the variance ratio) gets its σ multiplied by it; the
  * remaining lines are multiplied by their pooled scale, so that s² ≈ 1 and every line is judged against its own
  * group's scatter (variance components per group; Helmert's estimation, common practice in geodesy). Two rounds,
@@ -136,11 +136,7 @@ function statedResiduals(
 }
 
 /** The rescaled lines, the groups with their line counts and factors, the factor lookup and the warning naming them. */
-function statedScaleOf(
-  observations: readonly Observation[],
-  scaled: GroupScales,
-  keyOf: (o: Observation) => string | undefined,
-): StatedScale {
+function statedScaleOf(observations: readonly Observation[], scaled: GroupScales, keyOf: StatedGroupKeys): StatedScale {
   const { factors } = scaled;
   const groups: StatedScaleGroup[] = [];
   for (const [k, factor] of factors) {
@@ -152,8 +148,7 @@ function statedScaleOf(
     observations: scaled.observations,
     groups,
     factorFor(species, band, sigma, source) {
-      const key = source !== undefined ? `source|${source}` : `band|${species}|${band}|${sigma.toPrecision(3)}`;
-      return factors.get(key) ?? (factors.get(REST) as number);
+      return factors.get(keyOf.keyFor(species, band, sigma, source)) ?? (factors.get(REST) as number);
     },
     warnings: [
       {
@@ -184,17 +179,50 @@ function canDiffer(observations: readonly Observation[], keyOf: (o: Observation)
 }
 
 /** The group key of each stated line (by its input index), built once; undefined for a line without σ. */
-function statedGroupKeys(
-  observations: readonly Observation[],
-  input: readonly LineInput[],
-): (o: Observation) => string | undefined {
-  const keys: (string | undefined)[] = [];
+function statedGroupKeys(observations: readonly Observation[], input: readonly LineInput[]): StatedGroupKeys {
+  const fine: (string | undefined)[] = [];
+  const counts = new Map<string, number>();
   for (const o of observations) {
     const line = input[o.index];
-    if (line?.uncertainty !== undefined) keys[o.index] = groupKey(o, line);
+    if (line?.uncertainty === undefined) continue;
+    const k = bandKey(o.species, `${o.upperV}-${o.lowerV}`, line.uncertainty, line.source);
+    fine[o.index] = k;
+    counts.set(k, (counts.get(k) ?? 0) + 1);
   }
-  return (o) => keys[o.index];
+  // A source's band and σ too few to judge alone join the source's other such lines (a source stating a σ per
+  // line is judged as one group), and so does a source's only band and σ (the group is the source's lines).
+  const perSource = new Map<string, number>();
+  for (const k of counts.keys()) {
+    const source = k.split('|')[4];
+    if (source !== undefined) perSource.set(source, (perSource.get(source) ?? 0) + 1);
+  }
+  const own = (k: string) => {
+    const source = k.split('|')[4];
+    return source === undefined || (perSource.get(source) as number) > 1;
+  };
+  const bands = new Set([...counts].filter(([k, n]) => n >= MIN_SCATTER_GROUP && own(k)).map(([k]) => k));
+  const keyFor = (species: string, band: string, sigma: number, source: string | undefined) => {
+    const k = bandKey(species, band, sigma, source);
+    return source === undefined || bands.has(k) ? k : sourceKey(source);
+  };
+  const keys: (string | undefined)[] = [];
+  for (const o of observations) {
+    const k = fine[o.index];
+    if (k === undefined) continue;
+    const source = input[o.index]?.source;
+    keys[o.index] = source === undefined || bands.has(k) ? k : sourceKey(source);
+  }
+  const keyOf = (o: Observation) => keys[o.index];
+  return Object.assign(keyOf, { keyFor });
 }
+
+/**
+ * The group key of each stated line (by its input index), built once; undefined for a line without σ. `keyFor` gives
+ * the key of a band, σ and source (the lines' own keys, for the factor of a line looked up by them).
+ */
+type StatedGroupKeys = ((o: Observation) => string | undefined) & {
+  readonly keyFor: (species: string, band: string, sigma: number, source: string | undefined) => string;
+};
 
 /** Every stated line of one species and band, without a source, stating the same σ: one group (no key built). */
 function oneStatedGroup(observations: readonly Observation[], input: readonly LineInput[]): boolean {
@@ -273,8 +301,9 @@ function grossLines(
 }
 
 function labelOf(key: string): string {
-  const [kind, a, b, c] = key.split('|') as [string, string, string?, string?];
+  const [kind, a, b, c, source] = key.split('|') as [string, string, string?, string?, string?];
   if (kind === 'source') return a;
   const [u, l] = (b as string).split('-').map(Number) as [number, number];
-  return `${a} ${formatBand({ upper: u, lower: l })}, σ = ${c} cm-1`;
+  const band = `${a} ${formatBand({ upper: u, lower: l })}, σ = ${c} cm-1`;
+  return source === undefined ? band : `${source}: ${band}`;
 }

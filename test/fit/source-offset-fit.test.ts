@@ -8,8 +8,9 @@ import { CO_DATABASE } from '../helpers/co-database.js';
 /**
  * A source offset carried in the fit, on the 494 real 12C16O database lines of test/fixtures/co-database-lines
  * (source named in its SOURCE.md): 0-0, 1-0 and 2-1 as "ftir-A", 2-0 and 3-0 as "laser-B", laser-B moved by a
- * shift the test applies itself. The check is against the fit of the unshifted list (the same real lines): once
- * the offset is carried, the 2-0 origin must lie within 2σ of it, σ being the carried fit's.
+ * shift the test applies itself. The check is against the fits of the unshifted list (the same real lines): once
+ * the offset is carried, the 2-0 origin must lie within 3σ of the uncarried one, σ being the carried fit's, and
+ * agree with the carried one.
  */
 const iso = parseSpecies('12C-16O');
 const masses = new Map([[iso.formula, reducedMass(iso)]]);
@@ -33,6 +34,7 @@ const offsetOf = (r: FitResult, s: string) => r.sourceOffsets?.sources.find((x) 
 describe('real CO list from two sources: the offset carried in the fit', () => {
   for (const withSigma of [false, true]) {
     const base = fitLineList(coLines(0, withSigma), masses);
+    const carriedBase = fitLineList(coLines(0, withSigma), masses, { fitSourceOffsets: true });
     it(`${withSigma ? 'with' : 'without'} σ, unshifted: reported, not flagged, not carried; fit unchanged`, () => {
       expect(base.sourceOffsets?.applied).toBe(false);
       expect(base.sourceOffsets?.basis).toBe('not flagged');
@@ -42,7 +44,7 @@ describe('real CO list from two sources: the offset carried in the fit', () => {
       expect(auto).toEqual(asked);
     });
     for (const shift of [0.0005, -0.0005, 0.002, -0.002, 0.01, -0.01]) {
-      it(`${withSigma ? 'with' : 'without'} σ, laser-B ${shift > 0 ? '+' : ''}${shift}: flagged, carried, 2-0 origin within 2σ of the unshifted`, () => {
+      it(`${withSigma ? 'with' : 'without'} σ, laser-B ${shift > 0 ? '+' : ''}${shift}: flagged, carried, 2-0 origin as the unshifted list's`, () => {
         const lines = coLines(shift, withSigma);
         const r = fitLineList(lines, masses);
         expect(r.sourceOffsets).toMatchObject({ reference: 'ftir-A', applied: true, basis: 'flagged' });
@@ -52,9 +54,15 @@ describe('real CO list from two sources: the offset carried in the fit', () => {
         expect(Math.abs((o?.offset?.value as number) - shift)).toBeLessThan(3 * (o?.offset?.uncertainty as number));
         const b = origin20(r);
         const b0 = origin20(base);
+        // Against the unshifted fit, within 3σ: the real list carries its own disagreement between laser-B's bands
+        // (2-0, 3-0) and the loop through ftir-A's, −1.0 ± 0.4 × 10⁻⁶ cm⁻¹ with σ as stated (measured, 2.5σ, below
+        // the 3σ flag), which the carried offset takes up with the shift.
         expect(Math.abs(b.value - b0.value), `${b.value} ± ${b.uncertainty} vs ${b0.value}`).toBeLessThan(
-          2 * b.uncertainty,
+          3 * b.uncertainty,
         );
+        // Against the unshifted list with its offset carried too: the shift is taken up whole.
+        const b1 = origin20(carriedBase);
+        expect(Math.abs(b.value - b1.value), `${b.value} vs ${b1.value}`).toBeLessThan(0.05 * b.uncertainty);
         // Positions as sent; position − calculated is still the residual.
         for (const l of r.lines) {
           expect(l.position).toBe(lines[l.index]?.position);

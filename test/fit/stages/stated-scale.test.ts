@@ -83,6 +83,32 @@ describe('rescaleStatedUncertainties', () => {
       expect(Math.abs(r.factorFor('12C-16O', '1-0', 0.001, s) - 1), s).toBeLessThan(0.3);
   });
 
+  it('one source stating one σ for two bands, one of them scattered ten times it: the bands are told apart', () => {
+    // One instrument (source "lab") sends 1-0 and 2-0 at one stated σ; 3-0 comes from another. Judged as one group,
+    // "lab" would take a scale between 1 and 10 and its 1-0 lines would be weighed as if they scattered like 2-0.
+    const { input, obs, first } = stated(0.001, 0.01, (i) => (i < 102 ? 'lab' : 'other'));
+    const r = rescaleStatedUncertainties(input, obs, FIT, first);
+    const f10 = r.factorFor('12C-16O', '1-0', 0.001, 'lab');
+    const f20 = r.factorFor('12C-16O', '2-0', 0.001, 'lab');
+    expect(Math.abs(f20 / 10 - 1), `2-0 × ${f20}`).toBeLessThan(0.3);
+    expect(Math.abs(f10 - 1), `1-0 × ${f10}`).toBeLessThan(0.3);
+    expect(r.groups.map((g) => g.group)).toContain('lab: 12C-16O 2-0, σ = 0.00100 cm-1');
+    // A source stating one band and σ keeps its name as the group's.
+    expect(Math.abs(r.factorFor('12C-16O', '3-0', 0.001, 'other') - 1)).toBeLessThan(0.3);
+  });
+
+  it('one source stating a σ per line: its lines are judged as one group', () => {
+    // σ differing from line to line (a peak fit's), 2-0 ten times too small: no band and σ has lines enough to be
+    // judged alone, so the source's lines form one group, as when sources were judged whole.
+    const { input, obs } = stated(0.001, 0.01, (i) => (i >= 51 && i < 102 ? 'bad' : 'good'));
+    const perLine = input.map((l, i) => ({ ...l, uncertainty: 0.001 * (1 + 0.013 * (i % 20)) }));
+    const w = obs.map((o) => ({ ...o, weight: 1 / (perLine[o.index]?.uncertainty as number) ** 2 }));
+    const r = rescaleStatedUncertainties(perLine, w, FIT, selectLevelModel(w, 5, 'a-posteriori', 0.01));
+    expect(r.groups.map((g) => [g.group, g.lines])).toContainEqual(['bad', 51]);
+    const bad = r.factorFor('12C-16O', '2-0', perLine[60]?.uncertainty as number, 'bad');
+    expect(Math.abs(bad / 10 - 1)).toBeLessThan(0.3);
+  });
+
   it('a gross error (0.05 cm⁻¹, 50σ) in a good band stays out of its scale', () => {
     const { input, obs } = stated(0.001, 0.01);
     const bad = obs.map((o) => (o.index === 12 ? { ...o, position: o.position + 0.05 } : o));
