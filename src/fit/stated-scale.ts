@@ -2,6 +2,7 @@ import { type Observation, reweighted } from '../models/linear-model.js';
 import { formatBand } from '../models/transitions.js';
 import { fDistributionSurvival } from '../stats/distributions.js';
 import { robustSigma } from '../stats/robust.js';
+import { screenGrossErrors } from './gross-errors.js';
 import { type LevelSelection, selectLevelModel } from './level-selection.js';
 import type { LineInput, Warning } from './types.js';
 import { MIN_SCATTER_GROUP } from './weights.js';
@@ -33,6 +34,8 @@ const ROUNDS = 2;
 const GROSS = 5;
 /** Key of the pooled scale of the lines in no differing group. */
 const REST = 'rest';
+/** Group of the lines without a stated σ when gross errors are screened (their σ were estimated per group before). */
+const WITHOUT_SIGMA = 'without σ';
 
 /** The key of a band and stated σ, within a source when the line names one. */
 const bandKey = (species: string, band: string, sigma: number, source: string | undefined): string =>
@@ -87,15 +90,19 @@ function groupScales(
   keyOf: (o: Observation) => string | undefined,
 ): GroupScales {
   const stated = (o: Observation) => input[o.index]?.uncertainty !== undefined;
+  const refit = (sample: readonly Observation[]) =>
+    selectLevelModel(sample, fit.maxOrder, 'a-posteriori', fit.termSignificance);
+  // Gross errors out of every estimating fit, the first included (see gross-errors.ts).
+  const screen = screenGrossErrors(first, refit, (o) => keyOf(o) ?? WITHOUT_SIGMA, MIN_SCATTER_GROUP);
   let factors = new Map<string, number>();
-  let gross = new Set<number>();
+  let gross = new Set<number>(screen.gross);
   let obs = observations;
   for (let round = 0; round < ROUNDS; round++) {
-    let level = first;
+    let level = screen.level;
     if (round > 0)
       try {
         const sample = gross.size > 0 ? obs.filter((o) => !gross.has(o.index)) : obs;
-        level = selectLevelModel(sample, fit.maxOrder, 'a-posteriori', fit.termSignificance);
+        level = refit(sample);
       } catch {
         break;
       }
@@ -106,6 +113,7 @@ function groupScales(
     if (next.size === 0) break;
     factors = next;
     gross = grossLines(f.observations, byGroup, keyOf);
+    for (const i of screen.gross) gross.add(i);
     const factorOf = (o: Observation) => factors.get(keyOf(o) as string) ?? (factors.get(REST) as number);
     obs = reweighted(observations, (o) => (stated(o) ? o.weight / factorOf(o) ** 2 : undefined));
   }

@@ -2,6 +2,7 @@ import { type Observation, reweighted } from '../models/linear-model.js';
 import { formatBand } from '../models/transitions.js';
 import { median, robustSigma } from '../stats/robust.js';
 import type { SolvedModel } from './engine.js';
+import { screenGrossErrors } from './gross-errors.js';
 import { type LevelSelection, selectLevelModel } from './level-selection.js';
 import type { LineInput, Warning } from './types.js';
 
@@ -43,6 +44,9 @@ export interface ScatterReuse {
 export const MIN_SCATTER_GROUP = 10;
 /** Reweighting rounds: the estimate moves the fit, which moves the residuals; two rounds settle it. */
 const ROUNDS = 2;
+
+/** Group of the lines with a stated σ when gross errors are screened. */
+const STATED = 'stated';
 
 const bandKeyOf = (o: Observation) => `${o.species}|${o.upperV}-${o.lowerV}`;
 
@@ -236,13 +240,25 @@ function estimateScatter(
   let pooled = fallback;
   let counts = new Map<string, number>();
   let gross = new Set<number>();
+  const refit = (sample: readonly Observation[]) =>
+    hooks ? hooks.refit(sample) : selectLevelModel(sample, fit.maxOrder, 'a-posteriori', fit.termSignificance);
+  let screened: ReadonlySet<number> = gross;
   for (let round = 0; round < ROUNDS; round++) {
     let level: ReturnType<typeof selectLevelModel>;
     try {
       const sample = gross.size > 0 ? obs.filter((o) => !gross.has(o.index)) : obs;
-      level = hooks
-        ? hooks.refit(sample)
-        : selectLevelModel(sample, fit.maxOrder, 'a-posteriori', fit.termSignificance);
+      level = refit(sample);
+      if (round === 0) {
+        // Gross errors out of every estimating fit, this first one included (see gross-errors.ts).
+        const screen = screenGrossErrors(
+          level,
+          refit,
+          (o) => (withoutSigma(o) ? groupOf(o) : STATED),
+          MIN_SCATTER_GROUP,
+        );
+        level = screen.level;
+        screened = screen.gross;
+      }
     } catch {
       // Too few lines or an indeterminate model: the main fit will say so; keep the provisional weights.
       break;
@@ -252,9 +268,9 @@ function estimateScatter(
     if (!measured) break;
     pooled = measured.pooled;
     sigmas = measured.sigmas;
-    if (round === 0) counts = measured.counts;
+    if (round === 0) counts = withScreened(measured.counts, screened, observations, withoutSigma, groupOf);
     const sigmaOf = (o: Observation) => sigmas.get(groupOf(o)) ?? pooled;
-    gross = new Set();
+    gross = new Set(screened);
     f.observations.forEach((o, i) => {
       if (!withoutSigma(o)) return;
       if (Math.abs(f.residuals[i] as number) > GROSS * sigmaOf(o)) gross.add(o.index);
@@ -262,6 +278,24 @@ function estimateScatter(
     obs = reweighted(observations, (o) => (withoutSigma(o) ? 1 / sigmaOf(o) ** 2 : undefined));
   }
   return { observations: obs, sigmas, pooled, counts, labels, fallback, estimatedAt: counts };
+}
+
+/** The first round's counts per group with the lines screened out of its fit as gross errors counted back in. */
+function withScreened(
+  counts: Map<string, number>,
+  screened: ReadonlySet<number>,
+  observations: readonly Observation[],
+  withoutSigma: (o: Observation) => boolean,
+  groupOf: (o: Observation) => string,
+): Map<string, number> {
+  if (screened.size === 0) return counts;
+  const out = new Map(counts);
+  for (const o of observations) {
+    if (!screened.has(o.index) || !withoutSigma(o)) continue;
+    const k = groupOf(o);
+    out.set(k, (out.get(k) ?? 0) + 1);
+  }
+  return out;
 }
 
 /**
