@@ -28,4 +28,4 @@ EXPOSE 8080
 HEALTHCHECK --interval=10s --timeout=2s --retries=3 \
   CMD node -e "fetch('http://127.0.0.1:'+(process.env.PORT||8080)+'/healthz').then(r=>process.exit(r.ok?0:1)).catch(()=>process.exit(1))"
 ENTRYPOINT ["/usr/bin/tini", "--"]
-CMD ["node", "dist/services/server.js"]
+CMD ["node", "--max-semi-space-size=64", "dist/services/server.js"]

@@ -1,4 +1,5 @@
 import { type ChildProcess, execFileSync, spawn } from 'node:child_process';
+import { readFileSync } from 'node:fs';
 
 /**
  * How the service runs in a load script. `npm-start`: as `npm start` runs it (the built dist/, built first when a
@@ -14,6 +15,12 @@ const SETTINGS: Record<ServiceSetting, Record<string, string>> = {
   relaxed: { LOG_LEVEL: 'warn', RATE_LIMIT_PER_MINUTE: '0', WORKERS: '0', MAX_EVENT_LOOP_DELAY_MS: '0' },
 };
 
+/** The node arguments of `npm start` (package.json's start script: `node [flags] dist/services/server.js`). */
+const startArgs = (JSON.parse(readFileSync('package.json', 'utf8')) as { scripts: { start: string } }).scripts.start
+  .trim()
+  .split(/\s+/)
+  .slice(1);
+
 /**
  * The service (or another entry, e.g. bench/bare-server.ts, from its TypeScript source) in its own process group,
  * for load scripts; resolves when it is ready.
@@ -27,7 +34,7 @@ export async function startServer(
   const service = entry === 'services/server.ts';
   const built = service && setting === 'npm-start';
   if (built) execFileSync('node', ['scripts/build.mjs', '--if-stale'], { stdio: 'ignore' });
-  const child = spawn(built ? 'node' : 'npx', built ? ['dist/services/server.js'] : ['tsx', entry], {
+  const child = spawn(built ? 'node' : 'npx', built ? startArgs : ['tsx', entry], {
     env: {
       ...process.env,
       ...(service ? SETTINGS[setting] : {}),

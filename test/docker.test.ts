@@ -8,6 +8,14 @@ import { loadConfig } from '../services/config.js';
  * quietly break them.
  */
 describe('deployment files', () => {
+  it('the image starts the server as npm start does, with the same node arguments', () => {
+    const d = readFileSync('Dockerfile', 'utf8');
+    const cmd = /^CMD (\[.*\])$/m.exec(d);
+    expect(cmd, 'an exec-form CMD').not.toBeNull();
+    const start = (JSON.parse(readFileSync('package.json', 'utf8')) as { scripts: { start: string } }).scripts.start;
+    expect(JSON.parse(cmd?.[1] as string)).toEqual(start.trim().split(/\s+/));
+  });
+
   it('the Dockerfile builds in stages, runs as a non-root user under tini, with a health check', () => {
     const d = readFileSync('Dockerfile', 'utf8');
     expect((d.match(/^FROM /gm) ?? []).length).toBeGreaterThanOrEqual(2);
