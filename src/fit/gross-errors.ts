@@ -21,6 +21,14 @@ const RELIEF = 2;
 /** The fewest removals whose scale is within this factor of the least reached are kept (not the heavy tails after). */
 const NEAR = 1.5;
 
+/** What the scale estimates (stated-scale.ts, weights.ts) fit with, and whether they screen gross errors first. */
+export interface ScaleFitSettings {
+  readonly maxOrder: number;
+  readonly termSignificance: number;
+  /** Screen gross errors out of the estimating fits (default true; false in the assignment's round fits). */
+  readonly screenGross?: boolean;
+}
+
 export interface GrossScreen {
   /** Input indices of the lines found to bend the fit (empty when none did). */
   readonly gross: ReadonlySet<number>;

@@ -2,7 +2,7 @@ import { type Observation, reweighted } from '../models/linear-model.js';
 import { formatBand } from '../models/transitions.js';
 import { fDistributionSurvival } from '../stats/distributions.js';
 import { robustSigma } from '../stats/robust.js';
-import { screenGrossErrors } from './gross-errors.js';
+import { type ScaleFitSettings, screenGrossErrors } from './gross-errors.js';
 import { type LevelSelection, selectLevelModel } from './level-selection.js';
 import type { LineInput, Warning } from './types.js';
 import { MIN_SCATTER_GROUP } from './weights.js';
@@ -57,7 +57,7 @@ const sourceKey = (source: string): string => `source|${source}`;
 export function rescaleStatedUncertainties(
   input: readonly LineInput[],
   observations: readonly Observation[],
-  fit: { readonly maxOrder: number; readonly termSignificance: number },
+  fit: ScaleFitSettings,
   /** The level fit of `observations` as weighted (the first round reuses it: lists whose groups agree cost nothing). */
   first: LevelSelection,
 ): StatedScale {
@@ -85,7 +85,7 @@ interface GroupScales {
 function groupScales(
   input: readonly LineInput[],
   observations: readonly Observation[],
-  fit: { readonly maxOrder: number; readonly termSignificance: number },
+  fit: ScaleFitSettings,
   first: LevelSelection,
   keyOf: (o: Observation) => string | undefined,
 ): GroupScales {
@@ -93,7 +93,10 @@ function groupScales(
   const refit = (sample: readonly Observation[]) =>
     selectLevelModel(sample, fit.maxOrder, 'a-posteriori', fit.termSignificance);
   // Gross errors out of every estimating fit, the first included (see gross-errors.ts).
-  const screen = screenGrossErrors(first, refit, (o) => keyOf(o) ?? WITHOUT_SIGMA, MIN_SCATTER_GROUP);
+  const screen =
+    fit.screenGross === false
+      ? { gross: new Set<number>(), level: first }
+      : screenGrossErrors(first, refit, (o) => keyOf(o) ?? WITHOUT_SIGMA, MIN_SCATTER_GROUP);
   let factors = new Map<string, number>();
   let gross = new Set<number>(screen.gross);
   let obs = observations;

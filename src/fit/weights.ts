@@ -2,7 +2,7 @@ import { type Observation, reweighted } from '../models/linear-model.js';
 import { formatBand } from '../models/transitions.js';
 import { median, robustSigma } from '../stats/robust.js';
 import type { SolvedModel } from './engine.js';
-import { screenGrossErrors } from './gross-errors.js';
+import { type ScaleFitSettings, screenGrossErrors } from './gross-errors.js';
 import { type LevelSelection, selectLevelModel } from './level-selection.js';
 import type { LineInput, Warning } from './types.js';
 
@@ -73,7 +73,7 @@ type SigmaInput = Pick<LineInput, 'uncertainty' | 'source'>;
 export function weighLines(
   input: readonly SigmaInput[],
   observations: readonly Observation[],
-  fit: { readonly maxOrder: number; readonly termSignificance: number },
+  fit: ScaleFitSettings,
   hooks?: WeighHooks,
   reuse?: ScatterReuse,
 ): WeightedLines {
@@ -229,7 +229,7 @@ function estimateScatter(
   input: readonly SigmaInput[],
   observations: readonly Observation[],
   fallback: number,
-  fit: { readonly maxOrder: number; readonly termSignificance: number },
+  fit: ScaleFitSettings,
   hooks?: WeighHooks,
 ): ScatterEstimate {
   const labels = new Map<string, string>();
@@ -248,7 +248,7 @@ function estimateScatter(
     try {
       const sample = gross.size > 0 ? obs.filter((o) => !gross.has(o.index)) : obs;
       level = refit(sample);
-      if (round === 0) {
+      if (round === 0 && fit.screenGross !== false) {
         // Gross errors out of every estimating fit, this first one included (see gross-errors.ts).
         const screen = screenGrossErrors(
           level,
