@@ -29,7 +29,7 @@ export const MAX_DEPTH = 12;
 const WORK = new Set(['fit', 'check', 'peaks', 'predict', 'potential']);
 
 /** Entries a library list field answers when no single formula is named. */
-export const LIBRARY_LIST_LENGTH: Readonly<Record<string, number>> = {
+export const LIBRARY_LIST_LENGTH: { readonly species: number; readonly linearSpecies: number } = {
   species: libraryEntries().length,
   linearSpecies: LINEAR_REFERENCE.length,
 };
@@ -49,8 +49,9 @@ const NONE: Cost = { fields: 0, depth: 0, work: 0 };
 
 /** How many entries a field's selection is answered for: the library's length for a list without a literal formula. */
 function multiplicity(field: FieldNode): number {
-  const length = LIBRARY_LIST_LENGTH[field.name.value];
-  if (length === undefined) return 1;
+  const name = field.name.value;
+  if (name !== 'species' && name !== 'linearSpecies') return 1;
+  const length = LIBRARY_LIST_LENGTH[name];
   const formula = field.arguments?.find((a) => a.name.value === 'formula');
   return formula?.value.kind === Kind.STRING ? 1 : Math.max(length, 1);
 }
