@@ -7,8 +7,8 @@ import type { Observation } from '../../src/models/linear-model.js';
 import { parseSpecies } from '../../src/species/parse.js';
 import { reducedMass } from '../../src/species/reduced-mass.js';
 import { CO_DATABASE } from '../helpers/co-database.js';
-import { CO_12_16, independentLines, levelConstants, termValue, uniformStream } from '../helpers/independent-lines.js';
-import { PullTally } from '../helpers/pulls.js';
+import { CO_12_16, independentLines, uniformStream } from '../helpers/independent-lines.js';
+import { PullTally, tallyBandsAndLevels } from '../helpers/pulls.js';
 
 /**
  * One gross error (a mislabelled line: J off by one, or the wrong branch) must not take good lines out with it.
@@ -238,15 +238,7 @@ describe('200 synthetic lists with 1–2 mislabelled lines each', () => {
         if (d === 0) same++;
         worst = Math.max(worst, d);
         kept += bad.filter((i) => r.lines[i]?.status !== 'rejected').length;
-        for (const b of r.bands) {
-          const [u, l] = b.band.split('-').map(Number) as [number, number];
-          tally.add(`origin ${b.band}`, b.origin, termValue(C, u, 0) - termValue(C, l, 0));
-        }
-        for (const lv of r.levels) {
-          const truth = levelConstants(C, lv.v);
-          tally.add(`B_${lv.v}`, lv.B, truth.B);
-          tally.add(`D_${lv.v}`, lv.D, truth.D);
-        }
+        tallyBandsAndLevels(tally, r, C);
       }
       if (process.env.PULLS_LOG)
         console.info(tally.table(), `\nas without the mislabels: ${same} of 200, worst ${worst}`);

@@ -2,14 +2,8 @@ import { describe, expect, it } from 'vitest';
 import { fitLineList, fitLineListDetailed, type LineInput } from '../../src/fit/fit-lines.js';
 import { parseSpecies } from '../../src/species/parse.js';
 import { reducedMass } from '../../src/species/reduced-mass.js';
-import {
-  type BandRequest,
-  CO_12_16,
-  independentLines,
-  levelConstants,
-  termValue,
-} from '../helpers/independent-lines.js';
-import { type PullSummary, PullTally } from '../helpers/pulls.js';
+import { type BandRequest, CO_12_16, independentLines } from '../helpers/independent-lines.js';
+import { type PullSummary, PullTally, tallyBandsAndLevels } from '../helpers/pulls.js';
 
 /**
  * Lists without uncertainties (the usual peak list): the fit must estimate the scatter itself, per band or per
@@ -30,15 +24,7 @@ function pullsOf(list: (seed: number) => LineInput[]) {
   for (let seed = 1; seed <= TRIALS; seed++) {
     const r = fitLineList(list(seed), masses);
     sigmas.push((r.scatter ?? []).map((s) => s.sigma));
-    for (const b of r.bands) {
-      const [u, l] = b.band.split('-').map(Number) as [number, number];
-      tally.add(`origin ${b.band}`, b.origin, termValue(C, u, 0) - termValue(C, l, 0));
-    }
-    for (const lv of r.levels) {
-      const truth = levelConstants(C, lv.v);
-      tally.add(`B_${lv.v}`, lv.B, truth.B);
-      tally.add(`D_${lv.v}`, lv.D, truth.D);
-    }
+    tallyBandsAndLevels(tally, r, C);
   }
   if (process.env.PULLS_LOG) console.info(`${tally.table()}\nall: ${JSON.stringify(tally.summary())}`);
   return { summary: tally.summary(), tally, sigmas };

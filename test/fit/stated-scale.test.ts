@@ -2,8 +2,8 @@ import { describe, expect, it } from 'vitest';
 import { fitLineList, fitLineListDetailed, type LineInput } from '../../src/fit/fit-lines.js';
 import { parseSpecies } from '../../src/species/parse.js';
 import { reducedMass } from '../../src/species/reduced-mass.js';
-import { CO_12_16, independentLines, levelConstants, termValue } from '../helpers/independent-lines.js';
-import { PullTally } from '../helpers/pulls.js';
+import { CO_12_16, independentLines, termValue } from '../helpers/independent-lines.js';
+import { PullTally, tallyBandsAndLevels } from '../helpers/pulls.js';
 
 /**
  * Stated uncertainties that disagree between groups of one list (a-posteriori mode): the fundamental's σ stated 30×
@@ -89,15 +89,7 @@ describe('stated uncertainties that disagree between groups (a-posteriori mode)'
     const tally = new PullTally();
     for (let seed = 1; seed <= 200; seed++) {
       const r = fitLineList(mixed(seed), masses);
-      for (const b of r.bands) {
-        const [u, l] = b.band.split('-').map(Number) as [number, number];
-        tally.add(`origin ${b.band}`, b.origin, termValue(C, u, 0) - termValue(C, l, 0));
-      }
-      for (const lv of r.levels) {
-        const truth = levelConstants(C, lv.v);
-        tally.add(`B_${lv.v}`, lv.B, truth.B);
-        tally.add(`D_${lv.v}`, lv.D, truth.D);
-      }
+      tallyBandsAndLevels(tally, r, C);
     }
     if (process.env.PULLS_LOG) console.info(tally.table());
     const s = tally.summary();

@@ -1,3 +1,5 @@
+import { type CustomaryConstants, levelConstants, termValue } from './independent-lines.js';
+
 /** Pulls z = (value − truth)/σ of reported quantities, and their summary: coverage at 1σ and 2σ, mean, SD. */
 export interface PullSummary {
   readonly n: number;
@@ -43,5 +45,30 @@ export class PullTally {
         return `${k}: n ${s.n}, 1σ ${s.within1.toFixed(3)}, 2σ ${s.within2.toFixed(3)}, mean ${s.mean.toFixed(2)}, SD ${s.sd.toFixed(2)}`;
       })
       .join('\n');
+  }
+}
+
+type Reported = { readonly value: number; readonly uncertainty: number } | undefined;
+
+/**
+ * The pulls of a diatomic fit's band origins and level B_v, D_v against the independent generator's truth
+ * (test/helpers/independent-lines.ts), under "origin v′-v″", "B_v" and "D_v".
+ */
+export function tallyBandsAndLevels(
+  tally: PullTally,
+  r: {
+    readonly bands: readonly { readonly band: string; readonly origin?: Reported }[];
+    readonly levels: readonly { readonly v: number; readonly B?: Reported; readonly D?: Reported }[];
+  },
+  c: CustomaryConstants,
+): void {
+  for (const b of r.bands) {
+    const [u, l] = b.band.split('-').map(Number) as [number, number];
+    tally.add(`origin ${b.band}`, b.origin, termValue(c, u, 0) - termValue(c, l, 0));
+  }
+  for (const lv of r.levels) {
+    const truth = levelConstants(c, lv.v);
+    tally.add(`B_${lv.v}`, lv.B, truth.B);
+    tally.add(`D_${lv.v}`, lv.D, truth.D);
   }
 }
