@@ -192,39 +192,36 @@ function canDiffer(observations: readonly Observation[], keyOf: (o: Observation)
 /** The group key of each stated line (by its input index), built once; undefined for a line without σ. */
 function statedGroupKeys(observations: readonly Observation[], input: readonly LineInput[]): StatedGroupKeys {
   const fine: (string | undefined)[] = [];
-  const counts = new Map<string, number>();
+  const groups = new Map<string, { lines: number; source: string | undefined }>();
   for (const o of observations) {
     const line = input[o.index];
     if (line?.uncertainty === undefined) continue;
     const k = bandKey(o.species, `${o.upperV}-${o.lowerV}`, line.uncertainty, line.source);
     fine[o.index] = k;
-    counts.set(k, (counts.get(k) ?? 0) + 1);
+    const g = groups.get(k);
+    if (g) g.lines++;
+    else groups.set(k, { lines: 1, source: line.source });
   }
   // A source's band and σ too few to judge alone join the source's other such lines (a source stating a σ per
   // line is judged as one group), and so does a source's only band and σ (the group is the source's lines).
   const perSource = new Map<string, number>();
-  for (const k of counts.keys()) {
-    const source = k.split('|')[4];
+  for (const { source } of groups.values())
     if (source !== undefined) perSource.set(source, (perSource.get(source) ?? 0) + 1);
-  }
-  const own = (k: string) => {
-    const source = k.split('|')[4];
-    return source === undefined || (perSource.get(source) as number) > 1;
-  };
-  const bands = new Set([...counts].filter(([k, n]) => n >= MIN_SCATTER_GROUP && own(k)).map(([k]) => k));
-  const keyFor = (species: string, band: string, sigma: number, source: string | undefined) => {
-    const k = bandKey(species, band, sigma, source);
-    return source === undefined || bands.has(k) ? k : sourceKey(source);
-  };
+  const own = new Set<string>();
+  for (const [k, g] of groups)
+    if (g.lines >= MIN_SCATTER_GROUP && (g.source === undefined || (perSource.get(g.source) as number) > 1)) own.add(k);
+  const keyOfBand = (k: string, source: string | undefined) =>
+    source === undefined || own.has(k) ? k : sourceKey(source);
   const keys: (string | undefined)[] = [];
   for (const o of observations) {
     const k = fine[o.index];
-    if (k === undefined) continue;
-    const source = input[o.index]?.source;
-    keys[o.index] = source === undefined || bands.has(k) ? k : sourceKey(source);
+    if (k !== undefined) keys[o.index] = keyOfBand(k, input[o.index]?.source);
   }
   const keyOf = (o: Observation) => keys[o.index];
-  return Object.assign(keyOf, { keyFor });
+  return Object.assign(keyOf, {
+    keyFor: (species: string, band: string, sigma: number, source: string | undefined) =>
+      keyOfBand(bandKey(species, band, sigma, source), source),
+  });
 }
 
 /**
@@ -312,9 +309,10 @@ function grossLines(
 }
 
 function labelOf(key: string): string {
-  const [kind, a, b, c, source] = key.split('|') as [string, string, string?, string?, string?];
-  if (kind === 'source') return a;
-  const [u, l] = (b as string).split('-').map(Number) as [number, number];
-  const band = `${a} ${formatBand({ upper: u, lower: l })}, σ = ${c} cm-1`;
-  return source === undefined ? band : `${source}: ${band}`;
+  // A source's name may hold "|": it is the rest of the key after the fixed fields.
+  if (key.startsWith('source|')) return key.slice('source|'.length);
+  const [, species, band, sigma, ...source] = key.split('|') as [string, string, string, string, ...string[]];
+  const [u, l] = band.split('-').map(Number) as [number, number];
+  const label = `${species} ${formatBand({ upper: u, lower: l })}, σ = ${sigma} cm-1`;
+  return source.length === 0 ? label : `${source.join('|')}: ${label}`;
 }

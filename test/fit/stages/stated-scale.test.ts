@@ -93,6 +93,11 @@ describe('rescaleStatedUncertainties', () => {
     expect(Math.abs(f20 / 10 - 1), `2-0 × ${f20}`).toBeLessThan(0.3);
     expect(Math.abs(f10 - 1), `1-0 × ${f10}`).toBeLessThan(0.3);
     expect(r.groups.map((g) => g.group)).toContain('lab: 12C-16O 2-0, σ = 0.00100 cm-1');
+    // A source name holding the keys' separator is named whole.
+    const piped = stated(0.001, 0.01, (i) => (i < 102 ? 'lab|2' : 'other|x'));
+    const rp = rescaleStatedUncertainties(piped.input, piped.obs, FIT, piped.first);
+    expect(rp.groups.map((g) => g.group)).toContain('lab|2: 12C-16O 2-0, σ = 0.00100 cm-1');
+    expect(rp.factorFor('12C-16O', '2-0', 0.001, 'lab|2')).toBe(r.factorFor('12C-16O', '2-0', 0.001, 'lab'));
     // A source stating one band and σ keeps its name as the group's.
     expect(Math.abs(r.factorFor('12C-16O', '3-0', 0.001, 'other') - 1)).toBeLessThan(0.3);
   });
