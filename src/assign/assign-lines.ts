@@ -152,12 +152,62 @@ export function assignAndFit(
   options: AssignOptions = {},
 ): AssignResult {
   const plain = assignOnce(peaks, species, masses, { ...options, crossSources: false });
-  if (!levelsSeenByOneSource(plain.lines)) return plain;
-  // Sources that reach different levels: assigned again with their offsets carried between them (tryFit,
-  // crossSourceShift), kept when that fits more lines. Not the only way: on held-out hot two-instrument scans
-  // assigned at the default temperature before their own is read, the carried offsets, estimated from a poor first
-  // assignment, led it astray (seeds 32 and 140: 732 and 102 lines right, 6 and 26 so), and the temperature read
-  // from it with them.
+  const first = levelsSeenByOneSource(plain.lines) ? withCrossedSources(plain, peaks, species, masses, options) : plain;
+  const alignment = sourcesInterleaved(peaks) ? sourceAlignment(peaks, species, masses, options) : undefined;
+  if (!alignment) return first;
+  // Sources interleaved line by line (sourcesInterleaved) whose voted offsets differ: assigned again
+  // on lines moved by those offsets onto one source's scale (each line's own position kept for the final fit), kept
+  // when that fits more lines. Without it the round fits mix lines a few tenths of a cm⁻¹ apart, and the scatter
+  // they estimate from that swallows the H79Br/H81Br isotope shift (held-out seed 14: 7 lines right of 161). Not for
+  // sources recorded in separate windows: on held-out seed 32 (HBr 2-0 and 3-0, at the default temperature before
+  // its own was read) the aligned lines of the sparser source lost their bands (732 lines right → 299).
+  let aligned: AssignResult | undefined;
+  try {
+    aligned = assignOnce(peaks, species, masses, { ...options, crossSources: false }, alignment);
+  } catch (e) {
+    if (!(e instanceof ScienceError)) throw e;
+  }
+  return aligned && aligned.fit.result.statistics.fitted > first.fit.result.statistics.fitted ? aligned : first;
+}
+
+/** Least share of a source's lines whose nearest line belongs to another source, for the sources to count as interleaved. */
+const INTERLEAVED_SHARE = 0.2;
+
+/**
+ * Whether the sources' free lines are interleaved (a list split line by line between instruments, not one recorded
+ * in some windows and the other in others): for every source, INTERLEAVED_SHARE or more of its lines have their
+ * nearest free line in another source. On the held-out two-instrument scans the share of the sparser source is
+ * 0.11–0.65 (median 0.45) split line by line, 0.00–0.17 in windows.
+ */
+export function sourcesInterleaved(peaks: readonly PeakInput[]): boolean {
+  const free = peaks.filter((p) => !p.assignment).sort((a, b) => a.position - b.position);
+  const tally = new Map<string, { mixed: number; lines: number }>();
+  free.forEach((p, i) => {
+    const left = free[i - 1];
+    const right = free[i + 1];
+    const nearest =
+      left && right ? (p.position - left.position <= right.position - p.position ? left : right) : (left ?? right);
+    const t = tally.get(p.source ?? '') ?? { mixed: 0, lines: 0 };
+    t.lines++;
+    if (nearest && (nearest.source ?? '') !== (p.source ?? '')) t.mixed++;
+    tally.set(p.source ?? '', t);
+  });
+  return tally.size >= 2 && [...tally.values()].every((t) => t.mixed >= INTERLEAVED_SHARE * t.lines);
+}
+
+/**
+ * Sources that reach different levels: assigned again with their offsets carried between them (tryFit,
+ * crossSourceShift), kept when that fits more lines. Not the only way: on held-out hot two-instrument scans assigned
+ * at the default temperature before their own is read, the carried offsets, estimated from a poor first assignment,
+ * led it astray (seeds 32 and 140: 732 and 102 lines right, 6 and 26 so), and the temperature read from it with them.
+ */
+function withCrossedSources(
+  plain: AssignResult,
+  peaks: readonly PeakInput[],
+  species: readonly { iso: Isotopologue; abundance: number }[],
+  masses: ReadonlyMap<string, MassValue>,
+  options: AssignOptions,
+): AssignResult {
   let crossed: AssignResult | undefined;
   try {
     crossed = assignOnce(peaks, species, masses, { ...options, crossSources: true });
@@ -167,21 +217,40 @@ export function assignAndFit(
   return crossed && crossed.fit.result.statistics.fitted > plain.fit.result.statistics.fitted ? crossed : plain;
 }
 
-function assignOnce(
+/** Voted offsets of two sources differing by less than this (cm⁻¹) are not worth a second assignment. */
+const ALIGN_MIN_DIFFERENCE = 0.01;
+
+/**
+ * Each source's voted offset less that of the source with the most free lines, when two or more sources' offsets
+ * differ by ALIGN_MIN_DIFFERENCE or more; undefined otherwise (one source, or offsets alike).
+ */
+export function sourceAlignment(
   peaks: readonly PeakInput[],
   species: readonly { iso: Isotopologue; abundance: number }[],
   masses: ReadonlyMap<string, MassValue>,
   options: AssignOptions,
-): AssignResult {
+): Map<string, number> | undefined {
+  if (new Set(peaks.flatMap((p) => (p.assignment ? [] : [p.source ?? '']))).size < 2) return undefined;
   const ctx = prepareAssignment(peaks, species, masses, options);
-  if (ctx.inWindow === 0) {
-    ctx.warnings.push({
-      code: 'NO_BAND_IN_WINDOW',
-      message: `no band of ${speciesNames(ctx)} is predicted between ${ctx.lo.toFixed(1)} and ${ctx.hi.toFixed(1)} cm-1`,
-    });
-    return finishAssignment(ctx, new Map(), undefined);
-  }
-  let offsets = voteOffsets(
+  if (ctx.inWindow === 0) return undefined;
+  const votes = firstVotes(ctx);
+  const largest = [...ctx.freeBySource].sort((a, b) => b[1].length - a[1].length)[0]?.[0] ?? '';
+  const base = votes.bySource.get(largest)?.offset ?? 0;
+  const out = new Map(ctx.sources.map((s) => [s, (votes.bySource.get(s)?.offset ?? base) - base]));
+  return [...out.values()].some((d) => Math.abs(d) >= ALIGN_MIN_DIFFERENCE) ? out : undefined;
+}
+
+/** The peaks with each free line moved by its source's alignment (given assignments as sent). */
+function alignedPeaks(peaks: readonly PeakInput[], alignment: ReadonlyMap<string, number>): PeakInput[] {
+  return peaks.map((p) => {
+    const d = p.assignment ? 0 : (alignment.get(p.source ?? '') ?? 0);
+    return d === 0 ? p : { ...p, position: p.position - d };
+  });
+}
+
+/** The votes of the low-J seeds, each source against its own free lines. */
+function firstVotes(ctx: AssignContext): OffsetVotes {
+  return voteOffsets(
     ctx.cands.filter((c, i) => ctx.seedable[i] && c.j <= START_J),
     ctx.freeBySource,
     ctx.maxOffset,
@@ -189,7 +258,27 @@ function assignOnce(
     undefined,
     ctx.referenceDunham,
   );
-  ctx.warnings.push(...ambiguousOffsetWarnings(offsets));
+}
+
+function assignOnce(
+  peaks: readonly PeakInput[],
+  species: readonly { iso: Isotopologue; abundance: number }[],
+  masses: ReadonlyMap<string, MassValue>,
+  options: AssignOptions,
+  /** Per source, the offset taken off its free lines while they are assigned (sourceAlignment). */
+  alignment?: ReadonlyMap<string, number>,
+): AssignResult {
+  const ctx = prepareAssignment(alignment ? alignedPeaks(peaks, alignment) : peaks, species, masses, options);
+  if (ctx.inWindow === 0) {
+    ctx.warnings.push({
+      code: 'NO_BAND_IN_WINDOW',
+      message: `no band of ${speciesNames(ctx)} is predicted between ${ctx.lo.toFixed(1)} and ${ctx.hi.toFixed(1)} cm-1`,
+    });
+    return finishAssignment(ctx, new Map(), undefined);
+  }
+  let offsets = firstVotes(ctx);
+  // Offsets are reported on each source's own scale.
+  ctx.warnings.push(...ambiguousOffsetWarnings(alignment ? unalignedVotes(offsets, alignment) : offsets));
   const state: LoopState = {
     auto: new Map(),
     detailed: undefined,
@@ -217,7 +306,38 @@ function assignOnce(
   }
   withholdAmbiguous(ctx, offsets, state);
   noteCompetitions(ctx, state);
-  return finishAssignment(ctx, state.auto, offsets);
+  if (!alignment) return finishAssignment(ctx, state.auto, offsets);
+  // The lines as sent for the final fit (its own source offsets take the instruments' difference up again), and the
+  // offsets on their scale for what is reported with them.
+  return finishAssignment(withPeaks(ctx, peaks), state.auto, unalignedVotes(offsets, alignment));
+}
+
+/** The context of an aligned assignment with the peaks as sent: the same candidates, the lines' own positions. */
+function withPeaks(ctx: AssignContext, peaks: readonly PeakInput[]): AssignContext {
+  const free = freePeaks(peaks);
+  const freeBySource = new Map(ctx.sources.map((s) => [s, free.filter((p) => (peaks[p.index]?.source ?? '') === s)]));
+  return {
+    ...ctx,
+    peaks,
+    free,
+    freeBySource,
+    freeByPosition: new Map([...freeBySource].map(([s, f]) => [s, [...f].sort((a, b) => a.position - b.position)])),
+    inputs: baseInputs(peaks),
+    autoInputs: new Map(),
+  };
+}
+
+/** Offsets voted on aligned lines, put back on each source's own scale. */
+function unalignedVotes(votes: OffsetVotes, alignment: ReadonlyMap<string, number>): OffsetVotes {
+  const back = <T extends OffsetChoice>(o: T, source: string): T => ({
+    ...o,
+    offset: o.offset + (alignment.get(source) ?? 0),
+  });
+  // perBand is keyed "band#source": the longest source name that ends the key is its source.
+  const sources = [...alignment.keys()].sort((a, b) => b.length - a.length);
+  const sourceOfKey = (k: string) => sources.find((s) => k.endsWith(`#${s}`)) ?? '';
+  const perBand = new Map([...votes.perBand].map(([k, o]) => [k, back(o, sourceOfKey(k))] as const));
+  return offsetVotes(new Map([...votes.bySource].map(([s, o]) => [s, back(o, s)])), perBand);
 }
 
 /** What every stage of the assignment reads: the lines, their window, the candidates and the free lines per source. */
