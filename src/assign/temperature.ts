@@ -96,10 +96,18 @@ export function worthReassigning(t: Quantity | undefined, assumed: number): t is
   return Math.max(t.value / assumed, assumed / t.value) >= MIN_RATIO;
 }
 
-/** The warning that says the temperature was read from the intensities and the lines assigned at it. */
-export function temperatureWarning(t: Quantity, lines: number): Warning {
+/**
+ * The warning that says the temperature was read from the intensities and the lines assigned at it; with `hotStart`,
+ * that the lines fitted from the default temperature were too few and the assignment started again from there.
+ */
+export function temperatureWarning(t: Quantity, lines: number, hotStart?: number): Warning {
+  const read = `no temperature was given: the intensities of the assigned lines give ${t.value.toFixed(0)} ± ${t.uncertainty.toFixed(0)} K (Boltzmann plot of the strongest cold band), not the ${DEFAULT_TEMPERATURE} K assumed`;
+  const how =
+    hotStart === undefined
+      ? 'so the lines were assigned again at the temperature so read'
+      : `too few lines fitted from ${DEFAULT_TEMPERATURE} K, so the lines were assigned again from ${hotStart} K and at the temperature read where it differs more`;
   return {
     code: 'TEMPERATURE_ESTIMATED',
-    message: `no temperature was given: the intensities of the assigned lines give ${t.value.toFixed(0)} ± ${t.uncertainty.toFixed(0)} K (Boltzmann plot of the strongest cold band), not the ${DEFAULT_TEMPERATURE} K assumed, so the lines were assigned again at the temperature so read (${lines} fitted); send the temperature to set it`,
+    message: `${read}${hotStart === undefined ? ', ' : '; '}${how} (${lines} fitted); send the temperature to set it`,
   };
 }
