@@ -1,9 +1,9 @@
 import { describe, expect, it } from 'vitest';
-import { analyseLineList } from '../../src/assign/analyse.js';
 import { sourceAlignment } from '../../src/assign/assign-lines.js';
 import { isotopologueMixture, parseSpecies } from '../../src/species/parse.js';
 import { reducedMass } from '../../src/species/reduced-mass.js';
-import { heldoutScan, scoreScan, sweepOptions } from '../helpers/heldout-scans.js';
+import { analysedHeldout } from '../helpers/heldout-analysed.js';
+import { heldoutScan, sweepOptions } from '../helpers/heldout-scans.js';
 
 /**
  * A list split line by line between two instruments whose offsets differ by a few tenths of a cm⁻¹. Held-out seed 14
@@ -15,10 +15,7 @@ import { heldoutScan, scoreScan, sweepOptions } from '../helpers/heldout-scans.j
  * lines as sent): 142 right, none wrong.
  */
 describe('a list from two instruments with different offsets, split line by line (held-out seed 14)', () => {
-  const o = sweepOptions(14);
-  const scan = heldoutScan(o);
-  const r = analyseLineList(scan.peaks, parseSpecies(o.molecule), {}).result;
-  const s = scoreScan(scan.truth, r.lines);
+  const { o, scan, r, s } = analysedHeldout(14);
 
   it('is split line by line between two sources with offsets 0.19 cm⁻¹ apart (what this test is about)', () => {
     expect(o.b?.layout).toBe('random');

@@ -1,7 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { analyseLineList } from '../../src/assign/analyse.js';
-import { parseSpecies } from '../../src/species/parse.js';
-import { heldoutScan, scoreScan, sweepOptions } from '../helpers/heldout-scans.js';
+import { analysedHeldout } from '../helpers/heldout-analysed.js';
 
 /**
  * A hot scan sent without its temperature. Held-out seed 140 (test/helpers/heldout-scans.ts: its own Dunham
@@ -12,10 +10,7 @@ import { heldoutScan, scoreScan, sweepOptions } from '../helpers/heldout-scans.j
  * When fewer than half the lines are fitted, the assignment starts again from 1000 K: 982 right, none wrong.
  */
 describe('a hot scan without its temperature, poorly assigned from 296 K (held-out seed 140)', () => {
-  const o = sweepOptions(140);
-  const scan = heldoutScan(o);
-  const r = analyseLineList(scan.peaks, parseSpecies(o.molecule), {}).result;
-  const s = scoreScan(scan.truth, r.lines);
+  const { o, scan, r, s } = analysedHeldout(140);
 
   it('is hot and sent without a temperature, with intensities (what this test is about)', () => {
     expect(o.temperature).toBeGreaterThan(900);

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { analyseLineList } from '../../src/assign/analyse.js';
 import { parseSpecies } from '../../src/species/parse.js';
+import { analysedHeldout } from '../helpers/heldout-analysed.js';
 import { heldoutScan, scoreScan, sweepOptions } from '../helpers/heldout-scans.js';
 
 /**
@@ -11,10 +12,7 @@ import { heldoutScan, scoreScan, sweepOptions } from '../helpers/heldout-scans.j
  * lines are assigned again as if at 1000 K and that kept when it fits more: 268 right, none wrong.
  */
 describe('a hot scan without temperature or intensities (held-out seed 188)', () => {
-  const o = sweepOptions(188);
-  const scan = heldoutScan(o);
-  const r = analyseLineList(scan.peaks, parseSpecies(o.molecule), {}).result;
-  const s = scoreScan(scan.truth, r.lines);
+  const { o, scan, r, s } = analysedHeldout(188);
 
   it('is hot, with no intensities (what this test is about)', () => {
     expect(o.temperature).toBeGreaterThan(900);
