@@ -33,3 +33,13 @@ export class ScienceError extends Error {
     this.details = details;
   }
 }
+
+/** What f returns, or undefined when the science refuses (a ScienceError); other errors are thrown. */
+export function orUndefined<T>(f: () => T): T | undefined {
+  try {
+    return f();
+  } catch (e) {
+    if (e instanceof ScienceError) return undefined;
+    throw e;
+  }
+}

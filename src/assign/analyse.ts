@@ -1,5 +1,5 @@
 import type { Quantity } from '../derive/quantity.js';
-import { ScienceError } from '../errors.js';
+import { orUndefined, ScienceError } from '../errors.js';
 import {
   type DetailedFit,
   type FitOptions,
@@ -432,16 +432,6 @@ function readingTemperature(
     read = t;
   }
   return { result: best, read };
-}
-
-/** What f returns, or undefined when the science refuses (a ScienceError); other errors are thrown. */
-function orUndefined<T>(f: () => T): T | undefined {
-  try {
-    return f();
-  } catch (e) {
-    if (e instanceof ScienceError) return undefined;
-    throw e;
-  }
 }
 
 /**

@@ -1,5 +1,5 @@
 import { type Quantity, quantity } from '../derive/quantity.js';
-import { ScienceError } from '../errors.js';
+import { orUndefined, ScienceError } from '../errors.js';
 import {
   type DetailedFit,
   type FitOptions,
@@ -161,13 +161,15 @@ export function assignAndFit(
   // they estimate from that swallows the H79Br/H81Br isotope shift (held-out seed 14: 7 lines right of 161). Not for
   // sources recorded in separate windows: on held-out seed 32 (HBr 2-0 and 3-0, at the default temperature before
   // its own was read) the aligned lines of the sparser source lost their bands (732 lines right → 299).
-  let aligned: AssignResult | undefined;
-  try {
-    aligned = assignOnce(peaks, species, masses, { ...options, crossSources: false }, alignment);
-  } catch (e) {
-    if (!(e instanceof ScienceError)) throw e;
-  }
-  return aligned && aligned.fit.result.statistics.fitted > first.fit.result.statistics.fitted ? aligned : first;
+  return fittingMore(
+    orUndefined(() => assignOnce(peaks, species, masses, { ...options, crossSources: false }, alignment)),
+    first,
+  );
+}
+
+/** The attempt when it was made and fits more lines than the assignment it is held against, else that one. */
+function fittingMore(attempt: AssignResult | undefined, held: AssignResult): AssignResult {
+  return attempt && attempt.fit.result.statistics.fitted > held.fit.result.statistics.fitted ? attempt : held;
 }
 
 /** Least share of a source's lines whose nearest line belongs to another source, for the sources to count as interleaved. */
@@ -208,13 +210,10 @@ function withCrossedSources(
   masses: ReadonlyMap<string, MassValue>,
   options: AssignOptions,
 ): AssignResult {
-  let crossed: AssignResult | undefined;
-  try {
-    crossed = assignOnce(peaks, species, masses, { ...options, crossSources: true });
-  } catch (e) {
-    if (!(e instanceof ScienceError)) throw e;
-  }
-  return crossed && crossed.fit.result.statistics.fitted > plain.fit.result.statistics.fitted ? crossed : plain;
+  return fittingMore(
+    orUndefined(() => assignOnce(peaks, species, masses, { ...options, crossSources: true })),
+    plain,
+  );
 }
 
 /** Voted offsets of two sources differing by less than this (cm⁻¹) are not worth a second assignment. */
@@ -314,16 +313,21 @@ function assignOnce(
 
 /** The context of an aligned assignment with the peaks as sent: the same candidates, the lines' own positions. */
 function withPeaks(ctx: AssignContext, peaks: readonly PeakInput[]): AssignContext {
+  return { ...ctx, ...peakViews(peaks, ctx.sources), peaks, autoInputs: new Map() };
+}
+
+/** The free lines of the peaks, by source and by source in position order, and each line as the fit takes it. */
+function peakViews(
+  peaks: readonly PeakInput[],
+  sources: readonly string[],
+): Pick<AssignContext, 'free' | 'freeBySource' | 'freeByPosition' | 'inputs'> {
   const free = freePeaks(peaks);
-  const freeBySource = new Map(ctx.sources.map((s) => [s, free.filter((p) => (peaks[p.index]?.source ?? '') === s)]));
+  const freeBySource = new Map(sources.map((s) => [s, free.filter((p) => (peaks[p.index]?.source ?? '') === s)]));
   return {
-    ...ctx,
-    peaks,
     free,
     freeBySource,
     freeByPosition: new Map([...freeBySource].map(([s, f]) => [s, [...f].sort((a, b) => a.position - b.position)])),
     inputs: baseInputs(peaks),
-    autoInputs: new Map(),
   };
 }
 
@@ -464,12 +468,10 @@ export function prepareAssignment(
   });
   const cands = [...inner, ...edgeCandidates(species, lo, hi, options, inner)];
   const given = peaks.flatMap((p, index) => (p.assignment ? [{ index, t: p.assignment }] : []));
-  const free = freePeaks(peaks);
   const sourceOf = (i: number) => peaks[i]?.source ?? '';
   const withSigma = peaks.flatMap((p) => (p.uncertainty !== undefined ? [p.uncertainty] : []));
-  const sources = [...new Set(free.map((p) => sourceOf(p.index)))];
+  const sources = [...new Set(peaks.flatMap((p, i) => (p.assignment ? [] : [sourceOf(i)])))];
   const index = candidateIndex(cands, given);
-  const freeBySource = new Map(sources.map((s) => [s, free.filter((p) => sourceOf(p.index) === s)]));
   return {
     peaks,
     species,
@@ -486,12 +488,9 @@ export function prepareAssignment(
     inWindow: inner.length,
     spacing: lineSpacings({ cands: inner, ...index }),
     given,
-    free,
     sources,
-    freeBySource,
-    freeByPosition: new Map([...freeBySource].map(([s, f]) => [s, [...f].sort((a, b) => a.position - b.position)])),
+    ...peakViews(peaks, sources),
     sourceNumbers: mapInts(peaks, (_, i) => sources.indexOf(sourceOf(i))),
-    inputs: baseInputs(peaks),
     autoInputs: new Map(),
     referenceDunham: referenceDunham(species),
     typicalSigma: withSigma.length > 0 ? robustMedian(withSigma) : undefined,
