@@ -468,6 +468,20 @@ export interface components {
           unit: string;
           value: number;
         }[];
+      /** @description lines of one instrument (one source, or none named) whose bands fix the absolute wavenumber scale: the offset common to every line, the instrument's calibration as the lines themselves show it */
+      scaleOffset?: {
+        /** @description true: carried in the fit, so band origins, levels and constants are free of it and their σ include its uncertainty; a line's calculated position includes it */
+        applied: boolean;
+        /** @description the bands whose lines fixed it */
+        bands: string[];
+        /**
+         * @description flagged: beyond 3σ from 0, carried (warning SCALE_OFFSET); not flagged: reported only; asked / not asked: options.fitSourceOffsets
+         * @enum {string}
+         */
+        basis: "flagged" | "asked" | "not flagged" | "not asked";
+        /** @description the lines' positions minus the absolute scale their bands fix, cm-1: each band of a loop (such as 2-0 against 1-0 + 2-1) holds it once, so the loop closes at it instead of 0; a pure-rotation band extrapolates to it at J = 0 */
+        offset: components["schemas"]["Quantity"];
+      };
       /** @description σ estimated from the residual scatter (robust) for the lines sent without an uncertainty */
       scatter?: ({
           /** @enum {string} */
@@ -527,7 +541,7 @@ export interface components {
       warnings: components["schemas"]["Warning"][];
     };
     FitOptions: {
-      /** @description lines of two or more sources (diatomic fits): true carries each source's wavenumber offset against the reference source as a fitted parameter, so band origins and constants are free of it and their σ include its uncertainty; false never; default: carried when an offset lies more than 3σ from zero (the answer's sourceOffsets says which) */
+      /** @description lines of two or more sources (diatomic fits): true carries each source's wavenumber offset against the reference source as a fitted parameter, so band origins and constants are free of it and their σ include its uncertainty; false never; default: carried when an offset lies more than 3σ from zero (the answer's sourceOffsets says which). Lines of one instrument whose bands fix the absolute scale (a loop of bands, a pure-rotation band): the same for their common offset (scaleOffset) */
       fitSourceOffsets?: boolean;
       /** @description true: each entry of `lines` leaves out what the request already holds (uncertainty, intensity, an assignment the caller gave), keeping index, id and position to match lines by; smaller answers for large lists (default false) */
       lean?: boolean;
@@ -800,6 +814,20 @@ export interface components {
         }[];
       /** @description the request's sample, echoed */
       sample?: components["schemas"]["Sample"];
+      /** @description lines of one instrument (one source, or none named) whose bands fix the absolute wavenumber scale: the offset common to every line, the instrument's calibration as the lines themselves show it */
+      scaleOffset?: {
+        /** @description true: carried in the fit, so band origins, levels and constants are free of it and their σ include its uncertainty; a line's calculated position includes it */
+        applied: boolean;
+        /** @description the bands whose lines fixed it */
+        bands: string[];
+        /**
+         * @description flagged: beyond 3σ from 0, carried (warning SCALE_OFFSET); not flagged: reported only; asked / not asked: options.fitSourceOffsets
+         * @enum {string}
+         */
+        basis: "flagged" | "asked" | "not flagged" | "not asked";
+        /** @description the lines' positions minus the absolute scale their bands fix, cm-1: each band of a loop (such as 2-0 against 1-0 + 2-1) holds it once, so the loop closes at it instead of 0; a pure-rotation band extrapolates to it at J = 0 */
+        offset: components["schemas"]["Quantity"];
+      };
       /** @description σ estimated from the residual scatter (robust) for the lines sent without an uncertainty */
       scatter?: ({
           /** @enum {string} */

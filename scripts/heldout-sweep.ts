@@ -69,8 +69,10 @@ for (let seed = first; seed < first + n; seed++) {
     const upper = o.deltaV[0] as number;
     const truth = truthOf(o.molecule, upper);
     const band = r.bands.find((b) => b.species === truth.species && b.band === `${upper}-0`);
+    // A carried scale offset (a loop of bands fixed it) takes the instrument's offset out of the origin.
+    const offset = r.scaleOffset?.applied ? 0 : o.a.offset;
     if (band?.origin && o.molecule !== 'CO')
-      pulls.origin.push((band.origin.value - truth.origin - o.a.offset) / band.origin.uncertainty);
+      pulls.origin.push((band.origin.value - truth.origin - offset) / band.origin.uncertainty);
     const b0 = r.levels.find((l) => l.species === truth.species && l.v === 0);
     if (b0) pulls.B0.push((b0.B.value - truth.B0) / b0.B.uncertainty);
   }

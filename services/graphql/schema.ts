@@ -71,6 +71,16 @@ export const typeDefs = /* GraphQL */ `
     sources: [SourceOffset!]!
   }
 
+  type ScaleOffset {
+    "the lines' positions minus the absolute scale their bands fix (a loop of bands, a pure-rotation band), cm-1"
+    offset: Quantity!
+    "true: carried in the fit, so band origins and constants are free of it and their σ include it"
+    applied: Boolean!
+    "flagged, asked, not flagged or not asked"
+    basis: String!
+    bands: [String!]!
+  }
+
   input FitOptionsInput {
     uncertaintyMode: String
     rejectionThreshold: Float
@@ -370,6 +380,8 @@ export const typeDefs = /* GraphQL */ `
     scatter: [ScatterGroup!]
     "lines of two or more sources: each source's wavenumber offset against the reference source"
     sourceOffsets: SourceOffsets
+    "lines of one instrument whose bands fix the absolute scale: their common offset"
+    scaleOffset: ScaleOffset
     assignment: AssignmentReport!
     spectrum: SpectrumSummary
     warnings: [Warning!]!

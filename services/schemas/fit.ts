@@ -216,7 +216,7 @@ const fitOptionsShape = {
     .boolean()
     .optional()
     .describe(
-      "lines of two or more sources (diatomic fits): true carries each source's wavenumber offset against the reference source as a fitted parameter, so band origins and constants are free of it and their σ include its uncertainty; false never; default: carried when an offset lies more than 3σ from zero (the answer's sourceOffsets says which)",
+      "lines of two or more sources (diatomic fits): true carries each source's wavenumber offset against the reference source as a fitted parameter, so band origins and constants are free of it and their σ include its uncertainty; false never; default: carried when an offset lies more than 3σ from zero (the answer's sourceOffsets says which). Lines of one instrument whose bands fix the absolute scale (a loop of bands, a pure-rotation band): the same for their common offset (scaleOffset)",
     ),
   referenceSource: z
     .string()
@@ -713,6 +713,27 @@ const fitFields = {
     })
     .optional()
     .describe("lines of two or more sources: each source's wavenumber offset against the reference source"),
+  scaleOffset: z
+    .object({
+      offset: Q.describe(
+        "the lines' positions minus the absolute scale their bands fix, cm-1: each band of a loop (such as 2-0 against 1-0 + 2-1) holds it once, so the loop closes at it instead of 0; a pure-rotation band extrapolates to it at J = 0",
+      ),
+      applied: z
+        .boolean()
+        .describe(
+          "true: carried in the fit, so band origins, levels and constants are free of it and their σ include its uncertainty; a line's calculated position includes it",
+        ),
+      basis: z
+        .enum(['flagged', 'asked', 'not flagged', 'not asked'])
+        .describe(
+          'flagged: beyond 3σ from 0, carried (warning SCALE_OFFSET); not flagged: reported only; asked / not asked: options.fitSourceOffsets',
+        ),
+      bands: z.array(z.string()).describe('the bands whose lines fixed it'),
+    })
+    .optional()
+    .describe(
+      "lines of one instrument (one source, or none named) whose bands fix the absolute wavenumber scale: the offset common to every line, the instrument's calibration as the lines themselves show it",
+    ),
   crossChecks: z.array(
     z.object({
       species: z.string(),

@@ -10,6 +10,7 @@ import { fitDunhamForSpecies, fitMassReduced, formatValue } from './dunham-stage
 import { reducedChiSquare, rmsResidual, type SolvedModel, type UncertaintyMode } from './engine.js';
 import { reportLevels } from './level-report.js';
 import { type LevelSelection, predictWithVariance, selectLevelModel } from './level-selection.js';
+import { withScaleOffset } from './loop-offset.js';
 import { readLines } from './observations.js';
 import { rejectOutliers } from './outliers.js';
 import {
@@ -93,7 +94,8 @@ export function fitLineList(
  *   7  checkRepeats, qualityWarnings (warnings.ts)
  *   8  with lines of two or more sources: their offsets against a reference source (source-offsets.ts), carried
  *      in the fit when one is flagged or the caller asks (carryOffsets: positions corrected, the stages run again,
- *      every covariance widened by the offsets')
+ *      every covariance widened by the offsets'); with lines of one source whose bands fix the absolute scale (a
+ *      loop of bands, a pure-rotation band): their common offset, the same way (loop-offset.ts)
  */
 export function fitLineListDetailed(
   input: readonly LineInput[],
@@ -105,7 +107,12 @@ export function fitLineListDetailed(
   const first = fitPass(input, masses, opt);
   if (opt.withoutChecks) return first.detailed;
   const offsets = estimateRelativeOffsets(first.selected, sourcesOf(input), first.mode, opt.referenceSource);
-  if (!offsets) return first.detailed;
+  if (!offsets)
+    return new Set(sourcesOf(input)).size > 1
+      ? first.detailed
+      : withScaleOffset(input, first, SOURCE_OFFSET_FLAG, opt.fitSourceOffsets, (corrected, carried) =>
+          fitPass(corrected, masses, opt, carried),
+        );
   const flagged = offsets.largestZ > SOURCE_OFFSET_FLAG;
   const vouched =
     flagged &&
@@ -326,7 +333,9 @@ function fitPass(
   input: readonly LineInput[],
   masses: ReadonlyMap<string, MassValue>,
   opt: typeof DEFAULTS & FitOptions,
-  carried?: RelativeOffsets,
+  carried?: Pick<RelativeOffsets, 'fitted' | 'covariance'> & {
+    readonly sourceOf?: (line: number) => string | undefined;
+  },
 ): Pass {
   const settings: FitSettings = {
     maxOrder: Math.max(1, Math.min(MAX_CENTRIFUGAL_ORDER, Math.floor(opt.maxCentrifugalOrder))),
@@ -340,7 +349,7 @@ function fitPass(
   if (truncation.constraints.length > 0 && !opt.withoutChecks)
     warnings.push(constrainedWarning(truncation.constraints, settings.alpha));
   const adjust = carried
-    ? (f: SolvedModel) => withOffsetCovariance(f, kept.mode, (i) => input[i]?.source, carried)
+    ? (f: SolvedModel) => withOffsetCovariance(f, kept.mode, carried.sourceOf ?? ((i) => input[i]?.source), carried)
     : undefined;
   const fit = adjust ? adjust(truncation.level.fit) : truncation.level.fit;
   const report = reportLevels(

@@ -154,6 +154,35 @@ export function estimateSourceOffsets(
   };
 }
 
+/** The one additive offset of all lines on the absolute scale, when their bands fix it (see `absoluteOffset`). */
+export interface AbsoluteOffset {
+  readonly value: number;
+  readonly uncertainty: number;
+  /** Bands (as "v′-v″") of the fitted lines. */
+  readonly bands: readonly string[];
+}
+
+/**
+ * The additive offset common to every fitted line (all the lines of one instrument), when the bands fix it: a loop
+ * such as 2-0 against 1-0 + 2-1 (each band holds the offset once, so the loop closes at δ instead of 0), or a
+ * pure-rotation band (whose lines extrapolate to δ at J = 0). Undefined when the level design absorbs a common
+ * shift (bands that all start from one level, such as 1-0 and 2-0: the shift is then a change of their origins).
+ * Same partialling-out as the source offsets, with the indicator of every line.
+ */
+export function absoluteOffset(fit: SolvedModel, mode: UncertaintyMode): AbsoluteOffset | undefined {
+  const rows = fit.observations.map((_, i) => i);
+  const bands = new Set(fit.observations.map((o) => `${o.upperV}-${o.lowerV}`));
+  const group: Group = { source: '', rows, weight: 0, bands };
+  for (const o of fit.observations) group.weight += o.weight;
+  const mz = projectedIndicator(fit, rows);
+  if (!mz) return undefined;
+  const left = mz.reduce((acc, x, i) => acc + (fit.observations[i] as Observation).weight * x * x, 0);
+  if (!(left > IDENTIFIABLE * group.weight)) return undefined;
+  const found = jointOffsets(fit, [{ group, mz }], mode)?.[0];
+  if (!found || !(found.uncertainty > 0)) return undefined;
+  return { value: found.value, uncertainty: found.uncertainty, bands: [...bands].sort() };
+}
+
 /**
  * Offsets of every other source against one reference source, for carrying them in the fit as nuisance
  * parameters: the model "levels + Σ_{s ≠ reference} δ_s z_s", solved for δ by the same partialling-out as above.

@@ -79,6 +79,21 @@ export interface SourceOffsetReport {
   }[];
 }
 
+/**
+ * The additive offset common to every line of a one-instrument list, when its bands fix the absolute scale (a loop of
+ * bands such as 2-0 against 1-0 + 2-1, or a pure-rotation band): fit-lines.ts stage 8, loop-offset.ts.
+ */
+export interface ScaleOffsetReport {
+  /** The lines' positions minus the scale the loop fixes, cm⁻¹. */
+  readonly offset: Quantity;
+  /** Whether it was carried in the fit (band origins and constants are then free of it). */
+  readonly applied: boolean;
+  /** 'flagged' (beyond 3σ, carried), 'not flagged' (reported only), 'asked' / 'not asked' (fitSourceOffsets). */
+  readonly basis: 'flagged' | 'asked' | 'not flagged' | 'not asked';
+  /** The bands whose lines fixed it. */
+  readonly bands: readonly string[];
+}
+
 export interface Warning {
   readonly code: string;
   readonly message: string;
@@ -185,6 +200,7 @@ export interface FitResult {
   readonly scatter?: readonly ScatterGroup[];
   /** Per-source offsets against a reference source, with lines of two or more sources. */
   readonly sourceOffsets?: SourceOffsetReport;
+  readonly scaleOffset?: ScaleOffsetReport;
   readonly warnings: readonly Warning[];
 }
 
