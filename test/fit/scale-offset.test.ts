@@ -71,6 +71,13 @@ describe('the common offset of one instrument, on the real ¹²C¹⁶O list (HIT
     expect(Math.abs((r.scaleOffset?.offset.value as number) - 0.1)).toBeLessThan(1e-5);
   });
 
+  it('a pure-rotation band fixes it without a loop (0-0 with 1-0, 2-0, 3-0)', () => {
+    const r = fitCo(coLines(0.1, (b) => b !== '2-1'));
+    expect(r.scaleOffset?.bands).toEqual(['0-0', '1-0', '2-0', '3-0']);
+    expect(r.scaleOffset?.applied).toBe(true);
+    expect(Math.abs((r.scaleOffset?.offset.value as number) - 0.1)).toBeLessThan(1e-5);
+  });
+
   it('bands that all start from v = 0 cannot fix it: no scaleOffset, and the origins hold the shift', () => {
     const r = fitCo(coLines(0.1, (b) => b === '1-0' || b === '2-0' || b === '3-0'));
     expect(r.scaleOffset).toBeUndefined();
