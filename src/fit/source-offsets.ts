@@ -177,8 +177,8 @@ function bandsFixScale(obs: readonly Observation[]): boolean {
     const key = `${o.species}|${o.upperV}|${o.lowerV}`;
     if (seen.has(key)) continue;
     seen.add(key);
-    let g = edges.get(o.species);
-    if (!g) edges.set(o.species, (g = new Map()));
+    const g = edges.get(o.species) ?? new Map<number, number[]>();
+    edges.set(o.species, g);
     for (const [a, b] of [
       [o.upperV, o.lowerV],
       [o.lowerV, o.upperV],
