@@ -202,7 +202,7 @@ const BORROW_MAX_RHO = 0.01;
  * at its reference position plus the parent's fitted − reference difference for the same transition. Only for
  * isotopologues whose reduced masses differ by under 2 % from the parent's (|ρ − 1| < BORROW_MAX_RHO: the difference,
  * mostly the missing γ_e, β_e, H_e terms, scales by ρ^(k+2l), so by under 4 % of itself). Kept when it fits more lines
- * (held-out sweep, 240 scans: clear lines right 95.52 → 96.27 %, wrong 391 → 247 with the fit's scale offset;
+ * (held-out sweep, 240 scans: clear lines right 95.48 → 96.27 %, wrong 360 → 247;
  * seed 135 H81Br 3-0/3-1 found, 263 → 336 right).
  */
 function withBorrowedLevels(
