@@ -107,12 +107,7 @@ export function fitLineListDetailed(
   const first = fitPass(input, masses, opt);
   if (opt.withoutChecks) return first.detailed;
   const offsets = estimateRelativeOffsets(first.selected, sourcesOf(input), first.mode, opt.referenceSource);
-  if (!offsets)
-    return new Set(sourcesOf(input)).size > 1
-      ? first.detailed
-      : withScaleOffset(input, first, SOURCE_OFFSET_FLAG, opt.fitSourceOffsets, (corrected, carried) =>
-          fitPass(corrected, masses, opt, carried),
-        );
+  if (!offsets) return oneInstrument(input, masses, opt, first);
   const flagged = offsets.largestZ > SOURCE_OFFSET_FLAG;
   const vouched =
     flagged &&
@@ -158,6 +153,19 @@ export function fitLineListDetailed(
     ],
   };
   return { ...second.detailed, result };
+}
+
+/** Stage 8 without relative offsets: the scale offset of one instrument's lines (loop-offset.ts), if one source. */
+function oneInstrument(
+  input: readonly LineInput[],
+  masses: ReadonlyMap<string, MassValue>,
+  opt: typeof DEFAULTS & FitOptions,
+  first: Pass,
+): DetailedFit {
+  if (new Set(sourcesOf(input)).size > 1) return first.detailed;
+  return withScaleOffset(input, first, SOURCE_OFFSET_FLAG, opt.fitSourceOffsets, (corrected, carried) =>
+    fitPass(corrected, masses, opt, carried),
+  );
 }
 
 /**
