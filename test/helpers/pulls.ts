@@ -1,3 +1,4 @@
+import { expect } from 'vitest';
 import { type CustomaryConstants, levelConstants, termValue } from './independent-lines.js';
 
 /** Pulls z = (value − truth)/σ of reported quantities, and their summary: coverage at 1σ and 2σ, mean, SD. */
@@ -71,4 +72,15 @@ export function tallyBandsAndLevels(
     tally.add(`B_${lv.v}`, lv.B, truth.B);
     tally.add(`D_${lv.v}`, lv.D, truth.D);
   }
+}
+
+/**
+ * The coverage the pull tests over 200 trials require unless they say otherwise: n trials, |pull| ≤ 1 in 0.60–0.76
+ * and ≤ 2 in ≥ 0.92 (normal 0.683 / 0.954; 0.60 and 0.76 lie 2.5 binomial SD from 0.683 at n = 200).
+ */
+export function expectCoverage(s: PullSummary, n: number): void {
+  expect(s.n).toBe(n);
+  expect(s.within1).toBeGreaterThanOrEqual(0.6);
+  expect(s.within1).toBeLessThanOrEqual(0.76);
+  expect(s.within2).toBeGreaterThanOrEqual(0.92);
 }
