@@ -475,10 +475,10 @@ export interface components {
         /** @description the bands whose lines fixed it */
         bands: string[];
         /**
-         * @description flagged: beyond 3σ from 0, carried (warning SCALE_OFFSET); not flagged: reported only; asked / not asked: options.fitSourceOffsets
+         * @description flagged: beyond 3σ from 0, carried (warning SCALE_OFFSET); not flagged: reported only; too large: beyond 3σ but over 1 cm-1, which no calibration explains (a band numbered or labelled wrong), not carried; asked / not asked: options.fitSourceOffsets
          * @enum {string}
          */
-        basis: "flagged" | "asked" | "not flagged" | "not asked";
+        basis: "flagged" | "asked" | "not flagged" | "not asked" | "too large";
         /** @description the lines' positions minus the absolute scale their bands fix, cm-1: each band of a loop (such as 2-0 against 1-0 + 2-1) holds it once, so the loop closes at it instead of 0; a pure-rotation band extrapolates to it at J = 0 */
         offset: components["schemas"]["Quantity"];
       };
@@ -821,10 +821,10 @@ export interface components {
         /** @description the bands whose lines fixed it */
         bands: string[];
         /**
-         * @description flagged: beyond 3σ from 0, carried (warning SCALE_OFFSET); not flagged: reported only; asked / not asked: options.fitSourceOffsets
+         * @description flagged: beyond 3σ from 0, carried (warning SCALE_OFFSET); not flagged: reported only; too large: beyond 3σ but over 1 cm-1, which no calibration explains (a band numbered or labelled wrong), not carried; asked / not asked: options.fitSourceOffsets
          * @enum {string}
          */
-        basis: "flagged" | "asked" | "not flagged" | "not asked";
+        basis: "flagged" | "asked" | "not flagged" | "not asked" | "too large";
         /** @description the lines' positions minus the absolute scale their bands fix, cm-1: each band of a loop (such as 2-0 against 1-0 + 2-1) holds it once, so the loop closes at it instead of 0; a pure-rotation band extrapolates to it at J = 0 */
         offset: components["schemas"]["Quantity"];
       };

@@ -724,9 +724,9 @@ const fitFields = {
           "true: carried in the fit, so band origins, levels and constants are free of it and their σ include its uncertainty; a line's calculated position includes it",
         ),
       basis: z
-        .enum(['flagged', 'asked', 'not flagged', 'not asked'])
+        .enum(['flagged', 'asked', 'not flagged', 'not asked', 'too large'])
         .describe(
-          'flagged: beyond 3σ from 0, carried (warning SCALE_OFFSET); not flagged: reported only; asked / not asked: options.fitSourceOffsets',
+          'flagged: beyond 3σ from 0, carried (warning SCALE_OFFSET); not flagged: reported only; too large: beyond 3σ but over 1 cm-1, which no calibration explains (a band numbered or labelled wrong), not carried; asked / not asked: options.fitSourceOffsets',
         ),
       bands: z.array(z.string()).describe('the bands whose lines fixed it'),
     })

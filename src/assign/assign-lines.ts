@@ -966,6 +966,7 @@ export function predictionOf(
           ctx.options.crossSources && src.allLevels
             ? crossSourceShift(offsets, src, c, src.allLevels, ctx.sources)
             : undefined,
+          reach === undefined,
         )
       : referencePrediction(ctx, offsets, cand, r, src.name, view)) ??
     // Beyond a gap the fitted model may have run out while the reference still places the line well.
@@ -1203,6 +1204,8 @@ export function fittedPrediction(
   { offset, spacing }: BandPlacement = { offset: offsets.of(bk, src), spacing: ctx.spacing.get(bk) },
   atReach?: number,
   cross?: { readonly shift: number; readonly tolerance: number },
+  /** The band has no lines yet: its levels were fitted through other bands only (see `between` below). */
+  bridged = false,
 ): Placement | undefined {
   if (!ctx.wide && outOfReach(c.j, r)) return undefined;
   const st = residuals.of(band, srcNumber);
@@ -1224,12 +1227,19 @@ export function fittedPrediction(
     c.j > r
       ? Math.min(Math.abs(apart), atReach !== undefined ? Math.abs(fitted.value - c.position - atReach) : Infinity)
       : 0;
-  const model = Math.hypot(K_FITTED * Math.sqrt(fitted.variance), second, cross?.tolerance ?? 0) + 1e-6;
+  // A band without lines of its own, predicted through levels other bands fixed (2-1 through 1-0 and 2-0), misses
+  // the instrument's offset: each of those bands held it once and their levels took it up, so their difference does
+  // not (the real CO list shifted by +0.03 cm⁻¹ and sent unassigned: all 96 lines of 2-1 were left). At its low-J
+  // seeds, where the reference is good, the placement spans both the fitted position and the reference with the
+  // band's voted offset; once the band has lines, its median residual (st.shift) carries the offset.
+  const between = bridged && c.j <= START_J ? -apart / 2 : 0;
+  const spanned = between !== 0 ? Math.abs(between) + offset.tolerance : 0;
+  const model = Math.hypot(K_FITTED * Math.sqrt(fitted.variance), second, spanned, cross?.tolerance ?? 0) + 1e-6;
   // A tolerance wider than a quarter of the line spacing tells nothing.
   if (model > 0.25 * (spacing ?? Number.POSITIVE_INFINITY)) return undefined;
   const coincidence = COINCIDENCE_FRACTION * (spacing ?? 0);
   return {
-    position: fitted.value + st.shift + (cross?.shift ?? 0) + (carried?.get(src) ?? 0),
+    position: fitted.value + st.shift + between + (cross?.shift ?? 0) + (carried?.get(src) ?? 0),
     tolerance: Math.max(Math.hypot(model, K_FITTED * st.scatter), coincidence),
     // The same floor for lines with σ: a database's stated σ is a lower bound. Real CO 3-0 R(34) and R(40) by the
     // band head lie 8e-5 and 1.3e-4 cm⁻¹ (8 and 13 times their stated σ) from the band's fit, under the floor of

@@ -105,7 +105,8 @@ export function fitLineListDetailed(
   const opt = { ...DEFAULTS, ...options };
   checkReferenceSource(input, opt.referenceSource);
   const first = fitPass(input, masses, opt);
-  if (opt.withoutChecks) return first.detailed;
+  // The inner fits of automatic assignment carry one instrument's scale offset too (a loop of bands misfits by it).
+  if (opt.withoutChecks) return oneInstrument(input, masses, opt, first);
   const offsets = estimateRelativeOffsets(first.selected, sourcesOf(input), first.mode, opt.referenceSource);
   if (!offsets) return oneInstrument(input, masses, opt, first);
   const flagged = offsets.largestZ > SOURCE_OFFSET_FLAG;

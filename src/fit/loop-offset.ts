@@ -46,10 +46,20 @@ export function withScaleOffset(
   const found = absoluteOffset(first.selected, first.mode);
   if (!found) return first.detailed;
   const flagged = Math.abs(found.value) > flag * found.uncertainty;
-  const basis = asked !== undefined ? (asked ? 'asked' : 'not asked') : flagged ? 'flagged' : 'not flagged';
-  if (!(asked ?? flagged)) {
+  const plausible = Math.abs(found.value) <= PLAUSIBLE_OFFSET;
+  const basis =
+    asked !== undefined
+      ? asked
+        ? 'asked'
+        : 'not asked'
+      : !flagged
+        ? 'not flagged'
+        : plausible
+          ? 'flagged'
+          : 'too large';
+  if (!(asked ?? (flagged && plausible))) {
     const report = scaleOffsetReport(found, false, basis);
-    const warnings = flagged ? [scaleOffsetWarning(found, false)] : [];
+    const warnings = flagged ? [scaleOffsetWarning(found, false, plausible)] : [];
     return withReport(first.detailed, report, warnings);
   }
   const carried = carryScaleOffset(input, found, refit);
@@ -60,13 +70,23 @@ export function withScaleOffset(
     position: input[l.index]?.position as number,
     ...(l.calculated !== undefined ? { calculated: l.calculated + delta } : {}),
   }));
+  // Predictions on the scale the lines were sent on, as `calculated` is (automatic assignment places lines by them).
+  const variance = carried.offset.uncertainty ** 2;
+  const predict: DetailedFit['predict'] = (t) => {
+    const p = d.predict(t);
+    return p && { value: p.value + delta, variance: p.variance + variance };
+  };
   const report = scaleOffsetReport(carried.offset, true, basis);
-  return withReport(
-    { ...d, result: { ...d.result, lines } },
-    report,
-    flagged ? [scaleOffsetWarning(carried.offset, true)] : [],
-  );
+  const warnings = flagged ? [scaleOffsetWarning(carried.offset, true, plausible)] : [];
+  return withReport({ ...d, predict, result: { ...d.result, lines } }, report, warnings);
 }
+
+/**
+ * Largest common offset carried without the caller's word, cm⁻¹. An instrument's calibration is off by hundredths to
+ * tenths of a cm⁻¹ (the assignment searches ±0.5 by default); a loop that misses by more says a band is numbered or
+ * labelled wrong, and carrying that would spread the error over every band.
+ */
+const PLAUSIBLE_OFFSET = 1;
 
 /** Positions corrected by δ and the pass repeated until δ has settled to 1 % of its σ (at most MAX_PASSES). */
 function carryScaleOffset(
@@ -98,13 +118,18 @@ function withReport(d: DetailedFit, scaleOffset: ScaleOffsetReport, warnings: re
   return { ...d, result };
 }
 
-function scaleOffsetWarning(o: AbsoluteOffset, applied: boolean): Warning {
+function scaleOffsetWarning(o: AbsoluteOffset, applied: boolean, plausible: boolean): Warning {
   const z = Math.abs(o.value) / o.uncertainty;
-  const what = `the bands ${o.bands.join(', ')} fix the absolute wavenumber scale (a loop of bands, or a pure-rotation band), and their lines hold a common offset of ${o.value.toPrecision(4)} ± ${o.uncertainty.toPrecision(2)} cm-1 (${z.toFixed(1)}σ from 0): the instrument's calibration, or a shift common to every line`;
+  const what = `the bands ${o.bands.join(', ')} fix the absolute wavenumber scale (a loop of bands, or a pure-rotation band), and their lines hold a common offset of ${o.value.toPrecision(4)} ± ${o.uncertainty.toPrecision(2)} cm-1 (${z.toFixed(1)}σ from 0)`;
+  if (!plausible && !applied)
+    return {
+      code: 'SCALE_OFFSET',
+      message: `${what}: more than ${PLAUSIBLE_OFFSET} cm-1, which no calibration explains; a band is probably numbered or labelled wrong (check the loop's bands), so it was not carried (options.fitSourceOffsets true carries it)`,
+    };
   return {
     code: 'SCALE_OFFSET',
     message: applied
-      ? `${what}; it was carried in the fit, so band origins, levels and constants are free of it and their σ include its uncertainty (scaleOffset; options.fitSourceOffsets false leaves it in)`
-      : `${what}; it was not carried (options.fitSourceOffsets false), so the band origins hold it and the bands' residuals show it`,
+      ? `${what}: the instrument's calibration, or a shift common to every line; it was carried in the fit, so band origins, levels and constants are free of it and their σ include its uncertainty (scaleOffset; options.fitSourceOffsets false leaves it in)`
+      : `${what}: the instrument's calibration, or a shift common to every line; it was not carried (options.fitSourceOffsets false), so the band origins hold it and the bands' residuals show it`,
   };
 }

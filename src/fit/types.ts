@@ -88,8 +88,11 @@ export interface ScaleOffsetReport {
   readonly offset: Quantity;
   /** Whether it was carried in the fit (band origins and constants are then free of it). */
   readonly applied: boolean;
-  /** 'flagged' (beyond 3σ, carried), 'not flagged' (reported only), 'asked' / 'not asked' (fitSourceOffsets). */
-  readonly basis: 'flagged' | 'asked' | 'not flagged' | 'not asked';
+  /**
+   * 'flagged' (beyond 3σ, carried), 'not flagged' (reported only), 'too large' (beyond 3σ but over 1 cm⁻¹: a band
+   * labelled wrong, not carried), 'asked' / 'not asked' (fitSourceOffsets).
+   */
+  readonly basis: 'flagged' | 'asked' | 'not flagged' | 'not asked' | 'too large';
   /** The bands whose lines fixed it. */
   readonly bands: readonly string[];
 }

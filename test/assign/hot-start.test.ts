@@ -8,6 +8,9 @@ import { analysedHeldout } from '../helpers/heldout-analysed.js';
  * far weaker than seen and the main bands were lost to the intensity checks (413 lines left out for their intensity),
  * so no cold band was left to read the temperature from: 102 lines right, 27 wrong, 866 left (94 of 620 clear lines).
  * When fewer than half the lines are fitted, the assignment starts again from 1000 K: 982 right, none wrong.
+ * Since low-J lines of a band found through other bands are searched between the two ends of a shifted loop, the
+ * 296 K pass finds a cold band itself; the temperature is then read from it (991 ± 40 K) and the lines assigned
+ * again at that temperature: 986 fitted. Either path must end assigned again, from a temperature read within 5 %.
  */
 describe('a hot scan without its temperature, poorly assigned from 296 K (held-out seed 140)', () => {
   const { o, scan, r, s } = analysedHeldout(140);
@@ -22,9 +25,9 @@ describe('a hot scan without its temperature, poorly assigned from 296 K (held-o
     expect(s.clearRight / s.clear).toBeGreaterThanOrEqual(0.95);
   });
 
-  it('says so, with the temperature read from the intensities within 5 % of the truth (measured 1037 ± 2 K)', () => {
+  it('says so, with the temperature read from the intensities within 5 % of the truth (measured 991 ± 40 K)', () => {
     const w = r.warnings.find((x) => x.code === 'TEMPERATURE_ESTIMATED');
-    expect(w?.message).toContain('assigned again from 1000 K');
+    expect(w?.message).toMatch(/assigned again (from 1000 K|at the temperature so read)/);
     const read = Number(/give (\d+) ±/.exec(w?.message ?? '')?.[1]);
     expect(Math.abs(read - o.temperature) / o.temperature).toBeLessThan(0.05);
   });

@@ -175,3 +175,32 @@ describe('pulls of the common offset and of the 1-0 origin (independent Dunham g
         for (const x of [p.offset, p.origin]) expectCoverage(x, TRIALS);
       }, 600_000);
 });
+
+describe('a loop that misses by more than any calibration: a band numbered wrong, not an offset', () => {
+  // The real ¹²C¹⁶O 1-0, 2-1 and 2-0 lines (HITRAN2020), σ not sent, 2-1's R lines numbered one J low (R(J) sent as
+  // R(J−1)): the loop closes 1.43 ± 0.09 cm⁻¹ off (measured). Carrying that would move every band by it.
+  const input = CO_DATABASE.lines
+    .filter((l) => ['1-0', '2-1', '2-0'].includes(l.band))
+    .map((l): LineInput => {
+      const [upper, lower] = l.band.split('-').map(Number) as [number, number];
+      const j = l.band === '2-1' && l.branch === 'R' && l.j > 0 ? l.j - 1 : l.j;
+      return {
+        position: l.position,
+        assignment: { species: co.formula, band: { upper, lower }, branch: l.branch, j, source: 'given' },
+      };
+    });
+  const r = fitCo(input);
+
+  it('is reported as too large, not carried, and the warning says a band is probably numbered or labelled wrong', () => {
+    expect(Math.abs(r.scaleOffset?.offset.value as number)).toBeGreaterThan(1);
+    expect(r.scaleOffset?.basis).toBe('too large');
+    expect(r.scaleOffset?.applied).toBe(false);
+    expect(r.warnings.find((w) => w.code === 'SCALE_OFFSET')?.message).toMatch(/numbered or labelled wrong/);
+  });
+
+  it('options.fitSourceOffsets true still carries it (the caller’s word)', () => {
+    const asked = fitCo(input, { fitSourceOffsets: true });
+    expect(asked.scaleOffset?.applied).toBe(true);
+    expect(asked.scaleOffset?.basis).toBe('asked');
+  });
+});
