@@ -658,6 +658,8 @@ describe('one round: predictions and matches', () => {
       competitions: [],
       swept: false,
       banned: new Map(),
+      twinSwaps: new Set(),
+      twinPhase: false,
     };
     const { next, competitions } = matchRound(ctx, offsets, state, 0);
     expect(competitions).toEqual([]);
@@ -699,6 +701,8 @@ describe('one round: predictions and matches', () => {
       competitions: [],
       swept: false,
       banned: new Map(),
+      twinSwaps: new Set(),
+      twinPhase: false,
     };
     const first = matchRound(ctx, offsets, state, 0);
     expect(stillProposed(first.proposed, state)).toBe(true);
