@@ -103,6 +103,11 @@ export interface AssignResult {
   readonly bands: readonly BandSummary[];
   readonly unexplained: readonly number[];
   readonly warnings: readonly Warning[];
+  /**
+   * Whether two isotopologues predict the same transitions within TWIN_SPLIT_LIMIT of each other (H79Br/H81Br,
+   * H35Cl/H37Cl; not 13C16O/12C18O, 5 cm⁻¹ apart), so that lone twins may be judged (withTwinsJudged).
+   */
+  readonly twinPairs?: boolean;
 }
 
 type BandOf = { readonly species: string; readonly band: { readonly upper: number; readonly lower: number } };
@@ -181,8 +186,8 @@ export function assignAndFit(
 }
 
 /**
- * Molecules whose isotopologues' lines come in close pairs (H⁷⁹Br/H⁸¹Br 0.4–1.1 cm⁻¹ apart, H³⁵Cl/H³⁷Cl 2 cm⁻¹): the
- * lines assigned once more with the rounds judging lone twins (lone-twins.ts), kept when that fits more lines. Not
+ * Molecules whose isotopologues' lines come in close pairs (H⁷⁹Br/H⁸¹Br 0.4–1.1 cm⁻¹ apart, H³⁵Cl/H³⁷Cl 2 cm⁻¹;
+ * AssignResult.twinPairs): the lines assigned once more with the rounds judging lone twins (lone-twins.ts), kept when that fits more lines. Not
  * made the only way: judged from the first round, lines held with a wrong J sit in the doublets of other transitions,
  * and relabelling their isotopologue sent one scan elsewhere (held-out seed 32: 632 of 752 clear lines right → 310);
  * judged only once the rounds had settled, the swapped lines of a band the other isotopologue had taken whole were too
@@ -196,19 +201,10 @@ function withTwinsJudged(
   options: AssignOptions,
 ): { plain: AssignResult; options: AssignOptions } {
   const plain = assignOnce(peaks, species, masses, { ...options, crossSources: false });
-  if (!hasTwins(species, masses)) return { plain, options };
+  if (!plain.twinPairs) return { plain, options };
   const judging = { ...options, judgeTwins: true };
   const judged = orUndefined(() => assignOnce(peaks, species, masses, { ...judging, crossSources: false }));
   return judged && fittingMore(judged, plain) === judged ? { plain: judged, options: judging } : { plain, options };
-}
-
-/** Whether two of the isotopologues' reduced masses differ by under 2 % (|ρ − 1| < BORROW_MAX_RHO). */
-function hasTwins(species: readonly { iso: Isotopologue }[], masses: ReadonlyMap<string, MassValue>): boolean {
-  const mu = species.flatMap((s) => {
-    const m = masses.get(s.iso.formula)?.value;
-    return m === undefined ? [] : [m];
-  });
-  return mu.some((a, i) => mu.some((b, k) => k > i && Math.abs(Math.sqrt(a / b) - 1) < BORROW_MAX_RHO));
 }
 
 /** "species|v′-v″|branch|J″" of a candidate or transition. */
@@ -429,10 +425,11 @@ function assignOnce(
   }
   withholdAmbiguous(ctx, offsets, state);
   noteCompetitions(ctx, state);
-  if (!alignment) return finishAssignment(ctx, state.auto, offsets);
+  const twinPairs = twinsOf(ctx).size > 0;
+  if (!alignment) return { ...finishAssignment(ctx, state.auto, offsets), twinPairs };
   // The lines as sent for the final fit (its own source offsets take the instruments' difference up again), and the
   // offsets on their scale for what is reported with them.
-  return finishAssignment(withPeaks(ctx, peaks), state.auto, unalignedVotes(offsets, alignment));
+  return { ...finishAssignment(withPeaks(ctx, peaks), state.auto, unalignedVotes(offsets, alignment)), twinPairs };
 }
 
 /** The context of an aligned assignment with the peaks as sent: the same candidates, the lines' own positions. */
