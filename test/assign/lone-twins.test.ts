@@ -1,4 +1,5 @@
 import { describe, expect, it } from 'vitest';
+import type { AnalyseOptions } from '../../src/assign/analyse.js';
 import type { CandidateLine } from '../../src/assign/candidates.js';
 import { resolveLoneTwins, type TwinContext, twinCandidates } from '../../src/assign/lone-twins.js';
 import type { ObservedPeak } from '../../src/assign/match.js';
@@ -103,31 +104,55 @@ describe('the lone-twin test itself', () => {
   });
 });
 
-describe('guards: scans the twin judgement must not send elsewhere', () => {
-  // Judged from the first round in every assignment (not as a second attempt kept when it fits more), the swaps sent
-  // these elsewhere: seed 98 213 → 197 of 214 clear lines, seed 55 106 → 93 with 7 wrong (and seed 32, too slow for
-  // this suite: 632 → 310 of 752; 652 measured now).
-  it('HBr 2-0/3-0 at 993 K sent without a temperature, σ sent (held-out seed 98): measured 213 of 214, none wrong', () => {
-    const { s } = analysedHeldout(98);
-    expect(s.wrong, s.misses.slice(0, 8).join('; ')).toBe(0);
-    expect(s.clearRight / s.clear).toBeGreaterThanOrEqual(0.97);
-  });
+/** A held-out scan's bars: most wrong lines, least share of clear lines right. */
+interface Guard {
+  readonly title: string;
+  readonly seed: number;
+  readonly options: AnalyseOptions;
+  readonly wrong: number;
+  readonly clearShare: number;
+}
 
-  it('HBr 3-0 at 349 K, one instrument (held-out seed 55): measured 106 of 106, none wrong', () => {
-    const { s } = analysedHeldout(55, { temperature: 349 });
-    expect(s.wrong, s.misses.slice(0, 8).join('; ')).toBe(0);
-    expect(s.clearRight / s.clear).toBeGreaterThanOrEqual(0.97);
-  });
+// Judged from the first round in every assignment (not as a second attempt kept when it fits more), the swaps sent
+// seeds 98 and 55 elsewhere: 213 → 197 of 214 clear lines, 106 → 93 with 7 wrong (and seed 32, too slow for this
+// suite: 632 → 310 of 752; 652 measured now).
+const GUARDS: readonly Guard[] = [
+  {
+    title: 'HBr 2-0/3-0 at 993 K sent without a temperature, σ sent (seed 98): measured 213 of 214, none wrong',
+    seed: 98,
+    options: {},
+    wrong: 0,
+    clearShare: 0.97,
+  },
+  {
+    title: 'HBr 3-0 at 349 K, one instrument (seed 55): measured 106 of 106, none wrong',
+    seed: 55,
+    options: { temperature: 349 },
+    wrong: 0,
+    clearShare: 0.97,
+  },
+  {
+    title:
+      'HBr 2-0/3-0 at 438 K, two instruments in windows (seed 126): before 94 of 107, 5 wrong; measured 107, 1 wrong',
+    seed: 126,
+    options: {},
+    wrong: 2,
+    clearShare: 0.97,
+  },
+  {
+    title: 'HBr 2-0/3-0 at 1437 K, one instrument (seed 1): before 228 of 276, 14 wrong; measured 273, none wrong',
+    seed: 1,
+    options: { temperature: 1437 },
+    wrong: 2,
+    clearShare: 0.95,
+  },
+];
 
-  it('HBr 2-0/3-0 at 438 K, two instruments in windows (held-out seed 126): before 94 of 107, 5 wrong; measured 107, 1 wrong', () => {
-    const { s } = analysedHeldout(126);
-    expect(s.wrong, s.misses.slice(0, 8).join('; ')).toBeLessThanOrEqual(2);
-    expect(s.clearRight / s.clear).toBeGreaterThanOrEqual(0.97);
-  });
-
-  it('HBr 2-0/3-0 at 1437 K, one instrument (held-out seed 1): before 228 of 276, 14 wrong; measured 273, none wrong', () => {
-    const { s } = analysedHeldout(1, { temperature: 1437 });
-    expect(s.wrong, s.misses.slice(0, 8).join('; ')).toBeLessThanOrEqual(2);
-    expect(s.clearRight / s.clear).toBeGreaterThanOrEqual(0.95);
-  });
+describe('held-out scans the twin judgement must help or leave alone', () => {
+  for (const g of GUARDS)
+    it(g.title, () => {
+      const { s } = analysedHeldout(g.seed, g.options);
+      expect(s.wrong, s.misses.slice(0, 8).join('; ')).toBeLessThanOrEqual(g.wrong);
+      expect(s.clearRight / s.clear).toBeGreaterThanOrEqual(g.clearShare);
+    });
 });
