@@ -8,6 +8,7 @@ import {
   type LineInput,
   type Warning,
 } from '../fit/fit-lines.js';
+import { rememberingSolves } from '../linalg/solve-memo.js';
 import type { Band } from '../models/transitions.js';
 import { constantsFor } from '../species/library.js';
 import { elementsOnly, enrichedAtomsOnly, type Isotopologue, parseSpecies } from '../species/parse.js';
@@ -172,6 +173,15 @@ export function analyseLineList(
   sent: readonly PeakInput[],
   declared: Isotopologue | undefined,
   options: AnalyseOptions = {},
+): Analysis {
+  // The assignment's starts and rounds fit the same lines again and again: each distinct solve is made once.
+  return rememberingSolves(() => analyseWithoutMemo(sent, declared, options));
+}
+
+function analyseWithoutMemo(
+  sent: readonly PeakInput[],
+  declared: Isotopologue | undefined,
+  options: AnalyseOptions,
 ): Analysis {
   const masses = givenMasses(sent);
   if (sent.every((p) => p.assignment)) return fitAsGiven(sent, masses, options);

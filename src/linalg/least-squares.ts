@@ -14,6 +14,7 @@
  */
 
 import { copyFloats, copyInts, floats, ints } from './small-arrays.js';
+import { remembered, worthRemembering } from './solve-memo.js';
 
 export interface LeastSquaresInput {
   /** Number of observations. */
@@ -92,10 +93,74 @@ function sizeOf(design: Float64Array | Columns, n: number): number {
 
 const EPS = 2.220446049250313e-16;
 
-/** Solves since the process started: read by `npm run bench` to price a whole fit in solves. */
+/**
+ * Factorisations since the process started (a solve answered from a `rememberingSolves` scope's memo is not one):
+ * read by `npm run bench` to price a whole fit in solves.
+ */
 export const solveCount = { value: 0 };
 
 export function solveLeastSquares(input: LeastSquaresInput): LeastSquaresResult {
+  const { rows: n, cols: p } = input;
+  if (!worthRemembering(n, p)) return solvePlain(input);
+  const design = columnsOf(input.design, n, p);
+  const arrays = [...design, input.observations, ...(input.weights ? [input.weights] : [])];
+  return handOut(
+    remembered({ tag: `plain ${optionsTag(input)}`, arrays }, (own) =>
+      keepingLater(
+        solvePlain({
+          ...input,
+          design: own.slice(0, p) as Float64Array[],
+          observations: own[p] as Float64Array,
+          ...(input.weights ? { weights: own[p + 1] as Float64Array } : {}),
+        }),
+      ),
+    ),
+  );
+}
+
+/** The sizes and options of a solve, as the memo tells solves apart. */
+function optionsTag(input: Omit<LeastSquaresInput, 'design'>): string {
+  const { rows, cols, weights, leverage, rankTolerance, conditionNumber } = input;
+  return `${rows} ${cols} ${weights ? 'w' : '-'} ${leverage === true} ${rankTolerance ?? '-'} ${conditionNumber !== false}`;
+}
+
+/** A remembered result with its later leverages and condition number computed once, for every caller. */
+function keepingLater(r: LeastSquaresResult): LeastSquaresResult {
+  const later = r.later;
+  if (!later) return r;
+  let leverages: Float64Array | undefined;
+  let conditionNumber: number | undefined;
+  return {
+    ...r,
+    later: {
+      leverages: () => {
+        leverages ??= later.leverages();
+        return leverages;
+      },
+      conditionNumber: () => {
+        conditionNumber ??= later.conditionNumber();
+        return conditionNumber;
+      },
+    },
+  };
+}
+
+/** A remembered result as one caller gets it: its own copies of every array (no caller sees another's changes). */
+function handOut(r: LeastSquaresResult): LeastSquaresResult {
+  const later = r.later;
+  return {
+    ...r,
+    coefficients: copyFloats(r.coefficients),
+    covariance: copyFloats(r.covariance),
+    residuals: copyFloats(r.residuals),
+    ...(r.leverages ? { leverages: copyFloats(r.leverages) } : {}),
+    ...(later
+      ? { later: { leverages: () => copyFloats(later.leverages()), conditionNumber: () => later.conditionNumber() } }
+      : {}),
+  };
+}
+
+function solvePlain(input: LeastSquaresInput): LeastSquaresResult {
   solveCount.value++;
   const { rows: n, cols: p, observations, weights } = input;
   const size = sizeOf(input.design, n);
@@ -121,13 +186,33 @@ export function mergesRows(n: number, p: number, distinct: number): boolean {
  * `solveLeastSquares` would. Same answers as `solveLeastSquares` on the full design when the groups are exactly
  * its identical rows.
  */
-export function solveGroupedLeastSquares(
-  input: Omit<LeastSquaresInput, 'design'> & {
-    readonly distinct: Float64Array | Columns;
-    readonly group: Int32Array;
-    readonly count: number;
-  },
-): LeastSquaresResult {
+export function solveGroupedLeastSquares(input: GroupedInput): LeastSquaresResult {
+  const { rows: n, cols: p, count: m } = input;
+  if (!worthRemembering(n, p)) return solveGrouped(input);
+  const distinct = columnsOf(input.distinct, m, p);
+  const arrays = [...distinct, input.group, input.observations, ...(input.weights ? [input.weights] : [])];
+  return handOut(
+    remembered({ tag: `grouped ${m} ${optionsTag(input)}`, arrays }, (own) =>
+      keepingLater(
+        solveGrouped({
+          ...input,
+          distinct: own.slice(0, p) as Float64Array[],
+          group: own[p] as Int32Array,
+          observations: own[p + 1] as Float64Array,
+          ...(input.weights ? { weights: own[p + 2] as Float64Array } : {}),
+        }),
+      ),
+    ),
+  );
+}
+
+type GroupedInput = Omit<LeastSquaresInput, 'design'> & {
+  readonly distinct: Float64Array | Columns;
+  readonly group: Int32Array;
+  readonly count: number;
+};
+
+function solveGrouped(input: GroupedInput): LeastSquaresResult {
   const { rows: n, cols: p, group, count: m, observations, weights } = input;
   if (sizeOf(input.distinct, m) !== m * p || group.length !== n || observations.length !== n) {
     throw new RangeError(`least squares: inconsistent sizes (rows ${n}, cols ${p}, distinct rows ${m})`);
@@ -139,7 +224,7 @@ export function solveGroupedLeastSquares(
       for (let i = 0; i < n; i++) full[i] = c[group[i] as number] as number;
       return full;
     });
-    return solveLeastSquares({ ...input, design });
+    return solvePlain({ ...input, design });
   }
   solveCount.value++;
   if (n < p) throw new RangeError(`least squares: ${n} observations cannot determine ${p} parameters`);
