@@ -57,3 +57,40 @@ describe('scaleOffset through the service', () => {
     expect(got.offset.value).toBe((rest.json.scaleOffset as { offset: { value: number } }).offset.value);
   });
 });
+
+describe('a loop that misses by more than any calibration, through the service', () => {
+  // The same real lines, not shifted, σ not sent, 2-1's R lines numbered one J low (R(J) sent as R(J−1)): the loop
+  // closes about 1.4 cm⁻¹ off (test/fit/scale-offset.test.ts), which no calibration explains.
+  const misnumbered = {
+    species: 'CO',
+    lines: CO_DATABASE.lines
+      .filter((l) => ['1-0', '2-1', '2-0'].includes(l.band))
+      .map((l) => ({
+        position: l.position,
+        assignment: {
+          band: l.band,
+          branch: l.branch,
+          j: l.band === '2-1' && l.branch === 'R' && l.j > 0 ? l.j - 1 : l.j,
+        },
+      })),
+  };
+
+  it('POST /v1/fits and GraphQL report it as too large, not carried, and say a band is numbered or labelled wrong', async () => {
+    const { status, json } = await post('/v1/fits', misnumbered);
+    expect(status).toBe(200);
+    const s = json.scaleOffset as { offset: { value: number }; applied: boolean; basis: string };
+    expect(s.basis).toBe('too large');
+    expect(s.applied).toBe(false);
+    expect(Math.abs(s.offset.value)).toBeGreaterThan(1);
+    const warning = (json.warnings as { code: string; message: string }[]).find((w) => w.code === 'SCALE_OFFSET');
+    expect(warning?.message).toMatch(/numbered or labelled wrong/);
+    const query = 'query($i: FitInput!){ fit(input: $i){ scaleOffset { offset { value } applied basis } } }';
+    const gql = await post('/graphql', { query, variables: { i: misnumbered } });
+    expect(gql.status).toBe(200);
+    expect(gql.json.errors).toBeUndefined();
+    const got = (
+      gql.json.data as { fit: { scaleOffset: { offset: { value: number }; applied: boolean; basis: string } } }
+    ).fit.scaleOffset;
+    expect(got).toEqual({ offset: { value: s.offset.value }, applied: false, basis: 'too large' });
+  });
+});
