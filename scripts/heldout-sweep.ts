@@ -37,6 +37,8 @@ function add(key: string, s: ScanScore | undefined): void {
 }
 
 let cpu = 0;
+/** CPU seconds of each scan, for the slowest listed at the end. */
+const slowest: { seed: number; cls: string; seconds: number }[] = [];
 for (let seed = first; seed < first + n; seed++) {
   const o = sweepOptions(seed);
   const scan = heldoutScan(o);
@@ -53,6 +55,7 @@ for (let seed = first; seed < first + n; seed++) {
   }
   const dt = process.cpuUsage(t0);
   cpu += (dt.user + dt.system) / 1e6;
+  slowest.push({ seed, cls, seconds: (dt.user + dt.system) / 1e6 });
   if (perSeed)
     console.log(
       `ROW ${seed} ${s ? `${s.right} ${s.wrong} ${s.left} ${s.clear} ${s.clearRight} ${s.spurious} ${s.spuriousTaken}` : 'fail'}`,
@@ -95,4 +98,11 @@ for (const [k, zs] of Object.entries(pulls)) {
   );
 }
 console.log(`CPU ${cpu.toFixed(1)} s for ${n} scans`);
+slowest.sort((a, b) => b.seconds - a.seconds);
+console.log(
+  `slowest: ${slowest
+    .slice(0, 8)
+    .map((x) => `seed ${x.seed} (${x.cls}) ${x.seconds.toFixed(1)} s`)
+    .join(', ')}`,
+);
 console.log(bad.join('\n'));

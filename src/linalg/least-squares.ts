@@ -466,6 +466,7 @@ function householderStep(
     for (; j < p; j++) reflectSparse(a, j * n, a, off, support, n, k, beta);
     reflectSparse(b, 0, a, off, support, n, k, beta);
   } else {
+    for (; j + 3 < p; j += 4) reflectFour(a, j * n, off, n, k, beta);
     for (; j + 1 < p; j += 2) reflectPair(a, j * n, (j + 1) * n, off, n, k, beta);
     if (j < p) reflect(a, j * n, a, off, n, k, beta);
     reflect(b, 0, a, off, n, k, beta);
@@ -583,6 +584,73 @@ function reflectPair(a: Float64Array, oy: number, oz: number, ov: number, n: num
     const v = a[ov + t] as number;
     a[oy + t] = (a[oy + t] as number) + f * v;
     a[oz + t] = (a[oz + t] as number) + g * v;
+  }
+}
+
+/**
+ * `reflect` on the four consecutive columns of `a` starting at oy (each n long), reflector at ov: each column's sums
+ * and updates are those `reflect` makes, in the same order, so the same bits; the reflector is read once for four.
+ */
+function reflectFour(a: Float64Array, oy: number, ov: number, n: number, k: number, beta: number) {
+  const o1 = oy + n;
+  const o2 = o1 + n;
+  const o3 = o2 + n;
+  let a0 = 0;
+  let a1 = 0;
+  let a2 = 0;
+  let a3 = 0;
+  let b0 = 0;
+  let b1 = 0;
+  let b2 = 0;
+  let b3 = 0;
+  let c0 = 0;
+  let c1 = 0;
+  let c2 = 0;
+  let c3 = 0;
+  let d0 = 0;
+  let d1 = 0;
+  let d2 = 0;
+  let d3 = 0;
+  let i = k;
+  for (; i + 3 < n; i += 4) {
+    const v0 = a[ov + i] as number;
+    const v1 = a[ov + i + 1] as number;
+    const v2 = a[ov + i + 2] as number;
+    const v3 = a[ov + i + 3] as number;
+    a0 += v0 * (a[oy + i] as number);
+    a1 += v1 * (a[oy + i + 1] as number);
+    a2 += v2 * (a[oy + i + 2] as number);
+    a3 += v3 * (a[oy + i + 3] as number);
+    b0 += v0 * (a[o1 + i] as number);
+    b1 += v1 * (a[o1 + i + 1] as number);
+    b2 += v2 * (a[o1 + i + 2] as number);
+    b3 += v3 * (a[o1 + i + 3] as number);
+    c0 += v0 * (a[o2 + i] as number);
+    c1 += v1 * (a[o2 + i + 1] as number);
+    c2 += v2 * (a[o2 + i + 2] as number);
+    c3 += v3 * (a[o2 + i + 3] as number);
+    d0 += v0 * (a[o3 + i] as number);
+    d1 += v1 * (a[o3 + i + 1] as number);
+    d2 += v2 * (a[o3 + i + 2] as number);
+    d3 += v3 * (a[o3 + i + 3] as number);
+  }
+  for (; i < n; i++) {
+    const v = a[ov + i] as number;
+    a0 += v * (a[oy + i] as number);
+    b0 += v * (a[o1 + i] as number);
+    c0 += v * (a[o2 + i] as number);
+    d0 += v * (a[o3 + i] as number);
+  }
+  const fa = -(a0 + a1 + a2 + a3) * beta;
+  const fb = -(b0 + b1 + b2 + b3) * beta;
+  const fc = -(c0 + c1 + c2 + c3) * beta;
+  const fd = -(d0 + d1 + d2 + d3) * beta;
+  for (let t = k; t < n; t++) {
+    const v = a[ov + t] as number;
+    a[oy + t] = (a[oy + t] as number) + fa * v;
+    a[o1 + t] = (a[o1 + t] as number) + fb * v;
+    a[o2 + t] = (a[o2 + t] as number) + fc * v;
+    a[o3 + t] = (a[o3 + t] as number) + fd * v;
   }
 }
 
