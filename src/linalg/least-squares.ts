@@ -592,6 +592,25 @@ function reflectPair(a: Float64Array, oy: number, oz: number, ov: number, n: num
  * and updates are those `reflect` makes, in the same order, so the same bits; the reflector is read once for four.
  */
 function reflectFour(a: Float64Array, oy: number, ov: number, n: number, k: number, beta: number) {
+  const dots = fourDots(a, oy, ov, n, k);
+  const fa = -(dots[0] as number) * beta;
+  const fb = -(dots[1] as number) * beta;
+  const fc = -(dots[2] as number) * beta;
+  const fd = -(dots[3] as number) * beta;
+  const o1 = oy + n;
+  const o2 = o1 + n;
+  const o3 = o2 + n;
+  for (let t = k; t < n; t++) {
+    const v = a[ov + t] as number;
+    a[oy + t] = (a[oy + t] as number) + fa * v;
+    a[o1 + t] = (a[o1 + t] as number) + fb * v;
+    a[o2 + t] = (a[o2 + t] as number) + fc * v;
+    a[o3 + t] = (a[o3 + t] as number) + fd * v;
+  }
+}
+
+/** The reflector's dot products with four consecutive columns, each summed as `reflect` sums it (a shared scratch). */
+function fourDots(a: Float64Array, oy: number, ov: number, n: number, k: number): Float64Array {
   const o1 = oy + n;
   const o2 = o1 + n;
   const o3 = o2 + n;
@@ -641,18 +660,13 @@ function reflectFour(a: Float64Array, oy: number, ov: number, n: number, k: numb
     c0 += v * (a[o2 + i] as number);
     d0 += v * (a[o3 + i] as number);
   }
-  const fa = -(a0 + a1 + a2 + a3) * beta;
-  const fb = -(b0 + b1 + b2 + b3) * beta;
-  const fc = -(c0 + c1 + c2 + c3) * beta;
-  const fd = -(d0 + d1 + d2 + d3) * beta;
-  for (let t = k; t < n; t++) {
-    const v = a[ov + t] as number;
-    a[oy + t] = (a[oy + t] as number) + fa * v;
-    a[o1 + t] = (a[o1 + t] as number) + fb * v;
-    a[o2 + t] = (a[o2 + t] as number) + fc * v;
-    a[o3 + t] = (a[o3 + t] as number) + fd * v;
-  }
+  dotScratch[0] = a0 + a1 + a2 + a3;
+  dotScratch[1] = b0 + b1 + b2 + b3;
+  dotScratch[2] = c0 + c1 + c2 + c3;
+  dotScratch[3] = d0 + d1 + d2 + d3;
+  return dotScratch;
 }
+const dotScratch = new Float64Array(4);
 
 /** y[oy + i] −= β (v·y) v[ov + i] for i ≥ k: one reflector applied to one column (four accumulators in the dot). */
 function reflect(y: Float64Array, oy: number, v: Float64Array, ov: number, n: number, k: number, beta: number) {
