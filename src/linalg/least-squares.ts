@@ -467,8 +467,7 @@ function householderStep(
     reflectSparse(b, 0, a, off, support, n, k, beta);
   } else {
     for (; j + 3 < p; j += 4) reflectFour(a, j * n, off, n, k, beta);
-    for (; j + 1 < p; j += 2) reflectPair(a, j * n, (j + 1) * n, off, n, k, beta);
-    if (j < p) reflect(a, j * n, a, off, n, k, beta);
+    for (; j < p; j++) reflect(a, j * n, a, off, n, k, beta);
     reflect(b, 0, a, off, n, k, beta);
   }
   for (j = k + 1; j < p; j++) downdateNorm(a, n, k, j, colNorm, colNormRef);
@@ -543,47 +542,6 @@ function downdateNorm(
     } else {
       colNorm[j] = cn * Math.sqrt(t);
     }
-  }
-}
-
-/**
- * `reflect` on two columns of `a` at once (at oy and oz, reflector at ov): each column's sums and updates are those
- * `reflect` makes, in the same order, so the same bits; the reflector is read once for both.
- */
-function reflectPair(a: Float64Array, oy: number, oz: number, ov: number, n: number, k: number, beta: number) {
-  let s0 = 0;
-  let s1 = 0;
-  let s2 = 0;
-  let s3 = 0;
-  let t0 = 0;
-  let t1 = 0;
-  let t2 = 0;
-  let t3 = 0;
-  let i = k;
-  for (; i + 3 < n; i += 4) {
-    const v0 = a[ov + i] as number;
-    const v1 = a[ov + i + 1] as number;
-    const v2 = a[ov + i + 2] as number;
-    const v3 = a[ov + i + 3] as number;
-    s0 += v0 * (a[oy + i] as number);
-    s1 += v1 * (a[oy + i + 1] as number);
-    s2 += v2 * (a[oy + i + 2] as number);
-    s3 += v3 * (a[oy + i + 3] as number);
-    t0 += v0 * (a[oz + i] as number);
-    t1 += v1 * (a[oz + i + 1] as number);
-    t2 += v2 * (a[oz + i + 2] as number);
-    t3 += v3 * (a[oz + i + 3] as number);
-  }
-  for (; i < n; i++) {
-    s0 += (a[ov + i] as number) * (a[oy + i] as number);
-    t0 += (a[ov + i] as number) * (a[oz + i] as number);
-  }
-  const f = -(s0 + s1 + s2 + s3) * beta;
-  const g = -(t0 + t1 + t2 + t3) * beta;
-  for (let t = k; t < n; t++) {
-    const v = a[ov + t] as number;
-    a[oy + t] = (a[oy + t] as number) + f * v;
-    a[oz + t] = (a[oz + t] as number) + g * v;
   }
 }
 
