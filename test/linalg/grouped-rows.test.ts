@@ -1,11 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import {
-  type LeastSquaresResult,
-  mergesRows,
-  solveGroupedLeastSquares,
-  solveLeastSquares,
-} from '../../src/linalg/least-squares.js';
+import { mergesRows, solveGroupedLeastSquares, solveLeastSquares } from '../../src/linalg/least-squares.js';
 import { seededRandom } from '../helpers/random.js';
+import { solveBits as bits } from '../helpers/solve-bits.js';
 
 // A caller that knows which rows are identical (the fit: lines of the same transition) hands the kernel the
 // distinct rows and each row's group. That must give, bit for bit, what the kernel gives on the full design, where
@@ -34,18 +30,6 @@ function system(
   for (let j = 0; j < cols; j++)
     for (let i = 0; i < rows; i++) design[j * rows + i] = rowsOfGroup[j * distinct + (group[i] as number)] as number;
   return { rows, cols, distinct: rowsOfGroup, count: distinct, group, design, y, w };
-}
-
-function bits(r: LeastSquaresResult) {
-  return {
-    rank: r.rank,
-    coefficients: Array.from(r.coefficients),
-    covariance: Array.from(r.covariance),
-    residuals: Array.from(r.residuals),
-    chiSquare: r.chiSquare,
-    leverages: r.leverages ? Array.from(r.leverages) : undefined,
-    conditionNumber: r.conditionNumber,
-  };
 }
 
 describe('solveGroupedLeastSquares', () => {

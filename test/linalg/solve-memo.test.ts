@@ -7,6 +7,9 @@ import {
 } from '../../src/linalg/least-squares.js';
 import { rememberingSolves } from '../../src/linalg/solve-memo.js';
 import { seededRandom } from '../helpers/random.js';
+import { solveBits } from '../helpers/solve-bits.js';
+
+const bits = (r: LeastSquaresResult) => solveBits(r, { later: true });
 
 // A solve asked again inside rememberingSolves is answered from the first one. The answer must be the one a new
 // factorisation gives, bit for bit; each caller must own its arrays; the factors kept for later must not read a
@@ -39,19 +42,6 @@ function levelLikeSystem(rows: number, seed: number) {
     y[i] = 2000 + 4 * x * 1e-3 + 0.01 * (u() - 0.5);
   }
   return { rows, cols, design, y, w };
-}
-
-function bits(r: LeastSquaresResult) {
-  return {
-    rank: r.rank,
-    coefficients: Array.from(r.coefficients),
-    covariance: Array.from(r.covariance),
-    residuals: Array.from(r.residuals),
-    chiSquare: r.chiSquare,
-    leverages: r.leverages ? Array.from(r.leverages) : undefined,
-    later: r.later ? { leverages: Array.from(r.later.leverages()), condition: r.later.conditionNumber() } : undefined,
-    conditionNumber: r.conditionNumber,
-  };
 }
 
 describe('solves remembered within one call', () => {
