@@ -17,6 +17,7 @@
  */
 
 import type { Columns } from './least-squares.js';
+import { floats, ints } from './small-arrays.js';
 
 /** The reduced system: rows √W-weighted with columns scaled by `scale` (each original column's weighted norm). */
 export interface ReducedRows {
@@ -60,7 +61,7 @@ export function reduceBySupport(
   if (n * p * p < LEAST_WORK || n < 2 * p) return undefined;
   const sets = supportSets(n, p, design, rowOf);
   if (!sets || !halvesTheWork(sets, n, p)) return undefined;
-  const sw = new Float64Array(n);
+  const sw = weightScratch(n);
   for (let i = 0; i < n; i++) sw[i] = weights ? Math.sqrt(weights[i] as number) : 1;
   const scale = weightedNorms(sets, p, design, rowOf, sw);
   const rows = reducedRowCount(sets);
@@ -105,19 +106,8 @@ function reducedRowCount(sets: SupportSets): number {
  * undefined on more sets than n / 4 (nothing to gain) or on two patterns with one hash.
  */
 function supportSets(n: number, p: number, design: Columns, rowOf: Int32Array | undefined): SupportSets | undefined {
-  const hash = new Int32Array(n);
-  const width = new Int32Array(n);
-  for (let j = 0; j < p; j++) {
-    const c = design[j] as Float64Array;
-    const mark = Math.imul(j + 1, 0x9e3779b1);
-    // Without branches: the pattern decides the hash, whichever entries are zero.
-    for (let i = 0; i < n; i++) {
-      const nz = +((rowOf ? c[rowOf[i] as number] : c[i]) !== 0);
-      hash[i] = Math.imul((hash[i] as number) ^ (mark & -nz), 0x01000193);
-      width[i] = (width[i] as number) + nz;
-    }
-  }
-  const set = new Int32Array(n);
+  const { hash, width } = supportHashes(n, p, design, rowOf);
+  const set = scratchInts(2, n);
   const first: number[] = [];
   const byHash = new Map<number, number>();
   for (let i = 0; i < n; i++) {
@@ -132,6 +122,32 @@ function supportSets(n: number, p: number, design: Columns, rowOf: Int32Array | 
   }
   const sets = setsOf(set, first, p, design, rowOf);
   return sameSupports(sets, design, rowOf, width) ? sets : undefined;
+}
+
+/**
+ * Each row's hash of its non-zero columns' numbers and their count. With a branch: on a level model's rows (about a
+ * tenth of the entries non-zero) it took 0.2 ms for 2 300 × 86 entries, the branch-free loop 0.5 ms.
+ */
+function supportHashes(n: number, p: number, design: Columns, rowOf: Int32Array | undefined) {
+  const hash = scratchInts(0, n);
+  const width = scratchInts(1, n);
+  for (let j = 0; j < p; j++) {
+    const c = design[j] as Float64Array;
+    const mark = Math.imul(j + 1, 0x9e3779b1);
+    if (rowOf) {
+      for (let i = 0; i < n; i++)
+        if (c[rowOf[i] as number] !== 0) {
+          hash[i] = Math.imul((hash[i] as number) ^ mark, 0x01000193);
+          width[i] = (width[i] as number) + 1;
+        }
+    } else
+      for (let i = 0; i < n; i++)
+        if (c[i] !== 0) {
+          hash[i] = Math.imul((hash[i] as number) ^ mark, 0x01000193);
+          width[i] = (width[i] as number) + 1;
+        }
+  }
+  return { hash, width };
 }
 
 /** Whether each row's non-zero columns are exactly its set's: all of them non-zero, and as many as the row has. */
@@ -158,17 +174,17 @@ function setsOf(
   rowOf: Int32Array | undefined,
 ): SupportSets {
   const count = first.length;
-  const start = new Int32Array(count + 1);
+  const start = ints(count + 1);
   for (const g of set) start[g + 1] = (start[g + 1] as number) + 1;
   for (let g = 0; g < count; g++) start[g + 1] = (start[g + 1] as number) + (start[g] as number);
   const fill = start.slice(0, count);
-  const rowsOf = new Int32Array(set.length);
+  const rowsOf = scratchInts(3, set.length);
   for (let i = 0; i < set.length; i++) {
     const g = set[i] as number;
     rowsOf[fill[g] as number] = i;
     fill[g] = (fill[g] as number) + 1;
   }
-  const colStart = new Int32Array(count + 1);
+  const colStart = ints(count + 1);
   const columns: number[] = [];
   for (let g = 0; g < count; g++) {
     const r = rowOf ? (rowOf[first[g] as number] as number) : (first[g] as number);
@@ -186,7 +202,7 @@ function weightedNorms(
   rowOf: Int32Array | undefined,
   sw: Float64Array,
 ): Float64Array {
-  const ss = new Float64Array(p);
+  const ss = floats(p);
   for (let g = 0; g < sets.count; g++) {
     const r0 = sets.start[g] as number;
     const r1 = sets.start[g + 1] as number;
@@ -202,7 +218,7 @@ function weightedNorms(
       ss[j] = sum;
     }
   }
-  const scale = new Float64Array(p);
+  const scale = floats(p);
   for (let j = 0; j < p; j++) scale[j] = (ss[j] as number) > 0 ? Math.sqrt(ss[j] as number) : 1;
   return scale;
 }
@@ -299,7 +315,23 @@ function triangulate(a: Float64Array, rows: number, w: number, k: number): void 
   }
 }
 
+/** Four zeroed integer scratch arrays of length n (grow-only, reused by every call: the kernel is never re-entered). */
+const intPools: Int32Array[] = [0, 1, 2, 3].map(() => new Int32Array(0));
+function scratchInts(k: 0 | 1 | 2 | 3, n: number): Int32Array {
+  let pool = intPools[k] as Int32Array;
+  if (pool.length < n) {
+    pool = new Int32Array(Math.max(n, Math.ceil(pool.length * 1.5)));
+    intPools[k] = pool;
+  }
+  return pool.subarray(0, n).fill(0);
+}
+
 /** Grow-only buffers (the kernel is synchronous and never re-entered): the reduced system, and one set's block. */
+let weightPool = new Float64Array(0);
+function weightScratch(n: number): Float64Array {
+  if (weightPool.length < n) weightPool = new Float64Array(Math.max(n, Math.ceil(weightPool.length * 1.5)));
+  return weightPool.subarray(0, n);
+}
 let reducedPool = new Float64Array(0);
 let blockPool = new Float64Array(0);
 function buffer(length: number): Float64Array {
