@@ -180,7 +180,16 @@ const completions = new WeakMap<SolvedModel, NonNullable<LeastSquaresResult['lat
 export function withLeverages(fit: SolvedModel): SolvedModel | undefined {
   const later = completions.get(fit);
   if (!later) return undefined;
-  return { ...fit, leverages: later.leverages(), conditionNumber: later.conditionNumber() };
+  // The condition number (one-sided Jacobi sweeps over R, a third of a large level solve) is computed when first
+  // read: every outlier round selects a model, and only the last selection's condition number is reported.
+  let kappa: number | undefined;
+  return Object.defineProperty({ ...fit, leverages: later.leverages() }, 'conditionNumber', {
+    enumerable: true,
+    get: () => {
+      kappa ??= later.conditionNumber();
+      return kappa;
+    },
+  });
 }
 
 export function isRankDeficient(x: SolvedModel | RankDeficiency): x is RankDeficiency {

@@ -652,7 +652,8 @@ function statisticsOf(
   rejected: number,
   mode: UncertaintyMode,
 ): Statistics {
-  return {
+  // The condition number read when the statistics are (the fits of assignment rounds are never reported).
+  const statistics = {
     lines,
     assigned,
     fitted: selected.observations.length,
@@ -662,9 +663,13 @@ function statisticsOf(
     degreesOfFreedom: selected.degreesOfFreedom,
     rms: rmsResidual(selected),
     reducedChiSquare: reducedChiSquare(selected),
-    conditionNumber: Number.isFinite(selected.conditionNumber) ? selected.conditionNumber : null,
+    conditionNumber: null as number | null,
     uncertaintyMode: mode,
   };
+  return Object.defineProperty(statistics, 'conditionNumber', {
+    enumerable: true,
+    get: () => (Number.isFinite(selected.conditionNumber) ? selected.conditionNumber : null),
+  });
 }
 
 function constrainedWarning(constraints: readonly TermConstraint[], alpha: number): Warning {

@@ -1,4 +1,4 @@
-import { inverse, Matrix } from 'ml-matrix';
+import { inverse, Matrix, SingularValueDecomposition } from 'ml-matrix';
 import { describe, expect, it } from 'vitest';
 import {
   correlationOf,
@@ -477,6 +477,16 @@ describe('a trial fit completed with its leverages (withLeverages)', () => {
     expect(done.leverages.reduce((a, h) => a + h, 0)).toBeCloseTo(2, 9);
     const full = solved(model, obs, 'a-posteriori');
     expect(done.conditionNumber).toBeCloseTo(full.conditionNumber, 6);
+    // The completed fit's condition number (computed when first read) is ml-matrix's: the ratio of the extreme
+    // singular values of the weighted design with unit-norm columns.
+    const scaled = new Matrix(n, 2);
+    for (let j = 0; j < 2; j++) {
+      const norm = Math.hypot(...aw.getColumn(j));
+      for (let i = 0; i < n; i++) scaled.set(i, j, aw.get(i, j) / norm);
+    }
+    const sv = new SingularValueDecomposition(scaled).diagonal;
+    expect(done.conditionNumber / (Math.max(...sv) / Math.min(...sv)) - 1).toBeLessThan(1e-9);
+    expect({ ...done }.conditionNumber).toBe(done.conditionNumber);
     expect(Array.from(done.values)).toEqual(Array.from(trial.values));
     // A fit solved with its leverages has nothing to complete.
     expect(withLeverages(full)).toBeUndefined();

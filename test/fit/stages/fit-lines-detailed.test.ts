@@ -41,6 +41,9 @@ describe('fitLineListDetailed', () => {
     expect(s.uncertaintyMode).toBe('a-posteriori');
     expect(s.reducedChiSquare).toBe(scale);
     expect(s.conditionNumber).toBeGreaterThan(1);
+    // Read when the statistics are (a getter): serialised and copied as the number it is.
+    expect(JSON.parse(JSON.stringify(s)).conditionNumber).toBe(s.conditionNumber);
+    expect(structuredClone(s).conditionNumber).toBe(s.conditionNumber);
     expect(result.warnings.find((w) => w.code === 'LINES_REJECTED')).toEqual({
       code: 'LINES_REJECTED',
       message: '1 line(s) were rejected as outliers and kept out of the fit',
