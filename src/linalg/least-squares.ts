@@ -15,7 +15,7 @@
 
 import { copyFloats, copyInts, floats, ints } from './small-arrays.js';
 import { remembered, worthRemembering } from './solve-memo.js';
-import { reduceBySupport } from './support-blocks.js';
+import { type RowSystem, reduceBySupport } from './support-blocks.js';
 
 export interface LeastSquaresInput {
   /** Number of observations. */
@@ -233,9 +233,7 @@ function solveGrouped(input: GroupedInput): LeastSquaresResult {
 }
 
 /** The system the QR factorises: the merged rows, or every row of the caller's design. */
-type System = Pick<MergedRows, 'rows' | 'design' | 'rowOf' | 'observations'> & {
-  readonly weights: Float64Array | undefined;
-};
+type System = RowSystem;
 
 function solveSystem(
   input: Omit<LeastSquaresInput, 'design'> & { readonly design?: Columns },
@@ -284,7 +282,7 @@ function solveSystem(
  * scale is then the original columns' weighted norms times the reduced columns' (which are 1 in exact arithmetic).
  */
 function factorise(sys: System, p: number): Factorisation {
-  const reduced = reduceBySupport(sys.rows, p, sys.design, sys.rowOf, sys.observations, sys.weights);
+  const reduced = reduceBySupport(sys, p);
   if (!reduced) return pivotedQR(sys.rows, p, sys.design, sys.rowOf, sys.observations, sys.weights);
   const qr = pivotedQR(reduced.rows, p, reduced.design, undefined, reduced.observations, undefined);
   const scale = qr.scale;

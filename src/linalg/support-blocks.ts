@@ -19,6 +19,15 @@
 import type { Columns } from './least-squares.js';
 import { floats, ints } from './small-arrays.js';
 
+/** The rows a solve factorises: row i is row rowOf[i] of the design's columns (row i without rowOf), weighted. */
+export interface RowSystem {
+  readonly rows: number;
+  readonly design: Columns;
+  readonly rowOf: Int32Array | undefined;
+  readonly observations: Float64Array;
+  readonly weights: Float64Array | undefined;
+}
+
 /** The reduced system: rows √W-weighted with columns scaled by `scale` (each original column's weighted norm). */
 export interface ReducedRows {
   readonly rows: number;
@@ -50,14 +59,8 @@ interface SupportSets {
  * The system reduced set by set, or undefined where that would not halve the work of the QR (few rows per set, or
  * sets as wide as the design) or the design is small.
  */
-export function reduceBySupport(
-  n: number,
-  p: number,
-  design: Columns,
-  rowOf: Int32Array | undefined,
-  observations: Float64Array,
-  weights: Float64Array | undefined,
-): ReducedRows | undefined {
+export function reduceBySupport(system: RowSystem, p: number): ReducedRows | undefined {
+  const { rows: n, design, rowOf, observations, weights } = system;
   if (n * p * p < LEAST_WORK || n < 2 * p) return undefined;
   const sets = supportSets(n, p, design, rowOf);
   if (!sets || !halvesTheWork(sets, n, p)) return undefined;

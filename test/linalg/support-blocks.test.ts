@@ -31,6 +31,12 @@ function twice(s: ReturnType<typeof levelSystem>, seed: number): ReturnType<type
   return { rows, cols: s.cols, design, y, w };
 }
 
+/** A system's rows as the kernel hands them over: its columns, no merged rows. */
+function rowSystem(s: ReturnType<typeof levelSystem>) {
+  const design = Array.from({ length: s.cols }, (_, j) => s.design.subarray(j * s.rows, (j + 1) * s.rows));
+  return { rows: s.rows, design, rowOf: undefined, observations: s.y, weights: s.w };
+}
+
 const at = (d: Float64Array, rows: number, i: number, j: number) => d[j * rows + i] as number;
 
 /** XᵀWX and XᵀWy of a column-major design. */
@@ -91,8 +97,7 @@ describe('rows reduced by their shared non-zero columns', () => {
   it('reduces a level model with many lines per band to a few rows per band', () => {
     const s = levelSystem(HOT, 6, 60, 1);
     const sw = Float64Array.from(s.w, Math.sqrt);
-    const cols = Array.from({ length: s.cols }, (_, j) => s.design.subarray(j * s.rows, (j + 1) * s.rows));
-    const reduced = reduceBySupport(s.rows, s.cols, cols, undefined, s.y, s.w);
+    const reduced = reduceBySupport(rowSystem(s), s.cols);
     expect(reduced).toBeDefined();
     // Per band: the lines with J″ ≥ 2 share 8 columns (two T at most, B, D, H of both levels); R(0) and P(1) have
     // fewer (J = 0 has no B, D, H). So far fewer rows than lines, and at least the columns' number.
@@ -110,16 +115,10 @@ describe('rows reduced by their shared non-zero columns', () => {
 
   it('leaves dense and small designs to the plain QR', () => {
     const dense = levelSystem([[1, 0]], 2, 60, 2);
-    const cols = Array.from({ length: dense.cols }, (_, j) =>
-      dense.design.subarray(j * dense.rows, (j + 1) * dense.rows),
-    );
     // One band: every line J″ ≥ 2 has every column; nothing to gain.
-    expect(reduceBySupport(dense.rows, dense.cols, cols, undefined, dense.y, dense.w)).toBeUndefined();
+    expect(reduceBySupport(rowSystem(dense), dense.cols)).toBeUndefined();
     const small = levelSystem(HOT.slice(0, 2), 3, 5, 3);
-    const sc = Array.from({ length: small.cols }, (_, j) =>
-      small.design.subarray(j * small.rows, (j + 1) * small.rows),
-    );
-    expect(reduceBySupport(small.rows, small.cols, sc, undefined, small.y, small.w)).toBeUndefined();
+    expect(reduceBySupport(rowSystem(small), small.cols)).toBeUndefined();
   });
 
   it.each([
@@ -197,8 +196,7 @@ describe('rows reduced by their shared non-zero columns', () => {
       50,
       4,
     );
-    const cols = Array.from({ length: s.cols }, (_, j) => s.design.subarray(j * s.rows, (j + 1) * s.rows));
-    expect(reduceBySupport(s.rows, s.cols, cols, undefined, s.y, s.w)).toBeDefined();
+    expect(reduceBySupport(rowSystem(s), s.cols)).toBeDefined();
     const r = solveLeastSquares({ rows: s.rows, cols: s.cols, design: s.design, observations: s.y, weights: s.w });
     expect(r.rankDeficient).toBe(true);
     expect(r.rank).toBe(s.cols - 1);
