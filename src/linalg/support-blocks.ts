@@ -64,12 +64,11 @@ export function reduceBySupport(system: RowSystem, p: number): ReducedRows | und
   if (n * p * p < LEAST_WORK || n < 2 * p) return undefined;
   const sets = supportSets(n, p, design, rowOf);
   if (!sets || !halvesTheWork(sets, n, p)) return undefined;
-  const sw = weightScratch(n);
+  const sw = scratchFloats(0, n);
   for (let i = 0; i < n; i++) sw[i] = weights ? Math.sqrt(weights[i] as number) : 1;
   const scale = weightedNorms(sets, p, design, rowOf, sw);
   const rows = reducedRowCount(sets);
-  const buf = buffer(rows * (p + 1));
-  buf.fill(0, 0, rows * (p + 1));
+  const buf = scratchFloats(1, rows * (p + 1)).fill(0);
   const cols: Float64Array[] = [];
   for (let j = 0; j < p; j++) cols.push(buf.subarray(j * rows, (j + 1) * rows));
   const b = buf.subarray(p * rows, (p + 1) * rows);
@@ -85,8 +84,8 @@ export function reduceBySupport(system: RowSystem, p: number): ReducedRows | und
 function halvesTheWork(sets: SupportSets, n: number, p: number): boolean {
   let work = 0;
   for (let g = 0; g < sets.count; g++) {
-    const ng = (sets.start[g + 1] as number) - (sets.start[g] as number);
-    const sg = (sets.colStart[g + 1] as number) - (sets.colStart[g] as number);
+    const ng = rowsIn(sets, g);
+    const sg = columnsIn(sets, g);
     if (ng > sg) work += ng * (sg + 1) ** 2;
     work += Math.min(ng, sg) * p * p;
   }
@@ -95,13 +94,12 @@ function halvesTheWork(sets: SupportSets, n: number, p: number): boolean {
 
 function reducedRowCount(sets: SupportSets): number {
   let rows = 0;
-  for (let g = 0; g < sets.count; g++) {
-    const ng = (sets.start[g + 1] as number) - (sets.start[g] as number);
-    const sg = (sets.colStart[g + 1] as number) - (sets.colStart[g] as number);
-    rows += Math.min(ng, sg);
-  }
+  for (let g = 0; g < sets.count; g++) rows += Math.min(rowsIn(sets, g), columnsIn(sets, g));
   return rows;
 }
+
+const rowsIn = (sets: SupportSets, g: number) => (sets.start[g + 1] as number) - (sets.start[g] as number);
+const columnsIn = (sets: SupportSets, g: number) => (sets.colStart[g + 1] as number) - (sets.colStart[g] as number);
 
 /**
  * Each row's set of non-zero columns, found by a hash of its pattern of zeros and confirmed against the first row of
@@ -243,10 +241,10 @@ function scaledBlock(
   scale: Float64Array,
 ): Block {
   const r0 = sets.start[g] as number;
-  const ng = (sets.start[g + 1] as number) - r0;
+  const ng = rowsIn(sets, g);
   const c0 = sets.colStart[g] as number;
-  const sg = (sets.colStart[g + 1] as number) - c0;
-  const a = blockBuffer(ng * (sg + 1));
+  const sg = columnsIn(sets, g);
+  const a = scratchFloats(2, ng * (sg + 1));
   for (let c = 0; c < sg; c++) {
     const j = sets.columns[c0 + c] as number;
     const col = design[j] as Float64Array;
@@ -318,31 +316,20 @@ function triangulate(a: Float64Array, rows: number, w: number, k: number): void 
   }
 }
 
-/** Four zeroed integer scratch arrays of length n (grow-only, reused by every call: the kernel is never re-entered). */
+/**
+ * Grow-only scratch, reused by every call (the kernel is synchronous and never re-entered): four integer arrays (row
+ * hashes, widths, sets, rows by set) and three float arrays (√w, the reduced system, one set's block). `scratchInts`
+ * hands them out zeroed, `scratchFloats` as they are.
+ */
 const intPools: Int32Array[] = [0, 1, 2, 3].map(() => new Int32Array(0));
+const floatPools: Float64Array[] = [0, 1, 2].map(() => new Float64Array(0));
 function scratchInts(k: 0 | 1 | 2 | 3, n: number): Int32Array {
-  let pool = intPools[k] as Int32Array;
-  if (pool.length < n) {
-    pool = new Int32Array(Math.max(n, Math.ceil(pool.length * 1.5)));
-    intPools[k] = pool;
-  }
-  return pool.subarray(0, n).fill(0);
+  if ((intPools[k] as Int32Array).length < n) intPools[k] = new Int32Array(grownLength(intPools[k] as Int32Array, n));
+  return (intPools[k] as Int32Array).subarray(0, n).fill(0);
 }
-
-/** Grow-only buffers (the kernel is synchronous and never re-entered): the reduced system, and one set's block. */
-let weightPool = new Float64Array(0);
-function weightScratch(n: number): Float64Array {
-  if (weightPool.length < n) weightPool = new Float64Array(Math.max(n, Math.ceil(weightPool.length * 1.5)));
-  return weightPool.subarray(0, n);
+function scratchFloats(k: 0 | 1 | 2, n: number): Float64Array {
+  if ((floatPools[k] as Float64Array).length < n)
+    floatPools[k] = new Float64Array(grownLength(floatPools[k] as Float64Array, n));
+  return (floatPools[k] as Float64Array).subarray(0, n);
 }
-let reducedPool = new Float64Array(0);
-let blockPool = new Float64Array(0);
-function buffer(length: number): Float64Array {
-  if (reducedPool.length < length)
-    reducedPool = new Float64Array(Math.max(length, Math.ceil(reducedPool.length * 1.5)));
-  return reducedPool;
-}
-function blockBuffer(length: number): Float64Array {
-  if (blockPool.length < length) blockPool = new Float64Array(Math.max(length, Math.ceil(blockPool.length * 1.5)));
-  return blockPool;
-}
+const grownLength = (pool: { length: number }, n: number) => Math.max(n, Math.ceil(pool.length * 1.5));
