@@ -18,9 +18,16 @@ export interface Ratio {
 
 const file = 'bench/out/ratios.json';
 
+/**
+ * Adds this part's ratios to the file (`fresh`: starts it anew). A measure recorded again (one part run on its own
+ * twice) replaces the earlier figure, which keeps its place in the list, so the summary shows each measure once.
+ */
 export function recordRatios(ratios: readonly Ratio[], fresh = false): void {
   const before = !fresh && existsSync(file) ? (JSON.parse(readFileSync(file, 'utf8')) as Ratio[]) : [];
-  writeFileSync(file, JSON.stringify([...before, ...ratios], null, 1));
+  const latest = new Map(ratios.map((r) => [r.measure, r]));
+  const kept = before.map((r) => latest.get(r.measure) ?? r);
+  const added = ratios.filter((r) => !before.some((b) => b.measure === r.measure));
+  writeFileSync(file, JSON.stringify([...kept, ...added], null, 1));
 }
 
 export const load = (): string =>
