@@ -13,7 +13,15 @@ import type { Band } from '../models/transitions.js';
 import { constantsFor } from '../species/library.js';
 import { elementsOnly, enrichedAtomsOnly, type Isotopologue, parseSpecies } from '../species/parse.js';
 import { type MassValue, reducedMass } from '../species/reduced-mass.js';
-import { type AssignResult, assignAndFit, type BandSummary, type Calibration, type PeakInput } from './assign-lines.js';
+import {
+  type AssignResult,
+  assignAndFit,
+  type BandSummary,
+  type Calibration,
+  fittedByRounds,
+  type PeakInput,
+  withPlacedLines,
+} from './assign-lines.js';
 import { isotopologuesMeant } from './candidates.js';
 import { type IdentificationCandidate, identifySpecies, matchNotBeyondChance } from './identify.js';
 import { withoutUninformativeIntensities } from './intensity.js';
@@ -331,7 +339,7 @@ export function assignFromLibrary(
   const minRelativeIntensity = range ? Math.max(1e-7, Math.min(1e-4, 0.5 * range)) : 1e-4;
   const mixture = isotopologuesMeant(species, minAbundance);
   for (const m of mixture) if (!masses.has(m.iso.formula)) masses.set(m.iso.formula, reducedMass(m.iso));
-  const r = assignAtTemperature(peaks, options, (temperature) =>
+  const chosen = assignAtTemperature(peaks, options, (temperature) =>
     withWhatItMatches(peaks, species, options, () =>
       assignAndFit(peaks, mixture, masses, {
         minRelativeIntensity,
@@ -341,6 +349,8 @@ export function assignFromLibrary(
       }),
     ),
   );
+  // The lines the chosen assignment's final fit places alone (src/assign/fill.ts), after every comparison of attempts.
+  const r = withPlacedLines(chosen);
   const suggested = withLabelSuggestions(r.fit, r.lines);
   const warnings = namingBandsNotFound([...extraWarnings, ...r.warnings, ...suggested.warnings], r.bands);
   const result = { ...suggested, warnings };
@@ -435,7 +445,7 @@ const POOR_SHARE = 0.5;
 /** The second starting temperature, K: hot bands and high J predicted strong enough to be matched. */
 const HOT_START = 1000;
 
-const fitted = (r: AssignResult) => r.fit.result.statistics.fitted;
+const fitted = fittedByRounds;
 
 /**
  * The temperature read from the intensities of an assignment made at `assumed`, and the lines assigned again at it
