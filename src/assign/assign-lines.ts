@@ -1875,26 +1875,26 @@ function finishedWith(
 }
 
 /**
+ * The final fit again with the lines it places alone on free lines (fill.ts#linesTheFitPlaces), each noted; those
+ * the new fit rejects are left out again (their earlier notes kept), with the fit before them when all were.
+ */
+function withLinesTheFitPlaces(ctx: AssignContext, final: ReturnType<typeof finalFit>): ReturnType<typeof finalFit> {
+  const added = linesTheFitPlaces(ctx, final.fit, final.auto);
+  if (!added) return final;
+  const again = finalFit(ctx, new Map([...final.auto, ...added]));
+  const kept = new Map([...added].filter(([i]) => again.fit.result.lines[i]?.status === 'fitted'));
+  for (const [i, c] of kept)
+    ctx.notes.set(i, `assigned at the end: the final fit places ${transitionLabel(c)} on this line alone`);
+  if (kept.size === added.size) return again;
+  return kept.size === 0 ? final : finalFit(ctx, new Map([...final.auto, ...kept]));
+}
+
+/**
  * The final fit of the assignment. The rounds fit levels only, with fewer centrifugal terms; when the full fit finds
  * the level model undetermined (FIT_RANK_DEFICIENT: a 837 K H79Br/H81Br 2-0 + 3-0 scan whose H81Br levels hung on
  * one thin hot band), the thinnest automatic band is withdrawn, its lines noted, and the fit made again, rather than
  * the whole list refused.
  */
-/**
- * The final fit again with the lines it places alone on free lines (fill.ts#linesTheFitPlaces); those the new fit
- * rejects are left out again, with the fit before them when every added line was rejected.
- */
-function withLinesTheFitPlaces(ctx: AssignContext, final: ReturnType<typeof finalFit>): ReturnType<typeof finalFit> {
-  const more = linesTheFitPlaces(ctx, final.fit, final.auto);
-  if (!more) return final;
-  const again = finalFit(ctx, more);
-  const refused = [...more.keys()].filter((i) => !final.auto.has(i) && again.fit.result.lines[i]?.status !== 'fitted');
-  if (refused.length === 0) return again;
-  for (const i of refused) ctx.notes.delete(i);
-  if (refused.length === more.size - final.auto.size) return final;
-  return finalFit(ctx, new Map([...more].filter(([i]) => !refused.includes(i))));
-}
-
 export function finalFit(
   ctx: AssignContext,
   assigned: ReadonlyMap<number, CandidateLine>,

@@ -21,7 +21,7 @@ import { lowerBound, type ObservedPeak } from './match.js';
  * - the model has not run out there (its σ at most the noise: within the J the band's lines span, or just past);
  * - no other candidate of a fitted band is predicted as near that line by the same rule (a blend or a doublet is
  *   left to the rounds), and the transition is not already assigned in that source.
- * Returns the assignment with those lines added, or undefined when there are none.
+ * Returns those lines (line → candidate), or undefined when there are none.
  */
 export function linesTheFitPlaces(
   ctx: AssignContext,
@@ -49,13 +49,7 @@ export function linesTheFitPlaces(
       taken.add(`${s}#${candidateKey(c)}`);
     }
   });
-  if (added.size === 0) return undefined;
-  for (const [i, c] of added)
-    ctx.notes.set(
-      i,
-      `assigned at the end: the final fit places ${candidateKey(c).replace(/\|/g, ' ')} on this line alone`,
-    );
-  return new Map([...auto, ...added]);
+  return added.size > 0 ? added : undefined;
 }
 
 /** Lines of at least FILL_MIN_LINES fitted per band and source, keyed "band#source" by number. */
