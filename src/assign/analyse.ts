@@ -404,8 +404,10 @@ export function assignAtTemperature(
 
 /**
  * Lines without intensities and no temperature: nothing to read one from. When fewer than half the lines are fitted
- * at 296 K (hot bands never predicted strong enough to seed), the lines are assigned again as if at HOT_START, kept
- * when that fits more (held-out seed 188, HCl 1-0 at 1444 K, σ sent: 110 right, the hot bands 2-1 and 3-2 left).
+ * at 296 K (hot bands never predicted strong enough to seed), or a hot band was found, or as many lines as make a hot
+ * band (HOT_BAND_LINES) are left unexplained, the lines are assigned again as if at HOT_START, kept when that fits
+ * more (held-out seed 188, HCl 1-0 at 1444 K, σ sent: 110 right, the hot bands 2-1 and 3-2 left; seed 192, H¹⁹F 1-0
+ * at 1047 K with 12 spurious lines: 35 of 66 fitted, so over half, and the 2-1 band's 21 lines left → all 56 right).
  */
 function withoutIntensities(
   first: AssignResult,
@@ -413,7 +415,8 @@ function withoutIntensities(
   assign: (temperature: number | undefined) => AssignResult,
 ): AssignResult {
   const hotBand = hotBandSeen(first);
-  if (fitted(first) >= POOR_SHARE * peaks.length && !hotBand) return first;
+  const unexplained = peaks.length - fitted(first);
+  if (fitted(first) >= POOR_SHARE * peaks.length && unexplained < HOT_BAND_LINES && !hotBand) return first;
   const hot = orUndefined(() => assign(HOT_START));
   if (!hot || fitted(hot) <= fitted(first)) return first;
   const why = hotBand
