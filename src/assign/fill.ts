@@ -17,7 +17,8 @@ import { lowerBound, type ObservedPeak } from './match.js';
  * decided (held-out seed 82: H⁷⁹Br and H⁸¹Br 1-0 R(10), between fitted R(9) and R(11), left unassigned). Here the
  * fit of everything assigned is asked once more, for every candidate of a band it fitted in that source:
  * - its prediction lies within FILL_SIGMAS √(noise² + var) of exactly one free line of the source, where the noise
- *   is the band's own scatter in that source (or its σ factor times the line's σ) and var the model's variance;
+ *   is what the rounds judge the band by in that source (residualStatistics: the larger of the fit's line σ and the
+ *   band's own robust scatter, or its σ factor times the typical line σ) and var the model's variance;
  * - the model has not run out there (its σ at most the noise: within the J the band's lines span, or just past);
  * - no other candidate of a fitted band is predicted as near that line by the same rule (a blend or a doublet is
  *   left to the rounds), and the transition is not already assigned in that source.
