@@ -1,7 +1,6 @@
 import type { DetailedFit } from '../fit/types.js';
 import {
   type AssignContext,
-  bandKey,
   candidateKey,
   fittedPosition,
   type ResidualStatistics,
@@ -38,13 +37,13 @@ export function linesTheFitPlaces(
     const free = (ctx.freeByPosition.get(name) ?? []).filter((p) => !auto.has(p.index));
     if (free.length === 0) return;
     const placed = placements(ctx, fit, stats, fitted, s, free);
-    // Each free line's candidates within reach: only a line exactly one candidate reaches is taken.
-    const reachers = new Map<number, number[]>();
-    for (const [ci, peaks] of placed) for (const k of peaks) reachers.set(k, [...(reachers.get(k) ?? []), ci]);
+    // How many candidates reach each free line: only a line exactly one candidate reaches is taken.
+    const reachers = new Map<number, number>();
+    for (const peaks of placed.values()) for (const k of peaks) reachers.set(k, (reachers.get(k) ?? 0) + 1);
     for (const [ci, peaks] of placed) {
       const k = peaks[0] as number;
       const c = ctx.cands[ci] as CandidateLine;
-      if (peaks.length !== 1 || (reachers.get(k) ?? []).length !== 1 || taken.has(`${s}#${candidateKey(c)}`)) continue;
+      if (peaks.length !== 1 || reachers.get(k) !== 1 || taken.has(`${s}#${candidateKey(c)}`)) continue;
       const peak = free[k] as ObservedPeak;
       added.set(peak.index, c);
       taken.add(`${s}#${candidateKey(c)}`);
@@ -53,21 +52,19 @@ export function linesTheFitPlaces(
   return added.size > 0 ? added : undefined;
 }
 
-/** Lines of at least FILL_MIN_LINES fitted per band and source, keyed "band#source" by number. */
-function fittedBandsBySource(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>): Set<string> {
-  const count = new Map<string, number>();
+/**
+ * The bands with at least FILL_MIN_LINES lines assigned in a source, keyed band × sources + source by number (as
+ * residualGroups keys them).
+ */
+function fittedBandsBySource(ctx: AssignContext, auto: ReadonlyMap<number, CandidateLine>): Set<number> {
+  const nSources = ctx.sources.length;
+  const count = new Map<number, number>();
   for (const [i, c] of auto) {
-    const k = `${bandKey(c)}#${ctx.sourceNumbers[i]}`;
+    const k = (ctx.candBand[ctx.candIndex.get(c) as number] as number) * nSources + (ctx.sourceNumbers[i] as number);
     count.set(k, (count.get(k) ?? 0) + 1);
   }
-  const bandNumber = new Map(ctx.bands.map((b, n) => [b, n]));
-  const out = new Set<string>();
-  for (const [k, n] of count) {
-    if (n < Math.max(ctx.minLines, FILL_MIN_LINES)) continue;
-    const [band, source] = k.split('#') as [string, string];
-    out.add(`${bandNumber.get(band)}#${source}`);
-  }
-  return out;
+  const least = Math.max(ctx.minLines, FILL_MIN_LINES);
+  return new Set([...count].filter(([, n]) => n >= least).map(([k]) => k));
 }
 
 /** For every candidate of a fitted band of source s (not given), the free lines (by their number in `free`) it reaches. */
@@ -75,7 +72,7 @@ function placements(
   ctx: AssignContext,
   fit: DetailedFit,
   stats: ResidualStatistics,
-  fitted: ReadonlySet<string>,
+  fitted: ReadonlySet<number>,
   s: number,
   free: readonly ObservedPeak[],
 ): Map<number, number[]> {
@@ -83,7 +80,7 @@ function placements(
   const out = new Map<number, number[]>();
   for (let ci = 0; ci < ctx.cands.length; ci++) {
     const band = ctx.candBand[ci] as number;
-    if (ctx.candGiven[ci] === 1 || !fitted.has(`${band}#${s}`)) continue;
+    if (ctx.candGiven[ci] === 1 || !fitted.has(band * ctx.sources.length + s)) continue;
     const pred = fittedPosition(ctx, fit, ci);
     if (!pred) continue;
     const st = stats.of(band, s);
