@@ -1,4 +1,5 @@
 import type { DetailedFit } from '../fit/types.js';
+import { floatsFrom } from '../linalg/small-arrays.js';
 import {
   type AssignContext,
   candidateKey,
@@ -76,7 +77,7 @@ function placements(
   s: number,
   free: readonly ObservedPeak[],
 ): Map<number, number[]> {
-  const positions = Float64Array.from(free, (p) => p.position);
+  const positions = floatsFrom(free, (p) => p.position);
   const out = new Map<number, number[]>();
   for (let ci = 0; ci < ctx.cands.length; ci++) {
     const band = ctx.candBand[ci] as number;

@@ -3,6 +3,7 @@ import { solveLeastSquares } from '../linalg/least-squares.js';
 import { floats } from '../linalg/small-arrays.js';
 import { CENTRIFUGAL_SIGN, MAX_CENTRIFUGAL_ORDER } from '../models/level-model.js';
 import type { Observation } from '../models/linear-model.js';
+import { BandTable } from './band-table.js';
 import type { UncertaintyMode } from './engine.js';
 
 /**
@@ -94,21 +95,22 @@ interface BandBranches {
 
 /** The lines of each vibrational band (pure rotation left out), in the order the bands first appear. */
 function bandBranches(observations: readonly Observation[]): Iterable<BandBranches> {
-  const groups = new Map<string, BandBranches>();
+  const groups = new BandTable<BandBranches>((o) => ({
+    species: o.species,
+    upper: o.upperV,
+    lower: o.lowerV,
+    r: new Map(),
+    p: new Map(),
+  }));
   for (const o of observations) {
     if (o.upperV === o.lowerV) continue;
-    const key = `${o.species}|${o.upperV}-${o.lowerV}`;
-    let g = groups.get(key);
-    if (!g) {
-      g = { species: o.species, upper: o.upperV, lower: o.lowerV, r: new Map(), p: new Map() };
-      groups.set(key, g);
-    }
+    const g = groups.of(o);
     const branch = o.upperJ === o.lowerJ + 1 ? g.r : g.p;
-    const list = branch.get(o.lowerJ) ?? [];
-    list.push(o);
-    branch.set(o.lowerJ, list);
+    const list = branch.get(o.lowerJ);
+    if (list) list.push(o);
+    else branch.set(o.lowerJ, [o]);
   }
-  return groups.values();
+  return groups.inOrder;
 }
 
 /** Δ₂F″(J) = R(J−1) − P(J+1) and Δ₂F′(J) = R(J) − P(J) of one band, each line the weighted mean of its repeats. */

@@ -4,6 +4,7 @@ import { levelStructure } from '../models/level-model.js';
 import type { Observation } from '../models/linear-model.js';
 import { formatBand, type Transition } from '../models/transitions.js';
 import type { MassValue } from '../species/reduced-mass.js';
+import { BandTable } from './band-table.js';
 import { correlationOf, type SolvedModel, studentisedResiduals, toRows } from './engine.js';
 import { excludedStudentisedResidual, predictWithVariance } from './level-selection.js';
 import type { AssignmentsByLine } from './observations.js';
@@ -168,27 +169,22 @@ type Writable<T> = { -readonly [K in keyof T]: T[K] };
 /** Per band: its fitted lines, J″ range and, for a vibrational band, the origin T_v′ − T_v″ with their covariance. */
 function bandOrigins(fit: SolvedModel, paramIndex: ReadonlyMap<string, number>): FitResult['bands'][number][] {
   const p = fit.model.parameters.length;
-  const bandStats = new Map<
-    string,
-    { species: string; band: string; upper: number; lower: number; n: number; jmin: number; jmax: number }
-  >();
+  const bandStats = new BandTable((o) => ({
+    species: o.species,
+    band: `${o.upperV}-${o.lowerV}`,
+    upper: o.upperV,
+    lower: o.lowerV,
+    n: 0,
+    jmin: Number.POSITIVE_INFINITY,
+    jmax: Number.NEGATIVE_INFINITY,
+  }));
   for (const o of fit.observations) {
-    const key = `${o.species}|${o.upperV}-${o.lowerV}`;
-    const b = bandStats.get(key) ?? {
-      species: o.species,
-      band: `${o.upperV}-${o.lowerV}`,
-      upper: o.upperV,
-      lower: o.lowerV,
-      n: 0,
-      jmin: o.lowerJ,
-      jmax: o.lowerJ,
-    };
+    const b = bandStats.of(o);
     b.n++;
-    b.jmin = Math.min(b.jmin, o.lowerJ);
-    b.jmax = Math.max(b.jmax, o.lowerJ);
-    bandStats.set(key, b);
+    if (o.lowerJ < b.jmin) b.jmin = o.lowerJ;
+    if (o.lowerJ > b.jmax) b.jmax = o.lowerJ;
   }
-  return [...bandStats.values()].map((b) => {
+  return bandStats.inOrder.map((b) => {
     let origin: Quantity | undefined;
     if (b.upper !== b.lower) {
       const iu = paramIndex.get(`${b.species}|T|${b.upper}`);

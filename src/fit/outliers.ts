@@ -44,7 +44,8 @@ export function rejectOutliers(
   const threshold = Math.max(o.rejectionThreshold, normalTwoSidedQuantile(0.25 / observations.length));
   for (let iter = 0; iter < 12 && rejected.size < budget; iter++) {
     const t = studentisedResiduals(level.fit);
-    const candidates = [...t.keys()].filter((i) => Math.abs(t[i] as number) > threshold);
+    const candidates: number[] = [];
+    for (let i = 0; i < t.length; i++) if (Math.abs(t[i] as number) > threshold) candidates.push(i);
     if (candidates.length === 0) break;
     candidates.sort((a, b) => Math.abs(t[b] as number) - Math.abs(t[a] as number));
     const take = candidates.slice(0, Math.max(1, Math.min(budget - rejected.size, Math.ceil(0.1 * kept.length))));

@@ -1,3 +1,4 @@
+import { floatsFrom } from '../linalg/small-arrays.js';
 import type { Observation } from '../models/linear-model.js';
 import { transitionLabel } from '../models/transitions.js';
 import { plusMinus } from '../qa/plus-minus.js';
@@ -53,68 +54,125 @@ export function checkDuplicates(
   rejected: ReadonlyMap<number, string>,
   warnings: Warning[],
 ): void {
+  // The lines that repeat an earlier one, and the first few as "12 (= 3)" for the message.
   const copies: string[] = [];
   const copyLines: number[] = [];
   for (const g of repeatGroups(observations)) {
     if (g.length < 2) continue;
-    const distinct = new DistinctPositions();
-    for (const o of g) {
-      const first = distinct.firstNear(o);
-      if (first === undefined) distinct.add(o);
-      else {
-        copies.push(`${o.index} (= ${first.index})`);
-        copyLines.push(o.index);
-      }
-    }
-    if (distinct.inOrder.length > 1 && distinct.inOrder.some((o) => rejected.has(o.index))) {
+    const distinct = distinctLines(g, copies, copyLines);
+    if (distinct.length > 1 && distinct.some((o) => rejected.has(o.index))) {
       const fmt = (o: Observation) =>
         `line ${o.index} at ${o.position.toFixed(4)} cm-1${rejected.has(o.index) ? ' (rejected)' : ''}`;
       warnings.push({
         code: 'TRANSITION_CLAIMED_TWICE',
-        message: `${distinct.inOrder.length} lines claim ${labelOf(g[0] as Observation)} at different positions: ${distinct.inOrder.map(fmt).join(', ')}; check the assignment of the rejected one`,
-        lines: distinct.inOrder.map((o) => o.index),
+        message: `${distinct.length} lines claim ${labelOf(g[0] as Observation)} at different positions: ${distinct.map(fmt).join(', ')}; check the assignment of the rejected one`,
+        lines: distinct.map((o) => o.index),
       });
     }
   }
-  if (copies.length > 0)
+  if (copyLines.length > 0)
     warnings.push({
       code: 'LINES_DUPLICATED',
-      message: `${copies.length} line(s) repeat an earlier line's assignment and position (a duplicated row?) and count twice in the fit: lines ${copies.slice(0, 10).join(', ')}${copies.length > 10 ? ', …' : ''}`,
+      message: `${copyLines.length} line(s) repeat an earlier line's assignment and position (a duplicated row?) and count twice in the fit: lines ${copies.slice(0, SHOWN_COPIES).join(', ')}${copyLines.length > SHOWN_COPIES ? ', …' : ''}`,
       lines: copyLines,
     });
 }
 
+/** Repeated lines named in the LINES_DUPLICATED message (all of them are in its `lines`). */
+const SHOWN_COPIES = 10;
+
 /**
- * The lines of one transition at different positions, in the order met, with a sorted index of their positions: the
- * first of them within 1e-9 (relative) of a new line is found by binary search, not by a scan of all of them (a
- * 50 000-line list of 81 transitions compared each line with ~300 others).
+ * The lines of one transition that do not repeat an earlier one's position (within 1e-9 of it, relative), in the
+ * order met; each line that does is added to `copyLines`, and named as "12 (= 3)" in `copies` while fewer than
+ * SHOWN_COPIES are. With the positions sorted, only lines in a run whose neighbouring gaps are all within 2e-9
+ * (relative) can repeat one another (two lines within 1e-9 of each other are never split by a wider gap): a line
+ * outside every run is distinct at once, and each run keeps its own sorted index.
+ */
+function distinctLines(g: readonly Observation[], copies: string[], copyLines: number[]): readonly Observation[] {
+  const runs = closeRuns(floatsFrom(g, (o) => o.position).sort());
+  if (runs.length === 0) return g;
+  const perRun: (DistinctPositions | undefined)[] = [];
+  const distinct: Observation[] = [];
+  for (let r = 0; r < g.length; r++) {
+    const o = g[r] as Observation;
+    const run = runOf(runs, o.position);
+    if (run < 0) {
+      distinct.push(o);
+      continue;
+    }
+    let seen = perRun[run];
+    if (!seen) {
+      seen = new DistinctPositions();
+      perRun[run] = seen;
+    }
+    const first = seen.firstNear(o.position);
+    if (first < 0) {
+      seen.add(o.position, r);
+      distinct.push(o);
+    } else {
+      if (copies.length < SHOWN_COPIES) copies.push(`${o.index} (= ${(g[first] as Observation).index})`);
+      copyLines.push(o.index);
+    }
+  }
+  return distinct;
+}
+
+/** The runs of two or more sorted positions whose neighbouring gaps are within 2e-9 (relative), as [lo, hi] pairs. */
+function closeRuns(sorted: Float64Array): number[] {
+  const runs: number[] = [];
+  let start = 0;
+  for (let k = 1; k <= sorted.length; k++) {
+    if (k < sorted.length) {
+      const lo = sorted[k - 1] as number;
+      const hi = sorted[k] as number;
+      if (hi - lo <= 2e-9 * Math.max(Math.abs(lo), Math.abs(hi))) continue;
+    }
+    if (k - start > 1) runs.push(sorted[start] as number, sorted[k - 1] as number);
+    start = k;
+  }
+  return runs;
+}
+
+/** The number of the run (of `closeRuns`) that holds x, or −1. */
+function runOf(runs: readonly number[], x: number): number {
+  let lo = 0;
+  let hi = runs.length / 2;
+  while (lo < hi) {
+    const mid = (lo + hi) >>> 1;
+    if ((runs[2 * mid + 1] as number) < x) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo < runs.length / 2 && (runs[2 * lo] as number) <= x ? lo : -1;
+}
+
+/**
+ * Positions of distinct lines, each with its rank in the order met, kept sorted: the earliest one within 1e-9
+ * (relative) of a new position is found by binary search, not by a scan of all of them.
  */
 class DistinctPositions {
-  readonly inOrder: Observation[] = [];
-  /** Positions ascending, and each one's rank in `inOrder`. */
+  /** Positions ascending, and each one's rank in the order met. */
   private readonly sorted: number[] = [];
   private readonly rank: number[] = [];
 
-  /** The earliest line met whose position is within 1e-9 · |position| of o's, if any. */
-  firstNear(o: Observation): Observation | undefined {
-    const tol = 1e-9 * Math.abs(o.position);
-    // The search window is twice the tolerance wide on each side (rounding of o ± tol can never hide a match);
+  /** The rank of the earliest line whose position is within 1e-9 · |x| of x, or −1. */
+  firstNear(x: number): number {
+    const tol = 1e-9 * Math.abs(x);
+    // The search window is twice the tolerance wide on each side (rounding of x ± tol can never hide a match);
     // the test itself is the exact one.
     let best = -1;
-    for (let k = this.lowerBound(o.position - 2 * tol); k < this.sorted.length; k++) {
-      const x = this.sorted[k] as number;
-      if (x > o.position + 2 * tol) break;
+    for (let k = this.lowerBound(x - 2 * tol); k < this.sorted.length; k++) {
+      const y = this.sorted[k] as number;
+      if (y > x + 2 * tol) break;
       const r = this.rank[k] as number;
-      if (Math.abs(x - o.position) <= tol && (best < 0 || r < best)) best = r;
+      if (Math.abs(y - x) <= tol && (best < 0 || r < best)) best = r;
     }
-    return best < 0 ? undefined : this.inOrder[best];
+    return best;
   }
 
-  add(o: Observation): void {
-    const k = this.lowerBound(o.position);
-    this.sorted.splice(k, 0, o.position);
-    this.rank.splice(k, 0, this.inOrder.length);
-    this.inOrder.push(o);
+  add(x: number, rank: number): void {
+    const k = this.lowerBound(x);
+    this.sorted.splice(k, 0, x);
+    this.rank.splice(k, 0, rank);
   }
 
   /** First index whose position is ≥ x. */

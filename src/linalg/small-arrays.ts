@@ -53,6 +53,16 @@ export function ints(n: number): Int32Array<ArrayBuffer> {
   return new Int32Array(slab, at, n);
 }
 
+/**
+ * f of each item, as a Float64Array from the slab. A plain loop: `Float64Array.from(items, f)` goes through the
+ * iterator protocol and cost about 4× as much for a 62-element list (measured 2026-12-05, Node 20).
+ */
+export function floatsFrom<T>(items: readonly T[], f: (item: T, i: number) => number): Float64Array<ArrayBuffer> {
+  const out = floats(items.length);
+  for (let i = 0; i < items.length; i++) out[i] = f(items[i] as T, i);
+  return out;
+}
+
 /** A copy of `values` as a Float64Array. */
 export function copyFloats(values: ArrayLike<number>): Float64Array<ArrayBuffer> {
   const out = floats(values.length);

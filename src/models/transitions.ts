@@ -48,21 +48,23 @@ export function upperJ(t: Pick<Transition, 'branch' | 'j'>): number {
  */
 export function validateTransition(t: Transition): void {
   // The label is written only for a fault (every line of every fit passes here).
-  const fail = (why: string) => {
-    throw new ScienceError('ASSIGNMENT_INVALID', `${t.branch}(${t.j}) of band ${formatBand(t.band)}: ${why}`, {
-      band: formatBand(t.band),
-      branch: t.branch,
-      j: t.j,
-    });
-  };
-  if (!Number.isInteger(t.j) || t.j < 0) fail('J″ must be a whole number ≥ 0');
-  if (t.j > MAX_J) fail(`J″ above ${MAX_J} is not supported`);
-  if (t.band.upper > MAX_V || t.band.lower > MAX_V) fail(`v above ${MAX_V} is not supported`);
+  if (!Number.isInteger(t.j) || t.j < 0) invalidTransition(t, 'J″ must be a whole number ≥ 0');
+  if (t.j > MAX_J) invalidTransition(t, `J″ above ${MAX_J} is not supported`);
+  if (t.band.upper > MAX_V || t.band.lower > MAX_V) invalidTransition(t, `v above ${MAX_V} is not supported`);
   if (t.band.upper < t.band.lower)
-    fail("the upper level v′ must not lie below the lower level v″ (write bands as v'-v'')");
-  if (t.branch === 'Q') fail('ΔJ = 0 is forbidden in a ¹Σ–¹Σ band: there is no Q branch');
-  if (t.branch === 'P' && t.j < 1) fail('P(0) does not exist: J′ would be −1');
-  if (t.band.upper === t.band.lower && t.branch !== 'R') fail('pure rotational lines are R lines (J″+1 ← J″)');
+    invalidTransition(t, "the upper level v′ must not lie below the lower level v″ (write bands as v'-v'')");
+  if (t.branch === 'Q') invalidTransition(t, 'ΔJ = 0 is forbidden in a ¹Σ–¹Σ band: there is no Q branch');
+  if (t.branch === 'P' && t.j < 1) invalidTransition(t, 'P(0) does not exist: J′ would be −1');
+  if (t.band.upper === t.band.lower && t.branch !== 'R')
+    invalidTransition(t, 'pure rotational lines are R lines (J″+1 ← J″)');
+}
+
+function invalidTransition(t: Transition, why: string): never {
+  throw new ScienceError('ASSIGNMENT_INVALID', `${t.branch}(${t.j}) of band ${formatBand(t.band)}: ${why}`, {
+    band: formatBand(t.band),
+    branch: t.branch,
+    j: t.j,
+  });
 }
 
 export function transitionKey(t: Transition): string {

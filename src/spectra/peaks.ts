@@ -1,3 +1,4 @@
+import { floatsFrom } from '../linalg/small-arrays.js';
 import { aboveBaseline, firstNoiseEstimate, lowerQuantile, toAbsorbance } from './peak-baseline.js';
 import { type CandidateGroup, findCandidates, groupCandidates } from './peak-candidates.js';
 import { type FittedProfile, fitProfiles, type LineShape, type ProfileFit } from './pseudo-voigt-fit.js';
@@ -245,7 +246,7 @@ function pooledNoise(fits: readonly GroupFit[], noise0: number): number {
  * lines; so are profiles on the ends of the spectrum, where the baseline is least known.
  */
 function typicalLines(fitted: readonly FittedProfile[], x: Float64Array): FittedProfile[] {
-  const widths = Float64Array.from(fitted, (p) => p.width);
+  const widths = floatsFrom(fitted, (p) => p.width);
   const medianWidth = fitted.length > 0 ? lowerQuantile(widths, 0.5, new Float64Array(widths.length)) : 0;
   const x0 = x[0] as number;
   const x1 = x[x.length - 1] as number;
