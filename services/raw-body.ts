@@ -3,6 +3,19 @@ import type { Config } from './config.js';
 import { CSV_TYPES, JCAMP_TYPES, textBodyToJson } from './text-bodies.js';
 
 /**
+ * The routes whose handlers take a RawBody (services/rest/timed.ts#answerRawBody): only their large bodies are left
+ * unparsed for a worker. Any other route parses its body on the event loop, whatever its size (its schema would
+ * otherwise meet a RawBody, not the request).
+ */
+export const RAW_BODY_ROUTES: ReadonlySet<string> = new Set([
+  '/v1/fits',
+  '/v1/checks',
+  '/v1/reports',
+  '/v1/peaks',
+  '/v1/potentials',
+]);
+
+/**
  * A large body left unparsed on the event loop: the worker that does the work also decodes it (UTF-8), parses it
  * (JSON, JCAMP-DX or CSV), validates it with the route's schema and serialises the answer, so that none of those
  * steps, each proportional to the size of the body, freezes /healthz or the other requests. The bytes as read are

@@ -10,7 +10,12 @@ import { decodeBody, InvalidJsonBody, type Limits, NonFiniteLiteral } from './ra
 import { type CheckRequest, CheckResponseSchema, checkRequestSchema } from './schemas/checks.js';
 import { type FitRequest, FitResponseSchema, fitRequestSchema } from './schemas/fit.js';
 import { type PeaksRequest, type PeaksResponse, PeaksResponseSchema, parsePeaksRequest } from './schemas/peaks.js';
-import type { PotentialRequest } from './schemas/potentials.js';
+import {
+  type PotentialRequest,
+  type PotentialResponse,
+  PotentialResponseSchema,
+  potentialRequestSchema,
+} from './schemas/potentials.js';
 import type { PredictionRequest } from './schemas/predictions.js';
 import { compiledSerializer } from './serializer.js';
 import { runCheck } from './usecases/check.js';
@@ -34,7 +39,7 @@ export type Job =
 /** A large body, as received: parsed, validated, run and serialised here (services/raw-body.ts). */
 export interface RawJob {
   readonly kind: 'raw';
-  readonly route: 'fit' | 'check' | 'report' | 'peaks';
+  readonly route: 'fit' | 'check' | 'report' | 'peaks' | 'potential';
   /** The body's bytes (a view on a SharedArrayBuffer: services/raw-body.ts). */
   readonly bytes: Uint8Array;
   readonly contentType: string;
@@ -81,11 +86,16 @@ class ValidationFailed extends Error {
 }
 
 const requestSchemas = new Map<string, z.ZodType>();
-function requestSchema(route: 'fit' | 'check' | 'report', maxLines: number): z.ZodType {
+function requestSchema(route: 'fit' | 'check' | 'report' | 'potential', maxLines: number): z.ZodType {
   const key = `${route}:${maxLines}`;
   let s = requestSchemas.get(key);
   if (!s) {
-    s = route === 'fit' ? fitRequestSchema(maxLines) : checkRequestSchema(maxLines);
+    s =
+      route === 'fit'
+        ? fitRequestSchema(maxLines)
+        : route === 'potential'
+          ? potentialRequestSchema(maxLines)
+          : checkRequestSchema(maxLines);
     requestSchemas.set(key, s);
   }
   return s;
@@ -115,6 +125,7 @@ function runRaw(job: RawJob): RawAnswer | Promise<RawAnswer> {
     return runPeaksInThreads(body as unknown as PeaksRequest, job.peakThreads ?? 1).then((r) =>
       rawAnswer(job, body, r),
     );
+  if (job.route === 'potential') return rawAnswer(job, body, runPotential(body as unknown as PotentialRequest));
   return rawAnswer(job, body, job.route === 'fit' ? runFit(body) : runCheck(body as CheckRequest));
 }
 
@@ -122,14 +133,22 @@ function runRaw(job: RawJob): RawAnswer | Promise<RawAnswer> {
 function rawAnswer(
   job: RawJob,
   body: { sample?: object },
-  result: ReturnType<typeof runFit> | ReturnType<typeof runCheck> | PeaksResponse,
+  result: ReturnType<typeof runFit> | ReturnType<typeof runCheck> | PeaksResponse | PotentialResponse,
 ): RawAnswer {
   const stamped = { ...assertFinite(result), ...(body.sample ? { sample: body.sample } : {}), ...job.provenance };
   const responseSchema: z.ZodType =
-    job.route === 'fit' ? FitResponseSchema : job.route === 'check' ? CheckResponseSchema : PeaksResponseSchema;
+    job.route === 'fit'
+      ? FitResponseSchema
+      : job.route === 'check'
+        ? CheckResponseSchema
+        : job.route === 'potential'
+          ? PotentialResponseSchema
+          : PeaksResponseSchema;
+  // CSV tables and rounded display strings are forms of fits and checks only, as for a small body.
+  const tabular = job.route === 'fit' || job.route === 'check' || job.route === 'report';
   const verdict = 'verdict' in result ? { verdict: String(result.verdict) } : {};
   // The same forms as a small body gets (services/formats/respond.ts): CSV tables, or rounded display strings.
-  if (job.route !== 'peaks' && prefersCsv(job.accept)) {
+  if (tabular && prefersCsv(job.accept)) {
     const table = (job.query.table as TableName | undefined) ?? 'lines';
     const kind = job.route as 'fit' | 'check';
     return {
@@ -142,7 +161,7 @@ function rawAnswer(
       ...verdict,
     };
   }
-  const shown = job.route !== 'peaks' && job.query.display === 'rounded' ? withDisplay(stamped) : stamped;
+  const shown = tabular && job.query.display === 'rounded' ? withDisplay(stamped) : stamped;
   // Serialised as a small body's answer is (services/serializer.ts), without checking it against its schema.
   return { body: utf8(compiledSerializer(responseSchema)(shown)), type: 'application/json; charset=utf-8', ...verdict };
 }

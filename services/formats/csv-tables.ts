@@ -11,9 +11,18 @@ import { roundedDisplay } from './round.js';
 
 export type Cell = string | number | undefined | null;
 
+/**
+ * A text cell that a spreadsheet would read as a formula (it starts with =, +, -, @, a tab or a carriage return: a
+ * line id or source such as `=HYPERLINK(…)` sent by a caller) is written with a leading apostrophe, which shows it
+ * as text (common practice against CSV formula injection). Numbers, and text that is a plain number ("-0.5"), are
+ * written as they are.
+ */
+const asText = (s: string): string =>
+  /^[=+\-@\t\r]/.test(s) && !(s.trim() === s && Number.isFinite(Number(s))) ? `'${s}` : s;
+
 const cell = (v: Cell): string => {
   if (v === undefined || v === null) return '';
-  const s = typeof v === 'number' ? (Number.isFinite(v) ? String(v) : '') : v;
+  const s = typeof v === 'number' ? (Number.isFinite(v) ? String(v) : '') : asText(v);
   return /[",\r\n]/.test(s) ? `"${s.replaceAll('"', '""')}"` : s;
 };
 
@@ -43,7 +52,7 @@ export function fitLinesRows(r: FitResponse): Cell[][] {
     ],
     ...r.lines.map((l) => [
       l.index,
-      l.id === undefined ? '' : String(l.id),
+      l.id,
       l.assignment?.species,
       l.assignment?.band,
       l.assignment?.branch,

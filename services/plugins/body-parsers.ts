@@ -1,4 +1,4 @@
-import type { FastifyInstance } from 'fastify';
+import type { FastifyInstance, FastifyRequest } from 'fastify';
 import type { Config } from '../config.js';
 import { HttpProblem, problem, sendProblem, sendUnsupportedMediaType } from '../errors.js';
 import {
@@ -6,6 +6,7 @@ import {
   jsonDepth,
   MAX_JSON_DEPTH,
   nonFiniteLiteral,
+  RAW_BODY_ROUTES,
   RawBody,
   tooDeep,
   unreadableCharset,
@@ -95,10 +96,14 @@ export function parseBodies(app: FastifyInstance, config: Config): void {
     );
   });
   const defaultJson = app.getDefaultJsonParser('error', 'error');
-  // Large bodies of the work routes go to a worker unparsed, as bytes (services/raw-body.ts); the others are decoded
-  // here by bodyText, as the worker decodes them: the declared charset, else UTF-8 as fastify reads a body itself.
-  const offload = (req: { url: string }, body: Buffer) =>
-    config.workers > 0 && config.offloadBytes > 0 && body.length >= config.offloadBytes && req.url.includes('/v1/');
+  // Large bodies of the work routes (RAW_BODY_ROUTES) go to a worker unparsed, as bytes (services/raw-body.ts); the
+  // others are decoded here by bodyText, as the worker decodes them: the declared charset, else UTF-8 as fastify
+  // reads a body itself.
+  const offload = (req: FastifyRequest, body: Buffer) =>
+    config.workers > 0 &&
+    config.offloadBytes > 0 &&
+    body.length >= config.offloadBytes &&
+    RAW_BODY_ROUTES.has(req.routeOptions.url ?? '');
   app.addContentTypeParser('application/json', { parseAs: 'buffer' }, (req, bytes, done) => {
     if (offload(req, bytes as Buffer))
       return done(null, new RawBody(bytes as Buffer, 'application/json', req.query as Record<string, unknown>));

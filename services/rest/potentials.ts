@@ -4,6 +4,7 @@ import { jobSize } from '../pool.js';
 import { stamped } from '../provenance.js';
 import { problemResponses } from '../schemas/common.js';
 import { type PotentialResponse, PotentialResponseSchema, potentialRequestSchema } from '../schemas/potentials.js';
+import { answerRawBody } from './timed.js';
 
 /** POST /v1/potentials. */
 export const potentialRoutes =
@@ -30,11 +31,13 @@ export const potentialRoutes =
           },
         },
       },
-      async (req) =>
-        stamped(
+      async (req, reply) => {
+        if (await answerRawBody(app, config, 'potential', req, reply)) return reply;
+        return stamped(
           req,
           await app.pool.run<PotentialResponse>({ kind: 'potential', body: req.body }, Math.max(jobSize(req.body), 1)),
           req.body.sample,
-        ),
+        );
+      },
     );
   };

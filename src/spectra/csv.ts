@@ -384,7 +384,8 @@ function readLineList(
 ): CsvData {
   const at = lineListColumns(headerLine, columns);
   const p = at.position as number;
-  const unit = positionUnit(columns?.[p]?.unit ?? unitsRow?.[p]);
+  const headerUnit = columns?.[p]?.unit;
+  const unit = positionUnit(headerUnit ?? unitsRow?.[p], headerUnit === undefined && unitsRow !== undefined);
   const assigned = at.band !== undefined || at.branch !== undefined || at.j !== undefined;
   if (assigned && (at.band === undefined || at.branch === undefined || at.j === undefined))
     throw new ScienceError('INPUT_INVALID', 'an assignment needs all three columns: band, branch and j', {});
@@ -463,14 +464,19 @@ function editDistance(a: string, b: string): number {
   return prev[b.length] as number;
 }
 
-/** The position column's unit from its header or units row; refused when given but not one we read. */
-function positionUnit(rawUnit: string | undefined): ReturnType<typeof unitOf> {
+/**
+ * The position column's unit from its header or units row; refused when given but not one we read. A units row is
+ * the first row under the header with no number in it, so a data row whose position is not a number is read as one:
+ * the message then says both.
+ */
+function positionUnit(rawUnit: string | undefined, fromUnitsRow = false): ReturnType<typeof unitOf> {
   if (rawUnit === undefined || rawUnit.trim() === '') return undefined;
   const unit = unitOf(rawUnit);
   if (unit === undefined) {
-    throw new ScienceError('UNIT_INVALID', `the position unit "${rawUnit}" is not one of cm-1, MHz, GHz, THz, um, nm`, {
-      unit: rawUnit,
-    });
+    const why = fromUnitsRow
+      ? `the row under the header has no number in it, so it was read as the row of units, and the position unit "${rawUnit}" is not one of cm-1, MHz, GHz, THz, um, nm; if that row is data, its position is not a number: send numbers (a decimal point, or a decimal comma with ";" or tab between columns)`
+      : `the position unit "${rawUnit}" is not one of cm-1, MHz, GHz, THz, um, nm`;
+    throw new ScienceError('UNIT_INVALID', why, { unit: rawUnit });
   }
   return unit;
 }

@@ -54,6 +54,11 @@ describe('CSV position units', () => {
     expect(lines('position,intensity\n2143.27,1\n').unit).toBeUndefined();
     expect(lines('position;intensity\n ;counts\n2143,27;1\n').unit).toBeUndefined();
     expect(refusal('position;intensity\nMHZ2;\n1;2\n').code).toBe('UNIT_INVALID');
+    // A data row whose position is not a number sits where a units row would: the refusal says both readings.
+    const bad = refusal('position\nabc\ndef\n');
+    expect(bad.code).toBe('UNIT_INVALID');
+    expect(bad.message).toContain('read as the row of units');
+    expect(bad.message).toContain('its position is not a number');
   });
 });
 
