@@ -9,7 +9,7 @@ import {
   type Warning,
 } from '../fit/fit-lines.js';
 import { rememberingSolves } from '../linalg/solve-memo.js';
-import type { Band } from '../models/transitions.js';
+import { type Band, parseBand } from '../models/transitions.js';
 import { constantsFor } from '../species/library.js';
 import { elementsOnly, enrichedAtomsOnly, type Isotopologue, parseSpecies } from '../species/parse.js';
 import { type MassValue, reducedMass } from '../species/reduced-mass.js';
@@ -23,7 +23,12 @@ import {
   withPlacedLines,
 } from './assign-lines.js';
 import { isotopologuesMeant } from './candidates.js';
-import { type IdentificationCandidate, identifySpecies, matchNotBeyondChance } from './identify.js';
+import {
+  fittedBandBeyondChance,
+  type IdentificationCandidate,
+  identifySpecies,
+  matchNotBeyondChance,
+} from './identify.js';
 import { withoutUninformativeIntensities } from './intensity.js';
 import { likelyLabels } from './relabel.js';
 import { assignByStructure, extendByFit, MIN_MARGIN, type NumberingEvidence } from './structure.js';
@@ -352,7 +357,8 @@ export function assignFromLibrary(
   // The lines the chosen assignment's final fit places alone (src/assign/fill.ts), after every comparison of attempts.
   const r = withPlacedLines(chosen);
   const suggested = withLabelSuggestions(r.fit, r.lines);
-  const warnings = namingBandsNotFound([...extraWarnings, ...r.warnings, ...suggested.warnings], r.bands);
+  const judged = chanceJudgedByFittedBands(extraWarnings, peaks, r.fit.result.bands, options);
+  const warnings = namingBandsNotFound([...judged, ...r.warnings, ...suggested.warnings], r.bands);
   const result = { ...suggested, warnings };
   return {
     result,
@@ -760,6 +766,27 @@ export function namingBandsNotFound(warnings: readonly Warning[], bands: readonl
       message: `${species}: ω_e and ω_e x_e need two or more vibrational intervals, and only one was fitted: band ${names.join(', ')} is predicted in the window and its lines may be in the list, but it was not matched (see BAND_NOT_FOUND); the band origin is ΔG, not ω_e`,
     };
   });
+}
+
+/**
+ * ASSIGNMENT_NOT_BEYOND_CHANCE judged again once the lines are assigned: it is dropped when a band the fit holds
+ * with at least HOT_BAND_LINES lines finds lines beyond chance by its own predictions (identify.ts,
+ * fittedBandBeyondChance). The first judgement weighs the species' strongest lines at the assumed temperature, which
+ * a list of a hot band alone does not hold: the 96 lines of the real CO 2-1 band were all assigned right, yet the
+ * identity check failed on it.
+ */
+function chanceJudgedByFittedBands(
+  warnings: readonly Warning[],
+  peaks: readonly PeakInput[],
+  bands: FitResult['bands'],
+  options: AnalyseOptions,
+): readonly Warning[] {
+  if (!warnings.some((w) => w.code === 'ASSIGNMENT_NOT_BEYOND_CHANCE')) return warnings;
+  const fitted = bands
+    .filter((b) => b.lines >= HOT_BAND_LINES)
+    .map((b) => ({ species: b.species, band: parseBand(b.band) }));
+  const explained = fittedBandBeyondChance(peaks, fitted, { maxOffset: options.maxOffset ?? 0.5 });
+  return explained ? warnings.filter((w) => w.code !== 'ASSIGNMENT_NOT_BEYOND_CHANCE') : warnings;
 }
 
 /**

@@ -123,11 +123,40 @@ export function matchNotBeyondChance(
   return best && best.score === 0 && best.predicted >= 3 ? best : undefined;
 }
 
-/** A mixture to score: the molecule's formula and name, and its isotopologues with their abundances. */
+/**
+ * Whether one of the bands an assignment fitted finds lines beyond chance by its own predictions: the band's lines
+ * with J″ ≤ 12 in the window, shifted by their own voted offset and matched as matchNotBeyondChance matches a
+ * species' strongest lines, at the same false-alarm bar. A list holding a hot band or an overtone alone (the 2-1
+ * band of CO) is explained by that band, while the species' strongest predictions at the assumed temperature (its
+ * fundamental) find nothing in it. Predicted as at BAND_TEST_TEMPERATURE, so that a hot band's lower level is
+ * populated; the temperature only weighs the band's own lines against one another here.
+ */
+export function fittedBandBeyondChance(
+  peaks: readonly { position: number; intensity?: number }[],
+  bands: readonly { readonly species: string; readonly band: Band }[],
+  options: { readonly maxOffset?: number } = {},
+): boolean {
+  if (peaks.length === 0) return false;
+  const { lo, hi, strongObserved } = identificationWindow(peaks);
+  return bands.some(({ species, band }) => {
+    const test = { formula: species, name: species, mixture: [{ iso: parseSpecies(species), abundance: 1 }], band };
+    const scoring = { temperature: BAND_TEST_TEMPERATURE, minRelativeIntensity: 0, ...options };
+    return scoreMixture(test, strongObserved, lo, hi, scoring).score > 0;
+  });
+}
+
+/** K: the lower levels of hot bands to v = 4 populated above the candidates' cut (1e-6) in every library species. */
+const BAND_TEST_TEMPERATURE = 3000;
+
+/**
+ * A mixture to score: the molecule's formula and name, and its isotopologues with their abundances; with `band`,
+ * that band's predictions only.
+ */
 interface MixtureTest {
   readonly formula: string;
   readonly name: string;
   readonly mixture: ReturnType<typeof isotopologuesMeant>;
+  readonly band?: Band;
 }
 
 type StrongObserved = ReturnType<typeof identificationWindow>['strongObserved'];
@@ -158,7 +187,7 @@ function scoreMixture(
   hi: number,
   options: CandidateOptions & { maxOffset?: number },
 ): ScoredCandidate {
-  const cands = strongestPredictions(test.mixture, lo, hi, options);
+  const cands = strongestPredictions(test.mixture, lo, hi, options, test.band);
   if (cands.length < 3) {
     return {
       species: test.formula,
@@ -193,15 +222,16 @@ function scoreMixture(
   };
 }
 
-/** The mixture's 60 strongest predicted lines with J″ ≤ 12 in [lo, hi], strongest first. */
+/** The mixture's 60 strongest predicted lines with J″ ≤ 12 in [lo, hi] (of one band when given), strongest first. */
 function strongestPredictions(
   mixture: MixtureTest['mixture'],
   lo: number,
   hi: number,
   options: CandidateOptions,
+  band?: Band,
 ): ReturnType<typeof candidateLines> {
   return candidateLines(mixture, lo, hi, options)
-    .filter((c) => c.j <= 12)
+    .filter((c) => c.j <= 12 && (!band || (c.band.upper === band.upper && c.band.lower === band.lower)))
     .sort((a, b) => b.intensity - a.intensity)
     .slice(0, 60);
 }

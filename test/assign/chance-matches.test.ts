@@ -103,6 +103,28 @@ describe('a declared species that the lines do not show', () => {
     expect(fitted).toBeGreaterThanOrEqual(8);
   });
 
+  it('a real CO band alone that is not the fundamental (2-1, 3-0; database lines, positions only) passes the identity check', () => {
+    // The species' strongest lines at the assumed temperature are its fundamental's, which these lists do not hold:
+    // judged by them alone, the 2-1 list failed identity though all 96 of its lines were assigned right. The bands
+    // the fit holds are judged by their own predictions (identify.ts#fittedBandBeyondChance).
+    const co = parseSpecies('CO');
+    for (const band of ['2-1', '3-0']) {
+      const lines = CO_DATABASE.lines.filter((l) => l.band === band);
+      const peaks = lines.map((l) => ({ position: l.position }));
+      const analysis = analyseLineList(peaks, co);
+      const right = analysis.result.lines.filter(
+        (l, i) =>
+          l.assignment?.species === '12C-16O' &&
+          l.assignment.band === band &&
+          l.assignment.branch === lines[i]?.branch &&
+          l.assignment.j === lines[i]?.j,
+      ).length;
+      expect(right, band).toBeGreaterThanOrEqual(0.95 * lines.length);
+      expect(analysis.result.warnings.map((w) => w.code)).not.toContain('ASSIGNMENT_NOT_BEYOND_CHANCE');
+      expect(runChecks(peaks, co, analysis).checks.find((c) => c.id === 'identity')?.status, band).toBe('pass');
+    }
+  });
+
   it('the real CO fundamental declared as CO is beyond chance; declared as ¹³C¹⁶O it is not', () => {
     expect(matchNotBeyondChance(coFundamental(), parseSpecies('12C16O'))).toBeUndefined();
     const wrong = matchNotBeyondChance(coFundamental(), parseSpecies('13C16O'));
