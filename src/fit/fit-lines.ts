@@ -150,10 +150,24 @@ export function fitLineListDetailed(
     sourceOffsets: report,
     warnings: [
       ...r.warnings.filter((w) => !isSourceWarning(w)),
-      ...first.detailed.result.warnings.filter(isSourceWarning),
+      ...first.detailed.result.warnings.filter(isSourceWarning).map(saidBeforeCarrying),
     ],
   };
   return { ...second.detailed, result };
+}
+
+/**
+ * SOURCE_MEAN_RESIDUALS of the pass that found the offsets, in an answer that carries them: its mean residuals are
+ * of that pass (the answer's residuals no longer hold the offset, and the reference source's own mean, pulled off
+ * zero by the shifted lines, is back near it), and its two figures for a source differ in kind (a mean residual
+ * against a fit that absorbed part of the shift, and the offset on the shared levels): the message says so.
+ */
+function saidBeforeCarrying(w: Warning): Warning {
+  if (w.code !== 'SOURCE_MEAN_RESIDUALS') return w;
+  return {
+    ...w,
+    message: `${w.message} These figures are of the fit before the offset was carried: the offset on the shared levels (the second figure) is now carried in the fit (sourceOffsets, applied), and the residuals of this answer no longer hold it.`,
+  };
 }
 
 /** Stage 8 without relative offsets: the scale offset of one instrument's lines (loop-offset.ts), if one source. */
@@ -561,7 +575,7 @@ function prepareObservations(
       ? rescaleStatedUncertainties(
           input,
           weighted.observations,
-          { maxOrder, termSignificance: alpha, screenGross },
+          { maxOrder, termSignificance: alpha, screenGross, perLineGroups: screenGross },
           firstLevel,
         )
       : undefined;

@@ -27,6 +27,11 @@ export interface ScaleFitSettings {
   readonly termSignificance: number;
   /** Screen gross errors out of the estimating fits (default true; false in the assignment's round fits). */
   readonly screenGross?: boolean;
+  /**
+   * Judge a band's lines that state σ line by line as one group (stated-scale.ts; default true; false in the
+   * assignment's round fits, whose bands still hold wrong and missing lines).
+   */
+  readonly perLineGroups?: boolean;
 }
 
 export interface GrossScreen {

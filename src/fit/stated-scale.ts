@@ -41,6 +41,8 @@ const WITHOUT_SIGMA = 'without σ';
 const bandKey = (species: string, band: string, sigma: number, source: string | undefined): string =>
   `band|${species}|${band}|${sigma.toPrecision(3)}${source !== undefined ? `|${source}` : ''}`;
 const sourceKey = (source: string): string => `source|${source}`;
+/** The key of a band's lines that state σ line by line (no σ shared by MIN_SCATTER_GROUP of them), without a source. */
+const perLineKey = (species: string, band: string): string => `lines|${species}|${band}`;
 
 /**
  * Stage 1c (a-posteriori mode only), stated uncertainties that disagree between groups. With one scale s² for the
@@ -63,7 +65,7 @@ export function rescaleStatedUncertainties(
 ): StatedScale {
   const none: StatedScale = { observations, groups: [], factorFor: () => 1, warnings: [] };
   if (oneStatedGroup(observations, input)) return none;
-  const keyOf = statedGroupKeys(observations, input);
+  const keyOf = statedGroupKeys(observations, input, fit.perLineGroups ?? true);
   if (!canDiffer(observations, keyOf)) return none;
   const scaled = groupScales(input, observations, fit, first, keyOf);
   if (scaled.factors.size === 0) return none;
@@ -190,7 +192,11 @@ function canDiffer(observations: readonly Observation[], keyOf: (o: Observation)
 }
 
 /** The group key of each stated line (by its input index), built once; undefined for a line without σ. */
-function statedGroupKeys(observations: readonly Observation[], input: readonly LineInput[]): StatedGroupKeys {
+function statedGroupKeys(
+  observations: readonly Observation[],
+  input: readonly LineInput[],
+  perLineGroups: boolean,
+): StatedGroupKeys {
   const fine: (string | undefined)[] = [];
   const groups = new Map<string, { lines: number; source: string | undefined }>();
   for (const o of observations) {
@@ -203,24 +209,27 @@ function statedGroupKeys(observations: readonly Observation[], input: readonly L
     else groups.set(k, { lines: 1, source: line.source });
   }
   // A source's band and σ too few to judge alone join the source's other such lines (a source stating a σ per
-  // line is judged as one group), and so does a source's only band and σ (the group is the source's lines).
+  // line is judged as one group), and so does a source's only band and σ (the group is the source's lines). Without
+  // a source, a band's σ too few to judge alone join the band's other such lines (a peak list states a σ per line:
+  // each band is then judged as one group, so that a band whose σ are right keeps them beside a band whose σ are
+  // overstated, instead of taking the pooled scale of both).
   const perSource = new Map<string, number>();
   for (const { source } of groups.values())
     if (source !== undefined) perSource.set(source, (perSource.get(source) ?? 0) + 1);
   const own = new Set<string>();
   for (const [k, g] of groups)
     if (g.lines >= MIN_SCATTER_GROUP && (g.source === undefined || (perSource.get(g.source) as number) > 1)) own.add(k);
-  const keyOfBand = (k: string, source: string | undefined) =>
-    source === undefined || own.has(k) ? k : sourceKey(source);
+  const keyOfBand = (k: string, species: string, band: string, source: string | undefined) =>
+    own.has(k) ? k : source !== undefined ? sourceKey(source) : perLineGroups ? perLineKey(species, band) : k;
   const keys: (string | undefined)[] = [];
   for (const o of observations) {
     const k = fine[o.index];
-    if (k !== undefined) keys[o.index] = keyOfBand(k, input[o.index]?.source);
+    if (k !== undefined) keys[o.index] = keyOfBand(k, o.species, `${o.upperV}-${o.lowerV}`, input[o.index]?.source);
   }
   const keyOf = (o: Observation) => keys[o.index];
   return Object.assign(keyOf, {
     keyFor: (species: string, band: string, sigma: number, source: string | undefined) =>
-      keyOfBand(bandKey(species, band, sigma, source), source),
+      keyOfBand(bandKey(species, band, sigma, source), species, band, source),
   });
 }
 
@@ -311,6 +320,11 @@ function grossLines(
 function labelOf(key: string): string {
   // A source's name may hold "|": it is the rest of the key after the fixed fields.
   if (key.startsWith('source|')) return key.slice('source|'.length);
+  if (key.startsWith('lines|')) {
+    const [, species, band] = key.split('|') as [string, string, string];
+    const [u, l] = band.split('-').map(Number) as [number, number];
+    return `${species} ${formatBand({ upper: u, lower: l })}, σ per line`;
+  }
   const [, species, band, sigma, ...source] = key.split('|') as [string, string, string, string, ...string[]];
   const [u, l] = band.split('-').map(Number) as [number, number];
   const label = `${species} ${formatBand({ upper: u, lower: l })}, σ = ${sigma} cm-1`;

@@ -29,5 +29,8 @@ describe('two instruments, one shifted', () => {
     const [, value = '', sigma = ''] = m as RegExpExecArray;
     expect(Math.abs(Number(value) - 0.002)).toBeLessThan(4 * Number(sigma) + 0.00004);
     expect(w?.lines?.every((i) => lines[i]?.source === 'laser-B')).toBe(true);
+    // The offset is carried in the fit: the warning's figures are said to be of the fit before it was.
+    expect(r.json().sourceOffsets.applied).toBe(true);
+    expect(w?.message).toMatch(/These figures are of the fit before the offset was carried/);
   });
 });
