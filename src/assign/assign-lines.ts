@@ -16,6 +16,7 @@ import { type Band, formatBand, type Transition, transitionKey, transitionLabel 
 import { constantsFor, dunhamFromEntry } from '../species/library.js';
 import type { Isotopologue } from '../species/parse.js';
 import type { MassValue } from '../species/reduced-mass.js';
+import { extentOf, spanOf } from '../stats/extent.js';
 import { median as robustMedian, robustSigma } from '../stats/robust.js';
 import { type CandidateLine, type CandidateOptions, candidateLines } from './candidates.js';
 import { driftedVote, driftFactor, driftLimit, shiftAt } from './drift.js';
@@ -272,8 +273,8 @@ function withBorrowedLevels(
       .map((b) => `${b.species}|${b.band}`),
   );
   if (missing.size === 0) return held;
-  const positions = peaks.map((p) => p.position);
-  const cands = candidateLines(species, Math.min(...positions) - 1, Math.max(...positions) + 1, {
+  const { lo, hi } = extentOf(peaks.map((p) => p.position));
+  const cands = candidateLines(species, lo - 1, hi + 1, {
     ...options,
     minRelativeIntensity: 0,
     maxJ: options.maxJ ?? MAX_J,
@@ -597,8 +598,9 @@ export function prepareAssignment(
   options: AssignOptions,
 ): AssignContext {
   const positions = peaks.map((p) => p.position);
-  const lo = Math.min(...positions) - 1;
-  const hi = Math.max(...positions) + 1;
+  const extent = extentOf(positions);
+  const lo = extent.lo - 1;
+  const hi = extent.hi + 1;
   // Every line of every plausible band, down to any intensity: bands are seeded from their strong lines only, but a
   // fitted band grows for as long as the data carry it.
   const inner = withBorrowedPositions(
@@ -960,7 +962,7 @@ export function proposeMatches(
       // A prediction's key is its candidate's number (see predictionOf).
       out.cands.push(Number(x.prediction.key));
     }
-    out.competitions.push(...m.competitions);
+    for (const c of m.competitions) out.competitions.push(c);
   });
   return { ...out, detailed: state.detailed, auto: state.auto };
 }
@@ -2902,7 +2904,7 @@ export function calibrationFromPoints(pts: readonly CalibrationPoint[], referenc
   });
   const centre = swx / sw;
   const xs = pts.map((p) => p.reference);
-  const span = Math.max(...xs) - Math.min(...xs);
+  const span = spanOf(xs);
   const withScale = span >= 0.01 * centre && pts.length >= 4;
   const n = pts.length;
   const cols = withScale ? 2 : 1;

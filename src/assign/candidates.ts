@@ -58,7 +58,9 @@ export function candidateLines(
   const out: CandidateLine[] = [];
   for (const { iso, abundance } of species) {
     const entry = constantsFor(iso);
-    if (entry) out.push(...isotopologueCandidates(iso.formula, dunhamFromEntry(entry), abundance, lo, hi, options));
+    if (!entry) continue;
+    for (const c of isotopologueCandidates(iso.formula, dunhamFromEntry(entry), abundance, lo, hi, options))
+      out.push(c);
   }
   let max = 0;
   for (const c of out) max = Math.max(max, c.intensity);

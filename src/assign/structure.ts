@@ -5,6 +5,7 @@ import { copyFloats, floats, mapFloats } from '../linalg/small-arrays.js';
 import type { Band, Branch } from '../models/transitions.js';
 import type { MassValue } from '../species/reduced-mass.js';
 import { chiSquareSurvival } from '../stats/distributions.js';
+import { extentOf } from '../stats/extent.js';
 import { median, robustSigma as robustSigmaOf } from '../stats/robust.js';
 import { lowerBound, matchLines, type Prediction } from './match.js';
 
@@ -498,8 +499,8 @@ export function describeShift(q: number, delta: number): string {
  */
 export function numberingsOf(chain: readonly Point[]): { q: number; delta: number }[] {
   const ms = new Set(chain.map((p) => p.m));
-  const lo = Math.min(...ms);
-  const hi = Math.max(...ms);
+  const lo = extentOf(ms).lo;
+  const hi = extentOf(ms).hi;
   const empty: number[] = [];
   for (let m = lo - 1; m <= hi + 1; m++) if (!ms.has(m)) empty.push(m);
   empty.sort((a, b) => Math.abs(a) - Math.abs(b));
@@ -881,8 +882,8 @@ export function extendInwards(
       const ps = points.filter((p) => p.m < 0).map((p) => p.m);
       const rs = points.filter((p) => p.m >= 0).map((p) => p.m);
       if (ps.length < 4 || rs.length < 4) return;
-      const top = Math.max(...ps);
-      const bottom = Math.min(...rs);
+      const top = extentOf(ps).hi;
+      const bottom = extentOf(rs).lo;
       const m = side === 'P' ? top + 1 + misses : bottom - 1 - misses;
       if (m >= bottom || m <= top || (side === 'P' && m >= 0) || (side === 'R' && m < 0)) break;
       const local = localPoints(points, side === 'P' ? -1 : 0).filter((p) => (side === 'P' ? p.m < 0 : p.m >= 0));
@@ -947,8 +948,8 @@ export function fillHoles(
 ): void {
   const has = new Set(points.map((p) => p.m));
   const ms = [...has];
-  const lo = Math.min(...ms);
-  const hi = Math.max(...ms);
+  const lo = extentOf(ms).lo;
+  const hi = extentOf(ms).hi;
   for (let m = lo + 1; m < hi; m++) {
     if (has.has(m)) continue;
     // Only holes with neighbours on both sides within two indices: a wide empty stretch is the gap at the origin.
@@ -975,7 +976,7 @@ export function extendBothSides(
 ): void {
   const ms = points.map((p) => p.m);
   const misses = { R: 0, P: 0 };
-  let next = { R: Math.max(...ms) + 1, P: Math.min(...ms) - 1 };
+  let next = { R: extentOf(ms).hi + 1, P: extentOf(ms).lo - 1 };
   for (let step = 0; step < 400 && (misses.R < 3 || misses.P < 3); step++) {
     for (const side of ['R', 'P'] as const) {
       if (misses[side] >= 3) continue;
@@ -1061,8 +1062,8 @@ export function polynomialResiduals(points: readonly Point[]): Float64Array | un
   const cols = Math.min(5, n - 3);
   if (cols < 2) return undefined;
   const ms = points.map((p) => p.m);
-  const centre = (Math.max(...ms) + Math.min(...ms)) / 2;
-  const half = Math.max(1, (Math.max(...ms) - Math.min(...ms)) / 2);
+  const centre = (extentOf(ms).hi + extentOf(ms).lo) / 2;
+  const half = Math.max(1, (extentOf(ms).hi - extentOf(ms).lo) / 2);
   const design = floats(n * cols);
   points.forEach((p, i) => {
     for (let k = 0; k < cols; k++) design[k * n + i] = ((p.m - centre) / half) ** k;

@@ -7,6 +7,7 @@ import { ScienceError } from '../errors.js';
 import { solveLeastSquares } from '../linalg/least-squares.js';
 import { guardBandedStatus } from '../qa/calibration.js';
 import { type Check, type CheckStatus, DEFAULT_TOLERANCES, type Tolerances } from '../qa/checks.js';
+import { extentOf, spanOf } from '../stats/extent.js';
 import { fitLinearLines, type LinearFitResult } from './fit.js';
 import { relativeIntensity } from './intensity.js';
 import { type LevelConstantsEntry, type PredictedLinearLine, predictLinearBands } from './predict.js';
@@ -325,8 +326,9 @@ function assignmentSetting(
     minRelativeIntensity: options.minRelativeIntensity ?? DEFAULTS.minRelativeIntensity,
   };
   const positions = peaks.map((p) => p.position);
-  const lo = Math.min(...positions) - 1;
-  const hi = Math.max(...positions) + 1;
+  const extent = extentOf(positions);
+  const lo = extent.lo - 1;
+  const hi = extent.hi + 1;
   const bands = options.bands ?? referenceBands(ref).map((b) => ({ upper: b.upper, lower: b.lower }));
   const libEntries = levelEntries(ref);
   const cands = predictCandidates(species, ref, libEntries, bands, lo, hi, o);
@@ -656,7 +658,7 @@ function bandSummaries(
       kind: b.upper.l === b.lower.l ? 'parallel' : 'perpendicular',
       predicted: cands.filter((c) => `${levelKey(c.line.upper)}>${levelKey(c.line.lower)}` === key).length,
       assigned: mine.length,
-      ...(js.length > 0 ? { jRange: [Math.min(...js), Math.max(...js)] as const } : {}),
+      ...(js.length > 0 ? { jRange: [extentOf(js).lo, extentOf(js).hi] as const } : {}),
     };
   });
 }
@@ -974,7 +976,7 @@ function offsetAndScale(pts: readonly CalibrationPoint[]): {
 } {
   const n = pts.length;
   const centre = pts.reduce((s, p) => s + p.nu / (p.s * p.s), 0) / pts.reduce((s, p) => s + 1 / (p.s * p.s), 0);
-  const span = Math.max(...pts.map((p) => p.nu)) - Math.min(...pts.map((p) => p.nu));
+  const span = spanOf(pts.map((p) => p.nu));
   const useScale = span > 0 && n >= 4;
   const cols = useScale ? 2 : 1;
   const design = new Float64Array(n * cols);

@@ -24,6 +24,7 @@ import { termTest } from '../fit/term-test.js';
 import type { Statistics } from '../fit/types.js';
 import { type ScatterGroup, weighLines } from '../fit/weights.js';
 import type { LinearModel, Observation, Parameter } from '../models/linear-model.js';
+import { extentOf } from '../stats/extent.js';
 import { type LinearCombinationDifferences, linearCombinationDifferences } from './combination-differences.js';
 import type { LinearSpecies } from './species.js';
 import { paritySign, rotationalVariable } from './terms.js';
@@ -847,7 +848,7 @@ function bandsOf(
       kind: t.upper.l === t.lower.l ? ('parallel' as const) : ('perpendicular' as const),
       ...(origin ? { origin } : {}),
       lines: members.length,
-      jRange: [Math.min(...js), Math.max(...js)] as const,
+      jRange: [extentOf(js).lo, extentOf(js).hi] as const,
     };
   });
 }

@@ -1,6 +1,7 @@
 import { SECOND_RADIATION_CM_K } from '../constants/codata-2018.js';
 import { type Quantity, quantity } from '../derive/quantity.js';
 import { solveLeastSquares } from '../linalg/least-squares.js';
+import { spanOf } from '../stats/extent.js';
 
 /**
  * Line intensities of linear polyatomic molecules: Hönl–London factors for parallel (Δl = 0) and perpendicular
@@ -155,7 +156,7 @@ export function linearBoltzmannTemperature(points: readonly LinearBoltzmannPoint
   const n = pts.length;
   if (n < 4) return undefined;
   const xs = pts.map((p) => p.lowerEnergy);
-  if (Math.max(...xs) - Math.min(...xs) <= 0) return undefined;
+  if (spanOf(xs) <= 0) return undefined;
   const s = pts.map((p) => honlLondonComponent(p.branch, p.lowerL, p.upperL, p.j) * p.spinWeight);
   let T = 296;
   let result: LinearBoltzmannPlot | undefined;

@@ -2,6 +2,7 @@ import { SECOND_RADIATION_CM_K } from '../constants/codata-2018.js';
 import { type Quantity, quantity } from '../derive/quantity.js';
 import { solveLeastSquares } from '../linalg/least-squares.js';
 import type { Branch } from '../models/transitions.js';
+import { spanOf } from '../stats/extent.js';
 
 export interface BoltzmannPoint {
   readonly position: number;
@@ -30,7 +31,7 @@ export function boltzmannTemperature(points: readonly BoltzmannPoint[]): Boltzma
   const n = pts.length;
   if (n < 4) return undefined;
   const xs = pts.map((p) => p.lowerEnergy);
-  if (Math.max(...xs) - Math.min(...xs) <= 0) return undefined;
+  if (spanOf(xs) <= 0) return undefined;
   let T = 296;
   let result: BoltzmannPlot | undefined;
   for (let iter = 0; iter < 20; iter++) {

@@ -3,6 +3,7 @@ import type { PeakInput } from '../../assign/assign-lines.js';
 import { candidateLines, naturalAbundances } from '../../assign/candidates.js';
 import type { Branch } from '../../models/transitions.js';
 import { parseSpecies } from '../../species/parse.js';
+import { extentOf } from '../../stats/extent.js';
 import type { Check, CheckStatus, Tolerances } from './common.js';
 
 /** The fit-quality check: reduced χ², the share of outliers and the completeness of the strong lines. */
@@ -77,9 +78,8 @@ function strongLinesFound(
   const mixture = species.map((s) => ({ iso: parseSpecies(s), abundance: 1 }));
   const natural = naturalAbundances(species[0] as string);
   const weighted = mixture.map((m) => ({ iso: m.iso, abundance: natural.get(m.iso.formula) ?? 1 }));
-  const strong = candidateLines(weighted, Math.min(...positions), Math.max(...positions), { temperature: T }).filter(
-    (c) => c.intensity >= 0.1,
-  );
+  const { lo, hi } = extentOf(positions);
+  const strong = candidateLines(weighted, lo, hi, { temperature: T }).filter((c) => c.intensity >= 0.1);
   const found = new Set(
     analysis.result.lines
       .filter((l) => l.assignment)
