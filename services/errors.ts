@@ -116,6 +116,20 @@ export class HttpProblem extends Error {
   }
 }
 
+/**
+ * A 413's detail with the limit that applies: the route's own (`bodyLimit`: SMALL_BODY_LIMIT on /v1/predictions and
+ * /graphql, BODY_LIMIT on the work routes), in bytes and by the name of its setting.
+ */
+function bodyLimitDetail(request: FastifyRequest): string {
+  const limit = request.routeOptions?.bodyLimit;
+  if (limit === undefined) return 'Request body is too large';
+  const mib = limit / (1024 * 1024);
+  const shown = mib >= 1 ? `${Number.isInteger(mib) ? mib : mib.toFixed(1)} MiB` : `${limit} bytes`;
+  const url = request.routeOptions?.url ?? '';
+  const setting = url === '/v1/predictions' || url === '/graphql' ? 'SMALL_BODY_LIMIT' : 'BODY_LIMIT';
+  return `the body is larger than ${url || 'this route'} takes: ${shown} (${limit} bytes, ${setting}); send fewer lines or points, or split the list`;
+}
+
 /** Longest error detail sent back; details may quote the input, which must not be echoed at length. */
 export const MAX_DETAIL_CHARS = 300;
 export const truncate = (s: string, max = MAX_DETAIL_CHARS): string =>
@@ -228,7 +242,9 @@ function toProblemUntruncated(error: unknown, request: FastifyRequest): Problem 
       status: known.status,
       detail: mediaType
         ? acceptedBodiesAdvice(request.routeOptions?.url, request.headers['content-type'])
-        : (fe.message ?? known.title),
+        : fe.code === 'FST_ERR_CTP_BODY_TOO_LARGE'
+          ? bodyLimitDetail(request)
+          : (fe.message ?? known.title),
       instance,
       code: known.code,
     };
@@ -288,7 +304,8 @@ export const PROBLEM_DESCRIPTIONS: Record<string, string> = {
   'invalid-json': 'The body is not valid JSON.',
   'forbidden-property': 'The body holds a "__proto__" or "constructor.prototype" key (prototype poisoning), refused.',
   'unsupported-media-type': 'The Content-Type is not one this endpoint accepts.',
-  'body-too-large': 'The body exceeds the configured limit (BODY_LIMIT).',
+  'body-too-large':
+    "The body exceeds the route's limit: SMALL_BODY_LIMIT (1 MiB by default) on /v1/predictions and /graphql, BODY_LIMIT (32 MiB) on the other routes; the detail names the one that applies.",
   'bad-request': 'The request is malformed.',
   forbidden: 'The path is outside what the service serves (e.g. a static path leaving its folder).',
   'not-acceptable': 'None of the media types the Accept header asks for can be produced.',
