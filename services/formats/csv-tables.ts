@@ -12,13 +12,13 @@ import { roundedDisplay } from './round.js';
 export type Cell = string | number | undefined | null;
 
 /**
- * A text cell that a spreadsheet would read as a formula (it starts with =, +, -, @, a tab or a carriage return: a
- * line id or source such as `=HYPERLINK(…)` sent by a caller) is written with a leading apostrophe, which shows it
- * as text (common practice against CSV formula injection). Numbers, and text that is a plain number ("-0.5"), are
- * written as they are.
+ * A text cell that a spreadsheet would read as a formula is written with a leading apostrophe, which shows it as text
+ * (common practice against CSV formula injection): one that starts with =, +, -, @ (after leading spaces too, which
+ * some spreadsheets trim on import), a tab or a carriage return, such as a line id or source `=HYPERLINK(…)` sent by a
+ * caller. Numbers, and text that is a plain number ("-0.5"), are written as they are.
  */
 const asText = (s: string): string =>
-  /^[=+\-@\t\r]/.test(s) && !(s.trim() === s && Number.isFinite(Number(s))) ? `'${s}` : s;
+  /^\s*[=+\-@]|^[\t\r]/.test(s) && !(s.trim() === s && Number.isFinite(Number(s))) ? `'${s}` : s;
 
 const cell = (v: Cell): string => {
   if (v === undefined || v === null) return '';

@@ -37,7 +37,7 @@ function cells(row: string): string[] {
 describe('CSV cells a spreadsheet would run', () => {
   it('ids and sources that look like formulas are written as text; numeric ids and negative numbers are not', async () => {
     const body = assignedFitBody('HCl', ['1-0'], 12, 0.002, 3);
-    const ids = ['=HYPERLINK("http://example.invalid","x")', '+cmd|calc', '@SUM(1)', '-2+3', '\tTAB', -5, 7];
+    const ids = ['=HYPERLINK("http://example.invalid","x")', '+cmd|calc', '@SUM(1)', '-2+3', '\tTAB', -5, 7, ' =1+1'];
     const lines = body.lines.map((l, i) => ({
       ...l,
       ...(i < ids.length ? { id: ids[i] } : {}),
@@ -64,6 +64,7 @@ describe('CSV cells a spreadsheet would run', () => {
     expect(byIndex.get(4)?.[idCol]).toBe("'\tTAB");
     expect(byIndex.get(5)?.[idCol]).toBe('-5');
     expect(byIndex.get(6)?.[idCol]).toBe('7');
+    expect(byIndex.get(7)?.[idCol]).toBe("' =1+1");
     expect(byIndex.get(0)?.[sourceCol]).toBe("'=1+1");
     expect(byIndex.get(1)?.[sourceCol]).toBe('scan A');
     // Residuals of both signs stay numbers: some are negative, none is prefixed.
