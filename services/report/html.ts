@@ -1,3 +1,4 @@
+import { extentOf } from '../../src/stats/extent.js';
 import { toWavenumber } from '../../src/units.js';
 import type { Provenance } from '../provenance.js';
 import type { CheckRequest, CheckResponse } from '../schemas/checks.js';
@@ -12,7 +13,7 @@ import {
   linearHazards,
   linearResidualPanels,
 } from './linear.js';
-import { esc, extent, MARKERS, PALETTE, plot, type Series } from './svg.js';
+import { esc, MARKERS, PALETTE, plot, type Series } from './svg.js';
 
 /**
  * One self-contained HTML document for a QA check, made to be filed: inline CSS and SVG, no scripts, no external
@@ -271,7 +272,10 @@ function lineListPanels(fit: Fit, bands: readonly { species: string; band: strin
     if (list) list.push(l);
     else linesOf.set(k, [l]);
   }
-  const ranges = bands.map((b) => extent(linesOf.get(`${b.species} ${b.band}`) ?? [], (l) => l.position));
+  const ranges = bands.map((b) => {
+    const { lo, hi } = extentOf((linesOf.get(`${b.species} ${b.band}`) ?? []).map((l) => l.position));
+    return [lo, hi] as [number, number];
+  });
   const panels = bands.map((b, n) => {
     const key = `${b.species} ${b.band}`;
     const mine = linesOf.get(key) ?? [];

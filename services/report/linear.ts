@@ -1,7 +1,8 @@
 import { linearReference } from '../../src/linear/reference.js';
+import { extentOf } from '../../src/stats/extent.js';
 import type { CheckResponse } from '../schemas/checks.js';
 import { prose, quantity, sig } from './format.js';
-import { esc, extent, MARKERS, PALETTE, plot, type Series } from './svg.js';
+import { esc, MARKERS, PALETTE, plot, type Series } from './svg.js';
 
 /**
  * The report's layout for linear polyatomic fits (CO2, N2O, OCS, HCN, C2H2): levels in the trade's notation with
@@ -80,7 +81,7 @@ export function linearConstantsSection(fit: Fit, notes: { levels: string; bands:
       const k = `${a.parity ?? 'e'} → ${a.upperParity ?? 'f'}`;
       pairs.set(k, (pairs.get(k) ?? 0) + 1);
     }
-    const [jLow, jHigh] = extent(q, (l) => l.assignment?.j as number);
+    const { lo: jLow, hi: jHigh } = extentOf(q.map((l) => l.assignment?.j as number));
     return [
       `<tr><td>${esc(b.species)}</td><td>${esc(b.label ?? b.band)}</td><td class="num">${q.length}</td><td>${jLow}–${jHigh}</td><td>${esc(
         [...pairs].map(([k, n]) => `${k} (${n})`).join(', '),

@@ -1,3 +1,4 @@
+import { extentOf } from '../../src/stats/extent.js';
 /**
  * A small SVG plotting kit for the report: linear axes with round-number ticks, points, sticks and lines.
  * Colours are the Okabe–Ito palette (M. Okabe and K. Ito, "Color Universal Design", 2008), readable with the
@@ -109,8 +110,8 @@ export function plot(spec: PlotSpec): string {
   if (all.length === 0) {
     return `<figure class="plot" id="${esc(spec.id)}"><figcaption>${esc(spec.title)}</figcaption><p class="empty">No data for this plot.</p></figure>`;
   }
-  let [x0, x1] = extent(all, (p) => p.x);
-  let [y0, y1] = extent(all, (p) => p.y);
+  let { lo: x0, hi: x1 } = extentOf(all.map((p) => p.x));
+  let { lo: y0, hi: y1 } = extentOf(all.map((p) => p.y));
   if (spec.zeroY) {
     y0 = Math.min(y0, 0);
     y1 = Math.max(y1, 0);
@@ -197,18 +198,3 @@ export function plot(spec: PlotSpec): string {
 }
 
 export { esc };
-
-/**
- * Smallest and largest of f over the items, by a loop: Math.min(...values) passes every value as an argument, and
- * past about 10⁵ of them (a line list of 100 000 lines) the call overflows the stack.
- */
-export function extent<T>(items: readonly T[], f: (item: T) => number): [number, number] {
-  let lo = Number.POSITIVE_INFINITY;
-  let hi = Number.NEGATIVE_INFINITY;
-  for (const item of items) {
-    const v = f(item);
-    if (v < lo) lo = v;
-    if (v > hi) hi = v;
-  }
-  return [lo, hi];
-}

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { useApp } from '../helpers/app.js';
 import { nextClient } from '../helpers/clients.js';
+import { rowsOf } from '../helpers/csv-rows.js';
 import { assignedFitBody } from '../helpers/requests.js';
 
 /**
@@ -10,29 +11,6 @@ import { assignedFitBody } from '../helpers/requests.js';
  * such as a negative value, stay as they are. Defaults of `npm start`.
  */
 const app = useApp();
-
-/** Splits one RFC 4180 row (quoted fields with doubled quotes) into its cells. */
-function cells(row: string): string[] {
-  const out: string[] = [];
-  let cur = '';
-  let quoted = false;
-  for (let i = 0; i < row.length; i++) {
-    const c = row[i] as string;
-    if (quoted) {
-      if (c === '"' && row[i + 1] === '"') {
-        cur += '"';
-        i++;
-      } else if (c === '"') quoted = false;
-      else cur += c;
-    } else if (c === '"') quoted = true;
-    else if (c === ',') {
-      out.push(cur);
-      cur = '';
-    } else cur += c;
-  }
-  out.push(cur);
-  return out;
-}
 
 describe('CSV cells a spreadsheet would run', () => {
   it('ids and sources that look like formulas are written as text; numeric ids and negative numbers are not', async () => {
@@ -51,7 +29,7 @@ describe('CSV cells a spreadsheet would run', () => {
       remoteAddress: nextClient(),
     });
     expect(r.statusCode).toBe(200);
-    const rows = r.body.trim().split('\r\n').map(cells);
+    const rows = rowsOf(r.body);
     const head = rows[0] as string[];
     const idCol = head.indexOf('id');
     const sourceCol = head.indexOf('source');
